@@ -1,0 +1,474 @@
+//! Plain raster containers and their PNG encoding: RGB images, 16-bit depth maps, index (label) maps.
+//!
+//! Owns: `RgbImage`, `DepthImage`, `IndexImage`, reading and writing them as PNG with typed errors and a
+//! pixel limit.
+//! Must not: know about segments, classes or scenes; a raster is only numbers on a grid.
+
+use std::fs::File;
+use std::io::{BufReader, BufWriter, Read, Write};
+use std::path::{Path, PathBuf};
+
+use serde::{Deserialize, Serialize};
+
+/// The largest image sayso accepts by default (about 16.8 megapixels).
+pub const DEFAULT_PIXEL_LIMIT: u64 = 4096 * 4096;
+
+/// An 8-bit sRGB image, row-major.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RgbImage {
+    pub width: u32,
+    pub height: u32,
+    pub pixels: Vec<[u8; 3]>,
+}
+
+/// A depth map in millimetres, row-major; 0 means "no reading".
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct DepthImage {
+    pub width: u32,
+    pub height: u32,
+    pub millimetres: Vec<u16>,
+}
+
+/// A map of small integers per pixel (class ids, instance ids), row-major.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct IndexImage {
+    pub width: u32,
+    pub height: u32,
+    pub values: Vec<u16>,
+}
+
+/// What went wrong reading or writing a raster.
+#[derive(Debug, thiserror::Error)]
+pub enum RasterError {
+    #[error("cannot open {path}: {source}")]
+    Io {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+    #[error("{path} is not a readable PNG: {message}")]
+    Decode { path: PathBuf, message: String },
+    #[error("cannot write {path}: {message}")]
+    Encode { path: PathBuf, message: String },
+    #[error("{path} is {width}x{height} = {pixels} pixels, above the limit of {limit}")]
+    TooLarge {
+        path: PathBuf,
+        width: u32,
+        height: u32,
+        pixels: u64,
+        limit: u64,
+    },
+    #[error("{path} has colour type {found}, expected {expected}")]
+    WrongFormat {
+        path: PathBuf,
+        found: String,
+        expected: &'static str,
+    },
+    #[error(
+        "{path} is {found_width}x{found_height} but must be {width}x{height} to match the image"
+    )]
+    SizeMismatch {
+        path: PathBuf,
+        width: u32,
+        height: u32,
+        found_width: u32,
+        found_height: u32,
+    },
+}
+
+macro_rules! grid_accessors {
+    ($type:ty, $field:ident, $pixel:ty) => {
+        impl $type {
+            /// Number of pixels.
+            pub fn pixel_count(&self) -> usize {
+                self.width as usize * self.height as usize
+            }
+
+            /// The value at column `x`, row `y`; callers keep `x < width`, `y < height`.
+            #[inline]
+            pub fn get(&self, x: u32, y: u32) -> $pixel {
+                self.$field[y as usize * self.width as usize + x as usize]
+            }
+
+            /// Sets the value at column `x`, row `y`.
+            #[inline]
+            pub fn set(&mut self, x: u32, y: u32, value: $pixel) {
+                let index = y as usize * self.width as usize + x as usize;
+                self.$field[index] = value;
+            }
+        }
+    };
+}
+
+grid_accessors!(RgbImage, pixels, [u8; 3]);
+grid_accessors!(DepthImage, millimetres, u16);
+grid_accessors!(IndexImage, values, u16);
+
+impl RgbImage {
+    /// A new image filled with one colour.
+    pub fn filled(width: u32, height: u32, colour: [u8; 3]) -> RgbImage {
+        RgbImage {
+            width,
+            height,
+            pixels: vec![colour; width as usize * height as usize],
+        }
+    }
+}
+
+impl IndexImage {
+    /// A new map filled with one value.
+    pub fn filled(width: u32, height: u32, value: u16) -> IndexImage {
+        IndexImage {
+            width,
+            height,
+            values: vec![value; width as usize * height as usize],
+        }
+    }
+}
+
+struct Decoded {
+    width: u32,
+    height: u32,
+    color: png::ColorType,
+    depth: png::BitDepth,
+    bytes: Vec<u8>,
+}
+
+fn decode_png(path: &Path, limit: u64) -> Result<Decoded, RasterError> {
+    let file = File::open(path).map_err(|source| RasterError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    decode_png_from(BufReader::new(file), path, limit)
+}
+
+fn decode_png_from<R: Read>(reader: R, path: &Path, limit: u64) -> Result<Decoded, RasterError> {
+    let decode_error = |message: String| RasterError::Decode {
+        path: path.to_path_buf(),
+        message,
+    };
+    let mut decoder = png::Decoder::new(reader);
+    // Expand palettes and sub-byte depths, keep 16-bit samples as they are.
+    decoder.set_transformations(png::Transformations::EXPAND);
+    let mut reader = decoder
+        .read_info()
+        .map_err(|error| decode_error(error.to_string()))?;
+    let info = reader.info();
+    let (width, height) = (info.width, info.height);
+    let pixels = width as u64 * height as u64;
+    if pixels > limit {
+        return Err(RasterError::TooLarge {
+            path: path.to_path_buf(),
+            width,
+            height,
+            pixels,
+            limit,
+        });
+    }
+    let mut bytes = vec![0u8; reader.output_buffer_size()];
+    let frame = reader
+        .next_frame(&mut bytes)
+        .map_err(|error| decode_error(error.to_string()))?;
+    bytes.truncate(frame.buffer_size());
+    Ok(Decoded {
+        width,
+        height,
+        color: frame.color_type,
+        depth: frame.bit_depth,
+        bytes,
+    })
+}
+
+fn sample(decoded: &Decoded, index: usize) -> u16 {
+    match decoded.depth {
+        png::BitDepth::Sixteen => {
+            u16::from_be_bytes([decoded.bytes[2 * index], decoded.bytes[2 * index + 1]])
+        }
+        _ => decoded.bytes[index] as u16,
+    }
+}
+
+fn rgb_from_decoded(decoded: Decoded, path: &Path) -> Result<RgbImage, RasterError> {
+    let channels = match decoded.color {
+        png::ColorType::Rgb => 3,
+        png::ColorType::Rgba => 4,
+        png::ColorType::Grayscale => 1,
+        png::ColorType::GrayscaleAlpha => 2,
+        other => {
+            return Err(RasterError::WrongFormat {
+                path: path.to_path_buf(),
+                found: format!("{other:?}"),
+                expected: "RGB, RGBA or greyscale",
+            })
+        }
+    };
+    let count = decoded.width as usize * decoded.height as usize;
+    let shift = if decoded.depth == png::BitDepth::Sixteen {
+        8
+    } else {
+        0
+    };
+    let mut pixels = Vec::with_capacity(count);
+    for pixel in 0..count {
+        let base = pixel * channels;
+        let value = |channel: usize| (sample(&decoded, base + channel) >> shift) as u8;
+        pixels.push(if channels >= 3 {
+            [value(0), value(1), value(2)]
+        } else {
+            [value(0); 3]
+        });
+    }
+    Ok(RgbImage {
+        width: decoded.width,
+        height: decoded.height,
+        pixels,
+    })
+}
+
+fn single_channel(decoded: &Decoded, path: &Path) -> Result<Vec<u16>, RasterError> {
+    if decoded.color != png::ColorType::Grayscale {
+        return Err(RasterError::WrongFormat {
+            path: path.to_path_buf(),
+            found: format!("{:?}", decoded.color),
+            expected: "single-channel greyscale",
+        });
+    }
+    let count = decoded.width as usize * decoded.height as usize;
+    Ok((0..count).map(|index| sample(decoded, index)).collect())
+}
+
+/// Reads an RGB (or RGBA / greyscale, converted) PNG.
+pub fn read_rgb_png(path: &Path, limit: u64) -> Result<RgbImage, RasterError> {
+    rgb_from_decoded(decode_png(path, limit)?, path)
+}
+
+/// Reads an RGB PNG from bytes; `origin` names it in errors.
+pub fn decode_rgb_png(bytes: &[u8], origin: &Path, limit: u64) -> Result<RgbImage, RasterError> {
+    rgb_from_decoded(decode_png_from(bytes, origin, limit)?, origin)
+}
+
+/// Reads a 16-bit (or 8-bit) single-channel depth PNG in millimetres.
+pub fn read_depth_png(path: &Path, limit: u64) -> Result<DepthImage, RasterError> {
+    let decoded = decode_png(path, limit)?;
+    let millimetres = single_channel(&decoded, path)?;
+    Ok(DepthImage {
+        width: decoded.width,
+        height: decoded.height,
+        millimetres,
+    })
+}
+
+/// Reads a single-channel index PNG (8- or 16-bit).
+pub fn read_index_png(path: &Path, limit: u64) -> Result<IndexImage, RasterError> {
+    let decoded = decode_png(path, limit)?;
+    let values = single_channel(&decoded, path)?;
+    Ok(IndexImage {
+        width: decoded.width,
+        height: decoded.height,
+        values,
+    })
+}
+
+/// Reads an index PNG from bytes; `origin` names it in errors.
+pub fn decode_index_png(
+    bytes: &[u8],
+    origin: &Path,
+    limit: u64,
+) -> Result<IndexImage, RasterError> {
+    let decoded = decode_png_from(bytes, origin, limit)?;
+    let values = single_channel(&decoded, origin)?;
+    Ok(IndexImage {
+        width: decoded.width,
+        height: decoded.height,
+        values,
+    })
+}
+
+fn encode_png<W: Write>(
+    writer: W,
+    width: u32,
+    height: u32,
+    color: png::ColorType,
+    depth: png::BitDepth,
+    data: &[u8],
+) -> Result<(), String> {
+    let mut encoder = png::Encoder::new(writer, width, height);
+    encoder.set_color(color);
+    encoder.set_depth(depth);
+    encoder.set_compression(png::Compression::Best);
+    let mut writer = encoder.write_header().map_err(|error| error.to_string())?;
+    writer
+        .write_image_data(data)
+        .map_err(|error| error.to_string())?;
+    writer.finish().map_err(|error| error.to_string())
+}
+
+fn write_file(
+    path: &Path,
+    encode: impl FnOnce(&mut Vec<u8>) -> Result<(), String>,
+) -> Result<(), RasterError> {
+    let mut bytes = Vec::new();
+    encode(&mut bytes).map_err(|message| RasterError::Encode {
+        path: path.to_path_buf(),
+        message,
+    })?;
+    let file = File::create(path).map_err(|source| RasterError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    let mut writer = BufWriter::new(file);
+    writer
+        .write_all(&bytes)
+        .and_then(|_| writer.flush())
+        .map_err(|source| RasterError::Io {
+            path: path.to_path_buf(),
+            source,
+        })
+}
+
+/// Encodes an RGB image as PNG bytes.
+pub fn encode_rgb_png(image: &RgbImage) -> Result<Vec<u8>, String> {
+    let data: Vec<u8> = image
+        .pixels
+        .iter()
+        .flat_map(|pixel| pixel.iter().copied())
+        .collect();
+    let mut bytes = Vec::new();
+    encode_png(
+        &mut bytes,
+        image.width,
+        image.height,
+        png::ColorType::Rgb,
+        png::BitDepth::Eight,
+        &data,
+    )?;
+    Ok(bytes)
+}
+
+/// Encodes an index map as an 8-bit PNG when every value fits, else 16-bit.
+pub fn encode_index_png(image: &IndexImage) -> Result<Vec<u8>, String> {
+    let mut bytes = Vec::new();
+    if image.values.iter().all(|&value| value <= 255) {
+        let data: Vec<u8> = image.values.iter().map(|&value| value as u8).collect();
+        encode_png(
+            &mut bytes,
+            image.width,
+            image.height,
+            png::ColorType::Grayscale,
+            png::BitDepth::Eight,
+            &data,
+        )?;
+    } else {
+        let data: Vec<u8> = image
+            .values
+            .iter()
+            .flat_map(|value| value.to_be_bytes())
+            .collect();
+        encode_png(
+            &mut bytes,
+            image.width,
+            image.height,
+            png::ColorType::Grayscale,
+            png::BitDepth::Sixteen,
+            &data,
+        )?;
+    }
+    Ok(bytes)
+}
+
+/// Writes an RGB PNG.
+pub fn write_rgb_png(path: &Path, image: &RgbImage) -> Result<(), RasterError> {
+    write_file(path, |bytes| {
+        *bytes = encode_rgb_png(image)?;
+        Ok(())
+    })
+}
+
+/// Writes a 16-bit depth PNG in millimetres.
+pub fn write_depth_png(path: &Path, image: &DepthImage) -> Result<(), RasterError> {
+    let data: Vec<u8> = image
+        .millimetres
+        .iter()
+        .flat_map(|value| value.to_be_bytes())
+        .collect();
+    write_file(path, |bytes| {
+        encode_png(
+            bytes,
+            image.width,
+            image.height,
+            png::ColorType::Grayscale,
+            png::BitDepth::Sixteen,
+            &data,
+        )
+    })
+}
+
+/// Writes an index PNG (8-bit when every value fits).
+pub fn write_index_png(path: &Path, image: &IndexImage) -> Result<(), RasterError> {
+    write_file(path, |bytes| {
+        *bytes = encode_index_png(image)?;
+        Ok(())
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rgb_round_trip() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("a.png");
+        let mut image = RgbImage::filled(5, 3, [1, 2, 3]);
+        image.set(4, 2, [250, 0, 9]);
+        write_rgb_png(&path, &image).unwrap();
+        assert_eq!(read_rgb_png(&path, DEFAULT_PIXEL_LIMIT).unwrap(), image);
+    }
+
+    #[test]
+    fn depth_round_trip_keeps_sixteen_bits() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("d.png");
+        let image = DepthImage {
+            width: 2,
+            height: 2,
+            millimetres: vec![0, 1000, 65535, 4321],
+        };
+        write_depth_png(&path, &image).unwrap();
+        assert_eq!(read_depth_png(&path, DEFAULT_PIXEL_LIMIT).unwrap(), image);
+    }
+
+    #[test]
+    fn truncated_png_is_a_decode_error_naming_the_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("cut.png");
+        let bytes = encode_rgb_png(&RgbImage::filled(40, 40, [9, 9, 9])).unwrap();
+        std::fs::write(&path, &bytes[..bytes.len() / 2]).unwrap();
+        let error = read_rgb_png(&path, DEFAULT_PIXEL_LIMIT).unwrap_err();
+        assert!(matches!(error, RasterError::Decode { .. }), "{error}");
+        assert!(error.to_string().contains("cut.png"));
+    }
+
+    #[test]
+    fn pixel_limit_is_enforced() {
+        let bytes = encode_rgb_png(&RgbImage::filled(10, 10, [0, 0, 0])).unwrap();
+        let error = decode_rgb_png(&bytes, Path::new("big.png"), 99).unwrap_err();
+        assert!(
+            matches!(error, RasterError::TooLarge { pixels: 100, .. }),
+            "{error}"
+        );
+    }
+
+    #[test]
+    fn missing_file_is_io_error() {
+        let error =
+            read_index_png(Path::new("/nonexistent/x.png"), DEFAULT_PIXEL_LIMIT).unwrap_err();
+        assert!(matches!(error, RasterError::Io { .. }));
+    }
+
+    #[test]
+    fn index_as_rgb_is_wrong_format() {
+        let bytes = encode_rgb_png(&RgbImage::filled(2, 2, [0, 0, 0])).unwrap();
+        let error = decode_index_png(&bytes, Path::new("l.png"), 100).unwrap_err();
+        assert!(matches!(error, RasterError::WrongFormat { .. }));
+    }
+}

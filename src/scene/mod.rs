@@ -1,0 +1,138 @@
+//! The scene model: what the robot sees, cut into segments, with the statistics every later stage reads.
+//!
+//! Owns: `Scene` and its parts (segment map, per-segment statistics, region adjacency graph, coarse level,
+//! room metadata), building them from an image, and loading a scene directory from disk.
+//! Must not: know about classes' meanings, unaries, language or the solver. Features for the classifier live
+//! in `crate::features`, superpixels in `crate::slic`.
+
+use std::sync::Arc;
+
+use petgraph::graph::UnGraph;
+use serde::{Deserialize, Serialize};
+
+use crate::color::Lab;
+use crate::ids::{RegionId, RoomId, SegmentId};
+use crate::raster::{DepthImage, RgbImage};
+
+/// An axis-aligned box in pixel coordinates: `x0..x1` columns and `y0..y1` rows (end exclusive).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
+pub struct BoundingBox {
+    pub x0: u32,
+    pub y0: u32,
+    pub x1: u32,
+    pub y1: u32,
+}
+
+impl BoundingBox {
+    /// Width in pixels.
+    pub fn width(&self) -> u32 {
+        self.x1.saturating_sub(self.x0)
+    }
+
+    /// Height in pixels.
+    pub fn height(&self) -> u32 {
+        self.y1.saturating_sub(self.y0)
+    }
+
+    /// Area in pixels.
+    pub fn area(&self) -> u64 {
+        self.width() as u64 * self.height() as u64
+    }
+
+    /// The smallest box containing both.
+    pub fn union(&self, other: &BoundingBox) -> BoundingBox {
+        BoundingBox {
+            x0: self.x0.min(other.x0),
+            y0: self.y0.min(other.y0),
+            x1: self.x1.max(other.x1),
+            y1: self.y1.max(other.y1),
+        }
+    }
+}
+
+/// One segment id per pixel, row-major; ids are dense `0..segment_count`.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SegmentMap {
+    pub width: u32,
+    pub height: u32,
+    pub labels: Vec<u32>,
+    pub segment_count: u32,
+}
+
+impl SegmentMap {
+    /// The segment at column `x`, row `y`.
+    #[inline]
+    pub fn segment_at(&self, x: u32, y: u32) -> SegmentId {
+        SegmentId(self.labels[y as usize * self.width as usize + x as usize])
+    }
+}
+
+/// Statistics of one segment, in the units named on each field.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SegmentStats {
+    pub id: SegmentId,
+    /// Pixels.
+    pub area: u32,
+    /// Pixel coordinates (x, y) of the centre of mass.
+    pub centroid: (f32, f32),
+    pub bbox: BoundingBox,
+    /// Mean CIELAB colour (D65).
+    pub mean_lab: Lab,
+    /// Per-channel standard deviation of CIELAB colour.
+    pub std_lab: Lab,
+    /// Mean depth in millimetres over pixels with a reading, when a depth map exists.
+    pub mean_depth_mm: Option<f32>,
+}
+
+/// One edge of the region adjacency graph.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct AdjacencyEdge {
+    /// Number of 4-connected pixel pairs across the shared boundary.
+    pub boundary_length: u32,
+    /// CIE76 distance between the two segments' mean colours.
+    pub colour_contrast: f32,
+}
+
+/// The region adjacency graph over fine segments; node index `i` is `SegmentId(i)`.
+pub type AdjacencyGraph = UnGraph<SegmentId, AdjacencyEdge, u32>;
+
+/// The coarser level: every fine segment belongs to exactly one region.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CoarseLevel {
+    /// `region_of[s]` is the region of fine segment `s`.
+    pub region_of: Vec<RegionId>,
+    /// `members[r]` lists the fine segments of region `r`, ascending.
+    pub members: Vec<Vec<SegmentId>>,
+}
+
+/// A scene ready for classification and correction. Cheap to clone: every part is shared.
+#[derive(Clone, Debug, Serialize, Deserialize)]
+pub struct Scene {
+    /// A short name (the demo scene name or the directory name).
+    pub name: String,
+    pub image: Arc<RgbImage>,
+    pub depth: Option<Arc<DepthImage>>,
+    pub segments: Arc<SegmentMap>,
+    pub stats: Arc<Vec<SegmentStats>>,
+    pub adjacency: Arc<AdjacencyGraph>,
+    pub coarse: Arc<CoarseLevel>,
+    /// The room type the scene is declared to be in, when known from metadata.
+    pub room: Option<RoomId>,
+}
+
+impl Scene {
+    /// Number of fine segments.
+    pub fn segment_count(&self) -> usize {
+        self.segments.segment_count as usize
+    }
+
+    /// Image width in pixels.
+    pub fn width(&self) -> u32 {
+        self.image.width
+    }
+
+    /// Image height in pixels.
+    pub fn height(&self) -> u32 {
+        self.image.height
+    }
+}
