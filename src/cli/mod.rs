@@ -6,6 +6,8 @@
 use clap::{Parser, Subcommand};
 
 mod classes;
+mod train;
+mod unaries;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -22,11 +24,17 @@ pub struct Arguments {
 pub enum Command {
     /// Print the class taxonomy.
     Classes(classes::ClassesArgs),
+    /// Train the built-in segment classifier and write its ONNX file and model card.
+    Train(train::TrainArgs),
+    /// Turn per-pixel scores, a user ONNX model or a label map into per-segment unaries.
+    Unaries(unaries::UnariesArgs),
 }
 
 /// Runs one subcommand.
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Train(args) => train::run(args),
+        Command::Unaries(args) => unaries::run(args),
     }
 }
