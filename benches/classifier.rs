@@ -25,8 +25,12 @@ fn classify_400_segments(criterion: &mut Criterion) {
         .mapv(|v| v as f32)
         .into_dimensionality::<Ix2>()
         .expect("a matrix");
-    let layout = FeatureLayout { version: 0, count: features.ncols() };
-    let classifier = Classifier::load(&directory.join("fixture_mlp.onnx"), &taxonomy, layout).expect("fixture model");
+    let layout = FeatureLayout {
+        version: 0,
+        count: features.ncols(),
+    };
+    let classifier = Classifier::load(&directory.join("fixture_mlp.onnx"), &taxonomy, layout)
+        .expect("fixture model");
     criterion.bench_function("classifier_400_segments", |bencher| {
         bencher.iter(|| classifier.classify(features.view()).expect("runs"))
     });

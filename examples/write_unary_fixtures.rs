@@ -19,20 +19,33 @@ pub const FIXTURE_SEGMENTS: usize = 400;
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let taxonomy = Taxonomy::embedded();
-    let mlp = seeded_random_mlp(2026, &[FIXTURE_FEATURES, FIXTURE_HIDDEN, taxonomy.class_count()]);
+    let mlp = seeded_random_mlp(
+        2026,
+        &[FIXTURE_FEATURES, FIXTURE_HIDDEN, taxonomy.class_count()],
+    );
     let contract = ModelContract {
         format_version: MODEL_FORMAT_VERSION,
-        class_names: taxonomy.classes().iter().map(|class| class.name.clone()).collect(),
+        class_names: taxonomy
+            .classes()
+            .iter()
+            .map(|class| class.name.clone())
+            .collect(),
         feature_layout_version: 0,
         feature_means: mlp.feature_means.to_vec(),
         feature_stds: mlp.feature_stds.to_vec(),
         temperature: mlp.temperature,
     };
     let directory = std::path::Path::new("tests/fixtures/unaries");
-    std::fs::write(directory.join("fixture_mlp.onnx"), encode_model(&mlp, &contract)?)?;
+    std::fs::write(
+        directory.join("fixture_mlp.onnx"),
+        encode_model(&mlp, &contract)?,
+    )?;
     let mut generator = SplitMix64::new(77);
     let features: Vec<f32> = (0..FIXTURE_SEGMENTS * FIXTURE_FEATURES)
-        .map(|index| (mlp.feature_means[index % FIXTURE_FEATURES] as f64 + generator.next_normal() * 3.0) as f32)
+        .map(|index| {
+            (mlp.feature_means[index % FIXTURE_FEATURES] as f64 + generator.next_normal() * 3.0)
+                as f32
+        })
         .collect();
     std::fs::write(
         directory.join("fixture_mlp_input.npy"),

@@ -16,11 +16,15 @@ use sayso::unaries::calibration::negative_log_likelihood;
 use sayso::unaries::contract::FeatureLayout;
 use sayso::unaries::dataset::read_feature_csv;
 use sayso::unaries::metrics::ConfusionMatrix;
-use sayso::unaries::trainer::{train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode};
+use sayso::unaries::trainer::{
+    train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode,
+};
 use sayso::unaries::Classifier;
 
 fn fixture(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/unaries").join(name)
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/fixtures/unaries")
+        .join(name)
 }
 
 fn json(name: &str) -> serde_json::Value {
@@ -35,11 +39,25 @@ fn npy_reader_matches_numpy_exactly() {
     assert_eq!(cases.len(), 7);
     for (name, case) in cases {
         let array = read_npy(&fixture(&format!("npy_{name}.npy"))).unwrap();
-        let shape: Vec<usize> = case["shape"].as_array().unwrap().iter().map(|v| v.as_u64().unwrap() as usize).collect();
+        let shape: Vec<usize> = case["shape"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_u64().unwrap() as usize)
+            .collect();
         assert_eq!(array.values.shape(), &shape[..], "{name}");
-        let dtype = if case["dtype"] == "float32" { NpyFloat::Float32 } else { NpyFloat::Float64 };
+        let dtype = if case["dtype"] == "float32" {
+            NpyFloat::Float32
+        } else {
+            NpyFloat::Float64
+        };
         assert_eq!(array.dtype, dtype, "{name}");
-        let values: Vec<f64> = case["values"].as_array().unwrap().iter().map(|v| v.as_str().unwrap().parse().unwrap()).collect();
+        let values: Vec<f64> = case["values"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_str().unwrap().parse().unwrap())
+            .collect();
         let read: Vec<f64> = array.values.iter().copied().collect();
         assert_eq!(read.len(), values.len());
         for (index, (a, b)) in read.iter().zip(&values).enumerate() {
@@ -49,7 +67,9 @@ fn npy_reader_matches_numpy_exactly() {
     for (file, descr) in [("npy_int32.npy", "<i4"), ("npy_complex.npy", "<c16")] {
         assert_eq!(
             read_npy(&fixture(file)),
-            Err(NpyError::UnsupportedDtype { descr: descr.to_string() })
+            Err(NpyError::UnsupportedDtype {
+                descr: descr.to_string()
+            })
         );
     }
 }
@@ -63,14 +83,28 @@ fn metrics_match_scikit_learn() {
     let class_count = expected["class_count"].as_u64().unwrap() as usize;
     let mut matrix = ConfusionMatrix::new(class_count);
     matrix.add_maps(&truth.values, &predicted.values).unwrap();
-    for (row, counts) in expected["confusion_matrix"].as_array().unwrap().iter().enumerate() {
+    for (row, counts) in expected["confusion_matrix"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .enumerate()
+    {
         for (column, count) in counts.as_array().unwrap().iter().enumerate() {
-            assert_eq!(matrix.count(row, column), count.as_u64().unwrap(), "cell ({row}, {column})");
+            assert_eq!(
+                matrix.count(row, column),
+                count.as_u64().unwrap(),
+                "cell ({row}, {column})"
+            );
         }
     }
     assert!((matrix.pixel_accuracy() - expected["pixel_accuracy"].as_f64().unwrap()).abs() < 1e-12);
     assert!((matrix.mean_iou() - expected["mean_iou"].as_f64().unwrap()).abs() < 1e-12);
-    for (class, (ours, theirs)) in matrix.per_class_iou().iter().zip(expected["per_class_iou"].as_array().unwrap()).enumerate() {
+    for (class, (ours, theirs)) in matrix
+        .per_class_iou()
+        .iter()
+        .zip(expected["per_class_iou"].as_array().unwrap())
+        .enumerate()
+    {
         match (ours, theirs.as_f64()) {
             (Some(a), Some(b)) => assert!((a - b).abs() < 1e-12, "class {class}: {a} vs {b}"),
             (None, None) => {}
@@ -115,14 +149,29 @@ fn softmax_regression_matches_scikit_learn_logistic_regression() {
         .rows()
         .into_iter()
         .zip(&test.labels)
-        .filter(|(row, &label)| row.iter().enumerate().max_by(|a, b| a.1.total_cmp(b.1)).unwrap().0 == label)
+        .filter(|(row, &label)| {
+            row.iter()
+                .enumerate()
+                .max_by(|a, b| a.1.total_cmp(b.1))
+                .unwrap()
+                .0
+                == label
+        })
         .count();
     let accuracy = correct as f64 / test.len() as f64;
     let reference_accuracy = expected["test_accuracy"].as_f64().unwrap();
-    assert!((accuracy - reference_accuracy).abs() <= 0.01, "accuracy {accuracy} vs scikit-learn {reference_accuracy}");
-    let ours = negative_log_likelihood(logits.view(), &test.labels, outcome.calibration.temperature);
+    assert!(
+        (accuracy - reference_accuracy).abs() <= 0.01,
+        "accuracy {accuracy} vs scikit-learn {reference_accuracy}"
+    );
+    let ours =
+        negative_log_likelihood(logits.view(), &test.labels, outcome.calibration.temperature);
     let theirs = expected["test_log_loss_calibrated"].as_f64().unwrap();
-    assert!((ours - theirs).abs() / theirs <= 0.02, "calibrated log-loss {ours} vs scikit-learn {theirs}");
+    println!("sayso accuracy {accuracy:.4} vs scikit-learn {reference_accuracy:.4}; calibrated log-loss {ours:.5} vs {theirs:.5}; T {:.4} vs {:.4}", outcome.calibration.temperature, expected["temperature"]);
+    assert!(
+        (ours - theirs).abs() / theirs <= 0.02,
+        "calibrated log-loss {ours} vs scikit-learn {theirs}"
+    );
 }
 
 /// Reference: onnxruntime (PyPI) running the same sayso-written classifier file on the same features
@@ -132,13 +181,25 @@ fn tract_classifier_matches_onnxruntime() {
     let taxonomy = Taxonomy::embedded();
     let input = read_npy(&fixture("fixture_mlp_input.npy")).unwrap();
     let reference = read_npy(&fixture("fixture_mlp_onnxruntime.npy")).unwrap();
-    let features = input.values.mapv(|v| v as f32).into_dimensionality::<Ix2>().unwrap();
-    let layout = FeatureLayout { version: 0, count: features.ncols() };
+    let features = input
+        .values
+        .mapv(|v| v as f32)
+        .into_dimensionality::<Ix2>()
+        .unwrap();
+    let layout = FeatureLayout {
+        version: 0,
+        count: features.ncols(),
+    };
     let classifier = Classifier::load(&fixture("fixture_mlp.onnx"), &taxonomy, layout).unwrap();
     let ours = classifier.classify(features.view()).unwrap();
     let theirs = reference.values.into_dimensionality::<Ix2>().unwrap();
     assert_eq!(ours.shape(), theirs.shape());
-    let worst = ours.iter().zip(theirs.iter()).map(|(a, b)| (*a as f64 - b).abs()).fold(0.0, f64::max);
+    let worst = ours
+        .iter()
+        .zip(theirs.iter())
+        .map(|(a, b)| (*a as f64 - b).abs())
+        .fold(0.0, f64::max);
+    println!("largest difference from onnxruntime: {worst:e}");
     assert!(worst < 1e-5, "largest difference from onnxruntime: {worst}");
 }
 
@@ -149,8 +210,17 @@ fn user_pixel_model_matches_onnxruntime() {
     let model = UserModel::load(&fixture("pixel_model.toml")).unwrap();
     let image = read_rgb_png(&fixture("pixel_model_image.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     let ours = model.run_tensor(model.preprocess(&image)).unwrap();
-    let theirs = read_npy(&fixture("pixel_model_onnxruntime.npy")).unwrap().values.into_dimensionality::<Ix4>().unwrap();
+    let theirs = read_npy(&fixture("pixel_model_onnxruntime.npy"))
+        .unwrap()
+        .values
+        .into_dimensionality::<Ix4>()
+        .unwrap();
     assert_eq!(ours.shape(), theirs.shape());
-    let worst = ours.iter().zip(theirs.iter()).map(|(a, b)| (*a as f64 - b).abs()).fold(0.0, f64::max);
+    let worst = ours
+        .iter()
+        .zip(theirs.iter())
+        .map(|(a, b)| (*a as f64 - b).abs())
+        .fold(0.0, f64::max);
+    println!("largest difference from onnxruntime: {worst:e}");
     assert!(worst < 1e-5, "largest difference from onnxruntime: {worst}");
 }

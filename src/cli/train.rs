@@ -14,7 +14,9 @@ use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
 use sayso::unaries::dataset::read_feature_csv;
 use sayso::unaries::model_card::ModelCard;
 use sayso::unaries::onnx_writer::encode_model;
-use sayso::unaries::trainer::{split_for_validation, train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode};
+use sayso::unaries::trainer::{
+    split_for_validation, train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode,
+};
 
 /// The network shape.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -108,7 +110,9 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
     let config = TrainingConfig {
         mode: match args.mode {
             ModeFlag::Softmax => TrainingMode::SoftmaxRegression,
-            ModeFlag::Mlp => TrainingMode::Mlp { hidden: args.hidden.clone() },
+            ModeFlag::Mlp => TrainingMode::Mlp {
+                hidden: args.hidden.clone(),
+            },
         },
         max_epochs: args.epochs,
         batch_size: args.batch_size,
@@ -126,16 +130,22 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
     let outcome = train(&training, &validation, taxonomy.class_count(), &config)?;
     let contract = ModelContract {
         format_version: MODEL_FORMAT_VERSION,
-        class_names: taxonomy.classes().iter().map(|class| class.name.clone()).collect(),
+        class_names: taxonomy
+            .classes()
+            .iter()
+            .map(|class| class.name.clone())
+            .collect(),
         feature_layout_version: layout_version,
         feature_means: outcome.mlp.feature_means.to_vec(),
         feature_stds: outcome.mlp.feature_stds.to_vec(),
         temperature: outcome.mlp.temperature,
     };
     let bytes = encode_model(&outcome.mlp, &contract)?;
-    std::fs::create_dir_all(&args.out).with_context(|| format!("creating {}", args.out.display()))?;
+    std::fs::create_dir_all(&args.out)
+        .with_context(|| format!("creating {}", args.out.display()))?;
     let model_path = args.out.join("segment_classifier.onnx");
-    std::fs::write(&model_path, &bytes).with_context(|| format!("writing {}", model_path.display()))?;
+    std::fs::write(&model_path, &bytes)
+        .with_context(|| format!("writing {}", model_path.display()))?;
     let command: Vec<String> = std::env::args().collect();
     let card = ModelCard {
         command: command.join(" "),
@@ -160,7 +170,8 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         evaluation: None,
     };
     let card_path = args.out.join("README.md");
-    std::fs::write(&card_path, card.to_markdown()).with_context(|| format!("writing {}", card_path.display()))?;
+    std::fs::write(&card_path, card.to_markdown())
+        .with_context(|| format!("writing {}", card_path.display()))?;
     let c = outcome.calibration;
     println!(
         "wrote {} ({} bytes): validation accuracy {:.2}%, temperature {:.3}, ECE {:.4} -> {:.4}",

@@ -15,7 +15,9 @@ use sayso::taxonomy::Taxonomy;
 use sayso::unaries::byo::SynonymTable;
 use sayso::unaries::byo_label_map::{unaries_from_label_map, ConfidenceMap};
 use sayso::unaries::byo_npy::read_npy;
-use sayso::unaries::byo_pixel_scores::{unaries_from_pixel_scores, PixelScoreOptions, ScoreKind, ScoreLayout};
+use sayso::unaries::byo_pixel_scores::{
+    unaries_from_pixel_scores, PixelScoreOptions, ScoreKind, ScoreLayout,
+};
 use sayso::unaries::byo_user_model::UserModel;
 use sayso::unaries::pooling::PoolingRule;
 use sayso::unaries::UnarySource;
@@ -84,7 +86,12 @@ pub fn run(args: UnariesArgs) -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();
     let synonyms = SynonymTable::embedded(&taxonomy);
     let segment_image = read_index_png(&args.segments, DEFAULT_PIXEL_LIMIT)?;
-    let segment_count = segment_image.values.iter().copied().max().map_or(0, |m| m as u32 + 1);
+    let segment_count = segment_image
+        .values
+        .iter()
+        .copied()
+        .max()
+        .map_or(0, |m| m as u32 + 1);
     let segments = SegmentMap {
         width: segment_image.width,
         height: segment_image.height,
@@ -115,8 +122,17 @@ pub fn run(args: UnariesArgs) -> anyhow::Result<()> {
             pooling,
             allow_unknown_classes: args.drop_unknown_classes,
         };
-        let source = UnarySource::PixelScores { file: path.display().to_string() };
-        unaries_from_pixel_scores(array.values.view(), &segments, &options, &taxonomy, &synonyms, source)?
+        let source = UnarySource::PixelScores {
+            file: path.display().to_string(),
+        };
+        unaries_from_pixel_scores(
+            array.values.view(),
+            &segments,
+            &options,
+            &taxonomy,
+            &synonyms,
+            source,
+        )?
     } else if let Some(config) = &args.user_model {
         let image_path = args.image.as_ref().context("--user-model needs --image")?;
         let image = read_rgb_png(image_path, DEFAULT_PIXEL_LIMIT)?;
@@ -127,19 +143,34 @@ pub fn run(args: UnariesArgs) -> anyhow::Result<()> {
         let confidence = match &args.confidence {
             Some(path) => {
                 let image = read_index_png(path, DEFAULT_PIXEL_LIMIT)?;
-                let scale = if image.values.iter().any(|&v| v > 255) { 65535.0 } else { 255.0 };
+                let scale = if image.values.iter().any(|&v| v > 255) {
+                    65535.0
+                } else {
+                    255.0
+                };
                 Some(ConfidenceMap { image, scale })
             }
             None => None,
         };
-        let source = UnarySource::LabelMap { file: path.display().to_string() };
-        unaries_from_label_map(&labels, confidence.as_ref(), &segments, taxonomy.class_count(), pooling, source)?
+        let source = UnarySource::LabelMap {
+            file: path.display().to_string(),
+        };
+        unaries_from_label_map(
+            &labels,
+            confidence.as_ref(),
+            &segments,
+            taxonomy.class_count(),
+            pooling,
+            source,
+        )?
     } else {
         bail!("give one source: --npy, --user-model or --label-map");
     };
     let json = serde_json::to_string(&unaries)?;
     match &args.out {
-        Some(path) => std::fs::write(path, json).with_context(|| format!("writing {}", path.display()))?,
+        Some(path) => {
+            std::fs::write(path, json).with_context(|| format!("writing {}", path.display()))?
+        }
         None => println!("{json}"),
     }
     Ok(())

@@ -56,7 +56,9 @@ pub enum PerceptionError {
         sum: f64,
         tolerance: f64,
     },
-    #[error("the segment map is {segments_width}x{segments_height} but the scores are {width}x{height}")]
+    #[error(
+        "the segment map is {segments_width}x{segments_height} but the scores are {width}x{height}"
+    )]
     SizeMismatch {
         segments_width: u32,
         segments_height: u32,
@@ -76,7 +78,9 @@ pub enum PerceptionError {
         value: u16,
         class_count: usize,
     },
-    #[error("confidence map is {found_width}x{found_height} but the label map is {width}x{height}")]
+    #[error(
+        "confidence map is {found_width}x{found_height} but the label map is {width}x{height}"
+    )]
     ConfidenceSize {
         width: u32,
         height: u32,
@@ -150,7 +154,11 @@ impl SynonymTable {
     /// The taxonomy class a perception name denotes, if any.
     pub fn resolve(&self, name: &str, taxonomy: &Taxonomy) -> Option<ClassId> {
         let key = normalise_class_name(name);
-        let canonical = self.canonical_of.get(&key).map(String::as_str).unwrap_or(&key);
+        let canonical = self
+            .canonical_of
+            .get(&key)
+            .map(String::as_str)
+            .unwrap_or(&key);
         taxonomy.class_by_name(canonical).map(|class| class.id)
     }
 }
@@ -166,8 +174,15 @@ pub struct ClassMapping {
 
 impl ClassMapping {
     /// Maps names; unknown names are recorded, not dropped silently.
-    pub fn from_names(names: &[String], taxonomy: &Taxonomy, synonyms: &SynonymTable) -> ClassMapping {
-        let columns: Vec<Option<ClassId>> = names.iter().map(|name| synonyms.resolve(name, taxonomy)).collect();
+    pub fn from_names(
+        names: &[String],
+        taxonomy: &Taxonomy,
+        synonyms: &SynonymTable,
+    ) -> ClassMapping {
+        let columns: Vec<Option<ClassId>> = names
+            .iter()
+            .map(|name| synonyms.resolve(name, taxonomy))
+            .collect();
         let unknown = names
             .iter()
             .zip(&columns)
@@ -184,10 +199,14 @@ impl ClassMapping {
             return Err(PerceptionError::NoClasses);
         }
         if !allow_unknown && !self.unknown.is_empty() {
-            return Err(PerceptionError::UnknownClassNames { names: self.unknown });
+            return Err(PerceptionError::UnknownClassNames {
+                names: self.unknown,
+            });
         }
         if self.columns.iter().all(Option::is_none) {
-            return Err(PerceptionError::UnknownClassNames { names: self.unknown });
+            return Err(PerceptionError::UnknownClassNames {
+                names: self.unknown,
+            });
         }
         Ok(self)
     }
@@ -201,9 +220,18 @@ mod tests {
     fn embedded_synonyms_are_valid_and_resolve() {
         let taxonomy = Taxonomy::embedded();
         let table = SynonymTable::parse(EMBEDDED_SYNONYMS, &taxonomy).unwrap();
-        assert_eq!(table.resolve("Couch", &taxonomy), taxonomy.class_by_name("sofa").map(|c| c.id));
-        assert_eq!(table.resolve("potted plant", &taxonomy), taxonomy.class_by_name("plant").map(|c| c.id));
-        assert_eq!(table.resolve("mug", &taxonomy), taxonomy.class_by_name("mug").map(|c| c.id));
+        assert_eq!(
+            table.resolve("Couch", &taxonomy),
+            taxonomy.class_by_name("sofa").map(|c| c.id)
+        );
+        assert_eq!(
+            table.resolve("potted plant", &taxonomy),
+            taxonomy.class_by_name("plant").map(|c| c.id)
+        );
+        assert_eq!(
+            table.resolve("mug", &taxonomy),
+            taxonomy.class_by_name("mug").map(|c| c.id)
+        );
         assert_eq!(table.resolve("hovercraft", &taxonomy), None);
     }
 
@@ -211,9 +239,15 @@ mod tests {
     fn unknown_names_are_reported_in_order() {
         let taxonomy = Taxonomy::embedded();
         let table = SynonymTable::embedded(&taxonomy);
-        let names: Vec<String> = ["floor", "zeppelin", "couch", "gnome"].iter().map(|s| s.to_string()).collect();
+        let names: Vec<String> = ["floor", "zeppelin", "couch", "gnome"]
+            .iter()
+            .map(|s| s.to_string())
+            .collect();
         let mapping = ClassMapping::from_names(&names, &taxonomy, &table);
-        assert_eq!(mapping.unknown, vec!["zeppelin".to_string(), "gnome".to_string()]);
+        assert_eq!(
+            mapping.unknown,
+            vec!["zeppelin".to_string(), "gnome".to_string()]
+        );
         let error = mapping.clone().checked(false).unwrap_err().to_string();
         assert!(error.contains("zeppelin, gnome"), "{error}");
         assert!(mapping.checked(true).is_ok());
@@ -223,6 +257,9 @@ mod tests {
     fn a_synonym_table_naming_a_non_class_is_refused() {
         let taxonomy = Taxonomy::embedded();
         let text = "schema = 1\n[synonyms]\nspaceship = [\"rocket\"]\n";
-        assert!(matches!(SynonymTable::parse(text, &taxonomy), Err(PerceptionError::Config { .. })));
+        assert!(matches!(
+            SynonymTable::parse(text, &taxonomy),
+            Err(PerceptionError::Config { .. })
+        ));
     }
 }

@@ -88,7 +88,8 @@ pub fn parse_detections(
             return Err(fail(format!("score {} is not in [0, 1]", item.score)));
         }
         let [x0, y0, x1, y1] = item.bbox;
-        let inside = |value: f64, limit: u32| value.is_finite() && value >= 0.0 && value <= limit as f64;
+        let inside =
+            |value: f64, limit: u32| value.is_finite() && value >= 0.0 && value <= limit as f64;
         if !(inside(x0, width) && inside(x1, width) && inside(y0, height) && inside(y1, height))
             || x0 >= x1
             || y0 >= y1
@@ -105,7 +106,9 @@ pub fn parse_detections(
             y1: y1.ceil() as u32,
         };
         let mask = match (item.mask_png, item.mask_runs) {
-            (Some(_), Some(_)) => return Err(fail("give mask_png or mask_runs, not both".to_string())),
+            (Some(_), Some(_)) => {
+                return Err(fail("give mask_png or mask_runs, not both".to_string()))
+            }
             (Some(path), None) => {
                 let image = read_index_png(&base.join(&path), DEFAULT_PIXEL_LIMIT)?;
                 Some(DetectionMask {
@@ -137,7 +140,11 @@ pub fn parse_detections(
 
 fn decode_runs(runs: &RawRuns) -> Result<DetectionMask, String> {
     let pixels = runs.width as u64 * runs.height as u64;
-    let total: u64 = runs.runs.iter().try_fold(0u64, |sum, &run| sum.checked_add(run)).unwrap_or(u64::MAX);
+    let total: u64 = runs
+        .runs
+        .iter()
+        .try_fold(0u64, |sum, &run| sum.checked_add(run))
+        .unwrap_or(u64::MAX);
     if total != pixels || pixels > DEFAULT_PIXEL_LIMIT {
         return Err(format!(
             "mask runs sum to {total} but a {}x{} mask has {pixels} pixels",
@@ -174,9 +181,20 @@ mod tests {
         .unwrap();
         let taxonomy = Taxonomy::embedded();
         assert_eq!(found[0].class, taxonomy.class_by_name("mug").unwrap().id);
-        assert_eq!(found[0].bbox, BoundingBox { x0: 1, y0: 0, x1: 4, y1: 2 });
+        assert_eq!(
+            found[0].bbox,
+            BoundingBox {
+                x0: 1,
+                y0: 0,
+                x1: 4,
+                y1: 2
+            }
+        );
         let mask = found[0].mask.as_ref().unwrap();
-        assert_eq!(mask.inside, vec![false, true, true, false, false, false, true, true]);
+        assert_eq!(
+            mask.inside,
+            vec![false, true, true, false, false, false, true, true]
+        );
     }
 
     #[test]
@@ -189,8 +207,17 @@ mod tests {
             r#"{"detections": [{"class": "mug", "box": [0, 0, 1, 1], "score": 0.5, "mask_runs": {"width": 4, "height": 2, "runs": [3]}}]}"#,
         ];
         for case in cases {
-            assert!(matches!(parse(case), Err(PerceptionError::Detection { index: 0, .. })), "{case}");
+            assert!(
+                matches!(
+                    parse(case),
+                    Err(PerceptionError::Detection { index: 0, .. })
+                ),
+                "{case}"
+            );
         }
-        assert!(matches!(parse("{\"detections\": 3}"), Err(PerceptionError::Config { .. })));
+        assert!(matches!(
+            parse("{\"detections\": 3}"),
+            Err(PerceptionError::Config { .. })
+        ));
     }
 }

@@ -92,10 +92,13 @@ pub fn unaries_from_label_map(
     }
     let probabilities = label_map_probabilities(labels, confidence, class_count)?;
     let mapping = ClassMapping {
-        columns: (0..class_count).map(|class| Some(ClassId(class as u16))).collect(),
+        columns: (0..class_count)
+            .map(|class| Some(ClassId(class as u16)))
+            .collect(),
         unknown: Vec::new(),
     };
-    let log_probs = pool_pixel_probabilities(segments, probabilities.view(), &mapping, class_count, rule)?;
+    let log_probs =
+        pool_pixel_probabilities(segments, probabilities.view(), &mapping, class_count, rule)?;
     Ok(Unaries { log_probs, source })
 }
 
@@ -105,9 +108,17 @@ mod tests {
 
     #[test]
     fn smoothing_formula_by_hand() {
-        let labels = IndexImage { width: 3, height: 1, values: vec![1, UNLABELLED, 0] };
+        let labels = IndexImage {
+            width: 3,
+            height: 1,
+            values: vec![1, UNLABELLED, 0],
+        };
         let confidence = ConfidenceMap {
-            image: IndexImage { width: 3, height: 1, values: vec![153, 0, 255] },
+            image: IndexImage {
+                width: 3,
+                height: 1,
+                values: vec![153, 0, 255],
+            },
             scale: 255.0,
         };
         let p = label_map_probabilities(&labels, Some(&confidence), 4).unwrap();
@@ -123,19 +134,45 @@ mod tests {
 
     #[test]
     fn bad_labels_and_sizes_are_refused() {
-        let labels = IndexImage { width: 2, height: 1, values: vec![0, 9] };
+        let labels = IndexImage {
+            width: 2,
+            height: 1,
+            values: vec![0, 9],
+        };
         assert!(matches!(
             label_map_probabilities(&labels, None, 4),
-            Err(PerceptionError::BadLabel { x: 1, y: 0, value: 9, .. })
+            Err(PerceptionError::BadLabel {
+                x: 1,
+                y: 0,
+                value: 9,
+                ..
+            })
         ));
-        let confidence = ConfidenceMap { image: IndexImage::filled(1, 1, 0), scale: 255.0 };
+        let confidence = ConfidenceMap {
+            image: IndexImage::filled(1, 1, 0),
+            scale: 255.0,
+        };
         assert!(matches!(
             label_map_probabilities(&labels, Some(&confidence), 10),
             Err(PerceptionError::ConfidenceSize { .. })
         ));
-        let segments = SegmentMap { width: 1, height: 2, labels: vec![0, 0], segment_count: 1 };
+        let segments = SegmentMap {
+            width: 1,
+            height: 2,
+            labels: vec![0, 0],
+            segment_count: 1,
+        };
         assert!(matches!(
-            unaries_from_label_map(&labels, None, &segments, 10, PoolingRule::MeanProbability, UnarySource::LabelMap { file: "l.png".into() }),
+            unaries_from_label_map(
+                &labels,
+                None,
+                &segments,
+                10,
+                PoolingRule::MeanProbability,
+                UnarySource::LabelMap {
+                    file: "l.png".into()
+                }
+            ),
             Err(PerceptionError::SizeMismatch { .. })
         ));
     }

@@ -64,16 +64,25 @@ pub fn parse_npy(bytes: &[u8]) -> Result<NpyArray, NpyError> {
     if bytes.len() < MAGIC.len() || &bytes[..MAGIC.len()] != MAGIC {
         return Err(NpyError::Magic);
     }
-    let version = bytes.get(6..8).ok_or(NpyError::Truncated { part: "version" })?;
+    let version = bytes
+        .get(6..8)
+        .ok_or(NpyError::Truncated { part: "version" })?;
     let (major, minor) = (version[0], version[1]);
-    let (header_start, header_length) = match (major, minor) {
+    let (header_start, header_length): (usize, usize) = match (major, minor) {
         (1, 0) => {
-            let raw = bytes.get(8..10).ok_or(NpyError::Truncated { part: "header length" })?;
+            let raw = bytes.get(8..10).ok_or(NpyError::Truncated {
+                part: "header length",
+            })?;
             (10, u16::from_le_bytes([raw[0], raw[1]]) as usize)
         }
         (2, 0) | (3, 0) => {
-            let raw = bytes.get(8..12).ok_or(NpyError::Truncated { part: "header length" })?;
-            (12, u32::from_le_bytes([raw[0], raw[1], raw[2], raw[3]]) as usize)
+            let raw = bytes.get(8..12).ok_or(NpyError::Truncated {
+                part: "header length",
+            })?;
+            (
+                12,
+                u32::from_le_bytes([raw[0], raw[1], raw[2], raw[3]]) as usize,
+            )
         }
         _ => return Err(NpyError::Version { major, minor }),
     };
@@ -173,7 +182,8 @@ fn parse_header(text: &str) -> Result<Header, NpyError> {
             .trim_start();
         let after_value = match key {
             "descr" => {
-                let (value, after) = quoted(after_colon).ok_or_else(|| bad("descr must be a string"))?;
+                let (value, after) =
+                    quoted(after_colon).ok_or_else(|| bad("descr must be a string"))?;
                 descr = Some(value.to_string());
                 after
             }
@@ -189,13 +199,20 @@ fn parse_header(text: &str) -> Result<Header, NpyError> {
                 }
             }
             "shape" => {
-                let inner = after_colon.strip_prefix('(').ok_or_else(|| bad("shape must be a tuple"))?;
-                let close = inner.find(')').ok_or_else(|| bad("shape tuple is not closed"))?;
+                let inner = after_colon
+                    .strip_prefix('(')
+                    .ok_or_else(|| bad("shape must be a tuple"))?;
+                let close = inner
+                    .find(')')
+                    .ok_or_else(|| bad("shape tuple is not closed"))?;
                 let dims = inner[..close]
                     .split(',')
                     .map(str::trim)
                     .filter(|part| !part.is_empty())
-                    .map(|part| part.parse::<usize>().map_err(|_| bad("shape entries must be integers")))
+                    .map(|part| {
+                        part.parse::<usize>()
+                            .map_err(|_| bad("shape entries must be integers"))
+                    })
                     .collect::<Result<Vec<_>, _>>()?;
                 shape = Some(dims);
                 &inner[close + 1..]
@@ -203,7 +220,10 @@ fn parse_header(text: &str) -> Result<Header, NpyError> {
             _ => return Err(bad("unknown key")),
         };
         let after_value = after_value.trim_start();
-        rest = after_value.strip_prefix(',').unwrap_or(after_value).trim_start();
+        rest = after_value
+            .strip_prefix(',')
+            .unwrap_or(after_value)
+            .trim_start();
         if !after_value.starts_with(',') && !rest.is_empty() {
             return Err(bad("expected ',' between entries"));
         }
@@ -233,7 +253,7 @@ pub fn encode_npy_f32(shape: &[usize], values: &[f32]) -> Vec<u8> {
     };
     let mut header = format!("{{'descr': '<f4', 'fortran_order': False, 'shape': {shape_text}, }}");
     // Pad with spaces so the data starts on a 64-byte boundary, ending the header with a newline.
-    while (MAGIC.len() + 4 + header.len() + 1) % 64 != 0 {
+    while !(MAGIC.len() + 4 + header.len() + 1).is_multiple_of(64) {
         header.push(' ');
     }
     header.push('\n');
@@ -266,12 +286,22 @@ mod tests {
         assert_eq!(parse_npy(b"PK\x03\x04"), Err(NpyError::Magic));
         let mut bytes = encode_npy_f32(&[4], &[1.0, 2.0, 3.0, 4.0]);
         bytes[6] = 9;
-        assert_eq!(parse_npy(&bytes), Err(NpyError::Version { major: 9, minor: 0 }));
+        assert_eq!(
+            parse_npy(&bytes),
+            Err(NpyError::Version { major: 9, minor: 0 })
+        );
         let bytes = encode_npy_f32(&[4], &[1.0, 2.0, 3.0, 4.0]);
         assert!(matches!(
             parse_npy(&bytes[..bytes.len() - 3]),
-            Err(NpyError::DataLength { expected: 16, found: 13, .. })
+            Err(NpyError::DataLength {
+                expected: 16,
+                found: 13,
+                ..
+            })
         ));
-        assert!(matches!(parse_npy(&bytes[..20]), Err(NpyError::Truncated { part: "header" })));
+        assert!(matches!(
+            parse_npy(&bytes[..20]),
+            Err(NpyError::Truncated { part: "header" })
+        ));
     }
 }

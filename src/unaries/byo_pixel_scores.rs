@@ -68,7 +68,10 @@ pub fn pixel_probabilities(
                 ScoreLayout::ChannelsHeightWidth => format!("{chw:?} (CxHxW)"),
                 ScoreLayout::Infer => format!("{hwc:?} (HxWxC) or {chw:?} (CxHxW)"),
             };
-            return Err(PerceptionError::Shape { found: shape, expected });
+            return Err(PerceptionError::Shape {
+                found: shape,
+                expected,
+            });
         }
     };
     let mut probabilities = Array2::<f32>::zeros((width * height, channel_count));
@@ -76,30 +79,55 @@ pub fn pixel_probabilities(
     for y in 0..height {
         for x in 0..width {
             for (channel, value) in values.iter_mut().enumerate() {
-                let index = if channels_last { [y, x, channel] } else { [channel, y, x] };
+                let index = if channels_last {
+                    [y, x, channel]
+                } else {
+                    [channel, y, x]
+                };
                 *value = scores[&index[..]];
                 if !value.is_finite() {
-                    return Err(PerceptionError::NonFinite { x, y, channel, value: *value });
+                    return Err(PerceptionError::NonFinite {
+                        x,
+                        y,
+                        channel,
+                        value: *value,
+                    });
                 }
             }
             let pixel = probabilities.row_mut(y * width + x);
             match kind {
                 ScoreKind::Probabilities => {
-                    if let Some((channel, &value)) = values.iter().enumerate().find(|(_, v)| **v < 0.0) {
-                        return Err(PerceptionError::NegativeProbability { x, y, channel, value });
+                    if let Some((channel, &value)) =
+                        values.iter().enumerate().find(|(_, v)| **v < 0.0)
+                    {
+                        return Err(PerceptionError::NegativeProbability {
+                            x,
+                            y,
+                            channel,
+                            value,
+                        });
                     }
                     check_sum(values.iter().sum(), x, y)?;
                 }
                 ScoreKind::LogProbabilities => {
-                    if let Some((channel, &value)) = values.iter().enumerate().find(|(_, v)| **v > 1e-6) {
-                        return Err(PerceptionError::NegativeProbability { x, y, channel, value: -value });
+                    if let Some((channel, &value)) =
+                        values.iter().enumerate().find(|(_, v)| **v > 1e-6)
+                    {
+                        return Err(PerceptionError::NegativeProbability {
+                            x,
+                            y,
+                            channel,
+                            value: -value,
+                        });
                     }
                     values.iter_mut().for_each(|value| *value = value.exp());
                     check_sum(values.iter().sum(), x, y)?;
                 }
                 ScoreKind::Logits => {
                     let maximum = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-                    values.iter_mut().for_each(|value| *value = (*value - maximum).exp());
+                    values
+                        .iter_mut()
+                        .for_each(|value| *value = (*value - maximum).exp());
                 }
             }
             let total: f64 = values.iter().sum();
@@ -113,7 +141,12 @@ pub fn pixel_probabilities(
 
 fn check_sum(sum: f64, x: usize, y: usize) -> Result<(), PerceptionError> {
     if (sum - 1.0).abs() > NORMALISATION_TOLERANCE {
-        return Err(PerceptionError::NotNormalised { x, y, sum, tolerance: NORMALISATION_TOLERANCE });
+        return Err(PerceptionError::NotNormalised {
+            x,
+            y,
+            sum,
+            tolerance: NORMALISATION_TOLERANCE,
+        });
     }
     Ok(())
 }
@@ -144,7 +177,8 @@ pub fn unaries_from_pixel_scores(
     if scores.ndim() == 3 {
         let (width, height) = (segments.width as usize, segments.height as usize);
         let fits = |shape: &[usize]| {
-            shape == [height, width, options.class_names.len()] || shape == [options.class_names.len(), height, width]
+            shape == [height, width, options.class_names.len()]
+                || shape == [options.class_names.len(), height, width]
         };
         if !fits(scores.shape()) {
             let shape = scores.shape();
@@ -176,7 +210,13 @@ pub fn unaries_from_pixel_scores(
         options.layout,
         options.kind,
     )?;
-    let log_probs = pool_pixel_probabilities(segments, probabilities.view(), &mapping, taxonomy.class_count(), options.pooling)?;
+    let log_probs = pool_pixel_probabilities(
+        segments,
+        probabilities.view(),
+        &mapping,
+        taxonomy.class_count(),
+        options.pooling,
+    )?;
     Ok(Unaries { log_probs, source })
 }
 
@@ -197,8 +237,24 @@ mod tests {
             chw[[0, 0, x]] = p;
             chw[[1, 0, x]] = 1.0 - p;
         }
-        let from_hwc = pixel_probabilities(hwc.view().into_dyn(), 3, 1, 2, ScoreLayout::Infer, ScoreKind::Probabilities).unwrap();
-        let from_chw = pixel_probabilities(chw.view().into_dyn(), 3, 1, 2, ScoreLayout::Infer, ScoreKind::Probabilities).unwrap();
+        let from_hwc = pixel_probabilities(
+            hwc.view().into_dyn(),
+            3,
+            1,
+            2,
+            ScoreLayout::Infer,
+            ScoreKind::Probabilities,
+        )
+        .unwrap();
+        let from_chw = pixel_probabilities(
+            chw.view().into_dyn(),
+            3,
+            1,
+            2,
+            ScoreLayout::Infer,
+            ScoreKind::Probabilities,
+        )
+        .unwrap();
         assert_eq!(from_hwc, from_chw);
         assert!((from_hwc[[2, 1]] - 0.9).abs() < 1e-7);
     }
@@ -207,10 +263,25 @@ mod tests {
     fn ambiguous_wrong_size_and_bad_values_are_refused() {
         let cube = ndarray::ArrayD::<f64>::from_elem(IxDyn(&[2, 2, 2]), 0.5);
         assert!(matches!(
-            pixel_probabilities(cube.view(), 2, 2, 2, ScoreLayout::Infer, ScoreKind::Probabilities),
+            pixel_probabilities(
+                cube.view(),
+                2,
+                2,
+                2,
+                ScoreLayout::Infer,
+                ScoreKind::Probabilities
+            ),
             Err(PerceptionError::AmbiguousLayout { .. })
         ));
-        assert!(pixel_probabilities(cube.view(), 2, 2, 2, ScoreLayout::HeightWidthChannels, ScoreKind::Probabilities).is_ok());
+        assert!(pixel_probabilities(
+            cube.view(),
+            2,
+            2,
+            2,
+            ScoreLayout::HeightWidthChannels,
+            ScoreKind::Probabilities
+        )
+        .is_ok());
         assert!(matches!(
             pixel_probabilities(cube.view(), 4, 1, 2, ScoreLayout::Infer, ScoreKind::Logits),
             Err(PerceptionError::Shape { .. })
@@ -218,19 +289,45 @@ mod tests {
         let mut bad = cube.clone();
         bad[[1, 0, 1]] = f64::NAN;
         assert!(matches!(
-            pixel_probabilities(bad.view(), 2, 2, 2, ScoreLayout::HeightWidthChannels, ScoreKind::Logits),
-            Err(PerceptionError::NonFinite { x: 0, y: 1, channel: 1, .. })
+            pixel_probabilities(
+                bad.view(),
+                2,
+                2,
+                2,
+                ScoreLayout::HeightWidthChannels,
+                ScoreKind::Logits
+            ),
+            Err(PerceptionError::NonFinite {
+                x: 0,
+                y: 1,
+                channel: 1,
+                ..
+            })
         ));
         let mut negative = cube.clone();
         negative[[0, 1, 0]] = -0.5;
         negative[[0, 1, 1]] = 1.5;
         assert!(matches!(
-            pixel_probabilities(negative.view(), 2, 2, 2, ScoreLayout::HeightWidthChannels, ScoreKind::Probabilities),
+            pixel_probabilities(
+                negative.view(),
+                2,
+                2,
+                2,
+                ScoreLayout::HeightWidthChannels,
+                ScoreKind::Probabilities
+            ),
             Err(PerceptionError::NegativeProbability { x: 1, y: 0, .. })
         ));
         let unnormalised = ndarray::ArrayD::<f64>::from_elem(IxDyn(&[2, 2, 2]), 0.7);
         assert!(matches!(
-            pixel_probabilities(unnormalised.view(), 2, 2, 2, ScoreLayout::HeightWidthChannels, ScoreKind::Probabilities),
+            pixel_probabilities(
+                unnormalised.view(),
+                2,
+                2,
+                2,
+                ScoreLayout::HeightWidthChannels,
+                ScoreKind::Probabilities
+            ),
             Err(PerceptionError::NotNormalised { .. })
         ));
     }

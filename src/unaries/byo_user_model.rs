@@ -26,9 +26,12 @@ use std::sync::Arc;
 use ndarray::{Array3, ArrayD, IxDyn};
 use serde::Deserialize;
 use tract_onnx::prelude::*;
+use tract_onnx::tract_hir::internal::DimLike;
 
 use super::byo::{PerceptionError, SynonymTable};
-use super::byo_pixel_scores::{unaries_from_pixel_scores, PixelScoreOptions, ScoreKind, ScoreLayout};
+use super::byo_pixel_scores::{
+    unaries_from_pixel_scores, PixelScoreOptions, ScoreKind, ScoreLayout,
+};
 use super::pooling::PoolingRule;
 use super::{Unaries, UnarySource};
 use crate::raster::RgbImage;
@@ -69,7 +72,9 @@ pub struct UserModel {
 
 impl std::fmt::Debug for UserModel {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("UserModel").field("config", &self.config).finish()
+        f.debug_struct("UserModel")
+            .field("config", &self.config)
+            .finish()
     }
 }
 
@@ -81,11 +86,15 @@ impl UserModel {
             path: config_path.to_path_buf(),
             message: error.to_string(),
         })?;
-        let config: UserModelConfig = toml::from_str(&text).map_err(|error| PerceptionError::Config {
-            origin: origin.clone(),
-            message: error.to_string(),
-        })?;
-        let model_path = config_path.parent().unwrap_or(Path::new(".")).join(&config.model);
+        let config: UserModelConfig =
+            toml::from_str(&text).map_err(|error| PerceptionError::Config {
+                origin: origin.clone(),
+                message: error.to_string(),
+            })?;
+        let model_path = config_path
+            .parent()
+            .unwrap_or(Path::new("."))
+            .join(&config.model);
         let bytes = std::fs::read(&model_path).map_err(|error| PerceptionError::Io {
             path: model_path.clone(),
             message: error.to_string(),
@@ -94,16 +103,30 @@ impl UserModel {
     }
 
     /// Builds a user model from a parsed config and the ONNX bytes.
-    pub fn from_parts(config: UserModelConfig, model_bytes: &[u8], origin: &str) -> Result<UserModel, PerceptionError> {
+    pub fn from_parts(
+        config: UserModelConfig,
+        model_bytes: &[u8],
+        origin: &str,
+    ) -> Result<UserModel, PerceptionError> {
         let bad_config = |message: String| PerceptionError::Config {
             origin: origin.to_string(),
             message,
         };
-        if config.input_width == 0 || config.input_height == 0 || config.input_width > 8192 || config.input_height > 8192 {
-            return Err(bad_config("input_width and input_height must be between 1 and 8192".to_string()));
+        if config.input_width == 0
+            || config.input_height == 0
+            || config.input_width > 8192
+            || config.input_height > 8192
+        {
+            return Err(bad_config(
+                "input_width and input_height must be between 1 and 8192".to_string(),
+            ));
         }
-        if config.std.iter().any(|&s| !(s.is_finite() && s > 0.0)) || config.mean.iter().any(|m| !m.is_finite()) {
-            return Err(bad_config("mean must be finite and std positive".to_string()));
+        if config.std.iter().any(|&s| !(s.is_finite() && s > 0.0))
+            || config.mean.iter().any(|m| !m.is_finite())
+        {
+            return Err(bad_config(
+                "mean must be finite and std positive".to_string(),
+            ));
         }
         if config.classes.is_empty() {
             return Err(PerceptionError::NoClasses);
@@ -135,7 +158,9 @@ impl UserModel {
         if !fits {
             return Err(PerceptionError::Shape {
                 found: dims.unwrap_or_default(),
-                expected: format!("a 1 x {class_count} x h x w (NCHW) or 1 x h x w x {class_count} (NHWC) output"),
+                expected: format!(
+                    "a 1 x {class_count} x h x w (NCHW) or 1 x h x w x {class_count} (NHWC) output"
+                ),
             });
         }
         let plan = model.into_runnable().map_err(model_error)?;
@@ -153,7 +178,10 @@ impl UserModel {
 
     /// The input tensor for an image: resized, scaled to [0, 1], normalised, batch of one.
     pub fn preprocess(&self, image: &RgbImage) -> ArrayD<f32> {
-        let (w, h) = (self.config.input_width as usize, self.config.input_height as usize);
+        let (w, h) = (
+            self.config.input_width as usize,
+            self.config.input_height as usize,
+        );
         let shape = match self.config.layout {
             TensorLayout::Nchw => vec![1, 3, h, w],
             TensorLayout::Nhwc => vec![1, h, w, 3],
@@ -167,8 +195,9 @@ impl UserModel {
             for x in 0..w {
                 let source_x = nearest(x, w, image.width as usize);
                 let pixel = image.pixels[source_y * image.width as usize + source_x];
-                for channel in 0..3 {
-                    let value = (pixel[channel] as f32 / 255.0 - self.config.mean[channel]) / self.config.std[channel];
+                for (channel, &sample) in pixel.iter().enumerate() {
+                    let value = (sample as f32 / 255.0 - self.config.mean[channel])
+                        / self.config.std[channel];
                     let index = match self.config.layout {
                         TensorLayout::Nchw => [0, channel, y, x],
                         TensorLayout::Nhwc => [0, y, x, channel],
@@ -185,11 +214,17 @@ impl UserModel {
         let model_error = |error: TractError| PerceptionError::Model {
             message: format!("{}: {error:#}", self.origin),
         };
-        let outputs = self.plan.run(tvec!(Tensor::from(input).into())).map_err(model_error)?;
+        let outputs = self
+            .plan
+            .run(tvec!(Tensor::from(input).into()))
+            .map_err(model_error)?;
         let output = outputs.first().ok_or_else(|| PerceptionError::Model {
             message: format!("{}: no output", self.origin),
         })?;
-        Ok(output.to_array_view::<f32>().map_err(model_error)?.to_owned())
+        Ok(output
+            .to_plain_array_view::<f32>()
+            .map_err(model_error)?
+            .to_owned())
     }
 
     /// Per-pixel scores at the image's size, `C x H x W`.
@@ -204,7 +239,10 @@ impl UserModel {
         let (width, height) = (image.width as usize, image.height as usize);
         let mut scores = Array3::<f64>::zeros((class_count, height, width));
         if out_h == 0 || out_w == 0 {
-            return Err(PerceptionError::Shape { found: shape, expected: "a non-empty output".to_string() });
+            return Err(PerceptionError::Shape {
+                found: shape,
+                expected: "a non-empty output".to_string(),
+            });
         }
         for y in 0..height {
             let source_y = nearest(y, height, out_h);
@@ -245,7 +283,9 @@ impl UserModel {
             &options,
             taxonomy,
             synonyms,
-            UnarySource::UserModel { model: self.origin.clone() },
+            UnarySource::UserModel {
+                model: self.origin.clone(),
+            },
         )
     }
 }

@@ -26,10 +26,20 @@ pub struct CalibrationReport {
 
 /// Per-row log-softmax of `logits / temperature`, in f64; returns one vector per row.
 fn row_log_softmax(row: ndarray::ArrayView1<f32>, temperature: f64) -> Vec<f64> {
-    let scaled: Vec<f64> = row.iter().map(|&value| value as f64 / temperature).collect();
+    let scaled: Vec<f64> = row
+        .iter()
+        .map(|&value| value as f64 / temperature)
+        .collect();
     let maximum = scaled.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-    let log_sum = scaled.iter().map(|value| (value - maximum).exp()).sum::<f64>().ln();
-    scaled.iter().map(|value| value - maximum - log_sum).collect()
+    let log_sum = scaled
+        .iter()
+        .map(|value| (value - maximum).exp())
+        .sum::<f64>()
+        .ln();
+    scaled
+        .iter()
+        .map(|value| value - maximum - log_sum)
+        .collect()
 }
 
 /// Mean negative log-likelihood of the true labels under `softmax(logits / temperature)`.
@@ -54,7 +64,8 @@ pub fn negative_log_likelihood(logits: ArrayView2<f32>, labels: &[usize], temper
 /// The NLL of temperature-scaled logits is smooth and (in `1/T`) convex, so a 1-D bracketing search finds
 /// its minimum.
 pub fn fit_temperature(logits: ArrayView2<f32>, labels: &[usize]) -> f64 {
-    let objective = |log_temperature: f64| negative_log_likelihood(logits, labels, log_temperature.exp());
+    let objective =
+        |log_temperature: f64| negative_log_likelihood(logits, labels, log_temperature.exp());
     let ratio = (5f64.sqrt() - 1.0) / 2.0;
     let (mut low, mut high) = (TEMPERATURE_RANGE.0.ln(), TEMPERATURE_RANGE.1.ln());
     let mut left = high - ratio * (high - low);
@@ -81,7 +92,11 @@ pub fn fit_temperature(logits: ArrayView2<f32>, labels: &[usize]) -> f64 {
 /// Expected calibration error of `softmax(logits / temperature)`: the confidence (top probability) range
 /// [0, 1] is cut into `ECE_BINS` equal-width bins `((k-1)/15, k/15]`; ECE is the sum over bins of
 /// `|bin| / n * |accuracy(bin) - mean confidence(bin)|`.
-pub fn expected_calibration_error(logits: ArrayView2<f32>, labels: &[usize], temperature: f64) -> f64 {
+pub fn expected_calibration_error(
+    logits: ArrayView2<f32>,
+    labels: &[usize],
+    temperature: f64,
+) -> f64 {
     let mut counts = [0usize; ECE_BINS];
     let mut correct = [0usize; ECE_BINS];
     let mut confidence_sums = [0f64; ECE_BINS];

@@ -11,6 +11,7 @@ use ndarray::{Array2, ArrayView2, Ix2};
 use prost::Message;
 use tract_onnx::pb;
 use tract_onnx::prelude::*;
+use tract_onnx::tract_hir::internal::DimLike;
 
 use super::contract::{ContractError, FeatureLayout, ModelContract};
 use crate::taxonomy::Taxonomy;
@@ -40,7 +41,9 @@ pub enum ClassifierError {
         found: String,
         expected: usize,
     },
-    #[error("{origin} takes {found} features per segment but lists {expected} normalisation values")]
+    #[error(
+        "{origin} takes {found} features per segment but lists {expected} normalisation values"
+    )]
     InputWidth {
         origin: String,
         found: String,
@@ -134,7 +137,9 @@ impl Classifier {
             .into_optimized()
             .map_err(unsupported)?;
         let output = model.output_fact(0).map_err(unsupported)?.clone();
-        if output.rank() != 2 || concrete_last_dimension(&output) != Some(contract.class_names.len()) {
+        if output.rank() != 2
+            || concrete_last_dimension(&output) != Some(contract.class_names.len())
+        {
             return Err(ClassifierError::OutputWidth {
                 origin,
                 found: format!("{:?}", output.shape),
@@ -142,7 +147,9 @@ impl Classifier {
             });
         }
         let input = model.input_fact(0).map_err(unsupported)?.clone();
-        if input.rank() != 2 || concrete_last_dimension(&input) != Some(contract.feature_means.len()) {
+        if input.rank() != 2
+            || concrete_last_dimension(&input) != Some(contract.feature_means.len())
+        {
             return Err(ClassifierError::InputWidth {
                 origin,
                 found: format!("{:?}", input.shape),
@@ -196,7 +203,7 @@ impl Classifier {
         let output = outputs.first().ok_or_else(|| ClassifierError::Run {
             message: "the model produced no output".to_string(),
         })?;
-        let view = output.to_array_view::<f32>().map_err(run_error)?;
+        let view = output.to_plain_array_view::<f32>().map_err(run_error)?;
         let scores = view
             .into_dimensionality::<Ix2>()
             .map_err(|error| ClassifierError::Run {
@@ -227,7 +234,12 @@ mod tests {
     fn contract_for(taxonomy: &Taxonomy, mlp: &crate::unaries::mlp::Mlp) -> ModelContract {
         ModelContract {
             format_version: MODEL_FORMAT_VERSION,
-            class_names: taxonomy.classes().iter().map(|c| c.name.clone()).take(mlp.class_count()).collect(),
+            class_names: taxonomy
+                .classes()
+                .iter()
+                .map(|c| c.name.clone())
+                .take(mlp.class_count())
+                .collect(),
             feature_layout_version: 3,
             feature_means: mlp.feature_means.to_vec(),
             feature_stds: mlp.feature_stds.to_vec(),
@@ -238,34 +250,90 @@ mod tests {
     #[test]
     fn written_model_runs_in_tract_like_the_reference_forward_pass() {
         let taxonomy = Taxonomy::embedded();
-        for widths in [vec![5, taxonomy.class_count()], vec![5, 7, taxonomy.class_count()], vec![5, 6, 4, taxonomy.class_count()]] {
+        for widths in [
+            vec![5, taxonomy.class_count()],
+            vec![5, 7, taxonomy.class_count()],
+            vec![5, 6, 4, taxonomy.class_count()],
+        ] {
             let mlp = seeded_random_mlp(widths.len() as u64, &widths);
             let bytes = encode_model(&mlp, &contract_for(&taxonomy, &mlp)).unwrap();
-            let layout = FeatureLayout { version: 3, count: 5 };
-            let classifier = Classifier::from_bytes(&bytes, "test model", &taxonomy, layout).unwrap();
-            let features = Array2::from_shape_fn((9, 5), |(r, c)| mlp.feature_means[c] + r as f32 - 4.0);
+            let layout = FeatureLayout {
+                version: 3,
+                count: 5,
+            };
+            let classifier =
+                Classifier::from_bytes(&bytes, "test model", &taxonomy, layout).unwrap();
+            let features =
+                Array2::from_shape_fn((9, 5), |(r, c)| mlp.feature_means[c] + r as f32 - 4.0);
             let ours = classifier.classify(features.view()).unwrap();
             let reference = mlp.log_probabilities(features.view());
-            let worst = ours.iter().zip(&reference).map(|(a, b)| (a - b).abs()).fold(0.0, f32::max);
+            let worst = ours
+                .iter()
+                .zip(&reference)
+                .map(|(a, b)| (a - b).abs())
+                .fold(0.0, f32::max);
             assert!(worst < 1e-4, "{widths:?}: {worst}");
             assert_eq!(classifier.contract().temperature, mlp.temperature);
             // Any batch size runs through the same plan.
-            assert_eq!(classifier.classify(features.slice(ndarray::s![..2, ..])).unwrap().nrows(), 2);
+            assert_eq!(
+                classifier
+                    .classify(features.slice(ndarray::s![..2, ..]))
+                    .unwrap()
+                    .nrows(),
+                2
+            );
         }
     }
 
     #[test]
     fn corrupt_bytes_and_contract_mismatches_are_typed_errors() {
         let taxonomy = Taxonomy::embedded();
-        let layout = FeatureLayout { version: 3, count: 5 };
-        let error = Classifier::from_bytes(b"\x08\x07garbage\xff\xff", "junk.onnx", &taxonomy, layout).unwrap_err();
-        assert!(matches!(error, ClassifierError::Corrupt { .. } | ClassifierError::Contract { .. }), "{error}");
+        let layout = FeatureLayout {
+            version: 3,
+            count: 5,
+        };
+        let error =
+            Classifier::from_bytes(b"\x08\x07garbage\xff\xff", "junk.onnx", &taxonomy, layout)
+                .unwrap_err();
+        assert!(
+            matches!(
+                error,
+                ClassifierError::Corrupt { .. } | ClassifierError::Contract { .. }
+            ),
+            "{error}"
+        );
         let mlp = seeded_random_mlp(1, &[5, taxonomy.class_count()]);
         let bytes = encode_model(&mlp, &contract_for(&taxonomy, &mlp)).unwrap();
-        let truncated = Classifier::from_bytes(&bytes[..bytes.len() / 2], "cut.onnx", &taxonomy, layout).unwrap_err();
-        assert!(matches!(truncated, ClassifierError::Corrupt { .. }), "{truncated}");
-        let newer = Classifier::from_bytes(&bytes, "m.onnx", &taxonomy, FeatureLayout { version: 4, count: 5 }).unwrap_err();
-        assert!(matches!(newer, ClassifierError::Contract { source: ContractError::FeatureVersion { found: 3, expected: 4 }, .. }), "{newer}");
+        let truncated =
+            Classifier::from_bytes(&bytes[..bytes.len() / 2], "cut.onnx", &taxonomy, layout)
+                .unwrap_err();
+        assert!(
+            matches!(truncated, ClassifierError::Corrupt { .. }),
+            "{truncated}"
+        );
+        let newer = Classifier::from_bytes(
+            &bytes,
+            "m.onnx",
+            &taxonomy,
+            FeatureLayout {
+                version: 4,
+                count: 5,
+            },
+        )
+        .unwrap_err();
+        assert!(
+            matches!(
+                newer,
+                ClassifierError::Contract {
+                    source: ContractError::FeatureVersion {
+                        found: 3,
+                        expected: 4
+                    },
+                    ..
+                }
+            ),
+            "{newer}"
+        );
     }
 
     #[test]
@@ -279,8 +347,20 @@ mod tests {
                 entry.value = serde_json::to_string(&all_names).unwrap();
             }
         }
-        let error = Classifier::from_bytes(&proto.encode_to_vec(), "narrow.onnx", &taxonomy, FeatureLayout { version: 3, count: 5 }).unwrap_err();
-        assert!(matches!(error, ClassifierError::OutputWidth { expected: 41, .. }), "{error}");
+        let error = Classifier::from_bytes(
+            &proto.encode_to_vec(),
+            "narrow.onnx",
+            &taxonomy,
+            FeatureLayout {
+                version: 3,
+                count: 5,
+            },
+        )
+        .unwrap_err();
+        assert!(
+            matches!(error, ClassifierError::OutputWidth { expected: 41, .. }),
+            "{error}"
+        );
     }
 
     #[test]
@@ -288,17 +368,39 @@ mod tests {
         let taxonomy = Taxonomy::embedded();
         let mlp = seeded_random_mlp(3, &[5, taxonomy.class_count()]);
         let bytes = encode_model(&mlp, &contract_for(&taxonomy, &mlp)).unwrap();
-        let classifier = Classifier::from_bytes(&bytes, "m.onnx", &taxonomy, FeatureLayout { version: 3, count: 5 }).unwrap();
+        let classifier = Classifier::from_bytes(
+            &bytes,
+            "m.onnx",
+            &taxonomy,
+            FeatureLayout {
+                version: 3,
+                count: 5,
+            },
+        )
+        .unwrap();
         let mut features = Array2::<f32>::zeros((3, 5));
         features[[2, 4]] = f32::INFINITY;
         assert!(matches!(
             classifier.classify(features.view()),
-            Err(ClassifierError::NonFiniteFeature { segment: 2, feature: 4, .. })
+            Err(ClassifierError::NonFiniteFeature {
+                segment: 2,
+                feature: 4,
+                ..
+            })
         ));
         assert!(matches!(
             classifier.classify(Array2::<f32>::zeros((3, 4)).view()),
-            Err(ClassifierError::FeatureWidth { found: 4, expected: 5 })
+            Err(ClassifierError::FeatureWidth {
+                found: 4,
+                expected: 5
+            })
         ));
-        assert_eq!(classifier.classify(Array2::<f32>::zeros((0, 5)).view()).unwrap().shape(), &[0, 41]);
+        assert_eq!(
+            classifier
+                .classify(Array2::<f32>::zeros((0, 5)).view())
+                .unwrap()
+                .shape(),
+            &[0, 41]
+        );
     }
 }

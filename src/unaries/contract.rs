@@ -42,7 +42,9 @@ pub enum ContractError {
     BadValue { key: &'static str, message: String },
     #[error("the model is sayso format {found}, this build reads format {expected}")]
     FormatVersion { found: u32, expected: u32 },
-    #[error("the model was trained on feature layout {found}, this build computes layout {expected}")]
+    #[error(
+        "the model was trained on feature layout {found}, this build computes layout {expected}"
+    )]
     FeatureVersion { found: u32, expected: u32 },
     #[error("the model expects {found} features, this build computes {expected}")]
     FeatureCount { found: usize, expected: usize },
@@ -107,7 +109,8 @@ impl ModelContract {
                 .map_err(|error| bad(key, error.to_string()))
         };
         let floats = |key: &'static str| -> Result<Vec<f32>, ContractError> {
-            serde_json::from_str::<Vec<f32>>(find(key)?).map_err(|error| bad(key, error.to_string()))
+            serde_json::from_str::<Vec<f32>>(find(key)?)
+                .map_err(|error| bad(key, error.to_string()))
         };
         let format_version = integer(KEY_FORMAT)?;
         if format_version != MODEL_FORMAT_VERSION {
@@ -190,7 +193,8 @@ impl ModelContract {
                 expected: taxonomy.class_count(),
             });
         }
-        for (position, (name, class)) in self.class_names.iter().zip(taxonomy.classes()).enumerate() {
+        for (position, (name, class)) in self.class_names.iter().zip(taxonomy.classes()).enumerate()
+        {
             if *name != class.name {
                 return Err(ContractError::ClassOrder {
                     position,
@@ -227,14 +231,20 @@ mod tests {
             ModelContract::from_metadata(pairs.iter().map(|(k, v)| (k.as_str(), v.as_str())))
                 .unwrap();
         assert_eq!(read, original);
-        let layout = FeatureLayout { version: 4, count: 2 };
+        let layout = FeatureLayout {
+            version: 4,
+            count: 2,
+        };
         assert_eq!(read.check_against(&taxonomy, layout), Ok(()));
     }
 
     #[test]
     fn mismatches_are_refused_with_the_reason() {
         let taxonomy = Taxonomy::embedded();
-        let layout = FeatureLayout { version: 4, count: 2 };
+        let layout = FeatureLayout {
+            version: 4,
+            count: 2,
+        };
         let mut swapped = contract(&taxonomy);
         swapped.class_names.swap(0, 1);
         assert!(matches!(
@@ -243,8 +253,17 @@ mod tests {
         ));
         let older = contract(&taxonomy);
         assert_eq!(
-            older.check_against(&taxonomy, FeatureLayout { version: 5, count: 2 }),
-            Err(ContractError::FeatureVersion { found: 4, expected: 5 })
+            older.check_against(
+                &taxonomy,
+                FeatureLayout {
+                    version: 5,
+                    count: 2
+                }
+            ),
+            Err(ContractError::FeatureVersion {
+                found: 4,
+                expected: 5
+            })
         );
         let mut short = contract(&taxonomy);
         short.class_names.pop();
@@ -264,11 +283,19 @@ mod tests {
         let without: Vec<_> = pairs.iter().filter(|(k, _)| k != KEY_TEMPERATURE).collect();
         assert_eq!(
             ModelContract::from_metadata(without.iter().map(|(k, v)| (k.as_str(), v.as_str()))),
-            Err(ContractError::MissingKey { key: KEY_TEMPERATURE })
+            Err(ContractError::MissingKey {
+                key: KEY_TEMPERATURE
+            })
         );
         let broken: Vec<_> = pairs
             .iter()
-            .map(|(k, v)| if k == KEY_MEANS { (k.clone(), "[1, oops".to_string()) } else { (k.clone(), v.clone()) })
+            .map(|(k, v)| {
+                if k == KEY_MEANS {
+                    (k.clone(), "[1, oops".to_string())
+                } else {
+                    (k.clone(), v.clone())
+                }
+            })
             .collect();
         assert!(matches!(
             ModelContract::from_metadata(broken.iter().map(|(k, v)| (k.as_str(), v.as_str()))),

@@ -10,7 +10,10 @@
 use std::path::{Path, PathBuf};
 
 use crate::ids::ClassId;
-use crate::raster::{read_depth_png, read_index_png, read_rgb_png, DepthImage, IndexImage, RasterError, RgbImage, DEFAULT_PIXEL_LIMIT};
+use crate::raster::{
+    read_depth_png, read_index_png, read_rgb_png, DepthImage, IndexImage, RasterError, RgbImage,
+    DEFAULT_PIXEL_LIMIT,
+};
 use crate::scene::SegmentMap;
 use crate::taxonomy::UNLABELLED;
 
@@ -18,7 +21,10 @@ use crate::taxonomy::UNLABELLED;
 #[derive(Debug, thiserror::Error)]
 pub enum DatasetError {
     #[error("cannot list dataset directory {path}: {source}")]
-    List { path: PathBuf, source: std::io::Error },
+    List {
+        path: PathBuf,
+        source: std::io::Error,
+    },
     #[error("dataset directory {path} holds no scene subdirectories")]
     Empty { path: PathBuf },
     #[error("scene directory {path} has no {file}")]
@@ -36,8 +42,14 @@ pub enum DatasetError {
         found_height: u32,
     },
     #[error("labels.png in {path} has value {value}, not a class id below {class_count} nor 255")]
-    BadLabel { path: PathBuf, value: u16, class_count: usize },
-    #[error("the segment map is {segments_width}x{segments_height} but the labels are {width}x{height}")]
+    BadLabel {
+        path: PathBuf,
+        value: u16,
+        class_count: usize,
+    },
+    #[error(
+        "the segment map is {segments_width}x{segments_height} but the labels are {width}x{height}"
+    )]
     SegmentSize {
         segments_width: u32,
         segments_height: u32,
@@ -92,7 +104,10 @@ pub fn list_dataset(directory: &Path) -> Result<Vec<DatasetEntry>, DatasetError>
 }
 
 /// Loads one scene's image, labels and optional depth and metadata, checking sizes and label values.
-pub fn load_labelled_image(entry: &DatasetEntry, class_count: usize) -> Result<LabelledImage, DatasetError> {
+pub fn load_labelled_image(
+    entry: &DatasetEntry,
+    class_count: usize,
+) -> Result<LabelledImage, DatasetError> {
     let directory = &entry.directory;
     let labels_path = directory.join("labels.png");
     if !labels_path.is_file() {
@@ -117,7 +132,11 @@ pub fn load_labelled_image(entry: &DatasetEntry, class_count: usize) -> Result<L
         }
     };
     same_size(labels_path.clone(), labels.width, labels.height)?;
-    if let Some(&value) = labels.values.iter().find(|&&v| v != UNLABELLED && v as usize >= class_count) {
+    if let Some(&value) = labels
+        .values
+        .iter()
+        .find(|&&v| v != UNLABELLED && v as usize >= class_count)
+    {
         return Err(DatasetError::BadLabel {
             path: directory.clone(),
             value,
@@ -134,14 +153,17 @@ pub fn load_labelled_image(entry: &DatasetEntry, class_count: usize) -> Result<L
     };
     let metadata_path = directory.join("scene.json");
     let metadata = if metadata_path.is_file() {
-        let text = std::fs::read_to_string(&metadata_path).map_err(|error| DatasetError::Metadata {
-            path: metadata_path.clone(),
-            message: error.to_string(),
-        })?;
-        Some(serde_json::from_str(&text).map_err(|error| DatasetError::Metadata {
-            path: metadata_path.clone(),
-            message: error.to_string(),
-        })?)
+        let text =
+            std::fs::read_to_string(&metadata_path).map_err(|error| DatasetError::Metadata {
+                path: metadata_path.clone(),
+                message: error.to_string(),
+            })?;
+        Some(
+            serde_json::from_str(&text).map_err(|error| DatasetError::Metadata {
+                path: metadata_path.clone(),
+                message: error.to_string(),
+            })?,
+        )
     } else {
         None
     };
@@ -161,7 +183,10 @@ pub fn majority_labels(
     labels: &IndexImage,
     class_count: usize,
 ) -> Result<Vec<Option<ClassId>>, DatasetError> {
-    if segments.width != labels.width || segments.height != labels.height || segments.labels.len() != labels.values.len() {
+    if segments.width != labels.width
+        || segments.height != labels.height
+        || segments.labels.len() != labels.values.len()
+    {
         return Err(DatasetError::SegmentSize {
             segments_width: segments.width,
             segments_height: segments.height,
@@ -172,7 +197,10 @@ pub fn majority_labels(
     let segment_count = segments.segment_count as usize;
     let mut votes = vec![0u32; segment_count * class_count];
     for (&segment, &label) in segments.labels.iter().zip(&labels.values) {
-        if label == UNLABELLED || (segment as usize) >= segment_count || label as usize >= class_count {
+        if label == UNLABELLED
+            || (segment as usize) >= segment_count
+            || label as usize >= class_count
+        {
             continue;
         }
         votes[segment as usize * class_count + label as usize] += 1;
@@ -188,45 +216,6 @@ pub fn majority_labels(
             (count > 0).then_some(ClassId(best as u16))
         })
         .collect())
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::raster::{write_index_png, write_rgb_png};
-
-    #[test]
-    fn reads_scene_directories_in_order_and_checks_them() {
-        let root = tempfile::tempdir().unwrap();
-        for (name, label) in [("b_scene", 2u16), ("a_scene", 1)] {
-            let directory = root.path().join(name);
-            std::fs::create_dir(&directory).unwrap();
-            write_rgb_png(&directory.join("image.png"), &RgbImage::filled(3, 2, [10, 20, 30])).unwrap();
-            write_index_png(&directory.join("labels.png"), &IndexImage::filled(3, 2, label)).unwrap();
-        }
-        std::fs::write(root.path().join("b_scene/scene.json"), "{\"room\": \"kitchen\"}").unwrap();
-        std::fs::create_dir(root.path().join("notes")).unwrap();
-        let entries = list_dataset(root.path()).unwrap();
-        assert_eq!(entries.iter().map(|e| e.name.as_str()).collect::<Vec<_>>(), ["a_scene", "b_scene"]);
-        let scene = load_labelled_image(&entries[1], 41).unwrap();
-        assert_eq!(scene.labels.values[0], 2);
-        assert_eq!(scene.metadata.unwrap()["room"], "kitchen");
-        assert!(matches!(load_labelled_image(&entries[1], 2), Err(DatasetError::BadLabel { value: 2, .. })));
-        write_index_png(&root.path().join("a_scene/labels.png"), &IndexImage::filled(2, 2, 1)).unwrap();
-        assert!(matches!(load_labelled_image(&entries[0], 41), Err(DatasetError::SizeMismatch { .. })));
-        std::fs::remove_file(root.path().join("a_scene/labels.png")).unwrap();
-        assert!(matches!(load_labelled_image(&entries[0], 41), Err(DatasetError::MissingFile { .. })));
-    }
-
-    #[test]
-    fn majority_label_per_segment() {
-        let segments = SegmentMap { width: 4, height: 1, labels: vec![0, 0, 0, 1], segment_count: 3 };
-        let labels = IndexImage { width: 4, height: 1, values: vec![3, 5, 5, UNLABELLED] };
-        let majority = majority_labels(&segments, &labels, 6).unwrap();
-        assert_eq!(majority, vec![Some(ClassId(5)), None, None]);
-        let tie = IndexImage { width: 4, height: 1, values: vec![4, 2, UNLABELLED, 1] };
-        assert_eq!(majority_labels(&segments, &tie, 6).unwrap()[0], Some(ClassId(2)));
-    }
 }
 
 /// Reads an exported feature matrix as CSV: one row per segment, the class index first, then the features.
@@ -248,18 +237,112 @@ pub fn read_feature_csv(path: &Path) -> Result<(ndarray::Array2<f32>, Vec<usize>
         let label = fields
             .next()
             .and_then(|field| field.parse::<usize>().ok())
-            .ok_or_else(|| bad(format!("line {}: the first field must be a class index", number + 1)))?;
+            .ok_or_else(|| {
+                bad(format!(
+                    "line {}: the first field must be a class index",
+                    number + 1
+                ))
+            })?;
         let row: Vec<f32> = fields
             .map(|field| field.parse::<f32>())
             .collect::<Result<_, _>>()
             .map_err(|error| bad(format!("line {}: {error}", number + 1)))?;
         if *width.get_or_insert(row.len()) != row.len() || row.is_empty() {
-            return Err(bad(format!("line {} has {} features, expected {}", number + 1, row.len(), width.unwrap_or(0))));
+            return Err(bad(format!(
+                "line {} has {} features, expected {}",
+                number + 1,
+                row.len(),
+                width.unwrap_or(0)
+            )));
         }
         labels.push(label);
         values.extend(row);
     }
     let width = width.ok_or_else(|| bad("no rows".to_string()))?;
-    let matrix = ndarray::Array2::from_shape_vec((labels.len(), width), values).map_err(|error| bad(error.to_string()))?;
+    let matrix = ndarray::Array2::from_shape_vec((labels.len(), width), values)
+        .map_err(|error| bad(error.to_string()))?;
     Ok((matrix, labels))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::raster::{write_index_png, write_rgb_png};
+
+    #[test]
+    fn reads_scene_directories_in_order_and_checks_them() {
+        let root = tempfile::tempdir().unwrap();
+        for (name, label) in [("b_scene", 2u16), ("a_scene", 1)] {
+            let directory = root.path().join(name);
+            std::fs::create_dir(&directory).unwrap();
+            write_rgb_png(
+                &directory.join("image.png"),
+                &RgbImage::filled(3, 2, [10, 20, 30]),
+            )
+            .unwrap();
+            write_index_png(
+                &directory.join("labels.png"),
+                &IndexImage::filled(3, 2, label),
+            )
+            .unwrap();
+        }
+        std::fs::write(
+            root.path().join("b_scene/scene.json"),
+            "{\"room\": \"kitchen\"}",
+        )
+        .unwrap();
+        std::fs::create_dir(root.path().join("notes")).unwrap();
+        let entries = list_dataset(root.path()).unwrap();
+        assert_eq!(
+            entries.iter().map(|e| e.name.as_str()).collect::<Vec<_>>(),
+            ["a_scene", "b_scene"]
+        );
+        let scene = load_labelled_image(&entries[1], 41).unwrap();
+        assert_eq!(scene.labels.values[0], 2);
+        assert_eq!(scene.metadata.unwrap()["room"], "kitchen");
+        assert!(matches!(
+            load_labelled_image(&entries[1], 2),
+            Err(DatasetError::BadLabel { value: 2, .. })
+        ));
+        write_index_png(
+            &root.path().join("a_scene/labels.png"),
+            &IndexImage::filled(2, 2, 1),
+        )
+        .unwrap();
+        assert!(matches!(
+            load_labelled_image(&entries[0], 41),
+            Err(DatasetError::SizeMismatch { .. })
+        ));
+        std::fs::remove_file(root.path().join("a_scene/labels.png")).unwrap();
+        assert!(matches!(
+            load_labelled_image(&entries[0], 41),
+            Err(DatasetError::MissingFile { .. })
+        ));
+    }
+
+    #[test]
+    fn majority_label_per_segment() {
+        let segments = SegmentMap {
+            width: 4,
+            height: 1,
+            labels: vec![0, 0, 0, 1],
+            segment_count: 3,
+        };
+        let labels = IndexImage {
+            width: 4,
+            height: 1,
+            values: vec![3, 5, 5, UNLABELLED],
+        };
+        let majority = majority_labels(&segments, &labels, 6).unwrap();
+        assert_eq!(majority, vec![Some(ClassId(5)), None, None]);
+        let tie = IndexImage {
+            width: 4,
+            height: 1,
+            values: vec![4, 2, UNLABELLED, 1],
+        };
+        assert_eq!(
+            majority_labels(&segments, &tie, 6).unwrap()[0],
+            Some(ClassId(2))
+        );
+    }
 }

@@ -87,7 +87,9 @@ impl ConfusionMatrix {
         if total == 0 {
             return 0.0;
         }
-        let correct: u64 = (0..self.class_count).map(|class| self.count(class, class)).sum();
+        let correct: u64 = (0..self.class_count)
+            .map(|class| self.count(class, class))
+            .sum();
         correct as f64 / total as f64
     }
 
@@ -97,9 +99,12 @@ impl ConfusionMatrix {
         (0..self.class_count)
             .map(|class| {
                 let true_positive = self.count(class, class);
-                let truth_total: u64 = (0..self.class_count).map(|other| self.count(class, other)).sum();
-                let predicted_total: u64 =
-                    (0..self.class_count).map(|other| self.count(other, class)).sum();
+                let truth_total: u64 = (0..self.class_count)
+                    .map(|other| self.count(class, other))
+                    .sum();
+                let predicted_total: u64 = (0..self.class_count)
+                    .map(|other| self.count(other, class))
+                    .sum();
                 let union = truth_total + predicted_total - true_positive;
                 (union > 0).then(|| true_positive as f64 / union as f64)
             })
@@ -142,11 +147,18 @@ mod tests {
         let mut matrix = ConfusionMatrix::new(2);
         assert_eq!(
             matrix.add_maps(&[0], &[0, 1]),
-            Err(MetricsError::LengthMismatch { truth: 1, predicted: 2 })
+            Err(MetricsError::LengthMismatch {
+                truth: 1,
+                predicted: 2
+            })
         );
         assert!(matches!(
             matrix.add_maps(&[0, 1], &[0, 7]),
-            Err(MetricsError::UnknownLabel { pixel: 1, value: 7, .. })
+            Err(MetricsError::UnknownLabel {
+                pixel: 1,
+                value: 7,
+                ..
+            })
         ));
     }
 }

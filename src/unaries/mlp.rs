@@ -35,7 +35,10 @@ impl Mlp {
 
     /// Number of output classes.
     pub fn class_count(&self) -> usize {
-        self.layers.last().map(|layer| layer.bias.len()).unwrap_or(0)
+        self.layers
+            .last()
+            .map(|layer| layer.bias.len())
+            .unwrap_or(0)
     }
 
     /// Number of hidden layers.
@@ -110,6 +113,32 @@ pub fn log_softmax_rows(mut logits: Array2<f32>) -> Array2<f32> {
     logits
 }
 
+/// A network with seeded random weights (He-scaled normal) and normalisation, for fixtures and benchmarks.
+/// `widths` is `[features, hidden..., classes]`.
+pub fn seeded_random_mlp(seed: u64, widths: &[usize]) -> Mlp {
+    let mut generator = super::rng::SplitMix64::new(seed);
+    let feature_count = widths.first().copied().unwrap_or(0);
+    let mut draw = |scale: f64| (generator.next_normal() * scale) as f32;
+    let feature_means = Array1::from_shape_fn(feature_count, |_| draw(10.0));
+    let feature_stds = Array1::from_shape_fn(feature_count, |_| 0.5 + draw(1.0).abs());
+    let layers = widths
+        .windows(2)
+        .map(|pair| {
+            let scale = (2.0 / pair[0].max(1) as f64).sqrt();
+            DenseLayer {
+                weights: Array2::from_shape_fn((pair[0], pair[1]), |_| draw(scale)),
+                bias: Array1::from_shape_fn(pair[1], |_| draw(0.1)),
+            }
+        })
+        .collect();
+    Mlp {
+        feature_means,
+        feature_stds,
+        layers,
+        temperature: 1.3,
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -148,31 +177,5 @@ mod tests {
         assert!((result[[0, 0]] - expected[[0, 0]]).abs() < 1e-6);
         assert!((result[[0, 1]] - expected[[0, 1]]).abs() < 1e-6);
         assert_eq!(mlp.parameter_count(), 12);
-    }
-}
-
-/// A network with seeded random weights (He-scaled normal) and normalisation, for fixtures and benchmarks.
-/// `widths` is `[features, hidden..., classes]`.
-pub fn seeded_random_mlp(seed: u64, widths: &[usize]) -> Mlp {
-    let mut generator = super::rng::SplitMix64::new(seed);
-    let feature_count = widths.first().copied().unwrap_or(0);
-    let mut draw = |scale: f64| (generator.next_normal() * scale) as f32;
-    let feature_means = Array1::from_shape_fn(feature_count, |_| draw(10.0));
-    let feature_stds = Array1::from_shape_fn(feature_count, |_| 0.5 + draw(1.0).abs());
-    let layers = widths
-        .windows(2)
-        .map(|pair| {
-            let scale = (2.0 / pair[0].max(1) as f64).sqrt();
-            DenseLayer {
-                weights: Array2::from_shape_fn((pair[0], pair[1]), |_| draw(scale)),
-                bias: Array1::from_shape_fn(pair[1], |_| draw(0.1)),
-            }
-        })
-        .collect();
-    Mlp {
-        feature_means,
-        feature_stds,
-        layers,
-        temperature: 1.3,
     }
 }

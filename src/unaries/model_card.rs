@@ -48,24 +48,52 @@ impl ModelCard {
         let _ = writeln!(text, "Reproduce with:\n\n```sh\n{}\n```\n", self.command);
         let _ = writeln!(text, "## Training data\n\n{}\n", self.training_data);
         let _ = writeln!(text, "- training rows (segments): {}", self.training_rows);
-        let _ = writeln!(text, "- validation rows (early stopping and temperature fit): {}\n", self.validation_rows);
+        let _ = writeln!(
+            text,
+            "- validation rows (early stopping and temperature fit): {}\n",
+            self.validation_rows
+        );
         let _ = writeln!(text, "## Model\n");
         let _ = writeln!(text, "- mode: {}", self.mode);
-        let _ = writeln!(text, "- input: {} features, layout version {}", self.feature_count, self.feature_layout_version);
-        let _ = writeln!(text, "- output: log-probabilities over {} classes", self.class_count);
-        let _ = writeln!(text, "- parameters: {}; file size: {} bytes", self.parameter_count, self.file_bytes);
+        let _ = writeln!(
+            text,
+            "- input: {} features, layout version {}",
+            self.feature_count, self.feature_layout_version
+        );
+        let _ = writeln!(
+            text,
+            "- output: log-probabilities over {} classes",
+            self.class_count
+        );
+        let _ = writeln!(
+            text,
+            "- parameters: {}; file size: {} bytes",
+            self.parameter_count, self.file_bytes
+        );
         let _ = writeln!(
             text,
             "- epochs run: {} (best {}); training time {:.1} s\n",
             self.epochs_run, self.best_epoch, self.training_seconds
         );
         let _ = writeln!(text, "## Accuracy\n");
-        let _ = writeln!(text, "- segment accuracy, training split: {:.2}%", 100.0 * self.training_accuracy);
-        let _ = writeln!(text, "- segment accuracy, validation split: {:.2}%\n", 100.0 * self.validation_accuracy);
+        let _ = writeln!(
+            text,
+            "- segment accuracy, training split: {:.2}%",
+            100.0 * self.training_accuracy
+        );
+        let _ = writeln!(
+            text,
+            "- segment accuracy, validation split: {:.2}%\n",
+            100.0 * self.validation_accuracy
+        );
         match &self.evaluation {
             Some(evaluation) => {
                 let _ = writeln!(text, "On {}:\n", evaluation.description);
-                let _ = writeln!(text, "- pixel accuracy: {:.2}%", 100.0 * evaluation.pixel_accuracy);
+                let _ = writeln!(
+                    text,
+                    "- pixel accuracy: {:.2}%",
+                    100.0 * evaluation.pixel_accuracy
+                );
                 let _ = writeln!(text, "- mean IoU: {:.3}\n", evaluation.mean_iou);
                 let _ = writeln!(text, "| class | IoU |\n|---|---|");
                 for (name, iou) in &evaluation.per_class_iou {
@@ -78,10 +106,21 @@ impl ModelCard {
             }
         }
         let c = &self.calibration;
-        let _ = writeln!(text, "## Calibration (temperature scaling, validation split)\n");
+        let _ = writeln!(
+            text,
+            "## Calibration (temperature scaling, validation split)\n"
+        );
         let _ = writeln!(text, "| | NLL | ECE (15 bins) |\n|---|---|---|");
-        let _ = writeln!(text, "| before (T = 1) | {:.4} | {:.4} |", c.nll_before, c.ece_before);
-        let _ = writeln!(text, "| after (T = {:.3}) | {:.4} | {:.4} |", c.temperature, c.nll_after, c.ece_after);
+        let _ = writeln!(
+            text,
+            "| before (T = 1) | {:.4} | {:.4} |",
+            c.nll_before, c.ece_before
+        );
+        let _ = writeln!(
+            text,
+            "| after (T = {:.3}) | {:.4} | {:.4} |",
+            c.temperature, c.nll_after, c.ece_after
+        );
         text
     }
 }

@@ -33,7 +33,11 @@ pub enum OnnxWriteError {
     NotFinite,
 }
 
-fn float_tensor(name: &str, dims: &[usize], values: impl IntoIterator<Item = f32>) -> pb::TensorProto {
+fn float_tensor(
+    name: &str,
+    dims: &[usize],
+    values: impl IntoIterator<Item = f32>,
+) -> pb::TensorProto {
     pb::TensorProto {
         name: name.to_string(),
         dims: dims.iter().map(|&dim| dim as i64).collect(),
@@ -79,7 +83,10 @@ fn value_info(name: &str, width: usize) -> pb::ValueInfoProto {
 
 /// Builds the ONNX model for `mlp` with `contract` in its metadata. The contract's normalisation and
 /// temperature are taken from the network so the two can never disagree.
-pub fn build_model_proto(mlp: &Mlp, contract: &ModelContract) -> Result<pb::ModelProto, OnnxWriteError> {
+pub fn build_model_proto(
+    mlp: &Mlp,
+    contract: &ModelContract,
+) -> Result<pb::ModelProto, OnnxWriteError> {
     if !mlp.shapes_are_consistent() {
         return Err(OnnxWriteError::Shapes {
             features: mlp.feature_count(),
@@ -91,9 +98,17 @@ pub fn build_model_proto(mlp: &Mlp, contract: &ModelContract) -> Result<pb::Mode
             network: mlp.class_count(),
         });
     }
-    let finite = mlp.feature_means.iter().chain(&mlp.feature_stds).all(|v| v.is_finite())
+    let finite = mlp
+        .feature_means
+        .iter()
+        .chain(&mlp.feature_stds)
+        .all(|v| v.is_finite())
         && mlp.layers.iter().all(|layer| {
-            layer.weights.iter().chain(&layer.bias).all(|v| v.is_finite())
+            layer
+                .weights
+                .iter()
+                .chain(&layer.bias)
+                .all(|v| v.is_finite())
         })
         && mlp.temperature.is_finite()
         && mlp.temperature > 0.0;
@@ -102,8 +117,16 @@ pub fn build_model_proto(mlp: &Mlp, contract: &ModelContract) -> Result<pb::Mode
     }
     let feature_count = mlp.feature_count();
     let mut initializers = vec![
-        float_tensor("feature_means", &[feature_count], mlp.feature_means.iter().copied()),
-        float_tensor("feature_stds", &[feature_count], mlp.feature_stds.iter().copied()),
+        float_tensor(
+            "feature_means",
+            &[feature_count],
+            mlp.feature_means.iter().copied(),
+        ),
+        float_tensor(
+            "feature_stds",
+            &[feature_count],
+            mlp.feature_stds.iter().copied(),
+        ),
         float_tensor("temperature", &[], [mlp.temperature]),
     ];
     let mut nodes = vec![
@@ -119,20 +142,49 @@ pub fn build_model_proto(mlp: &Mlp, contract: &ModelContract) -> Result<pb::Mode
             &[layer.weights.nrows(), layer.weights.ncols()],
             layer.weights.iter().copied(),
         ));
-        initializers.push(float_tensor(&bias, &[layer.bias.len()], layer.bias.iter().copied()));
+        initializers.push(float_tensor(
+            &bias,
+            &[layer.bias.len()],
+            layer.bias.iter().copied(),
+        ));
         let product = format!("layer{index}_product");
         let affine = format!("layer{index}_affine");
-        nodes.push(node("MatMul", &format!("layer{index}_matmul"), &[&current, &weights], &product));
-        nodes.push(node("Add", &format!("layer{index}_add"), &[&product, &bias], &affine));
+        nodes.push(node(
+            "MatMul",
+            &format!("layer{index}_matmul"),
+            &[&current, &weights],
+            &product,
+        ));
+        nodes.push(node(
+            "Add",
+            &format!("layer{index}_add"),
+            &[&product, &bias],
+            &affine,
+        ));
         current = affine;
         if index + 1 < mlp.layers.len() {
             let activated = format!("layer{index}_relu_out");
-            nodes.push(node("Relu", &format!("layer{index}_relu"), &[&current], &activated));
+            nodes.push(node(
+                "Relu",
+                &format!("layer{index}_relu"),
+                &[&current],
+                &activated,
+            ));
             current = activated;
         }
     }
-    nodes.push(node("Div", "calibrate", &[&current, "temperature"], "calibrated_logits"));
-    let mut softmax = node("LogSoftmax", "log_softmax", &["calibrated_logits"], OUTPUT_NAME);
+    nodes.push(node(
+        "Div",
+        "calibrate",
+        &[&current, "temperature"],
+        "calibrated_logits",
+    ));
+    let mut softmax = node(
+        "LogSoftmax",
+        "log_softmax",
+        &["calibrated_logits"],
+        OUTPUT_NAME,
+    );
     softmax.attribute.push(pb::AttributeProto {
         name: "axis".to_string(),
         r#type: pb::attribute_proto::AttributeType::Int as i32,

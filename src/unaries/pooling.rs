@@ -9,6 +9,7 @@
 //! 3. channels are summed into their taxonomy classes (several names may map to one class; unknown channels
 //!    are left out), every taxonomy class gets `PROBABILITY_FLOOR` added so no class is impossible, and the
 //!    row is renormalised and logged. A segment with no pixels gets the uniform distribution.
+//!
 //! Must not: read files or run models.
 
 use ndarray::{Array2, ArrayView2};
@@ -44,7 +45,9 @@ pub fn pool_pixel_probabilities(
             segment_count: segments.segment_count,
         });
     }
-    if pixel_probabilities.nrows() != pixel_count || pixel_probabilities.ncols() != mapping.columns.len() {
+    if pixel_probabilities.nrows() != pixel_count
+        || pixel_probabilities.ncols() != mapping.columns.len()
+    {
         return Err(PerceptionError::Shape {
             found: pixel_probabilities.shape().to_vec(),
             expected: format!("{pixel_count} pixels x {} channels", mapping.columns.len()),
@@ -54,7 +57,12 @@ pub fn pool_pixel_probabilities(
     let channel_count = mapping.columns.len();
     let mut sums = vec![0f64; segment_count * channel_count];
     let mut pixels_per_segment = vec![0usize; segment_count];
-    for (pixel, (&segment, probabilities)) in segments.labels.iter().zip(pixel_probabilities.rows()).enumerate() {
+    for (pixel, (&segment, probabilities)) in segments
+        .labels
+        .iter()
+        .zip(pixel_probabilities.rows())
+        .enumerate()
+    {
         let index = segment as usize;
         if index >= segment_count {
             return Err(PerceptionError::BadSegmentMap {
@@ -106,14 +114,29 @@ mod tests {
 
     fn two_segment_map() -> SegmentMap {
         // 2x2 image: left column segment 0, right column segment 1.
-        SegmentMap { width: 2, height: 2, labels: vec![0, 1, 0, 1], segment_count: 3 }
+        SegmentMap {
+            width: 2,
+            height: 2,
+            labels: vec![0, 1, 0, 1],
+            segment_count: 3,
+        }
     }
 
     #[test]
     fn mean_probability_pooling_by_hand() {
-        let mapping = ClassMapping { columns: vec![Some(ClassId(0)), Some(ClassId(1))], unknown: vec![] };
+        let mapping = ClassMapping {
+            columns: vec![Some(ClassId(0)), Some(ClassId(1))],
+            unknown: vec![],
+        };
         let pixels = array![[1.0, 0.0], [0.2, 0.8], [0.5, 0.5], [0.4, 0.6]];
-        let pooled = pool_pixel_probabilities(&two_segment_map(), pixels.view(), &mapping, 2, PoolingRule::MeanProbability).unwrap();
+        let pooled = pool_pixel_probabilities(
+            &two_segment_map(),
+            pixels.view(),
+            &mapping,
+            2,
+            PoolingRule::MeanProbability,
+        )
+        .unwrap();
         // Segment 0: mean (0.75, 0.25), plus the floor, renormalised.
         let expected = (0.75 + PROBABILITY_FLOOR) / (1.0 + 2.0 * PROBABILITY_FLOOR);
         assert!((pooled[[0, 0]] as f64 - expected.ln()).abs() < 1e-6);
@@ -128,25 +151,67 @@ mod tests {
     #[test]
     fn geometric_pooling_is_sharper_and_synonym_channels_add_up() {
         // Channels 0 and 1 are both class 0 (say "sofa" and "couch"), channel 2 is class 1.
-        let mapping = ClassMapping { columns: vec![Some(ClassId(0)), Some(ClassId(0)), Some(ClassId(1))], unknown: vec![] };
-        let pixels = array![[0.3, 0.3, 0.4], [0.1, 0.1, 0.8], [0.3, 0.3, 0.4], [0.1, 0.1, 0.8]];
-        let arithmetic = pool_pixel_probabilities(&two_segment_map(), pixels.view(), &mapping, 2, PoolingRule::MeanProbability).unwrap();
+        let mapping = ClassMapping {
+            columns: vec![Some(ClassId(0)), Some(ClassId(0)), Some(ClassId(1))],
+            unknown: vec![],
+        };
+        let pixels = array![
+            [0.3, 0.3, 0.4],
+            [0.1, 0.1, 0.8],
+            [0.3, 0.3, 0.4],
+            [0.1, 0.1, 0.8]
+        ];
+        let arithmetic = pool_pixel_probabilities(
+            &two_segment_map(),
+            pixels.view(),
+            &mapping,
+            2,
+            PoolingRule::MeanProbability,
+        )
+        .unwrap();
         assert!((arithmetic[[0, 0]].exp() - 0.6).abs() < 1e-3);
-        let geometric = pool_pixel_probabilities(&two_segment_map(), pixels.view(), &mapping, 2, PoolingRule::MeanLogProbability).unwrap();
+        let geometric = pool_pixel_probabilities(
+            &two_segment_map(),
+            pixels.view(),
+            &mapping,
+            2,
+            PoolingRule::MeanLogProbability,
+        )
+        .unwrap();
         assert!(geometric[[1, 1]] > arithmetic[[1, 1]] - 1e-6);
     }
 
     #[test]
     fn wrong_sizes_and_bad_segment_ids_are_errors() {
-        let mapping = ClassMapping { columns: vec![Some(ClassId(0))], unknown: vec![] };
+        let mapping = ClassMapping {
+            columns: vec![Some(ClassId(0))],
+            unknown: vec![],
+        };
         let pixels = array![[1.0], [1.0], [1.0]];
         assert!(matches!(
-            pool_pixel_probabilities(&two_segment_map(), pixels.view(), &mapping, 1, PoolingRule::MeanProbability),
+            pool_pixel_probabilities(
+                &two_segment_map(),
+                pixels.view(),
+                &mapping,
+                1,
+                PoolingRule::MeanProbability
+            ),
             Err(PerceptionError::Shape { .. })
         ));
-        let broken = SegmentMap { width: 1, height: 1, labels: vec![5], segment_count: 2 };
+        let broken = SegmentMap {
+            width: 1,
+            height: 1,
+            labels: vec![5],
+            segment_count: 2,
+        };
         assert!(matches!(
-            pool_pixel_probabilities(&broken, array![[1.0]].view(), &mapping, 1, PoolingRule::MeanProbability),
+            pool_pixel_probabilities(
+                &broken,
+                array![[1.0]].view(),
+                &mapping,
+                1,
+                PoolingRule::MeanProbability
+            ),
             Err(PerceptionError::BadSegmentMap { segment: 5, .. })
         ));
     }

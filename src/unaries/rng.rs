@@ -88,7 +88,8 @@ mod tests {
         let mut generator = SplitMix64::new(3);
         let samples: Vec<f64> = (0..20000).map(|_| generator.next_normal()).collect();
         let mean = samples.iter().sum::<f64>() / samples.len() as f64;
-        let variance = samples.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / samples.len() as f64;
+        let variance =
+            samples.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / samples.len() as f64;
         assert!(mean.abs() < 0.03, "{mean}");
         assert!((variance - 1.0).abs() < 0.05, "{variance}");
     }

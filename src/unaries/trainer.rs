@@ -116,7 +116,9 @@ pub enum TrainError {
         rows: usize,
         labels: usize,
     },
-    #[error("the training set has {training} features per row but the validation set has {validation}")]
+    #[error(
+        "the training set has {training} features per row but the validation set has {validation}"
+    )]
     WidthMismatch { training: usize, validation: usize },
     #[error("row {row} of the {set} set has label {label}, but there are {class_count} classes")]
     LabelOutOfRange {
@@ -147,7 +149,9 @@ pub fn split_for_validation(
     let mut training_rows = Vec::new();
     let mut validation_rows = Vec::new();
     for class in 0..class_count {
-        let mut rows: Vec<usize> = (0..data.len()).filter(|&row| data.labels[row] == class).collect();
+        let mut rows: Vec<usize> = (0..data.len())
+            .filter(|&row| data.labels[row] == class)
+            .collect();
         generator.shuffle(&mut rows);
         let mut held = (rows.len() as f64 * fraction).round() as usize;
         if rows.len() >= 2 {
@@ -178,7 +182,12 @@ fn check_set(
             labels: data.labels.len(),
         });
     }
-    if let Some((row, &label)) = data.labels.iter().enumerate().find(|(_, &l)| l >= class_count) {
+    if let Some((row, &label)) = data
+        .labels
+        .iter()
+        .enumerate()
+        .find(|(_, &l)| l >= class_count)
+    {
         return Err(TrainError::LabelOutOfRange {
             set,
             row,
@@ -198,10 +207,18 @@ fn normalisation(features: ArrayView2<f32>) -> (Array1<f32>, Array1<f32>) {
     let mut stds = Array1::<f32>::ones(features.ncols());
     for (column, values) in features.axis_iter(Axis(1)).enumerate() {
         let mean = values.iter().map(|&v| v as f64).sum::<f64>() / rows;
-        let variance = values.iter().map(|&v| (v as f64 - mean).powi(2)).sum::<f64>() / rows;
+        let variance = values
+            .iter()
+            .map(|&v| (v as f64 - mean).powi(2))
+            .sum::<f64>()
+            / rows;
         means[column] = mean as f32;
         // A constant feature keeps scale 1 so normalisation never divides by zero.
-        stds[column] = if variance.sqrt() > 1e-6 { variance.sqrt() as f32 } else { 1.0 };
+        stds[column] = if variance.sqrt() > 1e-6 {
+            variance.sqrt() as f32
+        } else {
+            1.0
+        };
     }
     (means, stds)
 }
@@ -216,7 +233,9 @@ fn initial_layers(widths: &[usize], zero: bool, generator: &mut SplitMix64) -> V
             let weights = if zero {
                 Array2::zeros((inputs, outputs))
             } else {
-                Array2::from_shape_simple_fn((inputs, outputs), || (generator.next_normal() * scale) as f32)
+                Array2::from_shape_simple_fn((inputs, outputs), || {
+                    (generator.next_normal() * scale) as f32
+                })
             };
             DenseLayer {
                 weights,
@@ -253,7 +272,11 @@ fn logits_gradient(logits: &Array2<f32>, labels: &[usize], weights: &[f32]) -> A
     gradient
 }
 
-fn backward(layers: &[DenseLayer], outputs: &[Array2<f32>], logits_gradient: Array2<f32>) -> Vec<DenseLayer> {
+fn backward(
+    layers: &[DenseLayer],
+    outputs: &[Array2<f32>],
+    logits_gradient: Array2<f32>,
+) -> Vec<DenseLayer> {
     let mut gradients = Vec::with_capacity(layers.len());
     let mut upstream = logits_gradient;
     for index in (0..layers.len()).rev() {
@@ -302,7 +325,12 @@ impl Adam {
         }
     }
 
-    fn update(&mut self, layers: &mut [DenseLayer], gradients: &[DenseLayer], config: &TrainingConfig) {
+    fn update(
+        &mut self,
+        layers: &mut [DenseLayer],
+        gradients: &[DenseLayer],
+        config: &TrainingConfig,
+    ) {
         self.step += 1;
         let correction1 = 1.0 - BETA1.powi(self.step);
         let correction2 = 1.0 - BETA2.powi(self.step);
@@ -310,14 +338,19 @@ impl Adam {
         let decay = config.weight_decay;
         for (index, layer) in layers.iter_mut().enumerate() {
             let gradient = &gradients[index];
-            let step = |parameter: &mut f32, gradient: f32, first: &mut f32, second: &mut f32, is_weight: bool| {
+            let step = |parameter: &mut f32,
+                        gradient: f32,
+                        first: &mut f32,
+                        second: &mut f32,
+                        is_weight: bool| {
                 let mut gradient = gradient;
                 if is_weight && config.regularisation == Regularisation::L2 {
                     gradient += decay * *parameter;
                 }
                 *first = BETA1 * *first + (1.0 - BETA1) * gradient;
                 *second = BETA2 * *second + (1.0 - BETA2) * gradient * gradient;
-                let update = (*first / correction1) / ((*second / correction2).sqrt() + ADAM_EPSILON);
+                let update =
+                    (*first / correction1) / ((*second / correction2).sqrt() + ADAM_EPSILON);
                 if is_weight && config.regularisation == Regularisation::DecoupledWeightDecay {
                     *parameter -= rate * decay * *parameter;
                 }
@@ -373,7 +406,9 @@ pub fn train(
     }
     let hidden = match &config.mode {
         TrainingMode::SoftmaxRegression => Vec::new(),
-        TrainingMode::Mlp { hidden } if (1..=2).contains(&hidden.len()) && hidden.iter().all(|&w| w > 0) => {
+        TrainingMode::Mlp { hidden }
+            if (1..=2).contains(&hidden.len()) && hidden.iter().all(|&w| w > 0) =>
+        {
             hidden.clone()
         }
         TrainingMode::Mlp { hidden } => {
@@ -382,13 +417,19 @@ pub fn train(
             )))
         }
     };
-    if config.max_epochs == 0 || config.batch_size == 0 || !(config.learning_rate > 0.0) {
+    if config.max_epochs == 0
+        || config.batch_size == 0
+        || config.learning_rate.is_nan()
+        || config.learning_rate <= 0.0
+    {
         return Err(TrainError::Config(
             "epochs, batch size and learning rate must be positive".to_string(),
         ));
     }
     if !(config.weight_decay >= 0.0 && config.weight_decay.is_finite()) {
-        return Err(TrainError::Config("weight decay must be a finite number >= 0".to_string()));
+        return Err(TrainError::Config(
+            "weight decay must be a finite number >= 0".to_string(),
+        ));
     }
     let mut generator = SplitMix64::new(config.seed);
     let (feature_means, feature_stds) = normalisation(training.features.view());
@@ -423,7 +464,8 @@ pub fn train(
     let mut adam = Adam::new(&layers);
     let progress = if config.show_progress {
         let bar = ProgressBar::new(config.max_epochs as u64);
-        if let Ok(style) = ProgressStyle::with_template("training {bar:30} epoch {pos}/{len} {msg}") {
+        if let Ok(style) = ProgressStyle::with_template("training {bar:30} epoch {pos}/{len} {msg}")
+        {
             bar.set_style(style);
         }
         bar
@@ -507,12 +549,18 @@ mod tests {
             labels
                 .iter()
                 .enumerate()
-                .map(|(row, &label)| -(log_probabilities[[row, label]] as f64) * weights[row] as f64)
+                .map(|(row, &label)| {
+                    -(log_probabilities[[row, label]] as f64) * weights[row] as f64
+                })
                 .sum::<f64>()
                 / total
         };
         let outputs = forward(&layers, input.clone());
-        let analytic = backward(&layers, &outputs, logits_gradient(&outputs[2], &labels, &weights));
+        let analytic = backward(
+            &layers,
+            &outputs,
+            logits_gradient(&outputs[2], &labels, &weights),
+        );
         for layer in 0..2 {
             for (position, &gradient) in analytic[layer].weights.indexed_iter() {
                 let mut plus = layers.clone();
@@ -520,7 +568,10 @@ mod tests {
                 let mut minus = layers.clone();
                 minus[layer].weights[position] -= 1e-2;
                 let numeric = (loss(&plus) - loss(&minus)) / 2e-2;
-                assert!((numeric - gradient as f64).abs() < 2e-3, "layer {layer} {position:?}: {numeric} vs {gradient}");
+                assert!(
+                    (numeric - gradient as f64).abs() < 2e-3,
+                    "layer {layer} {position:?}: {numeric} vs {gradient}"
+                );
             }
         }
     }
@@ -530,8 +581,15 @@ mod tests {
         let data = blobs(600, 1);
         let (training, validation) = split_for_validation(&data, 0.25, 3);
         assert_eq!(training.len() + validation.len(), 600);
-        for mode in [TrainingMode::SoftmaxRegression, TrainingMode::Mlp { hidden: vec![16] }] {
-            let config = TrainingConfig { mode, max_epochs: 60, ..TrainingConfig::default() };
+        for mode in [
+            TrainingMode::SoftmaxRegression,
+            TrainingMode::Mlp { hidden: vec![16] },
+        ] {
+            let config = TrainingConfig {
+                mode,
+                max_epochs: 60,
+                ..TrainingConfig::default()
+            };
             let first = train(&training, &validation, 3, &config).unwrap();
             let second = train(&training, &validation, 3, &config).unwrap();
             assert_eq!(first.mlp, second.mlp, "same seed, same model");
@@ -546,11 +604,26 @@ mod tests {
         data.features[[4, 1]] = f32::NAN;
         assert_eq!(
             train(&data, &data, 3, &config),
-            Err(TrainError::NonFinite { set: "training", row: 4, column: 1 })
+            Err(TrainError::NonFinite {
+                set: "training",
+                row: 4,
+                column: 1
+            })
         );
         let data = blobs(30, 2);
-        assert!(matches!(train(&data, &data, 2, &config), Err(TrainError::LabelOutOfRange { .. })));
-        let wide = TrainingConfig { mode: TrainingMode::Mlp { hidden: vec![4, 4, 4] }, ..config };
-        assert!(matches!(train(&data, &data, 3, &wide), Err(TrainError::Config(_))));
+        assert!(matches!(
+            train(&data, &data, 2, &config),
+            Err(TrainError::LabelOutOfRange { .. })
+        ));
+        let wide = TrainingConfig {
+            mode: TrainingMode::Mlp {
+                hidden: vec![4, 4, 4],
+            },
+            ..config
+        };
+        assert!(matches!(
+            train(&data, &data, 3, &wide),
+            Err(TrainError::Config(_))
+        ));
     }
 }
