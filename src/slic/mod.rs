@@ -41,7 +41,11 @@ pub enum SlicError {
     #[error("the image has {pixels} pixels, fewer than the {target} target segments")]
     TooManySegments { target: u32, pixels: u64 },
     #[error("the image claims {width}x{height} but holds {found} pixels")]
-    PixelCountMismatch { width: u32, height: u32, found: usize },
+    PixelCountMismatch {
+        width: u32,
+        height: u32,
+        found: usize,
+    },
 }
 
 /// SLIC settings. Built only through `SlicParams::new` or `Default`, so a value is always valid.
@@ -296,17 +300,31 @@ fn seed_centres(planes: &LabPlanes, width: usize, height: usize, grid: &SeedGrid
     centres
 }
 
+/// The fixed geometry of one clustering run.
+#[derive(Clone, Copy)]
+struct Geometry {
+    width: usize,
+    height: usize,
+    /// The grid step S in pixels; windows reach S either side of a centre.
+    step: f32,
+    /// `(m / S)^2`, the weight of squared pixel distance against squared colour distance.
+    spatial_weight: f32,
+}
+
 /// One assignment step: every centre claims the pixels of its `2S x 2S` window it is nearest to.
 fn assign(
     planes: &LabPlanes,
-    width: usize,
-    height: usize,
+    geometry: &Geometry,
     centres: &[Centre],
-    step: f32,
-    spatial_weight: f32,
     labels: &mut [u32],
     distance: &mut [f32],
 ) {
+    let Geometry {
+        width,
+        height,
+        step,
+        spatial_weight,
+    } = *geometry;
     distance.fill(f32::INFINITY);
     for (cluster, centre) in centres.iter().enumerate() {
         let x_start = (centre.x - step).max(0.0) as usize;
@@ -393,18 +411,14 @@ pub fn slic(image: &RgbImage, params: &SlicParams) -> Result<Superpixels, SlicEr
         // Pixels no window reaches keep this value; the connectivity pass folds them into a neighbour.
         let mut labels = vec![u32::MAX; width * height];
         let mut distance = vec![f32::INFINITY; width * height];
-        let spatial_weight = (params.compactness / grid.step).powi(2);
+        let geometry = Geometry {
+            width,
+            height,
+            step: grid.step,
+            spatial_weight: (params.compactness / grid.step).powi(2),
+        };
         for _ in 0..params.iterations {
-            assign(
-                &planes,
-                width,
-                height,
-                &centres,
-                grid.step,
-                spatial_weight,
-                &mut labels,
-                &mut distance,
-            );
+            assign(&planes, &geometry, &centres, &mut labels, &mut distance);
             update(&planes, width, &labels, &mut centres, &mut sums);
         }
         labels
@@ -508,7 +522,10 @@ mod tests {
         let image = two_halves(4, 3);
         let result = slic(&image, &SlicParams::new(12, 10.0, 10).unwrap()).unwrap();
         assert!(result.segment_count >= 1 && result.segment_count <= 12);
-        assert!(result.labels.iter().all(|&label| label < result.segment_count));
+        assert!(result
+            .labels
+            .iter()
+            .all(|&label| label < result.segment_count));
     }
 
     #[test]
