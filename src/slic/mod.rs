@@ -326,6 +326,8 @@ fn assign(
         spatial_weight,
     } = *geometry;
     distance.fill(f32::INFINITY);
+    // `dx^2 (m / S)^2` for each column of the current window, reused across centres.
+    let mut dx_weighted: Vec<f32> = Vec::with_capacity(2 * step as usize + 2);
     for (cluster, centre) in centres.iter().enumerate() {
         let x_start = (centre.x - step).max(0.0) as usize;
         let x_end = ((centre.x + step) as usize + 1).min(width);
@@ -334,34 +336,66 @@ fn assign(
         if x_start >= x_end {
             continue;
         }
+        dx_weighted.clear();
+        dx_weighted.extend((x_start..x_end).map(|x| {
+            let dx = x as f32 - centre.x;
+            dx * dx * spatial_weight
+        }));
         for y in y_start..y_end {
             let dy = y as f32 - centre.y;
-            let dy_weighted = dy * dy * spatial_weight;
-            let row = y * width;
-            let range = row + x_start..row + x_end;
-            let l_row = &planes.l[range.clone()];
-            let a_row = &planes.a[range.clone()];
-            let b_row = &planes.b[range.clone()];
-            let label_row = &mut labels[range.clone()];
-            let distance_row = &mut distance[range];
-            for (offset, ((((&l, &a), &b), label), best)) in l_row
-                .iter()
-                .zip(a_row)
-                .zip(b_row)
-                .zip(label_row.iter_mut())
-                .zip(distance_row.iter_mut())
-                .enumerate()
-            {
-                let dx = (x_start + offset) as f32 - centre.x;
-                let dl = l - centre.l;
-                let da = a - centre.a;
-                let db = b - centre.b;
-                let value = dl * dl + da * da + db * db + dx * dx * spatial_weight + dy_weighted;
-                if value < *best {
-                    *best = value;
-                    *label = cluster as u32;
-                }
-            }
+            let start = y * width + x_start;
+            let end = y * width + x_end;
+            let row = WindowRow {
+                colour: [centre.l, centre.a, centre.b],
+                dy_weighted: dy * dy * spatial_weight,
+                cluster: cluster as u32,
+                dx_weighted: &dx_weighted,
+            };
+            row.claim(
+                [
+                    &planes.l[start..end],
+                    &planes.a[start..end],
+                    &planes.b[start..end],
+                ],
+                &mut labels[start..end],
+                &mut distance[start..end],
+            );
+        }
+    }
+}
+
+/// One row of one centre's search window.
+struct WindowRow<'a> {
+    colour: [f32; 3],
+    /// `dy^2 (m / S)^2` for this row.
+    dy_weighted: f32,
+    cluster: u32,
+    /// `dx^2 (m / S)^2` for each column of the window.
+    dx_weighted: &'a [f32],
+}
+
+impl WindowRow<'_> {
+    /// Claims the pixels of the row that are nearer to this centre than to their current owner. Written as
+    /// one zipped, branch-free loop so the compiler emits vector instructions.
+    #[inline]
+    fn claim(&self, lab_rows: [&[f32]; 3], labels: &mut [u32], distance: &mut [f32]) {
+        let [l_row, a_row, b_row] = lab_rows;
+        let [centre_l, centre_a, centre_b] = self.colour;
+        for (((((&l, &a), &b), &dx_weighted), label), best) in l_row
+            .iter()
+            .zip(a_row)
+            .zip(b_row)
+            .zip(self.dx_weighted)
+            .zip(labels.iter_mut())
+            .zip(distance.iter_mut())
+        {
+            let dl = l - centre_l;
+            let da = a - centre_a;
+            let db = b - centre_b;
+            let value = dl * dl + da * da + db * db + dx_weighted + self.dy_weighted;
+            let closer = value < *best;
+            *best = if closer { value } else { *best };
+            *label = if closer { self.cluster } else { *label };
         }
     }
 }
@@ -375,14 +409,34 @@ fn update(
     sums: &mut [CentreSums],
 ) {
     sums.fill(CentreSums::default());
-    for (index, &label) in labels.iter().enumerate() {
-        if let Some(sum) = sums.get_mut(label as usize) {
-            sum.l += planes.l[index] as f64;
-            sum.a += planes.a[index] as f64;
-            sum.b += planes.b[index] as f64;
-            sum.x += (index % width) as f64;
-            sum.y += (index / width) as f64;
-            sum.count += 1;
+    for (y, label_row) in labels.chunks_exact(width).enumerate() {
+        let row = y * width;
+        // Sum runs of equal labels locally and flush once per run: runs are about S pixels long.
+        let mut run_start = 0;
+        while run_start < width {
+            let label = label_row[run_start];
+            let mut run_end = run_start + 1;
+            while run_end < width && label_row[run_end] == label {
+                run_end += 1;
+            }
+            if let Some(sum) = sums.get_mut(label as usize) {
+                let range = row + run_start..row + run_end;
+                sum.l += planes.l[range.clone()]
+                    .iter()
+                    .map(|&v| v as f64)
+                    .sum::<f64>();
+                sum.a += planes.a[range.clone()]
+                    .iter()
+                    .map(|&v| v as f64)
+                    .sum::<f64>();
+                sum.b += planes.b[range].iter().map(|&v| v as f64).sum::<f64>();
+                let run_length = (run_end - run_start) as f64;
+                // Sum of x over the run: length * (first + last) / 2.
+                sum.x += run_length * (run_start + run_end - 1) as f64 / 2.0;
+                sum.y += run_length * y as f64;
+                sum.count += (run_end - run_start) as u64;
+            }
+            run_start = run_end;
         }
     }
     for (centre, sum) in centres.iter_mut().zip(sums.iter()) {
