@@ -34,6 +34,7 @@ pub mod ids;
 pub mod language;
 pub mod raster;
 pub mod scene;
+pub mod slic;
 pub mod solver;
 pub mod taxonomy;
 pub mod unaries;
