@@ -119,3 +119,108 @@ pub fn coarse_level(
     }
     CoarseLevel { region_of, members }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::color::Lab;
+    use crate::scene::{AdjacencyEdge, BoundingBox};
+    use petgraph::graph::NodeIndex;
+    use proptest::prelude::*;
+
+    fn segment(id: usize, area: u32, lightness: f32) -> SegmentStats {
+        SegmentStats {
+            id: SegmentId(id as u32),
+            area,
+            centroid: (0.0, 0.0),
+            bbox: BoundingBox::default(),
+            mean_lab: Lab {
+                l: lightness,
+                a: 0.0,
+                b: 0.0,
+            },
+            std_lab: Lab::default(),
+            mean_depth_mm: None,
+            depth_std_mm: None,
+            depth_pixels: 0,
+        }
+    }
+
+    /// A `columns x rows` grid graph of segments with the given lightness values.
+    fn grid(columns: usize, rows: usize, lightness: &[f32]) -> (AdjacencyGraph, Vec<SegmentStats>) {
+        let stats: Vec<SegmentStats> = (0..columns * rows)
+            .map(|id| {
+                segment(
+                    id,
+                    50 + (id as u32 * 37) % 100,
+                    lightness[id % lightness.len()],
+                )
+            })
+            .collect();
+        let mut graph = AdjacencyGraph::default();
+        for stat in &stats {
+            graph.add_node(stat.id);
+        }
+        let mut join = |a: usize, b: usize| {
+            graph.add_edge(
+                NodeIndex::new(a),
+                NodeIndex::new(b),
+                AdjacencyEdge {
+                    boundary_length: 1,
+                    colour_contrast: stats[a].mean_lab.delta_e(stats[b].mean_lab),
+                },
+            );
+        };
+        for row in 0..rows {
+            for column in 0..columns {
+                let id = row * columns + column;
+                if column + 1 < columns {
+                    join(id, id + 1);
+                }
+                if row + 1 < rows {
+                    join(id, id + columns);
+                }
+            }
+        }
+        (graph, stats)
+    }
+
+    #[test]
+    fn two_flat_halves_become_two_regions() {
+        // Left three columns dark, right three bright.
+        let lightness: Vec<f32> = (0..36)
+            .map(|id| if id % 6 < 3 { 20.0 } else { 80.0 })
+            .collect();
+        let (graph, stats) = grid(6, 6, &lightness);
+        let coarse = coarse_level(&graph, &stats, 2);
+        assert_eq!(coarse.members.len(), 2);
+        for (id, region) in coarse.region_of.iter().enumerate() {
+            assert_eq!(region.index(), usize::from(id % 6 >= 3));
+        }
+    }
+
+    proptest! {
+        #[test]
+        fn every_segment_is_in_exactly_one_region_and_the_target_holds(
+            columns in 1usize..8,
+            rows in 1usize..8,
+            lightness in proptest::collection::vec(0.0f32..100.0, 1..20),
+            target in 1usize..20,
+        ) {
+            let (graph, stats) = grid(columns, rows, &lightness);
+            let coarse = coarse_level(&graph, &stats, target);
+            prop_assert_eq!(coarse.region_of.len(), stats.len());
+            prop_assert!(coarse.members.len() <= target.max(1));
+            let mut seen = vec![0; stats.len()];
+            for (region, members) in coarse.members.iter().enumerate() {
+                prop_assert!(!members.is_empty());
+                prop_assert!(members.windows(2).all(|pair| pair[0] < pair[1]));
+                for member in members {
+                    seen[member.index()] += 1;
+                    prop_assert_eq!(coarse.region_of[member.index()].index(), region);
+                }
+            }
+            prop_assert!(seen.iter().all(|&times| times == 1));
+        }
+    }
+}
