@@ -29,6 +29,7 @@
 //! ```
 
 pub mod color;
+pub mod features;
 pub mod geometry;
 pub mod ids;
 pub mod language;
