@@ -29,10 +29,13 @@
 //! ```
 
 pub mod color;
+pub mod features;
+pub mod geometry;
 pub mod ids;
 pub mod language;
 pub mod raster;
 pub mod scene;
+pub mod slic;
 pub mod solver;
 pub mod taxonomy;
 pub mod unaries;
