@@ -11,6 +11,7 @@ use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
 use sayso::unaries::mlp::seeded_random_mlp;
 use sayso::unaries::onnx_writer::encode_model;
 use sayso::unaries::rng::SplitMix64;
+use sayso::unaries::{current_feature_layout, Classifier};
 
 /// Shape of the fixture network: features, hidden width, classes (the taxonomy's).
 pub const FIXTURE_FEATURES: usize = 32;
@@ -52,5 +53,26 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         encode_npy_f32(&[FIXTURE_SEGMENTS, FIXTURE_FEATURES], &features),
     )?;
     println!("wrote fixture_mlp.onnx and fixture_mlp_input.npy");
+    // The committed default model, when present: 400 rows of features spread around its own normalisation.
+    let default_model = std::path::Path::new("models/segment_classifier.onnx");
+    if default_model.is_file() {
+        let classifier = Classifier::load(default_model, &taxonomy, current_feature_layout())?;
+        let contract = classifier.contract();
+        let width = contract.feature_means.len();
+        let mut generator = SplitMix64::new(78);
+        let features: Vec<f32> = (0..FIXTURE_SEGMENTS * width)
+            .map(|index| {
+                let column = index % width;
+                (contract.feature_means[column] as f64
+                    + generator.next_normal() * contract.feature_stds[column] as f64)
+                    as f32
+            })
+            .collect();
+        std::fs::write(
+            directory.join("default_model_input.npy"),
+            encode_npy_f32(&[FIXTURE_SEGMENTS, width], &features),
+        )?;
+        println!("wrote default_model_input.npy");
+    }
     Ok(())
 }

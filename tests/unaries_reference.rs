@@ -203,6 +203,45 @@ fn tract_classifier_matches_onnxruntime() {
     assert!(worst < 1e-5, "largest difference from onnxruntime: {worst}");
 }
 
+/// Reference: onnxruntime (PyPI) running the committed default model on a fixed feature matrix
+/// (make_onnx_reference.py); tract must agree to 1e-5.
+#[test]
+fn default_model_matches_onnxruntime() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let taxonomy = Taxonomy::embedded();
+    let classifier = Classifier::load(
+        &root.join("models/segment_classifier.onnx"),
+        &taxonomy,
+        sayso::unaries::current_feature_layout(),
+    )
+    .unwrap();
+    let features = read_npy(&fixture("default_model_input.npy"))
+        .unwrap()
+        .values
+        .mapv(|v| v as f32)
+        .into_dimensionality::<Ix2>()
+        .unwrap();
+    let theirs = read_npy(&fixture("default_model_onnxruntime.npy"))
+        .unwrap()
+        .values
+        .into_dimensionality::<Ix2>()
+        .unwrap();
+    let ours = classifier.classify(features.view()).unwrap();
+    assert_eq!(ours.shape(), theirs.shape());
+    // Agreement to 1e-5, relative to the value once it exceeds 1 in magnitude: a log-probability of -300
+    // has a float32 spacing of 3e-5, so an absolute 1e-5 would ask for more than float32 holds.
+    let worst = ours
+        .iter()
+        .zip(theirs.iter())
+        .map(|(a, b)| (*a as f64 - b).abs() / b.abs().max(1.0))
+        .fold(0.0, f64::max);
+    println!("default model, largest scaled difference from onnxruntime: {worst:e}");
+    assert!(
+        worst < 1e-5,
+        "largest scaled difference from onnxruntime: {worst}"
+    );
+}
+
 /// Reference: onnxruntime running a 1x1-conv + softmax per-pixel model built with the `onnx` package, on
 /// the fixture image preprocessed as its TOML config declares (make_onnx_reference.py).
 #[test]

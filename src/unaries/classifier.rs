@@ -286,6 +286,30 @@ mod tests {
     }
 
     #[test]
+    fn far_pushed_down_classes_stay_finite() {
+        // A class whose logit sits 500 below the rest must come out as a large finite negative number.
+        let taxonomy = Taxonomy::embedded();
+        let mut mlp = seeded_random_mlp(9, &[5, taxonomy.class_count()]);
+        if let Some(layer) = mlp.layers.last_mut() {
+            layer.bias[3] = -500.0;
+        }
+        mlp.temperature = 0.5;
+        let bytes = encode_model(&mlp, &contract_for(&taxonomy, &mlp)).unwrap();
+        let layout = FeatureLayout {
+            version: 3,
+            count: 5,
+        };
+        let classifier = Classifier::from_bytes(&bytes, "pushed", &taxonomy, layout).unwrap();
+        let features = Array2::from_shape_fn((4, 5), |(r, c)| mlp.feature_means[c] + r as f32);
+        let ours = classifier.classify(features.view()).unwrap();
+        let reference = mlp.log_probabilities(features.view());
+        for (a, b) in ours.iter().zip(&reference) {
+            assert!((a - b).abs() <= 1e-4 * b.abs().max(1.0), "{a} vs {b}");
+        }
+        assert!(ours[[0, 3]] < -900.0);
+    }
+
+    #[test]
     fn corrupt_bytes_and_contract_mismatches_are_typed_errors() {
         let taxonomy = Taxonomy::embedded();
         let layout = FeatureLayout {

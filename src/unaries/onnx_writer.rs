@@ -2,7 +2,7 @@
 //!
 //! Owns: building the ONNX `ModelProto` (the protobuf types tract-onnx exposes, encoded with prost) for an
 //! `Mlp`: `Sub(mean) -> Div(std) -> [MatMul -> Add -> Relu]* -> MatMul -> Add -> Div(temperature) ->
-//! LogSoftmax`. Normalisation and temperature are baked into the graph and also stored as metadata.
+//! log-softmax` (written out with ReduceMax, Exp, ReduceSum and Log so it never underflows). Normalisation and temperature are baked into the graph and also stored as metadata.
 //! Must not: run models or train; it only serialises.
 
 use prost::Message;
@@ -17,7 +17,7 @@ pub const INPUT_NAME: &str = "segment_features";
 pub const OUTPUT_NAME: &str = "class_log_probabilities";
 /// The symbolic batch dimension's name.
 pub const BATCH_DIMENSION: &str = "segments";
-/// The ONNX operator set the graph uses (opset 13: `LogSoftmax` over one axis).
+/// The ONNX operator set the graph uses (opset 13: `ReduceSum` takes its axes as an input).
 pub const OPSET_VERSION: i64 = 13;
 /// The ONNX IR version written (IR 8 pairs with opset 13 and is read by tract and onnxruntime).
 pub const IR_VERSION: i64 = 8;
@@ -179,19 +179,62 @@ pub fn build_model_proto(
         &[&current, "temperature"],
         "calibrated_logits",
     ));
-    let mut softmax = node(
-        "LogSoftmax",
-        "log_softmax",
-        &["calibrated_logits"],
-        OUTPUT_NAME,
-    );
-    softmax.attribute.push(pb::AttributeProto {
-        name: "axis".to_string(),
+    // Log-softmax spelled out as x - max - ln(sum(exp(x - max))), so every output stays finite even for
+    // classes the network has pushed far down (a fused LogSoftmax can underflow to -inf there).
+    let int_attribute = |name: &str, value: i64| pb::AttributeProto {
+        name: name.to_string(),
         r#type: pb::attribute_proto::AttributeType::Int as i32,
-        i: 1,
+        i: value,
+        ..Default::default()
+    };
+    let mut row_max = node(
+        "ReduceMax",
+        "row_max",
+        &["calibrated_logits"],
+        "row_max_value",
+    );
+    row_max.attribute.push(pb::AttributeProto {
+        name: "axes".to_string(),
+        r#type: pb::attribute_proto::AttributeType::Ints as i32,
+        ints: vec![1],
         ..Default::default()
     });
-    nodes.push(softmax);
+    row_max.attribute.push(int_attribute("keepdims", 1));
+    nodes.push(row_max);
+    nodes.push(node(
+        "Sub",
+        "shift",
+        &["calibrated_logits", "row_max_value"],
+        "shifted_logits",
+    ));
+    nodes.push(node(
+        "Exp",
+        "exponentiate",
+        &["shifted_logits"],
+        "shifted_exponentials",
+    ));
+    initializers.push(pb::TensorProto {
+        name: "class_axis".to_string(),
+        dims: vec![1],
+        data_type: pb::tensor_proto::DataType::Int64 as i32,
+        int64_data: vec![1],
+        ..Default::default()
+    });
+    let mut row_sum = node(
+        "ReduceSum",
+        "row_sum",
+        &["shifted_exponentials", "class_axis"],
+        "row_sum_value",
+    );
+    row_sum.attribute.push(int_attribute("keepdims", 1));
+    nodes.push(row_sum);
+    nodes.push(node("Log", "log_sum", &["row_sum_value"], "log_normaliser"));
+    nodes.push(node(
+        "Sub",
+        "normalise_log",
+        &["shifted_logits", "log_normaliser"],
+        OUTPUT_NAME,
+    ));
     let mut stored = contract.clone();
     stored.feature_means = mlp.feature_means.to_vec();
     stored.feature_stds = mlp.feature_stds.to_vec();
