@@ -393,9 +393,10 @@ impl WindowRow<'_> {
             let da = a - centre_a;
             let db = b - centre_b;
             let value = dl * dl + da * da + db * db + dx_weighted + self.dy_weighted;
-            let closer = value < *best;
-            *best = if closer { value } else { *best };
-            *label = if closer { self.cluster } else { *label };
+            // Branch-free select: all ones where this centre is closer, all zeros elsewhere.
+            let closer_mask = 0u32.wrapping_sub(u32::from(value < *best));
+            *best = value.min(*best);
+            *label = (*label & !closer_mask) | (self.cluster & closer_mask);
         }
     }
 }
