@@ -29,9 +29,12 @@
 //! ```
 
 pub mod color;
+pub mod demo;
 pub mod ids;
 pub mod language;
+pub mod overlay;
 pub mod raster;
+pub mod render;
 pub mod scene;
 pub mod solver;
 pub mod taxonomy;
