@@ -29,11 +29,14 @@
 //! ```
 
 pub mod color;
+pub mod demo;
 pub mod features;
 pub mod geometry;
 pub mod ids;
 pub mod language;
+pub mod overlay;
 pub mod raster;
+pub mod render;
 pub mod scene;
 pub mod slic;
 pub mod solver;

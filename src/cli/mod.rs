@@ -6,6 +6,8 @@
 use clap::{Parser, Subcommand};
 
 mod classes;
+mod demo;
+mod render;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -22,11 +24,17 @@ pub struct Arguments {
 pub enum Command {
     /// Print the class taxonomy.
     Classes(classes::ClassesArgs),
+    /// Draw what the robot believes about a demo scene (overlay picture and summary).
+    Demo(demo::DemoArgs),
+    /// Render scenes of the invented Juniper Lane flat with ground truth.
+    Render(render::RenderArgs),
 }
 
 /// Runs one subcommand.
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Demo(args) => demo::run(args),
+        Command::Render(args) => render::run(args),
     }
 }
