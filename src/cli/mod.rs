@@ -8,6 +8,8 @@ use clap::{Parser, Subcommand};
 mod classes;
 mod demo;
 mod render;
+mod train;
+mod unaries;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -28,6 +30,10 @@ pub enum Command {
     Demo(demo::DemoArgs),
     /// Render scenes of the invented Juniper Lane flat with ground truth.
     Render(render::RenderArgs),
+    /// Train the built-in segment classifier and write its ONNX file and model card.
+    Train(train::TrainArgs),
+    /// Turn per-pixel scores, a user ONNX model or a label map into per-segment unaries.
+    Unaries(unaries::UnariesArgs),
 }
 
 /// Runs one subcommand.
@@ -36,5 +42,7 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
         Command::Classes(args) => classes::run(args),
         Command::Demo(args) => demo::run(args),
         Command::Render(args) => render::run(args),
+        Command::Train(args) => train::run(args),
+        Command::Unaries(args) => unaries::run(args),
     }
 }
