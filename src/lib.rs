@@ -29,10 +29,14 @@
 //! ```
 
 pub mod color;
+pub mod energy;
+pub mod grounding;
+pub mod hypotheses;
 pub mod ids;
 pub mod language;
 pub mod raster;
 pub mod scene;
+pub mod scenegraph;
 pub mod solver;
 pub mod taxonomy;
 pub mod unaries;
