@@ -242,7 +242,7 @@ pub fn in_region(footprint: &Footprint, region: ImageRegion, width: u32, height:
         ImageRegion::Centre => {
             (1.0 / 3.0..=2.0 / 3.0).contains(&x) && (1.0 / 3.0..=2.0 / 3.0).contains(&y)
         }
-        ImageRegion::Corner => (x < 0.25 || x > 0.75) && (y < 0.25 || y > 0.75),
+        ImageRegion::Corner => !(0.25..=0.75).contains(&x) && !(0.25..=0.75).contains(&y),
         // Far from the camera: higher in the picture, or deeper than 3 m when depth exists.
         ImageRegion::Back => match footprint.depth_mm {
             Some(depth) => depth > 3000.0,

@@ -10,7 +10,7 @@ use super::predicates::{holds, relation_words};
 use super::{in_region, SceneView};
 use crate::ids::HypothesisId;
 use crate::language::constraint::{ImageRegion, Referent, Relation};
-use crate::taxonomy::Taxonomy;
+use crate::taxonomy::{ClassGroup, Taxonomy};
 
 /// A question to send back instead of guessing, with the objects it distinguishes.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -97,6 +97,10 @@ fn describe_candidate(view: &SceneView, hypothesis: usize, candidates: &[usize])
                 && !candidates.contains(&other)
                 && view.accepted.get(other).copied().unwrap_or(false)
                 && view.hypotheses[other].class != class
+                && view
+                    .taxonomy
+                    .class(view.hypotheses[other].class)
+                    .is_some_and(|info| info.group != ClassGroup::Structure)
         })
         .map(|other| {
             let footprint = view.footprint(other);

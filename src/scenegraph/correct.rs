@@ -66,6 +66,10 @@ pub struct Correction {
     pub solution: JointSolution,
     /// The referent a following "it" means.
     pub last_referent: Option<Target>,
+    /// Every constraint in force after this turn (earlier turns first), grounded.
+    pub grounded: Vec<GroundedConstraint>,
+    /// Span and gloss of every constraint in force, by the index causes and unmet entries use.
+    pub constraint_labels: ConstraintLabels,
 }
 
 /// The previous state re-indexed onto a new hypothesis list (matching by id).
@@ -100,12 +104,17 @@ fn carry_state(
 pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionError> {
     let scene = request.scene;
     let taxonomy = request.taxonomy;
-    let hypotheses = build_hypotheses(
-        scene,
-        request.unaries,
-        request.detections,
-        request.proposals,
-    )?;
+    // A later turn keeps the earlier turn's hypothesis list (the same scene gives the same list, plus any
+    // hypotheses earlier relabels added), so the constraints still in force keep pointing at the right ones.
+    let hypotheses = match request.previous {
+        Some(previous) => previous.hypotheses.clone(),
+        None => build_hypotheses(
+            scene,
+            request.unaries,
+            request.detections,
+            request.proposals,
+        )?,
+    };
     // The "before": the previous turn, or the scene solved with no constraints.
     let (before_state, before_hypotheses, warm) = match request.previous {
         Some(previous) => {
@@ -143,13 +152,28 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         class_count: request.unaries.class_count(),
     };
     let grounding = ground(request.constraints, &view, request.context);
-    let labels: ConstraintLabels = request
-        .constraints
-        .iter()
-        .map(|c| (c.span, c.gloss.clone()))
-        .collect();
+    // Earlier turns' constraints stay in force; this turn's are numbered after them.
+    let (mut in_force, mut labels): (Vec<GroundedConstraint>, ConstraintLabels) =
+        match request.previous {
+            Some(previous) => (
+                previous.grounded.clone(),
+                previous.constraint_labels.clone(),
+            ),
+            None => (Vec::new(), Vec::new()),
+        };
+    let offset = labels.len();
+    labels.extend(
+        request
+            .constraints
+            .iter()
+            .map(|c| (c.span, c.gloss.clone())),
+    );
+    in_force.extend(grounding.constraints.iter().cloned().map(|mut grounded| {
+        grounded.constraint += offset;
+        grounded
+    }));
 
-    let built = build_energy(&energy_inputs(request, &hypotheses, &grounding.constraints))?;
+    let built = build_energy(&energy_inputs(request, &hypotheses, &in_force))?;
     let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
     let mut changes = list_changes(
         &built.energy,
@@ -161,8 +185,39 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         &built.hypotheses,
     );
     let mut energy = built.energy.clone();
+    let mut held_sources: Vec<usize> = Vec::new();
     if !request.confirm_safety && changes.iter().any(|c| c.status == ChangeStatus::Pending) {
-        // Hold the safety-critical parts where they were, and solve again around them.
+        // Hold the safety-critical parts where they were, and solve again around them without the
+        // constraints that asked for the held changes (they wait for confirmation, reported as pending).
+        held_sources = changes
+            .iter()
+            .filter(|c| c.status == ChangeStatus::Pending)
+            .flat_map(|c| c.causes.iter().map(|cause| cause.constraint))
+            .collect();
+        held_sources.sort_unstable();
+        held_sources.dedup();
+        let held =
+            |source: Option<usize>| source.is_some_and(|s| held_sources.binary_search(&s).is_ok());
+        for factor in &mut energy.count_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
+        for factor in &mut energy.absent_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
+        for factor in &mut energy.tuple_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
+        for factor in &mut energy.unary_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
         for change in changes.iter().filter(|c| c.status == ChangeStatus::Pending) {
             match change.kind {
                 ChangeKind::SegmentRelabelled { segment, from, .. } => {
@@ -218,7 +273,8 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     }
 
     let mut unmet = unmet_constraints(&energy, taxonomy, &labels, &solution.state);
-    for grounded in &grounding.constraints {
+    unmet.retain(|u| held_sources.binary_search(&u.constraint).is_err());
+    for grounded in &in_force {
         if let GroundedKind::Room { room } = grounded.kind {
             if solution.state.room != room.0
                 && !unmet.iter().any(|u| u.constraint == grounded.constraint)
@@ -264,6 +320,8 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         hypotheses: built.hypotheses,
         solution,
         last_referent: grounding.last_referent,
+        grounded: in_force,
+        constraint_labels: labels,
     })
 }
 

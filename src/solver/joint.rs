@@ -196,6 +196,22 @@ fn keep_better(best: &mut Candidate, candidate: Candidate) {
     }
 }
 
+/// How many distinct states are kept for polishing.
+const POOL_SIZE: usize = 6;
+
+/// Keeps the `POOL_SIZE` lowest-energy distinct states.
+fn remember(pool: &mut Vec<Candidate>, candidate: &Candidate) {
+    if pool.iter().any(|kept| kept.state == candidate.state) {
+        return;
+    }
+    pool.push(Candidate {
+        state: candidate.state.clone(),
+        energy: candidate.energy,
+    });
+    pool.sort_by(|a, b| a.energy.total_cmp(&b.energy));
+    pool.truncate(POOL_SIZE);
+}
+
 fn argmin_labels(unary: &[f64], label_count: usize) -> Vec<u16> {
     unary
         .chunks(label_count)
@@ -324,10 +340,9 @@ fn subgradient_step(
             norm += g * g;
         }
     }
-    for s in 0..energy.fine_count {
+    for (s, &label) in labels.iter().enumerate().take(energy.fine_count) {
         for c in 0..label_count {
-            let g =
-                (labels[s] as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
+            let g = (label as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
             if g > 0.0 || multipliers.presence[s * label_count + c] > 0.0 {
                 norm += g * g;
             }
@@ -344,10 +359,9 @@ fn subgradient_step(
             multipliers.agreement[h][m] += step * g;
         }
     }
-    for s in 0..energy.fine_count {
+    for (s, &label) in labels.iter().enumerate().take(energy.fine_count) {
         for c in 0..label_count {
-            let g =
-                (labels[s] as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
+            let g = (label as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
             let value = &mut multipliers.presence[s * label_count + c];
             *value = (*value + step * g).max(0.0);
         }
@@ -355,18 +369,79 @@ fn subgradient_step(
     true
 }
 
-/// Single-node moves scored with the true energy, until none improves (small problems only).
+/// Moves scored with the true energy, until none improves (small problems only): one node to a label, both
+/// ends of an edge to a label, and a coarse region node with all its linked nodes to a label.
 fn polish(context: &Context, best: &mut Candidate) {
     let energy = context.energy;
+    let mut groups: Vec<Vec<usize>> = (0..energy.node_count).map(|node| vec![node]).collect();
+    for &(a, b, _) in &energy.edges {
+        groups.push(vec![a as usize, b as usize]);
+    }
+    let mut linked: Vec<Vec<usize>> = vec![Vec::new(); energy.node_count];
+    for &(a, b, _) in &energy.edges {
+        if (b as usize) >= energy.fine_count {
+            linked[b as usize].push(a as usize);
+        }
+        if (a as usize) >= energy.fine_count {
+            linked[a as usize].push(b as usize);
+        }
+    }
+    for hypothesis in &energy.hypotheses {
+        groups.push(hypothesis.members.iter().map(|&s| s as usize).collect());
+    }
+    for (node, members) in linked.into_iter().enumerate() {
+        if node >= energy.fine_count && !members.is_empty() {
+            let mut group = members;
+            group.push(node);
+            groups.push(group);
+        }
+    }
     for _ in 0..10 {
         let mut improved = false;
-        for node in 0..energy.node_count {
-            for label in 0..energy.label_count as u16 {
-                if best.state.labels[node] == label {
+        // Class-wide moves: every node of class `from` to `to`, or each to its best other label.
+        let label_count = energy.label_count;
+        for from in 0..label_count as u16 {
+            if !best.state.labels.contains(&from) {
+                continue;
+            }
+            for to in 0..=label_count as u16 {
+                if to == from {
                     continue;
                 }
                 let mut labels = best.state.labels.clone();
-                labels[node] = label;
+                for (node, label) in labels.iter_mut().enumerate() {
+                    if *label != from {
+                        continue;
+                    }
+                    *label = if (to as usize) < label_count {
+                        to
+                    } else {
+                        let row = &context.unary[node * label_count..(node + 1) * label_count];
+                        let mut pick = (if from == 0 { 1 } else { 0 }, f64::INFINITY);
+                        for (candidate, &value) in row.iter().enumerate() {
+                            if candidate != from as usize && value < pick.1 {
+                                pick = (candidate, value);
+                            }
+                        }
+                        pick.0 as u16
+                    };
+                }
+                let candidate = context.complete(labels);
+                if candidate.energy < best.energy - 1e-12 {
+                    *best = candidate;
+                    improved = true;
+                }
+            }
+        }
+        for group in &groups {
+            for label in 0..energy.label_count as u16 {
+                if group.iter().all(|&node| best.state.labels[node] == label) {
+                    continue;
+                }
+                let mut labels = best.state.labels.clone();
+                for &node in group {
+                    labels[node] = label;
+                }
                 let candidate = context.complete(labels);
                 if candidate.energy < best.energy - 1e-12 {
                     *best = candidate;
@@ -382,7 +457,28 @@ fn polish(context: &Context, best: &mut Candidate) {
 
 /// Pulls every member of each hypothesis to its class in turn, and keeps any state that is better.
 fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
+    let label_count = context.energy.label_count;
     for hypothesis in &context.energy.hypotheses {
+        // Members away from the class: each to its best other label.
+        let mut labels = best.state.labels.clone();
+        for &s in &hypothesis.members {
+            let row = &context.unary[s as usize * label_count..(s as usize + 1) * label_count];
+            let mut pick = None;
+            for (label, &value) in row.iter().enumerate() {
+                if label != hypothesis.class as usize
+                    && pick.is_none_or(|(_, best): (usize, f64)| value < best)
+                {
+                    pick = Some((label, value));
+                }
+            }
+            if let Some((label, _)) = pick {
+                labels[s as usize] = label as u16;
+            }
+        }
+        if labels != best.state.labels {
+            let candidate = context.complete(labels);
+            keep_better(best, candidate);
+        }
         let mut labels = best.state.labels.clone();
         for &s in &hypothesis.members {
             labels[s as usize] = hypothesis.class;
@@ -451,6 +547,8 @@ pub fn solve_joint(
     let mut iterations = 0;
     let mut segment_start = start_labels;
     let mut best_multipliers = multipliers.clone();
+    let mut pool: Vec<Candidate> = Vec::new();
+    remember(&mut pool, &best);
     while iterations < options.max_iterations {
         iterations += 1;
         let dual = dual_value(&context, &multipliers, &segment_start);
@@ -468,6 +566,8 @@ pub fn solve_joint(
         }
         let candidate = context.complete(dual.segment_labels.clone());
         let alternated = context.relabel_given_hypotheses(&candidate.state);
+        remember(&mut pool, &candidate);
+        remember(&mut pool, &alternated);
         keep_better(&mut best, candidate);
         keep_better(&mut best, alternated);
         if gap(best.energy, lower_bound) <= options.gap_tolerance || scale < 1e-4 {
@@ -482,7 +582,19 @@ pub fn solve_joint(
     if energy.node_count * label_count <= options.polish_budget
         && gap(best.energy, lower_bound) > options.gap_tolerance
     {
-        polish(&context, &mut best);
+        // Polish the best few distinct states found, not only the best one, and starts from each
+        // constant labelling.
+        remember(&mut pool, &best);
+        for label in 0..label_count as u16 {
+            let constant = context.complete(vec![label; energy.node_count]);
+            let settled = context.relabel_given_hypotheses(&constant.state);
+            remember(&mut pool, &settled);
+        }
+        for mut start in pool {
+            try_hypothesis_moves(&context, &mut start);
+            polish(&context, &mut start);
+            keep_better(&mut best, start);
+        }
     }
     let presence = energy.presence(&best.state);
     // Rounding in the bound's sums must not let it pass the energy of a state we hold.

@@ -103,13 +103,13 @@ fn best_for_class(
             cost += factor.weight * count_violation(factor.count, n) as f64;
         }
         let supported = n > 0 || inputs.segment_support[class];
-        let (presence_cost, present) = if supported {
-            (present_cost, true)
-        } else if inputs.relaxed_presence && present_cost < 0.0 {
-            (present_cost, true)
-        } else {
-            (0.0, false)
-        };
+        // Relaxed: presence may also be on without support, when that is cheaper.
+        let (presence_cost, present) =
+            if supported || (inputs.relaxed_presence && present_cost < 0.0) {
+                (present_cost, true)
+            } else {
+                (0.0, false)
+            };
         cost += presence_cost;
         if cost < best.cost {
             best = ClassChoice {

@@ -5,14 +5,14 @@
 //! `potts_lower_bound`.
 //! Must not: know about hypotheses, rooms or constraints; it sees a plain `LabellingProblem`.
 //!
-//! Until the shared alpha-expansion lands, `label_segments` runs iterated conditional modes (each node in
-//! turn takes its best label given its neighbours, until nothing changes); the joint solver never relies on
-//! it being optimal, since it re-evaluates every candidate with the true energy and bounds separately.
+//! Until the shared alpha-expansion (`crate::solver::expansion`) lands, `label_segments` runs a small private
+//! alpha-expansion over a plain Dinic max-flow, rebuilt per move; the joint solver never relies on it being
+//! optimal, since it re-evaluates every candidate with the true energy and bounds separately.
 
 use crate::solver::labelling::{LabellingProblem, LabellingResult};
 
-/// The most sweeps of iterated conditional modes.
-const MAX_SWEEPS: u32 = 30;
+/// The most sweeps over all labels.
+const MAX_SWEEPS: u32 = 8;
 
 /// Neighbour lists of a problem, built once per joint solve.
 pub(crate) struct Neighbours {
@@ -42,15 +42,168 @@ impl Neighbours {
         Neighbours { offsets, entries }
     }
 
+    #[allow(dead_code)]
     fn of(&self, node: usize) -> &[(u32, f32)] {
         &self.entries[self.offsets[node]..self.offsets[node + 1]]
     }
 }
 
-/// Labels the problem starting from `initial` (one label per node; out-of-range labels are replaced).
+/// A small Dinic max-flow over `f64` capacities, rebuilt for each expansion move.
+struct FlowGraph {
+    heads: Vec<Vec<usize>>,
+    to: Vec<usize>,
+    capacity: Vec<f64>,
+}
+
+impl FlowGraph {
+    fn new(node_count: usize) -> FlowGraph {
+        FlowGraph {
+            heads: vec![Vec::new(); node_count],
+            to: Vec::new(),
+            capacity: Vec::new(),
+        }
+    }
+
+    fn add_edge(&mut self, a: usize, b: usize, forward: f64, backward: f64) {
+        self.heads[a].push(self.to.len());
+        self.to.push(b);
+        self.capacity.push(forward);
+        self.heads[b].push(self.to.len());
+        self.to.push(a);
+        self.capacity.push(backward);
+    }
+
+    /// Runs max-flow; afterwards `source_side()` gives the minimum cut.
+    fn max_flow(&mut self, source: usize, sink: usize) {
+        let node_count = self.heads.len();
+        loop {
+            let mut level = vec![usize::MAX; node_count];
+            level[source] = 0;
+            let mut queue = std::collections::VecDeque::from([source]);
+            while let Some(node) = queue.pop_front() {
+                for &edge in &self.heads[node] {
+                    let next = self.to[edge];
+                    if self.capacity[edge] > EPSILON && level[next] == usize::MAX {
+                        level[next] = level[node] + 1;
+                        queue.push_back(next);
+                    }
+                }
+            }
+            if level[sink] == usize::MAX {
+                return;
+            }
+            let mut cursor = vec![0usize; node_count];
+            while self.augment(source, sink, f64::INFINITY, &level, &mut cursor) > EPSILON {}
+        }
+    }
+
+    fn augment(
+        &mut self,
+        node: usize,
+        sink: usize,
+        limit: f64,
+        level: &[usize],
+        cursor: &mut [usize],
+    ) -> f64 {
+        if node == sink {
+            return limit;
+        }
+        while cursor[node] < self.heads[node].len() {
+            let edge = self.heads[node][cursor[node]];
+            let next = self.to[edge];
+            if self.capacity[edge] > EPSILON && level[next] == level[node] + 1 {
+                let pushed =
+                    self.augment(next, sink, limit.min(self.capacity[edge]), level, cursor);
+                if pushed > EPSILON {
+                    self.capacity[edge] -= pushed;
+                    self.capacity[edge ^ 1] += pushed;
+                    return pushed;
+                }
+            }
+            cursor[node] += 1;
+        }
+        0.0
+    }
+
+    fn source_side(&self, source: usize) -> Vec<bool> {
+        let mut seen = vec![false; self.heads.len()];
+        seen[source] = true;
+        let mut stack = vec![source];
+        while let Some(node) = stack.pop() {
+            for &edge in &self.heads[node] {
+                let next = self.to[edge];
+                if self.capacity[edge] > EPSILON && !seen[next] {
+                    seen[next] = true;
+                    stack.push(next);
+                }
+            }
+        }
+        seen
+    }
+}
+
+const EPSILON: f64 = 1e-9;
+
+/// One expansion move: every node may keep its label or switch to `alpha`; solved exactly by a cut.
+fn expansion_move(problem: &LabellingProblem, labels: &mut [u16], alpha: u16) -> bool {
+    let node_count = problem.node_count;
+    let label_count = problem.label_count;
+    let (source, sink) = (node_count, node_count + 1);
+    let mut graph = FlowGraph::new(node_count + 2);
+    // x = 1 (sink side) means "switch to alpha". Cutting source->p costs cost1, p->sink costs cost0.
+    let mut cost0 = vec![0.0f64; node_count];
+    let mut cost1 = vec![0.0f64; node_count];
+    for node in 0..node_count {
+        cost0[node] = problem.unary[node * label_count + labels[node] as usize] as f64;
+        cost1[node] = problem.unary[node * label_count + alpha as usize] as f64;
+    }
+    for &(a, b, weight) in &problem.edges {
+        let (a, b, weight) = (a as usize, b as usize, weight as f64);
+        let differ = |x: u16, y: u16| if x != y { weight } else { 0.0 };
+        let keep_keep = differ(labels[a], labels[b]);
+        let keep_switch = differ(labels[a], alpha);
+        let switch_keep = differ(alpha, labels[b]);
+        // E = A + (C - A) x_a + (D - C) x_b + (B + C - A - D)(1 - x_a) x_b with D = 0.
+        cost1[a] += switch_keep - keep_keep;
+        cost1[b] -= switch_keep;
+        let pairwise = keep_switch + switch_keep - keep_keep;
+        if pairwise > 0.0 {
+            graph.add_edge(a, b, pairwise, 0.0);
+        }
+    }
+    for node in 0..node_count {
+        let (zero, one) = (cost0[node], cost1[node]);
+        let floor = zero.min(one);
+        if one - floor > 0.0 {
+            graph.add_edge(source, node, one - floor, 0.0);
+        }
+        if zero - floor > 0.0 {
+            graph.add_edge(node, sink, zero - floor, 0.0);
+        }
+    }
+    graph.max_flow(source, sink);
+    let source_side = graph.source_side(source);
+    let before = problem.energy(labels);
+    let mut proposal = labels.to_vec();
+    for node in 0..node_count {
+        if !source_side[node] {
+            proposal[node] = alpha;
+        }
+    }
+    let after = problem.energy(&proposal);
+    if after < before - 1e-7 {
+        labels.copy_from_slice(&proposal);
+        true
+    } else {
+        false
+    }
+}
+
+/// Labels the problem starting from `initial` (one label per node; out-of-range labels are replaced) by
+/// alpha-expansion sweeps.
 pub(crate) fn label_segments(
     problem: &LabellingProblem,
-    neighbours: &Neighbours,
+    _neighbours: &Neighbours,
     initial: &[u16],
 ) -> LabellingResult {
     let label_count = problem.label_count;
@@ -61,26 +214,11 @@ pub(crate) fn label_segments(
         })
         .collect();
     let mut sweeps = 0;
-    let mut costs = vec![0f32; label_count];
     while sweeps < MAX_SWEEPS {
         sweeps += 1;
         let mut changed = false;
-        for node in 0..problem.node_count {
-            costs.copy_from_slice(&problem.unary[node * label_count..(node + 1) * label_count]);
-            for &(other, weight) in neighbours.of(node) {
-                costs[labels[other as usize] as usize] -= weight;
-            }
-            let current = labels[node] as usize;
-            let mut best = current;
-            for (label, &cost) in costs.iter().enumerate() {
-                if cost < costs[best] - 1e-7 {
-                    best = label;
-                }
-            }
-            if best != current {
-                labels[node] = best as u16;
-                changed = true;
-            }
+        for alpha in 0..label_count as u16 {
+            changed |= expansion_move(problem, &mut labels, alpha);
         }
         if !changed {
             break;
