@@ -201,7 +201,11 @@ fn compose_with_legend(
         .iter()
         .map(|entry| {
             let share = entry.pixels as f64 * 100.0 / total_pixels.max(1) as f64;
-            format!("{} {:.1}%", taxonomy.class_name(entry.class), share)
+            if share < 0.1 {
+                format!("{} {:.2}%", taxonomy.class_name(entry.class), share)
+            } else {
+                format!("{} {:.1}%", taxonomy.class_name(entry.class), share)
+            }
         })
         .collect();
     let title_lines = wrap(&options.title, 20);

@@ -621,7 +621,7 @@ pub fn microwave(
     Ok(instance)
 }
 
-/// A television: a thin dark box with a glowing picture; `on_wall` hangs it, otherwise it stands on `support`.
+/// A television: a thin dark box with a glowing picture of an open sky (so it resembles a window); `on_wall` hangs it, otherwise it stands on `support`.
 pub fn television(
     builder: &SceneBuilder,
     centre: Vec3,
@@ -644,7 +644,7 @@ pub fn television(
         centre + yaw.apply(v3(0.0, 0.0, 0.031)),
         v3(width * 0.47, height * 0.45, 0.001),
         yaw,
-        Material::textured(picture, Texture::Picture).glowing(0.75),
+        Material::textured(picture, Texture::Sky).glowing(0.8),
     );
     if support.is_some() {
         builder.cuboid(

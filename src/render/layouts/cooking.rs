@@ -218,6 +218,7 @@ pub fn kitchen(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         description: "Kitchen: worktops with a sink and a cooker, a white larder cabinet beside the white \
                       fridge, three bottles on the counter, and Fig the cat behind a chair at the little table."
             .to_string(),
+        look_towards: 0.0,
     })
 }
 
@@ -327,5 +328,6 @@ pub fn bathroom(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
             "Bathroom: a basin in a vanity counter with bottles and a folded towel, a bath towel \
                       on the wall, Teodor's laundry on the floor and a box in the corner."
                 .to_string(),
+        look_towards: 0.1,
     })
 }

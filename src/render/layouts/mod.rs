@@ -42,6 +42,8 @@ pub struct LayoutOutcome {
     pub floor: Material,
     pub wall: Material,
     pub description: String,
+    /// Where the camera looks across the room, as a fraction of the half width (-1 left wall, 1 right wall).
+    pub look_towards: f64,
 }
 
 /// Builds the draft of one scene.
@@ -84,7 +86,7 @@ pub fn build_scene(
         0.12,
     );
     let target = v3(
-        camera_random.range(-0.15, 0.15) * half_width,
+        (outcome.look_towards + camera_random.range(-0.12, 0.12)) * half_width,
         camera_random.range(0.55, 0.8),
         depth * 0.75,
     );

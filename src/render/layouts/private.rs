@@ -183,6 +183,7 @@ pub fn bedroom(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         floor: floorboards(floor_colour),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Bedroom: Fig curled up on the blanket near pillows of a similar grey, shoes half under the bed, a toy bear and a book on the covers, a bedside lamp, clothes on the desk chair and a bag on the floor.".to_string(),
+        look_towards: 0.0,
     })
 }
 
@@ -300,6 +301,7 @@ pub fn office(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         floor: floorboards(choose(builder, &WOOD_COLOURS)),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Office: Wren at the desk with a laptop, a mug and a stack of books, a box under the desk, a full bookcase on the left wall and a plant on the filing cabinet.".to_string(),
+        look_towards: -0.3,
     })
 }
 
@@ -428,5 +430,6 @@ pub fn hallway(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         floor: floorboards(floor_colour),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Hallway: the stairs up on the left, the front door at the end, pairs of shoes by the shoe cabinet, a runner rug with Bramble standing on it, a bag and a box.".to_string(),
+        look_towards: 0.0,
     })
 }
