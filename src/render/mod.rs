@@ -15,10 +15,12 @@
 //! Owns: `SceneRequest`, `RenderedScene`, `SceneObject`, `SceneMetadata`, `RenderError`, the demo catalogue.
 //! Must not: know about segments, classifiers, language or the solver; class ids come only from the taxonomy.
 
+mod belongings;
 mod builder;
 mod camera;
 pub mod catalogue;
 mod figures;
+mod fittings;
 mod furniture;
 mod geometry;
 mod layouts;

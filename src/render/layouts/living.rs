@@ -7,18 +7,14 @@
 //! four to six chairs, place settings, bottles, a vase of flowers, a box under the table and someone standing.
 //! Must not: shade or write anything.
 
+use super::super::belongings::{blanket, cardboard_box, pillow, plant, toy};
 use super::super::builder::SceneBuilder;
 use super::super::figures::{cat, dog, person, Outfit, Pose};
-use super::super::furniture::{
-    bookcase, cabinet, chair, door, fabric, lamp, on_wall, rug, sofa, table, television, window,
-    wood, Spot, Wall,
-};
+use super::super::fittings::{door, lamp, on_wall, rug, television, window, Wall};
+use super::super::furniture::{bookcase, cabinet, chair, fabric, sofa, table, wood, Spot};
 use super::super::geometry::{v3, Yaw};
 use super::super::material::{rgb, tint};
-use super::super::objects::{
-    blanket, book, book_row, bottle, bowl, cardboard_box, laptop, mug, pillow, plant, plate,
-    remote, toy, vase,
-};
+use super::super::objects::{book, book_row, bottle, bowl, laptop, mug, plate, remote, vase};
 use super::super::RenderError;
 use super::{
     choose, floorboards, wall_paint, LayoutOutcome, GLAZE_COLOURS, SKY, WALL_COLOURS, WOOD_COLOURS,

@@ -6,18 +6,18 @@
 //! the front door, shoe pairs, a runner rug, a bag, Bramble standing.
 //! Must not: shade or write anything.
 
+use super::super::belongings::{
+    bag, blanket, cardboard_box, clothes, pillow, plant, shoe_pair, toy,
+};
 use super::super::builder::SceneBuilder;
 use super::super::figures::{cat, dog, person, Outfit, Pose};
+use super::super::fittings::{door, lamp, on_wall, rug, stairs, window, Wall};
 use super::super::furniture::{
-    bed, bookcase, cabinet, chair, desk, door, fabric, lamp, on_wall, painted, rug, stairs,
-    wall_shelf, window, wood, Spot, Wall,
+    bed, bookcase, cabinet, chair, desk, fabric, painted, wall_shelf, wood, Spot,
 };
 use super::super::geometry::{v3, Yaw};
 use super::super::material::{rgb, tint};
-use super::super::objects::{
-    bag, blanket, book, book_row, cardboard_box, clothes, laptop, mug, pillow, plant, shoe_pair,
-    toy, vase,
-};
+use super::super::objects::{book, book_row, laptop, mug, vase};
 use super::super::RenderError;
 use super::{
     choose, floorboards, wall_paint, LayoutOutcome, GLAZE_COLOURS, SKY, WALL_COLOURS, WOOD_COLOURS,
