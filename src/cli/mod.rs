@@ -6,6 +6,7 @@
 use clap::{Parser, Subcommand};
 
 mod classes;
+mod parse;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -22,11 +23,14 @@ pub struct Arguments {
 pub enum Command {
     /// Print the class taxonomy.
     Classes(classes::ClassesArgs),
+    /// Parse operator utterances into typed constraints (JSON and a gloss).
+    Parse(parse::ParseArgs),
 }
 
 /// Runs one subcommand.
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Parse(args) => parse::run(args),
     }
 }

@@ -313,6 +313,23 @@ impl Builder {
             }
         }
         if !located {
+            // "There's a big box": the attributes are stated of the thing said to exist.
+            if !zero && !np.attributes.is_empty() {
+                let mut target = np.clone();
+                target.quantity = None;
+                let attributes = std::mem::take(&mut target.attributes);
+                let target = self.referent(&target);
+                for attribute in attributes {
+                    self.push(
+                        ConstraintKind::Attribute {
+                            target: target.clone(),
+                            attribute,
+                        },
+                        span,
+                        misspelled,
+                    );
+                }
+            }
             self.seen_referent = true;
             return;
         }

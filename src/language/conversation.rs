@@ -426,13 +426,13 @@ impl Conversation {
         new_set: RelationSet,
     ) -> Vec<&'a RelationFact> {
         for candidate in earlier {
-            let (mut network, nodes) = self.network(&[candidate, fact], axis_index);
+            let (mut network, nodes) = self.network(&[*candidate, fact], axis_index);
             if let (Some(&from), Some(&to)) = (nodes.get(&fact.subject), nodes.get(&fact.landmark)) {
                 let _ = network.constrain(from, to, new_set);
                 if !self.table.path_consistent(&mut network)
                     || network.get(from, to) == 0
                 {
-                    return vec![candidate];
+                    return vec![*candidate];
                 }
             }
         }

@@ -46,7 +46,7 @@ pub fn normalise(original: &str) -> Normalised {
         let width = grapheme.chars().count();
         let range = (position, position + width);
         position += width;
-        let mut push = |character: char, text: &mut String, origin: &mut Vec<(usize, usize)>| {
+        let push = |character: char, text: &mut String, origin: &mut Vec<(usize, usize)>| {
             if character.is_control() {
                 if character.is_whitespace() {
                     text.push(' ');

@@ -122,7 +122,7 @@ fn count_notation(count: Count) -> String {
 
 /// A constraint in the compact notation.
 pub fn constraint_notation(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String {
-    let name = |class| taxonomy.class_name(class);
+    let name = move |class| taxonomy.class_name(class);
     match kind {
         ConstraintKind::Present { class } => format!("present({})", name(*class)),
         ConstraintKind::Absent { class } => format!("absent({})", name(*class)),

@@ -237,7 +237,11 @@ impl Grammar {
         let sentences = tag_sentences(&self.lexicon, &tokens, &mut notes, &mut ignored_raw);
         let mut builder = Builder::new(focus.is_some());
         let mut other_kinds: Vec<UtteranceKind> = Vec::new();
-        let mut any_words = false;
+        // Symbols, emoji and unknown scripts count as content; spaces and clause punctuation do not.
+        let mut any_words = normalised
+            .text
+            .chars()
+            .any(|c| !c.is_whitespace() && !",.;:!?'\"-".contains(c));
         for sentence in sentences {
             let words = sentence
                 .items
@@ -272,9 +276,7 @@ impl Grammar {
                         position += found.length;
                     }
                     None => {
-                        if chunks[position].kind != ChunkKind::Other || true {
-                            ignored_raw.push((chunks[position].span, IgnoredReason::NoRuleMatched));
-                        }
+                        ignored_raw.push((chunks[position].span, IgnoredReason::NoRuleMatched));
                         position += 1;
                     }
                 }

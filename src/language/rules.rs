@@ -200,15 +200,20 @@ fn parse_rule(line: &str) -> Result<Rule, String> {
 }
 
 fn parse_item(word: &str) -> Result<PatternItem, String> {
-    let (word, optional) = match word.strip_suffix('?') {
+    // `SYMBOL?:role`, `SYMBOL:role?` and `SYMBOL?` all mark an optional item.
+    let (word, mut optional) = match word.strip_suffix('?') {
         Some(stripped) => (stripped, true),
         None => (word, false),
     };
-    let (symbols, role) = match word.split_once(':') {
+    let (mut symbols, role) = match word.split_once(':') {
         Some((symbols, role)) if !role.is_empty() => (symbols, Some(role.to_string())),
         Some(_) => return Err(format!("item '{word}' has an empty role")),
         None => (word, None),
     };
+    if let Some(stripped) = symbols.strip_suffix('?') {
+        symbols = stripped;
+        optional = true;
+    }
     let mut alternatives = Vec::new();
     for alternative in symbols.split('|') {
         let (symbol_name, filter_name) = match alternative.split_once('[') {

@@ -37,14 +37,10 @@ pub fn tokenise(normalised: &Normalised) -> Vec<Token> {
     let text = &normalised.text;
     let mut tokens = Vec::new();
     // Map byte offsets to character offsets as we walk the pieces in order.
+    // Pieces tile the text, so a running character count gives each piece's character offset.
     let mut character_index = 0usize;
-    let mut byte_cursor = 0usize;
     let pieces: Vec<(usize, &str)> = text.split_word_bound_indices().collect();
-    for (piece_index, (byte_start, piece)) in pieces.iter().enumerate() {
-        if *byte_start > byte_cursor {
-            character_index += text[byte_cursor..*byte_start].chars().count();
-            byte_cursor = *byte_start;
-        }
+    for (piece_index, (_, piece)) in pieces.iter().enumerate() {
         let length = piece.chars().count();
         let start = character_index;
         let end = character_index + length;
@@ -75,7 +71,6 @@ pub fn tokenise(normalised: &Normalised) -> Vec<Token> {
             }
         }
         character_index = end;
-        byte_cursor = byte_start + piece.len();
     }
     tokens
 }
