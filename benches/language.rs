@@ -10,8 +10,11 @@ use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use sayso::language::Grammar;
 
 fn corpus() -> Vec<String> {
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/language/corpus.jsonl"))
-        .expect("corpus file");
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/language/corpus.jsonl"
+    ))
+    .expect("corpus file");
     text.lines()
         .filter(|line| !line.trim().is_empty())
         .map(|line| {

@@ -11,12 +11,15 @@ use proptest::prelude::*;
 use sayso::language::allen::{converse, names_of, set_of, CompositionTable, ALL};
 use sayso::language::lexicon::Tag;
 use sayso::language::notation::{colour_name, notation_list};
-use sayso::language::{Conversation, ConflictKind, Grammar, LanguageError};
+use sayso::language::{ConflictKind, Conversation, Grammar, LanguageError};
 use sayso::taxonomy::Taxonomy;
 
 fn fixture(name: &str) -> String {
-    std::fs::read_to_string(format!("{}/tests/fixtures/language/{name}", env!("CARGO_MANIFEST_DIR")))
-        .unwrap_or_else(|error| panic!("fixture {name}: {error}"))
+    std::fs::read_to_string(format!(
+        "{}/tests/fixtures/language/{name}",
+        env!("CARGO_MANIFEST_DIR")
+    ))
+    .unwrap_or_else(|error| panic!("fixture {name}: {error}"))
 }
 
 fn rows(text: &str) -> Vec<Vec<String>> {
@@ -96,18 +99,35 @@ fn class_plurals_match_inflect() {
                     .iter()
                     .find(|entry| entry.singular.as_deref() == Some(word.as_str()))
                     .expect("class word");
-                assert_eq!(entry.plural.as_deref(), Some(form.as_str()), "plural of '{word}'");
+                assert_eq!(
+                    entry.plural.as_deref(),
+                    Some(form.as_str()),
+                    "plural of '{word}'"
+                );
                 // And the parser reads that plural as plural of the same class.
                 let words: Vec<&str> = form.split(' ').collect();
-                let found = grammar.lexicon().longest_phrase(&words).expect("plural is a phrase");
-                assert_eq!(found.tag, Tag::Class { class: entry.class, plural: true }, "'{form}'");
+                let found = grammar
+                    .lexicon()
+                    .longest_phrase(&words)
+                    .expect("plural is a phrase");
+                assert_eq!(
+                    found.tag,
+                    Tag::Class {
+                        class: entry.class,
+                        plural: true
+                    },
+                    "'{form}'"
+                );
             }
             "plural_only" => {
                 // inflect reads the word as a plural (it offers a singular), and so do we.
                 assert_ne!(form, "False", "inflect does not see '{word}' as plural");
                 let words: Vec<&str> = word.split(' ').collect();
                 let found = grammar.lexicon().longest_phrase(&words).expect("phrase");
-                assert!(matches!(found.tag, Tag::Class { plural: true, .. }), "'{word}'");
+                assert!(
+                    matches!(found.tag, Tag::Class { plural: true, .. }),
+                    "'{word}'"
+                );
             }
             other => panic!("unknown kind {other}"),
         }
@@ -125,15 +145,26 @@ fn colour_words_match_css_named_colours() {
     let mut checked = 0;
     for row in rows(&fixture("css_colours.tsv")) {
         let (word, nearest) = (&row[0], &row[5]);
-        let found = grammar.lexicon().longest_phrase(&[word.as_str()]).expect("colour word");
-        let Tag::Colour(term) = found.tag else { panic!("'{word}' is not a colour") };
+        let found = grammar
+            .lexicon()
+            .longest_phrase(&[word.as_str()])
+            .expect("colour word");
+        let Tag::Colour(term) = found.tag else {
+            panic!("'{word}' is not a colour")
+        };
         let basic = [
-            "black", "white", "red", "green", "yellow", "blue", "brown", "purple", "pink", "orange", "grey",
+            "black", "white", "red", "green", "yellow", "blue", "brown", "purple", "pink",
+            "orange", "grey",
         ];
         if basic.contains(&word.as_str()) {
             assert_eq!(colour_name(term), word, "basic term '{word}'");
         } else {
-            assert_eq!(colour_name(term), nearest, "'{word}' ({}) is nearest {nearest}", row[1]);
+            assert_eq!(
+                colour_name(term),
+                nearest,
+                "'{word}' ({}) is nearest {nearest}",
+                row[1]
+            );
         }
         checked += 1;
     }
@@ -145,25 +176,36 @@ fn colour_words_match_css_named_colours() {
 #[test]
 fn allen_table_matches_enumeration_and_known_entries() {
     let table = CompositionTable::embedded().expect("table");
-    let enumerated = CompositionTable::parse(&fixture("allen_enumerated.txt"), "allen_enumerated.txt").expect("fixture");
+    let enumerated =
+        CompositionTable::parse(&fixture("allen_enumerated.txt"), "allen_enumerated.txt")
+            .expect("fixture");
     assert_eq!(table, enumerated);
     // Entries recalled from the paper's table (from memory).
-    let entry = |r: &str, s: &str| names_of(table.compose(set_of(&[r]).unwrap(), set_of(&[s]).unwrap()));
+    let entry =
+        |r: &str, s: &str| names_of(table.compose(set_of(&[r]).unwrap(), set_of(&[s]).unwrap()));
     assert_eq!(entry("b", "b"), ["b"]);
     assert_eq!(entry("m", "m"), ["b"]);
     assert_eq!(entry("d", "d"), ["d"]);
     assert_eq!(entry("s", "s"), ["s"]);
     assert_eq!(entry("o", "o"), ["b", "m", "o"]);
     assert_eq!(entry("m", "mi"), ["f", "eq", "fi"]);
-    assert_eq!(table.compose(set_of(&["b"]).unwrap(), set_of(&["bi"]).unwrap()), ALL);
+    assert_eq!(
+        table.compose(set_of(&["b"]).unwrap(), set_of(&["bi"]).unwrap()),
+        ALL
+    );
     // Algebraic laws: eq is the identity, and (r s)^-1 = s^-1 r^-1.
-    let names = ["b", "m", "o", "s", "d", "f", "eq", "fi", "di", "si", "oi", "mi", "bi"];
+    let names = [
+        "b", "m", "o", "s", "d", "f", "eq", "fi", "di", "si", "oi", "mi", "bi",
+    ];
     for r in names {
         let r_set = set_of(&[r]).unwrap();
         assert_eq!(table.compose(set_of(&["eq"]).unwrap(), r_set), r_set);
         for s in names {
             let s_set = set_of(&[s]).unwrap();
-            assert_eq!(converse(table.compose(r_set, s_set)), table.compose(converse(s_set), converse(r_set)));
+            assert_eq!(
+                converse(table.compose(r_set, s_set)),
+                table.compose(converse(s_set), converse(r_set))
+            );
         }
     }
 }
@@ -172,19 +214,30 @@ fn allen_table_matches_enumeration_and_known_entries() {
 #[test]
 fn conversation_cases_report_contradictions_and_redundancy_with_both_spans() {
     let grammar = grammar();
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/language/conversations.jsonl"))
-        .expect("cases");
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/language/conversations.jsonl"
+    ))
+    .expect("cases");
     for line in text.lines().filter(|line| !line.trim().is_empty()) {
         let case: serde_json::Value = serde_json::from_str(line).expect("case");
         let name = case["name"].as_str().unwrap_or("?");
         let mut conversation = Conversation::new(grammar.taxonomy().clone()).expect("conversation");
         let mut found = Vec::new();
         for (turn_index, turn) in case["turns"].as_array().expect("turns").iter().enumerate() {
-            let parse = grammar.parse(turn.as_str().expect("turn"), None).expect("parse");
-            assert!(!parse.constraints.is_empty(), "{name}: turn {turn_index} parsed to nothing");
+            let parse = grammar
+                .parse(turn.as_str().expect("turn"), None)
+                .expect("parse");
+            assert!(
+                !parse.constraints.is_empty(),
+                "{name}: turn {turn_index} parsed to nothing"
+            );
             let report = conversation.add(&parse);
             for conflict in report.conflicts {
-                assert!(!conflict.earlier.is_empty(), "{name}: a conflict without an earlier span");
+                assert!(
+                    !conflict.earlier.is_empty(),
+                    "{name}: a conflict without an earlier span"
+                );
                 assert!(conflict.later.span.end > conflict.later.span.start);
                 found.push(conflict);
             }
@@ -196,10 +249,22 @@ fn conversation_cases_report_contradictions_and_redundancy_with_both_spans() {
                 ConflictKind::Contradiction => "contradiction",
                 ConflictKind::Redundancy => "redundancy",
             };
-            assert_eq!(kind, want["kind"].as_str().unwrap(), "{name}: {}", conflict.message);
-            assert_eq!(conflict.later.turn as u64, want["turn"].as_u64().unwrap(), "{name}");
+            assert_eq!(
+                kind,
+                want["kind"].as_str().unwrap(),
+                "{name}: {}",
+                conflict.message
+            );
+            assert_eq!(
+                conflict.later.turn as u64,
+                want["turn"].as_u64().unwrap(),
+                "{name}"
+            );
             assert!(
-                conflict.earlier.iter().any(|at| at.turn as u64 == want["earlier_turn"].as_u64().unwrap()),
+                conflict
+                    .earlier
+                    .iter()
+                    .any(|at| at.turn as u64 == want["earlier_turn"].as_u64().unwrap()),
                 "{name}: {conflict:?}"
             );
         }
@@ -214,7 +279,13 @@ fn previous_deixis_binds_to_the_last_referent_across_turns() {
     let turn = conversation.add(&grammar.parse("it's blue", None).unwrap());
     let mug = grammar.taxonomy().class_by_name("mug").unwrap().id;
     assert_eq!(turn.bindings.len(), 1);
-    assert_eq!(turn.bindings[0].referent.as_ref().and_then(|referent| referent.class), Some(mug));
+    assert_eq!(
+        turn.bindings[0]
+            .referent
+            .as_ref()
+            .and_then(|referent| referent.class),
+        Some(mug)
+    );
 }
 
 #[test]
@@ -225,18 +296,39 @@ fn a_site_word_file_adds_words_without_recompiling() {
         std::fs::create_dir_all(directory.path().join(sub)).unwrap();
         for entry in std::fs::read_dir(root.join(sub)).unwrap() {
             let path = entry.unwrap().path();
-            std::fs::copy(&path, directory.path().join(sub).join(path.file_name().unwrap())).unwrap();
+            std::fs::copy(
+                &path,
+                directory.path().join(sub).join(path.file_name().unwrap()),
+            )
+            .unwrap();
         }
     }
-    std::fs::write(directory.path().join("site/extra.lex"), "hammock -> class bed\n").unwrap();
+    std::fs::write(
+        directory.path().join("site/extra.lex"),
+        "hammock -> class bed\n",
+    )
+    .unwrap();
     let grammar = Grammar::load(directory.path()).expect("grammar directory");
     let parse = grammar.parse("the cat is on the hammock", None).unwrap();
-    assert_eq!(notation_list(&parse.constraints, grammar.taxonomy()), ["rel(cat, on, bed)"]);
-    let before = Grammar::embedded().unwrap().parse("the cat is on the hammock", None).unwrap();
+    assert_eq!(
+        notation_list(&parse.constraints, grammar.taxonomy()),
+        ["rel(cat, on, bed)"]
+    );
+    let before = Grammar::embedded()
+        .unwrap()
+        .parse("the cat is on the hammock", None)
+        .unwrap();
     assert!(before.constraints.is_empty());
-    std::fs::write(directory.path().join("site/bad.lex"), "# ok\nsofa bed -> class futon\n").unwrap();
+    std::fs::write(
+        directory.path().join("site/bad.lex"),
+        "# ok\nsofa bed -> class futon\n",
+    )
+    .unwrap();
     let error = Grammar::load(directory.path()).unwrap_err().to_string();
-    assert!(error.starts_with("site/bad.lex:2: unknown class 'futon'"), "{error}");
+    assert!(
+        error.starts_with("site/bad.lex:2: unknown class 'futon'"),
+        "{error}"
+    );
 }
 
 #[test]
@@ -245,7 +337,10 @@ fn too_long_input_is_a_typed_error_with_its_length() {
     let text = "a".repeat(5000);
     assert_eq!(
         grammar.parse(&text, None).unwrap_err(),
-        LanguageError::TooLong { length: 5000, limit: 4096 }
+        LanguageError::TooLong {
+            length: 5000,
+            limit: 4096
+        }
     );
 }
 
@@ -256,7 +351,9 @@ fn spans_point_into_the_original_text_and_notes_explain_misspellings() {
     let parse = grammar.parse(text, None).unwrap();
     let chars: Vec<char> = text.chars().collect();
     let constraint = &parse.constraints[0];
-    let covered: String = chars[constraint.span.start..constraint.span.end].iter().collect();
+    let covered: String = chars[constraint.span.start..constraint.span.end]
+        .iter()
+        .collect();
     assert_eq!(covered, "the “lamp” is next to the sofaa");
     assert!(constraint.confidence < 1.0);
     assert!(parse.notes.iter().any(|note| matches!(&note.kind,
@@ -272,7 +369,10 @@ fn parsing_is_deterministic() {
     let text = "that's a cabinet, not a fridge, and there are two chairs";
     let first = serde_json::to_string(&grammar.parse(text, None).unwrap()).unwrap();
     for _ in 0..5 {
-        assert_eq!(serde_json::to_string(&grammar.parse(text, None).unwrap()).unwrap(), first);
+        assert_eq!(
+            serde_json::to_string(&grammar.parse(text, None).unwrap()).unwrap(),
+            first
+        );
     }
 }
 

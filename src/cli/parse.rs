@@ -60,7 +60,10 @@ pub fn run(args: ParseArgs) -> anyhow::Result<()> {
                 {
                     let mut gloss = format!("{line:?}: {}", parse.utterance_kind.name());
                     for constraint in &parse.constraints {
-                        gloss.push_str(&format!("\n  - {} ({:.2})", constraint.gloss, constraint.confidence));
+                        gloss.push_str(&format!(
+                            "\n  - {} ({:.2})",
+                            constraint.gloss, constraint.confidence
+                        ));
                     }
                     for conflict in &turn.conflicts {
                         gloss.push_str(&format!("\n  ! {:?}: {}", conflict.kind, conflict.message));

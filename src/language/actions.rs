@@ -144,7 +144,10 @@ impl Builder {
                     from_class = target.as_ref().and_then(|phrase| phrase.class);
                 }
                 // "that's no cat": a zero quantity on the new name denies it.
-                if to.as_ref().is_some_and(|phrase| phrase.quantity == Some(Quantity::None)) {
+                if to
+                    .as_ref()
+                    .is_some_and(|phrase| phrase.quantity == Some(Quantity::None))
+                {
                     from_class = to_class;
                     to_class = None;
                 }
@@ -189,14 +192,23 @@ impl Builder {
                 }
             }
             Action::Relation => {
-                let Some(subject) = first_phrase("subject") else { return };
-                let relation = found.role("relation").first().and_then(|&index| match chunks[index].kind {
-                    ChunkKind::Relation(relation) => Some(relation),
-                    _ => None,
-                });
+                let Some(subject) = first_phrase("subject") else {
+                    return;
+                };
+                let relation =
+                    found
+                        .role("relation")
+                        .first()
+                        .and_then(|&index| match chunks[index].kind {
+                            ChunkKind::Relation(relation) => Some(relation),
+                            _ => None,
+                        });
                 let Some(relation) = relation else { return };
-                let landmark_phrases: Vec<NounPhrase> =
-                    found.role("landmark").into_iter().filter_map(phrase).collect();
+                let landmark_phrases: Vec<NounPhrase> = found
+                    .role("landmark")
+                    .into_iter()
+                    .filter_map(phrase)
+                    .collect();
                 self.count_of_subject(&subject, span, misspelled);
                 let subject_referent = self.referent(&subject);
                 let landmarks = landmark_phrases
@@ -215,7 +227,9 @@ impl Builder {
                 );
             }
             Action::Place => {
-                let Some(subject) = first_phrase("subject") else { return };
+                let Some(subject) = first_phrase("subject") else {
+                    return;
+                };
                 let place = if let Some(&index) = found.role("room").first() {
                     match chunks[index].kind {
                         ChunkKind::Room(room) => Some(Place::Room(room)),
@@ -235,7 +249,9 @@ impl Builder {
                 self.push(ConstraintKind::Place { subject, place }, span, misspelled);
             }
             Action::Attribute => {
-                let Some(subject) = first_phrase("subject") else { return };
+                let Some(subject) = first_phrase("subject") else {
+                    return;
+                };
                 let attributes = found
                     .role("attributes")
                     .first()
@@ -277,7 +293,10 @@ impl Builder {
             return;
         }
         let zero = negated
-            || matches!(np.quantity, Some(Quantity::None) | Some(Quantity::Exactly(0)));
+            || matches!(
+                np.quantity,
+                Some(Quantity::None) | Some(Quantity::Exactly(0))
+            );
         let located = !np.relations.is_empty() || np.region.is_some();
         if zero && located {
             // "There are no cats on the bed": the relation is denied, not the class.
@@ -307,7 +326,11 @@ impl Builder {
             return;
         }
         if let Some(class) = np.class {
-            let quantity = if zero { Quantity::None } else { np.quantity.unwrap_or(Quantity::Some) };
+            let quantity = if zero {
+                Quantity::None
+            } else {
+                np.quantity.unwrap_or(Quantity::Some)
+            };
             if let Some(kind) = count_kind(class, quantity, negated) {
                 self.push(kind, span, misspelled);
             }
@@ -371,8 +394,12 @@ impl Builder {
 /// The existence constraint a quantity states about a class.
 fn count_kind(class: ClassId, quantity: Quantity, _negated: bool) -> Option<ConstraintKind> {
     Some(match quantity {
-        Quantity::None | Quantity::Exactly(0) | Quantity::AtMost(0) => ConstraintKind::Absent { class },
-        Quantity::Some | Quantity::AtLeast(0) | Quantity::AtLeast(1) => ConstraintKind::Present { class },
+        Quantity::None | Quantity::Exactly(0) | Quantity::AtMost(0) => {
+            ConstraintKind::Absent { class }
+        }
+        Quantity::Some | Quantity::AtLeast(0) | Quantity::AtLeast(1) => {
+            ConstraintKind::Present { class }
+        }
         Quantity::Exactly(n) => ConstraintKind::Count {
             class,
             count: Count::Exactly(n),

@@ -10,7 +10,9 @@ use super::constraint::Relation;
 use super::error::GrammarError;
 
 /// The basic relations in table order.
-pub const BASIC_NAMES: [&str; 13] = ["b", "m", "o", "s", "d", "f", "eq", "fi", "di", "si", "oi", "mi", "bi"];
+pub const BASIC_NAMES: [&str; 13] = [
+    "b", "m", "o", "s", "d", "f", "eq", "fi", "di", "si", "oi", "mi", "bi",
+];
 
 /// A set of basic relations, one bit per entry of `BASIC_NAMES`.
 pub type RelationSet = u16;
@@ -82,7 +84,10 @@ impl CompositionTable {
                 .ok_or_else(|| error("expected 'r s : t ...'".to_string()))?;
             let pair: Vec<&str> = pair.split_whitespace().collect();
             if pair.len() != 2 {
-                return Err(error(format!("expected two relations before ':', found {}", pair.len())));
+                return Err(error(format!(
+                    "expected two relations before ':', found {}",
+                    pair.len()
+                )));
             }
             let first = set_of(&pair[..1]).map_err(error)?.trailing_zeros() as usize;
             let second = set_of(&pair[1..]).map_err(error)?.trailing_zeros() as usize;

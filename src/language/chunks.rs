@@ -197,7 +197,9 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
             has_head = true;
             index += 1;
         }
-        Some(Tag::Thing { plural: head_plural }) => {
+        Some(Tag::Thing {
+            plural: head_plural,
+        }) => {
             plural = head_plural;
             has_head = true;
             index += 1;
@@ -354,7 +356,10 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
         });
         match (earlier, next) {
             (Some(from), Some(to)) => {
-                ignored.push((chunks[from].span.cover(chunks[index].span), IgnoredReason::SelfRepair));
+                ignored.push((
+                    chunks[from].span.cover(chunks[index].span),
+                    IgnoredReason::SelfRepair,
+                ));
                 chunks.drain(from..to);
                 index = from;
             }
@@ -384,9 +389,14 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
     let mut index = 0;
     while index + 1 < chunks.len() {
         if let ChunkKind::Attributes(_) = chunks[index].kind {
-            let gap = matches!(chunks[index + 1].kind, ChunkKind::And | ChunkKind::Separator);
+            let gap = matches!(
+                chunks[index + 1].kind,
+                ChunkKind::And | ChunkKind::Separator
+            );
             let next = if gap { index + 2 } else { index + 1 };
-            if let Some(ChunkKind::Attributes(more)) = chunks.get(next).map(|chunk| chunk.kind.clone()) {
+            if let Some(ChunkKind::Attributes(more)) =
+                chunks.get(next).map(|chunk| chunk.kind.clone())
+            {
                 let span = chunks[next].span;
                 if let ChunkKind::Attributes(list) = &mut chunks[index].kind {
                     list.extend(more);
@@ -455,7 +465,11 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
 
 /// One landmark noun phrase at `start`, or two joined by "and" for "between"; returns them and the number
 /// of chunks used.
-fn take_landmarks(chunks: &[Chunk], start: usize, count: usize) -> Option<(Vec<NounPhrase>, usize)> {
+fn take_landmarks(
+    chunks: &[Chunk],
+    start: usize,
+    count: usize,
+) -> Option<(Vec<NounPhrase>, usize)> {
     let first = match chunks.get(start).map(|chunk| &chunk.kind) {
         Some(ChunkKind::NounPhrase(phrase)) => phrase.clone(),
         _ => return None,

@@ -187,7 +187,13 @@ impl Conversation {
         }
     }
 
-    fn check_counts(&mut self, constraint: &Constraint, at: Location, text: &str, conflicts: &mut Vec<Conflict>) {
+    fn check_counts(
+        &mut self,
+        constraint: &Constraint,
+        at: Location,
+        text: &str,
+        conflicts: &mut Vec<Conflict>,
+    ) {
         let mut new_facts: Vec<(ClassId, u32, Option<u32>, bool)> = Vec::new();
         match &constraint.kind {
             ConstraintKind::Present { class } => new_facts.push((*class, 1, None, true)),
@@ -221,7 +227,9 @@ impl Conversation {
                     new_facts.push((class, 1, None, false));
                 }
             }
-            ConstraintKind::Relabel { to: Some(class), .. } => new_facts.push((*class, 1, None, false)),
+            ConstraintKind::Relabel {
+                to: Some(class), ..
+            } => new_facts.push((*class, 1, None, false)),
             _ => {}
         }
         for (class, low, high, explicit) in new_facts {
@@ -279,7 +287,13 @@ impl Conversation {
         }
     }
 
-    fn check_relation(&mut self, constraint: &Constraint, at: Location, text: &str, conflicts: &mut Vec<Conflict>) {
+    fn check_relation(
+        &mut self,
+        constraint: &Constraint,
+        at: Location,
+        text: &str,
+        conflicts: &mut Vec<Conflict>,
+    ) {
         let ConstraintKind::Relation {
             subject,
             relation,
@@ -292,7 +306,9 @@ impl Conversation {
         let (Some(subject_class), [landmark]) = (subject.class, landmarks.as_slice()) else {
             return;
         };
-        let Some(landmark_class) = landmark.class else { return };
+        let Some(landmark_class) = landmark.class else {
+            return;
+        };
         if subject_class == landmark_class {
             return;
         }
@@ -309,10 +325,15 @@ impl Conversation {
             .relations
             .iter()
             .filter(|earlier| {
-                earlier.subject == fact.subject && earlier.landmark == fact.landmark && earlier.relation == fact.relation
+                earlier.subject == fact.subject
+                    && earlier.landmark == fact.landmark
+                    && earlier.relation == fact.relation
             })
             .collect();
-        if let Some(earlier) = same_pair.iter().find(|earlier| earlier.negated != fact.negated) {
+        if let Some(earlier) = same_pair
+            .iter()
+            .find(|earlier| earlier.negated != fact.negated)
+        {
             conflicts.push(Conflict {
                 kind: ConflictKind::Contradiction,
                 earlier: vec![earlier.at],
@@ -337,19 +358,24 @@ impl Conversation {
         let mut constrained_axes = 0;
         let mut redundancy_sources: Vec<Location> = Vec::new();
         for (axis_index, axis) in AXES.iter().enumerate() {
-            let Some(new_set) = new_sets[axis_index] else { continue };
+            let Some(new_set) = new_sets[axis_index] else {
+                continue;
+            };
             constrained_axes += 1;
             let earlier: Vec<&RelationFact> = self
                 .relations
                 .iter()
-                .filter(|earlier| axis_sets(earlier.relation, earlier.negated)[axis_index].is_some())
+                .filter(|earlier| {
+                    axis_sets(earlier.relation, earlier.negated)[axis_index].is_some()
+                })
                 .collect();
             if earlier.is_empty() {
                 continue;
             }
             // Without the new fact: what do the earlier ones already imply for this pair?
             let (mut network, nodes) = self.network(&earlier, axis_index);
-            let (Some(&from), Some(&to)) = (nodes.get(&fact.subject), nodes.get(&fact.landmark)) else {
+            let (Some(&from), Some(&to)) = (nodes.get(&fact.subject), nodes.get(&fact.landmark))
+            else {
                 continue;
             };
             if !self.table.path_consistent(&mut network) {
@@ -395,7 +421,11 @@ impl Conversation {
     }
 
     /// A network over the classes in `facts` on one axis.
-    fn network(&self, facts: &[&RelationFact], axis_index: usize) -> (Network, BTreeMap<ClassId, usize>) {
+    fn network(
+        &self,
+        facts: &[&RelationFact],
+        axis_index: usize,
+    ) -> (Network, BTreeMap<ClassId, usize>) {
         let mut nodes = BTreeMap::new();
         for fact in facts {
             let next = nodes.len();
@@ -427,11 +457,10 @@ impl Conversation {
     ) -> Vec<&'a RelationFact> {
         for candidate in earlier {
             let (mut network, nodes) = self.network(&[*candidate, fact], axis_index);
-            if let (Some(&from), Some(&to)) = (nodes.get(&fact.subject), nodes.get(&fact.landmark)) {
+            if let (Some(&from), Some(&to)) = (nodes.get(&fact.subject), nodes.get(&fact.landmark))
+            {
                 let _ = network.constrain(from, to, new_set);
-                if !self.table.path_consistent(&mut network)
-                    || network.get(from, to) == 0
-                {
+                if !self.table.path_consistent(&mut network) || network.get(from, to) == 0 {
                     return vec![*candidate];
                 }
             }
@@ -443,8 +472,12 @@ impl Conversation {
 /// The referent a constraint is mainly about (for later deictic words).
 fn main_referent(kind: &ConstraintKind) -> Option<&Referent> {
     match kind {
-        ConstraintKind::Relation { subject, .. } | ConstraintKind::Place { subject, .. } => Some(subject),
-        ConstraintKind::Relabel { target, .. } | ConstraintKind::Attribute { target, .. } => Some(target),
+        ConstraintKind::Relation { subject, .. } | ConstraintKind::Place { subject, .. } => {
+            Some(subject)
+        }
+        ConstraintKind::Relabel { target, .. } | ConstraintKind::Attribute { target, .. } => {
+            Some(target)
+        }
         _ => None,
     }
 }

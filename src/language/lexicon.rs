@@ -169,7 +169,9 @@ impl Lexicon {
                 let phrase_key = match &parsed {
                     LexLine::Tag(words, ..) | LexLine::Rewrite(words, _) => words.join(" "),
                 };
-                if let Some(previous) = seen.insert(phrase_key.clone(), format!("{file}:{line_number}")) {
+                if let Some(previous) =
+                    seen.insert(phrase_key.clone(), format!("{file}:{line_number}"))
+                {
                     return Err(GrammarError::line(
                         file,
                         line_number,
@@ -177,7 +179,9 @@ impl Lexicon {
                     ));
                 }
                 match parsed {
-                    LexLine::Rewrite(words, replacement) => lexicon.insert_rewrite(words, replacement),
+                    LexLine::Rewrite(words, replacement) => {
+                        lexicon.insert_rewrite(words, replacement)
+                    }
                     LexLine::Tag(words, tag, extra) => {
                         if let (Tag::Class { class, plural }, Some(extra)) = (tag, &extra) {
                             let phrase = words.join(" ");
@@ -288,7 +292,7 @@ impl Lexicon {
         let rest: Vec<String> = words.collect();
         let entry = self.phrases.entry(first).or_default();
         entry.push(Continuation { rest, value: tag });
-        entry.sort_by(|a, b| b.rest.len().cmp(&a.rest.len()));
+        entry.sort_by_key(|continuation| std::cmp::Reverse(continuation.rest.len()));
     }
 
     fn insert_rewrite(&mut self, words: Vec<String>, replacement: Vec<String>) {
@@ -300,7 +304,7 @@ impl Lexicon {
             rest,
             value: replacement,
         });
-        entry.sort_by(|a, b| b.rest.len().cmp(&a.rest.len()));
+        entry.sort_by_key(|continuation| std::cmp::Reverse(continuation.rest.len()));
     }
 
     /// The longest phrase starting at `words[0]`.
@@ -427,7 +431,10 @@ fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, String> {
     if words.is_empty() {
         return Err("the phrase before '->' is empty".to_string());
     }
-    if words.iter().any(|word| word.chars().any(|c| c.is_uppercase())) {
+    if words
+        .iter()
+        .any(|word| word.chars().any(|c| c.is_uppercase()))
+    {
         return Err(format!("phrase '{left}' must be lower case"));
     }
     let fields: Vec<&str> = right.split_whitespace().collect();
@@ -436,7 +443,10 @@ fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, String> {
     let need_value = || value.ok_or_else(|| format!("kind '{kind}' needs a value"));
     let no_more = |count: usize| {
         if fields.len() > count {
-            Err(format!("unexpected '{}' after kind '{kind}'", fields[count]))
+            Err(format!(
+                "unexpected '{}' after kind '{kind}'",
+                fields[count]
+            ))
         } else {
             Ok(())
         }
@@ -506,7 +516,11 @@ fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, String> {
                         QuantityWord::AtLeast(number)
                     }
                 }
-                other => return Err(format!("quantity '{other}' is not exactly, at_least, some or none")),
+                other => {
+                    return Err(format!(
+                        "quantity '{other}' is not exactly, at_least, some or none"
+                    ))
+                }
             };
             Tag::Quantity(quantity)
         }
@@ -647,7 +661,11 @@ pub fn parse_colour(name: &str) -> Result<ColourTerm, String> {
         "pink" => ColourTerm::Pink,
         "orange" => ColourTerm::Orange,
         "grey" => ColourTerm::Grey,
-        other => return Err(format!("'{other}' is not one of the eleven basic colour terms")),
+        other => {
+            return Err(format!(
+                "'{other}' is not one of the eleven basic colour terms"
+            ))
+        }
     })
 }
 
@@ -665,15 +683,21 @@ mod tests {
     #[test]
     fn a_bad_line_is_reported_with_file_and_line_number() {
         let error = build("# fine\ncouch -> class sofa\nbeanbag -> class throne\n").unwrap_err();
-        assert_eq!(error.to_string(), "test.lex:3: unknown class 'throne' (classes.toml lists the classes)");
+        assert_eq!(
+            error.to_string(),
+            "test.lex:3: unknown class 'throne' (classes.toml lists the classes)"
+        );
         let error = build("couch -> class sofa\ncouch -> class bed\n").unwrap_err();
-        assert!(error.to_string().starts_with("test.lex:2: 'couch' is already defined at test.lex:1"));
+        assert!(error
+            .to_string()
+            .starts_with("test.lex:2: 'couch' is already defined at test.lex:1"));
         assert!(build("what is this\n").is_err());
     }
 
     #[test]
     fn longest_phrase_wins_and_plurals_are_generated() {
-        let lexicon = build("next to -> relation next_to\nnext -> skip\ncouch -> class sofa\n").unwrap();
+        let lexicon =
+            build("next to -> relation next_to\nnext -> skip\ncouch -> class sofa\n").unwrap();
         let found = lexicon.longest_phrase(&["next", "to", "the"]).unwrap();
         assert_eq!(found.words, 2);
         let couches = lexicon.longest_phrase(&["couches"]).unwrap();

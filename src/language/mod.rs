@@ -31,4 +31,6 @@ pub mod tokens;
 
 pub use conversation::{Conflict, ConflictKind, Conversation, Turn};
 pub use error::{GrammarError, LanguageError};
-pub use parse::{parse_focus, Grammar, Ignored, IgnoredReason, Note, NoteKind, Parse, UtteranceKind};
+pub use parse::{
+    parse_focus, Grammar, Ignored, IgnoredReason, Note, NoteKind, Parse, UtteranceKind,
+};

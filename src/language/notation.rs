@@ -152,7 +152,10 @@ pub fn constraint_notation(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String
             Place::Room(room) => format!(
                 "place({}, room:{})",
                 referent_notation(subject, taxonomy),
-                taxonomy.room(*room).map(|info| info.name.as_str()).unwrap_or("unknown")
+                taxonomy
+                    .room(*room)
+                    .map(|info| info.name.as_str())
+                    .unwrap_or("unknown")
             ),
             Place::Region(region) => format!(
                 "place({}, {})",
@@ -166,9 +169,7 @@ pub fn constraint_notation(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String
             from.map(name).unwrap_or(""),
             to.map(name).unwrap_or("")
         )
-        .replace(",  ->", ", ->")
-        .replace("->  )", "-> )")
-        .replace("-> )", "-> )"),
+        .replace(",  ->", ", ->"),
         ConstraintKind::Attribute { target, attribute } => format!(
             "attr({}, {})",
             referent_notation(target, taxonomy),
@@ -176,7 +177,10 @@ pub fn constraint_notation(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String
         ),
         ConstraintKind::RoomType { room } => format!(
             "room({})",
-            taxonomy.room(*room).map(|info| info.name.as_str()).unwrap_or("unknown")
+            taxonomy
+                .room(*room)
+                .map(|info| info.name.as_str())
+                .unwrap_or("unknown")
         ),
     }
 }
@@ -196,7 +200,11 @@ pub fn referent_gloss(referent: &Referent, taxonomy: &Taxonomy) -> String {
         Some(class) => taxonomy.class_name(class).replace('_', " "),
         None => "thing".to_string(),
     };
-    words.push(if referent.plural { format!("{head}(s)") } else { head });
+    words.push(if referent.plural {
+        format!("{head}(s)")
+    } else {
+        head
+    });
     for clause in &referent.relations {
         let landmarks: Vec<String> = clause
             .landmarks
@@ -251,7 +259,11 @@ pub fn constraint_gloss(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String {
             )
         }
         ConstraintKind::Place { subject, place } => match place {
-            Place::Room(room) => format!("{} is in the {}", referent_gloss(subject, taxonomy), room_name(*room)),
+            Place::Room(room) => format!(
+                "{} is in the {}",
+                referent_gloss(subject, taxonomy),
+                room_name(*room)
+            ),
             Place::Region(region) => format!(
                 "{} is at the {} of the image",
                 referent_gloss(subject, taxonomy),

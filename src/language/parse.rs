@@ -85,9 +85,17 @@ pub struct Ignored {
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(tag = "note", rename_all = "snake_case")]
 pub enum NoteKind {
-    MisspellingAccepted { written: String, read_as: String },
-    UnknownWord { written: String, suggestions: Vec<String> },
-    NumberTooLarge { written: String },
+    MisspellingAccepted {
+        written: String,
+        read_as: String,
+    },
+    UnknownWord {
+        written: String,
+        suggestions: Vec<String>,
+    },
+    NumberTooLarge {
+        written: String,
+    },
 }
 
 /// A note with the span it concerns.
@@ -109,14 +117,35 @@ pub struct Parse {
 
 /// The default grammar files, compiled in so the binary works anywhere.
 const EMBEDDED_LEXICON: &[(&str, &str)] = &[
-    ("lexicon/classes.lex", include_str!("../../grammar/lexicon/classes.lex")),
-    ("lexicon/colours.lex", include_str!("../../grammar/lexicon/colours.lex")),
-    ("lexicon/numbers.lex", include_str!("../../grammar/lexicon/numbers.lex")),
-    ("lexicon/quantities.lex", include_str!("../../grammar/lexicon/quantities.lex")),
-    ("lexicon/words.lex", include_str!("../../grammar/lexicon/words.lex")),
-    ("site/juniper_lane.lex", include_str!("../../grammar/site/juniper_lane.lex")),
+    (
+        "lexicon/classes.lex",
+        include_str!("../../grammar/lexicon/classes.lex"),
+    ),
+    (
+        "lexicon/colours.lex",
+        include_str!("../../grammar/lexicon/colours.lex"),
+    ),
+    (
+        "lexicon/numbers.lex",
+        include_str!("../../grammar/lexicon/numbers.lex"),
+    ),
+    (
+        "lexicon/quantities.lex",
+        include_str!("../../grammar/lexicon/quantities.lex"),
+    ),
+    (
+        "lexicon/words.lex",
+        include_str!("../../grammar/lexicon/words.lex"),
+    ),
+    (
+        "site/juniper_lane.lex",
+        include_str!("../../grammar/site/juniper_lane.lex"),
+    ),
 ];
-const EMBEDDED_RULES: &[(&str, &str)] = &[("rules/core.rules", include_str!("../../grammar/rules/core.rules"))];
+const EMBEDDED_RULES: &[(&str, &str)] = &[(
+    "rules/core.rules",
+    include_str!("../../grammar/rules/core.rules"),
+)];
 
 /// A loaded, validated grammar: taxonomy, lexicon and clause rules.
 #[derive(Clone, Debug)]
@@ -135,7 +164,11 @@ fn owned(files: &[(&str, &str)]) -> Vec<(String, String)> {
 }
 
 /// Reads every file with the extension in a directory, sorted by name; a missing directory is empty.
-fn read_directory(directory: &Path, extension: &str, label: &str) -> Result<Vec<(String, String)>, GrammarError> {
+fn read_directory(
+    directory: &Path,
+    extension: &str,
+    label: &str,
+) -> Result<Vec<(String, String)>, GrammarError> {
     let entries = match std::fs::read_dir(directory) {
         Ok(entries) => entries,
         Err(error) if error.kind() == std::io::ErrorKind::NotFound => return Ok(Vec::new()),
@@ -169,7 +202,11 @@ fn read_directory(directory: &Path, extension: &str, label: &str) -> Result<Vec<
 impl Grammar {
     /// The grammar compiled into the binary (grammar/ at build time).
     pub fn embedded() -> Result<Grammar, GrammarError> {
-        Grammar::from_texts(Taxonomy::embedded(), &owned(EMBEDDED_LEXICON), &owned(EMBEDDED_RULES))
+        Grammar::from_texts(
+            Taxonomy::embedded(),
+            &owned(EMBEDDED_LEXICON),
+            &owned(EMBEDDED_RULES),
+        )
     }
 
     /// Reads a grammar directory: `classes.toml` (or the embedded taxonomy), `lexicon/*.lex`,
@@ -331,7 +368,11 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
         ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
         _ => {}
     }
-    let has = |wanted: Tag| items.iter().any(|item| item.tag == ItemTag::Lexicon(wanted));
+    let has = |wanted: Tag| {
+        items
+            .iter()
+            .any(|item| item.tag == ItemTag::Lexicon(wanted))
+    };
     if has(Tag::Thanks) {
         Some(UtteranceKind::Thanks)
     } else if has(Tag::Greeting) {

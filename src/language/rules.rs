@@ -131,7 +131,8 @@ pub fn parse_rules(files: &[(String, String)]) -> Result<Vec<Rule>, GrammarError
             if line.is_empty() {
                 continue;
             }
-            let rule = parse_rule(line).map_err(|message| GrammarError::line(file, index + 1, message))?;
+            let rule =
+                parse_rule(line).map_err(|message| GrammarError::line(file, index + 1, message))?;
             if rules.iter().any(|existing| existing.name == rule.name) {
                 return Err(GrammarError::line(
                     file,
@@ -157,7 +158,9 @@ fn parse_rule(line: &str) -> Result<Rule, String> {
         .ok_or_else(|| "expected 'rule NAME: pattern => action'".to_string())?;
     let name = name.trim();
     if name.is_empty() || !name.chars().all(|c| c.is_ascii_lowercase() || c == '_') {
-        return Err(format!("rule name '{name}' must be lower case letters and underscores"));
+        return Err(format!(
+            "rule name '{name}' must be lower case letters and underscores"
+        ));
     }
     let (pattern, action_name) = rest
         .split_once("=>")
@@ -249,7 +252,9 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             (Symbol::NounPhrase, Some("quantified")) => Some(Filter::Quantified),
             (Symbol::NounPhrase, Some("deictic")) => Some(Filter::Deictic),
             (Symbol::Relation, Some(name)) => Some(Filter::Relation(parse_relation(name)?)),
-            (_, Some(name)) => return Err(format!("symbol '{symbol_name}' has no filter '{name}'")),
+            (_, Some(name)) => {
+                return Err(format!("symbol '{symbol_name}' has no filter '{name}'"))
+            }
         };
         alternatives.push(Alternative { symbol, filter });
     }
@@ -300,7 +305,11 @@ fn match_items<'rule>(
     };
     let chunk = chunks.get(position);
     if let Some(chunk) = chunk {
-        if item.alternatives.iter().any(|alternative| accepts(alternative, chunk)) {
+        if item
+            .alternatives
+            .iter()
+            .any(|alternative| accepts(alternative, chunk))
+        {
             let mark = roles.len();
             if let Some(role) = &item.role {
                 roles.push((role.as_str(), position));
@@ -318,13 +327,21 @@ fn match_items<'rule>(
 }
 
 /// The longest rule match at `position` (earlier rules win ties).
-pub fn best_match<'rule>(rules: &'rule [Rule], chunks: &[Chunk], position: usize) -> Option<Match<'rule>> {
+pub fn best_match<'rule>(
+    rules: &'rule [Rule],
+    chunks: &[Chunk],
+    position: usize,
+) -> Option<Match<'rule>> {
     let mut best: Option<Match<'rule>> = None;
     for rule in rules {
         let mut roles = Vec::new();
         if let Some(length) = match_items(&rule.items, chunks, position, &mut roles) {
             if length > 0 && best.as_ref().is_none_or(|current| length > current.length) {
-                best = Some(Match { rule, length, roles });
+                best = Some(Match {
+                    rule,
+                    length,
+                    roles,
+                });
             }
         }
     }
@@ -341,10 +358,15 @@ mod tests {
 
     #[test]
     fn rule_errors_name_the_line() {
-        let error = rules("# comment\nrule a: NP:np => exist\nrule b: NP:subject FLY => relation\n").unwrap_err();
+        let error =
+            rules("# comment\nrule a: NP:np => exist\nrule b: NP:subject FLY => relation\n")
+                .unwrap_err();
         assert_eq!(error.to_string(), "test.rules:3: unknown symbol 'FLY'");
         let error = rules("rule a: NP:subject BE => relation\n").unwrap_err();
-        assert!(error.to_string().contains("needs a ':relation' item"), "{error}");
+        assert!(
+            error.to_string().contains("needs a ':relation' item"),
+            "{error}"
+        );
         let error = rules("rule a: NP:np => exist\nrule a: NP:np => exist\n").unwrap_err();
         assert!(error.to_string().starts_with("test.rules:2:"), "{error}");
         assert!(rules("rule a: NP[tall]:np => exist\n").is_err());
@@ -352,7 +374,8 @@ mod tests {
 
     #[test]
     fn optional_items_and_alternatives_parse() {
-        let parsed = rules("rule r: NP[deictic]|WE BE REL[inside]? ROOM:room => room_type\n").unwrap();
+        let parsed =
+            rules("rule r: NP[deictic]|WE BE REL[inside]? ROOM:room => room_type\n").unwrap();
         assert_eq!(parsed[0].items[0].alternatives.len(), 2);
         assert!(parsed[0].items[2].optional);
         assert_eq!(

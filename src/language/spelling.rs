@@ -20,7 +20,9 @@ pub fn distance_within(left: &str, right: &str, limit: usize) -> Option<usize> {
         let mut row_minimum = current[0];
         for j in 1..=b.len() {
             let cost = usize::from(a[i - 1] != b[j - 1]);
-            let mut value = (previous[j] + 1).min(current[j - 1] + 1).min(previous[j - 1] + cost);
+            let mut value = (previous[j] + 1)
+                .min(current[j - 1] + 1)
+                .min(previous[j - 1] + cost);
             if i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] {
                 value = value.min(previous_previous[j - 2] + 1);
             }

@@ -175,11 +175,16 @@ pub fn tag_sentences(
             index += found.words;
             // "forty two", "forty-two": a tens word and a unit word make one number.
             if let Tag::Tens(tens) = found.tag {
-                if let Some(next) = words.get(index).filter(|next| next.shape == TokenShape::Word) {
+                if let Some(next) = words
+                    .get(index)
+                    .filter(|next| next.shape == TokenShape::Word)
+                {
                     if let Some(Found {
                         tag: Tag::Number(unit @ 1..=9),
                         words: 1,
-                    }) = lexicon.longest_phrase(&[next.text.as_str()]).map(Found::from)
+                    }) = lexicon
+                        .longest_phrase(&[next.text.as_str()])
+                        .map(Found::from)
                     {
                         item.tag = ItemTag::Lexicon(Tag::Number(tens + unit));
                         item.span = item.span.cover(next.span);
@@ -291,7 +296,8 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     for (candidate, tag) in lexicon.spelling_words() {
         if let Some(distance) = distance_within(word, candidate, SUGGESTION_LIMIT) {
             suggestions.push((distance, candidate));
-            if distance <= accept && best.is_none_or(|(best_distance, ..)| distance < best_distance) {
+            if distance <= accept && best.is_none_or(|(best_distance, ..)| distance < best_distance)
+            {
                 best = Some((distance, candidate, *tag));
             }
         }
@@ -356,7 +362,10 @@ pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<
                 for flag in removed.iter_mut().take(to).skip(from) {
                     *flag = true;
                 }
-                ignored.push((kept[from].span.cover(kept[to - 1].span), IgnoredReason::Stutter));
+                ignored.push((
+                    kept[from].span.cover(kept[to - 1].span),
+                    IgnoredReason::Stutter,
+                ));
                 position += length;
                 advanced = true;
                 break;
