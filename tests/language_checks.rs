@@ -364,6 +364,23 @@ fn spans_point_into_the_original_text_and_notes_explain_misspellings() {
 }
 
 #[test]
+fn removing_or_renaming_a_safety_class_asks_for_confirmation() {
+    let grammar = grammar();
+    let needs = |text: &str| {
+        grammar.parse(text, None).unwrap().notes.iter().any(|note| {
+            matches!(
+                note.kind,
+                sayso::language::NoteKind::NeedsConfirmation { .. }
+            )
+        })
+    };
+    assert!(needs("that's a towel, not a cat"));
+    assert!(needs("there are no people"));
+    assert!(!needs("that's a towel, not a mug"));
+    assert!(!needs("there is a dog"));
+}
+
+#[test]
 fn parsing_is_deterministic() {
     let grammar = grammar();
     let text = "that's a cabinet, not a fridge, and there are two chairs";

@@ -1,12 +1,10 @@
 //! The language stage's error types: grammar files that fail validation, and utterances the parser refuses.
 //!
-//! Owns: `GrammarError` (file and line of a bad grammar line) and `LanguageError` (carrying the span or length
-//! of the utterance it concerns).
+//! Owns: `GrammarError` (file and line of a bad grammar line) and `LanguageError` (carrying the length or
+//! text it concerns; everything else about an utterance is a note or an ignored span in the `Parse`).
 //! Must not: format for a particular front end; the CLI and service decide how to show these.
 
 use std::path::PathBuf;
-
-use super::constraint::Span;
 
 /// A grammar file (lexicon, rules or interval table) that could not be read or failed validation.
 #[derive(Debug, thiserror::Error)]
@@ -46,7 +44,4 @@ pub enum LanguageError {
     /// A focus string that is neither `object:ID` nor `pixel:X,Y`.
     #[error("focus '{text}' is not object:ID or pixel:X,Y")]
     BadFocus { text: String },
-    /// A span that does not lie inside the utterance (from a caller-supplied offset map).
-    #[error("span {}..{} lies outside the utterance", span.start, span.end)]
-    SpanOutside { span: Span },
 }

@@ -15,7 +15,7 @@ use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
 use super::chunks::{attach, chunk, repair, ChunkKind};
-use super::constraint::{Constraint, Focus, Span};
+use super::constraint::{Constraint, ConstraintKind, Focus, Span};
 use super::error::{GrammarError, LanguageError};
 use super::lexicon::{Lexicon, Tag};
 use super::normalise::normalise;
@@ -95,6 +95,11 @@ pub enum NoteKind {
     },
     NumberTooLarge {
         written: String,
+    },
+    /// The constraint would remove or rename a safety-critical class (a person, pet or hazard): the operator
+    /// must confirm it explicitly before it is applied.
+    NeedsConfirmation {
+        class: String,
     },
 }
 
@@ -322,6 +327,21 @@ impl Grammar {
         let mut constraints = builder.constraints;
         for constraint in &mut constraints {
             constraint.gloss = constraint_gloss(&constraint.kind, &self.taxonomy);
+            let removed = match &constraint.kind {
+                ConstraintKind::Relabel {
+                    from: Some(class), ..
+                }
+                | ConstraintKind::Absent { class } => Some(*class),
+                _ => None,
+            };
+            if let Some(class) = removed.filter(|class| self.taxonomy.is_safety_critical(*class)) {
+                notes.push(Note {
+                    span: constraint.span,
+                    kind: NoteKind::NeedsConfirmation {
+                        class: self.taxonomy.class_name(class).to_string(),
+                    },
+                });
+            }
         }
         let utterance_kind = if !constraints.is_empty() {
             UtteranceKind::Correction
