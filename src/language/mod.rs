@@ -21,6 +21,7 @@ pub mod constraint;
 pub mod conversation;
 pub mod error;
 pub mod lexicon;
+mod lexicon_syntax;
 pub mod normalise;
 pub mod notation;
 pub mod parse;

@@ -245,7 +245,7 @@ impl Grammar {
         })
     }
 
-    /// Adds site word files on top of this grammar's lexicon (same syntax as the lexicon files).
+    /// The same grammar with a different utterance length limit (in characters).
     pub fn with_length_limit(mut self, limit: usize) -> Grammar {
         self.length_limit = limit;
         self
