@@ -417,3 +417,13 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn the_grammar_directory_on_disk_reads_the_same_as_the_embedded_copy() {
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("grammar");
+    let loaded = Grammar::load(&root).expect("grammar directory");
+    let embedded = grammar();
+    assert_eq!(loaded.lexicon().phrases(), embedded.lexicon().phrases());
+    assert_eq!(loaded.rules(), embedded.rules());
+    assert_eq!(loaded.taxonomy(), embedded.taxonomy());
+}

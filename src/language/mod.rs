@@ -25,7 +25,7 @@ mod lexicon_syntax;
 pub mod normalise;
 pub mod notation;
 pub mod parse;
-mod rules;
+pub mod rules;
 pub mod spelling;
 mod tagging;
 pub mod tokens;
