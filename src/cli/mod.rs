@@ -10,6 +10,7 @@ mod demo;
 mod render;
 mod train;
 mod unaries;
+mod parse;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -34,6 +35,8 @@ pub enum Command {
     Train(train::TrainArgs),
     /// Turn per-pixel scores, a user ONNX model or a label map into per-segment unaries.
     Unaries(unaries::UnariesArgs),
+    /// Parse operator utterances into typed constraints (JSON and a gloss).
+    Parse(parse::ParseArgs),
 }
 
 /// Runs one subcommand.
@@ -44,5 +47,6 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
         Command::Render(args) => render::run(args),
         Command::Train(args) => train::run(args),
         Command::Unaries(args) => unaries::run(args),
+        Command::Parse(args) => parse::run(args),
     }
 }
