@@ -6,6 +6,10 @@
 use clap::{Parser, Subcommand};
 
 mod classes;
+mod demo;
+mod render;
+mod train;
+mod unaries;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -22,11 +26,23 @@ pub struct Arguments {
 pub enum Command {
     /// Print the class taxonomy.
     Classes(classes::ClassesArgs),
+    /// Draw what the robot believes about a demo scene (overlay picture and summary).
+    Demo(demo::DemoArgs),
+    /// Render scenes of the invented Juniper Lane flat with ground truth.
+    Render(render::RenderArgs),
+    /// Train the built-in segment classifier and write its ONNX file and model card.
+    Train(train::TrainArgs),
+    /// Turn per-pixel scores, a user ONNX model or a label map into per-segment unaries.
+    Unaries(unaries::UnariesArgs),
 }
 
 /// Runs one subcommand.
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Demo(args) => demo::run(args),
+        Command::Render(args) => render::run(args),
+        Command::Train(args) => train::run(args),
+        Command::Unaries(args) => unaries::run(args),
     }
 }

@@ -65,6 +65,8 @@ pub fn grid_scene(
                 mean_lab: lab[s as usize],
                 std_lab: Lab::default(),
                 mean_depth_mm: None,
+                depth_std_mm: None,
+                depth_pixels: 0,
             }
         })
         .collect();
