@@ -45,7 +45,10 @@ struct MaxFlowTimings {
 }
 
 fn fixture(file: &str) -> String {
-    let path = format!("{}/tests/fixtures/solver/{file}", env!("CARGO_MANIFEST_DIR"));
+    let path = format!(
+        "{}/tests/fixtures/solver/{file}",
+        env!("CARGO_MANIFEST_DIR")
+    );
     std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"))
 }
 

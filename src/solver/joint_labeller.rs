@@ -5,9 +5,10 @@
 //! `potts_lower_bound`.
 //! Must not: know about hypotheses, rooms or constraints; it sees a plain `LabellingProblem`.
 //!
-//! Until the shared alpha-expansion (`crate::solver::expansion`) lands, `label_segments` runs a small private
-//! alpha-expansion over a plain Dinic max-flow, rebuilt per move; the joint solver never relies on it being
-//! optimal, since it re-evaluates every candidate with the true energy and bounds separately.
+//! `label_segments` runs the shared alpha-expansion (`crate::solver::expansion`), warm-started. Should that
+//! reject a problem, a small private expansion over a plain Dinic max-flow with label pruning takes over, so
+//! a labelling is always returned; the joint solver never relies on either being optimal, since it
+//! re-evaluates every candidate with the true energy and bounds separately.
 
 use crate::solver::labelling::{LabellingProblem, LabellingResult};
 
@@ -109,6 +110,9 @@ impl FlowGraph {
 }
 
 const EPSILON: f64 = 1e-9;
+
+/// Use `crate::solver::expansion::alpha_expansion` first.
+const USE_SHARED_EXPANSION: bool = true;
 
 /// Labels a node may switch to: its `CANDIDATE_LABELS` cheapest by unary (label pruning, common practice for
 /// many-label Potts problems); the move is re-scored exactly, so pruning can only miss improvements.
@@ -304,6 +308,16 @@ pub(crate) fn label_segments(
         every_label = vec![true; problem.node_count * label_count];
         &every_label
     };
+    if USE_SHARED_EXPANSION {
+        let options = crate::solver::labelling::ExpansionOptions {
+            max_sweeps: MAX_SWEEPS,
+        };
+        if let Ok(result) =
+            crate::solver::expansion::alpha_expansion(problem, Some(&labels), &options)
+        {
+            return result;
+        }
+    }
     let mut scratch = Scratch::new(problem);
     let mut sweeps = 0;
     while sweeps < MAX_SWEEPS {
