@@ -29,10 +29,12 @@
 //! ```
 
 pub mod color;
+pub mod correction_log;
 pub mod ids;
 pub mod language;
 pub mod raster;
 pub mod scene;
+pub mod service;
 pub mod solver;
 pub mod taxonomy;
 pub mod unaries;

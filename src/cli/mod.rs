@@ -6,6 +6,9 @@
 use clap::{Parser, Subcommand};
 
 mod classes;
+mod export;
+mod field_notes;
+mod serve;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -22,11 +25,20 @@ pub struct Arguments {
 pub enum Command {
     /// Print the class taxonomy.
     Classes(classes::ClassesArgs),
+    /// Start the correction service.
+    Serve(serve::ServeArgs),
+    /// Write the accepted corrections as a training dataset directory.
+    Export(export::ExportArgs),
+    /// Apply a file of field notes to stored scenes and write a report.
+    FieldNotes(field_notes::FieldNotesArgs),
 }
 
 /// Runs one subcommand.
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Serve(args) => serve::run(args),
+        Command::Export(args) => export::run(args),
+        Command::FieldNotes(args) => field_notes::run(args),
     }
 }
