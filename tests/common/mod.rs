@@ -331,8 +331,14 @@ impl Corrector for GridEngine {
 
 /// Opens a coordinator with the grid engine on `data_dir`.
 pub fn open_grid_coordinator(data_dir: &Path) -> Arc<Coordinator> {
+    open_grid_coordinator_with(data_dir, sayso::raster::DEFAULT_PIXEL_LIMIT)
+}
+
+/// Opens a coordinator with the grid engine on `data_dir` and a pixel limit.
+pub fn open_grid_coordinator_with(data_dir: &Path, pixel_limit: u64) -> Arc<Coordinator> {
     let config = ServiceConfig {
         data_dir: data_dir.to_path_buf(),
+        pixel_limit,
         ..ServiceConfig::default()
     };
     Arc::new(
@@ -374,7 +380,7 @@ pub fn start_service(data_dir: &Path, mut config: ServiceConfig) -> RunningServi
     config.data_dir = data_dir.to_path_buf();
     config.bind = SocketAddr::from(([127, 0, 0, 1], 0));
     config.validate().expect("test config is valid");
-    let coordinator = open_grid_coordinator(data_dir);
+    let coordinator = open_grid_coordinator_with(data_dir, config.pixel_limit);
     let state = AppState::new(coordinator.clone(), config);
     let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
     let (ready, address) = std::sync::mpsc::channel();
