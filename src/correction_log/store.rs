@@ -581,3 +581,137 @@ impl CorrectionLog {
             .query_row("SELECT COUNT(*) FROM turns", [], |row| row.get(0))?)
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn state(byte: u8) -> StateRecord {
+        StateRecord {
+            labels_png: vec![byte; 8],
+            summary_json: format!("{{\"v\":{byte}}}"),
+            engine_state: vec![byte],
+        }
+    }
+
+    fn turn(conversation: ConversationKey, effect: TurnEffect) -> NewTurn<'static> {
+        NewTurn {
+            conversation,
+            kind: "utterance",
+            text: "that's the hall runner, not a towel",
+            focus_json: None,
+            status: "applied",
+            constraints_json: "[]",
+            result_json: "{}",
+            operator: "mira",
+            effect,
+        }
+    }
+
+    #[test]
+    fn a_stale_change_writes_nothing_and_earlier_rows_stay() {
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("log.sqlite");
+        let mut log = CorrectionLog::open(&path).unwrap();
+        let registered = state(1);
+        let (scene, first) = log
+            .register_scene(&NewScene {
+                name: "juniper-lane-hall",
+                image_png: &[7; 4],
+                input_json: "{}",
+                operator: "mira",
+                state: &registered,
+            })
+            .unwrap();
+        let conversation = log.open_conversation(scene, "mira").unwrap().key;
+        let new_version = |base| TurnEffect::NewVersion {
+            base,
+            state: state(2),
+            utterance: "that's the hall runner, not a towel".into(),
+            constraints_json: "[]".into(),
+        };
+        let (_, second) = log
+            .commit_turn(&turn(conversation, new_version(first)), Some((&[], &[])))
+            .unwrap();
+        let second = second.unwrap();
+        // A change worked out against the first version no longer fits.
+        let stale = log.commit_turn(&turn(conversation, new_version(first)), None);
+        assert!(matches!(stale, Err(LogError::Stale { .. })));
+        assert_eq!(log.turn_count().unwrap(), 1);
+        assert_eq!(log.scenes().unwrap()[0].head, second);
+        assert_eq!(log.training_examples().unwrap().len(), 1);
+        // An unknown conversation is refused without side effects.
+        let unknown = log.commit_turn(&turn(ConversationKey(99), TurnEffect::None), None);
+        assert!(matches!(unknown, Err(LogError::Missing { .. })));
+        drop(log);
+
+        // Reopened, everything is as committed, stacks included.
+        let log = CorrectionLog::open(&path).unwrap();
+        assert_eq!(log.integrity_check().unwrap(), "ok");
+        assert_eq!(log.version(second).unwrap(), (state(2), Some(first)));
+        assert_eq!(log.conversations().unwrap()[0].applied_stack, vec![second]);
+        let example = &log.training_examples().unwrap()[0];
+        assert_eq!(log.blob(&example.labels_before_hash).unwrap(), vec![1; 8]);
+        assert_eq!(log.blob(&example.labels_after_hash).unwrap(), vec![2; 8]);
+        assert_eq!(example.row_schema, LOG_SCHEMA_VERSION);
+        let pragma: String = log
+            .connection
+            .query_row("PRAGMA journal_mode", [], |row| row.get(0))
+            .unwrap();
+        assert_eq!(pragma, "wal");
+        // synchronous = FULL is 2 in SQLite's numbering (sqlite.org, "PRAGMA synchronous").
+        let synchronous: i64 = log
+            .connection
+            .query_row("PRAGMA synchronous", [], |row| row.get(0))
+            .unwrap();
+        assert_eq!(synchronous, 2);
+    }
+
+    #[test]
+    fn undo_moves_the_head_and_withdraws_the_example() {
+        let directory = tempfile::tempdir().unwrap();
+        let mut log = CorrectionLog::open(&directory.path().join("log.sqlite")).unwrap();
+        let registered = state(1);
+        let (scene, first) = log
+            .register_scene(&NewScene {
+                name: "juniper-lane-bath",
+                image_png: &[3; 4],
+                input_json: "{}",
+                operator: "ola",
+                state: &registered,
+            })
+            .unwrap();
+        let conversation = log.open_conversation(scene, "ola").unwrap().key;
+        let (_, second) = log
+            .commit_turn(
+                &turn(
+                    conversation,
+                    TurnEffect::NewVersion {
+                        base: first,
+                        state: state(5),
+                        utterance: "a towel".into(),
+                        constraints_json: "[]".into(),
+                    },
+                ),
+                Some((&[], &[])),
+            )
+            .unwrap();
+        let second = second.unwrap();
+        log.commit_turn(
+            &turn(
+                conversation,
+                TurnEffect::MoveHead {
+                    from: second,
+                    to: first,
+                    deactivate: Some(second),
+                    activate: None,
+                },
+            ),
+            Some((&[], &[second])),
+        )
+        .unwrap();
+        assert_eq!(log.scenes().unwrap()[0].head, first);
+        assert!(log.training_examples().unwrap().is_empty());
+        assert_eq!(log.conversations().unwrap()[0].redo_stack, vec![second]);
+    }
+}

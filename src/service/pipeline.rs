@@ -278,11 +278,32 @@ fn target_pixels(
     }
 }
 
-fn regions_containing(labels: &IndexImage, index: usize) -> Option<Vec<usize>> {
-    regions(labels)
-        .into_iter()
-        .find(|(_, members)| members.contains(&index))
-        .map(|(_, members)| members)
+/// The 4-connected region of equal label around pixel `start` (a flood fill from that pixel only).
+fn regions_containing(labels: &IndexImage, start: usize) -> Option<Vec<usize>> {
+    let width = labels.width as usize;
+    let height = labels.height as usize;
+    let label = *labels.values.get(start)?;
+    let mut seen = vec![false; labels.values.len()];
+    let mut members = Vec::new();
+    let mut queue = VecDeque::from([start]);
+    seen[start] = true;
+    while let Some(index) = queue.pop_front() {
+        members.push(index);
+        let (x, y) = (index % width, index / width);
+        let neighbours = [
+            (x > 0).then(|| index - 1),
+            (x + 1 < width).then(|| index + 1),
+            (y > 0).then(|| index - width),
+            (y + 1 < height).then(|| index + width),
+        ];
+        for neighbour in neighbours.into_iter().flatten() {
+            if !seen[neighbour] && labels.values[neighbour] == label {
+                seen[neighbour] = true;
+                queue.push_back(neighbour);
+            }
+        }
+    }
+    Some(members)
 }
 
 impl Corrector for LabelMapCorrector {
@@ -449,5 +470,104 @@ impl Corrector for LabelMapCorrector {
                 changes,
             ))
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::raster::RgbImage;
+    use crate::service::corrector::SceneHandle;
+
+    fn npy(shape: (u32, u32, usize), values: &[f32]) -> Vec<u8> {
+        // NPY format 1.0 (numpy.lib.format): magic, version, little-endian header length, dict, data.
+        let header = format!(
+            "{{'descr': '<f4', 'fortran_order': False, 'shape': ({}, {}, {}), }}",
+            shape.0, shape.1, shape.2
+        );
+        let mut padded = header.into_bytes();
+        while (10 + padded.len() + 1) % 64 != 0 {
+            padded.push(b' ');
+        }
+        padded.push(b'\n');
+        let mut bytes = b"\x93NUMPY\x01\x00".to_vec();
+        bytes.extend_from_slice(&(padded.len() as u16).to_le_bytes());
+        bytes.extend_from_slice(&padded);
+        for value in values {
+            bytes.extend_from_slice(&value.to_le_bytes());
+        }
+        bytes
+    }
+
+    fn input(labels: Option<IndexImage>, scores: Option<Vec<u8>>) -> SceneInput {
+        SceneInput {
+            name: "juniper-lane-study".into(),
+            image: RgbImage::filled(2, 1, [10, 20, 30]),
+            depth: None,
+            scores_npy: scores,
+            label_map: labels,
+            detections: Vec::new(),
+            room: None,
+        }
+    }
+
+    #[test]
+    fn scores_are_read_as_the_per_pixel_arg_max_and_bad_npy_is_named() {
+        let corrector = LabelMapCorrector::embedded();
+        let classes = corrector.taxonomy().class_count();
+        let mut values = vec![0.0f32; 2 * classes];
+        values[21] = 5.0; // pixel 0: mug
+        values[classes + 37] = 5.0; // pixel 1: towel
+        let state = corrector
+            .register(&input(None, Some(npy((1, 2, classes), &values))))
+            .unwrap();
+        assert_eq!(state.labels.values, vec![21, 37]);
+        let wrong_shape = corrector.register(&input(None, Some(npy((2, 2, classes), &values))));
+        assert!(matches!(wrong_shape, Err(CorrectorError::BadInput { .. })));
+        let garbage = corrector.register(&input(None, Some(b"\x93NUMPY\x09".to_vec())));
+        assert!(matches!(garbage, Err(CorrectorError::BadInput { .. })));
+    }
+
+    #[test]
+    fn a_safety_class_waits_and_other_classes_apply() {
+        let corrector = LabelMapCorrector::embedded();
+        let taxonomy = corrector.taxonomy();
+        let cat = taxonomy.class_by_name("cat").unwrap().id.0;
+        let labels = IndexImage {
+            width: 2,
+            height: 1,
+            values: vec![cat, 0],
+        };
+        let state = corrector.register(&input(Some(labels), None)).unwrap();
+        let image = RgbImage::filled(2, 1, [0, 0, 0]);
+        let ask = |utterance: &str, focus| {
+            corrector
+                .apply(&CorrectionRequest {
+                    scene: SceneHandle(1),
+                    image: &image,
+                    state: &state,
+                    history: &[],
+                    utterance,
+                    focus,
+                })
+                .unwrap()
+        };
+        let renamed = ask("that's a towel, not a cat", None);
+        assert!(matches!(renamed.verdict, Verdict::NeedsConfirmation { .. }));
+        assert_eq!(renamed.constraints[0].gloss, "towel is not cat");
+        let floor = ask("It's a RUG", Some(Focus::Pixel { x: 1, y: 0 }));
+        let rug = taxonomy.class_by_name("rug").unwrap().id.0;
+        match floor.verdict {
+            Verdict::Applied(next) => assert_eq!(next.labels.values, vec![cat, rug]),
+            other => panic!("expected the rug to apply, got {other:?}"),
+        }
+        assert!(matches!(
+            ask("hmm, no idea", None).verdict,
+            Verdict::NotUnderstood { .. }
+        ));
+        assert!(matches!(
+            ask("that's a mug", None).verdict,
+            Verdict::NeedsClarification { .. }
+        ));
     }
 }
