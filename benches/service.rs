@@ -7,7 +7,6 @@
 //! also times one utterance round trip.
 
 #[path = "../tests/common/mod.rs"]
-#[allow(dead_code)]
 mod common;
 
 use std::net::SocketAddr;
@@ -95,7 +94,7 @@ fn utterance(address: SocketAddr, conversation: i64, step: u32) -> Duration {
         (cell % CELLS) * CELL_WIDTH + 3,
         (cell / CELLS) * CELL_HEIGHT + 3,
     );
-    let text = if (step / (CELLS * CELLS)) % 2 == 0 {
+    let text = if (step / (CELLS * CELLS)).is_multiple_of(2) {
         "that's a mug"
     } else {
         "no, a towel"
