@@ -6,8 +6,8 @@
 //! 200 requests/s against 30 ms. Request counts are bounded; the run stops by itself. A criterion group
 //! also times one utterance round trip.
 
-#[path = "../tests/common/mod.rs"]
-mod common;
+#[path = "../tests/service_support/mod.rs"]
+mod service_support;
 
 use std::net::SocketAddr;
 use std::sync::Arc;
@@ -78,7 +78,7 @@ fn start(conversation_count: usize) -> Bench {
     runtime.spawn(sayso::service::run(listener, state, std::future::pending()));
     // One scene per conversation, so conversations do not queue behind each other's scene lock.
     let conversations = (0..conversation_count)
-        .map(|_| common::scene_and_conversation(address, None, &four_hundred_segments()).1)
+        .map(|_| service_support::scene_and_conversation(address, None, &four_hundred_segments()).1)
         .collect();
     Bench {
         address,
@@ -101,7 +101,7 @@ fn utterance(address: SocketAddr, conversation: i64, step: u32) -> Duration {
     };
     let body = serde_json::json!({"text": text, "focus": {"type": "pixel", "x": x, "y": y}});
     let started = Instant::now();
-    let reply = common::send_json(
+    let reply = service_support::send_json(
         address,
         "POST",
         &format!("/v1/conversations/{conversation}/utterances"),

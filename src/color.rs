@@ -120,6 +120,24 @@ pub fn lab_to_srgb8(lab: Lab) -> [u8; 3] {
     rgb
 }
 
+/// `lab_f` in single precision with a fast cube root, for whole-image conversion.
+#[inline]
+fn lab_f_fast(t: f32) -> f32 {
+    const DELTA: f32 = 6.0 / 29.0;
+    if t > DELTA * DELTA * DELTA {
+        // Cube root: a bit-level first guess (exponent divided by three), then two Halley steps,
+        // each of which roughly triples the number of correct digits; the result is within f32 rounding.
+        let mut root = f32::from_bits(t.to_bits() / 3 + 709_921_077);
+        for _ in 0..2 {
+            let cube = root * root * root;
+            root *= (cube + t + t) / (cube + cube + t);
+        }
+        root
+    } else {
+        t / (3.0 * DELTA * DELTA) + 4.0 / 29.0
+    }
+}
+
 /// A lookup table from each 8-bit sRGB channel value to its linear value, for fast whole-image conversion.
 pub struct LabConverter {
     linear: [f32; 256],
@@ -150,9 +168,9 @@ impl LabConverter {
         let x = (0.412_453 * r + 0.357_580 * g + 0.180_423 * b) / D65_WHITE[0] as f32;
         let y = 0.212_671 * r + 0.715_160 * g + 0.072_169 * b;
         let z = (0.019_334 * r + 0.119_193 * g + 0.950_227 * b) / D65_WHITE[2] as f32;
-        let fx = lab_f(x as f64) as f32;
-        let fy = lab_f(y as f64) as f32;
-        let fz = lab_f(z as f64) as f32;
+        let fx = lab_f_fast(x);
+        let fy = lab_f_fast(y);
+        let fz = lab_f_fast(z);
         Lab {
             l: 116.0 * fy - 16.0,
             a: 500.0 * (fx - fy),

@@ -1,11 +1,11 @@
 //! Bad input over HTTP: each case gets the right status and stable error code in the JSON error shape,
 //! and the service still serves the next request.
 
-mod common;
+mod service_support;
 
-use common::*;
 use sayso::raster::IndexImage;
 use sayso::service::config::{OperatorToken, ServiceConfig};
+use service_support::*;
 
 const TOKEN: &str = "juniper-lane-mira-0001";
 

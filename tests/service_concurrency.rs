@@ -1,13 +1,13 @@
 //! Many conversations at once, on different scenes and on the same scene: no update is lost, and every
 //! scene's final labels are exactly the union of the corrections that were acknowledged.
 
-mod common;
+mod service_support;
 
 use std::collections::HashMap;
 
-use common::*;
 use sayso::raster::{self, IndexImage};
 use sayso::service::config::ServiceConfig;
+use service_support::*;
 
 const MUG: u16 = 21;
 const TOWEL: u16 = 37;

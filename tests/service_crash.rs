@@ -2,7 +2,7 @@
 //! corrections; after each restart every acknowledged correction is present and the database passes
 //! `PRAGMA integrity_check`. Several cycles, bounded in time.
 
-mod common;
+mod service_support;
 
 use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;
@@ -11,8 +11,8 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-use common::*;
 use sayso::raster::{self, IndexImage};
+use service_support::*;
 
 const WALL: u16 = 1;
 const FLOOR: u16 = 0;

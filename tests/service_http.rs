@@ -1,11 +1,11 @@
 //! End-to-end over real HTTP on loopback: register, read, converse, confirm, undo, redo, history,
 //! metrics, OpenAPI; then a restart restores everything, and the export and field notes read the log.
 
-mod common;
+mod service_support;
 
-use common::*;
 use sayso::raster::{self, IndexImage};
 use sayso::service::config::ServiceConfig;
+use service_support::*;
 
 const CAT: u16 = 40;
 const TOWEL: u16 = 37;

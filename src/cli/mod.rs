@@ -6,9 +6,13 @@
 use clap::{Parser, Subcommand};
 
 mod classes;
+mod demo;
 mod export;
 mod field_notes;
+mod render;
 mod serve;
+mod train;
+mod unaries;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -25,6 +29,14 @@ pub struct Arguments {
 pub enum Command {
     /// Print the class taxonomy.
     Classes(classes::ClassesArgs),
+    /// Draw what the robot believes about a demo scene (overlay picture and summary).
+    Demo(demo::DemoArgs),
+    /// Render scenes of the invented Juniper Lane flat with ground truth.
+    Render(render::RenderArgs),
+    /// Train the built-in segment classifier and write its ONNX file and model card.
+    Train(train::TrainArgs),
+    /// Turn per-pixel scores, a user ONNX model or a label map into per-segment unaries.
+    Unaries(unaries::UnariesArgs),
     /// Start the correction service.
     Serve(serve::ServeArgs),
     /// Write the accepted corrections as a training dataset directory.
@@ -37,6 +49,10 @@ pub enum Command {
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Demo(args) => demo::run(args),
+        Command::Render(args) => render::run(args),
+        Command::Train(args) => train::run(args),
+        Command::Unaries(args) => unaries::run(args),
         Command::Serve(args) => serve::run(args),
         Command::Export(args) => export::run(args),
         Command::FieldNotes(args) => field_notes::run(args),

@@ -5,6 +5,11 @@
 //! Must not: know about classes' meanings, unaries, language or the solver. Features for the classifier live
 //! in `crate::features`, superpixels in `crate::slic`.
 
+pub mod build;
+pub mod coarse;
+pub mod error;
+pub mod io;
+
 use std::sync::Arc;
 
 use petgraph::graph::UnGraph;
@@ -13,6 +18,29 @@ use serde::{Deserialize, Serialize};
 use crate::color::Lab;
 use crate::ids::{RegionId, RoomId, SegmentId};
 use crate::raster::{DepthImage, RgbImage};
+use crate::slic::SlicParams;
+
+pub use error::SceneError;
+pub use io::{load_label_map, load_scene_dir, SceneMetadata};
+
+/// How a scene is cut into segments and regions.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SceneParams {
+    /// Superpixel settings for the fine segments.
+    pub superpixels: SlicParams,
+    /// The coarse level aims at one region per this many fine segments (at least 1).
+    pub segments_per_region: u32,
+}
+
+impl Default for SceneParams {
+    /// SLIC defaults (400 segments) and about 8 fine segments per coarse region.
+    fn default() -> Self {
+        SceneParams {
+            superpixels: SlicParams::default(),
+            segments_per_region: 8,
+        }
+    }
+}
 
 /// An axis-aligned box in pixel coordinates: `x0..x1` columns and `y0..y1` rows (end exclusive).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
@@ -82,6 +110,12 @@ pub struct SegmentStats {
     pub std_lab: Lab,
     /// Mean depth in millimetres over pixels with a reading, when a depth map exists.
     pub mean_depth_mm: Option<f32>,
+    /// Standard deviation of depth in millimetres over pixels with a reading, when a depth map exists.
+    #[serde(default)]
+    pub depth_std_mm: Option<f32>,
+    /// Pixels of the segment with a depth reading (0 when there is no depth map).
+    #[serde(default)]
+    pub depth_pixels: u32,
 }
 
 /// One edge of the region adjacency graph.

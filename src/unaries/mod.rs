@@ -1,11 +1,33 @@
 //! Scene unaries: for every segment, a calibrated log-probability for every class.
 //!
 //! Owns: the `Unaries` value and the sources that produce it (built-in ONNX classifier, NPY scores, a user
-//! ONNX model, label maps) plus detections that seed object hypotheses.
+//! ONNX model, label maps) plus detections that seed object hypotheses; the classifier's trainer,
+//! calibration and evaluation metrics.
 //! Must not: know about language, constraints or the solver; it only scores segments.
+
+pub mod byo;
+pub mod byo_detections;
+pub mod byo_label_map;
+pub mod byo_npy;
+pub mod byo_pixel_scores;
+pub mod byo_user_model;
+pub mod calibration;
+pub mod classifier;
+pub mod contract;
+pub mod dataset;
+pub mod metrics;
+pub mod mlp;
+pub mod model_card;
+pub mod onnx_writer;
+pub mod pooling;
+pub mod rng;
+pub mod trainer;
 
 use ndarray::Array2;
 use serde::{Deserialize, Serialize};
+
+pub use classifier::{Classifier, ClassifierError};
+pub use contract::{FeatureLayout, ModelContract};
 
 /// Where a set of unaries came from.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]

@@ -1,0 +1,186 @@
+//! `sayso train`: trains the segment classifier and writes the ONNX file and its model card.
+//!
+//! Owns: the flags, reading the training data named on the command line, printing a summary.
+//! Must not: implement training or ONNX writing; those are `sayso::unaries::trainer` and `onnx_writer`.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use anyhow::{bail, Context};
+use clap::{Args, ValueEnum};
+
+use sayso::taxonomy::Taxonomy;
+use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use sayso::unaries::dataset::read_feature_csv;
+use sayso::unaries::model_card::ModelCard;
+use sayso::unaries::onnx_writer::encode_model;
+use sayso::unaries::trainer::{
+    split_for_validation, train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode,
+};
+
+/// The network shape.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ModeFlag {
+    /// Multinomial logistic regression (no hidden layer).
+    Softmax,
+    /// A small multilayer perceptron (ReLU hidden layers).
+    Mlp,
+}
+
+/// How the weight penalty is applied.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum PenaltyFlag {
+    /// Decoupled weight decay (AdamW).
+    Decoupled,
+    /// An L2 term in the loss.
+    L2,
+}
+
+#[derive(Debug, Args)]
+pub struct TrainArgs {
+    /// A dataset directory of scene subdirectories (image.png + labels.png each).
+    #[arg(long, conflicts_with = "feature_matrix")]
+    pub data: Option<PathBuf>,
+    /// Render this many training scenes instead of reading --data.
+    #[arg(long)]
+    pub render: Option<u32>,
+    /// First renderer seed for --render (must be outside the demo scenes' seed range).
+    #[arg(long, default_value_t = 100_000)]
+    pub seed_base: u64,
+    /// An exported feature matrix (CSV: class index, then features) to train on directly.
+    #[arg(long)]
+    pub feature_matrix: Option<PathBuf>,
+    /// Feature layout version to record for --feature-matrix data.
+    #[arg(long, default_value_t = 0)]
+    pub feature_layout_version: u32,
+    /// Output directory for segment_classifier.onnx and README.md.
+    #[arg(long, default_value = "models")]
+    pub out: PathBuf,
+    #[arg(long, value_enum, default_value_t = ModeFlag::Mlp)]
+    pub mode: ModeFlag,
+    /// Hidden layer width(s) for --mode mlp; repeat for two layers.
+    #[arg(long, default_values_t = [64])]
+    pub hidden: Vec<usize>,
+    #[arg(long, default_value_t = 200)]
+    pub epochs: usize,
+    #[arg(long, default_value_t = 128)]
+    pub batch_size: usize,
+    #[arg(long, default_value_t = 3e-3)]
+    pub learning_rate: f32,
+    /// Penalty strength lambda on weights.
+    #[arg(long, default_value_t = 1e-4)]
+    pub weight_decay: f32,
+    #[arg(long, value_enum, default_value_t = PenaltyFlag::Decoupled)]
+    pub penalty: PenaltyFlag,
+    /// Epochs without validation improvement before stopping.
+    #[arg(long, default_value_t = 20)]
+    pub patience: usize,
+    /// Fraction of rows held out for early stopping and calibration.
+    #[arg(long, default_value_t = 0.2)]
+    pub validation_fraction: f64,
+    /// Weight every class equally instead of every row.
+    #[arg(long, default_value_t = true, action = clap::ArgAction::Set)]
+    pub class_balanced: bool,
+    #[arg(long, default_value_t = 7)]
+    pub seed: u64,
+}
+
+pub fn run(args: TrainArgs) -> anyhow::Result<()> {
+    let taxonomy = Taxonomy::embedded();
+    let started = Instant::now();
+    let (data, description, layout_version) = if let Some(path) = &args.feature_matrix {
+        let (features, labels) = read_feature_csv(path)?;
+        (
+            LabelledFeatures { features, labels },
+            format!("Exported feature matrix `{}`.", path.display()),
+            args.feature_layout_version,
+        )
+    } else if args.data.is_some() || args.render.is_some() {
+        bail!(
+            "training from scene directories needs the segment feature stage, which this build does not include yet; \
+             export a feature matrix and pass --feature-matrix"
+        );
+    } else {
+        bail!("give --data DIR, --render N or --feature-matrix FILE");
+    };
+    if !(0.0..1.0).contains(&args.validation_fraction) || args.validation_fraction == 0.0 {
+        bail!("--validation-fraction must be between 0 and 1");
+    }
+    let (training, validation) = split_for_validation(&data, args.validation_fraction, args.seed);
+    let config = TrainingConfig {
+        mode: match args.mode {
+            ModeFlag::Softmax => TrainingMode::SoftmaxRegression,
+            ModeFlag::Mlp => TrainingMode::Mlp {
+                hidden: args.hidden.clone(),
+            },
+        },
+        max_epochs: args.epochs,
+        batch_size: args.batch_size,
+        learning_rate: args.learning_rate,
+        weight_decay: args.weight_decay,
+        regularisation: match args.penalty {
+            PenaltyFlag::Decoupled => Regularisation::DecoupledWeightDecay,
+            PenaltyFlag::L2 => Regularisation::L2,
+        },
+        patience: args.patience,
+        class_balanced: args.class_balanced,
+        seed: args.seed,
+        show_progress: true,
+    };
+    let outcome = train(&training, &validation, taxonomy.class_count(), &config)?;
+    let contract = ModelContract {
+        format_version: MODEL_FORMAT_VERSION,
+        class_names: taxonomy
+            .classes()
+            .iter()
+            .map(|class| class.name.clone())
+            .collect(),
+        feature_layout_version: layout_version,
+        feature_means: outcome.mlp.feature_means.to_vec(),
+        feature_stds: outcome.mlp.feature_stds.to_vec(),
+        temperature: outcome.mlp.temperature,
+    };
+    let bytes = encode_model(&outcome.mlp, &contract)?;
+    std::fs::create_dir_all(&args.out)
+        .with_context(|| format!("creating {}", args.out.display()))?;
+    let model_path = args.out.join("segment_classifier.onnx");
+    std::fs::write(&model_path, &bytes)
+        .with_context(|| format!("writing {}", model_path.display()))?;
+    let command: Vec<String> = std::env::args().collect();
+    let card = ModelCard {
+        command: command.join(" "),
+        training_data: description,
+        mode: match &config.mode {
+            TrainingMode::SoftmaxRegression => "softmax regression".to_string(),
+            TrainingMode::Mlp { hidden } => format!("MLP, hidden layers {hidden:?}"),
+        },
+        feature_layout_version: layout_version,
+        feature_count: outcome.mlp.feature_count(),
+        class_count: outcome.mlp.class_count(),
+        parameter_count: outcome.mlp.parameter_count(),
+        file_bytes: bytes.len(),
+        training_rows: training.len(),
+        validation_rows: validation.len(),
+        epochs_run: outcome.epochs_run,
+        best_epoch: outcome.best_epoch,
+        training_seconds: started.elapsed().as_secs_f64(),
+        training_accuracy: outcome.training_accuracy,
+        validation_accuracy: outcome.validation_accuracy,
+        calibration: outcome.calibration,
+        evaluation: None,
+    };
+    let card_path = args.out.join("README.md");
+    std::fs::write(&card_path, card.to_markdown())
+        .with_context(|| format!("writing {}", card_path.display()))?;
+    let c = outcome.calibration;
+    println!(
+        "wrote {} ({} bytes): validation accuracy {:.2}%, temperature {:.3}, ECE {:.4} -> {:.4}",
+        model_path.display(),
+        bytes.len(),
+        100.0 * outcome.validation_accuracy,
+        c.temperature,
+        c.ece_before,
+        c.ece_after
+    );
+    Ok(())
+}
