@@ -7,7 +7,10 @@ use clap::{Parser, Subcommand};
 
 mod classes;
 mod demo;
+mod export;
+mod field_notes;
 mod render;
+mod serve;
 mod train;
 mod unaries;
 mod parse;
@@ -37,6 +40,12 @@ pub enum Command {
     Unaries(unaries::UnariesArgs),
     /// Parse operator utterances into typed constraints (JSON and a gloss).
     Parse(parse::ParseArgs),
+    /// Start the correction service.
+    Serve(serve::ServeArgs),
+    /// Write the accepted corrections as a training dataset directory.
+    Export(export::ExportArgs),
+    /// Apply a file of field notes to stored scenes and write a report.
+    FieldNotes(field_notes::FieldNotesArgs),
 }
 
 /// Runs one subcommand.
@@ -48,5 +57,8 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
         Command::Train(args) => train::run(args),
         Command::Unaries(args) => unaries::run(args),
         Command::Parse(args) => parse::run(args),
+        Command::Serve(args) => serve::run(args),
+        Command::Export(args) => export::run(args),
+        Command::FieldNotes(args) => field_notes::run(args),
     }
 }
