@@ -16,7 +16,7 @@
 //! | 14      | `texture`                 | mean gradient magnitude of L* inside the segment, central differences |
 //! |         |                           | with clamped borders (L* units per pixel)                             |
 //! | 15, 16  | `centroid_x`, `centroid_y`| centre of mass over image width / height (0..1)                       |
-//! | 17, 18  | `bbox_width`, `bbox_height`| bounding box width / image width, height / image height (0..1]      |
+//! | 17, 18  | `bbox_width`, `bbox_height` | box width / image width, box height / image height (0..1]        |
 //! | 19      | `area`                    | segment pixels / image pixels (0..1]                                  |
 //! | 20      | `eccentricity`            | sqrt(1 - lambda_min / lambda_max) of the pixel-coordinate covariance  |
 //! |         |                           | (0 = round, towards 1 = elongated; 0 for a single pixel)              |

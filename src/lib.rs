@@ -29,12 +29,21 @@
 //! ```
 
 pub mod color;
+pub mod correction_log;
+pub mod demo;
+pub mod energy;
 pub mod features;
 pub mod geometry;
+pub mod grounding;
+pub mod hypotheses;
 pub mod ids;
 pub mod language;
+pub mod overlay;
 pub mod raster;
+pub mod render;
 pub mod scene;
+pub mod scenegraph;
+pub mod service;
 pub mod slic;
 pub mod solver;
 pub mod taxonomy;

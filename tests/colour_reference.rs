@@ -6,8 +6,9 @@
 //! Sources: the sRGB transfer function and matrix of IEC 61966-2-1, the CIE 1976 L*a*b* formulas of
 //! CIE 15:2004, and scikit-image's `skimage.color.rgb2lab`, which implements both. scikit-image uses the
 //! rounded CIE constants 0.008856 and 7.787 for the cube-root threshold and slope where we use the exact
-//! (6/29)^3 and 1/(3 (6/29)^2); the two differ by under 1e-4 in L*a*b* units, so the tolerance below
-//! (2e-3 for the double-precision path) covers that plus the fixture's six decimals. The fast per-pixel
+//! (6/29)^3 and 1/(3 (6/29)^2); on these cases the two differ by at most 1.3e-4 in L*a*b* units (worked
+//! out by hand in Python from the same formulas), so the tolerance below
+//! (5e-4 for the double-precision path) covers that plus the fixture's six decimals. The fast per-pixel
 //! converter works in `f32` and is held to 1e-2.
 
 use sayso::color::{srgb8_to_lab, srgb8_to_lab_f64, LabConverter};
@@ -40,7 +41,7 @@ fn double_precision_conversion_matches_scikit_image_rgb2lab() {
         for channel in 0..3 {
             let difference = (ours[channel] - case.lab[channel]).abs();
             assert!(
-                difference < 2e-3,
+                difference < 5e-4,
                 "{:?}: ours {ours:?}, scikit-image {:?} (channel {channel} off by {difference})",
                 case.rgb,
                 case.lab

@@ -371,3 +371,37 @@ fn label_maps_are_checked_against_the_taxonomy() {
     .unwrap_err();
     assert!(matches!(error, SceneError::MissingFile { .. }), "{error}");
 }
+
+proptest::proptest! {
+    #[test]
+    fn any_small_image_and_target_gives_a_scene_or_a_typed_error(
+        width in 0u32..7,
+        height in 0u32..7,
+        target in 0u32..60,
+        colour in proptest::prelude::any::<[u8; 3]>(),
+    ) {
+        let image = small_room(width, height);
+        let mut tinted = image.clone();
+        if let Some(pixel) = tinted.pixels.first_mut() {
+            *pixel = colour;
+        }
+        match SlicParams::new(target, 10.0, 10) {
+            Err(_) => proptest::prop_assert_eq!(target, 0),
+            Ok(superpixels) => {
+                let params = SceneParams { superpixels, segments_per_region: 8 };
+                match Scene::from_image("tiny", tinted, None, None, &params) {
+                    Ok(scene) => {
+                        proptest::prop_assert!(u64::from(target) <= u64::from(width * height));
+                        let features = segment_features(&scene);
+                        proptest::prop_assert_eq!(features.nrows(), scene.segment_count());
+                        proptest::prop_assert!(features.iter().all(|value| value.is_finite()));
+                    }
+                    Err(error) => proptest::prop_assert!(
+                        matches!(error, SceneError::Superpixels { .. }),
+                        "{}", error
+                    ),
+                }
+            }
+        }
+    }
+}

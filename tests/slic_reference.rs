@@ -3,7 +3,9 @@
 //! Owns: the comparison of our superpixels with scikit-image 0.26 `skimage.segmentation.slic`
 //! (n_segments=400, compactness=10, max_num_iter=10, sigma=0, convert2lab, enforce_connectivity,
 //! start_label=0), whose segment counts, label maps and metric values `tests/fixtures/slic/make_slic.py`
-//! wrote to `tests/fixtures/slic/`.
+//! wrote to `tests/fixtures/slic/`: two scikit-image sample images (astronaut, coffee), a synthetic room with
+//! an exact region map, and every demo scene under `demo_scenes/` (ground-truth regions = distinct
+//! (class, instance) pairs of its labels.png and instances.png).
 //! Must not: regenerate fixtures or time anything (timing lives in benches/slic.rs).
 //!
 //! Checks: our segment count is within 15% of the 400 requested; our boundary recall at 2 pixels (Martin et
@@ -11,6 +13,7 @@
 //! ground truth; our Rust metrics reproduce the script's numpy figures on scikit-image's own segments. The
 //! under-segmentation error (Neubert and Protzel 2012 form) of both is printed beside the recall.
 
+use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 
 use sayso::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
@@ -30,27 +33,47 @@ struct Reference {
 struct ReferenceImage {
     name: String,
     image: String,
-    skimage_labels: String,
+    skimage_labels: Option<String>,
     skimage_segment_count: u32,
     truth: Option<String>,
+    /// When present, a ground-truth region is a (class in `truth`, instance in this map) pair.
+    truth_instances: Option<String>,
     skimage_boundary_recall: Option<f64>,
     skimage_undersegmentation_error: Option<f64>,
 }
 
-fn fixture_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/slic")
+/// Paths in the reference are relative to the repository root.
+fn repository_path(relative: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(relative)
 }
 
 fn reference() -> Reference {
-    let text = std::fs::read_to_string(fixture_dir().join("reference.json"))
+    let text = std::fs::read_to_string(repository_path("tests/fixtures/slic/reference.json"))
         .expect("the committed SLIC reference exists");
     serde_json::from_str(&text).expect("the committed SLIC reference parses")
 }
 
 fn labels_of(file: &str) -> Vec<u32> {
-    let map = read_index_png(&fixture_dir().join(file), DEFAULT_PIXEL_LIMIT)
+    let map = read_index_png(&repository_path(file), DEFAULT_PIXEL_LIMIT)
         .unwrap_or_else(|error| panic!("{error}"));
     map.values.into_iter().map(u32::from).collect()
+}
+
+/// Ground-truth regions: the truth map itself, or one region per (class, instance) pair.
+fn truth_regions(truth: &str, instances: Option<&str>) -> Vec<u32> {
+    let classes = labels_of(truth);
+    let Some(instances) = instances else {
+        return classes;
+    };
+    let mut region_of_pair = HashMap::new();
+    classes
+        .iter()
+        .zip(labels_of(instances))
+        .map(|(&class, instance)| {
+            let next = region_of_pair.len() as u32;
+            *region_of_pair.entry((class, instance)).or_insert(next)
+        })
+        .collect()
 }
 
 #[test]
@@ -67,9 +90,20 @@ fn our_superpixels_match_scikit_image_on_every_reference_image() {
         reference.images.len() >= 3 && with_truth >= 1,
         "too few images"
     );
+    // The demo scenes (ground truth from labels.png and instances.png) are part of the reference.
+    let demo_scenes = reference
+        .images
+        .iter()
+        .filter(|image| image.truth_instances.is_some())
+        .count();
+    assert!(
+        demo_scenes >= 16,
+        "only {demo_scenes} demo scenes in the reference"
+    );
     let params = SlicParams::default();
+    let mut metric_cross_checks = 0;
     for entry in &reference.images {
-        let image = read_rgb_png(&fixture_dir().join(&entry.image), DEFAULT_PIXEL_LIMIT)
+        let image = read_rgb_png(&repository_path(&entry.image), DEFAULT_PIXEL_LIMIT)
             .unwrap_or_else(|error| panic!("{error}"));
         let (width, height) = (image.width as usize, image.height as usize);
         let ours = slic(&image, &params).unwrap();
@@ -86,9 +120,12 @@ fn our_superpixels_match_scikit_image_on_every_reference_image() {
             "{}: {count} segments, requested {requested}",
             entry.name
         );
-        let skimage_labels = labels_of(&entry.skimage_labels);
-        let skimage_count = skimage_labels.iter().max().map_or(0, |&max| max + 1);
-        assert_eq!(skimage_count, entry.skimage_segment_count, "{}", entry.name);
+        let skimage_labels = entry.skimage_labels.as_deref().map(labels_of);
+        if let Some(skimage_labels) = &skimage_labels {
+            let skimage_count = skimage_labels.iter().max().map_or(0, |&max| max + 1);
+            assert_eq!(skimage_count, entry.skimage_segment_count, "{}", entry.name);
+        }
+        let skimage_count = entry.skimage_segment_count;
         let Some(truth_file) = &entry.truth else {
             println!(
                 "{}: ours {count} segments, scikit-image {skimage_count}",
@@ -96,24 +133,27 @@ fn our_superpixels_match_scikit_image_on_every_reference_image() {
             );
             continue;
         };
-        let truth = labels_of(truth_file);
+        let truth = truth_regions(truth_file, entry.truth_instances.as_deref());
         let tolerance = reference.boundary_tolerance_pixels;
         let our_recall = boundary_recall(&ours.labels, &truth, width, height, tolerance).unwrap();
         let our_error = undersegmentation_error(&ours.labels, &truth).unwrap();
-        // Our metric code on scikit-image's segments must reproduce the script's numpy figures.
-        let their_recall =
-            boundary_recall(&skimage_labels, &truth, width, height, tolerance).unwrap();
-        let their_error = undersegmentation_error(&skimage_labels, &truth).unwrap();
         let script_recall = entry.skimage_boundary_recall.expect("recall beside truth");
         let script_error = entry
             .skimage_undersegmentation_error
             .expect("error beside truth");
-        assert!(
-            (their_recall - script_recall).abs() < 1e-9,
-            "{}",
-            entry.name
-        );
-        assert!((their_error - script_error).abs() < 1e-9, "{}", entry.name);
+        // Our metric code on scikit-image's segments must reproduce the script's numpy figures.
+        if let Some(skimage_labels) = &skimage_labels {
+            let their_recall =
+                boundary_recall(skimage_labels, &truth, width, height, tolerance).unwrap();
+            let their_error = undersegmentation_error(skimage_labels, &truth).unwrap();
+            assert!(
+                (their_recall - script_recall).abs() < 1e-9,
+                "{}",
+                entry.name
+            );
+            assert!((their_error - script_error).abs() < 1e-9, "{}", entry.name);
+            metric_cross_checks += 1;
+        }
         println!(
             "{}: ours {count} segments, boundary recall {our_recall:.4}, under-segmentation error \
              {our_error:.4}; scikit-image {skimage_count} segments, recall {script_recall:.4}, error \
@@ -126,4 +166,8 @@ fn our_superpixels_match_scikit_image_on_every_reference_image() {
             entry.name
         );
     }
+    assert!(
+        metric_cross_checks >= 1,
+        "no image cross-checks the metric code"
+    );
 }

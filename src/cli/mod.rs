@@ -6,8 +6,14 @@
 use clap::{Parser, Subcommand};
 
 mod classes;
+mod demo;
+mod export;
+mod field_notes;
+mod render;
+mod serve;
 mod train;
 mod unaries;
+mod parse;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -24,17 +30,35 @@ pub struct Arguments {
 pub enum Command {
     /// Print the class taxonomy.
     Classes(classes::ClassesArgs),
+    /// Draw what the robot believes about a demo scene (overlay picture and summary).
+    Demo(demo::DemoArgs),
+    /// Render scenes of the invented Juniper Lane flat with ground truth.
+    Render(render::RenderArgs),
     /// Train the built-in segment classifier and write its ONNX file and model card.
     Train(train::TrainArgs),
     /// Turn per-pixel scores, a user ONNX model or a label map into per-segment unaries.
     Unaries(unaries::UnariesArgs),
+    /// Parse operator utterances into typed constraints (JSON and a gloss).
+    Parse(parse::ParseArgs),
+    /// Start the correction service.
+    Serve(serve::ServeArgs),
+    /// Write the accepted corrections as a training dataset directory.
+    Export(export::ExportArgs),
+    /// Apply a file of field notes to stored scenes and write a report.
+    FieldNotes(field_notes::FieldNotesArgs),
 }
 
 /// Runs one subcommand.
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Demo(args) => demo::run(args),
+        Command::Render(args) => render::run(args),
         Command::Train(args) => train::run(args),
         Command::Unaries(args) => unaries::run(args),
+        Command::Parse(args) => parse::run(args),
+        Command::Serve(args) => serve::run(args),
+        Command::Export(args) => export::run(args),
+        Command::FieldNotes(args) => field_notes::run(args),
     }
 }

@@ -1,10 +1,13 @@
 //! The solver: finds the lowest-energy joint labelling.
 //!
-//! Owns: max-flow, alpha-expansion over Potts problems, and (in later modules) the coupled step.
+//! Owns: max-flow, alpha-expansion over Potts problems, and the coupled joint solve (`joint`).
 //! Must not: know about language, files, HTTP or the meaning of classes; it works on numbers and graphs.
 
 pub mod expansion;
 pub mod expansion_reference;
+pub mod joint;
+mod joint_coupled;
+mod joint_labeller;
 pub mod labelling;
 pub mod maxflow;
 pub mod maxflow_reference;

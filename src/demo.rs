@@ -1,0 +1,339 @@
+//! The committed demo scenes: finding the `demo_scenes/` directory, listing its scenes and loading one.
+//!
+//! The directory is `demo_scenes/` beside the crate's manifest (fixed at compile time), unless the
+//! `SAYSO_DEMO_DIR` environment variable or an explicit path says otherwise.
+//! Owns: `DemoScene` (the raw rasters and metadata of one scene directory) and `DemoError`.
+//! Must not: segment, classify or correct anything; it only reads files.
+
+use std::path::{Path, PathBuf};
+
+use crate::raster::{
+    read_depth_png, read_index_png, read_rgb_png, DepthImage, IndexImage, RasterError, RgbImage,
+    DEFAULT_PIXEL_LIMIT,
+};
+use crate::render::catalogue::DEMO_SCENES;
+use crate::render::writer::{
+    DEPTH_FILE, IMAGE_FILE, INSTANCES_FILE, LABELS_FILE, OBJECTS_FILE, SCENE_FILE,
+};
+use crate::render::{SceneMetadata, SceneObject};
+
+/// The environment variable that overrides where demo scenes are read from.
+pub const DEMO_DIR_VARIABLE: &str = "SAYSO_DEMO_DIR";
+
+/// The demo directory compiled into the crate.
+pub const COMPILED_DEMO_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/demo_scenes");
+
+/// What went wrong finding or reading a demo scene.
+#[derive(Debug, thiserror::Error)]
+pub enum DemoError {
+    #[error("demo scene directory {0} does not exist or cannot be read")]
+    NoDirectory(PathBuf),
+    #[error("no demo scenes (directories holding {SCENE_FILE}) under {0}")]
+    NoScenes(PathBuf),
+    #[error("no demo scene named '{name}' (available: {available})")]
+    UnknownScene { name: String, available: String },
+    #[error("demo scene file {0} is missing")]
+    MissingFile(PathBuf),
+    #[error(transparent)]
+    Raster(#[from] RasterError),
+    #[error("{path} is not valid: {message}")]
+    BadJson { path: PathBuf, message: String },
+    #[error("{path}: {message}")]
+    Inconsistent { path: PathBuf, message: String },
+}
+
+/// One demo scene as stored: rasters plus records.
+#[derive(Clone, Debug, PartialEq)]
+pub struct DemoScene {
+    pub name: String,
+    pub directory: PathBuf,
+    pub metadata: SceneMetadata,
+    pub image: RgbImage,
+    pub depth: DepthImage,
+    pub labels: IndexImage,
+    pub instances: IndexImage,
+    pub objects: Vec<SceneObject>,
+}
+
+/// The demo directory: `explicit` if given, else `$SAYSO_DEMO_DIR`, else the compiled-in path.
+pub fn demo_directory(explicit: Option<&Path>) -> PathBuf {
+    if let Some(path) = explicit {
+        return path.to_path_buf();
+    }
+    match std::env::var_os(DEMO_DIR_VARIABLE) {
+        Some(value) if !value.is_empty() => PathBuf::from(value),
+        _ => PathBuf::from(COMPILED_DEMO_DIR),
+    }
+}
+
+/// Scene names under `directory`: catalogue scenes first in catalogue order, then any others by name.
+pub fn list_demo_scenes(directory: &Path) -> Result<Vec<String>, DemoError> {
+    let entries = std::fs::read_dir(directory)
+        .map_err(|_| DemoError::NoDirectory(directory.to_path_buf()))?;
+    let mut found: Vec<String> = entries
+        .filter_map(|entry| entry.ok())
+        .filter(|entry| entry.path().join(SCENE_FILE).is_file())
+        .filter_map(|entry| entry.file_name().to_str().map(str::to_string))
+        .collect();
+    found.sort();
+    let mut ordered: Vec<String> = DEMO_SCENES
+        .iter()
+        .filter(|entry| found.iter().any(|name| name == entry.name))
+        .map(|entry| entry.name.to_string())
+        .collect();
+    for name in found {
+        if !ordered.contains(&name) {
+            ordered.push(name);
+        }
+    }
+    if ordered.is_empty() {
+        return Err(DemoError::NoScenes(directory.to_path_buf()));
+    }
+    Ok(ordered)
+}
+
+/// Loads the scene `name` (or the first listed when `None`) from `directory`.
+pub fn load_demo_scene(directory: &Path, name: Option<&str>) -> Result<DemoScene, DemoError> {
+    let names = list_demo_scenes(directory)?;
+    let chosen = match name {
+        Some(name) => names
+            .iter()
+            .find(|candidate| candidate.as_str() == name)
+            .cloned()
+            .ok_or_else(|| DemoError::UnknownScene {
+                name: name.to_string(),
+                available: names.join(", "),
+            })?,
+        None => names
+            .first()
+            .cloned()
+            .ok_or_else(|| DemoError::NoScenes(directory.to_path_buf()))?,
+    };
+    load_scene_directory(&directory.join(&chosen))
+}
+
+/// Loads one scene directory and checks its parts agree in size.
+pub fn load_scene_directory(scene_directory: &Path) -> Result<DemoScene, DemoError> {
+    let file = |name: &str| -> Result<PathBuf, DemoError> {
+        let path = scene_directory.join(name);
+        if path.is_file() {
+            Ok(path)
+        } else {
+            Err(DemoError::MissingFile(path))
+        }
+    };
+    let metadata: SceneMetadata = read_json(&file(SCENE_FILE)?)?;
+    let objects: Vec<SceneObject> = read_json(&file(OBJECTS_FILE)?)?;
+    let image = read_rgb_png(&file(IMAGE_FILE)?, DEFAULT_PIXEL_LIMIT)?;
+    let depth = read_depth_png(&file(DEPTH_FILE)?, DEFAULT_PIXEL_LIMIT)?;
+    let labels = read_index_png(&file(LABELS_FILE)?, DEFAULT_PIXEL_LIMIT)?;
+    let instances = read_index_png(&file(INSTANCES_FILE)?, DEFAULT_PIXEL_LIMIT)?;
+    for (name, width, height) in [
+        (DEPTH_FILE, depth.width, depth.height),
+        (LABELS_FILE, labels.width, labels.height),
+        (INSTANCES_FILE, instances.width, instances.height),
+    ] {
+        if (width, height) != (image.width, image.height) {
+            return Err(RasterError::SizeMismatch {
+                path: scene_directory.join(name),
+                width: image.width,
+                height: image.height,
+                found_width: width,
+                found_height: height,
+            }
+            .into());
+        }
+    }
+    if (metadata.width, metadata.height) != (image.width, image.height) {
+        return Err(DemoError::Inconsistent {
+            path: scene_directory.join(SCENE_FILE),
+            message: format!(
+                "says {}x{} but {IMAGE_FILE} is {}x{}",
+                metadata.width, metadata.height, image.width, image.height
+            ),
+        });
+    }
+    Ok(DemoScene {
+        name: scene_directory
+            .file_name()
+            .and_then(|name| name.to_str())
+            .unwrap_or(&metadata.name)
+            .to_string(),
+        directory: scene_directory.to_path_buf(),
+        metadata,
+        image,
+        depth,
+        labels,
+        instances,
+        objects,
+    })
+}
+
+/// Where the labels shown for a scene come from. Today only the ground truth exists; the classifier's belief
+/// and the corrected scene join later, so the summary and overlay take the source as one parameter.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum BeliefSource {
+    /// The renderer's ground-truth labels.
+    GroundTruth,
+}
+
+impl BeliefSource {
+    /// A heading for overlays and summaries.
+    pub fn title(self) -> &'static str {
+        match self {
+            BeliefSource::GroundTruth => "ground truth labels (not a prediction)",
+        }
+    }
+
+    /// The per-pixel class ids this source gives for `scene`.
+    pub fn labels(self, scene: &DemoScene) -> Vec<u16> {
+        match self {
+            BeliefSource::GroundTruth => scene.labels.values.clone(),
+        }
+    }
+}
+
+/// One class's share of a scene in a summary.
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct ClassShare {
+    pub class: String,
+    pub class_id: crate::ids::ClassId,
+    pub pixels: u64,
+    /// Percent of all pixels.
+    pub percent: f64,
+    pub safety: bool,
+}
+
+/// What the robot currently believes about a scene, as written to `summary.json`.
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct SceneSummary {
+    pub scene: String,
+    pub room: String,
+    pub source: BeliefSource,
+    pub title: String,
+    pub description: String,
+    /// Classes present, most pixels first.
+    pub classes: Vec<ClassShare>,
+    pub objects: Vec<SceneObject>,
+    /// Ids of objects whose class is safety-critical (people, pets, hazards).
+    pub safety_objects: Vec<u32>,
+}
+
+/// Summarises `scene` as seen through `source`.
+pub fn summarise(
+    scene: &DemoScene,
+    source: BeliefSource,
+    taxonomy: &crate::taxonomy::Taxonomy,
+) -> SceneSummary {
+    let labels = source.labels(scene);
+    let mut counts = vec![0u64; taxonomy.class_count()];
+    for &label in &labels {
+        if let Some(slot) = counts.get_mut(label as usize) {
+            *slot += 1;
+        }
+    }
+    let total = labels.len().max(1) as f64;
+    let mut classes: Vec<ClassShare> = taxonomy
+        .classes()
+        .iter()
+        .filter(|info| counts[info.id.index()] > 0)
+        .map(|info| ClassShare {
+            class: info.name.clone(),
+            class_id: info.id,
+            pixels: counts[info.id.index()],
+            percent: (counts[info.id.index()] as f64 * 1000.0 / total).round() / 10.0,
+            safety: info.safety,
+        })
+        .collect();
+    classes.sort_by(|a, b| b.pixels.cmp(&a.pixels).then(a.class_id.cmp(&b.class_id)));
+    let safety_objects = scene
+        .objects
+        .iter()
+        .filter(|object| taxonomy.is_safety_critical(object.class_id))
+        .map(|object| object.id)
+        .collect();
+    SceneSummary {
+        scene: scene.name.clone(),
+        room: scene.metadata.room.clone(),
+        source,
+        title: source.title().to_string(),
+        description: scene.metadata.description.clone(),
+        classes,
+        objects: scene.objects.clone(),
+        safety_objects,
+    }
+}
+
+/// The summary as plain text for people.
+pub fn summary_text(summary: &SceneSummary) -> String {
+    let mut text = format!(
+        "scene: {}\nroom: {}\nlabels: {}\n{}\n\nclasses present ({}):\n",
+        summary.scene,
+        summary.room,
+        summary.title,
+        summary.description,
+        summary.classes.len()
+    );
+    for share in &summary.classes {
+        text.push_str(&format!(
+            "  {:<10} {:>6.1}%{}\n",
+            share.class,
+            share.percent,
+            if share.safety { "  (safety)" } else { "" }
+        ));
+    }
+    text.push_str(&format!("\nobjects ({}):\n", summary.objects.len()));
+    for object in &summary.objects {
+        let [x0, y0, x1, y1] = object.bbox;
+        let support = object
+            .rests_on
+            .map(|id| format!(" on #{id}"))
+            .unwrap_or_default();
+        text.push_str(&format!(
+            "  #{:<3} {:<10} box [{x0},{y0},{x1},{y1}) {} px{support}\n",
+            object.id, object.class, object.area
+        ));
+    }
+    text
+}
+
+fn read_json<T: serde::de::DeserializeOwned>(path: &Path) -> Result<T, DemoError> {
+    let text =
+        std::fs::read_to_string(path).map_err(|_| DemoError::MissingFile(path.to_path_buf()))?;
+    serde_json::from_str(&text).map_err(|error| DemoError::BadJson {
+        path: path.to_path_buf(),
+        message: error.to_string(),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn missing_directory_and_scene_are_named() {
+        let error = list_demo_scenes(Path::new("/nonexistent/demo")).unwrap_err();
+        assert!(error.to_string().contains("/nonexistent/demo"));
+        let empty = tempfile::tempdir().unwrap();
+        assert!(matches!(
+            list_demo_scenes(empty.path()),
+            Err(DemoError::NoScenes(_))
+        ));
+        let scene = empty.path().join("half_scene");
+        std::fs::create_dir(&scene).unwrap();
+        std::fs::write(scene.join(SCENE_FILE), "{}").unwrap();
+        let error = load_demo_scene(empty.path(), Some("half_scene")).unwrap_err();
+        assert!(matches!(error, DemoError::BadJson { .. }), "{error}");
+        let error = load_demo_scene(empty.path(), Some("attic")).unwrap_err();
+        assert!(error.to_string().contains("attic") && error.to_string().contains("half_scene"));
+    }
+
+    #[test]
+    fn explicit_directory_wins() {
+        assert_eq!(
+            demo_directory(Some(Path::new("/tmp/x"))),
+            PathBuf::from("/tmp/x")
+        );
+    }
+}

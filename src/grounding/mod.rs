@@ -1,0 +1,641 @@
+//! Grounding: resolving the words of each constraint's referents to object hypotheses and segments.
+//!
+//! Owns: `ground` (constraints + the current view of the scene -> grounded constraints), clarifying
+//! questions for ambiguous references, and typed issues (unknown object id, focus outside the image, a class
+//! the model does not know, nothing matching a description).
+//! Must not: change labels or weigh evidence (that is the energy's job) or parse words.
+//!
+//! A description is matched against the hypotheses the current solution accepts (falling back to every
+//! hypothesis of the class when none is accepted), filtered by image region, colour, size and relation
+//! clauses. A singular target of a relabel or an attribute that still matches several objects produces a
+//! question instead of a guess; subjects of relations may stay plural (any of them may satisfy it).
+
+pub mod colour_terms;
+pub mod predicates;
+mod questions;
+
+use serde::{Deserialize, Serialize};
+
+use crate::hypotheses::Hypothesis;
+use crate::ids::{ClassId, HypothesisId, ObjectId, RoomId, SegmentId};
+use crate::language::constraint::{
+    Attribute, Constraint, ConstraintKind, Count, Deixis, Focus, ImageRegion, Place, Referent,
+    Relation, SizeTerm, Span,
+};
+use crate::scene::Scene;
+use crate::taxonomy::Taxonomy;
+
+pub use predicates::{holds, Footprint};
+pub use questions::ClarifyingQuestion;
+
+/// A resolved referent: the segments it covers and the hypotheses it may be.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
+pub struct Target {
+    /// Ascending.
+    pub segments: Vec<SegmentId>,
+    /// Indices into the hypothesis list, ascending.
+    pub hypotheses: Vec<usize>,
+}
+
+/// A constraint whose referents are resolved.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum GroundedKind {
+    Present {
+        class: ClassId,
+    },
+    Absent {
+        class: ClassId,
+    },
+    Count {
+        class: ClassId,
+        count: Count,
+    },
+    Relation {
+        subject: Target,
+        relation: Relation,
+        negated: bool,
+        landmarks: Vec<Target>,
+    },
+    Region {
+        subject: Target,
+        region: ImageRegion,
+    },
+    Relabel {
+        target: Target,
+        from: Option<ClassId>,
+        to: Option<ClassId>,
+    },
+    Attribute {
+        target: Target,
+        attribute: Attribute,
+    },
+    Room {
+        room: RoomId,
+    },
+}
+
+/// One grounded constraint, pointing back at the constraint and the utterance span it came from.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct GroundedConstraint {
+    /// Index into the constraint list given to `ground`.
+    pub constraint: usize,
+    pub span: Span,
+    /// The operator was definite (parser confidence at least `HARD_CONFIDENCE`).
+    pub hard: bool,
+    pub gloss: String,
+    pub kind: GroundedKind,
+}
+
+/// Parser confidence from which a constraint is treated as hard.
+pub const HARD_CONFIDENCE: f32 = 0.9;
+
+/// A problem with one constraint's referents; the constraint is reported, never silently dropped.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, thiserror::Error)]
+#[serde(tag = "issue", rename_all = "snake_case")]
+pub enum GroundingIssue {
+    #[error("constraint {constraint}: there is no object {id} in this scene")]
+    UnknownObject { constraint: usize, id: ObjectId },
+    #[error("constraint {constraint}: the pointed pixel ({x}, {y}) is outside the {width}x{height} image")]
+    FocusOutside {
+        constraint: usize,
+        x: u32,
+        y: u32,
+        width: u32,
+        height: u32,
+    },
+    #[error("constraint {constraint}: \"this\" or \"that\" needs a pointed object or pixel, and none was sent")]
+    NoFocus { constraint: usize },
+    #[error("constraint {constraint}: \"it\" has nothing earlier in the conversation to refer to")]
+    NoPrevious { constraint: usize },
+    #[error("constraint {constraint}: class {class} is not known to this scene's model")]
+    UnknownClass { constraint: usize, class: ClassId },
+    #[error("constraint {constraint}: room type {room} is not known")]
+    UnknownRoom { constraint: usize, room: RoomId },
+    #[error("constraint {constraint}: nothing in view matches \"{words}\"")]
+    NoCandidate { constraint: usize, words: String },
+}
+
+impl GroundingIssue {
+    /// The constraint the issue is about.
+    pub fn constraint(&self) -> usize {
+        match self {
+            GroundingIssue::UnknownObject { constraint, .. }
+            | GroundingIssue::FocusOutside { constraint, .. }
+            | GroundingIssue::NoFocus { constraint }
+            | GroundingIssue::NoPrevious { constraint }
+            | GroundingIssue::UnknownClass { constraint, .. }
+            | GroundingIssue::UnknownRoom { constraint, .. }
+            | GroundingIssue::NoCandidate { constraint, .. } => *constraint,
+        }
+    }
+}
+
+/// An object of the previous scene graph, so an operator can point at it by id.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct KnownObject {
+    pub id: ObjectId,
+    pub hypothesis: HypothesisId,
+}
+
+/// What the operator sent with the utterance, and what the conversation has said before.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
+pub struct GroundingContext {
+    pub focus: Option<Focus>,
+    /// The referent of the previous utterance, for "it".
+    pub previous: Option<Target>,
+    /// Objects of the previous scene graph.
+    pub objects: Vec<KnownObject>,
+}
+
+/// The scene as grounding sees it.
+pub struct SceneView<'a> {
+    pub scene: &'a Scene,
+    pub taxonomy: &'a Taxonomy,
+    pub hypotheses: &'a [Hypothesis],
+    /// Which hypotheses the current solution accepts (same length as `hypotheses`).
+    pub accepted: &'a [bool],
+    /// Classes the unaries score.
+    pub class_count: usize,
+}
+
+/// Everything grounding found.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
+pub struct Grounding {
+    pub constraints: Vec<GroundedConstraint>,
+    pub questions: Vec<ClarifyingQuestion>,
+    pub issues: Vec<GroundingIssue>,
+    /// The referent the next "it" means.
+    pub last_referent: Option<Target>,
+}
+
+impl SceneView<'_> {
+    /// The footprint of a hypothesis from its members' statistics.
+    pub fn footprint(&self, hypothesis: usize) -> Footprint {
+        let members = self
+            .hypotheses
+            .get(hypothesis)
+            .map(|h| h.members.as_slice())
+            .unwrap_or(&[]);
+        footprint_of(self.scene, members)
+    }
+}
+
+/// The footprint of a set of segments.
+pub fn footprint_of(scene: &Scene, members: &[SegmentId]) -> Footprint {
+    let (mut area, mut sum_x, mut sum_y) = (0u64, 0.0f64, 0.0f64);
+    let (mut depth_sum, mut depth_weight) = (0.0f64, 0.0f64);
+    let mut bbox: Option<crate::scene::BoundingBox> = None;
+    for member in members {
+        if let Some(stats) = scene.stats.get(member.index()) {
+            let a = stats.area as u64;
+            area += a;
+            sum_x += stats.centroid.0 as f64 * a as f64;
+            sum_y += stats.centroid.1 as f64 * a as f64;
+            if let Some(depth) = stats.mean_depth_mm {
+                depth_sum += depth as f64 * a as f64;
+                depth_weight += a as f64;
+            }
+            bbox = Some(bbox.map(|b| b.union(&stats.bbox)).unwrap_or(stats.bbox));
+        }
+    }
+    let denominator = area.max(1) as f64;
+    Footprint {
+        bbox: bbox.unwrap_or_default(),
+        centroid: ((sum_x / denominator) as f32, (sum_y / denominator) as f32),
+        area: area.min(u32::MAX as u64) as u32,
+        depth_mm: (depth_weight > 0.0).then(|| (depth_sum / depth_weight) as f32),
+    }
+}
+
+/// Mean CIELAB colour of a set of segments, area-weighted.
+pub fn mean_colour(scene: &Scene, members: &[SegmentId]) -> crate::color::Lab {
+    let (mut l, mut a, mut b, mut total) = (0.0f64, 0.0f64, 0.0f64, 0.0f64);
+    for member in members {
+        if let Some(stats) = scene.stats.get(member.index()) {
+            let w = stats.area.max(1) as f64;
+            l += stats.mean_lab.l as f64 * w;
+            a += stats.mean_lab.a as f64 * w;
+            b += stats.mean_lab.b as f64 * w;
+            total += w;
+        }
+    }
+    let total = total.max(1e-9);
+    crate::color::Lab {
+        l: (l / total) as f32,
+        a: (a / total) as f32,
+        b: (b / total) as f32,
+    }
+}
+
+/// Whether a footprint lies in a named part of the image (thirds of the width or height).
+pub fn in_region(footprint: &Footprint, region: ImageRegion, width: u32, height: u32) -> bool {
+    let (x, y) = (
+        footprint.centroid.0 / width.max(1) as f32,
+        footprint.centroid.1 / height.max(1) as f32,
+    );
+    match region {
+        ImageRegion::Left => x < 1.0 / 3.0,
+        ImageRegion::Right => x > 2.0 / 3.0,
+        ImageRegion::Top => y < 1.0 / 3.0,
+        ImageRegion::Bottom => y > 2.0 / 3.0,
+        ImageRegion::Centre => {
+            (1.0 / 3.0..=2.0 / 3.0).contains(&x) && (1.0 / 3.0..=2.0 / 3.0).contains(&y)
+        }
+        ImageRegion::Corner => !(0.25..=0.75).contains(&x) && !(0.25..=0.75).contains(&y),
+        // Far from the camera: higher in the picture, or deeper than 3 m when depth exists.
+        ImageRegion::Back => match footprint.depth_mm {
+            Some(depth) => depth > 3000.0,
+            None => y < 0.5,
+        },
+        ImageRegion::Front => match footprint.depth_mm {
+            Some(depth) => depth < 1500.0,
+            None => y > 0.5,
+        },
+    }
+}
+
+#[derive(Clone, Copy, PartialEq)]
+enum Need {
+    /// Exactly one object, or a question.
+    One,
+    /// Any number of candidates.
+    Any,
+}
+
+struct Resolver<'a, 'b> {
+    view: &'a SceneView<'b>,
+    context: &'a GroundingContext,
+    constraint: usize,
+    issues: Vec<GroundingIssue>,
+    questions: Vec<ClarifyingQuestion>,
+}
+
+impl Resolver<'_, '_> {
+    fn target_of(&self, hypotheses: Vec<usize>) -> Target {
+        let mut segments: Vec<SegmentId> = hypotheses
+            .iter()
+            .filter_map(|&h| self.view.hypotheses.get(h))
+            .flat_map(|h| h.members.iter().copied())
+            .collect();
+        segments.sort();
+        segments.dedup();
+        Target {
+            segments,
+            hypotheses,
+        }
+    }
+
+    fn check_class(&mut self, class: ClassId) -> bool {
+        if class.index() >= self.view.class_count {
+            self.issues.push(GroundingIssue::UnknownClass {
+                constraint: self.constraint,
+                class,
+            });
+            return false;
+        }
+        true
+    }
+
+    fn focus_target(&mut self, class: Option<ClassId>) -> Option<Target> {
+        let view = self.view;
+        match self.context.focus {
+            None => {
+                self.issues.push(GroundingIssue::NoFocus {
+                    constraint: self.constraint,
+                });
+                None
+            }
+            Some(Focus::Object { id }) => {
+                let known = self.context.objects.iter().find(|object| object.id == id);
+                let index = known.and_then(|object| {
+                    view.hypotheses
+                        .iter()
+                        .position(|h| h.id == object.hypothesis)
+                });
+                match index {
+                    Some(index) => Some(self.target_of(vec![index])),
+                    None => {
+                        self.issues.push(GroundingIssue::UnknownObject {
+                            constraint: self.constraint,
+                            id,
+                        });
+                        None
+                    }
+                }
+            }
+            Some(Focus::Pixel { x, y }) => {
+                let (width, height) = (view.scene.width(), view.scene.height());
+                let map = &view.scene.segments;
+                if x >= width || y >= height || x >= map.width || y >= map.height {
+                    self.issues.push(GroundingIssue::FocusOutside {
+                        constraint: self.constraint,
+                        x,
+                        y,
+                        width,
+                        height,
+                    });
+                    return None;
+                }
+                let segment = map.segment_at(x, y);
+                // The smallest accepted hypothesis over the pixel (of the named class when given), else the
+                // smallest hypothesis, else the segment's coarse region.
+                let over: Vec<usize> = (0..view.hypotheses.len())
+                    .filter(|&h| view.hypotheses[h].members.binary_search(&segment).is_ok())
+                    .collect();
+                let pick = |only_accepted: bool| {
+                    over.iter()
+                        .copied()
+                        .filter(|&h| {
+                            !only_accepted || view.accepted.get(h).copied().unwrap_or(false)
+                        })
+                        .min_by_key(|&h| (view.hypotheses[h].members.len(), h))
+                };
+                let _ = class;
+                match pick(true).or_else(|| pick(false)) {
+                    Some(h) => Some(self.target_of(vec![h])),
+                    None => {
+                        let region = view.scene.coarse.region_of.get(segment.index()).copied();
+                        let mut segments = region
+                            .and_then(|r| view.scene.coarse.members.get(r.index()).cloned())
+                            .unwrap_or_else(|| vec![segment]);
+                        segments.sort();
+                        Some(Target {
+                            segments,
+                            hypotheses: Vec::new(),
+                        })
+                    }
+                }
+            }
+        }
+    }
+
+    fn resolve(&mut self, referent: &Referent, need: Need) -> Option<Target> {
+        if let Some(class) = referent.class {
+            if !self.check_class(class) {
+                return None;
+            }
+        }
+        match referent.deixis {
+            Some(Deixis::Focus) => return self.focus_target(referent.class),
+            Some(Deixis::Previous) => {
+                return match &self.context.previous {
+                    Some(previous) => Some(previous.clone()),
+                    None => {
+                        self.issues.push(GroundingIssue::NoPrevious {
+                            constraint: self.constraint,
+                        });
+                        None
+                    }
+                };
+            }
+            None => {}
+        }
+        let view = self.view;
+        let of_class = |h: usize| referent.class.is_none_or(|c| view.hypotheses[h].class == c);
+        let mut candidates: Vec<usize> = (0..view.hypotheses.len())
+            .filter(|&h| of_class(h) && view.accepted.get(h).copied().unwrap_or(false))
+            .collect();
+        if candidates.is_empty() && referent.class.is_some() {
+            candidates = (0..view.hypotheses.len())
+                .filter(|&h| of_class(h))
+                .collect();
+        }
+        if let Some(region) = referent.region {
+            candidates.retain(|&h| {
+                in_region(
+                    &view.footprint(h),
+                    region,
+                    view.scene.width(),
+                    view.scene.height(),
+                )
+            });
+        }
+        for attribute in &referent.attributes {
+            candidates = self.filter_attribute(candidates, *attribute);
+        }
+        for clause in &referent.relations {
+            let mut landmark_sets = Vec::new();
+            for landmark in &clause.landmarks {
+                match self.resolve(landmark, Need::Any) {
+                    Some(target) => landmark_sets.push(target.hypotheses),
+                    None => return None,
+                }
+            }
+            candidates.retain(|&h| {
+                let satisfied = landmark_choices(&landmark_sets).iter().any(|choice| {
+                    !choice.contains(&h) && {
+                        let landmarks: Vec<Footprint> =
+                            choice.iter().map(|&l| view.footprint(l)).collect();
+                        holds(clause.relation, &view.footprint(h), &landmarks)
+                    }
+                });
+                satisfied != clause.negated
+            });
+        }
+        if candidates.is_empty() {
+            self.issues.push(GroundingIssue::NoCandidate {
+                constraint: self.constraint,
+                words: questions::describe_referent(view.taxonomy, referent),
+            });
+            return None;
+        }
+        // Hypotheses over the same segments with the same class are one object; keep the best scored.
+        if need == Need::One && !referent.plural && distinct_objects(view, &candidates) > 1 {
+            self.questions
+                .push(questions::ask(view, self.constraint, referent, &candidates));
+            return None;
+        }
+        Some(self.target_of(candidates))
+    }
+
+    fn filter_attribute(&self, candidates: Vec<usize>, attribute: Attribute) -> Vec<usize> {
+        let view = self.view;
+        match attribute {
+            Attribute::Colour(term) => candidates
+                .into_iter()
+                .filter(|&h| {
+                    colour_terms::nearest_term(mean_colour(view.scene, &view.hypotheses[h].members))
+                        == term
+                })
+                .collect(),
+            Attribute::Size(size) => {
+                let mut areas: Vec<u32> =
+                    candidates.iter().map(|&h| view.footprint(h).area).collect();
+                areas.sort_unstable();
+                let Some(&median) = areas.get(areas.len() / 2) else {
+                    return candidates;
+                };
+                candidates
+                    .into_iter()
+                    .filter(|&h| {
+                        let area = view.footprint(h).area;
+                        match size {
+                            SizeTerm::Big => area >= median,
+                            SizeTerm::Small => area <= median,
+                        }
+                    })
+                    .collect()
+            }
+        }
+    }
+}
+
+/// Candidates that are different objects (different member sets).
+fn distinct_objects(view: &SceneView, candidates: &[usize]) -> usize {
+    let mut sets: Vec<&Vec<SegmentId>> = candidates
+        .iter()
+        .map(|&h| &view.hypotheses[h].members)
+        .collect();
+    sets.sort();
+    sets.dedup();
+    sets.len()
+}
+
+/// Every way to pick one hypothesis from each landmark set (at most two sets are used).
+fn landmark_choices(sets: &[Vec<usize>]) -> Vec<Vec<usize>> {
+    match sets {
+        [] => Vec::new(),
+        [only] => only.iter().map(|&l| vec![l]).collect(),
+        [first, second, ..] => first
+            .iter()
+            .flat_map(|&a| {
+                second
+                    .iter()
+                    .filter(move |&&b| b != a)
+                    .map(move |&b| vec![a, b])
+            })
+            .collect(),
+    }
+}
+
+/// Resolves every constraint's referents against the current view of the scene.
+pub fn ground(
+    constraints: &[Constraint],
+    view: &SceneView,
+    context: &GroundingContext,
+) -> Grounding {
+    let mut grounding = Grounding::default();
+    let mut previous = context.previous.clone();
+    for (index, constraint) in constraints.iter().enumerate() {
+        let local_context = GroundingContext {
+            focus: context.focus,
+            previous: previous.clone(),
+            objects: context.objects.clone(),
+        };
+        let mut resolver = Resolver {
+            view,
+            context: &local_context,
+            constraint: index,
+            issues: Vec::new(),
+            questions: Vec::new(),
+        };
+        let kind = match &constraint.kind {
+            ConstraintKind::Present { class } => resolver
+                .check_class(*class)
+                .then_some(GroundedKind::Present { class: *class }),
+            ConstraintKind::Absent { class } => resolver
+                .check_class(*class)
+                .then_some(GroundedKind::Absent { class: *class }),
+            ConstraintKind::Count { class, count } => {
+                resolver.check_class(*class).then_some(GroundedKind::Count {
+                    class: *class,
+                    count: *count,
+                })
+            }
+            ConstraintKind::RoomType { room } => room_kind(&mut resolver, *room),
+            ConstraintKind::Place { subject, place } => match place {
+                Place::Room(room) => room_kind(&mut resolver, *room),
+                Place::Region(region) => {
+                    resolver
+                        .resolve(subject, Need::Any)
+                        .map(|subject| GroundedKind::Region {
+                            subject,
+                            region: *region,
+                        })
+                }
+            },
+            ConstraintKind::Relation {
+                subject,
+                relation,
+                negated,
+                landmarks,
+            } => {
+                let subject = resolver.resolve(subject, Need::Any);
+                let mut resolved = Vec::new();
+                for landmark in landmarks {
+                    if let Some(target) = resolver.resolve(landmark, Need::Any) {
+                        resolved.push(target);
+                    }
+                }
+                match subject {
+                    Some(subject) if resolved.len() == landmarks.len() => {
+                        Some(GroundedKind::Relation {
+                            subject,
+                            relation: *relation,
+                            negated: *negated,
+                            landmarks: resolved,
+                        })
+                    }
+                    _ => None,
+                }
+            }
+            ConstraintKind::Relabel { target, from, to } => {
+                let known = from.is_none_or(|c| resolver.check_class(c))
+                    && to.is_none_or(|c| resolver.check_class(c));
+                // "that's not a cat": the referent's class is the one being denied, so look it up as-is.
+                let resolved = if known {
+                    resolver.resolve(target, Need::One)
+                } else {
+                    None
+                };
+                resolved.map(|target| GroundedKind::Relabel {
+                    target,
+                    from: *from,
+                    to: *to,
+                })
+            }
+            ConstraintKind::Attribute { target, attribute } => resolver
+                .resolve(target, Need::One)
+                .map(|target| GroundedKind::Attribute {
+                    target,
+                    attribute: *attribute,
+                }),
+        };
+        grounding.issues.append(&mut resolver.issues);
+        grounding.questions.append(&mut resolver.questions);
+        if let Some(kind) = kind {
+            if let GroundedKind::Relabel { target, .. }
+            | GroundedKind::Attribute { target, .. }
+            | GroundedKind::Region {
+                subject: target, ..
+            }
+            | GroundedKind::Relation {
+                subject: target, ..
+            } = &kind
+            {
+                previous = Some(target.clone());
+            }
+            grounding.constraints.push(GroundedConstraint {
+                constraint: index,
+                span: constraint.span,
+                hard: constraint.confidence >= HARD_CONFIDENCE,
+                gloss: constraint.gloss.clone(),
+                kind,
+            });
+        }
+    }
+    grounding.last_referent = previous;
+    grounding
+}
+
+fn room_kind(resolver: &mut Resolver, room: RoomId) -> Option<GroundedKind> {
+    if resolver.view.taxonomy.room(room).is_none() {
+        resolver.issues.push(GroundingIssue::UnknownRoom {
+            constraint: resolver.constraint,
+            room,
+        });
+        return None;
+    }
+    Some(GroundedKind::Room { room })
+}

@@ -1,0 +1,205 @@
+//! Clarifying questions: when a reference matches several objects, ask which one, in plain words.
+//!
+//! Owns: `ClarifyingQuestion`, describing each candidate by a relation to its nearest other object (or by
+//! where it is in the picture), and describing a referent's words back to the operator.
+//! Must not: pick a candidate; a question is returned instead of a guess.
+
+use serde::{Deserialize, Serialize};
+
+use super::predicates::{holds, relation_words};
+use super::{in_region, SceneView};
+use crate::ids::HypothesisId;
+use crate::language::constraint::{ImageRegion, Referent, Relation};
+use crate::taxonomy::{ClassGroup, Taxonomy};
+
+/// A question to send back instead of guessing, with the objects it distinguishes.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ClarifyingQuestion {
+    /// Index of the constraint that needs the answer.
+    pub constraint: usize,
+    pub text: String,
+    /// The candidate hypotheses, in the order the question names them.
+    pub candidates: Vec<HypothesisId>,
+    /// How each candidate is described in the text.
+    pub descriptions: Vec<String>,
+}
+
+/// English plural of a canonical class name (the language stage owns the full lexicon; this is enough for
+/// reading a class name back).
+pub fn plural(name: &str) -> String {
+    let name = name.replace('_', " ");
+    if name.ends_with("clothes") || name.ends_with("stairs") {
+        name
+    } else if name.ends_with("shelf") {
+        format!("{}ves", &name[..name.len() - 1])
+    } else if name.ends_with('s')
+        || name.ends_with('x')
+        || name.ends_with("ch")
+        || name.ends_with("sh")
+    {
+        format!("{name}es")
+    } else {
+        format!("{name}s")
+    }
+}
+
+fn number_word(n: usize) -> String {
+    const WORDS: [&str; 11] = [
+        "no", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine", "ten",
+    ];
+    WORDS
+        .get(n)
+        .map(|w| w.to_string())
+        .unwrap_or_else(|| n.to_string())
+}
+
+/// The referent's words as we would say them back ("the mug", "the thing").
+pub fn describe_referent(taxonomy: &Taxonomy, referent: &Referent) -> String {
+    match referent.class {
+        Some(class) => format!("the {}", taxonomy.class_name(class).replace('_', " ")),
+        None => "the thing".to_string(),
+    }
+}
+
+const DESCRIBING_RELATIONS: [Relation; 7] = [
+    Relation::On,
+    Relation::Under,
+    Relation::Inside,
+    Relation::LeftOf,
+    Relation::RightOf,
+    Relation::Above,
+    Relation::Below,
+];
+
+fn region_words(view: &SceneView, hypothesis: usize) -> String {
+    let footprint = view.footprint(hypothesis);
+    let (width, height) = (view.scene.width(), view.scene.height());
+    for (region, words) in [
+        (ImageRegion::Left, "on the left"),
+        (ImageRegion::Right, "on the right"),
+        (ImageRegion::Top, "at the top"),
+        (ImageRegion::Bottom, "at the bottom"),
+    ] {
+        if in_region(&footprint, region, width, height) {
+            return format!("the one {words}");
+        }
+    }
+    "the one in the middle".to_string()
+}
+
+/// "the one left of the sink": a relation to the nearest accepted object of another class.
+fn describe_candidate(view: &SceneView, hypothesis: usize, candidates: &[usize]) -> String {
+    let subject = view.footprint(hypothesis);
+    let class = view.hypotheses[hypothesis].class;
+    let mut landmarks: Vec<(f32, usize)> = (0..view.hypotheses.len())
+        .filter(|&other| {
+            other != hypothesis
+                && !candidates.contains(&other)
+                && view.accepted.get(other).copied().unwrap_or(false)
+                && view.hypotheses[other].class != class
+                && view
+                    .taxonomy
+                    .class(view.hypotheses[other].class)
+                    .is_some_and(|info| info.group != ClassGroup::Structure)
+        })
+        .map(|other| {
+            let footprint = view.footprint(other);
+            let dx = footprint.centroid.0 - subject.centroid.0;
+            let dy = footprint.centroid.1 - subject.centroid.1;
+            (dx * dx + dy * dy, other)
+        })
+        .collect();
+    landmarks.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    for &(_, landmark) in landmarks.iter().take(3) {
+        let footprint = view.footprint(landmark);
+        for relation in DESCRIBING_RELATIONS {
+            if holds(relation, &subject, &[footprint]) {
+                let name = view
+                    .taxonomy
+                    .class_name(view.hypotheses[landmark].class)
+                    .replace('_', " ");
+                return format!("the one {} the {name}", relation_words(relation));
+            }
+        }
+    }
+    region_words(view, hypothesis)
+}
+
+/// Builds the question for a referent that matched several objects.
+pub(super) fn ask(
+    view: &SceneView,
+    constraint: usize,
+    referent: &Referent,
+    candidates: &[usize],
+) -> ClarifyingQuestion {
+    // One candidate per distinct member set (the best scored), in reading order (left to right).
+    let mut distinct: Vec<usize> = Vec::new();
+    for &h in candidates {
+        let members = &view.hypotheses[h].members;
+        match distinct
+            .iter()
+            .position(|&d| &view.hypotheses[d].members == members)
+        {
+            Some(position) => {
+                if view.hypotheses[h].score > view.hypotheses[distinct[position]].score {
+                    distinct[position] = h;
+                }
+            }
+            None => distinct.push(h),
+        }
+    }
+    distinct.sort_by(|&a, &b| {
+        view.footprint(a)
+            .centroid
+            .0
+            .total_cmp(&view.footprint(b).centroid.0)
+            .then(a.cmp(&b))
+    });
+    let mut descriptions: Vec<String> = distinct
+        .iter()
+        .map(|&h| describe_candidate(view, h, &distinct))
+        .collect();
+    // Two candidates described alike would not help; fall back to positions in reading order.
+    let mut sorted = descriptions.clone();
+    sorted.sort();
+    sorted.dedup();
+    if sorted.len() < descriptions.len() {
+        let ordinals = ["first", "second", "third", "fourth", "fifth", "sixth"];
+        for (position, description) in descriptions.iter_mut().enumerate() {
+            let ordinal = ordinals.get(position).copied().unwrap_or("next");
+            *description = format!("the {ordinal} from the left");
+        }
+    }
+    let noun = match referent.class {
+        Some(class) => plural(view.taxonomy.class_name(class)),
+        None => "things".to_string(),
+    };
+    let listed = match descriptions.as_slice() {
+        [] => String::new(),
+        [only] => only.clone(),
+        [init @ .., last] => format!("{} or {last}", init.join(", ")),
+    };
+    ClarifyingQuestion {
+        constraint,
+        text: format!(
+            "which of the {} {noun}: {listed}?",
+            number_word(distinct.len())
+        ),
+        candidates: distinct.iter().map(|&h| view.hypotheses[h].id).collect(),
+        descriptions,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn plurals_of_class_names_read_naturally() {
+        assert_eq!(plural("mug"), "mugs");
+        assert_eq!(plural("box"), "boxes");
+        assert_eq!(plural("shelf"), "shelves");
+        assert_eq!(plural("clothes"), "clothes");
+        assert_eq!(plural("glass"), "glasses");
+    }
+}

@@ -1,0 +1,355 @@
+//! `correct`: one operator turn, end to end — ground the constraints, build the energy, solve, describe.
+//!
+//! Owns: `CorrectionRequest`, `Correction`, the safety hold (a second solve that keeps safety-critical labels
+//! and objects unless the operator confirmed) and the baseline solve when there is no previous turn.
+//! Must not: parse utterances or touch files; constraints arrive typed, results leave as plain values.
+
+use serde::{Deserialize, Serialize};
+
+use super::changes::{
+    list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
+};
+use super::{build_scene_graph, SceneGraph};
+use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
+use crate::energy::{EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT};
+use crate::grounding::{
+    ground, ClarifyingQuestion, GroundedConstraint, GroundedKind, GroundingContext, GroundingIssue,
+    SceneView, Target,
+};
+use crate::hypotheses::{
+    build_hypotheses, Detection, Hypothesis, HypothesisError, ProposalOptions,
+};
+use crate::language::constraint::Constraint;
+use crate::scene::Scene;
+use crate::solver::joint::{solve_joint, JointError, JointOptions, JointSolution, WarmStart};
+use crate::taxonomy::Taxonomy;
+use crate::unaries::Unaries;
+
+/// What can stop a correction.
+#[derive(Debug, thiserror::Error)]
+pub enum CorrectionError {
+    #[error("hypotheses: {0}")]
+    Hypotheses(#[from] HypothesisError),
+    #[error("energy: {0}")]
+    Energy(#[from] EnergyError),
+    #[error("solver: {0}")]
+    Solver(#[from] JointError),
+}
+
+/// One turn's inputs.
+pub struct CorrectionRequest<'a> {
+    pub scene: &'a Scene,
+    pub unaries: &'a Unaries,
+    pub taxonomy: &'a Taxonomy,
+    pub detections: &'a [Detection],
+    /// The previous turn on this scene, if any: its state is the "before" and the warm start.
+    pub previous: Option<&'a Correction>,
+    pub constraints: &'a [Constraint],
+    pub context: &'a GroundingContext,
+    /// Apply changes that remove or rename a safety-critical class.
+    pub confirm_safety: bool,
+    pub prior: &'a RoomClassPrior,
+    pub weights: &'a EnergyWeights,
+    pub proposals: &'a ProposalOptions,
+    pub options: &'a JointOptions,
+}
+
+/// One turn's result.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Correction {
+    pub graph: SceneGraph,
+    pub changes: Vec<Change>,
+    pub unmet: Vec<Unmet>,
+    pub questions: Vec<ClarifyingQuestion>,
+    pub issues: Vec<GroundingIssue>,
+    pub hypotheses: Vec<Hypothesis>,
+    pub solution: JointSolution,
+    /// The referent a following "it" means.
+    pub last_referent: Option<Target>,
+    /// Every constraint in force after this turn (earlier turns first), grounded.
+    pub grounded: Vec<GroundedConstraint>,
+    /// Span and gloss of every constraint in force, by the index causes and unmet entries use.
+    pub constraint_labels: ConstraintLabels,
+}
+
+/// The previous state re-indexed onto a new hypothesis list (matching by id).
+fn carry_state(
+    previous: &Correction,
+    hypotheses: &[Hypothesis],
+    node_count: usize,
+) -> Option<JointState> {
+    let state = &previous.solution.state;
+    if state.labels.len() != node_count {
+        return None;
+    }
+    let on: Vec<bool> = hypotheses
+        .iter()
+        .map(|h| {
+            previous
+                .hypotheses
+                .iter()
+                .position(|p| p.id == h.id)
+                .and_then(|index| state.hypotheses_on.get(index).copied())
+                .unwrap_or(false)
+        })
+        .collect();
+    Some(JointState {
+        labels: state.labels.clone(),
+        hypotheses_on: on,
+        room: state.room,
+    })
+}
+
+/// Runs one turn.
+pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionError> {
+    let scene = request.scene;
+    let taxonomy = request.taxonomy;
+    // A later turn keeps the earlier turn's hypothesis list (the same scene gives the same list, plus any
+    // hypotheses earlier relabels added), so the constraints still in force keep pointing at the right ones.
+    let hypotheses = match request.previous {
+        Some(previous) => previous.hypotheses.clone(),
+        None => build_hypotheses(
+            scene,
+            request.unaries,
+            request.detections,
+            request.proposals,
+        )?,
+    };
+    // The "before": the previous turn, or the scene solved with no constraints.
+    let (before_state, before_hypotheses, warm) = match request.previous {
+        Some(previous) => {
+            let node_count = scene.segment_count() + scene.coarse.members.len();
+            match carry_state(previous, &hypotheses, node_count) {
+                Some(state) => (
+                    previous.solution.state.clone(),
+                    previous.hypotheses.clone(),
+                    Some(WarmStart {
+                        state,
+                        multipliers: Some(previous.solution.multipliers.clone()),
+                    }),
+                ),
+                None => baseline(&energy_inputs(request, &hypotheses, &[]), request.options)?,
+            }
+        }
+        None => baseline(&energy_inputs(request, &hypotheses, &[]), request.options)?,
+    };
+
+    let accepted: Vec<bool> = hypotheses
+        .iter()
+        .map(|h| {
+            before_hypotheses
+                .iter()
+                .position(|p| p.id == h.id)
+                .and_then(|index| before_state.hypotheses_on.get(index).copied())
+                .unwrap_or(false)
+        })
+        .collect();
+    let view = SceneView {
+        scene,
+        taxonomy,
+        hypotheses: &hypotheses,
+        accepted: &accepted,
+        class_count: request.unaries.class_count(),
+    };
+    let grounding = ground(request.constraints, &view, request.context);
+    // Earlier turns' constraints stay in force; this turn's are numbered after them.
+    let (mut in_force, mut labels): (Vec<GroundedConstraint>, ConstraintLabels) =
+        match request.previous {
+            Some(previous) => (
+                previous.grounded.clone(),
+                previous.constraint_labels.clone(),
+            ),
+            None => (Vec::new(), Vec::new()),
+        };
+    let offset = labels.len();
+    labels.extend(
+        request
+            .constraints
+            .iter()
+            .map(|c| (c.span, c.gloss.clone())),
+    );
+    in_force.extend(grounding.constraints.iter().cloned().map(|mut grounded| {
+        grounded.constraint += offset;
+        grounded
+    }));
+
+    let built = build_energy(&energy_inputs(request, &hypotheses, &in_force))?;
+    let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
+    let mut changes = list_changes(
+        &built.energy,
+        taxonomy,
+        &labels,
+        &before_state,
+        &before_hypotheses,
+        &solution.state,
+        &built.hypotheses,
+    );
+    let mut energy = built.energy.clone();
+    let mut held_sources: Vec<usize> = Vec::new();
+    if !request.confirm_safety && changes.iter().any(|c| c.status == ChangeStatus::Pending) {
+        // Hold the safety-critical parts where they were, and solve again around them without the
+        // constraints that asked for the held changes (they wait for confirmation, reported as pending).
+        held_sources = changes
+            .iter()
+            .filter(|c| c.status == ChangeStatus::Pending)
+            .flat_map(|c| c.causes.iter().map(|cause| cause.constraint))
+            .collect();
+        held_sources.sort_unstable();
+        held_sources.dedup();
+        let held =
+            |source: Option<usize>| source.is_some_and(|s| held_sources.binary_search(&s).is_ok());
+        for factor in &mut energy.count_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
+        for factor in &mut energy.absent_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
+        for factor in &mut energy.tuple_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
+        for factor in &mut energy.unary_factors {
+            if held(factor.source) {
+                factor.weight = 0.0;
+            }
+        }
+        for change in changes.iter().filter(|c| c.status == ChangeStatus::Pending) {
+            match change.kind {
+                ChangeKind::SegmentRelabelled { segment, from, .. } => {
+                    energy.unary_factors.push(UnaryFactor {
+                        segments: vec![segment.0],
+                        label: from.0,
+                        wanted: true,
+                        weight: HARD_WEIGHT,
+                        source: None,
+                    })
+                }
+                ChangeKind::ObjectRemoved { hypothesis, .. } => {
+                    if let Some(index) = built.hypotheses.iter().position(|h| h.id == hypothesis) {
+                        energy.tuple_factors.push(TupleFactor {
+                            tuples: vec![vec![index as u32]],
+                            negated: false,
+                            weight: HARD_WEIGHT,
+                            source: None,
+                        });
+                    }
+                }
+                _ => {}
+            }
+        }
+        let start = WarmStart {
+            state: solution.state.clone(),
+            multipliers: None,
+        };
+        solution = solve_joint(&energy, Some(&start), request.options)?;
+        let applied = list_changes(
+            &energy,
+            taxonomy,
+            &labels,
+            &before_state,
+            &before_hypotheses,
+            &solution.state,
+            &built.hypotheses,
+        );
+        let pending: Vec<Change> = changes
+            .into_iter()
+            .filter(|c| c.status == ChangeStatus::Pending)
+            .collect();
+        let mut merged: Vec<Change> = applied
+            .into_iter()
+            .filter(|c| !pending.iter().any(|p| p.kind == c.kind))
+            .collect();
+        merged.extend(pending);
+        changes = merged;
+    } else {
+        for change in &mut changes {
+            change.status = ChangeStatus::Applied;
+        }
+    }
+
+    let mut unmet = unmet_constraints(&energy, taxonomy, &labels, &solution.state);
+    unmet.retain(|u| held_sources.binary_search(&u.constraint).is_err());
+    for grounded in &in_force {
+        if let GroundedKind::Room { room } = grounded.kind {
+            if solution.state.room != room.0
+                && !unmet.iter().any(|u| u.constraint == grounded.constraint)
+            {
+                unmet.push(Unmet {
+                    constraint: grounded.constraint,
+                    span: grounded.span,
+                    contradictory: grounded.hard,
+                    reason: "the rest of the picture points to another room type".to_string(),
+                });
+            }
+        }
+    }
+    for problem in &built.unmet {
+        if !unmet.iter().any(|u| u.constraint == problem.constraint) {
+            unmet.push(Unmet {
+                constraint: problem.constraint,
+                span: labels
+                    .get(problem.constraint)
+                    .map(|l| l.0)
+                    .unwrap_or_default(),
+                contradictory: false,
+                reason: problem.reason.clone(),
+            });
+        }
+    }
+    unmet.sort_by_key(|u| u.constraint);
+    let graph = build_scene_graph(
+        scene,
+        taxonomy,
+        &built.hypotheses,
+        &solution.state,
+        solution.energy,
+        solution.lower_bound,
+        solution.relative_gap,
+    );
+    Ok(Correction {
+        graph,
+        changes,
+        unmet,
+        questions: grounding.questions,
+        issues: grounding.issues,
+        hypotheses: built.hypotheses,
+        solution,
+        last_referent: grounding.last_referent,
+        grounded: in_force,
+        constraint_labels: labels,
+    })
+}
+
+fn energy_inputs<'a>(
+    request: &'a CorrectionRequest,
+    hypotheses: &'a [Hypothesis],
+    grounded: &'a [GroundedConstraint],
+) -> EnergyInputs<'a> {
+    EnergyInputs {
+        scene: request.scene,
+        unaries: request.unaries,
+        taxonomy: request.taxonomy,
+        hypotheses,
+        grounded,
+        prior: request.prior,
+        weights: request.weights,
+    }
+}
+
+fn baseline(
+    inputs: &EnergyInputs,
+    options: &JointOptions,
+) -> Result<(JointState, Vec<Hypothesis>, Option<WarmStart>), CorrectionError> {
+    let built = build_energy(inputs)?;
+    let solution = solve_joint(&built.energy, None, options)?;
+    let warm = WarmStart {
+        state: solution.state.clone(),
+        multipliers: Some(solution.multipliers.clone()),
+    };
+    Ok((solution.state, built.hypotheses, Some(warm)))
+}

@@ -1,0 +1,245 @@
+//! The corrected scene graph: objects, relations, room type, per-segment labels and the label map.
+//!
+//! Owns: `SceneGraph` and its parts, building it from a solved state, run-length masks, the label map, and
+//! (in `changes`) the change list with causes, unmet constraints and safety holds; `correct` (in `correct`)
+//! runs grounding, energy, solver and this stage in order.
+//! Must not: search for solutions or read words; it describes a state the solver returned.
+
+pub mod changes;
+pub mod correct;
+
+use serde::{Deserialize, Serialize};
+
+use crate::energy::JointState;
+use crate::grounding::{footprint_of, holds};
+use crate::hypotheses::Hypothesis;
+use crate::ids::{ClassId, HypothesisId, ObjectId, RoomId, SegmentId};
+use crate::language::constraint::Relation;
+use crate::raster::IndexImage;
+use crate::scene::{BoundingBox, Scene};
+use crate::taxonomy::{ClassGroup, Taxonomy};
+
+/// The schema of the scene graph JSON.
+pub const SCENE_GRAPH_SCHEMA: u32 = 1;
+
+/// A binary mask as run lengths over the image in row-major order, starting with a run of pixels outside.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RunLengthMask {
+    pub width: u32,
+    pub height: u32,
+    /// Alternating run lengths: outside, inside, outside, ...
+    pub runs: Vec<u32>,
+}
+
+impl RunLengthMask {
+    /// Encodes the pixels whose segment is in `members`.
+    pub fn from_segments(scene: &Scene, members: &[SegmentId]) -> RunLengthMask {
+        let mut member = vec![false; scene.segment_count()];
+        for s in members {
+            if let Some(flag) = member.get_mut(s.index()) {
+                *flag = true;
+            }
+        }
+        let mut runs = Vec::new();
+        let mut inside = false;
+        let mut length = 0u32;
+        for &label in &scene.segments.labels {
+            let here = member.get(label as usize).copied().unwrap_or(false);
+            if here != inside {
+                runs.push(length);
+                length = 0;
+                inside = here;
+            }
+            length += 1;
+        }
+        runs.push(length);
+        RunLengthMask {
+            width: scene.segments.width,
+            height: scene.segments.height,
+            runs,
+        }
+    }
+
+    /// Decodes to one flag per pixel.
+    pub fn decode(&self) -> Vec<bool> {
+        let mut pixels = Vec::with_capacity(self.width as usize * self.height as usize);
+        for (index, &run) in self.runs.iter().enumerate() {
+            pixels.extend(std::iter::repeat_n(index % 2 == 1, run as usize));
+        }
+        pixels
+    }
+}
+
+/// One object of the corrected scene.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SceneObject {
+    pub id: ObjectId,
+    pub hypothesis: HypothesisId,
+    pub class: ClassId,
+    pub class_name: String,
+    pub score: f32,
+    pub bbox: BoundingBox,
+    pub members: Vec<SegmentId>,
+    pub mask: RunLengthMask,
+}
+
+/// A relation between two objects, computed from the final geometry.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ObjectRelation {
+    pub subject: ObjectId,
+    pub relation: Relation,
+    pub object: ObjectId,
+}
+
+/// The corrected scene graph.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SceneGraph {
+    pub schema: u32,
+    pub scene: String,
+    pub room: RoomId,
+    pub room_name: String,
+    pub objects: Vec<SceneObject>,
+    pub relations: Vec<ObjectRelation>,
+    /// One class per fine segment.
+    pub segment_labels: Vec<ClassId>,
+    pub energy: f64,
+    pub lower_bound: f64,
+    pub relative_gap: f64,
+}
+
+/// The object id of a hypothesis: the hypothesis id, so objects keep their ids across re-solves.
+pub fn object_id(hypothesis: HypothesisId) -> ObjectId {
+    ObjectId(hypothesis.0)
+}
+
+/// Relations reported between objects (structure classes such as walls take part only as landmarks of `On`).
+const REPORTED_RELATIONS: [Relation; 7] = [
+    Relation::On,
+    Relation::Under,
+    Relation::Inside,
+    Relation::NextTo,
+    Relation::LeftOf,
+    Relation::InFrontOf,
+    Relation::Behind,
+];
+
+/// Objects' members follow the final labels: an accepted hypothesis keeps the members that carry its class.
+fn final_members(hypothesis: &Hypothesis, labels: &[u16]) -> Vec<SegmentId> {
+    let agreeing: Vec<SegmentId> = hypothesis
+        .members
+        .iter()
+        .copied()
+        .filter(|s| labels.get(s.index()).copied() == Some(hypothesis.class.0))
+        .collect();
+    if agreeing.is_empty() {
+        hypothesis.members.clone()
+    } else {
+        agreeing
+    }
+}
+
+/// Builds the scene graph of a solved state.
+pub fn build_scene_graph(
+    scene: &Scene,
+    taxonomy: &Taxonomy,
+    hypotheses: &[Hypothesis],
+    state: &JointState,
+    energy: f64,
+    lower_bound: f64,
+    relative_gap: f64,
+) -> SceneGraph {
+    let fine = scene.segment_count();
+    let mut objects: Vec<SceneObject> = hypotheses
+        .iter()
+        .zip(&state.hypotheses_on)
+        .filter(|(_, &on)| on)
+        .map(|(hypothesis, _)| {
+            let members = final_members(hypothesis, &state.labels[..fine.min(state.labels.len())]);
+            let footprint = footprint_of(scene, &members);
+            SceneObject {
+                id: object_id(hypothesis.id),
+                hypothesis: hypothesis.id,
+                class: hypothesis.class,
+                class_name: taxonomy.class_name(hypothesis.class).to_string(),
+                score: hypothesis.score,
+                bbox: footprint.bbox,
+                mask: RunLengthMask::from_segments(scene, &members),
+                members,
+            }
+        })
+        .collect();
+    objects.sort_by_key(|object| object.id);
+    let footprints: Vec<_> = objects
+        .iter()
+        .map(|object| footprint_of(scene, &object.members))
+        .collect();
+    let is_structure = |class: ClassId| {
+        taxonomy
+            .class(class)
+            .is_some_and(|info| info.group == ClassGroup::Structure)
+    };
+    let mut relations = Vec::new();
+    for (a, subject) in objects.iter().enumerate() {
+        if is_structure(subject.class) {
+            continue;
+        }
+        for (b, object) in objects.iter().enumerate() {
+            if a == b {
+                continue;
+            }
+            for relation in REPORTED_RELATIONS {
+                if is_structure(object.class) && relation != Relation::On {
+                    continue;
+                }
+                if holds(relation, &footprints[a], &[footprints[b]]) {
+                    relations.push(ObjectRelation {
+                        subject: subject.id,
+                        relation,
+                        object: object.id,
+                    });
+                }
+            }
+        }
+    }
+    let room = RoomId(state.room);
+    SceneGraph {
+        schema: SCENE_GRAPH_SCHEMA,
+        scene: scene.name.clone(),
+        room,
+        room_name: taxonomy
+            .room(room)
+            .map(|info| info.name.clone())
+            .unwrap_or_else(|| "unknown".to_string()),
+        objects,
+        relations,
+        segment_labels: state
+            .labels
+            .iter()
+            .take(fine)
+            .map(|&label| ClassId(label))
+            .collect(),
+        energy,
+        lower_bound,
+        relative_gap,
+    }
+}
+
+/// The label map: every pixel carries its segment's class id (write it with `crate::raster::write_index_png`).
+pub fn label_map(scene: &Scene, segment_labels: &[ClassId]) -> IndexImage {
+    let values = scene
+        .segments
+        .labels
+        .iter()
+        .map(|&segment| {
+            segment_labels
+                .get(segment as usize)
+                .map(|class| class.0)
+                .unwrap_or(crate::taxonomy::UNLABELLED)
+        })
+        .collect();
+    IndexImage {
+        width: scene.segments.width,
+        height: scene.segments.height,
+        values,
+    }
+}

@@ -1,0 +1,665 @@
+//! The joint solver: minimises a `JointEnergy` over segment labels, hypotheses, presence and room type, and
+//! proves how far from the optimum its answer can be.
+//!
+//! Owns: `solve_joint`, its options, warm start and `JointSolution` (state, energy, lower bound, gap).
+//! Must not: know about language, files or what classes mean; it reads numbers from `JointEnergy`.
+//!
+//! # Method
+//!
+//! Dual decomposition. The energy splits into a segment part (unaries and Potts smoothing, solved by the
+//! segment labeller) and a coupled part (hypotheses, presence, room, constraint factors, solved exactly by
+//! `joint_coupled`). The two meet in two places, each relaxed with Lagrange multipliers:
+//! - agreement: `y_h g_h [x_s != c_h]` is written with a copy `q_hs` of `[x_s = c_h]`; multiplier `mu_hs` on
+//!   `q_hs = [x_s = c_h]`;
+//! - presence: `p_c >= [x_s = c]`, multiplier `nu_sc >= 0`; the coupled part may also switch presence on
+//!   without support (dropping a constraint only lowers a minimum).
+//!
+//! For any multipliers, (a lower bound of the segment part) + (the exact minimum of the coupled part) is a
+//! lower bound of the whole energy. Multipliers move by projected subgradient steps with Polyak step sizes.
+//! Every iteration's segment labelling is also completed into a full state by the exact coupled step with the
+//! labels fixed, and the best such state is kept; alternating (labels given hypotheses, hypotheses given
+//! labels) and, on small problems, single-node moves scored with the true energy polish it.
+
+use serde::{Deserialize, Serialize};
+
+use crate::energy::{EnergyError, JointEnergy, JointState};
+use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
+use crate::solver::joint_labeller::{candidate_table, label_segments, potts_lower_bound};
+use crate::solver::labelling::LabellingProblem;
+
+/// Options of the joint solver.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct JointOptions {
+    /// Dual iterations at most.
+    pub max_iterations: u32,
+    /// Single-node polishing runs when `nodes * labels` is at most this.
+    pub polish_budget: usize,
+    /// Stop when the relative gap falls below this.
+    pub gap_tolerance: f64,
+}
+
+impl Default for JointOptions {
+    fn default() -> Self {
+        JointOptions {
+            max_iterations: 30,
+            polish_budget: 4096,
+            gap_tolerance: 1e-9,
+        }
+    }
+}
+
+/// The Lagrange multipliers, kept so a re-solve can start from them.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
+pub struct Multipliers {
+    /// `agreement[h][m]`: for member `m` of hypothesis `h`.
+    pub agreement: Vec<Vec<f64>>,
+    /// `presence[s * label_count + c]`, fine segments only.
+    pub presence: Vec<f64>,
+}
+
+/// A previous solution to start from.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct WarmStart {
+    pub state: JointState,
+    pub multipliers: Option<Multipliers>,
+}
+
+/// The joint solver's answer.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct JointSolution {
+    pub state: JointState,
+    /// Presence per class implied by the state.
+    pub presence: Vec<bool>,
+    pub energy: f64,
+    /// No state has a lower energy than this.
+    pub lower_bound: f64,
+    /// `(energy - lower_bound) / max(|energy|, 1)`.
+    pub relative_gap: f64,
+    pub iterations: u32,
+    /// `false` when tuple factors named too many hypotheses for the coupled step to enumerate them.
+    pub coupled_exact: bool,
+    pub multipliers: Multipliers,
+}
+
+/// What can go wrong solving.
+#[derive(Debug, thiserror::Error, PartialEq)]
+pub enum JointError {
+    #[error("invalid energy: {0}")]
+    Energy(#[from] EnergyError),
+}
+
+struct Candidate {
+    state: JointState,
+    energy: f64,
+}
+
+/// Shared, read-only tables of one solve.
+struct Context<'a> {
+    energy: &'a JointEnergy,
+    unary: Vec<f64>,
+    /// Labels each node may take in expansion moves.
+    candidates: Vec<bool>,
+    edges_f32: Vec<(u32, u32, f32)>,
+}
+
+impl Context<'_> {
+    fn segment_energy(&self, labels: &[u16]) -> f64 {
+        let label_count = self.energy.label_count;
+        let mut total = 0.0;
+        for (node, &label) in labels.iter().enumerate() {
+            total += self.unary[node * label_count + label as usize];
+        }
+        for &(a, b, weight) in &self.energy.edges {
+            if labels[a as usize] != labels[b as usize] {
+                total += weight;
+            }
+        }
+        total
+    }
+
+    /// The best full state with these labels: the coupled step is exact once labels are fixed.
+    fn complete(&self, labels: Vec<u16>) -> Candidate {
+        let energy = self.energy;
+        let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
+        for hypothesis in &energy.hypotheses {
+            let disagreeing = hypothesis
+                .members
+                .iter()
+                .filter(|&&s| labels[s as usize] != hypothesis.class)
+                .count();
+            cost_on.push(
+                hypothesis.activation_cost + hypothesis.agreement_weight * disagreeing as f64,
+            );
+        }
+        let cost_off = vec![0.0; energy.hypotheses.len()];
+        let mut support = vec![false; energy.label_count];
+        for &label in labels.iter().take(energy.fine_count) {
+            support[label as usize] = true;
+        }
+        let adjust = vec![0.0; energy.label_count];
+        let coupled = solve_coupled(&CoupledInputs {
+            energy,
+            cost_on: &cost_on,
+            cost_off: &cost_off,
+            presence_adjust: &adjust,
+            segment_support: &support,
+            relaxed_presence: false,
+        });
+        let mut value = self.segment_energy(&labels) + coupled.value;
+        let state = JointState {
+            labels,
+            hypotheses_on: coupled.hypotheses_on,
+            room: coupled.room,
+        };
+        if !coupled.exact {
+            // Tuple factors were left out of the step; score the state with the true energy.
+            value = energy.evaluate(&state).unwrap_or(f64::INFINITY);
+        }
+        Candidate {
+            state,
+            energy: value,
+        }
+    }
+
+    fn problem(&self, unary: &[f64]) -> LabellingProblem {
+        LabellingProblem {
+            node_count: self.energy.node_count,
+            label_count: self.energy.label_count,
+            unary: unary.iter().map(|&value| value as f32).collect(),
+            edges: self.edges_f32.clone(),
+        }
+    }
+
+    /// Labels given the accepted hypotheses of a state, then completes them.
+    fn relabel_given_hypotheses(&self, state: &JointState) -> Candidate {
+        let label_count = self.energy.label_count;
+        let mut unary = self.unary.clone();
+        for (hypothesis, &on) in self.energy.hypotheses.iter().zip(&state.hypotheses_on) {
+            if on {
+                for &s in &hypothesis.members {
+                    let row = s as usize * label_count;
+                    for label in 0..label_count {
+                        if label != hypothesis.class as usize {
+                            unary[row + label] += hypothesis.agreement_weight;
+                        }
+                    }
+                }
+            }
+        }
+        let result = label_segments(&self.problem(&unary), &self.candidates, &state.labels);
+        self.complete(result.labels)
+    }
+}
+
+/// Expansion candidates: each fine node's cheapest labels and the classes of hypotheses over it; a coarse
+/// node takes the union of its linked fine nodes' candidates.
+fn candidates(energy: &JointEnergy, unary: &[f64]) -> Vec<bool> {
+    let label_count = energy.label_count;
+    let mut extra: Vec<(usize, u16)> = Vec::new();
+    for hypothesis in &energy.hypotheses {
+        for &s in &hypothesis.members {
+            extra.push((s as usize, hypothesis.class));
+        }
+    }
+    for factor in &energy.unary_factors {
+        if factor.wanted {
+            for &s in &factor.segments {
+                extra.push((s as usize, factor.label));
+            }
+        }
+    }
+    let mut table = candidate_table(unary, energy.fine_count, label_count, &extra);
+    table.resize(energy.node_count * label_count, false);
+    for &(a, b, _) in &energy.edges {
+        let (fine, coarse) = match (a as usize, b as usize) {
+            (a, b) if a < energy.fine_count && b >= energy.fine_count => (a, b),
+            (a, b) if b < energy.fine_count && a >= energy.fine_count => (b, a),
+            _ => continue,
+        };
+        for label in 0..label_count {
+            if table[fine * label_count + label] {
+                table[coarse * label_count + label] = true;
+            }
+        }
+    }
+    table
+}
+
+fn keep_better(best: &mut Candidate, candidate: Candidate) {
+    if candidate.energy < best.energy - 1e-12 {
+        *best = candidate;
+    }
+}
+
+/// The dual loop stops after this many iterations in a row that improve neither bound nor energy.
+const STALL_ITERATIONS: u32 = 4;
+
+/// How many distinct states are kept for polishing.
+const POOL_SIZE: usize = 6;
+
+/// Keeps the `POOL_SIZE` lowest-energy distinct states.
+fn remember(pool: &mut Vec<Candidate>, candidate: &Candidate) {
+    if pool.iter().any(|kept| kept.state == candidate.state) {
+        return;
+    }
+    pool.push(Candidate {
+        state: candidate.state.clone(),
+        energy: candidate.energy,
+    });
+    pool.sort_by(|a, b| a.energy.total_cmp(&b.energy));
+    pool.truncate(POOL_SIZE);
+}
+
+fn argmin_labels(unary: &[f64], label_count: usize) -> Vec<u16> {
+    unary
+        .chunks(label_count)
+        .map(|row| {
+            let mut best = 0;
+            for (label, &value) in row.iter().enumerate() {
+                if value < row[best] {
+                    best = label;
+                }
+            }
+            best as u16
+        })
+        .collect()
+}
+
+fn fresh_multipliers(energy: &JointEnergy) -> Multipliers {
+    Multipliers {
+        agreement: energy
+            .hypotheses
+            .iter()
+            .map(|h| vec![0.0; h.members.len()])
+            .collect(),
+        presence: vec![0.0; energy.fine_count * energy.label_count],
+    }
+}
+
+fn multipliers_fit(energy: &JointEnergy, multipliers: &Multipliers) -> bool {
+    multipliers.presence.len() == energy.fine_count * energy.label_count
+        && multipliers.agreement.len() == energy.hypotheses.len()
+        && multipliers
+            .agreement
+            .iter()
+            .zip(&energy.hypotheses)
+            .all(|(row, h)| row.len() == h.members.len() && row.iter().all(|v| v.is_finite()))
+        && multipliers
+            .presence
+            .iter()
+            .all(|v| v.is_finite() && *v >= 0.0)
+}
+
+struct DualValue {
+    bound: f64,
+    segment_labels: Vec<u16>,
+    coupled: CoupledResult,
+    copies: Vec<Vec<bool>>,
+}
+
+/// One evaluation of the dual function at the current multipliers.
+fn dual_value(context: &Context, multipliers: &Multipliers, start: &[u16]) -> DualValue {
+    let energy = context.energy;
+    let label_count = energy.label_count;
+    let mut unary = context.unary.clone();
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        for (m, &s) in hypothesis.members.iter().enumerate() {
+            unary[s as usize * label_count + hypothesis.class as usize] -=
+                multipliers.agreement[h][m];
+        }
+    }
+    for (index, &nu) in multipliers.presence.iter().enumerate() {
+        unary[index] += nu;
+    }
+    let segment_bound = potts_lower_bound(&unary, label_count, &energy.edges);
+    let result = label_segments(&context.problem(&unary), &context.candidates, start);
+
+    let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
+    let mut cost_off = Vec::with_capacity(energy.hypotheses.len());
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        let g = hypothesis.agreement_weight;
+        let on: f64 = multipliers.agreement[h].iter().map(|&mu| mu.min(g)).sum();
+        let off: f64 = multipliers.agreement[h].iter().map(|&mu| mu.min(0.0)).sum();
+        cost_on.push(hypothesis.activation_cost + on);
+        cost_off.push(off);
+    }
+    let mut adjust = vec![0.0; label_count];
+    for (index, &nu) in multipliers.presence.iter().enumerate() {
+        adjust[index % label_count] += nu;
+    }
+    let no_support = vec![false; label_count];
+    let coupled = solve_coupled(&CoupledInputs {
+        energy,
+        cost_on: &cost_on,
+        cost_off: &cost_off,
+        presence_adjust: &adjust,
+        segment_support: &no_support,
+        relaxed_presence: true,
+    });
+    let copies = energy
+        .hypotheses
+        .iter()
+        .enumerate()
+        .map(|(h, hypothesis)| {
+            let threshold = if coupled.hypotheses_on[h] {
+                hypothesis.agreement_weight
+            } else {
+                0.0
+            };
+            multipliers.agreement[h]
+                .iter()
+                .map(|&mu| mu < threshold)
+                .collect()
+        })
+        .collect();
+    DualValue {
+        bound: segment_bound + coupled.value,
+        segment_labels: result.labels,
+        coupled,
+        copies,
+    }
+}
+
+/// Moves the multipliers one projected subgradient step; returns `false` when the subgradient is zero.
+fn subgradient_step(
+    energy: &JointEnergy,
+    multipliers: &mut Multipliers,
+    dual: &DualValue,
+    target: f64,
+    scale: f64,
+) -> bool {
+    let label_count = energy.label_count;
+    let labels = &dual.segment_labels;
+    let mut norm = 0.0;
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        for (m, &s) in hypothesis.members.iter().enumerate() {
+            let indicator = labels[s as usize] == hypothesis.class;
+            let g = dual.copies[h][m] as i32 as f64 - indicator as i32 as f64;
+            norm += g * g;
+        }
+    }
+    for (s, &label) in labels.iter().enumerate().take(energy.fine_count) {
+        for c in 0..label_count {
+            let g = (label as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
+            if g > 0.0 || multipliers.presence[s * label_count + c] > 0.0 {
+                norm += g * g;
+            }
+        }
+    }
+    if norm == 0.0 {
+        return false;
+    }
+    let step = scale * (target - dual.bound).max(1e-6) / norm;
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        for (m, &s) in hypothesis.members.iter().enumerate() {
+            let indicator = labels[s as usize] == hypothesis.class;
+            let g = dual.copies[h][m] as i32 as f64 - indicator as i32 as f64;
+            multipliers.agreement[h][m] += step * g;
+        }
+    }
+    for (s, &label) in labels.iter().enumerate().take(energy.fine_count) {
+        for c in 0..label_count {
+            let g = (label as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
+            let value = &mut multipliers.presence[s * label_count + c];
+            *value = (*value + step * g).max(0.0);
+        }
+    }
+    true
+}
+
+/// Moves scored with the true energy, until none improves (small problems only): one node to a label, both
+/// ends of an edge to a label, and a coarse region node with all its linked nodes to a label.
+fn polish(context: &Context, best: &mut Candidate) {
+    let energy = context.energy;
+    let mut groups: Vec<Vec<usize>> = (0..energy.node_count).map(|node| vec![node]).collect();
+    for &(a, b, _) in &energy.edges {
+        groups.push(vec![a as usize, b as usize]);
+    }
+    let mut linked: Vec<Vec<usize>> = vec![Vec::new(); energy.node_count];
+    for &(a, b, _) in &energy.edges {
+        if (b as usize) >= energy.fine_count {
+            linked[b as usize].push(a as usize);
+        }
+        if (a as usize) >= energy.fine_count {
+            linked[a as usize].push(b as usize);
+        }
+    }
+    for hypothesis in &energy.hypotheses {
+        groups.push(hypothesis.members.iter().map(|&s| s as usize).collect());
+    }
+    for (node, members) in linked.into_iter().enumerate() {
+        if node >= energy.fine_count && !members.is_empty() {
+            let mut group = members;
+            group.push(node);
+            groups.push(group);
+        }
+    }
+    for _ in 0..10 {
+        let mut improved = false;
+        // Class-wide moves: every node of class `from` to `to`, or each to its best other label.
+        let label_count = energy.label_count;
+        for from in 0..label_count as u16 {
+            if !best.state.labels.contains(&from) {
+                continue;
+            }
+            for to in 0..=label_count as u16 {
+                if to == from {
+                    continue;
+                }
+                let mut labels = best.state.labels.clone();
+                for (node, label) in labels.iter_mut().enumerate() {
+                    if *label != from {
+                        continue;
+                    }
+                    *label = if (to as usize) < label_count {
+                        to
+                    } else {
+                        let row = &context.unary[node * label_count..(node + 1) * label_count];
+                        let mut pick = (if from == 0 { 1 } else { 0 }, f64::INFINITY);
+                        for (candidate, &value) in row.iter().enumerate() {
+                            if candidate != from as usize && value < pick.1 {
+                                pick = (candidate, value);
+                            }
+                        }
+                        pick.0 as u16
+                    };
+                }
+                let candidate = context.complete(labels);
+                if candidate.energy < best.energy - 1e-12 {
+                    *best = candidate;
+                    improved = true;
+                }
+            }
+        }
+        for group in &groups {
+            for label in 0..energy.label_count as u16 {
+                if group.iter().all(|&node| best.state.labels[node] == label) {
+                    continue;
+                }
+                let mut labels = best.state.labels.clone();
+                for &node in group {
+                    labels[node] = label;
+                }
+                let candidate = context.complete(labels);
+                if candidate.energy < best.energy - 1e-12 {
+                    *best = candidate;
+                    improved = true;
+                }
+            }
+        }
+        if !improved {
+            break;
+        }
+    }
+}
+
+/// Pulls every member of each hypothesis to its class in turn, and keeps any state that is better.
+fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
+    let label_count = context.energy.label_count;
+    for hypothesis in &context.energy.hypotheses {
+        // Members away from the class: each to its best other label.
+        let mut labels = best.state.labels.clone();
+        for &s in &hypothesis.members {
+            let row = &context.unary[s as usize * label_count..(s as usize + 1) * label_count];
+            let mut pick = None;
+            for (label, &value) in row.iter().enumerate() {
+                if label != hypothesis.class as usize
+                    && pick.is_none_or(|(_, best): (usize, f64)| value < best)
+                {
+                    pick = Some((label, value));
+                }
+            }
+            if let Some((label, _)) = pick {
+                labels[s as usize] = label as u16;
+            }
+        }
+        if labels != best.state.labels {
+            let candidate = context.complete(labels);
+            keep_better(best, candidate);
+        }
+        let mut labels = best.state.labels.clone();
+        for &s in &hypothesis.members {
+            labels[s as usize] = hypothesis.class;
+        }
+        if labels != best.state.labels {
+            let candidate = context.complete(labels);
+            keep_better(best, candidate);
+        }
+    }
+}
+
+/// Minimises the energy; `warm` starts from a previous solution of the same (or a similar) energy.
+pub fn solve_joint(
+    energy: &JointEnergy,
+    warm: Option<&WarmStart>,
+    options: &JointOptions,
+) -> Result<JointSolution, JointError> {
+    energy.validate()?;
+    let unary = energy.folded_unary();
+    let edges_f32: Vec<(u32, u32, f32)> = energy
+        .edges
+        .iter()
+        .map(|&(a, b, w)| (a, b, w as f32))
+        .collect();
+    let context = Context {
+        energy,
+        candidates: candidates(energy, &unary),
+        unary,
+        edges_f32,
+    };
+    let label_count = energy.label_count;
+
+    let mut multipliers = fresh_multipliers(energy);
+    let mut start_labels = argmin_labels(&context.unary, label_count);
+    let mut best = context.complete(start_labels.clone());
+    if let Some(warm) = warm {
+        let fits = warm.state.labels.len() == energy.node_count
+            && warm
+                .state
+                .labels
+                .iter()
+                .all(|&label| (label as usize) < label_count);
+        if fits {
+            start_labels = warm.state.labels.clone();
+            keep_better(&mut best, context.complete(warm.state.labels.clone()));
+        }
+        if let Some(previous) = &warm.multipliers {
+            if multipliers_fit(energy, previous) {
+                multipliers = previous.clone();
+            }
+        }
+    }
+    let from_start = context.relabel_given_hypotheses(&best.state);
+    keep_better(&mut best, from_start);
+
+    let mut lower_bound = f64::NEG_INFINITY;
+    let mut coupled_exact = true;
+    let mut scale = 1.0;
+    let mut since_improvement = 0;
+    let mut iterations = 0;
+    let mut segment_start = start_labels;
+    let mut best_multipliers = multipliers.clone();
+    let mut pool: Vec<Candidate> = Vec::new();
+    let mut last_alternated: Option<Vec<bool>> = None;
+    let mut stalled = 0;
+    remember(&mut pool, &best);
+    while iterations < options.max_iterations {
+        iterations += 1;
+        let dual = dual_value(&context, &multipliers, &segment_start);
+        coupled_exact &= dual.coupled.exact;
+        if dual.bound > lower_bound + 1e-12 {
+            lower_bound = dual.bound;
+            best_multipliers = multipliers.clone();
+            since_improvement = 0;
+        } else {
+            since_improvement += 1;
+            if since_improvement >= 4 {
+                scale *= 0.5;
+                since_improvement = 0;
+            }
+        }
+        let candidate = context.complete(dual.segment_labels.clone());
+        let previous_best = best.energy;
+        if last_alternated.as_ref() != Some(&candidate.state.hypotheses_on) {
+            last_alternated = Some(candidate.state.hypotheses_on.clone());
+            let alternated = context.relabel_given_hypotheses(&candidate.state);
+            remember(&mut pool, &alternated);
+            keep_better(&mut best, alternated);
+        }
+        remember(&mut pool, &candidate);
+        keep_better(&mut best, candidate);
+        if best.energy < previous_best - 1e-12 {
+            stalled = 0;
+        } else if since_improvement > 0 {
+            stalled += 1;
+        }
+        if stalled >= STALL_ITERATIONS {
+            break;
+        }
+        if gap(best.energy, lower_bound) <= options.gap_tolerance || scale < 1e-4 {
+            break;
+        }
+        segment_start = dual.segment_labels.clone();
+        if !subgradient_step(energy, &mut multipliers, &dual, best.energy, scale) {
+            break;
+        }
+    }
+    try_hypothesis_moves(&context, &mut best);
+    if energy.node_count * label_count <= options.polish_budget
+        && gap(best.energy, lower_bound) > options.gap_tolerance
+    {
+        // Polish the best few distinct states found, not only the best one, and starts from each
+        // constant labelling.
+        remember(&mut pool, &best);
+        for label in 0..label_count as u16 {
+            let constant = context.complete(vec![label; energy.node_count]);
+            let settled = context.relabel_given_hypotheses(&constant.state);
+            remember(&mut pool, &settled);
+        }
+        for mut start in pool {
+            try_hypothesis_moves(&context, &mut start);
+            polish(&context, &mut start);
+            keep_better(&mut best, start);
+        }
+    }
+    let presence = energy.presence(&best.state);
+    // Rounding in the bound's sums must not let it pass the energy of a state we hold.
+    let lower_bound = lower_bound.min(best.energy);
+    Ok(JointSolution {
+        presence,
+        energy: best.energy,
+        lower_bound,
+        relative_gap: gap(best.energy, lower_bound),
+        iterations,
+        coupled_exact,
+        multipliers: best_multipliers,
+        state: best.state,
+    })
+}
+
+fn gap(energy: f64, lower_bound: f64) -> f64 {
+    if lower_bound == f64::NEG_INFINITY {
+        return f64::INFINITY;
+    }
+    ((energy - lower_bound) / energy.abs().max(1.0)).max(0.0)
+}

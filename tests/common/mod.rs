@@ -1,0 +1,2 @@
+//! Shared test helpers (hand-built scenes).
+pub mod grid_scene;
