@@ -16,9 +16,12 @@
 //!    each pixel whose distance `D^2 = dc^2 + (ds / S)^2 m^2` (dc colour distance, ds pixel distance,
 //!    m compactness) is the smallest seen so far; then every centre moves to the mean of its pixels.
 //! 5. The connectivity pass (`connectivity::enforce_connectivity`) relabels 4-connected components and
-//!    merges those smaller than `min_segment_fraction * N / seeds` pixels (the mean seed cell; scikit-image's
-//!    `slic` uses the same size with `min_size_factor = 0.5`) into the adjacent segment of nearest mean
-//!    colour, so every final segment is one 4-connected region with ids dense from 0.
+//!    merges those smaller than `min_segment_fraction * N / seeds` pixels (a fraction of the mean seed cell,
+//!    the size scikit-image's `slic` scales its `min_size_factor` by) into the adjacent segment of nearest
+//!    mean colour, so every final segment is one 4-connected region with ids dense from 0. Our default
+//!    fraction is 0.25 where scikit-image's is 0.5: because pieces join the most similar neighbour rather
+//!    than an arbitrary one, a smaller threshold keeps small objects (a mug) whole without leaving
+//!    slivers across edges; on the demo scenes it recalls more boundaries than 0.5 did.
 
 pub mod connectivity;
 pub mod metrics;
@@ -80,19 +83,19 @@ impl TryFrom<UncheckedSlicParams> for SlicParams {
 }
 
 impl Default for SlicParams {
-    /// 400 segments, compactness 10, 10 iterations, components below half a mean seed cell merged.
+    /// 400 segments, compactness 10, 10 iterations, components below a quarter of a mean seed cell merged.
     fn default() -> Self {
         SlicParams {
             target_segments: 400,
             compactness: 10.0,
             iterations: 10,
-            min_segment_fraction: 0.5,
+            min_segment_fraction: 0.25,
         }
     }
 }
 
 impl SlicParams {
-    /// Validated parameters; `min_segment_fraction` keeps its default of 0.5.
+    /// Validated parameters; `min_segment_fraction` keeps its default of 0.25.
     pub fn new(target_segments: u32, compactness: f32, iterations: u32) -> Result<Self, SlicError> {
         SlicParams::default()
             .with_target_segments(target_segments)?
