@@ -16,8 +16,12 @@
 //!    each pixel whose distance `D^2 = dc^2 + (ds / S)^2 m^2` (dc colour distance, ds pixel distance,
 //!    m compactness) is the smallest seen so far; then every centre moves to the mean of its pixels.
 //! 5. The connectivity pass (`connectivity::enforce_connectivity`) relabels 4-connected components and
-//!    merges those smaller than `min_segment_fraction * S^2` pixels into a neighbouring segment, so every
-//!    final segment is one 4-connected region with ids dense from 0.
+//!    merges those smaller than `min_segment_fraction * N / seeds` pixels (a fraction of the mean seed cell,
+//!    the size scikit-image's `slic` scales its `min_size_factor` by) into the adjacent segment of nearest
+//!    mean colour, so every final segment is one 4-connected region with ids dense from 0. Our default
+//!    fraction is 0.25 where scikit-image's is 0.5: because pieces join the most similar neighbour rather
+//!    than an arbitrary one, a smaller threshold keeps small objects (a mug) whole without leaving
+//!    slivers across edges; on the demo scenes it recalls more boundaries than 0.5 did.
 
 pub mod connectivity;
 pub mod metrics;
@@ -79,7 +83,7 @@ impl TryFrom<UncheckedSlicParams> for SlicParams {
 }
 
 impl Default for SlicParams {
-    /// 400 segments, compactness 10, 10 iterations, components below a quarter of `S^2` merged.
+    /// 400 segments, compactness 10, 10 iterations, components below a quarter of a mean seed cell merged.
     fn default() -> Self {
         SlicParams {
             target_segments: 400,
@@ -129,7 +133,8 @@ impl SlicParams {
         Ok(SlicParams { iterations, ..self })
     }
 
-    /// The same parameters with another small-component threshold, as a fraction of `S^2` (0..=1).
+    /// The same parameters with another small-component threshold, as a fraction of the mean seed cell
+    /// `N / seeds` (0..=1).
     pub fn with_min_segment_fraction(self, fraction: f32) -> Result<Self, SlicError> {
         if !(0.0..=1.0).contains(&fraction) {
             return Err(SlicError::BadMinSegmentFraction(fraction));
@@ -155,7 +160,7 @@ impl SlicParams {
         self.iterations
     }
 
-    /// Components below `min_segment_fraction * S^2` pixels are merged into a neighbour.
+    /// Components below `min_segment_fraction * N / seeds` pixels are merged into a neighbour.
     pub fn min_segment_fraction(&self) -> f32 {
         self.min_segment_fraction
     }
@@ -198,9 +203,11 @@ impl SeedGrid {
         self.columns as usize * self.rows as usize
     }
 
-    /// The smallest component kept as its own segment by the connectivity pass, in pixels (at least 1).
-    pub fn min_segment_pixels(&self, fraction: f32) -> usize {
-        ((fraction * self.step * self.step) as usize).max(1)
+    /// The smallest component kept as its own segment by the connectivity pass, in pixels (at least 1):
+    /// `fraction` of the mean seed cell, `pixel_count / seed_count`.
+    pub fn min_segment_pixels(&self, fraction: f32, pixel_count: usize) -> usize {
+        let cell = pixel_count as f64 / self.seed_count().max(1) as f64;
+        ((fraction as f64 * cell) as usize).max(1)
     }
 }
 
@@ -499,9 +506,9 @@ pub fn slic(image: &RgbImage, params: &SlicParams) -> Result<Superpixels, SlicEr
         }
         labels
     };
-    let min_pixels = grid.min_segment_pixels(params.min_segment_fraction);
+    let min_pixels = grid.min_segment_pixels(params.min_segment_fraction, width * height);
     let (labels, segment_count) =
-        connectivity::enforce_connectivity(&raw_labels, width, height, min_pixels);
+        connectivity::enforce_connectivity(&raw_labels, &image.pixels, width, height, min_pixels);
     Ok(Superpixels {
         width: image.width,
         height: image.height,
