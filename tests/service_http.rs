@@ -252,6 +252,20 @@ fn a_conversation_corrects_a_scene_and_survives_a_restart() {
 fn field_notes_are_sorted_into_outcomes_with_reasons() {
     let data = tempfile::tempdir().unwrap();
     let coordinator = open_grid_coordinator(data.path());
+    // A second process (or coordinator) on the same log is refused while the first holds it.
+    let second = sayso::service::coordinator::Coordinator::open(
+        std::sync::Arc::new(GridEngine::new()),
+        &sayso::service::coordinator::CoordinatorSettings {
+            log_path: data.path().join("corrections.sqlite"),
+            pixel_limit: 1 << 20,
+            demo_dir: data.path().to_path_buf(),
+        },
+        std::sync::Arc::new(sayso::service::metrics::Metrics::default()),
+    );
+    assert!(matches!(
+        second,
+        Err(sayso::service::coordinator::OpenError::InUse { .. })
+    ));
     let mut labels = IndexImage::filled(4, 4, 0);
     labels.set(1, 1, CAT);
     let upload = sayso::service::coordinator::SceneUpload {
