@@ -293,7 +293,7 @@ fn bench_joint(criterion: &mut Criterion) {
 
     let mut full_samples = Vec::new();
     let mut warm_samples = Vec::new();
-    for _ in 0..15 {
+    for _ in 0..7 {
         let start = Instant::now();
         std::hint::black_box(solve_joint(&built.energy, None, &options).unwrap());
         full_samples.push(start.elapsed());
@@ -343,7 +343,7 @@ fn bench_joint(criterion: &mut Criterion) {
     );
 
     let mut group = criterion.benchmark_group("joint");
-    group.sample_size(20);
+    group.sample_size(10);
     group.bench_function("full_solve", |b| {
         b.iter(|| solve_joint(&built.energy, None, &options).unwrap())
     });

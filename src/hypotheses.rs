@@ -1,7 +1,7 @@
 //! Object hypotheses: candidate objects the joint solver may switch on or off.
 //!
-//! Owns: `Detection` (a detector's box, class and score, optionally a pixel mask), `Hypothesis`, and building
-//! hypotheses from detections and from proposals — connected groups of segments over the adjacency graph, at
+//! Owns: `Hypothesis`, and building
+//! hypotheses from detections (`crate::unaries::byo_detections::Detection`) and from proposals — connected groups of segments over the adjacency graph, at
 //! the fine and the coarse level, for every class in each unit's top-k — with ids that depend only on the
 //! class and the member segments.
 //! Must not: decide which hypotheses are real (that is the solver's job) or read language.
@@ -14,17 +14,7 @@ use crate::ids::{ClassId, HypothesisId, SegmentId};
 use crate::scene::{BoundingBox, Scene};
 use crate::unaries::Unaries;
 
-/// A detector's claim that an object of `class` is inside `bbox`.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Detection {
-    pub class: ClassId,
-    pub bbox: BoundingBox,
-    /// 0..1.
-    pub score: f32,
-    /// Optional per-pixel mask over the whole image, row-major (`true` inside the object).
-    #[serde(default)]
-    pub mask: Option<Vec<bool>>,
-}
+pub use crate::unaries::byo_detections::{Detection, DetectionMask};
 
 /// Where a hypothesis came from.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -238,10 +228,11 @@ pub fn build_hypotheses(
         let map = &scene.segments;
         if let Some(mask) = &detection.mask {
             let expected = map.labels.len();
-            if mask.len() != expected {
+            if mask.width != map.width || mask.height != map.height || mask.inside.len() != expected
+            {
                 return Err(HypothesisError::MaskSize {
                     index,
-                    found: mask.len(),
+                    found: mask.inside.len(),
                     expected,
                 });
             }
@@ -255,7 +246,7 @@ pub fn build_hypotheses(
                 let in_mask = detection
                     .mask
                     .as_ref()
-                    .map(|mask| mask[pixel])
+                    .map(|mask| mask.inside[pixel])
                     .unwrap_or(true);
                 if let (true, Some(&segment)) = (in_mask, map.labels.get(pixel)) {
                     if let Some(count) = inside.get_mut(segment as usize) {

@@ -1,16 +1,13 @@
 //! Spatial relations between two object footprints, as grounding, the energy and the scene graph use them.
 //!
 //! Owns: `Footprint` (box, centroid, area, optional depth) and `holds(relation, subject, landmarks)`.
-//! Must not: know about hypotheses, segments or classes. This is the single bridge to the shared geometric
-//! predicates: when `crate::geometry` (box and mask predicates) lands, `holds` calls it and nothing else here
-//! changes for callers.
-//!
-//! The thresholds are common practice for box-based spatial relations, chosen by us (not from a source):
-//! a quarter of the mean width or height as a margin, half of the subject's width as "horizontal overlap",
-//! 150 mm as a depth difference that counts as "in front", 400 mm as "at the same depth".
+//! Must not: know about hypotheses, segments or classes. This is the single bridge from the words of a
+//! relation to the shared geometric predicates in `crate::geometry::relations` (whose thresholds are
+//! documented there), so grounding, the energy and the scene graph judge relations the same way.
 
 use serde::{Deserialize, Serialize};
 
+use crate::geometry::{Placed, Rect, RelationThresholds};
 use crate::language::constraint::Relation;
 use crate::scene::BoundingBox;
 
@@ -25,86 +22,39 @@ pub struct Footprint {
     pub depth_mm: Option<f32>,
 }
 
-fn horizontal_overlap(a: &BoundingBox, b: &BoundingBox) -> f32 {
-    (a.x1.min(b.x1) as f32 - a.x0.max(b.x0) as f32).max(0.0)
-}
-
-fn vertical_overlap(a: &BoundingBox, b: &BoundingBox) -> f32 {
-    (a.y1.min(b.y1) as f32 - a.y0.max(b.y0) as f32).max(0.0)
-}
-
-fn same_depth(a: &Footprint, b: &Footprint) -> bool {
-    match (a.depth_mm, b.depth_mm) {
-        (Some(da), Some(db)) => (da - db).abs() <= 400.0,
-        _ => true,
+fn placed(footprint: &Footprint) -> Placed {
+    Placed {
+        rect: Rect::from_bounding_box(&footprint.bbox),
+        depth_mm: footprint
+            .depth_mm
+            .filter(|depth| depth.is_finite() && *depth > 0.0)
+            .map(f64::from),
     }
 }
 
-fn margin_x(a: &Footprint, b: &Footprint) -> f32 {
-    0.25 * (a.bbox.width() + b.bbox.width()) as f32 / 2.0
-}
-
-fn margin_y(a: &Footprint, b: &Footprint) -> f32 {
-    0.25 * (a.bbox.height() + b.bbox.height()) as f32 / 2.0
-}
-
-/// Whether `subject` stands in `relation` to `landmarks` (two landmarks for `Between`, one otherwise).
+/// Whether `subject` stands in `relation` to `landmarks` (two landmarks for `Between`, one otherwise), by
+/// the shared predicates of `crate::geometry::relations` with their default thresholds.
 pub fn holds(relation: Relation, subject: &Footprint, landmarks: &[Footprint]) -> bool {
     let Some(landmark) = landmarks.first() else {
         return false;
     };
-    let (a, b) = (subject, landmark);
-    let wide_overlap = horizontal_overlap(&a.bbox, &b.bbox) >= 0.5 * a.bbox.width().max(1) as f32;
+    let thresholds = RelationThresholds::default();
+    let (a, b) = (placed(subject), placed(landmark));
     match relation {
-        Relation::LeftOf => a.centroid.0 + margin_x(a, b) < b.centroid.0,
-        Relation::RightOf => a.centroid.0 > b.centroid.0 + margin_x(a, b),
-        Relation::Above => a.centroid.1 + margin_y(a, b) < b.centroid.1,
-        Relation::Below => a.centroid.1 > b.centroid.1 + margin_y(a, b),
-        Relation::On => {
-            let bottom = a.bbox.y1 as f32;
-            let top = b.bbox.y0 as f32;
-            wide_overlap
-                && bottom >= top - margin_y(a, b)
-                && bottom <= top + 0.5 * b.bbox.height() as f32
-                && a.centroid.1 < b.centroid.1
-                && same_depth(a, b)
-        }
-        Relation::Under => {
-            wide_overlap && a.centroid.1 > b.centroid.1 && a.bbox.y0 + 1 >= b.bbox.y0
-        }
-        Relation::NextTo => {
-            let gap_x =
-                (a.bbox.x0.max(b.bbox.x0) as f32 - a.bbox.x1.min(b.bbox.x1) as f32).max(0.0);
-            let reach = 0.5 * a.bbox.width().max(b.bbox.width()) as f32;
-            gap_x <= reach && vertical_overlap(&a.bbox, &b.bbox) > 0.0 && same_depth(a, b)
-        }
-        Relation::InFrontOf => match (a.depth_mm, b.depth_mm) {
-            (Some(da), Some(db)) => da + 150.0 < db,
-            // Without depth, nearer objects stand lower in the picture (common practice for a level camera).
-            _ => a.bbox.y1 as f32 > b.bbox.y1 as f32 + margin_y(a, b),
+        Relation::LeftOf => thresholds.left_of(&a, &b),
+        Relation::RightOf => thresholds.right_of(&a, &b),
+        Relation::Above => thresholds.above(&a, &b),
+        Relation::Below => thresholds.below(&a, &b),
+        Relation::On => thresholds.on(&a, &b),
+        Relation::Under => thresholds.under(&a, &b),
+        Relation::NextTo => thresholds.next_to(&a, &b),
+        Relation::InFrontOf => thresholds.in_front_of(&a, &b),
+        Relation::Behind => thresholds.behind(&a, &b),
+        Relation::Inside => thresholds.inside(&a, &b),
+        Relation::Between => match landmarks.get(1) {
+            Some(second) => thresholds.between(&a, &b, &placed(second)),
+            None => false,
         },
-        Relation::Behind => match (a.depth_mm, b.depth_mm) {
-            (Some(da), Some(db)) => da > db + 150.0,
-            _ => a.bbox.y1 as f32 + margin_y(a, b) < b.bbox.y1 as f32,
-        },
-        Relation::Inside => {
-            let overlap = horizontal_overlap(&a.bbox, &b.bbox) * vertical_overlap(&a.bbox, &b.bbox);
-            overlap >= 0.9 * a.bbox.area().max(1) as f32
-        }
-        Relation::Between => {
-            let Some(other) = landmarks.get(1) else {
-                return false;
-            };
-            let (low, high) = if b.centroid.0 <= other.centroid.0 {
-                (b, other)
-            } else {
-                (other, b)
-            };
-            a.centroid.0 > low.centroid.0
-                && a.centroid.0 < high.centroid.0
-                && vertical_overlap(&a.bbox, &low.bbox) > 0.0
-                && vertical_overlap(&a.bbox, &high.bbox) > 0.0
-        }
     }
 }
 

@@ -24,7 +24,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::energy::{EnergyError, JointEnergy, JointState};
 use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
-use crate::solver::joint_labeller::{label_segments, potts_lower_bound, Neighbours};
+use crate::solver::joint_labeller::{candidate_table, label_segments, potts_lower_bound};
 use crate::solver::labelling::LabellingProblem;
 
 /// Options of the joint solver.
@@ -41,7 +41,7 @@ pub struct JointOptions {
 impl Default for JointOptions {
     fn default() -> Self {
         JointOptions {
-            max_iterations: 60,
+            max_iterations: 30,
             polish_budget: 4096,
             gap_tolerance: 1e-9,
         }
@@ -97,7 +97,8 @@ struct Candidate {
 struct Context<'a> {
     energy: &'a JointEnergy,
     unary: Vec<f64>,
-    neighbours: Neighbours,
+    /// Labels each node may take in expansion moves.
+    candidates: Vec<bool>,
     edges_f32: Vec<(u32, u32, f32)>,
 }
 
@@ -185,9 +186,43 @@ impl Context<'_> {
                 }
             }
         }
-        let result = label_segments(&self.problem(&unary), &self.neighbours, &state.labels);
+        let result = label_segments(&self.problem(&unary), &self.candidates, &state.labels);
         self.complete(result.labels)
     }
+}
+
+/// Expansion candidates: each fine node's cheapest labels and the classes of hypotheses over it; a coarse
+/// node takes the union of its linked fine nodes' candidates.
+fn candidates(energy: &JointEnergy, unary: &[f64]) -> Vec<bool> {
+    let label_count = energy.label_count;
+    let mut extra: Vec<(usize, u16)> = Vec::new();
+    for hypothesis in &energy.hypotheses {
+        for &s in &hypothesis.members {
+            extra.push((s as usize, hypothesis.class));
+        }
+    }
+    for factor in &energy.unary_factors {
+        if factor.wanted {
+            for &s in &factor.segments {
+                extra.push((s as usize, factor.label));
+            }
+        }
+    }
+    let mut table = candidate_table(unary, energy.fine_count, label_count, &extra);
+    table.resize(energy.node_count * label_count, false);
+    for &(a, b, _) in &energy.edges {
+        let (fine, coarse) = match (a as usize, b as usize) {
+            (a, b) if a < energy.fine_count && b >= energy.fine_count => (a, b),
+            (a, b) if b < energy.fine_count && a >= energy.fine_count => (b, a),
+            _ => continue,
+        };
+        for label in 0..label_count {
+            if table[fine * label_count + label] {
+                table[coarse * label_count + label] = true;
+            }
+        }
+    }
+    table
 }
 
 fn keep_better(best: &mut Candidate, candidate: Candidate) {
@@ -195,6 +230,9 @@ fn keep_better(best: &mut Candidate, candidate: Candidate) {
         *best = candidate;
     }
 }
+
+/// The dual loop stops after this many iterations in a row that improve neither bound nor energy.
+const STALL_ITERATIONS: u32 = 4;
 
 /// How many distinct states are kept for polishing.
 const POOL_SIZE: usize = 6;
@@ -274,7 +312,7 @@ fn dual_value(context: &Context, multipliers: &Multipliers, start: &[u16]) -> Du
         unary[index] += nu;
     }
     let segment_bound = potts_lower_bound(&unary, label_count, &energy.edges);
-    let result = label_segments(&context.problem(&unary), &context.neighbours, start);
+    let result = label_segments(&context.problem(&unary), &context.candidates, start);
 
     let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
     let mut cost_off = Vec::with_capacity(energy.hypotheses.len());
@@ -503,15 +541,9 @@ pub fn solve_joint(
         .iter()
         .map(|&(a, b, w)| (a, b, w as f32))
         .collect();
-    let shell = LabellingProblem {
-        node_count: energy.node_count,
-        label_count: energy.label_count,
-        unary: Vec::new(),
-        edges: edges_f32.clone(),
-    };
     let context = Context {
         energy,
-        neighbours: Neighbours::new(&shell),
+        candidates: candidates(energy, &unary),
         unary,
         edges_f32,
     };
@@ -548,6 +580,8 @@ pub fn solve_joint(
     let mut segment_start = start_labels;
     let mut best_multipliers = multipliers.clone();
     let mut pool: Vec<Candidate> = Vec::new();
+    let mut last_alternated: Option<Vec<bool>> = None;
+    let mut stalled = 0;
     remember(&mut pool, &best);
     while iterations < options.max_iterations {
         iterations += 1;
@@ -565,11 +599,23 @@ pub fn solve_joint(
             }
         }
         let candidate = context.complete(dual.segment_labels.clone());
-        let alternated = context.relabel_given_hypotheses(&candidate.state);
+        let previous_best = best.energy;
+        if last_alternated.as_ref() != Some(&candidate.state.hypotheses_on) {
+            last_alternated = Some(candidate.state.hypotheses_on.clone());
+            let alternated = context.relabel_given_hypotheses(&candidate.state);
+            remember(&mut pool, &alternated);
+            keep_better(&mut best, alternated);
+        }
         remember(&mut pool, &candidate);
-        remember(&mut pool, &alternated);
         keep_better(&mut best, candidate);
-        keep_better(&mut best, alternated);
+        if best.energy < previous_best - 1e-12 {
+            stalled = 0;
+        } else if since_improvement > 0 {
+            stalled += 1;
+        }
+        if stalled >= STALL_ITERATIONS {
+            break;
+        }
         if gap(best.energy, lower_bound) <= options.gap_tolerance || scale < 1e-4 {
             break;
         }

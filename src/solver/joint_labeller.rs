@@ -5,48 +5,15 @@
 //! `potts_lower_bound`.
 //! Must not: know about hypotheses, rooms or constraints; it sees a plain `LabellingProblem`.
 //!
-//! Until the shared alpha-expansion (`crate::solver::expansion`) lands, `label_segments` runs a small private
-//! alpha-expansion over a plain Dinic max-flow, rebuilt per move; the joint solver never relies on it being
-//! optimal, since it re-evaluates every candidate with the true energy and bounds separately.
+//! `label_segments` runs the shared alpha-expansion (`crate::solver::expansion`), warm-started. Should that
+//! reject a problem, a small private expansion over a plain Dinic max-flow with label pruning takes over, so
+//! a labelling is always returned; the joint solver never relies on either being optimal, since it
+//! re-evaluates every candidate with the true energy and bounds separately.
 
 use crate::solver::labelling::{LabellingProblem, LabellingResult};
 
 /// The most sweeps over all labels.
-const MAX_SWEEPS: u32 = 8;
-
-/// Neighbour lists of a problem, built once per joint solve.
-pub(crate) struct Neighbours {
-    offsets: Vec<usize>,
-    entries: Vec<(u32, f32)>,
-}
-
-impl Neighbours {
-    pub(crate) fn new(problem: &LabellingProblem) -> Neighbours {
-        let mut degree = vec![0usize; problem.node_count + 1];
-        for &(a, b, _) in &problem.edges {
-            degree[a as usize] += 1;
-            degree[b as usize] += 1;
-        }
-        let mut offsets = vec![0usize; problem.node_count + 1];
-        for node in 0..problem.node_count {
-            offsets[node + 1] = offsets[node] + degree[node];
-        }
-        let mut fill = offsets.clone();
-        let mut entries = vec![(0u32, 0f32); offsets[problem.node_count]];
-        for &(a, b, weight) in &problem.edges {
-            entries[fill[a as usize]] = (b, weight);
-            fill[a as usize] += 1;
-            entries[fill[b as usize]] = (a, weight);
-            fill[b as usize] += 1;
-        }
-        Neighbours { offsets, entries }
-    }
-
-    #[allow(dead_code)]
-    fn of(&self, node: usize) -> &[(u32, f32)] {
-        &self.entries[self.offsets[node]..self.offsets[node + 1]]
-    }
-}
+const MAX_SWEEPS: u32 = 3;
 
 /// A small Dinic max-flow over `f64` capacities, rebuilt for each expansion move.
 struct FlowGraph {
@@ -144,66 +111,187 @@ impl FlowGraph {
 
 const EPSILON: f64 = 1e-9;
 
-/// One expansion move: every node may keep its label or switch to `alpha`; solved exactly by a cut.
-fn expansion_move(problem: &LabellingProblem, labels: &mut [u16], alpha: u16) -> bool {
-    let node_count = problem.node_count;
-    let label_count = problem.label_count;
-    let (source, sink) = (node_count, node_count + 1);
-    let mut graph = FlowGraph::new(node_count + 2);
-    // x = 1 (sink side) means "switch to alpha". Cutting source->p costs cost1, p->sink costs cost0.
-    let mut cost0 = vec![0.0f64; node_count];
-    let mut cost1 = vec![0.0f64; node_count];
-    for node in 0..node_count {
-        cost0[node] = problem.unary[node * label_count + labels[node] as usize] as f64;
-        cost1[node] = problem.unary[node * label_count + alpha as usize] as f64;
-    }
-    for &(a, b, weight) in &problem.edges {
-        let (a, b, weight) = (a as usize, b as usize, weight as f64);
-        let differ = |x: u16, y: u16| if x != y { weight } else { 0.0 };
-        let keep_keep = differ(labels[a], labels[b]);
-        let keep_switch = differ(labels[a], alpha);
-        let switch_keep = differ(alpha, labels[b]);
-        // E = A + (C - A) x_a + (D - C) x_b + (B + C - A - D)(1 - x_a) x_b with D = 0.
-        cost1[a] += switch_keep - keep_keep;
-        cost1[b] -= switch_keep;
-        let pairwise = keep_switch + switch_keep - keep_keep;
-        if pairwise > 0.0 {
-            graph.add_edge(a, b, pairwise, 0.0);
+/// Use `crate::solver::expansion::alpha_expansion` first.
+const USE_SHARED_EXPANSION: bool = true;
+
+/// Labels a node may switch to: its `CANDIDATE_LABELS` cheapest by unary (label pruning, common practice for
+/// many-label Potts problems); the move is re-scored exactly, so pruning can only miss improvements.
+const CANDIDATE_LABELS: usize = 4;
+
+/// Buffers reused across the moves of one labelling call.
+struct Scratch {
+    /// Edge indices incident to each node.
+    incident: Vec<Vec<usize>>,
+    /// Position of a node among the active ones, or `usize::MAX`.
+    compact: Vec<usize>,
+    active: Vec<usize>,
+}
+
+impl Scratch {
+    fn new(problem: &LabellingProblem) -> Scratch {
+        let mut incident = vec![Vec::new(); problem.node_count];
+        for (index, &(a, b, _)) in problem.edges.iter().enumerate() {
+            incident[a as usize].push(index);
+            if b != a {
+                incident[b as usize].push(index);
+            }
+        }
+        Scratch {
+            incident,
+            compact: vec![usize::MAX; problem.node_count],
+            active: Vec::new(),
         }
     }
-    for node in 0..node_count {
-        let (zero, one) = (cost0[node], cost1[node]);
+}
+
+/// One expansion move: every node that has `alpha` among its candidate labels may keep its label or switch
+/// to `alpha`; the others keep theirs. Solved exactly by a minimum cut over the active nodes.
+fn expansion_move(
+    problem: &LabellingProblem,
+    candidates: &[bool],
+    scratch: &mut Scratch,
+    labels: &mut [u16],
+    alpha: u16,
+) -> bool {
+    let label_count = problem.label_count;
+    scratch.active.clear();
+    for node in 0..problem.node_count {
+        if labels[node] != alpha && candidates[node * label_count + alpha as usize] {
+            scratch.compact[node] = scratch.active.len();
+            scratch.active.push(node);
+        }
+    }
+    let active = std::mem::take(&mut scratch.active);
+    if active.is_empty() {
+        scratch.active = active;
+        return false;
+    }
+    let compact = &scratch.compact;
+    let (source, sink) = (active.len(), active.len() + 1);
+    let mut graph = FlowGraph::new(active.len() + 2);
+    // x = 1 (sink side) means "switch to alpha". Cutting source->p costs cost1, p->sink costs cost0.
+    let mut cost0: Vec<f64> = active
+        .iter()
+        .map(|&node| problem.unary[node * label_count + labels[node] as usize] as f64)
+        .collect();
+    let mut cost1: Vec<f64> = active
+        .iter()
+        .map(|&node| problem.unary[node * label_count + alpha as usize] as f64)
+        .collect();
+    for (position, &node) in active.iter().enumerate() {
+        for &edge in &scratch.incident[node] {
+            let (a, b, weight) = problem.edges[edge];
+            let (a, b, weight) = (a as usize, b as usize, weight as f64);
+            let other = if a == node { b } else { a };
+            if compact[other] != usize::MAX && compact[other] < position {
+                continue; // Both ends active: handled from the earlier one.
+            }
+            let differ = |x: u16, y: u16| if x != y { weight } else { 0.0 };
+            match (compact[a], compact[b]) {
+                (usize::MAX, usize::MAX) => {}
+                (p, usize::MAX) => {
+                    cost0[p] += differ(labels[a], labels[b]);
+                    cost1[p] += differ(alpha, labels[b]);
+                }
+                (usize::MAX, q) => {
+                    cost0[q] += differ(labels[a], labels[b]);
+                    cost1[q] += differ(labels[a], alpha);
+                }
+                (p, q) => {
+                    let keep_keep = differ(labels[a], labels[b]);
+                    let keep_switch = differ(labels[a], alpha);
+                    let switch_keep = differ(alpha, labels[b]);
+                    // E = A + (C - A) x_a + (D - C) x_b + (B + C - A - D)(1 - x_a) x_b with D = 0.
+                    cost1[p] += switch_keep - keep_keep;
+                    cost1[q] -= switch_keep;
+                    let pairwise = keep_switch + switch_keep - keep_keep;
+                    if pairwise > 0.0 {
+                        graph.add_edge(p, q, pairwise, 0.0);
+                    }
+                }
+            }
+        }
+    }
+    for index in 0..active.len() {
+        let (zero, one) = (cost0[index], cost1[index]);
         let floor = zero.min(one);
         if one - floor > 0.0 {
-            graph.add_edge(source, node, one - floor, 0.0);
+            graph.add_edge(source, index, one - floor, 0.0);
         }
         if zero - floor > 0.0 {
-            graph.add_edge(node, sink, zero - floor, 0.0);
+            graph.add_edge(index, sink, zero - floor, 0.0);
         }
     }
     graph.max_flow(source, sink);
     let source_side = graph.source_side(source);
-    let before = problem.energy(labels);
-    let mut proposal = labels.to_vec();
-    for node in 0..node_count {
-        if !source_side[node] {
-            proposal[node] = alpha;
+    // The exact change in energy of switching the sink side, over the touched unaries and edges.
+    let switched = |node: usize| compact[node] != usize::MAX && !source_side[compact[node]];
+    let new_label = |node: usize| if switched(node) { alpha } else { labels[node] };
+    let mut delta = 0.0f64;
+    for (position, &node) in active.iter().enumerate() {
+        if !source_side[position] {
+            delta += problem.unary[node * label_count + alpha as usize] as f64
+                - problem.unary[node * label_count + labels[node] as usize] as f64;
+        }
+        for &edge in &scratch.incident[node] {
+            let (a, b, weight) = problem.edges[edge];
+            let (a, b) = (a as usize, b as usize);
+            let other = if a == node { b } else { a };
+            if compact[other] != usize::MAX && compact[other] < position {
+                continue;
+            }
+            let before = (labels[a] != labels[b]) as i32 as f64;
+            let after = (new_label(a) != new_label(b)) as i32 as f64;
+            delta += (after - before) * weight as f64;
         }
     }
-    let after = problem.energy(&proposal);
-    if after < before - 1e-7 {
-        labels.copy_from_slice(&proposal);
-        true
-    } else {
-        false
+    let improved = delta < -1e-7;
+    if improved {
+        for (position, &node) in active.iter().enumerate() {
+            if !source_side[position] {
+                labels[node] = alpha;
+            }
+        }
     }
+    for &node in &active {
+        scratch.compact[node] = usize::MAX;
+    }
+    scratch.active = active;
+    improved
+}
+
+/// `candidates[node * label_count + label]`: the label is among the node's cheapest few by `unary`, or in
+/// `extra` (labels the caller knows can be pulled in, e.g. by hypotheses over the node).
+pub(crate) fn candidate_table(
+    unary: &[f64],
+    node_count: usize,
+    label_count: usize,
+    extra: &[(usize, u16)],
+) -> Vec<bool> {
+    let mut table = vec![false; node_count * label_count];
+    let mut order: Vec<usize> = Vec::with_capacity(label_count);
+    for node in 0..node_count {
+        let row = &unary[node * label_count..(node + 1) * label_count];
+        order.clear();
+        order.extend(0..label_count);
+        order.sort_by(|&a, &b| row[a].total_cmp(&row[b]).then(a.cmp(&b)));
+        for &label in order.iter().take(CANDIDATE_LABELS) {
+            table[node * label_count + label] = true;
+        }
+    }
+    for &(node, label) in extra {
+        if node < node_count && (label as usize) < label_count {
+            table[node * label_count + label as usize] = true;
+        }
+    }
+    table
 }
 
 /// Labels the problem starting from `initial` (one label per node; out-of-range labels are replaced) by
 /// alpha-expansion sweeps.
 pub(crate) fn label_segments(
     problem: &LabellingProblem,
-    _neighbours: &Neighbours,
+    candidates: &[bool],
     initial: &[u16],
 ) -> LabellingResult {
     let label_count = problem.label_count;
@@ -213,12 +301,30 @@ pub(crate) fn label_segments(
             _ => 0,
         })
         .collect();
+    let every_label;
+    let candidates = if candidates.len() == problem.node_count * label_count {
+        candidates
+    } else {
+        every_label = vec![true; problem.node_count * label_count];
+        &every_label
+    };
+    if USE_SHARED_EXPANSION {
+        let options = crate::solver::labelling::ExpansionOptions {
+            max_sweeps: MAX_SWEEPS,
+        };
+        if let Ok(result) =
+            crate::solver::expansion::alpha_expansion(problem, Some(&labels), &options)
+        {
+            return result;
+        }
+    }
+    let mut scratch = Scratch::new(problem);
     let mut sweeps = 0;
     while sweeps < MAX_SWEEPS {
         sweeps += 1;
         let mut changed = false;
         for alpha in 0..label_count as u16 {
-            changed |= expansion_move(problem, &mut labels, alpha);
+            changed |= expansion_move(problem, candidates, &mut scratch, &mut labels, alpha);
         }
         if !changed {
             break;
@@ -321,15 +427,14 @@ mod tests {
     }
 
     #[test]
-    fn conditional_modes_reach_a_local_minimum_and_report_its_energy() {
+    fn expansion_reaches_the_minimum_and_reports_its_energy() {
         let problem = LabellingProblem {
             node_count: 3,
             label_count: 2,
             unary: vec![0.0, 2.0, 0.4, 0.0, 0.0, 2.0],
             edges: vec![(0, 1, 1.0), (1, 2, 1.0)],
         };
-        let neighbours = Neighbours::new(&problem);
-        let result = label_segments(&problem, &neighbours, &[1, 1, 1]);
+        let result = label_segments(&problem, &[], &[1, 1, 1]);
         assert_eq!(result.labels, vec![0, 0, 0]);
         assert!((result.energy - 0.4).abs() < 1e-6);
     }
