@@ -55,7 +55,7 @@ fn start(conversation_count: usize) -> Bench {
     };
     let coordinator = Arc::new(
         Coordinator::open(
-            Arc::new(LabelMapCorrector::embedded()),
+            Arc::new(LabelMapCorrector::embedded().unwrap()),
             &CoordinatorSettings {
                 log_path: config.log_path(),
                 pixel_limit: config.pixel_limit,
@@ -97,7 +97,7 @@ fn utterance(address: SocketAddr, conversation: i64, step: u32) -> Duration {
     let text = if (step / (CELLS * CELLS)).is_multiple_of(2) {
         "that's a mug"
     } else {
-        "no, a towel"
+        "no, it's a towel"
     };
     let body = serde_json::json!({"text": text, "focus": {"type": "pixel", "x": x, "y": y}});
     let started = Instant::now();

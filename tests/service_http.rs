@@ -324,7 +324,7 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
     use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
     let data = tempfile::tempdir().unwrap();
     let coordinator = Coordinator::open(
-        std::sync::Arc::new(sayso::service::pipeline::LabelMapCorrector::embedded()),
+        std::sync::Arc::new(sayso::service::pipeline::LabelMapCorrector::embedded().unwrap()),
         &CoordinatorSettings {
             log_path: data.path().join("corrections.sqlite"),
             pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
