@@ -92,9 +92,9 @@ fn acknowledged_corrections_survive_sigkill() {
                             break;
                         }
                         let (text, class) = if (step + offset) % 2 == 0 {
-                            (format!("that's a mug (client {client}, step {step})"), MUG)
+                            ("that's a mug".to_string(), MUG)
                         } else {
-                            (format!("no, it's a towel (client {client}, step {step})"), TOWEL)
+                            ("no, it's a towel".to_string(), TOWEL)
                         };
                         in_flight = Some(class);
                         let body = serde_json::json!({"text": text, "focus": {"type": "pixel", "x": x0 + 1, "y": y0 + 1}});

@@ -238,13 +238,34 @@ fn a_conversation_corrects_a_scene_and_survives_a_restart() {
     let classes: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("classes.json")).unwrap()).unwrap();
     assert_eq!(classes["classes"][TOWEL as usize]["name"], "towel");
-    assert!(folder.join("scene.json").exists());
+    let scene_json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(folder.join("scene.json")).unwrap()).unwrap();
+    // The same keys a rendered demo scene's scene.json carries for its name and size.
+    assert_eq!(scene_json["name"], "juniper-lane-hall");
+    assert_eq!(
+        (scene_json["width"].as_u64(), scene_json["height"].as_u64()),
+        (Some(6), Some(4))
+    );
 }
 
 #[test]
 fn field_notes_are_sorted_into_outcomes_with_reasons() {
     let data = tempfile::tempdir().unwrap();
     let coordinator = open_grid_coordinator(data.path());
+    // A second process (or coordinator) on the same log is refused while the first holds it.
+    let second = sayso::service::coordinator::Coordinator::open(
+        std::sync::Arc::new(GridEngine::new()),
+        &sayso::service::coordinator::CoordinatorSettings {
+            log_path: data.path().join("corrections.sqlite"),
+            pixel_limit: 1 << 20,
+            demo_dir: data.path().to_path_buf(),
+        },
+        std::sync::Arc::new(sayso::service::metrics::Metrics::default()),
+    );
+    assert!(matches!(
+        second,
+        Err(sayso::service::coordinator::OpenError::InUse { .. })
+    ));
     let mut labels = IndexImage::filled(4, 4, 0);
     labels.set(1, 1, CAT);
     let upload = sayso::service::coordinator::SceneUpload {
@@ -296,4 +317,65 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
         .iter()
         .all(|result| !result.reason.is_empty()));
     assert_eq!(report.counts["applied"], 1);
+}
+
+#[test]
+fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
+    use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
+    let data = tempfile::tempdir().unwrap();
+    let coordinator = Coordinator::open(
+        std::sync::Arc::new(sayso::service::pipeline::LabelMapCorrector::embedded().unwrap()),
+        &CoordinatorSettings {
+            log_path: data.path().join("corrections.sqlite"),
+            pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+            demo_dir: std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes"),
+        },
+        std::sync::Arc::new(sayso::service::metrics::Metrics::default()),
+    )
+    .unwrap();
+    let created = coordinator
+        .register_scene(
+            SceneUpload {
+                demo: Some("bathroom_morning".into()),
+                ..Default::default()
+            },
+            "mira",
+        )
+        .unwrap();
+    assert_eq!(
+        (created.width, created.height, created.name.as_str()),
+        (640, 480, "bathroom_morning")
+    );
+    let scene = sayso::correction_log::SceneKey(created.scene_id);
+    let graph = coordinator.scene_graph(scene).unwrap();
+    assert!(
+        graph.objects.iter().any(|object| object.class == "towel"),
+        "the rendered bathroom has a towel"
+    );
+    // Point at the middle of the first towel region and call it a rug: the whole region changes.
+    let towel = graph
+        .objects
+        .iter()
+        .find(|object| object.class == "towel")
+        .unwrap();
+    let labels_png = coordinator.label_map_png(scene).unwrap();
+    let labels =
+        raster::decode_index_png(&labels_png, std::path::Path::new("labels"), 1 << 22).unwrap();
+    let (x, y) = (towel.bbox.x0..towel.bbox.x1)
+        .flat_map(|x| (towel.bbox.y0..towel.bbox.y1).map(move |y| (x, y)))
+        .find(|&(x, y)| labels.get(x, y) == TOWEL)
+        .unwrap();
+    let conversation = coordinator.open_conversation(scene, "mira").unwrap();
+    let reply = coordinator
+        .utterance(
+            sayso::correction_log::ConversationKey(conversation.conversation_id),
+            "mira",
+            "no, that's a rug, not a towel",
+            Some(sayso::service::wire::FocusIn::Pixel { x, y }),
+        )
+        .unwrap();
+    assert_eq!(reply.status, sayso::service::wire::TurnStatus::Applied);
+    assert_eq!(reply.changes[0].from.as_deref(), Some("towel"));
+    assert_eq!(reply.changes[0].to.as_deref(), Some("rug"));
+    assert!(reply.changes[0].pixels >= towel.area_pixels);
 }

@@ -63,7 +63,7 @@ impl ServiceFlags {
 pub fn corrector(config: &ServiceConfig) -> anyhow::Result<Arc<dyn Corrector>> {
     Ok(match &config.grammar_dir {
         Some(directory) => Arc::new(LabelMapCorrector::from_grammar_dir(directory)?),
-        None => Arc::new(LabelMapCorrector::embedded()),
+        None => Arc::new(LabelMapCorrector::embedded()?),
     })
 }
 

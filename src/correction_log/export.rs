@@ -36,6 +36,12 @@ pub struct ExportSummary {
 
 #[derive(Serialize)]
 struct ExampleRecord<'a> {
+    /// The scene's name, as in a rendered scene's `scene.json`.
+    name: &'a str,
+    width: u32,
+    height: u32,
+    /// The room type id, when the scene was registered with one.
+    room: Option<&'a str>,
     /// The example's folder, relative to the dataset directory.
     directory: String,
     image: String,
@@ -72,6 +78,31 @@ fn write_file(path: &Path, bytes: &[u8]) -> Result<(), ExportError> {
         path: path.to_path_buf(),
         source,
     })
+}
+
+/// Width and height from a PNG's IHDR chunk (bytes 16..24, big-endian; PNG specification, section 11.2.2).
+fn png_size(bytes: &[u8]) -> Option<(u32, u32)> {
+    let width = bytes.get(16..20)?;
+    let height = bytes.get(20..24)?;
+    Some((
+        u32::from_be_bytes([width[0], width[1], width[2], width[3]]),
+        u32::from_be_bytes([height[0], height[1], height[2], height[3]]),
+    ))
+}
+
+/// The room type the scene was registered with, by name.
+fn room_name(log: &CorrectionLog, scene: super::SceneKey, taxonomy: &Taxonomy) -> Option<String> {
+    let row = log
+        .scenes()
+        .ok()?
+        .into_iter()
+        .find(|row| row.key == scene)?;
+    let input: serde_json::Value = serde_json::from_str(&row.input_json).ok()?;
+    let room = input.get("room")?.as_u64()?;
+    let room = u16::try_from(room).ok()?;
+    taxonomy
+        .room(crate::ids::RoomId(room))
+        .map(|info| info.name.clone())
 }
 
 /// Writes every counting training example of `log` into `directory` (created; must be empty if it exists).
@@ -130,7 +161,14 @@ pub fn export_dataset(
             &example_directory.join("labels_before.png"),
             &log.blob(&example.labels_before_hash)?,
         )?;
+        let image = log.blob(&example.image_hash)?;
+        let (width, height) = png_size(&image).unwrap_or((0, 0));
+        let room = room_name(log, example.scene, taxonomy);
         let record = ExampleRecord {
+            name: &example.scene_name,
+            width,
+            height,
+            room: room.as_deref(),
             directory: folder.clone(),
             image: format!("{folder}/image.png"),
             labels: format!("{folder}/labels.png"),

@@ -2,24 +2,26 @@
 //!
 //! Owns: `LabelMapCorrector`, an interim engine on plain label maps. A scene starts from its label map (or
 //! the per-pixel arg-max of its NPY scores, or all unlabelled); objects are the 4-connected regions of one
-//! class. An utterance is read only for taxonomy class names ("that's a towel, not a cat": `towel` is the
-//! new class, the class after "not" the old one) and relabels the region under the focus, or every region
-//! of the old class when there is no focus. Removing or renaming a safety class waits for confirmation.
-//! Must not: pretend to parse language; sentences without a class name are "not understood". The real
-//! parser, grounding and joint solver replace this behind the same trait.
+//! class. Utterances are read by the real language stage (`language::Grammar`); of its constraints, a
+//! relabel ("that's a towel, not a cat") is applied to the region under the focus, or to every region of
+//! the old class when there is no focus. Other constraints are reported as unmet. Removing or renaming a
+//! safety class waits for confirmation.
+//! Must not: pretend to solve what it cannot; grounding and the joint solver replace the relabel step
+//! behind the same trait.
 
 use std::collections::VecDeque;
 use std::path::Path;
 
 use crate::ids::{ClassId, ObjectId};
-use crate::language::constraint::{Constraint, ConstraintKind, Deixis, Focus, Referent, Span};
+use crate::language::constraint::{ConstraintKind, Focus};
+use crate::language::{Grammar, GrammarError};
 use crate::raster::IndexImage;
 use crate::scene::BoundingBox;
-use crate::taxonomy::{Taxonomy, TaxonomyError, UNLABELLED};
+use crate::taxonomy::{Taxonomy, UNLABELLED};
 
 use super::corrector::{
     Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
-    SceneObject, SceneState, SceneSummary, Verdict,
+    SceneObject, SceneState, SceneSummary, Unmet, Verdict,
 };
 
 /// Regions smaller than this many pixels are not listed as objects.
@@ -27,21 +29,21 @@ const SMALLEST_OBJECT_PIXELS: u64 = 4;
 
 /// The interim label-map engine.
 pub struct LabelMapCorrector {
-    taxonomy: Taxonomy,
+    grammar: Grammar,
 }
 
 impl LabelMapCorrector {
-    /// With the embedded taxonomy.
-    pub fn embedded() -> LabelMapCorrector {
-        LabelMapCorrector {
-            taxonomy: Taxonomy::embedded(),
-        }
+    /// With the embedded grammar and taxonomy.
+    pub fn embedded() -> Result<LabelMapCorrector, GrammarError> {
+        Ok(LabelMapCorrector {
+            grammar: Grammar::embedded()?,
+        })
     }
 
-    /// With `classes.toml` from a grammar directory.
-    pub fn from_grammar_dir(directory: &Path) -> Result<LabelMapCorrector, TaxonomyError> {
+    /// With the grammar (classes.toml, lexicon, rules) from a grammar directory.
+    pub fn from_grammar_dir(directory: &Path) -> Result<LabelMapCorrector, GrammarError> {
         Ok(LabelMapCorrector {
-            taxonomy: Taxonomy::load(&directory.join("classes.toml"))?,
+            grammar: Grammar::load(directory)?,
         })
     }
 }
@@ -191,56 +193,6 @@ fn labels_from_npy(
     })
 }
 
-struct ClassMention {
-    class: ClassId,
-    negated: bool,
-    span: Span,
-}
-
-/// Finds taxonomy class names (singular or with a plural "s"/"es") among the words of the utterance.
-fn class_mentions(utterance: &str, taxonomy: &Taxonomy) -> Vec<ClassMention> {
-    let mut mentions = Vec::new();
-    let mut previous_words: Vec<String> = Vec::new();
-    let characters: Vec<char> = utterance.chars().collect();
-    let mut index = 0;
-    while index < characters.len() {
-        if !characters[index].is_alphabetic() {
-            index += 1;
-            continue;
-        }
-        let start = index;
-        while index < characters.len()
-            && (characters[index].is_alphabetic() || characters[index] == '_')
-        {
-            index += 1;
-        }
-        let word: String = characters[start..index]
-            .iter()
-            .collect::<String>()
-            .to_lowercase();
-        let candidates = [
-            word.clone(),
-            word.strip_suffix("es").unwrap_or(&word).to_string(),
-            word.strip_suffix('s').unwrap_or(&word).to_string(),
-        ];
-        if let Some(class) = candidates
-            .iter()
-            .find_map(|candidate| taxonomy.class_by_name(candidate))
-        {
-            let negated = previous_words.iter().rev().take(2).any(|previous| {
-                previous == "not" || previous == "no" || previous == "isn" || previous == "never"
-            });
-            mentions.push(ClassMention {
-                class: class.id,
-                negated,
-                span: Span::new(start, index),
-            });
-        }
-        previous_words.push(word);
-    }
-    mentions
-}
-
 fn target_pixels(
     labels: &IndexImage,
     request: &CorrectionRequest<'_>,
@@ -308,20 +260,22 @@ fn regions_containing(labels: &IndexImage, start: usize) -> Option<Vec<usize>> {
 
 impl Corrector for LabelMapCorrector {
     fn taxonomy(&self) -> &Taxonomy {
-        &self.taxonomy
+        self.grammar.taxonomy()
     }
 
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {
         let (width, height) = (input.image.width, input.image.height);
         let labels = match (&input.label_map, &input.scores_npy) {
             (Some(labels), _) => labels.clone(),
-            (None, Some(npy)) => labels_from_npy(npy, width, height, self.taxonomy.class_count())?,
+            (None, Some(npy)) => {
+                labels_from_npy(npy, width, height, self.taxonomy().class_count())?
+            }
             (None, None) => IndexImage::filled(width, height, UNLABELLED),
         };
         if let Some(bad) = labels
             .values
             .iter()
-            .find(|&&value| value != UNLABELLED && self.taxonomy.class(ClassId(value)).is_none())
+            .find(|&&value| value != UNLABELLED && self.taxonomy().class(ClassId(value)).is_none())
         {
             return Err(CorrectorError::BadInput {
                 field: "label_map_png_base64".into(),
@@ -337,60 +291,52 @@ impl Corrector for LabelMapCorrector {
     }
 
     fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError> {
-        let mentions = class_mentions(request.utterance, &self.taxonomy);
-        let to = mentions.iter().find(|mention| !mention.negated);
-        let from = mentions.iter().find(|mention| mention.negated);
-        if to.is_none() && from.is_none() {
-            return Ok(CorrectionOutcome {
-                constraints: Vec::new(),
-                changes: Vec::new(),
-                unmet: Vec::new(),
-                solver_gap: None,
-                verdict: Verdict::NotUnderstood {
-                    reason: "no class name from the taxonomy was found in the sentence".into(),
-                },
+        let taxonomy = self.taxonomy();
+        let not_understood = |reason: String, constraints, unmet| CorrectionOutcome {
+            constraints,
+            changes: Vec::new(),
+            unmet,
+            solver_gap: None,
+            verdict: Verdict::NotUnderstood { reason },
+        };
+        let parse = match self.grammar.parse(request.utterance, request.focus) {
+            Ok(parse) => parse,
+            Err(error) => return Ok(not_understood(error.to_string(), Vec::new(), Vec::new())),
+        };
+        let constraints = parse.constraints;
+        let relabel = constraints
+            .iter()
+            .find_map(|constraint| match &constraint.kind {
+                ConstraintKind::Relabel { target, from, to } => Some((target.clone(), *from, *to)),
+                _ => None,
             });
-        }
-        let span = match (to, from) {
-            (Some(to), Some(from)) => to.span.cover(from.span),
-            (Some(only), None) | (None, Some(only)) => only.span,
-            (None, None) => Span::default(),
+        let unmet: Vec<Unmet> = constraints
+            .iter()
+            .filter(|constraint| !matches!(constraint.kind, ConstraintKind::Relabel { .. }))
+            .map(|constraint| Unmet {
+                gloss: constraint.gloss.clone(),
+                reason: "this engine applies relabels only; the joint solver is not wired in yet"
+                    .into(),
+            })
+            .collect();
+        let Some((target, from, to)) = relabel else {
+            let reason = if constraints.is_empty() {
+                "no constraint could be read from the sentence".to_string()
+            } else {
+                "understood, but only relabels can be applied by this engine".to_string()
+            };
+            return Ok(not_understood(reason, constraints, unmet));
         };
-        let to_class = to.map(|mention| mention.class);
-        let from_class = from.map(|mention| mention.class);
-        let gloss = match (to_class, from_class) {
-            (Some(to), Some(from)) => format!(
-                "{} is not {}",
-                self.taxonomy.class_name(to),
-                self.taxonomy.class_name(from)
-            ),
-            (Some(to), None) => format!("is {}", self.taxonomy.class_name(to)),
-            (None, Some(from)) => format!("is not {}", self.taxonomy.class_name(from)),
-            (None, None) => String::new(),
-        };
-        let target = Referent {
-            class: from_class,
-            deixis: request.focus.map(|_| Deixis::Focus),
-            plural: false,
-            attributes: Vec::new(),
-            relations: Vec::new(),
-            region: None,
-            span,
-        };
-        let constraints = vec![Constraint {
-            kind: ConstraintKind::Relabel {
-                target,
-                from: from_class,
-                to: to_class,
-            },
-            span,
-            confidence: 1.0,
-            gloss,
-        }];
+        let to_class = to;
+        let from_class = from.or(if target.deixis.is_none() {
+            target.class
+        } else {
+            None
+        });
         let done = |verdict: Verdict, changes: Vec<Change>| CorrectionOutcome {
             constraints: constraints.clone(),
             changes,
-            unmet: Vec::new(),
+            unmet: unmet.clone(),
             solver_gap: None,
             verdict,
         };
@@ -438,10 +384,10 @@ impl Corrector for LabelMapCorrector {
                     if old == UNLABELLED {
                         "unlabelled"
                     } else {
-                        self.taxonomy.class_name(ClassId(old))
+                        taxonomy.class_name(ClassId(old))
                     },
                     to_class
-                        .map(|class| self.taxonomy.class_name(class))
+                        .map(|class| taxonomy.class_name(class))
                         .unwrap_or("unlabelled")
                 ),
             })
@@ -453,8 +399,8 @@ impl Corrector for LabelMapCorrector {
         };
         let safety: Vec<&str> = old_classes
             .iter()
-            .filter(|&&old| old != UNLABELLED && self.taxonomy.is_safety_critical(ClassId(old)))
-            .map(|&old| self.taxonomy.class_name(ClassId(old)))
+            .filter(|&&old| old != UNLABELLED && taxonomy.is_safety_critical(ClassId(old)))
+            .map(|&old| taxonomy.class_name(ClassId(old)))
             .collect();
         if safety.is_empty() {
             Ok(done(Verdict::Applied(proposed), changes))
@@ -513,7 +459,7 @@ mod tests {
 
     #[test]
     fn scores_are_read_as_the_per_pixel_arg_max_and_bad_npy_is_named() {
-        let corrector = LabelMapCorrector::embedded();
+        let corrector = LabelMapCorrector::embedded().unwrap();
         let classes = corrector.taxonomy().class_count();
         let mut values = vec![0.0f32; 2 * classes];
         values[21] = 5.0; // pixel 0: mug
@@ -530,7 +476,7 @@ mod tests {
 
     #[test]
     fn a_safety_class_waits_and_other_classes_apply() {
-        let corrector = LabelMapCorrector::embedded();
+        let corrector = LabelMapCorrector::embedded().unwrap();
         let taxonomy = corrector.taxonomy();
         let cat = taxonomy.class_by_name("cat").unwrap().id.0;
         let labels = IndexImage {
@@ -553,8 +499,15 @@ mod tests {
                 .unwrap()
         };
         let renamed = ask("that's a towel, not a cat", None);
-        assert!(matches!(renamed.verdict, Verdict::NeedsConfirmation { .. }));
-        assert_eq!(renamed.constraints[0].gloss, "towel is not cat");
+        assert!(
+            matches!(renamed.verdict, Verdict::NeedsConfirmation { .. }),
+            "{renamed:?}"
+        );
+        let towel = taxonomy.class_by_name("towel").unwrap().id;
+        assert!(renamed.constraints.iter().any(|constraint| matches!(
+            constraint.kind,
+            ConstraintKind::Relabel { to: Some(to), .. } if to == towel
+        )));
         let floor = ask("It's a RUG", Some(Focus::Pixel { x: 1, y: 0 }));
         let rug = taxonomy.class_by_name("rug").unwrap().id.0;
         match floor.verdict {

@@ -70,6 +70,8 @@ pub struct Coordinator {
     metrics: Arc<Metrics>,
     pixel_limit: u64,
     demo_dir: PathBuf,
+    /// Held for the coordinator's life: one process per log, so no two memories drift apart.
+    _exclusive: std::fs::File,
 }
 
 /// Settings the coordinator needs.
@@ -87,6 +89,16 @@ pub enum OpenError {
     Log(#[from] LogError),
     #[error("stored scene {scene} cannot be restored: {message}")]
     Restore { scene: i64, message: String },
+    #[error(
+        "the correction log {path} is in use by another sayso process (a running service?); stop it \
+         or send the work through its HTTP API"
+    )]
+    InUse { path: PathBuf },
+    #[error("cannot create the lock file {path}: {source}")]
+    LockFile {
+        path: PathBuf,
+        source: std::io::Error,
+    },
 }
 
 fn lock<T>(mutex: &Mutex<T>) -> MutexGuard<'_, T> {
@@ -137,6 +149,24 @@ impl Coordinator {
         settings: &CoordinatorSettings,
         metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
+        let lock_path = settings.log_path.with_extension("lock");
+        if let Some(parent) = lock_path.parent() {
+            let _ = std::fs::create_dir_all(parent);
+        }
+        let exclusive = std::fs::OpenOptions::new()
+            .create(true)
+            .truncate(false)
+            .write(true)
+            .open(&lock_path)
+            .map_err(|source| OpenError::LockFile {
+                path: lock_path.clone(),
+                source,
+            })?;
+        if exclusive.try_lock().is_err() {
+            return Err(OpenError::InUse {
+                path: settings.log_path.clone(),
+            });
+        }
         let log = CorrectionLog::open(&settings.log_path)?;
         let mut scenes = HashMap::new();
         for row in log.scenes()? {
@@ -218,6 +248,7 @@ impl Coordinator {
             metrics,
             pixel_limit: settings.pixel_limit,
             demo_dir: settings.demo_dir.clone(),
+            _exclusive: exclusive,
         })
     }
 
