@@ -276,7 +276,7 @@ fn bench_joint(criterion: &mut Criterion) {
                 .collect(),
             ..warm.state
         },
-        multipliers: None,
+        multipliers: Some(previous.multipliers.clone()),
     };
 
     let full = solve_joint(&built.energy, None, &options).unwrap();
