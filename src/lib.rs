@@ -29,6 +29,7 @@
 //! ```
 
 pub mod color;
+pub mod correction_log;
 pub mod demo;
 pub mod energy;
 pub mod features;
@@ -42,6 +43,7 @@ pub mod raster;
 pub mod render;
 pub mod scene;
 pub mod scenegraph;
+pub mod service;
 pub mod slic;
 pub mod solver;
 pub mod taxonomy;

@@ -116,17 +116,14 @@ pub fn draw_overlay(
     let alpha = options.alpha.clamp(0.0, 1.0);
     let (width, height) = (image.width, image.height);
     let mut blended = image.clone();
-    for index in 0..count {
-        let class = class_at[index];
+    for (pixel, &class) in blended.pixels.iter_mut().zip(&class_at) {
         if class == UNLABELLED {
             continue;
         }
         if let Some(info) = taxonomy.class(ClassId(class)) {
-            let pixel = &mut blended.pixels[index];
-            for channel in 0..3 {
-                let mixed =
-                    pixel[channel] as f32 * (1.0 - alpha) + info.colour[channel] as f32 * alpha;
-                pixel[channel] = mixed.round().clamp(0.0, 255.0) as u8;
+            for (value, &tint) in pixel.iter_mut().zip(&info.colour) {
+                let mixed = *value as f32 * (1.0 - alpha) + tint as f32 * alpha;
+                *value = mixed.round().clamp(0.0, 255.0) as u8;
             }
         }
     }
@@ -204,7 +201,11 @@ fn compose_with_legend(
         .iter()
         .map(|entry| {
             let share = entry.pixels as f64 * 100.0 / total_pixels.max(1) as f64;
-            format!("{} {:.1}%", taxonomy.class_name(entry.class), share)
+            if share < 0.1 {
+                format!("{} {:.2}%", taxonomy.class_name(entry.class), share)
+            } else {
+                format!("{} {:.1}%", taxonomy.class_name(entry.class), share)
+            }
         })
         .collect();
     let title_lines = wrap(&options.title, 20);

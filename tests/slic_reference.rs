@@ -3,7 +3,9 @@
 //! Owns: the comparison of our superpixels with scikit-image 0.26 `skimage.segmentation.slic`
 //! (n_segments=400, compactness=10, max_num_iter=10, sigma=0, convert2lab, enforce_connectivity,
 //! start_label=0), whose segment counts, label maps and metric values `tests/fixtures/slic/make_slic.py`
-//! wrote to `tests/fixtures/slic/`.
+//! wrote to `tests/fixtures/slic/`: two scikit-image sample images (astronaut, coffee), a synthetic room with
+//! an exact region map, and every demo scene under `demo_scenes/` (ground-truth regions = distinct
+//! (class, instance) pairs of its labels.png and instances.png).
 //! Must not: regenerate fixtures or time anything (timing lives in benches/slic.rs).
 //!
 //! Checks: our segment count is within 15% of the 400 requested; our boundary recall at 2 pixels (Martin et
@@ -87,6 +89,16 @@ fn our_superpixels_match_scikit_image_on_every_reference_image() {
     assert!(
         reference.images.len() >= 3 && with_truth >= 1,
         "too few images"
+    );
+    // The demo scenes (ground truth from labels.png and instances.png) are part of the reference.
+    let demo_scenes = reference
+        .images
+        .iter()
+        .filter(|image| image.truth_instances.is_some())
+        .count();
+    assert!(
+        demo_scenes >= 16,
+        "only {demo_scenes} demo scenes in the reference"
     );
     let params = SlicParams::default();
     let mut metric_cross_checks = 0;

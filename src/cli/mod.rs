@@ -7,9 +7,13 @@ use clap::{Parser, Subcommand};
 
 mod classes;
 mod demo;
+mod export;
+mod field_notes;
 mod render;
+mod serve;
 mod train;
 mod unaries;
+mod parse;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
@@ -34,6 +38,14 @@ pub enum Command {
     Train(train::TrainArgs),
     /// Turn per-pixel scores, a user ONNX model or a label map into per-segment unaries.
     Unaries(unaries::UnariesArgs),
+    /// Parse operator utterances into typed constraints (JSON and a gloss).
+    Parse(parse::ParseArgs),
+    /// Start the correction service.
+    Serve(serve::ServeArgs),
+    /// Write the accepted corrections as a training dataset directory.
+    Export(export::ExportArgs),
+    /// Apply a file of field notes to stored scenes and write a report.
+    FieldNotes(field_notes::FieldNotesArgs),
 }
 
 /// Runs one subcommand.
@@ -44,5 +56,9 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
         Command::Render(args) => render::run(args),
         Command::Train(args) => train::run(args),
         Command::Unaries(args) => unaries::run(args),
+        Command::Parse(args) => parse::run(args),
+        Command::Serve(args) => serve::run(args),
+        Command::Export(args) => export::run(args),
+        Command::FieldNotes(args) => field_notes::run(args),
     }
 }

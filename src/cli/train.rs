@@ -9,14 +9,20 @@ use std::time::Instant;
 use anyhow::{bail, Context};
 use clap::{Args, ValueEnum};
 
+use sayso::ids::ClassId;
+use sayso::scene::SceneParams;
 use sayso::taxonomy::Taxonomy;
+use sayso::unaries::builtin::{dataset_training_rows, evaluate_on_dataset};
 use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use sayso::unaries::dataset::list_dataset;
 use sayso::unaries::dataset::read_feature_csv;
+use sayso::unaries::model_card::EvaluationFigures;
 use sayso::unaries::model_card::ModelCard;
 use sayso::unaries::onnx_writer::encode_model;
 use sayso::unaries::trainer::{
     split_for_validation, train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode,
 };
+use sayso::unaries::{current_feature_layout, Classifier};
 
 /// The network shape.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -53,6 +59,9 @@ pub struct TrainArgs {
     /// Feature layout version to record for --feature-matrix data.
     #[arg(long, default_value_t = 0)]
     pub feature_layout_version: u32,
+    /// A scene set (same layout as --data) to report pixel accuracy and IoU on, e.g. demo_scenes.
+    #[arg(long)]
+    pub evaluate: Option<PathBuf>,
     /// Output directory for segment_classifier.onnx and README.md.
     #[arg(long, default_value = "models")]
     pub out: PathBuf,
@@ -95,11 +104,20 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
             format!("Exported feature matrix `{}`.", path.display()),
             args.feature_layout_version,
         )
-    } else if args.data.is_some() || args.render.is_some() {
-        bail!(
-            "training from scene directories needs the segment feature stage, which this build does not include yet; \
-             export a feature matrix and pass --feature-matrix"
-        );
+    } else if let Some(directory) = &args.data {
+        let entries = list_dataset(directory)?;
+        let rows = dataset_training_rows(&entries, &taxonomy, &SceneParams::default(), true)?;
+        (
+            rows,
+            format!(
+                "{} scenes from `{}`; one row per segment (SLIC defaults), labelled with the majority ground-truth class of its pixels.",
+                entries.len(),
+                directory.display()
+            ),
+            current_feature_layout().version,
+        )
+    } else if args.render.is_some() {
+        bail!("--render needs the scene renderer, which this build does not include yet; render scenes to a directory and pass --data");
     } else {
         bail!("give --data DIR, --render N or --feature-matrix FILE");
     };
@@ -146,8 +164,11 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
     let model_path = args.out.join("segment_classifier.onnx");
     std::fs::write(&model_path, &bytes)
         .with_context(|| format!("writing {}", model_path.display()))?;
-    let command: Vec<String> = std::env::args().collect();
-    let card = ModelCard {
+    // The card names the program plainly, whatever path it was started by.
+    let command: Vec<String> = std::iter::once("sayso".to_string())
+        .chain(std::env::args().skip(1))
+        .collect();
+    let mut card = ModelCard {
         command: command.join(" "),
         training_data: description,
         mode: match &config.mode {
@@ -169,6 +190,40 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         calibration: outcome.calibration,
         evaluation: None,
     };
+    if let Some(directory) = &args.evaluate {
+        let classifier = Classifier::from_bytes(
+            &bytes,
+            &model_path.display().to_string(),
+            &taxonomy,
+            current_feature_layout(),
+        )?;
+        let entries = list_dataset(directory)?;
+        let matrix =
+            evaluate_on_dataset(&entries, &classifier, &taxonomy, &SceneParams::default())?;
+        card.evaluation = Some(EvaluationFigures {
+            description: format!(
+                "{} scenes of `{}` (pixel level)",
+                entries.len(),
+                directory.display()
+            ),
+            pixel_accuracy: matrix.pixel_accuracy(),
+            mean_iou: matrix.mean_iou(),
+            per_class_iou: matrix
+                .per_class_iou()
+                .into_iter()
+                .enumerate()
+                .filter_map(|(class, iou)| {
+                    iou.map(|iou| (taxonomy.class_name(ClassId(class as u16)).to_string(), iou))
+                })
+                .collect(),
+        });
+        println!(
+            "evaluated on {}: pixel accuracy {:.2}%, mean IoU {:.3}",
+            directory.display(),
+            100.0 * matrix.pixel_accuracy(),
+            matrix.mean_iou()
+        );
+    }
     let card_path = args.out.join("README.md");
     std::fs::write(&card_path, card.to_markdown())
         .with_context(|| format!("writing {}", card_path.display()))?;

@@ -15,10 +15,12 @@
 //! Owns: `SceneRequest`, `RenderedScene`, `SceneObject`, `SceneMetadata`, `RenderError`, the demo catalogue.
 //! Must not: know about segments, classifiers, language or the solver; class ids come only from the taxonomy.
 
+mod belongings;
 mod builder;
 mod camera;
 pub mod catalogue;
 mod figures;
+mod fittings;
 mod furniture;
 mod geometry;
 mod layouts;
@@ -238,4 +240,105 @@ fn measure_objects(
         },
         objects,
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::builder::InstanceDeclaration;
+    use super::*;
+
+    fn small(room: &str, seed: u64) -> SceneRequest {
+        SceneRequest {
+            width: 96,
+            height: 72,
+            ..SceneRequest::new(room, seed)
+        }
+    }
+
+    #[test]
+    fn same_request_same_scene_other_seed_other_scene() {
+        let taxonomy = Taxonomy::embedded();
+        let first = render_scene(&taxonomy, &small("office", 7)).unwrap();
+        let again = render_scene(&taxonomy, &small("office", 7)).unwrap();
+        let other = render_scene(&taxonomy, &small("office", 8)).unwrap();
+        assert_eq!(first, again);
+        assert_ne!(first.image, other.image);
+    }
+
+    #[test]
+    fn every_room_type_renders_with_floor_walls_and_objects() {
+        let taxonomy = Taxonomy::embedded();
+        let floor = taxonomy.class_by_name("floor").unwrap().id.0;
+        let wall = taxonomy.class_by_name("wall").unwrap().id.0;
+        for room in ROOM_TYPES {
+            let scene = render_scene(&taxonomy, &small(room, 3)).unwrap();
+            assert!(scene.labels.values.contains(&floor), "{room} has no floor");
+            assert!(scene.labels.values.contains(&wall), "{room} has no wall");
+            assert!(
+                scene.objects.len() >= 5,
+                "{room} has {} objects",
+                scene.objects.len()
+            );
+            assert_eq!(scene.metadata.room, room);
+        }
+    }
+
+    #[test]
+    fn bad_requests_are_typed_errors() {
+        let taxonomy = Taxonomy::embedded();
+        let error = render_scene(&taxonomy, &SceneRequest::new("attic", 1)).unwrap_err();
+        assert!(matches!(error, RenderError::UnknownRoom(ref room) if room == "attic"));
+        assert!(error.to_string().contains("kitchen"));
+        let tiny = SceneRequest {
+            width: 4,
+            ..SceneRequest::new("kitchen", 1)
+        };
+        assert!(matches!(
+            render_scene(&taxonomy, &tiny),
+            Err(RenderError::BadSize { width: 4, .. })
+        ));
+    }
+
+    #[test]
+    fn hidden_instances_are_dropped_and_supports_renumbered() {
+        let taxonomy = Taxonomy::embedded();
+        let class = |name: &str| taxonomy.class_by_name(name).unwrap().id;
+        // Declared: 1 table (visible), 2 box (hidden), 3 mug on the table, 4 book on the hidden box.
+        let declarations = [
+            InstanceDeclaration {
+                class: class("table"),
+                rests_on: None,
+            },
+            InstanceDeclaration {
+                class: class("box"),
+                rests_on: None,
+            },
+            InstanceDeclaration {
+                class: class("mug"),
+                rests_on: Some(1),
+            },
+            InstanceDeclaration {
+                class: class("book"),
+                rests_on: Some(2),
+            },
+        ];
+        let map = IndexImage {
+            width: 4,
+            height: 2,
+            values: vec![0, 1, 1, 3, 0, 1, 4, 4],
+        };
+        let (renumbered, objects) = measure_objects(&taxonomy, &declarations, &map);
+        assert_eq!(renumbered.values, vec![0, 1, 1, 2, 0, 1, 3, 3]);
+        assert_eq!(objects.len(), 3);
+        assert_eq!(objects[0].bbox, [1, 0, 3, 2]);
+        assert_eq!(objects[0].area, 3);
+        assert_eq!(
+            (objects[1].class.as_str(), objects[1].rests_on),
+            ("mug", Some(1))
+        );
+        assert_eq!(
+            (objects[2].class.as_str(), objects[2].rests_on),
+            ("book", None)
+        );
+    }
 }

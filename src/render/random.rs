@@ -48,7 +48,7 @@ impl SplitMix64 {
         if count == 0 {
             return 0;
         }
-        ((self.next_u64() >> 32) * count as u64 >> 32) as u32
+        (((self.next_u64() >> 32) * count as u64) >> 32) as u32
     }
 
     /// True with probability `probability`.

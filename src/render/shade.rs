@@ -1,6 +1,6 @@
 //! Turning a `SceneDraft` into pixels: nearest-hit visibility per pixel (a z-buffer by ray casting), Lambert
-//! shading from a small square ceiling light with soft shadows, then sensor effects (slight blur, vignetting,
-//! Gaussian noise) and quantisation.
+//! shading from a small square ceiling light with soft shadows (five light samples), ambient and floor bounce,
+//! then sensor effects (slight blur, vignetting, Gaussian noise) and quantisation.
 //!
 //! Owns: `Frame` (colour, depth in millimetres, class labels and instance numbers per pixel) and the sensor model.
 //! Must not: decide what is in the scene (layouts do) or write files (the writer does).
@@ -168,7 +168,9 @@ fn lighting(draft: &SceneDraft, point: Vec3, normal: Vec3, samples: &[Vec3]) -> 
         direct += lambert * (0.45 + 0.55 * downward) / (1.0 + 0.09 * distance * distance);
     }
     direct /= samples.len() as f64;
-    AMBIENT + 0.12 * (normal.y * 0.5 + 0.5) + 1.05 * direct
+    // Light bounced off the floor reaches surfaces facing down (the ceiling, undersides).
+    let bounce = 0.3 * (-normal.y).max(0.0);
+    AMBIENT + 0.12 * (normal.y * 0.5 + 0.5) + bounce + 1.05 * direct
 }
 
 /// The sensor: a [1 2 1] blur in each direction, vignetting, Gaussian noise, rounding to 8 bits.

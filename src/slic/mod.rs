@@ -48,13 +48,34 @@ pub enum SlicError {
     },
 }
 
-/// SLIC settings. Built only through `SlicParams::new` or `Default`, so a value is always valid.
+/// SLIC settings. Built only through `SlicParams::new`, `Default` or validated deserialisation, so a value
+/// is always valid.
 #[derive(Clone, Copy, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
+#[serde(try_from = "UncheckedSlicParams")]
 pub struct SlicParams {
     target_segments: u32,
     compactness: f32,
     iterations: u32,
     min_segment_fraction: f32,
+}
+
+/// The serialised shape of `SlicParams`, checked by `TryFrom` before use.
+#[derive(serde::Deserialize)]
+#[serde(deny_unknown_fields)]
+struct UncheckedSlicParams {
+    target_segments: u32,
+    compactness: f32,
+    iterations: u32,
+    min_segment_fraction: f32,
+}
+
+impl TryFrom<UncheckedSlicParams> for SlicParams {
+    type Error = SlicError;
+
+    fn try_from(raw: UncheckedSlicParams) -> Result<Self, SlicError> {
+        SlicParams::new(raw.target_segments, raw.compactness, raw.iterations)?
+            .with_min_segment_fraction(raw.min_segment_fraction)
+    }
 }
 
 impl Default for SlicParams {
@@ -538,6 +559,17 @@ mod tests {
         assert!(SlicParams::default()
             .with_min_segment_fraction(1.5)
             .is_err());
+    }
+
+    #[test]
+    fn deserialised_parameters_are_validated() {
+        let good = serde_json::to_string(&SlicParams::default()).unwrap();
+        let back: SlicParams = serde_json::from_str(&good).unwrap();
+        assert_eq!(back, SlicParams::default());
+        let bad = good.replace("\"iterations\":10", "\"iterations\":0");
+        assert_ne!(bad, good);
+        let error = serde_json::from_str::<SlicParams>(&bad).unwrap_err();
+        assert!(error.to_string().contains("iterations"), "{error}");
     }
 
     #[test]

@@ -31,6 +31,12 @@ pub enum DatasetError {
     MissingFile { path: PathBuf, file: &'static str },
     #[error(transparent)]
     Raster(#[from] RasterError),
+    #[error(transparent)]
+    Scene(#[from] crate::scene::SceneError),
+    #[error(transparent)]
+    Classifier(#[from] super::classifier::ClassifierError),
+    #[error(transparent)]
+    Metrics(#[from] super::metrics::MetricsError),
     #[error("{path}: {message}")]
     Metadata { path: PathBuf, message: String },
     #[error("{path} is {found_width}x{found_height} but the image is {width}x{height}")]

@@ -5,6 +5,7 @@
 //! calibration and evaluation metrics.
 //! Must not: know about language, constraints or the solver; it only scores segments.
 
+pub mod builtin;
 pub mod byo;
 pub mod byo_detections;
 pub mod byo_label_map;
@@ -26,6 +27,7 @@ pub mod trainer;
 use ndarray::Array2;
 use serde::{Deserialize, Serialize};
 
+pub use builtin::{builtin_unaries, current_feature_layout};
 pub use classifier::{Classifier, ClassifierError};
 pub use contract::{FeatureLayout, ModelContract};
 

@@ -6,15 +6,16 @@
 //! towels, bottles, a laundry heap and a box.
 //! Must not: shade or write anything.
 
+use super::super::belongings::{cardboard_box, clothes, plant, towel};
 use super::super::builder::SceneBuilder;
 use super::super::figures::cat;
+use super::super::fittings::{door, fridge, microwave, on_wall, sink, stove, window, Wall};
 use super::super::furniture::{
-    cabinet, chair, counter_run, door, fridge, hanging_cabinet, microwave, on_wall, painted, sink,
-    stove, table, wall_shelf, window, wood, Spot, Wall,
+    cabinet, chair, counter_run, hanging_cabinet, painted, table, wall_shelf, wood, Spot,
 };
 use super::super::geometry::{v3, Yaw};
 use super::super::material::{rgb, Material, Texture};
-use super::super::objects::{bottle, bowl, cardboard_box, clothes, mug, plant, plate, towel};
+use super::super::objects::{bottle, bowl, mug, plate};
 use super::super::RenderError;
 use super::{
     choose, tiles, wall_paint, LayoutOutcome, GLAZE_COLOURS, SKY, WALL_COLOURS, WOOD_COLOURS,
@@ -218,6 +219,7 @@ pub fn kitchen(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         description: "Kitchen: worktops with a sink and a cooker, a white larder cabinet beside the white \
                       fridge, three bottles on the counter, and Fig the cat behind a chair at the little table."
             .to_string(),
+        look_towards: 0.0,
     })
 }
 
@@ -327,5 +329,6 @@ pub fn bathroom(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
             "Bathroom: a basin in a vanity counter with bottles and a folded towel, a bath towel \
                       on the wall, Teodor's laundry on the floor and a box in the corner."
                 .to_string(),
+        look_towards: 0.1,
     })
 }

@@ -7,18 +7,14 @@
 //! four to six chairs, place settings, bottles, a vase of flowers, a box under the table and someone standing.
 //! Must not: shade or write anything.
 
+use super::super::belongings::{blanket, cardboard_box, pillow, plant, toy};
 use super::super::builder::SceneBuilder;
 use super::super::figures::{cat, dog, person, Outfit, Pose};
-use super::super::furniture::{
-    bookcase, cabinet, chair, door, fabric, lamp, on_wall, rug, sofa, table, television, window,
-    wood, Spot, Wall,
-};
+use super::super::fittings::{door, lamp, on_wall, rug, television, window, Wall};
+use super::super::furniture::{bookcase, cabinet, chair, fabric, sofa, table, wood, Spot};
 use super::super::geometry::{v3, Yaw};
 use super::super::material::{rgb, tint};
-use super::super::objects::{
-    blanket, book, book_row, bottle, bowl, cardboard_box, laptop, mug, pillow, plant, plate,
-    remote, toy, vase,
-};
+use super::super::objects::{book, book_row, bottle, bowl, laptop, mug, plate, remote, vase};
 use super::super::RenderError;
 use super::{
     choose, floorboards, wall_paint, LayoutOutcome, GLAZE_COLOURS, SKY, WALL_COLOURS, WOOD_COLOURS,
@@ -143,18 +139,19 @@ pub fn living_room(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError>
         rgb(220, 60, 50),
         Some(rug_instance),
     )?;
-    // Television on a low cabinet by the right wall, showing a sky; a real window on the back wall.
+    // Television on a low cabinet by the back wall, showing a sky; a real window on the back wall.
     let stand = cabinet(
         builder,
-        Spot::new(w - 0.21, sofa_z, Yaw::facing(-1.0, 0.0)),
-        v3(1.3, 0.5, 0.4),
+        Spot::new(w - 0.65, d - 0.21, Yaw::facing(0.0, -1.0)),
+        v3(1.0, 0.5, 0.4),
         wood(choose(builder, &WOOD_COLOURS)),
     )?;
-    let (screen_centre, screen_yaw) = on_wall(builder, Wall::Right, sofa_z, 0.5 + 0.06 + 0.3, 0.22);
-    television(builder, screen_centre, screen_yaw, 1.0, Some(stand), SKY)?;
-    window(builder, Wall::Back, -w + 1.1, (1.0, 1.1), 0.9, SKY)?;
+    let (screen_centre, screen_yaw) =
+        on_wall(builder, Wall::Back, w - 0.65, 0.5 + 0.06 + 0.3, 0.22);
+    television(builder, screen_centre, screen_yaw, 0.9, Some(stand), SKY)?;
+    window(builder, Wall::Back, -w + 1.05, (0.8, 1.1), 0.9, SKY)?;
     // Bookcase on the back wall with rows of books and a vase in the mug's glaze on top.
-    let case_x = 0.45 + builder.range(-0.2, 0.2);
+    let case_x = builder.range(-0.05, 0.05);
     let (case, levels) = bookcase(
         builder,
         Spot::new(case_x, d - 0.17, Yaw::facing(0.0, -1.0)),
@@ -201,7 +198,7 @@ pub fn living_room(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError>
         rgb(240, 220, 180),
         None,
     )?;
-    plant(builder, v3(w - 0.35, 0.0, d - 0.35), 0.9, None)?;
+    plant(builder, v3(w - 0.3, 0.0, d - 1.55), 0.9, None)?;
     // A wooden chair near the bookcase with Fig sitting behind it.
     let chair_x = case_x + 0.95;
     chair(
@@ -223,6 +220,7 @@ pub fn living_room(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError>
         floor: floorboards(floor_colour),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Living room: Wren on the sofa beside Bramble curled up among the pillows, a television showing a sky across from a real window, a rug almost the colour of the floor, a mug and a vase in the same glaze, and Fig behind a chair.".to_string(),
+        look_towards: -0.15,
     })
 }
 
@@ -384,5 +382,6 @@ pub fn dining_room(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError>
         floor: floorboards(floor_colour),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Dining room: a table laid for four with chairs all round, bottles and a vase of flowers among the mugs, a box under the table, a sideboard with a lamp, and Teodor standing by the wall.".to_string(),
+        look_towards: 0.0,
     })
 }

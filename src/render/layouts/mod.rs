@@ -6,7 +6,7 @@
 //! type is meant to show (look-alikes, repeated objects, small objects on surfaces, things under or behind
 //! furniture).
 //!
-//! Owns: the room box size, the camera placement, the surfaces and the per-room layouts.
+//! Owns: the room box size, the camera placement, the surfaces, loose clutter and the per-room layouts.
 //! Must not: shade pixels or write files.
 
 mod cooking;
@@ -15,9 +15,10 @@ mod private;
 
 use crate::taxonomy::Taxonomy;
 
+use super::belongings::{bag, cardboard_box, clothes, toy};
 use super::builder::{RoomSurfaces, SceneBuilder, SceneDraft};
 use super::camera::{Camera, RoomBox};
-use super::geometry::v3;
+use super::geometry::{v3, Yaw};
 use super::material::{rgb, Colour, Material, Texture};
 use super::random::SplitMix64;
 use super::RenderError;
@@ -42,6 +43,8 @@ pub struct LayoutOutcome {
     pub floor: Material,
     pub wall: Material,
     pub description: String,
+    /// Where the camera looks across the room, as a fraction of the half width (-1 left wall, 1 right wall).
+    pub look_towards: f64,
 }
 
 /// Builds the draft of one scene.
@@ -77,6 +80,7 @@ pub fn build_scene(
         "office" => private::office(&builder)?,
         _ => private::hallway(&builder)?,
     };
+    scatter_clutter(&builder)?;
     let mut camera_random = camera_random;
     let position = v3(
         camera_random.range(-0.25, 0.25) * half_width,
@@ -84,7 +88,7 @@ pub fn build_scene(
         0.12,
     );
     let target = v3(
-        camera_random.range(-0.15, 0.15) * half_width,
+        (outcome.look_towards + camera_random.range(-0.12, 0.12)) * half_width,
         camera_random.range(0.55, 0.8),
         depth * 0.75,
     );
@@ -105,6 +109,53 @@ pub fn build_scene(
         ceiling_class: builder.class_id("ceiling")?,
     };
     Ok(builder.finish(surfaces, camera, outcome.description))
+}
+
+/// Drops up to two loose things (a toy, a box, a bag, a heap of clothes) on the open floor between the camera
+/// and the furniture, so no two seeds of a room are equally tidy.
+fn scatter_clutter(builder: &SceneBuilder) -> Result<(), RenderError> {
+    let room = builder.room;
+    let count = builder.below(3);
+    for _ in 0..count {
+        let x = builder.range(-0.3, 0.3) * room.half_width;
+        let z = builder.range(1.0, 1.0 + room.depth * 0.12);
+        let yaw = Yaw::from_half_tangent(builder.range(-0.8, 0.8));
+        let base = v3(x, 0.0, z);
+        match builder.below(4) {
+            0 => {
+                let colour = choose(
+                    builder,
+                    &[rgb(220, 60, 50), rgb(60, 140, 220), rgb(240, 200, 40)],
+                );
+                toy(builder, base, builder.chance(0.5), colour, None)?;
+            }
+            1 => {
+                let half = v3(
+                    builder.range(0.12, 0.25),
+                    builder.range(0.08, 0.18),
+                    builder.range(0.1, 0.2),
+                );
+                cardboard_box(builder, base, yaw, half, None)?;
+            }
+            2 => {
+                let colour = choose(
+                    builder,
+                    &[rgb(120, 80, 50), rgb(40, 60, 90), rgb(150, 40, 60)],
+                );
+                bag(builder, base, yaw, colour, None)?;
+            }
+            _ => {
+                clothes(
+                    builder,
+                    base,
+                    0.18,
+                    &[rgb(200, 200, 190), rgb(60, 70, 110), rgb(140, 60, 50)],
+                    None,
+                )?;
+            }
+        }
+    }
+    Ok(())
 }
 
 /// Painted plaster for walls.

@@ -6,18 +6,18 @@
 //! the front door, shoe pairs, a runner rug, a bag, Bramble standing.
 //! Must not: shade or write anything.
 
+use super::super::belongings::{
+    bag, blanket, cardboard_box, clothes, pillow, plant, shoe_pair, toy,
+};
 use super::super::builder::SceneBuilder;
 use super::super::figures::{cat, dog, person, Outfit, Pose};
+use super::super::fittings::{door, lamp, on_wall, rug, stairs, window, Wall};
 use super::super::furniture::{
-    bed, bookcase, cabinet, chair, desk, door, fabric, lamp, on_wall, painted, rug, stairs,
-    wall_shelf, window, wood, Spot, Wall,
+    bed, bookcase, cabinet, chair, desk, fabric, painted, wall_shelf, wood, Spot,
 };
 use super::super::geometry::{v3, Yaw};
 use super::super::material::{rgb, tint};
-use super::super::objects::{
-    bag, blanket, book, book_row, cardboard_box, clothes, laptop, mug, pillow, plant, shoe_pair,
-    toy, vase,
-};
+use super::super::objects::{book, book_row, laptop, mug, vase};
 use super::super::RenderError;
 use super::{
     choose, floorboards, wall_paint, LayoutOutcome, GLAZE_COLOURS, SKY, WALL_COLOURS, WOOD_COLOURS,
@@ -183,6 +183,7 @@ pub fn bedroom(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         floor: floorboards(floor_colour),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Bedroom: Fig curled up on the blanket near pillows of a similar grey, shoes half under the bed, a toy bear and a book on the covers, a bedside lamp, clothes on the desk chair and a bag on the floor.".to_string(),
+        look_towards: 0.0,
     })
 }
 
@@ -300,6 +301,7 @@ pub fn office(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         floor: floorboards(choose(builder, &WOOD_COLOURS)),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Office: Wren at the desk with a laptop, a mug and a stack of books, a box under the desk, a full bookcase on the left wall and a plant on the filing cabinet.".to_string(),
+        look_towards: -0.3,
     })
 }
 
@@ -428,5 +430,6 @@ pub fn hallway(builder: &SceneBuilder) -> Result<LayoutOutcome, RenderError> {
         floor: floorboards(floor_colour),
         wall: wall_paint(choose(builder, &WALL_COLOURS)),
         description: "Hallway: the stairs up on the left, the front door at the end, pairs of shoes by the shoe cabinet, a runner rug with Bramble standing on it, a bag and a box.".to_string(),
+        look_towards: 0.0,
     })
 }

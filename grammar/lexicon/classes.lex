@@ -1,0 +1,86 @@
+# Class words beyond the canonical names in classes.toml.
+# Canonical names and every singular synonym get a regular English plural unless an explicit plural
+# entry exists or the word is marked `mass` or `plural` (plural-only).
+#   phrase -> class NAME            a singular synonym
+#   phrase -> class NAME plural SINGULAR   the plural of SINGULAR (irregular forms)
+#   phrase -> class NAME plural     a plural-only word (no singular)
+#   phrase -> class NAME mass       a mass noun: no plural, agrees as singular
+
+# Irregular plurals of canonical names.
+shelves -> class shelf plural shelf
+people -> class person plural person
+clothes -> class clothes plural
+stairs -> class stairs plural
+
+# Synonyms.
+floorboards -> class floor plural
+ceiling light -> class lamp
+doorway -> class door
+staircase -> class stairs
+steps -> class stairs plural
+carpet -> class rug
+mat -> class rug
+dining table -> class table
+coffee table -> class table
+armchair -> class chair
+stool -> class chair
+couch -> class sofa
+settee -> class sofa
+cupboard -> class cabinet
+wardrobe -> class cabinet
+drawer unit -> class cabinet
+chest of drawers -> class cabinet
+chests of drawers -> class cabinet plural chest of drawers
+bookshelf -> class shelf
+bookshelves -> class shelf plural bookshelf
+bookcase -> class shelf
+worktop -> class counter
+countertop -> class counter
+basin -> class sink
+refrigerator -> class fridge
+cooker -> class stove
+oven -> class stove
+hob -> class stove
+television -> class tv
+telly -> class tv
+tellies -> class tv plural telly
+light -> class lamp
+cup -> class mug
+dish -> class plate
+notebook -> class book
+computer -> class laptop
+remote control -> class remote
+controller -> class remote
+carton -> class box
+crate -> class box
+backpack -> class bag
+handbag -> class bag
+rucksack -> class bag
+boot -> class shoe
+trainer -> class shoe
+slipper -> class shoe
+clothing -> class clothes mass
+laundry -> class clothes mass
+coat -> class clothes
+jacket -> class clothes
+jumper -> class clothes
+shirt -> class clothes
+cushion -> class pillow
+duvet -> class blanket
+throw -> class blanket
+houseplant -> class plant
+teddy -> class toy
+teddies -> class toy plural teddy
+hand towel -> class towel
+man -> class person
+men -> class person plural man
+woman -> class person
+women -> class person plural woman
+child -> class person
+children -> class person plural child
+kid -> class person
+puppy -> class dog
+puppies -> class dog plural puppy
+kitten -> class cat
+kitty -> class cat
+kitties -> class cat plural kitty

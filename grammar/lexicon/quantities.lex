@@ -1,0 +1,36 @@
+# Quantity phrases and comparators.
+#   phrase -> quantity exactly N | at_least N | some | none
+#   phrase -> comparator exactly | at_least | at_most | more_than | fewer_than
+#   phrase -> article            ("a", "an": one thing, no count stated)
+a -> article
+an -> article
+a couple of -> quantity exactly 2
+a couple -> quantity exactly 2
+a pair of -> quantity exactly 2
+a dozen -> quantity exactly 12
+half a dozen -> quantity exactly 6
+dozen -> quantity exactly 12
+both -> quantity exactly 2
+several -> quantity at_least 3
+a few -> quantity at_least 2
+a lot of -> quantity at_least 3
+lots of -> quantity at_least 3
+many -> quantity at_least 3
+some -> quantity some
+any -> quantity some
+no -> no
+none of the -> quantity none
+at least -> comparator at_least
+no fewer than -> comparator at_least
+no less than -> comparator at_least
+at most -> comparator at_most
+no more than -> comparator at_most
+up to -> comparator at_most
+more than -> comparator more_than
+over -> relation above
+fewer than -> comparator fewer_than
+less than -> comparator fewer_than
+exactly -> comparator exactly
+only -> comparator exactly
+just -> comparator exactly
+precisely -> comparator exactly

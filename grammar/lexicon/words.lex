@@ -1,0 +1,339 @@
+# Everything that is not a class, number or colour: relations, places, deictics, verbs, cues.
+#   phrase = replacement       rewrites tokens before tagging (contractions, casual spellings)
+#   phrase -> kind [value]     tags a phrase; the longest phrase wins
+
+# Contractions and casual spellings.
+that's = that is
+thats = that is
+this's = this is
+it's = it is
+its = it is
+there's = there is
+theres = there is
+here's = here is
+what's = what is
+whats = what is
+where's = where is
+who's = who is
+we're = we are
+you're = you are
+youre = you are
+they're = they are
+theyre = they are
+isn't = is not
+isnt = is not
+aren't = are not
+arent = are not
+wasn't = was not
+weren't = were not
+ain't = is not
+don't = do not
+dont = do not
+doesn't = does not
+can't = cannot
+i'm = i am
+im = i am
+r = are
+u = you
+ur = you are
+2 the = to the
+thx = thanks
+ty = thank you
+pls = please
+plz = please
+
+# Being and placement verbs.
+is -> be
+are -> be
+was -> be
+were -> be
+am -> be
+be -> be
+sits -> be
+sit -> be
+stands -> be
+stand -> be
+hangs -> be
+hang -> be
+lies -> be
+lie -> be
+belongs -> be
+goes -> be
+looks like -> be
+seems to be -> be
+
+there -> there
+here -> skip
+
+# Negation and the word "no" (quantity, negation or repair cue, decided from context).
+not -> negation
+never -> negation
+cannot -> negation
+
+# Deictics.
+that -> deictic demonstrative
+this -> deictic demonstrative
+those -> deictic demonstrative plural
+these -> deictic demonstrative plural
+it -> deictic pronoun
+they -> deictic pronoun plural
+them -> deictic pronoun plural
+
+# Words for an unnamed thing.
+thing -> thing
+things -> thing plural
+object -> thing
+stuff -> thing
+room -> thing
+area -> thing
+
+# Determiners that add nothing.
+the -> determiner
+my -> determiner
+our -> determiner
+your -> determiner
+his -> determiner
+her -> determiner
+their -> determiner
+
+we -> we
+you -> you
+called -> called
+labelled -> called
+labeled -> called
+marked -> called
+tagged -> called
+named -> called
+call -> called
+missed -> missed
+forgot -> missed
+missing -> missed
+and -> and
+but -> and
+plus -> and
+also -> skip
+
+# Relations.
+on -> relation on
+on top of -> relation on
+onto -> relation on
+upon -> relation on
+under -> relation under
+underneath -> relation under
+beneath -> relation under
+above -> relation above
+below -> relation below
+next to -> relation next_to
+beside -> relation next_to
+besides -> relation next_to
+by -> relation next_to
+near -> relation next_to
+nearby -> relation next_to
+close to -> relation next_to
+against -> relation next_to
+left of -> relation left_of
+to the left of -> relation left_of
+on the left of -> relation left_of
+on the left hand side of -> relation left_of
+right of -> relation right_of
+to the right of -> relation right_of
+on the right of -> relation right_of
+on the right hand side of -> relation right_of
+in front of -> relation in_front_of
+behind -> relation behind
+in back of -> relation behind
+at the back of -> relation behind
+inside -> relation inside
+inside of -> relation inside
+in -> relation inside
+within -> relation inside
+into -> relation inside
+between -> relation between
+in between -> relation between
+
+# Image regions (camera's point of view).
+on the left -> region left
+to the left -> region left
+at the left -> region left
+on the left side -> region left
+on the left hand side -> region left
+left side -> region left
+on the right -> region right
+to the right -> region right
+at the right -> region right
+on the right side -> region right
+on the right hand side -> region right
+right side -> region right
+at the top -> region top
+on the top -> region top
+up top -> region top
+at the bottom -> region bottom
+on the bottom -> region bottom
+in the middle -> region centre
+in the centre -> region centre
+in the center -> region centre
+in the corner -> region corner
+in a corner -> region corner
+in the top left corner -> region corner
+in the top right corner -> region corner
+in the bottom left corner -> region corner
+in the bottom right corner -> region corner
+at the back -> region back
+in the back -> region back
+in the background -> region back
+at the front -> region front
+in the front -> region front
+in the foreground -> region front
+left -> side left
+right -> side right
+
+# Sizes.
+big -> size big
+large -> size big
+huge -> size big
+massive -> size big
+giant -> size big
+small -> size small
+little -> size small
+tiny -> size small
+
+# Rooms.
+kitchen -> room kitchen
+living room -> room living_room
+lounge -> room living_room
+sitting room -> room living_room
+front room -> room living_room
+bedroom -> room bedroom
+bathroom -> room bathroom
+toilet -> room bathroom
+hallway -> room hallway
+hall -> room hallway
+corridor -> room hallway
+landing -> room hallway
+office -> room office
+study -> room office
+dining room -> room dining_room
+
+# Self-repair cues.
+sorry -> repair
+i mean -> repair
+or rather -> repair
+rather -> repair
+no wait -> repair
+wait -> repair
+correction -> repair
+scratch that -> repair
+
+# Fillers: dropped with a note.
+uh -> filler
+um -> filler
+umm -> filler
+erm -> filler
+er -> filler
+uhm -> filler
+hmm -> filler
+ah -> filler
+oh -> filler
+like -> filler
+you know -> filler
+well -> filler
+so -> filler
+okay -> filler
+ok -> filler
+alright -> filler
+anyway -> filler
+basically -> filler
+actually -> filler
+really -> filler
+i think -> filler
+i guess -> filler
+i believe -> filler
+kind of -> filler
+sort of -> filler
+hey -> greeting
+
+# Words that carry nothing for a correction.
+i -> skip
+me -> skip
+see -> skip
+can see -> skip
+now -> skip
+too -> skip
+as -> skip
+of -> skip
+to -> skip
+very -> skip
+quite -> skip
+robot -> skip
+buddy -> skip
+again -> skip
+much -> skip
+for -> skip
+today -> skip
+right now -> skip
+over there -> skip
+just there -> skip
+great -> skip
+good -> skip
+nice -> skip
+perfect -> skip
+yes -> skip
+yeah -> skip
+then -> skip
+with -> skip
+from -> skip
+off -> skip
+up -> skip
+
+# Utterances that are not corrections.
+can you -> request
+could you -> request
+would you -> request
+will you -> request
+please -> request
+bring -> request
+fetch -> request
+go -> request
+move -> request
+pick up -> request
+clean -> request
+tidy -> request
+turn -> request
+put -> request
+take -> request
+open -> request
+close -> request
+stop -> request
+find -> request
+get -> request
+grab -> request
+let's -> request
+what -> question
+where -> question
+which -> question
+who -> question
+why -> question
+how -> question
+how many -> question
+is there -> question
+are there -> question
+do you -> question
+did you -> question
+can i -> question
+thanks -> thanks
+thank you -> thanks
+cheers -> thanks
+ta -> thanks
+well done -> thanks
+good job -> thanks
+nice work -> thanks
+hello -> greeting
+hi -> greeting
+good morning -> greeting
+good afternoon -> greeting
+good evening -> greeting
+good night -> greeting
+bye -> greeting
+goodbye -> greeting
+see you -> greeting
+how are you -> greeting

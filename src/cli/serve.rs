@@ -1,0 +1,151 @@
+//! `sayso serve`: start the correction service; also the settings shared by commands that open the log.
+//!
+//! Owns: the service flags and their environment variables (`SAYSO_*`), layered over the TOML config file
+//! over the defaults, and the process's runtime and shutdown signal.
+//! Must not: handle requests; `sayso::service` does.
+
+use std::net::{IpAddr, SocketAddr};
+use std::path::PathBuf;
+use std::sync::Arc;
+
+use anyhow::Context;
+use sayso::service::config::ServiceConfig;
+use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
+use sayso::service::corrector::Corrector;
+use sayso::service::metrics::Metrics;
+use sayso::service::pipeline::LabelMapCorrector;
+use sayso::service::AppState;
+
+/// Where the service's settings come from: flags, then `SAYSO_*` variables, then the config file.
+#[derive(Debug, Clone, clap::Args)]
+pub struct ServiceFlags {
+    /// A TOML config file (see the service docs for every key).
+    #[arg(long, env = "SAYSO_CONFIG")]
+    pub config: Option<PathBuf>,
+    /// The data directory holding the correction log [default: sayso-data].
+    #[arg(long, env = "SAYSO_DATA_DIR")]
+    pub data_dir: Option<PathBuf>,
+    /// The grammar directory (classes.toml) [default: the embedded one].
+    #[arg(long, env = "SAYSO_GRAMMAR_DIR")]
+    pub grammar_dir: Option<PathBuf>,
+    /// The segment classifier model (ONNX).
+    #[arg(long, env = "SAYSO_MODEL")]
+    pub model: Option<PathBuf>,
+    /// Demo scenes registrable by name [default: demo_scenes].
+    #[arg(long, env = "SAYSO_DEMO_DIR")]
+    pub demo_dir: Option<PathBuf>,
+}
+
+impl ServiceFlags {
+    /// The config file (or defaults) with these flags on top.
+    pub fn config(&self) -> anyhow::Result<ServiceConfig> {
+        let mut config = match &self.config {
+            Some(path) => ServiceConfig::load(path)?,
+            None => ServiceConfig::default(),
+        };
+        if let Some(directory) = &self.data_dir {
+            config.data_dir = directory.clone();
+        }
+        if let Some(directory) = &self.grammar_dir {
+            config.grammar_dir = Some(directory.clone());
+        }
+        if let Some(model) = &self.model {
+            config.model = Some(model.clone());
+        }
+        if let Some(directory) = &self.demo_dir {
+            config.demo_dir = directory.clone();
+        }
+        Ok(config)
+    }
+}
+
+/// The corrector the binary runs.
+pub fn corrector(config: &ServiceConfig) -> anyhow::Result<Arc<dyn Corrector>> {
+    Ok(match &config.grammar_dir {
+        Some(directory) => Arc::new(LabelMapCorrector::from_grammar_dir(directory)?),
+        None => Arc::new(LabelMapCorrector::embedded()),
+    })
+}
+
+/// Opens the coordinator (and with it the correction log) for a configuration.
+pub fn open_coordinator(config: &ServiceConfig) -> anyhow::Result<Arc<Coordinator>> {
+    let coordinator = Coordinator::open(
+        corrector(config)?,
+        &CoordinatorSettings {
+            log_path: config.log_path(),
+            pixel_limit: config.pixel_limit,
+            demo_dir: config.demo_dir.clone(),
+        },
+        Arc::new(Metrics::default()),
+    )
+    .with_context(|| format!("opening the correction log {}", config.log_path().display()))?;
+    Ok(Arc::new(coordinator))
+}
+
+/// Start the correction service (HTTP, JSON, OpenAPI at /v1/openapi.json).
+///
+/// A corrected scene is advisory: never a substitute for the robot's own safety sensors.
+#[derive(Debug, clap::Args)]
+pub struct ServeArgs {
+    #[command(flatten)]
+    pub service: ServiceFlags,
+    /// The address to listen on [default: 127.0.0.1]; other addresses need operator tokens.
+    #[arg(long, env = "SAYSO_ADDRESS")]
+    pub address: Option<IpAddr>,
+    /// The port [default: 8417]; 0 picks a free one (printed on standard output).
+    #[arg(long, env = "SAYSO_PORT")]
+    pub port: Option<u16>,
+}
+
+pub fn run(args: ServeArgs) -> anyhow::Result<()> {
+    let mut config = args.service.config()?;
+    if let Some(address) = args.address {
+        config.bind = SocketAddr::new(address, config.bind.port());
+    }
+    if let Some(port) = args.port {
+        config.bind.set_port(port);
+    }
+    config.validate()?;
+    let coordinator = open_coordinator(&config)?;
+    let runtime = tokio::runtime::Builder::new_multi_thread()
+        .enable_all()
+        .build()
+        .context("starting the async runtime")?;
+    runtime.block_on(async move {
+        let listener = tokio::net::TcpListener::bind(config.bind)
+            .await
+            .with_context(|| format!("binding {}", config.bind))?;
+        let address = listener.local_addr()?;
+        println!(
+            "sayso: listening on http://{address}/v1 (data in {})",
+            config.data_dir.display()
+        );
+        eprintln!(
+            "sayso: a corrected scene is advisory; it never replaces the robot's own safety sensors"
+        );
+        let state = AppState::new(coordinator, config);
+        sayso::service::run(listener, state, shutdown_signal()).await?;
+        Ok(())
+    })
+}
+
+async fn shutdown_signal() {
+    let interrupt = async {
+        let _ = tokio::signal::ctrl_c().await;
+    };
+    #[cfg(unix)]
+    let terminate = async {
+        match tokio::signal::unix::signal(tokio::signal::unix::SignalKind::terminate()) {
+            Ok(mut signal) => {
+                signal.recv().await;
+            }
+            Err(_) => std::future::pending::<()>().await,
+        }
+    };
+    #[cfg(not(unix))]
+    let terminate = std::future::pending::<()>();
+    tokio::select! {
+        _ = interrupt => {},
+        _ = terminate => {},
+    }
+}

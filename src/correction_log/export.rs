@@ -1,0 +1,167 @@
+//! Writing the accepted corrections out as a training dataset directory.
+//!
+//! Owns: the dataset layout. Each example is a folder like a rendered demo scene
+//! (`<name>/image.png`, `labels.png` — the corrected index PNG —, `labels_before.png`, `scene.json`), with
+//! `index.jsonl` (one record per example) and `classes.json` (the class manifest) at the top.
+//! Must not: decode images or judge examples; the bytes in the log are written as they are.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use serde::Serialize;
+
+use super::{CorrectionLog, LogError};
+use crate::taxonomy::Taxonomy;
+
+/// What went wrong exporting.
+#[derive(Debug, thiserror::Error)]
+pub enum ExportError {
+    #[error(transparent)]
+    Log(#[from] LogError),
+    #[error("cannot write {path}: {source}")]
+    Write {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+    #[error("{path} exists and is not empty; choose a new output directory")]
+    NotEmpty { path: PathBuf },
+}
+
+/// What an export wrote.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct ExportSummary {
+    pub examples: usize,
+    pub directory: PathBuf,
+}
+
+#[derive(Serialize)]
+struct ExampleRecord<'a> {
+    /// The example's folder, relative to the dataset directory.
+    directory: String,
+    image: String,
+    labels: String,
+    labels_before: String,
+    scene_id: i64,
+    scene_name: &'a str,
+    scene_version: i64,
+    utterance: &'a str,
+    constraints: serde_json::Value,
+    operator: &'a str,
+    created_at: &'a str,
+    log_schema: i64,
+}
+
+#[derive(Serialize)]
+struct ClassRecord<'a> {
+    id: u16,
+    name: &'a str,
+    group: String,
+    safety: bool,
+    colour: [u8; 3],
+}
+
+#[derive(Serialize)]
+struct ClassManifest<'a> {
+    taxonomy_schema: u32,
+    unlabelled: u16,
+    classes: Vec<ClassRecord<'a>>,
+}
+
+fn write_file(path: &Path, bytes: &[u8]) -> Result<(), ExportError> {
+    std::fs::write(path, bytes).map_err(|source| ExportError::Write {
+        path: path.to_path_buf(),
+        source,
+    })
+}
+
+/// Writes every counting training example of `log` into `directory` (created; must be empty if it exists).
+pub fn export_dataset(
+    log: &CorrectionLog,
+    taxonomy: &Taxonomy,
+    directory: &Path,
+) -> Result<ExportSummary, ExportError> {
+    if let Ok(mut entries) = std::fs::read_dir(directory) {
+        if entries.next().is_some() {
+            return Err(ExportError::NotEmpty {
+                path: directory.to_path_buf(),
+            });
+        }
+    }
+    std::fs::create_dir_all(directory).map_err(|source| ExportError::Write {
+        path: directory.to_path_buf(),
+        source,
+    })?;
+    let manifest = ClassManifest {
+        taxonomy_schema: crate::taxonomy::TAXONOMY_SCHEMA,
+        unlabelled: crate::taxonomy::UNLABELLED,
+        classes: taxonomy
+            .classes()
+            .iter()
+            .map(|class| ClassRecord {
+                id: class.id.0,
+                name: &class.name,
+                group: format!("{:?}", class.group).to_lowercase(),
+                safety: class.safety,
+                colour: class.colour,
+            })
+            .collect(),
+    };
+    let manifest_text = serde_json::to_string_pretty(&manifest).unwrap_or_default();
+    write_file(&directory.join("classes.json"), manifest_text.as_bytes())?;
+    let index_path = directory.join("index.jsonl");
+    let mut index = Vec::new();
+    let examples = log.training_examples()?;
+    for example in &examples {
+        let folder = format!("example-{:06}", example.id);
+        let example_directory = directory.join(&folder);
+        std::fs::create_dir_all(&example_directory).map_err(|source| ExportError::Write {
+            path: example_directory.clone(),
+            source,
+        })?;
+        write_file(
+            &example_directory.join("image.png"),
+            &log.blob(&example.image_hash)?,
+        )?;
+        write_file(
+            &example_directory.join("labels.png"),
+            &log.blob(&example.labels_after_hash)?,
+        )?;
+        write_file(
+            &example_directory.join("labels_before.png"),
+            &log.blob(&example.labels_before_hash)?,
+        )?;
+        let record = ExampleRecord {
+            directory: folder.clone(),
+            image: format!("{folder}/image.png"),
+            labels: format!("{folder}/labels.png"),
+            labels_before: format!("{folder}/labels_before.png"),
+            scene_id: example.scene.0,
+            scene_name: &example.scene_name,
+            scene_version: example.version.0,
+            utterance: &example.utterance,
+            constraints: serde_json::from_str(&example.constraints_json)
+                .unwrap_or(serde_json::Value::Null),
+            operator: &example.operator,
+            created_at: &example.created_at,
+            log_schema: example.row_schema,
+        };
+        let scene_text = serde_json::to_string_pretty(&record).unwrap_or_default();
+        write_file(&example_directory.join("scene.json"), scene_text.as_bytes())?;
+        let line = serde_json::to_string(&record).unwrap_or_default();
+        index.extend_from_slice(line.as_bytes());
+        index.push(b'\n');
+    }
+    let mut file = std::fs::File::create(&index_path).map_err(|source| ExportError::Write {
+        path: index_path.clone(),
+        source,
+    })?;
+    file.write_all(&index)
+        .map_err(|source| ExportError::Write {
+            path: index_path.clone(),
+            source,
+        })?;
+    Ok(ExportSummary {
+        examples: examples.len(),
+        directory: directory.to_path_buf(),
+    })
+}

@@ -1,0 +1,95 @@
+//! The durable correction log: every scene, conversation, utterance, result and training example, in SQLite.
+//!
+//! Owns: the database file under the data directory (WAL journal, `synchronous = FULL`, versioned schema),
+//! the row keys (`SceneKey`, `ConversationKey`, `TurnKey`, `VersionKey`), content-addressed blobs, and the
+//! one-transaction-per-turn rule: a turn and everything it changes are committed together or not at all, and
+//! a caller acknowledges a correction only after `commit_turn` has returned.
+//! Must not: know about HTTP, the solver or the scene graph's shape. Scene summaries and engine state are
+//! stored as the caller hands them over (JSON text and opaque bytes); only constraints are typed here.
+//!
+//! ```
+//! use sayso::correction_log::{CorrectionLog, NewScene, StateRecord};
+//!
+//! let directory = tempfile::tempdir().unwrap();
+//! let mut log = CorrectionLog::open(&directory.path().join("log.sqlite")).unwrap();
+//! let state = StateRecord { labels_png: vec![1, 2, 3], summary_json: "{}".into(), engine_state: vec![] };
+//! let (scene, _version) = log
+//!     .register_scene(&NewScene {
+//!         name: "juniper-lane-kitchen",
+//!         image_png: &[9, 9, 9],
+//!         input_json: "{}",
+//!         operator: "mira",
+//!         state: &state,
+//!     })
+//!     .unwrap();
+//! assert_eq!(log.scenes().unwrap()[0].key, scene);
+//! ```
+
+mod export;
+mod schema;
+mod store;
+mod time;
+
+pub use export::{export_dataset, ExportError, ExportSummary};
+pub use schema::LOG_SCHEMA_VERSION;
+pub use store::{
+    ConversationRow, CorrectionLog, ExampleRow, NewScene, NewTurn, PendingRow, SceneRow,
+    StateRecord, TurnEffect, TurnRow,
+};
+pub use time::now_text;
+
+use serde::{Deserialize, Serialize};
+
+macro_rules! row_key {
+    ($(#[$doc:meta])* $name:ident) => {
+        $(#[$doc])*
+        #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+        #[serde(transparent)]
+        pub struct $name(pub i64);
+
+        impl std::fmt::Display for $name {
+            fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+                write!(f, "{}", self.0)
+            }
+        }
+    };
+}
+
+row_key!(
+    /// A registered scene.
+    SceneKey
+);
+row_key!(
+    /// A conversation on one scene.
+    ConversationKey
+);
+row_key!(
+    /// One turn of a conversation (an utterance, a confirmation, an undo...).
+    TurnKey
+);
+row_key!(
+    /// One version of a scene's labelling; versions form a tree through their parents.
+    VersionKey
+);
+
+/// What went wrong reading or writing the log.
+#[derive(Debug, thiserror::Error)]
+pub enum LogError {
+    #[error("cannot create the data directory {path}: {source}")]
+    Directory {
+        path: std::path::PathBuf,
+        source: std::io::Error,
+    },
+    #[error("database error: {0}")]
+    Database(#[from] rusqlite::Error),
+    #[error(
+        "the log was written by a newer sayso (schema {found}; this build reads up to {supported})"
+    )]
+    NewerSchema { found: i64, supported: i64 },
+    #[error("stored row is unreadable: {0}")]
+    Corrupt(String),
+    #[error("no {what} with id {id} in the log")]
+    Missing { what: &'static str, id: i64 },
+    #[error("the scene moved on: its head is version {head}, the change was made against {base}")]
+    Stale { head: i64, base: i64 },
+}

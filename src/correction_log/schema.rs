@@ -1,0 +1,171 @@
+//! The correction log's schema, as an ordered list of SQL migrations, and the code that applies them.
+//!
+//! Owns: the table layout, the `schema_version` table and the rule that migrations run in order, each in
+//! its own transaction, exactly once.
+//! Must not: hold queries used at run time; those live in `store.rs`.
+
+use rusqlite::Connection;
+
+use super::LogError;
+
+/// The schema version this build writes; every stored row carries the version it was written under.
+pub const LOG_SCHEMA_VERSION: i64 = 1;
+
+/// Migration `n` (1-based) moves the database from version `n - 1` to version `n`.
+const MIGRATIONS: &[&str] = &[
+    // Version 1: blobs, scenes, versions, conversations, turns, pending changes, training examples.
+    r#"
+    CREATE TABLE blobs (
+        hash TEXT PRIMARY KEY,          -- lower-case hex SHA-256 of bytes
+        bytes BLOB NOT NULL
+    );
+    CREATE TABLE scenes (
+        id INTEGER PRIMARY KEY,
+        name TEXT NOT NULL,
+        image_hash TEXT NOT NULL REFERENCES blobs(hash),
+        input_json TEXT NOT NULL,       -- what was registered besides the image (depth, scores, detections)
+        head_version INTEGER,           -- the version now in force
+        created_at TEXT NOT NULL,
+        operator TEXT NOT NULL,
+        row_schema INTEGER NOT NULL
+    );
+    CREATE TABLE scene_versions (
+        id INTEGER PRIMARY KEY,
+        scene_id INTEGER NOT NULL REFERENCES scenes(id),
+        parent_id INTEGER REFERENCES scene_versions(id),
+        labels_hash TEXT NOT NULL REFERENCES blobs(hash),
+        summary_json TEXT NOT NULL,
+        engine_state BLOB NOT NULL,
+        turn_id INTEGER,                -- the turn that produced it; NULL for the registered version
+        created_at TEXT NOT NULL,
+        row_schema INTEGER NOT NULL
+    );
+    CREATE TABLE conversations (
+        id INTEGER PRIMARY KEY,
+        scene_id INTEGER NOT NULL REFERENCES scenes(id),
+        operator TEXT NOT NULL,
+        opened_at TEXT NOT NULL,
+        applied_stack TEXT NOT NULL,    -- JSON array of version ids this conversation made and has not undone
+        redo_stack TEXT NOT NULL,       -- JSON array of version ids undone and not yet redone
+        row_schema INTEGER NOT NULL
+    );
+    CREATE TABLE turns (
+        id INTEGER PRIMARY KEY,
+        conversation_id INTEGER NOT NULL REFERENCES conversations(id),
+        kind TEXT NOT NULL,             -- utterance, confirm, reject, undo, redo
+        text TEXT NOT NULL,
+        focus_json TEXT,
+        status TEXT NOT NULL,
+        constraints_json TEXT NOT NULL,
+        result_json TEXT NOT NULL,
+        scene_version INTEGER,
+        operator TEXT NOT NULL,
+        created_at TEXT NOT NULL,
+        row_schema INTEGER NOT NULL
+    );
+    CREATE INDEX turns_by_conversation ON turns(conversation_id, id);
+    CREATE TABLE pending_changes (
+        id INTEGER PRIMARY KEY,
+        conversation_id INTEGER NOT NULL UNIQUE REFERENCES conversations(id),
+        turn_id INTEGER NOT NULL REFERENCES turns(id),
+        base_version INTEGER NOT NULL,
+        labels_hash TEXT NOT NULL REFERENCES blobs(hash),
+        summary_json TEXT NOT NULL,
+        engine_state BLOB NOT NULL,
+        reason TEXT NOT NULL,
+        changes_json TEXT NOT NULL,
+        created_at TEXT NOT NULL,
+        row_schema INTEGER NOT NULL
+    );
+    CREATE TABLE training_examples (
+        id INTEGER PRIMARY KEY,
+        scene_id INTEGER NOT NULL REFERENCES scenes(id),
+        version_id INTEGER NOT NULL UNIQUE REFERENCES scene_versions(id),
+        turn_id INTEGER NOT NULL REFERENCES turns(id),
+        image_hash TEXT NOT NULL REFERENCES blobs(hash),
+        labels_before_hash TEXT NOT NULL REFERENCES blobs(hash),
+        labels_after_hash TEXT NOT NULL REFERENCES blobs(hash),
+        utterance TEXT NOT NULL,
+        constraints_json TEXT NOT NULL,
+        operator TEXT NOT NULL,
+        created_at TEXT NOT NULL,
+        active INTEGER NOT NULL,        -- 0 while the correction is undone
+        row_schema INTEGER NOT NULL
+    );
+    "#,
+];
+
+/// Opens pragmas for durability and brings the schema up to `LOG_SCHEMA_VERSION`.
+pub fn prepare(connection: &mut Connection) -> Result<(), LogError> {
+    connection.pragma_update(None, "journal_mode", "WAL")?;
+    connection.pragma_update(None, "synchronous", "FULL")?;
+    connection.pragma_update(None, "foreign_keys", "ON")?;
+    connection.busy_timeout(std::time::Duration::from_secs(5))?;
+    connection.execute_batch(
+        "CREATE TABLE IF NOT EXISTS schema_version (version INTEGER NOT NULL, applied_at TEXT NOT NULL);",
+    )?;
+    let current: i64 = connection.query_row(
+        "SELECT COALESCE(MAX(version), 0) FROM schema_version",
+        [],
+        |row| row.get(0),
+    )?;
+    if current > MIGRATIONS.len() as i64 {
+        return Err(LogError::NewerSchema {
+            found: current,
+            supported: MIGRATIONS.len() as i64,
+        });
+    }
+    for (index, sql) in MIGRATIONS.iter().enumerate().skip(current as usize) {
+        let version = index as i64 + 1;
+        let transaction = connection.transaction()?;
+        transaction.execute_batch(sql)?;
+        transaction.execute(
+            "INSERT INTO schema_version (version, applied_at) VALUES (?1, ?2)",
+            rusqlite::params![version, super::now_text()],
+        )?;
+        transaction.commit()?;
+    }
+    Ok(())
+}
+
+/// The schema version recorded in the database.
+pub fn recorded_version(connection: &Connection) -> Result<i64, LogError> {
+    Ok(connection.query_row(
+        "SELECT COALESCE(MAX(version), 0) FROM schema_version",
+        [],
+        |row| row.get(0),
+    )?)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn migrations_run_once_and_record_the_version() {
+        let mut connection = Connection::open_in_memory().unwrap();
+        prepare(&mut connection).unwrap();
+        prepare(&mut connection).unwrap();
+        assert_eq!(recorded_version(&connection).unwrap(), LOG_SCHEMA_VERSION);
+        let rows: i64 = connection
+            .query_row("SELECT COUNT(*) FROM schema_version", [], |row| row.get(0))
+            .unwrap();
+        assert_eq!(rows, MIGRATIONS.len() as i64);
+    }
+
+    #[test]
+    fn a_newer_database_is_refused() {
+        let mut connection = Connection::open_in_memory().unwrap();
+        prepare(&mut connection).unwrap();
+        connection
+            .execute(
+                "INSERT INTO schema_version (version, applied_at) VALUES (99, 'later')",
+                [],
+            )
+            .unwrap();
+        assert!(matches!(
+            prepare(&mut connection),
+            Err(LogError::NewerSchema { found: 99, .. })
+        ));
+    }
+}

@@ -1,0 +1,416 @@
+//! Actions: turning a matched rule's chunks into typed constraints, and binding deictic words.
+//!
+//! Owns: what each action builds (existence and counts, relabels, relations, places, attributes, room type),
+//! how a noun phrase becomes a `Referent`, and which deictic words point at the focus or at the previous
+//! referent.
+//! Must not: look at scene content or the conversation history; the conversation binds "previous" later.
+
+use crate::ids::ClassId;
+
+use super::chunks::{Chunk, ChunkKind, NounPhrase, Quantity};
+use super::constraint::{
+    Constraint, ConstraintKind, Count, Deixis, Place, Referent, RelationClause, Span,
+};
+use super::rules::{Action, Match};
+
+/// Confidence of a constraint built only from known words.
+pub const FULL_CONFIDENCE: f32 = 1.0;
+/// Confidence when a word in the constraint was read as a misspelling.
+pub const MISSPELLING_CONFIDENCE: f32 = 0.75;
+
+/// Builds constraints for one utterance, left to right.
+pub struct Builder {
+    has_focus: bool,
+    /// A referent has already been named in this utterance.
+    seen_referent: bool,
+    pub constraints: Vec<Constraint>,
+}
+
+impl Builder {
+    pub fn new(has_focus: bool) -> Builder {
+        Builder {
+            has_focus,
+            seen_referent: false,
+            constraints: Vec::new(),
+        }
+    }
+
+    fn deixis_for(&self, pronoun: bool) -> Deixis {
+        if pronoun && self.seen_referent {
+            Deixis::Previous
+        } else if self.has_focus {
+            Deixis::Focus
+        } else {
+            Deixis::Previous
+        }
+    }
+
+    /// Turns a noun phrase into a referent (dropping its quantity) and notes that a referent was named.
+    fn referent(&mut self, phrase: &NounPhrase) -> Referent {
+        let deixis = phrase.deictic.map(|word| self.deixis_for(word.pronoun));
+        let relations = phrase
+            .relations
+            .iter()
+            .map(|attached| RelationClause {
+                relation: attached.relation,
+                negated: false,
+                landmarks: attached
+                    .landmarks
+                    .iter()
+                    .map(|landmark| self.plain_referent(landmark))
+                    .collect(),
+            })
+            .collect();
+        self.seen_referent = true;
+        Referent {
+            class: phrase.class,
+            deixis,
+            plural: phrase.plural,
+            attributes: phrase.attributes.clone(),
+            relations,
+            region: phrase.region,
+            span: phrase.span,
+        }
+    }
+
+    /// A referent for a landmark: the same conversion without marking the utterance's referent state.
+    fn plain_referent(&mut self, phrase: &NounPhrase) -> Referent {
+        let seen = self.seen_referent;
+        let referent = self.referent(phrase);
+        self.seen_referent = seen;
+        referent
+    }
+
+    /// The implicit target of "a towel, not a cat": what the operator points at.
+    fn implicit_target(&mut self, span: Span) -> Referent {
+        let deixis = self.deixis_for(false);
+        self.seen_referent = true;
+        Referent {
+            class: None,
+            deixis: Some(deixis),
+            plural: false,
+            attributes: Vec::new(),
+            relations: Vec::new(),
+            region: None,
+            span,
+        }
+    }
+
+    fn push(&mut self, kind: ConstraintKind, span: Span, misspelled: bool) {
+        self.constraints.push(Constraint {
+            kind,
+            span,
+            confidence: if misspelled {
+                MISSPELLING_CONFIDENCE
+            } else {
+                FULL_CONFIDENCE
+            },
+            gloss: String::new(),
+        });
+    }
+
+    /// Applies one matched rule to the sentence's chunks.
+    pub fn apply(&mut self, found: &Match<'_>, chunks: &[Chunk], position: usize) {
+        let matched = &chunks[position..position + found.length];
+        let span = matched
+            .iter()
+            .map(|chunk| chunk.span)
+            .reduce(Span::cover)
+            .unwrap_or_default();
+        let misspelled = matched.iter().any(|chunk| chunk.misspelled);
+        let phrase = |index: usize| match &chunks[index].kind {
+            ChunkKind::NounPhrase(phrase) => Some(phrase.clone()),
+            _ => None,
+        };
+        let first_phrase = |role: &str| found.role(role).first().and_then(|&index| phrase(index));
+        let negated = !found.role("negated").is_empty();
+        match found.rule.action {
+            Action::Exist => {
+                if let Some(np) = first_phrase("np") {
+                    self.exist(&np, negated, span, misspelled);
+                }
+            }
+            Action::Relabel => {
+                let target = first_phrase("target");
+                let from = first_phrase("from");
+                let to = first_phrase("to");
+                let target_referent = match &target {
+                    Some(target) => self.referent(target),
+                    None => self.implicit_target(span),
+                };
+                let mut from_class = from.as_ref().and_then(|phrase| phrase.class);
+                let mut to_class = to.as_ref().and_then(|phrase| phrase.class);
+                if from.is_none() {
+                    from_class = target.as_ref().and_then(|phrase| phrase.class);
+                }
+                // "that's no cat": a zero quantity on the new name denies it.
+                if to
+                    .as_ref()
+                    .is_some_and(|phrase| phrase.quantity == Some(Quantity::None))
+                {
+                    from_class = to_class;
+                    to_class = None;
+                }
+                if from_class.is_none() && to_class.is_none() {
+                    return;
+                }
+                if from_class.is_some() && from_class == to_class {
+                    return;
+                }
+                self.push(
+                    ConstraintKind::Relabel {
+                        target: target_referent,
+                        from: from_class,
+                        to: to_class,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
+            Action::RelabelCalled => {
+                if let (Some(target), Some(from)) = (first_phrase("target"), first_phrase("from")) {
+                    let to = target.class;
+                    let referent = self.referent(&target);
+                    if from.class.is_some() && from.class != to {
+                        self.push(
+                            ConstraintKind::Relabel {
+                                target: referent,
+                                from: from.class,
+                                to,
+                            },
+                            span,
+                            misspelled,
+                        );
+                    }
+                }
+            }
+            Action::RoomType => {
+                if let Some(&index) = found.role("room").first() {
+                    if let ChunkKind::Room(room) = chunks[index].kind {
+                        self.push(ConstraintKind::RoomType { room }, span, misspelled);
+                    }
+                }
+            }
+            Action::Relation => {
+                let Some(subject) = first_phrase("subject") else {
+                    return;
+                };
+                let relation =
+                    found
+                        .role("relation")
+                        .first()
+                        .and_then(|&index| match chunks[index].kind {
+                            ChunkKind::Relation(relation) => Some(relation),
+                            _ => None,
+                        });
+                let Some(relation) = relation else { return };
+                let landmark_phrases: Vec<NounPhrase> = found
+                    .role("landmark")
+                    .into_iter()
+                    .filter_map(phrase)
+                    .collect();
+                self.count_of_subject(&subject, span, misspelled);
+                let subject_referent = self.referent(&subject);
+                let landmarks = landmark_phrases
+                    .iter()
+                    .map(|landmark| self.plain_referent(landmark))
+                    .collect();
+                self.push(
+                    ConstraintKind::Relation {
+                        subject: subject_referent,
+                        relation,
+                        negated,
+                        landmarks,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
+            Action::Place => {
+                let Some(subject) = first_phrase("subject") else {
+                    return;
+                };
+                let place = if let Some(&index) = found.role("room").first() {
+                    match chunks[index].kind {
+                        ChunkKind::Room(room) => Some(Place::Room(room)),
+                        _ => None,
+                    }
+                } else if let Some(&index) = found.role("region").first() {
+                    match chunks[index].kind {
+                        ChunkKind::Region(region) => Some(Place::Region(region)),
+                        _ => None,
+                    }
+                } else {
+                    None
+                };
+                let Some(place) = place else { return };
+                self.count_of_subject(&subject, span, misspelled);
+                let subject = self.referent(&subject);
+                self.push(ConstraintKind::Place { subject, place }, span, misspelled);
+            }
+            Action::Attribute => {
+                let Some(subject) = first_phrase("subject") else {
+                    return;
+                };
+                let attributes = found
+                    .role("attributes")
+                    .first()
+                    .and_then(|&index| match &chunks[index].kind {
+                        ChunkKind::Attributes(list) => Some(list.clone()),
+                        _ => None,
+                    })
+                    .unwrap_or_default();
+                self.count_of_subject(&subject, span, misspelled);
+                let target = self.referent(&subject);
+                for attribute in attributes {
+                    self.push(
+                        ConstraintKind::Attribute {
+                            target: target.clone(),
+                            attribute,
+                        },
+                        span,
+                        misspelled,
+                    );
+                }
+            }
+        }
+    }
+
+    /// "Both chairs are by the table": a stated number on a subject is also a count.
+    fn count_of_subject(&mut self, subject: &NounPhrase, span: Span, misspelled: bool) {
+        if let (Some(class), Some(quantity)) = (subject.class, subject.quantity) {
+            if let Some(kind) = count_kind(class, quantity, false) {
+                if !matches!(kind, ConstraintKind::Present { .. }) {
+                    self.push(kind, span, misspelled);
+                }
+            }
+        }
+    }
+
+    /// "There are two chairs next to the table", "no cats", "there's a mug on the counter".
+    fn exist(&mut self, np: &NounPhrase, negated: bool, span: Span, misspelled: bool) {
+        if np.deictic.is_some() {
+            return;
+        }
+        let zero = negated
+            || matches!(
+                np.quantity,
+                Some(Quantity::None) | Some(Quantity::Exactly(0))
+            );
+        let located = !np.relations.is_empty() || np.region.is_some();
+        if zero && located {
+            // "There are no cats on the bed": the relation is denied, not the class.
+            let mut subject = np.clone();
+            subject.quantity = None;
+            let relations = std::mem::take(&mut subject.relations);
+            subject.region = None;
+            subject.span = np.span;
+            let subject_referent = self.referent(&subject);
+            for attached in relations {
+                let landmarks = attached
+                    .landmarks
+                    .iter()
+                    .map(|landmark| self.plain_referent(landmark))
+                    .collect();
+                self.push(
+                    ConstraintKind::Relation {
+                        subject: subject_referent.clone(),
+                        relation: attached.relation,
+                        negated: true,
+                        landmarks,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
+            return;
+        }
+        if let Some(class) = np.class {
+            let quantity = if zero {
+                Quantity::None
+            } else {
+                np.quantity.unwrap_or(Quantity::Some)
+            };
+            if let Some(kind) = count_kind(class, quantity, negated) {
+                self.push(kind, span, misspelled);
+            }
+        }
+        if !located {
+            // "There's a big box": the attributes are stated of the thing said to exist.
+            if !zero && !np.attributes.is_empty() {
+                let mut target = np.clone();
+                target.quantity = None;
+                let attributes = std::mem::take(&mut target.attributes);
+                let target = self.referent(&target);
+                for attribute in attributes {
+                    self.push(
+                        ConstraintKind::Attribute {
+                            target: target.clone(),
+                            attribute,
+                        },
+                        span,
+                        misspelled,
+                    );
+                }
+            }
+            self.seen_referent = true;
+            return;
+        }
+        let mut subject = np.clone();
+        subject.quantity = None;
+        let relations = std::mem::take(&mut subject.relations);
+        let region = subject.region.take();
+        let subject_referent = self.referent(&subject);
+        for attached in relations {
+            let landmarks = attached
+                .landmarks
+                .iter()
+                .map(|landmark| self.plain_referent(landmark))
+                .collect();
+            self.push(
+                ConstraintKind::Relation {
+                    subject: subject_referent.clone(),
+                    relation: attached.relation,
+                    negated: false,
+                    landmarks,
+                },
+                span,
+                misspelled,
+            );
+        }
+        if let Some(region) = region {
+            self.push(
+                ConstraintKind::Place {
+                    subject: subject_referent,
+                    place: Place::Region(region),
+                },
+                span,
+                misspelled,
+            );
+        }
+    }
+}
+
+/// The existence constraint a quantity states about a class.
+fn count_kind(class: ClassId, quantity: Quantity, _negated: bool) -> Option<ConstraintKind> {
+    Some(match quantity {
+        Quantity::None | Quantity::Exactly(0) | Quantity::AtMost(0) => {
+            ConstraintKind::Absent { class }
+        }
+        Quantity::Some | Quantity::AtLeast(0) | Quantity::AtLeast(1) => {
+            ConstraintKind::Present { class }
+        }
+        Quantity::Exactly(n) => ConstraintKind::Count {
+            class,
+            count: Count::Exactly(n),
+        },
+        Quantity::AtLeast(n) => ConstraintKind::Count {
+            class,
+            count: Count::AtLeast(n),
+        },
+        Quantity::AtMost(n) => ConstraintKind::Count {
+            class,
+            count: Count::AtMost(n),
+        },
+    })
+}

@@ -1,0 +1,489 @@
+//! Chunking: tagged items to phrases (noun phrases, relations, places, attributes), then self-repairs and
+//! post-modifiers.
+//!
+//! Owns: `Chunk`, `NounPhrase`, the noun-phrase grammar (determiner, deictic or quantity, attributes, head),
+//! quantity arithmetic ("more than 5" -> at least 6), self-repair ("the mug, no, the bowl": the earlier
+//! phrase of the same kind is dropped) and attaching relation and region phrases to the noun phrase they
+//! follow ("the mug next to the sink", "the chair on the left").
+//! Must not: build constraints; `rules` and `actions` do that.
+
+use crate::ids::{ClassId, RoomId};
+
+use super::constraint::{Attribute, ImageRegion, Relation, Span};
+use super::lexicon::{Comparator, QuantityWord, Side, Tag};
+use super::parse::IgnoredReason;
+use super::tagging::{Item, ItemTag};
+
+/// A stated quantity of a noun phrase.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Quantity {
+    Exactly(u32),
+    AtLeast(u32),
+    AtMost(u32),
+    /// "some", "any".
+    Some,
+    /// "no".
+    None,
+}
+
+/// A deictic word heading or determining a noun phrase.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct DeicticWord {
+    pub pronoun: bool,
+    pub plural: bool,
+}
+
+/// A relation phrase attached to a noun phrase.
+#[derive(Clone, Debug, PartialEq)]
+pub struct AttachedRelation {
+    pub relation: Relation,
+    pub landmarks: Vec<NounPhrase>,
+}
+
+/// A noun phrase in words.
+#[derive(Clone, Debug, PartialEq)]
+pub struct NounPhrase {
+    pub class: Option<ClassId>,
+    pub deictic: Option<DeicticWord>,
+    pub plural: bool,
+    pub attributes: Vec<Attribute>,
+    pub quantity: Option<Quantity>,
+    pub relations: Vec<AttachedRelation>,
+    pub region: Option<ImageRegion>,
+    pub span: Span,
+}
+
+/// What a chunk is.
+#[derive(Clone, Debug, PartialEq)]
+pub enum ChunkKind {
+    NounPhrase(NounPhrase),
+    Be,
+    Negation,
+    /// "no" not starting a noun phrase: a repair cue or a negation.
+    No,
+    There,
+    Relation(Relation),
+    Side(Side),
+    Region(ImageRegion),
+    Room(RoomId),
+    Attributes(Vec<Attribute>),
+    /// A number with no noun after it.
+    Number(u32),
+    We,
+    You,
+    Called,
+    Missed,
+    And,
+    Separator,
+    Repair,
+    /// Anything else; blocks rules from matching across it.
+    Other,
+}
+
+/// One chunk with its span.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Chunk {
+    pub kind: ChunkKind,
+    pub span: Span,
+    pub misspelled: bool,
+}
+
+fn lexicon_tag(item: Option<&Item>) -> Option<Tag> {
+    match item?.tag {
+        ItemTag::Lexicon(tag) => Some(tag),
+        _ => None,
+    }
+}
+
+fn attribute_of(tag: Tag) -> Option<Attribute> {
+    match tag {
+        Tag::Colour(colour) => Some(Attribute::Colour(colour)),
+        Tag::Size(size) => Some(Attribute::Size(size)),
+        _ => None,
+    }
+}
+
+fn apply_comparator(comparator: Comparator, number: u32) -> Quantity {
+    match comparator {
+        Comparator::Exactly => Quantity::Exactly(number),
+        Comparator::AtLeast => Quantity::AtLeast(number),
+        Comparator::AtMost => Quantity::AtMost(number),
+        Comparator::MoreThan => Quantity::AtLeast(number.saturating_add(1)),
+        Comparator::FewerThan => Quantity::AtMost(number.saturating_sub(1)),
+    }
+}
+
+/// Tries to read a noun phrase (or a room or dangling number) at `start`; returns the chunk and items used.
+fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
+    let mut index = start;
+    let mut quantity = None;
+    let mut deictic = None;
+    let mut determiner = false;
+    let mut misspelled = false;
+    let mut lead_number = None;
+    match lexicon_tag(items.get(index))? {
+        Tag::Determiner => {
+            determiner = true;
+            index += 1;
+        }
+        Tag::Article => index += 1,
+        Tag::Deictic { pronoun, plural } => {
+            deictic = Some(DeicticWord { pronoun, plural });
+            index += 1;
+        }
+        Tag::Quantity(word) => {
+            quantity = Some(match word {
+                QuantityWord::Exactly(n) => Quantity::Exactly(n),
+                QuantityWord::AtLeast(n) => Quantity::AtLeast(n),
+                QuantityWord::Some => Quantity::Some,
+                QuantityWord::None => Quantity::None,
+            });
+            index += 1;
+        }
+        Tag::No => {
+            quantity = Some(Quantity::None);
+            index += 1;
+        }
+        Tag::Comparator(comparator) => {
+            if let Some(Tag::Number(number)) = lexicon_tag(items.get(index + 1)) {
+                quantity = Some(apply_comparator(comparator, number));
+                lead_number = Some(number);
+                index += 2;
+            } else {
+                return None;
+            }
+        }
+        _ => {}
+    }
+    if quantity.is_none() && deictic.is_none() {
+        if let Some(Tag::Number(number)) = lexicon_tag(items.get(index)) {
+            quantity = Some(Quantity::Exactly(number));
+            lead_number = Some(number);
+            index += 1;
+        }
+    }
+    // A room after a determiner: "the kitchen".
+    if let Some(Tag::Room(room)) = lexicon_tag(items.get(index)) {
+        if quantity.is_none() && deictic.is_none() {
+            let item = &items[index];
+            let span = items[start].span.cover(item.span);
+            return Some((
+                Chunk {
+                    kind: ChunkKind::Room(room),
+                    span,
+                    misspelled: item.misspelled,
+                },
+                index + 1 - start,
+            ));
+        }
+    }
+    let mut attributes = Vec::new();
+    while let Some(attribute) = lexicon_tag(items.get(index)).and_then(attribute_of) {
+        misspelled |= items[index].misspelled;
+        attributes.push(attribute);
+        index += 1;
+    }
+    let mut class = None;
+    let mut plural = false;
+    let mut has_head = false;
+    match lexicon_tag(items.get(index)) {
+        Some(Tag::Class {
+            class: head,
+            plural: head_plural,
+        }) => {
+            misspelled |= items[index].misspelled;
+            class = Some(head);
+            plural = head_plural;
+            has_head = true;
+            index += 1;
+        }
+        Some(Tag::Thing {
+            plural: head_plural,
+        }) => {
+            plural = head_plural;
+            has_head = true;
+            index += 1;
+        }
+        Some(Tag::Number(1)) if deictic.is_some() && attributes.is_empty() => {
+            // "that one", "this one".
+            has_head = true;
+            index += 1;
+        }
+        _ => {}
+    }
+    if !has_head {
+        if let Some(word) = deictic.filter(|_| attributes.is_empty()) {
+            let span = items[start].span;
+            return Some((
+                Chunk {
+                    kind: ChunkKind::NounPhrase(NounPhrase {
+                        class: None,
+                        deictic: Some(word),
+                        plural: word.plural,
+                        attributes: Vec::new(),
+                        quantity: None,
+                        relations: Vec::new(),
+                        region: None,
+                        span,
+                    }),
+                    span,
+                    misspelled: false,
+                },
+                1,
+            ));
+        }
+        if let (Some(number), true) = (lead_number, attributes.is_empty() && !determiner) {
+            let span = items[start].span.cover(items[index - 1].span);
+            return Some((
+                Chunk {
+                    kind: ChunkKind::Number(number),
+                    span,
+                    misspelled: false,
+                },
+                index - start,
+            ));
+        }
+        return None;
+    }
+    if let Some(word) = deictic {
+        plural |= word.plural;
+    }
+    let span = items[start].span.cover(items[index - 1].span);
+    Some((
+        Chunk {
+            kind: ChunkKind::NounPhrase(NounPhrase {
+                class,
+                deictic,
+                plural,
+                attributes,
+                quantity,
+                relations: Vec::new(),
+                region: None,
+                span,
+            }),
+            span,
+            misspelled,
+        },
+        index - start,
+    ))
+}
+
+/// Groups the items of one sentence into chunks.
+pub fn chunk(items: &[Item]) -> Vec<Chunk> {
+    let mut chunks = Vec::with_capacity(items.len());
+    let mut index = 0;
+    while index < items.len() {
+        if let Some((chunk, used)) = noun_phrase_at(items, index) {
+            chunks.push(chunk);
+            index += used.max(1);
+            continue;
+        }
+        let item = &items[index];
+        let kind = match item.tag {
+            ItemTag::Pause => ChunkKind::Separator,
+            ItemTag::Unknown | ItemTag::TooLarge => ChunkKind::Other,
+            ItemTag::Lexicon(tag) => match tag {
+                Tag::Be => ChunkKind::Be,
+                Tag::Negation => ChunkKind::Negation,
+                Tag::No => ChunkKind::No,
+                Tag::There => ChunkKind::There,
+                Tag::Relation(relation) => ChunkKind::Relation(relation),
+                Tag::Side(side) => ChunkKind::Side(side),
+                Tag::Region(region) => ChunkKind::Region(region),
+                Tag::Room(room) => ChunkKind::Room(room),
+                Tag::Colour(_) | Tag::Size(_) => {
+                    ChunkKind::Attributes(attribute_of(tag).into_iter().collect())
+                }
+                Tag::Number(number) => ChunkKind::Number(number),
+                Tag::We => ChunkKind::We,
+                Tag::You => ChunkKind::You,
+                Tag::Called => ChunkKind::Called,
+                Tag::Missed => ChunkKind::Missed,
+                Tag::And => ChunkKind::And,
+                Tag::Repair => ChunkKind::Repair,
+                Tag::Request | Tag::Question | Tag::Thanks | Tag::Greeting => ChunkKind::Separator,
+                _ => ChunkKind::Other,
+            },
+        };
+        chunks.push(Chunk {
+            kind,
+            span: item.span,
+            misspelled: item.misspelled,
+        });
+        index += 1;
+    }
+    chunks
+}
+
+/// The kind a self-repair compares: the repaired phrase and its replacement must be alike.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum RepairKind {
+    Noun,
+    Relation,
+    Attribute,
+    Room,
+    Region,
+}
+
+fn repair_kind(kind: &ChunkKind) -> Option<RepairKind> {
+    match kind {
+        ChunkKind::NounPhrase(_) | ChunkKind::Number(_) => Some(RepairKind::Noun),
+        ChunkKind::Relation(_) | ChunkKind::Side(_) => Some(RepairKind::Relation),
+        ChunkKind::Attributes(_) => Some(RepairKind::Attribute),
+        ChunkKind::Room(_) => Some(RepairKind::Room),
+        ChunkKind::Region(_) => Some(RepairKind::Region),
+        _ => None,
+    }
+}
+
+/// Applies self-repairs: at a cue, the nearest earlier chunk of the same kind as the chunk after the cue is
+/// dropped together with everything up to the cue.
+pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Chunk> {
+    let mut chunks = chunks;
+    let mut index = 0;
+    while index < chunks.len() {
+        let is_cue = matches!(chunks[index].kind, ChunkKind::Repair | ChunkKind::No);
+        if !is_cue {
+            index += 1;
+            continue;
+        }
+        let next = (index + 1..chunks.len()).find(|&j| chunks[j].kind != ChunkKind::Separator);
+        let wanted = next.and_then(|j| repair_kind(&chunks[j].kind));
+        let earlier = wanted.and_then(|wanted| {
+            (index.saturating_sub(4)..index)
+                .rev()
+                .find(|&k| repair_kind(&chunks[k].kind) == Some(wanted))
+        });
+        match (earlier, next) {
+            (Some(from), Some(to)) => {
+                ignored.push((
+                    chunks[from].span.cover(chunks[index].span),
+                    IgnoredReason::SelfRepair,
+                ));
+                chunks.drain(from..to);
+                index = from;
+            }
+            _ => {
+                if chunks[index].kind == ChunkKind::Repair
+                    || next.is_none()
+                    || next != Some(index + 1)
+                {
+                    // A cue with nothing to repair, or "no," as a discourse marker.
+                    ignored.push((chunks[index].span, IgnoredReason::FunctionWord));
+                    chunks.remove(index);
+                } else {
+                    chunks[index].kind = ChunkKind::Negation;
+                    index += 1;
+                }
+            }
+        }
+    }
+    chunks
+}
+
+/// Attaches relation and region phrases to the noun phrase before them, and merges attribute lists
+/// ("black and white").
+pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
+    let mut chunks = chunks;
+    // Attribute lists.
+    let mut index = 0;
+    while index + 1 < chunks.len() {
+        if let ChunkKind::Attributes(_) = chunks[index].kind {
+            let gap = matches!(
+                chunks[index + 1].kind,
+                ChunkKind::And | ChunkKind::Separator
+            );
+            let next = if gap { index + 2 } else { index + 1 };
+            if let Some(ChunkKind::Attributes(more)) =
+                chunks.get(next).map(|chunk| chunk.kind.clone())
+            {
+                let span = chunks[next].span;
+                if let ChunkKind::Attributes(list) = &mut chunks[index].kind {
+                    list.extend(more);
+                }
+                chunks[index].span = chunks[index].span.cover(span);
+                chunks.drain(index + 1..=next);
+                continue;
+            }
+        }
+        index += 1;
+    }
+    // Relations and regions, right to left so landmarks carry their own modifiers.
+    let mut index = chunks.len();
+    while index > 0 {
+        index -= 1;
+        if !matches!(chunks[index].kind, ChunkKind::NounPhrase(_)) {
+            continue;
+        }
+        loop {
+            let attached = match chunks.get(index + 1).map(|chunk| &chunk.kind) {
+                Some(ChunkKind::Region(region)) => {
+                    let region = *region;
+                    let span = chunks[index + 1].span;
+                    if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
+                        if phrase.region.is_some() {
+                            break;
+                        }
+                        phrase.region = Some(region);
+                        phrase.span = phrase.span.cover(span);
+                    }
+                    chunks[index].span = chunks[index].span.cover(span);
+                    chunks.remove(index + 1);
+                    true
+                }
+                Some(ChunkKind::Relation(relation)) => {
+                    let relation = *relation;
+                    let landmark_count = if relation == Relation::Between { 2 } else { 1 };
+                    let landmarks = take_landmarks(&chunks, index + 2, landmark_count);
+                    match landmarks {
+                        Some((landmarks, used)) => {
+                            let end = index + 1 + used;
+                            let span = chunks[end].span;
+                            if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
+                                phrase.relations.push(AttachedRelation {
+                                    relation,
+                                    landmarks,
+                                });
+                                phrase.span = phrase.span.cover(span);
+                            }
+                            chunks[index].span = chunks[index].span.cover(span);
+                            chunks.drain(index + 1..=end);
+                            true
+                        }
+                        None => false,
+                    }
+                }
+                _ => false,
+            };
+            if !attached {
+                break;
+            }
+        }
+    }
+    chunks
+}
+
+/// One landmark noun phrase at `start`, or two joined by "and" for "between"; returns them and the number
+/// of chunks used.
+fn take_landmarks(
+    chunks: &[Chunk],
+    start: usize,
+    count: usize,
+) -> Option<(Vec<NounPhrase>, usize)> {
+    let first = match chunks.get(start).map(|chunk| &chunk.kind) {
+        Some(ChunkKind::NounPhrase(phrase)) => phrase.clone(),
+        _ => return None,
+    };
+    if count == 1 {
+        return Some((vec![first], 1));
+    }
+    match (
+        chunks.get(start + 1).map(|chunk| &chunk.kind),
+        chunks.get(start + 2).map(|chunk| &chunk.kind),
+    ) {
+        (Some(ChunkKind::And), Some(ChunkKind::NounPhrase(second))) => {
+            Some((vec![first, second.clone()], 3))
+        }
+        _ => None,
+    }
+}

@@ -1,0 +1,424 @@
+//! The parser: a loaded grammar turns one utterance into a `Parse` (constraints, utterance kind, ignored
+//! spans and notes).
+//!
+//! Owns: `Grammar` (taxonomy, lexicon and rules, from the embedded defaults or a directory with a site
+//! word directory), the length limit, sentence classification (correction, request, question, thanks,
+//! chit-chat, empty, unparsed), and running the stages normalise -> tokens -> tagging -> chunks -> rules ->
+//! actions in order.
+//! Must not: remember earlier utterances (that is `conversation`) or touch scene content.
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+use crate::taxonomy::Taxonomy;
+
+use super::actions::Builder;
+use super::chunks::{attach, chunk, repair, ChunkKind};
+use super::constraint::{Constraint, ConstraintKind, Focus, Span};
+use super::error::{GrammarError, LanguageError};
+use super::lexicon::{Lexicon, Tag};
+use super::normalise::normalise;
+use super::notation::constraint_gloss;
+use super::rules::{best_match, parse_rules, Rule};
+use super::tagging::{clean, tag_sentences, ItemTag};
+use super::tokens::tokenise;
+
+/// The longest utterance the parser reads, in characters.
+pub const DEFAULT_LENGTH_LIMIT: usize = 4096;
+
+/// What kind of utterance it was.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum UtteranceKind {
+    /// At least one constraint was read.
+    Correction,
+    /// Asks the robot to do something.
+    Request,
+    Question,
+    Thanks,
+    ChitChat,
+    /// Nothing but spaces and punctuation.
+    Empty,
+    /// Words, but no constraint and no other recognised kind.
+    Unparsed,
+}
+
+impl UtteranceKind {
+    /// The snake_case name used in JSON and the corpus.
+    pub fn name(self) -> &'static str {
+        match self {
+            UtteranceKind::Correction => "correction",
+            UtteranceKind::Request => "request",
+            UtteranceKind::Question => "question",
+            UtteranceKind::Thanks => "thanks",
+            UtteranceKind::ChitChat => "chit_chat",
+            UtteranceKind::Empty => "empty",
+            UtteranceKind::Unparsed => "unparsed",
+        }
+    }
+}
+
+/// Why part of the utterance was not used.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum IgnoredReason {
+    Filler,
+    Stutter,
+    SelfRepair,
+    FunctionWord,
+    UnknownWord,
+    /// The sentence is a request, question, thanks or chit-chat.
+    NotACorrection,
+    /// Known words that no rule could use.
+    NoRuleMatched,
+}
+
+/// A part of the utterance that was not used, and why.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Ignored {
+    pub span: Span,
+    pub reason: IgnoredReason,
+}
+
+/// Something the operator may want to know about the reading.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(tag = "note", rename_all = "snake_case")]
+pub enum NoteKind {
+    MisspellingAccepted {
+        written: String,
+        read_as: String,
+    },
+    UnknownWord {
+        written: String,
+        suggestions: Vec<String>,
+    },
+    NumberTooLarge {
+        written: String,
+    },
+    /// The constraint would remove or rename a safety-critical class (a person, pet or hazard): the operator
+    /// must confirm it explicitly before it is applied.
+    NeedsConfirmation {
+        class: String,
+    },
+}
+
+/// A note with the span it concerns.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Note {
+    pub span: Span,
+    #[serde(flatten)]
+    pub kind: NoteKind,
+}
+
+/// The reading of one utterance.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Parse {
+    pub utterance_kind: UtteranceKind,
+    pub constraints: Vec<Constraint>,
+    pub ignored: Vec<Ignored>,
+    pub notes: Vec<Note>,
+}
+
+/// The default grammar files, compiled in so the binary works anywhere.
+const EMBEDDED_LEXICON: &[(&str, &str)] = &[
+    (
+        "lexicon/classes.lex",
+        include_str!("../../grammar/lexicon/classes.lex"),
+    ),
+    (
+        "lexicon/colours.lex",
+        include_str!("../../grammar/lexicon/colours.lex"),
+    ),
+    (
+        "lexicon/numbers.lex",
+        include_str!("../../grammar/lexicon/numbers.lex"),
+    ),
+    (
+        "lexicon/quantities.lex",
+        include_str!("../../grammar/lexicon/quantities.lex"),
+    ),
+    (
+        "lexicon/words.lex",
+        include_str!("../../grammar/lexicon/words.lex"),
+    ),
+    (
+        "site/juniper_lane.lex",
+        include_str!("../../grammar/site/juniper_lane.lex"),
+    ),
+];
+const EMBEDDED_RULES: &[(&str, &str)] = &[(
+    "rules/core.rules",
+    include_str!("../../grammar/rules/core.rules"),
+)];
+
+/// A loaded, validated grammar: taxonomy, lexicon and clause rules.
+#[derive(Clone, Debug)]
+pub struct Grammar {
+    taxonomy: Taxonomy,
+    lexicon: Lexicon,
+    rules: Vec<Rule>,
+    length_limit: usize,
+}
+
+fn owned(files: &[(&str, &str)]) -> Vec<(String, String)> {
+    files
+        .iter()
+        .map(|(name, text)| (name.to_string(), text.to_string()))
+        .collect()
+}
+
+/// Reads every file with the extension in a directory, sorted by name; a missing directory is empty.
+fn read_directory(
+    directory: &Path,
+    extension: &str,
+    label: &str,
+) -> Result<Vec<(String, String)>, GrammarError> {
+    let entries = match std::fs::read_dir(directory) {
+        Ok(entries) => entries,
+        Err(error) if error.kind() == std::io::ErrorKind::NotFound => return Ok(Vec::new()),
+        Err(source) => {
+            return Err(GrammarError::Io {
+                path: directory.to_path_buf(),
+                source,
+            })
+        }
+    };
+    let mut paths: Vec<std::path::PathBuf> = entries
+        .filter_map(|entry| entry.ok().map(|entry| entry.path()))
+        .filter(|path| path.extension().and_then(|ext| ext.to_str()) == Some(extension))
+        .collect();
+    paths.sort();
+    let mut files = Vec::new();
+    for path in paths {
+        let text = std::fs::read_to_string(&path).map_err(|source| GrammarError::Io {
+            path: path.clone(),
+            source,
+        })?;
+        let name = path
+            .file_name()
+            .map(|name| format!("{label}/{}", name.to_string_lossy()))
+            .unwrap_or_else(|| path.display().to_string());
+        files.push((name, text));
+    }
+    Ok(files)
+}
+
+impl Grammar {
+    /// The grammar compiled into the binary (grammar/ at build time).
+    pub fn embedded() -> Result<Grammar, GrammarError> {
+        Grammar::from_texts(
+            Taxonomy::embedded(),
+            &owned(EMBEDDED_LEXICON),
+            &owned(EMBEDDED_RULES),
+        )
+    }
+
+    /// Reads a grammar directory: `classes.toml` (or the embedded taxonomy), `lexicon/*.lex`,
+    /// `rules/*.rules` and the site words in `site/*.lex`.
+    pub fn load(directory: &Path) -> Result<Grammar, GrammarError> {
+        let classes = directory.join("classes.toml");
+        let taxonomy = if classes.exists() {
+            Taxonomy::load(&classes).map_err(|error| GrammarError::Taxonomy(error.to_string()))?
+        } else {
+            Taxonomy::embedded()
+        };
+        let mut lexicon_files = read_directory(&directory.join("lexicon"), "lex", "lexicon")?;
+        lexicon_files.extend(read_directory(&directory.join("site"), "lex", "site")?);
+        let rule_files = read_directory(&directory.join("rules"), "rules", "rules")?;
+        Grammar::from_texts(taxonomy, &lexicon_files, &rule_files)
+    }
+
+    /// Builds a grammar from texts (name, text); used by `load`, `embedded` and tests.
+    pub fn from_texts(
+        taxonomy: Taxonomy,
+        lexicon_files: &[(String, String)],
+        rule_files: &[(String, String)],
+    ) -> Result<Grammar, GrammarError> {
+        let lexicon = Lexicon::build(&taxonomy, lexicon_files)?;
+        let rules = parse_rules(rule_files)?;
+        Ok(Grammar {
+            taxonomy,
+            lexicon,
+            rules,
+            length_limit: DEFAULT_LENGTH_LIMIT,
+        })
+    }
+
+    /// The same grammar with a different utterance length limit (in characters).
+    pub fn with_length_limit(mut self, limit: usize) -> Grammar {
+        self.length_limit = limit;
+        self
+    }
+
+    pub fn taxonomy(&self) -> &Taxonomy {
+        &self.taxonomy
+    }
+
+    pub fn lexicon(&self) -> &Lexicon {
+        &self.lexicon
+    }
+
+    pub fn rules(&self) -> &[Rule] {
+        &self.rules
+    }
+
+    /// Parses one utterance. `focus` is what the operator pointed at, if anything.
+    pub fn parse(&self, utterance: &str, focus: Option<Focus>) -> Result<Parse, LanguageError> {
+        let length = utterance.chars().count();
+        if length > self.length_limit {
+            return Err(LanguageError::TooLong {
+                length,
+                limit: self.length_limit,
+            });
+        }
+        let normalised = normalise(utterance);
+        let tokens = tokenise(&normalised);
+        let mut notes = Vec::new();
+        let mut ignored_raw: Vec<(Span, IgnoredReason)> = Vec::new();
+        let sentences = tag_sentences(&self.lexicon, &tokens, &mut notes, &mut ignored_raw);
+        let mut builder = Builder::new(focus.is_some());
+        let mut other_kinds: Vec<UtteranceKind> = Vec::new();
+        // Symbols, emoji and unknown scripts count as content; spaces and clause punctuation do not.
+        let mut any_words = normalised
+            .text
+            .chars()
+            .any(|c| !c.is_whitespace() && !",.;:!?'\"-".contains(c));
+        for sentence in sentences {
+            let words = sentence
+                .items
+                .iter()
+                .filter(|item| item.tag != ItemTag::Pause)
+                .count();
+            if words == 0 {
+                continue;
+            }
+            any_words = true;
+            if let Some(kind) = classify(&sentence.items, sentence.question_mark) {
+                if kind != UtteranceKind::Thanks && kind != UtteranceKind::ChitChat {
+                    if let Some(span) = sentence.span {
+                        ignored_raw.push((span, IgnoredReason::NotACorrection));
+                    }
+                    other_kinds.push(kind);
+                    continue;
+                }
+                other_kinds.push(kind);
+            }
+            let items = clean(sentence.items, &mut ignored_raw);
+            let chunks = attach(repair(chunk(&items), &mut ignored_raw));
+            let mut position = 0;
+            while position < chunks.len() {
+                if matches!(chunks[position].kind, ChunkKind::Separator | ChunkKind::And) {
+                    position += 1;
+                    continue;
+                }
+                match best_match(&self.rules, &chunks, position) {
+                    Some(found) => {
+                        builder.apply(&found, &chunks, position);
+                        position += found.length;
+                    }
+                    None => {
+                        ignored_raw.push((chunks[position].span, IgnoredReason::NoRuleMatched));
+                        position += 1;
+                    }
+                }
+            }
+        }
+        let mut constraints = builder.constraints;
+        for constraint in &mut constraints {
+            constraint.gloss = constraint_gloss(&constraint.kind, &self.taxonomy);
+            let removed = match &constraint.kind {
+                ConstraintKind::Relabel {
+                    from: Some(class), ..
+                }
+                | ConstraintKind::Absent { class } => Some(*class),
+                _ => None,
+            };
+            if let Some(class) = removed.filter(|class| self.taxonomy.is_safety_critical(*class)) {
+                notes.push(Note {
+                    span: constraint.span,
+                    kind: NoteKind::NeedsConfirmation {
+                        class: self.taxonomy.class_name(class).to_string(),
+                    },
+                });
+            }
+        }
+        let utterance_kind = if !constraints.is_empty() {
+            UtteranceKind::Correction
+        } else if !any_words {
+            UtteranceKind::Empty
+        } else {
+            [
+                UtteranceKind::Question,
+                UtteranceKind::Request,
+                UtteranceKind::Thanks,
+                UtteranceKind::ChitChat,
+            ]
+            .into_iter()
+            .find(|kind| other_kinds.contains(kind))
+            .unwrap_or(UtteranceKind::Unparsed)
+        };
+        ignored_raw.sort_by_key(|(span, _)| (span.start, span.end));
+        ignored_raw.dedup();
+        Ok(Parse {
+            utterance_kind,
+            constraints,
+            ignored: ignored_raw
+                .into_iter()
+                .map(|(span, reason)| Ignored { span, reason })
+                .collect(),
+            notes,
+        })
+    }
+}
+
+/// Classifies a sentence that is not a correction by its cue words; `None` means "read it for constraints".
+fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<UtteranceKind> {
+    if question_mark {
+        return Some(UtteranceKind::Question);
+    }
+    let first = items.iter().find(|item| {
+        !matches!(
+            item.tag,
+            ItemTag::Pause | ItemTag::Lexicon(Tag::Filler) | ItemTag::Lexicon(Tag::Skip)
+        )
+    })?;
+    match first.tag {
+        ItemTag::Lexicon(Tag::Question) => return Some(UtteranceKind::Question),
+        ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
+        _ => {}
+    }
+    let has = |wanted: Tag| {
+        items
+            .iter()
+            .any(|item| item.tag == ItemTag::Lexicon(wanted))
+    };
+    if has(Tag::Thanks) {
+        Some(UtteranceKind::Thanks)
+    } else if has(Tag::Greeting) {
+        Some(UtteranceKind::ChitChat)
+    } else {
+        None
+    }
+}
+
+/// Reads a focus string: `object:ID` or `pixel:X,Y`.
+pub fn parse_focus(text: &str) -> Result<Focus, LanguageError> {
+    let bad = || LanguageError::BadFocus {
+        text: text.to_string(),
+    };
+    if let Some(id) = text.strip_prefix("object:") {
+        let id: u32 = id.trim().parse().map_err(|_| bad())?;
+        return Ok(Focus::Object {
+            id: crate::ids::ObjectId(id),
+        });
+    }
+    if let Some(pixel) = text.strip_prefix("pixel:") {
+        let (x, y) = pixel.split_once(',').ok_or_else(bad)?;
+        return Ok(Focus::Pixel {
+            x: x.trim().parse().map_err(|_| bad())?,
+            y: y.trim().parse().map_err(|_| bad())?,
+        });
+    }
+    Err(bad())
+}

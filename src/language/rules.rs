@@ -1,0 +1,386 @@
+//! Clause rules read from `*.rules` files, and matching them against a sentence's chunks.
+//!
+//! Owns: the rule line syntax (`rule NAME: ITEM ... => ACTION`) and its validation with line-numbered
+//! errors, the symbols and filters a pattern can use, the roles each action needs, and longest-match
+//! selection (ties go to the earlier rule).
+//! Must not: build constraints; it returns which chunks filled which roles, and `actions` does the rest.
+
+use super::chunks::{Chunk, ChunkKind, Quantity};
+use super::constraint::Relation;
+use super::error::GrammarError;
+use super::lexicon::parse_relation;
+
+/// A chunk class a pattern item can name.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Symbol {
+    NounPhrase,
+    Be,
+    Negation,
+    There,
+    Relation,
+    Region,
+    Room,
+    Attributes,
+    We,
+    You,
+    Called,
+    Missed,
+    And,
+    Separator,
+}
+
+/// A narrowing of a symbol.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Filter {
+    /// A noun phrase with a stated quantity (a number, "no", "several"...), not just an article.
+    Quantified,
+    /// A noun phrase headed or determined by a deictic word.
+    Deictic,
+    /// A relation phrase of one relation.
+    Relation(Relation),
+}
+
+/// One alternative of a pattern item.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Alternative {
+    pub symbol: Symbol,
+    pub filter: Option<Filter>,
+}
+
+/// One pattern item.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct PatternItem {
+    pub alternatives: Vec<Alternative>,
+    pub role: Option<String>,
+    pub optional: bool,
+}
+
+/// What a rule builds.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Action {
+    Exist,
+    Relabel,
+    RelabelCalled,
+    RoomType,
+    Relation,
+    Place,
+    Attribute,
+}
+
+impl Action {
+    fn parse(name: &str) -> Option<Action> {
+        Some(match name {
+            "exist" => Action::Exist,
+            "relabel" => Action::Relabel,
+            "relabel_called" => Action::RelabelCalled,
+            "room_type" => Action::RoomType,
+            "relation" => Action::Relation,
+            "place" => Action::Place,
+            "attribute" => Action::Attribute,
+            _ => return None,
+        })
+    }
+
+    /// Roles the action may read; the first list must all be present, the second are optional.
+    fn roles(self) -> (&'static [&'static str], &'static [&'static str]) {
+        match self {
+            Action::Exist => (&["np"], &["negated"]),
+            Action::Relabel => (&[], &["target", "from", "to"]),
+            Action::RelabelCalled => (&["target", "from"], &[]),
+            Action::RoomType => (&["room"], &[]),
+            Action::Relation => (&["subject", "relation", "landmark"], &["negated"]),
+            Action::Place => (&["subject"], &["room", "region"]),
+            Action::Attribute => (&["subject", "attributes"], &[]),
+        }
+    }
+}
+
+/// One clause rule.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Rule {
+    pub name: String,
+    pub items: Vec<PatternItem>,
+    pub action: Action,
+}
+
+/// A successful match: the rule, how many chunks it covers, and which chunk filled each role.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Match<'rule> {
+    pub rule: &'rule Rule,
+    pub length: usize,
+    pub roles: Vec<(&'rule str, usize)>,
+}
+
+impl Match<'_> {
+    /// The chunk indices (absolute) that filled a role, in order.
+    pub fn role(&self, name: &str) -> Vec<usize> {
+        self.roles
+            .iter()
+            .filter(|(role, _)| *role == name)
+            .map(|(_, index)| *index)
+            .collect()
+    }
+}
+
+/// Reads rule texts (name, text) in order.
+pub fn parse_rules(files: &[(String, String)]) -> Result<Vec<Rule>, GrammarError> {
+    let mut rules: Vec<Rule> = Vec::new();
+    for (file, text) in files {
+        for (index, raw_line) in text.lines().enumerate() {
+            let line = raw_line.split('#').next().unwrap_or("").trim();
+            if line.is_empty() {
+                continue;
+            }
+            let rule =
+                parse_rule(line).map_err(|message| GrammarError::line(file, index + 1, message))?;
+            if rules.iter().any(|existing| existing.name == rule.name) {
+                return Err(GrammarError::line(
+                    file,
+                    index + 1,
+                    format!("rule '{}' is defined twice", rule.name),
+                ));
+            }
+            rules.push(rule);
+        }
+    }
+    if rules.is_empty() {
+        return Err(GrammarError::Taxonomy("no rules were found".to_string()));
+    }
+    Ok(rules)
+}
+
+fn parse_rule(line: &str) -> Result<Rule, String> {
+    let body = line
+        .strip_prefix("rule ")
+        .ok_or_else(|| format!("a rule line starts with 'rule ', found '{line}'"))?;
+    let (name, rest) = body
+        .split_once(':')
+        .ok_or_else(|| "expected 'rule NAME: pattern => action'".to_string())?;
+    let name = name.trim();
+    if name.is_empty() || !name.chars().all(|c| c.is_ascii_lowercase() || c == '_') {
+        return Err(format!(
+            "rule name '{name}' must be lower case letters and underscores"
+        ));
+    }
+    let (pattern, action_name) = rest
+        .split_once("=>")
+        .ok_or_else(|| format!("rule '{name}' has no '=> action'"))?;
+    let action_name = action_name.trim();
+    let action =
+        Action::parse(action_name).ok_or_else(|| format!("unknown action '{action_name}'"))?;
+    let mut items = Vec::new();
+    for word in pattern.split_whitespace() {
+        items.push(parse_item(word)?);
+    }
+    if items.is_empty() || items.iter().all(|item| item.optional) {
+        return Err(format!("rule '{name}' needs at least one required item"));
+    }
+    let (required, optional) = action.roles();
+    for item in &items {
+        if let Some(role) = &item.role {
+            if !required.contains(&role.as_str()) && !optional.contains(&role.as_str()) {
+                return Err(format!("action '{action_name}' has no role '{role}'"));
+            }
+        }
+    }
+    for role in required {
+        if !items.iter().any(|item| item.role.as_deref() == Some(*role)) {
+            return Err(format!("action '{action_name}' needs a ':{role}' item"));
+        }
+    }
+    if action == Action::Relabel
+        && !items
+            .iter()
+            .any(|item| matches!(item.role.as_deref(), Some("from" | "to")))
+    {
+        return Err("action 'relabel' needs a ':from' or ':to' item".to_string());
+    }
+    Ok(Rule {
+        name: name.to_string(),
+        items,
+        action,
+    })
+}
+
+fn parse_item(word: &str) -> Result<PatternItem, String> {
+    // `SYMBOL?:role`, `SYMBOL:role?` and `SYMBOL?` all mark an optional item.
+    let (word, mut optional) = match word.strip_suffix('?') {
+        Some(stripped) => (stripped, true),
+        None => (word, false),
+    };
+    let (mut symbols, role) = match word.split_once(':') {
+        Some((symbols, role)) if !role.is_empty() => (symbols, Some(role.to_string())),
+        Some(_) => return Err(format!("item '{word}' has an empty role")),
+        None => (word, None),
+    };
+    if let Some(stripped) = symbols.strip_suffix('?') {
+        symbols = stripped;
+        optional = true;
+    }
+    let mut alternatives = Vec::new();
+    for alternative in symbols.split('|') {
+        let (symbol_name, filter_name) = match alternative.split_once('[') {
+            Some((symbol, filter)) => (
+                symbol,
+                Some(
+                    filter
+                        .strip_suffix(']')
+                        .ok_or_else(|| format!("filter in '{alternative}' is missing ']'"))?,
+                ),
+            ),
+            None => (alternative, None),
+        };
+        let symbol = match symbol_name {
+            "NP" => Symbol::NounPhrase,
+            "BE" => Symbol::Be,
+            "NEG" => Symbol::Negation,
+            "THERE" => Symbol::There,
+            "REL" => Symbol::Relation,
+            "REGION" => Symbol::Region,
+            "ROOM" => Symbol::Room,
+            "ATTRIBUTES" => Symbol::Attributes,
+            "WE" => Symbol::We,
+            "YOU" => Symbol::You,
+            "CALLED" => Symbol::Called,
+            "MISSED" => Symbol::Missed,
+            "AND" => Symbol::And,
+            "SEP" => Symbol::Separator,
+            other => return Err(format!("unknown symbol '{other}'")),
+        };
+        let filter = match (symbol, filter_name) {
+            (_, None) => None,
+            (Symbol::NounPhrase, Some("quantified")) => Some(Filter::Quantified),
+            (Symbol::NounPhrase, Some("deictic")) => Some(Filter::Deictic),
+            (Symbol::Relation, Some(name)) => Some(Filter::Relation(parse_relation(name)?)),
+            (_, Some(name)) => {
+                return Err(format!("symbol '{symbol_name}' has no filter '{name}'"))
+            }
+        };
+        alternatives.push(Alternative { symbol, filter });
+    }
+    Ok(PatternItem {
+        alternatives,
+        role,
+        optional,
+    })
+}
+
+fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
+    match (alternative.symbol, &chunk.kind) {
+        (Symbol::NounPhrase, ChunkKind::NounPhrase(phrase)) => match alternative.filter {
+            None => true,
+            Some(Filter::Quantified) => !matches!(phrase.quantity, None | Some(Quantity::Some)),
+            Some(Filter::Deictic) => phrase.deictic.is_some(),
+            Some(Filter::Relation(_)) => false,
+        },
+        (Symbol::Relation, ChunkKind::Relation(relation)) => match alternative.filter {
+            Some(Filter::Relation(wanted)) => *relation == wanted,
+            _ => true,
+        },
+        (Symbol::Be, ChunkKind::Be)
+        | (Symbol::Negation, ChunkKind::Negation)
+        | (Symbol::There, ChunkKind::There)
+        | (Symbol::Region, ChunkKind::Region(_))
+        | (Symbol::Room, ChunkKind::Room(_))
+        | (Symbol::Attributes, ChunkKind::Attributes(_))
+        | (Symbol::We, ChunkKind::We)
+        | (Symbol::You, ChunkKind::You)
+        | (Symbol::Called, ChunkKind::Called)
+        | (Symbol::Missed, ChunkKind::Missed)
+        | (Symbol::And, ChunkKind::And)
+        | (Symbol::Separator, ChunkKind::Separator) => true,
+        _ => false,
+    }
+}
+
+/// Matches items against chunks from `position`; returns the chunks consumed and roles, longest first.
+fn match_items<'rule>(
+    items: &'rule [PatternItem],
+    chunks: &[Chunk],
+    position: usize,
+    roles: &mut Vec<(&'rule str, usize)>,
+) -> Option<usize> {
+    let Some((item, rest)) = items.split_first() else {
+        return Some(0);
+    };
+    let chunk = chunks.get(position);
+    if let Some(chunk) = chunk {
+        if item
+            .alternatives
+            .iter()
+            .any(|alternative| accepts(alternative, chunk))
+        {
+            let mark = roles.len();
+            if let Some(role) = &item.role {
+                roles.push((role.as_str(), position));
+            }
+            if let Some(length) = match_items(rest, chunks, position + 1, roles) {
+                return Some(length + 1);
+            }
+            roles.truncate(mark);
+        }
+    }
+    if item.optional {
+        return match_items(rest, chunks, position, roles);
+    }
+    None
+}
+
+/// The longest rule match at `position` (earlier rules win ties).
+pub fn best_match<'rule>(
+    rules: &'rule [Rule],
+    chunks: &[Chunk],
+    position: usize,
+) -> Option<Match<'rule>> {
+    let mut best: Option<Match<'rule>> = None;
+    for rule in rules {
+        let mut roles = Vec::new();
+        if let Some(length) = match_items(&rule.items, chunks, position, &mut roles) {
+            if length > 0 && best.as_ref().is_none_or(|current| length > current.length) {
+                best = Some(Match {
+                    rule,
+                    length,
+                    roles,
+                });
+            }
+        }
+    }
+    best
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn rules(text: &str) -> Result<Vec<Rule>, GrammarError> {
+        parse_rules(&[("test.rules".to_string(), text.to_string())])
+    }
+
+    #[test]
+    fn rule_errors_name_the_line() {
+        let error =
+            rules("# comment\nrule a: NP:np => exist\nrule b: NP:subject FLY => relation\n")
+                .unwrap_err();
+        assert_eq!(error.to_string(), "test.rules:3: unknown symbol 'FLY'");
+        let error = rules("rule a: NP:subject BE => relation\n").unwrap_err();
+        assert!(
+            error.to_string().contains("needs a ':relation' item"),
+            "{error}"
+        );
+        let error = rules("rule a: NP:np => exist\nrule a: NP:np => exist\n").unwrap_err();
+        assert!(error.to_string().starts_with("test.rules:2:"), "{error}");
+        assert!(rules("rule a: NP[tall]:np => exist\n").is_err());
+    }
+
+    #[test]
+    fn optional_items_and_alternatives_parse() {
+        let parsed =
+            rules("rule r: NP[deictic]|WE BE REL[inside]? ROOM:room => room_type\n").unwrap();
+        assert_eq!(parsed[0].items[0].alternatives.len(), 2);
+        assert!(parsed[0].items[2].optional);
+        assert_eq!(
+            parsed[0].items[2].alternatives[0].filter,
+            Some(Filter::Relation(Relation::Inside))
+        );
+    }
+}

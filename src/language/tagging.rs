@@ -1,0 +1,382 @@
+//! Tagging: tokens to lexicon items, with rewrites, numbers, spelling correction and speech clean-up.
+//!
+//! Owns: applying rewrites ("that's" -> "that is", "r" -> "are", "bag's" -> "bag is"), longest-phrase
+//! tagging, digits and compound numbers ("forty-two"), accepting misspellings, and removing fillers,
+//! function words, cut-off fragments and stuttered repeats, each recorded as ignored with a reason.
+//! Must not: group items into phrases or decide meaning; that is `chunks` and `rules`.
+
+use super::constraint::Span;
+use super::lexicon::{Lexicon, Tag};
+use super::parse::{IgnoredReason, Note, NoteKind};
+use super::spelling::{accept_limit, distance_within, SUGGESTION_LIMIT};
+use super::tokens::{Token, TokenShape};
+
+/// What an item is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ItemTag {
+    Lexicon(Tag),
+    /// A pause (comma, colon).
+    Pause,
+    /// A word the lexicon does not know.
+    Unknown,
+    /// A number too large to count with.
+    TooLarge,
+}
+
+/// One tagged phrase.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Item {
+    pub tag: ItemTag,
+    pub span: Span,
+    /// The normalised words of the phrase, joined by spaces.
+    pub text: String,
+    /// The phrase was read as a misspelling of a lexicon word.
+    pub misspelled: bool,
+}
+
+/// A word after rewriting: text plus where it came from.
+#[derive(Clone, Debug)]
+struct Word {
+    text: String,
+    span: Span,
+    shape: TokenShape,
+    fragment: bool,
+}
+
+/// The items of one sentence and how it ended.
+#[derive(Clone, Debug, Default)]
+pub struct Sentence {
+    pub items: Vec<Item>,
+    pub question_mark: bool,
+    pub span: Option<Span>,
+}
+
+/// Applies rewrites and splits tokens into sentences of words.
+fn rewrite(lexicon: &Lexicon, tokens: &[Token]) -> Vec<Word> {
+    let mut words: Vec<Word> = Vec::with_capacity(tokens.len() + 4);
+    let mut index = 0;
+    while index < tokens.len() {
+        let token = &tokens[index];
+        if token.shape != TokenShape::Word {
+            words.push(Word {
+                text: token.text.clone(),
+                span: token.span,
+                shape: token.shape,
+                fragment: false,
+            });
+            index += 1;
+            continue;
+        }
+        // A window of following word tokens for multi-word rewrites.
+        let window: Vec<&str> = tokens[index..]
+            .iter()
+            .take(4)
+            .take_while(|token| token.shape == TokenShape::Word)
+            .map(|token| token.text.as_str())
+            .collect();
+        if let Some((length, replacement)) = lexicon.longest_rewrite(&window) {
+            let span = tokens[index].span.cover(tokens[index + length - 1].span);
+            for text in replacement {
+                words.push(Word {
+                    text: text.clone(),
+                    span,
+                    shape: TokenShape::Word,
+                    fragment: false,
+                });
+            }
+            index += length;
+            continue;
+        }
+        if let Some(stem) = token.text.strip_suffix("'s") {
+            let is_noun = matches!(
+                lexicon.longest_phrase(&[stem]).map(|found| found.tag),
+                Some(Tag::Class { .. } | Tag::Thing { .. } | Tag::Deictic { .. })
+            );
+            if is_noun {
+                words.push(Word {
+                    text: stem.to_string(),
+                    span: token.span,
+                    shape: TokenShape::Word,
+                    fragment: false,
+                });
+                words.push(Word {
+                    text: "is".to_string(),
+                    span: token.span,
+                    shape: TokenShape::Word,
+                    fragment: false,
+                });
+                index += 1;
+                continue;
+            }
+        }
+        words.push(Word {
+            text: token.text.clone(),
+            span: token.span,
+            shape: token.shape,
+            fragment: token.fragment,
+        });
+        index += 1;
+    }
+    words
+}
+
+/// Tags tokens into sentences of items; records notes and ignored spans.
+pub fn tag_sentences(
+    lexicon: &Lexicon,
+    tokens: &[Token],
+    notes: &mut Vec<Note>,
+    ignored: &mut Vec<(Span, IgnoredReason)>,
+) -> Vec<Sentence> {
+    let words = rewrite(lexicon, tokens);
+    let mut sentences = Vec::new();
+    let mut current = Sentence::default();
+    let mut index = 0;
+    while index < words.len() {
+        let word = &words[index];
+        match word.shape {
+            TokenShape::Stop | TokenShape::QuestionMark => {
+                current.question_mark |= word.shape == TokenShape::QuestionMark;
+                sentences.push(std::mem::take(&mut current));
+                index += 1;
+                continue;
+            }
+            TokenShape::Pause => {
+                current.items.push(Item {
+                    tag: ItemTag::Pause,
+                    span: word.span,
+                    text: word.text.clone(),
+                    misspelled: false,
+                });
+                index += 1;
+                continue;
+            }
+            TokenShape::Word => {}
+        }
+        current.span = Some(current.span.map_or(word.span, |span| span.cover(word.span)));
+        if word.fragment {
+            ignored.push((word.span, IgnoredReason::Stutter));
+            index += 1;
+            continue;
+        }
+        let window: Vec<&str> = words[index..]
+            .iter()
+            .take(6)
+            .take_while(|word| word.shape == TokenShape::Word && !word.fragment)
+            .map(|word| word.text.as_str())
+            .collect();
+        if let Some(found) = lexicon.longest_phrase(&window) {
+            let last = &words[index + found.words - 1];
+            let mut item = Item {
+                tag: ItemTag::Lexicon(found.tag),
+                span: word.span.cover(last.span),
+                text: window[..found.words].join(" "),
+                misspelled: false,
+            };
+            index += found.words;
+            // "forty two", "forty-two": a tens word and a unit word make one number.
+            if let Tag::Tens(tens) = found.tag {
+                if let Some(next) = words
+                    .get(index)
+                    .filter(|next| next.shape == TokenShape::Word)
+                {
+                    if let Some(Found {
+                        tag: Tag::Number(unit @ 1..=9),
+                        words: 1,
+                    }) = lexicon
+                        .longest_phrase(&[next.text.as_str()])
+                        .map(Found::from)
+                    {
+                        item.tag = ItemTag::Lexicon(Tag::Number(tens + unit));
+                        item.span = item.span.cover(next.span);
+                        item.text = format!("{} {}", item.text, next.text);
+                        index += 1;
+                    }
+                }
+                if let ItemTag::Lexicon(Tag::Tens(value)) = item.tag {
+                    item.tag = ItemTag::Lexicon(Tag::Number(value));
+                }
+            }
+            current.items.push(item);
+            continue;
+        }
+        index += 1;
+        if word.text.chars().all(|c| c.is_ascii_digit()) {
+            match word.text.parse::<u32>() {
+                Ok(number) if number < 1_000_000 => current.items.push(Item {
+                    tag: ItemTag::Lexicon(Tag::Number(number)),
+                    span: word.span,
+                    text: word.text.clone(),
+                    misspelled: false,
+                }),
+                _ => {
+                    notes.push(Note {
+                        span: word.span,
+                        kind: NoteKind::NumberTooLarge {
+                            written: word.text.clone(),
+                        },
+                    });
+                    current.items.push(Item {
+                        tag: ItemTag::TooLarge,
+                        span: word.span,
+                        text: word.text.clone(),
+                        misspelled: false,
+                    });
+                }
+            }
+            continue;
+        }
+        match correct_spelling(lexicon, &word.text) {
+            Spelling::Accepted(read_as, tag) => {
+                notes.push(Note {
+                    span: word.span,
+                    kind: NoteKind::MisspellingAccepted {
+                        written: word.text.clone(),
+                        read_as: read_as.clone(),
+                    },
+                });
+                current.items.push(Item {
+                    tag: ItemTag::Lexicon(tag),
+                    span: word.span,
+                    text: read_as,
+                    misspelled: true,
+                });
+            }
+            Spelling::Unknown(suggestions) => {
+                notes.push(Note {
+                    span: word.span,
+                    kind: NoteKind::UnknownWord {
+                        written: word.text.clone(),
+                        suggestions,
+                    },
+                });
+                ignored.push((word.span, IgnoredReason::UnknownWord));
+                current.items.push(Item {
+                    tag: ItemTag::Unknown,
+                    span: word.span,
+                    text: word.text.clone(),
+                    misspelled: false,
+                });
+            }
+        }
+    }
+    sentences.push(current);
+    sentences.retain(|sentence| sentence.span.is_some());
+    sentences
+}
+
+/// A looked-up phrase, for pattern matching on length and tag together.
+struct Found {
+    tag: Tag,
+    words: usize,
+}
+
+impl From<super::lexicon::Found> for Found {
+    fn from(found: super::lexicon::Found) -> Found {
+        Found {
+            tag: found.tag,
+            words: found.words,
+        }
+    }
+}
+
+enum Spelling {
+    Accepted(String, Tag),
+    Unknown(Vec<String>),
+}
+
+/// Reads an unknown word as a near lexicon word, or lists suggestions.
+fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
+    let length = word.chars().count();
+    if length > 30 || !word.chars().all(char::is_alphabetic) {
+        return Spelling::Unknown(Vec::new());
+    }
+    let accept = accept_limit(word);
+    let mut best: Option<(usize, &str, Tag)> = None;
+    let mut suggestions: Vec<(usize, &str)> = Vec::new();
+    for (candidate, tag) in lexicon.spelling_words() {
+        if let Some(distance) = distance_within(word, candidate, SUGGESTION_LIMIT) {
+            suggestions.push((distance, candidate));
+            if distance <= accept && best.is_none_or(|(best_distance, ..)| distance < best_distance)
+            {
+                best = Some((distance, candidate, *tag));
+            }
+        }
+    }
+    if let Some((_, candidate, tag)) = best {
+        return Spelling::Accepted(candidate.to_string(), tag);
+    }
+    suggestions.sort();
+    Spelling::Unknown(
+        suggestions
+            .into_iter()
+            .take(3)
+            .map(|(_, word)| word.to_string())
+            .collect(),
+    )
+}
+
+/// Removes fillers (with the pauses around them), function words and stuttered repeats.
+pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Item> {
+    // Fillers and function words.
+    let mut kept: Vec<Item> = Vec::with_capacity(items.len());
+    let mut drop_next_pause = false;
+    for item in items {
+        match item.tag {
+            ItemTag::Lexicon(Tag::Filler) => {
+                ignored.push((item.span, IgnoredReason::Filler));
+                if kept.last().is_some_and(|last| last.tag == ItemTag::Pause) {
+                    kept.pop();
+                }
+                drop_next_pause = true;
+            }
+            ItemTag::Lexicon(Tag::Skip) => ignored.push((item.span, IgnoredReason::FunctionWord)),
+            ItemTag::Unknown => {}
+            ItemTag::Pause if drop_next_pause => drop_next_pause = false,
+            _ => {
+                drop_next_pause = false;
+                kept.push(item);
+            }
+        }
+    }
+    // Stuttered repeats of one to four items, pauses between them ignored.
+    let content: Vec<usize> = (0..kept.len())
+        .filter(|&index| kept[index].tag != ItemTag::Pause)
+        .collect();
+    let mut removed = vec![false; kept.len()];
+    let mut position = 0;
+    while position < content.len() {
+        let mut advanced = false;
+        for length in (1..=4).rev() {
+            if position + 2 * length > content.len() {
+                continue;
+            }
+            let first = &content[position..position + length];
+            let second = &content[position + length..position + 2 * length];
+            let same = first
+                .iter()
+                .zip(second)
+                .all(|(&a, &b)| kept[a].text == kept[b].text && kept[a].tag == kept[b].tag);
+            if same {
+                let from = first[0];
+                let to = second[0];
+                for flag in removed.iter_mut().take(to).skip(from) {
+                    *flag = true;
+                }
+                ignored.push((
+                    kept[from].span.cover(kept[to - 1].span),
+                    IgnoredReason::Stutter,
+                ));
+                position += length;
+                advanced = true;
+                break;
+            }
+        }
+        if !advanced {
+            position += 1;
+        }
+    }
+    kept.into_iter()
+        .zip(removed)
+        .filter_map(|(item, removed)| (!removed).then_some(item))
+        .collect()
+}

@@ -1,0 +1,357 @@
+//! The coordinator: the service's working memory over the correction log, and the only caller of the
+//! `Corrector`.
+//!
+//! Owns: the in-memory scenes and conversations (restored from the log at start), the per-scene and
+//! per-conversation locks that keep updates from being lost, the rule that every answer is given only after
+//! its turn is committed, and the conversion between internal values and wire shapes.
+//! Must not: know about HTTP routing, sockets or tokio; every method is synchronous (handlers call it on a
+//! blocking thread) so the CLI can use it directly too.
+//!
+//! Lock order, always: a conversation, then its scene, then the log.
+
+mod convert;
+mod register;
+mod turns;
+
+use std::collections::HashMap;
+use std::path::PathBuf;
+use std::sync::{Arc, Mutex, MutexGuard, RwLock};
+
+use crate::correction_log::{
+    ConversationKey, CorrectionLog, LogError, SceneKey, StateRecord, VersionKey,
+};
+use crate::language::constraint::Constraint;
+use crate::raster::{self, RgbImage};
+
+use super::corrector::{Change, Corrector, PastTurn, SceneState, SceneSummary};
+use super::error::ApiError;
+use super::metrics::Metrics;
+use super::wire::{ConversationOut, HealthOut, SceneGraphOut};
+
+pub use register::SceneUpload;
+pub use turns::check_utterance_text;
+
+/// The longest utterance accepted, in characters.
+pub const UTTERANCE_CHARACTER_LIMIT: usize = 2000;
+
+pub(crate) struct SceneSlot {
+    name: String,
+    image: Arc<RgbImage>,
+    head: VersionKey,
+    state: SceneState,
+}
+
+pub(crate) struct PendingSlot {
+    base: VersionKey,
+    state: SceneState,
+    reason: String,
+    changes: Vec<Change>,
+    utterance: String,
+    constraints: Vec<Constraint>,
+}
+
+pub(crate) struct ConversationSlot {
+    key: ConversationKey,
+    scene: SceneKey,
+    operator: String,
+    opened_at: String,
+    history: Vec<PastTurn>,
+    pending: Option<PendingSlot>,
+    applied: Vec<VersionKey>,
+    redo: Vec<VersionKey>,
+}
+
+/// The service's state; share it behind an `Arc`.
+pub struct Coordinator {
+    corrector: Arc<dyn Corrector>,
+    log: Mutex<CorrectionLog>,
+    scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
+    conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
+    metrics: Arc<Metrics>,
+    pixel_limit: u64,
+    demo_dir: PathBuf,
+}
+
+/// Settings the coordinator needs.
+#[derive(Clone, Debug)]
+pub struct CoordinatorSettings {
+    pub log_path: PathBuf,
+    pub pixel_limit: u64,
+    pub demo_dir: PathBuf,
+}
+
+/// What can go wrong opening the coordinator.
+#[derive(Debug, thiserror::Error)]
+pub enum OpenError {
+    #[error(transparent)]
+    Log(#[from] LogError),
+    #[error("stored scene {scene} cannot be restored: {message}")]
+    Restore { scene: i64, message: String },
+}
+
+fn lock<T>(mutex: &Mutex<T>) -> MutexGuard<'_, T> {
+    // A panic while holding a lock leaves data that was only being read or replaced whole; keep serving.
+    mutex
+        .lock()
+        .unwrap_or_else(|poisoned| poisoned.into_inner())
+}
+
+pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, ApiError> {
+    Ok(StateRecord {
+        labels_png: raster::encode_index_png(&state.labels).map_err(ApiError::internal)?,
+        summary_json: serde_json::to_string(&state.summary).map_err(ApiError::internal)?,
+        engine_state: state.engine_state.clone(),
+    })
+}
+
+pub(crate) fn decode_state(record: &StateRecord) -> Result<SceneState, String> {
+    let labels = raster::decode_index_png(
+        &record.labels_png,
+        std::path::Path::new("stored label map"),
+        u64::MAX,
+    )
+    .map_err(|error| error.to_string())?;
+    let summary: SceneSummary =
+        serde_json::from_str(&record.summary_json).map_err(|error| error.to_string())?;
+    Ok(SceneState {
+        labels,
+        summary,
+        engine_state: record.engine_state.clone(),
+    })
+}
+
+fn log_error(error: LogError) -> ApiError {
+    match error {
+        LogError::Stale { .. } => ApiError::conflict(
+            "stale_change",
+            "the scene changed while this request was being worked out; send it again",
+        ),
+        other => ApiError::internal(other),
+    }
+}
+
+impl Coordinator {
+    /// Opens the log and restores every scene and conversation in it.
+    pub fn open(
+        corrector: Arc<dyn Corrector>,
+        settings: &CoordinatorSettings,
+        metrics: Arc<Metrics>,
+    ) -> Result<Coordinator, OpenError> {
+        let log = CorrectionLog::open(&settings.log_path)?;
+        let mut scenes = HashMap::new();
+        for row in log.scenes()? {
+            let restore_error = |message: String| OpenError::Restore {
+                scene: row.key.0,
+                message,
+            };
+            let image_png = log.blob(&row.image_hash)?;
+            let image =
+                raster::decode_rgb_png(&image_png, std::path::Path::new("stored image"), u64::MAX)
+                    .map_err(|error| restore_error(error.to_string()))?;
+            let (record, _) = log.version(row.head)?;
+            let state = decode_state(&record).map_err(restore_error)?;
+            scenes.insert(
+                row.key,
+                Arc::new(Mutex::new(SceneSlot {
+                    name: row.name,
+                    image: Arc::new(image),
+                    head: row.head,
+                    state,
+                })),
+            );
+        }
+        let mut conversations = HashMap::new();
+        for row in log.conversations()? {
+            let turns = log.turns(row.key)?;
+            let history = turns
+                .iter()
+                .filter(|turn| turn.kind == "utterance")
+                .map(|turn| PastTurn {
+                    utterance: turn.text.clone(),
+                    focus: turn
+                        .focus_json
+                        .as_deref()
+                        .and_then(|text| serde_json::from_str(text).ok()),
+                    constraints: serde_json::from_str(&turn.constraints_json).unwrap_or_default(),
+                })
+                .collect();
+            let pending = match log.pending(row.key)? {
+                Some(pending) => {
+                    let state =
+                        decode_state(&pending.state).map_err(|message| OpenError::Restore {
+                            scene: row.scene.0,
+                            message,
+                        })?;
+                    let turn = turns.iter().find(|turn| turn.key == pending.turn);
+                    Some(PendingSlot {
+                        base: pending.base,
+                        state,
+                        reason: pending.reason,
+                        changes: serde_json::from_str(&pending.changes_json).unwrap_or_default(),
+                        utterance: turn.map(|turn| turn.text.clone()).unwrap_or_default(),
+                        constraints: turn
+                            .and_then(|turn| serde_json::from_str(&turn.constraints_json).ok())
+                            .unwrap_or_default(),
+                    })
+                }
+                None => None,
+            };
+            conversations.insert(
+                row.key,
+                Arc::new(Mutex::new(ConversationSlot {
+                    key: row.key,
+                    scene: row.scene,
+                    operator: row.operator,
+                    opened_at: row.opened_at,
+                    history,
+                    pending,
+                    applied: row.applied_stack,
+                    redo: row.redo_stack,
+                })),
+            );
+        }
+        Ok(Coordinator {
+            corrector,
+            log: Mutex::new(log),
+            scenes: RwLock::new(scenes),
+            conversations: RwLock::new(conversations),
+            metrics,
+            pixel_limit: settings.pixel_limit,
+            demo_dir: settings.demo_dir.clone(),
+        })
+    }
+
+    /// The metrics the coordinator records into.
+    pub fn metrics(&self) -> &Arc<Metrics> {
+        &self.metrics
+    }
+
+    /// The corrector in use.
+    pub fn corrector(&self) -> &Arc<dyn Corrector> {
+        &self.corrector
+    }
+
+    pub(crate) fn scene_slot(&self, scene: SceneKey) -> Result<Arc<Mutex<SceneSlot>>, ApiError> {
+        self.scenes
+            .read()
+            .unwrap_or_else(|poisoned| poisoned.into_inner())
+            .get(&scene)
+            .cloned()
+            .ok_or_else(|| ApiError::unknown("unknown_scene", "scene", scene.0))
+    }
+
+    pub(crate) fn conversation_slot(
+        &self,
+        conversation: ConversationKey,
+    ) -> Result<Arc<Mutex<ConversationSlot>>, ApiError> {
+        self.conversations
+            .read()
+            .unwrap_or_else(|poisoned| poisoned.into_inner())
+            .get(&conversation)
+            .cloned()
+            .ok_or_else(|| {
+                ApiError::unknown("unknown_conversation", "conversation", conversation.0)
+            })
+    }
+
+    /// Liveness and counts.
+    pub fn health(&self) -> Result<HealthOut, ApiError> {
+        let log_schema = lock(&self.log).schema_version().map_err(log_error)?;
+        Ok(HealthOut {
+            status: "ok".into(),
+            version: env!("CARGO_PKG_VERSION").into(),
+            log_schema,
+            scenes: self
+                .scenes
+                .read()
+                .unwrap_or_else(|poisoned| poisoned.into_inner())
+                .len(),
+            conversations: self
+                .conversations
+                .read()
+                .unwrap_or_else(|poisoned| poisoned.into_inner())
+                .len(),
+        })
+    }
+
+    /// Every scene id, ascending.
+    pub fn scene_ids(&self) -> Vec<SceneKey> {
+        let mut keys: Vec<SceneKey> = self
+            .scenes
+            .read()
+            .unwrap_or_else(|poisoned| poisoned.into_inner())
+            .keys()
+            .copied()
+            .collect();
+        keys.sort();
+        keys
+    }
+
+    /// The current scene graph.
+    pub fn scene_graph(&self, scene: SceneKey) -> Result<SceneGraphOut, ApiError> {
+        let slot = self.scene_slot(scene)?;
+        let slot = lock(&slot);
+        Ok(convert::scene_graph(
+            scene,
+            &slot,
+            self.corrector.taxonomy(),
+        ))
+    }
+
+    /// The current label map as an index PNG.
+    pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+        let slot = self.scene_slot(scene)?;
+        let labels = lock(&slot).state.labels.clone();
+        raster::encode_index_png(&labels).map_err(ApiError::internal)
+    }
+
+    /// The current overlay as an RGB PNG.
+    pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+        let slot = self.scene_slot(scene)?;
+        let overlay = {
+            let slot = lock(&slot);
+            self.corrector.overlay(&slot.image, &slot.state)
+        };
+        raster::encode_rgb_png(&overlay).map_err(ApiError::internal)
+    }
+
+    /// Opens a conversation on a scene for an operator.
+    pub fn open_conversation(
+        &self,
+        scene: SceneKey,
+        operator: &str,
+    ) -> Result<ConversationOut, ApiError> {
+        self.scene_slot(scene)?;
+        let row = lock(&self.log)
+            .open_conversation(scene, operator)
+            .map_err(log_error)?;
+        let out = ConversationOut {
+            conversation_id: row.key.0,
+            scene_id: scene.0,
+            operator: row.operator.clone(),
+            opened_at: row.opened_at.clone(),
+        };
+        self.conversations
+            .write()
+            .unwrap_or_else(|poisoned| poisoned.into_inner())
+            .insert(
+                row.key,
+                Arc::new(Mutex::new(ConversationSlot {
+                    key: row.key,
+                    scene,
+                    operator: row.operator,
+                    opened_at: row.opened_at,
+                    history: Vec::new(),
+                    pending: None,
+                    applied: Vec::new(),
+                    redo: Vec::new(),
+                })),
+            );
+        Ok(out)
+    }
+
+    /// Runs `f` with the log locked (for export and checks).
+    pub fn with_log<T>(&self, f: impl FnOnce(&CorrectionLog) -> T) -> T {
+        f(&lock(&self.log))
+    }
+}

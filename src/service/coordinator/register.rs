@@ -1,0 +1,318 @@
+//! Registering scenes: decoding what the caller sent (or a demo scene by name), checking it, asking the
+//! corrector for the first state, and committing it.
+//!
+//! Owns: the checks on uploaded parts (PNG decoding under the pixel limit, matching sizes, class and room
+//! names, boxes inside the image) and the demo-scene lookup.
+//! Must not: interpret NPY scores or detections beyond names and bounds; the corrector does that.
+
+use std::path::Path;
+use std::sync::{Arc, Mutex};
+
+use axum::http::StatusCode;
+
+use crate::correction_log::NewScene;
+use crate::ids::{ClassId, RoomId};
+use crate::raster::{self, RasterError};
+use crate::scene::BoundingBox;
+
+use super::super::corrector::{CorrectorError, Detection, SceneInput};
+use super::super::error::ApiError;
+use super::super::wire::{RegisterSceneRequest, SceneCreated};
+use super::{encode_state, lock, log_error, Coordinator, SceneSlot};
+
+/// A scene as the caller sent it, base64 already removed.
+#[derive(Clone, Debug, Default)]
+pub struct SceneUpload {
+    pub name: Option<String>,
+    pub demo: Option<String>,
+    pub image_png: Option<Vec<u8>>,
+    pub depth_png: Option<Vec<u8>>,
+    pub scores_npy: Option<Vec<u8>>,
+    pub label_map_png: Option<Vec<u8>>,
+    pub detections: Vec<super::super::wire::DetectionIn>,
+    pub room: Option<String>,
+}
+
+fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, ApiError> {
+    use base64::Engine;
+    match text {
+        None => Ok(None),
+        Some(text) => base64::engine::general_purpose::STANDARD
+            .decode(text.trim())
+            .map(Some)
+            .map_err(|error| {
+                ApiError::bad_request(
+                    "bad_base64",
+                    format!("{field} is not valid standard base64: {error}"),
+                )
+            }),
+    }
+}
+
+impl SceneUpload {
+    /// Removes the base64 from a wire request.
+    pub fn from_request(request: RegisterSceneRequest) -> Result<SceneUpload, ApiError> {
+        Ok(SceneUpload {
+            image_png: decode_base64("image_png_base64", &request.image_png_base64)?,
+            depth_png: decode_base64("depth_png_base64", &request.depth_png_base64)?,
+            scores_npy: decode_base64("scores_npy_base64", &request.scores_npy_base64)?,
+            label_map_png: decode_base64("label_map_png_base64", &request.label_map_png_base64)?,
+            name: request.name,
+            demo: request.demo,
+            detections: request.detections,
+            room: request.room,
+        })
+    }
+}
+
+fn raster_error(field: &str, error: RasterError) -> ApiError {
+    match error {
+        RasterError::TooLarge {
+            width,
+            height,
+            limit,
+            ..
+        } => ApiError::caller(
+            StatusCode::PAYLOAD_TOO_LARGE,
+            "image_too_large",
+            format!("{field} is {width}x{height}, above the pixel limit of {limit}; send a smaller image"),
+        ),
+        RasterError::SizeMismatch {
+            width,
+            height,
+            found_width,
+            found_height,
+            ..
+        } => ApiError::unprocessable(
+            "size_mismatch",
+            format!("{field} is {found_width}x{found_height} but the image is {width}x{height}"),
+        ),
+        RasterError::WrongFormat {
+            found, expected, ..
+        } => ApiError::unprocessable(
+            "bad_image",
+            format!("{field} has colour type {found}; expected {expected}"),
+        ),
+        RasterError::Decode { message, .. } => ApiError::unprocessable(
+            "bad_image",
+            format!("{field} is not a readable PNG: {message}"),
+        ),
+        other => ApiError::internal(other),
+    }
+}
+
+fn valid_demo_name(name: &str) -> bool {
+    !name.is_empty()
+        && name.len() <= 64
+        && name.chars().all(|character| {
+            character.is_ascii_alphanumeric() || character == '_' || character == '-'
+        })
+}
+
+fn read_optional(path: &Path) -> Option<Vec<u8>> {
+    std::fs::read(path).ok()
+}
+
+impl Coordinator {
+    /// Registers a scene: checks it, builds its first state and commits it.
+    pub fn register_scene(
+        &self,
+        mut upload: SceneUpload,
+        operator: &str,
+    ) -> Result<SceneCreated, ApiError> {
+        if let Some(demo) = upload.demo.clone() {
+            if upload.image_png.is_some() {
+                return Err(ApiError::bad_request(
+                    "conflicting_fields",
+                    "send either demo or image_png_base64, not both",
+                ));
+            }
+            if !valid_demo_name(&demo) {
+                return Err(ApiError::bad_request(
+                    "bad_demo_name",
+                    "demo names are 1-64 letters, digits, '-' or '_'",
+                ));
+            }
+            let directory = self.demo_dir.join(&demo);
+            let image = std::fs::read(directory.join("image.png")).map_err(|_| {
+                ApiError::caller(
+                    StatusCode::NOT_FOUND,
+                    "unknown_demo_scene",
+                    format!(
+                        "there is no demo scene named {demo:?} in the service's demo directory"
+                    ),
+                )
+            })?;
+            upload.image_png = Some(image);
+            if upload.label_map_png.is_none() {
+                upload.label_map_png = read_optional(&directory.join("labels.png"));
+            }
+            if upload.depth_png.is_none() {
+                upload.depth_png = read_optional(&directory.join("depth.png"));
+            }
+            if upload.name.is_none() {
+                upload.name = Some(demo);
+            }
+        }
+        let image_png = upload.image_png.take().ok_or_else(|| {
+            ApiError::bad_request(
+                "missing_image",
+                "send image_png_base64 (a base64 PNG) or demo (a demo scene name)",
+            )
+        })?;
+        let image = raster::decode_rgb_png(&image_png, Path::new("image"), self.pixel_limit)
+            .map_err(|error| raster_error("image_png_base64", error))?;
+        let (width, height) = (image.width, image.height);
+        let size_check = |field: &str, found_width: u32, found_height: u32| {
+            if (found_width, found_height) != (width, height) {
+                Err(raster_error(
+                    field,
+                    RasterError::SizeMismatch {
+                        path: field.into(),
+                        width,
+                        height,
+                        found_width,
+                        found_height,
+                    },
+                ))
+            } else {
+                Ok(())
+            }
+        };
+        let depth = match &upload.depth_png {
+            Some(bytes) => {
+                let decoded = raster::decode_index_png(bytes, Path::new("depth"), self.pixel_limit)
+                    .map_err(|error| raster_error("depth_png_base64", error))?;
+                size_check("depth_png_base64", decoded.width, decoded.height)?;
+                Some(raster::DepthImage {
+                    width: decoded.width,
+                    height: decoded.height,
+                    millimetres: decoded.values,
+                })
+            }
+            None => None,
+        };
+        let label_map = match &upload.label_map_png {
+            Some(bytes) => {
+                let decoded =
+                    raster::decode_index_png(bytes, Path::new("label map"), self.pixel_limit)
+                        .map_err(|error| raster_error("label_map_png_base64", error))?;
+                size_check("label_map_png_base64", decoded.width, decoded.height)?;
+                Some(decoded)
+            }
+            None => None,
+        };
+        let taxonomy = self.corrector.taxonomy();
+        let mut detections = Vec::new();
+        for (index, detection) in upload.detections.iter().enumerate() {
+            let class = taxonomy.class_by_name(&detection.class).ok_or_else(|| {
+                ApiError::unprocessable(
+                    "unknown_class",
+                    format!(
+                        "detections[{index}].class {:?} is not in the taxonomy; see GET /v1/classes",
+                        detection.class
+                    ),
+                )
+            })?;
+            let bbox = detection.bbox;
+            if bbox.x0 >= bbox.x1 || bbox.y0 >= bbox.y1 || bbox.x1 > width || bbox.y1 > height {
+                return Err(ApiError::unprocessable(
+                    "bad_box",
+                    format!("detections[{index}].box must be non-empty and inside the {width}x{height} image"),
+                ));
+            }
+            if !(0.0..=1.0).contains(&detection.score) {
+                return Err(ApiError::unprocessable(
+                    "bad_score",
+                    format!("detections[{index}].score must be between 0 and 1"),
+                ));
+            }
+            detections.push(Detection {
+                class: ClassId(class.id.0),
+                bbox: BoundingBox {
+                    x0: bbox.x0,
+                    y0: bbox.y0,
+                    x1: bbox.x1,
+                    y1: bbox.y1,
+                },
+                score: detection.score,
+            });
+        }
+        let room: Option<RoomId> = match &upload.room {
+            Some(name) => Some(
+                taxonomy
+                    .room_by_name(name)
+                    .ok_or_else(|| {
+                        ApiError::unprocessable(
+                            "unknown_room",
+                            format!("room {name:?} is not a room type of the taxonomy"),
+                        )
+                    })?
+                    .id,
+            ),
+            None => None,
+        };
+        let name = upload
+            .name
+            .clone()
+            .unwrap_or_else(|| "scene".to_string())
+            .chars()
+            .take(200)
+            .collect::<String>();
+        let input = SceneInput {
+            name: name.clone(),
+            image,
+            depth,
+            scores_npy: upload.scores_npy.clone(),
+            label_map,
+            detections: detections.clone(),
+            room,
+        };
+        let state = self
+            .corrector
+            .register(&input)
+            .map_err(|error| match error {
+                CorrectorError::BadInput { field, message } => {
+                    ApiError::unprocessable("bad_scene_input", format!("{field}: {message}"))
+                }
+                internal => ApiError::internal(internal),
+            })?;
+        let record = encode_state(&state)?;
+        let input_json = serde_json::json!({
+            "has_depth": upload.depth_png.is_some(),
+            "has_scores": upload.scores_npy.is_some(),
+            "has_label_map": upload.label_map_png.is_some(),
+            "detections": detections,
+            "room": room,
+        })
+        .to_string();
+        let (key, version) = lock(&self.log)
+            .register_scene(&NewScene {
+                name: &name,
+                image_png: &image_png,
+                input_json: &input_json,
+                operator,
+                state: &record,
+            })
+            .map_err(log_error)?;
+        self.scenes
+            .write()
+            .unwrap_or_else(|poisoned| poisoned.into_inner())
+            .insert(
+                key,
+                Arc::new(Mutex::new(SceneSlot {
+                    name: name.clone(),
+                    image: Arc::new(input.image),
+                    head: version,
+                    state,
+                })),
+            );
+        Ok(SceneCreated {
+            scene_id: key.0,
+            name,
+            width,
+            height,
+            version: version.0,
+        })
+    }
+}

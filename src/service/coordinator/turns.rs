@@ -1,0 +1,553 @@
+//! Conversation turns: utterances, confirmations, rejections, undo and redo.
+//!
+//! Owns: the turn rules. An utterance is worked out under its scene's lock and answered only after its
+//! turn is committed. A safety change waits as the conversation's one pending change and is applied on
+//! confirmation only if the scene has not moved on. Undo takes back the conversation's own latest change
+//! when it is still the scene's head; redo puts it back when nothing else has happened since.
+//! Must not: talk HTTP; answers are wire values or `ApiError`s.
+
+use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, VersionKey};
+use crate::language::constraint::Constraint;
+
+use super::super::corrector::{CorrectionRequest, CorrectorError, PastTurn, SceneHandle, Verdict};
+use super::super::error::ApiError;
+use super::super::wire::{
+    FocusIn, HistoryOut, PendingOut, TurnOut, TurnReply, TurnStatus, UtteranceReply,
+};
+use super::convert::{change_out, constraint_out, focus_from_wire, unmet_out};
+use super::{
+    decode_state, encode_state, lock, log_error, Coordinator, PendingSlot,
+    UTTERANCE_CHARACTER_LIMIT,
+};
+
+fn status_text(status: TurnStatus) -> &'static str {
+    match status {
+        TurnStatus::Applied => "applied",
+        TurnStatus::NeedsConfirmation => "needs_confirmation",
+        TurnStatus::NeedsClarification => "needs_clarification",
+        TurnStatus::NotUnderstood => "not_understood",
+        TurnStatus::NothingToChange => "nothing_to_change",
+        TurnStatus::Confirmed => "confirmed",
+        TurnStatus::Rejected => "rejected",
+        TurnStatus::Undone => "undone",
+        TurnStatus::Redone => "redone",
+    }
+}
+
+fn status_from_text(text: &str) -> TurnStatus {
+    match text {
+        "applied" => TurnStatus::Applied,
+        "needs_confirmation" => TurnStatus::NeedsConfirmation,
+        "needs_clarification" => TurnStatus::NeedsClarification,
+        "nothing_to_change" => TurnStatus::NothingToChange,
+        "confirmed" => TurnStatus::Confirmed,
+        "rejected" => TurnStatus::Rejected,
+        "undone" => TurnStatus::Undone,
+        "redone" => TurnStatus::Redone,
+        _ => TurnStatus::NotUnderstood,
+    }
+}
+
+/// Checks an utterance's text before any work is done on it.
+pub fn check_utterance_text(text: &str) -> Result<(), ApiError> {
+    if text.trim().is_empty() {
+        return Err(ApiError::unprocessable(
+            "empty_utterance",
+            "text is empty; say what is wrong, e.g. \"that's a towel, not a cat\"",
+        ));
+    }
+    let characters = text.chars().count();
+    if characters > UTTERANCE_CHARACTER_LIMIT {
+        return Err(ApiError::unprocessable(
+            "utterance_too_long",
+            format!(
+                "text is {characters} characters; send at most {UTTERANCE_CHARACTER_LIMIT}, one correction at a time"
+            ),
+        ));
+    }
+    Ok(())
+}
+
+impl Coordinator {
+    /// Works out one utterance, commits its turn, and answers.
+    pub fn utterance(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+        text: &str,
+        focus: Option<FocusIn>,
+    ) -> Result<UtteranceReply, ApiError> {
+        check_utterance_text(text)?;
+        let conversation_slot = self.conversation_slot(conversation)?;
+        let mut conversation_state = lock(&conversation_slot);
+        let scene_slot = self.scene_slot(conversation_state.scene)?;
+        let mut scene = lock(&scene_slot);
+        if let Some(FocusIn::Pixel { x, y }) = focus {
+            if x >= scene.image.width || y >= scene.image.height {
+                return Err(ApiError::unprocessable(
+                    "focus_outside_image",
+                    format!(
+                        "focus pixel ({x}, {y}) is outside the {}x{} image",
+                        scene.image.width, scene.image.height
+                    ),
+                ));
+            }
+        }
+        if let Some(FocusIn::Object { object_id }) = focus {
+            if !scene
+                .state
+                .summary
+                .objects
+                .iter()
+                .any(|object| object.id.0 == object_id)
+            {
+                return Err(ApiError::unprocessable(
+                    "unknown_object",
+                    format!("focus object {object_id} is not in the current scene graph; read GET /v1/scenes/{{id}} first"),
+                ));
+            }
+        }
+        let focus_internal = focus.map(focus_from_wire);
+        let outcome = self
+            .corrector
+            .apply(&CorrectionRequest {
+                scene: SceneHandle(conversation_state.scene.0),
+                image: &scene.image,
+                state: &scene.state,
+                history: &conversation_state.history,
+                utterance: text,
+                focus: focus_internal,
+            })
+            .map_err(|error| match error {
+                CorrectorError::BadInput { field, message } => {
+                    ApiError::unprocessable("bad_utterance", format!("{field}: {message}"))
+                }
+                internal => ApiError::internal(internal),
+            })?;
+        if let Some(gap) = outcome.solver_gap {
+            self.metrics.record_solver_gap(gap);
+        }
+        let taxonomy = self.corrector.taxonomy();
+        let constraints_json =
+            serde_json::to_string(&outcome.constraints).map_err(ApiError::internal)?;
+        let changes_out: Vec<_> = outcome
+            .changes
+            .iter()
+            .map(|change| change_out(change, taxonomy))
+            .collect();
+        let focus_json = match focus_internal {
+            Some(focus) => Some(serde_json::to_string(&focus).map_err(ApiError::internal)?),
+            None => None,
+        };
+        let head = scene.head;
+        let (status, effect, question, reason, pending_out) = match &outcome.verdict {
+            Verdict::Applied(state) => (
+                TurnStatus::Applied,
+                TurnEffect::NewVersion {
+                    base: head,
+                    state: encode_state(state)?,
+                    utterance: text.to_string(),
+                    constraints_json: constraints_json.clone(),
+                },
+                None,
+                None,
+                None,
+            ),
+            Verdict::NeedsConfirmation { proposed, reason } => (
+                TurnStatus::NeedsConfirmation,
+                TurnEffect::Pending {
+                    base: head,
+                    state: encode_state(proposed)?,
+                    reason: reason.clone(),
+                    changes_json: serde_json::to_string(&outcome.changes)
+                        .map_err(ApiError::internal)?,
+                },
+                None,
+                None,
+                Some(PendingOut {
+                    reason: reason.clone(),
+                    changes: changes_out.clone(),
+                }),
+            ),
+            Verdict::NeedsClarification { question } => (
+                TurnStatus::NeedsClarification,
+                TurnEffect::None,
+                Some(question.clone()),
+                None,
+                None,
+            ),
+            Verdict::NotUnderstood { reason } => (
+                TurnStatus::NotUnderstood,
+                TurnEffect::None,
+                None,
+                Some(reason.clone()),
+                None,
+            ),
+            Verdict::NothingToChange => (
+                TurnStatus::NothingToChange,
+                TurnEffect::None,
+                None,
+                None,
+                None,
+            ),
+        };
+        let result_json = serde_json::json!({
+            "changes": changes_out,
+            "unmet": outcome.unmet,
+            "question": question,
+            "reason": reason,
+            "solver_gap": outcome.solver_gap,
+        })
+        .to_string();
+        let makes_version = matches!(outcome.verdict, Verdict::Applied(_));
+        let redo_after: Vec<VersionKey> = if makes_version {
+            Vec::new()
+        } else {
+            conversation_state.redo.clone()
+        };
+        let (turn_key, new_version) = lock(&self.log)
+            .commit_turn(
+                &NewTurn {
+                    conversation,
+                    kind: "utterance",
+                    text,
+                    focus_json: focus_json.as_deref(),
+                    status: status_text(status),
+                    constraints_json: &constraints_json,
+                    result_json: &result_json,
+                    operator,
+                    effect,
+                },
+                Some((&conversation_state.applied, &redo_after)),
+            )
+            .map_err(log_error)?;
+        // Committed: now the memory follows the log.
+        self.metrics.record_turn(new_version.is_some());
+        conversation_state.history.push(PastTurn {
+            utterance: text.to_string(),
+            focus: focus_internal,
+            constraints: outcome.constraints.clone(),
+        });
+        match outcome.verdict {
+            Verdict::Applied(state) => {
+                if let Some(version) = new_version {
+                    scene.head = version;
+                    scene.state = state;
+                    conversation_state.applied.push(version);
+                    conversation_state.redo.clear();
+                    conversation_state.pending = None;
+                }
+            }
+            Verdict::NeedsConfirmation { proposed, reason } => {
+                conversation_state.pending = Some(PendingSlot {
+                    base: head,
+                    state: proposed,
+                    reason,
+                    changes: outcome.changes.clone(),
+                    utterance: text.to_string(),
+                    constraints: outcome.constraints.clone(),
+                });
+            }
+            _ => {}
+        }
+        Ok(UtteranceReply {
+            turn_id: turn_key.0,
+            status,
+            constraints: outcome.constraints.iter().map(constraint_out).collect(),
+            changes: changes_out,
+            unmet: outcome.unmet.iter().map(unmet_out).collect(),
+            question,
+            pending: pending_out,
+            reason,
+            scene_version: scene.head.0,
+        })
+    }
+
+    /// Applies the conversation's pending change.
+    pub fn confirm(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+    ) -> Result<TurnReply, ApiError> {
+        let conversation_slot = self.conversation_slot(conversation)?;
+        let mut conversation_state = lock(&conversation_slot);
+        let scene_slot = self.scene_slot(conversation_state.scene)?;
+        let mut scene = lock(&scene_slot);
+        let pending = conversation_state.pending.as_ref().ok_or_else(|| {
+            ApiError::conflict(
+                "no_pending_change",
+                "this conversation has no change waiting for confirmation",
+            )
+        })?;
+        if pending.base != scene.head {
+            return Err(ApiError::conflict(
+                "stale_change",
+                "the scene changed since this change was proposed; reject it and say it again",
+            ));
+        }
+        let constraints_json =
+            serde_json::to_string(&pending.constraints).map_err(ApiError::internal)?;
+        let (turn_key, new_version) = lock(&self.log)
+            .commit_turn(
+                &NewTurn {
+                    conversation,
+                    kind: "confirm",
+                    text: &pending.utterance,
+                    focus_json: None,
+                    status: status_text(TurnStatus::Confirmed),
+                    constraints_json: &constraints_json,
+                    result_json: &serde_json::json!({ "reason": pending.reason }).to_string(),
+                    operator,
+                    effect: TurnEffect::NewVersion {
+                        base: scene.head,
+                        state: encode_state(&pending.state)?,
+                        utterance: pending.utterance.clone(),
+                        constraints_json: constraints_json.clone(),
+                    },
+                },
+                Some((&conversation_state.applied, &[])),
+            )
+            .map_err(log_error)?;
+        self.metrics.record_turn(new_version.is_some());
+        if let (Some(version), Some(pending)) = (new_version, conversation_state.pending.take()) {
+            scene.head = version;
+            scene.state = pending.state;
+            conversation_state.applied.push(version);
+            conversation_state.redo.clear();
+        }
+        Ok(TurnReply {
+            turn_id: turn_key.0,
+            status: TurnStatus::Confirmed,
+            scene_version: scene.head.0,
+        })
+    }
+
+    /// Drops the conversation's pending change.
+    pub fn reject(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+    ) -> Result<TurnReply, ApiError> {
+        let conversation_slot = self.conversation_slot(conversation)?;
+        let mut conversation_state = lock(&conversation_slot);
+        let scene_slot = self.scene_slot(conversation_state.scene)?;
+        let scene = lock(&scene_slot);
+        let pending = conversation_state.pending.as_ref().ok_or_else(|| {
+            ApiError::conflict(
+                "no_pending_change",
+                "this conversation has no change waiting for confirmation",
+            )
+        })?;
+        let (turn_key, _) = lock(&self.log)
+            .commit_turn(
+                &NewTurn {
+                    conversation,
+                    kind: "reject",
+                    text: &pending.utterance,
+                    focus_json: None,
+                    status: status_text(TurnStatus::Rejected),
+                    constraints_json: "[]",
+                    result_json: "{}",
+                    operator,
+                    effect: TurnEffect::ClearPending,
+                },
+                None,
+            )
+            .map_err(log_error)?;
+        self.metrics.record_turn(false);
+        conversation_state.pending = None;
+        Ok(TurnReply {
+            turn_id: turn_key.0,
+            status: TurnStatus::Rejected,
+            scene_version: scene.head.0,
+        })
+    }
+
+    /// Takes back this conversation's latest change, when it is still the scene's head.
+    pub fn undo(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+    ) -> Result<TurnReply, ApiError> {
+        let conversation_slot = self.conversation_slot(conversation)?;
+        let mut conversation_state = lock(&conversation_slot);
+        let scene_slot = self.scene_slot(conversation_state.scene)?;
+        let mut scene = lock(&scene_slot);
+        let latest = *conversation_state.applied.last().ok_or_else(|| {
+            ApiError::conflict(
+                "nothing_to_undo",
+                "this conversation has no applied change to undo",
+            )
+        })?;
+        if latest != scene.head {
+            return Err(ApiError::conflict(
+                "undo_blocked",
+                "another conversation changed the scene after this one; undo that change first",
+            ));
+        }
+        let (parent_state, parent) = {
+            let log = lock(&self.log);
+            let (_, parent) = log.version(latest).map_err(log_error)?;
+            let parent =
+                parent.ok_or_else(|| ApiError::internal("an applied version has no parent"))?;
+            let (record, _) = log.version(parent).map_err(log_error)?;
+            (decode_state(&record).map_err(ApiError::internal)?, parent)
+        };
+        let mut applied_after = conversation_state.applied.clone();
+        applied_after.pop();
+        let mut redo_after = conversation_state.redo.clone();
+        redo_after.push(latest);
+        let (turn_key, _) = lock(&self.log)
+            .commit_turn(
+                &NewTurn {
+                    conversation,
+                    kind: "undo",
+                    text: "",
+                    focus_json: None,
+                    status: status_text(TurnStatus::Undone),
+                    constraints_json: "[]",
+                    result_json: "{}",
+                    operator,
+                    effect: TurnEffect::MoveHead {
+                        from: latest,
+                        to: parent,
+                        deactivate: Some(latest),
+                        activate: None,
+                    },
+                },
+                Some((&applied_after, &redo_after)),
+            )
+            .map_err(log_error)?;
+        self.metrics.record_turn(false);
+        scene.head = parent;
+        scene.state = parent_state;
+        conversation_state.applied = applied_after;
+        conversation_state.redo = redo_after;
+        Ok(TurnReply {
+            turn_id: turn_key.0,
+            status: TurnStatus::Undone,
+            scene_version: parent.0,
+        })
+    }
+
+    /// Puts back the change this conversation undid last, when nothing has changed the scene since.
+    pub fn redo(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+    ) -> Result<TurnReply, ApiError> {
+        let conversation_slot = self.conversation_slot(conversation)?;
+        let mut conversation_state = lock(&conversation_slot);
+        let scene_slot = self.scene_slot(conversation_state.scene)?;
+        let mut scene = lock(&scene_slot);
+        let undone = *conversation_state.redo.last().ok_or_else(|| {
+            ApiError::conflict(
+                "nothing_to_redo",
+                "this conversation has no undone change to redo",
+            )
+        })?;
+        let (state, parent) = {
+            let log = lock(&self.log);
+            let (record, parent) = log.version(undone).map_err(log_error)?;
+            (decode_state(&record).map_err(ApiError::internal)?, parent)
+        };
+        if parent != Some(scene.head) {
+            return Err(ApiError::conflict(
+                "redo_blocked",
+                "the scene changed after the undo; the undone change no longer fits on top",
+            ));
+        }
+        let mut applied_after = conversation_state.applied.clone();
+        applied_after.push(undone);
+        let mut redo_after = conversation_state.redo.clone();
+        redo_after.pop();
+        let (turn_key, _) = lock(&self.log)
+            .commit_turn(
+                &NewTurn {
+                    conversation,
+                    kind: "redo",
+                    text: "",
+                    focus_json: None,
+                    status: status_text(TurnStatus::Redone),
+                    constraints_json: "[]",
+                    result_json: "{}",
+                    operator,
+                    effect: TurnEffect::MoveHead {
+                        from: scene.head,
+                        to: undone,
+                        deactivate: None,
+                        activate: Some(undone),
+                    },
+                },
+                Some((&applied_after, &redo_after)),
+            )
+            .map_err(log_error)?;
+        self.metrics.record_turn(false);
+        scene.head = undone;
+        scene.state = state;
+        conversation_state.applied = applied_after;
+        conversation_state.redo = redo_after;
+        Ok(TurnReply {
+            turn_id: turn_key.0,
+            status: TurnStatus::Redone,
+            scene_version: undone.0,
+        })
+    }
+
+    /// The conversation's turns, oldest first, and its pending change.
+    pub fn history(&self, conversation: ConversationKey) -> Result<HistoryOut, ApiError> {
+        let conversation_slot = self.conversation_slot(conversation)?;
+        let conversation_state = lock(&conversation_slot);
+        let taxonomy = self.corrector.taxonomy();
+        let turns = lock(&self.log).turns(conversation).map_err(log_error)?;
+        Ok(HistoryOut {
+            conversation_id: conversation_state.key.0,
+            scene_id: conversation_state.scene.0,
+            pending: conversation_state
+                .pending
+                .as_ref()
+                .map(|pending| PendingOut {
+                    reason: pending.reason.clone(),
+                    changes: pending
+                        .changes
+                        .iter()
+                        .map(|change| change_out(change, taxonomy))
+                        .collect(),
+                }),
+            turns: turns
+                .into_iter()
+                .map(|turn| {
+                    let constraints: Vec<Constraint> =
+                        serde_json::from_str(&turn.constraints_json).unwrap_or_default();
+                    TurnOut {
+                        turn_id: turn.key.0,
+                        kind: turn.kind,
+                        text: turn.text,
+                        status: status_from_text(&turn.status),
+                        constraints: constraints
+                            .iter()
+                            .map(|constraint| constraint.gloss.clone())
+                            .collect(),
+                        scene_version: turn.scene_version.map(|version| version.0),
+                        operator: turn.operator,
+                        at: turn.created_at,
+                    }
+                })
+                .collect(),
+        })
+    }
+
+    /// The operator and scene of a conversation.
+    pub fn conversation_owner(
+        &self,
+        conversation: ConversationKey,
+    ) -> Result<(String, i64, String), ApiError> {
+        let slot = self.conversation_slot(conversation)?;
+        let state = lock(&slot);
+        Ok((
+            state.operator.clone(),
+            state.scene.0,
+            state.opened_at.clone(),
+        ))
+    }
+}

@@ -1,0 +1,188 @@
+//! The one narrow interface between the service and the correction pipeline: the `Corrector` trait.
+//!
+//! Owns: `Corrector` and the plain values that cross it (`SceneInput`, `SceneState`, `SceneSummary`,
+//! `CorrectionRequest`, `CorrectionOutcome`, `Verdict`), plus a default overlay renderer.
+//! Must not: know about HTTP, JSON wire shapes, SQLite or tokio. A corrector is called synchronously, from
+//! a blocking thread, with the scene's lock held; it never stores anything itself that must survive a
+//! restart — everything it needs again goes into `SceneState::engine_state`, which the service persists.
+
+use serde::{Deserialize, Serialize};
+
+use crate::ids::{ClassId, ObjectId, RoomId};
+use crate::language::constraint::{Constraint, Focus};
+use crate::raster::{DepthImage, IndexImage, RgbImage};
+use crate::scene::BoundingBox;
+use crate::taxonomy::{Taxonomy, UNLABELLED};
+
+/// A key the service gives each registered scene; a corrector may cache per key.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+pub struct SceneHandle(pub i64);
+
+/// A detection box handed in with a scene.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Detection {
+    pub class: ClassId,
+    pub bbox: BoundingBox,
+    /// 0..1.
+    pub score: f32,
+}
+
+/// Everything a scene is registered with. The image is decoded and within the pixel limit; the other parts
+/// are checked by the corrector (it alone knows what it can use).
+#[derive(Clone, Debug)]
+pub struct SceneInput {
+    pub name: String,
+    pub image: RgbImage,
+    pub depth: Option<DepthImage>,
+    /// Raw NPY bytes of per-pixel class scores, as sent.
+    pub scores_npy: Option<Vec<u8>>,
+    pub label_map: Option<IndexImage>,
+    pub detections: Vec<Detection>,
+    pub room: Option<RoomId>,
+}
+
+/// One object of the current scene graph, as the service shows it.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SceneObject {
+    pub id: ObjectId,
+    pub class: ClassId,
+    pub bbox: BoundingBox,
+    /// Pixels.
+    pub area: u64,
+}
+
+/// The scene graph reduced to what the service reports: objects and the room type.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
+pub struct SceneSummary {
+    pub objects: Vec<SceneObject>,
+    pub room: Option<RoomId>,
+}
+
+/// A scene's labelling at one version: label map, summary, and whatever else the engine needs later.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SceneState {
+    pub labels: IndexImage,
+    pub summary: SceneSummary,
+    /// Opaque to the service; stored with every version and handed back unchanged.
+    pub engine_state: Vec<u8>,
+}
+
+/// An earlier utterance of the same conversation (for "it", "that one", "no, the other").
+#[derive(Clone, Debug, PartialEq)]
+pub struct PastTurn {
+    pub utterance: String,
+    pub focus: Option<Focus>,
+    pub constraints: Vec<Constraint>,
+}
+
+/// One correction to work out.
+#[derive(Clone, Copy, Debug)]
+pub struct CorrectionRequest<'a> {
+    pub scene: SceneHandle,
+    pub image: &'a RgbImage,
+    pub state: &'a SceneState,
+    pub history: &'a [PastTurn],
+    pub utterance: &'a str,
+    pub focus: Option<Focus>,
+}
+
+/// One change a correction makes, for the operator to read.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Change {
+    pub object: Option<ObjectId>,
+    pub from: Option<ClassId>,
+    pub to: Option<ClassId>,
+    /// Pixels whose label changes.
+    pub pixels: u64,
+    pub description: String,
+}
+
+/// A constraint the solve could not satisfy, and why.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Unmet {
+    pub gloss: String,
+    pub reason: String,
+}
+
+/// What becomes of the utterance.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Verdict {
+    /// The new state is in force as soon as the service has logged it.
+    Applied(SceneState),
+    /// The change touches a safety class (person, pet, hazard) and waits for explicit confirmation.
+    NeedsConfirmation {
+        proposed: SceneState,
+        reason: String,
+    },
+    /// The sentence was understood but is ambiguous; ask this.
+    NeedsClarification { question: String },
+    /// Nothing usable was found in the sentence.
+    NotUnderstood { reason: String },
+    /// Understood, and the scene already agrees.
+    NothingToChange,
+}
+
+/// The result of one utterance.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CorrectionOutcome {
+    pub constraints: Vec<Constraint>,
+    pub changes: Vec<Change>,
+    pub unmet: Vec<Unmet>,
+    /// Relative gap between the solution's energy and the best lower bound, when the solver reports one.
+    pub solver_gap: Option<f64>,
+    pub verdict: Verdict,
+}
+
+/// What went wrong inside a corrector.
+#[derive(Debug, thiserror::Error)]
+pub enum CorrectorError {
+    /// The caller sent something the corrector cannot use; `field` names the part.
+    #[error("{field}: {message}")]
+    BadInput { field: String, message: String },
+    /// A fault inside the engine; logged, never shown to callers.
+    #[error("internal corrector fault: {0}")]
+    Internal(String),
+}
+
+/// The correction pipeline as the service sees it. Implementations must be cheap to share across threads.
+pub trait Corrector: Send + Sync + 'static {
+    /// The taxonomy whose class ids the corrector speaks.
+    fn taxonomy(&self) -> &Taxonomy;
+
+    /// Builds the first state of a newly registered scene. The scene has no handle yet (it gets one when
+    /// the log commits it); anything worth caching can be cached by handle on the first `apply`.
+    fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError>;
+
+    /// Works out one utterance against the scene's current state. Must not assume it is applied: the
+    /// service decides (and may roll it back if logging fails).
+    fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError>;
+
+    /// The overlay image: the picture with class colours blended in. The default blends half and half.
+    fn overlay(&self, image: &RgbImage, state: &SceneState) -> RgbImage {
+        blend_overlay(image, &state.labels, self.taxonomy())
+    }
+}
+
+/// Blends each labelled pixel half-and-half with its class colour; unlabelled pixels stay as they are.
+pub fn blend_overlay(image: &RgbImage, labels: &IndexImage, taxonomy: &Taxonomy) -> RgbImage {
+    let palette: Vec<[u8; 3]> = taxonomy
+        .classes()
+        .iter()
+        .map(|class| class.colour)
+        .collect();
+    let mut out = image.clone();
+    if labels.width != image.width || labels.height != image.height {
+        return out;
+    }
+    for (pixel, &label) in out.pixels.iter_mut().zip(labels.values.iter()) {
+        if label == UNLABELLED {
+            continue;
+        }
+        if let Some(colour) = palette.get(label as usize) {
+            for channel in 0..3 {
+                pixel[channel] = ((pixel[channel] as u16 + colour[channel] as u16) / 2) as u8;
+            }
+        }
+    }
+    out
+}

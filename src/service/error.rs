@@ -1,0 +1,112 @@
+//! The service's one error type and its one JSON shape, `{"code": ..., "message": ...}`.
+//!
+//! Owns: `ApiError`, the stable error codes, their HTTP statuses, and the rule that a 5xx answer never
+//! carries internals (they are logged with tracing instead).
+//! Must not: decide when an error happens; handlers and the coordinator do.
+
+use axum::http::StatusCode;
+use axum::response::{IntoResponse, Response};
+use axum::Json;
+
+use super::wire::ErrorBody;
+
+/// A failure answered to the caller.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ApiError {
+    pub status: StatusCode,
+    /// Stable, snake_case; clients branch on it.
+    pub code: &'static str,
+    /// Plain words: what was wrong and what to change.
+    pub message: String,
+}
+
+impl ApiError {
+    /// A 4xx error with a code and a message for the caller.
+    pub fn caller(status: StatusCode, code: &'static str, message: impl Into<String>) -> ApiError {
+        ApiError {
+            status,
+            code,
+            message: message.into(),
+        }
+    }
+
+    /// 400: the body was not the JSON the route expects.
+    pub fn bad_request(code: &'static str, message: impl Into<String>) -> ApiError {
+        ApiError::caller(StatusCode::BAD_REQUEST, code, message)
+    }
+
+    /// 404: an id that is not in the log.
+    pub fn unknown(code: &'static str, what: &str, id: i64) -> ApiError {
+        ApiError::caller(
+            StatusCode::NOT_FOUND,
+            code,
+            format!("there is no {what} with id {id}; list or create one first"),
+        )
+    }
+
+    /// 409: the request conflicts with the current state.
+    pub fn conflict(code: &'static str, message: impl Into<String>) -> ApiError {
+        ApiError::caller(StatusCode::CONFLICT, code, message)
+    }
+
+    /// 422: well-formed but unusable.
+    pub fn unprocessable(code: &'static str, message: impl Into<String>) -> ApiError {
+        ApiError::caller(StatusCode::UNPROCESSABLE_ENTITY, code, message)
+    }
+
+    /// 500: logs `detail` and tells the caller only that something went wrong on our side.
+    pub fn internal(detail: impl std::fmt::Display) -> ApiError {
+        tracing::error!(%detail, "internal error");
+        ApiError {
+            status: StatusCode::INTERNAL_SERVER_ERROR,
+            code: "internal",
+            message: "the service hit an internal fault; the request was not applied, try again"
+                .to_string(),
+        }
+    }
+
+    /// The wire body.
+    pub fn body(&self) -> ErrorBody {
+        ErrorBody {
+            code: self.code.to_string(),
+            message: self.message.clone(),
+        }
+    }
+}
+
+impl IntoResponse for ApiError {
+    fn into_response(self) -> Response {
+        (self.status, Json(self.body())).into_response()
+    }
+}
+
+/// The error code used when a bare status (from a layer or the router) has to be put into the JSON shape.
+pub fn code_for_status(status: StatusCode) -> (&'static str, &'static str) {
+    match status {
+        StatusCode::NOT_FOUND => (
+            "no_such_route",
+            "no route matches this path; see /v1/openapi.json",
+        ),
+        StatusCode::METHOD_NOT_ALLOWED => (
+            "method_not_allowed",
+            "this route does not take that method; see /v1/openapi.json",
+        ),
+        StatusCode::PAYLOAD_TOO_LARGE => (
+            "body_too_large",
+            "the request body is larger than the configured body_limit_bytes",
+        ),
+        StatusCode::UNSUPPORTED_MEDIA_TYPE => (
+            "bad_content_type",
+            "send the body as JSON with Content-Type: application/json",
+        ),
+        StatusCode::REQUEST_TIMEOUT | StatusCode::SERVICE_UNAVAILABLE => (
+            "timeout",
+            "the request took longer than the configured request_timeout_ms",
+        ),
+        status if status.is_server_error() => (
+            "internal",
+            "the service hit an internal fault; the request was not applied, try again",
+        ),
+        _ => ("bad_request", "the request could not be read"),
+    }
+}

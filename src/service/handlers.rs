@@ -1,0 +1,345 @@
+//! Route handlers: read the request, hand the work to the coordinator on a blocking thread, answer.
+//!
+//! Owns: extracting and checking path ids and JSON bodies (every rejection in the JSON error shape), the
+//! status codes of successful answers, and each route's OpenAPI description.
+//! Must not: hold correction logic or touch the log directly.
+
+use std::sync::Arc;
+
+use axum::extract::rejection::JsonRejection;
+use axum::extract::{Path, State};
+use axum::http::StatusCode;
+use axum::response::{IntoResponse, Response};
+use axum::{Extension, Json};
+
+use crate::correction_log::{ConversationKey, SceneKey};
+
+use super::coordinator::{Coordinator, SceneUpload};
+use super::error::ApiError;
+use super::guard::{bytes_response, Operator};
+use super::wire::{
+    ClassOut, ConversationOut, ErrorBody, HealthOut, HistoryOut, OpenConversationRequest,
+    RegisterSceneRequest, SceneCreated, SceneGraphOut, TurnReply, UtteranceReply, UtteranceRequest,
+};
+use super::AppState;
+
+async fn blocking<T: Send + 'static>(
+    state: &AppState,
+    work: impl FnOnce(&Coordinator) -> Result<T, ApiError> + Send + 'static,
+) -> Result<T, ApiError> {
+    let coordinator: Arc<Coordinator> = state.coordinator.clone();
+    tokio::task::spawn_blocking(move || work(&coordinator))
+        .await
+        .map_err(ApiError::internal)?
+}
+
+fn body<T>(payload: Result<Json<T>, JsonRejection>) -> Result<T, ApiError> {
+    match payload {
+        Ok(Json(value)) => Ok(value),
+        Err(JsonRejection::JsonSyntaxError(error)) => Err(ApiError::bad_request(
+            "bad_json",
+            format!("the body is not valid JSON: {}", error.body_text()),
+        )),
+        Err(JsonRejection::JsonDataError(error)) => Err(ApiError::bad_request(
+            "wrong_shape",
+            format!(
+                "the JSON does not have the fields and types this route takes: {}",
+                error.body_text()
+            ),
+        )),
+        Err(JsonRejection::MissingJsonContentType(_)) => Err(ApiError::caller(
+            StatusCode::UNSUPPORTED_MEDIA_TYPE,
+            "bad_content_type",
+            "send the body as JSON with Content-Type: application/json",
+        )),
+        Err(JsonRejection::BytesRejection(error))
+            if error.status() == StatusCode::PAYLOAD_TOO_LARGE =>
+        {
+            Err(ApiError::caller(
+                StatusCode::PAYLOAD_TOO_LARGE,
+                "body_too_large",
+                "the request body is larger than the configured body_limit_bytes",
+            ))
+        }
+        Err(other) => Err(ApiError::bad_request(
+            "bad_body",
+            format!("the body could not be read: {}", other.body_text()),
+        )),
+    }
+}
+
+fn path_id(text: &str, what: &str) -> Result<i64, ApiError> {
+    text.parse::<i64>()
+        .ok()
+        .filter(|id| *id > 0)
+        .ok_or_else(|| {
+            ApiError::bad_request(
+                "bad_id",
+                format!(
+                    "{what} ids are positive integers; got {:?}",
+                    text.chars().take(40).collect::<String>()
+                ),
+            )
+        })
+}
+
+fn answer<T: serde::Serialize>(result: Result<T, ApiError>, status: StatusCode) -> Response {
+    match result {
+        Ok(value) => (status, Json(value)).into_response(),
+        Err(error) => error.into_response(),
+    }
+}
+
+/// Liveness and what is loaded.
+#[utoipa::path(get, path = "/v1/health", tag = "service",
+    responses((status = 200, description = "The service is up", body = HealthOut)))]
+pub async fn health(State(state): State<AppState>) -> Response {
+    answer(
+        blocking(&state, |coordinator| coordinator.health()).await,
+        StatusCode::OK,
+    )
+}
+
+/// Metrics in the Prometheus text exposition format.
+#[utoipa::path(get, path = "/v1/metrics", tag = "service", security(("bearer" = [])),
+    responses((status = 200, description = "Prometheus text format 0.0.4", content_type = "text/plain")))]
+pub async fn metrics(State(state): State<AppState>) -> Response {
+    bytes_response(
+        "text/plain; version=0.0.4; charset=utf-8",
+        state.metrics.render().into_bytes(),
+    )
+}
+
+/// This document.
+#[utoipa::path(get, path = "/v1/openapi.json", tag = "service",
+    responses((status = 200, description = "The OpenAPI 3.1 document", content_type = "application/json")))]
+pub async fn openapi_document() -> Response {
+    bytes_response(
+        "application/json",
+        super::openapi::document_json().into_bytes(),
+    )
+}
+
+/// The class taxonomy the service speaks.
+#[utoipa::path(get, path = "/v1/classes", tag = "scenes", security(("bearer" = [])),
+    responses((status = 200, description = "Every class", body = [ClassOut])))]
+pub async fn classes(State(state): State<AppState>) -> Response {
+    let classes: Vec<ClassOut> = state
+        .coordinator
+        .corrector()
+        .taxonomy()
+        .classes()
+        .iter()
+        .map(|class| ClassOut {
+            class_id: class.id.0,
+            name: class.name.clone(),
+            safety: class.safety,
+            colour: class.colour,
+        })
+        .collect();
+    (StatusCode::OK, Json(classes)).into_response()
+}
+
+/// Register a scene from an image (with optional depth, scores, label map, detections) or a demo name.
+#[utoipa::path(post, path = "/v1/scenes", tag = "scenes", security(("bearer" = [])),
+    request_body = RegisterSceneRequest,
+    responses(
+        (status = 201, description = "Registered and committed", body = SceneCreated),
+        (status = 400, description = "Malformed body or base64", body = ErrorBody),
+        (status = 404, description = "No such demo scene", body = ErrorBody),
+        (status = 413, description = "Body or image too large", body = ErrorBody),
+        (status = 422, description = "Unreadable PNG or NPY, sizes that do not match, unknown names", body = ErrorBody)))]
+pub async fn register_scene(
+    State(state): State<AppState>,
+    Extension(Operator(operator)): Extension<Operator>,
+    payload: Result<Json<RegisterSceneRequest>, JsonRejection>,
+) -> Response {
+    let result = async {
+        let upload = SceneUpload::from_request(body(payload)?)?;
+        blocking(&state, move |coordinator| {
+            coordinator.register_scene(upload, &operator)
+        })
+        .await
+    }
+    .await;
+    answer(result, StatusCode::CREATED)
+}
+
+/// The current scene graph. Advisory only.
+#[utoipa::path(get, path = "/v1/scenes/{scene_id}", tag = "scenes", security(("bearer" = [])),
+    params(("scene_id" = i64, Path, description = "A scene id from POST /v1/scenes")),
+    responses((status = 200, description = "The scene graph", body = SceneGraphOut),
+        (status = 404, description = "Unknown scene", body = ErrorBody)))]
+pub async fn scene_graph(State(state): State<AppState>, Path(scene_id): Path<String>) -> Response {
+    let result = async {
+        let scene = SceneKey(path_id(&scene_id, "scene")?);
+        blocking(&state, move |coordinator| coordinator.scene_graph(scene)).await
+    }
+    .await;
+    answer(result, StatusCode::OK)
+}
+
+fn png_answer(result: Result<Vec<u8>, ApiError>) -> Response {
+    match result {
+        Ok(bytes) => bytes_response("image/png", bytes),
+        Err(error) => error.into_response(),
+    }
+}
+
+/// The current label map as a single-channel index PNG (pixel = class id, 255 = unlabelled).
+#[utoipa::path(get, path = "/v1/scenes/{scene_id}/labels.png", tag = "scenes", security(("bearer" = [])),
+    params(("scene_id" = i64, Path, description = "A scene id")),
+    responses((status = 200, description = "Index PNG", content_type = "image/png"),
+        (status = 404, description = "Unknown scene", body = ErrorBody)))]
+pub async fn label_map(State(state): State<AppState>, Path(scene_id): Path<String>) -> Response {
+    let result = async {
+        let scene = SceneKey(path_id(&scene_id, "scene")?);
+        blocking(&state, move |coordinator| coordinator.label_map_png(scene)).await
+    }
+    .await;
+    png_answer(result)
+}
+
+/// The picture with the current labels blended in, in the generated class colours.
+#[utoipa::path(get, path = "/v1/scenes/{scene_id}/overlay.png", tag = "scenes", security(("bearer" = [])),
+    params(("scene_id" = i64, Path, description = "A scene id")),
+    responses((status = 200, description = "RGB PNG", content_type = "image/png"),
+        (status = 404, description = "Unknown scene", body = ErrorBody)))]
+pub async fn overlay(State(state): State<AppState>, Path(scene_id): Path<String>) -> Response {
+    let result = async {
+        let scene = SceneKey(path_id(&scene_id, "scene")?);
+        blocking(&state, move |coordinator| coordinator.overlay_png(scene)).await
+    }
+    .await;
+    png_answer(result)
+}
+
+/// Open a conversation on a scene.
+#[utoipa::path(post, path = "/v1/conversations", tag = "conversations", security(("bearer" = [])),
+    request_body = OpenConversationRequest,
+    responses((status = 201, description = "Opened", body = ConversationOut),
+        (status = 404, description = "Unknown scene", body = ErrorBody)))]
+pub async fn open_conversation(
+    State(state): State<AppState>,
+    Extension(Operator(operator)): Extension<Operator>,
+    payload: Result<Json<OpenConversationRequest>, JsonRejection>,
+) -> Response {
+    let result = async {
+        let request = body(payload)?;
+        let scene = SceneKey(request.scene_id);
+        blocking(&state, move |coordinator| {
+            coordinator.open_conversation(scene, &operator)
+        })
+        .await
+    }
+    .await;
+    answer(result, StatusCode::CREATED)
+}
+
+/// A conversation's turns and pending change.
+#[utoipa::path(get, path = "/v1/conversations/{conversation_id}", tag = "conversations", security(("bearer" = [])),
+    params(("conversation_id" = i64, Path, description = "A conversation id")),
+    responses((status = 200, description = "History, oldest first", body = HistoryOut),
+        (status = 404, description = "Unknown conversation", body = ErrorBody)))]
+pub async fn history(
+    State(state): State<AppState>,
+    Path(conversation_id): Path<String>,
+) -> Response {
+    let result = async {
+        let conversation = ConversationKey(path_id(&conversation_id, "conversation")?);
+        blocking(&state, move |coordinator| coordinator.history(conversation)).await
+    }
+    .await;
+    answer(result, StatusCode::OK)
+}
+
+/// Send an utterance; the answer comes after its turn is committed to the correction log.
+#[utoipa::path(post, path = "/v1/conversations/{conversation_id}/utterances", tag = "conversations",
+    security(("bearer" = [])),
+    params(("conversation_id" = i64, Path, description = "A conversation id")),
+    request_body = UtteranceRequest,
+    responses((status = 200, description = "Understood, applied, pending, or a question back", body = UtteranceReply),
+        (status = 400, description = "Malformed body", body = ErrorBody),
+        (status = 404, description = "Unknown conversation", body = ErrorBody),
+        (status = 409, description = "The scene changed meanwhile", body = ErrorBody),
+        (status = 422, description = "Empty or too long, focus outside the image", body = ErrorBody),
+        (status = 429, description = "Rate limited", body = ErrorBody)))]
+pub async fn utterance(
+    State(state): State<AppState>,
+    Extension(Operator(operator)): Extension<Operator>,
+    Path(conversation_id): Path<String>,
+    payload: Result<Json<UtteranceRequest>, JsonRejection>,
+) -> Response {
+    let result = async {
+        let conversation = ConversationKey(path_id(&conversation_id, "conversation")?);
+        let request = body(payload)?;
+        super::coordinator::check_utterance_text(&request.text)?;
+        blocking(&state, move |coordinator| {
+            coordinator.utterance(conversation, &operator, &request.text, request.focus)
+        })
+        .await
+    }
+    .await;
+    answer(result, StatusCode::OK)
+}
+
+macro_rules! turn_route {
+    ($name:ident, $path:literal, $method:ident, $doc:literal) => {
+        #[doc = $doc]
+        #[utoipa::path(post, path = $path, tag = "conversations", security(("bearer" = [])),
+            params(("conversation_id" = i64, Path, description = "A conversation id")),
+            responses((status = 200, description = "Committed", body = TurnReply),
+                (status = 404, description = "Unknown conversation", body = ErrorBody),
+                (status = 409, description = "Nothing to do, or the scene moved on", body = ErrorBody)))]
+        pub async fn $name(
+            State(state): State<AppState>,
+            Extension(Operator(operator)): Extension<Operator>,
+            Path(conversation_id): Path<String>,
+        ) -> Response {
+            let result = async {
+                let conversation = ConversationKey(path_id(&conversation_id, "conversation")?);
+                blocking(&state, move |coordinator| {
+                    coordinator.$method(conversation, &operator)
+                })
+                .await
+            }
+            .await;
+            answer(result, StatusCode::OK)
+        }
+    };
+}
+
+turn_route!(
+    confirm,
+    "/v1/conversations/{conversation_id}/confirm",
+    confirm,
+    "Apply the change waiting for confirmation (a person, pet or hazard renamed or removed)."
+);
+turn_route!(
+    reject,
+    "/v1/conversations/{conversation_id}/reject",
+    reject,
+    "Drop the change waiting for confirmation."
+);
+turn_route!(
+    undo,
+    "/v1/conversations/{conversation_id}/undo",
+    undo,
+    "Take back this conversation's latest applied change."
+);
+turn_route!(
+    redo,
+    "/v1/conversations/{conversation_id}/redo",
+    redo,
+    "Put back the change this conversation undid last."
+);
+
+/// Any path that is not a route.
+pub async fn no_such_route() -> Response {
+    ApiError::caller(
+        StatusCode::NOT_FOUND,
+        "no_such_route",
+        "no route matches this path; see /v1/openapi.json",
+    )
+    .into_response()
+}

@@ -1,0 +1,135 @@
+//! The correction service: an HTTP API (axum on tokio) over the coordinator and the correction log.
+//!
+//! Owns: `AppState`, `app(state) -> Router` (testable without a socket), `run(listener, shutdown)`, the
+//! route table under `/v1`, access control and limits, metrics and the OpenAPI document.
+//! Must not: work out corrections (that is the `Corrector`'s job, reached only through the coordinator) or
+//! write SQL (the correction log's job).
+//!
+//! **Safety.** A corrected scene is advisory. It is never a substitute for the robot's own safety sensors
+//! and interlocks; follow the robot maker's safety guidance and local regulations when acting on it.
+//! Changes that would remove or rename a person, a pet or a hazard wait for explicit confirmation.
+//!
+//! The pipeline plugs in through one trait, [`corrector::Corrector`]; [`pipeline`] holds the
+//! implementation the binary uses.
+
+pub mod config;
+pub mod coordinator;
+pub mod corrector;
+pub mod error;
+pub mod field_notes;
+mod guard;
+mod handlers;
+pub mod metrics;
+pub mod openapi;
+pub mod pipeline;
+pub mod wire;
+
+use std::collections::HashMap;
+use std::future::Future;
+use std::sync::Arc;
+
+use axum::extract::DefaultBodyLimit;
+use axum::routing::{get, post};
+use axum::Router;
+
+use config::ServiceConfig;
+use coordinator::Coordinator;
+use metrics::Metrics;
+
+/// Everything a request handler can reach. Cheap to clone.
+#[derive(Clone)]
+pub struct AppState {
+    pub coordinator: Arc<Coordinator>,
+    pub config: Arc<ServiceConfig>,
+    pub metrics: Arc<Metrics>,
+    limiter: Arc<guard::RateLimiter>,
+    /// Token to operator name.
+    tokens: Arc<HashMap<String, String>>,
+}
+
+impl AppState {
+    /// Builds the state from a coordinator (already open) and the settings.
+    pub fn new(coordinator: Arc<Coordinator>, config: ServiceConfig) -> AppState {
+        let tokens = config
+            .operators
+            .iter()
+            .map(|operator| (operator.token.clone(), operator.name.clone()))
+            .collect();
+        AppState {
+            metrics: coordinator.metrics().clone(),
+            limiter: Arc::new(guard::RateLimiter::new(
+                config.rate_per_second,
+                config.rate_burst,
+            )),
+            coordinator,
+            config: Arc::new(config),
+            tokens: Arc::new(tokens),
+        }
+    }
+}
+
+/// The whole HTTP application.
+pub fn app(state: AppState) -> Router {
+    let protected = Router::new()
+        .route("/v1/metrics", get(handlers::metrics))
+        .route("/v1/classes", get(handlers::classes))
+        .route("/v1/scenes", post(handlers::register_scene))
+        .route("/v1/scenes/{scene_id}", get(handlers::scene_graph))
+        .route("/v1/scenes/{scene_id}/labels.png", get(handlers::label_map))
+        .route("/v1/scenes/{scene_id}/overlay.png", get(handlers::overlay))
+        .route("/v1/conversations", post(handlers::open_conversation))
+        .route(
+            "/v1/conversations/{conversation_id}",
+            get(handlers::history),
+        )
+        .route(
+            "/v1/conversations/{conversation_id}/utterances",
+            post(handlers::utterance),
+        )
+        .route(
+            "/v1/conversations/{conversation_id}/confirm",
+            post(handlers::confirm),
+        )
+        .route(
+            "/v1/conversations/{conversation_id}/reject",
+            post(handlers::reject),
+        )
+        .route(
+            "/v1/conversations/{conversation_id}/undo",
+            post(handlers::undo),
+        )
+        .route(
+            "/v1/conversations/{conversation_id}/redo",
+            post(handlers::redo),
+        )
+        .route_layer(axum::middleware::from_fn_with_state(
+            state.clone(),
+            guard::authorise,
+        ));
+    Router::new()
+        .route("/v1/health", get(handlers::health))
+        .route("/v1/openapi.json", get(handlers::openapi_document))
+        .merge(protected)
+        .fallback(handlers::no_such_route)
+        .layer(DefaultBodyLimit::max(state.config.body_limit_bytes))
+        .layer(axum::middleware::from_fn_with_state(
+            state.clone(),
+            guard::time_limit,
+        ))
+        .layer(axum::middleware::from_fn_with_state(
+            state.clone(),
+            guard::shape_and_measure,
+        ))
+        .with_state(state)
+}
+
+/// Serves `app(state)` on `listener` until `shutdown` resolves, then finishes requests in flight.
+pub async fn run(
+    listener: tokio::net::TcpListener,
+    state: AppState,
+    shutdown: impl Future<Output = ()> + Send + 'static,
+) -> std::io::Result<()> {
+    axum::serve(listener, app(state))
+        .with_graceful_shutdown(shutdown)
+        .await
+}

@@ -1,0 +1,254 @@
+//! The HTTP JSON shapes of API version 1: what callers send and what they get back.
+//!
+//! Owns: request and response bodies, named for callers (class names, not ids, wherever a person reads
+//! them), with their OpenAPI schemas derived from the same types.
+//! Must not: be used inside the pipeline; the coordinator converts between these and internal types, so
+//! internal types can change without breaking callers.
+
+use serde::{Deserialize, Serialize};
+use utoipa::ToSchema;
+
+/// Every failure: a stable code to branch on and a plain message saying what to fix.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
+pub struct ErrorBody {
+    /// Stable snake_case code, e.g. `unknown_scene`, `bad_json`, `rate_limited`.
+    pub code: String,
+    pub message: String,
+}
+
+/// An axis-aligned box in pixels (`x1`, `y1` exclusive).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
+#[serde(deny_unknown_fields)]
+pub struct PixelBox {
+    pub x0: u32,
+    pub y0: u32,
+    pub x1: u32,
+    pub y1: u32,
+}
+
+/// A detection sent with a scene.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+#[serde(deny_unknown_fields)]
+pub struct DetectionIn {
+    /// A class name from the taxonomy (`GET /v1/classes`).
+    pub class: String,
+    #[serde(rename = "box")]
+    pub bbox: PixelBox,
+    /// 0..1.
+    pub score: f32,
+}
+
+/// Register a scene: either `demo` (a demo scene's name) or `image_png_base64` with optional extras.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema, Default)]
+#[serde(deny_unknown_fields)]
+pub struct RegisterSceneRequest {
+    /// A name for people; defaults to the demo name or "scene".
+    pub name: Option<String>,
+    /// The name of a demo scene under the service's demo directory.
+    pub demo: Option<String>,
+    /// The colour image as a base64-encoded PNG.
+    pub image_png_base64: Option<String>,
+    /// A 16-bit depth PNG in millimetres, base64.
+    pub depth_png_base64: Option<String>,
+    /// Per-pixel class scores as a base64-encoded NPY array (height x width x classes, little-endian f32).
+    pub scores_npy_base64: Option<String>,
+    /// A label map as a base64-encoded single-channel index PNG (pixel value = class id, 255 = unlabelled).
+    pub label_map_png_base64: Option<String>,
+    #[serde(default)]
+    pub detections: Vec<DetectionIn>,
+    /// A room type name, when known.
+    pub room: Option<String>,
+}
+
+/// A registered scene.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct SceneCreated {
+    pub scene_id: i64,
+    pub name: String,
+    pub width: u32,
+    pub height: u32,
+    pub version: i64,
+}
+
+/// One object of the scene graph.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ObjectOut {
+    pub object_id: u32,
+    pub class: String,
+    pub class_id: u16,
+    /// True for people, pets and hazards: renaming or removing them needs confirmation.
+    pub safety: bool,
+    #[serde(rename = "box")]
+    pub bbox: PixelBox,
+    pub area_pixels: u64,
+}
+
+/// The current scene graph of a scene. Advisory only: never a substitute for the robot's safety sensors.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct SceneGraphOut {
+    pub scene_id: i64,
+    pub name: String,
+    pub version: i64,
+    pub width: u32,
+    pub height: u32,
+    pub room: Option<String>,
+    pub objects: Vec<ObjectOut>,
+}
+
+/// Open a conversation on a scene.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+#[serde(deny_unknown_fields)]
+pub struct OpenConversationRequest {
+    pub scene_id: i64,
+}
+
+/// An open conversation.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ConversationOut {
+    pub conversation_id: i64,
+    pub scene_id: i64,
+    pub operator: String,
+    pub opened_at: String,
+}
+
+/// Where the operator is pointing.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
+#[serde(tag = "type", rename_all = "snake_case", deny_unknown_fields)]
+pub enum FocusIn {
+    Object { object_id: u32 },
+    Pixel { x: u32, y: u32 },
+}
+
+/// An utterance, typed or transcribed, with an optional focus.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+#[serde(deny_unknown_fields)]
+pub struct UtteranceRequest {
+    pub text: String,
+    pub focus: Option<FocusIn>,
+}
+
+/// A character range of the utterance (Unicode scalar values, end exclusive).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
+pub struct TextSpan {
+    pub start: usize,
+    pub end: usize,
+}
+
+/// A constraint the sentence was understood as.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ConstraintOut {
+    /// e.g. `relabel`, `count`, `relation`.
+    pub kind: String,
+    /// A plain gloss such as "exactly 2 chair".
+    pub gloss: String,
+    pub confidence: f32,
+    pub span: TextSpan,
+}
+
+/// One change to the scene.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ChangeOut {
+    pub object_id: Option<u32>,
+    pub from: Option<String>,
+    pub to: Option<String>,
+    pub pixels: u64,
+    pub description: String,
+}
+
+/// A constraint that could not be met, and why.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct UnmetOut {
+    pub gloss: String,
+    pub reason: String,
+}
+
+/// How an utterance ended.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
+#[serde(rename_all = "snake_case")]
+pub enum TurnStatus {
+    Applied,
+    NeedsConfirmation,
+    NeedsClarification,
+    NotUnderstood,
+    NothingToChange,
+    Confirmed,
+    Rejected,
+    Undone,
+    Redone,
+}
+
+/// A change held until the operator confirms it.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct PendingOut {
+    pub reason: String,
+    pub changes: Vec<ChangeOut>,
+}
+
+/// The answer to an utterance; sent only after the turn is committed to the correction log.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct UtteranceReply {
+    pub turn_id: i64,
+    pub status: TurnStatus,
+    pub constraints: Vec<ConstraintOut>,
+    pub changes: Vec<ChangeOut>,
+    pub unmet: Vec<UnmetOut>,
+    /// Set when the sentence needs a clarification.
+    pub question: Option<String>,
+    /// Set when the change waits for confirmation.
+    pub pending: Option<PendingOut>,
+    /// Set when nothing could be understood.
+    pub reason: Option<String>,
+    /// The scene version in force after this turn.
+    pub scene_version: i64,
+}
+
+/// The answer to confirm, reject, undo and redo.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct TurnReply {
+    pub turn_id: i64,
+    pub status: TurnStatus,
+    pub scene_version: i64,
+}
+
+/// One turn of a conversation.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct TurnOut {
+    pub turn_id: i64,
+    /// `utterance`, `confirm`, `reject`, `undo` or `redo`.
+    pub kind: String,
+    pub text: String,
+    pub status: TurnStatus,
+    pub constraints: Vec<String>,
+    pub scene_version: Option<i64>,
+    pub operator: String,
+    pub at: String,
+}
+
+/// A conversation's history, oldest turn first.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct HistoryOut {
+    pub conversation_id: i64,
+    pub scene_id: i64,
+    pub pending: Option<PendingOut>,
+    pub turns: Vec<TurnOut>,
+}
+
+/// Liveness and what is loaded.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct HealthOut {
+    pub status: String,
+    pub version: String,
+    pub log_schema: i64,
+    pub scenes: usize,
+    pub conversations: usize,
+}
+
+/// One class of the taxonomy.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ClassOut {
+    pub class_id: u16,
+    pub name: String,
+    pub safety: bool,
+    /// sRGB colour used in overlays.
+    pub colour: [u8; 3],
+}

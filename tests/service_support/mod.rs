@@ -1,0 +1,449 @@
+//! Shared helpers for the service tests and the service bench: a minimal HTTP/1.1 client over `std::net::TcpStream`, a small
+//! grid engine implementing `Corrector` on plain label maps, and a way to start the service on port 0.
+//!
+//! Owns: test-only code. Must not: be used by the library; the grid engine exists only to exercise the
+//! service without the real pipeline.
+#![allow(dead_code)]
+
+use std::io::{Read, Write};
+use std::net::{SocketAddr, TcpStream};
+use std::path::Path;
+use std::sync::Arc;
+use std::time::Duration;
+
+use base64::Engine;
+use sayso::ids::ClassId;
+use sayso::language::constraint::{Constraint, ConstraintKind, Focus, Referent, Span};
+use sayso::raster::{self, IndexImage, RgbImage};
+use sayso::scene::BoundingBox;
+use sayso::service::config::ServiceConfig;
+use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
+use sayso::service::corrector::{
+    Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
+    SceneObject, SceneState, SceneSummary, Verdict,
+};
+use sayso::service::metrics::Metrics;
+use sayso::service::AppState;
+use sayso::taxonomy::Taxonomy;
+
+/// An HTTP response as the tests read it.
+#[derive(Debug)]
+pub struct Reply {
+    pub status: u16,
+    pub headers: Vec<(String, String)>,
+    pub body: Vec<u8>,
+}
+
+impl Reply {
+    pub fn json(&self) -> serde_json::Value {
+        serde_json::from_slice(&self.body).unwrap_or_else(|error| {
+            panic!(
+                "status {} body is not JSON ({error}): {:?}",
+                self.status,
+                String::from_utf8_lossy(&self.body)
+            )
+        })
+    }
+
+    pub fn header(&self, name: &str) -> Option<&str> {
+        self.headers
+            .iter()
+            .find(|(key, _)| key.eq_ignore_ascii_case(name))
+            .map(|(_, value)| value.as_str())
+    }
+
+    /// The error code of a JSON error body.
+    pub fn code(&self) -> String {
+        self.json()["code"].as_str().unwrap_or("").to_string()
+    }
+}
+
+/// Sends one request with `Connection: close` and reads the whole answer.
+pub fn send(
+    address: SocketAddr,
+    method: &str,
+    path: &str,
+    headers: &[(&str, &str)],
+    body: &[u8],
+) -> std::io::Result<Reply> {
+    let mut stream = TcpStream::connect(address)?;
+    stream.set_read_timeout(Some(Duration::from_secs(20)))?;
+    let mut head = format!(
+        "{method} {path} HTTP/1.1\r\nHost: {address}\r\nConnection: close\r\nContent-Length: {}\r\n",
+        body.len()
+    );
+    for (name, value) in headers {
+        head.push_str(&format!("{name}: {value}\r\n"));
+    }
+    head.push_str("\r\n");
+    stream.write_all(head.as_bytes())?;
+    // A server may answer (413) and close before reading a huge body; a broken pipe is then fine.
+    let _ = stream.write_all(body);
+    let mut raw = Vec::new();
+    stream.read_to_end(&mut raw)?;
+    parse_reply(&raw)
+}
+
+fn parse_reply(raw: &[u8]) -> std::io::Result<Reply> {
+    let invalid =
+        |what: &str| std::io::Error::new(std::io::ErrorKind::InvalidData, what.to_string());
+    let split = raw
+        .windows(4)
+        .position(|window| window == b"\r\n\r\n")
+        .ok_or_else(|| invalid("no end of headers"))?;
+    let head = String::from_utf8_lossy(&raw[..split]).to_string();
+    let mut lines = head.split("\r\n");
+    let status_line = lines.next().ok_or_else(|| invalid("no status line"))?;
+    let status: u16 = status_line
+        .split(' ')
+        .nth(1)
+        .and_then(|code| code.parse().ok())
+        .ok_or_else(|| invalid("bad status line"))?;
+    let headers: Vec<(String, String)> = lines
+        .filter_map(|line| line.split_once(':'))
+        .map(|(name, value)| (name.trim().to_string(), value.trim().to_string()))
+        .collect();
+    let mut body = raw[split + 4..].to_vec();
+    let chunked = headers.iter().any(|(name, value)| {
+        name.eq_ignore_ascii_case("transfer-encoding") && value.contains("chunked")
+    });
+    if chunked {
+        body = dechunk(&body).ok_or_else(|| invalid("bad chunked body"))?;
+    }
+    Ok(Reply {
+        status,
+        headers,
+        body,
+    })
+}
+
+fn dechunk(mut data: &[u8]) -> Option<Vec<u8>> {
+    let mut out = Vec::new();
+    loop {
+        let line_end = data.windows(2).position(|window| window == b"\r\n")?;
+        let size =
+            usize::from_str_radix(std::str::from_utf8(&data[..line_end]).ok()?.trim(), 16).ok()?;
+        data = &data[line_end + 2..];
+        if size == 0 {
+            return Some(out);
+        }
+        out.extend_from_slice(data.get(..size)?);
+        data = data.get(size + 2..)?;
+    }
+}
+
+/// A JSON request.
+pub fn send_json(
+    address: SocketAddr,
+    method: &str,
+    path: &str,
+    token: Option<&str>,
+    body: &serde_json::Value,
+) -> Reply {
+    let bearer = token.map(|token| format!("Bearer {token}"));
+    let mut headers = vec![("Content-Type", "application/json")];
+    if let Some(bearer) = &bearer {
+        headers.push(("Authorization", bearer.as_str()));
+    }
+    send(address, method, path, &headers, body.to_string().as_bytes()).expect("request")
+}
+
+/// A GET request.
+pub fn get(address: SocketAddr, path: &str, token: Option<&str>) -> Reply {
+    let bearer = token.map(|token| format!("Bearer {token}"));
+    let mut headers = Vec::new();
+    if let Some(bearer) = &bearer {
+        headers.push(("Authorization", bearer.as_str()));
+    }
+    send(address, "GET", path, &headers, b"").expect("request")
+}
+
+pub fn base64(bytes: &[u8]) -> String {
+    base64::engine::general_purpose::STANDARD.encode(bytes)
+}
+
+/// A test picture: a `width` x `height` gradient.
+pub fn picture(width: u32, height: u32) -> RgbImage {
+    let mut image = RgbImage::filled(width, height, [0, 0, 0]);
+    for y in 0..height {
+        for x in 0..width {
+            image.set(x, y, [(x * 7 % 256) as u8, (y * 5 % 256) as u8, 120]);
+        }
+    }
+    image
+}
+
+pub fn png_base64(image: &RgbImage) -> String {
+    base64(&raster::encode_rgb_png(image).unwrap())
+}
+
+pub fn index_png_base64(labels: &IndexImage) -> String {
+    base64(&raster::encode_index_png(labels).unwrap())
+}
+
+/// The grid engine: every pixel is its own object. "paint <class>" with a pixel focus gives that pixel the
+/// class; a pixel of a safety class waits for confirmation; "which" asks back; "sleep" takes 1.5 s; any
+/// other sentence is not understood.
+pub struct GridEngine {
+    pub taxonomy: Taxonomy,
+}
+
+impl GridEngine {
+    pub fn new() -> GridEngine {
+        GridEngine {
+            taxonomy: Taxonomy::embedded(),
+        }
+    }
+}
+
+fn grid_summary(labels: &IndexImage) -> SceneSummary {
+    let mut objects = Vec::new();
+    for y in 0..labels.height {
+        for x in 0..labels.width {
+            objects.push(SceneObject {
+                id: sayso::ids::ObjectId(y * labels.width + x + 1),
+                class: ClassId(labels.get(x, y)),
+                bbox: BoundingBox {
+                    x0: x,
+                    y0: y,
+                    x1: x + 1,
+                    y1: y + 1,
+                },
+                area: 1,
+            });
+        }
+    }
+    SceneSummary {
+        objects,
+        room: None,
+    }
+}
+
+impl Corrector for GridEngine {
+    fn taxonomy(&self) -> &Taxonomy {
+        &self.taxonomy
+    }
+
+    fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {
+        if let Some(npy) = &input.scores_npy {
+            if !npy.starts_with(b"\x93NUMPY") {
+                return Err(CorrectorError::BadInput {
+                    field: "scores_npy_base64".into(),
+                    message: "not an NPY file".into(),
+                });
+            }
+        }
+        let labels = input
+            .label_map
+            .clone()
+            .unwrap_or_else(|| IndexImage::filled(input.image.width, input.image.height, 0));
+        Ok(SceneState {
+            summary: grid_summary(&labels),
+            labels,
+            engine_state: b"grid-v1".to_vec(),
+        })
+    }
+
+    fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError> {
+        assert_eq!(
+            request.state.engine_state, b"grid-v1",
+            "engine state comes back unchanged"
+        );
+        let words: Vec<&str> = request.utterance.split_whitespace().collect();
+        let outcome = |verdict, constraints, changes| CorrectionOutcome {
+            constraints,
+            changes,
+            unmet: Vec::new(),
+            solver_gap: Some(0.0),
+            verdict,
+        };
+        if words.first() == Some(&"sleep") {
+            std::thread::sleep(Duration::from_millis(1500));
+        }
+        if words.first() == Some(&"which") {
+            return Ok(outcome(
+                Verdict::NeedsClarification {
+                    question: "which pixel?".into(),
+                },
+                Vec::new(),
+                Vec::new(),
+            ));
+        }
+        let class = match (words.first(), words.get(1)) {
+            (Some(&"paint"), Some(name)) => self.taxonomy.class_by_name(name),
+            _ => None,
+        };
+        let (Some(class), Some(Focus::Pixel { x, y })) = (class, request.focus) else {
+            return Ok(outcome(
+                Verdict::NotUnderstood {
+                    reason: "say: paint <class>, with a pixel focus".into(),
+                },
+                Vec::new(),
+                Vec::new(),
+            ));
+        };
+        let constraint = Constraint {
+            kind: ConstraintKind::Relabel {
+                target: Referent::class(class.id, Span::new(6, request.utterance.len())),
+                from: None,
+                to: Some(class.id),
+            },
+            span: Span::new(0, request.utterance.chars().count()),
+            confidence: 1.0,
+            gloss: format!("pixel is {}", class.name),
+        };
+        let old = request.state.labels.get(x, y);
+        if old == class.id.0 {
+            return Ok(outcome(
+                Verdict::NothingToChange,
+                vec![constraint],
+                Vec::new(),
+            ));
+        }
+        let mut labels = request.state.labels.clone();
+        labels.set(x, y, class.id.0);
+        let change = Change {
+            object: Some(sayso::ids::ObjectId(y * labels.width + x + 1)),
+            from: Some(ClassId(old)),
+            to: Some(class.id),
+            pixels: 1,
+            description: format!("({x}, {y}) -> {}", class.name),
+        };
+        let state = SceneState {
+            summary: grid_summary(&labels),
+            labels,
+            engine_state: b"grid-v1".to_vec(),
+        };
+        let verdict = if self.taxonomy.is_safety_critical(ClassId(old)) {
+            Verdict::NeedsConfirmation {
+                proposed: state,
+                reason: format!(
+                    "pixel ({x}, {y}) is a {}",
+                    self.taxonomy.class_name(ClassId(old))
+                ),
+            }
+        } else {
+            Verdict::Applied(state)
+        };
+        Ok(outcome(verdict, vec![constraint], vec![change]))
+    }
+}
+
+/// Opens a coordinator with the grid engine on `data_dir`.
+pub fn open_grid_coordinator(data_dir: &Path) -> Arc<Coordinator> {
+    open_grid_coordinator_with(data_dir, sayso::raster::DEFAULT_PIXEL_LIMIT)
+}
+
+/// Opens a coordinator with the grid engine on `data_dir` and a pixel limit.
+pub fn open_grid_coordinator_with(data_dir: &Path, pixel_limit: u64) -> Arc<Coordinator> {
+    let config = ServiceConfig {
+        data_dir: data_dir.to_path_buf(),
+        pixel_limit,
+        ..ServiceConfig::default()
+    };
+    Arc::new(
+        Coordinator::open(
+            Arc::new(GridEngine::new()),
+            &CoordinatorSettings {
+                log_path: config.log_path(),
+                pixel_limit: config.pixel_limit,
+                demo_dir: data_dir.join("demo_scenes"),
+            },
+            Arc::new(Metrics::default()),
+        )
+        .expect("open coordinator"),
+    )
+}
+
+/// A running service on a loopback port; dropped, it shuts down and waits for the server thread.
+pub struct RunningService {
+    pub address: SocketAddr,
+    pub coordinator: Arc<Coordinator>,
+    stop: Option<tokio::sync::oneshot::Sender<()>>,
+    thread: Option<std::thread::JoinHandle<()>>,
+}
+
+impl Drop for RunningService {
+    fn drop(&mut self) {
+        if let Some(stop) = self.stop.take() {
+            let _ = stop.send(());
+        }
+        if let Some(thread) = self.thread.take() {
+            let _ = thread.join();
+        }
+    }
+}
+
+/// Starts the service with the grid engine on port 0 over `data_dir`, with `config` (its data_dir and bind
+/// are replaced).
+pub fn start_service(data_dir: &Path, mut config: ServiceConfig) -> RunningService {
+    config.data_dir = data_dir.to_path_buf();
+    config.bind = SocketAddr::from(([127, 0, 0, 1], 0));
+    config.validate().expect("test config is valid");
+    let coordinator = open_grid_coordinator_with(data_dir, config.pixel_limit);
+    let state = AppState::new(coordinator.clone(), config);
+    let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
+    let (ready, address) = std::sync::mpsc::channel();
+    let thread = std::thread::spawn(move || {
+        let runtime = tokio::runtime::Builder::new_multi_thread()
+            .worker_threads(2)
+            .enable_all()
+            .build()
+            .expect("runtime");
+        runtime.block_on(async move {
+            let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
+                .await
+                .expect("bind");
+            ready
+                .send(listener.local_addr().expect("address"))
+                .expect("ready");
+            sayso::service::run(listener, state, async {
+                let _ = stopped.await;
+            })
+            .await
+            .expect("serve");
+        });
+    });
+    let address = address.recv().expect("service started");
+    RunningService {
+        address,
+        coordinator,
+        stop: Some(stop),
+        thread: Some(thread),
+    }
+}
+
+/// Registers a `width` x `height` scene (labels all floor except as given) and opens a conversation.
+pub fn scene_and_conversation(
+    address: SocketAddr,
+    token: Option<&str>,
+    labels: &IndexImage,
+) -> (i64, i64) {
+    let created = send_json(
+        address,
+        "POST",
+        "/v1/scenes",
+        token,
+        &serde_json::json!({
+            "name": "juniper-lane-hall",
+            "image_png_base64": png_base64(&picture(labels.width, labels.height)),
+            "label_map_png_base64": index_png_base64(labels),
+        }),
+    );
+    assert_eq!(
+        created.status,
+        201,
+        "{:?}",
+        String::from_utf8_lossy(&created.body)
+    );
+    let scene_id = created.json()["scene_id"].as_i64().unwrap();
+    let opened = send_json(
+        address,
+        "POST",
+        "/v1/conversations",
+        token,
+        &serde_json::json!({ "scene_id": scene_id }),
+    );
+    assert_eq!(opened.status, 201);
+    (scene_id, opened.json()["conversation_id"].as_i64().unwrap())
+}
