@@ -9,11 +9,11 @@ mod classes;
 mod demo;
 mod export;
 mod field_notes;
+mod parse;
 mod render;
 mod serve;
 mod train;
 mod unaries;
-mod parse;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
