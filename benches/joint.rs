@@ -205,7 +205,61 @@ fn constraints(taxonomy: &Taxonomy) -> Vec<Constraint> {
     ]
 }
 
+/// Median time of sayso's alpha-expansion on the fixture problem `bench_500x41` over GCO's time for it
+/// (tests/fixtures/solver/make_potts_cases.py), as benches/solver_kernels.rs reads it.
+fn expansion_against_gco() {
+    let path = format!(
+        "{}/tests/fixtures/solver/potts_cases.json",
+        env!("CARGO_MANIFEST_DIR")
+    );
+    let text = std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"));
+    let fixture: serde_json::Value = serde_json::from_str(&text).expect("parses");
+    let case = fixture["cases"]
+        .as_array()
+        .and_then(|cases| cases.iter().find(|case| case["name"] == "bench_500x41"))
+        .expect("the bench problem is in the fixture");
+    let numbers = |key: &str| -> Vec<f64> {
+        case[key]
+            .as_array()
+            .expect("array")
+            .iter()
+            .map(|v| v.as_f64().expect("number"))
+            .collect()
+    };
+    let problem = sayso::solver::labelling::LabellingProblem {
+        node_count: case["node_count"].as_u64().expect("node_count") as usize,
+        label_count: case["label_count"].as_u64().expect("label_count") as usize,
+        unary: numbers("unary").into_iter().map(|v| v as f32).collect(),
+        edges: case["edges"]
+            .as_array()
+            .expect("edges")
+            .iter()
+            .map(|edge| {
+                let part = |i: usize| edge[i].as_f64().expect("edge number");
+                (part(0) as u32, part(1) as u32, part(2) as f32)
+            })
+            .collect(),
+    };
+    let gco_ms = case["gco_expansion_ms"].as_f64().expect("gco_expansion_ms");
+    let options = sayso::solver::labelling::ExpansionOptions { max_sweeps: 50 };
+    let mut solver = sayso::solver::expansion::ExpansionSolver::new();
+    let mut samples: Vec<Duration> = (0..21)
+        .map(|_| {
+            let start = Instant::now();
+            std::hint::black_box(solver.solve(&problem, None, &options).expect("valid"));
+            start.elapsed()
+        })
+        .collect();
+    samples.sort();
+    let ours_ms = samples[samples.len() / 2].as_secs_f64() * 1e3;
+    println!(
+        "alpha-expansion bench_500x41: sayso {ours_ms:.3} ms median, GCO {gco_ms:.3} ms, ratio {:.2}",
+        ours_ms / gco_ms
+    );
+}
+
 fn bench_joint(criterion: &mut Criterion) {
+    expansion_against_gco();
     let taxonomy = Taxonomy::embedded();
     let (scene, unaries) = living_room(&taxonomy);
     let prior = RoomClassPrior::embedded().unwrap();
@@ -276,7 +330,7 @@ fn bench_joint(criterion: &mut Criterion) {
                 .collect(),
             ..warm.state
         },
-        multipliers: None,
+        multipliers: Some(previous.multipliers.clone()),
     };
 
     let full = solve_joint(&built.energy, None, &options).unwrap();

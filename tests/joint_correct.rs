@@ -464,3 +464,38 @@ fn the_same_turn_gives_the_same_bytes() {
         assert_eq!(inside, object.members.len() * 100);
     }
 }
+
+#[test]
+fn nan_unaries_and_empty_energies_are_typed_errors() {
+    let mut kitchen = kitchen();
+    kitchen.unaries.log_probs[[3, 2]] = f32::NAN;
+    let prior = RoomClassPrior::embedded().unwrap();
+    let request = CorrectionRequest {
+        scene: &kitchen.scene,
+        unaries: &kitchen.unaries,
+        taxonomy: &kitchen.taxonomy,
+        detections: &[],
+        previous: None,
+        constraints: &[],
+        context: &GroundingContext::default(),
+        confirm_safety: false,
+        prior: &prior,
+        weights: &EnergyWeights::default(),
+        proposals: &ProposalOptions::default(),
+        options: &JointOptions::default(),
+    };
+    let error = correct(&request).unwrap_err().to_string();
+    assert!(error.contains("segment 3 class 2"), "{error}");
+
+    let empty: sayso::energy::JointEnergy = serde_json::from_str(
+        r#"{"schema":1,"label_count":2,"fine_count":0,"node_count":0,"unary":[],"edges":[],"hypotheses":[],
+            "room_count":1,"room_cost":[0.0],"presence_cost":[0.0,0.0]}"#,
+    )
+    .unwrap();
+    assert!(matches!(
+        sayso::solver::joint::solve_joint(&empty, None, &JointOptions::default()),
+        Err(sayso::solver::joint::JointError::Energy(
+            sayso::energy::EnergyError::NoSegments
+        ))
+    ));
+}

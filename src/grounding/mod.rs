@@ -337,7 +337,18 @@ impl Resolver<'_, '_> {
                     });
                     return None;
                 }
-                let segment = map.segment_at(x, y);
+                let pixel = y as usize * map.width as usize + x as usize;
+                let Some(&segment) = map.labels.get(pixel) else {
+                    self.issues.push(GroundingIssue::FocusOutside {
+                        constraint: self.constraint,
+                        x,
+                        y,
+                        width,
+                        height,
+                    });
+                    return None;
+                };
+                let segment = SegmentId(segment);
                 // The smallest accepted hypothesis over the pixel (of the named class when given), else the
                 // smallest hypothesis, else the segment's coarse region.
                 let over: Vec<usize> = (0..view.hypotheses.len())

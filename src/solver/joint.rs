@@ -231,6 +231,9 @@ fn keep_better(best: &mut Candidate, candidate: Candidate) {
     }
 }
 
+/// Dual iterations at most when starting from previous multipliers.
+const WARM_ITERATIONS: u32 = 8;
+
 /// The dual loop stops after this many iterations in a row that improve neither bound nor energy.
 const STALL_ITERATIONS: u32 = 4;
 
@@ -276,18 +279,21 @@ fn fresh_multipliers(energy: &JointEnergy) -> Multipliers {
     }
 }
 
-fn multipliers_fit(energy: &JointEnergy, multipliers: &Multipliers) -> bool {
-    multipliers.presence.len() == energy.fine_count * energy.label_count
-        && multipliers.agreement.len() == energy.hypotheses.len()
-        && multipliers
-            .agreement
-            .iter()
-            .zip(&energy.hypotheses)
-            .all(|(row, h)| row.len() == h.members.len() && row.iter().all(|v| v.is_finite()))
-        && multipliers
-            .presence
-            .iter()
-            .all(|v| v.is_finite() && *v >= 0.0)
+/// Previous multipliers fitted to this energy: rows whose shape still matches are kept, others start at 0
+/// (any multipliers give a valid bound, so this only affects speed).
+fn adapt_multipliers(energy: &JointEnergy, previous: &Multipliers) -> Multipliers {
+    let mut multipliers = fresh_multipliers(energy);
+    for (row, old) in multipliers.agreement.iter_mut().zip(&previous.agreement) {
+        if row.len() == old.len() && old.iter().all(|v| v.is_finite()) {
+            row.copy_from_slice(old);
+        }
+    }
+    if previous.presence.len() == multipliers.presence.len()
+        && previous.presence.iter().all(|v| v.is_finite() && *v >= 0.0)
+    {
+        multipliers.presence.copy_from_slice(&previous.presence);
+    }
+    multipliers
 }
 
 struct DualValue {
@@ -550,6 +556,7 @@ pub fn solve_joint(
     let label_count = energy.label_count;
 
     let mut multipliers = fresh_multipliers(energy);
+    let mut warm_multipliers = false;
     let mut start_labels = argmin_labels(&context.unary, label_count);
     let mut best = context.complete(start_labels.clone());
     if let Some(warm) = warm {
@@ -564,9 +571,8 @@ pub fn solve_joint(
             keep_better(&mut best, context.complete(warm.state.labels.clone()));
         }
         if let Some(previous) = &warm.multipliers {
-            if multipliers_fit(energy, previous) {
-                multipliers = previous.clone();
-            }
+            multipliers = adapt_multipliers(energy, previous);
+            warm_multipliers = true;
         }
     }
     let from_start = context.relabel_given_hypotheses(&best.state);
@@ -583,7 +589,13 @@ pub fn solve_joint(
     let mut last_alternated: Option<Vec<bool>> = None;
     let mut stalled = 0;
     remember(&mut pool, &best);
-    while iterations < options.max_iterations {
+    // From previous multipliers the dual is already near its optimum: a few steps refine it.
+    let iteration_limit = if warm_multipliers {
+        options.max_iterations.min(WARM_ITERATIONS)
+    } else {
+        options.max_iterations
+    };
+    while iterations < iteration_limit {
         iterations += 1;
         let dual = dual_value(&context, &multipliers, &segment_start);
         coupled_exact &= dual.coupled.exact;
