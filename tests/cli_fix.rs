@@ -2,20 +2,37 @@
 //! scene and a bad focus.
 //!
 //! Owns: checks on the written files and messages. Must not: check solver internals (tests/joint_correct.rs).
-//! The classifier is the committed fixture network of tests/fixtures/unaries (scored features in, class
-//! probabilities out), so these checks do not depend on a trained model.
+//! The classifier is a small seeded random network written for the test, so these checks do not depend on a
+//! trained model (they check the plumbing and the files, not the classifier's quality).
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::Command;
 
+use sayso::features::{FEATURE_COUNT, FEATURE_LAYOUT_VERSION};
 use sayso::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso::taxonomy::Taxonomy;
+use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use sayso::unaries::mlp::seeded_random_mlp;
+use sayso::unaries::onnx_writer::encode_model;
 
 fn sayso() -> Command {
     Command::new(env!("CARGO_BIN_EXE_sayso"))
 }
 
-fn fixture_model() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/unaries/fixture_mlp.onnx")
+fn seeded_model(directory: &Path) -> PathBuf {
+    let taxonomy = Taxonomy::embedded();
+    let mlp = seeded_random_mlp(7, &[FEATURE_COUNT, 8, taxonomy.class_count()]);
+    let contract = ModelContract {
+        format_version: MODEL_FORMAT_VERSION,
+        class_names: taxonomy.classes().iter().map(|c| c.name.clone()).collect(),
+        feature_layout_version: FEATURE_LAYOUT_VERSION,
+        feature_means: mlp.feature_means.to_vec(),
+        feature_stds: mlp.feature_stds.to_vec(),
+        temperature: mlp.temperature,
+    };
+    let path = directory.join("seeded.onnx");
+    std::fs::write(&path, encode_model(&mlp, &contract).unwrap()).unwrap();
+    path
 }
 
 #[test]
