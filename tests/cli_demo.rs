@@ -12,7 +12,7 @@ fn sayso() -> Command {
 fn demo_writes_overlay_and_summaries_of_the_first_scene() {
     let out = tempfile::tempdir().unwrap();
     let status = sayso()
-        .args(["demo", "--out"])
+        .args(["demo", "--labels", "ground-truth", "--out"])
         .arg(out.path())
         .status()
         .unwrap();

@@ -1,5 +1,7 @@
-//! `sayso demo`: the main job on the embedded defaults for now. Loads a demo scene, draws what the robot
-//! currently believes over the image, and writes the overlay and a scene summary.
+//! `sayso demo`: the main job on the embedded defaults. Loads a demo scene, shows what the built-in classifier
+//! believes (overlay_before.png), applies the scene's first scripted note(s) from its notes.txt and writes
+//! overlay_after.png, scene_graph.json, labels.png and summary.txt. `--labels ground-truth` instead draws the
+//! renderer's ground truth (overlay.png, summary.txt, summary.json).
 //!
 //! Owns: the flags and the output file names. Must not: hold logic worth testing; loading, summarising and
 //! drawing live in `sayso::demo` and `sayso::overlay`.
@@ -8,14 +10,21 @@ use std::path::PathBuf;
 
 use anyhow::Context;
 use sayso::demo::{demo_directory, load_demo_scene, summarise, summary_text, BeliefSource};
+use sayso::evaluation::read_notes;
 use sayso::overlay::{draw_overlay, Labelling, OverlayOptions, RegionMap};
+use sayso::pipeline::{
+    correct_prepared, load_classifier, model_path, prepare_loaded, CorrectionSettings,
+};
 use sayso::raster::write_rgb_png;
+use sayso::scenegraph::changes::ChangeKind;
 use sayso::taxonomy::Taxonomy;
 
 /// Where the shown labels come from.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
 pub enum LabelsFrom {
-    /// The renderer's ground truth (the only source so far).
+    /// The built-in classifier, corrected by the scene's first scripted notes.
+    Classifier,
+    /// The renderer's ground truth.
     GroundTruth,
 }
 
@@ -32,16 +41,61 @@ pub struct DemoArgs {
     #[arg(long, default_value = "out/demo")]
     pub out: PathBuf,
     /// Which labels to show.
-    #[arg(long, value_enum, default_value = "ground-truth")]
+    #[arg(long, value_enum, default_value = "classifier")]
     pub labels: LabelsFrom,
+    /// How many of the scene's scripted notes to apply.
+    #[arg(long, default_value_t = 1)]
+    pub notes: usize,
+    /// The classifier's ONNX file (default: $SAYSO_MODEL, else models/segment_classifier.onnx).
+    #[arg(long)]
+    pub model: Option<PathBuf>,
+}
+
+fn run_main_job(args: &DemoArgs) -> anyhow::Result<()> {
+    let taxonomy = Taxonomy::embedded();
+    let directory = demo_directory(args.demo_dir.as_deref());
+    let demo = load_demo_scene(&directory, args.scene.as_deref())?;
+    let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
+    let settings = CorrectionSettings::embedded()?;
+    let prepared = prepare_loaded(demo, &classifier)?;
+    let notes: Vec<String> = read_notes(&prepared.demo.directory)?
+        .into_iter()
+        .take(args.notes)
+        .collect();
+    let report = correct_prepared(prepared, &notes, None, false, &settings)?;
+    super::fix::write_outputs(&report, &taxonomy, &args.out)?;
+    println!(
+        "{}: the built-in classifier's view is in overlay_before.png",
+        report.prepared.demo.name
+    );
+    for turn in &report.turns {
+        let relabelled = turn
+            .changes
+            .iter()
+            .filter(|c| matches!(c.kind, ChangeKind::SegmentRelabelled { .. }))
+            .count();
+        let glosses: Vec<&str> = turn.understood.iter().map(|u| u.gloss.as_str()).collect();
+        println!(
+            "said {:?}: understood [{}]; {} change(s), {} segment(s) relabelled",
+            turn.utterance,
+            glosses.join("; "),
+            turn.changes.len(),
+            relabelled
+        );
+    }
+    println!("wrote {}", args.out.display());
+    Ok(())
 }
 
 pub fn run(args: DemoArgs) -> anyhow::Result<()> {
+    if matches!(args.labels, LabelsFrom::Classifier) {
+        return run_main_job(&args);
+    }
     let taxonomy = Taxonomy::embedded();
     let directory = demo_directory(args.demo_dir.as_deref());
     let scene = load_demo_scene(&directory, args.scene.as_deref())?;
     let source = match args.labels {
-        LabelsFrom::GroundTruth => BeliefSource::GroundTruth,
+        LabelsFrom::GroundTruth | LabelsFrom::Classifier => BeliefSource::GroundTruth,
     };
     let labels = source.labels(&scene);
     // Region boundaries: object instances, split further by class so structure edges show too.

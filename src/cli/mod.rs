@@ -9,8 +9,10 @@ mod classes;
 mod demo;
 mod export;
 mod field_notes;
+mod fix;
 mod parse;
 mod render;
+mod score;
 mod serve;
 mod train;
 mod unaries;
@@ -40,10 +42,14 @@ pub enum Command {
     Unaries(unaries::UnariesArgs),
     /// Parse operator utterances into typed constraints (JSON and a gloss).
     Parse(parse::ParseArgs),
+    /// Apply every demo scene's notes and score them against ground truth.
+    Score(score::ScoreArgs),
     /// Start the correction service.
     Serve(serve::ServeArgs),
     /// Write the accepted corrections as a training dataset directory.
     Export(export::ExportArgs),
+    /// Correct a scene from operator notes: scene graph, label map, overlays and a summary.
+    Fix(fix::FixArgs),
     /// Apply a file of field notes to stored scenes and write a report.
     FieldNotes(field_notes::FieldNotesArgs),
 }
@@ -60,5 +66,7 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
         Command::Serve(args) => serve::run(args),
         Command::Export(args) => export::run(args),
         Command::FieldNotes(args) => field_notes::run(args),
+        Command::Fix(args) => fix::run(args),
+        Command::Score(args) => score::run(args),
     }
 }

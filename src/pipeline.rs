@@ -1,0 +1,490 @@
+//! The main job end to end: a scene and operator notes in, a corrected scene graph and a report out.
+//!
+//! Owns: `correct_scene` (load the scene, build superpixels, score segments with the built-in classifier,
+//! parse each note in one conversation, correct turn by turn with the previous turn as warm start),
+//! `CorrectionReport` and its plain-text summary, and where the built-in classifier file is found.
+//! Must not: write files or know about flags (the binary does that), nor reach inside the solver: it calls
+//! `scenegraph::correct::correct` only.
+
+use std::path::{Path, PathBuf};
+
+use serde::Serialize;
+
+use crate::demo::{load_demo_scene, load_scene_directory, DemoError, DemoScene};
+use crate::energy::build::{EnergyWeights, RoomClassPrior};
+use crate::energy::EnergyError;
+use crate::grounding::{ClarifyingQuestion, GroundingContext, GroundingIssue, KnownObject};
+use crate::hypotheses::ProposalOptions;
+use crate::ids::ClassId;
+use crate::language::constraint::{Focus, Span};
+use crate::language::error::{GrammarError, LanguageError};
+use crate::language::{Conversation, Grammar};
+use crate::scene::{Scene, SceneError, SceneParams};
+use crate::scenegraph::changes::{Change, ChangeKind, ChangeStatus, Unmet};
+use crate::scenegraph::correct::{correct, Correction, CorrectionError, CorrectionRequest};
+use crate::solver::joint::JointOptions;
+use crate::taxonomy::Taxonomy;
+use crate::unaries::builtin::{builtin_unaries, current_feature_layout};
+use crate::unaries::classifier::{Classifier, ClassifierError};
+use crate::unaries::Unaries;
+
+/// Environment variable naming the built-in classifier's ONNX file.
+pub const MODEL_VARIABLE: &str = "SAYSO_MODEL";
+
+/// The built-in classifier's file beside the crate's manifest (fixed at compile time).
+pub const COMPILED_MODEL_PATH: &str = concat!(
+    env!("CARGO_MANIFEST_DIR"),
+    "/models/segment_classifier.onnx"
+);
+
+/// What can stop the main job.
+#[derive(Debug, thiserror::Error)]
+pub enum PipelineError {
+    #[error(transparent)]
+    Scene(#[from] DemoError),
+    #[error("building superpixels: {0}")]
+    Superpixels(#[from] SceneError),
+    #[error("built-in classifier: {0}")]
+    Classifier(#[from] ClassifierError),
+    #[error("grammar: {0}")]
+    Grammar(#[from] GrammarError),
+    #[error("room prior: {0}")]
+    Prior(#[from] EnergyError),
+    #[error("correcting: {0}")]
+    Correction(#[from] CorrectionError),
+}
+
+/// Which scene to work on.
+#[derive(Clone, Debug, PartialEq)]
+pub enum SceneSource {
+    /// A scene of the demo set, by name, under this demo directory.
+    Demo {
+        directory: PathBuf,
+        name: Option<String>,
+    },
+    /// A scene directory (image.png, depth.png, labels.png, instances.png, scene.json, objects.json).
+    Directory(PathBuf),
+}
+
+impl SceneSource {
+    /// A demo scene name, or a path when the text names an existing directory.
+    pub fn from_text(text: &str, demo_directory: &Path) -> SceneSource {
+        let path = Path::new(text);
+        if path.is_dir() {
+            SceneSource::Directory(path.to_path_buf())
+        } else {
+            SceneSource::Demo {
+                directory: demo_directory.to_path_buf(),
+                name: Some(text.to_string()),
+            }
+        }
+    }
+
+    pub fn load(&self) -> Result<DemoScene, DemoError> {
+        match self {
+            SceneSource::Demo { directory, name } => load_demo_scene(directory, name.as_deref()),
+            SceneSource::Directory(path) => load_scene_directory(path),
+        }
+    }
+}
+
+/// Where the built-in classifier's file is: `$SAYSO_MODEL`, else `models/segment_classifier.onnx`.
+pub fn model_path(explicit: Option<&Path>) -> PathBuf {
+    if let Some(path) = explicit {
+        return path.to_path_buf();
+    }
+    match std::env::var_os(MODEL_VARIABLE) {
+        Some(value) if !value.is_empty() => PathBuf::from(value),
+        _ => PathBuf::from(COMPILED_MODEL_PATH),
+    }
+}
+
+/// A scene ready for correction: the raw files, the superpixel scene and the classifier's scores.
+pub struct PreparedScene {
+    pub demo: DemoScene,
+    pub scene: Scene,
+    pub unaries: Unaries,
+    /// The classifier's best class per fine segment (what it believes with no correction).
+    pub classifier_labels: Vec<ClassId>,
+}
+
+/// Loads a scene, builds its superpixels and scores them with the classifier.
+pub fn prepare_scene(
+    source: &SceneSource,
+    classifier: &Classifier,
+) -> Result<PreparedScene, PipelineError> {
+    prepare_loaded(source.load()?, classifier)
+}
+
+/// Builds superpixels of an already loaded scene and scores them with the classifier.
+pub fn prepare_loaded(
+    demo: DemoScene,
+    classifier: &Classifier,
+) -> Result<PreparedScene, PipelineError> {
+    let scene = Scene::from_image(
+        demo.name.clone(),
+        demo.image.clone(),
+        Some(demo.depth.clone()),
+        None,
+        &SceneParams::default(),
+    )?;
+    let unaries = builtin_unaries(&scene, classifier)?;
+    let classifier_labels = best_classes(&unaries);
+    Ok(PreparedScene {
+        demo,
+        scene,
+        unaries,
+        classifier_labels,
+    })
+}
+
+/// The highest-scoring class of every segment row.
+fn best_classes(unaries: &Unaries) -> Vec<ClassId> {
+    let classes = unaries.class_count();
+    (0..unaries.segment_count())
+        .map(|segment| {
+            let row = unaries.log_probs.row(segment);
+            let mut best = 0usize;
+            for class in 0..classes {
+                if row[class] > row[best] {
+                    best = class;
+                }
+            }
+            ClassId(best as u16)
+        })
+        .collect()
+}
+
+/// One understood constraint of a note.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Understood {
+    pub span: Span,
+    pub gloss: String,
+    pub confidence: f32,
+}
+
+/// One note and what came of it.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct TurnReport {
+    pub utterance: String,
+    /// The parser's error when the note could not be read (the scene is then left as it was).
+    pub parse_error: Option<String>,
+    pub understood: Vec<Understood>,
+    /// Disagreements with earlier notes the conversation found.
+    pub conflicts: Vec<String>,
+    pub changes: Vec<Change>,
+    pub unmet: Vec<Unmet>,
+    pub questions: Vec<ClarifyingQuestion>,
+    pub issues: Vec<GroundingIssue>,
+}
+
+/// The whole job's result.
+pub struct CorrectionReport {
+    pub prepared: PreparedScene,
+    /// The last correction (None when no note could be read).
+    pub correction: Option<Correction>,
+    /// The correction after each note, in order (a failed parse repeats the previous one).
+    pub after_each: Vec<Option<Correction>>,
+    pub turns: Vec<TurnReport>,
+}
+
+impl CorrectionReport {
+    /// The final label of every fine segment (the classifier's when nothing was corrected).
+    pub fn final_labels(&self) -> &[ClassId] {
+        match &self.correction {
+            Some(correction) => &correction.graph.segment_labels,
+            None => &self.prepared.classifier_labels,
+        }
+    }
+}
+
+/// The fixed settings of a correction run.
+pub struct CorrectionSettings {
+    pub grammar: Grammar,
+    pub prior: RoomClassPrior,
+    pub weights: EnergyWeights,
+    pub proposals: ProposalOptions,
+    pub options: JointOptions,
+}
+
+impl CorrectionSettings {
+    /// The built-in grammar, room prior and default weights.
+    pub fn embedded() -> Result<CorrectionSettings, PipelineError> {
+        Ok(CorrectionSettings {
+            grammar: Grammar::embedded()?,
+            prior: RoomClassPrior::embedded()?,
+            weights: EnergyWeights::default(),
+            proposals: ProposalOptions::default(),
+            options: JointOptions::default(),
+        })
+    }
+}
+
+/// Applies notes one after another to a prepared scene.
+pub fn correct_prepared(
+    prepared: PreparedScene,
+    utterances: &[String],
+    focus: Option<Focus>,
+    confirm_safety: bool,
+    settings: &CorrectionSettings,
+) -> Result<CorrectionReport, PipelineError> {
+    let taxonomy: &Taxonomy = settings.grammar.taxonomy();
+    let mut conversation = Conversation::new(taxonomy.clone())?;
+    let mut previous: Option<Correction> = None;
+    let mut after_each = Vec::new();
+    let mut turns = Vec::new();
+    for utterance in utterances {
+        let parse = match settings.grammar.parse(utterance, focus) {
+            Ok(parse) => parse,
+            Err(error) => {
+                turns.push(failed_turn(utterance, &error));
+                after_each.push(previous.clone());
+                continue;
+            }
+        };
+        let turn = conversation.add(&parse);
+        let context = GroundingContext {
+            focus,
+            previous: previous.as_ref().and_then(|p| p.last_referent.clone()),
+            objects: previous
+                .as_ref()
+                .map(|p| {
+                    p.graph
+                        .objects
+                        .iter()
+                        .map(|object| KnownObject {
+                            id: object.id,
+                            hypothesis: object.hypothesis,
+                        })
+                        .collect()
+                })
+                .unwrap_or_default(),
+        };
+        let request = CorrectionRequest {
+            scene: &prepared.scene,
+            unaries: &prepared.unaries,
+            taxonomy,
+            detections: &[],
+            previous: previous.as_ref(),
+            constraints: &parse.constraints,
+            context: &context,
+            confirm_safety,
+            prior: &settings.prior,
+            weights: &settings.weights,
+            proposals: &settings.proposals,
+            options: &settings.options,
+        };
+        let correction = correct(&request)?;
+        // Constraints of this note are the last ones in force; causes index into all of them.
+        let first_new = correction
+            .constraint_labels
+            .len()
+            .saturating_sub(parse.constraints.len());
+        let this_note = |constraint: usize| constraint >= first_new;
+        turns.push(TurnReport {
+            utterance: utterance.clone(),
+            parse_error: None,
+            understood: parse
+                .constraints
+                .iter()
+                .map(|c| Understood {
+                    span: c.span,
+                    gloss: c.gloss.clone(),
+                    confidence: c.confidence,
+                })
+                .collect(),
+            conflicts: turn.conflicts.iter().map(|c| c.message.clone()).collect(),
+            changes: correction.changes.clone(),
+            unmet: correction.unmet.clone(),
+            questions: correction
+                .questions
+                .iter()
+                .filter(|q| this_note(q.constraint))
+                .cloned()
+                .collect(),
+            issues: correction
+                .issues
+                .iter()
+                .filter(|i| this_note(i.constraint()))
+                .cloned()
+                .collect(),
+        });
+        after_each.push(Some(correction.clone()));
+        previous = Some(correction);
+    }
+    Ok(CorrectionReport {
+        prepared,
+        correction: previous,
+        after_each,
+        turns,
+    })
+}
+
+fn failed_turn(utterance: &str, error: &LanguageError) -> TurnReport {
+    TurnReport {
+        utterance: utterance.to_string(),
+        parse_error: Some(error.to_string()),
+        understood: Vec::new(),
+        conflicts: Vec::new(),
+        changes: Vec::new(),
+        unmet: Vec::new(),
+        questions: Vec::new(),
+        issues: Vec::new(),
+    }
+}
+
+/// The main job: load, segment, classify, and apply the notes in order.
+pub fn correct_scene(
+    source: &SceneSource,
+    utterances: &[String],
+    focus: Option<Focus>,
+    confirm_safety: bool,
+    classifier: &Classifier,
+    settings: &CorrectionSettings,
+) -> Result<CorrectionReport, PipelineError> {
+    let prepared = prepare_scene(source, classifier)?;
+    correct_prepared(prepared, utterances, focus, confirm_safety, settings)
+}
+
+/// Loads the built-in classifier from `path`.
+pub fn load_classifier(path: &Path, taxonomy: &Taxonomy) -> Result<Classifier, PipelineError> {
+    Ok(Classifier::load(path, taxonomy, current_feature_layout())?)
+}
+
+fn quoted_span(utterance: &str, span: Span) -> String {
+    let text: String = utterance
+        .chars()
+        .skip(span.start)
+        .take(span.end.saturating_sub(span.start))
+        .collect();
+    format!("\"{text}\"")
+}
+
+/// Counts of relabelled segments per (from, to) class pair, largest first.
+fn relabel_summary(changes: &[Change], taxonomy: &Taxonomy) -> Vec<String> {
+    let mut pairs: Vec<(ClassId, ClassId, ChangeStatus, usize, String)> = Vec::new();
+    let mut lines = Vec::new();
+    for change in changes {
+        let why = change
+            .causes
+            .iter()
+            .map(|cause| cause.gloss.clone())
+            .collect::<Vec<_>>()
+            .join("; ");
+        match change.kind {
+            ChangeKind::SegmentRelabelled { from, to, .. } => {
+                match pairs
+                    .iter_mut()
+                    .find(|p| p.0 == from && p.1 == to && p.2 == change.status)
+                {
+                    Some(pair) => pair.3 += 1,
+                    None => pairs.push((from, to, change.status, 1, why)),
+                }
+            }
+            ChangeKind::ObjectAdded { class, .. } => lines.push(format!(
+                "{}object added: {} (because: {why})",
+                status_prefix(change.status),
+                taxonomy.class_name(class)
+            )),
+            ChangeKind::ObjectRemoved { class, .. } => lines.push(format!(
+                "{}object removed: {} (because: {why})",
+                status_prefix(change.status),
+                taxonomy.class_name(class)
+            )),
+            ChangeKind::RoomChanged { from, to } => lines.push(format!(
+                "{}room: {} -> {} (because: {why})",
+                status_prefix(change.status),
+                taxonomy.room(from).map(|r| r.name.as_str()).unwrap_or("?"),
+                taxonomy.room(to).map(|r| r.name.as_str()).unwrap_or("?"),
+            )),
+        }
+    }
+    pairs.sort_by(|a, b| b.3.cmp(&a.3));
+    for (from, to, status, count, why) in pairs {
+        lines.push(format!(
+            "{}{count} segment(s) {} -> {} (because: {why})",
+            status_prefix(status),
+            taxonomy.class_name(from),
+            taxonomy.class_name(to)
+        ));
+    }
+    lines
+}
+
+fn status_prefix(status: ChangeStatus) -> &'static str {
+    match status {
+        ChangeStatus::Applied => "",
+        ChangeStatus::Pending => "PENDING CONFIRMATION: ",
+    }
+}
+
+/// The plain-text summary: per note, what was understood, what changed and why, what is unmet, questions and
+/// pending safety confirmations.
+pub fn report_text(report: &CorrectionReport, taxonomy: &Taxonomy) -> String {
+    let mut text = format!("scene: {}\n", report.prepared.demo.name);
+    for (index, turn) in report.turns.iter().enumerate() {
+        text.push_str(&format!("\nnote {}: {:?}\n", index + 1, turn.utterance));
+        if let Some(error) = &turn.parse_error {
+            text.push_str(&format!("  not understood: {error}\n"));
+            continue;
+        }
+        if turn.understood.is_empty() {
+            text.push_str("  understood: nothing to apply\n");
+        }
+        for understood in &turn.understood {
+            text.push_str(&format!(
+                "  understood {}: {} (confidence {:.2})\n",
+                quoted_span(&turn.utterance, understood.span),
+                understood.gloss,
+                understood.confidence
+            ));
+        }
+        for conflict in &turn.conflicts {
+            text.push_str(&format!("  conflicts with an earlier note: {conflict}\n"));
+        }
+        let changes = relabel_summary(&turn.changes, taxonomy);
+        if changes.is_empty() {
+            text.push_str("  changed: nothing\n");
+        }
+        for line in changes {
+            text.push_str(&format!("  changed: {line}\n"));
+        }
+        for unmet in &turn.unmet {
+            text.push_str(&format!(
+                "  unmet{}: {}\n",
+                if unmet.contradictory {
+                    " (contradictory)"
+                } else {
+                    ""
+                },
+                unmet.reason
+            ));
+        }
+        for issue in &turn.issues {
+            text.push_str(&format!("  could not ground: {issue}\n"));
+        }
+        for question in &turn.questions {
+            text.push_str(&format!("  question: {}\n", question.text));
+        }
+        let pending = turn
+            .changes
+            .iter()
+            .filter(|c| c.status == ChangeStatus::Pending)
+            .count();
+        if pending > 0 {
+            text.push_str(&format!(
+                "  {pending} change(s) touch a person, pet or hazard and wait for confirmation (--confirm)\n"
+            ));
+        }
+    }
+    if let Some(correction) = &report.correction {
+        text.push_str(&format!(
+            "\nresult: room {}, {} object(s), energy {:.3}, relative gap {:.4}\n",
+            correction.graph.room_name,
+            correction.graph.objects.len(),
+            correction.graph.energy,
+            correction.graph.relative_gap
+        ));
+    }
+    text
+}
