@@ -399,7 +399,7 @@ fn relabel_summary(changes: &[Change], taxonomy: &Taxonomy) -> Vec<String> {
             )),
         }
     }
-    pairs.sort_by(|a, b| b.3.cmp(&a.3));
+    pairs.sort_by_key(|pair| std::cmp::Reverse(pair.3));
     for (from, to, status, count, why) in pairs {
         lines.push(format!(
             "{}{count} segment(s) {} -> {} (because: {why})",

@@ -46,7 +46,7 @@ fn fix_writes_graph_labels_overlays_and_summary() {
             "this is the bathroom",
             "--model",
         ])
-        .arg(fixture_model())
+        .arg(seeded_model(out.path()))
         .arg("--out")
         .arg(out.path())
         .output()
