@@ -44,7 +44,7 @@ pub struct DemoArgs {
     #[arg(long, value_enum, default_value = "classifier")]
     pub labels: LabelsFrom,
     /// How many of the scene's scripted notes to apply.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 2)]
     pub notes: usize,
     /// The classifier's ONNX file (default: $SAYSO_MODEL, else models/segment_classifier.onnx).
     #[arg(long)]
