@@ -89,8 +89,8 @@ mod tests {
 
     #[test]
     fn first_outputs_match_the_published_algorithm() {
-        // Reference: the first two outputs of SplitMix64 seeded with 0, as printed by Vigna's reference C
-        // implementation (splitmix64.c); values recalled from memory and checked by hand against the mixer.
+        // Reference: the first two outputs of SplitMix64 (Steele, Lea and Flood, OOPSLA 2014) seeded with 0, as
+        // the algorithm's public-domain reference C code prints them; values recalled and checked against the mixer.
         let mut generator = SplitMix64::new(0);
         assert_eq!(generator.next_u64(), 0xE220_A839_7B1D_CDAF);
         assert_eq!(generator.next_u64(), 0x6E78_9E6A_A1B9_65F4);

@@ -63,8 +63,8 @@ mod tests {
 
     #[test]
     fn splitmix_matches_the_published_reference_sequence() {
-        // First outputs of SplitMix64 seeded with 1234567, as printed by the reference C implementation
-        // (Vigna's splitmix64.c); the values are from memory, cross-checked with a Python transcription.
+        // First outputs of SplitMix64 (Steele, Lea and Flood, OOPSLA 2014) seeded with 1234567. Source: the
+        // algorithm's public-domain reference C code; values recalled, then recomputed by a Python transcription.
         let mut generator = SplitMix64::new(1234567);
         assert_eq!(generator.next_u64(), 6457827717110365317);
         assert_eq!(generator.next_u64(), 3203168211198807973);
