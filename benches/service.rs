@@ -14,11 +14,12 @@ use std::sync::Arc;
 use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
+use sayso::pipeline::model_path;
 use sayso::raster::IndexImage;
 use sayso::service::config::ServiceConfig;
 use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
+use sayso::service::joint::JointCorrector;
 use sayso::service::metrics::Metrics;
-use sayso::service::pipeline::LabelMapCorrector;
 use sayso::service::AppState;
 
 const WALL: u16 = 1;
@@ -55,7 +56,7 @@ fn start(conversation_count: usize) -> Bench {
     };
     let coordinator = Arc::new(
         Coordinator::open(
-            Arc::new(LabelMapCorrector::embedded().unwrap()),
+            Arc::new(JointCorrector::load(&model_path(None)).unwrap()),
             &CoordinatorSettings {
                 log_path: config.log_path(),
                 pixel_limit: config.pixel_limit,

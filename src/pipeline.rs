@@ -14,9 +14,10 @@ use crate::demo::{load_demo_scene, load_scene_directory, DemoError, DemoScene};
 use crate::energy::build::{EnergyWeights, RoomClassPrior};
 use crate::energy::EnergyError;
 use crate::grounding::{ClarifyingQuestion, GroundingContext, GroundingIssue, KnownObject};
+use crate::hypotheses::Detection;
 use crate::hypotheses::ProposalOptions;
 use crate::ids::ClassId;
-use crate::language::constraint::{Focus, Span};
+use crate::language::constraint::{Constraint, Focus, Span};
 use crate::language::error::{GrammarError, LanguageError};
 use crate::language::{Conversation, Grammar};
 use crate::scene::{Scene, SceneError, SceneParams};
@@ -243,38 +244,18 @@ pub fn correct_prepared(
             }
         };
         let turn = conversation.add(&parse);
-        let context = GroundingContext {
+        let correction = correct_turn(
+            &TurnInputs {
+                scene: &prepared.scene,
+                unaries: &prepared.unaries,
+                detections: &[],
+            },
+            previous.as_ref(),
+            &parse.constraints,
             focus,
-            previous: previous.as_ref().and_then(|p| p.last_referent.clone()),
-            objects: previous
-                .as_ref()
-                .map(|p| {
-                    p.graph
-                        .objects
-                        .iter()
-                        .map(|object| KnownObject {
-                            id: object.id,
-                            hypothesis: object.hypothesis,
-                        })
-                        .collect()
-                })
-                .unwrap_or_default(),
-        };
-        let request = CorrectionRequest {
-            scene: &prepared.scene,
-            unaries: &prepared.unaries,
-            taxonomy,
-            detections: &[],
-            previous: previous.as_ref(),
-            constraints: &parse.constraints,
-            context: &context,
             confirm_safety,
-            prior: &settings.prior,
-            weights: &settings.weights,
-            proposals: &settings.proposals,
-            options: &settings.options,
-        };
-        let correction = correct(&request)?;
+            settings,
+        )?;
         // Constraints of this note are the last ones in force; causes index into all of them.
         let first_new = correction
             .constraint_labels
@@ -318,6 +299,57 @@ pub fn correct_prepared(
         after_each,
         turns,
     })
+}
+
+/// The parts of a scene one turn is solved on.
+#[derive(Clone, Copy)]
+pub struct TurnInputs<'a> {
+    pub scene: &'a Scene,
+    pub unaries: &'a Unaries,
+    pub detections: &'a [Detection],
+}
+
+/// Solves one turn: grounds `constraints` against the previous turn's objects (or the scene solved with no
+/// constraints when there is none) and re-solves with every constraint in force.
+pub fn correct_turn(
+    inputs: &TurnInputs<'_>,
+    previous: Option<&Correction>,
+    constraints: &[Constraint],
+    focus: Option<Focus>,
+    confirm_safety: bool,
+    settings: &CorrectionSettings,
+) -> Result<Correction, PipelineError> {
+    let context = GroundingContext {
+        focus,
+        previous: previous.and_then(|p| p.last_referent.clone()),
+        objects: previous
+            .map(|p| {
+                p.graph
+                    .objects
+                    .iter()
+                    .map(|object| KnownObject {
+                        id: object.id,
+                        hypothesis: object.hypothesis,
+                    })
+                    .collect()
+            })
+            .unwrap_or_default(),
+    };
+    let request = CorrectionRequest {
+        scene: inputs.scene,
+        unaries: inputs.unaries,
+        taxonomy: settings.grammar.taxonomy(),
+        detections: inputs.detections,
+        previous,
+        constraints,
+        context: &context,
+        confirm_safety,
+        prior: &settings.prior,
+        weights: &settings.weights,
+        proposals: &settings.proposals,
+        options: &settings.options,
+    };
+    Ok(correct(&request)?)
 }
 
 fn failed_turn(utterance: &str, error: &LanguageError) -> TurnReport {

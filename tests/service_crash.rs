@@ -115,7 +115,7 @@ fn acknowledged_corrections_survive_sigkill() {
                 })
             })
             .collect();
-        std::thread::sleep(Duration::from_millis(250 + 100 * cycle));
+        std::thread::sleep(Duration::from_millis(1500 + 300 * cycle));
         child.kill().expect("SIGKILL");
         let _ = child.wait();
         stop.store(true, Ordering::Relaxed);

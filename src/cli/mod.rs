@@ -14,6 +14,7 @@ mod parse;
 mod render;
 mod score;
 mod serve;
+mod store;
 mod train;
 mod unaries;
 
@@ -52,12 +53,15 @@ pub enum Command {
     Fix(fix::FixArgs),
     /// Apply a file of field notes to stored scenes and write a report.
     FieldNotes(field_notes::FieldNotesArgs),
+    /// Register scenes in the correction log without the HTTP service.
+    Store(store::StoreArgs),
 }
 
 /// Runs one subcommand.
 pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
+        Command::Store(args) => store::run(args),
         Command::Demo(args) => demo::run(args),
         Command::Render(args) => render::run(args),
         Command::Train(args) => train::run(args),

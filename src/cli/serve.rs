@@ -9,11 +9,13 @@ use std::path::PathBuf;
 use std::sync::Arc;
 
 use anyhow::Context;
+use sayso::language::Grammar;
+use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
 use sayso::service::config::ServiceConfig;
 use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
 use sayso::service::corrector::Corrector;
+use sayso::service::joint::JointCorrector;
 use sayso::service::metrics::Metrics;
-use sayso::service::pipeline::LabelMapCorrector;
 use sayso::service::AppState;
 
 /// Where the service's settings come from: flags, then `SAYSO_*` variables, then the config file.
@@ -59,12 +61,17 @@ impl ServiceFlags {
     }
 }
 
-/// The corrector the binary runs.
+/// The corrector the binary runs: the joint pipeline with the configured grammar and classifier.
 pub fn corrector(config: &ServiceConfig) -> anyhow::Result<Arc<dyn Corrector>> {
-    Ok(match &config.grammar_dir {
-        Some(directory) => Arc::new(LabelMapCorrector::from_grammar_dir(directory)?),
-        None => Arc::new(LabelMapCorrector::embedded()?),
-    })
+    let mut settings = CorrectionSettings::embedded()?;
+    if let Some(directory) = &config.grammar_dir {
+        settings.grammar = Grammar::load(directory)
+            .with_context(|| format!("loading the grammar from {}", directory.display()))?;
+    }
+    let model = model_path(config.model.as_deref());
+    let classifier = load_classifier(&model, settings.grammar.taxonomy())
+        .with_context(|| format!("loading the segment classifier {}", model.display()))?;
+    Ok(Arc::new(JointCorrector::new(settings, classifier)))
 }
 
 /// Opens the coordinator (and with it the correction log) for a configuration.

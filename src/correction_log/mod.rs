@@ -18,6 +18,7 @@
 //!         name: "juniper-lane-kitchen",
 //!         image_png: &[9, 9, 9],
 //!         input_json: "{}",
+//!         parts: &[],
 //!         operator: "mira",
 //!         state: &state,
 //!     })
@@ -33,7 +34,7 @@ mod time;
 pub use export::{export_dataset, ExportError, ExportSummary};
 pub use schema::LOG_SCHEMA_VERSION;
 pub use store::{
-    ConversationRow, CorrectionLog, ExampleRow, NewScene, NewTurn, PendingRow, SceneRow,
+    blob_hash, ConversationRow, CorrectionLog, ExampleRow, NewScene, NewTurn, PendingRow, SceneRow,
     StateRecord, TurnEffect, TurnRow,
 };
 pub use time::now_text;

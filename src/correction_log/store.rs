@@ -26,6 +26,9 @@ pub struct NewScene<'a> {
     pub name: &'a str,
     pub image_png: &'a [u8],
     pub input_json: &'a str,
+    /// Further registered parts (depth PNG, NPY scores, label map PNG) stored as blobs; `input_json` names
+    /// them by `blob_hash`.
+    pub parts: &'a [&'a [u8]],
     pub operator: &'a str,
     pub state: &'a StateRecord,
 }
@@ -151,7 +154,8 @@ pub struct CorrectionLog {
     path: PathBuf,
 }
 
-fn blob_hash(bytes: &[u8]) -> String {
+/// The key a blob is stored under: lower-case hex SHA-256 of its bytes.
+pub fn blob_hash(bytes: &[u8]) -> String {
     let digest = Sha256::digest(bytes);
     digest.iter().map(|byte| format!("{byte:02x}")).collect()
 }
@@ -217,6 +221,9 @@ impl CorrectionLog {
         let now = now_text();
         let transaction = self.connection.transaction()?;
         let image_hash = put_blob(&transaction, scene.image_png)?;
+        for part in scene.parts {
+            put_blob(&transaction, part)?;
+        }
         let labels_hash = put_blob(&transaction, &scene.state.labels_png)?;
         transaction.execute(
             "INSERT INTO scenes (name, image_hash, input_json, head_version, created_at, operator, row_schema)
@@ -619,6 +626,7 @@ mod tests {
                 name: "juniper-lane-hall",
                 image_png: &[7; 4],
                 input_json: "{}",
+                parts: &[],
                 operator: "mira",
                 state: &registered,
             })
@@ -677,6 +685,7 @@ mod tests {
                 name: "juniper-lane-bath",
                 image_png: &[3; 4],
                 input_json: "{}",
+                parts: &[],
                 operator: "ola",
                 state: &registered,
             })

@@ -9,6 +9,7 @@ use serde::{Deserialize, Serialize};
 use super::changes::{
     list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
 };
+use super::supersede::retire_superseded;
 use super::{build_scene_graph, SceneGraph};
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
 use crate::energy::{EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT};
@@ -168,10 +169,18 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             .iter()
             .map(|c| (c.span, c.gloss.clone())),
     );
-    in_force.extend(grounding.constraints.iter().cloned().map(|mut grounded| {
-        grounded.constraint += offset;
-        grounded
-    }));
+    let newer: Vec<GroundedConstraint> = grounding
+        .constraints
+        .iter()
+        .cloned()
+        .map(|mut grounded| {
+            grounded.constraint += offset;
+            grounded
+        })
+        .collect();
+    // A later statement about the same thing replaces the earlier one ("no, it's a towel").
+    retire_superseded(&mut in_force, &newer);
+    in_force.extend(newer);
 
     let built = build_energy(&energy_inputs(request, &hypotheses, &in_force))?;
     let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;

@@ -7,6 +7,7 @@
 
 pub mod changes;
 pub mod correct;
+pub mod supersede;
 
 use serde::{Deserialize, Serialize};
 

@@ -79,7 +79,8 @@ pub struct PastTurn {
 #[derive(Clone, Copy, Debug)]
 pub struct CorrectionRequest<'a> {
     pub scene: SceneHandle,
-    pub image: &'a RgbImage,
+    /// What the scene was registered with (the image, depth, scores, label map, detections, room).
+    pub input: &'a SceneInput,
     pub state: &'a SceneState,
     pub history: &'a [PastTurn],
     pub utterance: &'a str,

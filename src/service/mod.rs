@@ -9,8 +9,8 @@
 //! and interlocks; follow the robot maker's safety guidance and local regulations when acting on it.
 //! Changes that would remove or rename a person, a pet or a hazard wait for explicit confirmation.
 //!
-//! The pipeline plugs in through one trait, [`corrector::Corrector`]; [`pipeline`] holds the
-//! implementation the binary uses.
+//! The pipeline plugs in through one trait, [`corrector::Corrector`]; [`joint::JointCorrector`] (the joint
+//! pipeline of `crate::pipeline`) is the implementation the binary uses.
 
 pub mod config;
 pub mod coordinator;
@@ -19,9 +19,10 @@ pub mod error;
 pub mod field_notes;
 mod guard;
 mod handlers;
+pub mod joint;
+mod joint_inputs;
 pub mod metrics;
 pub mod openapi;
-pub mod pipeline;
 pub mod wire;
 
 use std::collections::HashMap;

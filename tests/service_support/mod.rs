@@ -173,6 +173,28 @@ pub fn picture(width: u32, height: u32) -> RgbImage {
     image
 }
 
+/// A picture whose colour edges follow a label map (a different flat colour per label, a faint texture),
+/// so superpixels can find the regions as they would on a real photograph.
+pub fn picture_of(labels: &IndexImage) -> RgbImage {
+    let mut image = RgbImage::filled(labels.width, labels.height, [0, 0, 0]);
+    for y in 0..labels.height {
+        for x in 0..labels.width {
+            let label = labels.values[(y * labels.width + x) as usize] as u32;
+            let texture = ((x + y) % 2) as u8 * 3;
+            image.set(
+                x,
+                y,
+                [
+                    (label * 97 % 200) as u8 + texture,
+                    (label * 57 % 200 + 30) as u8,
+                    (label * 31 % 200 + 50) as u8,
+                ],
+            );
+        }
+    }
+    image
+}
+
 pub fn png_base64(image: &RgbImage) -> String {
     base64(&raster::encode_rgb_png(image).unwrap())
 }
@@ -426,7 +448,7 @@ pub fn scene_and_conversation(
         token,
         &serde_json::json!({
             "name": "juniper-lane-hall",
-            "image_png_base64": png_base64(&picture(labels.width, labels.height)),
+            "image_png_base64": png_base64(&picture_of(labels)),
             "label_map_png_base64": index_png_base64(labels),
         }),
     );

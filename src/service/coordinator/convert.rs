@@ -74,8 +74,8 @@ pub(crate) fn scene_graph(scene: SceneKey, slot: &SceneSlot, taxonomy: &Taxonomy
         scene_id: scene.0,
         name: slot.name.clone(),
         version: slot.head.0,
-        width: slot.image.width,
-        height: slot.image.height,
+        width: slot.input.image.width,
+        height: slot.input.image.height,
         room: slot
             .state
             .summary

@@ -21,9 +21,9 @@ use crate::correction_log::{
     ConversationKey, CorrectionLog, LogError, SceneKey, StateRecord, VersionKey,
 };
 use crate::language::constraint::Constraint;
-use crate::raster::{self, RgbImage};
+use crate::raster;
 
-use super::corrector::{Change, Corrector, PastTurn, SceneState, SceneSummary};
+use super::corrector::{Change, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
 use super::error::ApiError;
 use super::metrics::Metrics;
 use super::wire::{ConversationOut, HealthOut, SceneGraphOut};
@@ -36,7 +36,7 @@ pub const UTTERANCE_CHARACTER_LIMIT: usize = 2000;
 
 pub(crate) struct SceneSlot {
     name: String,
-    image: Arc<RgbImage>,
+    input: Arc<SceneInput>,
     head: VersionKey,
     state: SceneState,
 }
@@ -178,13 +178,17 @@ impl Coordinator {
             let image =
                 raster::decode_rgb_png(&image_png, std::path::Path::new("stored image"), u64::MAX)
                     .map_err(|error| restore_error(error.to_string()))?;
+            let input = register::restore_input(&row.name, image, &row.input_json, |hash| {
+                log.blob(hash).map_err(|error| error.to_string())
+            })
+            .map_err(restore_error)?;
             let (record, _) = log.version(row.head)?;
             let state = decode_state(&record).map_err(restore_error)?;
             scenes.insert(
                 row.key,
                 Arc::new(Mutex::new(SceneSlot {
                     name: row.name,
-                    image: Arc::new(image),
+                    input: Arc::new(input),
                     head: row.head,
                     state,
                 })),
@@ -341,7 +345,7 @@ impl Coordinator {
         let slot = self.scene_slot(scene)?;
         let overlay = {
             let slot = lock(&slot);
-            self.corrector.overlay(&slot.image, &slot.state)
+            self.corrector.overlay(&slot.input.image, &slot.state)
         };
         raster::encode_rgb_png(&overlay).map_err(ApiError::internal)
     }

@@ -10,7 +10,9 @@ use std::sync::{Arc, Mutex};
 
 use axum::http::StatusCode;
 
-use crate::correction_log::NewScene;
+use serde::{Deserialize, Serialize};
+
+use crate::correction_log::{blob_hash, NewScene};
 use crate::ids::{ClassId, RoomId};
 use crate::raster::{self, RasterError};
 use crate::scene::BoundingBox;
@@ -19,6 +21,7 @@ use super::super::corrector::{CorrectorError, Detection, SceneInput};
 use super::super::error::ApiError;
 use super::super::wire::{RegisterSceneRequest, SceneCreated};
 use super::{encode_state, lock, log_error, Coordinator, SceneSlot};
+use crate::raster::DepthImage;
 
 /// A scene as the caller sent it, base64 already removed.
 #[derive(Clone, Debug, Default)]
@@ -113,6 +116,62 @@ fn read_optional(path: &Path) -> Option<Vec<u8>> {
     std::fs::read(path).ok()
 }
 
+/// What a scene's `input_json` records besides the image: blob hashes of the other parts, the
+/// detections and the declared room. Rows written before the parts were kept hold only flags; they restore
+/// with the image alone.
+#[derive(Debug, Default, Serialize, Deserialize)]
+pub(crate) struct StoredInput {
+    #[serde(default)]
+    depth_png: Option<String>,
+    #[serde(default)]
+    scores_npy: Option<String>,
+    #[serde(default)]
+    label_map_png: Option<String>,
+    #[serde(default)]
+    detections: Vec<Detection>,
+    #[serde(default)]
+    room: Option<RoomId>,
+}
+
+/// Rebuilds a stored scene's registration from its row: `blob` fetches a stored blob by hash.
+pub(crate) fn restore_input(
+    name: &str,
+    image: crate::raster::RgbImage,
+    input_json: &str,
+    blob: impl Fn(&str) -> Result<Vec<u8>, String>,
+) -> Result<SceneInput, String> {
+    let stored: StoredInput = serde_json::from_str(input_json)
+        .map_err(|error| format!("stored registration is unreadable: {error}"))?;
+    let index_png =
+        |hash: &Option<String>, what: &str| -> Result<Option<crate::raster::IndexImage>, String> {
+            match hash {
+                Some(hash) => raster::decode_index_png(&blob(hash)?, Path::new(what), u64::MAX)
+                    .map(Some)
+                    .map_err(|error| error.to_string()),
+                None => Ok(None),
+            }
+        };
+    let depth = index_png(&stored.depth_png, "stored depth")?.map(|decoded| DepthImage {
+        width: decoded.width,
+        height: decoded.height,
+        millimetres: decoded.values,
+    });
+    let label_map = index_png(&stored.label_map_png, "stored label map")?;
+    let scores_npy = match &stored.scores_npy {
+        Some(hash) => Some(blob(hash)?),
+        None => None,
+    };
+    Ok(SceneInput {
+        name: name.to_string(),
+        image,
+        depth,
+        scores_npy,
+        label_map,
+        detections: stored.detections,
+        room: stored.room,
+    })
+}
+
 impl Coordinator {
     /// Registers a scene: checks it, builds its first state and commits it.
     pub fn register_scene(
@@ -144,9 +203,8 @@ impl Coordinator {
                 )
             })?;
             upload.image_png = Some(image);
-            if upload.label_map_png.is_none() {
-                upload.label_map_png = read_optional(&directory.join("labels.png"));
-            }
+            // The demo's ground-truth labels are not handed in: the scene starts from the built-in
+            // classifier's belief, as on a robot.
             if upload.depth_png.is_none() {
                 upload.depth_png = read_optional(&directory.join("depth.png"));
             }
@@ -278,19 +336,25 @@ impl Coordinator {
                 internal => ApiError::internal(internal),
             })?;
         let record = encode_state(&state)?;
-        let input_json = serde_json::json!({
-            "has_depth": upload.depth_png.is_some(),
-            "has_scores": upload.scores_npy.is_some(),
-            "has_label_map": upload.label_map_png.is_some(),
-            "detections": detections,
-            "room": room,
+        let parts: Vec<&[u8]> = [&upload.depth_png, &upload.scores_npy, &upload.label_map_png]
+            .into_iter()
+            .flatten()
+            .map(|bytes| bytes.as_slice())
+            .collect();
+        let input_json = serde_json::to_string(&StoredInput {
+            depth_png: upload.depth_png.as_deref().map(blob_hash),
+            scores_npy: upload.scores_npy.as_deref().map(blob_hash),
+            label_map_png: upload.label_map_png.as_deref().map(blob_hash),
+            detections: detections.clone(),
+            room,
         })
-        .to_string();
+        .map_err(ApiError::internal)?;
         let (key, version) = lock(&self.log)
             .register_scene(&NewScene {
                 name: &name,
                 image_png: &image_png,
                 input_json: &input_json,
+                parts: &parts,
                 operator,
                 state: &record,
             })
@@ -302,7 +366,7 @@ impl Coordinator {
                 key,
                 Arc::new(Mutex::new(SceneSlot {
                     name: name.clone(),
-                    image: Arc::new(input.image),
+                    input: Arc::new(input),
                     head: version,
                     state,
                 })),

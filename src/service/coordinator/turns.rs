@@ -83,12 +83,12 @@ impl Coordinator {
         let scene_slot = self.scene_slot(conversation_state.scene)?;
         let mut scene = lock(&scene_slot);
         if let Some(FocusIn::Pixel { x, y }) = focus {
-            if x >= scene.image.width || y >= scene.image.height {
+            if x >= scene.input.image.width || y >= scene.input.image.height {
                 return Err(ApiError::unprocessable(
                     "focus_outside_image",
                     format!(
                         "focus pixel ({x}, {y}) is outside the {}x{} image",
-                        scene.image.width, scene.image.height
+                        scene.input.image.width, scene.input.image.height
                     ),
                 ));
             }
@@ -112,7 +112,7 @@ impl Coordinator {
             .corrector
             .apply(&CorrectionRequest {
                 scene: SceneHandle(conversation_state.scene.0),
-                image: &scene.image,
+                input: &scene.input,
                 state: &scene.state,
                 history: &conversation_state.history,
                 utterance: text,

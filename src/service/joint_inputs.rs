@@ -1,0 +1,229 @@
+//! Turning what a scene was registered with into what the joint pipeline solves on.
+//!
+//! Owns: `PreparedInput` (superpixels, per-segment unaries, detections), the choice of unary source (NPY
+//! scores, else a label map, else the built-in classifier), and the digest that names a registration.
+//! Must not: parse utterances, solve, or know about the service's storage; the caller caches.
+
+use ndarray::Axis;
+use sha2::{Digest, Sha256};
+
+use crate::hypotheses::Detection as HypothesisDetection;
+use crate::scene::{Scene, SceneParams};
+use crate::taxonomy::Taxonomy;
+use crate::unaries::byo::SynonymTable;
+use crate::unaries::byo_label_map::unaries_from_label_map;
+use crate::unaries::byo_npy::parse_npy;
+use crate::unaries::byo_pixel_scores::{
+    unaries_from_pixel_scores, PixelScoreOptions, ScoreKind, ScoreLayout,
+};
+use crate::unaries::pooling::PoolingRule;
+use crate::unaries::{builtin_unaries, Classifier, Unaries, UnarySource};
+
+use super::corrector::{CorrectorError, SceneInput};
+
+/// A registered scene ready to be solved.
+pub struct PreparedInput {
+    pub scene: Scene,
+    pub unaries: Unaries,
+    pub detections: Vec<HypothesisDetection>,
+}
+
+/// The lower-case hex SHA-256 of everything that decides a scene's solve: its name, pixels, depth, scores,
+/// label map, detections and declared room. Two registrations with the same digest solve identically.
+pub fn input_digest(input: &SceneInput) -> String {
+    let mut hasher = Sha256::new();
+    let mut part = |tag: &str, bytes: &[u8]| {
+        hasher.update(tag.as_bytes());
+        hasher.update((bytes.len() as u64).to_le_bytes());
+        hasher.update(bytes);
+    };
+    part("name", input.name.as_bytes());
+    let size = [
+        input.image.width.to_le_bytes(),
+        input.image.height.to_le_bytes(),
+    ]
+    .concat();
+    part("size", &size);
+    let pixels: Vec<u8> = input.image.pixels.iter().flatten().copied().collect();
+    part("image", &pixels);
+    if let Some(depth) = &input.depth {
+        let bytes: Vec<u8> = depth
+            .millimetres
+            .iter()
+            .flat_map(|value| value.to_le_bytes())
+            .collect();
+        part("depth", &bytes);
+    }
+    if let Some(scores) = &input.scores_npy {
+        part("scores", scores);
+    }
+    if let Some(labels) = &input.label_map {
+        let bytes: Vec<u8> = labels
+            .values
+            .iter()
+            .flat_map(|value| value.to_le_bytes())
+            .collect();
+        part("labels", &bytes);
+    }
+    for detection in &input.detections {
+        let text = format!(
+            "{} {} {} {} {} {}",
+            detection.class.0,
+            detection.bbox.x0,
+            detection.bbox.y0,
+            detection.bbox.x1,
+            detection.bbox.y1,
+            detection.score.to_bits()
+        );
+        part("detection", text.as_bytes());
+    }
+    if let Some(room) = input.room {
+        part("room", &room.0.to_le_bytes());
+    }
+    hex(&hasher.finalize())
+}
+
+/// Lower-case hex of bytes.
+pub fn hex(bytes: &[u8]) -> String {
+    bytes.iter().map(|byte| format!("{byte:02x}")).collect()
+}
+
+fn bad(field: &str, message: impl Into<String>) -> CorrectorError {
+    CorrectorError::BadInput {
+        field: field.to_string(),
+        message: message.into(),
+    }
+}
+
+/// Pixels per superpixel at least, for images too small for the default segment count (our own choice).
+const SMALLEST_SEGMENT_PIXELS: u64 = 4;
+
+/// The default scene settings, with fewer superpixels on images too small for the default count.
+fn scene_params(width: u32, height: u32) -> Result<SceneParams, CorrectorError> {
+    let mut params = SceneParams::default();
+    let default_target = SceneParams::default().superpixels.target_segments();
+    let fits = (width as u64 * height as u64 / SMALLEST_SEGMENT_PIXELS).max(1);
+    if fits < default_target as u64 {
+        params.superpixels = params
+            .superpixels
+            .with_target_segments(fits as u32)
+            .map_err(|error| bad("image_png_base64", error.to_string()))?;
+    }
+    Ok(params)
+}
+
+/// Builds superpixels and unaries for a registration.
+pub fn prepare_input(
+    input: &SceneInput,
+    taxonomy: &Taxonomy,
+    classifier: &Classifier,
+) -> Result<PreparedInput, CorrectorError> {
+    let scene = Scene::from_image(
+        input.name.clone(),
+        input.image.clone(),
+        input.depth.clone(),
+        input.room,
+        &scene_params(input.image.width, input.image.height)?,
+    )
+    .map_err(|error| bad("image_png_base64", error.to_string()))?;
+    let class_count = taxonomy.class_count();
+    let unaries = if let Some(bytes) = &input.scores_npy {
+        scores_unaries(bytes, &scene, taxonomy)?
+    } else if let Some(labels) = &input.label_map {
+        unaries_from_label_map(
+            labels,
+            None,
+            &scene.segments,
+            class_count,
+            PoolingRule::MeanProbability,
+            UnarySource::LabelMap {
+                file: "label_map_png_base64".into(),
+            },
+        )
+        .map_err(|error| bad("label_map_png_base64", error.to_string()))?
+    } else {
+        builtin_unaries(&scene, classifier)
+            .map_err(|error| CorrectorError::Internal(error.to_string()))?
+    };
+    let detections = input
+        .detections
+        .iter()
+        .map(|detection| HypothesisDetection {
+            class: detection.class,
+            bbox: detection.bbox,
+            score: detection.score,
+            mask: None,
+        })
+        .collect();
+    Ok(PreparedInput {
+        scene,
+        unaries,
+        detections,
+    })
+}
+
+/// Per-pixel NPY scores over the taxonomy's classes in id order, `HxWxC` or `CxHxW`. Probabilities when
+/// every pixel's values are non-negative and sum to 1 (within 1e-3), otherwise logits (softmax per pixel).
+fn scores_unaries(
+    bytes: &[u8],
+    scene: &Scene,
+    taxonomy: &Taxonomy,
+) -> Result<Unaries, CorrectorError> {
+    const FIELD: &str = "scores_npy_base64";
+    let array = parse_npy(bytes).map_err(|error| bad(FIELD, error.to_string()))?;
+    let values = array.values;
+    let class_count = taxonomy.class_count();
+    let shape = values.shape().to_vec();
+    let (height, width) = (scene.height() as usize, scene.width() as usize);
+    let layout = if shape == [height, width, class_count] {
+        ScoreLayout::HeightWidthChannels
+    } else if shape == [class_count, height, width] {
+        ScoreLayout::ChannelsHeightWidth
+    } else {
+        return Err(bad(
+            FIELD,
+            format!(
+                "scores have shape {shape:?}; expected ({height}, {width}, {class_count}) or \
+                 ({class_count}, {height}, {width}) for this image and the {class_count} classes"
+            ),
+        ));
+    };
+    if let Some(value) = values.iter().find(|value| !value.is_finite()) {
+        return Err(bad(
+            FIELD,
+            format!("scores contain {value}; every score must be finite"),
+        ));
+    }
+    let channel_axis = match layout {
+        ScoreLayout::ChannelsHeightWidth => Axis(0),
+        _ => Axis(2),
+    };
+    let sums = values.sum_axis(channel_axis);
+    let probabilities = values.iter().all(|&value| value >= 0.0)
+        && sums.iter().all(|&sum| (sum - 1.0).abs() <= 1e-3);
+    let options = PixelScoreOptions {
+        class_names: taxonomy
+            .classes()
+            .iter()
+            .map(|class| class.name.clone())
+            .collect(),
+        kind: if probabilities {
+            ScoreKind::Probabilities
+        } else {
+            ScoreKind::Logits
+        },
+        layout,
+        pooling: PoolingRule::MeanProbability,
+        allow_unknown_classes: false,
+    };
+    let synonyms = SynonymTable::embedded(taxonomy);
+    unaries_from_pixel_scores(
+        values.view(),
+        &scene.segments,
+        &options,
+        taxonomy,
+        &synonyms,
+        UnarySource::PixelScores { file: FIELD.into() },
+    )
+    .map_err(|error| bad(FIELD, error.to_string()))
+}
