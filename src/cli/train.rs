@@ -110,14 +110,32 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         (
             rows,
             format!(
-                "{} scenes from `{}`; one row per segment (SLIC defaults), labelled with the majority ground-truth class of its pixels.",
+                "{} scenes from `{}`; one row per segment (SLIC defaults), labelled with the majority class of its pixels in labels.png{}.",
                 entries.len(),
-                directory.display()
+                directory.display(),
+                if directory.join("index.jsonl").is_file() {
+                    " (operator-corrected labels exported from the correction log)"
+                } else {
+                    " (ground truth)"
+                }
             ),
             current_feature_layout().version,
         )
-    } else if args.render.is_some() {
-        bail!("--render needs the scene renderer, which this build does not include yet; render scenes to a directory and pass --data");
+    } else if let Some(count) = args.render {
+        let directory = render_training_scenes(count, args.seed_base)?;
+        let entries = list_dataset(&directory)?;
+        let rows = dataset_training_rows(&entries, &taxonomy, &SceneParams::default(), true);
+        let _ = std::fs::remove_dir_all(&directory);
+        (
+            rows?,
+            format!(
+                "{count} scenes rendered with seeds {}..{} (room types in turn, as `sayso render --seed {} --count {count}`); one row per segment (SLIC defaults), labelled with the majority ground-truth class of its pixels.",
+                args.seed_base,
+                args.seed_base + count as u64,
+                args.seed_base
+            ),
+            current_feature_layout().version,
+        )
     } else {
         bail!("give --data DIR, --render N or --feature-matrix FILE");
     };
@@ -238,4 +256,34 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         c.ece_after
     );
     Ok(())
+}
+
+/// Renders `count` training scenes (room types in turn) with seeds from `seed_base` into a fresh
+/// temporary directory; refuses seeds of the demo scenes, which are the evaluation set.
+fn render_training_scenes(count: u32, seed_base: u64) -> anyhow::Result<PathBuf> {
+    use sayso::render::catalogue::DEMO_SCENES;
+    use sayso::render::writer::write_scene;
+    use sayso::render::{render_scene, SceneRequest, ROOM_TYPES};
+    if count == 0 {
+        bail!("--render needs at least 1 scene");
+    }
+    let seeds = seed_base..seed_base.saturating_add(count as u64);
+    if let Some(demo) = DEMO_SCENES.iter().find(|demo| seeds.contains(&demo.seed)) {
+        bail!(
+            "--seed-base {seed_base} with --render {count} would render demo scene {} (seed {}); the demo scenes are the evaluation set, pick seeds from 100000",
+            demo.name,
+            demo.seed
+        );
+    }
+    let directory =
+        std::env::temp_dir().join(format!("sayso-train-renders-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&directory);
+    let taxonomy = Taxonomy::embedded();
+    for (index, seed) in seeds.enumerate() {
+        let room = ROOM_TYPES[index % ROOM_TYPES.len()];
+        let request = SceneRequest::new(room, seed);
+        let scene = render_scene(&taxonomy, &request)?;
+        write_scene(&directory.join(&request.name), &scene)?;
+    }
+    Ok(directory)
 }

@@ -1,7 +1,8 @@
 //! Writing the accepted corrections out as a training dataset directory.
 //!
 //! Owns: the dataset layout. Each example is a folder like a rendered demo scene
-//! (`<name>/image.png`, `labels.png` — the corrected index PNG —, `labels_before.png`, `scene.json`), with
+//! (`<name>/image.png`, `labels.png` — the corrected index PNG —, `labels_before.png`, `depth.png` when the
+//! scene has depth, `scene.json`), with
 //! `index.jsonl` (one record per example) and `classes.json` (the class manifest) at the top.
 //! Must not: decode images or judge examples; the bytes in the log are written as they are.
 
@@ -40,13 +41,16 @@ struct ExampleRecord<'a> {
     name: &'a str,
     width: u32,
     height: u32,
-    /// The room type id, when the scene was registered with one.
+    /// The room type: the corrected scene's, else the one declared at registration.
     room: Option<&'a str>,
     /// The example's folder, relative to the dataset directory.
     directory: String,
     image: String,
     labels: String,
     labels_before: String,
+    /// The 16-bit depth PNG (millimetres), when the scene was registered with one.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    depth: Option<String>,
     scene_id: i64,
     scene_name: &'a str,
     scene_version: i64,
@@ -91,15 +95,29 @@ fn png_size(bytes: &[u8]) -> Option<(u32, u32)> {
 }
 
 /// The room type the scene was registered with, by name.
-fn room_name(log: &CorrectionLog, scene: super::SceneKey, taxonomy: &Taxonomy) -> Option<String> {
+/// The scene's registration record (`input_json`) as JSON.
+fn registration(log: &CorrectionLog, scene: super::SceneKey) -> Option<serde_json::Value> {
     let row = log
         .scenes()
         .ok()?
         .into_iter()
         .find(|row| row.key == scene)?;
-    let input: serde_json::Value = serde_json::from_str(&row.input_json).ok()?;
-    let room = input.get("room")?.as_u64()?;
-    let room = u16::try_from(room).ok()?;
+    serde_json::from_str(&row.input_json).ok()
+}
+
+/// The room type of the example: the corrected version's, else the one declared at registration.
+fn room_name(
+    log: &CorrectionLog,
+    example: &super::ExampleRow,
+    registration: Option<&serde_json::Value>,
+    taxonomy: &Taxonomy,
+) -> Option<String> {
+    let from_version = log.version(example.version).ok().and_then(|(record, _)| {
+        let summary: serde_json::Value = serde_json::from_str(&record.summary_json).ok()?;
+        summary.get("room")?.as_u64()
+    });
+    let declared = registration.and_then(|input| input.get("room")?.as_u64());
+    let room = u16::try_from(from_version.or(declared)?).ok()?;
     taxonomy
         .room(crate::ids::RoomId(room))
         .map(|info| info.name.clone())
@@ -163,7 +181,18 @@ pub fn export_dataset(
         )?;
         let image = log.blob(&example.image_hash)?;
         let (width, height) = png_size(&image).unwrap_or((0, 0));
-        let room = room_name(log, example.scene, taxonomy);
+        let registered = registration(log, example.scene);
+        let room = room_name(log, example, registered.as_ref(), taxonomy);
+        let depth_hash = registered
+            .as_ref()
+            .and_then(|input| input.get("depth_png")?.as_str().map(str::to_string));
+        let depth = match depth_hash {
+            Some(hash) => {
+                write_file(&example_directory.join("depth.png"), &log.blob(&hash)?)?;
+                Some(format!("{folder}/depth.png"))
+            }
+            None => None,
+        };
         let record = ExampleRecord {
             name: &example.scene_name,
             width,
@@ -173,6 +202,7 @@ pub fn export_dataset(
             image: format!("{folder}/image.png"),
             labels: format!("{folder}/labels.png"),
             labels_before: format!("{folder}/labels_before.png"),
+            depth,
             scene_id: example.scene.0,
             scene_name: &example.scene_name,
             scene_version: example.version.0,
