@@ -6,7 +6,7 @@
 
 use std::path::{Path, PathBuf};
 
-use rusqlite::{params, Connection, OptionalExtension, Transaction};
+use rusqlite::{params, Connection, OptionalExtension};
 use sha2::{Digest, Sha256};
 
 use super::schema::{self, LOG_SCHEMA_VERSION};
@@ -148,10 +148,144 @@ pub struct ExampleRow {
     pub row_schema: i64,
 }
 
+/// The rows of one turn, written through `connection` (a transaction or a savepoint is open around it).
+fn write_turn(
+    transaction: &Connection,
+    turn: &NewTurn<'_>,
+    stacks: Option<(&[VersionKey], &[VersionKey])>,
+) -> Result<(TurnKey, Option<VersionKey>), LogError> {
+    let now = now_text();
+    let scene: i64 = transaction
+        .query_row(
+            "SELECT scene_id FROM conversations WHERE id = ?1",
+            [turn.conversation.0],
+            |row| row.get(0),
+        )
+        .optional()?
+        .ok_or(LogError::Missing {
+            what: "conversation",
+            id: turn.conversation.0,
+        })?;
+    let head: i64 = transaction.query_row(
+        "SELECT head_version FROM scenes WHERE id = ?1",
+        [scene],
+        |row| row.get(0),
+    )?;
+    transaction.execute(
+        "INSERT INTO turns (conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
+         VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)",
+        params![
+            turn.conversation.0, turn.kind, turn.text, turn.focus_json, turn.status,
+            turn.constraints_json, turn.result_json, head, turn.operator, now, LOG_SCHEMA_VERSION
+        ],
+    )?;
+    let turn_key = TurnKey(transaction.last_insert_rowid());
+    let mut new_version = None;
+    match &turn.effect {
+        TurnEffect::None => {}
+        TurnEffect::NewVersion {
+            base,
+            state,
+            utterance,
+            constraints_json,
+        } => {
+            if base.0 != head {
+                return Err(LogError::Stale { head, base: base.0 });
+            }
+            let labels_hash = put_blob(&transaction, &state.labels_png)?;
+            transaction.execute(
+                "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
+                params![scene, base.0, labels_hash, state.summary_json, state.engine_state, turn_key.0, now, LOG_SCHEMA_VERSION],
+            )?;
+            let version = transaction.last_insert_rowid();
+            transaction.execute(
+                "UPDATE scenes SET head_version = ?1 WHERE id = ?2",
+                params![version, scene],
+            )?;
+            transaction.execute(
+                "INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema)
+                 SELECT ?1, ?2, ?3, s.image_hash, v.labels_hash, ?4, ?5, ?6, ?7, ?8, 1, ?9
+                 FROM scenes s JOIN scene_versions v ON v.id = ?10 WHERE s.id = ?1",
+                params![scene, version, turn_key.0, labels_hash, utterance, constraints_json, turn.operator, now, LOG_SCHEMA_VERSION, base.0],
+            )?;
+            transaction.execute(
+                "DELETE FROM pending_changes WHERE conversation_id = ?1",
+                [turn.conversation.0],
+            )?;
+            transaction.execute(
+                "UPDATE turns SET scene_version = ?1 WHERE id = ?2",
+                params![version, turn_key.0],
+            )?;
+            new_version = Some(VersionKey(version));
+        }
+        TurnEffect::Pending {
+            base,
+            state,
+            reason,
+            changes_json,
+        } => {
+            let labels_hash = put_blob(&transaction, &state.labels_png)?;
+            transaction.execute(
+                "INSERT OR REPLACE INTO pending_changes (conversation_id, turn_id, base_version, labels_hash, summary_json, engine_state, reason, changes_json, created_at, row_schema)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)",
+                params![turn.conversation.0, turn_key.0, base.0, labels_hash, state.summary_json, state.engine_state, reason, changes_json, now, LOG_SCHEMA_VERSION],
+            )?;
+        }
+        TurnEffect::ClearPending => {
+            transaction.execute(
+                "DELETE FROM pending_changes WHERE conversation_id = ?1",
+                [turn.conversation.0],
+            )?;
+        }
+        TurnEffect::MoveHead {
+            from,
+            to,
+            deactivate,
+            activate,
+        } => {
+            if from.0 != head {
+                return Err(LogError::Stale { head, base: from.0 });
+            }
+            transaction.execute(
+                "UPDATE scenes SET head_version = ?1 WHERE id = ?2",
+                params![to.0, scene],
+            )?;
+            if let Some(version) = deactivate {
+                transaction.execute(
+                    "UPDATE training_examples SET active = 0 WHERE version_id = ?1",
+                    [version.0],
+                )?;
+            }
+            if let Some(version) = activate {
+                transaction.execute(
+                    "UPDATE training_examples SET active = 1 WHERE version_id = ?1",
+                    [version.0],
+                )?;
+            }
+            transaction.execute(
+                "UPDATE turns SET scene_version = ?1 WHERE id = ?2",
+                params![to.0, turn_key.0],
+            )?;
+        }
+    }
+    if let Some((applied, redo)) = stacks {
+        let mut applied = applied.to_vec();
+        applied.extend(new_version);
+        transaction.execute(
+            "UPDATE conversations SET applied_stack = ?1, redo_stack = ?2 WHERE id = ?3",
+            params![stack_text(&applied), stack_text(redo), turn.conversation.0],
+        )?;
+    }
+    Ok((turn_key, new_version))
+}
+
 /// The correction log: one SQLite connection on `<data dir>/...sqlite`.
 pub struct CorrectionLog {
     connection: Connection,
     path: PathBuf,
+    /// A group-commit batch transaction is open on `connection`.
+    batch_open: bool,
 }
 
 /// The key a blob is stored under: lower-case hex SHA-256 of its bytes.
@@ -160,7 +294,7 @@ pub fn blob_hash(bytes: &[u8]) -> String {
     digest.iter().map(|byte| format!("{byte:02x}")).collect()
 }
 
-fn put_blob(transaction: &Transaction<'_>, bytes: &[u8]) -> Result<String, LogError> {
+fn put_blob(transaction: &Connection, bytes: &[u8]) -> Result<String, LogError> {
     let hash = blob_hash(bytes);
     transaction.execute(
         "INSERT OR IGNORE INTO blobs (hash, bytes) VALUES (?1, ?2)",
@@ -191,6 +325,7 @@ impl CorrectionLog {
         let mut connection = Connection::open(path)?;
         schema::prepare(&mut connection)?;
         Ok(CorrectionLog {
+            batch_open: false,
             connection,
             path: path.to_path_buf(),
         })
@@ -218,6 +353,7 @@ impl CorrectionLog {
         &mut self,
         scene: &NewScene<'_>,
     ) -> Result<(SceneKey, VersionKey), LogError> {
+        self.commit_batch()?;
         let now = now_text();
         let transaction = self.connection.transaction()?;
         let image_hash = put_blob(&transaction, scene.image_png)?;
@@ -251,6 +387,7 @@ impl CorrectionLog {
         scene: SceneKey,
         operator: &str,
     ) -> Result<ConversationRow, LogError> {
+        self.commit_batch()?;
         let now = now_text();
         let exists: Option<i64> = self
             .connection
@@ -287,132 +424,58 @@ impl CorrectionLog {
         turn: &NewTurn<'_>,
         stacks: Option<(&[VersionKey], &[VersionKey])>,
     ) -> Result<(TurnKey, Option<VersionKey>), LogError> {
-        let now = now_text();
+        self.commit_batch()?;
         let transaction = self.connection.transaction()?;
-        let scene: i64 = transaction
-            .query_row(
-                "SELECT scene_id FROM conversations WHERE id = ?1",
-                [turn.conversation.0],
-                |row| row.get(0),
-            )
-            .optional()?
-            .ok_or(LogError::Missing {
-                what: "conversation",
-                id: turn.conversation.0,
-            })?;
-        let head: i64 = transaction.query_row(
-            "SELECT head_version FROM scenes WHERE id = ?1",
-            [scene],
-            |row| row.get(0),
-        )?;
-        transaction.execute(
-            "INSERT INTO turns (conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
-             VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)",
-            params![
-                turn.conversation.0, turn.kind, turn.text, turn.focus_json, turn.status,
-                turn.constraints_json, turn.result_json, head, turn.operator, now, LOG_SCHEMA_VERSION
-            ],
-        )?;
-        let turn_key = TurnKey(transaction.last_insert_rowid());
-        let mut new_version = None;
-        match &turn.effect {
-            TurnEffect::None => {}
-            TurnEffect::NewVersion {
-                base,
-                state,
-                utterance,
-                constraints_json,
-            } => {
-                if base.0 != head {
-                    return Err(LogError::Stale { head, base: base.0 });
-                }
-                let labels_hash = put_blob(&transaction, &state.labels_png)?;
-                transaction.execute(
-                    "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
-                     VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
-                    params![scene, base.0, labels_hash, state.summary_json, state.engine_state, turn_key.0, now, LOG_SCHEMA_VERSION],
-                )?;
-                let version = transaction.last_insert_rowid();
-                transaction.execute(
-                    "UPDATE scenes SET head_version = ?1 WHERE id = ?2",
-                    params![version, scene],
-                )?;
-                transaction.execute(
-                    "INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema)
-                     SELECT ?1, ?2, ?3, s.image_hash, v.labels_hash, ?4, ?5, ?6, ?7, ?8, 1, ?9
-                     FROM scenes s JOIN scene_versions v ON v.id = ?10 WHERE s.id = ?1",
-                    params![scene, version, turn_key.0, labels_hash, utterance, constraints_json, turn.operator, now, LOG_SCHEMA_VERSION, base.0],
-                )?;
-                transaction.execute(
-                    "DELETE FROM pending_changes WHERE conversation_id = ?1",
-                    [turn.conversation.0],
-                )?;
-                transaction.execute(
-                    "UPDATE turns SET scene_version = ?1 WHERE id = ?2",
-                    params![version, turn_key.0],
-                )?;
-                new_version = Some(VersionKey(version));
-            }
-            TurnEffect::Pending {
-                base,
-                state,
-                reason,
-                changes_json,
-            } => {
-                let labels_hash = put_blob(&transaction, &state.labels_png)?;
-                transaction.execute(
-                    "INSERT OR REPLACE INTO pending_changes (conversation_id, turn_id, base_version, labels_hash, summary_json, engine_state, reason, changes_json, created_at, row_schema)
-                     VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)",
-                    params![turn.conversation.0, turn_key.0, base.0, labels_hash, state.summary_json, state.engine_state, reason, changes_json, now, LOG_SCHEMA_VERSION],
-                )?;
-            }
-            TurnEffect::ClearPending => {
-                transaction.execute(
-                    "DELETE FROM pending_changes WHERE conversation_id = ?1",
-                    [turn.conversation.0],
-                )?;
-            }
-            TurnEffect::MoveHead {
-                from,
-                to,
-                deactivate,
-                activate,
-            } => {
-                if from.0 != head {
-                    return Err(LogError::Stale { head, base: from.0 });
-                }
-                transaction.execute(
-                    "UPDATE scenes SET head_version = ?1 WHERE id = ?2",
-                    params![to.0, scene],
-                )?;
-                if let Some(version) = deactivate {
-                    transaction.execute(
-                        "UPDATE training_examples SET active = 0 WHERE version_id = ?1",
-                        [version.0],
-                    )?;
-                }
-                if let Some(version) = activate {
-                    transaction.execute(
-                        "UPDATE training_examples SET active = 1 WHERE version_id = ?1",
-                        [version.0],
-                    )?;
-                }
-                transaction.execute(
-                    "UPDATE turns SET scene_version = ?1 WHERE id = ?2",
-                    params![to.0, turn_key.0],
-                )?;
-            }
-        }
-        if let Some((applied, redo)) = stacks {
-            let mut applied = applied.to_vec();
-            applied.extend(new_version);
-            transaction.execute(
-                "UPDATE conversations SET applied_stack = ?1, redo_stack = ?2 WHERE id = ?3",
-                params![stack_text(&applied), stack_text(redo), turn.conversation.0],
-            )?;
-        }
+        let written = write_turn(&transaction, turn, stacks)?;
         transaction.commit()?;
-        Ok((turn_key, new_version))
+        Ok(written)
+    }
+
+    /// Whether a group-commit batch is open (see `write_turn_in_batch`).
+    pub fn in_batch(&self) -> bool {
+        self.batch_open
+    }
+
+    /// Writes one turn into the open group-commit batch (opening one if needed), inside its own savepoint:
+    /// a turn that fails leaves nothing behind and the batch's other turns stand. Nothing is durable until
+    /// `commit_batch` returns.
+    pub fn write_turn_in_batch(
+        &mut self,
+        turn: &NewTurn<'_>,
+        stacks: Option<(&[VersionKey], &[VersionKey])>,
+    ) -> Result<(TurnKey, Option<VersionKey>), LogError> {
+        if !self.batch_open {
+            self.connection.execute_batch("BEGIN IMMEDIATE")?;
+            self.batch_open = true;
+        }
+        self.connection.execute_batch("SAVEPOINT turn")?;
+        match write_turn(&self.connection, turn, stacks) {
+            Ok(written) => {
+                self.connection.execute_batch("RELEASE turn")?;
+                Ok(written)
+            }
+            Err(error) => {
+                self.connection
+                    .execute_batch("ROLLBACK TO turn; RELEASE turn")?;
+                Err(error)
+            }
+        }
+    }
+
+    /// Commits the open group-commit batch, if any (one fsync for every turn in it). On failure the whole
+    /// batch is rolled back and none of its turns exists.
+    pub fn commit_batch(&mut self) -> Result<(), LogError> {
+        if !self.batch_open {
+            return Ok(());
+        }
+        self.batch_open = false;
+        match self.connection.execute_batch("COMMIT") {
+            Ok(()) => Ok(()),
+            Err(error) => {
+                let _ = self.connection.execute_batch("ROLLBACK");
+                Err(error.into())
+            }
+        }
     }
 
     /// Every stored scene, oldest first.
