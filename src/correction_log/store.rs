@@ -192,7 +192,7 @@ fn write_turn(
             if base.0 != head {
                 return Err(LogError::Stale { head, base: base.0 });
             }
-            let labels_hash = put_blob(&transaction, &state.labels_png)?;
+            let labels_hash = put_blob(transaction, &state.labels_png)?;
             transaction.execute(
                 "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
                  VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
@@ -225,7 +225,7 @@ fn write_turn(
             reason,
             changes_json,
         } => {
-            let labels_hash = put_blob(&transaction, &state.labels_png)?;
+            let labels_hash = put_blob(transaction, &state.labels_png)?;
             transaction.execute(
                 "INSERT OR REPLACE INTO pending_changes (conversation_id, turn_id, base_version, labels_hash, summary_json, engine_state, reason, changes_json, created_at, row_schema)
                  VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)",
