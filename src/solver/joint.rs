@@ -24,8 +24,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::energy::{EnergyError, JointEnergy, JointState};
 use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
-use crate::solver::joint_labeller::{candidate_table, label_segments, potts_lower_bound};
-use crate::solver::labelling::LabellingProblem;
+use crate::solver::joint_labeller::{candidate_table, Labeller, LabellerTables, PottsBound};
 
 /// Options of the joint solver.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -97,9 +96,31 @@ struct Candidate {
 struct Context<'a> {
     energy: &'a JointEnergy,
     unary: Vec<f64>,
-    /// Labels each node may take in expansion moves.
-    candidates: Vec<bool>,
-    edges_f32: Vec<(u32, u32, f32)>,
+    /// Adjacency and the labels each node may take in expansion moves.
+    tables: LabellerTables,
+}
+
+/// The mutable side of one solve: the labellers (each remembers its last problem, so a call that follows a
+/// similar one is cheap), the bound's scratch and an unary buffer.
+struct Workspace<'t> {
+    /// Labels the dual's segment part (unaries shifted by the multipliers).
+    dual: Labeller<'t>,
+    /// Labels segments given accepted hypotheses (the primal side).
+    primal: Labeller<'t>,
+    bound: PottsBound,
+    unary: Vec<f64>,
+}
+
+impl<'t> Workspace<'t> {
+    fn new(context: &'t Context) -> Workspace<'t> {
+        let energy = context.energy;
+        Workspace {
+            dual: Labeller::new(&context.tables),
+            primal: Labeller::new(&context.tables),
+            bound: PottsBound::new(energy.node_count, energy.label_count, &energy.edges),
+            unary: Vec::with_capacity(context.unary.len()),
+        }
+    }
 }
 
 impl Context<'_> {
@@ -161,19 +182,12 @@ impl Context<'_> {
         }
     }
 
-    fn problem(&self, unary: &[f64]) -> LabellingProblem {
-        LabellingProblem {
-            node_count: self.energy.node_count,
-            label_count: self.energy.label_count,
-            unary: unary.iter().map(|&value| value as f32).collect(),
-            edges: self.edges_f32.clone(),
-        }
-    }
-
     /// Labels given the accepted hypotheses of a state, then completes them.
-    fn relabel_given_hypotheses(&self, state: &JointState) -> Candidate {
+    fn relabel_given_hypotheses(&self, workspace: &mut Workspace, state: &JointState) -> Candidate {
         let label_count = self.energy.label_count;
-        let mut unary = self.unary.clone();
+        let unary = &mut workspace.unary;
+        unary.clear();
+        unary.extend_from_slice(&self.unary);
         for (hypothesis, &on) in self.energy.hypotheses.iter().zip(&state.hypotheses_on) {
             if on {
                 for &s in &hypothesis.members {
@@ -186,8 +200,8 @@ impl Context<'_> {
                 }
             }
         }
-        let result = label_segments(&self.problem(&unary), &self.candidates, &state.labels);
-        self.complete(result.labels)
+        let labels = workspace.primal.label(unary, &state.labels).to_vec();
+        self.complete(labels)
     }
 }
 
@@ -304,10 +318,17 @@ struct DualValue {
 }
 
 /// One evaluation of the dual function at the current multipliers.
-fn dual_value(context: &Context, multipliers: &Multipliers, start: &[u16]) -> DualValue {
+fn dual_value(
+    context: &Context,
+    workspace: &mut Workspace,
+    multipliers: &Multipliers,
+    start: &[u16],
+) -> DualValue {
     let energy = context.energy;
     let label_count = energy.label_count;
-    let mut unary = context.unary.clone();
+    let unary = &mut workspace.unary;
+    unary.clear();
+    unary.extend_from_slice(&context.unary);
     for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
         for (m, &s) in hypothesis.members.iter().enumerate() {
             unary[s as usize * label_count + hypothesis.class as usize] -=
@@ -317,8 +338,8 @@ fn dual_value(context: &Context, multipliers: &Multipliers, start: &[u16]) -> Du
     for (index, &nu) in multipliers.presence.iter().enumerate() {
         unary[index] += nu;
     }
-    let segment_bound = potts_lower_bound(&unary, label_count, &energy.edges);
-    let result = label_segments(&context.problem(&unary), &context.candidates, start);
+    let segment_bound = workspace.bound.bound(unary);
+    let segment_labels = workspace.dual.label(unary, start).to_vec();
 
     let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
     let mut cost_off = Vec::with_capacity(energy.hypotheses.len());
@@ -360,7 +381,7 @@ fn dual_value(context: &Context, multipliers: &Multipliers, start: &[u16]) -> Du
         .collect();
     DualValue {
         bound: segment_bound + coupled.value,
-        segment_labels: result.labels,
+        segment_labels,
         coupled,
         copies,
     }
@@ -542,17 +563,18 @@ pub fn solve_joint(
 ) -> Result<JointSolution, JointError> {
     energy.validate()?;
     let unary = energy.folded_unary();
-    let edges_f32: Vec<(u32, u32, f32)> = energy
-        .edges
-        .iter()
-        .map(|&(a, b, w)| (a, b, w as f32))
-        .collect();
+    let tables = LabellerTables::new(
+        energy.node_count,
+        energy.label_count,
+        &energy.edges,
+        &candidates(energy, &unary),
+    );
     let context = Context {
         energy,
-        candidates: candidates(energy, &unary),
         unary,
-        edges_f32,
+        tables,
     };
+    let mut workspace = Workspace::new(&context);
     let label_count = energy.label_count;
 
     let mut multipliers = fresh_multipliers(energy);
@@ -575,7 +597,7 @@ pub fn solve_joint(
             warm_multipliers = true;
         }
     }
-    let from_start = context.relabel_given_hypotheses(&best.state);
+    let from_start = context.relabel_given_hypotheses(&mut workspace, &best.state);
     keep_better(&mut best, from_start);
 
     let mut lower_bound = f64::NEG_INFINITY;
@@ -597,7 +619,7 @@ pub fn solve_joint(
     };
     while iterations < iteration_limit {
         iterations += 1;
-        let dual = dual_value(&context, &multipliers, &segment_start);
+        let dual = dual_value(&context, &mut workspace, &multipliers, &segment_start);
         coupled_exact &= dual.coupled.exact;
         if dual.bound > lower_bound + 1e-12 {
             lower_bound = dual.bound;
@@ -614,7 +636,7 @@ pub fn solve_joint(
         let previous_best = best.energy;
         if last_alternated.as_ref() != Some(&candidate.state.hypotheses_on) {
             last_alternated = Some(candidate.state.hypotheses_on.clone());
-            let alternated = context.relabel_given_hypotheses(&candidate.state);
+            let alternated = context.relabel_given_hypotheses(&mut workspace, &candidate.state);
             remember(&mut pool, &alternated);
             keep_better(&mut best, alternated);
         }
@@ -645,7 +667,7 @@ pub fn solve_joint(
         remember(&mut pool, &best);
         for label in 0..label_count as u16 {
             let constant = context.complete(vec![label; energy.node_count]);
-            let settled = context.relabel_given_hypotheses(&constant.state);
+            let settled = context.relabel_given_hypotheses(&mut workspace, &constant.state);
             remember(&mut pool, &settled);
         }
         for mut start in pool {

@@ -1,264 +1,359 @@
-//! The segment-labelling side of the joint solver: one call that labels a Potts problem, and a valid lower
-//! bound of that problem's minimum.
+//! The segment-labelling side of the joint solver: a reusable labeller for the Potts part of the energy, and
+//! a valid lower bound of that part's minimum.
 //!
-//! Owns: `label_segments` (the single place the joint solver asks for a segment labelling) and
-//! `potts_lower_bound`.
-//! Must not: know about hypotheses, rooms or constraints; it sees a plain `LabellingProblem`.
+//! Owns: `LabellerTables` (adjacency and each node's candidate labels, built once per solve), `Labeller`
+//! (alpha-expansion with its flow graph and buffers kept across calls, and memory of which moves are known to
+//! fail), `candidate_table` and `PottsBound`.
+//! Must not: know about hypotheses, rooms or constraints; it sees unaries and edges only.
 //!
-//! `label_segments` runs a small private expansion over a plain Dinic max-flow with label pruning (each node
-//! may only move to its few cheapest labels or labels hypotheses pull in), warm-started; on the 500-segment
-//! bench scene this halves the joint solve against the shared all-label expansion, which stays behind
-//! `USE_SHARED_EXPANSION`. A labelling is always returned; the joint solver never relies on either being optimal, since it
-//! re-evaluates every candidate with the true energy and bounds separately.
+//! # Method
+//!
+//! Alpha-expansion (Boykov, Veksler, Zabih 2001) with label pruning: a node may only move to its few cheapest
+//! labels or to labels the caller adds (hypotheses over it, factors asking for a label), common practice for
+//! many-label Potts problems. Each move is a minimum cut on the Boykov-Kolmogorov graph of
+//! `crate::solver::maxflow`, reset (not reallocated) between moves, and re-scored exactly before it is kept.
+//!
+//! A labeller remembers the unaries and labels of its last call. A move for label `alpha` depends only on the
+//! nodes that may take `alpha`, their unaries at their own label and at `alpha`, and the labels of their
+//! neighbours; a move that failed stays failed until one of those changes. So each call diffs the new
+//! unaries and start labels against the remembered ones and only re-tries the labels they touch (the
+//! bookkeeping GCO keeps within one run, carried across calls). The result is the one a run over every label
+//! would give; the joint solver's later dual iterations, whose multipliers move only a few unaries, then cost
+//! a handful of moves each.
 
-use crate::solver::labelling::{LabellingProblem, LabellingResult};
+use crate::solver::maxflow::FlowGraph;
 
-/// The most sweeps over all labels.
+/// The most sweeps over all labels in one call.
 const MAX_SWEEPS: u32 = 3;
-
-/// A small Dinic max-flow over `f64` capacities, rebuilt for each expansion move.
-struct FlowGraph {
-    heads: Vec<Vec<usize>>,
-    to: Vec<usize>,
-    capacity: Vec<f64>,
-}
-
-impl FlowGraph {
-    fn new(node_count: usize) -> FlowGraph {
-        FlowGraph {
-            heads: vec![Vec::new(); node_count],
-            to: Vec::new(),
-            capacity: Vec::new(),
-        }
-    }
-
-    fn add_edge(&mut self, a: usize, b: usize, forward: f64, backward: f64) {
-        self.heads[a].push(self.to.len());
-        self.to.push(b);
-        self.capacity.push(forward);
-        self.heads[b].push(self.to.len());
-        self.to.push(a);
-        self.capacity.push(backward);
-    }
-
-    /// Runs max-flow; afterwards `source_side()` gives the minimum cut.
-    fn max_flow(&mut self, source: usize, sink: usize) {
-        let node_count = self.heads.len();
-        loop {
-            let mut level = vec![usize::MAX; node_count];
-            level[source] = 0;
-            let mut queue = std::collections::VecDeque::from([source]);
-            while let Some(node) = queue.pop_front() {
-                for &edge in &self.heads[node] {
-                    let next = self.to[edge];
-                    if self.capacity[edge] > EPSILON && level[next] == usize::MAX {
-                        level[next] = level[node] + 1;
-                        queue.push_back(next);
-                    }
-                }
-            }
-            if level[sink] == usize::MAX {
-                return;
-            }
-            let mut cursor = vec![0usize; node_count];
-            while self.augment(source, sink, f64::INFINITY, &level, &mut cursor) > EPSILON {}
-        }
-    }
-
-    fn augment(
-        &mut self,
-        node: usize,
-        sink: usize,
-        limit: f64,
-        level: &[usize],
-        cursor: &mut [usize],
-    ) -> f64 {
-        if node == sink {
-            return limit;
-        }
-        while cursor[node] < self.heads[node].len() {
-            let edge = self.heads[node][cursor[node]];
-            let next = self.to[edge];
-            if self.capacity[edge] > EPSILON && level[next] == level[node] + 1 {
-                let pushed =
-                    self.augment(next, sink, limit.min(self.capacity[edge]), level, cursor);
-                if pushed > EPSILON {
-                    self.capacity[edge] -= pushed;
-                    self.capacity[edge ^ 1] += pushed;
-                    return pushed;
-                }
-            }
-            cursor[node] += 1;
-        }
-        0.0
-    }
-
-    fn source_side(&self, source: usize) -> Vec<bool> {
-        let mut seen = vec![false; self.heads.len()];
-        seen[source] = true;
-        let mut stack = vec![source];
-        while let Some(node) = stack.pop() {
-            for &edge in &self.heads[node] {
-                let next = self.to[edge];
-                if self.capacity[edge] > EPSILON && !seen[next] {
-                    seen[next] = true;
-                    stack.push(next);
-                }
-            }
-        }
-        seen
-    }
-}
-
-const EPSILON: f64 = 1e-9;
-
-/// Use `crate::solver::expansion::alpha_expansion` (all labels, no pruning) instead of the pruned expansion.
-const USE_SHARED_EXPANSION: bool = false;
 
 /// Labels a node may switch to: its `CANDIDATE_LABELS` cheapest by unary (label pruning, common practice for
 /// many-label Potts problems); the move is re-scored exactly, so pruning can only miss improvements.
 const CANDIDATE_LABELS: usize = 4;
 
-/// Buffers reused across the moves of one labelling call.
-struct Scratch {
-    /// Edge indices incident to each node.
-    incident: Vec<Vec<usize>>,
-    /// Position of a node among the active ones, or `usize::MAX`.
-    compact: Vec<usize>,
-    active: Vec<usize>,
+/// A move is kept when it lowers the energy by more than this.
+const MOVE_TOLERANCE: f64 = 1e-7;
+
+/// Read-only tables of one solve, shared by every labeller of it.
+pub(crate) struct LabellerTables {
+    node_count: usize,
+    label_count: usize,
+    /// Compressed adjacency: node `n`'s neighbours are `neighbour[start[n]..start[n + 1]]`.
+    adjacency_start: Vec<usize>,
+    neighbour: Vec<u32>,
+    weight: Vec<f64>,
+    /// Candidate labels of each node, compressed the same way.
+    labels_start: Vec<usize>,
+    node_labels: Vec<u16>,
+    /// Nodes that may take each label, compressed by label.
+    nodes_start: Vec<usize>,
+    label_nodes: Vec<u32>,
 }
 
-impl Scratch {
-    fn new(problem: &LabellingProblem) -> Scratch {
-        let mut incident = vec![Vec::new(); problem.node_count];
-        for (index, &(a, b, _)) in problem.edges.iter().enumerate() {
-            incident[a as usize].push(index);
-            if b != a {
-                incident[b as usize].push(index);
+impl LabellerTables {
+    /// Tables for `node_count` nodes, the edges (self-loops and zero weights dropped) and
+    /// `candidates[node * label_count + label]` (an empty slice allows every label).
+    pub(crate) fn new(
+        node_count: usize,
+        label_count: usize,
+        edges: &[(u32, u32, f64)],
+        candidates: &[bool],
+    ) -> LabellerTables {
+        let mut degree = vec![0usize; node_count + 1];
+        for &(a, b, weight) in edges {
+            if a != b && weight != 0.0 {
+                degree[a as usize] += 1;
+                degree[b as usize] += 1;
             }
         }
-        Scratch {
-            incident,
-            compact: vec![usize::MAX; problem.node_count],
+        let mut adjacency_start = vec![0usize; node_count + 1];
+        for node in 0..node_count {
+            adjacency_start[node + 1] = adjacency_start[node] + degree[node];
+        }
+        let total = adjacency_start[node_count];
+        let mut neighbour = vec![0u32; total];
+        let mut weight = vec![0.0f64; total];
+        let mut fill = adjacency_start.clone();
+        for &(a, b, w) in edges {
+            if a == b || w == 0.0 {
+                continue;
+            }
+            for (from, to) in [(a, b), (b, a)] {
+                let slot = &mut fill[from as usize];
+                neighbour[*slot] = to;
+                weight[*slot] = w;
+                *slot += 1;
+            }
+        }
+        let all = candidates.len() != node_count * label_count;
+        let allowed = |node: usize, label: usize| all || candidates[node * label_count + label];
+        let mut labels_start = Vec::with_capacity(node_count + 1);
+        let mut node_labels = Vec::new();
+        labels_start.push(0);
+        for node in 0..node_count {
+            for label in 0..label_count {
+                if allowed(node, label) {
+                    node_labels.push(label as u16);
+                }
+            }
+            labels_start.push(node_labels.len());
+        }
+        let mut nodes_start = Vec::with_capacity(label_count + 1);
+        let mut label_nodes = Vec::new();
+        nodes_start.push(0);
+        for label in 0..label_count {
+            for node in 0..node_count {
+                if allowed(node, label) {
+                    label_nodes.push(node as u32);
+                }
+            }
+            nodes_start.push(label_nodes.len());
+        }
+        LabellerTables {
+            node_count,
+            label_count,
+            adjacency_start,
+            neighbour,
+            weight,
+            labels_start,
+            node_labels,
+            nodes_start,
+            label_nodes,
+        }
+    }
+
+    fn neighbours(&self, node: usize) -> impl Iterator<Item = (usize, f64)> + '_ {
+        let range = self.adjacency_start[node]..self.adjacency_start[node + 1];
+        self.neighbour[range.clone()]
+            .iter()
+            .zip(&self.weight[range])
+            .map(|(&other, &weight)| (other as usize, weight))
+    }
+
+    fn candidates_of(&self, node: usize) -> &[u16] {
+        &self.node_labels[self.labels_start[node]..self.labels_start[node + 1]]
+    }
+
+    fn nodes_of(&self, label: usize) -> &[u32] {
+        &self.label_nodes[self.nodes_start[label]..self.nodes_start[label + 1]]
+    }
+}
+
+/// Alpha-expansion over one solve's tables, with its buffers and its memory of the last call.
+pub(crate) struct Labeller<'a> {
+    tables: &'a LabellerTables,
+    /// The unaries and labels the last call ended with (empty before the first call).
+    unary: Vec<f64>,
+    labels: Vec<u16>,
+    /// Labels whose move may succeed: not tried since something it depends on changed.
+    dirty: Vec<bool>,
+    graph: FlowGraph,
+    /// Graph node of each node during a move, `u32::MAX` when not in the move.
+    graph_node: Vec<u32>,
+    active: Vec<u32>,
+    keep_cost: Vec<f64>,
+    switch_cost: Vec<f64>,
+}
+
+impl<'a> Labeller<'a> {
+    pub(crate) fn new(tables: &'a LabellerTables) -> Labeller<'a> {
+        Labeller {
+            tables,
+            unary: Vec::new(),
+            labels: Vec::new(),
+            dirty: vec![true; tables.label_count],
+            graph: FlowGraph::new(),
+            graph_node: vec![u32::MAX; tables.node_count],
             active: Vec::new(),
+            keep_cost: Vec::new(),
+            switch_cost: Vec::new(),
         }
     }
-}
 
-/// One expansion move: every node that has `alpha` among its candidate labels may keep its label or switch
-/// to `alpha`; the others keep theirs. Solved exactly by a minimum cut over the active nodes.
-fn expansion_move(
-    problem: &LabellingProblem,
-    candidates: &[bool],
-    scratch: &mut Scratch,
-    labels: &mut [u16],
-    alpha: u16,
-) -> bool {
-    let label_count = problem.label_count;
-    scratch.active.clear();
-    for node in 0..problem.node_count {
-        if labels[node] != alpha && candidates[node * label_count + alpha as usize] {
-            scratch.compact[node] = scratch.active.len();
-            scratch.active.push(node);
+    /// Marks the labels whose move reads node `node`'s label: its own candidates and its neighbours'.
+    fn label_changed(&mut self, node: usize) {
+        let tables = self.tables;
+        for &label in tables.candidates_of(node) {
+            self.dirty[label as usize] = true;
+        }
+        for (other, _) in tables.neighbours(node) {
+            for &label in tables.candidates_of(other) {
+                self.dirty[label as usize] = true;
+            }
         }
     }
-    let active = std::mem::take(&mut scratch.active);
-    if active.is_empty() {
-        scratch.active = active;
-        return false;
-    }
-    let compact = &scratch.compact;
-    let (source, sink) = (active.len(), active.len() + 1);
-    let mut graph = FlowGraph::new(active.len() + 2);
-    // x = 1 (sink side) means "switch to alpha". Cutting source->p costs cost1, p->sink costs cost0.
-    let mut cost0: Vec<f64> = active
-        .iter()
-        .map(|&node| problem.unary[node * label_count + labels[node] as usize] as f64)
-        .collect();
-    let mut cost1: Vec<f64> = active
-        .iter()
-        .map(|&node| problem.unary[node * label_count + alpha as usize] as f64)
-        .collect();
-    for (position, &node) in active.iter().enumerate() {
-        for &edge in &scratch.incident[node] {
-            let (a, b, weight) = problem.edges[edge];
-            let (a, b, weight) = (a as usize, b as usize, weight as f64);
-            let other = if a == node { b } else { a };
-            if compact[other] != usize::MAX && compact[other] < position {
-                continue; // Both ends active: handled from the earlier one.
+
+    /// Takes new unaries and start labels (out-of-range labels become 0), marking the moves they touch.
+    fn load(&mut self, unary: &[f64], start: &[u16]) {
+        let tables = self.tables;
+        let label_count = tables.label_count;
+        let start_label = |node: usize| match start.get(node) {
+            Some(&label) if (label as usize) < label_count => label,
+            _ => 0,
+        };
+        if self.labels.len() != tables.node_count || self.unary.len() != unary.len() {
+            self.unary.clear();
+            self.unary.extend_from_slice(unary);
+            self.labels = (0..tables.node_count).map(start_label).collect();
+            self.dirty.fill(true);
+            return;
+        }
+        for node in 0..tables.node_count {
+            let row = node * label_count..(node + 1) * label_count;
+            let label = start_label(node);
+            let relabelled = label != self.labels[node];
+            if relabelled {
+                // Every move this node or a neighbour may join reads its label (and so its unaries).
+                self.labels[node] = label;
+                self.label_changed(node);
             }
-            let differ = |x: u16, y: u16| if x != y { weight } else { 0.0 };
-            match (compact[a], compact[b]) {
-                (usize::MAX, usize::MAX) => {}
-                (p, usize::MAX) => {
-                    cost0[p] += differ(labels[a], labels[b]);
-                    cost1[p] += differ(alpha, labels[b]);
+            let (old, new) = (&self.unary[row.clone()], &unary[row.clone()]);
+            if !relabelled && old[label as usize] != new[label as usize] {
+                // The cost of keeping the label moved: every move this node may join reads it.
+                for &candidate in tables.candidates_of(node) {
+                    self.dirty[candidate as usize] = true;
                 }
-                (usize::MAX, q) => {
-                    cost0[q] += differ(labels[a], labels[b]);
-                    cost1[q] += differ(labels[a], alpha);
+            } else if !relabelled && old != new {
+                for &candidate in tables.candidates_of(node) {
+                    if old[candidate as usize] != new[candidate as usize] {
+                        self.dirty[candidate as usize] = true;
+                    }
                 }
-                (p, q) => {
-                    let keep_keep = differ(labels[a], labels[b]);
-                    let keep_switch = differ(labels[a], alpha);
-                    let switch_keep = differ(alpha, labels[b]);
-                    // E = A + (C - A) x_a + (D - C) x_b + (B + C - A - D)(1 - x_a) x_b with D = 0.
-                    cost1[p] += switch_keep - keep_keep;
-                    cost1[q] -= switch_keep;
-                    let pairwise = keep_switch + switch_keep - keep_keep;
-                    if pairwise > 0.0 {
-                        graph.add_edge(p, q, pairwise, 0.0);
+            }
+            if old != new {
+                self.unary[row].copy_from_slice(new);
+            }
+        }
+    }
+
+    /// Labels the problem with these unaries (`node_count * label_count`, finite) from `start` by
+    /// alpha-expansion sweeps; returns the labelling.
+    pub(crate) fn label(&mut self, unary: &[f64], start: &[u16]) -> &[u16] {
+        self.load(unary, start);
+        for _ in 0..MAX_SWEEPS {
+            let mut changed = false;
+            for alpha in 0..self.tables.label_count {
+                if self.dirty[alpha] {
+                    self.dirty[alpha] = false;
+                    changed |= self.expansion_move(alpha as u16);
+                }
+            }
+            if !changed {
+                break;
+            }
+        }
+        &self.labels
+    }
+
+    /// One expansion move: every node that may take `alpha` keeps its label or switches to it; the others
+    /// keep theirs. Solved exactly by a minimum cut; kept when it lowers the energy.
+    fn expansion_move(&mut self, alpha: u16) -> bool {
+        let tables = self.tables;
+        let label_count = tables.label_count;
+        let alpha_index = alpha as usize;
+        self.active.clear();
+        self.keep_cost.clear();
+        self.switch_cost.clear();
+        for &node in tables.nodes_of(alpha_index) {
+            let label = self.labels[node as usize];
+            if label != alpha {
+                let row = node as usize * label_count;
+                self.graph_node[node as usize] = self.active.len() as u32;
+                self.active.push(node);
+                self.keep_cost.push(self.unary[row + label as usize]);
+                self.switch_cost.push(self.unary[row + alpha_index]);
+            }
+        }
+        if self.active.is_empty() {
+            return false;
+        }
+        self.graph.reset();
+        // Node counts and capacities are finite and in range, so the graph calls cannot fail.
+        let _ = self.graph.add_nodes(self.active.len());
+        for position in 0..self.active.len() {
+            let node = self.active[position] as usize;
+            let label = self.labels[node];
+            for (other, weight) in tables.neighbours(node) {
+                let other_label = self.labels[other];
+                let other_position = self.graph_node[other];
+                if other_position == u32::MAX {
+                    if label != other_label {
+                        self.keep_cost[position] += weight;
+                    }
+                    if alpha != other_label {
+                        self.switch_cost[position] += weight;
+                    }
+                } else if (other_position as usize) > position {
+                    // Both ends in the move: added once, from the earlier end.
+                    let other_position = other_position as usize;
+                    if label == other_label {
+                        let _ = self
+                            .graph
+                            .add_edge(position, other_position, weight, weight);
+                    } else {
+                        self.keep_cost[other_position] += weight;
+                        let _ = self.graph.add_edge(position, other_position, weight, 0.0);
                     }
                 }
             }
         }
-    }
-    for index in 0..active.len() {
-        let (zero, one) = (cost0[index], cost1[index]);
-        let floor = zero.min(one);
-        if one - floor > 0.0 {
-            graph.add_edge(source, index, one - floor, 0.0);
+        for position in 0..self.active.len() {
+            let _ = self.graph.add_terminal_weights(
+                position,
+                self.switch_cost[position],
+                self.keep_cost[position],
+            );
         }
-        if zero - floor > 0.0 {
-            graph.add_edge(index, sink, zero - floor, 0.0);
-        }
-    }
-    graph.max_flow(source, sink);
-    let source_side = graph.source_side(source);
-    // The exact change in energy of switching the sink side, over the touched unaries and edges.
-    let switched = |node: usize| compact[node] != usize::MAX && !source_side[compact[node]];
-    let new_label = |node: usize| if switched(node) { alpha } else { labels[node] };
-    let mut delta = 0.0f64;
-    for (position, &node) in active.iter().enumerate() {
-        if !source_side[position] {
-            delta += problem.unary[node * label_count + alpha as usize] as f64
-                - problem.unary[node * label_count + labels[node] as usize] as f64;
-        }
-        for &edge in &scratch.incident[node] {
-            let (a, b, weight) = problem.edges[edge];
-            let (a, b) = (a as usize, b as usize);
-            let other = if a == node { b } else { a };
-            if compact[other] != usize::MAX && compact[other] < position {
-                continue;
+        self.graph.max_flow();
+        // The exact change in energy of switching the sink side, over the touched unaries and edges.
+        let switched = |labeller: &Labeller, node: usize| {
+            let position = labeller.graph_node[node];
+            position != u32::MAX && !labeller.graph.is_source_side(position as usize)
+        };
+        let mut delta = 0.0f64;
+        let mut any = false;
+        for position in 0..self.active.len() {
+            let node = self.active[position] as usize;
+            let label = self.labels[node];
+            let node_switched = switched(self, node);
+            if node_switched {
+                any = true;
+                let row = node * label_count;
+                delta += self.unary[row + alpha_index] - self.unary[row + label as usize];
             }
-            let before = (labels[a] != labels[b]) as i32 as f64;
-            let after = (new_label(a) != new_label(b)) as i32 as f64;
-            delta += (after - before) * weight as f64;
-        }
-    }
-    let improved = delta < -1e-7;
-    if improved {
-        for (position, &node) in active.iter().enumerate() {
-            if !source_side[position] {
-                labels[node] = alpha;
+            let new_label = if node_switched { alpha } else { label };
+            for (other, weight) in tables.neighbours(node) {
+                let other_position = self.graph_node[other];
+                if other_position != u32::MAX && (other_position as usize) < position {
+                    continue;
+                }
+                let other_label = self.labels[other];
+                let other_new = if switched(self, other) {
+                    alpha
+                } else {
+                    other_label
+                };
+                let before = (label != other_label) as i32 as f64;
+                let after = (new_label != other_new) as i32 as f64;
+                delta += (after - before) * weight;
             }
         }
+        let improved = any && delta < -MOVE_TOLERANCE;
+        if improved {
+            for position in 0..self.active.len() {
+                let node = self.active[position] as usize;
+                if !self.graph.is_source_side(position) {
+                    self.labels[node] = alpha;
+                    self.label_changed(node);
+                }
+            }
+            // An expansion of the new labelling is an expansion of the old one: `alpha` cannot gain again.
+            self.dirty[alpha_index] = false;
+        }
+        for &node in &self.active {
+            self.graph_node[node as usize] = u32::MAX;
+        }
+        improved
     }
-    for &node in &active {
-        scratch.compact[node] = usize::MAX;
-    }
-    scratch.active = active;
-    improved
 }
 
 /// `candidates[node * label_count + label]`: the label is among the node's cheapest few by `unary`, or in
@@ -288,95 +383,67 @@ pub(crate) fn candidate_table(
     table
 }
 
-/// Labels the problem starting from `initial` (one label per node; out-of-range labels are replaced) by
-/// alpha-expansion sweeps.
-pub(crate) fn label_segments(
-    problem: &LabellingProblem,
-    candidates: &[bool],
-    initial: &[u16],
-) -> LabellingResult {
-    let label_count = problem.label_count;
-    let mut labels: Vec<u16> = (0..problem.node_count)
-        .map(|node| match initial.get(node) {
-            Some(&label) if (label as usize) < label_count => label,
-            _ => 0,
-        })
-        .collect();
-    let every_label;
-    let candidates = if candidates.len() == problem.node_count * label_count {
-        candidates
-    } else {
-        every_label = vec![true; problem.node_count * label_count];
-        &every_label
-    };
-    if USE_SHARED_EXPANSION {
-        let options = crate::solver::labelling::ExpansionOptions {
-            max_sweeps: MAX_SWEEPS,
-        };
-        if let Ok(result) =
-            crate::solver::expansion::alpha_expansion(problem, Some(&labels), &options)
-        {
-            return result;
-        }
-    }
-    let mut scratch = Scratch::new(problem);
-    let mut sweeps = 0;
-    while sweeps < MAX_SWEEPS {
-        sweeps += 1;
-        let mut changed = false;
-        for alpha in 0..label_count as u16 {
-            changed |= expansion_move(problem, candidates, &mut scratch, &mut labels, alpha);
-        }
-        if !changed {
-            break;
-        }
-    }
-    let energy = problem.energy(&labels);
-    LabellingResult {
-        labels,
-        energy,
-        sweeps,
-    }
+/// A lower bound of a Potts problem's minimum: split every node's unary evenly over its edges and minimise
+/// each edge on its own (the sum of the parts' minima cannot exceed the minimum of their sum).
+pub(crate) struct PottsBound {
+    label_count: usize,
+    /// `1 / degree` of each node (0 for isolated nodes).
+    share: Vec<f64>,
+    isolated: Vec<usize>,
+    edges: Vec<(usize, usize, f64)>,
+    /// Scratch: each node's row minimum.
+    row_minimum: Vec<f64>,
 }
 
-/// A lower bound of the problem's minimum: split every node's unary evenly over its edges and minimise each
-/// edge on its own (the sum of the parts' minima cannot exceed the minimum of their sum).
-pub(crate) fn potts_lower_bound(
-    unary: &[f64],
-    label_count: usize,
-    edges: &[(u32, u32, f64)],
-) -> f64 {
-    let node_count = unary.len() / label_count.max(1);
-    let mut degree = vec![0u32; node_count];
-    for &(a, b, _) in edges {
-        degree[a as usize] += 1;
-        degree[b as usize] += 1;
-    }
-    let row = |node: usize| &unary[node * label_count..(node + 1) * label_count];
-    let minimum = |values: &[f64]| values.iter().copied().fold(f64::INFINITY, f64::min);
-    let mut bound = 0.0;
-    for (node, &d) in degree.iter().enumerate() {
-        if d == 0 {
-            bound += minimum(row(node));
+impl PottsBound {
+    pub(crate) fn new(
+        node_count: usize,
+        label_count: usize,
+        edges: &[(u32, u32, f64)],
+    ) -> PottsBound {
+        let mut degree = vec![0u32; node_count];
+        for &(a, b, _) in edges {
+            degree[a as usize] += 1;
+            degree[b as usize] += 1;
+        }
+        PottsBound {
+            label_count,
+            share: degree
+                .iter()
+                .map(|&d| if d == 0 { 0.0 } else { 1.0 / d as f64 })
+                .collect(),
+            isolated: (0..node_count).filter(|&node| degree[node] == 0).collect(),
+            edges: edges
+                .iter()
+                .map(|&(a, b, w)| (a as usize, b as usize, w))
+                .collect(),
+            row_minimum: vec![0.0; node_count],
         }
     }
-    for &(a, b, weight) in edges {
-        let (a, b) = (a as usize, b as usize);
-        let share_a = 1.0 / degree[a] as f64;
-        let share_b = 1.0 / degree[b] as f64;
-        let (row_a, row_b) = (row(a), row(b));
-        let mut same = f64::INFINITY;
-        let (mut min_a, mut min_b) = (f64::INFINITY, f64::INFINITY);
-        for label in 0..label_count {
-            let value_a = row_a[label] * share_a;
-            let value_b = row_b[label] * share_b;
-            same = same.min(value_a + value_b);
-            min_a = min_a.min(value_a);
-            min_b = min_b.min(value_b);
+
+    /// The bound for these unaries (`node_count * label_count`).
+    pub(crate) fn bound(&mut self, unary: &[f64]) -> f64 {
+        let label_count = self.label_count;
+        let row = |node: usize| &unary[node * label_count..(node + 1) * label_count];
+        for (node, minimum) in self.row_minimum.iter_mut().enumerate() {
+            *minimum = row(node).iter().copied().fold(f64::INFINITY, f64::min);
         }
-        bound += same.min(min_a + min_b + weight);
+        let mut bound = 0.0;
+        for &node in &self.isolated {
+            bound += self.row_minimum[node];
+        }
+        for &(a, b, weight) in &self.edges {
+            let (share_a, share_b) = (self.share[a], self.share[b]);
+            let (row_a, row_b) = (row(a), row(b));
+            let mut same = f64::INFINITY;
+            for label in 0..label_count {
+                same = same.min(row_a[label] * share_a + row_b[label] * share_b);
+            }
+            let apart = self.row_minimum[a] * share_a + self.row_minimum[b] * share_b + weight;
+            bound += same.min(apart);
+        }
+        bound
     }
-    bound
 }
 
 #[cfg(test)]
@@ -411,32 +478,73 @@ mod tests {
         best
     }
 
+    fn energy(unary: &[f64], label_count: usize, edges: &[(u32, u32, f64)], labels: &[u16]) -> f64 {
+        let mut total: f64 = labels
+            .iter()
+            .enumerate()
+            .map(|(node, &label)| unary[node * label_count + label as usize])
+            .sum();
+        for &(a, b, weight) in edges {
+            if labels[a as usize] != labels[b as usize] {
+                total += weight;
+            }
+        }
+        total
+    }
+
+    const RING: [(u32, u32); 6] = [(0, 1), (1, 2), (2, 3), (3, 4), (0, 4), (1, 3)];
+
     proptest::proptest! {
         #[test]
         fn lower_bound_never_exceeds_the_brute_force_minimum(
             unary in proptest::collection::vec(-3.0f64..3.0, 15),
             weights in proptest::collection::vec(0.0f64..2.0, 6),
         ) {
-            let edges: Vec<(u32, u32, f64)> = [(0, 1), (1, 2), (2, 3), (3, 4), (0, 4), (1, 3)]
+            let edges: Vec<(u32, u32, f64)> = RING
                 .iter()
                 .zip(&weights)
                 .map(|(&(a, b), &w)| (a, b, w))
                 .collect();
             let minimum = brute_force_minimum(&unary, 3, &edges);
-            proptest::prop_assert!(potts_lower_bound(&unary, 3, &edges) <= minimum + 1e-9);
+            let mut bound = PottsBound::new(5, 3, &edges);
+            proptest::prop_assert!(bound.bound(&unary) <= minimum + 1e-9);
+        }
+
+        /// A labeller that remembers earlier calls gives the labelling a fresh one gives.
+        #[test]
+        fn remembering_labeller_matches_a_fresh_one(
+            unaries in proptest::collection::vec(proptest::collection::vec(-3.0f64..3.0, 15), 1..5),
+            weights in proptest::collection::vec(0.0f64..2.0, 6),
+            start in proptest::collection::vec(0u16..3, 5),
+        ) {
+            let edges: Vec<(u32, u32, f64)> = RING
+                .iter()
+                .zip(&weights)
+                .map(|(&(a, b), &w)| (a, b, w))
+                .collect();
+            let tables = LabellerTables::new(5, 3, &edges, &[]);
+            let mut kept = Labeller::new(&tables);
+            let mut from = start.clone();
+            for unary in &unaries {
+                let remembered = kept.label(unary, &from).to_vec();
+                let fresh = Labeller::new(&tables).label(unary, &from).to_vec();
+                proptest::prop_assert_eq!(&remembered, &fresh);
+                // Never worse than where it started.
+                proptest::prop_assert!(
+                    energy(unary, 3, &edges, &remembered) <= energy(unary, 3, &edges, &from) + 1e-9
+                );
+                from = remembered;
+            }
         }
     }
 
     #[test]
-    fn expansion_reaches_the_minimum_and_reports_its_energy() {
-        let problem = LabellingProblem {
-            node_count: 3,
-            label_count: 2,
-            unary: vec![0.0, 2.0, 0.4, 0.0, 0.0, 2.0],
-            edges: vec![(0, 1, 1.0), (1, 2, 1.0)],
-        };
-        let result = label_segments(&problem, &[], &[1, 1, 1]);
-        assert_eq!(result.labels, vec![0, 0, 0]);
-        assert!((result.energy - 0.4).abs() < 1e-6);
+    fn expansion_reaches_the_minimum() {
+        let edges = [(0, 1, 1.0), (1, 2, 1.0)];
+        let tables = LabellerTables::new(3, 2, &edges, &[]);
+        let unary = [0.0, 2.0, 0.4, 0.0, 0.0, 2.0];
+        let mut labeller = Labeller::new(&tables);
+        assert_eq!(labeller.label(&unary, &[1, 1, 1]), &[0, 0, 0]);
+        assert!((energy(&unary, 2, &edges, &[0, 0, 0]) - 0.4).abs() < 1e-12);
     }
 }
