@@ -9,14 +9,10 @@ use std::process::Command;
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::{current_feature_layout, Classifier};
 
-fn sayso(arguments: &[&str], data: &Path) -> String {
-    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes");
+/// Runs the binary with `arguments` and returns its standard output; fails the test on a non-zero exit.
+fn run(arguments: &[&std::ffi::OsStr]) -> String {
     let output = Command::new(env!("CARGO_BIN_EXE_sayso"))
         .args(arguments)
-        .arg("--data-dir")
-        .arg(data)
-        .arg("--demo-dir")
-        .arg(&demo)
         .output()
         .expect("run sayso");
     assert!(
@@ -27,18 +23,23 @@ fn sayso(arguments: &[&str], data: &Path) -> String {
     String::from_utf8_lossy(&output.stdout).into_owned()
 }
 
+/// A command on the correction log in `data`, with the committed demo scenes.
+fn sayso(arguments: &[&str], data: &Path) -> String {
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes");
+    let mut all: Vec<&std::ffi::OsStr> = arguments.iter().map(std::ffi::OsStr::new).collect();
+    all.extend([
+        "--data-dir".as_ref(),
+        data.as_os_str(),
+        "--demo-dir".as_ref(),
+        demo.as_os_str(),
+    ]);
+    run(&all)
+}
+
 fn train(arguments: &[&str]) -> String {
-    let output = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .arg("train")
-        .args(arguments)
-        .output()
-        .expect("run sayso train");
-    assert!(
-        output.status.success(),
-        "sayso train failed: {}",
-        String::from_utf8_lossy(&output.stderr)
-    );
-    String::from_utf8_lossy(&output.stdout).into_owned()
+    let mut all: Vec<&std::ffi::OsStr> = vec!["train".as_ref()];
+    all.extend(arguments.iter().map(std::ffi::OsStr::new));
+    run(&all)
 }
 
 #[test]

@@ -148,7 +148,7 @@ pub struct ExampleRow {
     pub row_schema: i64,
 }
 
-/// The rows of one turn, written through `connection` (a transaction or a savepoint is open around it).
+/// The rows of one turn, written through `transaction` (the caller opens and commits it).
 fn write_turn(
     transaction: &Connection,
     turn: &NewTurn<'_>,
@@ -284,8 +284,6 @@ fn write_turn(
 pub struct CorrectionLog {
     connection: Connection,
     path: PathBuf,
-    /// A group-commit batch transaction is open on `connection`.
-    batch_open: bool,
 }
 
 /// The key a blob is stored under: lower-case hex SHA-256 of its bytes.
@@ -325,7 +323,6 @@ impl CorrectionLog {
         let mut connection = Connection::open(path)?;
         schema::prepare(&mut connection)?;
         Ok(CorrectionLog {
-            batch_open: false,
             connection,
             path: path.to_path_buf(),
         })
@@ -353,7 +350,6 @@ impl CorrectionLog {
         &mut self,
         scene: &NewScene<'_>,
     ) -> Result<(SceneKey, VersionKey), LogError> {
-        self.commit_batch()?;
         let now = now_text();
         let transaction = self.connection.transaction()?;
         let image_hash = put_blob(&transaction, scene.image_png)?;
@@ -387,7 +383,6 @@ impl CorrectionLog {
         scene: SceneKey,
         operator: &str,
     ) -> Result<ConversationRow, LogError> {
-        self.commit_batch()?;
         let now = now_text();
         let exists: Option<i64> = self
             .connection
@@ -424,58 +419,10 @@ impl CorrectionLog {
         turn: &NewTurn<'_>,
         stacks: Option<(&[VersionKey], &[VersionKey])>,
     ) -> Result<(TurnKey, Option<VersionKey>), LogError> {
-        self.commit_batch()?;
         let transaction = self.connection.transaction()?;
         let written = write_turn(&transaction, turn, stacks)?;
         transaction.commit()?;
         Ok(written)
-    }
-
-    /// Whether a group-commit batch is open (see `write_turn_in_batch`).
-    pub fn in_batch(&self) -> bool {
-        self.batch_open
-    }
-
-    /// Writes one turn into the open group-commit batch (opening one if needed), inside its own savepoint:
-    /// a turn that fails leaves nothing behind and the batch's other turns stand. Nothing is durable until
-    /// `commit_batch` returns.
-    pub fn write_turn_in_batch(
-        &mut self,
-        turn: &NewTurn<'_>,
-        stacks: Option<(&[VersionKey], &[VersionKey])>,
-    ) -> Result<(TurnKey, Option<VersionKey>), LogError> {
-        if !self.batch_open {
-            self.connection.execute_batch("BEGIN IMMEDIATE")?;
-            self.batch_open = true;
-        }
-        self.connection.execute_batch("SAVEPOINT turn")?;
-        match write_turn(&self.connection, turn, stacks) {
-            Ok(written) => {
-                self.connection.execute_batch("RELEASE turn")?;
-                Ok(written)
-            }
-            Err(error) => {
-                self.connection
-                    .execute_batch("ROLLBACK TO turn; RELEASE turn")?;
-                Err(error)
-            }
-        }
-    }
-
-    /// Commits the open group-commit batch, if any (one fsync for every turn in it). On failure the whole
-    /// batch is rolled back and none of its turns exists.
-    pub fn commit_batch(&mut self) -> Result<(), LogError> {
-        if !self.batch_open {
-            return Ok(());
-        }
-        self.batch_open = false;
-        match self.connection.execute_batch("COMMIT") {
-            Ok(()) => Ok(()),
-            Err(error) => {
-                let _ = self.connection.execute_batch("ROLLBACK");
-                Err(error.into())
-            }
-        }
     }
 
     /// Every stored scene, oldest first.

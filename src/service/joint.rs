@@ -73,8 +73,13 @@ impl EngineState {
     }
 
     fn key(&self) -> String {
-        hex(&Sha256::digest(self.encode()))
+        key_of(&self.encode())
     }
+}
+
+/// The cache key of an encoded engine state.
+fn key_of(encoded: &[u8]) -> String {
+    hex(&Sha256::digest(encoded))
 }
 
 /// A small map that forgets its oldest entry when full.
@@ -214,7 +219,7 @@ impl JointCorrector {
         &self,
         prepared: &PreparedInput,
         correction: &Correction,
-        engine: &EngineState,
+        engine_state: Vec<u8>,
     ) -> SceneState {
         let graph = &correction.graph;
         let objects = graph
@@ -240,14 +245,13 @@ impl JointCorrector {
                 objects,
                 room: Some(graph.room),
             },
-            engine_state: engine.encode(),
+            engine_state,
         }
     }
 
-    fn remember(&self, engine: &EngineState, correction: Correction) -> Arc<Correction> {
-        let solved = Arc::new(correction);
-        lock(&self.solved).insert(engine.key(), solved.clone());
-        solved
+    /// Keeps a solved version under its encoded engine state.
+    fn remember(&self, encoded: &[u8], correction: Correction) {
+        lock(&self.solved).insert(key_of(encoded), Arc::new(correction));
     }
 }
 
@@ -406,7 +410,7 @@ impl Corrector for JointCorrector {
                 confirmed: false,
             },
         )?;
-        Ok(self.scene_state(&prepared, &baseline, &engine))
+        Ok(self.scene_state(&prepared, &baseline, engine.encode()))
     }
 
     fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError> {
@@ -473,8 +477,9 @@ impl Corrector for JointCorrector {
             let proposed = self.solve(&prepared, previous.as_deref(), &confirmed)?;
             let changes = service_changes(&proposed.changes, &prepared, &proposed, taxonomy);
             let unmet = service_unmet(&proposed);
-            let state = self.scene_state(&prepared, &proposed, &next);
-            self.remember(&next, proposed);
+            let encoded = next.encode();
+            let state = self.scene_state(&prepared, &proposed, encoded.clone());
+            self.remember(&encoded, proposed);
             return Ok(CorrectionOutcome {
                 constraints,
                 changes,
@@ -501,8 +506,9 @@ impl Corrector for JointCorrector {
                 verdict: Verdict::NothingToChange,
             });
         }
-        let state = self.scene_state(&prepared, &correction, &next);
-        self.remember(&next, correction);
+        let encoded = next.encode();
+        let state = self.scene_state(&prepared, &correction, encoded.clone());
+        self.remember(&encoded, correction);
         Ok(CorrectionOutcome {
             constraints,
             changes,

@@ -47,23 +47,13 @@ pub fn input_digest(input: &SceneInput) -> String {
     let pixels: Vec<u8> = input.image.pixels.iter().flatten().copied().collect();
     part("image", &pixels);
     if let Some(depth) = &input.depth {
-        let bytes: Vec<u8> = depth
-            .millimetres
-            .iter()
-            .flat_map(|value| value.to_le_bytes())
-            .collect();
-        part("depth", &bytes);
+        part("depth", &le_bytes(&depth.millimetres));
     }
     if let Some(scores) = &input.scores_npy {
         part("scores", scores);
     }
     if let Some(labels) = &input.label_map {
-        let bytes: Vec<u8> = labels
-            .values
-            .iter()
-            .flat_map(|value| value.to_le_bytes())
-            .collect();
-        part("labels", &bytes);
+        part("labels", &le_bytes(&labels.values));
     }
     for detection in &input.detections {
         let text = format!(
@@ -81,6 +71,13 @@ pub fn input_digest(input: &SceneInput) -> String {
         part("room", &room.0.to_le_bytes());
     }
     hex(&hasher.finalize())
+}
+
+fn le_bytes(values: &[u16]) -> Vec<u8> {
+    values
+        .iter()
+        .flat_map(|value| value.to_le_bytes())
+        .collect()
 }
 
 /// Lower-case hex of bytes.
