@@ -2,8 +2,9 @@
 //!
 //! Owns: the database file under the data directory (WAL journal, `synchronous = FULL`, versioned schema),
 //! the row keys (`SceneKey`, `ConversationKey`, `TurnKey`, `VersionKey`), content-addressed blobs, and the
-//! one-transaction-per-turn rule: a turn and everything it changes are committed together or not at all, and
-//! a caller acknowledges a correction only after `commit_turn` has returned.
+//! one-transaction-per-turn rule: a turn and everything it changes are committed together or not at all (under
+//! load several turns share one transaction through `GroupCommit`, each in its own savepoint), and a caller
+//! acknowledges a correction only after `commit_turn` or `GroupCommit::commit` has returned.
 //! Must not: know about HTTP, the solver or the scene graph's shape. Scene summaries and engine state are
 //! stored as the caller hands them over (JSON text and opaque bytes); only constraints are typed here.
 //!
@@ -27,15 +28,17 @@
 //! ```
 
 mod export;
+mod group;
 mod schema;
 mod store;
 mod time;
 
 pub use export::{export_dataset, ExportError, ExportSummary};
+pub use group::{GroupCommit, GroupCommitCounts, TurnWritten};
 pub use schema::LOG_SCHEMA_VERSION;
 pub use store::{
     blob_hash, ConversationRow, CorrectionLog, ExampleRow, NewScene, NewTurn, PendingRow, SceneRow,
-    StateRecord, TurnEffect, TurnRow,
+    StateRecord, TurnEffect, TurnRow, TurnStacks,
 };
 pub use time::now_text;
 
@@ -93,4 +96,6 @@ pub enum LogError {
     Missing { what: &'static str, id: i64 },
     #[error("the scene moved on: its head is version {head}, the change was made against {base}")]
     Stale { head: i64, base: i64 },
+    #[error("the batch of turns this one was committed with failed, so it was not recorded: {0}")]
+    Batch(String),
 }

@@ -47,6 +47,9 @@ pub struct NewTurn<'a> {
     pub effect: TurnEffect,
 }
 
+/// A conversation's undo and redo stacks as a turn leaves them (`None`: unchanged).
+pub type TurnStacks<'a> = Option<(&'a [VersionKey], &'a [VersionKey])>;
+
 /// What a turn does to its scene and conversation, all inside the turn's transaction.
 #[derive(Clone, Debug)]
 pub enum TurnEffect {
@@ -423,6 +426,48 @@ impl CorrectionLog {
         let written = write_turn(&transaction, turn, stacks)?;
         transaction.commit()?;
         Ok(written)
+    }
+
+    /// Records several turns in one transaction (group commit: one fsync for all of them). Each turn is
+    /// written inside its own savepoint, so a turn that fails (a stale change, a missing conversation) leaves
+    /// nothing behind and the others stand; its error is its own entry of the answer. When the transaction
+    /// itself cannot be opened or committed, every turn fails and none of them exists.
+    pub fn commit_turns(
+        &mut self,
+        turns: &[(NewTurn<'_>, TurnStacks<'_>)],
+    ) -> Vec<Result<(TurnKey, Option<VersionKey>), LogError>> {
+        let whole_batch_failed = |error: &rusqlite::Error, count: usize| {
+            (0..count)
+                .map(|_| Err(LogError::Batch(error.to_string())))
+                .collect()
+        };
+        if let Err(error) = self.connection.execute_batch("BEGIN IMMEDIATE") {
+            return whole_batch_failed(&error, turns.len());
+        }
+        let mut answers = Vec::with_capacity(turns.len());
+        for (turn, stacks) in turns {
+            if let Err(error) = self.connection.execute_batch("SAVEPOINT turn") {
+                let _ = self.connection.execute_batch("ROLLBACK");
+                return whole_batch_failed(&error, turns.len());
+            }
+            let written = write_turn(&self.connection, turn, *stacks);
+            let closed = if written.is_ok() {
+                self.connection.execute_batch("RELEASE turn")
+            } else {
+                self.connection
+                    .execute_batch("ROLLBACK TO turn; RELEASE turn")
+            };
+            if let Err(error) = closed {
+                let _ = self.connection.execute_batch("ROLLBACK");
+                return whole_batch_failed(&error, turns.len());
+            }
+            answers.push(written);
+        }
+        if let Err(error) = self.connection.execute_batch("COMMIT") {
+            let _ = self.connection.execute_batch("ROLLBACK");
+            return whole_batch_failed(&error, turns.len());
+        }
+        answers
     }
 
     /// Every stored scene, oldest first.

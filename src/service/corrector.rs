@@ -4,7 +4,8 @@
 //! `CorrectionRequest`, `CorrectionOutcome`, `Verdict`), plus a default overlay renderer.
 //! Must not: know about HTTP, JSON wire shapes, SQLite or tokio. A corrector is called synchronously, from
 //! a blocking thread, with the scene's lock held; it never stores anything itself that must survive a
-//! restart — everything it needs again goes into `SceneState::engine_state`, which the service persists.
+//! restart — everything it needs again goes into `SceneState::engine_state`, which the service persists and
+//! hands back, with the engine states of the version's ancestors on demand (`Lineage`).
 
 use serde::{Deserialize, Serialize};
 
@@ -75,6 +76,24 @@ pub struct PastTurn {
     pub constraints: Vec<Constraint>,
 }
 
+/// The engine states of a scene version's ancestry, read from the service's store only when a corrector
+/// asks (after a restart, when its caches are cold): the registered version's first, the current one last.
+#[derive(Clone, Copy)]
+pub struct Lineage<'a>(pub &'a dyn Fn() -> Result<Vec<Vec<u8>>, String>);
+
+impl Lineage<'_> {
+    /// Reads the ancestry.
+    pub fn read(&self) -> Result<Vec<Vec<u8>>, String> {
+        (self.0)()
+    }
+}
+
+impl std::fmt::Debug for Lineage<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str("Lineage(..)")
+    }
+}
+
 /// One correction to work out.
 #[derive(Clone, Copy, Debug)]
 pub struct CorrectionRequest<'a> {
@@ -82,6 +101,8 @@ pub struct CorrectionRequest<'a> {
     /// What the scene was registered with (the image, depth, scores, label map, detections, room).
     pub input: &'a SceneInput,
     pub state: &'a SceneState,
+    /// The engine states from the registered version to `state`, on demand.
+    pub lineage: Lineage<'a>,
     pub history: &'a [PastTurn],
     pub utterance: &'a str,
     pub focus: Option<Focus>,

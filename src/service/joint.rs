@@ -1,11 +1,12 @@
 //! The `Corrector` the service runs: the joint pipeline (superpixels, unaries, grounding, one energy, one
 //! solver) behind the service's narrow trait.
 //!
-//! Owns: `JointCorrector`, the engine state it stores with every scene version (the registration digest and
-//! the constraints of every turn that led to the version, as JSON), and its in-memory caches (prepared
-//! scenes by registration digest, solved turns by engine-state digest). After a restart the caches are
-//! empty and a version is rebuilt by re-solving its turns in order; the solver is deterministic, so the
-//! rebuilt version is the one that was stored.
+//! Owns: `JointCorrector`, the engine state it stores with every scene version (as JSON: the registration
+//! digest, the digest of the parent version's engine state and the one turn that made this version, so it
+//! does not grow with the conversation), and its in-memory caches (prepared scenes by registration digest,
+//! solved versions by engine-state digest). After a restart the caches are empty; a version is rebuilt by
+//! reading its ancestry through the request's `Lineage` and re-solving its turns in order. The solver is
+//! deterministic, so the rebuilt version is the one that was stored.
 //! Must not: know about HTTP, SQLite or tokio; it never stores anything that must survive a restart itself.
 
 use std::collections::{HashMap, VecDeque};
@@ -24,13 +25,15 @@ use crate::taxonomy::Taxonomy;
 use crate::unaries::Classifier;
 
 use super::corrector::{
-    Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
+    Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, Lineage, SceneInput,
     SceneObject, SceneState, SceneSummary, Unmet, Verdict,
 };
 use super::joint_inputs::{hex, input_digest, prepare_input, PreparedInput};
 
-/// The engine-state format this build writes and reads.
-const ENGINE_STATE_FORMAT: u32 = 1;
+/// The engine-state format this build writes: one link of a chain (the parent's key and one turn).
+const ENGINE_STATE_FORMAT: u32 = 2;
+/// The format earlier builds wrote: every turn since registration in each version. Read, never written.
+const LISTED_FORMAT: u32 = 1;
 /// Prepared scenes kept in memory (superpixels and unaries of a 640x480 scene: about 2 MB).
 const PREPARED_CACHE: usize = 32;
 /// Solved versions kept in memory.
@@ -45,31 +48,79 @@ struct TurnRecord {
     confirmed: bool,
 }
 
-/// What the service stores as a version's engine state.
+/// What the service stores as a version's engine state: a link of a chain. Its size does not grow with
+/// the conversation; the chain is read back through the request's `Lineage` only when the cache is cold.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 struct EngineState {
     format: u32,
     /// `input_digest` of the registration.
     input: String,
+    /// The key of the parent version's engine state; `None` for the registered version.
+    parent: Option<String>,
+    /// The turn that made this version from its parent; `None` for the registered version.
+    turn: Option<TurnRecord>,
+}
+
+/// The earlier, listed form.
+#[derive(Deserialize)]
+struct ListedEngineState {
+    input: String,
     turns: Vec<TurnRecord>,
 }
 
+#[derive(Deserialize)]
+struct FormatOnly {
+    format: u32,
+}
+
 impl EngineState {
+    fn root(input: String) -> EngineState {
+        EngineState {
+            format: ENGINE_STATE_FORMAT,
+            input,
+            parent: None,
+            turn: None,
+        }
+    }
+
+    fn child(&self, turn: TurnRecord) -> EngineState {
+        EngineState {
+            format: ENGINE_STATE_FORMAT,
+            input: self.input.clone(),
+            parent: Some(self.key()),
+            turn: Some(turn),
+        }
+    }
+
     fn encode(&self) -> Vec<u8> {
         serde_json::to_vec(self).unwrap_or_default()
     }
 
-    fn decode(bytes: &[u8]) -> Result<EngineState, CorrectorError> {
-        let state: EngineState = serde_json::from_slice(bytes).map_err(|error| {
+    /// The chain ending in this stored state: the whole chain for the listed form, else the one link.
+    fn decode(bytes: &[u8]) -> Result<Vec<EngineState>, CorrectorError> {
+        let unreadable = |error: serde_json::Error| {
             CorrectorError::Internal(format!("stored engine state is unreadable: {error}"))
-        })?;
-        if state.format != ENGINE_STATE_FORMAT {
-            return Err(CorrectorError::Internal(format!(
-                "stored engine state has format {}; this build reads {ENGINE_STATE_FORMAT}",
-                state.format
-            )));
+        };
+        let format = serde_json::from_slice::<FormatOnly>(bytes)
+            .map_err(unreadable)?
+            .format;
+        match format {
+            ENGINE_STATE_FORMAT => Ok(vec![serde_json::from_slice(bytes).map_err(unreadable)?]),
+            LISTED_FORMAT => {
+                let listed: ListedEngineState =
+                    serde_json::from_slice(bytes).map_err(unreadable)?;
+                let mut chain = vec![EngineState::root(listed.input)];
+                for turn in listed.turns {
+                    let next = chain[chain.len() - 1].child(turn);
+                    chain.push(next);
+                }
+                Ok(chain)
+            }
+            other => Err(CorrectorError::Internal(format!(
+                "stored engine state has format {other}; this build reads {LISTED_FORMAT} and \
+                 {ENGINE_STATE_FORMAT}"
+            ))),
         }
-        Ok(state)
     }
 
     fn key(&self) -> String {
@@ -182,34 +233,62 @@ impl JointCorrector {
         .map_err(internal)
     }
 
-    /// The solved version an engine state names: from the cache, or re-solved from the longest cached
-    /// prefix of its turns. `None` for the registered version's first turn (it solves from scratch).
+    /// The solved version an engine state names: from the cache, or re-solved from the longest cached part
+    /// of its chain (read through `lineage` only then). `None` for the registered version (its first turn
+    /// solves from scratch).
     fn version(
         &self,
         prepared: &PreparedInput,
-        state: &EngineState,
+        stored: Vec<EngineState>,
+        lineage: Lineage<'_>,
     ) -> Result<Option<Arc<Correction>>, CorrectorError> {
-        if state.turns.is_empty() {
+        let Some(head) = stored.last() else {
+            return Ok(None);
+        };
+        if head.turn.is_none() {
             return Ok(None);
         }
-        let prefix = |length: usize| EngineState {
-            format: ENGINE_STATE_FORMAT,
-            input: state.input.clone(),
-            turns: state.turns[..length].to_vec(),
+        let head_key = head.key();
+        if let Some(found) = lock(&self.solved).get(&head_key) {
+            return Ok(Some(found));
+        }
+        let chain = if stored.len() > 1 {
+            stored
+        } else {
+            let mut chain = Vec::new();
+            for bytes in lineage.read().map_err(internal)? {
+                // A listed state already holds its whole chain; a link adds itself.
+                let mut decoded = EngineState::decode(&bytes)?;
+                if decoded.len() > 1 {
+                    chain.clear();
+                }
+                chain.append(&mut decoded);
+            }
+            chain
         };
-        let mut start = state.turns.len();
+        let keys: Vec<String> = chain.iter().map(EngineState::key).collect();
+        if keys.last() != Some(&head_key) {
+            return Err(CorrectorError::Internal(
+                "the stored ancestry does not end in the scene's current version".into(),
+            ));
+        }
+        let mut start = chain.len();
         let mut current: Option<Arc<Correction>> = None;
         while start > 0 {
-            if let Some(found) = lock(&self.solved).get(&prefix(start).key()) {
+            if let Some(found) = lock(&self.solved).get(&keys[start - 1]) {
                 current = Some(found);
                 break;
             }
             start -= 1;
         }
-        for length in start + 1..=state.turns.len() {
-            let solved =
-                Arc::new(self.solve(prepared, current.as_deref(), &state.turns[length - 1])?);
-            lock(&self.solved).insert(prefix(length).key(), solved.clone());
+        for index in start..chain.len() {
+            let Some(turn) = &chain[index].turn else {
+                // The registered version: the next turn starts from scratch.
+                current = None;
+                continue;
+            };
+            let solved = Arc::new(self.solve(prepared, current.as_deref(), turn)?);
+            lock(&self.solved).insert(keys[index].clone(), solved.clone());
             current = Some(solved);
         }
         Ok(current)
@@ -396,11 +475,7 @@ impl Corrector for JointCorrector {
 
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {
         let prepared = self.prepared_for(input)?;
-        let engine = EngineState {
-            format: ENGINE_STATE_FORMAT,
-            input: input_digest(input),
-            turns: Vec::new(),
-        };
+        let engine = EngineState::root(input_digest(input));
         let baseline = self.solve(
             &prepared,
             None,
@@ -415,7 +490,10 @@ impl Corrector for JointCorrector {
 
     fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError> {
         let taxonomy = self.taxonomy();
-        let engine = EngineState::decode(&request.state.engine_state)?;
+        let stored = EngineState::decode(&request.state.engine_state)?;
+        let Some(engine) = stored.last().cloned() else {
+            return Err(internal("stored engine state is empty"));
+        };
         let prepared = self.prepared_for(request.input)?;
         let parse = match self
             .settings
@@ -447,7 +525,7 @@ impl Corrector for JointCorrector {
                 },
             });
         }
-        let previous = self.version(&prepared, &engine)?;
+        let previous = self.version(&prepared, stored, request.lineage)?;
         let turn = TurnRecord {
             constraints: constraints.clone(),
             focus: request.focus,
@@ -467,13 +545,12 @@ impl Corrector for JointCorrector {
             });
         }
         let safety = pending_safety_classes(&correction.changes, taxonomy);
-        let mut next = engine.clone();
         if !safety.is_empty() {
             let confirmed = TurnRecord {
                 confirmed: true,
                 ..turn
             };
-            next.turns.push(confirmed.clone());
+            let next = engine.child(confirmed.clone());
             let proposed = self.solve(&prepared, previous.as_deref(), &confirmed)?;
             let changes = service_changes(&proposed.changes, &prepared, &proposed, taxonomy);
             let unmet = service_unmet(&proposed);
@@ -494,7 +571,7 @@ impl Corrector for JointCorrector {
                 },
             });
         }
-        next.turns.push(turn);
+        let next = engine.child(turn);
         let changes = service_changes(&correction.changes, &prepared, &correction, taxonomy);
         let unmet = service_unmet(&correction);
         if changes.is_empty() {

@@ -18,7 +18,7 @@ use std::path::PathBuf;
 use std::sync::{Arc, Mutex, MutexGuard, RwLock};
 
 use crate::correction_log::{
-    ConversationKey, CorrectionLog, LogError, SceneKey, StateRecord, VersionKey,
+    ConversationKey, CorrectionLog, GroupCommit, LogError, SceneKey, StateRecord, VersionKey,
 };
 use crate::language::constraint::Constraint;
 use crate::raster;
@@ -65,6 +65,8 @@ pub(crate) struct ConversationSlot {
 pub struct Coordinator {
     corrector: Arc<dyn Corrector>,
     log: Mutex<CorrectionLog>,
+    /// Turns from many requests share one commit (and one fsync) through this queue.
+    group: GroupCommit,
     scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
     conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
     metrics: Arc<Metrics>,
@@ -247,6 +249,7 @@ impl Coordinator {
         Ok(Coordinator {
             corrector,
             log: Mutex::new(log),
+            group: GroupCommit::new(),
             scenes: RwLock::new(scenes),
             conversations: RwLock::new(conversations),
             metrics,

@@ -9,7 +9,9 @@
 use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, VersionKey};
 use crate::language::constraint::Constraint;
 
-use super::super::corrector::{CorrectionRequest, CorrectorError, PastTurn, SceneHandle, Verdict};
+use super::super::corrector::{
+    CorrectionRequest, CorrectorError, Lineage, PastTurn, SceneHandle, Verdict,
+};
 use super::super::error::ApiError;
 use super::super::wire::{
     FocusIn, HistoryOut, PendingOut, TurnOut, TurnReply, TurnStatus, UtteranceReply,
@@ -108,12 +110,15 @@ impl Coordinator {
             }
         }
         let focus_internal = focus.map(focus_from_wire);
+        let head = scene.head;
+        let read_lineage = || self.lineage(head);
         let outcome = self
             .corrector
             .apply(&CorrectionRequest {
                 scene: SceneHandle(conversation_state.scene.0),
                 input: &scene.input,
                 state: &scene.state,
+                lineage: Lineage(&read_lineage),
                 history: &conversation_state.history,
                 utterance: text,
                 focus: focus_internal,
@@ -139,7 +144,6 @@ impl Coordinator {
             Some(focus) => Some(serde_json::to_string(&focus).map_err(ApiError::internal)?),
             None => None,
         };
-        let head = scene.head;
         let (status, effect, question, reason, pending_out) = match &outcome.verdict {
             Verdict::Applied(state) => (
                 TurnStatus::Applied,
@@ -205,8 +209,10 @@ impl Coordinator {
         } else {
             conversation_state.redo.clone()
         };
-        let (turn_key, new_version) = lock(&self.log)
-            .commit_turn(
+        let (turn_key, new_version) = self
+            .group
+            .commit(
+                &self.log,
                 &NewTurn {
                     conversation,
                     kind: "utterance",
@@ -263,6 +269,20 @@ impl Coordinator {
         })
     }
 
+    /// The engine states from the scene's registered version to `version`, read from the log.
+    fn lineage(&self, version: VersionKey) -> Result<Vec<Vec<u8>>, String> {
+        let log = lock(&self.log);
+        let mut states = Vec::new();
+        let mut next = Some(version);
+        while let Some(key) = next {
+            let (record, parent) = log.version(key).map_err(|error| error.to_string())?;
+            states.push(record.engine_state);
+            next = parent;
+        }
+        states.reverse();
+        Ok(states)
+    }
+
     /// Applies the conversation's pending change.
     pub fn confirm(
         &self,
@@ -287,8 +307,10 @@ impl Coordinator {
         }
         let constraints_json =
             serde_json::to_string(&pending.constraints).map_err(ApiError::internal)?;
-        let (turn_key, new_version) = lock(&self.log)
-            .commit_turn(
+        let (turn_key, new_version) = self
+            .group
+            .commit(
+                &self.log,
                 &NewTurn {
                     conversation,
                     kind: "confirm",
@@ -338,8 +360,10 @@ impl Coordinator {
                 "this conversation has no change waiting for confirmation",
             )
         })?;
-        let (turn_key, _) = lock(&self.log)
-            .commit_turn(
+        let (turn_key, _) = self
+            .group
+            .commit(
+                &self.log,
                 &NewTurn {
                     conversation,
                     kind: "reject",
@@ -397,8 +421,10 @@ impl Coordinator {
         applied_after.pop();
         let mut redo_after = conversation_state.redo.clone();
         redo_after.push(latest);
-        let (turn_key, _) = lock(&self.log)
-            .commit_turn(
+        let (turn_key, _) = self
+            .group
+            .commit(
+                &self.log,
                 &NewTurn {
                     conversation,
                     kind: "undo",
@@ -461,8 +487,10 @@ impl Coordinator {
         applied_after.push(undone);
         let mut redo_after = conversation_state.redo.clone();
         redo_after.pop();
-        let (turn_key, _) = lock(&self.log)
-            .commit_turn(
+        let (turn_key, _) = self
+            .group
+            .commit(
+                &self.log,
                 &NewTurn {
                     conversation,
                     kind: "redo",

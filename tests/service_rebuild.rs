@@ -1,0 +1,158 @@
+//! The joint engine after a restart: its caches are cold, so the next utterance rebuilds the scene's current
+//! version from the ancestry stored in the log (one engine-state link per version) and must land exactly
+//! where a service that never stopped lands. Also checks that a version's stored engine state does not grow
+//! with the number of turns before it.
+
+mod service_support;
+
+use std::path::Path;
+use std::sync::Arc;
+
+use sayso::correction_log::{ConversationKey, SceneKey};
+use sayso::raster::IndexImage;
+use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
+use sayso::service::joint::JointCorrector;
+use sayso::service::metrics::Metrics;
+use sayso::service::wire::{FocusIn, TurnStatus};
+use service_support::picture_of;
+
+const FLOOR: u16 = 0;
+const RUG: u16 = 6;
+const CELLS: u32 = 6;
+const CELL: u32 = 16;
+
+fn open(data: &Path) -> Coordinator {
+    Coordinator::open(
+        Arc::new(JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier")),
+        &CoordinatorSettings {
+            log_path: data.join("corrections.sqlite"),
+            pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+            demo_dir: data.join("none"),
+        },
+        Arc::new(Metrics::default()),
+    )
+    .expect("open")
+}
+
+/// A 96x96 floor with a checkerboard of rug cells, registered with its label map (no classifier needed).
+fn checkerboard() -> IndexImage {
+    let mut labels = IndexImage::filled(CELLS * CELL, CELLS * CELL, FLOOR);
+    for y in 0..labels.height {
+        for x in 0..labels.width {
+            if (x / CELL + y / CELL) % 2 == 1 {
+                labels.set(x, y, RUG);
+            }
+        }
+    }
+    labels
+}
+
+fn register(coordinator: &Coordinator) -> (SceneKey, ConversationKey) {
+    let labels = checkerboard();
+    let created = coordinator
+        .register_scene(
+            SceneUpload {
+                name: Some("juniper-lane-landing".into()),
+                image_png: Some(sayso::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                label_map_png: Some(sayso::raster::encode_index_png(&labels).unwrap()),
+                ..Default::default()
+            },
+            "odile",
+        )
+        .expect("registered");
+    let scene = SceneKey(created.scene_id);
+    let conversation = coordinator
+        .open_conversation(scene, "odile")
+        .expect("opened");
+    (scene, ConversationKey(conversation.conversation_id))
+}
+
+fn say(
+    coordinator: &Coordinator,
+    conversation: ConversationKey,
+    text: &str,
+    cell: u32,
+) -> TurnStatus {
+    let focus = FocusIn::Pixel {
+        x: (cell % CELLS) * CELL + CELL / 2,
+        y: (cell / CELLS) * CELL + CELL / 2,
+    };
+    coordinator
+        .utterance(conversation, "odile", text, Some(focus))
+        .expect("answered")
+        .status
+}
+
+const SCRIPT: [(&str, u32); 5] = [
+    ("that's a towel", 1),
+    ("that is a mug", 8),
+    ("no, it's a pillow", 13),
+    ("that's a towel", 20),
+    ("that is a box", 27),
+];
+
+#[test]
+fn a_cold_engine_rebuilds_the_head_and_answers_like_a_warm_one() {
+    let restarted = tempfile::tempdir().unwrap();
+    let steady = tempfile::tempdir().unwrap();
+    let (last_text, last_cell) = SCRIPT[SCRIPT.len() - 1];
+
+    // The service that never stops.
+    let warm = open(steady.path());
+    let (warm_scene, warm_conversation) = register(&warm);
+    for &(text, cell) in &SCRIPT {
+        assert_eq!(
+            say(&warm, warm_conversation, text, cell),
+            TurnStatus::Applied,
+            "{text}"
+        );
+    }
+
+    // The same turns, then a restart before the last one.
+    let (scene, conversation) = {
+        let first = open(restarted.path());
+        let (scene, conversation) = register(&first);
+        for &(text, cell) in &SCRIPT[..SCRIPT.len() - 1] {
+            assert_eq!(
+                say(&first, conversation, text, cell),
+                TurnStatus::Applied,
+                "{text}"
+            );
+        }
+        (scene, conversation)
+    };
+    let cold = open(restarted.path());
+    assert_eq!(
+        say(&cold, conversation, last_text, last_cell),
+        TurnStatus::Applied
+    );
+
+    assert_eq!(
+        cold.label_map_png(scene).unwrap(),
+        warm.label_map_png(warm_scene).unwrap(),
+        "the rebuilt scene answers the last turn exactly as the service that never stopped"
+    );
+    assert_eq!(
+        serde_json::to_value(cold.scene_graph(scene).unwrap()).unwrap()["objects"],
+        serde_json::to_value(warm.scene_graph(warm_scene).unwrap()).unwrap()["objects"],
+    );
+
+    // Every version after the first stores one link: the sizes stay flat as turns pile up.
+    let sizes: Vec<usize> = cold.with_log(|log| {
+        let mut sizes = Vec::new();
+        let mut next = Some(log.scenes().unwrap()[0].head);
+        while let Some(key) = next {
+            let (record, parent) = log.version(key).unwrap();
+            sizes.push(record.engine_state.len());
+            next = parent;
+        }
+        sizes
+    });
+    assert_eq!(sizes.len(), SCRIPT.len() + 1);
+    let largest = sizes.iter().max().unwrap();
+    let smallest_turn = sizes[..SCRIPT.len()].iter().min().unwrap();
+    assert!(
+        *largest < 2 * smallest_turn,
+        "engine states grow with the history: {sizes:?}"
+    );
+}
