@@ -239,56 +239,70 @@ impl JointEnergy {
         for (index, &value) in self.room_cost.iter().chain(&self.presence_cost).enumerate() {
             finite(value, &|| format!("room or presence cost {index}"))?;
         }
-        let node = |what: String, index: usize, limit: usize, kind| {
+        let node = |what: &dyn Fn() -> String, index: usize, limit: usize, kind| {
             if index < limit {
                 Ok(())
             } else {
-                Err(EnergyError::OutOfRange { what, kind, index })
+                Err(EnergyError::OutOfRange {
+                    what: what(),
+                    kind,
+                    index,
+                })
             }
         };
-        let weight = |what: String, value: f64| {
+        let weight = |what: &dyn Fn() -> String, value: f64| {
             if !value.is_finite() {
-                Err(EnergyError::NotFinite { what })
+                Err(EnergyError::NotFinite { what: what() })
             } else if value < 0.0 {
-                Err(EnergyError::NegativeWeight { what })
+                Err(EnergyError::NegativeWeight { what: what() })
             } else {
                 Ok(())
             }
         };
         for (index, &(a, b, w)) in self.edges.iter().enumerate() {
-            node(format!("edge {index}"), a as usize, self.node_count, "node")?;
-            node(format!("edge {index}"), b as usize, self.node_count, "node")?;
-            weight(format!("edge {index}"), w)?;
+            node(
+                &|| format!("edge {index}"),
+                a as usize,
+                self.node_count,
+                "node",
+            )?;
+            node(
+                &|| format!("edge {index}"),
+                b as usize,
+                self.node_count,
+                "node",
+            )?;
+            weight(&|| format!("edge {index}"), w)?;
         }
         for (index, hypothesis) in self.hypotheses.iter().enumerate() {
             let what = || format!("hypothesis {index}");
-            node(what(), hypothesis.class as usize, self.label_count, "label")?;
+            node(&what, hypothesis.class as usize, self.label_count, "label")?;
             finite(hypothesis.activation_cost, &what)?;
-            weight(what(), hypothesis.agreement_weight)?;
+            weight(&what, hypothesis.agreement_weight)?;
             for &member in &hypothesis.members {
-                node(what(), member as usize, self.fine_count, "segment")?;
+                node(&what, member as usize, self.fine_count, "segment")?;
             }
         }
         for (index, factor) in self.count_factors.iter().enumerate() {
             node(
-                format!("count factor {index}"),
+                &|| format!("count factor {index}"),
                 factor.class as usize,
                 self.label_count,
                 "label",
             )?;
-            weight(format!("count factor {index}"), factor.weight)?;
+            weight(&|| format!("count factor {index}"), factor.weight)?;
         }
         for (index, factor) in self.absent_factors.iter().enumerate() {
             node(
-                format!("absent factor {index}"),
+                &|| format!("absent factor {index}"),
                 factor.class as usize,
                 self.label_count,
                 "label",
             )?;
-            weight(format!("absent factor {index}"), factor.weight)?;
+            weight(&|| format!("absent factor {index}"), factor.weight)?;
         }
         for (index, factor) in self.tuple_factors.iter().enumerate() {
-            weight(format!("tuple factor {index}"), factor.weight)?;
+            weight(&|| format!("tuple factor {index}"), factor.weight)?;
             for tuple in &factor.tuples {
                 if tuple.is_empty() || tuple.len() > 2 {
                     return Err(EnergyError::Build(format!(
@@ -298,7 +312,7 @@ impl JointEnergy {
                 }
                 for &member in tuple {
                     node(
-                        format!("tuple factor {index}"),
+                        &|| format!("tuple factor {index}"),
                         member as usize,
                         self.hypotheses.len(),
                         "hypothesis",
@@ -308,15 +322,15 @@ impl JointEnergy {
         }
         for (index, factor) in self.unary_factors.iter().enumerate() {
             node(
-                format!("unary factor {index}"),
+                &|| format!("unary factor {index}"),
                 factor.label as usize,
                 self.label_count,
                 "label",
             )?;
-            weight(format!("unary factor {index}"), factor.weight)?;
+            weight(&|| format!("unary factor {index}"), factor.weight)?;
             for &segment in &factor.segments {
                 node(
-                    format!("unary factor {index}"),
+                    &|| format!("unary factor {index}"),
                     segment as usize,
                     self.fine_count,
                     "segment",
