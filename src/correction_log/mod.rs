@@ -27,12 +27,14 @@
 //! assert_eq!(log.scenes().unwrap()[0].key, scene);
 //! ```
 
+mod checkpoint;
 mod export;
 mod group;
 mod schema;
 mod store;
 mod time;
 
+pub use checkpoint::BackgroundCheckpoints;
 pub use export::{export_dataset, ExportError, ExportSummary};
 pub use group::{GroupCommit, GroupCommitCounts, TurnWritten};
 pub use schema::LOG_SCHEMA_VERSION;

@@ -341,6 +341,15 @@ impl CorrectionLog {
         schema::recorded_version(&self.connection)
     }
 
+    /// Turns SQLite's automatic WAL checkpoint on this connection on (the default) or off; with it off,
+    /// someone else must checkpoint (`BackgroundCheckpoints`) or the WAL grows until the log is closed.
+    pub fn set_automatic_checkpoints(&self, on: bool) -> Result<(), LogError> {
+        // 1000 pages is SQLite's default threshold (sqlite.org, "PRAGMA wal_autocheckpoint").
+        self.connection
+            .pragma_update(None, "wal_autocheckpoint", if on { 1000 } else { 0 })?;
+        Ok(())
+    }
+
     /// `PRAGMA integrity_check`: "ok" when the file is sound.
     pub fn integrity_check(&self) -> Result<String, LogError> {
         Ok(self

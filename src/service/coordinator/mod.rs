@@ -18,7 +18,8 @@ use std::path::PathBuf;
 use std::sync::{Arc, Mutex, MutexGuard, RwLock};
 
 use crate::correction_log::{
-    ConversationKey, CorrectionLog, GroupCommit, LogError, SceneKey, StateRecord, VersionKey,
+    BackgroundCheckpoints, ConversationKey, CorrectionLog, GroupCommit, LogError, SceneKey,
+    StateRecord, VersionKey,
 };
 use crate::language::constraint::Constraint;
 use crate::raster;
@@ -30,6 +31,9 @@ use super::wire::{ConversationOut, HealthOut, SceneGraphOut};
 
 pub use register::SceneUpload;
 pub use turns::check_utterance_text;
+
+/// How often the background thread checkpoints the log's WAL.
+const CHECKPOINT_INTERVAL: std::time::Duration = std::time::Duration::from_millis(100);
 
 /// The longest utterance accepted, in characters.
 pub const UTTERANCE_CHARACTER_LIMIT: usize = 2000;
@@ -67,6 +71,8 @@ pub struct Coordinator {
     log: Mutex<CorrectionLog>,
     /// Turns from many requests share one commit (and one fsync) through this queue.
     group: GroupCommit,
+    /// Copies the WAL into the database file off the commit path (stopped when the coordinator drops).
+    _checkpoints: Option<BackgroundCheckpoints>,
     scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
     conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
     metrics: Arc<Metrics>,
@@ -170,6 +176,13 @@ impl Coordinator {
             });
         }
         let log = CorrectionLog::open(&settings.log_path)?;
+        // Checkpoints run on their own thread so no commit waits for one; if the thread cannot start,
+        // SQLite's automatic checkpoint stays on.
+        let checkpoints =
+            BackgroundCheckpoints::start(&settings.log_path, CHECKPOINT_INTERVAL).ok();
+        if checkpoints.is_some() {
+            log.set_automatic_checkpoints(false)?;
+        }
         let mut scenes = HashMap::new();
         for row in log.scenes()? {
             let restore_error = |message: String| OpenError::Restore {
@@ -250,6 +263,7 @@ impl Coordinator {
             corrector,
             log: Mutex::new(log),
             group: GroupCommit::new(),
+            _checkpoints: checkpoints,
             scenes: RwLock::new(scenes),
             conversations: RwLock::new(conversations),
             metrics,
