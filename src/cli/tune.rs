@@ -10,7 +10,7 @@ use std::time::Instant;
 
 use anyhow::Context;
 
-use sayso::energy::build::{WeightsFile, WEIGHTS_SCHEMA};
+use sayso::energy::build::{EnergyWeights, WeightsFile, WEIGHTS_SCHEMA};
 use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
 use sayso::taxonomy::Taxonomy;
 use sayso::tuning::{count_statistics, prepare_tuning_scenes, tune_weights, TUNED_WEIGHTS};
@@ -33,6 +33,9 @@ pub struct TuneArgs {
     /// Passes of the coordinate search (0: only count statistics; the weights file is left alone).
     #[arg(long, default_value_t = 2)]
     pub passes: usize,
+    /// Start the search from the hand-set weights (`EnergyWeights::default()`) instead of the committed file.
+    #[arg(long)]
+    pub from_hand_set: bool,
     /// The classifier's ONNX file (default: $SAYSO_MODEL, else models/segment_classifier.onnx).
     #[arg(long)]
     pub model: Option<PathBuf>,
@@ -76,6 +79,9 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let mut settings = CorrectionSettings::embedded()?;
     settings.prior = prior;
+    if args.from_hand_set {
+        settings.weights = EnergyWeights::default();
+    }
     let tune_seeds = args.tune_seed..args.tune_seed.saturating_add(args.tune_count);
     let scenes = prepare_tuning_scenes(&taxonomy, &classifier, tune_seeds.clone(), |line| {
         eprintln!("tuning scene {line}")
@@ -92,11 +98,13 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
     let file = WeightsFile {
         schema: WEIGHTS_SCHEMA,
         source: format!(
-            "tuned by `sayso tune` (coordinate search over {}, {} pass(es) at most) on {} training renders, \
-             seeds {}..{}, with the prior counted over seeds {}..{}; objective (mean of mIoU and graph \
-             object accuracy, no note / room note / count note) {:.4} -> {:.4}",
+            "tuned by `sayso tune{}` (coordinate search over {}, {} pass(es) at most, from the {} weights) on {} \
+             training renders, seeds {}..{} (end exclusive), with the prior counted over seeds {}..{}; objective \
+             (mean of mIoU and graph object accuracy, no note / room note / count note) {:.4} -> {:.4}",
+            if args.from_hand_set { " --from-hand-set" } else { "" },
             TUNED_WEIGHTS.join(", "),
             args.passes,
+            if args.from_hand_set { "hand-set" } else { "committed" },
             scenes.len(),
             tune_seeds.start,
             tune_seeds.end,
