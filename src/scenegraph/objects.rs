@@ -18,6 +18,8 @@
 //!    Otherwise a component is one object, so pieces of one window that the hypothesis generator proposed
 //!    separately are not reported as several windows, and a count already met by the labels is not
 //!    second-guessed.
+//!    Checked on training renders only (the 21 tuning renders of `sayso tune`, committed weights): the tuning
+//!    objective is 0.5679 with this split and 0.5659 without it.
 //! 3. Each object is named after a hypothesis so later notes can point at it (`Focus::Object`): the
 //!    hypothesis of its class sharing the most member segments with it that no larger object took already;
 //!    with none, an id computed from its class and members (`crate::hypotheses::hypothesis_id`), which no
