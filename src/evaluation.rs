@@ -1,19 +1,34 @@
 //! Scoring a labelling of a demo scene against its ground truth: pixel accuracy, mean IoU and object-level
 //! accuracy, and the notes file each demo scene carries.
 //!
-//! Owns: `SceneScore`, `score_labels`, `read_notes`. Pixel accuracy and mean IoU come from
-//! `unaries::metrics::ConfusionMatrix` (mean over classes present in the truth or the prediction).
-//! Object accuracy: a ground-truth object (instances.png + objects.json) counts as found when a connected
-//! region (4-neighbour) of one predicted class, that class being the object's, overlaps it with IoU >= 0.5
-//! (the usual detection threshold, common practice).
+//! Owns: `SceneScore`, `score_labels`, `PredictedObject`, the two ways predicted objects are formed
+//! (`objects_from_regions`, `objects_from_graph`), `object_accuracy`, `read_notes`. Pixel accuracy and mean
+//! IoU come from `unaries::metrics::ConfusionMatrix` (mean over classes present in the truth or the
+//! prediction).
+//!
+//! Object-level accuracy is the share of ground-truth objects (instances.png + objects.json) matched by a
+//! predicted object of the object's class with IoU >= 0.5 (the usual detection threshold, common practice).
+//! At that threshold a predicted object can match at most one ground-truth object and the other way round
+//! (two disjoint sets cannot both share more than half of their union with a third), so no assignment step
+//! is needed. Predicted objects are formed in one of two ways, and `sayso score` prints both:
+//!
+//! - **region-based** (`objects_from_regions`): every 4-connected region of one predicted label is one object.
+//!   Adjacent objects of one class merge into one region (a row of books on a shelf is one "object").
+//! - **graph-based** (`objects_from_graph`): the objects of a scene graph (accepted hypotheses with their
+//!   final member segments), i.e. what the robot reports as objects. Structure classes (floor, wall,
+//!   ceiling) are not instances in the ground truth, so they never match anything either way.
+//!
 //! Must not: run the pipeline or write files.
-
 use std::collections::HashMap;
 use std::path::Path;
 
 use serde::Serialize;
 
 use crate::demo::DemoScene;
+use crate::ids::ClassId;
+use crate::render::SceneObject;
+use crate::scene::Scene;
+use crate::scenegraph::SceneGraph;
 use crate::taxonomy::UNLABELLED;
 use crate::unaries::metrics::{ConfusionMatrix, MetricsError};
 
@@ -34,7 +49,7 @@ pub enum EvaluationError {
 pub struct SceneScore {
     pub pixel_accuracy: f64,
     pub mean_iou: f64,
-    /// Share of ground-truth objects found (see the module doc).
+    /// Share of ground-truth objects found by region-based objects (see the module doc).
     pub object_accuracy: f64,
 }
 
@@ -90,52 +105,115 @@ fn regions(width: usize, labels: &[u16]) -> (Vec<u32>, Vec<u16>) {
     (region, region_labels)
 }
 
-/// Share of ground-truth objects matched by a predicted region of their class at IoU >= 0.5.
-pub fn object_accuracy(scene: &DemoScene, predicted: &[u16]) -> f64 {
-    if scene.objects.is_empty() || predicted.len() != scene.instances.values.len() {
-        return 0.0;
-    }
-    let width = scene.instances.width as usize;
-    let (region, region_labels) = regions(width.max(1), predicted);
-    let mut region_area = vec![0u64; region_labels.len()];
-    for &r in &region {
-        if let Some(area) = region_area.get_mut(r as usize) {
-            *area += 1;
-        }
-    }
-    // overlap[(instance, region)] and instance areas.
-    let mut overlap: HashMap<(u16, u32), u64> = HashMap::new();
-    let mut instance_area: HashMap<u16, u64> = HashMap::new();
-    for (&instance, &r) in scene.instances.values.iter().zip(&region) {
-        if instance == 0 || instance == UNLABELLED {
-            continue;
-        }
-        *overlap.entry((instance, r)).or_insert(0) += 1;
-        *instance_area.entry(instance).or_insert(0) += 1;
-    }
-    let mut found = 0usize;
-    for object in &scene.objects {
-        let Ok(instance) = u16::try_from(object.id) else {
-            continue;
-        };
-        let gt_area = instance_area.get(&instance).copied().unwrap_or(0);
-        if gt_area == 0 {
-            continue;
-        }
-        let matched = overlap.iter().any(|(&(i, r), &shared)| {
-            i == instance && region_labels.get(r as usize) == Some(&object.class_id.0) && {
-                let union = gt_area + region_area[r as usize] - shared;
-                union > 0 && shared as f64 / union as f64 >= 0.5
-            }
-        });
-        if matched {
-            found += 1;
-        }
-    }
-    found as f64 / scene.objects.len() as f64
+/// One predicted object: its class and the pixels it covers (row-major indices, ascending).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct PredictedObject {
+    pub class: ClassId,
+    pub pixels: Vec<u32>,
 }
 
-/// Scores a per-pixel labelling of a demo scene.
+/// Region-based objects: every 4-connected region of one predicted label (unlabelled pixels excluded).
+pub fn objects_from_regions(width: usize, predicted: &[u16]) -> Vec<PredictedObject> {
+    let (region, region_labels) = regions(width.max(1), predicted);
+    let mut objects: Vec<PredictedObject> = region_labels
+        .iter()
+        .map(|&label| PredictedObject {
+            class: ClassId(label),
+            pixels: Vec::new(),
+        })
+        .collect();
+    for (pixel, &r) in region.iter().enumerate() {
+        if let Some(object) = objects.get_mut(r as usize) {
+            object.pixels.push(pixel as u32);
+        }
+    }
+    objects.retain(|object| object.class.0 != UNLABELLED);
+    objects
+}
+
+/// Graph-based objects: each scene-graph object with the pixels of its member segments.
+pub fn objects_from_graph(scene: &Scene, graph: &SceneGraph) -> Vec<PredictedObject> {
+    let segment_count = scene.segment_count();
+    // Pixels of every segment, gathered once.
+    let mut segment_pixels: Vec<Vec<u32>> = vec![Vec::new(); segment_count];
+    for (pixel, &segment) in scene.segments.labels.iter().enumerate() {
+        if let Some(list) = segment_pixels.get_mut(segment as usize) {
+            list.push(pixel as u32);
+        }
+    }
+    graph
+        .objects
+        .iter()
+        .map(|object| {
+            let mut pixels: Vec<u32> = object
+                .members
+                .iter()
+                .filter_map(|member| segment_pixels.get(member.index()))
+                .flatten()
+                .copied()
+                .collect();
+            pixels.sort_unstable();
+            pixels.dedup();
+            PredictedObject {
+                class: object.class,
+                pixels,
+            }
+        })
+        .collect()
+}
+
+/// Share of ground-truth objects matched by a predicted object of their class at IoU >= 0.5.
+pub fn object_accuracy(scene: &DemoScene, predicted: &[PredictedObject]) -> f64 {
+    object_accuracy_of(&scene.instances.values, &scene.objects, predicted)
+}
+
+/// `object_accuracy` on the raw parts: the instance map (0 and 255 are no object) and the object list.
+fn object_accuracy_of(
+    instances: &[u16],
+    truth: &[SceneObject],
+    predicted: &[PredictedObject],
+) -> f64 {
+    if truth.is_empty() {
+        return 0.0;
+    }
+    let mut instance_area: HashMap<u16, u64> = HashMap::new();
+    for &instance in instances {
+        if instance != 0 && instance != UNLABELLED {
+            *instance_area.entry(instance).or_insert(0) += 1;
+        }
+    }
+    let mut found = vec![false; truth.len()];
+    for object in predicted {
+        let mut shared: HashMap<u16, u64> = HashMap::new();
+        for &pixel in &object.pixels {
+            if let Some(&instance) = instances.get(pixel as usize) {
+                if instance != 0 && instance != UNLABELLED {
+                    *shared.entry(instance).or_insert(0) += 1;
+                }
+            }
+        }
+        for (index, truth_object) in truth.iter().enumerate() {
+            if found[index] || truth_object.class_id != object.class {
+                continue;
+            }
+            let Ok(instance) = u16::try_from(truth_object.id) else {
+                continue;
+            };
+            let (Some(&overlap), Some(&area)) =
+                (shared.get(&instance), instance_area.get(&instance))
+            else {
+                continue;
+            };
+            let union = area + object.pixels.len() as u64 - overlap;
+            if union > 0 && overlap as f64 / union as f64 >= 0.5 {
+                found[index] = true;
+            }
+        }
+    }
+    found.iter().filter(|&&f| f).count() as f64 / truth.len() as f64
+}
+
+/// Scores a per-pixel labelling of a demo scene; object accuracy is region-based (see the module doc).
 pub fn score_labels(
     scene: &DemoScene,
     predicted: &[u16],
@@ -143,10 +221,11 @@ pub fn score_labels(
 ) -> Result<SceneScore, EvaluationError> {
     let mut matrix = ConfusionMatrix::new(class_count);
     matrix.add_maps(&scene.labels.values, predicted)?;
+    let objects = objects_from_regions(scene.labels.width as usize, predicted);
     Ok(SceneScore {
         pixel_accuracy: matrix.pixel_accuracy(),
         mean_iou: matrix.mean_iou(),
-        object_accuracy: object_accuracy(scene, predicted),
+        object_accuracy: object_accuracy(scene, &objects),
     })
 }
 
@@ -163,5 +242,70 @@ mod tests {
         assert_eq!(region[0], region[4]);
         assert_ne!(region[0], region[3]);
         assert_eq!(region[2], region[6]);
+    }
+
+    fn book(id: u32) -> SceneObject {
+        SceneObject {
+            id,
+            class: "book".to_string(),
+            class_id: ClassId(26),
+            bbox: [0, 0, 1, 1],
+            area: 2,
+            rests_on: None,
+        }
+    }
+
+    #[test]
+    fn adjacent_objects_of_one_class_merge_as_regions_but_not_as_graph_objects() {
+        // 4x1 image: two books side by side (instances 1 and 2), predicted all book.
+        let instances = [1u16, 1, 2, 2];
+        let truth = [book(1), book(2)];
+        let labels = [26u16; 4];
+        let regions = objects_from_regions(4, &labels);
+        assert_eq!(regions.len(), 1);
+        // One region of 4 pixels shares 2 with each book: IoU 0.5 with both, so both count; with a third
+        // book pixel the region no longer matches either.
+        assert_eq!(object_accuracy_of(&instances, &truth, &regions), 1.0);
+        let instances_wide = [1u16, 1, 2, 2, 3, 3];
+        let truth_wide = [book(1), book(2), book(3)];
+        let regions_wide = objects_from_regions(6, &[26u16; 6]);
+        assert_eq!(
+            object_accuracy_of(&instances_wide, &truth_wide, &regions_wide),
+            0.0
+        );
+        let split: Vec<PredictedObject> = [vec![0, 1], vec![2, 3], vec![4, 5]]
+            .into_iter()
+            .map(|pixels| PredictedObject {
+                class: ClassId(26),
+                pixels,
+            })
+            .collect();
+        assert_eq!(
+            object_accuracy_of(&instances_wide, &truth_wide, &split),
+            1.0
+        );
+    }
+
+    #[test]
+    fn a_match_needs_the_right_class_and_half_the_union() {
+        let instances = [1u16, 1, 1, 0];
+        let truth = [book(1)];
+        let wrong_class = PredictedObject {
+            class: ClassId(3),
+            pixels: vec![0, 1, 2],
+        };
+        assert_eq!(object_accuracy_of(&instances, &truth, &[wrong_class]), 0.0);
+        // 1 shared pixel of a union of 3: IoU 1/3.
+        let too_small = PredictedObject {
+            class: ClassId(26),
+            pixels: vec![0],
+        };
+        assert_eq!(object_accuracy_of(&instances, &truth, &[too_small]), 0.0);
+        // 2 shared of a union of 3.
+        let enough = PredictedObject {
+            class: ClassId(26),
+            pixels: vec![0, 1],
+        };
+        assert_eq!(object_accuracy_of(&instances, &truth, &[enough]), 1.0);
     }
 }

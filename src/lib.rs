@@ -49,4 +49,5 @@ pub mod service;
 pub mod slic;
 pub mod solver;
 pub mod taxonomy;
+pub mod tuning;
 pub mod unaries;

@@ -214,7 +214,7 @@ impl CorrectionSettings {
         Ok(CorrectionSettings {
             grammar: Grammar::embedded()?,
             prior: RoomClassPrior::embedded()?,
-            weights: EnergyWeights::default(),
+            weights: EnergyWeights::embedded()?,
             proposals: ProposalOptions::default(),
             options: JointOptions::default(),
         })
@@ -299,6 +299,26 @@ pub fn correct_prepared(
         after_each,
         turns,
     })
+}
+
+/// What the robot believes with no note: the joint solve of the prepared scene under no constraint (its scene
+/// graph holds the objects the hypotheses give before anyone says anything).
+pub fn believe_without_notes(
+    prepared: &PreparedScene,
+    settings: &CorrectionSettings,
+) -> Result<Correction, PipelineError> {
+    correct_turn(
+        &TurnInputs {
+            scene: &prepared.scene,
+            unaries: &prepared.unaries,
+            detections: &[],
+        },
+        None,
+        &[],
+        None,
+        false,
+        settings,
+    )
 }
 
 /// The parts of a scene one turn is solved on.

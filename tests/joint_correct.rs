@@ -132,7 +132,9 @@ fn run(
     context: &GroundingContext,
     confirm_safety: bool,
 ) -> Correction {
-    let prior = RoomClassPrior::embedded().unwrap();
+    // The hand-made kitchen's probabilities were chosen against the taxonomy's smoothed prior (typical 0.5);
+    // the committed prior counted from renders is checked on its own above.
+    let prior = RoomClassPrior::from_taxonomy(&kitchen.taxonomy);
     let request = CorrectionRequest {
         scene: &kitchen.scene,
         unaries: &kitchen.unaries,
@@ -160,12 +162,40 @@ fn objects_of(correction: &Correction, class: u16) -> usize {
 }
 
 #[test]
-fn the_committed_prior_is_the_one_the_taxonomy_gives() {
+fn the_committed_prior_is_counted_from_training_renders() {
+    // models/room_class_prior.json comes from `sayso tune` (models/README.md): its probabilities must be the
+    // documented smoothing of the counts stored beside them, over training renders only.
     let taxonomy = Taxonomy::embedded();
-    assert_eq!(
-        RoomClassPrior::embedded().unwrap(),
-        RoomClassPrior::from_taxonomy(&taxonomy)
-    );
+    let prior = RoomClassPrior::embedded().unwrap();
+    assert_eq!(prior.schema, sayso::energy::build::PRIOR_SCHEMA);
+    assert_eq!(prior.room_count, taxonomy.rooms().len());
+    assert_eq!(prior.class_count, taxonomy.class_count());
+    let counts = prior
+        .counts
+        .as_ref()
+        .expect("the committed prior carries its counts");
+    assert_eq!(counts.scenes.len(), prior.room_count);
+    assert!(counts.scenes.iter().all(|&n| n > 0), "{:?}", counts.scenes);
+    for room in 0..prior.room_count {
+        for class in 0..prior.class_count {
+            let seen = counts.present[room * prior.class_count + class];
+            assert!(seen <= counts.scenes[room]);
+            let laplace = (seen as f64 + 1.0) / (counts.scenes[room] as f64 + 2.0);
+            assert!((prior.present[room * prior.class_count + class] - laplace).abs() < 1e-12);
+        }
+        let add_one = (counts.scenes[room] as f64 + 1.0)
+            / (counts.scene_count() as f64 + prior.room_count as f64);
+        assert!((prior.room_prior[room] - add_one).abs() < 1e-12);
+    }
+    for a in 0..prior.class_count {
+        for b in 0..prior.class_count {
+            let pair = counts.co_occurrence[a * prior.class_count + b];
+            assert_eq!(pair, counts.co_occurrence[b * prior.class_count + a]);
+            assert!(pair <= counts.co_occurrence[a * prior.class_count + a]);
+        }
+    }
+    assert!(prior.source.contains("seeds 100000.."), "{}", prior.source);
+    assert_ne!(prior, RoomClassPrior::from_taxonomy(&taxonomy));
 }
 
 #[test]

@@ -16,6 +16,7 @@ mod score;
 mod serve;
 mod store;
 mod train;
+mod tune;
 mod unaries;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
@@ -43,6 +44,8 @@ pub enum Command {
     Unaries(unaries::UnariesArgs),
     /// Parse operator utterances into typed constraints (JSON and a gloss).
     Parse(parse::ParseArgs),
+    /// Count room/class statistics and tune energy weights on training renders (never the demo scenes).
+    Tune(tune::TuneArgs),
     /// Apply every demo scene's notes and score them against ground truth.
     Score(score::ScoreArgs),
     /// Start the correction service.
@@ -72,5 +75,6 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
         Command::FieldNotes(args) => field_notes::run(args),
         Command::Fix(args) => fix::run(args),
         Command::Score(args) => score::run(args),
+        Command::Tune(args) => tune::run(args),
     }
 }

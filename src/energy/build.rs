@@ -7,6 +7,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::statistics::RoomClassCounts;
 use super::{
     AbsentFactor, CountFactor, EnergyError, HypothesisTerm, JointEnergy, TupleFactor, UnaryFactor,
     ENERGY_SCHEMA, HARD_WEIGHT,
@@ -57,7 +58,15 @@ impl Default for EnergyWeights {
     }
 }
 
+/// The schema of `models/room_class_prior.json` this build writes. Schema 1 (no `counts`) is still read.
+pub const PRIOR_SCHEMA: u32 = 2;
+
 /// `P(class present | room)` and `P(room)`, stored as `models/room_class_prior.json`.
+///
+/// Schema 2 (written by `sayso tune`, documented in `models/README.md`): `schema`, `source` (which scenes
+/// were counted), `room_count`, `class_count`, `present[room * class_count + class]`, `room_prior[room]`, and
+/// `counts` (the raw counts the probabilities come from, see `crate::energy::statistics`). Schema 1 had no
+/// `counts`.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct RoomClassPrior {
     pub schema: u32,
@@ -68,10 +77,16 @@ pub struct RoomClassPrior {
     /// `present[room * class_count + class]`.
     pub present: Vec<f64>,
     pub room_prior: Vec<f64>,
+    /// The counts behind the probabilities, when they were counted from scenes.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub counts: Option<RoomClassCounts>,
 }
 
 /// The committed prior, embedded so the library needs no files.
 pub const EMBEDDED_PRIOR: &str = include_str!("../../models/room_class_prior.json");
+
+/// The committed energy weights (`sayso tune` writes them), embedded so the library needs no files.
+pub const EMBEDDED_WEIGHTS: &str = include_str!("../../models/energy_weights.json");
 
 /// Probability a class listed as typical for a room is in view there, and one that is not (a smoothed guess
 /// from the taxonomy, until training renders exist to count from).
@@ -90,6 +105,7 @@ impl RoomClassPrior {
             }
         }
         RoomClassPrior {
+            // No counts: the schema-1 layout.
             schema: 1,
             source: "smoothed prior from grammar/classes.toml rooms lists (typical 0.5, otherwise 0.05); \
                      to be replaced by counts over training renders"
@@ -98,13 +114,101 @@ impl RoomClassPrior {
             class_count,
             present,
             room_prior: vec![1.0 / room_count as f64; room_count],
+            counts: None,
         }
+    }
+
+    /// Reads a prior from its JSON text, checking the schema and the table shapes.
+    pub fn from_json(text: &str) -> Result<RoomClassPrior, EnergyError> {
+        let prior: RoomClassPrior = serde_json::from_str(text)
+            .map_err(|error| EnergyError::Build(format!("room-class prior: {error}")))?;
+        if prior.schema == 0 || prior.schema > PRIOR_SCHEMA {
+            return Err(EnergyError::Build(format!(
+                "room-class prior schema {} is not supported (this build reads 1..={PRIOR_SCHEMA})",
+                prior.schema
+            )));
+        }
+        if prior.present.len() != prior.room_count * prior.class_count {
+            return Err(EnergyError::Shape {
+                table: "room-class prior present",
+                found: prior.present.len(),
+                expected: prior.room_count * prior.class_count,
+            });
+        }
+        if prior.room_prior.len() != prior.room_count {
+            return Err(EnergyError::Shape {
+                table: "room-class prior room_prior",
+                found: prior.room_prior.len(),
+                expected: prior.room_count,
+            });
+        }
+        Ok(prior)
     }
 
     /// The embedded prior.
     pub fn embedded() -> Result<RoomClassPrior, EnergyError> {
-        serde_json::from_str(EMBEDDED_PRIOR)
-            .map_err(|error| EnergyError::Build(format!("room-class prior: {error}")))
+        RoomClassPrior::from_json(EMBEDDED_PRIOR)
+    }
+}
+
+/// The schema of `models/energy_weights.json`.
+pub const WEIGHTS_SCHEMA: u32 = 1;
+
+/// The weights file: the weights and how they were chosen.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct WeightsFile {
+    pub schema: u32,
+    /// The command and the scenes the weights were tuned on.
+    pub source: String,
+    pub weights: EnergyWeights,
+}
+
+impl EnergyWeights {
+    /// Reads a weights file's JSON text (schema checked, every weight finite and not negative).
+    pub fn from_json(text: &str) -> Result<EnergyWeights, EnergyError> {
+        let file: WeightsFile = serde_json::from_str(text)
+            .map_err(|error| EnergyError::Build(format!("energy weights: {error}")))?;
+        if file.schema != WEIGHTS_SCHEMA {
+            return Err(EnergyError::Build(format!(
+                "energy weights schema {} is not supported (this build reads {WEIGHTS_SCHEMA})",
+                file.schema
+            )));
+        }
+        let weights = file.weights;
+        for (name, value) in weights.named() {
+            if !value.is_finite() {
+                return Err(EnergyError::NotFinite {
+                    what: format!("energy weight {name}"),
+                });
+            }
+            if value < 0.0 {
+                return Err(EnergyError::NegativeWeight {
+                    what: format!("energy weight {name}"),
+                });
+            }
+        }
+        Ok(weights)
+    }
+
+    /// The committed weights (`models/energy_weights.json`), which the pipeline uses as defaults.
+    pub fn embedded() -> Result<EnergyWeights, EnergyError> {
+        EnergyWeights::from_json(EMBEDDED_WEIGHTS)
+    }
+
+    /// Every weight with its field name.
+    pub fn named(&self) -> [(&'static str, f64); 10] {
+        [
+            ("smoothing_lambda", self.smoothing_lambda),
+            ("contrast_sigma", self.contrast_sigma),
+            ("fine_coarse", self.fine_coarse),
+            ("agreement", self.agreement),
+            ("soft_count", self.soft_count),
+            ("soft_absent", self.soft_absent),
+            ("soft_relation", self.soft_relation),
+            ("soft_segment", self.soft_segment),
+            ("soft_room", self.soft_room),
+            ("metadata_room", self.metadata_room),
+        ]
     }
 }
 

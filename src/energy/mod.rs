@@ -12,30 +12,32 @@
 //! `p_c = 1` exactly when some fine segment is labelled `c` or some accepted hypothesis has class `c`.
 //! Lower is better. All costs are in nats (natural-log units) so they add with `-log p` unaries.
 //!
-//! | term | formula | weight (default, see `build::EnergyWeights`) |
+//! | term | formula | weight (`models/energy_weights.json`, read by `build::EnergyWeights::embedded`) |
 //! |---|---|---|
 //! | segment unary | `sum_s U[s, x_s]`, `U = -log p(class \| segment)` | 1 |
-//! | smoothing (contrast-sensitive Potts) | `sum_(a,b) w_ab [x_a != x_b]`, `w_ab = lambda * boundary_length * exp(-contrast^2 / (2 sigma^2))` | `lambda = 0.02` per boundary pixel, `sigma = 12` CIE76 units |
-//! | fine/coarse agreement | an extra node per coarse region joined to each member by a Potts edge of weight `w_fc` | `w_fc = 0.3` |
+//! | smoothing (contrast-sensitive Potts) | `sum_(a,b) w_ab [x_a != x_b]`, `w_ab = lambda * boundary_length * exp(-contrast^2 / (2 sigma^2))` | `lambda` per boundary pixel, `sigma` in CIE76 units: tuned (hand-set start 0.02, 12) |
+//! | fine/coarse agreement (coarse link) | an extra node per coarse region joined to each member by a Potts edge of weight `w_fc` | `w_fc`: tuned (hand-set start 0.3) |
 //! | hypothesis score | `sum_h y_h a_h`, `a_h = -log(score / (1 - score))`, score clamped to 0.02..0.98 (negative for likely objects) | 1 |
-//! | hypothesis-segment agreement | `sum_h y_h g_h * #{s in members(h) : x_s != class(h)}` | `g_h = 1.5` per segment |
-//! | room prior | `R[r] = -log P(r)`, plus `w_meta` for every room other than the one scene metadata names | `P(r)` uniform; `w_meta = 6` |
-//! | presence / room-class statistics | `sum_c K[r, c] p_c`, `K[r, c] = -log P(c present \| r) + log P(c absent \| r)` | 1; `P` in `models/room_class_prior.json`, for now a smoothed prior from the taxonomy's `rooms` lists (0.5 where typical, 0.05 elsewhere), not yet counted from training renders |
-//! | class co-occurrence | through the room: classes are independent given `r`, so co-occurrence is the mixture over rooms | — |
+//! | hypothesis-segment agreement | `sum_h y_h g_h * #{s in members(h) : x_s != class(h)}` | `g_h` per segment: tuned (hand-set start 1.5) |
+//! | room prior | `R[r] = -log P(r)`, plus `w_meta` for every room other than the one scene metadata names | `P(r)` counted with the room-class statistics; `w_meta = 6` |
+//! | presence / room-class statistics | `sum_c K[r, c] p_c`, `K[r, c] = -log P(c present \| r) + log P(c absent \| r)` | 1; `P` in `models/room_class_prior.json`, counted over training renders by `sayso tune` (Laplace's rule; `energy::statistics`) |
+//! | class co-occurrence | through the room: classes are independent given `r`, so co-occurrence is the mixture over rooms; the counted co-occurrence table is stored in the prior file's `counts` | — |
 //! | count (present = at least 1) | `w * dist(n_c, admissible set)`, `n_c = sum_{class(h) = c} y_h` | soft 4, hard `HARD_WEIGHT` |
 //! | absent | `w * p_c` | soft 4, hard `HARD_WEIGHT` |
 //! | relation, relabel of an object | tuple factor: `w` unless some listed pair (or single) of hypotheses is all on; negated: `w` for every listed tuple that is all on | soft 3, hard `HARD_WEIGHT` |
 //! | relabel / attribute / region of segments | unary factor: `w` for every listed segment whose label is (or, `wanted`, is not) `label` | soft 3 per segment |
 //! | room type stated | added to `R[r]`: `w` for every other room | soft 6, hard `HARD_WEIGHT` |
 //!
-//! The weights are hand-set starting values; tuning them on training renders (never on demo scenes) is not
-//! done yet.
+//! The weights marked "tuned" are chosen by `sayso tune` on training renders, never on demo scenes (the
+//! search and its objective are documented in `crate::tuning` and `models/README.md`); the others keep their
+//! hand-set values. `build::EnergyWeights::default()` keeps the hand-set starting values.
 //!
 //! A constraint is *hard* when the operator was definite (parser confidence at least 0.9); a hard factor uses
 //! `HARD_WEIGHT`, large enough to dominate every other term of a real scene, and is reported as a conflict when
 //! the solution still violates it (the solver never forces an unsatisfiable set).
 
 pub mod build;
+pub mod statistics;
 
 use serde::{Deserialize, Serialize};
 

@@ -10,7 +10,7 @@ use super::changes::{
     list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
 };
 use super::supersede::retire_superseded;
-use super::{build_scene_graph, SceneGraph};
+use super::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
 use crate::energy::{EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{
@@ -20,7 +20,8 @@ use crate::grounding::{
 use crate::hypotheses::{
     build_hypotheses, Detection, Hypothesis, HypothesisError, ProposalOptions,
 };
-use crate::language::constraint::Constraint;
+use crate::ids::ClassId;
+use crate::language::constraint::{Constraint, Count};
 use crate::scene::Scene;
 use crate::solver::joint::{solve_joint, JointError, JointOptions, JointSolution, WarmStart};
 use crate::taxonomy::Taxonomy;
@@ -311,14 +312,35 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         }
     }
     unmet.sort_by_key(|u| u.constraint);
+    let mut counted: Vec<(ClassId, u32)> = in_force
+        .iter()
+        .filter_map(|grounded| match grounded.kind {
+            GroundedKind::Count {
+                class,
+                count: Count::Exactly(k) | Count::AtLeast(k),
+            } => Some((class, k)),
+            _ => None,
+        })
+        .collect();
+    // The latest statement about a class wins (earlier ones are retired when superseded; keep the last).
+    counted.reverse();
+    let mut seen_classes = Vec::new();
+    counted.retain(|(class, _)| {
+        let first = !seen_classes.contains(class);
+        seen_classes.push(*class);
+        first
+    });
     let graph = build_scene_graph(
         scene,
         taxonomy,
         &built.hypotheses,
         &solution.state,
-        solution.energy,
-        solution.lower_bound,
-        solution.relative_gap,
+        SolvedFigures {
+            energy: solution.energy,
+            lower_bound: solution.lower_bound,
+            relative_gap: solution.relative_gap,
+            counted: &counted,
+        },
     );
     Ok(Correction {
         graph,

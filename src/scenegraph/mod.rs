@@ -1,12 +1,14 @@
 //! The corrected scene graph: objects, relations, room type, per-segment labels and the label map.
 //!
-//! Owns: `SceneGraph` and its parts, building it from a solved state, run-length masks, the label map, and
+//! Owns: `SceneGraph` and its parts, building it from a solved state (objects are formed from the final
+//! labels and the accepted hypotheses, see `objects`), run-length masks, the label map, and
 //! (in `changes`) the change list with causes, unmet constraints and safety holds; `correct` (in `correct`)
 //! runs grounding, energy, solver and this stage in order.
 //! Must not: search for solutions or read words; it describes a state the solver returned.
 
 pub mod changes;
 pub mod correct;
+pub mod objects;
 pub mod supersede;
 
 use serde::{Deserialize, Serialize};
@@ -19,6 +21,7 @@ use crate::language::constraint::Relation;
 use crate::raster::IndexImage;
 use crate::scene::{BoundingBox, Scene};
 use crate::taxonomy::{ClassGroup, Taxonomy};
+use objects::form_objects;
 
 /// The schema of the scene graph JSON.
 pub const SCENE_GRAPH_SCHEMA: u32 = 1;
@@ -138,13 +141,14 @@ impl RunLengthMask {
     }
 }
 
-/// One object of the corrected scene.
+/// One object of the corrected scene (formed as `objects` describes).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct SceneObject {
     pub id: ObjectId,
     pub hypothesis: HypothesisId,
     pub class: ClassId,
     pub class_name: String,
+    /// The score of the hypothesis the object is named after (0 when no hypothesis shares a segment with it).
     pub score: f32,
     pub bbox: BoundingBox,
     pub members: Vec<SegmentId>,
@@ -191,19 +195,15 @@ const REPORTED_RELATIONS: [Relation; 7] = [
     Relation::Behind,
 ];
 
-/// Objects' members follow the final labels: an accepted hypothesis keeps the members that carry its class.
-fn final_members(hypothesis: &Hypothesis, labels: &[u16]) -> Vec<SegmentId> {
-    let agreeing: Vec<SegmentId> = hypothesis
-        .members
-        .iter()
-        .copied()
-        .filter(|s| labels.get(s.index()).copied() == Some(hypothesis.class.0))
-        .collect();
-    if agreeing.is_empty() {
-        hypothesis.members.clone()
-    } else {
-        agreeing
-    }
+/// How a solved state is described: the energy's figures and the classes the operator counted.
+#[derive(Clone, Copy, Debug)]
+pub struct SolvedFigures<'a> {
+    pub energy: f64,
+    pub lower_bound: f64,
+    pub relative_gap: f64,
+    /// Classes named by a count constraint in force, with the least number of objects it asks for (see
+    /// `objects` for how merged objects of such a class are split).
+    pub counted: &'a [(ClassId, u32)],
 }
 
 /// Builds the scene graph of a solved state.
@@ -212,30 +212,42 @@ pub fn build_scene_graph(
     taxonomy: &Taxonomy,
     hypotheses: &[Hypothesis],
     state: &JointState,
-    energy: f64,
-    lower_bound: f64,
-    relative_gap: f64,
+    figures: SolvedFigures<'_>,
 ) -> SceneGraph {
     let fine = scene.segment_count();
-    let mut objects: Vec<SceneObject> = hypotheses
-        .iter()
-        .zip(&state.hypotheses_on)
-        .filter(|(_, &on)| on)
-        .map(|(hypothesis, _)| {
-            let members = final_members(hypothesis, &state.labels[..fine.min(state.labels.len())]);
-            let footprint = footprint_of(scene, &members);
-            SceneObject {
-                id: object_id(hypothesis.id),
-                hypothesis: hypothesis.id,
-                class: hypothesis.class,
-                class_name: taxonomy.class_name(hypothesis.class).to_string(),
-                score: hypothesis.score,
-                bbox: footprint.bbox,
-                mask: RunLengthMask::from_segments(scene, &members),
-                members,
-            }
-        })
-        .collect();
+    let labels = &state.labels[..fine.min(state.labels.len())];
+    let mut used = std::collections::BTreeSet::new();
+    let mut objects: Vec<SceneObject> = form_objects(
+        scene,
+        labels,
+        hypotheses,
+        &state.hypotheses_on,
+        figures.counted,
+    )
+    .into_iter()
+    .map(|formed| {
+        let footprint = footprint_of(scene, &formed.members);
+        // Ids are unique even in the (hash-collision) case of two objects naming the same id.
+        let mut id = object_id(formed.hypothesis);
+        while !used.insert(id) {
+            id = ObjectId(id.0.wrapping_add(1));
+        }
+        SceneObject {
+            id,
+            hypothesis: formed.hypothesis,
+            class: formed.class,
+            class_name: taxonomy.class_name(formed.class).to_string(),
+            score: formed
+                .hypothesis_index
+                .and_then(|index| hypotheses.get(index))
+                .map(|hypothesis| hypothesis.score)
+                .unwrap_or(0.0),
+            bbox: footprint.bbox,
+            mask: RunLengthMask::from_segments(scene, &formed.members),
+            members: formed.members,
+        }
+    })
+    .collect();
     objects.sort_by_key(|object| object.id);
     let footprints: Vec<_> = objects
         .iter()
@@ -286,9 +298,9 @@ pub fn build_scene_graph(
             .take(fine)
             .map(|&label| ClassId(label))
             .collect(),
-        energy,
-        lower_bound,
-        relative_gap,
+        energy: figures.energy,
+        lower_bound: figures.lower_bound,
+        relative_gap: figures.relative_gap,
     }
 }
 

@@ -1,0 +1,130 @@
+//! `sayso tune`: counts room-type-to-class statistics over training renders and tunes a few energy weights
+//! on other training renders, then writes `room_class_prior.json` and `energy_weights.json` into `--out`.
+//!
+//! Owns: the flags, the progress lines and writing the two files. Must not: count, search or score itself;
+//! that is `sayso::tuning`. It never reads demo scenes: every scene is rendered from a training seed, and
+//! the demo seeds 1000..=1999 are refused.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use anyhow::Context;
+
+use sayso::energy::build::{EnergyWeights, WeightsFile, WEIGHTS_SCHEMA};
+use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
+use sayso::taxonomy::Taxonomy;
+use sayso::tuning::{count_statistics, prepare_tuning_scenes, tune_weights, TUNED_WEIGHTS};
+
+/// Count room/class statistics and tune energy weights on training renders.
+#[derive(Debug, clap::Args)]
+pub struct TuneArgs {
+    /// First seed of the renders the statistics are counted over.
+    #[arg(long, default_value_t = 100_000)]
+    pub stats_seed: u64,
+    /// Number of renders counted (room types in turn).
+    #[arg(long, default_value_t = 140)]
+    pub stats_count: u64,
+    /// First seed of the renders the weights are tuned on (disjoint from the classifier's training seeds).
+    #[arg(long, default_value_t = 200_000)]
+    pub tune_seed: u64,
+    /// Number of tuning renders (room types in turn).
+    #[arg(long, default_value_t = 21)]
+    pub tune_count: u64,
+    /// Passes of the coordinate search (0: only count statistics; the weights file is left alone).
+    #[arg(long, default_value_t = 2)]
+    pub passes: usize,
+    /// Start the search from the hand-set weights (`EnergyWeights::default()`) instead of the committed file.
+    #[arg(long)]
+    pub from_hand_set: bool,
+    /// The classifier's ONNX file (default: $SAYSO_MODEL, else models/segment_classifier.onnx).
+    #[arg(long)]
+    pub model: Option<PathBuf>,
+    /// Directory to write room_class_prior.json and energy_weights.json into.
+    #[arg(long, default_value = "models")]
+    pub out: PathBuf,
+}
+
+pub fn run(args: TuneArgs) -> anyhow::Result<()> {
+    let started = Instant::now();
+    let taxonomy = Taxonomy::embedded();
+    std::fs::create_dir_all(&args.out)
+        .with_context(|| format!("creating {}", args.out.display()))?;
+    let stats_seeds = args.stats_seed..args.stats_seed.saturating_add(args.stats_count);
+    let mut rendered = 0u64;
+    let counts = count_statistics(&taxonomy, stats_seeds.clone(), |_| {
+        rendered += 1;
+        if rendered.is_multiple_of(20) {
+            eprintln!("counted {rendered} renders");
+        }
+    })?;
+    let prior = counts.to_prior(format!(
+        "counted by `sayso tune` over {} training renders, seeds {}..{} (room types in turn); \
+         P(class in view | room) by Laplace's rule, P(room) add-one",
+        counts.scene_count(),
+        stats_seeds.start,
+        stats_seeds.end
+    ));
+    let prior_path = args.out.join("room_class_prior.json");
+    std::fs::write(&prior_path, serde_json::to_string(&prior)? + "\n")
+        .with_context(|| format!("writing {}", prior_path.display()))?;
+    println!(
+        "wrote {} ({} scenes)",
+        prior_path.display(),
+        counts.scene_count()
+    );
+    if args.passes == 0 {
+        return Ok(());
+    }
+
+    let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
+    let mut settings = CorrectionSettings::embedded()?;
+    settings.prior = prior;
+    if args.from_hand_set {
+        settings.weights = EnergyWeights::default();
+    }
+    let tune_seeds = args.tune_seed..args.tune_seed.saturating_add(args.tune_count);
+    let scenes = prepare_tuning_scenes(&taxonomy, &classifier, tune_seeds.clone(), |line| {
+        eprintln!("tuning scene {line}")
+    })?;
+    let result = tune_weights(&scenes, &mut settings, args.passes, |trial| {
+        eprintln!(
+            "  {} = {:.4}: objective {:.4}{}",
+            trial.weight,
+            trial.value,
+            trial.objective,
+            if trial.kept { " (kept)" } else { "" }
+        )
+    })?;
+    let file = WeightsFile {
+        schema: WEIGHTS_SCHEMA,
+        source: format!(
+            "tuned by `sayso tune{}` (coordinate search over {}, {} pass(es) at most, from the {} weights) on {} \
+             training renders, seeds {}..{} (end exclusive), with the prior counted over seeds {}..{}; objective \
+             (mean of mIoU and graph object accuracy, no note / room note / count note) {:.4} -> {:.4}",
+            if args.from_hand_set { " --from-hand-set" } else { "" },
+            TUNED_WEIGHTS.join(", "),
+            args.passes,
+            if args.from_hand_set { "hand-set" } else { "committed" },
+            scenes.len(),
+            tune_seeds.start,
+            tune_seeds.end,
+            stats_seeds.start,
+            stats_seeds.end,
+            result.start_objective,
+            result.objective
+        ),
+        weights: result.weights.clone(),
+    };
+    let weights_path = args.out.join("energy_weights.json");
+    std::fs::write(&weights_path, serde_json::to_string_pretty(&file)? + "\n")
+        .with_context(|| format!("writing {}", weights_path.display()))?;
+    println!(
+        "wrote {}: objective {:.4} -> {:.4} ({} trials, {:.0} s)",
+        weights_path.display(),
+        result.start_objective,
+        result.objective,
+        result.trials.len(),
+        started.elapsed().as_secs_f64()
+    );
+    Ok(())
+}
