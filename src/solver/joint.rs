@@ -52,8 +52,19 @@ impl Default for JointOptions {
 pub struct Multipliers {
     /// `agreement[h][m]`: for member `m` of hypothesis `h`.
     pub agreement: Vec<Vec<f64>>,
-    /// `presence[s * label_count + c]`, fine segments only.
-    pub presence: Vec<f64>,
+    /// The presence multipliers `nu_sc` that are not zero, fine segments only, ascending by segment then
+    /// class. A multiplier only rises where a segment takes a class the coupled part left absent, so a
+    /// handful of the `fine_count * label_count` are ever non-zero.
+    pub presence: Vec<PresenceMultiplier>,
+}
+
+/// One non-zero presence multiplier: `nu_sc` on `p_c >= [x_s = c]`.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PresenceMultiplier {
+    pub segment: u32,
+    pub class: u16,
+    /// Positive and finite.
+    pub value: f64,
 }
 
 /// A previous solution to start from.
@@ -289,7 +300,7 @@ fn fresh_multipliers(energy: &JointEnergy) -> Multipliers {
             .iter()
             .map(|h| vec![0.0; h.members.len()])
             .collect(),
-        presence: vec![0.0; energy.fine_count * energy.label_count],
+        presence: Vec::new(),
     }
 }
 
@@ -302,10 +313,18 @@ fn adapt_multipliers(energy: &JointEnergy, previous: &Multipliers) -> Multiplier
             row.copy_from_slice(old);
         }
     }
-    if previous.presence.len() == multipliers.presence.len()
-        && previous.presence.iter().all(|v| v.is_finite() && *v >= 0.0)
-    {
-        multipliers.presence.copy_from_slice(&previous.presence);
+    let fits = |entry: &PresenceMultiplier| {
+        (entry.segment as usize) < energy.fine_count
+            && (entry.class as usize) < energy.label_count
+            && entry.value.is_finite()
+            && entry.value > 0.0
+    };
+    let ascending = previous
+        .presence
+        .windows(2)
+        .all(|pair| (pair[0].segment, pair[0].class) < (pair[1].segment, pair[1].class));
+    if ascending && previous.presence.iter().all(fits) {
+        multipliers.presence.clone_from(&previous.presence);
     }
     multipliers
 }
@@ -335,8 +354,8 @@ fn dual_value(
                 multipliers.agreement[h][m];
         }
     }
-    for (index, &nu) in multipliers.presence.iter().enumerate() {
-        unary[index] += nu;
+    for entry in &multipliers.presence {
+        unary[entry.segment as usize * label_count + entry.class as usize] += entry.value;
     }
     let segment_bound = workspace.bound.bound(unary);
     let segment_labels = workspace.dual.label(unary, start).to_vec();
@@ -351,8 +370,8 @@ fn dual_value(
         cost_off.push(off);
     }
     let mut adjust = vec![0.0; label_count];
-    for (index, &nu) in multipliers.presence.iter().enumerate() {
-        adjust[index % label_count] += nu;
+    for entry in &multipliers.presence {
+        adjust[entry.class as usize] += entry.value;
     }
     let no_support = vec![false; label_count];
     let coupled = solve_coupled(&CoupledInputs {
@@ -395,7 +414,6 @@ fn subgradient_step(
     target: f64,
     scale: f64,
 ) -> bool {
-    let label_count = energy.label_count;
     let labels = &dual.segment_labels;
     let mut norm = 0.0;
     for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
@@ -405,12 +423,25 @@ fn subgradient_step(
             norm += g * g;
         }
     }
-    for (s, &label) in labels.iter().enumerate().take(energy.fine_count) {
-        for c in 0..label_count {
-            let g = (label as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
-            if g > 0.0 || multipliers.presence[s * label_count + c] > 0.0 {
-                norm += g * g;
-            }
+    // Presence: `g_sc = [x_s = c] - p_c`; a zero multiplier with `g_sc <= 0` stays at zero (projection), so
+    // only the non-zero ones and the segments whose own class the coupled part left absent take part.
+    let present = &dual.coupled.presence;
+    let presence_g = |segment: u32, class: u16| {
+        (labels[segment as usize] == class) as i32 as f64 - present[class as usize] as i32 as f64
+    };
+    let rising = |segment: &u32| !present[labels[*segment as usize] as usize];
+    for entry in &multipliers.presence {
+        let g = presence_g(entry.segment, entry.class);
+        norm += g * g;
+    }
+    for segment in (0..energy.fine_count as u32).filter(rising) {
+        let class = labels[segment as usize];
+        if multipliers
+            .presence
+            .binary_search_by_key(&(segment, class), |entry| (entry.segment, entry.class))
+            .is_err()
+        {
+            norm += 1.0;
         }
     }
     if norm == 0.0 {
@@ -424,13 +455,29 @@ fn subgradient_step(
             multipliers.agreement[h][m] += step * g;
         }
     }
-    for (s, &label) in labels.iter().enumerate().take(energy.fine_count) {
-        for c in 0..label_count {
-            let g = (label as usize == c) as i32 as f64 - dual.coupled.presence[c] as i32 as f64;
-            let value = &mut multipliers.presence[s * label_count + c];
-            *value = (*value + step * g).max(0.0);
+    let mut added = Vec::new();
+    for segment in (0..energy.fine_count as u32).filter(rising) {
+        let class = labels[segment as usize];
+        if multipliers
+            .presence
+            .binary_search_by_key(&(segment, class), |entry| (entry.segment, entry.class))
+            .is_err()
+        {
+            added.push(PresenceMultiplier {
+                segment,
+                class,
+                value: step,
+            });
         }
     }
+    for entry in &mut multipliers.presence {
+        entry.value = (entry.value + step * presence_g(entry.segment, entry.class)).max(0.0);
+    }
+    multipliers.presence.retain(|entry| entry.value > 0.0);
+    multipliers.presence.extend(added);
+    multipliers
+        .presence
+        .sort_unstable_by_key(|entry| (entry.segment, entry.class));
     true
 }
 
