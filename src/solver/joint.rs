@@ -18,7 +18,13 @@
 //! lower bound of the whole energy. Multipliers move by projected subgradient steps with Polyak step sizes.
 //! Every iteration's segment labelling is also completed into a full state by the exact coupled step with the
 //! labels fixed, and the best such state is kept; alternating (labels given hypotheses, hypotheses given
-//! labels) and, on small problems, single-node moves scored with the true energy polish it.
+//! labels) and, on small problems, single-node moves scored with the true energy polish it. When labelling
+//! given hypotheses, a class that absent factors want gone is charged their weight on every segment, so the
+//! primal side drops it from the first iteration instead of waiting for the presence multipliers to rise.
+//!
+//! The loop stops at `max_iterations`, when the relative gap reaches `gap_tolerance`, or after
+//! `STALL_ITERATIONS` iterations in a row that do not lower the best energy; the reported bound and gap are
+//! those reached, whichever stop applied.
 
 use serde::{Deserialize, Serialize};
 
@@ -199,6 +205,21 @@ impl Context<'_> {
         let unary = &mut workspace.unary;
         unary.clear();
         unary.extend_from_slice(&self.unary);
+        // A class the constraints want absent is charged its weight on every fine segment (an overestimate
+        // once one segment pays it, so the labeller drops the class unless its unaries insist), unless an
+        // accepted hypothesis makes it present anyway.
+        let mut supported = vec![false; label_count];
+        for (hypothesis, &on) in self.energy.hypotheses.iter().zip(&state.hypotheses_on) {
+            supported[hypothesis.class as usize] |= on;
+        }
+        for factor in &self.energy.absent_factors {
+            let class = factor.class as usize;
+            if !supported[class] {
+                for row in unary.chunks_mut(label_count).take(self.energy.fine_count) {
+                    row[class] += factor.weight;
+                }
+            }
+        }
         for (hypothesis, &on) in self.energy.hypotheses.iter().zip(&state.hypotheses_on) {
             if on {
                 for &s in &hypothesis.members {
@@ -259,8 +280,10 @@ fn keep_better(best: &mut Candidate, candidate: Candidate) {
 /// Dual iterations at most when starting from previous multipliers.
 const WARM_ITERATIONS: u32 = 8;
 
-/// The dual loop stops after this many iterations in a row that improve neither bound nor energy.
-const STALL_ITERATIONS: u32 = 4;
+/// The dual loop stops after this many iterations in a row that do not improve the best energy (a primal
+/// stall). On the bench scene the bound moves by a few tenths of a percent over dozens of further iterations
+/// while the energy found stays within 0.1%, so the loop stops once the primal side stops gaining.
+const STALL_ITERATIONS: u32 = 2;
 
 /// How many distinct states are kept for polishing.
 const POOL_SIZE: usize = 6;
@@ -691,7 +714,7 @@ pub fn solve_joint(
         keep_better(&mut best, candidate);
         if best.energy < previous_best - 1e-12 {
             stalled = 0;
-        } else if since_improvement > 0 {
+        } else {
             stalled += 1;
         }
         if stalled >= STALL_ITERATIONS {
