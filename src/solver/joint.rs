@@ -23,14 +23,16 @@
 //! primal side drops it from the first iteration instead of waiting for the presence multipliers to rise.
 //!
 //! The loop stops at `max_iterations`, when the relative gap reaches `gap_tolerance`, or after
-//! `STALL_ITERATIONS` iterations in a row that do not lower the best energy; the reported bound and gap are
-//! those reached, whichever stop applied.
+//! `STALL_ITERATIONS` iterations in a row that do not lower the best energy (`WARM_STALL_ITERATIONS` when
+//! starting from previous multipliers); the reported bound and gap are those reached, whichever stop applied.
+//! Hypothesis moves (`joint_moves`) then try each hypothesis's members pulled to, and away from, its class.
 
 use serde::{Deserialize, Serialize};
 
 use crate::energy::{EnergyError, JointEnergy, JointState};
 use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
 use crate::solver::joint_labeller::{candidate_table, Labeller, LabellerTables, PottsBound};
+use crate::solver::joint_moves::try_hypothesis_moves;
 
 /// Options of the joint solver.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -104,17 +106,19 @@ pub enum JointError {
     Energy(#[from] EnergyError),
 }
 
-struct Candidate {
-    state: JointState,
-    energy: f64,
+/// A full state and its energy.
+pub(crate) struct Candidate {
+    pub(crate) state: JointState,
+    pub(crate) energy: f64,
 }
 
 /// Shared, read-only tables of one solve.
-struct Context<'a> {
-    energy: &'a JointEnergy,
-    unary: Vec<f64>,
+pub(crate) struct Context<'a> {
+    pub(crate) energy: &'a JointEnergy,
+    /// The unaries with unary factors folded in.
+    pub(crate) unary: Vec<f64>,
     /// Adjacency and the labels each node may take in expansion moves.
-    tables: LabellerTables,
+    pub(crate) tables: LabellerTables,
 }
 
 /// The mutable side of one solve: the labellers (each remembers its last problem, so a call that follows a
@@ -141,7 +145,7 @@ impl<'t> Workspace<'t> {
 }
 
 impl Context<'_> {
-    fn segment_energy(&self, labels: &[u16]) -> f64 {
+    pub(crate) fn segment_energy(&self, labels: &[u16]) -> f64 {
         let label_count = self.energy.label_count;
         let mut total = 0.0;
         for (node, &label) in labels.iter().enumerate() {
@@ -156,7 +160,7 @@ impl Context<'_> {
     }
 
     /// The best full state with these labels: the coupled step is exact once labels are fixed.
-    fn complete(&self, labels: Vec<u16>) -> Candidate {
+    pub(crate) fn complete(&self, labels: Vec<u16>) -> Candidate {
         let energy = self.energy;
         let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
         for hypothesis in &energy.hypotheses {
@@ -271,7 +275,7 @@ fn candidates(energy: &JointEnergy, unary: &[f64]) -> Vec<bool> {
     table
 }
 
-fn keep_better(best: &mut Candidate, candidate: Candidate) {
+pub(crate) fn keep_better(best: &mut Candidate, candidate: Candidate) {
     if candidate.energy < best.energy - 1e-12 {
         *best = candidate;
     }
@@ -284,6 +288,9 @@ const WARM_ITERATIONS: u32 = 8;
 /// stall). On the bench scene the bound moves by a few tenths of a percent over dozens of further iterations
 /// while the energy found stays within 0.1%, so the loop stops once the primal side stops gaining.
 const STALL_ITERATIONS: u32 = 2;
+
+/// The primal stall that stops the loop when starting from previous multipliers.
+const WARM_STALL_ITERATIONS: u32 = 1;
 
 /// How many distinct states are kept for polishing.
 const POOL_SIZE: usize = 6;
@@ -590,41 +597,6 @@ fn polish(context: &Context, best: &mut Candidate) {
     }
 }
 
-/// Pulls every member of each hypothesis to its class in turn, and keeps any state that is better.
-fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
-    let label_count = context.energy.label_count;
-    for hypothesis in &context.energy.hypotheses {
-        // Members away from the class: each to its best other label.
-        let mut labels = best.state.labels.clone();
-        for &s in &hypothesis.members {
-            let row = &context.unary[s as usize * label_count..(s as usize + 1) * label_count];
-            let mut pick = None;
-            for (label, &value) in row.iter().enumerate() {
-                if label != hypothesis.class as usize
-                    && pick.is_none_or(|(_, best): (usize, f64)| value < best)
-                {
-                    pick = Some((label, value));
-                }
-            }
-            if let Some((label, _)) = pick {
-                labels[s as usize] = label as u16;
-            }
-        }
-        if labels != best.state.labels {
-            let candidate = context.complete(labels);
-            keep_better(best, candidate);
-        }
-        let mut labels = best.state.labels.clone();
-        for &s in &hypothesis.members {
-            labels[s as usize] = hypothesis.class;
-        }
-        if labels != best.state.labels {
-            let candidate = context.complete(labels);
-            keep_better(best, candidate);
-        }
-    }
-}
-
 /// Minimises the energy; `warm` starts from a previous solution of the same (or a similar) energy.
 pub fn solve_joint(
     energy: &JointEnergy,
@@ -717,7 +689,14 @@ pub fn solve_joint(
         } else {
             stalled += 1;
         }
-        if stalled >= STALL_ITERATIONS {
+        // From previous multipliers the dual starts near its optimum: the first iteration without a better
+        // energy ends it.
+        let stall_limit = if warm_multipliers {
+            WARM_STALL_ITERATIONS
+        } else {
+            STALL_ITERATIONS
+        };
+        if stalled >= stall_limit {
             break;
         }
         if gap(best.energy, lower_bound) <= options.gap_tolerance || scale < 1e-4 {
