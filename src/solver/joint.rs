@@ -30,9 +30,9 @@
 use serde::{Deserialize, Serialize};
 
 use crate::energy::{EnergyError, JointEnergy, JointState};
-use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
+use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult, CoupledTables};
 use crate::solver::joint_labeller::{candidate_table, Labeller, LabellerTables, PottsBound};
-use crate::solver::joint_moves::try_hypothesis_moves;
+use crate::solver::joint_moves::{polish, try_hypothesis_moves};
 
 /// Options of the joint solver.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -119,6 +119,8 @@ pub(crate) struct Context<'a> {
     pub(crate) unary: Vec<f64>,
     /// Adjacency and the labels each node may take in expansion moves.
     pub(crate) tables: LabellerTables,
+    /// The coupled step's tables.
+    pub(crate) coupled: CoupledTables,
 }
 
 /// The mutable side of one solve: the labellers (each remembers its last problem, so a call that follows a
@@ -181,6 +183,7 @@ impl Context<'_> {
         let adjust = vec![0.0; energy.label_count];
         let coupled = solve_coupled(&CoupledInputs {
             energy,
+            tables: &self.coupled,
             cost_on: &cost_on,
             cost_off: &cost_off,
             presence_adjust: &adjust,
@@ -406,6 +409,7 @@ fn dual_value(
     let no_support = vec![false; label_count];
     let coupled = solve_coupled(&CoupledInputs {
         energy,
+        tables: &context.coupled,
         cost_on: &cost_on,
         cost_off: &cost_off,
         presence_adjust: &adjust,
@@ -511,92 +515,6 @@ fn subgradient_step(
     true
 }
 
-/// Moves scored with the true energy, until none improves (small problems only): one node to a label, both
-/// ends of an edge to a label, and a coarse region node with all its linked nodes to a label.
-fn polish(context: &Context, best: &mut Candidate) {
-    let energy = context.energy;
-    let mut groups: Vec<Vec<usize>> = (0..energy.node_count).map(|node| vec![node]).collect();
-    for &(a, b, _) in &energy.edges {
-        groups.push(vec![a as usize, b as usize]);
-    }
-    let mut linked: Vec<Vec<usize>> = vec![Vec::new(); energy.node_count];
-    for &(a, b, _) in &energy.edges {
-        if (b as usize) >= energy.fine_count {
-            linked[b as usize].push(a as usize);
-        }
-        if (a as usize) >= energy.fine_count {
-            linked[a as usize].push(b as usize);
-        }
-    }
-    for hypothesis in &energy.hypotheses {
-        groups.push(hypothesis.members.iter().map(|&s| s as usize).collect());
-    }
-    for (node, members) in linked.into_iter().enumerate() {
-        if node >= energy.fine_count && !members.is_empty() {
-            let mut group = members;
-            group.push(node);
-            groups.push(group);
-        }
-    }
-    for _ in 0..10 {
-        let mut improved = false;
-        // Class-wide moves: every node of class `from` to `to`, or each to its best other label.
-        let label_count = energy.label_count;
-        for from in 0..label_count as u16 {
-            if !best.state.labels.contains(&from) {
-                continue;
-            }
-            for to in 0..=label_count as u16 {
-                if to == from {
-                    continue;
-                }
-                let mut labels = best.state.labels.clone();
-                for (node, label) in labels.iter_mut().enumerate() {
-                    if *label != from {
-                        continue;
-                    }
-                    *label = if (to as usize) < label_count {
-                        to
-                    } else {
-                        let row = &context.unary[node * label_count..(node + 1) * label_count];
-                        let mut pick = (if from == 0 { 1 } else { 0 }, f64::INFINITY);
-                        for (candidate, &value) in row.iter().enumerate() {
-                            if candidate != from as usize && value < pick.1 {
-                                pick = (candidate, value);
-                            }
-                        }
-                        pick.0 as u16
-                    };
-                }
-                let candidate = context.complete(labels);
-                if candidate.energy < best.energy - 1e-12 {
-                    *best = candidate;
-                    improved = true;
-                }
-            }
-        }
-        for group in &groups {
-            for label in 0..energy.label_count as u16 {
-                if group.iter().all(|&node| best.state.labels[node] == label) {
-                    continue;
-                }
-                let mut labels = best.state.labels.clone();
-                for &node in group {
-                    labels[node] = label;
-                }
-                let candidate = context.complete(labels);
-                if candidate.energy < best.energy - 1e-12 {
-                    *best = candidate;
-                    improved = true;
-                }
-            }
-        }
-        if !improved {
-            break;
-        }
-    }
-}
-
 /// Minimises the energy; `warm` starts from a previous solution of the same (or a similar) energy.
 pub fn solve_joint(
     energy: &JointEnergy,
@@ -615,6 +533,7 @@ pub fn solve_joint(
         energy,
         unary,
         tables,
+        coupled: CoupledTables::new(energy),
     };
     let mut workspace = Workspace::new(&context);
     let label_count = energy.label_count;

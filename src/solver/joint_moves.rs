@@ -1,8 +1,10 @@
-//! Hypothesis moves of the joint solver: pull every member of a hypothesis to its class, or away from it, and
-//! keep the state when it is better.
+//! Local moves of the joint solver on a full state: pull every member of a hypothesis to its class, or away
+//! from it; on small problems, polish with node, edge, group and class-wide moves. A state is kept when it
+//! is better.
 //!
 //! Owns: `try_hypothesis_moves` and `MoveScorer`, which scores a move from the nodes it changes (their
-//! unaries and edges, the hypotheses over them, the classes they support) instead of the whole labelling.
+//! unaries and edges, the hypotheses over them, the classes they support) instead of the whole labelling;
+//! `polish`.
 //! Must not: keep a state it has not scored with `Context::complete` (the exact completion), nor know what
 //! the classes mean.
 
@@ -134,6 +136,7 @@ impl MoveScorer {
         }
         let coupled = solve_coupled(&CoupledInputs {
             energy,
+            tables: &context.coupled,
             cost_on: &self.cost_on,
             cost_off: &self.cost_off,
             presence_adjust: &self.adjust,
@@ -190,5 +193,91 @@ pub(crate) fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
             labels[s as usize] = hypothesis.class;
         }
         attempt(&labels, &hypothesis.members, best);
+    }
+}
+
+/// Moves scored with the true energy, until none improves (small problems only): one node to a label, both
+/// ends of an edge to a label, and a coarse region node with all its linked nodes to a label.
+pub(crate) fn polish(context: &Context, best: &mut Candidate) {
+    let energy = context.energy;
+    let mut groups: Vec<Vec<usize>> = (0..energy.node_count).map(|node| vec![node]).collect();
+    for &(a, b, _) in &energy.edges {
+        groups.push(vec![a as usize, b as usize]);
+    }
+    let mut linked: Vec<Vec<usize>> = vec![Vec::new(); energy.node_count];
+    for &(a, b, _) in &energy.edges {
+        if (b as usize) >= energy.fine_count {
+            linked[b as usize].push(a as usize);
+        }
+        if (a as usize) >= energy.fine_count {
+            linked[a as usize].push(b as usize);
+        }
+    }
+    for hypothesis in &energy.hypotheses {
+        groups.push(hypothesis.members.iter().map(|&s| s as usize).collect());
+    }
+    for (node, members) in linked.into_iter().enumerate() {
+        if node >= energy.fine_count && !members.is_empty() {
+            let mut group = members;
+            group.push(node);
+            groups.push(group);
+        }
+    }
+    for _ in 0..10 {
+        let mut improved = false;
+        // Class-wide moves: every node of class `from` to `to`, or each to its best other label.
+        let label_count = energy.label_count;
+        for from in 0..label_count as u16 {
+            if !best.state.labels.contains(&from) {
+                continue;
+            }
+            for to in 0..=label_count as u16 {
+                if to == from {
+                    continue;
+                }
+                let mut labels = best.state.labels.clone();
+                for (node, label) in labels.iter_mut().enumerate() {
+                    if *label != from {
+                        continue;
+                    }
+                    *label = if (to as usize) < label_count {
+                        to
+                    } else {
+                        let row = &context.unary[node * label_count..(node + 1) * label_count];
+                        let mut pick = (if from == 0 { 1 } else { 0 }, f64::INFINITY);
+                        for (candidate, &value) in row.iter().enumerate() {
+                            if candidate != from as usize && value < pick.1 {
+                                pick = (candidate, value);
+                            }
+                        }
+                        pick.0 as u16
+                    };
+                }
+                let candidate = context.complete(labels);
+                if candidate.energy < best.energy - 1e-12 {
+                    *best = candidate;
+                    improved = true;
+                }
+            }
+        }
+        for group in &groups {
+            for label in 0..energy.label_count as u16 {
+                if group.iter().all(|&node| best.state.labels[node] == label) {
+                    continue;
+                }
+                let mut labels = best.state.labels.clone();
+                for &node in group {
+                    labels[node] = label;
+                }
+                let candidate = context.complete(labels);
+                if candidate.energy < best.energy - 1e-12 {
+                    *best = candidate;
+                    improved = true;
+                }
+            }
+        }
+        if !improved {
+            break;
+        }
     }
 }
