@@ -558,8 +558,7 @@ pub fn solve_joint(
             warm_multipliers = true;
         }
     }
-    let from_start = context.relabel_given_hypotheses(&mut workspace, &best.state);
-    keep_better(&mut best, from_start);
+    // No separate relabelling of the start here: the first iteration's alternation labels given hypotheses.
 
     let mut lower_bound = f64::NEG_INFINITY;
     let mut coupled_exact = true;
