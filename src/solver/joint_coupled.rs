@@ -1,6 +1,6 @@
 //! The exact combinatorial step of the joint solver: hypotheses, presence, room type and constraint factors.
 //!
-//! Owns: minimising every term of the joint energy that does not involve segment-to-segment smoothing, given a
+//! Owns: `CoupledTables` (what the step needs from the energy, built once per solve) and minimising every term of the joint energy that does not involve segment-to-segment smoothing, given a
 //! per-hypothesis on/off cost: enumerate room types; enumerate the on/off states of the (few) hypotheses that
 //! tuple factors mention; per class, choose how many of the remaining hypotheses to switch on by sorting their
 //! costs (so count factors are exact).
@@ -14,6 +14,8 @@ pub const MAX_ENUMERATED_HYPOTHESES: usize = 14;
 /// What the step minimises over, besides the energy's own tables.
 pub(crate) struct CoupledInputs<'a> {
     pub energy: &'a JointEnergy,
+    /// `CoupledTables::new(energy)`, built once per solve.
+    pub tables: &'a CoupledTables,
     /// Cost of each hypothesis being on, and off.
     pub cost_on: &'a [f64],
     pub cost_off: &'a [f64],
@@ -43,29 +45,81 @@ struct ClassChoice {
     present: bool,
 }
 
-struct ClassTables {
+/// The parts of the coupled step that depend on the energy alone, built once per solve so each call only
+/// sorts costs.
+pub(crate) struct CoupledTables {
     by_class: Vec<Vec<usize>>,
     counts_by_class: Vec<Vec<usize>>,
     absent_weight: Vec<f64>,
+    /// Hypotheses that tuple factors mention, ascending (empty when there are too many to enumerate).
+    enumerated: Vec<usize>,
+    position_in_enumerated: Vec<usize>,
+    touches_enumerated: Vec<bool>,
+    exact: bool,
+    /// The other hypotheses of each class, `free[free_start[c]..free_start[c + 1]]`, ascending.
+    free_start: Vec<usize>,
+    free: Vec<usize>,
 }
 
-fn class_tables(energy: &JointEnergy) -> ClassTables {
-    let mut by_class = vec![Vec::new(); energy.label_count];
-    for (index, hypothesis) in energy.hypotheses.iter().enumerate() {
-        by_class[hypothesis.class as usize].push(index);
-    }
-    let mut counts_by_class = vec![Vec::new(); energy.label_count];
-    for (index, factor) in energy.count_factors.iter().enumerate() {
-        counts_by_class[factor.class as usize].push(index);
-    }
-    let mut absent_weight = vec![0.0; energy.label_count];
-    for factor in &energy.absent_factors {
-        absent_weight[factor.class as usize] += factor.weight;
-    }
-    ClassTables {
-        by_class,
-        counts_by_class,
-        absent_weight,
+impl CoupledTables {
+    pub(crate) fn new(energy: &JointEnergy) -> CoupledTables {
+        let mut by_class = vec![Vec::new(); energy.label_count];
+        for (index, hypothesis) in energy.hypotheses.iter().enumerate() {
+            by_class[hypothesis.class as usize].push(index);
+        }
+        let mut counts_by_class = vec![Vec::new(); energy.label_count];
+        for (index, factor) in energy.count_factors.iter().enumerate() {
+            counts_by_class[factor.class as usize].push(index);
+        }
+        let mut absent_weight = vec![0.0; energy.label_count];
+        for factor in &energy.absent_factors {
+            absent_weight[factor.class as usize] += factor.weight;
+        }
+        let mut enumerated: Vec<usize> = energy
+            .tuple_factors
+            .iter()
+            .flat_map(|factor| factor.tuples.iter().flatten().map(|&h| h as usize))
+            .collect();
+        enumerated.sort_unstable();
+        enumerated.dedup();
+        let exact = enumerated.len() <= MAX_ENUMERATED_HYPOTHESES;
+        if !exact {
+            enumerated.clear();
+        }
+        let mut position_in_enumerated = vec![usize::MAX; energy.hypotheses.len()];
+        for (position, &h) in enumerated.iter().enumerate() {
+            position_in_enumerated[h] = position;
+        }
+        let touches_enumerated = by_class
+            .iter()
+            .map(|members| {
+                members
+                    .iter()
+                    .any(|&h| position_in_enumerated[h] != usize::MAX)
+            })
+            .collect();
+        let mut free_start = vec![0];
+        let mut free = Vec::new();
+        for members in &by_class {
+            free.extend(
+                members
+                    .iter()
+                    .copied()
+                    .filter(|&h| position_in_enumerated[h] == usize::MAX),
+            );
+            free_start.push(free.len());
+        }
+        CoupledTables {
+            by_class,
+            counts_by_class,
+            absent_weight,
+            enumerated,
+            position_in_enumerated,
+            touches_enumerated,
+            exact,
+            free_start,
+            free,
+        }
     }
 }
 
@@ -74,7 +128,7 @@ fn class_tables(energy: &JointEnergy) -> ClassTables {
 #[allow(clippy::too_many_arguments)]
 fn best_for_class(
     inputs: &CoupledInputs,
-    tables: &ClassTables,
+    tables: &CoupledTables,
     class: usize,
     room: usize,
     forced_on: usize,
@@ -125,61 +179,28 @@ fn best_for_class(
 /// Minimises the coupled terms exactly (or, with too many enumerated hypotheses, a lower bound of them).
 pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
     let energy = inputs.energy;
-    let tables = class_tables(energy);
-    let mut enumerated: Vec<usize> = energy
-        .tuple_factors
-        .iter()
-        .flat_map(|factor| factor.tuples.iter().flatten().map(|&h| h as usize))
-        .collect();
-    enumerated.sort_unstable();
-    enumerated.dedup();
-    let exact = enumerated.len() <= MAX_ENUMERATED_HYPOTHESES;
-    if !exact {
-        enumerated.clear();
-    }
-    let mut position_in_enumerated = vec![usize::MAX; energy.hypotheses.len()];
-    for (position, &h) in enumerated.iter().enumerate() {
-        position_in_enumerated[h] = position;
-    }
-    let touches_enumerated: Vec<bool> = tables
-        .by_class
-        .iter()
-        .map(|members| {
-            members
-                .iter()
-                .any(|&h| position_in_enumerated[h] != usize::MAX)
-        })
-        .collect();
+    let tables = inputs.tables;
+    let enumerated = &tables.enumerated;
+    let position_in_enumerated = &tables.position_in_enumerated;
+    let touches_enumerated = &tables.touches_enumerated;
+    let exact = tables.exact;
     // Free hypotheses of each class, sorted by on-minus-off cost (ties by index, for determinism).
-    let free_sorted: Vec<Vec<usize>> = tables
-        .by_class
-        .iter()
-        .map(|members| {
-            let mut free: Vec<usize> = members
-                .iter()
-                .copied()
-                .filter(|&h| position_in_enumerated[h] == usize::MAX)
-                .collect();
-            free.sort_by(|&a, &b| {
-                let delta_a = inputs.cost_on[a] - inputs.cost_off[a];
-                let delta_b = inputs.cost_on[b] - inputs.cost_off[b];
-                delta_a.total_cmp(&delta_b).then(a.cmp(&b))
-            });
-            free
-        })
-        .collect();
-    let free_deltas: Vec<Vec<f64>> = free_sorted
-        .iter()
-        .map(|free| {
-            free.iter()
-                .map(|&h| inputs.cost_on[h] - inputs.cost_off[h])
-                .collect()
-        })
-        .collect();
-    let free_off: Vec<f64> = free_sorted
-        .iter()
-        .map(|free| free.iter().map(|&h| inputs.cost_off[h]).sum())
-        .collect();
+    let mut free_sorted = tables.free.clone();
+    let mut free_deltas = vec![0.0; free_sorted.len()];
+    let mut free_off = vec![0.0; energy.label_count];
+    let range = |class: usize| tables.free_start[class]..tables.free_start[class + 1];
+    for class in 0..energy.label_count {
+        let free = &mut free_sorted[range(class)];
+        free.sort_by(|&a, &b| {
+            let delta_a = inputs.cost_on[a] - inputs.cost_off[a];
+            let delta_b = inputs.cost_on[b] - inputs.cost_off[b];
+            delta_a.total_cmp(&delta_b).then(a.cmp(&b))
+        });
+        for (delta, &h) in free_deltas[range(class)].iter_mut().zip(free.iter()) {
+            *delta = inputs.cost_on[h] - inputs.cost_off[h];
+        }
+        free_off[class] = free.iter().map(|&h| inputs.cost_off[h]).sum();
+    }
 
     let mut best_value = f64::INFINITY;
     let mut best_room = 0usize;
@@ -192,12 +213,12 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
             if !touches_enumerated[class] {
                 fixed_part += best_for_class(
                     inputs,
-                    &tables,
+                    tables,
                     class,
                     room,
                     0,
                     0.0,
-                    &free_deltas[class],
+                    &free_deltas[range(class)],
                     free_off[class],
                 )
                 .cost;
@@ -230,12 +251,12 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
                 }
                 value += best_for_class(
                     inputs,
-                    &tables,
+                    tables,
                     class,
                     room,
                     forced_on,
                     forced_cost,
-                    &free_deltas[class],
+                    &free_deltas[range(class)],
                     free_off[class],
                 )
                 .cost;
@@ -268,15 +289,15 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
         }
         let choice = best_for_class(
             inputs,
-            &tables,
+            tables,
             class,
             best_room,
             forced_on,
             forced_cost,
-            &free_deltas[class],
+            &free_deltas[range(class)],
             free_off[class],
         );
-        for &h in free_sorted[class].iter().take(choice.switched_on) {
+        for &h in free_sorted[range(class)].iter().take(choice.switched_on) {
             hypotheses_on[h] = true;
         }
         presence[class] = choice.present;

@@ -8,6 +8,7 @@ pub mod expansion_reference;
 pub mod joint;
 mod joint_coupled;
 mod joint_labeller;
+mod joint_moves;
 pub mod labelling;
 pub mod maxflow;
 pub mod maxflow_reference;

@@ -1,0 +1,283 @@
+//! Local moves of the joint solver on a full state: pull every member of a hypothesis to its class, or away
+//! from it; on small problems, polish with node, edge, group and class-wide moves. A state is kept when it
+//! is better.
+//!
+//! Owns: `try_hypothesis_moves` and `MoveScorer`, which scores a move from the nodes it changes (their
+//! unaries and edges, the hypotheses over them, the classes they support) instead of the whole labelling;
+//! `polish`.
+//! Must not: keep a state it has not scored with `Context::complete` (the exact completion), nor know what
+//! the classes mean.
+
+use crate::solver::joint::{keep_better, Candidate, Context};
+use crate::solver::joint_coupled::{solve_coupled, CoupledInputs};
+
+/// A move is completed exactly only when its screened energy is this far below the best one; rounding in
+/// the screened sum is far smaller.
+const SCREEN_MARGIN: f64 = 1e-9;
+
+/// The parts of one labelling's energy that a move over a few nodes changes, with scratch for scoring moves.
+struct MoveScorer {
+    /// Hypotheses each fine node is a member of: `member_of[member_start[s]..member_start[s + 1]]`.
+    member_start: Vec<usize>,
+    member_of: Vec<u32>,
+    /// The segment part (unaries and smoothing) of the base labelling.
+    segment_energy: f64,
+    /// Members of each hypothesis whose base label is not its class.
+    disagreeing: Vec<i64>,
+    /// Fine segments of each label in the base labelling.
+    support: Vec<i64>,
+    cost_on: Vec<f64>,
+    cost_off: Vec<f64>,
+    adjust: Vec<f64>,
+    segment_support: Vec<bool>,
+    scratch_disagreeing: Vec<i64>,
+    scratch_support: Vec<i64>,
+}
+
+impl MoveScorer {
+    fn new(context: &Context, base: &[u16]) -> MoveScorer {
+        let energy = context.energy;
+        let mut count = vec![0usize; energy.fine_count + 1];
+        for hypothesis in &energy.hypotheses {
+            for &s in &hypothesis.members {
+                count[s as usize + 1] += 1;
+            }
+        }
+        for s in 0..energy.fine_count {
+            count[s + 1] += count[s];
+        }
+        let member_start = count.clone();
+        let mut member_of = vec![0u32; member_start[energy.fine_count]];
+        for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+            for &s in &hypothesis.members {
+                member_of[count[s as usize]] = h as u32;
+                count[s as usize] += 1;
+            }
+        }
+        let mut scorer = MoveScorer {
+            member_start,
+            member_of,
+            segment_energy: 0.0,
+            disagreeing: vec![0; energy.hypotheses.len()],
+            support: vec![0; energy.label_count],
+            cost_on: vec![0.0; energy.hypotheses.len()],
+            cost_off: vec![0.0; energy.hypotheses.len()],
+            adjust: vec![0.0; energy.label_count],
+            segment_support: vec![false; energy.label_count],
+            scratch_disagreeing: Vec::new(),
+            scratch_support: Vec::new(),
+        };
+        scorer.rebase(context, base);
+        scorer
+    }
+
+    /// Takes a new base labelling.
+    fn rebase(&mut self, context: &Context, base: &[u16]) {
+        let energy = context.energy;
+        self.segment_energy = context.segment_energy(base);
+        for (count, hypothesis) in self.disagreeing.iter_mut().zip(&energy.hypotheses) {
+            *count = hypothesis
+                .members
+                .iter()
+                .filter(|&&s| base[s as usize] != hypothesis.class)
+                .count() as i64;
+        }
+        self.support.fill(0);
+        for &label in base.iter().take(energy.fine_count) {
+            self.support[label as usize] += 1;
+        }
+    }
+
+    /// The energy `Context::complete` would give `labels`, which differ from `base` only at `changed` (fine
+    /// nodes, each once); `None` when the coupled step is not exact here.
+    fn score(
+        &mut self,
+        context: &Context,
+        base: &[u16],
+        labels: &[u16],
+        changed: &[u32],
+    ) -> Option<f64> {
+        let energy = context.energy;
+        let label_count = energy.label_count;
+        self.scratch_disagreeing.clone_from(&self.disagreeing);
+        self.scratch_support.clone_from(&self.support);
+        let mut delta = 0.0;
+        for &node in changed {
+            let node = node as usize;
+            let (old, new) = (base[node], labels[node]);
+            if old == new {
+                continue;
+            }
+            let row = node * label_count;
+            delta += context.unary[row + new as usize] - context.unary[row + old as usize];
+            for (other, weight) in context.tables.neighbours(node) {
+                // An edge between two changed nodes is counted once, from its larger end.
+                if labels[other] != base[other] && other < node {
+                    continue;
+                }
+                let before = (old != base[other]) as i32;
+                let after = (new != labels[other]) as i32;
+                delta += (after - before) as f64 * weight;
+            }
+            self.scratch_support[old as usize] -= 1;
+            self.scratch_support[new as usize] += 1;
+            for &h in &self.member_of[self.member_start[node]..self.member_start[node + 1]] {
+                let class = energy.hypotheses[h as usize].class;
+                self.scratch_disagreeing[h as usize] +=
+                    (new != class) as i64 - (old != class) as i64;
+            }
+        }
+        for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+            self.cost_on[h] = hypothesis.activation_cost
+                + hypothesis.agreement_weight * self.scratch_disagreeing[h] as f64;
+        }
+        for (flag, &count) in self.segment_support.iter_mut().zip(&self.scratch_support) {
+            *flag = count > 0;
+        }
+        let coupled = solve_coupled(&CoupledInputs {
+            energy,
+            tables: &context.coupled,
+            cost_on: &self.cost_on,
+            cost_off: &self.cost_off,
+            presence_adjust: &self.adjust,
+            segment_support: &self.segment_support,
+            relaxed_presence: false,
+        });
+        coupled
+            .exact
+            .then_some(self.segment_energy + delta + coupled.value)
+    }
+}
+
+/// Pulls every member of each hypothesis to its class in turn (and, first, each away from it to its best
+/// other label), and keeps any state that is better. Each move is screened by `MoveScorer`; only moves that
+/// screen better are completed exactly.
+pub(crate) fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
+    let label_count = context.energy.label_count;
+    let mut scorer = MoveScorer::new(context, &best.state.labels);
+    let mut labels = best.state.labels.clone();
+    let mut attempt = |labels: &[u16], changed: &[u32], best: &mut Candidate| {
+        if labels == best.state.labels.as_slice() {
+            return;
+        }
+        let screened = scorer.score(context, &best.state.labels, labels, changed);
+        if screened.is_some_and(|value| value >= best.energy - SCREEN_MARGIN) {
+            return;
+        }
+        let before = best.energy;
+        keep_better(best, context.complete(labels.to_vec()));
+        if best.energy != before {
+            scorer.rebase(context, &best.state.labels);
+        }
+    };
+    for hypothesis in &context.energy.hypotheses {
+        // Members away from the class: each to its best other label.
+        labels.clone_from(&best.state.labels);
+        for &s in &hypothesis.members {
+            let row = &context.unary[s as usize * label_count..(s as usize + 1) * label_count];
+            let mut pick = None;
+            for (label, &value) in row.iter().enumerate() {
+                if label != hypothesis.class as usize
+                    && pick.is_none_or(|(_, best): (usize, f64)| value < best)
+                {
+                    pick = Some((label, value));
+                }
+            }
+            if let Some((label, _)) = pick {
+                labels[s as usize] = label as u16;
+            }
+        }
+        attempt(&labels, &hypothesis.members, best);
+        labels.clone_from(&best.state.labels);
+        for &s in &hypothesis.members {
+            labels[s as usize] = hypothesis.class;
+        }
+        attempt(&labels, &hypothesis.members, best);
+    }
+}
+
+/// Moves scored with the true energy, until none improves (small problems only): one node to a label, both
+/// ends of an edge to a label, and a coarse region node with all its linked nodes to a label.
+pub(crate) fn polish(context: &Context, best: &mut Candidate) {
+    let energy = context.energy;
+    let mut groups: Vec<Vec<usize>> = (0..energy.node_count).map(|node| vec![node]).collect();
+    for &(a, b, _) in &energy.edges {
+        groups.push(vec![a as usize, b as usize]);
+    }
+    let mut linked: Vec<Vec<usize>> = vec![Vec::new(); energy.node_count];
+    for &(a, b, _) in &energy.edges {
+        if (b as usize) >= energy.fine_count {
+            linked[b as usize].push(a as usize);
+        }
+        if (a as usize) >= energy.fine_count {
+            linked[a as usize].push(b as usize);
+        }
+    }
+    for hypothesis in &energy.hypotheses {
+        groups.push(hypothesis.members.iter().map(|&s| s as usize).collect());
+    }
+    for (node, members) in linked.into_iter().enumerate() {
+        if node >= energy.fine_count && !members.is_empty() {
+            let mut group = members;
+            group.push(node);
+            groups.push(group);
+        }
+    }
+    for _ in 0..10 {
+        let mut improved = false;
+        // Class-wide moves: every node of class `from` to `to`, or each to its best other label.
+        let label_count = energy.label_count;
+        for from in 0..label_count as u16 {
+            if !best.state.labels.contains(&from) {
+                continue;
+            }
+            for to in 0..=label_count as u16 {
+                if to == from {
+                    continue;
+                }
+                let mut labels = best.state.labels.clone();
+                for (node, label) in labels.iter_mut().enumerate() {
+                    if *label != from {
+                        continue;
+                    }
+                    *label = if (to as usize) < label_count {
+                        to
+                    } else {
+                        let row = &context.unary[node * label_count..(node + 1) * label_count];
+                        let mut pick = (if from == 0 { 1 } else { 0 }, f64::INFINITY);
+                        for (candidate, &value) in row.iter().enumerate() {
+                            if candidate != from as usize && value < pick.1 {
+                                pick = (candidate, value);
+                            }
+                        }
+                        pick.0 as u16
+                    };
+                }
+                let candidate = context.complete(labels);
+                if candidate.energy < best.energy - 1e-12 {
+                    *best = candidate;
+                    improved = true;
+                }
+            }
+        }
+        for group in &groups {
+            for label in 0..energy.label_count as u16 {
+                if group.iter().all(|&node| best.state.labels[node] == label) {
+                    continue;
+                }
+                let mut labels = best.state.labels.clone();
+                for &node in group {
+                    labels[node] = label;
+                }
+                let candidate = context.complete(labels);
+                if candidate.energy < best.energy - 1e-12 {
+                    *best = candidate;
+                    improved = true;
+                }
+            }
+        }
+        if !improved {
+            break;
+        }
+    }
+}
