@@ -35,16 +35,26 @@ pub struct RunLengthMask {
     pub runs: Vec<u32>,
 }
 
+/// One flag per segment: is it among `members` (ids outside the scene are ignored).
+fn member_flags(scene: &Scene, members: &[SegmentId]) -> Vec<bool> {
+    let mut member = vec![false; scene.segment_count()];
+    for s in members {
+        if let Some(flag) = member.get_mut(s.index()) {
+            *flag = true;
+        }
+    }
+    member
+}
+
 impl RunLengthMask {
     /// Encodes the pixels whose segment is in `members`. Only the rows and columns of the members' bounding
     /// boxes (from the scene's segment statistics) are read; everything outside them is counted as outside.
     pub fn from_segments(scene: &Scene, members: &[SegmentId]) -> RunLengthMask {
         let (width, height) = (scene.segments.width, scene.segments.height);
-        let mut member = vec![false; scene.segment_count()];
+        let member = member_flags(scene, members);
         let mut bounds: Option<BoundingBox> = None;
         for s in members {
-            if let Some(flag) = member.get_mut(s.index()) {
-                *flag = true;
+            if s.index() < member.len() {
                 if let Some(stats) = scene.stats.get(s.index()) {
                     bounds = Some(match bounds {
                         Some(bounds) => bounds.union(&stats.bbox),
@@ -105,12 +115,7 @@ impl RunLengthMask {
 
     /// The reference encoding: every pixel of the image read in order (small inputs, tests).
     pub fn from_segments_by_full_scan(scene: &Scene, members: &[SegmentId]) -> RunLengthMask {
-        let mut member = vec![false; scene.segment_count()];
-        for s in members {
-            if let Some(flag) = member.get_mut(s.index()) {
-                *flag = true;
-            }
-        }
+        let member = member_flags(scene, members);
         let mut runs = Vec::new();
         let mut inside = false;
         let mut length = 0u32;

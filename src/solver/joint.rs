@@ -473,16 +473,18 @@ fn subgradient_step(
         let g = presence_g(entry.segment, entry.class);
         norm += g * g;
     }
-    for segment in (0..energy.fine_count as u32).filter(rising) {
-        let class = labels[segment as usize];
-        if multipliers
-            .presence
-            .binary_search_by_key(&(segment, class), |entry| (entry.segment, entry.class))
-            .is_err()
-        {
-            norm += 1.0;
-        }
-    }
+    // Segments whose label is not yet marked present and have no multiplier yet: each starts one.
+    let starting: Vec<(u32, u16)> = (0..energy.fine_count as u32)
+        .filter(rising)
+        .map(|segment| (segment, labels[segment as usize]))
+        .filter(|key| {
+            multipliers
+                .presence
+                .binary_search_by_key(key, |entry| (entry.segment, entry.class))
+                .is_err()
+        })
+        .collect();
+    norm += starting.len() as f64;
     if norm == 0.0 {
         return false;
     }
@@ -494,21 +496,14 @@ fn subgradient_step(
             multipliers.agreement[h][m] += step * g;
         }
     }
-    let mut added = Vec::new();
-    for segment in (0..energy.fine_count as u32).filter(rising) {
-        let class = labels[segment as usize];
-        if multipliers
-            .presence
-            .binary_search_by_key(&(segment, class), |entry| (entry.segment, entry.class))
-            .is_err()
-        {
-            added.push(PresenceMultiplier {
-                segment,
-                class,
-                value: step,
-            });
-        }
-    }
+    let added: Vec<PresenceMultiplier> = starting
+        .into_iter()
+        .map(|(segment, class)| PresenceMultiplier {
+            segment,
+            class,
+            value: step,
+        })
+        .collect();
     for entry in &mut multipliers.presence {
         entry.value = (entry.value + step * presence_g(entry.segment, entry.class)).max(0.0);
     }
