@@ -529,3 +529,54 @@ fn nan_unaries_and_empty_energies_are_typed_errors() {
         ))
     ));
 }
+
+#[test]
+fn a_superseded_constraint_is_never_named_as_a_cause() {
+    // Turn 1 says kitchen, turn 2 changes its mind: bathroom. The room change of turn 2 is moved by the
+    // room factor alone (no segment or hypothesis factor names it), so its causes come from the fallback:
+    // only constraints in force, never the retired "kitchen".
+    let kitchen = kitchen();
+    let room = |name: &str| kitchen.taxonomy.room_by_name(name).unwrap().id;
+    let say_kitchen = [constraint(
+        ConstraintKind::RoomType {
+            room: room("kitchen"),
+        },
+        0.95,
+        "this is the kitchen",
+    )];
+    let first = run(
+        &kitchen,
+        None,
+        &say_kitchen,
+        &GroundingContext::default(),
+        false,
+    );
+    assert_eq!(first.graph.room, room("kitchen"));
+    let say_bathroom = [constraint(
+        ConstraintKind::RoomType {
+            room: room("bathroom"),
+        },
+        0.95,
+        "no, the bathroom",
+    )];
+    let second = run(
+        &kitchen,
+        Some(&first),
+        &say_bathroom,
+        &GroundingContext::default(),
+        false,
+    );
+    assert_eq!(second.graph.room, room("bathroom"));
+    let room_change = second
+        .changes
+        .iter()
+        .find(|change| matches!(change.kind, ChangeKind::RoomChanged { .. }))
+        .expect("the room change is listed");
+    let causes: Vec<usize> = room_change.causes.iter().map(|c| c.constraint).collect();
+    assert_eq!(causes, vec![1], "{:?}", room_change.causes);
+    assert!(second
+        .changes
+        .iter()
+        .flat_map(|change| &change.causes)
+        .all(|cause| cause.constraint != 0 && cause.gloss != "this is the kitchen"));
+}

@@ -85,7 +85,7 @@ fn cause(labels: &ConstraintLabels, constraint: usize) -> Option<Cause> {
 /// Constraints whose factors mention a segment or a class.
 fn causes_for_segment(
     energy: &JointEnergy,
-    labels: &ConstraintLabels,
+    fallback: &[usize],
     segment: u32,
     classes: [u16; 2],
 ) -> Vec<usize> {
@@ -105,12 +105,12 @@ fn causes_for_segment(
             found.extend(factor.source);
         }
     }
-    finish(found, labels)
+    finish(found, fallback)
 }
 
 fn causes_for_hypothesis(
     energy: &JointEnergy,
-    labels: &ConstraintLabels,
+    fallback: &[usize],
     hypothesis: usize,
 ) -> Vec<usize> {
     let class = energy.hypotheses.get(hypothesis).map(|h| h.class);
@@ -135,26 +135,31 @@ fn causes_for_hypothesis(
             found.extend(factor.source);
         }
     }
-    finish(found, labels)
+    finish(found, fallback)
 }
 
-/// Sorted, unique; when no factor mentions the item, every constraint shares the cause (the joint re-solve
-/// moved it through smoothing or agreement).
-fn finish(mut found: Vec<usize>, labels: &ConstraintLabels) -> Vec<usize> {
+/// Sorted, unique; when no factor mentions the item, the `fallback` constraints share the cause (the joint
+/// re-solve moved it through smoothing or agreement): the caller passes the constraints of this turn that
+/// are in force, so a constraint that was superseded or never grounded is never named as a cause.
+fn finish(mut found: Vec<usize>, fallback: &[usize]) -> Vec<usize> {
     found.sort_unstable();
     found.dedup();
     if found.is_empty() {
-        found = (0..labels.len()).collect();
+        found = fallback.to_vec();
+        found.sort_unstable();
+        found.dedup();
     }
     found
 }
 
 /// The changes from `before` to `after`; hypotheses are matched by id, so the two lists may differ.
+/// `fallback` names the constraints credited with a change no factor mentions (see `finish`).
 #[allow(clippy::too_many_arguments)]
 pub fn list_changes(
     energy: &JointEnergy,
     taxonomy: &Taxonomy,
     labels: &ConstraintLabels,
+    fallback: &[usize],
     before: &JointState,
     before_hypotheses: &[Hypothesis],
     after: &JointState,
@@ -195,7 +200,7 @@ pub fn list_changes(
             _ => continue,
         };
         if from != to {
-            let causes = causes_for_segment(energy, labels, segment as u32, [from, to]);
+            let causes = causes_for_segment(energy, fallback, segment as u32, [from, to]);
             changes.push(make(
                 ChangeKind::SegmentRelabelled {
                     segment: SegmentId(segment as u32),
@@ -223,8 +228,8 @@ pub fn list_changes(
         if !now.iter().any(|&(other, _, _)| other == id) {
             let index = after_hypotheses.iter().position(|h| h.id == id);
             let causes = index
-                .map(|i| causes_for_hypothesis(energy, labels, i))
-                .unwrap_or_else(|| finish(Vec::new(), labels));
+                .map(|i| causes_for_hypothesis(energy, fallback, i))
+                .unwrap_or_else(|| finish(Vec::new(), fallback));
             changes.push(make(
                 ChangeKind::ObjectRemoved {
                     hypothesis: id,
@@ -236,7 +241,7 @@ pub fn list_changes(
     }
     for &(id, class, index) in &now {
         if !was.iter().any(|&(other, _, _)| other == id) {
-            let causes = causes_for_hypothesis(energy, labels, index);
+            let causes = causes_for_hypothesis(energy, fallback, index);
             changes.push(make(
                 ChangeKind::ObjectAdded {
                     hypothesis: id,
@@ -252,7 +257,7 @@ pub fn list_changes(
                 from: RoomId(before.room),
                 to: RoomId(after.room),
             },
-            finish(Vec::new(), labels),
+            finish(Vec::new(), fallback),
         ));
     }
     changes

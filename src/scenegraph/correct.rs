@@ -182,6 +182,18 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     // A later statement about the same thing replaces the earlier one ("no, it's a towel").
     retire_superseded(&mut in_force, &newer);
     in_force.extend(newer);
+    // A change no factor mentions is credited to this turn's constraints in force, else to every one in force.
+    let mut fallback: Vec<usize> = in_force
+        .iter()
+        .map(|grounded| grounded.constraint)
+        .filter(|&constraint| constraint >= offset)
+        .collect();
+    if fallback.is_empty() {
+        fallback = in_force
+            .iter()
+            .map(|grounded| grounded.constraint)
+            .collect();
+    }
 
     let built = build_energy(&energy_inputs(request, &hypotheses, &in_force))?;
     let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
@@ -189,6 +201,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         &built.energy,
         taxonomy,
         &labels,
+        &fallback,
         &before_state,
         &before_hypotheses,
         &solution.state,
@@ -261,6 +274,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             &energy,
             taxonomy,
             &labels,
+            &fallback,
             &before_state,
             &before_hypotheses,
             &solution.state,
