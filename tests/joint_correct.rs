@@ -14,7 +14,7 @@ use sayso::grounding::{GroundingContext, GroundingIssue, KnownObject};
 use sayso::hypotheses::ProposalOptions;
 use sayso::ids::{ClassId, ObjectId};
 use sayso::language::constraint::{
-    Constraint, ConstraintKind, Count, Deixis, Focus, Referent, Span,
+    Constraint, ConstraintKind, Count, Deixis, Focus, ImageRegion, Referent, Span,
 };
 use sayso::scene::Scene;
 use sayso::scenegraph::changes::{ChangeKind, ChangeStatus};
@@ -579,4 +579,93 @@ fn a_superseded_constraint_is_never_named_as_a_cause() {
         .iter()
         .flat_map(|change| &change.causes)
         .all(|cause| cause.constraint != 0 && cause.gloss != "this is the kitchen"));
+}
+
+#[test]
+fn a_side_picks_among_things_and_is_read_relatively_when_nothing_lies_there() {
+    // Two mugs: column 2 (left third) and column 6 (right third); one plant, at column 7 (right third).
+    let kitchen = kitchen();
+    let (mug, bowl, plant, vase) = (
+        class(&kitchen.taxonomy, "mug"),
+        class(&kitchen.taxonomy, "bowl"),
+        class(&kitchen.taxonomy, "plant"),
+        class(&kitchen.taxonomy, "vase"),
+    );
+    let two_mugs = [constraint(
+        ConstraintKind::Count {
+            class: ClassId(mug),
+            count: Count::Exactly(2),
+        },
+        0.95,
+        "two mugs",
+    )];
+    let first = run(
+        &kitchen,
+        None,
+        &two_mugs,
+        &GroundingContext::default(),
+        false,
+    );
+    assert_eq!(objects_of(&first, mug), 2);
+    let relabel_at = |from: u16, to: u16, region: ImageRegion, gloss: &str| {
+        [constraint(
+            ConstraintKind::Relabel {
+                target: Referent {
+                    region: Some(region),
+                    ..Referent::class(ClassId(from), Span::new(0, 3))
+                },
+                from: Some(ClassId(from)),
+                to: Some(ClassId(to)),
+            },
+            0.95,
+            gloss,
+        )]
+    };
+    let (left_mug, right_mug) = (2 * COLUMNS as usize + 2, 2 * COLUMNS as usize + 6);
+    let right = run(
+        &kitchen,
+        Some(&first),
+        &relabel_at(
+            mug,
+            bowl,
+            ImageRegion::Right,
+            "the mug on the right is a bowl",
+        ),
+        &GroundingContext::default(),
+        false,
+    );
+    assert!(right.questions.is_empty(), "{:?}", right.questions);
+    assert_eq!(right.graph.segment_labels[right_mug].0, bowl);
+    assert_eq!(right.graph.segment_labels[left_mug].0, mug);
+    let left = run(
+        &kitchen,
+        Some(&first),
+        &relabel_at(
+            mug,
+            bowl,
+            ImageRegion::Left,
+            "the mug on the left is a bowl",
+        ),
+        &GroundingContext::default(),
+        false,
+    );
+    assert!(left.questions.is_empty(), "{:?}", left.questions);
+    assert_eq!(left.graph.segment_labels[left_mug].0, bowl);
+    assert_eq!(left.graph.segment_labels[right_mug].0, mug);
+    // No plant lies in the left third: "the plant on the left" is the leftmost plant, the only one.
+    let plant_segment = 2 * COLUMNS as usize + 7;
+    let relative = run(
+        &kitchen,
+        Some(&first),
+        &relabel_at(
+            plant,
+            vase,
+            ImageRegion::Left,
+            "the plant on the left is a vase",
+        ),
+        &GroundingContext::default(),
+        false,
+    );
+    assert!(relative.issues.is_empty(), "{:?}", relative.issues);
+    assert_eq!(relative.graph.segment_labels[plant_segment].0, vase);
 }

@@ -413,14 +413,7 @@ impl Resolver<'_, '_> {
                 .collect();
         }
         if let Some(region) = referent.region {
-            candidates.retain(|&h| {
-                in_region(
-                    &view.footprint(h),
-                    region,
-                    view.scene.width(),
-                    view.scene.height(),
-                )
-            });
+            candidates = filter_region(view, candidates, region, need, referent.plural);
         }
         for attribute in &referent.attributes {
             candidates = self.filter_attribute(candidates, *attribute);
@@ -489,6 +482,79 @@ impl Resolver<'_, '_> {
                     .collect()
             }
         }
+    }
+}
+
+/// Narrows candidates by a place in the picture. "On the left" first keeps the candidates whose centre is in
+/// the left third (the reading `region_words` uses when it asks which one). A side (left, right, top,
+/// bottom, front, back) is also read relatively, as people use it to pick among things: "the cabinet on
+/// the right" is the rightmost cabinet even when no cabinet lies in the right third, and of several in the
+/// right third the rightmost is meant when one object is needed. Relatively read, a plural keeps the half
+/// of the candidates' spread toward the side. Centre and corner are only read absolutely.
+fn filter_region(
+    view: &SceneView,
+    candidates: Vec<usize>,
+    region: ImageRegion,
+    need: Need,
+    plural: bool,
+) -> Vec<usize> {
+    let (width, height) = (view.scene.width(), view.scene.height());
+    let inside: Vec<usize> = candidates
+        .iter()
+        .copied()
+        .filter(|&h| in_region(&view.footprint(h), region, width, height))
+        .collect();
+    // How far toward the side a footprint lies (larger is further).
+    let toward = |h: usize| -> f32 {
+        let footprint = view.footprint(h);
+        let (x, y) = footprint.centroid;
+        match (region, footprint.depth_mm) {
+            (ImageRegion::Left, _) => -x,
+            (ImageRegion::Right, _) => x,
+            (ImageRegion::Top, _) => -y,
+            (ImageRegion::Bottom, _) => y,
+            (ImageRegion::Back, Some(depth)) => depth,
+            (ImageRegion::Back, None) => -y,
+            (ImageRegion::Front, Some(depth)) => -depth,
+            (ImageRegion::Front, None) => y,
+            (ImageRegion::Centre | ImageRegion::Corner, _) => 0.0,
+        }
+    };
+    if matches!(region, ImageRegion::Centre | ImageRegion::Corner) {
+        return inside;
+    }
+    let relative = inside.is_empty();
+    let pool = if relative { candidates } else { inside };
+    let one = need == Need::One && !plural;
+    if pool.is_empty() || !(relative || (one && distinct_objects(view, &pool) > 1)) {
+        return pool;
+    }
+    let keys: Vec<f32> = pool.iter().map(|&h| toward(h)).collect();
+    let (low, high) = keys
+        .iter()
+        .fold((f32::INFINITY, f32::NEG_INFINITY), |(lo, hi), &k| {
+            (lo.min(k), hi.max(k))
+        });
+    if one {
+        // The furthest object toward the side (lowest index on a tie), with every hypothesis over its members.
+        let mut best = 0usize;
+        for (index, &key) in keys.iter().enumerate() {
+            if key > keys[best] {
+                best = index;
+            }
+        }
+        let members = &view.hypotheses[pool[best]].members;
+        pool.iter()
+            .copied()
+            .filter(|&h| &view.hypotheses[h].members == members)
+            .collect()
+    } else {
+        let middle = 0.5 * (low + high);
+        pool.iter()
+            .zip(&keys)
+            .filter(|(_, &key)| key >= middle)
+            .map(|(&h, _)| h)
+            .collect()
     }
 }
 
