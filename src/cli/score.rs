@@ -9,6 +9,10 @@
 //! `obj:region` is the same measure over 4-connected regions of the step's label map (adjacent objects of
 //! one class merge). See `sayso::evaluation` for the matching rule.
 //!
+//! The mean gains compare the last note's row with step 0. For objects a second comparison is printed:
+//! the corrected graph's objects against the classifier alone, whose only objects are its label map's
+//! regions (step 0's `obj:region`).
+//!
 //! Owns: the flags and the table layout. Must not: compute scores or run stages itself; that is
 //! `sayso::evaluation` and `sayso::pipeline`.
 
@@ -89,6 +93,9 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
         "scene", "step", "pixel", "mIoU", "obj:graph", "obj:region"
     );
     let mut gains = Vec::new();
+    // The scene graph's objects after the notes against the classifier alone, whose objects are its label
+    // map's regions (it proposes no objects of its own).
+    let mut over_classifier = Vec::new();
     let mut worse = Vec::new();
     let mut worse_region = Vec::new();
     for name in &names {
@@ -131,6 +138,7 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
             println!("{:<28} {:<4} {}   {note}", "", index + 1, last.cells());
         }
         let gain = last.minus(&before);
+        over_classifier.push(last.object_graph - before.object_region);
         if gain.pixel < 0.0 || gain.mean_iou < 0.0 || gain.object_graph < 0.0 {
             worse.push(name.clone());
         }
@@ -148,6 +156,17 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
         mean(|g| g.mean_iou),
         mean(|g| g.object_graph),
         mean(|g| g.object_region)
+    );
+    let classifier_gain = 100.0 * over_classifier.iter().sum::<f64>() / count;
+    let below: Vec<&String> = names
+        .iter()
+        .zip(&over_classifier)
+        .filter(|(_, &gain)| gain < 0.0)
+        .map(|(name, _)| name)
+        .collect();
+    println!(
+        "object (graph) after the notes against the classifier alone (its label map's regions): {classifier_gain:+.1} points; below it in {} scene(s)",
+        below.len()
     );
     if worse.is_empty() {
         println!("no scene got worse on pixel, mIoU or object (graph)");
