@@ -1,5 +1,5 @@
 //! Scene-graph objects formed from final labels (`sayso::scenegraph::objects`): connected groups of equal
-//! labels, split by accepted hypotheses only where a count says adjacent objects merged.
+//! labels, split along colour edges (geodesic k-medoids) only where a count says adjacent objects merged.
 
 mod common;
 
@@ -7,20 +7,27 @@ use common::grid_scene::{grid_scene, Cell};
 use sayso::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
 use sayso::ids::{ClassId, SegmentId};
 use sayso::scene::{BoundingBox, Scene};
-use sayso::scenegraph::objects::form_objects;
+use sayso::scenegraph::objects::{form_objects, MIN_SHOWN_SEGMENTS};
 
 const BOOK: u16 = 26;
 const WALL: u16 = 1;
 
-/// A 5x1 strip of cells: book, book, book, wall, book.
+/// A 10x1 strip of cells labelled by `labels`, every cell the same colour.
 fn strip() -> Scene {
-    let cells: Vec<Cell> = (0..5)
+    let cells: Vec<Cell> = (0..10)
         .map(|_| Cell {
             colour: [120, 90, 60],
             scores: vec![(BOOK, 0.9)],
         })
         .collect();
-    grid_scene("juniper-lane-bookshelf", 5, 1, 4, &cells, &[0, 0, 0, 1, 2])
+    grid_scene(
+        "juniper-lane-bookshelf",
+        10,
+        1,
+        4,
+        &cells,
+        &[0, 0, 0, 0, 1, 2, 2, 2, 2, 3],
+    )
 }
 
 fn hypothesis(class: u16, members: &[u32]) -> Hypothesis {
@@ -48,17 +55,21 @@ fn members_of(objects: &[sayso::scenegraph::objects::FormedObject], class: u16) 
 #[test]
 fn connected_labels_are_one_object_unless_a_count_asks_for_more() {
     let scene = strip();
-    let labels = [BOOK, BOOK, BOOK, WALL, BOOK];
+    // Two shelves of four books, each run closed by a wall cell.
+    let labels = [BOOK, BOOK, BOOK, BOOK, WALL, BOOK, BOOK, BOOK, BOOK, WALL];
     let hypotheses = [
-        hypothesis(BOOK, &[0]),
-        hypothesis(BOOK, &[1, 2]),
-        hypothesis(BOOK, &[4]),
+        hypothesis(BOOK, &[0, 1, 2, 3]),
+        hypothesis(BOOK, &[5, 6]),
+        hypothesis(BOOK, &[7, 8]),
     ];
     let accepted = [true, true, false];
-    // No count: the three touching book cells are one object, the lone cell another, the wall a third.
+    // No count: each run of touching book cells is one object; the walls are objects of their own.
     let plain = form_objects(&scene, &labels, &hypotheses, &accepted, &[]);
-    assert_eq!(members_of(&plain, BOOK), vec![vec![0, 1, 2], vec![4]]);
-    assert_eq!(members_of(&plain, WALL), vec![vec![3]]);
+    assert_eq!(
+        members_of(&plain, BOOK),
+        vec![vec![0, 1, 2, 3], vec![5, 6, 7, 8]]
+    );
+    assert_eq!(members_of(&plain, WALL), vec![vec![4], vec![9]]);
     // "There are two books": the labels already show two, nothing is split.
     let two = form_objects(
         &scene,
@@ -67,8 +78,9 @@ fn connected_labels_are_one_object_unless_a_count_asks_for_more() {
         &accepted,
         &[(ClassId(BOOK), 2)],
     );
-    assert_eq!(members_of(&two, BOOK), vec![vec![0, 1, 2], vec![4]]);
-    // "There are three books": one short, so the merged group is split by its two accepted hypotheses.
+    assert_eq!(members_of(&two, BOOK), members_of(&plain, BOOK));
+    // "There are three books": one short, so the first of the two equal runs is cut in two (equal cells
+    // and contrast: the medoids settle on the two halves).
     let three = form_objects(
         &scene,
         &labels,
@@ -76,47 +88,55 @@ fn connected_labels_are_one_object_unless_a_count_asks_for_more() {
         &accepted,
         &[(ClassId(BOOK), 3)],
     );
-    assert_eq!(members_of(&three, BOOK), vec![vec![0], vec![1, 2], vec![4]]);
-    // Objects are named after the hypothesis they share most with; the unaccepted one still names the lone
-    // cell, and the wall (no hypothesis) gets an id from its class and members.
-    let named: Vec<_> = three
+    assert_eq!(
+        members_of(&three, BOOK),
+        vec![vec![0, 1], vec![2, 3], vec![5, 6, 7, 8]]
+    );
+    // Objects are named after the hypothesis they share most with (accepted first), one hypothesis per
+    // object; a wall (no hypothesis) gets an id from its class and members.
+    let named: Vec<_> = plain
         .iter()
         .map(|o| (o.members.clone(), o.hypothesis))
         .collect();
-    assert!(named.contains(&(vec![SegmentId(0)], hypotheses[0].id)));
-    assert!(named.contains(&(vec![SegmentId(1), SegmentId(2)], hypotheses[1].id)));
-    assert!(named.contains(&(vec![SegmentId(4)], hypotheses[2].id)));
+    let run = |range: std::ops::Range<u32>| range.map(SegmentId).collect::<Vec<_>>();
+    assert!(named.contains(&(run(0..4), hypotheses[0].id)));
+    assert!(named.contains(&(run(5..9), hypotheses[1].id)));
     assert!(named.contains(&(
-        vec![SegmentId(3)],
-        hypothesis_id(ClassId(WALL), &[SegmentId(3)])
+        vec![SegmentId(4)],
+        hypothesis_id(ClassId(WALL), &[SegmentId(4)])
     )));
 }
 
 #[test]
-fn a_group_with_one_accepted_hypothesis_is_not_split() {
+fn a_stray_fragment_is_not_an_object_the_count_already_sees() {
     let scene = strip();
-    let labels = [BOOK, BOOK, BOOK, WALL, WALL];
-    let hypotheses = [hypothesis(BOOK, &[0, 1]), hypothesis(BOOK, &[2])];
-    // Only one accepted hypothesis in the group: the count cannot be met by splitting, so nothing is cut.
-    let objects = form_objects(
-        &scene,
-        &labels,
-        &hypotheses,
-        &[true, false],
-        &[(ClassId(BOOK), 2)],
-    );
-    assert_eq!(members_of(&objects, BOOK), vec![vec![0, 1, 2]]);
-    assert_eq!(members_of(&objects, WALL), vec![vec![3, 4]]);
+    // Five book cells in a run and a lone book cell (a fragment of fewer than MIN_SHOWN_SEGMENTS).
+    let labels = [BOOK, BOOK, BOOK, BOOK, BOOK, WALL, BOOK, WALL, WALL, WALL];
+    const { assert!(MIN_SHOWN_SEGMENTS > 1) };
+    let objects = form_objects(&scene, &labels, &[], &[], &[(ClassId(BOOK), 2)]);
+    let books = members_of(&objects, BOOK);
+    // The run is cut in two; the fragment stays an object of its own.
+    assert_eq!(books.len(), 3, "{books:?}");
+    assert!(books.contains(&vec![6]));
+    let run: Vec<u32> = books
+        .iter()
+        .filter(|b| b != &&vec![6])
+        .flatten()
+        .copied()
+        .collect();
+    assert_eq!(run.len(), 5);
 }
 
 #[test]
 fn touching_objects_part_along_the_colour_boundary() {
-    // Book cells 0..=4 all connected and labelled book: cells 0-1 are a red book, cells 2-4 a blue one.
-    // Accepted hypotheses hold only cell 0 and cell 4; the other cells join across the lowest contrast, so
-    // cell 2 (one hop from either seed's part) goes with the blue book, not with the lower-index red one.
+    // Book cells 0..=7 all connected and labelled book: cells 0-2 are a red book, cells 3-7 a blue one.
+    // The cut follows the colour edge, not the middle of the run.
     let colours = [
         [170, 30, 30],
         [170, 30, 30],
+        [170, 30, 30],
+        [30, 40, 170],
+        [30, 40, 170],
         [30, 40, 170],
         [30, 40, 170],
         [30, 40, 170],
@@ -128,15 +148,18 @@ fn touching_objects_part_along_the_colour_boundary() {
             scores: vec![(BOOK, 0.9)],
         })
         .collect();
-    let scene = grid_scene("juniper-lane-two-books", 5, 1, 4, &cells, &[0, 0, 1, 1, 1]);
-    let labels = [BOOK; 5];
-    let hypotheses = [hypothesis(BOOK, &[0]), hypothesis(BOOK, &[4])];
-    let objects = form_objects(
-        &scene,
-        &labels,
-        &hypotheses,
-        &[true, true],
-        &[(ClassId(BOOK), 2)],
+    let scene = grid_scene(
+        "juniper-lane-two-books",
+        8,
+        1,
+        4,
+        &cells,
+        &[0, 0, 0, 1, 1, 1, 1, 1],
     );
-    assert_eq!(members_of(&objects, BOOK), vec![vec![0, 1], vec![2, 3, 4]]);
+    let labels = [BOOK; 8];
+    let objects = form_objects(&scene, &labels, &[], &[], &[(ClassId(BOOK), 2)]);
+    assert_eq!(
+        members_of(&objects, BOOK),
+        vec![vec![0, 1, 2], vec![3, 4, 5, 6, 7]]
+    );
 }

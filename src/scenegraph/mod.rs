@@ -9,6 +9,7 @@
 pub mod changes;
 pub mod correct;
 pub mod objects;
+pub mod split;
 pub mod supersede;
 
 use serde::{Deserialize, Serialize};
