@@ -9,8 +9,9 @@
 //! # The search
 //!
 //! Objective (higher is better): over the tuning scenes, the mean of mean IoU and graph-based object-level
-//! accuracy (`crate::evaluation`), averaged over three states of each scene — solved with no note, after a
-//! room-type note, and after a count note as well. The notes are written from the render's ground truth
+//! accuracy (`crate::evaluation`), less `SHORTFALL_WEIGHT` times whatever pixel accuracy and mean IoU the
+//! state lost against the classifier alone, averaged over three states of each scene — solved with no note,
+//! after a room-type note, and after a count note as well. The notes are written from the render's ground truth
 //! ("this is the kitchen", "there are three bottles": the countable class with the most objects, 2 to 6),
 //! so the weights are chosen for following notes as well as for the picture alone.
 //!
@@ -26,7 +27,9 @@ use crate::demo::DemoScene;
 use crate::energy::build::EnergyWeights;
 use crate::energy::statistics::RoomClassCounts;
 use crate::energy::EnergyError;
-use crate::evaluation::{object_accuracy, objects_from_graph, score_labels, EvaluationError};
+use crate::evaluation::{
+    object_accuracy, objects_from_graph, score_labels, EvaluationError, SceneScore,
+};
 use crate::ids::ClassId;
 use crate::pipeline::{
     believe_without_notes, correct_turn, prepare_loaded, CorrectionSettings, PipelineError,
@@ -40,6 +43,11 @@ use crate::unaries::classifier::Classifier;
 
 /// Multipliers tried for each weight in a pass.
 pub const FACTORS: [f64; 4] = [0.25, 0.5, 2.0, 4.0];
+
+/// Each unit (a fraction) of pixel accuracy or of mean IoU that a state loses against the classifier alone
+/// is taken off its score times this: the joint solve should never leave the picture worse than the robot's
+/// own classifier (before the penalty, the tuned weights smoothed whole ceilings into walls on some scenes).
+pub const SHORTFALL_WEIGHT: f64 = 1.0;
 
 /// A new value must beat the current objective by this much (objective units: a fraction) to be kept.
 pub const MIN_GAIN: f64 = 1e-4;
@@ -207,11 +215,14 @@ fn state_score(
     prepared: &PreparedScene,
     graph: &SceneGraph,
     class_count: usize,
+    classifier: &SceneScore,
 ) -> Result<f64, TuningError> {
     let labels = label_map(&prepared.scene, &graph.segment_labels);
     let score = score_labels(&prepared.demo, &labels.values, class_count)?;
     let objects = object_accuracy(&prepared.demo, &objects_from_graph(&prepared.scene, graph));
-    Ok(0.5 * (score.mean_iou + objects))
+    let shortfall = (classifier.pixel_accuracy - score.pixel_accuracy).max(0.0)
+        + (classifier.mean_iou - score.mean_iou).max(0.0);
+    Ok(0.5 * (score.mean_iou + objects) - SHORTFALL_WEIGHT * shortfall)
 }
 
 /// The objective of one setting (see the module doc): higher is better.
@@ -224,8 +235,10 @@ pub fn objective(
     let mut states = 0usize;
     for tuning in scenes {
         let prepared = &tuning.prepared;
+        let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels);
+        let classifier = score_labels(&prepared.demo, &classifier_map.values, class_count)?;
         let baseline = believe_without_notes(prepared, settings)?;
-        total += state_score(prepared, &baseline.graph, class_count)?;
+        total += state_score(prepared, &baseline.graph, class_count, &classifier)?;
         states += 1;
         let inputs = TurnInputs {
             scene: &prepared.scene,
@@ -246,7 +259,7 @@ pub fn objective(
                 false,
                 settings,
             )?;
-            total += state_score(prepared, &correction.graph, class_count)?;
+            total += state_score(prepared, &correction.graph, class_count, &classifier)?;
             states += 1;
             previous = Some(correction);
         }

@@ -22,13 +22,13 @@ pub struct TuneArgs {
     #[arg(long, default_value_t = 100_000)]
     pub stats_seed: u64,
     /// Number of renders counted (room types in turn).
-    #[arg(long, default_value_t = 140)]
+    #[arg(long, default_value_t = 280)]
     pub stats_count: u64,
     /// First seed of the renders the weights are tuned on (disjoint from the classifier's training seeds).
     #[arg(long, default_value_t = 200_000)]
     pub tune_seed: u64,
     /// Number of tuning renders (room types in turn).
-    #[arg(long, default_value_t = 21)]
+    #[arg(long, default_value_t = 42)]
     pub tune_count: u64,
     /// Passes of the coordinate search (0: only count statistics; the weights file is left alone).
     #[arg(long, default_value_t = 2)]
@@ -100,7 +100,7 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
         source: format!(
             "tuned by `sayso tune{}` (coordinate search over {}, {} pass(es) at most, from the {} weights) on {} \
              training renders, seeds {}..{} (end exclusive), with the prior counted over seeds {}..{}; objective \
-             (mean of mIoU and graph object accuracy, no note / room note / count note) {:.4} -> {:.4}",
+             (mean of mIoU and graph object accuracy less pixel accuracy and mIoU lost against the classifier alone, no note / room note / count note) {:.4} -> {:.4}",
             if args.from_hand_set { " --from-hand-set" } else { "" },
             TUNED_WEIGHTS.join(", "),
             args.passes,

@@ -12,7 +12,9 @@ use super::{
     AbsentFactor, CountFactor, EnergyError, HypothesisTerm, JointEnergy, TupleFactor, UnaryFactor,
     ENERGY_SCHEMA, HARD_WEIGHT,
 };
-use crate::grounding::{footprint_of, holds, in_region, GroundedConstraint, GroundedKind, Target};
+use crate::grounding::{
+    footprint_of, in_region, relation_holds, GroundedConstraint, GroundedKind, Target,
+};
 use crate::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
 use crate::ids::{ClassId, SegmentId};
 use crate::language::constraint::{Attribute, Count, SizeTerm};
@@ -363,17 +365,22 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
                         if s == l {
                             continue;
                         }
-                        let subject_fp = footprint_of(scene, &hypotheses[s].members);
-                        let mut marks = vec![footprint_of(scene, &hypotheses[l].members)];
+                        let subject_members = hypotheses[s].members.as_slice();
+                        let first_members = hypotheses[l].members.as_slice();
                         let ok = match second {
                             Some(second) => second.hypotheses.iter().any(|&m| {
-                                m != s && m != l && {
-                                    marks.truncate(1);
-                                    marks.push(footprint_of(scene, &hypotheses[m].members));
-                                    holds(*relation, &subject_fp, &marks)
-                                }
+                                m != s
+                                    && m != l
+                                    && relation_holds(
+                                        scene,
+                                        *relation,
+                                        subject_members,
+                                        &[first_members, hypotheses[m].members.as_slice()],
+                                    )
                             }),
-                            None => holds(*relation, &subject_fp, &marks),
+                            None => {
+                                relation_holds(scene, *relation, subject_members, &[first_members])
+                            }
                         };
                         if ok {
                             holding.push(vec![s as u32, l as u32]);

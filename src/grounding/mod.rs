@@ -16,6 +16,7 @@ mod questions;
 
 use serde::{Deserialize, Serialize};
 
+use crate::geometry::{Rect, RelationThresholds};
 use crate::hypotheses::Hypothesis;
 use crate::ids::{ClassId, HypothesisId, ObjectId, RoomId, SegmentId};
 use crate::language::constraint::{
@@ -206,6 +207,73 @@ pub fn footprint_of(scene: &Scene, members: &[SegmentId]) -> Footprint {
         area: area.min(u32::MAX as u64) as u32,
         depth_mm: (depth_weight > 0.0).then(|| (depth_sum / depth_weight) as f32),
     }
+}
+
+/// Whether the segments of `subject` stand in `relation` to the landmarks' segments: `holds` on their
+/// footprints, except for "next to" when one box encloses the other (a wall, floor or rug behind or around
+/// a thing: "the chair next to the wall"). Boxes cannot tell there whether the two touch, so the masks
+/// decide: next to when a segment of one shares a boundary with a segment of the other and, with depth for
+/// both, the two segments' depths differ by at most the shared `near_depth_mm` (a chair a metre in front
+/// of a wall touches it in the picture only).
+pub fn relation_holds(
+    scene: &Scene,
+    relation: Relation,
+    subject: &[SegmentId],
+    landmarks: &[&[SegmentId]],
+) -> bool {
+    let subject_footprint = footprint_of(scene, subject);
+    let landmark_footprints: Vec<Footprint> = landmarks
+        .iter()
+        .map(|members| footprint_of(scene, members))
+        .collect();
+    if holds(relation, &subject_footprint, &landmark_footprints) {
+        return true;
+    }
+    match (relation, landmarks, landmark_footprints.first()) {
+        (Relation::NextTo, [landmark], Some(landmark_footprint)) => {
+            enclosed(&subject_footprint, landmark_footprint) && touching(scene, subject, landmark)
+        }
+        _ => false,
+    }
+}
+
+/// One box lies (almost) wholly inside the other, by the shared `inside_fraction`.
+fn enclosed(a: &Footprint, b: &Footprint) -> bool {
+    let (a, b) = (
+        Rect::from_bounding_box(&a.bbox),
+        Rect::from_bounding_box(&b.bbox),
+    );
+    let fraction = RelationThresholds::default().inside_fraction;
+    a.fraction_inside(&b) >= fraction || b.fraction_inside(&a) >= fraction
+}
+
+/// Some segment of `a` is adjacent to some segment of `b` at about the same depth, and the two share no
+/// segment.
+fn touching(scene: &Scene, a: &[SegmentId], b: &[SegmentId]) -> bool {
+    let b_set: std::collections::HashSet<SegmentId> = b.iter().copied().collect();
+    if a.iter().any(|segment| b_set.contains(segment)) {
+        return false;
+    }
+    let near_depth_mm = RelationThresholds::default().near_depth_mm;
+    let depth = |segment: SegmentId| {
+        scene
+            .stats
+            .get(segment.index())
+            .and_then(|stats| stats.mean_depth_mm)
+            .filter(|depth| depth.is_finite() && *depth > 0.0)
+    };
+    a.iter().any(|&segment| {
+        let node = petgraph::graph::NodeIndex::new(segment.index());
+        segment.index() < scene.adjacency.node_count()
+            && scene.adjacency.neighbors(node).any(|neighbour| {
+                let other = scene.adjacency[neighbour];
+                b_set.contains(&other)
+                    && match (depth(segment), depth(other)) {
+                        (Some(x), Some(y)) => (f64::from(x) - f64::from(y)).abs() <= near_depth_mm,
+                        _ => true,
+                    }
+            })
+    })
 }
 
 /// Mean CIELAB colour of a set of segments, area-weighted.
@@ -429,9 +497,16 @@ impl Resolver<'_, '_> {
             candidates.retain(|&h| {
                 let satisfied = landmark_choices(&landmark_sets).iter().any(|choice| {
                     !choice.contains(&h) && {
-                        let landmarks: Vec<Footprint> =
-                            choice.iter().map(|&l| view.footprint(l)).collect();
-                        holds(clause.relation, &view.footprint(h), &landmarks)
+                        let landmarks: Vec<&[SegmentId]> = choice
+                            .iter()
+                            .map(|&l| view.hypotheses[l].members.as_slice())
+                            .collect();
+                        relation_holds(
+                            view.scene,
+                            clause.relation,
+                            &view.hypotheses[h].members,
+                            &landmarks,
+                        )
                     }
                 });
                 satisfied != clause.negated

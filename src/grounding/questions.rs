@@ -9,7 +9,9 @@ use serde::{Deserialize, Serialize};
 use super::predicates::{holds, relation_words};
 use super::{in_region, SceneView};
 use crate::ids::HypothesisId;
-use crate::language::constraint::{ImageRegion, Referent, Relation};
+use crate::language::constraint::{
+    Attribute, ColourTerm, ImageRegion, Referent, Relation, SizeTerm,
+};
 use crate::taxonomy::{ClassGroup, Taxonomy};
 
 /// A question to send back instead of guessing, with the objects it distinguishes.
@@ -53,11 +55,66 @@ fn number_word(n: usize) -> String {
         .unwrap_or_else(|| n.to_string())
 }
 
-/// The referent's words as we would say them back ("the mug", "the thing").
+/// The referent's words as we would say them back, with every attribute, place and relation it carries
+/// ("the mug", "the big red mug on the left", "the table next to the wall", "the things").
 pub fn describe_referent(taxonomy: &Taxonomy, referent: &Referent) -> String {
-    match referent.class {
-        Some(class) => format!("the {}", taxonomy.class_name(class).replace('_', " ")),
-        None => "the thing".to_string(),
+    let mut words = vec!["the".to_string()];
+    for attribute in &referent.attributes {
+        words.push(attribute_word(*attribute).to_string());
+    }
+    let head = match referent.class {
+        Some(class) => taxonomy.class_name(class).replace('_', " "),
+        None => "thing".to_string(),
+    };
+    words.push(if referent.plural { plural(&head) } else { head });
+    if let Some(region) = referent.region {
+        words.push(region_phrase(region).to_string());
+    }
+    for clause in &referent.relations {
+        if clause.negated {
+            words.push("not".to_string());
+        }
+        words.push(relation_words(clause.relation).to_string());
+        let landmarks: Vec<String> = clause
+            .landmarks
+            .iter()
+            .map(|landmark| describe_referent(taxonomy, landmark))
+            .collect();
+        words.push(landmarks.join(" and "));
+    }
+    words.join(" ")
+}
+
+fn attribute_word(attribute: Attribute) -> &'static str {
+    match attribute {
+        Attribute::Size(SizeTerm::Big) => "big",
+        Attribute::Size(SizeTerm::Small) => "small",
+        Attribute::Colour(term) => match term {
+            ColourTerm::Black => "black",
+            ColourTerm::White => "white",
+            ColourTerm::Red => "red",
+            ColourTerm::Green => "green",
+            ColourTerm::Yellow => "yellow",
+            ColourTerm::Blue => "blue",
+            ColourTerm::Brown => "brown",
+            ColourTerm::Purple => "purple",
+            ColourTerm::Pink => "pink",
+            ColourTerm::Orange => "orange",
+            ColourTerm::Grey => "grey",
+        },
+    }
+}
+
+fn region_phrase(region: ImageRegion) -> &'static str {
+    match region {
+        ImageRegion::Left => "on the left",
+        ImageRegion::Right => "on the right",
+        ImageRegion::Top => "at the top",
+        ImageRegion::Bottom => "at the bottom",
+        ImageRegion::Centre => "in the middle",
+        ImageRegion::Corner => "in the corner",
+        ImageRegion::Back => "at the back",
+        ImageRegion::Front => "at the front",
     }
 }
 
@@ -74,17 +131,17 @@ const DESCRIBING_RELATIONS: [Relation; 7] = [
 fn region_words(view: &SceneView, hypothesis: usize) -> String {
     let footprint = view.footprint(hypothesis);
     let (width, height) = (view.scene.width(), view.scene.height());
-    for (region, words) in [
-        (ImageRegion::Left, "on the left"),
-        (ImageRegion::Right, "on the right"),
-        (ImageRegion::Top, "at the top"),
-        (ImageRegion::Bottom, "at the bottom"),
+    for region in [
+        ImageRegion::Left,
+        ImageRegion::Right,
+        ImageRegion::Top,
+        ImageRegion::Bottom,
     ] {
         if in_region(&footprint, region, width, height) {
-            return format!("the one {words}");
+            return format!("the one {}", region_phrase(region));
         }
     }
-    "the one in the middle".to_string()
+    format!("the one {}", region_phrase(ImageRegion::Centre))
 }
 
 /// "the one left of the sink": a relation to the nearest accepted object of another class.
@@ -201,5 +258,34 @@ mod tests {
         assert_eq!(plural("shelf"), "shelves");
         assert_eq!(plural("clothes"), "clothes");
         assert_eq!(plural("glass"), "glasses");
+    }
+
+    fn first_referent(utterance: &str) -> (Taxonomy, Referent) {
+        use crate::language::constraint::ConstraintKind;
+        let grammar = crate::language::Grammar::embedded().expect("embedded grammar");
+        let parse = grammar.parse(utterance, None).expect("parses");
+        let referent =
+            match &parse.constraints[0].kind {
+                ConstraintKind::Relabel { target, .. }
+                | ConstraintKind::Attribute { target, .. } => target.clone(),
+                ConstraintKind::Relation { subject, .. }
+                | ConstraintKind::Place { subject, .. } => subject.clone(),
+                other => panic!("no referent in {other:?}"),
+            };
+        (grammar.taxonomy().clone(), referent)
+    }
+
+    #[test]
+    fn a_referent_is_said_back_with_its_place_and_relations() {
+        let (taxonomy, referent) = first_referent("the table next to the wall is a chair");
+        assert_eq!(
+            describe_referent(&taxonomy, &referent),
+            "the table next to the wall"
+        );
+        let (taxonomy, referent) = first_referent("the big mug on the left is a vase");
+        assert_eq!(
+            describe_referent(&taxonomy, &referent),
+            "the big mug on the left"
+        );
     }
 }

@@ -1,0 +1,102 @@
+//! "Next to" a landmark whose box encloses the subject (a wall behind a cabinet, a rug around a chair):
+//! boxes cannot tell whether the two touch, so `sayso::grounding::relation_holds` asks the segment
+//! adjacency graph and the segments' depths.
+
+mod common;
+
+use std::sync::Arc;
+
+use common::grid_scene::{grid_scene, Cell};
+use sayso::grounding::relation_holds;
+use sayso::ids::SegmentId;
+use sayso::language::constraint::Relation;
+use sayso::scene::Scene;
+
+/// A 5x5 grid of 10-pixel cells: the border ring (16 cells), the inner ring (8 cells), the centre cell.
+fn rings() -> Scene {
+    let cells: Vec<Cell> = (0..25)
+        .map(|_| Cell {
+            colour: [200, 200, 190],
+            scores: vec![(1, 0.9)],
+        })
+        .collect();
+    grid_scene("juniper-lane-rings", 5, 5, 10, &cells, &[0; 25])
+}
+
+fn segments(indices: &[u32]) -> Vec<SegmentId> {
+    indices.iter().map(|&s| SegmentId(s)).collect()
+}
+
+const BORDER: [u32; 16] = [0, 1, 2, 3, 4, 5, 9, 10, 14, 15, 19, 20, 21, 22, 23, 24];
+const INNER: [u32; 8] = [6, 7, 8, 11, 13, 16, 17, 18];
+
+#[test]
+fn an_enclosed_subject_is_next_to_the_landmark_only_where_their_segments_meet() {
+    let scene = rings();
+    let centre = segments(&[12]);
+    let border = segments(&BORDER);
+    let mut border_and_inner = border.clone();
+    border_and_inner.extend(segments(&INNER));
+    border_and_inner.sort();
+    // The centre's box lies inside the border's box but no centre segment touches a border segment.
+    assert!(!relation_holds(
+        &scene,
+        Relation::NextTo,
+        &centre,
+        &[border.as_slice()]
+    ));
+    // With the inner ring in the landmark, the centre touches it.
+    assert!(relation_holds(
+        &scene,
+        Relation::NextTo,
+        &centre,
+        &[border_and_inner.as_slice()]
+    ));
+    // The inner ring touches the border, seen from either side.
+    let inner = segments(&INNER);
+    assert!(relation_holds(
+        &scene,
+        Relation::NextTo,
+        &inner,
+        &[border.as_slice()]
+    ));
+    // Other relations keep the box predicates: the centre is not left of the ring around it.
+    assert!(!relation_holds(
+        &scene,
+        Relation::LeftOf,
+        &centre,
+        &[border_and_inner.as_slice()]
+    ));
+}
+
+#[test]
+fn touching_in_the_picture_at_very_different_depths_is_not_next_to() {
+    let mut scene = rings();
+    let mut stats = (*scene.stats).clone();
+    for stat in stats.iter_mut() {
+        stat.mean_depth_mm = Some(3000.0);
+    }
+    // The centre is two metres in front of everything around it (the shared near_depth_mm is far less).
+    stats[12].mean_depth_mm = Some(1000.0);
+    scene.stats = Arc::new(stats);
+    let centre = segments(&[12]);
+    let mut around = segments(&BORDER);
+    around.extend(segments(&INNER));
+    around.sort();
+    assert!(!relation_holds(
+        &scene,
+        Relation::NextTo,
+        &centre,
+        &[around.as_slice()]
+    ));
+    // At the same depth it is next to it again.
+    let mut stats = (*scene.stats).clone();
+    stats[12].mean_depth_mm = Some(3000.0);
+    scene.stats = Arc::new(stats);
+    assert!(relation_holds(
+        &scene,
+        Relation::NextTo,
+        &centre,
+        &[around.as_slice()]
+    ));
+}
