@@ -355,6 +355,27 @@ fn bench_joint(criterion: &mut Criterion) {
         std::hint::black_box(solve_joint(&built.energy, Some(&warm), &options).unwrap());
         warm_samples.push(start.elapsed());
     }
+    // The same warm re-solve with the warm descent on (an option, off by default).
+    let descent_options = JointOptions {
+        warm_descent: true,
+        ..JointOptions::default()
+    };
+    let descended = solve_joint(&built.energy, Some(&warm), &descent_options).unwrap();
+    let mut descent_samples = Vec::new();
+    for _ in 0..7 {
+        let start = Instant::now();
+        std::hint::black_box(solve_joint(&built.energy, Some(&warm), &descent_options).unwrap());
+        descent_samples.push(start.elapsed());
+    }
+    let descent_median = median(descent_samples);
+    println!(
+        "warm re-solve with warm descent: energy {:.3}, gap {:.4}, {} iterations, median {:.2} ms (goal 2 ms, ratio {:.2})",
+        descended.energy,
+        descended.relative_gap,
+        descended.iterations,
+        descent_median.as_secs_f64() * 1e3,
+        descent_median.as_secs_f64() * 1e3 / 2.0
+    );
     let (full_median, warm_median) = (median(full_samples), median(warm_samples));
     println!(
         "full solve median {:.2} ms (goal 5 ms, ratio {:.2}); warm re-solve median {:.2} ms (goal 2 ms, ratio {:.2})",
@@ -403,6 +424,9 @@ fn bench_joint(criterion: &mut Criterion) {
     });
     group.bench_function("warm_resolve", |b| {
         b.iter(|| solve_joint(&built.energy, Some(&warm), &options).unwrap())
+    });
+    group.bench_function("warm_resolve_descent", |b| {
+        b.iter(|| solve_joint(&built.energy, Some(&warm), &descent_options).unwrap())
     });
     group.finish();
 }

@@ -110,3 +110,99 @@ fn warm_start_from_the_solution_keeps_its_energy() {
         assert!(again.energy <= cold.energy + 1e-9, "{}", instance.name);
     }
 }
+
+/// The instance as a previous turn might have seen it: every unary moved by up to 0.25 (a deterministic
+/// xorshift sequence seeded by the instance's position) and its last constraint factor not yet said.
+fn perturbed(energy: &JointEnergy, seed: u64) -> JointEnergy {
+    let mut state = seed.wrapping_mul(0x9e37_79b9_7f4a_7c15) | 1;
+    let mut next = || {
+        state ^= state << 13;
+        state ^= state >> 7;
+        state ^= state << 17;
+        (state % 1001) as f64 / 1000.0 - 0.5
+    };
+    let mut previous = energy.clone();
+    for value in &mut previous.unary {
+        *value += 0.5 * next();
+    }
+    if previous.unary_factors.pop().is_none()
+        && previous.tuple_factors.pop().is_none()
+        && previous.count_factors.pop().is_none()
+    {
+        previous.absent_factors.pop();
+    }
+    previous
+}
+
+#[test]
+fn warm_start_from_a_perturbed_instance_meets_the_optimality_criteria() {
+    warm_start_from_perturbed(&JointOptions::default());
+}
+
+#[test]
+fn warm_descent_from_a_perturbed_instance_meets_the_optimality_criteria() {
+    warm_start_from_perturbed(&JointOptions {
+        warm_descent: true,
+        ..JointOptions::default()
+    });
+}
+
+fn warm_start_from_perturbed(options: &JointOptions) {
+    let instances = instances();
+    let mut at_optimum = 0;
+    let mut failures = Vec::new();
+    for (index, instance) in instances.iter().enumerate() {
+        let previous = solve_joint(&perturbed(&instance.energy, index as u64), None, options)
+            .expect("valid perturbed instance");
+        let warm = sayso::solver::joint::WarmStart {
+            state: previous.state.clone(),
+            multipliers: Some(previous.multipliers.clone()),
+        };
+        let solution = solve_joint(&instance.energy, Some(&warm), options).expect("valid instance");
+        let evaluated = instance
+            .energy
+            .evaluate(&solution.state)
+            .expect("state fits");
+        assert!(
+            (evaluated - solution.energy).abs() < 1e-6,
+            "{}: reported {} but state evaluates to {}",
+            instance.name,
+            solution.energy,
+            evaluated
+        );
+        assert!(
+            solution.energy >= instance.optimum - 1e-6,
+            "{}: warm energy {} below the MILP optimum {}",
+            instance.name,
+            solution.energy,
+            instance.optimum
+        );
+        // Multipliers carried over from another energy still give a valid bound.
+        assert!(
+            solution.lower_bound <= instance.optimum + 1e-6,
+            "{}: warm lower bound {} above the optimum {}",
+            instance.name,
+            solution.lower_bound,
+            instance.optimum
+        );
+        let error = relative(solution.energy, instance.optimum);
+        if error <= 1e-6 {
+            at_optimum += 1;
+        } else if error > 0.02 {
+            failures.push(format!(
+                "{}: warm {} vs optimum {}",
+                instance.name, solution.energy, instance.optimum
+            ));
+        }
+    }
+    let share = at_optimum as f64 / instances.len() as f64;
+    assert!(
+        share >= 0.95,
+        "warm: optimum reached on {at_optimum} of {} ({share:.3})",
+        instances.len()
+    );
+    assert!(
+        failures.is_empty(),
+        "warm: more than 2% above: {failures:?}"
+    );
+}

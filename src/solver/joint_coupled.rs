@@ -137,9 +137,7 @@ fn best_for_class(
     free_off_cost: f64,
 ) -> ClassChoice {
     let energy = inputs.energy;
-    let present_cost = energy.presence_cost[room * energy.label_count + class]
-        - inputs.presence_adjust[class]
-        + tables.absent_weight[class];
+    let present_cost = presence_cost(inputs, tables, room, class);
     let mut best = ClassChoice {
         cost: f64::INFINITY,
         switched_on: 0,
@@ -176,6 +174,75 @@ fn best_for_class(
     best
 }
 
+/// The cost of class `class` being present in room `room`: the room's presence statistic, less the
+/// presence multipliers, plus the absent factors' weight.
+fn presence_cost(inputs: &CoupledInputs, tables: &CoupledTables, room: usize, class: usize) -> f64 {
+    let energy = inputs.energy;
+    energy.presence_cost[room * energy.label_count + class] - inputs.presence_adjust[class]
+        + tables.absent_weight[class]
+}
+
+/// The room-independent part of one class's choice. A class's cost in room `r` is the minimum over how many
+/// hypotheses are on of (their costs and count factors, which do not depend on the room) plus the presence
+/// cost `K[r, c]` when the class is present; so only the cheapest count with presence on and the one count
+/// that may leave it off (none on, no segment support) can win in any room.
+#[derive(Clone, Copy)]
+struct ClassParts {
+    /// The least room-independent cost among counts that make the class present (infinite if none).
+    supported: f64,
+    /// The room-independent cost with nothing on and no support, when that is possible (else infinite).
+    unsupported: f64,
+}
+
+impl ClassParts {
+    fn new(
+        inputs: &CoupledInputs,
+        tables: &CoupledTables,
+        class: usize,
+        forced_on: usize,
+        forced_cost: f64,
+        free_deltas: &[f64],
+        free_off_cost: f64,
+    ) -> ClassParts {
+        let energy = inputs.energy;
+        let mut parts = ClassParts {
+            supported: f64::INFINITY,
+            unsupported: f64::INFINITY,
+        };
+        let mut prefix = 0.0;
+        for switched_on in 0..=free_deltas.len() {
+            if switched_on > 0 {
+                prefix += free_deltas[switched_on - 1];
+            }
+            let n = (forced_on + switched_on) as u32;
+            // Summed in the order `best_for_class` sums it, so the costs agree to the bit.
+            let mut cost = forced_cost + free_off_cost + prefix;
+            for &factor in &tables.counts_by_class[class] {
+                let factor = &energy.count_factors[factor];
+                cost += factor.weight * count_violation(factor.count, n) as f64;
+            }
+            if n > 0 || inputs.segment_support[class] {
+                parts.supported = parts.supported.min(cost);
+            } else {
+                parts.unsupported = cost;
+            }
+        }
+        parts
+    }
+
+    /// The class's least cost in a room whose presence cost is `present_cost`; equal to
+    /// `best_for_class(..).cost` (rounding is monotone, so the least sum is the least part plus the cost).
+    fn cost(&self, present_cost: f64, relaxed: bool) -> f64 {
+        let off = if relaxed && present_cost < 0.0 {
+            self.unsupported + present_cost
+        } else {
+            self.unsupported + 0.0
+        };
+        // `best_for_class` keeps the first count with the least cost; the value is the same either way.
+        (self.supported + present_cost).min(off)
+    }
+}
+
 /// Minimises the coupled terms exactly (or, with too many enumerated hypotheses, a lower bound of them).
 pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
     let energy = inputs.energy;
@@ -202,66 +269,86 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
         free_off[class] = free.iter().map(|&h| inputs.cost_off[h]).sum();
     }
 
+    // Room-independent parts first; each room then only adds its presence costs (see `ClassParts`).
+    let relaxed = inputs.relaxed_presence;
+    let free_parts: Vec<ClassParts> = (0..energy.label_count)
+        .map(|class| {
+            ClassParts::new(
+                inputs,
+                tables,
+                class,
+                0,
+                0.0,
+                &free_deltas[range(class)],
+                free_off[class],
+            )
+        })
+        .collect();
+    let fixed_part: Vec<f64> = (0..energy.room_count)
+        .map(|room| {
+            let mut fixed = energy.room_cost[room];
+            for (class, parts) in free_parts.iter().enumerate() {
+                if !touches_enumerated[class] {
+                    fixed += parts.cost(presence_cost(inputs, tables, room, class), relaxed);
+                }
+            }
+            fixed
+        })
+        .collect();
+    let touched: Vec<usize> = (0..energy.label_count)
+        .filter(|&class| touches_enumerated[class])
+        .collect();
     let mut best_value = f64::INFINITY;
     let mut best_room = 0usize;
     let mut best_mask = 0u64;
     let mut flags = vec![false; energy.hypotheses.len()];
+    let mut tuple_costs = Vec::with_capacity(energy.tuple_factors.len());
+    let mut touched_parts = Vec::with_capacity(touched.len());
     let mask_count = 1u64 << enumerated.len();
-    for room in 0..energy.room_count {
-        let mut fixed_part = energy.room_cost[room];
-        for class in 0..energy.label_count {
-            if !touches_enumerated[class] {
-                fixed_part += best_for_class(
-                    inputs,
-                    tables,
-                    class,
-                    room,
-                    0,
-                    0.0,
-                    &free_deltas[range(class)],
-                    free_off[class],
-                )
-                .cost;
+    for mask in 0..mask_count {
+        for (position, &h) in enumerated.iter().enumerate() {
+            flags[h] = mask >> position & 1 == 1;
+        }
+        tuple_costs.clear();
+        if exact {
+            for factor in &energy.tuple_factors {
+                tuple_costs.push(JointEnergy::tuple_factor_cost(factor, &flags));
             }
         }
-        for mask in 0..mask_count {
-            for (position, &h) in enumerated.iter().enumerate() {
-                flags[h] = mask >> position & 1 == 1;
-            }
-            let mut value = fixed_part;
-            if exact {
-                for factor in &energy.tuple_factors {
-                    value += JointEnergy::tuple_factor_cost(factor, &flags);
-                }
-            }
-            for class in 0..energy.label_count {
-                if !touches_enumerated[class] {
-                    continue;
-                }
-                let (mut forced_on, mut forced_cost) = (0usize, 0.0);
-                for &h in &tables.by_class[class] {
-                    if position_in_enumerated[h] != usize::MAX {
-                        if flags[h] {
-                            forced_on += 1;
-                            forced_cost += inputs.cost_on[h];
-                        } else {
-                            forced_cost += inputs.cost_off[h];
-                        }
+        touched_parts.clear();
+        for &class in &touched {
+            let (mut forced_on, mut forced_cost) = (0usize, 0.0);
+            for &h in &tables.by_class[class] {
+                if position_in_enumerated[h] != usize::MAX {
+                    if flags[h] {
+                        forced_on += 1;
+                        forced_cost += inputs.cost_on[h];
+                    } else {
+                        forced_cost += inputs.cost_off[h];
                     }
                 }
-                value += best_for_class(
-                    inputs,
-                    tables,
-                    class,
-                    room,
-                    forced_on,
-                    forced_cost,
-                    &free_deltas[range(class)],
-                    free_off[class],
-                )
-                .cost;
             }
-            if value < best_value {
+            touched_parts.push(ClassParts::new(
+                inputs,
+                tables,
+                class,
+                forced_on,
+                forced_cost,
+                &free_deltas[range(class)],
+                free_off[class],
+            ));
+        }
+        for (room, &fixed) in fixed_part.iter().enumerate() {
+            let mut value = fixed;
+            for &cost in &tuple_costs {
+                value += cost;
+            }
+            for (&class, parts) in touched.iter().zip(&touched_parts) {
+                value += parts.cost(presence_cost(inputs, tables, room, class), relaxed);
+            }
+            // The first (room, mask) in room-major order among equal values, as a room-major scan keeps.
+            if value < best_value || (value == best_value && (room, mask) < (best_room, best_mask))
+            {
                 best_value = value;
                 best_room = room;
                 best_mask = mask;
@@ -308,5 +395,174 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
         room: best_room as u16,
         presence,
         exact,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::energy::{AbsentFactor, CountFactor, HypothesisTerm, TupleFactor, ENERGY_SCHEMA};
+    use crate::language::constraint::Count;
+
+    /// Count factors `(class, kind, k)`, absent classes, and tuples with their `negated` flag.
+    type Factors<'a> = (&'a [(u16, u8, u32)], &'a [u16], &'a [(Vec<u32>, bool)]);
+
+    /// A small energy: `labels` classes, `rooms` room types, hypotheses of the given classes, and the
+    /// coupled factors; the segment part is a single node (the step never reads it).
+    fn energy(
+        labels: usize,
+        rooms: usize,
+        classes: &[u16],
+        room_cost: &[f64],
+        presence_cost: &[f64],
+        factors: Factors,
+    ) -> JointEnergy {
+        let (counts, absent, tuples) = factors;
+        JointEnergy {
+            schema: ENERGY_SCHEMA,
+            label_count: labels,
+            fine_count: 1,
+            node_count: 1,
+            unary: vec![0.0; labels],
+            edges: Vec::new(),
+            hypotheses: classes
+                .iter()
+                .map(|&class| HypothesisTerm {
+                    class,
+                    members: vec![0],
+                    activation_cost: 0.0,
+                    agreement_weight: 1.0,
+                })
+                .collect(),
+            room_count: rooms,
+            room_cost: room_cost[..rooms].to_vec(),
+            presence_cost: presence_cost[..rooms * labels].to_vec(),
+            count_factors: counts
+                .iter()
+                .map(|&(class, kind, k)| CountFactor {
+                    class: class % labels as u16,
+                    count: match kind % 3 {
+                        0 => Count::Exactly(k),
+                        1 => Count::AtLeast(k),
+                        _ => Count::AtMost(k),
+                    },
+                    weight: 1.5,
+                    source: None,
+                })
+                .collect(),
+            absent_factors: absent
+                .iter()
+                .map(|&class| AbsentFactor {
+                    class: class % labels as u16,
+                    weight: 2.0,
+                    source: None,
+                })
+                .collect(),
+            tuple_factors: tuples
+                .iter()
+                .map(|(tuple, negated)| TupleFactor {
+                    tuples: vec![tuple.iter().map(|&h| h % classes.len() as u32).collect()],
+                    negated: *negated,
+                    weight: 2.5,
+                    source: None,
+                })
+                .collect(),
+            unary_factors: Vec::new(),
+        }
+    }
+
+    /// The coupled terms of one room and one set of flags, straight from their definitions: a class is
+    /// present when supported (an accepted hypothesis or segment support) and, relaxed, also when that is
+    /// cheaper.
+    fn coupled_value(inputs: &CoupledInputs, room: usize, flags: &[bool]) -> f64 {
+        let energy = inputs.energy;
+        let mut value = energy.room_cost[room];
+        for (h, &on) in flags.iter().enumerate() {
+            value += if on {
+                inputs.cost_on[h]
+            } else {
+                inputs.cost_off[h]
+            };
+        }
+        let counts = energy.hypothesis_counts(flags);
+        for (class, &count) in counts.iter().enumerate() {
+            let mut present_cost = energy.presence_cost[room * energy.label_count + class]
+                - inputs.presence_adjust[class];
+            for factor in &energy.absent_factors {
+                if factor.class as usize == class {
+                    present_cost += factor.weight;
+                }
+            }
+            if count > 0 || inputs.segment_support[class] {
+                value += present_cost;
+            } else if inputs.relaxed_presence {
+                value += present_cost.min(0.0);
+            }
+        }
+        for factor in &energy.count_factors {
+            value +=
+                factor.weight * count_violation(factor.count, counts[factor.class as usize]) as f64;
+        }
+        for factor in &energy.tuple_factors {
+            value += JointEnergy::tuple_factor_cost(factor, flags);
+        }
+        value
+    }
+
+    proptest::proptest! {
+        /// The step's minimum over rooms and flags is the brute-force minimum, and its minimiser attains it.
+        #[test]
+        fn coupled_step_matches_brute_force(
+            labels in 2usize..5,
+            rooms in 1usize..4,
+            classes in proptest::collection::vec(0u16..4, 0..7),
+            room_cost in proptest::collection::vec(-2.0f64..2.0, 3),
+            presence_cost in proptest::collection::vec(-3.0f64..3.0, 12),
+            cost_on in proptest::collection::vec(-2.0f64..2.0, 6),
+            cost_off in proptest::collection::vec(-1.0f64..1.0, 6),
+            adjust in proptest::collection::vec(0.0f64..1.5, 4),
+            support in proptest::collection::vec(proptest::bool::ANY, 4),
+            counts in proptest::collection::vec((0u16..4, 0u8..3, 0u32..3), 0..3),
+            absent in proptest::collection::vec(0u16..4, 0..2),
+            tuples in proptest::collection::vec(
+                (proptest::collection::vec(0u32..6, 1..3), proptest::bool::ANY), 0..3),
+            relaxed in proptest::bool::ANY,
+        ) {
+            let classes: Vec<u16> = classes.iter().map(|&c| c % labels as u16).collect();
+            let tuples = if classes.is_empty() { Vec::new() } else { tuples };
+            let energy = energy(
+                labels,
+                rooms,
+                &classes,
+                &room_cost,
+                &presence_cost,
+                (&counts, &absent, &tuples),
+            );
+            let tables = CoupledTables::new(&energy);
+            let hypotheses = classes.len();
+            let inputs = CoupledInputs {
+                energy: &energy,
+                tables: &tables,
+                cost_on: &cost_on[..hypotheses],
+                cost_off: &cost_off[..hypotheses],
+                presence_adjust: &adjust[..labels],
+                segment_support: &support[..labels],
+                relaxed_presence: relaxed,
+            };
+            let result = solve_coupled(&inputs);
+            let mut minimum = f64::INFINITY;
+            for room in 0..rooms {
+                for mask in 0u32..1 << hypotheses {
+                    let flags: Vec<bool> = (0..hypotheses).map(|h| mask >> h & 1 == 1).collect();
+                    minimum = minimum.min(coupled_value(&inputs, room, &flags));
+                }
+            }
+            proptest::prop_assert!(result.exact);
+            proptest::prop_assert!((result.value - minimum).abs() < 1e-9,
+                "step {} vs brute force {}", result.value, minimum);
+            let attained = coupled_value(&inputs, result.room as usize, &result.hypotheses_on);
+            proptest::prop_assert!((attained - minimum).abs() < 1e-9,
+                "minimiser scores {} vs brute force {}", attained, minimum);
+        }
     }
 }

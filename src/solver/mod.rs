@@ -7,6 +7,7 @@ pub mod expansion;
 pub mod expansion_reference;
 pub mod joint;
 mod joint_coupled;
+mod joint_dual;
 mod joint_labeller;
 mod joint_moves;
 pub mod labelling;

@@ -1,0 +1,196 @@
+//! The dual side of the joint solver: the Lagrange multipliers' start (fresh, or fitted from a previous
+//! solve), one evaluation of the dual function (segment part bounded and labelled, coupled part solved
+//! exactly with relaxed presence), and the projected subgradient step that moves the multipliers.
+//!
+//! Owns: `fresh_multipliers`, `adapt_multipliers`, `DualValue`, `dual_value`, `subgradient_step`.
+//! Must not: keep primal states or decide when the loop stops (that is `crate::solver::joint`); it knows
+//! nothing of language, files or what classes mean.
+
+use crate::energy::JointEnergy;
+use crate::solver::joint::{Context, Multipliers, PresenceMultiplier, Workspace};
+use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
+
+pub(crate) fn fresh_multipliers(energy: &JointEnergy) -> Multipliers {
+    Multipliers {
+        agreement: energy
+            .hypotheses
+            .iter()
+            .map(|h| vec![0.0; h.members.len()])
+            .collect(),
+        presence: Vec::new(),
+    }
+}
+
+/// Previous multipliers fitted to this energy: rows whose shape still matches are kept, others start at 0
+/// (any multipliers give a valid bound, so this only affects speed).
+pub(crate) fn adapt_multipliers(energy: &JointEnergy, previous: &Multipliers) -> Multipliers {
+    let mut multipliers = fresh_multipliers(energy);
+    for (row, old) in multipliers.agreement.iter_mut().zip(&previous.agreement) {
+        if row.len() == old.len() && old.iter().all(|v| v.is_finite()) {
+            row.copy_from_slice(old);
+        }
+    }
+    let fits = |entry: &PresenceMultiplier| {
+        (entry.segment as usize) < energy.fine_count
+            && (entry.class as usize) < energy.label_count
+            && entry.value.is_finite()
+            && entry.value > 0.0
+    };
+    let ascending = previous
+        .presence
+        .windows(2)
+        .all(|pair| (pair[0].segment, pair[0].class) < (pair[1].segment, pair[1].class));
+    if ascending && previous.presence.iter().all(fits) {
+        multipliers.presence.clone_from(&previous.presence);
+    }
+    multipliers
+}
+
+/// The dual function at some multipliers, with the minimisers of its two parts.
+pub(crate) struct DualValue {
+    pub(crate) bound: f64,
+    pub(crate) segment_labels: Vec<u16>,
+    pub(crate) coupled: CoupledResult,
+    copies: Vec<Vec<bool>>,
+}
+
+/// One evaluation of the dual function at the current multipliers.
+pub(crate) fn dual_value(
+    context: &Context,
+    workspace: &mut Workspace,
+    multipliers: &Multipliers,
+    start: &[u16],
+) -> DualValue {
+    let energy = context.energy;
+    let label_count = energy.label_count;
+    let unary = &mut workspace.unary;
+    unary.clear();
+    unary.extend_from_slice(&context.unary);
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        for (m, &s) in hypothesis.members.iter().enumerate() {
+            unary[s as usize * label_count + hypothesis.class as usize] -=
+                multipliers.agreement[h][m];
+        }
+    }
+    for entry in &multipliers.presence {
+        unary[entry.segment as usize * label_count + entry.class as usize] += entry.value;
+    }
+    let segment_bound = workspace.bound.bound(unary);
+    let segment_labels = workspace.dual.label(unary, start).to_vec();
+
+    let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
+    let mut cost_off = Vec::with_capacity(energy.hypotheses.len());
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        let g = hypothesis.agreement_weight;
+        let on: f64 = multipliers.agreement[h].iter().map(|&mu| mu.min(g)).sum();
+        let off: f64 = multipliers.agreement[h].iter().map(|&mu| mu.min(0.0)).sum();
+        cost_on.push(hypothesis.activation_cost + on);
+        cost_off.push(off);
+    }
+    let mut adjust = vec![0.0; label_count];
+    for entry in &multipliers.presence {
+        adjust[entry.class as usize] += entry.value;
+    }
+    let no_support = vec![false; label_count];
+    let coupled = solve_coupled(&CoupledInputs {
+        energy,
+        tables: &context.coupled,
+        cost_on: &cost_on,
+        cost_off: &cost_off,
+        presence_adjust: &adjust,
+        segment_support: &no_support,
+        relaxed_presence: true,
+    });
+    let copies = energy
+        .hypotheses
+        .iter()
+        .enumerate()
+        .map(|(h, hypothesis)| {
+            let threshold = if coupled.hypotheses_on[h] {
+                hypothesis.agreement_weight
+            } else {
+                0.0
+            };
+            multipliers.agreement[h]
+                .iter()
+                .map(|&mu| mu < threshold)
+                .collect()
+        })
+        .collect();
+    DualValue {
+        bound: segment_bound + coupled.value,
+        segment_labels,
+        coupled,
+        copies,
+    }
+}
+
+/// Moves the multipliers one projected subgradient step; returns `false` when the subgradient is zero.
+pub(crate) fn subgradient_step(
+    energy: &JointEnergy,
+    multipliers: &mut Multipliers,
+    dual: &DualValue,
+    target: f64,
+    scale: f64,
+) -> bool {
+    let labels = &dual.segment_labels;
+    let mut norm = 0.0;
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        for (m, &s) in hypothesis.members.iter().enumerate() {
+            let indicator = labels[s as usize] == hypothesis.class;
+            let g = dual.copies[h][m] as i32 as f64 - indicator as i32 as f64;
+            norm += g * g;
+        }
+    }
+    // Presence: `g_sc = [x_s = c] - p_c`; a zero multiplier with `g_sc <= 0` stays at zero (projection), so
+    // only the non-zero ones and the segments whose own class the coupled part left absent take part.
+    let present = &dual.coupled.presence;
+    let presence_g = |segment: u32, class: u16| {
+        (labels[segment as usize] == class) as i32 as f64 - present[class as usize] as i32 as f64
+    };
+    let rising = |segment: &u32| !present[labels[*segment as usize] as usize];
+    for entry in &multipliers.presence {
+        let g = presence_g(entry.segment, entry.class);
+        norm += g * g;
+    }
+    // Segments whose label is not yet marked present and have no multiplier yet: each starts one.
+    let starting: Vec<(u32, u16)> = (0..energy.fine_count as u32)
+        .filter(rising)
+        .map(|segment| (segment, labels[segment as usize]))
+        .filter(|key| {
+            multipliers
+                .presence
+                .binary_search_by_key(key, |entry| (entry.segment, entry.class))
+                .is_err()
+        })
+        .collect();
+    norm += starting.len() as f64;
+    if norm == 0.0 {
+        return false;
+    }
+    let step = scale * (target - dual.bound).max(1e-6) / norm;
+    for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+        for (m, &s) in hypothesis.members.iter().enumerate() {
+            let indicator = labels[s as usize] == hypothesis.class;
+            let g = dual.copies[h][m] as i32 as f64 - indicator as i32 as f64;
+            multipliers.agreement[h][m] += step * g;
+        }
+    }
+    let added: Vec<PresenceMultiplier> = starting
+        .into_iter()
+        .map(|(segment, class)| PresenceMultiplier {
+            segment,
+            class,
+            value: step,
+        })
+        .collect();
+    for entry in &mut multipliers.presence {
+        entry.value = (entry.value + step * presence_g(entry.segment, entry.class)).max(0.0);
+    }
+    multipliers.presence.retain(|entry| entry.value > 0.0);
+    multipliers.presence.extend(added);
+    multipliers
+        .presence
+        .sort_unstable_by_key(|entry| (entry.segment, entry.class));
+    true
+}
