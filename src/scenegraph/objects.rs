@@ -23,7 +23,11 @@
 //!    Checked on training renders only (`examples/render_objects.rs`: `sayso tune`'s 21 renders from seed
 //!    200000 and 21 more from seed 200021, committed weights), mean object accuracy after the training
 //!    notes: 0.4829 and 0.4888 when merged groups were split among their accepted hypotheses (and fragments
-//!    counted as shown); 0.5143 and 0.5052 with this rule.
+//!    counted as shown); 0.5143 and 0.5052 with this rule. Re-measured after the prior was recounted over
+//!    280 renders and the warm descent switched on (2026-12-03): 0.5103 and 0.5071. Tried then and not
+//!    taken: every patch counts as shown when all of a class's patches are small (shoes, mugs), 0.5077 and
+//!    0.5079; a patch counts when it is at least half the class's largest, 0.5110 (seed 200000, before the
+//!    descent, against 0.5137 for this rule).
 //! 3. Each object is named after a hypothesis so later notes can point at it (`Focus::Object`): the
 //!    hypothesis of its class sharing the most member segments with it that no larger object took already;
 //!    with none, an id computed from its class and members (`crate::hypotheses::hypothesis_id`), which no
