@@ -100,3 +100,78 @@ fn touching_in_the_picture_at_very_different_depths_is_not_next_to() {
         &[around.as_slice()]
     ));
 }
+
+mod grounding_a_sentence {
+    use super::*;
+    use sayso::grounding::{ground, GroundedKind, GroundingContext, GroundingIssue, SceneView};
+    use sayso::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
+    use sayso::ids::ClassId;
+    use sayso::language::Grammar;
+    use sayso::scene::BoundingBox;
+
+    fn hypothesis(class: ClassId, members: &[u32]) -> Hypothesis {
+        let members = segments(members);
+        Hypothesis {
+            id: hypothesis_id(class, &members),
+            class,
+            members,
+            bbox: BoundingBox::default(),
+            score: 0.8,
+            origin: HypothesisOrigin::FineGroup,
+        }
+    }
+
+    #[test]
+    fn a_relation_that_holds_for_no_candidate_says_what_is_in_view() {
+        let grammar = Grammar::embedded().expect("embedded grammar");
+        let taxonomy = grammar.taxonomy().clone();
+        let class = |name: &str| taxonomy.class_by_name(name).expect("known class").id;
+        let scene = rings();
+        let parse = grammar
+            .parse("the table next to the wall is a chair", None)
+            .expect("parses");
+        let mut hypotheses = vec![
+            hypothesis(class("wall"), &BORDER),
+            hypothesis(class("table"), &[12]),
+        ];
+        let accepted = vec![true; hypotheses.len()];
+        let view = SceneView {
+            scene: &scene,
+            taxonomy: &taxonomy,
+            hypotheses: &hypotheses,
+            accepted: &accepted,
+            class_count: taxonomy.class_count(),
+        };
+        let grounding = ground(&parse.constraints, &view, &GroundingContext::default());
+        assert!(grounding.constraints.is_empty());
+        assert_eq!(
+            grounding.issues,
+            vec![GroundingIssue::NoneInRelation {
+                constraint: 0,
+                found: "1 table".to_string(),
+                words: "the table next to the wall".to_string(),
+            }]
+        );
+        assert_eq!(
+            grounding.issues[0].to_string(),
+            "constraint 0: 1 table in view, but none matches \"the table next to the wall\""
+        );
+
+        // A second table, on the inner ring, touches the wall: it is the one meant.
+        hypotheses.push(hypothesis(class("table"), &[6]));
+        let accepted = vec![true; hypotheses.len()];
+        let view = SceneView {
+            scene: &scene,
+            taxonomy: &taxonomy,
+            hypotheses: &hypotheses,
+            accepted: &accepted,
+            class_count: taxonomy.class_count(),
+        };
+        let grounding = ground(&parse.constraints, &view, &GroundingContext::default());
+        assert!(grounding.issues.is_empty(), "{:?}", grounding.issues);
+        match &grounding.constraints[0].kind {
+            GroundedKind::Relabel { target, .. } => assert_eq!(target.hypotheses, vec![2]),
+            other => panic!("expected a relabel, got {other:?}"),
+        }
+    }
+}

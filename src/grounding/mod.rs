@@ -115,6 +115,14 @@ pub enum GroundingIssue {
     UnknownRoom { constraint: usize, room: RoomId },
     #[error("constraint {constraint}: nothing in view matches \"{words}\"")]
     NoCandidate { constraint: usize, words: String },
+    /// Things of the class are in view, but the relation the operator named holds for none of them.
+    #[error("constraint {constraint}: {found} in view, but none matches \"{words}\"")]
+    NoneInRelation {
+        constraint: usize,
+        /// What is in view, e.g. "5 tables".
+        found: String,
+        words: String,
+    },
 }
 
 impl GroundingIssue {
@@ -127,7 +135,8 @@ impl GroundingIssue {
             | GroundingIssue::NoPrevious { constraint }
             | GroundingIssue::UnknownClass { constraint, .. }
             | GroundingIssue::UnknownRoom { constraint, .. }
-            | GroundingIssue::NoCandidate { constraint, .. } => *constraint,
+            | GroundingIssue::NoCandidate { constraint, .. }
+            | GroundingIssue::NoneInRelation { constraint, .. } => *constraint,
         }
     }
 }
@@ -486,6 +495,7 @@ impl Resolver<'_, '_> {
         for attribute in &referent.attributes {
             candidates = self.filter_attribute(candidates, *attribute);
         }
+        let before_relations = distinct_objects(view, &candidates);
         for clause in &referent.relations {
             let mut landmark_sets = Vec::new();
             for landmark in &clause.landmarks {
@@ -513,10 +523,26 @@ impl Resolver<'_, '_> {
             });
         }
         if candidates.is_empty() {
-            self.issues.push(GroundingIssue::NoCandidate {
-                constraint: self.constraint,
-                words: questions::describe_referent(view.taxonomy, referent),
-            });
+            let words = questions::describe_referent(view.taxonomy, referent);
+            let issue = match referent.class {
+                Some(class) if before_relations > 0 && !referent.relations.is_empty() => {
+                    let name = view.taxonomy.class_name(class).replace('_', " ");
+                    GroundingIssue::NoneInRelation {
+                        constraint: self.constraint,
+                        found: if before_relations == 1 {
+                            format!("1 {name}")
+                        } else {
+                            format!("{before_relations} {}", questions::plural(&name))
+                        },
+                        words,
+                    }
+                }
+                _ => GroundingIssue::NoCandidate {
+                    constraint: self.constraint,
+                    words,
+                },
+            };
+            self.issues.push(issue);
             return None;
         }
         // Hypotheses over the same segments with the same class are one object; keep the best scored.
