@@ -24,7 +24,8 @@
 //!    200000 and 21 more from seed 200021, committed weights), mean object accuracy after the training
 //!    notes: 0.4829 and 0.4888 when merged groups were split among their accepted hypotheses (and fragments
 //!    counted as shown); 0.5143 and 0.5052 with this rule. Re-measured after the prior was recounted over
-//!    280 renders and the warm descent switched on (2026-12-03): 0.5103 and 0.5071. Tried then and not
+//!    280 renders and the warm descent switched on (2026-12-03): 0.5103 and 0.5071 (0.5125 on the first set
+//!    with the weights `sayso tune` then re-made). Tried then and not
 //!    taken: every patch counts as shown when all of a class's patches are small (shoes, mugs), 0.5077 and
 //!    0.5079; a patch counts when it is at least half the class's largest, 0.5110 (seed 200000, before the
 //!    descent, against 0.5137 for this rule).

@@ -53,8 +53,8 @@ pub struct JointOptions {
     pub gap_tolerance: f64,
     /// With a warm start, descend from the previous state (label given its hypothesis flags, complete
     /// exactly, repeat) before the dual loop. On by default: the bench's warm re-solve takes 2 iterations
-    /// instead of 5 (1.27 ms against 2.30 ms median, same energy and bound). Measured on the demo notes
-    /// (`sayso score --notes 2`, mean gains): pixel +4.2 -> +4.3, mIoU +14.5 -> +14.8, object (graph)
+    /// instead of 5 (1.27 ms against 2.30 ms median, same energy and bound). Measured on the demo notes with
+    /// the weights file of that day (`sayso score --notes 2`, mean gains): pixel +4.2 -> +4.3, mIoU +14.5 -> +14.8, object (graph)
     /// +2.3 -> +2.0 (mostly a better no-note start in kitchen_breakfast, which the gain is counted from).
     #[serde(default = "default_warm_descent")]
     pub warm_descent: bool,
