@@ -188,6 +188,8 @@ pub fn training_notes(taxonomy: &Taxonomy, scene: &DemoScene) -> Vec<String> {
 pub struct TuningScene {
     pub prepared: PreparedScene,
     pub notes: Vec<String>,
+    /// The classifier alone, scored once: what every state's shortfall is measured against.
+    pub classifier: SceneScore,
 }
 
 /// Renders and prepares the tuning scenes of `seeds`.
@@ -203,9 +205,17 @@ pub fn prepare_tuning_scenes(
         let demo = render_training_scene(taxonomy, seed, index)?;
         let notes = training_notes(taxonomy, &demo);
         progress(&format!("{} ({})", demo.name, notes.join("; ")));
+        let prepared = prepare_loaded(demo, classifier)?;
+        let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels);
+        let classifier = score_labels(
+            &prepared.demo,
+            &classifier_map.values,
+            taxonomy.class_count(),
+        )?;
         scenes.push(TuningScene {
-            prepared: prepare_loaded(demo, classifier)?,
+            prepared,
             notes,
+            classifier,
         });
     }
     Ok(scenes)
@@ -235,10 +245,9 @@ pub fn objective(
     let mut states = 0usize;
     for tuning in scenes {
         let prepared = &tuning.prepared;
-        let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels);
-        let classifier = score_labels(&prepared.demo, &classifier_map.values, class_count)?;
+        let classifier = &tuning.classifier;
         let baseline = believe_without_notes(prepared, settings)?;
-        total += state_score(prepared, &baseline.graph, class_count, &classifier)?;
+        total += state_score(prepared, &baseline.graph, class_count, classifier)?;
         states += 1;
         let inputs = TurnInputs {
             scene: &prepared.scene,
@@ -259,7 +268,7 @@ pub fn objective(
                 false,
                 settings,
             )?;
-            total += state_score(prepared, &correction.graph, class_count, &classifier)?;
+            total += state_score(prepared, &correction.graph, class_count, classifier)?;
             states += 1;
             previous = Some(correction);
         }

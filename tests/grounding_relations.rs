@@ -103,11 +103,15 @@ fn touching_in_the_picture_at_very_different_depths_is_not_next_to() {
 
 mod grounding_a_sentence {
     use super::*;
-    use sayso::grounding::{ground, GroundedKind, GroundingContext, GroundingIssue, SceneView};
+    use sayso::grounding::{
+        ground, GroundedKind, Grounding, GroundingContext, GroundingIssue, SceneView,
+    };
     use sayso::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
     use sayso::ids::ClassId;
+    use sayso::language::constraint::Constraint;
     use sayso::language::Grammar;
     use sayso::scene::BoundingBox;
+    use sayso::taxonomy::Taxonomy;
 
     fn hypothesis(class: ClassId, members: &[u32]) -> Hypothesis {
         let members = segments(members);
@@ -119,6 +123,24 @@ mod grounding_a_sentence {
             score: 0.8,
             origin: HypothesisOrigin::FineGroup,
         }
+    }
+
+    /// Grounds `constraints` with every hypothesis accepted.
+    fn ground_all_accepted(
+        constraints: &[Constraint],
+        scene: &Scene,
+        taxonomy: &Taxonomy,
+        hypotheses: &[Hypothesis],
+    ) -> Grounding {
+        let accepted = vec![true; hypotheses.len()];
+        let view = SceneView {
+            scene,
+            taxonomy,
+            hypotheses,
+            accepted: &accepted,
+            class_count: taxonomy.class_count(),
+        };
+        ground(constraints, &view, &GroundingContext::default())
     }
 
     #[test]
@@ -134,15 +156,7 @@ mod grounding_a_sentence {
             hypothesis(class("wall"), &BORDER),
             hypothesis(class("table"), &[12]),
         ];
-        let accepted = vec![true; hypotheses.len()];
-        let view = SceneView {
-            scene: &scene,
-            taxonomy: &taxonomy,
-            hypotheses: &hypotheses,
-            accepted: &accepted,
-            class_count: taxonomy.class_count(),
-        };
-        let grounding = ground(&parse.constraints, &view, &GroundingContext::default());
+        let grounding = ground_all_accepted(&parse.constraints, &scene, &taxonomy, &hypotheses);
         assert!(grounding.constraints.is_empty());
         assert_eq!(
             grounding.issues,
@@ -159,15 +173,7 @@ mod grounding_a_sentence {
 
         // A second table, on the inner ring, touches the wall: it is the one meant.
         hypotheses.push(hypothesis(class("table"), &[6]));
-        let accepted = vec![true; hypotheses.len()];
-        let view = SceneView {
-            scene: &scene,
-            taxonomy: &taxonomy,
-            hypotheses: &hypotheses,
-            accepted: &accepted,
-            class_count: taxonomy.class_count(),
-        };
-        let grounding = ground(&parse.constraints, &view, &GroundingContext::default());
+        let grounding = ground_all_accepted(&parse.constraints, &scene, &taxonomy, &hypotheses);
         assert!(grounding.issues.is_empty(), "{:?}", grounding.issues);
         match &grounding.constraints[0].kind {
             GroundedKind::Relabel { target, .. } => assert_eq!(target.hypotheses, vec![2]),

@@ -3,7 +3,9 @@
 //! Owns: `Footprint` (box, centroid, area, optional depth) and `holds(relation, subject, landmarks)`.
 //! Must not: know about hypotheses, segments or classes. This is the single bridge from the words of a
 //! relation to the shared geometric predicates in `crate::geometry::relations` (whose thresholds are
-//! documented there), so grounding, the energy and the scene graph judge relations the same way.
+//! documented there). Grounding and the energy's relation factors call it through
+//! `super::measures::relation_holds`, which also asks the segment masks when one box encloses the other
+//! for "next to"; the scene graph's reported relations still come from `holds` on boxes alone.
 
 use serde::{Deserialize, Serialize};
 

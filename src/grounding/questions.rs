@@ -9,9 +9,8 @@ use serde::{Deserialize, Serialize};
 use super::predicates::{holds, relation_words};
 use super::{in_region, SceneView};
 use crate::ids::HypothesisId;
-use crate::language::constraint::{
-    Attribute, ColourTerm, ImageRegion, Referent, Relation, SizeTerm,
-};
+use crate::language::constraint::{ImageRegion, Referent, Relation};
+use crate::language::notation::attribute_name;
 use crate::taxonomy::{ClassGroup, Taxonomy};
 
 /// A question to send back instead of guessing, with the objects it distinguishes.
@@ -60,7 +59,7 @@ fn number_word(n: usize) -> String {
 pub fn describe_referent(taxonomy: &Taxonomy, referent: &Referent) -> String {
     let mut words = vec!["the".to_string()];
     for attribute in &referent.attributes {
-        words.push(attribute_word(*attribute).to_string());
+        words.push(attribute_name(*attribute).to_string());
     }
     let head = match referent.class {
         Some(class) => taxonomy.class_name(class).replace('_', " "),
@@ -83,26 +82,6 @@ pub fn describe_referent(taxonomy: &Taxonomy, referent: &Referent) -> String {
         words.push(landmarks.join(" and "));
     }
     words.join(" ")
-}
-
-fn attribute_word(attribute: Attribute) -> &'static str {
-    match attribute {
-        Attribute::Size(SizeTerm::Big) => "big",
-        Attribute::Size(SizeTerm::Small) => "small",
-        Attribute::Colour(term) => match term {
-            ColourTerm::Black => "black",
-            ColourTerm::White => "white",
-            ColourTerm::Red => "red",
-            ColourTerm::Green => "green",
-            ColourTerm::Yellow => "yellow",
-            ColourTerm::Blue => "blue",
-            ColourTerm::Brown => "brown",
-            ColourTerm::Purple => "purple",
-            ColourTerm::Pink => "pink",
-            ColourTerm::Orange => "orange",
-            ColourTerm::Grey => "grey",
-        },
-    }
 }
 
 fn region_phrase(region: ImageRegion) -> &'static str {

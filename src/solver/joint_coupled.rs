@@ -136,24 +136,22 @@ fn best_for_class(
     free_deltas: &[f64],
     free_off_cost: f64,
 ) -> ClassChoice {
-    let energy = inputs.energy;
     let present_cost = presence_cost(inputs, tables, room, class);
     let mut best = ClassChoice {
         cost: f64::INFINITY,
         switched_on: 0,
         present: false,
     };
-    let mut prefix = 0.0;
-    for switched_on in 0..=free_deltas.len() {
-        if switched_on > 0 {
-            prefix += free_deltas[switched_on - 1];
-        }
-        let n = (forced_on + switched_on) as u32;
-        let mut cost = forced_cost + free_off_cost + prefix;
-        for &factor in &tables.counts_by_class[class] {
-            let factor = &energy.count_factors[factor];
-            cost += factor.weight * count_violation(factor.count, n) as f64;
-        }
+    let counts = room_independent_costs(
+        inputs,
+        tables,
+        class,
+        forced_on,
+        forced_cost,
+        free_deltas,
+        free_off_cost,
+    );
+    for (switched_on, n, mut cost) in counts {
         let supported = n > 0 || inputs.segment_support[class];
         // Relaxed: presence may also be on without support, when that is cheaper.
         let (presence_cost, present) =
@@ -172,6 +170,35 @@ fn best_for_class(
         }
     }
     best
+}
+
+/// For each number of free hypotheses switched on (cheapest first), that number, the class's object count
+/// `n` and the room-independent cost: the enumerated and free hypotheses' costs plus the count factors at
+/// `n`.
+#[allow(clippy::too_many_arguments)]
+fn room_independent_costs<'a>(
+    inputs: &'a CoupledInputs,
+    tables: &'a CoupledTables,
+    class: usize,
+    forced_on: usize,
+    forced_cost: f64,
+    free_deltas: &'a [f64],
+    free_off_cost: f64,
+) -> impl Iterator<Item = (usize, u32, f64)> + 'a {
+    let energy = inputs.energy;
+    let mut prefix = 0.0;
+    (0..=free_deltas.len()).map(move |switched_on| {
+        if switched_on > 0 {
+            prefix += free_deltas[switched_on - 1];
+        }
+        let n = (forced_on + switched_on) as u32;
+        let mut cost = forced_cost + free_off_cost + prefix;
+        for &factor in &tables.counts_by_class[class] {
+            let factor = &energy.count_factors[factor];
+            cost += factor.weight * count_violation(factor.count, n) as f64;
+        }
+        (switched_on, n, cost)
+    })
 }
 
 /// The cost of class `class` being present in room `room`: the room's presence statistic, less the
@@ -204,23 +231,21 @@ impl ClassParts {
         free_deltas: &[f64],
         free_off_cost: f64,
     ) -> ClassParts {
-        let energy = inputs.energy;
         let mut parts = ClassParts {
             supported: f64::INFINITY,
             unsupported: f64::INFINITY,
         };
-        let mut prefix = 0.0;
-        for switched_on in 0..=free_deltas.len() {
-            if switched_on > 0 {
-                prefix += free_deltas[switched_on - 1];
-            }
-            let n = (forced_on + switched_on) as u32;
-            // Summed in the order `best_for_class` sums it, so the costs agree to the bit.
-            let mut cost = forced_cost + free_off_cost + prefix;
-            for &factor in &tables.counts_by_class[class] {
-                let factor = &energy.count_factors[factor];
-                cost += factor.weight * count_violation(factor.count, n) as f64;
-            }
+        // The same sums `best_for_class` adds the presence cost to, so the costs agree to the bit.
+        let counts = room_independent_costs(
+            inputs,
+            tables,
+            class,
+            forced_on,
+            forced_cost,
+            free_deltas,
+            free_off_cost,
+        );
+        for (_, n, cost) in counts {
             if n > 0 || inputs.segment_support[class] {
                 parts.supported = parts.supported.min(cost);
             } else {
