@@ -20,6 +20,7 @@ use sayso::language::constraint::{
     Constraint, ConstraintKind, Count, Deixis, Focus, Referent, Span,
 };
 use sayso::scenegraph::correct::{correct, CorrectionRequest};
+use sayso::scenegraph::instances::InstanceCuts;
 use sayso::solver::joint::{solve_joint, JointOptions, WarmStart};
 use sayso::taxonomy::Taxonomy;
 
@@ -399,6 +400,7 @@ fn bench_joint(criterion: &mut Criterion) {
         weights: &weights,
         proposals: &proposals,
         options: &options,
+        instance_cuts: &InstanceCuts::embedded(&taxonomy).unwrap(),
     };
     let correction = correct(&request).unwrap();
     let scene_bytes = scene.image.pixels.len() * 3

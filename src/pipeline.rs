@@ -23,6 +23,7 @@ use crate::language::{Conversation, Grammar};
 use crate::scene::{Scene, SceneError, SceneParams};
 use crate::scenegraph::changes::{Change, ChangeKind, ChangeStatus, Unmet};
 use crate::scenegraph::correct::{correct, Correction, CorrectionError, CorrectionRequest};
+use crate::scenegraph::instances::{InstanceCuts, InstanceCutsError};
 use crate::solver::joint::JointOptions;
 use crate::taxonomy::Taxonomy;
 use crate::unaries::builtin::{builtin_unaries, current_feature_layout};
@@ -53,6 +54,8 @@ pub enum PipelineError {
     Prior(#[from] EnergyError),
     #[error("correcting: {0}")]
     Correction(#[from] CorrectionError),
+    #[error("{0}")]
+    InstanceCuts(#[from] InstanceCutsError),
 }
 
 /// Which scene to work on.
@@ -206,13 +209,17 @@ pub struct CorrectionSettings {
     pub weights: EnergyWeights,
     pub proposals: ProposalOptions,
     pub options: JointOptions,
+    pub instance_cuts: InstanceCuts,
 }
 
 impl CorrectionSettings {
-    /// The built-in grammar, room prior and default weights.
+    /// The built-in grammar, room prior, default weights and instance cuts.
     pub fn embedded() -> Result<CorrectionSettings, PipelineError> {
+        let grammar = Grammar::embedded()?;
+        let instance_cuts = InstanceCuts::embedded(grammar.taxonomy())?;
         Ok(CorrectionSettings {
-            grammar: Grammar::embedded()?,
+            grammar,
+            instance_cuts,
             prior: RoomClassPrior::embedded()?,
             weights: EnergyWeights::embedded()?,
             proposals: ProposalOptions::default(),
@@ -368,6 +375,7 @@ pub fn correct_turn(
         weights: &settings.weights,
         proposals: &settings.proposals,
         options: &settings.options,
+        instance_cuts: &settings.instance_cuts,
     };
     Ok(correct(&request)?)
 }

@@ -2,7 +2,8 @@
 //!
 //! Owns: the seed check (training renders never use the demo seeds 1000..=1999, which are the evaluation
 //! set), rendering training scenes in memory, counting room-type-to-class presence and class co-occurrence
-//! (`crate::energy::statistics`), the scripted training notes written from a render's ground truth, the
+//! (`crate::energy::statistics`) and how well each cut strength tells a class's objects apart
+//! (`crate::scenegraph::instance_statistics`), the scripted training notes written from a render's ground truth, the
 //! tuning objective and the coordinate search over weights. `sayso tune` is its command.
 //! Must not: read or score demo scenes, or write files (the binary writes what this returns).
 //!
@@ -37,6 +38,8 @@ use crate::pipeline::{
 };
 use crate::render::catalogue::DEMO_SEEDS;
 use crate::render::{render_scene, RenderError, SceneRequest, ROOM_TYPES};
+use crate::scene::{Scene, SceneParams};
+use crate::scenegraph::instance_statistics::{InstanceCountError, InstanceCutCounts};
 use crate::scenegraph::{label_map, SceneGraph};
 use crate::taxonomy::{ClassGroup, Taxonomy};
 use crate::unaries::classifier::Classifier;
@@ -82,6 +85,8 @@ pub enum TuningError {
     Energy(#[from] EnergyError),
     #[error(transparent)]
     Evaluation(#[from] EvaluationError),
+    #[error("counting instance cuts: {0}")]
+    InstanceCount(#[from] InstanceCountError),
     #[error("unknown weight '{0}'")]
     UnknownWeight(String),
 }
@@ -128,23 +133,42 @@ pub fn render_training_scene(
     })
 }
 
-/// Counts room-type-to-class presence and co-occurrence over the renders of `seeds`.
+/// What `count_statistics` counts over training renders.
+pub struct TrainingCounts {
+    /// Room-type-to-class presence and co-occurrence (the room-class prior).
+    pub rooms: RoomClassCounts,
+    /// How well each cut strength recovers each class's objects (the instance cuts).
+    pub instances: InstanceCutCounts,
+}
+
+/// Counts room-type-to-class presence and co-occurrence, and the instance-cut tallies (over the
+/// superpixels the pipeline builds), over the renders of `seeds`.
 pub fn count_statistics(
     taxonomy: &Taxonomy,
     seeds: Range<u64>,
     mut progress: impl FnMut(&str),
-) -> Result<RoomClassCounts, TuningError> {
+) -> Result<TrainingCounts, TuningError> {
     check_training_seeds(&seeds)?;
-    let mut counts = RoomClassCounts::new(taxonomy.rooms().len(), taxonomy.class_count());
+    let mut rooms = RoomClassCounts::new(taxonomy.rooms().len(), taxonomy.class_count());
+    let mut instances = InstanceCutCounts::new(taxonomy.class_count());
     for (index, seed) in seeds.enumerate() {
-        let scene = render_training_scene(taxonomy, seed, index)?;
+        let rendered = render_training_scene(taxonomy, seed, index)?;
         let room = taxonomy
-            .room_by_name(&scene.metadata.room)
-            .ok_or_else(|| TuningError::UnknownRoom(scene.metadata.room.clone()))?;
-        counts.add_scene(room.id.index(), &scene.labels.values)?;
-        progress(&scene.name);
+            .room_by_name(&rendered.metadata.room)
+            .ok_or_else(|| TuningError::UnknownRoom(rendered.metadata.room.clone()))?;
+        rooms.add_scene(room.id.index(), &rendered.labels.values)?;
+        let scene = Scene::from_image(
+            rendered.name.clone(),
+            rendered.image.clone(),
+            Some(rendered.depth.clone()),
+            None,
+            &SceneParams::default(),
+        )
+        .map_err(PipelineError::from)?;
+        instances.add_scene(&scene, &rendered.labels.values, &rendered.instances.values)?;
+        progress(&rendered.name);
     }
-    Ok(counts)
+    Ok(TrainingCounts { rooms, instances })
 }
 
 const NUMBER_WORDS: [&str; 7] = ["zero", "one", "two", "three", "four", "five", "six"];

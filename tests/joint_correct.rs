@@ -19,6 +19,7 @@ use sayso::language::constraint::{
 use sayso::scene::Scene;
 use sayso::scenegraph::changes::{ChangeKind, ChangeStatus};
 use sayso::scenegraph::correct::{correct, Correction, CorrectionRequest};
+use sayso::scenegraph::instances::InstanceCuts;
 use sayso::solver::joint::JointOptions;
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::Unaries;
@@ -148,6 +149,7 @@ fn run(
         weights: &EnergyWeights::default(),
         proposals: &ProposalOptions::default(),
         options: &JointOptions::default(),
+        instance_cuts: &InstanceCuts::embedded(&kitchen.taxonomy).unwrap(),
     };
     correct(&request).unwrap()
 }
@@ -513,6 +515,7 @@ fn nan_unaries_and_empty_energies_are_typed_errors() {
         weights: &EnergyWeights::default(),
         proposals: &ProposalOptions::default(),
         options: &JointOptions::default(),
+        instance_cuts: &InstanceCuts::embedded(&kitchen.taxonomy).unwrap(),
     };
     let error = correct(&request).unwrap_err().to_string();
     assert!(error.contains("segment 3 class 2"), "{error}");

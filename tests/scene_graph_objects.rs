@@ -7,7 +7,21 @@ use common::grid_scene::{grid_scene, Cell};
 use sayso::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
 use sayso::ids::{ClassId, SegmentId};
 use sayso::scene::{BoundingBox, Scene};
-use sayso::scenegraph::objects::{form_objects, MIN_SHOWN_SEGMENTS};
+use sayso::scenegraph::instances::InstanceCuts;
+use sayso::scenegraph::objects::{form_objects, FormedObject, MIN_SHOWN_SEGMENTS};
+use sayso::taxonomy::Taxonomy;
+
+/// `form_objects` with no class ever cut, so the count rule is seen alone.
+fn form_uncut(
+    scene: &Scene,
+    labels: &[u16],
+    hypotheses: &[Hypothesis],
+    accepted: &[bool],
+    counted: &[(ClassId, u32)],
+) -> Vec<FormedObject> {
+    let cuts = InstanceCuts::none(Taxonomy::embedded().class_count());
+    form_objects(scene, labels, hypotheses, accepted, counted, &cuts)
+}
 
 const BOOK: u16 = 26;
 const WALL: u16 = 1;
@@ -42,7 +56,7 @@ fn hypothesis(class: u16, members: &[u32]) -> Hypothesis {
     }
 }
 
-fn members_of(objects: &[sayso::scenegraph::objects::FormedObject], class: u16) -> Vec<Vec<u32>> {
+fn members_of(objects: &[FormedObject], class: u16) -> Vec<Vec<u32>> {
     let mut found: Vec<Vec<u32>> = objects
         .iter()
         .filter(|o| o.class.0 == class)
@@ -64,14 +78,14 @@ fn connected_labels_are_one_object_unless_a_count_asks_for_more() {
     ];
     let accepted = [true, true, false];
     // No count: each run of touching book cells is one object; the walls are objects of their own.
-    let plain = form_objects(&scene, &labels, &hypotheses, &accepted, &[]);
+    let plain = form_uncut(&scene, &labels, &hypotheses, &accepted, &[]);
     assert_eq!(
         members_of(&plain, BOOK),
         vec![vec![0, 1, 2, 3], vec![5, 6, 7, 8]]
     );
     assert_eq!(members_of(&plain, WALL), vec![vec![4], vec![9]]);
     // "There are two books": the labels already show two, nothing is split.
-    let two = form_objects(
+    let two = form_uncut(
         &scene,
         &labels,
         &hypotheses,
@@ -81,7 +95,7 @@ fn connected_labels_are_one_object_unless_a_count_asks_for_more() {
     assert_eq!(members_of(&two, BOOK), members_of(&plain, BOOK));
     // "There are three books": one short, so the first of the two equal runs is cut in two (equal cells
     // and contrast: the medoids settle on the two halves).
-    let three = form_objects(
+    let three = form_uncut(
         &scene,
         &labels,
         &hypotheses,
@@ -113,7 +127,7 @@ fn a_stray_fragment_is_not_an_object_the_count_already_sees() {
     // Five book cells in a run and a lone book cell (a fragment of fewer than MIN_SHOWN_SEGMENTS).
     let labels = [BOOK, BOOK, BOOK, BOOK, BOOK, WALL, BOOK, WALL, WALL, WALL];
     const { assert!(MIN_SHOWN_SEGMENTS > 1) };
-    let objects = form_objects(&scene, &labels, &[], &[], &[(ClassId(BOOK), 2)]);
+    let objects = form_uncut(&scene, &labels, &[], &[], &[(ClassId(BOOK), 2)]);
     let books = members_of(&objects, BOOK);
     // The run is cut in two; the fragment stays an object of its own.
     assert_eq!(books.len(), 3, "{books:?}");
@@ -157,9 +171,129 @@ fn touching_objects_part_along_the_colour_boundary() {
         &[0, 0, 0, 1, 1, 1, 1, 1],
     );
     let labels = [BOOK; 8];
-    let objects = form_objects(&scene, &labels, &[], &[], &[(ClassId(BOOK), 2)]);
+    let objects = form_uncut(&scene, &labels, &[], &[], &[(ClassId(BOOK), 2)]);
     assert_eq!(
         members_of(&objects, BOOK),
         vec![vec![0, 1, 2], vec![3, 4, 5, 6, 7]]
     );
+}
+
+#[test]
+fn books_of_different_colours_side_by_side_are_separate_objects_under_the_committed_cuts() {
+    // Six book cells in one run: red, red, blue, green, green, yellow (each colour one book; CIE76
+    // contrast between the colours far above the committed book cut, between equal colours 0), then a wall.
+    let colours = [
+        [170, 30, 30],
+        [170, 30, 30],
+        [30, 40, 170],
+        [30, 150, 40],
+        [30, 150, 40],
+        [220, 200, 40],
+        [200, 200, 200],
+    ];
+    let cells: Vec<Cell> = colours
+        .iter()
+        .map(|&colour| Cell {
+            colour,
+            scores: vec![(BOOK, 0.9)],
+        })
+        .collect();
+    let scene = grid_scene(
+        "juniper-lane-book-row",
+        7,
+        1,
+        4,
+        &cells,
+        &[0, 0, 0, 0, 0, 0, 1],
+    );
+    let labels = [BOOK, BOOK, BOOK, BOOK, BOOK, BOOK, WALL];
+    let taxonomy = Taxonomy::embedded();
+    let cuts = InstanceCuts::embedded(&taxonomy).unwrap();
+    assert!(
+        cuts.cut(ClassId(BOOK)).is_some(),
+        "the committed file cuts books"
+    );
+    let objects = form_objects(&scene, &labels, &[], &[], &[], &cuts);
+    assert_eq!(
+        members_of(&objects, BOOK),
+        vec![vec![0, 1], vec![2], vec![3, 4], vec![5]]
+    );
+    // The wall is never cut, and with no cuts the run is one book.
+    assert_eq!(members_of(&objects, WALL), vec![vec![6]]);
+    assert_eq!(
+        members_of(&form_uncut(&scene, &labels, &[], &[], &[]), BOOK),
+        vec![vec![0, 1, 2, 3, 4, 5]]
+    );
+}
+
+#[test]
+fn counted_cuts_part_books_that_differ_in_colour_and_leave_single_walls_whole() {
+    use sayso::scenegraph::instance_statistics::{InstanceCutCounts, CANDIDATE_CUTS, MIN_OBJECTS};
+    // The book row above as ground truth: books are instances 1..=4 (cells 0-1, 2, 3-4, 5), the wall
+    // instance 5 (cell 6). Counted five times, so books reach MIN_OBJECTS (20) and the wall does not.
+    let colours = [
+        [170, 30, 30],
+        [170, 30, 30],
+        [30, 40, 170],
+        [30, 150, 40],
+        [30, 150, 40],
+        [220, 200, 40],
+        [200, 200, 200],
+    ];
+    let cells: Vec<Cell> = colours
+        .iter()
+        .map(|&colour| Cell {
+            colour,
+            scores: vec![(BOOK, 0.9)],
+        })
+        .collect();
+    let cell = 4u32;
+    let scene = grid_scene(
+        "juniper-lane-book-row",
+        7,
+        1,
+        cell,
+        &cells,
+        &[0, 0, 0, 0, 0, 0, 1],
+    );
+    let instance_of_cell = [1u16, 1, 2, 3, 3, 4, 5];
+    let (width, height) = (7 * cell, cell);
+    let mut labels = Vec::new();
+    let mut instances = Vec::new();
+    for _y in 0..height {
+        for x in 0..width {
+            let c = (x / cell) as usize;
+            labels.push(if c == 6 { WALL } else { BOOK });
+            instances.push(instance_of_cell[c]);
+        }
+    }
+    let taxonomy = Taxonomy::embedded();
+    let mut counts = InstanceCutCounts::new(taxonomy.class_count());
+    for _ in 0..5 {
+        counts.add_scene(&scene, &labels, &instances).unwrap();
+    }
+    assert_eq!(counts.scene_count(), 5);
+    const { assert!(MIN_OBJECTS == 20) };
+    // Never cut: one patch of six cells against books of at most two: nothing matched, one patch invented.
+    let whole = counts.tally(BOOK as usize, 0).unwrap();
+    assert_eq!((whole.matched, whole.invented, whole.missed), (0, 5, 20));
+    // The smallest candidate parts every colour edge and no same-colour one: all 20 books found.
+    let finest = counts.tally(BOOK as usize, 1).unwrap();
+    assert_eq!((finest.matched, finest.invented, finest.missed), (20, 0, 0));
+    let chosen = counts.chosen();
+    let book_cut = chosen[BOOK as usize].expect("books are cut");
+    assert!(CANDIDATE_CUTS.contains(&book_cut));
+    assert_eq!(
+        chosen[WALL as usize], None,
+        "5 wall objects are below MIN_OBJECTS"
+    );
+    let file = counts.to_file(&taxonomy, "test".into()).unwrap();
+    assert_eq!(file.cuts.keys().collect::<Vec<_>>(), vec!["book"]);
+    let cuts = InstanceCuts::from_file(&file, &taxonomy).unwrap();
+    let final_labels = [BOOK, BOOK, BOOK, BOOK, BOOK, BOOK, WALL];
+    let objects = form_objects(&scene, &final_labels, &[], &[], &[], &cuts);
+    assert_eq!(members_of(&objects, BOOK).len(), 4);
+    // A raster of the wrong size is refused, and counts nothing.
+    assert!(counts.add_scene(&scene, &labels[1..], &instances).is_err());
+    assert_eq!(counts.scene_count(), 5);
 }

@@ -1,5 +1,5 @@
 //! `sayso tune`: counts room-type-to-class statistics over training renders and tunes a few energy weights
-//! on other training renders, then writes `room_class_prior.json` and `energy_weights.json` into `--out`.
+//! on other training renders, then writes `room_class_prior.json`, `instance_cuts.json` and `energy_weights.json` into `--out`.
 //!
 //! Owns: the flags, the progress lines and writing the two files. Must not: count, search or score itself;
 //! that is `sayso::tuning`. It never reads demo scenes: every scene is rendered from a training seed, and
@@ -12,6 +12,7 @@ use anyhow::Context;
 
 use sayso::energy::build::{EnergyWeights, WeightsFile, WEIGHTS_SCHEMA};
 use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
+use sayso::scenegraph::instances::InstanceCuts;
 use sayso::taxonomy::Taxonomy;
 use sayso::tuning::{count_statistics, prepare_tuning_scenes, tune_weights, TUNED_WEIGHTS};
 
@@ -57,10 +58,10 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
             eprintln!("counted {rendered} renders");
         }
     })?;
-    let prior = counts.to_prior(format!(
+    let prior = counts.rooms.to_prior(format!(
         "counted by `sayso tune` over {} training renders, seeds {}..{} (room types in turn); \
          P(class in view | room) by Laplace's rule, P(room) add-one",
-        counts.scene_count(),
+        counts.rooms.scene_count(),
         stats_seeds.start,
         stats_seeds.end
     ));
@@ -70,7 +71,29 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
     println!(
         "wrote {} ({} scenes)",
         prior_path.display(),
-        counts.scene_count()
+        counts.rooms.scene_count()
+    );
+    let cuts_file = counts.instances.to_file(
+        &taxonomy,
+        format!(
+            "counted by `sayso tune` over {} training renders, seeds {}..{} (room types in turn): per class, \
+             the cut with the best recognition quality recovering ground-truth objects from ground-truth labels",
+            counts.instances.scene_count(),
+            stats_seeds.start,
+            stats_seeds.end
+        ),
+    )?;
+    for line in counts.instances.summary(&taxonomy) {
+        eprintln!("instance cuts: {line}");
+    }
+    let instance_cuts = InstanceCuts::from_file(&cuts_file, &taxonomy)?;
+    let cuts_path = args.out.join("instance_cuts.json");
+    std::fs::write(&cuts_path, serde_json::to_string_pretty(&cuts_file)? + "\n")
+        .with_context(|| format!("writing {}", cuts_path.display()))?;
+    println!(
+        "wrote {} ({} classes cut)",
+        cuts_path.display(),
+        cuts_file.cuts.len()
     );
     if args.passes == 0 {
         return Ok(());
@@ -79,6 +102,7 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let mut settings = CorrectionSettings::embedded()?;
     settings.prior = prior;
+    settings.instance_cuts = instance_cuts;
     if args.from_hand_set {
         settings.weights = EnergyWeights::default();
     }

@@ -9,6 +9,7 @@ use serde::{Deserialize, Serialize};
 use super::changes::{
     list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
 };
+use super::instances::InstanceCuts;
 use super::supersede::retire_superseded;
 use super::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
@@ -54,6 +55,8 @@ pub struct CorrectionRequest<'a> {
     pub weights: &'a EnergyWeights,
     pub proposals: &'a ProposalOptions,
     pub options: &'a JointOptions,
+    /// Where a patch of a class holds several objects (`super::instances`).
+    pub instance_cuts: &'a InstanceCuts,
 }
 
 /// One turn's result.
@@ -355,6 +358,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             relative_gap: solution.relative_gap,
             counted: &counted,
         },
+        request.instance_cuts,
     );
     Ok(Correction {
         graph,

@@ -8,6 +8,8 @@
 
 pub mod changes;
 pub mod correct;
+pub mod instance_statistics;
+pub mod instances;
 pub mod objects;
 pub mod split;
 pub mod supersede;
@@ -219,6 +221,7 @@ pub fn build_scene_graph(
     hypotheses: &[Hypothesis],
     state: &JointState,
     figures: SolvedFigures<'_>,
+    cuts: &instances::InstanceCuts,
 ) -> SceneGraph {
     let fine = scene.segment_count();
     let labels = &state.labels[..fine.min(state.labels.len())];
@@ -229,6 +232,7 @@ pub fn build_scene_graph(
         hypotheses,
         &state.hypotheses_on,
         figures.counted,
+        cuts,
     )
     .into_iter()
     .map(|formed| {

@@ -11,14 +11,12 @@
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
-/// Cost of one step between adjacent segments: 1, plus the colour contrast over this many CIE76 units,
-/// plus the relative depth jump over this share. Hand-set so that a plainly visible edge (CIE76 about 10,
-/// common practice for "clearly different") or a 10% depth step each add about one plain step. Not
-/// tuned: on training renders (`examples/render_objects.rs`, seeds 200000 and 200021, 21 each) the mean
-/// object accuracy after the notes moved by at most 0.005 for contrast units 5-20 and depth shares
-/// 0.05-0.3, or with depth ignored.
-const CONTRAST_UNIT: f32 = 10.0;
-const DEPTH_UNIT: f32 = 0.1;
+use super::instances::edge_strength;
+
+// Crossing costs 1 plus the edge's strength (`super::instances::edge_strength`: colour contrast in units
+// of 10 CIE76, depth step in units of 10%). Not tuned: on training renders (`examples/render_objects.rs`,
+// seeds 200000 and 200021, 21 each) the mean object accuracy after the notes moved by at most 0.005 for
+// contrast units 5-20 and depth shares 0.05-0.3, or with depth ignored.
 
 /// Rounds of medoid updates; the assignment has settled on every patch seen well before this.
 const ROUNDS: usize = 6;
@@ -34,18 +32,7 @@ struct Node {
 
 /// Step costs in thousandths, so Dijkstra's queue orders integers and the result is deterministic.
 fn step_cost(contrast: f32, depth: (Option<f32>, Option<f32>)) -> u64 {
-    let contrast = if contrast.is_finite() {
-        contrast.max(0.0)
-    } else {
-        0.0
-    };
-    let jump = match depth {
-        (Some(a), Some(b)) if a.is_finite() && b.is_finite() && a.min(b) > 0.0 => {
-            (a - b).abs() / a.min(b)
-        }
-        _ => 0.0,
-    };
-    let cost = 1.0 + contrast / CONTRAST_UNIT + jump / DEPTH_UNIT;
+    let cost = 1.0 + edge_strength(contrast, depth);
     (cost.min(1.0e6) * 1000.0).round() as u64
 }
 
