@@ -55,7 +55,12 @@ fn statistics_adjacency_and_coarse_level_are_consistent() {
     let scene = Scene::from_image("synthetic", image, None, None, &SceneParams::default()).unwrap();
     let (width, height) = (scene.width() as usize, scene.height() as usize);
     let count = scene.segment_count();
-    assert!((340..=460).contains(&count), "{count} segments");
+    // SLIC lands within ~15% of the requested count on this picture.
+    let target = sayso::scene::SCENE_SEGMENTS as usize;
+    assert!(
+        (target * 85 / 100..=target * 115 / 100).contains(&count),
+        "{count} segments for {target} requested"
+    );
     assert_eq!(scene.stats.len(), count);
 
     // Areas add up and match the label map; centroids lie inside their boxes.

@@ -110,7 +110,7 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         (
             rows,
             format!(
-                "{} scenes from `{}`; one row per segment (SLIC defaults), labelled with the majority class of its pixels in labels.png{}.",
+                "{} scenes from `{}`; one row per segment (the scene defaults: SLIC aiming at `scene::SCENE_SEGMENTS` segments), labelled with the majority class of its pixels in labels.png{}.",
                 entries.len(),
                 directory.display(),
                 if directory.join("index.jsonl").is_file() {
@@ -129,7 +129,7 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         (
             rows?,
             format!(
-                "{count} scenes rendered with seeds {}..{} (room types in turn, as `sayso render --seed {} --count {count}`); one row per segment (SLIC defaults), labelled with the majority ground-truth class of its pixels.",
+                "{count} scenes rendered with seeds {}..{} (room types in turn, as `sayso render --seed {} --count {count}`); one row per segment (the scene defaults: SLIC aiming at `scene::SCENE_SEGMENTS` segments), labelled with the majority ground-truth class of its pixels.",
                 args.seed_base,
                 args.seed_base + count as u64,
                 args.seed_base

@@ -32,11 +32,17 @@ pub struct SceneParams {
     pub segments_per_region: u32,
 }
 
+/// Fine segments a scene aims at: ~384 pixels each on a 640x480 image.
+pub const SCENE_SEGMENTS: u32 = 800;
+
 impl Default for SceneParams {
-    /// SLIC defaults (400 segments) and about 8 fine segments per coarse region.
+    /// SLIC with 800 segments (compactness and iterations as `SlicParams::default`) and about 8 fine
+    /// segments per coarse region.
     fn default() -> Self {
         SceneParams {
-            superpixels: SlicParams::default(),
+            superpixels: SlicParams::default()
+                .with_target_segments(SCENE_SEGMENTS)
+                .unwrap_or_default(),
             segments_per_region: 8,
         }
     }

@@ -340,7 +340,7 @@ mod tests {
     use crate::raster::RgbImage;
     use crate::scene::SceneParams;
 
-    /// A 64x48 picture of coloured blocks cut by SLIC (default settings: about 400 requested, so every
+    /// A 64x48 picture of coloured blocks cut by SLIC (scene defaults: many more requested than blocks, so every
     /// block is split into several irregular segments).
     fn blocks() -> &'static Scene {
         static SCENE: std::sync::OnceLock<Scene> = std::sync::OnceLock::new();
