@@ -181,3 +181,50 @@ mod grounding_a_sentence {
         }
     }
 }
+
+#[test]
+fn the_scene_graphs_measured_test_agrees_with_relation_holds_on_every_pair() {
+    // The scene graph measures every object's footprint once and calls `relation_holds_measured`; it must
+    // answer as grounding and the energy do.
+    use sayso::grounding::{footprint_of, relation_holds_measured};
+    let scene = rings();
+    let mut border_and_inner = segments(&BORDER);
+    border_and_inner.extend(segments(&INNER));
+    border_and_inner.sort();
+    let sets = [
+        segments(&[12]),
+        segments(&BORDER),
+        segments(&INNER),
+        border_and_inner,
+        segments(&[0, 1, 5]),
+        segments(&[18, 19, 23, 24]),
+    ];
+    let relations = [
+        Relation::On,
+        Relation::Under,
+        Relation::Inside,
+        Relation::NextTo,
+        Relation::LeftOf,
+        Relation::InFrontOf,
+        Relation::Behind,
+    ];
+    let mut next_to_by_masks = 0;
+    for subject in &sets {
+        for landmark in &sets {
+            for relation in relations {
+                let whole = relation_holds(&scene, relation, subject, &[landmark.as_slice()]);
+                let measured = relation_holds_measured(
+                    &scene,
+                    relation,
+                    (subject, &footprint_of(&scene, subject)),
+                    (landmark, &footprint_of(&scene, landmark)),
+                );
+                assert_eq!(whole, measured, "{relation:?} {subject:?} {landmark:?}");
+                if relation == Relation::NextTo && whole {
+                    next_to_by_masks += 1;
+                }
+            }
+        }
+    }
+    assert!(next_to_by_masks > 0, "some pair is next to another");
+}

@@ -59,12 +59,39 @@ pub fn relation_holds(
     if holds(relation, &subject_footprint, &landmark_footprints) {
         return true;
     }
-    match (relation, landmarks, landmark_footprints.first()) {
-        (Relation::NextTo, [landmark], Some(landmark_footprint)) => {
-            enclosed(&subject_footprint, landmark_footprint) && touching(scene, subject, landmark)
-        }
+    match (landmarks, landmark_footprints.first()) {
+        ([landmark], Some(landmark_footprint)) => touching_next_to(
+            scene,
+            relation,
+            (subject, &subject_footprint),
+            (landmark, landmark_footprint),
+        ),
         _ => false,
     }
+}
+
+/// `relation_holds` for one landmark whose footprint, like the subject's, is already measured (the scene
+/// graph measures every object once and tests every pair).
+pub fn relation_holds_measured(
+    scene: &Scene,
+    relation: Relation,
+    subject: (&[SegmentId], &Footprint),
+    landmark: (&[SegmentId], &Footprint),
+) -> bool {
+    holds(relation, subject.1, std::slice::from_ref(landmark.1))
+        || touching_next_to(scene, relation, subject, landmark)
+}
+
+/// The mask test of "next to" when one box encloses the other (see `relation_holds`).
+fn touching_next_to(
+    scene: &Scene,
+    relation: Relation,
+    subject: (&[SegmentId], &Footprint),
+    landmark: (&[SegmentId], &Footprint),
+) -> bool {
+    relation == Relation::NextTo
+        && enclosed(subject.1, landmark.1)
+        && touching(scene, subject.0, landmark.0)
 }
 
 /// One box lies (almost) wholly inside the other, by the shared `inside_fraction`.

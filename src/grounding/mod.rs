@@ -26,7 +26,7 @@ use crate::language::constraint::{
 use crate::scene::Scene;
 use crate::taxonomy::Taxonomy;
 
-pub use measures::{footprint_of, in_region, mean_colour, relation_holds};
+pub use measures::{footprint_of, in_region, mean_colour, relation_holds, relation_holds_measured};
 pub use predicates::{holds, Footprint};
 pub use questions::ClarifyingQuestion;
 

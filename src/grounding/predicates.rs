@@ -5,7 +5,8 @@
 //! relation to the shared geometric predicates in `crate::geometry::relations` (whose thresholds are
 //! documented there). Grounding and the energy's relation factors call it through
 //! `super::measures::relation_holds`, which also asks the segment masks when one box encloses the other
-//! for "next to"; the scene graph's reported relations still come from `holds` on boxes alone.
+//! for "next to"; the scene graph's reported relations use the same test on footprints it measured once
+//! (`super::measures::relation_holds_measured`).
 
 use serde::{Deserialize, Serialize};
 

@@ -17,7 +17,7 @@ pub mod supersede;
 use serde::{Deserialize, Serialize};
 
 use crate::energy::JointState;
-use crate::grounding::{footprint_of, holds};
+use crate::grounding::{footprint_of, relation_holds_measured};
 use crate::hypotheses::Hypothesis;
 use crate::ids::{ClassId, HypothesisId, ObjectId, RoomId, SegmentId};
 use crate::language::constraint::Relation;
@@ -281,7 +281,12 @@ pub fn build_scene_graph(
                 if is_structure(object.class) && relation != Relation::On {
                     continue;
                 }
-                if holds(relation, &footprints[a], &[footprints[b]]) {
+                if relation_holds_measured(
+                    scene,
+                    relation,
+                    (&subject.members, &footprints[a]),
+                    (&object.members, &footprints[b]),
+                ) {
                     relations.push(ObjectRelation {
                         subject: subject.id,
                         relation,
