@@ -16,6 +16,14 @@
 //! `RQ = TP / (TP + FP / 2 + FN / 2)` is the class's cut; "never cut" is a candidate too, and wins ties, so
 //! a class is cut only where cutting recovers more objects than it invents. A class with fewer than
 //! `MIN_OBJECTS` ground-truth objects over the scenes is never cut.
+//!
+//! # How a typical size is chosen
+//!
+//! A class's candidate typical size is the median depth-scaled area of its ground-truth objects (each
+//! object's pixels per segment times that segment's squared depth in metres, as `super::instances` measures
+//! a patch). With the class's chosen cut, every patch of the ground-truth labels is also parted by that
+//! size (`super::instances::part_by_size`); the class keeps the size only when the recognition quality over
+//! all scenes is higher than without it.
 
 use std::collections::{BTreeMap, HashMap};
 
@@ -23,7 +31,7 @@ use crate::scene::Scene;
 use crate::taxonomy::Taxonomy;
 
 use super::instances::{
-    components, neighbours, InstanceCutsError, InstanceCutsFile, INSTANCE_CUTS_SCHEMA,
+    components, neighbours, part_by_size, InstanceCutsError, InstanceCutsFile, INSTANCE_CUTS_SCHEMA,
 };
 
 /// The cut strengths tried: 0.25 to 6 in steps of 0.25 (about 2.5 to 60 CIE76 units of colour alone).
@@ -59,12 +67,67 @@ impl Tally {
     }
 }
 
+/// What is kept of one counted scene to try typical sizes once every scene is counted.
+#[derive(Clone, Debug, PartialEq)]
+struct SceneRecord {
+    segment_class: Vec<u16>,
+    neighbours: Vec<Vec<(usize, f32)>>,
+    depth: Vec<Option<f32>>,
+    area: Vec<u32>,
+    /// Per segment: (instance, pixels of the segment in it).
+    in_instance: Vec<Vec<(u16, u64)>>,
+    /// Per instance: (class, pixel area).
+    instances: BTreeMap<u16, (u16, u64)>,
+}
+
 /// Tallies per class: index 0 for "never cut", then one per `CANDIDATE_CUTS` entry.
 #[derive(Clone, Debug, PartialEq)]
 pub struct InstanceCutCounts {
     tallies: Vec<Vec<Tally>>,
     objects: Vec<u64>,
     scenes: u32,
+    /// Per class, the depth-scaled area of every ground-truth object with known depth.
+    scaled_sizes: Vec<Vec<f64>>,
+    records: Vec<SceneRecord>,
+}
+
+/// Matches the patches of `class` (each a list of segments) against the class's ground-truth objects.
+fn tally_patches<'a>(
+    record: &SceneRecord,
+    class: u16,
+    patches: impl Iterator<Item = &'a Vec<usize>>,
+) -> Tally {
+    let wanted = record
+        .instances
+        .values()
+        .filter(|(of, _)| *of == class)
+        .count() as u64;
+    let mut matched = 0u64;
+    let mut made = 0u64;
+    for patch in patches {
+        made += 1;
+        let area: u64 = patch.iter().map(|&s| u64::from(record.area[s])).sum();
+        let mut shared: HashMap<u16, u64> = HashMap::new();
+        for &segment in patch {
+            for &(instance, count) in &record.in_instance[segment] {
+                *shared.entry(instance).or_default() += count;
+            }
+        }
+        let hit = shared.iter().any(|(instance, &common)| {
+            record
+                .instances
+                .get(instance)
+                .is_some_and(|&(of, size)| of == class && 2 * common > area + size - common)
+        });
+        if hit {
+            matched += 1;
+        }
+    }
+    Tally {
+        matched,
+        invented: made - matched,
+        missed: wanted.saturating_sub(matched),
+    }
 }
 
 /// Why a scene could not be counted.
@@ -84,6 +147,8 @@ impl InstanceCutCounts {
             tallies: vec![vec![Tally::default(); CANDIDATE_CUTS.len() + 1]; class_count],
             objects: vec![0; class_count],
             scenes: 0,
+            scaled_sizes: vec![Vec::new(); class_count],
+            records: Vec::new(),
         }
     }
 
@@ -172,50 +237,63 @@ impl InstanceCutCounts {
         }
         let neighbours = neighbours(scene);
         let depth: Vec<Option<f32>> = scene.stats.iter().map(|s| s.mean_depth_mm).collect();
-        let mut present: Vec<u16> = segment_class.clone();
+        let area: Vec<u32> = scene.stats.iter().map(|s| s.area).collect();
+        let record = SceneRecord {
+            segment_class,
+            neighbours,
+            depth,
+            area,
+            in_instance: in_instance
+                .into_iter()
+                .map(|map| {
+                    let mut list: Vec<(u16, u64)> = map.into_iter().collect();
+                    list.sort_unstable();
+                    list
+                })
+                .collect(),
+            instances: instance_class
+                .iter()
+                .map(|(&instance, &class)| (instance, (class, instance_area[&instance])))
+                .collect(),
+        };
+        // Each object's depth-scaled area, from its pixels in each segment and that segment's depth.
+        let mut scaled: BTreeMap<u16, Option<f64>> = BTreeMap::new();
+        for (segment, list) in record.in_instance.iter().enumerate() {
+            let metres = record.depth[segment].map(|d| f64::from(d) / 1000.0);
+            for &(instance, count) in list {
+                let entry = scaled.entry(instance).or_insert(Some(0.0));
+                *entry = match (*entry, metres) {
+                    (Some(total), Some(m)) if m.is_finite() && m > 0.0 => {
+                        Some(total + count as f64 * m * m)
+                    }
+                    _ => None,
+                };
+            }
+        }
+        for (instance, size) in scaled {
+            if let (Some(size), Some(&(class, _))) = (size, record.instances.get(&instance)) {
+                if let Some(sizes) = self.scaled_sizes.get_mut(class as usize) {
+                    sizes.push(size);
+                }
+            }
+        }
+        let mut present: Vec<u16> = record.segment_class.clone();
         present.sort_unstable();
         present.dedup();
         for class in
             (0..class_count as u16).filter(|&c| objects_of[c as usize] > 0 || present.contains(&c))
         {
-            let wanted = objects_of[class as usize];
-            self.objects[class as usize] += wanted;
+            self.objects[class as usize] += objects_of[class as usize];
             for index in 0..=CANDIDATE_CUTS.len() {
-                let cut = if index == 0 {
-                    f32::INFINITY
-                } else {
-                    CANDIDATE_CUTS[index - 1]
-                };
-                let groups = components(&segment_class, &neighbours, &depth, |c, strength| {
-                    c.0 != class || strength <= cut
-                });
-                let mut matched = 0u64;
-                let mut made = 0u64;
-                for group in groups.iter().filter(|g| segment_class[g[0]] == class) {
-                    made += 1;
-                    let area: u64 = group.iter().map(|&s| segment_area[s]).sum();
-                    let mut shared: HashMap<u16, u64> = HashMap::new();
-                    for &segment in group {
-                        for (&instance, &count) in &in_instance[segment] {
-                            *shared.entry(instance).or_default() += count;
-                        }
-                    }
-                    let hit = shared.iter().any(|(instance, &common)| {
-                        instance_class.get(instance) == Some(&class) && {
-                            let union = area + instance_area[instance] - common;
-                            2 * common > union
-                        }
-                    });
-                    if hit {
-                        matched += 1;
-                    }
-                }
-                let tally = &mut self.tallies[class as usize][index];
-                tally.matched += matched;
-                tally.invented += made - matched;
-                tally.missed += wanted.saturating_sub(matched);
+                let groups = Self::patches(&record, class, Self::cut_at(index));
+                let tally = tally_patches(&record, class, groups.iter());
+                let total = &mut self.tallies[class as usize][index];
+                total.matched += tally.matched;
+                total.invented += tally.invented;
+                total.missed += tally.missed;
             }
         }
+        self.records.push(record);
         self.scenes += 1;
         Ok(())
     }
@@ -242,31 +320,114 @@ impl InstanceCutCounts {
             .collect()
     }
 
-    /// The file of the chosen cuts, by class name.
+    /// The cut of candidate `index` (0: never cut).
+    fn cut_at(index: usize) -> f32 {
+        if index == 0 {
+            f32::INFINITY
+        } else {
+            CANDIDATE_CUTS[index - 1]
+        }
+    }
+
+    /// The patches of `class` in a record's ground-truth labels, joined across edges no stronger than `cut`.
+    fn patches(record: &SceneRecord, class: u16, cut: f32) -> Vec<Vec<usize>> {
+        components(
+            &record.segment_class,
+            &record.neighbours,
+            &record.depth,
+            |c, strength| c.0 != class || strength <= cut,
+        )
+        .into_iter()
+        .filter(|group| record.segment_class[group[0]] == class)
+        .collect()
+    }
+
+    /// Per class index: the typical size kept (see the module doc) with the recognition quality without and
+    /// with it, or `None` for a class that is not parted by size.
+    pub fn typical_sizes(&self) -> Vec<Option<(f32, f64, f64)>> {
+        let chosen = self.chosen();
+        (0..self.tallies.len())
+            .map(|class| {
+                if self.objects[class] < MIN_OBJECTS || self.scaled_sizes[class].is_empty() {
+                    return None;
+                }
+                let mut sizes = self.scaled_sizes[class].clone();
+                sizes.sort_by(f64::total_cmp);
+                let typical = sizes[sizes.len() / 2] as f32;
+                if !(typical.is_finite() && typical > 0.0) {
+                    return None;
+                }
+                let cut = chosen[class].unwrap_or(f32::INFINITY);
+                let (mut plain, mut parted) = (Tally::default(), Tally::default());
+                for record in &self.records {
+                    let patches = Self::patches(record, class as u16, cut);
+                    let one = tally_patches(record, class as u16, patches.iter());
+                    let pieces: Vec<Vec<usize>> = patches
+                        .iter()
+                        .flat_map(|patch| {
+                            part_by_size(
+                                patch,
+                                typical,
+                                &record.neighbours,
+                                &record.depth,
+                                &record.area,
+                            )
+                        })
+                        .collect();
+                    let two = tally_patches(record, class as u16, pieces.iter());
+                    for (total, tally) in [(&mut plain, one), (&mut parted, two)] {
+                        total.matched += tally.matched;
+                        total.invented += tally.invented;
+                        total.missed += tally.missed;
+                    }
+                }
+                (parted.quality() > plain.quality()).then_some((
+                    typical,
+                    plain.quality(),
+                    parted.quality(),
+                ))
+            })
+            .collect()
+    }
+
+    /// The file of the chosen cuts and typical sizes, by class name.
     pub fn to_file(
         &self,
         taxonomy: &Taxonomy,
         source: String,
     ) -> Result<InstanceCutsFile, InstanceCutsError> {
+        let name = |index: usize| {
+            taxonomy
+                .classes()
+                .get(index)
+                .map(|class| class.name.clone())
+                .ok_or_else(|| InstanceCutsError::UnknownClass(format!("class index {index}")))
+        };
         let mut cuts = BTreeMap::new();
         for (index, cut) in self.chosen().into_iter().enumerate() {
             if let Some(cut) = cut {
-                let class = taxonomy.classes().get(index).ok_or_else(|| {
-                    InstanceCutsError::UnknownClass(format!("class index {index}"))
-                })?;
-                cuts.insert(class.name.clone(), cut);
+                cuts.insert(name(index)?, cut);
+            }
+        }
+        let mut typical_sizes = BTreeMap::new();
+        for (index, size) in self.typical_sizes().into_iter().enumerate() {
+            if let Some((size, _, _)) = size {
+                typical_sizes.insert(name(index)?, size);
             }
         }
         Ok(InstanceCutsFile {
             schema: INSTANCE_CUTS_SCHEMA,
             source,
             cuts,
+            typical_sizes,
         })
     }
 
-    /// One line per class that has ground-truth objects: its objects, RQ never cut and at its chosen cut.
+    /// One line per class that has ground-truth objects: its objects, RQ never cut and at its chosen cut,
+    /// and the typical size kept, if any.
     pub fn summary(&self, taxonomy: &Taxonomy) -> Vec<String> {
         let chosen = self.chosen();
+        let sizes = self.typical_sizes();
         let mut lines = Vec::new();
         for (index, tallies) in self.tallies.iter().enumerate() {
             if self.objects[index] == 0 {
@@ -284,8 +445,14 @@ impl InstanceCutCounts {
                 }
                 None => "never cut".to_string(),
             };
+            let sized = match sizes[index] {
+                Some((size, without, with)) => {
+                    format!("; parted by typical size {size:.0}: RQ {without:.3} -> {with:.3}")
+                }
+                None => String::new(),
+            };
             lines.push(format!(
-                "{name}: {} objects, RQ never cut {:.3}, {at}",
+                "{name}: {} objects, RQ never cut {:.3}, {at}{sized}",
                 self.objects[index],
                 tallies[0].quality()
             ));

@@ -20,6 +20,16 @@
 //! strength of their edge is at most `t`; a class without a cut (walls, a sofa) keeps every patch whole.
 //! Each class's cut is the one that best recovers the ground-truth objects of training renders from their
 //! ground-truth labels (see `super::instance_statistics`).
+//!
+//! # Typical sizes
+//!
+//! Objects of one colour side by side (a row of base cabinets, chairs pushed together) share no edge a cut
+//! can find. For a class with a typical size `s` (the median over training renders of its objects' *depth-
+//! scaled area*, `sum over segments of pixels x (depth in metres)^2`, which does not change with distance
+//! for a given camera), a patch whose scaled area is `a` is parted into `round(a / s)` objects by geodesic
+//! k-medoids (`super::split`) when that is 2 or more. Patches with a segment of unknown depth are left
+//! whole. A class gets a typical size only where parting by it recovers more ground-truth objects of the
+//! training renders than it invents (see `super::instance_statistics`).
 
 use std::collections::BTreeMap;
 
@@ -53,6 +63,8 @@ pub enum InstanceCutsError {
     UnknownClass(String),
     #[error("instance cut of '{class}' is {value}; a cut must be a finite number of at least 0")]
     BadCut { class: String, value: f32 },
+    #[error("typical size of '{class}' is {value}; a size must be a finite number above 0")]
+    BadSize { class: String, value: f32 },
 }
 
 /// The file: cuts by class name (classes not named are never cut) and how they were counted.
@@ -62,12 +74,16 @@ pub struct InstanceCutsFile {
     /// The command and the scenes the cuts were counted over.
     pub source: String,
     pub cuts: BTreeMap<String, f32>,
+    /// Class name -> typical depth-scaled area (pixels x m^2); a class not named is not parted by size.
+    #[serde(default)]
+    pub typical_sizes: BTreeMap<String, f32>,
 }
 
 /// Per-class cut strengths, checked against a taxonomy.
 #[derive(Clone, Debug, PartialEq)]
 pub struct InstanceCuts {
     by_class: Vec<Option<f32>>,
+    typical: Vec<Option<f32>>,
 }
 
 impl InstanceCuts {
@@ -75,6 +91,7 @@ impl InstanceCuts {
     pub fn none(class_count: usize) -> InstanceCuts {
         InstanceCuts {
             by_class: vec![None; class_count],
+            typical: vec![None; class_count],
         }
     }
 
@@ -99,7 +116,20 @@ impl InstanceCuts {
             }
             by_class[class.id.index()] = Some(value);
         }
-        Ok(InstanceCuts { by_class })
+        let mut typical = vec![None; taxonomy.class_count()];
+        for (name, &value) in &file.typical_sizes {
+            let class = taxonomy
+                .class_by_name(name)
+                .ok_or_else(|| InstanceCutsError::UnknownClass(name.clone()))?;
+            if !value.is_finite() || value <= 0.0 {
+                return Err(InstanceCutsError::BadSize {
+                    class: name.clone(),
+                    value,
+                });
+            }
+            typical[class.id.index()] = Some(value);
+        }
+        Ok(InstanceCuts { by_class, typical })
     }
 
     /// Reads a file's JSON text and checks it against the taxonomy.
@@ -117,6 +147,11 @@ impl InstanceCuts {
     /// The cut of a class (`None`: never cut; also for a class outside the table).
     pub fn cut(&self, class: ClassId) -> Option<f32> {
         self.by_class.get(class.index()).copied().flatten()
+    }
+
+    /// The typical depth-scaled area of a class, when it is parted by size.
+    pub fn typical_size(&self, class: ClassId) -> Option<f32> {
+        self.typical.get(class.index()).copied().flatten()
     }
 
     /// Do two adjacent segments of `class` joined by an edge of `strength` belong to one object?
@@ -211,6 +246,40 @@ pub fn components(
     found
 }
 
+/// The depth-scaled area of a set of segments (pixels x m^2), or `None` when a segment's depth is unknown.
+pub fn scaled_area(members: &[usize], depth: &[Option<f32>], area: &[u32]) -> Option<f64> {
+    let mut total = 0.0;
+    for &segment in members {
+        let metres = f64::from(depth.get(segment).copied().flatten()?) / 1000.0;
+        if !metres.is_finite() || metres <= 0.0 {
+            return None;
+        }
+        total += f64::from(area.get(segment).copied().unwrap_or(0)) * metres * metres;
+    }
+    Some(total)
+}
+
+/// Parts a patch by its class's typical size (see the module doc): `round(scaled area / typical)` pieces
+/// by geodesic k-medoids when that is 2 or more, else the patch whole.
+pub fn part_by_size(
+    patch: &[usize],
+    typical: f32,
+    neighbours: &[Vec<(usize, f32)>],
+    depth: &[Option<f32>],
+    area: &[u32],
+) -> Vec<Vec<usize>> {
+    let pieces = match scaled_area(patch, depth, area) {
+        Some(scaled) if typical > 0.0 => (scaled / f64::from(typical)).round(),
+        _ => 1.0,
+    };
+    if pieces >= 2.0 {
+        let pieces = pieces.min(patch.len() as f64) as usize;
+        super::split::geodesic_parts(patch, pieces, neighbours, depth, area)
+    } else {
+        vec![patch.to_vec()]
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -239,12 +308,57 @@ mod tests {
         let depth = vec![None; 4];
         let mut by_class = vec![None; 7];
         by_class[5] = Some(2.0);
-        let cuts = InstanceCuts { by_class };
+        let cuts = InstanceCuts {
+            by_class,
+            typical: vec![None; 7],
+        };
         let found = components(&labels, &neighbours, &depth, |c, s| cuts.joins(c, s));
         assert_eq!(found, vec![vec![0, 1], vec![2], vec![3]]);
         let whole = InstanceCuts::none(7);
         let found = components(&labels, &neighbours, &depth, |c, s| whole.joins(c, s));
         assert_eq!(found, vec![vec![0, 1, 2], vec![3]]);
+    }
+
+    #[test]
+    fn a_patch_is_parted_by_its_scaled_area_over_the_typical_size() {
+        // Six cells in a row, 16 pixels each at 1 m (scaled area 16 each, 96 in all), no colour edges.
+        let neighbours: Vec<Vec<(usize, f32)>> = (0..6)
+            .map(|i: usize| {
+                [i.wrapping_sub(1), i + 1]
+                    .into_iter()
+                    .filter(|&j| j < 6)
+                    .map(|j| (j, 0.0))
+                    .collect()
+            })
+            .collect();
+        let depth = vec![Some(1000.0); 6];
+        let area = vec![16u32; 6];
+        let patch: Vec<usize> = (0..6).collect();
+        assert_eq!(scaled_area(&patch, &depth, &area), Some(96.0));
+        // 96 / 32 = 3 objects, each a run of the row, together the whole row.
+        let mut parts = part_by_size(&patch, 32.0, &neighbours, &depth, &area);
+        parts.sort();
+        assert_eq!(parts.len(), 3, "{parts:?}");
+        assert!(parts.iter().all(|p| p.windows(2).all(|w| w[1] == w[0] + 1)));
+        assert_eq!(parts.concat(), patch);
+        // At 2 m the same pixels cover four times the area: 384 / 128 = 3 again.
+        let far = vec![Some(2000.0); 6];
+        assert_eq!(
+            part_by_size(&patch, 128.0, &neighbours, &far, &area).len(),
+            3
+        );
+        // Below 1.5 typical sizes, or with a depth unknown, the patch stays whole.
+        assert_eq!(
+            part_by_size(&patch, 70.0, &neighbours, &depth, &area),
+            vec![patch.clone()]
+        );
+        let mut unknown = depth.clone();
+        unknown[3] = None;
+        assert_eq!(scaled_area(&patch, &unknown, &area), None);
+        assert_eq!(
+            part_by_size(&patch, 32.0, &neighbours, &unknown, &area),
+            vec![patch.clone()]
+        );
     }
 
     #[test]
@@ -267,6 +381,16 @@ mod tests {
             InstanceCuts::from_json("{", &taxonomy),
             Err(InstanceCutsError::Json(_))
         ));
+        let sized = r#"{"schema":1,"source":"t","cuts":{},"typical_sizes":{"cabinet":0.0}}"#;
+        assert!(matches!(
+            InstanceCuts::from_json(sized, &taxonomy),
+            Err(InstanceCutsError::BadSize { .. })
+        ));
+        let sized = r#"{"schema":1,"source":"t","cuts":{},"typical_sizes":{"cabinet":2500.0}}"#;
+        let cabinet = taxonomy.class_by_name("cabinet").unwrap().id;
+        let cuts = InstanceCuts::from_json(sized, &taxonomy).unwrap();
+        assert_eq!(cuts.typical_size(cabinet), Some(2500.0));
+        assert_eq!(cuts.cut(cabinet), None);
         let cuts = InstanceCuts::from_json(&text(r#"{"book":1.5}"#), &taxonomy).unwrap();
         let book = taxonomy.class_by_name("book").unwrap().id;
         assert_eq!(cuts.cut(book), Some(1.5));

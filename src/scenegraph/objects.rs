@@ -14,6 +14,8 @@
 //!    200000, 21 renders, 400-segment scenes): object accuracy after the notes 0.5125 without cuts, 0.5537
 //!    with the counted cuts (book, bottle, shoe, chair); `sayso score --notes 2` against the classifier
 //!    alone +0.6 -> +4.9. With 800-segment scenes and their re-counted cuts and re-tuned weights: 0.7012.
+//!    A patch of a class with a typical size is then parted by its depth-scaled area
+//!    (`super::instances::part_by_size`: a row of base cabinets, chairs pushed together).
 //! 2. When the operator said there are at least `k` objects of a class ("there are four chairs": a count
 //!    constraint in force, exactly or at least `k`) and the labels show fewer than `k` components of it,
 //!    adjacent objects have merged: components of the class are split, largest first, until there are `k`
@@ -45,7 +47,7 @@ use crate::hypotheses::{hypothesis_id, Hypothesis};
 use crate::ids::{ClassId, HypothesisId, SegmentId};
 use crate::scene::Scene;
 
-use super::instances::{components, neighbours, InstanceCuts};
+use super::instances::{components, neighbours, part_by_size, InstanceCuts};
 use super::split::geodesic_parts;
 
 /// Components of fewer fine segments than this do not count as objects the labels show apart when a count
@@ -80,10 +82,19 @@ pub fn form_objects(
     let labels = &labels[..segment_count];
     let neighbours = neighbours(scene);
     let depth: Vec<Option<f32>> = scene.stats.iter().map(|stat| stat.mean_depth_mm).collect();
-    let all_components = components(labels, &neighbours, &depth, |class, strength| {
-        cuts.joins(class, strength)
-    });
     let area: Vec<u32> = scene.stats.iter().map(|stat| stat.area).collect();
+    let all_components: Vec<Vec<usize>> =
+        components(labels, &neighbours, &depth, |class, strength| {
+            cuts.joins(class, strength)
+        })
+        .into_iter()
+        .flat_map(
+            |component| match cuts.typical_size(ClassId(labels[component[0]])) {
+                Some(typical) => part_by_size(&component, typical, &neighbours, &depth, &area),
+                None => vec![component],
+            },
+        )
+        .collect();
     let mut pieces: Vec<(ClassId, Vec<usize>)> = Vec::new();
     let mut split_classes: Vec<(ClassId, u32)> = Vec::new();
     for &(class, wanted) in counted {
