@@ -297,3 +297,39 @@ fn counted_cuts_part_books_that_differ_in_colour_and_leave_single_walls_whole() 
     assert!(counts.add_scene(&scene, &labels[1..], &instances).is_err());
     assert_eq!(counts.scene_count(), 5);
 }
+
+#[test]
+fn a_count_does_not_cut_a_patch_into_pieces_under_half_the_typical_size() {
+    // Two shoe patches of four 16-pixel cells: the first at 0.7 m (depth-scaled area 31.4), the second at
+    // 1 m (64), with a typical shoe of 64. "Three shoes": one is missing, so a patch is cut; the first is
+    // too small to hold two shoes of at least half the typical size, so the second is cut.
+    const SHOE: u16 = 31;
+    let taxonomy = Taxonomy::embedded();
+    assert_eq!(taxonomy.class_name(ClassId(SHOE)), "shoe");
+    let mut scene = strip();
+    let depth = [
+        700.0, 700.0, 700.0, 700.0, 1000.0, 1000.0, 1000.0, 1000.0, 1000.0, 1000.0,
+    ];
+    let mut stats = scene.stats.as_ref().clone();
+    for (stat, &mm) in stats.iter_mut().zip(&depth) {
+        stat.mean_depth_mm = Some(mm);
+    }
+    scene.stats = std::sync::Arc::new(stats);
+    let labels = [SHOE, SHOE, SHOE, SHOE, WALL, SHOE, SHOE, SHOE, SHOE, WALL];
+    let sized = InstanceCuts::from_json(
+        r#"{"schema":1,"source":"test","cuts":{},"typical_sizes":{"shoe":64.0}}"#,
+        &taxonomy,
+    )
+    .unwrap();
+    let counted = [(ClassId(SHOE), 3)];
+    let shoes = members_of(
+        &form_objects(&scene, &labels, &[], &[], &counted, &sized),
+        SHOE,
+    );
+    assert_eq!(shoes.len(), 3, "{shoes:?}");
+    assert!(shoes.contains(&vec![0, 1, 2, 3]), "{shoes:?}");
+    // Without a typical size the count cuts the first patch in the order (the lower segments).
+    let plain = members_of(&form_uncut(&scene, &labels, &[], &[], &counted), SHOE);
+    assert_eq!(plain.len(), 3, "{plain:?}");
+    assert!(plain.contains(&vec![5, 6, 7, 8]), "{plain:?}");
+}
