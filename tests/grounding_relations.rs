@@ -199,19 +199,10 @@ fn the_scene_graphs_measured_test_agrees_with_relation_holds_on_every_pair() {
         segments(&[0, 1, 5]),
         segments(&[18, 19, 23, 24]),
     ];
-    let relations = [
-        Relation::On,
-        Relation::Under,
-        Relation::Inside,
-        Relation::NextTo,
-        Relation::LeftOf,
-        Relation::InFrontOf,
-        Relation::Behind,
-    ];
     let mut next_to_by_masks = 0;
     for subject in &sets {
         for landmark in &sets {
-            for relation in relations {
+            for relation in sayso::scenegraph::REPORTED_RELATIONS {
                 let whole = relation_holds(&scene, relation, subject, &[landmark.as_slice()]);
                 let measured = relation_holds_measured(
                     &scene,

@@ -44,6 +44,36 @@ fn strip() -> Scene {
     )
 }
 
+/// A row of 4-pixel book cells of the given colours, coarse regions by `regions`.
+fn coloured_row(name: &str, colours: &[[u8; 3]], regions: &[u32]) -> Scene {
+    let cells: Vec<Cell> = colours
+        .iter()
+        .map(|&colour| Cell {
+            colour,
+            scores: vec![(BOOK, 0.9)],
+        })
+        .collect();
+    grid_scene(name, colours.len() as u32, 1, 4, &cells, regions)
+}
+
+/// Six book cells in one run: red, red, blue, green, green, yellow (each colour one book; CIE76 contrast
+/// between the colours far above the committed book cut, between equal colours 0), then a grey wall cell.
+fn book_row() -> Scene {
+    coloured_row(
+        "juniper-lane-book-row",
+        &[
+            [170, 30, 30],
+            [170, 30, 30],
+            [30, 40, 170],
+            [30, 150, 40],
+            [30, 150, 40],
+            [220, 200, 40],
+            [200, 200, 200],
+        ],
+        &[0, 0, 0, 0, 0, 0, 1],
+    )
+}
+
 fn hypothesis(class: u16, members: &[u32]) -> Hypothesis {
     let members: Vec<SegmentId> = members.iter().map(|&s| SegmentId(s)).collect();
     Hypothesis {
@@ -145,29 +175,18 @@ fn a_stray_fragment_is_not_an_object_the_count_already_sees() {
 fn touching_objects_part_along_the_colour_boundary() {
     // Book cells 0..=7 all connected and labelled book: cells 0-2 are a red book, cells 3-7 a blue one.
     // The cut follows the colour edge, not the middle of the run.
-    let colours = [
-        [170, 30, 30],
-        [170, 30, 30],
-        [170, 30, 30],
-        [30, 40, 170],
-        [30, 40, 170],
-        [30, 40, 170],
-        [30, 40, 170],
-        [30, 40, 170],
-    ];
-    let cells: Vec<Cell> = colours
-        .iter()
-        .map(|&colour| Cell {
-            colour,
-            scores: vec![(BOOK, 0.9)],
-        })
-        .collect();
-    let scene = grid_scene(
+    let scene = coloured_row(
         "juniper-lane-two-books",
-        8,
-        1,
-        4,
-        &cells,
+        &[
+            [170, 30, 30],
+            [170, 30, 30],
+            [170, 30, 30],
+            [30, 40, 170],
+            [30, 40, 170],
+            [30, 40, 170],
+            [30, 40, 170],
+            [30, 40, 170],
+        ],
         &[0, 0, 0, 1, 1, 1, 1, 1],
     );
     let labels = [BOOK; 8];
@@ -180,32 +199,7 @@ fn touching_objects_part_along_the_colour_boundary() {
 
 #[test]
 fn books_of_different_colours_side_by_side_are_separate_objects_under_the_committed_cuts() {
-    // Six book cells in one run: red, red, blue, green, green, yellow (each colour one book; CIE76
-    // contrast between the colours far above the committed book cut, between equal colours 0), then a wall.
-    let colours = [
-        [170, 30, 30],
-        [170, 30, 30],
-        [30, 40, 170],
-        [30, 150, 40],
-        [30, 150, 40],
-        [220, 200, 40],
-        [200, 200, 200],
-    ];
-    let cells: Vec<Cell> = colours
-        .iter()
-        .map(|&colour| Cell {
-            colour,
-            scores: vec![(BOOK, 0.9)],
-        })
-        .collect();
-    let scene = grid_scene(
-        "juniper-lane-book-row",
-        7,
-        1,
-        4,
-        &cells,
-        &[0, 0, 0, 0, 0, 0, 1],
-    );
+    let scene = book_row();
     let labels = [BOOK, BOOK, BOOK, BOOK, BOOK, BOOK, WALL];
     let taxonomy = Taxonomy::embedded();
     let cuts = InstanceCuts::embedded(&taxonomy).unwrap();
@@ -231,31 +225,8 @@ fn counted_cuts_part_books_that_differ_in_colour_and_leave_single_walls_whole() 
     use sayso::scenegraph::instance_statistics::{InstanceCutCounts, CANDIDATE_CUTS, MIN_OBJECTS};
     // The book row above as ground truth: books are instances 1..=4 (cells 0-1, 2, 3-4, 5), the wall
     // instance 5 (cell 6). Counted five times, so books reach MIN_OBJECTS (20) and the wall does not.
-    let colours = [
-        [170, 30, 30],
-        [170, 30, 30],
-        [30, 40, 170],
-        [30, 150, 40],
-        [30, 150, 40],
-        [220, 200, 40],
-        [200, 200, 200],
-    ];
-    let cells: Vec<Cell> = colours
-        .iter()
-        .map(|&colour| Cell {
-            colour,
-            scores: vec![(BOOK, 0.9)],
-        })
-        .collect();
     let cell = 4u32;
-    let scene = grid_scene(
-        "juniper-lane-book-row",
-        7,
-        1,
-        cell,
-        &cells,
-        &[0, 0, 0, 0, 0, 0, 1],
-    );
+    let scene = book_row();
     let instance_of_cell = [1u16, 1, 2, 3, 3, 4, 5];
     let (width, height) = (7 * cell, cell);
     let mut labels = Vec::new();

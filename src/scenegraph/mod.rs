@@ -193,7 +193,7 @@ pub fn object_id(hypothesis: HypothesisId) -> ObjectId {
 }
 
 /// Relations reported between objects (structure classes such as walls take part only as landmarks of `On`).
-const REPORTED_RELATIONS: [Relation; 7] = [
+pub const REPORTED_RELATIONS: [Relation; 7] = [
     Relation::On,
     Relation::Under,
     Relation::Inside,
