@@ -120,18 +120,23 @@ pub fn prepare_scene(
     prepare_loaded(source.load()?, classifier)
 }
 
-/// Builds superpixels of an already loaded scene and scores them with the classifier.
-pub fn prepare_loaded(
-    demo: DemoScene,
-    classifier: &Classifier,
-) -> Result<PreparedScene, PipelineError> {
-    let scene = Scene::from_image(
+/// The superpixels of a loaded scene as the pipeline builds them (scene defaults, with its depth map).
+pub fn superpixels_of(demo: &DemoScene) -> Result<Scene, PipelineError> {
+    Ok(Scene::from_image(
         demo.name.clone(),
         demo.image.clone(),
         Some(demo.depth.clone()),
         None,
         &SceneParams::default(),
-    )?;
+    )?)
+}
+
+/// Builds superpixels of an already loaded scene and scores them with the classifier.
+pub fn prepare_loaded(
+    demo: DemoScene,
+    classifier: &Classifier,
+) -> Result<PreparedScene, PipelineError> {
+    let scene = superpixels_of(&demo)?;
     let unaries = builtin_unaries(&scene, classifier)?;
     let classifier_labels = best_classes(&unaries);
     Ok(PreparedScene {

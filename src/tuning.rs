@@ -3,8 +3,8 @@
 //! Owns: the seed check (training renders never use the demo seeds 1000..=1999, which are the evaluation
 //! set), rendering training scenes in memory, counting room-type-to-class presence and class co-occurrence
 //! (`crate::energy::statistics`) and how well each cut strength tells a class's objects apart
-//! (`crate::scenegraph::instance_statistics`), the scripted training notes written from a render's ground truth, the
-//! tuning objective and the coordinate search over weights. `sayso tune` is its command.
+//! (`crate::scenegraph::instance_statistics`), the scripted training notes written from a render's ground
+//! truth, the tuning objective and the coordinate search over weights. `sayso tune` is its command.
 //! Must not: read or score demo scenes, or write files (the binary writes what this returns).
 //!
 //! # The search
@@ -33,12 +33,11 @@ use crate::evaluation::{
 };
 use crate::ids::ClassId;
 use crate::pipeline::{
-    believe_without_notes, correct_turn, prepare_loaded, CorrectionSettings, PipelineError,
-    PreparedScene, TurnInputs,
+    believe_without_notes, correct_turn, prepare_loaded, superpixels_of, CorrectionSettings,
+    PipelineError, PreparedScene, TurnInputs,
 };
 use crate::render::catalogue::DEMO_SEEDS;
 use crate::render::{render_scene, RenderError, SceneRequest, ROOM_TYPES};
-use crate::scene::{Scene, SceneParams};
 use crate::scenegraph::instance_statistics::{InstanceCountError, InstanceCutCounts};
 use crate::scenegraph::{label_map, SceneGraph};
 use crate::taxonomy::{ClassGroup, Taxonomy};
@@ -157,14 +156,7 @@ pub fn count_statistics(
             .room_by_name(&rendered.metadata.room)
             .ok_or_else(|| TuningError::UnknownRoom(rendered.metadata.room.clone()))?;
         rooms.add_scene(room.id.index(), &rendered.labels.values)?;
-        let scene = Scene::from_image(
-            rendered.name.clone(),
-            rendered.image.clone(),
-            Some(rendered.depth.clone()),
-            None,
-            &SceneParams::default(),
-        )
-        .map_err(PipelineError::from)?;
+        let scene = superpixels_of(&rendered)?;
         instances.add_scene(&scene, &rendered.labels.values, &rendered.instances.values)?;
         progress(&rendered.name);
     }

@@ -258,7 +258,9 @@ fn counted_cuts_part_books_that_differ_in_colour_and_leave_single_walls_whole() 
         chosen[WALL as usize], None,
         "5 wall objects are below MIN_OBJECTS"
     );
-    let file = counts.to_file(&taxonomy, "test".into()).unwrap();
+    let file = counts
+        .to_file(&taxonomy, "test".into(), &counts.typical_sizes())
+        .unwrap();
     assert_eq!(file.cuts.keys().collect::<Vec<_>>(), vec!["book"]);
     let cuts = InstanceCuts::from_file(&file, &taxonomy).unwrap();
     let final_labels = [BOOK, BOOK, BOOK, BOOK, BOOK, BOOK, WALL];

@@ -1,7 +1,8 @@
 //! `sayso tune`: counts room-type-to-class statistics over training renders and tunes a few energy weights
-//! on other training renders, then writes `room_class_prior.json`, `instance_cuts.json` and `energy_weights.json` into `--out`.
+//! on other training renders, then writes `room_class_prior.json`, `instance_cuts.json` and
+//! `energy_weights.json` into `--out`.
 //!
-//! Owns: the flags, the progress lines and writing the two files. Must not: count, search or score itself;
+//! Owns: the flags, the progress lines and writing the three files. Must not: count, search or score itself;
 //! that is `sayso::tuning`. It never reads demo scenes: every scene is rendered from a training seed, and
 //! the demo seeds 1000..=1999 are refused.
 
@@ -73,6 +74,7 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
         prior_path.display(),
         counts.rooms.scene_count()
     );
+    let typical_sizes = counts.instances.typical_sizes();
     let cuts_file = counts.instances.to_file(
         &taxonomy,
         format!(
@@ -82,8 +84,9 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
             stats_seeds.start,
             stats_seeds.end
         ),
+        &typical_sizes,
     )?;
-    for line in counts.instances.summary(&taxonomy) {
+    for line in counts.instances.summary(&taxonomy, &typical_sizes) {
         eprintln!("instance cuts: {line}");
     }
     let instance_cuts = InstanceCuts::from_file(&cuts_file, &taxonomy)?;

@@ -54,6 +54,22 @@ pub struct Tally {
     pub missed: u64,
 }
 
+impl std::ops::AddAssign for Tally {
+    fn add_assign(&mut self, other: Tally) {
+        self.matched += other.matched;
+        self.invented += other.invented;
+        self.missed += other.missed;
+    }
+}
+
+/// A typical size a class keeps, with the recognition quality over the counted scenes without and with it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct TypicalSize {
+    pub size: f32,
+    pub quality_without: f64,
+    pub quality_with: f64,
+}
+
 impl Tally {
     /// Recognition quality (0 when there is nothing to recognise).
     pub fn quality(&self) -> f64 {
@@ -181,10 +197,9 @@ impl InstanceCutCounts {
         }
         let class_count = self.tallies.len();
         let segment_count = scene.segment_count();
-        // Per segment: pixels per ground-truth class and per instance.
+        // Per segment: pixels per ground-truth class and per instance (its area is in the scene's stats).
         let mut class_votes: Vec<HashMap<u16, u32>> = vec![HashMap::new(); segment_count];
         let mut in_instance: Vec<HashMap<u16, u64>> = vec![HashMap::new(); segment_count];
-        let mut segment_area = vec![0u64; segment_count];
         // Per instance: area and pixels per class.
         let mut instance_area: BTreeMap<u16, u64> = BTreeMap::new();
         let mut instance_votes: BTreeMap<u16, HashMap<u16, u64>> = BTreeMap::new();
@@ -195,7 +210,6 @@ impl InstanceCutCounts {
             if segment >= segment_count {
                 continue;
             }
-            segment_area[segment] += 1;
             if class != UNLABELLED {
                 *class_votes[segment].entry(class).or_default() += 1;
             }
@@ -286,11 +300,7 @@ impl InstanceCutCounts {
             self.objects[class as usize] += objects_of[class as usize];
             for index in 0..=CANDIDATE_CUTS.len() {
                 let groups = Self::patches(&record, class, Self::cut_at(index));
-                let tally = tally_patches(&record, class, groups.iter());
-                let total = &mut self.tallies[class as usize][index];
-                total.matched += tally.matched;
-                total.invented += tally.invented;
-                total.missed += tally.missed;
+                self.tallies[class as usize][index] += tally_patches(&record, class, groups.iter());
             }
         }
         self.records.push(record);
@@ -342,9 +352,10 @@ impl InstanceCutCounts {
         .collect()
     }
 
-    /// Per class index: the typical size kept (see the module doc) with the recognition quality without and
-    /// with it, or `None` for a class that is not parted by size.
-    pub fn typical_sizes(&self) -> Vec<Option<(f32, f64, f64)>> {
+    /// Per class index: the typical size kept (see the module doc), or `None` for a class that is not
+    /// parted by size. Walks every counted scene again: compute it once and pass it to `to_file` and
+    /// `summary`.
+    pub fn typical_sizes(&self) -> Vec<Option<TypicalSize>> {
         let chosen = self.chosen();
         (0..self.tallies.len())
             .map(|class| {
@@ -374,27 +385,24 @@ impl InstanceCutCounts {
                             )
                         })
                         .collect();
-                    let two = tally_patches(record, class as u16, pieces.iter());
-                    for (total, tally) in [(&mut plain, one), (&mut parted, two)] {
-                        total.matched += tally.matched;
-                        total.invented += tally.invented;
-                        total.missed += tally.missed;
-                    }
+                    plain += one;
+                    parted += tally_patches(record, class as u16, pieces.iter());
                 }
-                (parted.quality() > plain.quality()).then_some((
-                    typical,
-                    plain.quality(),
-                    parted.quality(),
-                ))
+                (parted.quality() > plain.quality()).then_some(TypicalSize {
+                    size: typical,
+                    quality_without: plain.quality(),
+                    quality_with: parted.quality(),
+                })
             })
             .collect()
     }
 
-    /// The file of the chosen cuts and typical sizes, by class name.
+    /// The file of the chosen cuts and the typical sizes `typical_sizes` returned, by class name.
     pub fn to_file(
         &self,
         taxonomy: &Taxonomy,
         source: String,
+        sizes: &[Option<TypicalSize>],
     ) -> Result<InstanceCutsFile, InstanceCutsError> {
         let name = |index: usize| {
             taxonomy
@@ -410,9 +418,9 @@ impl InstanceCutCounts {
             }
         }
         let mut typical_sizes = BTreeMap::new();
-        for (index, size) in self.typical_sizes().into_iter().enumerate() {
-            if let Some((size, _, _)) = size {
-                typical_sizes.insert(name(index)?, size);
+        for (index, size) in sizes.iter().enumerate() {
+            if let Some(size) = size {
+                typical_sizes.insert(name(index)?, size.size);
             }
         }
         Ok(InstanceCutsFile {
@@ -424,10 +432,9 @@ impl InstanceCutCounts {
     }
 
     /// One line per class that has ground-truth objects: its objects, RQ never cut and at its chosen cut,
-    /// and the typical size kept, if any.
-    pub fn summary(&self, taxonomy: &Taxonomy) -> Vec<String> {
+    /// and the typical size kept, if any (`sizes` as `typical_sizes` returned them).
+    pub fn summary(&self, taxonomy: &Taxonomy, sizes: &[Option<TypicalSize>]) -> Vec<String> {
         let chosen = self.chosen();
-        let sizes = self.typical_sizes();
         let mut lines = Vec::new();
         for (index, tallies) in self.tallies.iter().enumerate() {
             if self.objects[index] == 0 {
@@ -445,10 +452,11 @@ impl InstanceCutCounts {
                 }
                 None => "never cut".to_string(),
             };
-            let sized = match sizes[index] {
-                Some((size, without, with)) => {
-                    format!("; parted by typical size {size:.0}: RQ {without:.3} -> {with:.3}")
-                }
+            let sized = match sizes.get(index).copied().flatten() {
+                Some(typical) => format!(
+                    "; parted by typical size {:.0}: RQ {:.3} -> {:.3}",
+                    typical.size, typical.quality_without, typical.quality_with
+                ),
                 None => String::new(),
             };
             lines.push(format!(
