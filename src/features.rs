@@ -4,7 +4,7 @@
 //! and `segment_features`, which computes it from a `Scene`.
 //! Must not: know about classes, models or unaries; it turns a scene into a plain matrix.
 //!
-//! # Layout, version 1 (`FEATURE_COUNT` = 28 columns per segment)
+//! # Layout, version 2 (`FEATURE_COUNT` = 39 columns per segment)
 //!
 //! | columns | name                      | meaning and unit                                                     |
 //! |---------|---------------------------|----------------------------------------------------------------------|
@@ -25,6 +25,16 @@
 //! | 23      | `has_depth`               | 1 when the segment has at least one depth reading, else 0             |
 //! | 24..27  | `region_mean_l/a/b`       | area-weighted mean CIELAB of the segment's coarse region              |
 //! | 27      | `region_area`             | coarse region pixels / image pixels (0..1]                            |
+//! | 28..31  | `near_mean_l/a/b`         | mean CIELAB of the adjacent segments, weighted by shared boundary     |
+//! |         |                           | length (the segment's own colour when it has no neighbour)            |
+//! | 31      | `near_depth_step`         | (boundary-weighted mean depth of neighbours with depth - own depth) / |
+//! |         |                           | own depth: above 0 when the segment stands in front of its            |
+//! |         |                           | surroundings (0 when either is unknown)                               |
+//! | 32, 33  | `depth_slope_x/y`         | least-squares slope of depth against pixel column / row, per 100      |
+//! |         |                           | pixels, over the segment's mean depth (0 without depth): a floor or   |
+//! |         |                           | table top grows nearer down the image, a wall or cabinet front hardly |
+//! | 34..38  | `region_left/top/right/bottom` | the coarse region's box over image width / height (0..1]         |
+//! | 38      | `region_depth_mean`       | area-weighted mean depth of the region's segments with depth, metres  |
 //!
 //! The computation is sequential and deterministic: the same scene gives the same bytes.
 
@@ -34,10 +44,10 @@ use crate::color::LabConverter;
 use crate::scene::Scene;
 
 /// Bumped whenever a column is added, removed, reordered or changes meaning or unit.
-pub const FEATURE_LAYOUT_VERSION: u32 = 1;
+pub const FEATURE_LAYOUT_VERSION: u32 = 2;
 
 /// Number of feature columns.
-pub const FEATURE_COUNT: usize = 28;
+pub const FEATURE_COUNT: usize = 39;
 
 /// Chroma C*ab below which a pixel counts as near-neutral in the histogram.
 pub const NEUTRAL_CHROMA: f32 = 8.0;
@@ -74,6 +84,17 @@ const FEATURE_NAMES: [&str; FEATURE_COUNT] = [
     "region_mean_a",
     "region_mean_b",
     "region_area",
+    "near_mean_l",
+    "near_mean_a",
+    "near_mean_b",
+    "near_depth_step",
+    "depth_slope_x",
+    "depth_slope_y",
+    "region_left",
+    "region_top",
+    "region_right",
+    "region_bottom",
+    "region_depth_mean",
 ];
 
 /// Column indices of the layout, for readers that pick single features.
@@ -91,6 +112,11 @@ pub mod column {
     pub const HAS_DEPTH: usize = 23;
     pub const REGION_MEAN_LAB: usize = 24;
     pub const REGION_AREA: usize = 27;
+    pub const NEAR_MEAN_LAB: usize = 28;
+    pub const NEAR_DEPTH_STEP: usize = 31;
+    pub const DEPTH_SLOPE: usize = 32;
+    pub const REGION_BOX: usize = 34;
+    pub const REGION_DEPTH_MEAN: usize = 38;
 }
 
 /// The name of every column, in layout order.
@@ -115,6 +141,39 @@ struct PixelSums {
     sum_xx: f64,
     sum_yy: f64,
     sum_xy: f64,
+    /// Over pixels with a depth reading: count, and sums of x, y, x^2, y^2, xy, d, xd, yd (d in metres).
+    depth_n: f64,
+    depth_x: f64,
+    depth_y: f64,
+    depth_xx: f64,
+    depth_yy: f64,
+    depth_xy: f64,
+    depth_d: f64,
+    depth_xd: f64,
+    depth_yd: f64,
+}
+
+/// Least-squares slopes (per pixel) of depth against x and y over one segment's pixels with depth, by the
+/// normal equations of `d = c + sx x + sy y`; (0, 0) when they are singular (a line or a single pixel).
+fn depth_slopes(sums: &PixelSums) -> (f64, f64) {
+    let n = sums.depth_n;
+    if n < 3.0 {
+        return (0.0, 0.0);
+    }
+    let (mx, my, md) = (sums.depth_x / n, sums.depth_y / n, sums.depth_d / n);
+    let sxx = sums.depth_xx / n - mx * mx;
+    let syy = sums.depth_yy / n - my * my;
+    let sxy = sums.depth_xy / n - mx * my;
+    let sxd = sums.depth_xd / n - mx * md;
+    let syd = sums.depth_yd / n - my * md;
+    let determinant = sxx * syy - sxy * sxy;
+    if determinant.abs() <= 1e-9 * (sxx * syy).max(1e-12) || determinant <= 0.0 {
+        return (0.0, 0.0);
+    }
+    (
+        (sxd * syy - syd * sxy) / determinant,
+        (syd * sxx - sxd * sxy) / determinant,
+    )
 }
 
 fn eccentricity(sums: &PixelSums, count: f64, centroid: (f32, f32)) -> f32 {
@@ -143,6 +202,10 @@ pub fn segment_features(scene: &Scene) -> Array2<f32> {
     if width == 0 || height == 0 || labels.len() != width * height || pixels.len() != labels.len() {
         return features;
     }
+    let depth = scene
+        .depth
+        .as_deref()
+        .filter(|depth| depth.millimetres.len() == labels.len());
     let converter = LabConverter::new();
     let mut lightness = Vec::with_capacity(pixels.len());
     let mut sums = vec![PixelSums::default(); segment_count];
@@ -169,10 +232,26 @@ pub fn segment_features(scene: &Scene) -> Array2<f32> {
             sum.sum_xx += xf * xf;
             sum.sum_yy += yf * yf;
             sum.sum_xy += xf * yf;
+            let reading = depth
+                .and_then(|depth| depth.millimetres.get(index))
+                .copied();
+            if let Some(millimetres) = reading.filter(|&m| m > 0) {
+                let d = f64::from(millimetres) / 1000.0;
+                sum.depth_n += 1.0;
+                sum.depth_x += xf;
+                sum.depth_y += yf;
+                sum.depth_xx += xf * xf;
+                sum.depth_yy += yf * yf;
+                sum.depth_xy += xf * yf;
+                sum.depth_d += d;
+                sum.depth_xd += xf * d;
+                sum.depth_yd += yf * d;
+            }
         }
     }
     let image_pixels = (width * height) as f32;
     let region_summaries = region_summaries(scene);
+    let surroundings = surroundings(scene);
     for (segment, (stats, sum)) in scene.stats.iter().zip(&sums).enumerate() {
         let count = stats.area.max(1) as f64;
         let mut row = features.row_mut(segment);
@@ -202,10 +281,31 @@ pub fn segment_features(scene: &Scene) -> Array2<f32> {
             .region_of
             .get(segment)
             .and_then(|region| region_summaries.get(region.index()));
-        if let Some(&(region_lab, region_area)) = region {
+        if let Some(region) = region {
             values[column::REGION_MEAN_LAB..column::REGION_MEAN_LAB + 3]
-                .copy_from_slice(&region_lab);
-            values[column::REGION_AREA] = region_area / image_pixels;
+                .copy_from_slice(&region.lab);
+            values[column::REGION_AREA] = region.area / image_pixels;
+            values[column::REGION_BOX..column::REGION_BOX + 4].copy_from_slice(&[
+                region.left / width as f32,
+                region.top / height as f32,
+                region.right / width as f32,
+                region.bottom / height as f32,
+            ]);
+            values[column::REGION_DEPTH_MEAN] = region.depth_metres;
+        }
+        let near = &surroundings[segment];
+        values[column::NEAR_MEAN_LAB..column::NEAR_MEAN_LAB + 3]
+            .copy_from_slice(&near.lab.unwrap_or([lab.l, lab.a, lab.b]));
+        if let (Some(own), Some(around)) = (stats.mean_depth_mm, near.depth_mm) {
+            if own > 0.0 {
+                values[column::NEAR_DEPTH_STEP] = (around - own) / own;
+            }
+        }
+        if let Some(own) = stats.mean_depth_mm.filter(|&own| own > 0.0) {
+            let (sx, sy) = depth_slopes(sum);
+            let scale = 100.0 / (f64::from(own) / 1000.0);
+            values[column::DEPTH_SLOPE] = (sx * scale) as f32;
+            values[column::DEPTH_SLOPE + 1] = (sy * scale) as f32;
         }
         for (slot, value) in row.iter_mut().zip(values) {
             *slot = value;
@@ -214,23 +314,107 @@ pub fn segment_features(scene: &Scene) -> Array2<f32> {
     features
 }
 
-/// Area-weighted mean CIELAB and area (pixels) of every coarse region.
-fn region_summaries(scene: &Scene) -> Vec<([f32; 3], f32)> {
+/// What the features say about one coarse region.
+struct RegionSummary {
+    /// Area-weighted mean CIELAB.
+    lab: [f32; 3],
+    /// Pixels.
+    area: f32,
+    /// Box in pixels, right and bottom exclusive.
+    left: f32,
+    top: f32,
+    right: f32,
+    bottom: f32,
+    /// Area-weighted mean depth of its segments with depth, metres (0 when none has).
+    depth_metres: f32,
+}
+
+/// A summary of every coarse region.
+fn region_summaries(scene: &Scene) -> Vec<RegionSummary> {
     scene
         .coarse
         .members
         .iter()
         .map(|members| {
             let (mut area, mut sum) = (0.0f64, [0.0f64; 3]);
+            let (mut depth_area, mut depth_sum) = (0.0f64, 0.0f64);
+            let mut bounds: Option<(u32, u32, u32, u32)> = None;
             for stats in members.iter().filter_map(|s| scene.stats.get(s.index())) {
                 let weight = stats.area as f64;
                 area += weight;
                 sum[0] += weight * stats.mean_lab.l as f64;
                 sum[1] += weight * stats.mean_lab.a as f64;
                 sum[2] += weight * stats.mean_lab.b as f64;
+                if let Some(depth) = stats.mean_depth_mm {
+                    depth_area += weight;
+                    depth_sum += weight * f64::from(depth) / 1000.0;
+                }
+                let b = &stats.bbox;
+                bounds = Some(match bounds {
+                    None => (b.x0, b.y0, b.x1, b.y1),
+                    Some((x0, y0, x1, y1)) => {
+                        (x0.min(b.x0), y0.min(b.y0), x1.max(b.x1), y1.max(b.y1))
+                    }
+                });
             }
             let divisor = area.max(1.0);
-            (sum.map(|value| (value / divisor) as f32), area as f32)
+            let (left, top, right, bottom) = bounds.unwrap_or((0, 0, 0, 0));
+            RegionSummary {
+                lab: sum.map(|value| (value / divisor) as f32),
+                area: area as f32,
+                left: left as f32,
+                top: top as f32,
+                right: right as f32,
+                bottom: bottom as f32,
+                depth_metres: if depth_area > 0.0 {
+                    (depth_sum / depth_area) as f32
+                } else {
+                    0.0
+                },
+            }
+        })
+        .collect()
+}
+
+/// What surrounds one segment: its neighbours' colour and depth, weighted by shared boundary length.
+struct Surroundings {
+    lab: Option<[f32; 3]>,
+    depth_mm: Option<f32>,
+}
+
+/// The surroundings of every segment over the region adjacency graph.
+fn surroundings(scene: &Scene) -> Vec<Surroundings> {
+    let count = scene.segment_count();
+    // Per segment: (boundary, sum of boundary x L, a, b), (boundary with depth, sum of boundary x depth).
+    let mut colour = vec![(0.0f64, [0.0f64; 3]); count];
+    let mut depth = vec![(0.0f64, 0.0f64); count];
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        let (Some(first), Some(second)) = (scene.stats.get(a), scene.stats.get(b)) else {
+            continue;
+        };
+        if a >= count || b >= count || a == b {
+            continue;
+        }
+        let length = f64::from(edge.weight.boundary_length);
+        for (here, there) in [(a, second), (b, first)] {
+            let lab = there.mean_lab;
+            colour[here].0 += length;
+            colour[here].1[0] += length * f64::from(lab.l);
+            colour[here].1[1] += length * f64::from(lab.a);
+            colour[here].1[2] += length * f64::from(lab.b);
+            if let Some(millimetres) = there.mean_depth_mm {
+                depth[here].0 += length;
+                depth[here].1 += length * f64::from(millimetres);
+            }
+        }
+    }
+    colour
+        .into_iter()
+        .zip(depth)
+        .map(|((length, lab), (depth_length, depth_sum))| Surroundings {
+            lab: (length > 0.0).then(|| lab.map(|value| (value / length) as f32)),
+            depth_mm: (depth_length > 0.0).then(|| (depth_sum / depth_length) as f32),
         })
         .collect()
 }
@@ -259,6 +443,37 @@ mod tests {
         assert_eq!(hue_bin(0.0, 50.0), 2); // 90 degrees: sector 1 spans 51.4..102.9
         assert_eq!(hue_bin(-50.0, 0.0), 4); // 180 degrees: sector 3 spans 154.3..205.7
         assert_eq!(hue_bin(50.0, -1.0), 7); // about 359 degrees
+    }
+
+    #[test]
+    fn depth_slopes_are_zero_on_a_line_and_exact_on_a_plane() {
+        let mut line = PixelSums::default();
+        let mut plane = PixelSums::default();
+        for y in 0..4 {
+            for x in 0..5 {
+                let (xf, yf) = (f64::from(x), f64::from(y));
+                for (sums, include) in [(&mut line, y == 0), (&mut plane, true)] {
+                    if include {
+                        let d = 2.0 + 0.01 * xf - 0.03 * yf;
+                        sums.depth_n += 1.0;
+                        sums.depth_x += xf;
+                        sums.depth_y += yf;
+                        sums.depth_xx += xf * xf;
+                        sums.depth_yy += yf * yf;
+                        sums.depth_xy += xf * yf;
+                        sums.depth_d += d;
+                        sums.depth_xd += xf * d;
+                        sums.depth_yd += yf * d;
+                    }
+                }
+            }
+        }
+        assert_eq!(depth_slopes(&line), (0.0, 0.0));
+        let (sx, sy) = depth_slopes(&plane);
+        assert!(
+            (sx - 0.01).abs() < 1e-9 && (sy + 0.03).abs() < 1e-9,
+            "{sx} {sy}"
+        );
     }
 
     #[test]

@@ -173,6 +173,19 @@ fn building_is_deterministic_and_features_follow_the_layout() {
         );
         assert!(row[column::DEPTH_STD].abs() < 1e-3);
         assert!(row[column::REGION_AREA] >= row[column::AREA]);
+        // Flat depth: no slope, no step to the neighbours, the region at the same depth.
+        assert!(row[column::DEPTH_SLOPE].abs() < 1e-4 && row[column::DEPTH_SLOPE + 1].abs() < 1e-4);
+        assert!(row[column::NEAR_DEPTH_STEP].abs() < 1e-4);
+        assert!((row[column::REGION_DEPTH_MEAN] - 2.5).abs() < 1e-4);
+        // The region's box holds the segment's centroid.
+        let (left, top, right, bottom) = (
+            row[column::REGION_BOX],
+            row[column::REGION_BOX + 1],
+            row[column::REGION_BOX + 2],
+            row[column::REGION_BOX + 3],
+        );
+        assert!(left <= row[column::CENTROID] && row[column::CENTROID] <= right);
+        assert!(top <= row[column::CENTROID + 1] && row[column::CENTROID + 1] <= bottom);
     }
     let areas: f32 = features.column(column::AREA).sum();
     assert!((areas - 1.0).abs() < 1e-4);
@@ -192,6 +205,59 @@ fn building_is_deterministic_and_features_follow_the_layout() {
         .column(column::DEPTH_MEAN)
         .iter()
         .all(|&value| value == 0.0));
+}
+
+/// Worked example: on a depth plane d(x, y) = 1000 + 3x + 10y millimetres, least squares recovers the
+/// plane exactly, so every segment's slopes per 100 pixels over its mean depth in metres are
+/// 0.3 / depth and 1.0 / depth.
+#[test]
+fn depth_slopes_recover_a_plane_and_neighbours_give_colour_and_depth_steps() {
+    let image = small_room(96, 72);
+    let depth = DepthImage {
+        width: 96,
+        height: 72,
+        millimetres: (0..96 * 72u32)
+            .map(|i| (1000 + 3 * (i % 96) + 10 * (i / 96)) as u16)
+            .collect(),
+    };
+    let scene = Scene::from_image("plane", image, Some(depth), None, &params(40)).unwrap();
+    let features = segment_features(&scene);
+    for (segment, row) in features.rows().into_iter().enumerate() {
+        let metres = scene.stats[segment].mean_depth_mm.unwrap() / 1000.0;
+        let (sx, sy) = (row[column::DEPTH_SLOPE], row[column::DEPTH_SLOPE + 1]);
+        if scene.stats[segment].bbox.width() > 1 && scene.stats[segment].bbox.height() > 1 {
+            assert!((sx - 0.3 / metres).abs() < 1e-3, "segment {segment}: {sx}");
+            assert!((sy - 1.0 / metres).abs() < 1e-3, "segment {segment}: {sy}");
+        }
+        // The neighbours' colour is a boundary-weighted mean of theirs: inside the range of the scene.
+        let near_l = row[column::NEAR_MEAN_LAB];
+        assert!((0.0..=100.0).contains(&near_l));
+    }
+    // The step to the neighbours, from the documented definition: the boundary-weighted mean of the
+    // neighbours' depths against the segment's own.
+    let mut sums = vec![(0.0f64, 0.0f64); scene.segment_count()];
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        let length = f64::from(edge.weight.boundary_length);
+        for (here, there) in [(a, b), (b, a)] {
+            let depth = f64::from(scene.stats[there].mean_depth_mm.unwrap());
+            sums[here].0 += length;
+            sums[here].1 += length * depth;
+        }
+    }
+    for (segment, (length, sum)) in sums.into_iter().enumerate() {
+        let own = f64::from(scene.stats[segment].mean_depth_mm.unwrap());
+        let expected = if length > 0.0 {
+            (sum / length - own) / own
+        } else {
+            0.0
+        };
+        let found = f64::from(features[[segment, column::NEAR_DEPTH_STEP]]);
+        assert!(
+            (found - expected).abs() < 1e-4,
+            "segment {segment}: {found} vs {expected}"
+        );
+    }
 }
 
 #[test]

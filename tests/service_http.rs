@@ -9,6 +9,7 @@ use service_support::*;
 
 const CAT: u16 = 40;
 const TOWEL: u16 = 37;
+const BOX: u16 = 29;
 const MUG: u16 = 21;
 
 #[test]
@@ -352,28 +353,28 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
     let scene = sayso::correction_log::SceneKey(created.scene_id);
     let graph = coordinator.scene_graph(scene).unwrap();
     assert!(
-        graph.objects.iter().any(|object| object.class == "towel"),
-        "the rendered bathroom has a towel"
+        graph.objects.iter().any(|object| object.class == "box"),
+        "the robot sees the box in the rendered bathroom"
     );
-    // Point at the middle of the first towel region and call it a rug: the whole region changes.
-    let towel = graph
+    // Point into the box's region and call it a rug: the whole region changes.
+    let boxed = graph
         .objects
         .iter()
-        .find(|object| object.class == "towel")
+        .find(|object| object.class == "box")
         .unwrap();
     let labels_png = coordinator.label_map_png(scene).unwrap();
     let labels =
         raster::decode_index_png(&labels_png, std::path::Path::new("labels"), 1 << 22).unwrap();
-    let (x, y) = (towel.bbox.x0..towel.bbox.x1)
-        .flat_map(|x| (towel.bbox.y0..towel.bbox.y1).map(move |y| (x, y)))
-        .find(|&(x, y)| labels.get(x, y) == TOWEL)
+    let (x, y) = (boxed.bbox.x0..boxed.bbox.x1)
+        .flat_map(|x| (boxed.bbox.y0..boxed.bbox.y1).map(move |y| (x, y)))
+        .find(|&(x, y)| labels.get(x, y) == BOX)
         .unwrap();
     let conversation = coordinator.open_conversation(scene, "mira").unwrap();
     let reply = coordinator
         .utterance(
             sayso::correction_log::ConversationKey(conversation.conversation_id),
             "mira",
-            "no, that's a rug, not a towel",
+            "no, that's a rug, not a box",
             Some(sayso::service::wire::FocusIn::Pixel { x, y }),
         )
         .unwrap();
@@ -383,7 +384,7 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
         reply
             .changes
             .iter()
-            .any(|change| change.from.as_deref() == Some("towel")
+            .any(|change| change.from.as_deref() == Some("box")
                 && change.to.as_deref() == Some("rug")
                 && change.pixels > 0),
         "{:#?}",

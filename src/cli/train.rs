@@ -68,7 +68,7 @@ pub struct TrainArgs {
     #[arg(long, value_enum, default_value_t = ModeFlag::Mlp)]
     pub mode: ModeFlag,
     /// Hidden layer width(s) for --mode mlp; repeat for two layers.
-    #[arg(long, default_values_t = [64])]
+    #[arg(long, default_values_t = [128])]
     pub hidden: Vec<usize>,
     #[arg(long, default_value_t = 200)]
     pub epochs: usize,

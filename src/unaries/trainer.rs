@@ -52,7 +52,7 @@ pub struct TrainingConfig {
 impl Default for TrainingConfig {
     fn default() -> TrainingConfig {
         TrainingConfig {
-            mode: TrainingMode::Mlp { hidden: vec![64] },
+            mode: TrainingMode::Mlp { hidden: vec![128] },
             max_epochs: 200,
             batch_size: 128,
             learning_rate: 3e-3,
