@@ -177,3 +177,84 @@ fn warm_start_from_perturbed(options: &JointOptions) {
         solve_joint(&instance.energy, Some(&warm), options).expect("valid instance")
     });
 }
+
+/// Worked example (optimum by hand): a row of 300 segments that the unaries call a door (cost 0) rather
+/// than wall (cost 1 each), two overlapping door hypotheses (segments 0-199 and 100-299, activation -3,
+/// agreement 10 a segment), strong smoothing, and the operator's "there's no door" (absent factor, weight
+/// 1000). Keeping the door costs 1000 - 6; all wall with both hypotheses off costs 300, the minimum. The
+/// row is too large for the solver's polishing of small problems. Started from the door state, a
+/// labelling given the hypothesis keeps the door (agreement) and a completion given the labels keeps the
+/// hypotheses (they lower the energy while the labels show a door anyway); the solve, cold or warm, must
+/// still reach the minimum. (The demo-scene version of this trap, which needs the class-removal move, is
+/// in `tests/demo_scenes.rs`.)
+#[test]
+fn a_class_held_up_by_its_own_hypothesis_is_dropped_when_the_operator_says_it_is_absent() {
+    use sayso::energy::{AbsentFactor, HypothesisTerm, JointState};
+    let segments = 300usize;
+    let mut unary = Vec::new();
+    for _ in 0..segments {
+        unary.extend_from_slice(&[1.0, 0.0]); // wall, door
+    }
+    let energy = JointEnergy {
+        schema: sayso::energy::ENERGY_SCHEMA,
+        label_count: 2,
+        fine_count: segments,
+        node_count: segments,
+        unary,
+        edges: (0..segments as u32 - 1).map(|s| (s, s + 1, 5.0)).collect(),
+        hypotheses: vec![
+            HypothesisTerm {
+                class: 1,
+                members: (0..200).collect(),
+                activation_cost: -3.0,
+                agreement_weight: 10.0,
+            },
+            HypothesisTerm {
+                class: 1,
+                members: (100..300).collect(),
+                activation_cost: -3.0,
+                agreement_weight: 10.0,
+            },
+        ],
+        room_count: 1,
+        room_cost: vec![0.0],
+        presence_cost: vec![0.0, 0.0],
+        count_factors: vec![],
+        absent_factors: vec![AbsentFactor {
+            class: 1,
+            weight: 1000.0,
+            source: Some(0),
+        }],
+        tuple_factors: vec![],
+        unary_factors: vec![],
+    };
+    let door = JointState {
+        labels: vec![1; segments],
+        hypotheses_on: vec![true, true],
+        room: 0,
+    };
+    assert!((energy.evaluate(&door).unwrap() - 994.0).abs() < 1e-9);
+    for options in [
+        JointOptions::default(),
+        JointOptions {
+            warm_descent: false,
+            ..JointOptions::default()
+        },
+    ] {
+        let warm = sayso::solver::joint::WarmStart {
+            state: door.clone(),
+            multipliers: None,
+        };
+        for start in [None, Some(&warm)] {
+            let solved = solve_joint(&energy, start, &options).unwrap();
+            assert!(
+                (solved.energy - 300.0).abs() < 1e-9,
+                "energy {} from {:?}",
+                solved.energy,
+                start.map(|w| &w.state.labels)
+            );
+            assert_eq!(solved.state.labels, vec![0; segments]);
+            assert!(solved.lower_bound <= 300.0 + 1e-9);
+        }
+    }
+}

@@ -2,7 +2,8 @@
 //! solve), one evaluation of the dual function (segment part bounded and labelled, coupled part solved
 //! exactly with relaxed presence), and the projected subgradient step that moves the multipliers.
 //!
-//! Owns: `fresh_multipliers`, `adapt_multipliers`, `DualValue`, `dual_value`, `subgradient_step`.
+//! Owns: `fresh_multipliers`, `adapt_multipliers`, `DualValue`, `dual_value`, `diffused_dual_bound`,
+//! `subgradient_step`.
 //! Must not: keep primal states or decide when the loop stops (that is `crate::solver::joint`); it knows
 //! nothing of language, files or what classes mean.
 
@@ -54,13 +55,8 @@ pub(crate) struct DualValue {
     copies: Vec<Vec<bool>>,
 }
 
-/// One evaluation of the dual function at the current multipliers.
-pub(crate) fn dual_value(
-    context: &Context,
-    workspace: &mut Workspace,
-    multipliers: &Multipliers,
-    start: &[u16],
-) -> DualValue {
+/// The segment part's unaries shifted by the multipliers, written into `workspace.unary`.
+fn shift_unary(context: &Context, workspace: &mut Workspace, multipliers: &Multipliers) {
     let energy = context.energy;
     let label_count = energy.label_count;
     let unary = &mut workspace.unary;
@@ -75,9 +71,12 @@ pub(crate) fn dual_value(
     for entry in &multipliers.presence {
         unary[entry.segment as usize * label_count + entry.class as usize] += entry.value;
     }
-    let segment_bound = workspace.bound.bound(unary);
-    let segment_labels = workspace.dual.label(unary, start).to_vec();
+}
 
+/// The coupled part's exact minimum at the multipliers (presence relaxed).
+fn coupled_minimum(context: &Context, multipliers: &Multipliers) -> CoupledResult {
+    let energy = context.energy;
+    let label_count = energy.label_count;
     let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
     let mut cost_off = Vec::with_capacity(energy.hypotheses.len());
     for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
@@ -92,7 +91,7 @@ pub(crate) fn dual_value(
         adjust[entry.class as usize] += entry.value;
     }
     let no_support = vec![false; label_count];
-    let coupled = solve_coupled(&CoupledInputs {
+    solve_coupled(&CoupledInputs {
         energy,
         tables: &context.coupled,
         cost_on: &cost_on,
@@ -100,7 +99,35 @@ pub(crate) fn dual_value(
         presence_adjust: &adjust,
         segment_support: &no_support,
         relaxed_presence: true,
-    });
+    })
+}
+
+/// The dual function at `multipliers` with the segment part bounded by `sweeps` sweeps of min-sum
+/// diffusion (`PottsBound::diffused`) instead of the even split: a tighter valid bound, too costly for
+/// every iteration of the loop, taken once at the best multipliers.
+pub(crate) fn diffused_dual_bound(
+    context: &Context,
+    workspace: &mut Workspace,
+    multipliers: &Multipliers,
+    sweeps: usize,
+) -> f64 {
+    shift_unary(context, workspace, multipliers);
+    let segment_bound = workspace.bound.diffused(&workspace.unary, sweeps);
+    segment_bound + coupled_minimum(context, multipliers).value
+}
+
+/// One evaluation of the dual function at the current multipliers.
+pub(crate) fn dual_value(
+    context: &Context,
+    workspace: &mut Workspace,
+    multipliers: &Multipliers,
+    start: &[u16],
+) -> DualValue {
+    let energy = context.energy;
+    shift_unary(context, workspace, multipliers);
+    let segment_bound = workspace.bound.bound(&workspace.unary);
+    let segment_labels = workspace.dual.label(&workspace.unary, start).to_vec();
+    let coupled = coupled_minimum(context, multipliers);
     let copies = energy
         .hypotheses
         .iter()

@@ -3,7 +3,7 @@
 //!
 //! Owns: `LabellerTables` (adjacency and each node's candidate labels, built once per solve), `Labeller`
 //! (alpha-expansion with its flow graph and buffers kept across calls, and memory of which moves are known to
-//! fail), `candidate_table` and `PottsBound`.
+//! fail) and `candidate_table`.
 //! Must not: know about hypotheses, rooms or constraints; it sees unaries and edges only.
 //!
 //! # Method
@@ -455,72 +455,10 @@ pub(crate) fn candidate_table(
     table
 }
 
-/// A lower bound of a Potts problem's minimum: split every node's unary evenly over its edges and minimise
-/// each edge on its own (the sum of the parts' minima cannot exceed the minimum of their sum).
-pub(crate) struct PottsBound {
-    label_count: usize,
-    /// `1 / degree` of each node (0 for isolated nodes).
-    share: Vec<f64>,
-    isolated: Vec<usize>,
-    edges: Vec<(usize, usize, f64)>,
-    /// Scratch: each node's row minimum.
-    row_minimum: Vec<f64>,
-}
-
-impl PottsBound {
-    pub(crate) fn new(
-        node_count: usize,
-        label_count: usize,
-        edges: &[(u32, u32, f64)],
-    ) -> PottsBound {
-        let mut degree = vec![0u32; node_count];
-        for &(a, b, _) in edges {
-            degree[a as usize] += 1;
-            degree[b as usize] += 1;
-        }
-        PottsBound {
-            label_count,
-            share: degree
-                .iter()
-                .map(|&d| if d == 0 { 0.0 } else { 1.0 / d as f64 })
-                .collect(),
-            isolated: (0..node_count).filter(|&node| degree[node] == 0).collect(),
-            edges: edges
-                .iter()
-                .map(|&(a, b, w)| (a as usize, b as usize, w))
-                .collect(),
-            row_minimum: vec![0.0; node_count],
-        }
-    }
-
-    /// The bound for these unaries (`node_count * label_count`).
-    pub(crate) fn bound(&mut self, unary: &[f64]) -> f64 {
-        let label_count = self.label_count;
-        let row = |node: usize| &unary[node * label_count..(node + 1) * label_count];
-        for (node, minimum) in self.row_minimum.iter_mut().enumerate() {
-            *minimum = row(node).iter().copied().fold(f64::INFINITY, f64::min);
-        }
-        let mut bound = 0.0;
-        for &node in &self.isolated {
-            bound += self.row_minimum[node];
-        }
-        for &(a, b, weight) in &self.edges {
-            let (share_a, share_b) = (self.share[a], self.share[b]);
-            let (row_a, row_b) = (row(a), row(b));
-            let mut same = f64::INFINITY;
-            for label in 0..label_count {
-                same = same.min(row_a[label] * share_a + row_b[label] * share_b);
-            }
-            let apart = self.row_minimum[a] * share_a + self.row_minimum[b] * share_b + weight;
-            bound += same.min(apart);
-        }
-        bound
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::solver::potts_bound::PottsBound;
 
     fn brute_force_minimum(unary: &[f64], label_count: usize, edges: &[(u32, u32, f64)]) -> f64 {
         let node_count = unary.len() / label_count;
@@ -566,6 +504,27 @@ mod tests {
 
     const RING: [(u32, u32); 6] = [(0, 1), (1, 2), (2, 3), (3, 4), (0, 4), (1, 3)];
 
+    /// Worked example: a chain a - b - c with weight 3, unaries a = (0, 4), b = (0, 0), c = (4, 0). The
+    /// minimum is 3 (a and b take label 0, c label 1, one cut edge); the even split bounds it by 0 (each
+    /// edge sees half of b and pays nothing). On a tree the local-polytope relaxation is exact (Wainwright
+    /// and Jordan 2008), and diffusion reaches 3 here.
+    #[test]
+    fn diffusion_closes_the_even_split_gap_on_a_chain() {
+        let unary = [0.0, 4.0, 0.0, 0.0, 4.0, 0.0];
+        let edges = [(0, 1, 3.0), (1, 2, 3.0)];
+        assert_eq!(brute_force_minimum(&unary, 2, &edges), 3.0);
+        let mut bound = PottsBound::new(3, 2, &edges);
+        assert_eq!(bound.bound(&unary), 0.0);
+        let diffused = bound.diffused(&unary, 50);
+        assert!((diffused - 3.0).abs() < 1e-6, "{diffused}");
+        // Bad input: the wrong length or a non-finite unary falls back to the even split.
+        assert_eq!(bound.diffused(&unary[..4], 50), f64::NEG_INFINITY);
+        let mut broken = unary;
+        broken[2] = f64::NAN;
+        let even = bound.bound(&broken);
+        assert_eq!(bound.diffused(&broken, 50).to_bits(), even.to_bits());
+    }
+
     proptest::proptest! {
         #[test]
         fn lower_bound_never_exceeds_the_brute_force_minimum(
@@ -579,7 +538,12 @@ mod tests {
                 .collect();
             let minimum = brute_force_minimum(&unary, 3, &edges);
             let mut bound = PottsBound::new(5, 3, &edges);
-            proptest::prop_assert!(bound.bound(&unary) <= minimum + 1e-9);
+            let even = bound.bound(&unary);
+            proptest::prop_assert!(even <= minimum + 1e-9);
+            // Diffusion never lowers the bound and never passes the minimum.
+            let diffused = bound.diffused(&unary, 20);
+            proptest::prop_assert!(diffused >= even - 1e-9);
+            proptest::prop_assert!(diffused <= minimum + 1e-9, "{} > {}", diffused, minimum);
         }
 
         /// A labeller that remembers earlier calls gives the labelling a fresh one gives.

@@ -1,14 +1,14 @@
 //! Local moves of the joint solver on a full state: pull every member of a hypothesis to its class, or away
-//! from it; on small problems, polish with node, edge, group and class-wide moves. A state is kept when it
-//! is better.
+//! from it; drop a class an absent factor wants gone (its hypotheses and labels together); on small
+//! problems, polish with node, edge, group and class-wide moves. A state is kept when it is better.
 //!
-//! Owns: `try_hypothesis_moves` and `MoveScorer`, which scores a move from the nodes it changes (their
+//! Owns: `try_hypothesis_moves`, `try_class_removals` and `MoveScorer`, which scores a move from the nodes it changes (their
 //! unaries and edges, the hypotheses over them, the classes they support) instead of the whole labelling;
 //! `polish`.
 //! Must not: keep a state it has not scored with `Context::complete` (the exact completion), nor know what
 //! the classes mean.
 
-use crate::solver::joint::{keep_better, Candidate, Context};
+use crate::solver::joint::{keep_better, Candidate, Context, Workspace, WARM_DESCENT_ROUNDS};
 use crate::solver::joint_coupled::{solve_coupled, CoupledInputs};
 
 /// A move is completed exactly only when its screened energy is this far below the best one; rounding in
@@ -193,6 +193,45 @@ pub(crate) fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
             labels[s as usize] = hypothesis.class;
         }
         attempt(&labels, &hypothesis.members, best);
+    }
+}
+
+/// For every class an absent factor wants gone that the best state still shows: every hypothesis of the
+/// class switched off at once, the segments labelled given that (the class charged its weight, see
+/// `relabel_given_hypotheses`), completed and alternated until the flags settle. Labelling given
+/// hypotheses and completing given labels each keep a supported class in place (its hypothesis pulls its
+/// segments, its segments support its hypothesis), so neither step alone can drop it; this move does both.
+pub(crate) fn try_class_removals(
+    context: &Context,
+    workspace: &mut Workspace,
+    best: &mut Candidate,
+) {
+    let energy = context.energy;
+    for factor in &energy.absent_factors {
+        let class = factor.class;
+        let fine = energy.fine_count.min(best.state.labels.len());
+        let shown = best.state.labels[..fine].contains(&class);
+        if !shown {
+            continue;
+        }
+        let mut start = best.state.clone();
+        for (hypothesis, on) in energy.hypotheses.iter().zip(start.hypotheses_on.iter_mut()) {
+            if hypothesis.class == class {
+                *on = false;
+            }
+        }
+        let mut candidate = context.relabel_given_hypotheses(workspace, &start);
+        for _ in 0..WARM_DESCENT_ROUNDS {
+            let next = context.relabel_given_hypotheses(workspace, &candidate.state);
+            let settled = next.state.hypotheses_on == candidate.state.hypotheses_on;
+            if next.energy < candidate.energy - 1e-12 {
+                candidate = next;
+            }
+            if settled {
+                break;
+            }
+        }
+        keep_better(best, candidate);
     }
 }
 

@@ -13,3 +13,4 @@ mod joint_moves;
 pub mod labelling;
 pub mod maxflow;
 pub mod maxflow_reference;
+mod potts_bound;

@@ -1,0 +1,201 @@
+//! A lower bound of the segment part of the joint energy (unaries and Potts smoothing), for the dual
+//! function of `crate::solver::joint`: edge decomposition with an even split, optionally tightened by
+//! min-sum diffusion.
+//!
+//! Owns: `PottsBound`.
+//! Must not: label anything or know about hypotheses, rooms or constraints; it sees unaries and edges only.
+//! Its tests live with the labeller's (`joint_labeller`), which share the brute-force minimum.
+
+/// A lower bound of a Potts problem's minimum by edge decomposition: every node's unary is split over its
+/// edges and each edge is minimised on its own (the sum of the parts' minima cannot exceed the minimum of
+/// their sum). `bound` splits evenly; `diffused` improves the split by min-sum diffusion (Kovalevsky and Koval; reviewed
+/// by Werner 2007, "A linear programming approach to max-sum problem: a review"): at each node, the
+/// min-marginals of its edges are made equal by moving unary mass between them. The minimum of their
+/// average is at least the average of their minima, so no step lowers the bound; the fixed points are
+/// those of the local-polytope LP relaxation's dual.
+pub(crate) struct PottsBound {
+    label_count: usize,
+    /// `1 / degree` of each node (0 for isolated nodes).
+    share: Vec<f64>,
+    isolated: Vec<usize>,
+    edges: Vec<(usize, usize, f64)>,
+    /// Per node, its edges as (edge index, 0 when the node is the edge's first end, else 1).
+    incident: Vec<Vec<(usize, usize)>>,
+    /// The split's shifts: `shift[(2 e + side) L + x]` is added to the even share of the unary of edge
+    /// `e`'s end `side` at label `x`; the shifts of one node's edges sum to 0 at every label.
+    shift: Vec<f64>,
+    /// Scratch: each node's row minimum.
+    row_minimum: Vec<f64>,
+    /// Scratch: min-marginals of one node's edges.
+    marginals: Vec<f64>,
+}
+
+impl PottsBound {
+    pub(crate) fn new(
+        node_count: usize,
+        label_count: usize,
+        edges: &[(u32, u32, f64)],
+    ) -> PottsBound {
+        let mut degree = vec![0u32; node_count];
+        let mut incident = vec![Vec::new(); node_count];
+        for (index, &(a, b, _)) in edges.iter().enumerate() {
+            degree[a as usize] += 1;
+            degree[b as usize] += 1;
+            incident[a as usize].push((index, 0));
+            incident[b as usize].push((index, 1));
+        }
+        PottsBound {
+            label_count,
+            share: degree
+                .iter()
+                .map(|&d| if d == 0 { 0.0 } else { 1.0 / d as f64 })
+                .collect(),
+            isolated: (0..node_count).filter(|&node| degree[node] == 0).collect(),
+            edges: edges
+                .iter()
+                .map(|&(a, b, w)| (a as usize, b as usize, w))
+                .collect(),
+            incident,
+            shift: vec![0.0; 2 * edges.len() * label_count],
+            row_minimum: vec![0.0; node_count],
+            marginals: Vec::new(),
+        }
+    }
+
+    /// The unary of edge `edge`'s end `side` (node `node`) at every label, written into `out`.
+    fn end_unary(&self, unary: &[f64], edge: usize, side: usize, node: usize, out: &mut [f64]) {
+        let label_count = self.label_count;
+        let row = &unary[node * label_count..(node + 1) * label_count];
+        let shift =
+            &self.shift[(2 * edge + side) * label_count..(2 * edge + side + 1) * label_count];
+        let share = self.share[node];
+        for ((slot, &value), &moved) in out.iter_mut().zip(row).zip(shift) {
+            *slot = value * share + moved;
+        }
+    }
+
+    /// One diffusion step at `node`: equalise the min-marginals of its edges. Edge `e`'s min-marginal at
+    /// label `x` is `share u(x) + shift_e(x) + t_e(x)` with `t_e(x) = min(v_e(x), min v_e + w_e)` over the
+    /// other end's unary `v_e`; the node's own `share u(x)` is common to all its edges and cancels, so each
+    /// shift moves to the average of `shift + t` less its own.
+    fn diffuse(&mut self, unary: &[f64], node: usize, there: &mut [f64], average: &mut [f64]) {
+        let label_count = self.label_count;
+        let degree = self.incident[node].len();
+        if degree < 2 {
+            return;
+        }
+        let mut marginals = std::mem::take(&mut self.marginals);
+        marginals.clear();
+        marginals.resize(degree * label_count, 0.0);
+        average.iter_mut().for_each(|v| *v = 0.0);
+        let inverse = 1.0 / degree as f64;
+        for (slot, &(edge, side)) in self.incident[node].iter().enumerate() {
+            let (a, b, weight) = self.edges[edge];
+            let other = if side == 0 { b } else { a };
+            self.end_unary(unary, edge, 1 - side, other, there);
+            let cheapest = there.iter().copied().fold(f64::INFINITY, f64::min) + weight;
+            let shift =
+                &self.shift[(2 * edge + side) * label_count..(2 * edge + side + 1) * label_count];
+            let row = &mut marginals[slot * label_count..(slot + 1) * label_count];
+            for label in 0..label_count {
+                let value = shift[label] + there[label].min(cheapest);
+                row[label] = value;
+                average[label] += value * inverse;
+            }
+        }
+        for (slot, &(edge, side)) in self.incident[node].iter().enumerate() {
+            let row = &marginals[slot * label_count..(slot + 1) * label_count];
+            let shift = &mut self.shift
+                [(2 * edge + side) * label_count..(2 * edge + side + 1) * label_count];
+            for label in 0..label_count {
+                shift[label] += average[label] - row[label];
+            }
+        }
+        self.marginals = marginals;
+    }
+
+    /// The bound of the even split (cheap: one pass over the edges), used inside the dual loop.
+    pub(crate) fn bound(&mut self, unary: &[f64]) -> f64 {
+        self.even_split(unary)
+    }
+
+    /// The bound after at most `sweeps` sweeps of diffusion from the even split, stopping early once a
+    /// sweep raises it by less than `1e-9` relative. Never below `bound` for the same unaries.
+    pub(crate) fn diffused(&mut self, unary: &[f64], sweeps: usize) -> f64 {
+        let label_count = self.label_count;
+        let node_count = self.row_minimum.len();
+        let even = self.even_split(unary);
+        if unary.len() != node_count * label_count || unary.iter().any(|v| !v.is_finite()) {
+            return even;
+        }
+        self.shift.iter_mut().for_each(|v| *v = 0.0);
+        let mut here = vec![0.0; label_count];
+        let mut there = vec![0.0; label_count];
+        let mut average = vec![0.0; label_count];
+        let mut best = even;
+        for _ in 0..sweeps {
+            for node in 0..node_count {
+                self.diffuse(unary, node, &mut there, &mut average);
+            }
+            let reached = self.split_bound(unary, &mut here, &mut there);
+            let rising = reached > best + 1e-9 * best.abs().max(1.0);
+            best = best.max(reached);
+            if !rising {
+                break;
+            }
+        }
+        best
+    }
+
+    /// The bound of the current split.
+    fn split_bound(&self, unary: &[f64], here: &mut [f64], there: &mut [f64]) -> f64 {
+        let label_count = self.label_count;
+        let mut bound = 0.0;
+        for &node in &self.isolated {
+            bound += unary[node * label_count..(node + 1) * label_count]
+                .iter()
+                .copied()
+                .fold(f64::INFINITY, f64::min);
+        }
+        for (edge, &(a, b, weight)) in self.edges.iter().enumerate() {
+            self.end_unary(unary, edge, 0, a, here);
+            self.end_unary(unary, edge, 1, b, there);
+            let lowest_here = here.iter().copied().fold(f64::INFINITY, f64::min);
+            let lowest_there = there.iter().copied().fold(f64::INFINITY, f64::min);
+            let mut same = f64::INFINITY;
+            for label in 0..label_count {
+                same = same.min(here[label] + there[label]);
+            }
+            bound += same.min(lowest_here + lowest_there + weight);
+        }
+        bound
+    }
+
+    /// The even split's bound, for inputs the diffusion does not take.
+    fn even_split(&mut self, unary: &[f64]) -> f64 {
+        let label_count = self.label_count;
+        let row = |node: usize| unary.get(node * label_count..(node + 1) * label_count);
+        for (node, minimum) in self.row_minimum.iter_mut().enumerate() {
+            *minimum = row(node)
+                .map(|r| r.iter().copied().fold(f64::INFINITY, f64::min))
+                .unwrap_or(f64::NEG_INFINITY);
+        }
+        let mut bound = 0.0;
+        for &node in &self.isolated {
+            bound += self.row_minimum[node];
+        }
+        for &(a, b, weight) in &self.edges {
+            let (share_a, share_b) = (self.share[a], self.share[b]);
+            let (Some(row_a), Some(row_b)) = (row(a), row(b)) else {
+                return f64::NEG_INFINITY;
+            };
+            let mut same = f64::INFINITY;
+            for label in 0..label_count {
+                same = same.min(row_a[label] * share_a + row_b[label] * share_b);
+            }
+            let apart = self.row_minimum[a] * share_a + self.row_minimum[b] * share_b + weight;
+            bound += same.min(apart);
+        }
+        bound
+    }
+}
