@@ -153,6 +153,21 @@ struct PixelSums {
     depth_yd: f64,
 }
 
+impl PixelSums {
+    /// Adds one pixel's depth reading `d` (metres) at column `x`, row `y` to the depth sums.
+    fn add_depth(&mut self, x: f64, y: f64, d: f64) {
+        self.depth_n += 1.0;
+        self.depth_x += x;
+        self.depth_y += y;
+        self.depth_xx += x * x;
+        self.depth_yy += y * y;
+        self.depth_xy += x * y;
+        self.depth_d += d;
+        self.depth_xd += x * d;
+        self.depth_yd += y * d;
+    }
+}
+
 /// Least-squares slopes (per pixel) of depth against x and y over one segment's pixels with depth, by the
 /// normal equations of `d = c + sx x + sy y`; (0, 0) when they are singular (a line or a single pixel).
 fn depth_slopes(sums: &PixelSums) -> (f64, f64) {
@@ -236,16 +251,7 @@ pub fn segment_features(scene: &Scene) -> Array2<f32> {
                 .and_then(|depth| depth.millimetres.get(index))
                 .copied();
             if let Some(millimetres) = reading.filter(|&m| m > 0) {
-                let d = f64::from(millimetres) / 1000.0;
-                sum.depth_n += 1.0;
-                sum.depth_x += xf;
-                sum.depth_y += yf;
-                sum.depth_xx += xf * xf;
-                sum.depth_yy += yf * yf;
-                sum.depth_xy += xf * yf;
-                sum.depth_d += d;
-                sum.depth_xd += xf * d;
-                sum.depth_yd += yf * d;
+                sum.add_depth(xf, yf, f64::from(millimetres) / 1000.0);
             }
         }
     }
@@ -454,16 +460,7 @@ mod tests {
                 let (xf, yf) = (f64::from(x), f64::from(y));
                 for (sums, include) in [(&mut line, y == 0), (&mut plane, true)] {
                     if include {
-                        let d = 2.0 + 0.01 * xf - 0.03 * yf;
-                        sums.depth_n += 1.0;
-                        sums.depth_x += xf;
-                        sums.depth_y += yf;
-                        sums.depth_xx += xf * xf;
-                        sums.depth_yy += yf * yf;
-                        sums.depth_xy += xf * yf;
-                        sums.depth_d += d;
-                        sums.depth_xd += xf * d;
-                        sums.depth_yd += yf * d;
+                        sums.add_depth(xf, yf, 2.0 + 0.01 * xf - 0.03 * yf);
                     }
                 }
             }

@@ -379,13 +379,13 @@ fn argmin_labels(unary: &[f64], label_count: usize) -> Vec<u16> {
 }
 
 /// Alternations at most in the warm start's descent.
-pub(crate) const WARM_DESCENT_ROUNDS: usize = 4;
+const WARM_DESCENT_ROUNDS: usize = 4;
 
 /// Descends from a previous state before the dual loop: labels given its hypothesis flags (flags that no
 /// longer fit the energy count as off), completes them exactly, and repeats with the completed flags until
 /// they stop changing. Keeps every state it passes in `best` and `pool`; returns the last flags it labelled
 /// with, so the loop's alternation does not repeat them.
-fn warm_descent(
+pub(crate) fn warm_descent(
     context: &Context,
     workspace: &mut Workspace,
     previous: &JointState,

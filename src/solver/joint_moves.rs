@@ -8,7 +8,7 @@
 //! Must not: keep a state it has not scored with `Context::complete` (the exact completion), nor know what
 //! the classes mean.
 
-use crate::solver::joint::{keep_better, Candidate, Context, Workspace, WARM_DESCENT_ROUNDS};
+use crate::solver::joint::{keep_better, warm_descent, Candidate, Context, Workspace};
 use crate::solver::joint_coupled::{solve_coupled, CoupledInputs};
 
 /// A move is completed exactly only when its screened energy is this far below the best one; rounding in
@@ -197,8 +197,8 @@ pub(crate) fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
 }
 
 /// For every class an absent factor wants gone that the best state still shows: every hypothesis of the
-/// class switched off at once, the segments labelled given that (the class charged its weight, see
-/// `relabel_given_hypotheses`), completed and alternated until the flags settle. Labelling given
+/// class switched off at once, then the warm start's descent from there (`joint::warm_descent`: labelled
+/// given the flags, the class charged its weight, completed, repeated until the flags settle). Labelling given
 /// hypotheses and completing given labels each keep a supported class in place (its hypothesis pulls its
 /// segments, its segments support its hypothesis), so neither step alone can drop it; this move does both.
 pub(crate) fn try_class_removals(
@@ -220,18 +220,7 @@ pub(crate) fn try_class_removals(
                 *on = false;
             }
         }
-        let mut candidate = context.relabel_given_hypotheses(workspace, &start);
-        for _ in 0..WARM_DESCENT_ROUNDS {
-            let next = context.relabel_given_hypotheses(workspace, &candidate.state);
-            let settled = next.state.hypotheses_on == candidate.state.hypotheses_on;
-            if next.energy < candidate.energy - 1e-12 {
-                candidate = next;
-            }
-            if settled {
-                break;
-            }
-        }
-        keep_better(best, candidate);
+        warm_descent(context, workspace, &start, best, &mut Vec::new());
     }
 }
 
