@@ -31,6 +31,7 @@ use crate::energy::EnergyError;
 use crate::evaluation::{
     object_accuracy, objects_from_graph, score_labels, EvaluationError, SceneScore,
 };
+use crate::grounding::plural;
 use crate::ids::ClassId;
 use crate::pipeline::{
     believe_without_notes, correct_turn, prepare_loaded, superpixels_of, CorrectionSettings,
@@ -192,9 +193,9 @@ pub fn training_notes(taxonomy: &Taxonomy, scene: &DemoScene) -> Vec<String> {
     tally.sort_by(|a, b| b.0.cmp(&a.0).then(b.1.cmp(&a.1)).then(a.2.cmp(&b.2)));
     if let Some(&(count, _, class)) = tally.first() {
         notes.push(format!(
-            "there are {} {}s",
+            "there are {} {}",
             NUMBER_WORDS[count],
-            taxonomy.class_name(class)
+            plural(taxonomy.class_name(class))
         ));
     }
     notes

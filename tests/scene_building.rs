@@ -101,8 +101,8 @@ fn statistics_adjacency_and_coarse_level_are_consistent() {
         assert!((edge.weight.colour_contrast - expected).abs() < 1e-4);
     }
 
-    // Every fine segment is in exactly one region; regions number about one per eight segments and each is
-    // connected in the adjacency graph.
+    // Every fine segment is in exactly one region; regions number about one per `segments_per_region`
+    // segments and each is connected in the adjacency graph.
     let coarse = &scene.coarse;
     assert_eq!(coarse.region_of.len(), count);
     let mut seen = vec![0u32; count];
@@ -130,7 +130,8 @@ fn statistics_adjacency_and_coarse_level_are_consistent() {
         );
     }
     assert!(seen.iter().all(|&times| times == 1));
-    let target = (count as f64 / 8.0).round() as usize;
+    let per_region = SceneParams::default().segments_per_region as f64;
+    let target = (count as f64 / per_region).round() as usize;
     let regions = coarse.members.len();
     assert!(
         regions <= target && regions * 2 >= target,

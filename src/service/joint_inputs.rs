@@ -95,16 +95,19 @@ fn bad(field: &str, message: impl Into<String>) -> CorrectorError {
 /// Pixels per superpixel at least, for images too small for the default segment count (our own choice).
 const SMALLEST_SEGMENT_PIXELS: u64 = 4;
 
-/// The default scene settings, with fewer superpixels on images too small for the default count.
+/// The default scene settings, with fewer superpixels on images too small for the default count, and
+/// proportionally fewer per coarse region (at least one), so the coarse level keeps its share of the image.
 fn scene_params(width: u32, height: u32) -> Result<SceneParams, CorrectorError> {
     let mut params = SceneParams::default();
-    let default_target = SceneParams::default().superpixels.target_segments();
+    let default_target = params.superpixels.target_segments() as u64;
     let fits = (width as u64 * height as u64 / SMALLEST_SEGMENT_PIXELS).max(1);
-    if fits < default_target as u64 {
+    if fits < default_target {
         params.superpixels = params
             .superpixels
             .with_target_segments(fits as u32)
             .map_err(|error| bad("image_png_base64", error.to_string()))?;
+        let per_region = (params.segments_per_region as u64 * fits / default_target).max(1);
+        params.segments_per_region = per_region as u32;
     }
     Ok(params)
 }
@@ -223,4 +226,32 @@ fn scores_unaries(
         UnarySource::PixelScores { file: FIELD.into() },
     )
     .map_err(|error| bad(FIELD, error.to_string()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn small_images_get_fewer_segments_and_smaller_coarse_regions() {
+        let full = SceneParams::default();
+        let same = scene_params(640, 480).unwrap();
+        assert_eq!(
+            same.superpixels.target_segments(),
+            full.superpixels.target_segments()
+        );
+        assert_eq!(same.segments_per_region, full.segments_per_region);
+        // 32 x 8 pixels: 64 segments of 4 pixels; the regions keep their share of the image (at least 1).
+        let tiny = scene_params(32, 8).unwrap();
+        assert_eq!(tiny.superpixels.target_segments(), 64);
+        assert_eq!(tiny.segments_per_region, 1);
+        // Half the default count: half as many segments per region.
+        let pixels = full.superpixels.target_segments() as u64 * SMALLEST_SEGMENT_PIXELS / 2;
+        let half = scene_params(pixels as u32, 1).unwrap();
+        assert_eq!(
+            half.superpixels.target_segments() * 2,
+            full.superpixels.target_segments()
+        );
+        assert_eq!(half.segments_per_region * 2, full.segments_per_region);
+    }
 }

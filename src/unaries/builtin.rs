@@ -191,8 +191,12 @@ mod tests {
                 image.set(x, y, [40, 60, 140]);
             }
         }
-        let scene =
-            Scene::from_image("two halves", image, None, None, &SceneParams::default()).unwrap();
+        // 1536 pixels: fewer segments than a full-size scene aims at.
+        let params = SceneParams {
+            superpixels: crate::slic::SlicParams::new(96, 10.0, 10).unwrap(),
+            segments_per_region: 8,
+        };
+        let scene = Scene::from_image("two halves", image, None, None, &params).unwrap();
         let mlp = seeded_random_mlp(4, &[FEATURE_COUNT, 8, taxonomy.class_count()]);
         let contract = ModelContract {
             format_version: MODEL_FORMAT_VERSION,
