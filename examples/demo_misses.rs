@@ -96,6 +96,19 @@ fn main() -> anyhow::Result<()> {
             let (b, af) = (best(&bo), best(&ao));
             let cr = best(&co);
             let (ai, ac) = bestany(&ao);
+            // Size of the best right-class object after the notes against the ground truth's (above 1: it
+            // took in more than the object, a merge; below 1: it covers part of it).
+            let size = ao
+                .iter()
+                .filter(|p| p.class == o.class_id)
+                .map(|p| {
+                    (
+                        iou(&p.pixels, inst, id, a),
+                        p.pixels.len() as f64 / a.max(1) as f64,
+                    )
+                })
+                .fold((0.0, 0.0), |m, x| if x.0 > m.0 { x } else { m })
+                .1;
             tot += 1;
             if oi >= 0.5 {
                 reach += 1;
@@ -113,7 +126,7 @@ fn main() -> anyhow::Result<()> {
             } else {
                 "MIS"
             };
-            println!("  {tag} {:>3} {:<10} area {:>6} oracle {:.2} cls {:.2} base {:.2} after {:.2} bestany {:.2} {}", o.id, o.class, a, oi, cr, b, af, ai, taxonomy.class(sayso::ids::ClassId(ac)).map(|c| c.name.as_str()).unwrap_or("?"));
+            println!("  {tag} {:>3} {:<10} area {:>6} oracle {:.2} cls {:.2} base {:.2} after {:.2} size {:.2} bestany {:.2} {}", o.id, o.class, a, oi, cr, b, af, size, ai, taxonomy.class(sayso::ids::ClassId(ac)).map(|c| c.name.as_str()).unwrap_or("?"));
         }
     }
     println!("total {tot} reachable {reach} base {base} after {after}");

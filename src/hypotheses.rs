@@ -3,7 +3,8 @@
 //! Owns: `Hypothesis`, and building
 //! hypotheses from detections (`crate::unaries::byo_detections::Detection`) and from proposals — connected groups of segments over the adjacency graph, at
 //! the fine and the coarse level, for every class in each unit's top-k — with ids that depend only on the
-//! class and the member segments.
+//! class and the member segments; and, for classes a caller names (the operator mentioned them), connected
+//! groups over a wider top-k that no hypothesis of the class holds yet (`propose_named`).
 //! Must not: decide which hypotheses are real (that is the solver's job) or read language.
 
 use std::collections::BTreeMap;
@@ -50,6 +51,14 @@ pub struct ProposalOptions {
     pub member_share: f32,
     /// At most this many hypotheses are kept (highest score first, then by id).
     pub max_hypotheses: usize,
+    /// For a class the operator names, segments with it among their this many best classes are grouped
+    /// too (`propose_named`), where no hypothesis of the class holds them yet.
+    #[serde(default = "default_named_top_k")]
+    pub named_top_k: usize,
+}
+
+fn default_named_top_k() -> usize {
+    5
 }
 
 impl Default for ProposalOptions {
@@ -58,6 +67,7 @@ impl Default for ProposalOptions {
             top_k: 2,
             member_share: 0.5,
             max_hypotheses: 400,
+            named_top_k: default_named_top_k(),
         }
     }
 }
@@ -277,14 +287,7 @@ pub fn build_hypotheses(
             top_classes(&row, options.top_k)
         })
         .collect();
-    let mut neighbours = vec![Vec::new(); segment_count];
-    for edge in scene.adjacency.raw_edges() {
-        let (a, b) = (edge.source().index(), edge.target().index());
-        if a < segment_count && b < segment_count {
-            neighbours[a].push(b);
-            neighbours[b].push(a);
-        }
-    }
+    let neighbours = segment_neighbours(scene, segment_count);
     for class in 0..class_count {
         let class = ClassId(class as u16);
         let mut seen = vec![false; segment_count];
@@ -373,4 +376,100 @@ pub fn build_hypotheses(
         }
     }
     Ok(hypotheses)
+}
+
+/// Extra hypotheses for classes the operator named: connected groups of fine segments that have the class
+/// among their `options.named_top_k` best classes and that no hypothesis of the class in `existing` holds
+/// (so a class's hypotheses stay disjoint). "There's a laptop on the desk" can then switch on a desk the
+/// robot ranked third. Returned sorted by (class, members), with ids that no hypothesis in `existing`
+/// carries; classes outside the unaries are skipped.
+pub fn propose_named(
+    scene: &Scene,
+    unaries: &Unaries,
+    existing: &[Hypothesis],
+    classes: &[ClassId],
+    options: &ProposalOptions,
+) -> Vec<Hypothesis> {
+    let segment_count = scene.segment_count().min(unaries.segment_count());
+    let class_count = unaries.class_count();
+    let mut classes: Vec<ClassId> = classes
+        .iter()
+        .copied()
+        .filter(|c| c.index() < class_count)
+        .collect();
+    classes.sort();
+    classes.dedup();
+    if classes.is_empty() || options.named_top_k <= options.top_k {
+        return Vec::new();
+    }
+    let tops: Vec<Vec<ClassId>> = (0..segment_count)
+        .map(|s| {
+            let row: Vec<f32> = unaries.log_probs.row(s).iter().copied().collect();
+            top_classes(&row, options.named_top_k)
+        })
+        .collect();
+    let neighbours = segment_neighbours(scene, segment_count);
+    let mut used: std::collections::BTreeSet<HypothesisId> =
+        existing.iter().map(|h| h.id).collect();
+    let mut proposed = Vec::new();
+    for class in classes {
+        let mut held = vec![false; segment_count];
+        for hypothesis in existing.iter().filter(|h| h.class == class) {
+            for member in &hypothesis.members {
+                if let Some(flag) = held.get_mut(member.index()) {
+                    *flag = true;
+                }
+            }
+        }
+        let open = |s: usize| !held[s] && tops[s].contains(&class);
+        let mut seen = vec![false; segment_count];
+        for start in 0..segment_count {
+            if seen[start] || !open(start) {
+                continue;
+            }
+            seen[start] = true;
+            let mut group = vec![start];
+            let mut cursor = 0;
+            while cursor < group.len() {
+                let here = group[cursor];
+                cursor += 1;
+                for &next in &neighbours[here] {
+                    if !seen[next] && open(next) {
+                        seen[next] = true;
+                        group.push(next);
+                    }
+                }
+            }
+            let mut members: Vec<SegmentId> =
+                group.into_iter().map(|s| SegmentId(s as u32)).collect();
+            members.sort();
+            let score = mean_probability(scene, unaries, class, &members);
+            let mut id = hypothesis_id(class, &members);
+            while !used.insert(id) {
+                id = HypothesisId(id.0.wrapping_add(1));
+            }
+            proposed.push(Hypothesis {
+                id,
+                bbox: bbox_of(scene, &members),
+                class,
+                members,
+                score: if score.is_finite() { score } else { 0.0 },
+                origin: HypothesisOrigin::FineGroup,
+            });
+        }
+    }
+    proposed
+}
+
+/// Each fine segment's neighbours over the adjacency graph.
+fn segment_neighbours(scene: &Scene, segment_count: usize) -> Vec<Vec<usize>> {
+    let mut neighbours = vec![Vec::new(); segment_count];
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        if a < segment_count && b < segment_count {
+            neighbours[a].push(b);
+            neighbours[b].push(a);
+        }
+    }
+    neighbours
 }

@@ -334,8 +334,8 @@ fn pillow_decodes_the_committed_files_to_the_same_numbers() {
 /// solve must drop the chairs everywhere (labels and objects) rather than report the note as contradicted.
 /// Labelling given the hypotheses keeps the chairs and completing given the labels keeps the hypotheses, so
 /// only the solver's class-removal move, which changes both at once, finds the cheaper chair-free state
-/// (bedroom_lazy_sunday, 1600-segment scenes: energy 1311.6 with the chairs kept and the note reported as
-/// contradicted when the move is switched off, 802.3 with the move; measured 2026-12-03).
+/// (bedroom_lazy_sunday, 2400-segment scenes: energy 2021.0 with 213 chair segments kept and the note
+/// reported as contradicted when the move is switched off, 1880.5 with the move; measured 2026-12-03).
 #[test]
 fn an_absent_note_drops_a_class_its_own_hypotheses_hold_up() {
     use sayso::pipeline::{

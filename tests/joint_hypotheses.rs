@@ -1,5 +1,6 @@
 //! Object hypotheses on a hand-built scene: stable ids, detections taking their segments, top-k proposals,
-//! one object per segment within a class, and typed errors for inputs that do not fit.
+//! wider proposals for named classes, one object per segment within a class, and typed errors for inputs
+//! that do not fit.
 //!
 //! Owns: checks of `sayso::hypotheses` through its public API.
 //! Must not: depend on the solver; it only inspects the hypothesis list.
@@ -8,7 +9,8 @@ mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use sayso::hypotheses::{
-    build_hypotheses, hypothesis_id, Detection, HypothesisError, HypothesisOrigin, ProposalOptions,
+    build_hypotheses, hypothesis_id, propose_named, Detection, HypothesisError, HypothesisOrigin,
+    ProposalOptions,
 };
 use sayso::ids::{ClassId, SegmentId};
 use sayso::scene::BoundingBox;
@@ -123,4 +125,86 @@ fn inputs_that_do_not_fit_are_typed_errors() {
             segments: 8
         })
     ));
+}
+
+/// A 4 x 2 strip of the Juniper Lane study: a desk ranked third (after chair and table) on the left two
+/// columns and fourth on the right two, where a chair is ranked first everywhere and the desk second in
+/// one right-hand cell only.
+fn study() -> (sayso::scene::Scene, sayso::unaries::Unaries) {
+    let (table, chair, desk, rug) = (7u16, 8u16, 14u16, 6u16);
+    let mut cells = Vec::new();
+    for index in 0..8 {
+        let scores = match index % 4 {
+            0 | 1 => vec![(chair, 0.5), (table, 0.3), (desk, 0.1)],
+            2 if index == 2 => vec![(chair, 0.5), (desk, 0.3), (table, 0.1)],
+            _ => vec![(chair, 0.5), (table, 0.2), (rug, 0.15), (desk, 0.1)],
+        };
+        cells.push(Cell {
+            colour: [120, 90, 60],
+            scores,
+        });
+    }
+    let region = [0, 0, 1, 1, 2, 2, 3, 3];
+    let scene = grid_scene("juniper-lane-study", 4, 2, 10, &cells, &region);
+    (scene, grid_unaries(&cells, 41))
+}
+
+#[test]
+fn a_named_class_ranked_low_gets_groups_where_none_of_its_hypotheses_reach() {
+    let (scene, unaries) = study();
+    let desk = ClassId(14);
+    let options = ProposalOptions::default();
+    let hypotheses = build_hypotheses(&scene, &unaries, &[], &options).unwrap();
+    let held: Vec<SegmentId> = hypotheses
+        .iter()
+        .filter(|h| h.class == desk)
+        .flat_map(|h| h.members.iter().copied())
+        .collect();
+    assert!(
+        !held.is_empty(),
+        "the desk ranked second in one cell is proposed at top-2"
+    );
+    assert!(held.len() < 8, "but not over the whole strip: {held:?}");
+
+    let extra = propose_named(&scene, &unaries, &hypotheses, &[desk], &options);
+    assert!(
+        !extra.is_empty(),
+        "naming the desk proposes it where it ranks third or fourth"
+    );
+    let mut covered = held.clone();
+    for hypothesis in &extra {
+        assert_eq!(hypothesis.class, desk);
+        assert_eq!(hypothesis.origin, HypothesisOrigin::FineGroup);
+        for member in &hypothesis.members {
+            assert!(
+                !covered.contains(member),
+                "{member:?} is held twice for the desk"
+            );
+            covered.push(*member);
+        }
+        assert!(hypotheses.iter().all(|h| h.id != hypothesis.id));
+    }
+    covered.sort();
+    let all: Vec<SegmentId> = (0..8).map(SegmentId).collect();
+    assert_eq!(
+        covered, all,
+        "every segment with the desk in its top 5 is held once"
+    );
+
+    // Same inputs, same list; a class not named, or named but already everywhere, adds nothing.
+    assert_eq!(
+        extra,
+        propose_named(&scene, &unaries, &hypotheses, &[desk, desk], &options)
+    );
+    assert!(propose_named(&scene, &unaries, &hypotheses, &[], &options).is_empty());
+    let with_extra: Vec<_> = hypotheses.iter().chain(&extra).cloned().collect();
+    assert!(propose_named(&scene, &unaries, &with_extra, &[desk], &options).is_empty());
+    // The wider rank is what reaches the desk: at the ordinary top-2 nothing is added.
+    let narrow = ProposalOptions {
+        named_top_k: 2,
+        ..options.clone()
+    };
+    assert!(propose_named(&scene, &unaries, &hypotheses, &[desk], &narrow).is_empty());
+    // A class id outside the unaries is skipped, not a panic.
+    assert!(propose_named(&scene, &unaries, &hypotheses, &[ClassId(400)], &options).is_empty());
 }

@@ -32,9 +32,9 @@ pub struct SceneParams {
     pub segments_per_region: u32,
 }
 
-/// Fine segments a scene aims at: ~192 pixels each on a 640x480 image. Chosen on training renders
+/// Fine segments a scene aims at: ~128 pixels each on a 640x480 image. Chosen on training renders
 /// (`examples/superpixel_reach`, `examples/render_objects`; DEVELOPERS.md has the figures).
-pub const SCENE_SEGMENTS: u32 = 1600;
+pub const SCENE_SEGMENTS: u32 = 2400;
 
 /// SLIC compactness of a scene's segments: lower than `SlicParams::default`'s 10, so thin things (book
 /// spines) keep their own segments.
@@ -42,14 +42,14 @@ pub const SCENE_COMPACTNESS: f32 = 5.0;
 
 impl Default for SceneParams {
     /// SLIC with `SCENE_SEGMENTS` segments and `SCENE_COMPACTNESS` (iterations as `SlicParams::default`),
-    /// and about 16 fine segments per coarse region (regions of about 3000 pixels on a 640x480 image).
+    /// and about 24 fine segments per coarse region (regions of about 3000 pixels on a 640x480 image).
     fn default() -> Self {
         SceneParams {
             superpixels: SlicParams::default()
                 .with_target_segments(SCENE_SEGMENTS)
                 .and_then(|p| p.with_compactness(SCENE_COMPACTNESS))
                 .unwrap_or_default(),
-            segments_per_region: 16,
+            segments_per_region: 24,
         }
     }
 }

@@ -19,10 +19,10 @@ use crate::grounding::{
     SceneView, Target,
 };
 use crate::hypotheses::{
-    build_hypotheses, Detection, Hypothesis, HypothesisError, ProposalOptions,
+    build_hypotheses, propose_named, Detection, Hypothesis, HypothesisError, ProposalOptions,
 };
 use crate::ids::ClassId;
-use crate::language::constraint::{Constraint, Count};
+use crate::language::constraint::{Constraint, ConstraintKind, Count};
 use crate::scene::Scene;
 use crate::solver::joint::{solve_joint, JointError, JointOptions, JointSolution, WarmStart};
 use crate::taxonomy::Taxonomy;
@@ -111,7 +111,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     let taxonomy = request.taxonomy;
     // A later turn keeps the earlier turn's hypothesis list (the same scene gives the same list, plus any
     // hypotheses earlier relabels added), so the constraints still in force keep pointing at the right ones.
-    let hypotheses = match request.previous {
+    let mut hypotheses = match request.previous {
         Some(previous) => previous.hypotheses.clone(),
         None => build_hypotheses(
             scene,
@@ -138,6 +138,18 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         }
         None => baseline(&energy_inputs(request, &hypotheses, &[]), request.options)?,
     };
+
+    // Classes this turn names get groups over a wider top-k where none of their hypotheses reaches, after
+    // the "before" is settled (appended, so the warm start's flags keep their positions and start off).
+    let named = named_classes(request.constraints);
+    let extra = propose_named(
+        scene,
+        request.unaries,
+        &hypotheses,
+        &named,
+        request.proposals,
+    );
+    hypotheses.extend(extra);
 
     let accepted: Vec<bool> = hypotheses
         .iter()
@@ -388,6 +400,40 @@ fn energy_inputs<'a>(
         prior: request.prior,
         weights: request.weights,
     }
+}
+
+/// The classes a turn's constraints ask to be in view (present, a count above zero, either end of a
+/// relation, a place's subject, a relabel's new class, an attribute's target): where proposals widen.
+fn named_classes(constraints: &[Constraint]) -> Vec<ClassId> {
+    let mut classes = Vec::new();
+    for constraint in constraints {
+        match &constraint.kind {
+            ConstraintKind::Present { class } => classes.push(*class),
+            ConstraintKind::Count { class, count } => {
+                if matches!(count, Count::Exactly(k) | Count::AtLeast(k) if *k > 0) {
+                    classes.push(*class);
+                }
+            }
+            ConstraintKind::Relation {
+                subject,
+                negated,
+                landmarks,
+                ..
+            } => {
+                if !negated {
+                    classes.extend(subject.class);
+                }
+                classes.extend(landmarks.iter().filter_map(|landmark| landmark.class));
+            }
+            ConstraintKind::Place { subject, .. } => classes.extend(subject.class),
+            ConstraintKind::Relabel { to, .. } => classes.extend(*to),
+            ConstraintKind::Attribute { target, .. } => classes.extend(target.class),
+            ConstraintKind::Absent { .. } | ConstraintKind::RoomType { .. } => {}
+        }
+    }
+    classes.sort();
+    classes.dedup();
+    classes
 }
 
 fn baseline(
