@@ -348,7 +348,7 @@ fn bench_joint(criterion: &mut Criterion) {
 
     let mut full_samples = Vec::new();
     let mut warm_samples = Vec::new();
-    for _ in 0..7 {
+    for _ in 0..31 {
         let start = Instant::now();
         std::hint::black_box(solve_joint(&built.energy, None, &options).unwrap());
         full_samples.push(start.elapsed());
@@ -363,7 +363,7 @@ fn bench_joint(criterion: &mut Criterion) {
     };
     let undescended = solve_joint(&built.energy, Some(&warm), &no_descent_options).unwrap();
     let mut descent_samples = Vec::new();
-    for _ in 0..7 {
+    for _ in 0..31 {
         let start = Instant::now();
         std::hint::black_box(solve_joint(&built.energy, Some(&warm), &no_descent_options).unwrap());
         descent_samples.push(start.elapsed());

@@ -433,17 +433,25 @@ pub(crate) fn candidate_table(
     extra: &[(usize, u16)],
 ) -> Vec<bool> {
     let mut table = vec![false; node_count * label_count];
-    let mut order: Vec<usize> = Vec::with_capacity(label_count);
     for node in 0..node_count {
         let row = &unary[node * label_count..(node + 1) * label_count];
-        order.clear();
-        order.extend(0..label_count);
-        // The order is total (ties by label), so selecting the cheapest few gives the set sorting would.
-        let by_cost = |a: &usize, b: &usize| row[*a].total_cmp(&row[*b]).then(a.cmp(b));
-        if label_count > CANDIDATE_LABELS {
-            order.select_nth_unstable_by(CANDIDATE_LABELS - 1, by_cost);
+        // The cheapest few in the total order (cost, then label), kept sorted by one insertion pass: labels
+        // arrive in increasing order, so a later label ties with a kept one only by losing to it.
+        let mut cheapest = [(f64::INFINITY, usize::MAX); CANDIDATE_LABELS];
+        let mut kept = 0;
+        for (label, &cost) in row.iter().enumerate() {
+            if kept == CANDIDATE_LABELS && cost.total_cmp(&cheapest[kept - 1].0).is_ge() {
+                continue;
+            }
+            let mut at = kept.min(CANDIDATE_LABELS - 1);
+            while at > 0 && cost.total_cmp(&cheapest[at - 1].0).is_lt() {
+                cheapest[at] = cheapest[at - 1];
+                at -= 1;
+            }
+            cheapest[at] = (cost, label);
+            kept = (kept + 1).min(CANDIDATE_LABELS);
         }
-        for &label in order.iter().take(CANDIDATE_LABELS) {
+        for &(_, label) in &cheapest[..kept] {
             table[node * label_count + label] = true;
         }
     }
@@ -459,6 +467,41 @@ pub(crate) fn candidate_table(
 mod tests {
     use super::*;
     use crate::solver::potts_bound::PottsBound;
+
+    /// The one-pass selection keeps the same labels as sorting each row by (cost, label) and taking the
+    /// first `CANDIDATE_LABELS`, ties and all.
+    #[test]
+    fn candidate_selection_matches_sorting() {
+        let label_count = 9;
+        let mut state = 12345u64;
+        let mut next = || {
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            ((state >> 33) % 5) as f64
+        };
+        let node_count = 300;
+        let unary: Vec<f64> = (0..node_count * label_count).map(|_| next()).collect();
+        let table = candidate_table(&unary, node_count, label_count, &[(7, 8)]);
+        for node in 0..node_count {
+            let row = &unary[node * label_count..(node + 1) * label_count];
+            let mut order: Vec<usize> = (0..label_count).collect();
+            order.sort_by(|a, b| row[*a].total_cmp(&row[*b]).then(a.cmp(b)));
+            let mut expected = vec![false; label_count];
+            for &label in order.iter().take(CANDIDATE_LABELS) {
+                expected[label] = true;
+            }
+            if node == 7 {
+                expected[8] = true;
+            }
+            assert_eq!(
+                &table[node * label_count..(node + 1) * label_count],
+                &expected[..]
+            );
+        }
+        // Fewer labels than the candidate count: every label is a candidate.
+        assert!(candidate_table(&[1.0, 0.0], 1, 2, &[]).iter().all(|&c| c));
+    }
 
     fn brute_force_minimum(unary: &[f64], label_count: usize, edges: &[(u32, u32, f64)]) -> f64 {
         let node_count = unary.len() / label_count;
