@@ -145,6 +145,28 @@ fn mean_probability(
     }
 }
 
+/// Each of the first `segment_count` segments' `top_k` classes, best first.
+fn segment_tops(unaries: &Unaries, segment_count: usize, top_k: usize) -> Vec<Vec<ClassId>> {
+    (0..segment_count)
+        .map(|s| {
+            let row: Vec<f32> = unaries.log_probs.row(s).iter().copied().collect();
+            top_classes(&row, top_k)
+        })
+        .collect()
+}
+
+/// `id`, or the first id after it (wrapping) that `used` does not hold yet; marked used. Resolves the
+/// (rare) id collisions deterministically.
+fn claim_id(
+    used: &mut std::collections::BTreeSet<HypothesisId>,
+    mut id: HypothesisId,
+) -> HypothesisId {
+    while !used.insert(id) {
+        id = HypothesisId(id.0.wrapping_add(1));
+    }
+    id
+}
+
 /// The `top_k` classes of a row of log-probabilities, best first (ties by class id).
 fn top_classes(row: &[f32], top_k: usize) -> Vec<ClassId> {
     let mut order: Vec<usize> = (0..row.len()).collect();
@@ -283,12 +305,7 @@ pub fn build_hypotheses(
     }
 
     // Fine level: connected groups of segments that share the class in their top-k.
-    let tops: Vec<Vec<ClassId>> = (0..segment_count)
-        .map(|s| {
-            let row: Vec<f32> = unaries.log_probs.row(s).iter().copied().collect();
-            top_classes(&row, options.top_k)
-        })
-        .collect();
+    let tops = segment_tops(unaries, segment_count, options.top_k);
     let neighbours = segment_neighbours(scene, segment_count);
     for class in 0..class_count {
         let class = ClassId(class as u16);
@@ -353,9 +370,7 @@ pub fn build_hypotheses(
     // Resolve the (rare) id collisions deterministically: later entries in sorted order step forward.
     let mut used = std::collections::BTreeSet::new();
     for hypothesis in &mut hypotheses {
-        while !used.insert(hypothesis.id) {
-            hypothesis.id = HypothesisId(hypothesis.id.0.wrapping_add(1));
-        }
+        hypothesis.id = claim_id(&mut used, hypothesis.id);
     }
     Ok(hypotheses)
 }
@@ -384,12 +399,7 @@ pub fn propose_named(
     if classes.is_empty() || options.named_top_k <= options.top_k {
         return Vec::new();
     }
-    let tops: Vec<Vec<ClassId>> = (0..segment_count)
-        .map(|s| {
-            let row: Vec<f32> = unaries.log_probs.row(s).iter().copied().collect();
-            top_classes(&row, options.named_top_k)
-        })
-        .collect();
+    let tops = segment_tops(unaries, segment_count, options.named_top_k);
     let neighbours = segment_neighbours(scene, segment_count);
     let mut used: std::collections::BTreeSet<HypothesisId> =
         existing.iter().map(|h| h.id).collect();
@@ -406,12 +416,8 @@ pub fn propose_named(
         let open = |s: usize| !held[s] && tops[s].contains(&class);
         for members in connected_groups(&neighbours, open) {
             let score = mean_probability(scene, unaries, class, &members);
-            let mut id = hypothesis_id(class, &members);
-            while !used.insert(id) {
-                id = HypothesisId(id.0.wrapping_add(1));
-            }
             proposed.push(Hypothesis {
-                id,
+                id: claim_id(&mut used, hypothesis_id(class, &members)),
                 bbox: bbox_of(scene, &members),
                 class,
                 members,
