@@ -13,7 +13,7 @@ use super::{
     ENERGY_SCHEMA, HARD_WEIGHT,
 };
 use crate::grounding::{
-    footprint_of, in_region, relation_holds, GroundedConstraint, GroundedKind, Target,
+    footprint_of, in_region, relation_holds, Extents, GroundedConstraint, GroundedKind, Target,
 };
 use crate::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
 use crate::ids::{ClassId, SegmentId};
@@ -235,6 +235,9 @@ pub struct EnergyInputs<'a> {
     pub unaries: &'a Unaries,
     pub taxonomy: &'a Taxonomy,
     pub hypotheses: &'a [Hypothesis],
+    /// Which hypotheses the state the operator saw accepts (missing: not accepted): a relation is measured
+    /// on the objects as shown (`crate::grounding::Extents`).
+    pub accepted: &'a [bool],
     pub grounded: &'a [GroundedConstraint],
     pub prior: &'a RoomClassPrior,
     pub weights: &'a EnergyWeights,
@@ -358,6 +361,7 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
                     continue;
                 };
                 let second = landmarks.get(1);
+                let extents = Extents::new(scene, &hypotheses, inputs.accepted);
                 let mut holding = Vec::new();
                 let mut failing = Vec::new();
                 for &s in &subject.hypotheses {
@@ -365,8 +369,8 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
                         if s == l {
                             continue;
                         }
-                        let subject_members = hypotheses[s].members.as_slice();
-                        let first_members = hypotheses[l].members.as_slice();
+                        let subject_members = extents.of(&hypotheses, s);
+                        let first_members = extents.of(&hypotheses, l);
                         let ok = match second {
                             Some(second) => second.hypotheses.iter().any(|&m| {
                                 m != s
@@ -375,7 +379,7 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
                                         scene,
                                         *relation,
                                         subject_members,
-                                        &[first_members, hypotheses[m].members.as_slice()],
+                                        &[first_members, extents.of(&hypotheses, m)],
                                     )
                             }),
                             None => {
@@ -525,15 +529,32 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
         }
     }
 
+    // The object a definite statement places or names (the laptop of "the laptop is on the desk", the
+    // towel of "that's a towel") is drawn in full when on: its members take its class, so the scene graph
+    // shows the object the statement needs. A landmark keeps the usual agreement: "the desk" is taken to
+    // be in view already.
+    let mut drawn_in_full = vec![false; hypotheses.len()];
+    for factor in factors
+        .tuple
+        .iter()
+        .filter(|f| !f.negated && f.source.is_some() && f.weight >= HARD_WEIGHT)
+    {
+        for &h in factor.tuples.iter().filter_map(|tuple| tuple.first()) {
+            if let Some(flag) = drawn_in_full.get_mut(h as usize) {
+                *flag = true;
+            }
+        }
+    }
     let hypothesis_terms = hypotheses
         .iter()
-        .map(|h| {
+        .zip(&drawn_in_full)
+        .map(|(h, &full)| {
             let score = (h.score as f64).clamp(0.02, 0.98);
             HypothesisTerm {
                 class: h.class.0,
                 members: h.members.iter().map(|s| s.0).collect(),
                 activation_cost: -(score / (1.0 - score)).ln(),
-                agreement_weight: weights.agreement,
+                agreement_weight: if full { HARD_WEIGHT } else { weights.agreement },
             }
         })
         .collect();

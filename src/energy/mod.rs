@@ -18,13 +18,13 @@
 //! | smoothing (contrast-sensitive Potts) | `sum_(a,b) w_ab [x_a != x_b]`, `w_ab = lambda * boundary_length * exp(-contrast^2 / (2 sigma^2))` | `lambda` per boundary pixel, `sigma` in CIE76 units: tuned (hand-set start 0.02, 12) |
 //! | fine/coarse agreement (coarse link) | an extra node per coarse region joined to each member by a Potts edge of weight `w_fc` | `w_fc`: tuned (hand-set start 0.3) |
 //! | hypothesis score | `sum_h y_h a_h`, `a_h = -log(score / (1 - score))`, score clamped to 0.02..0.98 (negative for likely objects) | 1 |
-//! | hypothesis-segment agreement | `sum_h y_h g_h * #{s in members(h) : x_s != class(h)}` | `g_h` per segment: tuned (hand-set start 1.5) |
+//! | hypothesis-segment agreement | `sum_h y_h g_h * #{s in members(h) : x_s != class(h)}` | `g_h` per segment: tuned (hand-set start 1.5); `HARD_WEIGHT` for the subject of a hard relation, relabel, place or attribute (the object the operator placed or named is drawn in full when on) |
 //! | room prior | `R[r] = -log P(r)`, plus `w_meta` for every room other than the one scene metadata names | `P(r)` counted with the room-class statistics; `w_meta = 6` |
 //! | presence / room-class statistics | `sum_c K[r, c] p_c`, `K[r, c] = -log P(c present \| r) + log P(c absent \| r)` | 1; `P` in `models/room_class_prior.json`, counted over training renders by `sayso tune` (Laplace's rule; `energy::statistics`) |
 //! | class co-occurrence | through the room: classes are independent given `r`, so co-occurrence is the mixture over rooms; the counted co-occurrence table is stored in the prior file's `counts` | — |
 //! | count (present = at least 1) | `w * dist(n_c, admissible set)`, `n_c = sum_{class(h) = c} y_h` | soft 4, hard `HARD_WEIGHT` |
 //! | absent | `w * p_c` | soft 4, hard `HARD_WEIGHT` |
-//! | relation, relabel of an object | tuple factor: `w` unless some listed pair (or single) of hypotheses is all on; negated: `w` for every listed tuple that is all on | soft 3, hard `HARD_WEIGHT` |
+//! | relation, relabel of an object | tuple factor: `w` unless some listed pair (or single) of hypotheses is all on; negated: `w` for every listed tuple that is all on. A pair is listed when the relation holds between the two objects as shown: an accepted hypothesis stands for itself and the accepted hypotheses of its class it touches (`crate::grounding::Extents`) | soft 3, hard `HARD_WEIGHT` |
 //! | relabel / attribute / region of segments | unary factor: `w` for every listed segment whose label is (or, `wanted`, is not) `label` | soft 3 per segment |
 //! | room type stated | added to `R[r]`: `w` for every other room | soft 6, hard `HARD_WEIGHT` |
 //!

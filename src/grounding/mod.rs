@@ -11,6 +11,7 @@
 //! question instead of a guess; subjects of relations may stay plural (any of them may satisfy it).
 
 pub mod colour_terms;
+mod extent;
 mod measures;
 pub mod predicates;
 mod questions;
@@ -26,6 +27,7 @@ use crate::language::constraint::{
 use crate::scene::Scene;
 use crate::taxonomy::Taxonomy;
 
+pub use extent::Extents;
 pub use measures::{footprint_of, in_region, mean_colour, relation_holds, relation_holds_measured};
 pub use predicates::{holds, Footprint};
 pub use questions::{plural, ClarifyingQuestion};
@@ -202,6 +204,8 @@ enum Need {
 
 struct Resolver<'a, 'b> {
     view: &'a SceneView<'b>,
+    /// The shown extent of each hypothesis (`extent`), which relations and object counts are measured on.
+    extents: &'a Extents,
     context: &'a GroundingContext,
     constraint: usize,
     issues: Vec<GroundingIssue>,
@@ -350,12 +354,20 @@ impl Resolver<'_, '_> {
                 .collect();
         }
         if let Some(region) = referent.region {
-            candidates = filter_region(view, candidates, region, need, referent.plural);
+            candidates = filter_region(
+                view,
+                self.extents,
+                candidates,
+                region,
+                need,
+                referent.plural,
+            );
         }
         for attribute in &referent.attributes {
             candidates = self.filter_attribute(candidates, *attribute);
         }
-        let before_relations = distinct_objects(view, &candidates);
+        let extents = self.extents;
+        let before_relations = distinct_objects(view, extents, &candidates);
         for clause in &referent.relations {
             let mut landmark_sets = Vec::new();
             for landmark in &clause.landmarks {
@@ -369,12 +381,12 @@ impl Resolver<'_, '_> {
                     !choice.contains(&h) && {
                         let landmarks: Vec<&[SegmentId]> = choice
                             .iter()
-                            .map(|&l| view.hypotheses[l].members.as_slice())
+                            .map(|&l| extents.of(view.hypotheses, l))
                             .collect();
                         relation_holds(
                             view.scene,
                             clause.relation,
-                            &view.hypotheses[h].members,
+                            extents.of(view.hypotheses, h),
                             &landmarks,
                         )
                     }
@@ -406,7 +418,10 @@ impl Resolver<'_, '_> {
             return None;
         }
         // Hypotheses over the same segments with the same class are one object; keep the best scored.
-        if need == Need::One && !referent.plural && distinct_objects(view, &candidates) > 1 {
+        if need == Need::One
+            && !referent.plural
+            && distinct_objects(view, self.extents, &candidates) > 1
+        {
             self.questions
                 .push(questions::ask(view, self.constraint, referent, &candidates));
             return None;
@@ -454,6 +469,7 @@ impl Resolver<'_, '_> {
 /// of the candidates' spread toward the side. Centre and corner are only read absolutely.
 fn filter_region(
     view: &SceneView,
+    extents: &Extents,
     candidates: Vec<usize>,
     region: ImageRegion,
     need: Need,
@@ -487,7 +503,7 @@ fn filter_region(
     let relative = inside.is_empty();
     let pool = if relative { candidates } else { inside };
     let one = need == Need::One && !plural;
-    if pool.is_empty() || !(relative || (one && distinct_objects(view, &pool) > 1)) {
+    if pool.is_empty() || !(relative || (one && distinct_objects(view, extents, &pool) > 1)) {
         return pool;
     }
     let keys: Vec<f32> = pool.iter().map(|&h| toward(h)).collect();
@@ -520,10 +536,10 @@ fn filter_region(
 }
 
 /// Candidates that are different objects (different member sets).
-fn distinct_objects(view: &SceneView, candidates: &[usize]) -> usize {
-    let mut sets: Vec<&Vec<SegmentId>> = candidates
+fn distinct_objects(view: &SceneView, extents: &Extents, candidates: &[usize]) -> usize {
+    let mut sets: Vec<&[SegmentId]> = candidates
         .iter()
-        .map(|&h| &view.hypotheses[h].members)
+        .map(|&h| extents.of(view.hypotheses, h))
         .collect();
     sets.sort();
     sets.dedup();
@@ -555,6 +571,7 @@ pub fn ground(
 ) -> Grounding {
     let mut grounding = Grounding::default();
     let mut previous = context.previous.clone();
+    let extents = Extents::new(view.scene, view.hypotheses, view.accepted);
     for (index, constraint) in constraints.iter().enumerate() {
         let local_context = GroundingContext {
             focus: context.focus,
@@ -563,6 +580,7 @@ pub fn ground(
         };
         let mut resolver = Resolver {
             view,
+            extents: &extents,
             context: &local_context,
             constraint: index,
             issues: Vec::new(),

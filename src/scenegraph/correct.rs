@@ -15,17 +15,18 @@ use super::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
 use crate::energy::{EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{
-    ground, ClarifyingQuestion, GroundedConstraint, GroundedKind, GroundingContext, GroundingIssue,
-    SceneView, Target,
+    ground, relation_holds, ClarifyingQuestion, GroundedConstraint, GroundedKind, GroundingContext,
+    GroundingIssue, SceneView, Target,
 };
 use crate::hypotheses::{
-    build_hypotheses, propose_named, Detection, Hypothesis, HypothesisError, ProposalOptions,
+    build_hypotheses, propose_named, propose_related, Detection, Hypothesis, HypothesisError,
+    ProposalOptions, RelatedAsk,
 };
 use crate::ids::ClassId;
-use crate::language::constraint::{Constraint, ConstraintKind, Count};
+use crate::language::constraint::{Constraint, ConstraintKind, Count, Relation};
 use crate::scene::Scene;
 use crate::solver::joint::{solve_joint, JointError, JointOptions, JointSolution, WarmStart};
-use crate::taxonomy::Taxonomy;
+use crate::taxonomy::{ClassGroup, Taxonomy};
 use crate::unaries::Unaries;
 
 /// What can stop a correction.
@@ -133,10 +134,16 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
                         multipliers: Some(previous.solution.multipliers.clone()),
                     }),
                 ),
-                None => baseline(&energy_inputs(request, &hypotheses, &[]), request.options)?,
+                None => baseline(
+                    &energy_inputs(request, &hypotheses, &[], &[]),
+                    request.options,
+                )?,
             }
         }
-        None => baseline(&energy_inputs(request, &hypotheses, &[]), request.options)?,
+        None => baseline(
+            &energy_inputs(request, &hypotheses, &[], &[]),
+            request.options,
+        )?,
     };
 
     // Classes this turn names get groups over a wider top-k where none of their hypotheses reaches, after
@@ -150,6 +157,27 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         request.proposals,
     );
     hypotheses.extend(extra);
+    // Where the operator placed an object ("a laptop on the desk"), what the robot shows touching the
+    // landmark may be that object under another name.
+    let placed = placements(request.constraints);
+    if !placed.is_empty() {
+        let fine = scene.segment_count().min(before_state.labels.len());
+        let may_take = |label: u16| {
+            taxonomy
+                .class(ClassId(label))
+                .is_some_and(|c| !matches!(c.group, ClassGroup::Structure | ClassGroup::Living))
+        };
+        let extra = propose_related(
+            scene,
+            request.unaries,
+            &before_state.labels[..fine],
+            &hypotheses,
+            &placed.iter().map(|p| p.0).collect::<Vec<_>>(),
+            may_take,
+            |ask, patch, landmark| relation_holds(scene, placed[ask].1, patch, &[landmark]),
+        );
+        hypotheses.extend(extra);
+    }
 
     let accepted: Vec<bool> = hypotheses
         .iter()
@@ -210,7 +238,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             .collect();
     }
 
-    let built = build_energy(&energy_inputs(request, &hypotheses, &in_force))?;
+    let built = build_energy(&energy_inputs(request, &hypotheses, &accepted, &in_force))?;
     let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
     let mut changes = list_changes(
         &built.energy,
@@ -389,6 +417,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
 fn energy_inputs<'a>(
     request: &'a CorrectionRequest,
     hypotheses: &'a [Hypothesis],
+    accepted: &'a [bool],
     grounded: &'a [GroundedConstraint],
 ) -> EnergyInputs<'a> {
     EnergyInputs {
@@ -396,6 +425,7 @@ fn energy_inputs<'a>(
         unaries: request.unaries,
         taxonomy: request.taxonomy,
         hypotheses,
+        accepted,
         grounded,
         prior: request.prior,
         weights: request.weights,
@@ -434,6 +464,27 @@ fn named_classes(constraints: &[Constraint]) -> Vec<ClassId> {
     classes.sort();
     classes.dedup();
     classes
+}
+
+/// The placements a turn states: a subject class in a relation (not negated) to one landmark class.
+fn placements(constraints: &[Constraint]) -> Vec<(RelatedAsk, Relation)> {
+    let mut asks = Vec::new();
+    for constraint in constraints {
+        if let ConstraintKind::Relation {
+            subject,
+            relation,
+            negated: false,
+            landmarks,
+        } = &constraint.kind
+        {
+            if let (Some(subject), [landmark]) = (subject.class, landmarks.as_slice()) {
+                if let Some(landmark) = landmark.class {
+                    asks.push((RelatedAsk { subject, landmark }, *relation));
+                }
+            }
+        }
+    }
+    asks
 }
 
 fn baseline(

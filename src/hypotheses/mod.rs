@@ -4,10 +4,15 @@
 //! hypotheses from detections (`crate::unaries::byo_detections::Detection`) and from proposals — connected groups of segments over the adjacency graph, at
 //! the fine and the coarse level, for every class in each unit's top-k — with ids that depend only on the
 //! class and the member segments; and, for classes a caller names (the operator mentioned them), connected
-//! groups over a wider top-k that no hypothesis of the class holds yet (`propose_named`).
+//! groups over a wider top-k that no hypothesis of the class holds yet (`propose_named`); and, where the
+//! operator placed an object ("a laptop on the desk"), the patches shown touching the landmark read as the
+//! subject (`related`).
 //! Must not: decide which hypotheses are real (that is the solver's job) or read language.
 
 use std::collections::BTreeMap;
+
+pub mod related;
+pub use related::{propose_related, RelatedAsk};
 
 use serde::{Deserialize, Serialize};
 
@@ -27,6 +32,9 @@ pub enum HypothesisOrigin {
     FineGroup,
     /// One coarse region with the class in its top-k.
     CoarseRegion,
+    /// A patch the robot showed as another class, where the operator placed an object of this class
+    /// (`related::propose_related`).
+    Placed,
 }
 
 /// One candidate object.
@@ -186,6 +194,7 @@ fn keep_disjoint_per_class(hypotheses: &mut Vec<Hypothesis>) {
         HypothesisOrigin::Detection { .. } => 0,
         HypothesisOrigin::CoarseRegion => 1,
         HypothesisOrigin::FineGroup => 2,
+        HypothesisOrigin::Placed => 3,
     };
     let mut order: Vec<usize> = (0..hypotheses.len()).collect();
     order.sort_by(|&a, &b| {
