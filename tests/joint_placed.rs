@@ -3,8 +3,8 @@
 //! and a relation is measured against a landmark the solver drew as several hypotheses.
 //!
 //! Owns: checks of the placed proposals (`sayso::hypotheses::related`), the shown extents
-//! (`sayso::grounding::Extents`), the full drawing of a placed subject and the solver's tuple moves,
-//! through the public API.
+//! (`sayso::grounding::Extents`), the full drawing of a placed subject, and a change list that reports
+//! only what the picture shows changed, through the public API.
 //! Must not: depend on the committed models; scenes and unaries are built by hand.
 
 mod common;
@@ -247,6 +247,9 @@ fn a_relation_is_measured_against_the_whole_landmark_as_shown() {
     assert!(after.unmet.is_empty(), "{:?}", after.unmet);
     assert!(after.questions.is_empty(), "{:?}", after.questions);
     assert_eq!(after.graph.segment_labels, before.graph.segment_labels);
+    // Nothing in the picture moved, so nothing is reported changed (a hypothesis the solver switched on
+    // or off over labels that stayed is not an object added or removed).
+    assert!(after.changes.is_empty(), "{:?}", after.changes);
 
     // And the same holds for a count said before it, as one conversation.
     let counted = run(
@@ -261,6 +264,10 @@ fn a_relation_is_measured_against_the_whole_landmark_as_shown() {
         )],
     );
     assert!(counted.unmet.is_empty(), "{:?}", counted.unmet);
+    // The count is met by switching hypotheses off over labels that stay table: the picture, and so the
+    // change list, is the same.
+    assert_eq!(counted.graph.segment_labels, before.graph.segment_labels);
+    assert!(counted.changes.is_empty(), "{:?}", counted.changes);
 }
 
 #[test]

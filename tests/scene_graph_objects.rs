@@ -306,3 +306,42 @@ fn a_count_does_not_cut_a_patch_into_pieces_under_half_the_typical_size() {
     assert_eq!(plain.len(), 3, "{plain:?}");
     assert!(plain.contains(&vec![5, 6, 7, 8]), "{plain:?}");
 }
+
+#[test]
+fn a_bottle_drawn_as_one_segment_counts_as_shown_when_it_is_bottle_sized() {
+    // "Two bottles" over a strip with a lone bottle cell and a run of four bottle cells at 1 m (depth-scaled
+    // area 4 x 16 = 64: one typical bottle). With the lone cell at 2 m (16 x 4 = 64, a typical bottle) it
+    // counts as shown, though it is one segment: the count is met and the run stays whole. At 1 m the lone
+    // cell is a quarter of a bottle, a fragment the count does not see, so the run is cut in two (each half
+    // of it at least half a typical bottle).
+    const BOTTLE: u16 = 24;
+    let taxonomy = Taxonomy::embedded();
+    assert_eq!(taxonomy.class_name(ClassId(BOTTLE)), "bottle");
+    let labels = [
+        BOTTLE, WALL, BOTTLE, BOTTLE, BOTTLE, BOTTLE, WALL, WALL, WALL, WALL,
+    ];
+    let sized = InstanceCuts::from_json(
+        r#"{"schema":1,"source":"test","cuts":{},"typical_sizes":{"bottle":64.0}}"#,
+        &taxonomy,
+    )
+    .unwrap();
+    let at = |lone_mm: f32| {
+        let mut scene = strip();
+        let mut stats = scene.stats.as_ref().clone();
+        for (index, stat) in stats.iter_mut().enumerate() {
+            stat.mean_depth_mm = Some(if index == 0 { lone_mm } else { 1000.0 });
+        }
+        scene.stats = std::sync::Arc::new(stats);
+        members_of(
+            &form_objects(&scene, &labels, &[], &[], &[(ClassId(BOTTLE), 2)], &sized),
+            BOTTLE,
+        )
+    };
+    const { assert!(MIN_SHOWN_SEGMENTS > 1) };
+    let shown = at(2000.0);
+    assert_eq!(shown, vec![vec![0], vec![2, 3, 4, 5]], "{shown:?}");
+    let fragment = at(1000.0);
+    assert_eq!(fragment.len(), 3, "{fragment:?}");
+    assert!(fragment.contains(&vec![0]), "{fragment:?}");
+    assert!(fragment.iter().all(|b| b.len() <= 2), "{fragment:?}");
+}

@@ -152,7 +152,8 @@ fn finish(mut found: Vec<usize>, fallback: &[usize]) -> Vec<usize> {
     found
 }
 
-/// The changes from `before` to `after`; hypotheses are matched by id, so the two lists may differ.
+/// The changes from `before` to `after`; hypotheses are matched by id, so the two lists may differ. An
+/// object is reported added (removed) only when some member segment's label moved to (from) its class.
 /// `fallback` names the constraints credited with a change no factor mentions (see `finish`).
 #[allow(clippy::too_many_arguments)]
 pub fn list_changes(
@@ -224,8 +225,24 @@ pub fn list_changes(
         };
     let was = accepted(before_hypotheses, before);
     let now = accepted(after_hypotheses, after);
-    for &(id, class, _) in &was {
-        if !now.iter().any(|&(other, _, _)| other == id) {
+    // A hypothesis switched on or off shows only where some member's label moved to or from its class;
+    // otherwise the picture is the same and the flip is the solver's bookkeeping, not a change to report.
+    let moved = |hypothesis: Option<&Hypothesis>, class: ClassId, arriving: bool| {
+        hypothesis.is_some_and(|h| {
+            h.members.iter().any(|s| {
+                let (from, to) = (
+                    before.labels.get(s.index()).copied(),
+                    after.labels.get(s.index()).copied(),
+                );
+                let (from, to) = if arriving { (from, to) } else { (to, from) };
+                to == Some(class.0) && from != Some(class.0)
+            })
+        })
+    };
+    for &(id, class, before_index) in &was {
+        if !now.iter().any(|&(other, _, _)| other == id)
+            && moved(before_hypotheses.get(before_index), class, false)
+        {
             let index = after_hypotheses.iter().position(|h| h.id == id);
             let causes = index
                 .map(|i| causes_for_hypothesis(energy, fallback, i))
@@ -240,7 +257,9 @@ pub fn list_changes(
         }
     }
     for &(id, class, index) in &now {
-        if !was.iter().any(|&(other, _, _)| other == id) {
+        if !was.iter().any(|&(other, _, _)| other == id)
+            && moved(after_hypotheses.get(index), class, true)
+        {
             let causes = causes_for_hypothesis(energy, fallback, index);
             changes.push(make(
                 ChangeKind::ObjectAdded {
