@@ -9,6 +9,7 @@
 mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
+use common::turns::{constraint, turn, Stage};
 use sayso::energy::build::{EnergyWeights, RoomClassPrior};
 use sayso::grounding::{GroundingContext, GroundingIssue, KnownObject};
 use sayso::hypotheses::ProposalOptions;
@@ -117,15 +118,6 @@ fn kitchen() -> Kitchen {
     }
 }
 
-fn constraint(kind: ConstraintKind, confidence: f32, gloss: &str) -> Constraint {
-    Constraint {
-        kind,
-        span: Span::new(0, gloss.len()),
-        confidence,
-        gloss: gloss.to_string(),
-    }
-}
-
 fn run(
     kitchen: &Kitchen,
     previous: Option<&Correction>,
@@ -133,25 +125,14 @@ fn run(
     context: &GroundingContext,
     confirm_safety: bool,
 ) -> Correction {
-    // The hand-made kitchen's probabilities were chosen against the taxonomy's smoothed prior (typical 0.5);
-    // the committed prior counted from renders is checked on its own above.
-    let prior = RoomClassPrior::from_taxonomy(&kitchen.taxonomy);
-    let request = CorrectionRequest {
+    let cuts = InstanceCuts::embedded(&kitchen.taxonomy).unwrap();
+    let stage = Stage {
         scene: &kitchen.scene,
         unaries: &kitchen.unaries,
         taxonomy: &kitchen.taxonomy,
-        detections: &[],
-        previous,
-        constraints,
-        context,
-        confirm_safety,
-        prior: &prior,
-        weights: &EnergyWeights::default(),
-        proposals: &ProposalOptions::default(),
-        options: &JointOptions::default(),
-        instance_cuts: &InstanceCuts::embedded(&kitchen.taxonomy).unwrap(),
+        cuts: &cuts,
     };
-    correct(&request).unwrap()
+    turn(&stage, previous, constraints, context, confirm_safety)
 }
 
 fn objects_of(correction: &Correction, class: u16) -> usize {

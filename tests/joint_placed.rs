@@ -10,16 +10,15 @@
 mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
-use sayso::energy::build::{EnergyWeights, RoomClassPrior};
+use common::turns::{constraint, turn, Stage};
 use sayso::grounding::GroundingContext;
 use sayso::hypotheses::{build_hypotheses, propose_named, HypothesisOrigin, ProposalOptions};
 use sayso::ids::{ClassId, SegmentId};
 use sayso::language::constraint::{Constraint, ConstraintKind, Count, Referent, Relation, Span};
 use sayso::scene::Scene;
 use sayso::scenegraph::changes::ChangeKind;
-use sayso::scenegraph::correct::{correct, Correction, CorrectionRequest};
+use sayso::scenegraph::correct::Correction;
 use sayso::scenegraph::instances::InstanceCuts;
-use sayso::solver::joint::JointOptions;
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::Unaries;
 
@@ -65,15 +64,6 @@ fn segment(column: u32, row: u32) -> usize {
     (row * COLUMNS + column) as usize
 }
 
-fn constraint(kind: ConstraintKind, gloss: &str) -> Constraint {
-    Constraint {
-        kind,
-        span: Span::new(0, gloss.len()),
-        confidence: 0.95,
-        gloss: gloss.to_string(),
-    }
-}
-
 fn relation(subject: ClassId, relation: Relation, landmark: ClassId, gloss: &str) -> Constraint {
     constraint(
         ConstraintKind::Relation {
@@ -82,28 +72,26 @@ fn relation(subject: ClassId, relation: Relation, landmark: ClassId, gloss: &str
             negated: false,
             landmarks: vec![Referent::class(landmark, Span::new(0, 1))],
         },
+        0.95,
         gloss,
     )
 }
 
 fn run(room: &Room, previous: Option<&Correction>, constraints: &[Constraint]) -> Correction {
-    let prior = RoomClassPrior::from_taxonomy(&room.taxonomy);
-    let request = CorrectionRequest {
+    let cuts = InstanceCuts::none(room.taxonomy.class_count());
+    let stage = Stage {
         scene: &room.scene,
         unaries: &room.unaries,
         taxonomy: &room.taxonomy,
-        detections: &[],
+        cuts: &cuts,
+    };
+    turn(
+        &stage,
         previous,
         constraints,
-        context: &GroundingContext::default(),
-        confirm_safety: false,
-        prior: &prior,
-        weights: &EnergyWeights::default(),
-        proposals: &ProposalOptions::default(),
-        options: &JointOptions::default(),
-        instance_cuts: &InstanceCuts::none(room.taxonomy.class_count()),
-    };
-    correct(&request).unwrap()
+        &GroundingContext::default(),
+        false,
+    )
 }
 
 fn has_relation(
@@ -167,6 +155,7 @@ fn a_laptop_placed_on_the_desk_is_found_where_the_robot_saw_clothes() {
     let said = [
         constraint(
             ConstraintKind::Present { class: laptop },
+            0.95,
             "there's a laptop on the desk",
         ),
         relation(laptop, Relation::On, desk, "there's a laptop on the desk"),
@@ -260,6 +249,7 @@ fn a_relation_is_measured_against_the_whole_landmark_as_shown() {
                 class: table,
                 count: Count::Exactly(1),
             },
+            0.95,
             "there's one table",
         )],
     );

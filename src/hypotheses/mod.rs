@@ -424,18 +424,36 @@ pub fn propose_named(
         }
         let open = |s: usize| !held[s] && tops[s].contains(&class);
         for members in connected_groups(&neighbours, open) {
-            let score = mean_probability(scene, unaries, class, &members);
-            proposed.push(Hypothesis {
-                id: claim_id(&mut used, hypothesis_id(class, &members)),
-                bbox: bbox_of(scene, &members),
+            proposed.push(extra_hypothesis(
+                (scene, unaries),
+                &mut used,
                 class,
                 members,
-                score: if score.is_finite() { score } else { 0.0 },
-                origin: HypothesisOrigin::FineGroup,
-            });
+                HypothesisOrigin::FineGroup,
+            ));
         }
     }
     proposed
+}
+
+/// A hypothesis added to an existing list: scored by the class's mean probability over its members, with an
+/// id no hypothesis in `used` carries (claimed).
+fn extra_hypothesis(
+    (scene, unaries): (&Scene, &Unaries),
+    used: &mut std::collections::BTreeSet<HypothesisId>,
+    class: ClassId,
+    members: Vec<SegmentId>,
+    origin: HypothesisOrigin,
+) -> Hypothesis {
+    let score = mean_probability(scene, unaries, class, &members);
+    Hypothesis {
+        id: claim_id(used, hypothesis_id(class, &members)),
+        bbox: bbox_of(scene, &members),
+        class,
+        members,
+        score: if score.is_finite() { score } else { 0.0 },
+        origin,
+    }
 }
 
 /// The connected groups of the segments `open` admits, over `neighbours`: each group ascending, groups in

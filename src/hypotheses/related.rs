@@ -9,10 +9,7 @@
 
 use std::collections::BTreeSet;
 
-use super::{
-    bbox_of, claim_id, connected_groups, hypothesis_id, mean_probability, segment_neighbours,
-    Hypothesis, HypothesisOrigin,
-};
+use super::{connected_groups, extra_hypothesis, segment_neighbours, Hypothesis, HypothesisOrigin};
 use crate::ids::{ClassId, HypothesisId, SegmentId};
 use crate::scene::Scene;
 use crate::unaries::Unaries;
@@ -115,15 +112,13 @@ pub fn propose_related(
     proposed
         .into_iter()
         .map(|(class, members)| {
-            let score = mean_probability(scene, unaries, class, &members);
-            Hypothesis {
-                id: claim_id(&mut used, hypothesis_id(class, &members)),
-                bbox: bbox_of(scene, &members),
+            extra_hypothesis(
+                (scene, unaries),
+                &mut used,
                 class,
                 members,
-                score: if score.is_finite() { score } else { 0.0 },
-                origin: HypothesisOrigin::Placed,
-            }
+                HypothesisOrigin::Placed,
+            )
         })
         .collect()
 }

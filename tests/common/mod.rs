@@ -1,2 +1,3 @@
-//! Shared test helpers (hand-built scenes).
+//! Shared test helpers (hand-built scenes, one correction turn on them).
 pub mod grid_scene;
+pub mod turns;
