@@ -264,21 +264,24 @@ impl<'a> Labeller<'a> {
                 self.label_changed(node);
             }
             let (old, new) = (&self.unary[row.clone()], &unary[row.clone()]);
-            if !relabelled && old[label as usize] != new[label as usize] {
-                // The cost of keeping the label moved: every move this node may join reads it.
-                for &candidate in tables.candidates_of(node) {
-                    self.dirty[candidate as usize] = true;
-                }
-            } else if !relabelled && old != new {
-                for &candidate in tables.candidates_of(node) {
-                    if old[candidate as usize] != new[candidate as usize] {
+            if old == new {
+                continue;
+            }
+            if !relabelled {
+                if old[label as usize] != new[label as usize] {
+                    // The cost of keeping the label moved: every move this node may join reads it.
+                    for &candidate in tables.candidates_of(node) {
                         self.dirty[candidate as usize] = true;
+                    }
+                } else {
+                    for &candidate in tables.candidates_of(node) {
+                        if old[candidate as usize] != new[candidate as usize] {
+                            self.dirty[candidate as usize] = true;
+                        }
                     }
                 }
             }
-            if old != new {
-                self.unary[row].copy_from_slice(new);
-            }
+            self.unary[row].copy_from_slice(new);
         }
     }
 
