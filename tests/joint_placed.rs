@@ -296,3 +296,52 @@ fn a_placement_can_change_both_the_object_and_its_landmark() {
         after.graph.relations
     );
 }
+
+#[test]
+fn a_count_is_met_only_when_the_picture_shows_it() {
+    // "There's a laptop here" over the study, with the laptop ranked second on the desk's grey patch at
+    // several strengths: the turn reports the count unmet exactly when the returned scene graph holds no
+    // laptop, whatever the energy's hypotheses say.
+    let mut outcomes = Vec::new();
+    for laptop_share in [0.02f32, 0.05, 0.1, 0.2, 0.3] {
+        let study = room("juniper-lane-study", |column, row, c| match (column, row) {
+            (4, 2) => (
+                cell(
+                    [70, 70, 75],
+                    vec![
+                        (c("clothes"), 0.95 - laptop_share),
+                        (c("laptop"), laptop_share),
+                    ],
+                ),
+                2,
+            ),
+            (2..=6, 3..=4) => (cell([120, 80, 45], vec![(c("desk"), 0.85)]), 1),
+            (_, 0..=2) => (cell([225, 220, 205], vec![(c("wall"), 0.9)]), 0),
+            _ => (cell([150, 120, 90], vec![(c("floor"), 0.9)]), 3),
+        });
+        let laptop = class(&study.taxonomy, "laptop");
+        let before = run(&study, None, &[]);
+        let after = run(
+            &study,
+            Some(&before),
+            &[constraint(
+                ConstraintKind::Present { class: laptop },
+                0.95,
+                "there's a laptop here",
+            )],
+        );
+        let drawn = after.graph.objects.iter().any(|o| o.class == laptop);
+        assert_eq!(
+            after.unmet.is_empty(),
+            drawn,
+            "{laptop_share}: {:?}",
+            after.unmet
+        );
+        outcomes.push(drawn);
+    }
+    // Weakly ranked, the laptop is not drawn and the count is reported unmet; strongly ranked, it is drawn.
+    assert!(
+        outcomes.contains(&false) && outcomes.contains(&true),
+        "{outcomes:?}"
+    );
+}

@@ -13,7 +13,9 @@ use super::instances::InstanceCuts;
 use super::supersede::retire_superseded;
 use super::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
-use crate::energy::{EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT};
+use crate::energy::{
+    count_violation, EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
+};
 use crate::grounding::{
     ground, relation_holds, ClarifyingQuestion, GroundedConstraint, GroundedKind, GroundingContext,
     GroundingIssue, SceneView, Target,
@@ -400,6 +402,33 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         },
         request.instance_cuts,
     );
+    // A count the energy meets with a hypothesis switched on but not drawn is not met in the picture the
+    // operator gets back: the scene graph's objects decide.
+    for grounded in &in_force {
+        let (class, count) = match grounded.kind {
+            GroundedKind::Present { class } => (class, Count::AtLeast(1)),
+            GroundedKind::Count { class, count } => (class, count),
+            _ => continue,
+        };
+        if held_sources.binary_search(&grounded.constraint).is_ok()
+            || unmet.iter().any(|u| u.constraint == grounded.constraint)
+        {
+            continue;
+        }
+        let shown = graph.objects.iter().filter(|o| o.class == class).count() as u32;
+        if count_violation(count, shown) > 0 {
+            unmet.push(Unmet {
+                constraint: grounded.constraint,
+                span: grounded.span,
+                contradictory: grounded.hard,
+                reason: format!(
+                    "the corrected picture shows {shown} {}",
+                    plural_name(taxonomy, class, shown)
+                ),
+            });
+        }
+    }
+    unmet.sort_by_key(|u| u.constraint);
     Ok(Correction {
         graph,
         changes,
@@ -464,6 +493,16 @@ fn named_classes(constraints: &[Constraint]) -> Vec<ClassId> {
     classes.sort();
     classes.dedup();
     classes
+}
+
+/// A class's name for `n` objects ("1 laptop", "2 boxes").
+fn plural_name(taxonomy: &Taxonomy, class: ClassId, n: u32) -> String {
+    let name = taxonomy.class_name(class).replace('_', " ");
+    if n == 1 {
+        name
+    } else {
+        crate::grounding::plural(&name)
+    }
 }
 
 /// The placements a turn states: a subject class in a relation (not negated) to one landmark class.
