@@ -11,7 +11,7 @@ mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use common::turns::{constraint, turn, Stage};
-use sayso::grounding::GroundingContext;
+use sayso::grounding::{GroundingContext, KnownObject};
 use sayso::hypotheses::{build_hypotheses, propose_named, HypothesisOrigin, ProposalOptions};
 use sayso::ids::{ClassId, SegmentId};
 use sayso::language::constraint::{Constraint, ConstraintKind, Count, Referent, Relation, Span};
@@ -344,4 +344,71 @@ fn a_count_is_met_only_when_the_picture_shows_it() {
         outcomes.contains(&false) && outcomes.contains(&true),
         "{outcomes:?}"
     );
+}
+
+#[test]
+fn the_landmark_is_the_one_the_operator_sees() {
+    // A bedroom corner: a desk the robot shows as a desk (though unsure enough that no desk hypothesis is
+    // accepted) with a closed laptop on it read as clothes, and a bed ranked only just above "desk" with a
+    // shirt on it that the classifier half takes for a laptop. "The laptop is on the desk" means the desk
+    // the scene graph shows, not a desk that could be made of the bed.
+    let corner = room("juniper-lane-bedroom-corner", |column, row, c| {
+        match (column, row) {
+            (5, 2) => (cell([70, 70, 75], vec![(c("clothes"), 0.9)]), 2),
+            (1, 2) => (
+                cell(
+                    [200, 200, 230],
+                    vec![(c("clothes"), 0.6), (c("laptop"), 0.35)],
+                ),
+                4,
+            ),
+            (4..=6, 3..=4) => (
+                cell([120, 80, 45], vec![(c("desk"), 0.45), (c("chair"), 0.35)]),
+                1,
+            ),
+            (0..=2, 3..=4) => (
+                cell([180, 160, 200], vec![(c("bed"), 0.55), (c("desk"), 0.4)]),
+                5,
+            ),
+            (_, 0..=2) => (cell([225, 220, 205], vec![(c("wall"), 0.9)]), 0),
+            _ => (cell([150, 120, 90], vec![(c("floor"), 0.9)]), 3),
+        }
+    });
+    let (laptop, desk) = (
+        class(&corner.taxonomy, "laptop"),
+        class(&corner.taxonomy, "desk"),
+    );
+    let cuts = InstanceCuts::none(corner.taxonomy.class_count());
+    let stage = Stage {
+        scene: &corner.scene,
+        unaries: &corner.unaries,
+        taxonomy: &corner.taxonomy,
+        cuts: &cuts,
+    };
+    let before = run(&corner, None, &[]);
+    assert_eq!(before.graph.segment_labels[segment(5, 3)], desk);
+    assert!(before.graph.objects.iter().any(|o| o.class == desk));
+    let seen = GroundingContext {
+        objects: before
+            .graph
+            .objects
+            .iter()
+            .map(|o| KnownObject {
+                id: o.id,
+                hypothesis: o.hypothesis,
+            })
+            .collect(),
+        ..Default::default()
+    };
+    let said = [relation(
+        laptop,
+        Relation::On,
+        desk,
+        "the laptop is on the desk",
+    )];
+    let after = turn(&stage, Some(&before), &said, &seen, false);
+    assert!(after.unmet.is_empty(), "{:?}", after.unmet);
+    assert_eq!(after.graph.segment_labels[segment(5, 2)], laptop);
+    assert_ne!(after.graph.segment_labels[segment(1, 2)], laptop);
+    assert_ne!(after.graph.segment_labels[segment(1, 3)], desk);
 }

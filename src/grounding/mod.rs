@@ -200,6 +200,10 @@ enum Need {
     One,
     /// Any number of candidates.
     Any,
+    /// Any number of candidates for a relation's landmark ("on the desk"): a landmark is something the
+    /// operator sees, so when no hypothesis of its class is accepted, the ones the previous scene graph's
+    /// objects of the class are named after are taken before every hypothesis of the class.
+    Landmark,
 }
 
 struct Resolver<'a, 'b> {
@@ -348,6 +352,17 @@ impl Resolver<'_, '_> {
         let mut candidates: Vec<usize> = (0..view.hypotheses.len())
             .filter(|&h| of_class(h) && view.accepted.get(h).copied().unwrap_or(false))
             .collect();
+        if candidates.is_empty() && referent.class.is_some() && need == Need::Landmark {
+            let shown = &self.context.objects;
+            candidates = (0..view.hypotheses.len())
+                .filter(|&h| {
+                    of_class(h)
+                        && shown
+                            .iter()
+                            .any(|object| object.hypothesis == view.hypotheses[h].id)
+                })
+                .collect();
+        }
         if candidates.is_empty() && referent.class.is_some() {
             candidates = (0..view.hypotheses.len())
                 .filter(|&h| of_class(h))
@@ -371,7 +386,7 @@ impl Resolver<'_, '_> {
         for clause in &referent.relations {
             let mut landmark_sets = Vec::new();
             for landmark in &clause.landmarks {
-                match self.resolve(landmark, Need::Any) {
+                match self.resolve(landmark, Need::Landmark) {
                     Some(target) => landmark_sets.push(target.hypotheses),
                     None => return None,
                 }
@@ -620,7 +635,7 @@ pub fn ground(
                 let subject = resolver.resolve(subject, Need::Any);
                 let mut resolved = Vec::new();
                 for landmark in landmarks {
-                    if let Some(target) = resolver.resolve(landmark, Need::Any) {
+                    if let Some(target) = resolver.resolve(landmark, Need::Landmark) {
                         resolved.push(target);
                     }
                 }
