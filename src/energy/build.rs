@@ -312,6 +312,9 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
     let mut factors = Factors::default();
     let mut unmet = Vec::new();
     let mut room_extra = vec![0.0; prior.room_count];
+    // The objects as shown, measured once for every relation (hypotheses appended below for relabels are
+    // their own members).
+    let mut extents: Option<Extents> = None;
     for grounded in inputs.grounded {
         let index = grounded.constraint;
         let weight = |soft: f64| if grounded.hard { HARD_WEIGHT } else { soft };
@@ -361,7 +364,8 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
                     continue;
                 };
                 let second = landmarks.get(1);
-                let extents = Extents::new(scene, &hypotheses, inputs.accepted);
+                let extents = extents
+                    .get_or_insert_with(|| Extents::new(scene, &hypotheses, inputs.accepted));
                 let mut holding = Vec::new();
                 let mut failing = Vec::new();
                 for &s in &subject.hypotheses {

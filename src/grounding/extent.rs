@@ -6,7 +6,7 @@
 //! Must not: decide which hypotheses are accepted (the caller passes the flags of the state the operator
 //! saw) or measure relations (`super::measures`).
 
-use crate::hypotheses::Hypothesis;
+use crate::hypotheses::{segment_neighbours, Hypothesis};
 use crate::ids::SegmentId;
 use crate::scene::Scene;
 
@@ -25,18 +25,14 @@ impl Extents {
     /// Groups the accepted hypotheses. `accepted[h]` (missing: not accepted) flags the state shown.
     pub fn new(scene: &Scene, hypotheses: &[Hypothesis], accepted: &[bool]) -> Extents {
         let segment_count = scene.segment_count();
-        let mut neighbours: Vec<Vec<usize>> = vec![Vec::new(); segment_count];
-        for edge in scene.adjacency.raw_edges() {
-            let (a, b) = (edge.source().index(), edge.target().index());
-            if a < segment_count && b < segment_count {
-                neighbours[a].push(b);
-                neighbours[b].push(a);
-            }
-        }
-        let on: Vec<usize> = (0..hypotheses.len())
+        let neighbours = segment_neighbours(scene, segment_count);
+        // Accepted hypotheses class by class, so a segment's claim is always by the class at hand or an
+        // earlier one.
+        let mut on: Vec<usize> = (0..hypotheses.len())
             .filter(|&h| accepted.get(h).copied().unwrap_or(false))
             .collect();
-        // Union-find over the accepted hypotheses: joined when of one class and touching.
+        on.sort_by_key(|&h| (hypotheses[h].class, h));
+        // Union-find: two accepted hypotheses of one class are joined when they share or border a segment.
         let mut parent: Vec<usize> = (0..hypotheses.len()).collect();
         fn root(parent: &mut [usize], mut h: usize) -> usize {
             while parent[h] != h {
@@ -45,74 +41,47 @@ impl Extents {
             }
             h
         }
-        // Which accepted hypothesis of each class claims (or borders) each segment, class by class.
-        let mut classes: Vec<u16> = on.iter().map(|&h| hypotheses[h].class.0).collect();
-        classes.sort_unstable();
-        classes.dedup();
         let mut claim = vec![usize::MAX; segment_count];
-        for class in classes {
-            let of_class: Vec<usize> = on
-                .iter()
-                .copied()
-                .filter(|&h| hypotheses[h].class.0 == class)
-                .collect();
-            for &h in &of_class {
-                for member in hypotheses[h]
+        for &h in &on {
+            let class = hypotheses[h].class;
+            let members = || {
+                hypotheses[h]
                     .members
                     .iter()
-                    .filter(|m| m.index() < segment_count)
-                {
-                    let s = member.index();
-                    for t in std::iter::once(s).chain(neighbours[s].iter().copied()) {
-                        let other = claim[t];
-                        if other != usize::MAX && other != h {
-                            let (a, b) = (root(&mut parent, other), root(&mut parent, h));
-                            if a != b {
-                                parent[a.max(b)] = a.min(b);
-                            }
-                        }
+                    .map(|m| m.index())
+                    .filter(|&s| s < segment_count)
+            };
+            for s in members() {
+                for t in std::iter::once(s).chain(neighbours[s].iter().copied()) {
+                    let other = claim[t];
+                    if other != usize::MAX && other != h && hypotheses[other].class == class {
+                        let (a, b) = (root(&mut parent, other), root(&mut parent, h));
+                        parent[a.max(b)] = a.min(b);
                     }
                 }
-                for member in hypotheses[h]
-                    .members
-                    .iter()
-                    .filter(|m| m.index() < segment_count)
-                {
-                    claim[member.index()] = h;
-                }
             }
-            for &h in &of_class {
-                for member in hypotheses[h]
-                    .members
-                    .iter()
-                    .filter(|m| m.index() < segment_count)
-                {
-                    claim[member.index()] = usize::MAX;
-                }
+            for s in members() {
+                claim[s] = h;
             }
+        }
+        // Hypotheses per root; only groups of two or more differ from their own members.
+        let mut by_root: std::collections::BTreeMap<usize, Vec<usize>> = Default::default();
+        for &h in &on {
+            by_root.entry(root(&mut parent, h)).or_default().push(h);
         }
         let mut group_of = vec![None; hypotheses.len()];
         let mut groups: Vec<Vec<SegmentId>> = Vec::new();
-        let mut group_at_root: std::collections::BTreeMap<usize, usize> = Default::default();
-        let mut sizes: std::collections::BTreeMap<usize, usize> = Default::default();
-        for &h in &on {
-            *sizes.entry(root(&mut parent, h)).or_default() += 1;
-        }
-        for &h in &on {
-            let r = root(&mut parent, h);
-            if sizes[&r] < 2 {
-                continue;
+        for joined in by_root.into_values().filter(|joined| joined.len() > 1) {
+            let mut segments: Vec<SegmentId> = joined
+                .iter()
+                .flat_map(|&h| hypotheses[h].members.iter().copied())
+                .collect();
+            segments.sort_unstable();
+            segments.dedup();
+            for h in joined {
+                group_of[h] = Some(groups.len());
             }
-            let group = *group_at_root.entry(r).or_insert_with(|| {
-                groups.push(Vec::new());
-                groups.len() - 1
-            });
-            groups[group].extend_from_slice(&hypotheses[h].members);
-            group_of[h] = Some(group);
-        }
-        for group in &mut groups {
-            group.sort_unstable();
-            group.dedup();
+            groups.push(segments);
         }
         Extents { group_of, groups }
     }

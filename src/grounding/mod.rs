@@ -30,7 +30,7 @@ use crate::taxonomy::Taxonomy;
 pub use extent::Extents;
 pub use measures::{footprint_of, in_region, mean_colour, relation_holds, relation_holds_measured};
 pub use predicates::{holds, Footprint};
-pub use questions::{plural, ClarifyingQuestion};
+pub use questions::{how_many, plural, ClarifyingQuestion};
 
 /// A resolved referent: the segments it covers and the hypotheses it may be.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
@@ -413,14 +413,12 @@ impl Resolver<'_, '_> {
             let words = questions::describe_referent(view.taxonomy, referent);
             let issue = match referent.class {
                 Some(class) if before_relations > 0 && !referent.relations.is_empty() => {
-                    let name = view.taxonomy.class_name(class).replace('_', " ");
                     GroundingIssue::NoneInRelation {
                         constraint: self.constraint,
-                        found: if before_relations == 1 {
-                            format!("1 {name}")
-                        } else {
-                            format!("{before_relations} {}", questions::plural(&name))
-                        },
+                        found: questions::how_many(
+                            before_relations,
+                            view.taxonomy.class_name(class),
+                        ),
                         words,
                     }
                 }

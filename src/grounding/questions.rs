@@ -25,6 +25,15 @@ pub struct ClarifyingQuestion {
     pub descriptions: Vec<String>,
 }
 
+/// "1 desk", "2 desks": a count of a class name read back.
+pub fn how_many(count: usize, name: &str) -> String {
+    if count == 1 {
+        format!("1 {}", name.replace('_', " "))
+    } else {
+        format!("{count} {}", plural(name))
+    }
+}
+
 /// English plural of a canonical class name (the language stage owns the full lexicon; this is enough for
 /// reading a class name back).
 pub fn plural(name: &str) -> String {

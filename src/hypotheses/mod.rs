@@ -489,7 +489,7 @@ fn connected_groups(
 }
 
 /// Each fine segment's neighbours over the adjacency graph.
-fn segment_neighbours(scene: &Scene, segment_count: usize) -> Vec<Vec<usize>> {
+pub(crate) fn segment_neighbours(scene: &Scene, segment_count: usize) -> Vec<Vec<usize>> {
     let mut neighbours = vec![Vec::new(); segment_count];
     for edge in scene.adjacency.raw_edges() {
         let (a, b) = (edge.source().index(), edge.target().index());

@@ -17,8 +17,8 @@ use crate::energy::{
     count_violation, EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
 };
 use crate::grounding::{
-    ground, relation_holds, ClarifyingQuestion, GroundedConstraint, GroundedKind, GroundingContext,
-    GroundingIssue, SceneView, Target,
+    ground, how_many, relation_holds, ClarifyingQuestion, GroundedConstraint, GroundedKind,
+    GroundingContext, GroundingIssue, SceneView, Target,
 };
 use crate::hypotheses::{
     build_hypotheses, propose_named, propose_related, Detection, Hypothesis, HypothesisError,
@@ -415,15 +415,15 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         {
             continue;
         }
-        let shown = graph.objects.iter().filter(|o| o.class == class).count() as u32;
-        if count_violation(count, shown) > 0 {
+        let shown = graph.objects.iter().filter(|o| o.class == class).count();
+        if count_violation(count, shown as u32) > 0 {
             unmet.push(Unmet {
                 constraint: grounded.constraint,
                 span: grounded.span,
                 contradictory: grounded.hard,
                 reason: format!(
-                    "the corrected picture shows {shown} {}",
-                    plural_name(taxonomy, class, shown)
+                    "the corrected picture shows {}",
+                    how_many(shown, taxonomy.class_name(class))
                 ),
             });
         }
@@ -493,16 +493,6 @@ fn named_classes(constraints: &[Constraint]) -> Vec<ClassId> {
     classes.sort();
     classes.dedup();
     classes
-}
-
-/// A class's name for `n` objects ("1 laptop", "2 boxes").
-fn plural_name(taxonomy: &Taxonomy, class: ClassId, n: u32) -> String {
-    let name = taxonomy.class_name(class).replace('_', " ");
-    if n == 1 {
-        name
-    } else {
-        crate::grounding::plural(&name)
-    }
 }
 
 /// The placements a turn states: a subject class in a relation (not negated) to one landmark class.

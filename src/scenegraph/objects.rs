@@ -115,18 +115,17 @@ pub fn form_objects(
     let mut pieces: Vec<(ClassId, Vec<usize>)> = Vec::new();
     let mut split_classes: Vec<(ClassId, u32)> = Vec::new();
     for &(class, wanted) in counted {
-        let typical = cuts.typical_size(class);
+        // Enough segments, or (for a class with a typical size) enough of a typical object.
+        let big_enough = |component: &[usize]| {
+            let sized = |typical: f32| {
+                scaled_area(component, &depth, &area)
+                    .is_some_and(|scaled| scaled >= SHOWN_TYPICAL_SHARE * f64::from(typical))
+            };
+            component.len() >= MIN_SHOWN_SEGMENTS || cuts.typical_size(class).is_some_and(sized)
+        };
         let shown = all_components
             .iter()
-            .filter(|component| {
-                labels[component[0]] == class.0
-                    && (component.len() >= MIN_SHOWN_SEGMENTS
-                        || typical.is_some_and(|typical| {
-                            scaled_area(component, &depth, &area).is_some_and(|scaled| {
-                                scaled >= SHOWN_TYPICAL_SHARE * f64::from(typical)
-                            })
-                        }))
-            })
+            .filter(|component| labels[component[0]] == class.0 && big_enough(component))
             .count() as u32;
         if shown < wanted {
             split_classes.push((class, wanted - shown));
