@@ -32,6 +32,11 @@ struct MoveScorer {
     segment_support: Vec<bool>,
     scratch_disagreeing: Vec<i64>,
     scratch_support: Vec<i64>,
+    /// The coupled step's minimum at the base labelling, when the step is exact.
+    base_coupled: Option<f64>,
+    /// `CoupledTables::support_release`: how far the coupled minimum can fall when a class loses, or gains,
+    /// its segment support.
+    release: Vec<(f64, f64)>,
 }
 
 impl MoveScorer {
@@ -66,6 +71,8 @@ impl MoveScorer {
             segment_support: vec![false; energy.label_count],
             scratch_disagreeing: Vec::new(),
             scratch_support: Vec::new(),
+            base_coupled: None,
+            release: context.coupled.support_release(energy),
         };
         scorer.rebase(context, base);
         scorer
@@ -86,16 +93,44 @@ impl MoveScorer {
         for &label in base.iter().take(energy.fine_count) {
             self.support[label as usize] += 1;
         }
+        self.base_coupled = None;
+        if context.coupled.exact() {
+            for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+                self.cost_on[h] = hypothesis.activation_cost
+                    + hypothesis.agreement_weight * self.disagreeing[h] as f64;
+            }
+            for (flag, &count) in self.segment_support.iter_mut().zip(&self.support) {
+                *flag = count > 0;
+            }
+            self.base_coupled = Some(self.coupled_value(context));
+        }
+    }
+
+    fn coupled_value(&self, context: &Context) -> f64 {
+        solve_coupled(&CoupledInputs {
+            energy: context.energy,
+            tables: &context.coupled,
+            cost_on: &self.cost_on,
+            cost_off: &self.cost_off,
+            presence_adjust: &self.adjust,
+            segment_support: &self.segment_support,
+            relaxed_presence: false,
+        })
+        .value
     }
 
     /// The energy `Context::complete` would give `labels`, which differ from `base` only at `changed` (fine
-    /// nodes, each once); `None` when the coupled step is not exact here.
+    /// nodes, each once); `None` when the coupled step is not exact here. When a lower bound of that energy
+    /// already reaches `enough`, returns the bound instead of solving the coupled step: the coupled minimum
+    /// at the base, less every fall of a hypothesis's on-cost (the minimum is a minimum of sums linear in
+    /// the on-costs) and the `release` of every class that loses its last segment or gains its first.
     fn score(
         &mut self,
         context: &Context,
         base: &[u16],
         labels: &[u16],
         changed: &[u32],
+        enough: f64,
     ) -> Option<f64> {
         let energy = context.energy;
         let label_count = energy.label_count;
@@ -127,6 +162,28 @@ impl MoveScorer {
                     (new != class) as i64 - (old != class) as i64;
             }
         }
+        if let Some(base_coupled) = self.base_coupled {
+            let mut fall = 0.0;
+            for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+                let moved = self.scratch_disagreeing[h] - self.disagreeing[h];
+                if moved < 0 {
+                    fall += hypothesis.agreement_weight * moved as f64;
+                }
+            }
+            for (class, (&before, &after)) in
+                self.support.iter().zip(&self.scratch_support).enumerate()
+            {
+                match (before > 0, after > 0) {
+                    (true, false) => fall -= self.release[class].0,
+                    (false, true) => fall -= self.release[class].1,
+                    _ => {}
+                }
+            }
+            let bound = self.segment_energy + delta + base_coupled + fall;
+            if bound >= enough {
+                return Some(bound);
+            }
+        }
         for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
             self.cost_on[h] = hypothesis.activation_cost
                 + hypothesis.agreement_weight * self.scratch_disagreeing[h] as f64;
@@ -134,18 +191,10 @@ impl MoveScorer {
         for (flag, &count) in self.segment_support.iter_mut().zip(&self.scratch_support) {
             *flag = count > 0;
         }
-        let coupled = solve_coupled(&CoupledInputs {
-            energy,
-            tables: &context.coupled,
-            cost_on: &self.cost_on,
-            cost_off: &self.cost_off,
-            presence_adjust: &self.adjust,
-            segment_support: &self.segment_support,
-            relaxed_presence: false,
-        });
-        coupled
-            .exact
-            .then_some(self.segment_energy + delta + coupled.value)
+        context
+            .coupled
+            .exact()
+            .then(|| self.segment_energy + delta + self.coupled_value(context))
     }
 }
 
@@ -160,8 +209,9 @@ pub(crate) fn try_hypothesis_moves(context: &Context, best: &mut Candidate) {
         if labels == best.state.labels.as_slice() {
             return;
         }
-        let screened = scorer.score(context, &best.state.labels, labels, changed);
-        if screened.is_some_and(|value| value >= best.energy - SCREEN_MARGIN) {
+        let enough = best.energy - SCREEN_MARGIN;
+        let screened = scorer.score(context, &best.state.labels, labels, changed, enough);
+        if screened.is_some_and(|value| value >= enough) {
             return;
         }
         let before = best.energy;
