@@ -172,6 +172,24 @@ fn a_stray_fragment_is_not_an_object_the_count_already_sees() {
 }
 
 #[test]
+fn a_small_patch_the_solver_switched_on_counts_as_shown() {
+    let scene = strip();
+    // The same five-cell run and lone cell as above, but a book hypothesis over the lone cell.
+    let labels = [BOOK, BOOK, BOOK, BOOK, BOOK, WALL, BOOK, WALL, WALL, WALL];
+    let hypotheses = [hypothesis(BOOK, &[0, 1, 2, 3, 4]), hypothesis(BOOK, &[6])];
+    let counted = [(ClassId(BOOK), 2)];
+    // Switched on: the lone cell is a book the count already sees, so the run stays whole.
+    let objects = form_uncut(&scene, &labels, &hypotheses, &[true, true], &counted);
+    assert_eq!(
+        members_of(&objects, BOOK),
+        vec![vec![0, 1, 2, 3, 4], vec![6]]
+    );
+    // Proposed but left off: it is a fragment again, and the run is cut to make up the count.
+    let objects = form_uncut(&scene, &labels, &hypotheses, &[true, false], &counted);
+    assert_eq!(members_of(&objects, BOOK).len(), 3);
+}
+
+#[test]
 fn touching_objects_part_along_the_colour_boundary() {
     // Book cells 0..=7 all connected and labelled book: cells 0-2 are a red book, cells 3-7 a blue one.
     // The cut follows the colour edge, not the middle of the run.
