@@ -566,6 +566,14 @@ mod tests {
 
     const RING: [(u32, u32); 6] = [(0, 1), (1, 2), (2, 3), (3, 4), (0, 4), (1, 3)];
 
+    /// `RING` with these weights.
+    fn ring_edges(weights: &[f64]) -> Vec<(u32, u32, f64)> {
+        RING.iter()
+            .zip(weights)
+            .map(|(&(a, b), &w)| (a, b, w))
+            .collect()
+    }
+
     /// Worked example: a chain a - b - c with weight 3, unaries a = (0, 4), b = (0, 0), c = (4, 0). The
     /// minimum is 3 (a and b take label 0, c label 1, one cut edge); the even split bounds it by 0 (each
     /// edge sees half of b and pays nothing). On a tree the local-polytope relaxation is exact (Wainwright
@@ -593,11 +601,7 @@ mod tests {
             unary in proptest::collection::vec(-3.0f64..3.0, 15),
             weights in proptest::collection::vec(0.0f64..2.0, 6),
         ) {
-            let edges: Vec<(u32, u32, f64)> = RING
-                .iter()
-                .zip(&weights)
-                .map(|(&(a, b), &w)| (a, b, w))
-                .collect();
+            let edges = ring_edges(&weights);
             let minimum = brute_force_minimum(&unary, 3, &edges);
             let mut bound = PottsBound::new(5, 3, &edges);
             let even = bound.bound(&unary);
@@ -618,11 +622,7 @@ mod tests {
             weights in proptest::collection::vec(0.0f64..2.0, 6),
         ) {
             // Nodes 0..5 on the ring, node 5 isolated.
-            let edges: Vec<(u32, u32, f64)> = RING
-                .iter()
-                .zip(&weights)
-                .map(|(&(a, b), &w)| (a, b, w))
-                .collect();
+            let edges = ring_edges(&weights);
             let unary = &unary[..6 * label_count];
             let row = |node: usize| &unary[node * label_count..(node + 1) * label_count];
             let lowest = |node: usize| row(node).iter().copied().fold(f64::INFINITY, f64::min);
@@ -651,11 +651,7 @@ mod tests {
             weights in proptest::collection::vec(0.0f64..2.0, 6),
             start in proptest::collection::vec(0u16..3, 5),
         ) {
-            let edges: Vec<(u32, u32, f64)> = RING
-                .iter()
-                .zip(&weights)
-                .map(|(&(a, b), &w)| (a, b, w))
-                .collect();
+            let edges = ring_edges(&weights);
             let tables = LabellerTables::new(5, 3, &edges, &[]);
             let mut kept = Labeller::new(&tables);
             let mut from = start.clone();
