@@ -48,7 +48,12 @@
 //!    with the weights `sayso tune` then re-made). Tried then and not
 //!    taken: every patch counts as shown when all of a class's patches are small (shoes, mugs), 0.5077 and
 //!    0.5079; a patch counts when it is at least half the class's largest, 0.5110 (seed 200000, before the
-//!    descent, against 0.5137 for this rule).
+//!    descent, against 0.5137 for this rule). Tried on 2400-segment scenes (2026-12-03, seeds 200000 /
+//!    200021, 0.7947 / 0.8051 for this rule) and not taken: joining the label islands of one accepted
+//!    hypothesis into one object, 0.7225 / 0.7515 (a coarse hypothesis spans several objects); parting a
+//!    patch of a class without a typical size by the scene's median patch of that class (at least four
+//!    patches, parted from 1.5 times the median), 0.7978 / 0.8052 but two offices of six worse on each
+//!    seed.
 //! 3. Each object is named after a hypothesis so later notes can point at it (`Focus::Object`): the
 //!    hypothesis of its class sharing the most member segments with it that no larger object took already;
 //!    with none, an id computed from its class and members (`crate::hypotheses::hypothesis_id`), which no
