@@ -106,6 +106,34 @@ struct RawClass {
 /// The taxonomy shipped in the crate, so the tool works with no files beside it.
 pub const EMBEDDED_CLASSES: &str = include_str!("../grammar/classes.toml");
 
+/// "1 desk", "2 desks": a count of a class name read back.
+pub fn how_many(count: usize, name: &str) -> String {
+    if count == 1 {
+        format!("1 {}", name.replace('_', " "))
+    } else {
+        format!("{count} {}", plural(name))
+    }
+}
+
+/// English plural of a canonical class name, for reading a class name back (the language stage owns the
+/// full lexicon, with the grammar's irregular plurals, for parsing).
+pub fn plural(name: &str) -> String {
+    let name = name.replace('_', " ");
+    if name.ends_with("clothes") || name.ends_with("stairs") {
+        name
+    } else if name.ends_with("shelf") {
+        format!("{}ves", &name[..name.len() - 1])
+    } else if name.ends_with('s')
+        || name.ends_with('x')
+        || name.ends_with("ch")
+        || name.ends_with("sh")
+    {
+        format!("{name}es")
+    } else {
+        format!("{name}s")
+    }
+}
+
 impl Taxonomy {
     /// The taxonomy compiled into the binary from `grammar/classes.toml`.
     pub fn embedded() -> Taxonomy {
@@ -280,6 +308,17 @@ fn is_name(text: &str) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn plurals_of_class_names_read_naturally() {
+        assert_eq!(how_many(1, "coffee_table"), "1 coffee table");
+        assert_eq!(how_many(0, "laptop"), "0 laptops");
+        assert_eq!(plural("mug"), "mugs");
+        assert_eq!(plural("box"), "boxes");
+        assert_eq!(plural("shelf"), "shelves");
+        assert_eq!(plural("clothes"), "clothes");
+        assert_eq!(plural("glass"), "glasses");
+    }
 
     #[test]
     fn embedded_taxonomy_is_valid_and_complete() {

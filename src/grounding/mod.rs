@@ -27,10 +27,11 @@ use crate::language::constraint::{
 use crate::scene::Scene;
 use crate::taxonomy::Taxonomy;
 
+pub use crate::taxonomy::{how_many, plural};
 pub use extent::Extents;
 pub use measures::{footprint_of, in_region, mean_colour, relation_holds, relation_holds_measured};
 pub use predicates::{holds, Footprint};
-pub use questions::{how_many, plural, ClarifyingQuestion};
+pub use questions::ClarifyingQuestion;
 
 /// A resolved referent: the segments it covers and the hypotheses it may be.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
@@ -415,10 +416,7 @@ impl Resolver<'_, '_> {
                 Some(class) if before_relations > 0 && !referent.relations.is_empty() => {
                     GroundingIssue::NoneInRelation {
                         constraint: self.constraint,
-                        found: questions::how_many(
-                            before_relations,
-                            view.taxonomy.class_name(class),
-                        ),
+                        found: how_many(before_relations, view.taxonomy.class_name(class)),
                         words,
                     }
                 }

@@ -11,7 +11,7 @@ use super::{in_region, SceneView};
 use crate::ids::HypothesisId;
 use crate::language::constraint::{ImageRegion, Referent, Relation};
 use crate::language::notation::attribute_name;
-use crate::taxonomy::{ClassGroup, Taxonomy};
+use crate::taxonomy::{plural, ClassGroup, Taxonomy};
 
 /// A question to send back instead of guessing, with the objects it distinguishes.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -23,34 +23,6 @@ pub struct ClarifyingQuestion {
     pub candidates: Vec<HypothesisId>,
     /// How each candidate is described in the text.
     pub descriptions: Vec<String>,
-}
-
-/// "1 desk", "2 desks": a count of a class name read back.
-pub fn how_many(count: usize, name: &str) -> String {
-    if count == 1 {
-        format!("1 {}", name.replace('_', " "))
-    } else {
-        format!("{count} {}", plural(name))
-    }
-}
-
-/// English plural of a canonical class name (the language stage owns the full lexicon; this is enough for
-/// reading a class name back).
-pub fn plural(name: &str) -> String {
-    let name = name.replace('_', " ");
-    if name.ends_with("clothes") || name.ends_with("stairs") {
-        name
-    } else if name.ends_with("shelf") {
-        format!("{}ves", &name[..name.len() - 1])
-    } else if name.ends_with('s')
-        || name.ends_with('x')
-        || name.ends_with("ch")
-        || name.ends_with("sh")
-    {
-        format!("{name}es")
-    } else {
-        format!("{name}s")
-    }
 }
 
 fn number_word(n: usize) -> String {
@@ -238,15 +210,6 @@ pub(super) fn ask(
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn plurals_of_class_names_read_naturally() {
-        assert_eq!(plural("mug"), "mugs");
-        assert_eq!(plural("box"), "boxes");
-        assert_eq!(plural("shelf"), "shelves");
-        assert_eq!(plural("clothes"), "clothes");
-        assert_eq!(plural("glass"), "glasses");
-    }
 
     fn first_referent(utterance: &str) -> (Taxonomy, Referent) {
         use crate::language::constraint::ConstraintKind;

@@ -7,7 +7,7 @@
 
 use std::fmt::Write;
 
-use crate::taxonomy::Taxonomy;
+use crate::taxonomy::{how_many, Taxonomy};
 
 use super::constraint::{
     Attribute, ColourTerm, Constraint, ConstraintKind, Count, Deixis, ImageRegion, Place, Referent,
@@ -226,6 +226,7 @@ pub fn referent_gloss(referent: &Referent, taxonomy: &Taxonomy) -> String {
 /// A constraint in plain English.
 pub fn constraint_gloss(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String {
     let name = |class| taxonomy.class_name(class).replace('_', " ");
+    let counted = |n: u32, class| how_many(n as usize, taxonomy.class_name(class));
     let room_name = |room| {
         taxonomy
             .room(room)
@@ -236,9 +237,9 @@ pub fn constraint_gloss(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String {
         ConstraintKind::Present { class } => format!("at least one {} is in view", name(*class)),
         ConstraintKind::Absent { class } => format!("no {} is in view", name(*class)),
         ConstraintKind::Count { class, count } => match count {
-            Count::Exactly(n) => format!("exactly {n} {} in view", name(*class)),
-            Count::AtLeast(n) => format!("at least {n} {} in view", name(*class)),
-            Count::AtMost(n) => format!("at most {n} {} in view", name(*class)),
+            Count::Exactly(n) => format!("exactly {} in view", counted(*n, *class)),
+            Count::AtLeast(n) => format!("at least {} in view", counted(*n, *class)),
+            Count::AtMost(n) => format!("at most {} in view", counted(*n, *class)),
         },
         ConstraintKind::Relation {
             subject,

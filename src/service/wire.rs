@@ -139,7 +139,7 @@ pub struct TextSpan {
 pub struct ConstraintOut {
     /// e.g. `relabel`, `count`, `relation`.
     pub kind: String,
-    /// A plain gloss such as "exactly 2 chair".
+    /// A plain gloss such as "exactly 2 chairs in view".
     pub gloss: String,
     pub confidence: f32,
     pub span: TextSpan,
