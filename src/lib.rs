@@ -50,4 +50,5 @@ pub mod slic;
 pub mod solver;
 pub mod taxonomy;
 pub mod tuning;
+pub mod tuning_cuts;
 pub mod unaries;

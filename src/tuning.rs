@@ -89,6 +89,8 @@ pub enum TuningError {
     InstanceCount(#[from] InstanceCountError),
     #[error("unknown weight '{0}'")]
     UnknownWeight(String),
+    #[error("instance cuts: {0}")]
+    InstanceCuts(#[from] crate::scenegraph::instances::InstanceCutsError),
 }
 
 /// Refuses a seed range that is empty or touches the demo seeds.

@@ -13,9 +13,10 @@ use anyhow::Context;
 
 use sayso::energy::build::{EnergyWeights, WeightsFile, WEIGHTS_SCHEMA};
 use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
-use sayso::scenegraph::instances::InstanceCuts;
+use sayso::scenegraph::instances::{InstanceCuts, InstanceCutsFile, EMBEDDED_INSTANCE_CUTS};
 use sayso::taxonomy::Taxonomy;
 use sayso::tuning::{count_statistics, prepare_tuning_scenes, tune_weights, TUNED_WEIGHTS};
+use sayso::tuning_cuts::{refine_cuts, solve_states};
 
 /// Count room/class statistics and tune energy weights on training renders.
 #[derive(Debug, clap::Args)]
@@ -44,6 +45,10 @@ pub struct TuneArgs {
     /// Directory to write room_class_prior.json and energy_weights.json into.
     #[arg(long, default_value = "models")]
     pub out: PathBuf,
+    /// Only re-choose the strengths of the committed instance cuts on the solved tuning renders
+    /// (`sayso::tuning_cuts`), with the committed prior and weights; nothing is counted.
+    #[arg(long)]
+    pub cuts_only: bool,
 }
 
 pub fn run(args: TuneArgs) -> anyhow::Result<()> {
@@ -51,6 +56,11 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();
     std::fs::create_dir_all(&args.out)
         .with_context(|| format!("creating {}", args.out.display()))?;
+    if args.cuts_only {
+        let committed: InstanceCutsFile = serde_json::from_str(EMBEDDED_INSTANCE_CUTS)?;
+        let settings = CorrectionSettings::embedded()?;
+        return refine_and_write(&args, &taxonomy, &settings, &committed, started);
+    }
     let stats_seeds = args.stats_seed..args.stats_seed.saturating_add(args.stats_count);
     let mut rendered = 0u64;
     let counts = count_statistics(&taxonomy, stats_seeds.clone(), |_| {
@@ -90,14 +100,7 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
         eprintln!("instance cuts: {line}");
     }
     let instance_cuts = InstanceCuts::from_file(&cuts_file, &taxonomy)?;
-    let cuts_path = args.out.join("instance_cuts.json");
-    std::fs::write(&cuts_path, serde_json::to_string_pretty(&cuts_file)? + "\n")
-        .with_context(|| format!("writing {}", cuts_path.display()))?;
-    println!(
-        "wrote {} ({} classes cut)",
-        cuts_path.display(),
-        cuts_file.cuts.len()
-    );
+    write_cuts(&args, &cuts_file)?;
     if args.passes == 0 {
         return Ok(());
     }
@@ -151,6 +154,71 @@ pub fn run(args: TuneArgs) -> anyhow::Result<()> {
         result.start_objective,
         result.objective,
         result.trials.len(),
+        started.elapsed().as_secs_f64()
+    );
+    refine_and_write(&args, &taxonomy, &settings, &cuts_file, started)
+}
+
+fn write_cuts(args: &TuneArgs, file: &InstanceCutsFile) -> anyhow::Result<()> {
+    let cuts_path = args.out.join("instance_cuts.json");
+    std::fs::write(&cuts_path, serde_json::to_string_pretty(file)? + "\n")
+        .with_context(|| format!("writing {}", cuts_path.display()))?;
+    println!(
+        "wrote {} ({} classes cut)",
+        cuts_path.display(),
+        file.cuts.len()
+    );
+    Ok(())
+}
+
+/// Re-chooses the cut strengths on the tuning renders solved with `settings` and writes the cuts file.
+fn refine_and_write(
+    args: &TuneArgs,
+    taxonomy: &Taxonomy,
+    settings: &CorrectionSettings,
+    counted: &InstanceCutsFile,
+    started: Instant,
+) -> anyhow::Result<()> {
+    let classifier = load_classifier(&model_path(args.model.as_deref()), taxonomy)?;
+    let tune_seeds = args.tune_seed..args.tune_seed.saturating_add(args.tune_count);
+    let scenes = prepare_tuning_scenes(taxonomy, &classifier, tune_seeds.clone(), |line| {
+        eprintln!("tuning scene {line}")
+    })?;
+    let states = solve_states(&scenes, settings)?;
+    let refined = refine_cuts(&scenes, &states, counted, taxonomy)?;
+    for trial in &refined.trials {
+        eprintln!(
+            "  cut {} = {:.2}: object accuracy {:.4}{}",
+            trial.class,
+            trial.cut,
+            trial.objective,
+            if trial.kept { " (kept)" } else { "" }
+        );
+    }
+    let base = counted
+        .source
+        .split("; strengths re-chosen")
+        .next()
+        .unwrap_or_default()
+        .to_string();
+    let file = InstanceCutsFile {
+        source: format!(
+            "{base}; strengths re-chosen by `sayso tune` on {} solved training renders, seeds {}..{} (end \
+             exclusive; `sayso::tuning_cuts`): mean object accuracy over no note / each note {:.4} -> {:.4}",
+            scenes.len(),
+            tune_seeds.start,
+            tune_seeds.end,
+            refined.start_objective,
+            refined.objective
+        ),
+        ..refined.file
+    };
+    write_cuts(args, &file)?;
+    println!(
+        "cut strengths: object accuracy {:.4} -> {:.4} ({} trials, {:.0} s)",
+        refined.start_objective,
+        refined.objective,
+        refined.trials.len(),
         started.elapsed().as_secs_f64()
     );
     Ok(())

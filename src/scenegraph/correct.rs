@@ -371,24 +371,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         }
     }
     unmet.sort_by_key(|u| u.constraint);
-    let mut counted: Vec<(ClassId, u32)> = in_force
-        .iter()
-        .filter_map(|grounded| match grounded.kind {
-            GroundedKind::Count {
-                class,
-                count: Count::Exactly(k) | Count::AtLeast(k),
-            } => Some((class, k)),
-            _ => None,
-        })
-        .collect();
-    // The latest statement about a class wins (earlier ones are retired when superseded; keep the last).
-    counted.reverse();
-    let mut seen_classes = Vec::new();
-    counted.retain(|(class, _)| {
-        let first = !seen_classes.contains(class);
-        seen_classes.push(*class);
-        first
-    });
+    let counted = counted_classes(&in_force);
     let graph = build_scene_graph(
         scene,
         taxonomy,
@@ -527,4 +510,28 @@ fn baseline(
         multipliers: Some(solution.multipliers.clone()),
     };
     Ok((solution.state, built.hypotheses, Some(warm)))
+}
+
+/// The classes a count in force asks at least some number of objects of (exactly or at least `k`), the latest
+/// statement about a class winning: what the scene graph's count split reads.
+pub fn counted_classes(in_force: &[GroundedConstraint]) -> Vec<(ClassId, u32)> {
+    let mut counted: Vec<(ClassId, u32)> = in_force
+        .iter()
+        .filter_map(|grounded| match grounded.kind {
+            GroundedKind::Count {
+                class,
+                count: Count::Exactly(k) | Count::AtLeast(k),
+            } => Some((class, k)),
+            _ => None,
+        })
+        .collect();
+    // The latest statement about a class wins (earlier ones are retired when superseded; keep the last).
+    counted.reverse();
+    let mut seen_classes = Vec::new();
+    counted.retain(|(class, _)| {
+        let first = !seen_classes.contains(class);
+        seen_classes.push(*class);
+        first
+    });
+    counted
 }
