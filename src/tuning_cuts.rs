@@ -3,8 +3,7 @@
 //!
 //! Owns: keeping the tuning scenes' solved states (`solve_states`), the object accuracy of those states under
 //! other cuts (`cut_objective`) and the choice (`refine_cuts`).
-//! Must not: read or score demo scenes, write files, or change which classes are cut or their typical
-//! sizes; it only moves the strength of a cut the counting chose.
+//! Must not: read or score demo scenes, write files, or change typical sizes; it only moves cut strengths.
 //!
 //! # Why and how
 //!
@@ -18,10 +17,12 @@
 //!
 //! The choice: every tuning scene is solved once per state, as the tuning objective does (no note, then each
 //! training note in turn; `crate::tuning::objective`); the solve never reads the cuts, so the states do not
-//! depend on them. For each cut class, every strength of `CANDIDATE_CUTS` is tried from the largest down,
-//! with the other classes held, and scored by the mean object accuracy over all states (the part of the
-//! tuning objective the cuts move). A strength replaces the best so far only when it beats it by more than
-//! `crate::tuning::MIN_GAIN`, starting from the counted cut, so a tie keeps the larger cut: cutting less.
+//! depend on them. For each class with a counted cut, and each class without one that has at least
+//! `MIN_OBJECTS` ground-truth objects over the tuning renders (starting there from "never cut"), every
+//! strength of `CANDIDATE_CUTS` is tried from the largest down, with the other classes held, and scored by
+//! the mean object accuracy over all states (the part of the tuning objective the cuts move). A strength
+//! replaces the best so far only when it beats it by more than `crate::tuning::MIN_GAIN`, starting from the
+//! counted cut (or none), so a tie keeps the larger cut: cutting less.
 
 use std::collections::BTreeMap;
 
@@ -31,7 +32,7 @@ use crate::ids::ClassId;
 use crate::pipeline::{believe_without_notes, correct_turn, CorrectionSettings, TurnInputs};
 use crate::scene::Scene;
 use crate::scenegraph::correct::{counted_classes, Correction};
-use crate::scenegraph::instance_statistics::CANDIDATE_CUTS;
+use crate::scenegraph::instance_statistics::{CANDIDATE_CUTS, MIN_OBJECTS};
 use crate::scenegraph::instances::{InstanceCuts, InstanceCutsFile};
 use crate::scenegraph::objects::form_objects;
 use crate::taxonomy::Taxonomy;
@@ -179,7 +180,18 @@ pub fn refine_cuts(
     let start_objective = cut_objective(scenes, states, &InstanceCuts::from_file(&file, taxonomy)?);
     let mut best = start_objective;
     let mut trials = Vec::new();
-    let classes: Vec<String> = file.cuts.keys().cloned().collect();
+    let mut objects: BTreeMap<String, u64> = BTreeMap::new();
+    for tuning in scenes {
+        for object in &tuning.prepared.demo.objects {
+            *objects.entry(object.class.clone()).or_default() += 1;
+        }
+    }
+    let mut classes: Vec<String> = file.cuts.keys().cloned().collect();
+    for (class, &count) in &objects {
+        if count >= MIN_OBJECTS && !classes.contains(class) {
+            classes.push(class.clone());
+        }
+    }
     for class in classes {
         let mut candidates: Vec<f32> = CANDIDATE_CUTS.to_vec();
         candidates.reverse();

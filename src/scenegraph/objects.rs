@@ -10,13 +10,15 @@
 //! 1. The fine segments are grouped into 4-connected components of equal final label over the adjacency
 //!    graph (what the label map shows as one patch of a class), joined only across edges no stronger than
 //!    the class's cut (`super::instances`, `models/instance_cuts.json`): books side by side on a shelf
-//!    share a label but not a colour. Measured on training renders (`examples/render_objects.rs`, seed
+//!    share a label but not a colour (the strengths are re-chosen on solved training renders, see
+//!    `crate::tuning_cuts`). Measured on training renders (`examples/render_objects.rs`, seed
 //!    200000, 21 renders, 400-segment scenes): object accuracy after the notes 0.5125 without cuts, 0.5537
 //!    with the counted cuts (book, bottle, shoe, chair); `sayso score --notes 2` against the classifier
 //!    alone +0.6 -> +4.9. With 800-segment scenes and their re-counted cuts and re-tuned weights: 0.7012.
 //!    With 2400-segment scenes (classifier, cuts and weights re-made; 2026-12-03): 0.7818, and 0.8051 on
 //!    the renders from seed 200000 + 21; with the book cut re-chosen on solved renders (1.5 -> 1.0,
-//!    `crate::tuning_cuts`) and small backed patches counted as shown (rule 2): 0.8073 and 0.8151.
+//!    `crate::tuning_cuts`) and small backed patches counted as shown (rule 2): 0.8073 and 0.8151; with
+//!    bottle, cabinet, chair and shoe cut as well (chosen the same way): 0.8153 and 0.8136.
 //!    A patch of a class with a typical size is then parted by its depth-scaled area
 //!    (`super::instances::part_by_size`: chairs pushed together, pillows side by side).
 //! 2. When the operator said there are at least `k` objects of a class ("there are four chairs": a count
