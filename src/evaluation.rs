@@ -25,7 +25,7 @@ use std::path::Path;
 use serde::Serialize;
 
 use crate::demo::DemoScene;
-use crate::ids::ClassId;
+use crate::ids::{ClassId, SegmentId};
 use crate::render::SceneObject;
 use crate::scene::Scene;
 use crate::scenegraph::SceneGraph;
@@ -133,6 +133,20 @@ pub fn objects_from_regions(width: usize, predicted: &[u16]) -> Vec<PredictedObj
 
 /// Graph-based objects: each scene-graph object with the pixels of its member segments.
 pub fn objects_from_graph(scene: &Scene, graph: &SceneGraph) -> Vec<PredictedObject> {
+    objects_from_members(
+        scene,
+        graph
+            .objects
+            .iter()
+            .map(|object| (object.class, object.members.as_slice())),
+    )
+}
+
+/// Objects given as a class and member segments, each with the pixels of its members.
+pub fn objects_from_members<'a>(
+    scene: &Scene,
+    objects: impl Iterator<Item = (ClassId, &'a [SegmentId])>,
+) -> Vec<PredictedObject> {
     let segment_count = scene.segment_count();
     // Pixels of every segment, gathered once.
     let mut segment_pixels: Vec<Vec<u32>> = vec![Vec::new(); segment_count];
@@ -141,12 +155,9 @@ pub fn objects_from_graph(scene: &Scene, graph: &SceneGraph) -> Vec<PredictedObj
             list.push(pixel as u32);
         }
     }
-    graph
-        .objects
-        .iter()
-        .map(|object| {
-            let mut pixels: Vec<u32> = object
-                .members
+    objects
+        .map(|(class, members)| {
+            let mut pixels: Vec<u32> = members
                 .iter()
                 .filter_map(|member| segment_pixels.get(member.index()))
                 .flatten()
@@ -154,10 +165,7 @@ pub fn objects_from_graph(scene: &Scene, graph: &SceneGraph) -> Vec<PredictedObj
                 .collect();
             pixels.sort_unstable();
             pixels.dedup();
-            PredictedObject {
-                class: object.class,
-                pixels,
-            }
+            PredictedObject { class, pixels }
         })
         .collect()
 }

@@ -39,6 +39,7 @@ use crate::pipeline::{
 };
 use crate::render::catalogue::DEMO_SEEDS;
 use crate::render::{render_scene, RenderError, SceneRequest, ROOM_TYPES};
+use crate::scenegraph::correct::Correction;
 use crate::scenegraph::instance_statistics::{InstanceCountError, InstanceCutCounts};
 use crate::scenegraph::{label_map, SceneGraph};
 use crate::taxonomy::{ClassGroup, Taxonomy};
@@ -254,6 +255,40 @@ fn state_score(
     Ok(0.5 * (score.mean_iou + objects) - SHORTFALL_WEIGHT * shortfall)
 }
 
+/// Solves a tuning scene with no note, then after each of its notes in turn (each turn on the one before),
+/// handing every state to `visit`.
+pub fn walk_states(
+    tuning: &TuningScene,
+    settings: &CorrectionSettings,
+    mut visit: impl FnMut(&Correction) -> Result<(), TuningError>,
+) -> Result<(), TuningError> {
+    let prepared = &tuning.prepared;
+    visit(&believe_without_notes(prepared, settings)?)?;
+    let inputs = TurnInputs {
+        scene: &prepared.scene,
+        unaries: &prepared.unaries,
+        detections: &[],
+    };
+    let mut previous: Option<Correction> = None;
+    for note in &tuning.notes {
+        let constraints = match settings.grammar.parse(note, None) {
+            Ok(parse) => parse.constraints,
+            Err(_) => Vec::new(),
+        };
+        let correction = correct_turn(
+            &inputs,
+            previous.as_ref(),
+            &constraints,
+            None,
+            false,
+            settings,
+        )?;
+        visit(&correction)?;
+        previous = Some(correction);
+    }
+    Ok(())
+}
+
 /// The objective of one setting (see the module doc): higher is better.
 pub fn objective(
     scenes: &[TuningScene],
@@ -263,34 +298,16 @@ pub fn objective(
     let mut total = 0.0;
     let mut states = 0usize;
     for tuning in scenes {
-        let prepared = &tuning.prepared;
-        let classifier = &tuning.classifier;
-        let baseline = believe_without_notes(prepared, settings)?;
-        total += state_score(prepared, &baseline.graph, class_count, classifier)?;
-        states += 1;
-        let inputs = TurnInputs {
-            scene: &prepared.scene,
-            unaries: &prepared.unaries,
-            detections: &[],
-        };
-        let mut previous = None;
-        for note in &tuning.notes {
-            let constraints = match settings.grammar.parse(note, None) {
-                Ok(parse) => parse.constraints,
-                Err(_) => Vec::new(),
-            };
-            let correction = correct_turn(
-                &inputs,
-                previous.as_ref(),
-                &constraints,
-                None,
-                false,
-                settings,
+        walk_states(tuning, settings, |correction| {
+            total += state_score(
+                &tuning.prepared,
+                &correction.graph,
+                class_count,
+                &tuning.classifier,
             )?;
-            total += state_score(prepared, &correction.graph, class_count, classifier)?;
             states += 1;
-            previous = Some(correction);
-        }
+            Ok(())
+        })?;
     }
     Ok(if states == 0 {
         0.0

@@ -26,17 +26,17 @@
 
 use std::collections::BTreeMap;
 
-use crate::evaluation::{object_accuracy, PredictedObject};
+use crate::evaluation::{object_accuracy, objects_from_members, PredictedObject};
 use crate::hypotheses::Hypothesis;
 use crate::ids::ClassId;
-use crate::pipeline::{believe_without_notes, correct_turn, CorrectionSettings, TurnInputs};
+use crate::pipeline::CorrectionSettings;
 use crate::scene::Scene;
 use crate::scenegraph::correct::{counted_classes, Correction};
 use crate::scenegraph::instance_statistics::{CANDIDATE_CUTS, MIN_OBJECTS};
 use crate::scenegraph::instances::{InstanceCuts, InstanceCutsFile};
 use crate::scenegraph::objects::form_objects;
 use crate::taxonomy::Taxonomy;
-use crate::tuning::{TuningError, TuningScene, MIN_GAIN};
+use crate::tuning::{walk_states, TuningError, TuningScene, MIN_GAIN};
 
 /// One solved state of a tuning scene: what forming its objects reads.
 pub struct SolvedState {
@@ -60,76 +60,37 @@ impl SolvedState {
     }
 }
 
-/// Solves every tuning scene with no note and after each of its notes in turn, keeping each state.
+/// Solves every tuning scene with no note, then after each of its notes in turn, keeping each state.
 pub fn solve_states(
     scenes: &[TuningScene],
     settings: &CorrectionSettings,
 ) -> Result<Vec<SolvedState>, TuningError> {
     let mut states = Vec::new();
     for (index, tuning) in scenes.iter().enumerate() {
-        let prepared = &tuning.prepared;
-        states.push(SolvedState::of(
-            index,
-            &believe_without_notes(prepared, settings)?,
-        ));
-        let inputs = TurnInputs {
-            scene: &prepared.scene,
-            unaries: &prepared.unaries,
-            detections: &[],
-        };
-        let mut previous: Option<Correction> = None;
-        for note in &tuning.notes {
-            let constraints = match settings.grammar.parse(note, None) {
-                Ok(parse) => parse.constraints,
-                Err(_) => Vec::new(),
-            };
-            let correction = correct_turn(
-                &inputs,
-                previous.as_ref(),
-                &constraints,
-                None,
-                false,
-                settings,
-            )?;
-            states.push(SolvedState::of(index, &correction));
-            previous = Some(correction);
-        }
+        walk_states(tuning, settings, |correction| {
+            states.push(SolvedState::of(index, correction));
+            Ok(())
+        })?;
     }
     Ok(states)
 }
 
-/// The pixels of each object `form_objects` makes of a state under `cuts`.
+/// The objects `form_objects` makes of a state under `cuts`, with their pixels.
 fn formed_objects(scene: &Scene, state: &SolvedState, cuts: &InstanceCuts) -> Vec<PredictedObject> {
-    let mut segment_pixels: Vec<Vec<u32>> = vec![Vec::new(); scene.segment_count()];
-    for (pixel, &segment) in scene.segments.labels.iter().enumerate() {
-        if let Some(list) = segment_pixels.get_mut(segment as usize) {
-            list.push(pixel as u32);
-        }
-    }
-    form_objects(
+    let formed = form_objects(
         scene,
         &state.labels,
         &state.hypotheses,
         &state.accepted,
         &state.counted,
         cuts,
-    )
-    .into_iter()
-    .map(|object| {
-        let mut pixels: Vec<u32> = object
-            .members
+    );
+    objects_from_members(
+        scene,
+        formed
             .iter()
-            .filter_map(|member| segment_pixels.get(member.index()))
-            .flatten()
-            .copied()
-            .collect();
-        pixels.sort_unstable();
-        PredictedObject {
-            class: object.class,
-            pixels,
-        }
-    })
-    .collect()
+            .map(|object| (object.class, object.members.as_slice())),
+    )
 }
 
 /// The mean object accuracy of the states under `cuts`.
