@@ -1,5 +1,5 @@
-//! Re-choosing each cut class's instance cut on the tuning renders' solved scenes, after `sayso tune` has
-//! counted it on ground-truth labels (`crate::scenegraph::instance_statistics`).
+//! Choosing instance cut strengths on the tuning renders' solved scenes, after `sayso tune` has counted the
+//! cuts on ground-truth labels (`crate::scenegraph::instance_statistics`).
 //!
 //! Owns: keeping the tuning scenes' solved states (`solve_states`), the object accuracy of those states under
 //! other cuts (`cut_objective`) and the choice (`refine_cuts`).
@@ -16,8 +16,9 @@
 //! 0.75 0.7943 / 0.8090 and 0.7963 / 0.8136; 0.5 0.7876 / 0.8023 and 0.7900 / 0.8072.
 //!
 //! The choice: every tuning scene is solved once per state, as the tuning objective does (no note, then each
-//! training note in turn; `crate::tuning::objective`); the solve never reads the cuts, so the states do not
-//! depend on them. For each class with a counted cut, and each class without one that has at least
+//! training note in turn; `crate::tuning::objective`). The solve never reads the cuts, and a later turn
+//! reads the previous turn's objects only to resolve a relation's landmark, which the training notes never
+//! name; so the states do not depend on the cuts. For each class with a counted cut, and each class without one that has at least
 //! `MIN_OBJECTS` ground-truth objects over the tuning renders (starting there from "never cut"), every
 //! strength of `CANDIDATE_CUTS` is tried from the largest down, with the other classes held, and scored by
 //! the mean object accuracy over all states (the part of the tuning objective the cuts move). A strength
