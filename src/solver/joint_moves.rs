@@ -95,13 +95,13 @@ impl MoveScorer {
         }
         self.base_coupled = None;
         if context.coupled.exact() {
-            for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
-                self.cost_on[h] = hypothesis.activation_cost
-                    + hypothesis.agreement_weight * self.disagreeing[h] as f64;
-            }
-            for (flag, &count) in self.segment_support.iter_mut().zip(&self.support) {
-                *flag = count > 0;
-            }
+            coupled_costs(
+                context,
+                &self.disagreeing,
+                &self.support,
+                &mut self.cost_on,
+                &mut self.segment_support,
+            );
             self.base_coupled = Some(self.coupled_value(context));
         }
     }
@@ -184,17 +184,38 @@ impl MoveScorer {
                 return Some(bound);
             }
         }
-        for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
-            self.cost_on[h] = hypothesis.activation_cost
-                + hypothesis.agreement_weight * self.scratch_disagreeing[h] as f64;
-        }
-        for (flag, &count) in self.segment_support.iter_mut().zip(&self.scratch_support) {
-            *flag = count > 0;
-        }
+        coupled_costs(
+            context,
+            &self.scratch_disagreeing,
+            &self.scratch_support,
+            &mut self.cost_on,
+            &mut self.segment_support,
+        );
         context
             .coupled
             .exact()
             .then(|| self.segment_energy + delta + self.coupled_value(context))
+    }
+}
+
+/// The coupled step's inputs for a labelling given by its disagreeing members per hypothesis and its fine
+/// segments per label: each hypothesis's on-cost and each class's segment support.
+fn coupled_costs(
+    context: &Context,
+    disagreeing: &[i64],
+    support: &[i64],
+    cost_on: &mut [f64],
+    segment_support: &mut [bool],
+) {
+    for ((cost, hypothesis), &count) in cost_on
+        .iter_mut()
+        .zip(&context.energy.hypotheses)
+        .zip(disagreeing)
+    {
+        *cost = hypothesis.activation_cost + hypothesis.agreement_weight * count as f64;
+    }
+    for (flag, &count) in segment_support.iter_mut().zip(support) {
+        *flag = count > 0;
     }
 }
 
