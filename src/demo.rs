@@ -15,7 +15,7 @@ use crate::render::catalogue::DEMO_SCENES;
 use crate::render::writer::{
     DEPTH_FILE, IMAGE_FILE, INSTANCES_FILE, LABELS_FILE, OBJECTS_FILE, SCENE_FILE,
 };
-use crate::render::{SceneMetadata, SceneObject};
+use crate::render::{RenderedScene, SceneMetadata, SceneObject};
 
 /// The environment variable that overrides where demo scenes are read from.
 pub const DEMO_DIR_VARIABLE: &str = "SAYSO_DEMO_DIR";
@@ -53,6 +53,22 @@ pub struct DemoScene {
     pub labels: IndexImage,
     pub instances: IndexImage,
     pub objects: Vec<SceneObject>,
+}
+
+impl DemoScene {
+    /// A scene rendered in memory (no directory behind it).
+    pub fn from_rendered(rendered: RenderedScene) -> DemoScene {
+        DemoScene {
+            name: rendered.metadata.name.clone(),
+            directory: PathBuf::new(),
+            metadata: rendered.metadata,
+            image: rendered.image,
+            depth: rendered.depth,
+            labels: rendered.labels,
+            instances: rendered.instances,
+            objects: rendered.objects,
+        }
+    }
 }
 
 /// The demo directory: `explicit` if given, else `$SAYSO_DEMO_DIR`, else the compiled-in path.

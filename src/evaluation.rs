@@ -184,6 +184,21 @@ fn object_accuracy_of(
     if truth.is_empty() {
         return 0.0;
     }
+    let found = matched_of(instances, truth, predicted);
+    found.iter().filter(|&&f| f).count() as f64 / truth.len() as f64
+}
+
+/// For every ground-truth object of `scene` (in `scene.objects` order), whether a predicted object of its
+/// class covers it at IoU >= 0.5.
+pub fn matched_objects(scene: &DemoScene, predicted: &[PredictedObject]) -> Vec<bool> {
+    matched_of(&scene.instances.values, &scene.objects, predicted)
+}
+
+fn matched_of(
+    instances: &[u16],
+    truth: &[SceneObject],
+    predicted: &[PredictedObject],
+) -> Vec<bool> {
     let mut instance_area: HashMap<u16, u64> = HashMap::new();
     for &instance in instances {
         if instance != 0 && instance != UNLABELLED {
@@ -218,7 +233,7 @@ fn object_accuracy_of(
             }
         }
     }
-    found.iter().filter(|&&f| f).count() as f64 / truth.len() as f64
+    found
 }
 
 /// Scores a per-pixel labelling of a demo scene; object accuracy is region-based (see the module doc).

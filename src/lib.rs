@@ -49,6 +49,7 @@ pub mod service;
 pub mod slic;
 pub mod solver;
 pub mod taxonomy;
+pub mod trial;
 pub mod tuning;
 pub mod tuning_cuts;
 pub mod unaries;

@@ -176,6 +176,13 @@ pub struct Understood {
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct TurnReport {
     pub utterance: String,
+    /// The constraints the note was read as (empty when it could not be read).
+    #[serde(skip)]
+    pub constraints: Vec<Constraint>,
+    /// Index of this note's first constraint among every constraint in force (`Unmet::constraint` and
+    /// `ClarifyingQuestion::constraint` count the same way).
+    #[serde(skip)]
+    pub first_constraint: usize,
     /// The parser's error when the note could not be read (the scene is then left as it was).
     pub parse_error: Option<String>,
     pub understood: Vec<Understood>,
@@ -233,11 +240,35 @@ impl CorrectionSettings {
     }
 }
 
-/// Applies notes one after another to a prepared scene.
+/// One note with the focus sent along with it (a pointed pixel or object), if any.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PointedNote {
+    pub text: String,
+    pub focus: Option<Focus>,
+}
+
+/// Applies notes one after another to a prepared scene, every note with the same focus.
 pub fn correct_prepared(
     prepared: PreparedScene,
     utterances: &[String],
     focus: Option<Focus>,
+    confirm_safety: bool,
+    settings: &CorrectionSettings,
+) -> Result<CorrectionReport, PipelineError> {
+    let notes: Vec<PointedNote> = utterances
+        .iter()
+        .map(|text| PointedNote {
+            text: text.clone(),
+            focus,
+        })
+        .collect();
+    correct_notes(prepared, &notes, confirm_safety, settings)
+}
+
+/// Applies notes one after another to a prepared scene, each with its own focus.
+pub fn correct_notes(
+    prepared: PreparedScene,
+    notes: &[PointedNote],
     confirm_safety: bool,
     settings: &CorrectionSettings,
 ) -> Result<CorrectionReport, PipelineError> {
@@ -246,7 +277,8 @@ pub fn correct_prepared(
     let mut previous: Option<Correction> = None;
     let mut after_each = Vec::new();
     let mut turns = Vec::new();
-    for utterance in utterances {
+    for note in notes {
+        let (utterance, focus) = (&note.text, note.focus);
         let parse = match settings.grammar.parse(utterance, focus) {
             Ok(parse) => parse,
             Err(error) => {
@@ -276,6 +308,8 @@ pub fn correct_prepared(
         let this_note = |constraint: usize| constraint >= first_new;
         turns.push(TurnReport {
             utterance: utterance.clone(),
+            constraints: parse.constraints.clone(),
+            first_constraint: first_new,
             parse_error: None,
             understood: parse
                 .constraints
@@ -388,6 +422,8 @@ pub fn correct_turn(
 fn failed_turn(utterance: &str, error: &LanguageError) -> TurnReport {
     TurnReport {
         utterance: utterance.to_string(),
+        constraints: Vec::new(),
+        first_constraint: 0,
         parse_error: Some(error.to_string()),
         understood: Vec::new(),
         conflicts: Vec::new(),

@@ -123,17 +123,7 @@ pub fn render_training_scene(
         });
     }
     let request = SceneRequest::new(ROOM_TYPES[index % ROOM_TYPES.len()], seed);
-    let rendered = render_scene(taxonomy, &request)?;
-    Ok(DemoScene {
-        name: request.name,
-        directory: std::path::PathBuf::new(),
-        metadata: rendered.metadata,
-        image: rendered.image,
-        depth: rendered.depth,
-        labels: rendered.labels,
-        instances: rendered.instances,
-        objects: rendered.objects,
-    })
+    Ok(DemoScene::from_rendered(render_scene(taxonomy, &request)?))
 }
 
 /// What `count_statistics` counts over training renders.

@@ -16,6 +16,7 @@ mod score;
 mod serve;
 mod store;
 mod train;
+mod trial;
 mod tune;
 mod unaries;
 
@@ -48,6 +49,8 @@ pub enum Command {
     Tune(tune::TuneArgs),
     /// Apply every demo scene's notes and score them against ground truth.
     Score(score::ScoreArgs),
+    /// Measure the notes on fresh renders with an automatic operator, against the no-note solve.
+    Trial(trial::TrialArgs),
     /// Start the correction service.
     Serve(serve::ServeArgs),
     /// Write the accepted corrections as a training dataset directory.
@@ -76,5 +79,6 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
         Command::Fix(args) => fix::run(args),
         Command::Score(args) => score::run(args),
         Command::Tune(args) => tune::run(args),
+        Command::Trial(args) => trial::run(args),
     }
 }
