@@ -74,6 +74,13 @@ pub enum TuningError {
         last = DEMO_SEEDS.end()
     )]
     DemoSeed { start: u64, end: u64, seed: u64 },
+    #[error(
+        "seeds {start}..{end} touch the trial seeds {first}..{last} that `sayso trial` measures on; tuning never \
+         sees them",
+        first = crate::trial::TRIAL_SEEDS.start,
+        last = crate::trial::TRIAL_SEEDS.end
+    )]
+    TrialSeed { start: u64, end: u64 },
     #[error("no seeds given")]
     NoSeeds,
     #[error("rendering: {0}")]
@@ -106,6 +113,13 @@ pub fn check_training_seeds(seeds: &Range<u64>) -> Result<(), TuningError> {
             seed: seeds.start.max(*DEMO_SEEDS.start()),
         });
     }
+    let trial = crate::trial::TRIAL_SEEDS;
+    if seeds.start < trial.end && trial.start < seeds.end {
+        return Err(TuningError::TrialSeed {
+            start: seeds.start,
+            end: seeds.end,
+        });
+    }
     Ok(())
 }
 
@@ -115,13 +129,7 @@ pub fn render_training_scene(
     seed: u64,
     index: usize,
 ) -> Result<DemoScene, TuningError> {
-    if DEMO_SEEDS.contains(&seed) {
-        return Err(TuningError::DemoSeed {
-            start: seed,
-            end: seed + 1,
-            seed,
-        });
-    }
+    check_training_seeds(&(seed..seed + 1))?;
     let request = SceneRequest::new(ROOM_TYPES[index % ROOM_TYPES.len()], seed);
     Ok(DemoScene::from_rendered(render_scene(taxonomy, &request)?))
 }
@@ -408,6 +416,10 @@ mod tests {
         ));
         assert!(check_training_seeds(&(2000..2010)).is_ok());
         assert!(check_training_seeds(&(100_000..100_140)).is_ok());
+        assert!(matches!(
+            check_training_seeds(&(5_999_990..6_000_001)),
+            Err(TuningError::TrialSeed { .. })
+        ));
         let taxonomy = Taxonomy::embedded();
         assert!(matches!(
             render_training_scene(&taxonomy, 1006, 0),
