@@ -467,8 +467,18 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
                         weight: segment_weight,
                         source: Some(index),
                     });
+                    // Only hypotheses mostly inside the target are denied: "that's not the wall" at a
+                    // point says nothing about the rest of the wall.
                     let denied: Vec<Vec<u32>> = overlapping(&hypotheses, target, *from)
                         .into_iter()
+                        .filter(|&h| {
+                            let members = &hypotheses[h].members;
+                            let inside = members
+                                .iter()
+                                .filter(|s| target.segments.binary_search(s).is_ok())
+                                .count();
+                            2 * inside >= members.len()
+                        })
                         .map(|h| vec![h as u32])
                         .collect();
                     if !denied.is_empty() {

@@ -13,6 +13,7 @@
 pub mod colour_terms;
 mod extent;
 mod measures;
+pub mod pointer;
 pub mod predicates;
 mod questions;
 
@@ -25,7 +26,7 @@ use crate::language::constraint::{
     Relation, SizeTerm, Span,
 };
 use crate::scene::Scene;
-use crate::taxonomy::Taxonomy;
+use crate::taxonomy::{ClassGroup, Taxonomy};
 
 pub use crate::taxonomy::{how_many, plural};
 pub use extent::Extents;
@@ -91,6 +92,12 @@ pub struct GroundedConstraint {
     pub gloss: String,
     pub kind: GroundedKind,
 }
+
+/// A pointer's grown region covers at most this fraction (1/n) of the image.
+pub const POINTER_MAX_SHARE: u64 = 16;
+/// The robot's object under the pointer stands for what was pointed at when it is at most this many times the
+/// area the pointer reaches by colour and depth (our own choice).
+pub const POINTER_OBJECT_SLACK: u64 = 3;
 
 /// Parser confidence from which a constraint is treated as hard.
 pub const HARD_CONFIDENCE: f32 = 0.9;
@@ -295,35 +302,51 @@ impl Resolver<'_, '_> {
                     return None;
                 };
                 let segment = SegmentId(segment);
-                // The smallest accepted hypothesis over the pixel (of the named class when given), else the
-                // smallest hypothesis, else the segment's coarse region.
-                let over: Vec<usize> = (0..view.hypotheses.len())
-                    .filter(|&h| view.hypotheses[h].members.binary_search(&segment).is_ok())
-                    .collect();
-                let pick = |only_accepted: bool| {
-                    over.iter()
-                        .copied()
-                        .filter(|&h| {
-                            !only_accepted || view.accepted.get(h).copied().unwrap_or(false)
-                        })
-                        .min_by_key(|&h| (view.hypotheses[h].members.len(), h))
-                };
                 let _ = class;
-                match pick(true).or_else(|| pick(false)) {
-                    Some(h) => Some(self.target_of(vec![h])),
-                    None => {
-                        let region = view.scene.coarse.region_of.get(segment.index()).copied();
-                        let mut segments = region
-                            .and_then(|r| view.scene.coarse.members.get(r.index()).cloned())
-                            .unwrap_or_else(|| vec![segment]);
-                        segments.sort();
-                        Some(Target {
-                            segments,
-                            hypotheses: Vec::new(),
-                        })
-                    }
-                }
+                Some(self.pointed_target(segment))
             }
+        }
+    }
+
+    /// What a pointed segment means: the smallest accepted hypothesis over it (else the smallest hypothesis)
+    /// when that object is not a structure class and not much larger than the region the pointer reaches by
+    /// colour and depth (`pointer`); otherwise that region. A point on a wall or a floor, or on an object the
+    /// robot ran together with its surroundings, so never stands for the whole of it.
+    fn pointed_target(&mut self, segment: SegmentId) -> Target {
+        let view = self.view;
+        let over: Vec<usize> = (0..view.hypotheses.len())
+            .filter(|&h| view.hypotheses[h].members.binary_search(&segment).is_ok())
+            .collect();
+        let pick = |only_accepted: bool| {
+            over.iter()
+                .copied()
+                .filter(|&h| !only_accepted || view.accepted.get(h).copied().unwrap_or(false))
+                .min_by_key(|&h| (view.hypotheses[h].members.len(), h))
+        };
+        let area = |members: &[SegmentId]| -> u64 {
+            members
+                .iter()
+                .filter_map(|s| view.scene.stats.get(s.index()))
+                .map(|stats| u64::from(stats.area))
+                .sum()
+        };
+        let pixels = u64::from(view.scene.width()) * u64::from(view.scene.height());
+        let reached = pointer::pointed_region(view.scene, segment, pixels / POINTER_MAX_SHARE);
+        let reached_area = area(&reached);
+        if let Some(h) = pick(true).or_else(|| pick(false)) {
+            let hypothesis = &view.hypotheses[h];
+            let structure = view
+                .taxonomy
+                .class(hypothesis.class)
+                .is_some_and(|info| info.group == ClassGroup::Structure);
+            if !structure && area(&hypothesis.members) <= POINTER_OBJECT_SLACK * reached_area.max(1)
+            {
+                return self.target_of(vec![h]);
+            }
+        }
+        Target {
+            segments: reached,
+            hypotheses: Vec::new(),
         }
     }
 

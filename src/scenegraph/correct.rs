@@ -6,6 +6,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::capped::{surplus_factors, Cap};
 use super::changes::{
     list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
 };
@@ -240,8 +241,37 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             .collect();
     }
 
-    let built = build_energy(&energy_inputs(request, &hypotheses, &accepted, &in_force))?;
+    let mut built = build_energy(&energy_inputs(request, &hypotheses, &accepted, &in_force))?;
     let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
+    let counted = counted_classes(&in_force);
+    let caps = capped_classes(&in_force);
+    if !caps.is_empty() {
+        // A count below what the labels show: parts are joined when the graph is formed; what is still too
+        // many loses its label and the scene is solved again around it (`super::capped`).
+        let graph = build_scene_graph(
+            scene,
+            taxonomy,
+            &built.hypotheses,
+            &solution.state,
+            SolvedFigures {
+                energy: solution.energy,
+                lower_bound: solution.lower_bound,
+                relative_gap: solution.relative_gap,
+                counted: &counted,
+                capped: &caps,
+            },
+            request.instance_cuts,
+        );
+        let surplus = surplus_factors(scene, &graph, &caps);
+        if !surplus.is_empty() {
+            built.energy.unary_factors.extend(surplus);
+            let start = WarmStart {
+                state: solution.state.clone(),
+                multipliers: None,
+            };
+            solution = solve_joint(&built.energy, Some(&start), request.options)?;
+        }
+    }
     let mut changes = list_changes(
         &built.energy,
         taxonomy,
@@ -371,7 +401,6 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         }
     }
     unmet.sort_by_key(|u| u.constraint);
-    let counted = counted_classes(&in_force);
     let graph = build_scene_graph(
         scene,
         taxonomy,
@@ -382,6 +411,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             lower_bound: solution.lower_bound,
             relative_gap: solution.relative_gap,
             counted: &counted,
+            capped: &caps,
         },
         request.instance_cuts,
     );
@@ -510,6 +540,31 @@ fn baseline(
         multipliers: Some(solution.multipliers.clone()),
     };
     Ok((solution.state, built.hypotheses, Some(warm)))
+}
+
+/// The classes a count in force caps (exactly or at most `k`, `k >= 1`), the latest statement about a class
+/// winning: where the scene graph joins parts and the correction takes surplus objects away.
+pub fn capped_classes(in_force: &[GroundedConstraint]) -> Vec<Cap> {
+    let mut caps: Vec<Cap> = Vec::new();
+    for grounded in in_force.iter().rev() {
+        if let GroundedKind::Count { class, count } = grounded.kind {
+            if caps.iter().any(|cap| cap.class == class) {
+                continue;
+            }
+            // Only the latest statement about the class counts, capped or not.
+            caps.push(Cap {
+                class,
+                most: match count {
+                    Count::Exactly(k) | Count::AtMost(k) => k,
+                    Count::AtLeast(_) => u32::MAX,
+                },
+                source: grounded.constraint,
+            });
+        }
+    }
+    caps.retain(|cap| cap.most >= 1 && cap.most != u32::MAX);
+    caps.reverse();
+    caps
 }
 
 /// The classes a count in force asks at least some number of objects of (exactly or at least `k`), the latest

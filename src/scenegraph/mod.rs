@@ -6,6 +6,7 @@
 //! runs grounding, energy, solver and this stage in order.
 //! Must not: search for solutions or read words; it describes a state the solver returned.
 
+pub mod capped;
 pub mod changes;
 pub mod correct;
 pub mod instance_statistics;
@@ -212,6 +213,8 @@ pub struct SolvedFigures<'a> {
     /// Classes named by a count constraint in force, with the least number of objects it asks for (see
     /// `objects` for how merged objects of such a class are split).
     pub counted: &'a [(ClassId, u32)],
+    /// Classes with an upper bound in force (see `capped` for how their parts are joined).
+    pub capped: &'a [capped::Cap],
 }
 
 /// Builds the scene graph of a solved state.
@@ -226,38 +229,39 @@ pub fn build_scene_graph(
     let fine = scene.segment_count();
     let labels = &state.labels[..fine.min(state.labels.len())];
     let mut used = std::collections::BTreeSet::new();
-    let mut objects: Vec<SceneObject> = form_objects(
+    let objects = form_objects(
         scene,
         labels,
         hypotheses,
         &state.hypotheses_on,
         figures.counted,
         cuts,
-    )
-    .into_iter()
-    .map(|formed| {
-        let footprint = footprint_of(scene, &formed.members);
-        // Ids are unique even in the (hash-collision) case of two objects naming the same id.
-        let mut id = object_id(formed.hypothesis);
-        while !used.insert(id) {
-            id = ObjectId(id.0.wrapping_add(1));
-        }
-        SceneObject {
-            id,
-            hypothesis: formed.hypothesis,
-            class: formed.class,
-            class_name: taxonomy.class_name(formed.class).to_string(),
-            score: formed
-                .hypothesis_index
-                .and_then(|index| hypotheses.get(index))
-                .map(|hypothesis| hypothesis.score)
-                .unwrap_or(0.0),
-            bbox: footprint.bbox,
-            mask: RunLengthMask::from_segments(scene, &formed.members),
-            members: formed.members,
-        }
-    })
-    .collect();
+    );
+    let mut objects: Vec<SceneObject> = capped::merge_parts(scene, objects, figures.capped)
+        .into_iter()
+        .map(|formed| {
+            let footprint = footprint_of(scene, &formed.members);
+            // Ids are unique even in the (hash-collision) case of two objects naming the same id.
+            let mut id = object_id(formed.hypothesis);
+            while !used.insert(id) {
+                id = ObjectId(id.0.wrapping_add(1));
+            }
+            SceneObject {
+                id,
+                hypothesis: formed.hypothesis,
+                class: formed.class,
+                class_name: taxonomy.class_name(formed.class).to_string(),
+                score: formed
+                    .hypothesis_index
+                    .and_then(|index| hypotheses.get(index))
+                    .map(|hypothesis| hypothesis.score)
+                    .unwrap_or(0.0),
+                bbox: footprint.bbox,
+                mask: RunLengthMask::from_segments(scene, &formed.members),
+                members: formed.members,
+            }
+        })
+        .collect();
     objects.sort_by_key(|object| object.id);
     let footprints: Vec<_> = objects
         .iter()

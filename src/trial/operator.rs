@@ -458,7 +458,7 @@ fn relation_of(
 
 /// The pixel of `pixels` (one object's, row-major ascending) farthest from the object's edge (city-block
 /// distance) among those `eligible`; its (x, y).
-fn deepest_pixel(
+pub fn deepest_pixel(
     pixels: &[u32],
     width: usize,
     eligible: impl Fn(u32) -> bool,
