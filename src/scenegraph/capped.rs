@@ -12,7 +12,9 @@
 //! formed, the `k` largest objects (in pixels) are kept as anchors. Every other object of the class, largest
 //! first, joins the anchor whose bounding box lies nearest to its own when the gap between the boxes is at
 //! most half the square root of the anchor's area (a bed parted by a blanket lying across it, a chair's back
-//! seen apart from its seat; a reach relative to the anchor's size is our own choice). What is left beyond
+//! seen apart from its seat; a reach relative to the anchor's size is our own choice), or at any distance when
+//! the band between the two boxes is nearer the camera than both (one object seen in two parts around an
+//! occluder: a desk behind a chair). What is left beyond
 //! `k` is surplus: a false instance or a fragment far from every kept object, whose segments then carry a hard
 //! factor against the class, so the solver gives them the best other label.
 
@@ -30,6 +32,60 @@ pub struct Cap {
     pub most: u32,
     pub source: usize,
 }
+
+/// Area-weighted mean depth (mm) of some segments, when they have readings.
+fn mean_depth(scene: &Scene, members: &[SegmentId]) -> Option<f64> {
+    let (mut sum, mut weight) = (0.0f64, 0.0f64);
+    for member in members {
+        if let Some(stats) = scene.stats.get(member.index()) {
+            if let Some(depth) = stats.mean_depth_mm.filter(|d| d.is_finite() && *d > 0.0) {
+                sum += f64::from(depth) * f64::from(stats.area);
+                weight += f64::from(stats.area);
+            }
+        }
+    }
+    (weight > 0.0).then(|| sum / weight)
+}
+
+/// Whether the gap between two boxes side by side (or one above the other) is covered by something nearer
+/// the camera than both: one object seen in two parts around an occluder (a desk behind a chair). The gap is
+/// the band between the boxes over the rows (or columns) they share; "nearer" means a mean depth below
+/// `OCCLUDER_SHARE` of the nearer part's.
+fn occluded_between(scene: &Scene, a: &BoundingBox, b: &BoundingBox, depths: (f64, f64)) -> bool {
+    let Some(depth) = scene.depth.as_deref() else {
+        return false;
+    };
+    let (rows, columns) = ((a.y0.max(b.y0), a.y1.min(b.y1)), (a.x0.max(b.x0), a.x1.min(b.x1)));
+    let band = if rows.0 < rows.1 {
+        // Side by side: the columns between them.
+        let (left, right) = if a.x1 <= b.x0 { (a.x1, b.x0) } else { (b.x1, a.x0) };
+        (left, rows.0, right, rows.1)
+    } else if columns.0 < columns.1 {
+        let (top, bottom) = if a.y1 <= b.y0 { (a.y1, b.y0) } else { (b.y1, a.y0) };
+        (columns.0, top, columns.1, bottom)
+    } else {
+        return false;
+    };
+    let (x0, y0, x1, y1) = band;
+    if x0 >= x1 || y0 >= y1 {
+        return false;
+    }
+    let (mut sum, mut count) = (0.0f64, 0u64);
+    for y in y0..y1.min(depth.height) {
+        for x in x0..x1.min(depth.width) {
+            let value = depth.millimetres[y as usize * depth.width as usize + x as usize];
+            if value > 0 {
+                sum += f64::from(value);
+                count += 1;
+            }
+        }
+    }
+    count > 0 && sum / (count as f64) < OCCLUDER_SHARE * depths.0.min(depths.1)
+}
+
+/// A gap counts as covered by an occluder when its mean depth is below this share of the nearer part's (our
+/// own choice: 5% nearer).
+const OCCLUDER_SHARE: f64 = 0.95;
 
 fn extent(scene: &Scene, members: &[SegmentId]) -> Option<(BoundingBox, u64)> {
     let mut bounds: Option<BoundingBox> = None;
@@ -87,10 +143,21 @@ pub fn merge_parts(
                 continue;
             };
             let reach = 0.5 * (anchors[a].2 as f64).sqrt();
-            if f64::from(distance) > reach {
+            let anchor_index = anchors[a].0;
+            let near = f64::from(distance) <= reach;
+            let occluded = || {
+                let depths = (
+                    mean_depth(scene, &objects[anchor_index].members),
+                    mean_depth(scene, &objects[index].members),
+                );
+                match depths {
+                    (Some(d0), Some(d1)) => occluded_between(scene, &anchors[a].1, &bounds, (d0, d1)),
+                    _ => false,
+                }
+            };
+            if !near && !occluded() {
                 continue;
             }
-            let anchor_index = anchors[a].0;
             let members = std::mem::take(&mut objects[index].members);
             let anchor = &mut objects[anchor_index];
             anchor.members.extend(members);

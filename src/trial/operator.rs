@@ -36,6 +36,10 @@ pub const SECTIONS: [&str; 11] = [
 /// own choice, about a 20x20 patch).
 pub const MIN_VISIBLE: u64 = 400;
 
+/// The smallest shown object (pixels) the operator notices when counting what the robot shows (our own
+/// choice: half of `MIN_VISIBLE`).
+pub const MIN_NOTICED: u64 = MIN_VISIBLE / 2;
+
 /// A relation the operator states between a missed object and one the robot shows.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
 pub enum FactRelation {
