@@ -26,6 +26,8 @@ use serde::Serialize;
 
 use crate::demo::DemoScene;
 use crate::ids::{ClassId, SegmentId};
+use crate::language::constraint::Focus;
+use crate::pipeline::PointedNote;
 use crate::render::SceneObject;
 use crate::scene::Scene;
 use crate::scenegraph::SceneGraph;
@@ -66,6 +68,39 @@ pub fn read_notes(scene_directory: &Path) -> Result<Vec<String>, EvaluationError
         .filter(|line| !line.is_empty() && !line.starts_with('#'))
         .map(str::to_string)
         .collect())
+}
+
+/// Reads a scene's notes with their pointed pixels: a line `@x,y note` points at pixel (x, y) while saying
+/// the note; any other line is a note with no focus.
+pub fn read_pointed_notes(scene_directory: &Path) -> Result<Vec<PointedNote>, EvaluationError> {
+    let path = scene_directory.join(NOTES_FILE);
+    read_notes(scene_directory)?
+        .into_iter()
+        .map(|line| {
+            let Some(rest) = line.strip_prefix('@') else {
+                return Ok(PointedNote {
+                    text: line,
+                    focus: None,
+                });
+            };
+            let (at, text) = rest.split_once(char::is_whitespace).unwrap_or((rest, ""));
+            let pixel = at.split_once(',').and_then(|(x, y)| {
+                Some((x.trim().parse::<u32>().ok()?, y.trim().parse::<u32>().ok()?))
+            });
+            match pixel {
+                Some((x, y)) if !text.trim().is_empty() => Ok(PointedNote {
+                    text: text.trim().to_string(),
+                    focus: Some(Focus::Pixel { x, y }),
+                }),
+                _ => Err(EvaluationError::Notes {
+                    path: path.display().to_string(),
+                    message: format!(
+                        "\"{line}\": a pointed note is written \"@x,y what was said\""
+                    ),
+                }),
+            }
+        })
+        .collect()
 }
 
 /// 4-neighbour connected regions of equal label; returns the region of every pixel and each region's label.

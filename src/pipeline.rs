@@ -23,6 +23,7 @@ use crate::language::{Conversation, Grammar};
 use crate::scene::{Scene, SceneError, SceneParams};
 use crate::scenegraph::changes::{Change, ChangeKind, ChangeStatus, Unmet};
 use crate::scenegraph::correct::{correct, Correction, CorrectionError, CorrectionRequest};
+use crate::scenegraph::differences::{difference_class, object_differences, ObjectDifference};
 use crate::scenegraph::instances::{InstanceCuts, InstanceCutsError};
 use crate::solver::joint::JointOptions;
 use crate::taxonomy::Taxonomy;
@@ -189,6 +190,8 @@ pub struct TurnReport {
     /// Disagreements with earlier notes the conversation found.
     pub conflicts: Vec<String>,
     pub changes: Vec<Change>,
+    /// The scene graph's objects joined, split, added and removed by this note.
+    pub objects: Vec<ObjectDifference>,
     pub unmet: Vec<Unmet>,
     pub questions: Vec<ClarifyingQuestion>,
     pub issues: Vec<GroundingIssue>,
@@ -274,6 +277,9 @@ pub fn correct_notes(
 ) -> Result<CorrectionReport, PipelineError> {
     let taxonomy: &Taxonomy = settings.grammar.taxonomy();
     let mut conversation = Conversation::new(taxonomy.clone())?;
+    // What the robot believes before anyone speaks: the first note's "before", so its summary names what the
+    // note itself changed.
+    let baseline = believe_without_notes(&prepared, settings)?;
     let mut previous: Option<Correction> = None;
     let mut after_each = Vec::new();
     let mut turns = Vec::new();
@@ -288,13 +294,14 @@ pub fn correct_notes(
             }
         };
         let turn = conversation.add(&parse);
+        let before = previous.as_ref().unwrap_or(&baseline);
         let correction = correct_turn(
             &TurnInputs {
                 scene: &prepared.scene,
                 unaries: &prepared.unaries,
                 detections: &[],
             },
-            previous.as_ref(),
+            Some(before),
             &parse.constraints,
             focus,
             confirm_safety,
@@ -322,6 +329,7 @@ pub fn correct_notes(
                 .collect(),
             conflicts: turn.conflicts.iter().map(|c| c.message.clone()).collect(),
             changes: correction.changes.clone(),
+            objects: object_differences(&before.graph, &correction.graph),
             unmet: correction.unmet.clone(),
             questions: correction
                 .questions
@@ -428,6 +436,7 @@ fn failed_turn(utterance: &str, error: &LanguageError) -> TurnReport {
         understood: Vec::new(),
         conflicts: Vec::new(),
         changes: Vec::new(),
+        objects: Vec::new(),
         unmet: Vec::new(),
         questions: Vec::new(),
         issues: Vec::new(),
@@ -462,6 +471,49 @@ fn quoted_span(utterance: &str, span: Span) -> String {
 }
 
 /// Counts of relabelled segments per (from, to) class pair, largest first.
+/// One line per class whose objects a note joined, split, added or removed, e.g. "bed: 2 joined into 1".
+pub fn object_summary(differences: &[ObjectDifference], taxonomy: &Taxonomy) -> Vec<String> {
+    let mut classes: Vec<ClassId> = differences.iter().map(difference_class).collect();
+    classes.sort();
+    classes.dedup();
+    classes
+        .into_iter()
+        .map(|class| {
+            let mut parts = Vec::new();
+            for difference in differences.iter().filter(|d| difference_class(d) == class) {
+                parts.push(match difference {
+                    ObjectDifference::Joined { parts, .. } => {
+                        format!("{} joined into one", parts.len())
+                    }
+                    ObjectDifference::Split { into, .. } => {
+                        format!("one split into {}", into.len())
+                    }
+                    ObjectDifference::Added { .. } => "one added".to_string(),
+                    ObjectDifference::Removed { .. } => "one removed".to_string(),
+                });
+            }
+            let mut counted: Vec<(String, usize)> = Vec::new();
+            for part in parts {
+                match counted.iter_mut().find(|(p, _)| *p == part) {
+                    Some(entry) => entry.1 += 1,
+                    None => counted.push((part, 1)),
+                }
+            }
+            let said: Vec<String> = counted
+                .into_iter()
+                .map(|(part, n)| {
+                    if n == 1 {
+                        part
+                    } else {
+                        format!("{part} (x{n})")
+                    }
+                })
+                .collect();
+            format!("{}: {}", taxonomy.class_name(class), said.join(", "))
+        })
+        .collect()
+}
+
 fn relabel_summary(changes: &[Change], taxonomy: &Taxonomy) -> Vec<String> {
     let mut pairs: Vec<(ClassId, ClassId, ChangeStatus, usize, String)> = Vec::new();
     let mut lines = Vec::new();
@@ -544,11 +596,19 @@ pub fn report_text(report: &CorrectionReport, taxonomy: &Taxonomy) -> String {
             text.push_str(&format!("  conflicts with an earlier note: {conflict}\n"));
         }
         let changes = relabel_summary(&turn.changes, taxonomy);
-        if changes.is_empty() {
-            text.push_str("  changed: nothing\n");
+        let objects = object_summary(&turn.objects, taxonomy);
+        if changes.is_empty() && objects.is_empty() {
+            text.push_str(if turn.unmet.is_empty() {
+                "  changed: nothing; the scene already showed this\n"
+            } else {
+                "  changed: nothing\n"
+            });
         }
         for line in changes {
             text.push_str(&format!("  changed: {line}\n"));
+        }
+        for line in objects {
+            text.push_str(&format!("  objects: {line}\n"));
         }
         for unmet in &turn.unmet {
             text.push_str(&format!(

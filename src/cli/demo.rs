@@ -10,10 +10,11 @@ use std::path::PathBuf;
 
 use anyhow::Context;
 use sayso::demo::{demo_directory, load_demo_scene, summarise, summary_text, BeliefSource};
-use sayso::evaluation::read_notes;
+use sayso::evaluation::read_pointed_notes;
 use sayso::overlay::{draw_overlay, Labelling, OverlayOptions, RegionMap};
 use sayso::pipeline::{
-    correct_prepared, load_classifier, model_path, prepare_loaded, CorrectionSettings,
+    correct_notes, load_classifier, model_path, object_summary, prepare_loaded, CorrectionSettings,
+    PointedNote,
 };
 use sayso::raster::write_rgb_png;
 use sayso::scenegraph::changes::ChangeKind;
@@ -58,11 +59,11 @@ fn run_main_job(args: &DemoArgs) -> anyhow::Result<()> {
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let settings = CorrectionSettings::embedded()?;
     let prepared = prepare_loaded(demo, &classifier)?;
-    let notes: Vec<String> = read_notes(&prepared.demo.directory)?
+    let notes: Vec<PointedNote> = read_pointed_notes(&prepared.demo.directory)?
         .into_iter()
         .take(args.notes)
         .collect();
-    let report = correct_prepared(prepared, &notes, None, false, &settings)?;
+    let report = correct_notes(prepared, &notes, false, &settings)?;
     super::fix::write_outputs(&report, &taxonomy, &args.out)?;
     println!(
         "{}: the built-in classifier's view is in overlay_before.png",
@@ -75,12 +76,22 @@ fn run_main_job(args: &DemoArgs) -> anyhow::Result<()> {
             .filter(|c| matches!(c.kind, ChangeKind::SegmentRelabelled { .. }))
             .count();
         let glosses: Vec<&str> = turn.understood.iter().map(|u| u.gloss.as_str()).collect();
+        let objects = object_summary(&turn.objects, &taxonomy);
         println!(
-            "said {:?}: understood [{}]; {} change(s), {} segment(s) relabelled",
+            "said {:?}: understood [{}]; {} segment(s) relabelled{}{}",
             turn.utterance,
             glosses.join("; "),
-            turn.changes.len(),
-            relabelled
+            relabelled,
+            if objects.is_empty() {
+                String::new()
+            } else {
+                format!("; objects: {}", objects.join("; "))
+            },
+            if turn.unmet.is_empty() {
+                String::new()
+            } else {
+                format!("; {} unmet", turn.unmet.len())
+            }
         );
     }
     println!("wrote {}", args.out.display());

@@ -1,17 +1,12 @@
-//! `sayso score`: the main job measured. For every demo scene, apply its scripted notes in order and print
-//! pixel accuracy, mean IoU and object-level accuracy before any note and after each note, then the mean
-//! gains.
+//! `sayso score`: the demo scenes' scripted notes measured. For every demo scene, print pixel accuracy, mean
+//! IoU and object-level accuracy for the classifier alone, for the joint solve with no note (step 0), and
+//! after each note; the headline is the notes' own effect, the last note against step 0. The no-note solve's
+//! gain over the classifier is printed on its own line, never counted as the notes' gain.
 //!
-//! Columns: `pixel` and `mIoU` score the per-pixel labels: on step 0 the built-in classifier's best class
-//! per segment, after a note the corrected segment labels. `obj:graph` is object-level accuracy over the
-//! scene graph's objects (accepted hypotheses with their final members): on step 0 the graph of the joint
-//! solve with no note (what the robot believes before anyone speaks), after a note the corrected graph.
-//! `obj:region` is the same measure over 4-connected regions of the step's label map (adjacent objects of
-//! one class merge). See `sayso::evaluation` for the matching rule.
-//!
-//! The mean gains compare the last note's row with step 0. For objects a second comparison is printed:
-//! the corrected graph's objects against the classifier alone, whose only objects are its label map's
-//! regions (step 0's `obj:region`).
+//! `obj:graph` is object-level accuracy over the scene graph's objects (accepted hypotheses with their final
+//! members); `obj:region` the same measure over 4-connected regions of the label map (adjacent objects of one
+//! class merge). The classifier alone proposes no objects, so both its object columns are its regions. See
+//! `sayso::evaluation` for the matching rule. A note line starting `@x,y` points at that pixel.
 //!
 //! Owns: the flags and the table layout. Must not: compute scores or run stages itself; that is
 //! `sayso::evaluation` and `sayso::pipeline`.
@@ -19,10 +14,11 @@
 use std::path::PathBuf;
 
 use sayso::demo::{demo_directory, list_demo_scenes};
-use sayso::evaluation::{object_accuracy, objects_from_graph, read_notes, score_labels};
+use sayso::evaluation::{object_accuracy, objects_from_graph, read_pointed_notes, score_labels};
+use sayso::language::constraint::Focus;
 use sayso::pipeline::{
-    believe_without_notes, correct_prepared, load_classifier, model_path, prepare_scene,
-    CorrectionSettings, SceneSource,
+    believe_without_notes, correct_notes, load_classifier, model_path, prepare_scene,
+    CorrectionSettings, PointedNote, SceneSource,
 };
 use sayso::scenegraph::label_map;
 use sayso::taxonomy::Taxonomy;
@@ -84,18 +80,21 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
     } else {
         args.scene.clone()
     };
-    println!("step 0: pixel/mIoU of the classifier alone; obj:graph of the scene graph solved with no note;");
-    println!("        obj:region of 4-connected regions of the classifier's label map.");
-    println!("step n: every column from the corrected scene after note n (obj:graph = the corrected graph's");
-    println!("        objects, obj:region = regions of the corrected label map). Object match: right class, IoU >= 0.5.");
+    println!("classifier: the built-in classifier alone (obj:graph = obj:region: it proposes no objects).");
     println!(
-        "{:<28} {:<4} {:>6} {:>6} {:>9} {:>10}   note",
+        "step 0: the joint solve with no note (what the robot believes before anyone speaks)."
+    );
+    println!("step n: the corrected scene after note n. obj:graph = the scene graph's objects, obj:region =");
+    println!(
+        "        4-connected regions of the label map. Object match: right class, IoU >= 0.5."
+    );
+    println!("The headline is the notes' own effect: the last note's row against step 0.");
+    println!(
+        "{:<28} {:<10} {:>6} {:>6} {:>9} {:>10}   note",
         "scene", "step", "pixel", "mIoU", "obj:graph", "obj:region"
     );
     let mut gains = Vec::new();
-    // The scene graph's objects after the notes against the classifier alone, whose objects are its label
-    // map's regions (it proposes no objects of its own).
-    let mut over_classifier = Vec::new();
+    let mut solve_gains = Vec::new();
     let mut worse = Vec::new();
     let mut worse_region = Vec::new();
     for name in &names {
@@ -104,41 +103,56 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
             name: Some(name.clone()),
         };
         let prepared = prepare_scene(&source, &classifier)?;
-        let notes: Vec<String> = read_notes(&prepared.demo.directory)?
+        let notes: Vec<PointedNote> = read_pointed_notes(&prepared.demo.directory)?
             .into_iter()
             .take(args.notes)
             .collect();
-        let before_map = label_map(&prepared.scene, &prepared.classifier_labels);
+        let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels);
         let demo = prepared.demo.clone();
         let scene = prepared.scene.clone();
         let baseline = believe_without_notes(&prepared, &settings)?;
-        let classifier_score = score_labels(&demo, &before_map.values, taxonomy.class_count())?;
-        let before = Row {
+        let row_of = |graph: &sayso::scenegraph::SceneGraph| -> anyhow::Result<Row> {
+            let labels = label_map(&scene, &graph.segment_labels);
+            let score = score_labels(&demo, &labels.values, taxonomy.class_count())?;
+            Ok(Row {
+                pixel: score.pixel_accuracy,
+                mean_iou: score.mean_iou,
+                object_graph: object_accuracy(&demo, &objects_from_graph(&scene, graph)),
+                object_region: score.object_accuracy,
+            })
+        };
+        let classifier_score = score_labels(&demo, &classifier_map.values, taxonomy.class_count())?;
+        let alone = Row {
             pixel: classifier_score.pixel_accuracy,
             mean_iou: classifier_score.mean_iou,
-            object_graph: object_accuracy(&demo, &objects_from_graph(&scene, &baseline.graph)),
+            object_graph: classifier_score.object_accuracy,
             object_region: classifier_score.object_accuracy,
         };
-        println!("{name:<28} {:<4} {}   (no note)", "0", before.cells());
-        let report = correct_prepared(prepared, &notes, None, false, &settings)?;
+        println!("{name:<28} {:<10} {}", "classifier", alone.cells());
+        let before = row_of(&baseline.graph)?;
+        println!("{:<28} {:<10} {}   (no note)", "", "0", before.cells());
+        let report = correct_notes(prepared, &notes, false, &settings)?;
         let mut last = before;
         for (index, (after, note)) in report.after_each.iter().zip(&notes).enumerate() {
             let graph = match after {
                 Some(correction) => &correction.graph,
                 None => &baseline.graph,
             };
-            let labels = label_map(&scene, &graph.segment_labels);
-            let score = score_labels(&demo, &labels.values, taxonomy.class_count())?;
-            last = Row {
-                pixel: score.pixel_accuracy,
-                mean_iou: score.mean_iou,
-                object_graph: object_accuracy(&demo, &objects_from_graph(&scene, graph)),
-                object_region: score.object_accuracy,
+            last = row_of(graph)?;
+            let pointed = match note.focus {
+                Some(Focus::Pixel { x, y }) => format!(" @{x},{y}"),
+                _ => String::new(),
             };
-            println!("{:<28} {:<4} {}   {note}", "", index + 1, last.cells());
+            println!(
+                "{:<28} {:<10} {}   {}{pointed}",
+                "",
+                index + 1,
+                last.cells(),
+                note.text
+            );
         }
         let gain = last.minus(&before);
-        over_classifier.push(last.object_graph - before.object_region);
+        solve_gains.push(before.minus(&alone));
         if gain.pixel < 0.0 || gain.mean_iou < 0.0 || gain.object_graph < 0.0 {
             worse.push(name.clone());
         }
@@ -148,31 +162,27 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
         gains.push(gain);
     }
     let count = gains.len().max(1) as f64;
-    let mean = |pick: fn(&Row) -> f64| 100.0 * gains.iter().map(pick).sum::<f64>() / count;
+    let mean =
+        |rows: &[Row], pick: fn(&Row) -> f64| 100.0 * rows.iter().map(pick).sum::<f64>() / count;
     println!(
-        "mean gain over {} scenes: pixel {:+.1}, mIoU {:+.1}, object (graph) {:+.1}, object (region) {:+.1} points",
+        "the notes' effect over {} scenes (after the notes against the no-note solve): pixel {:+.1}, mIoU {:+.1}, object (graph) {:+.1}, object (region) {:+.1} points",
         gains.len(),
-        mean(|g| g.pixel),
-        mean(|g| g.mean_iou),
-        mean(|g| g.object_graph),
-        mean(|g| g.object_region)
+        mean(&gains, |g| g.pixel),
+        mean(&gains, |g| g.mean_iou),
+        mean(&gains, |g| g.object_graph),
+        mean(&gains, |g| g.object_region)
     );
-    let classifier_gain = 100.0 * over_classifier.iter().sum::<f64>() / count;
-    let below: Vec<&String> = names
-        .iter()
-        .zip(&over_classifier)
-        .filter(|(_, &gain)| gain < 0.0)
-        .map(|(name, _)| name)
-        .collect();
     println!(
-        "object (graph) after the notes against the classifier alone (its label map's regions): {classifier_gain:+.1} points; below it in {} scene(s)",
-        below.len()
+        "separately, the no-note solve against the classifier alone: pixel {:+.1}, mIoU {:+.1}, object (graph vs the classifier's regions) {:+.1} points",
+        mean(&solve_gains, |g| g.pixel),
+        mean(&solve_gains, |g| g.mean_iou),
+        mean(&solve_gains, |g| g.object_graph)
     );
     if worse.is_empty() {
-        println!("no scene got worse on pixel, mIoU or object (graph)");
+        println!("no scene got worse than its no-note solve on pixel, mIoU or object (graph)");
     } else {
         println!(
-            "worse on pixel, mIoU or object (graph): {}",
+            "worse than the no-note solve on pixel, mIoU or object (graph): {}",
             worse.join(", ")
         );
     }

@@ -9,6 +9,7 @@
 pub mod capped;
 pub mod changes;
 pub mod correct;
+pub mod differences;
 pub mod instance_statistics;
 pub mod instances;
 pub mod objects;
