@@ -20,6 +20,9 @@ use sayso::unaries::Unaries;
 
 const CELL: u32 = 32;
 
+/// A cell's colour and scores from its layout character, given a class lookup by name.
+type Legend = dyn Fn(char, &dyn Fn(&str) -> u16) -> Cell;
+
 struct Room {
     taxonomy: Taxonomy,
     scene: Scene,
@@ -29,7 +32,7 @@ struct Room {
 
 /// A room from a character layout: each character is one cell, `legend` gives its colour and scores. Every
 /// cell is its own coarse region.
-fn room(layout: &[&str], legend: &dyn Fn(char, &dyn Fn(&str) -> u16) -> Cell) -> Room {
+fn room(layout: &[&str], legend: &Legend) -> Room {
     let taxonomy = Taxonomy::embedded();
     let class = |name: &str| taxonomy.class_by_name(name).unwrap().id.0;
     let columns = layout[0].len() as u32;
