@@ -679,11 +679,29 @@ pub fn ground(
                 } else {
                     None
                 };
-                resolved.map(|target| GroundedKind::Relabel {
-                    target,
-                    from: *from,
-                    to: *to,
-                })
+                match (resolved, *to) {
+                    // A relabel far larger than the new class's usual size asks first.
+                    (Some(target), Some(to)) if too_large_for(view, &target, to) => {
+                        resolver.questions.push(ClarifyingQuestion {
+                            constraint: index,
+                            text: format!(
+                                "That would make {} of the picture a {}, far more than one usually covers. \
+                                 Point at the middle of the {} and say it again.",
+                                share_words(view, &target),
+                                view.taxonomy.class_name(to),
+                                view.taxonomy.class_name(to)
+                            ),
+                            candidates: Vec::new(),
+                            descriptions: Vec::new(),
+                        });
+                        None
+                    }
+                    (resolved, _) => resolved.map(|target| GroundedKind::Relabel {
+                        target,
+                        from: *from,
+                        to: *to,
+                    }),
+                }
             }
             ConstraintKind::Attribute { target, attribute } => resolver
                 .resolve(target, Need::One)
@@ -717,6 +735,45 @@ pub fn ground(
     }
     grounding.last_referent = previous;
     grounding
+}
+
+/// The most of the image (1/n) one object of a group usually covers, for the "much larger than usual" check
+/// of a relabel: small objects a thirtieth, furniture and appliances a sixth, structure and living things no
+/// limit. A rule of thumb of our own, not counted from renders.
+fn usual_share(group: ClassGroup) -> Option<u64> {
+    match group {
+        ClassGroup::Object => Some(30),
+        ClassGroup::Furniture | ClassGroup::Appliance => Some(6),
+        ClassGroup::Structure | ClassGroup::Living => None,
+    }
+}
+
+/// How many times its usual share a relabel may cover before it asks first.
+const RELABEL_ASK_FACTOR: u64 = 3;
+
+fn target_area(view: &SceneView, target: &Target) -> u64 {
+    target
+        .segments
+        .iter()
+        .filter_map(|s| view.scene.stats.get(s.index()))
+        .map(|stats| u64::from(stats.area))
+        .sum()
+}
+
+/// Whether relabelling `target` as `class` covers far more than one object of the class usually does.
+fn too_large_for(view: &SceneView, target: &Target, class: ClassId) -> bool {
+    let Some(share) = view.taxonomy.class(class).and_then(|info| usual_share(info.group)) else {
+        return false;
+    };
+    let pixels = u64::from(view.scene.width()) * u64::from(view.scene.height());
+    target_area(view, target) * share > RELABEL_ASK_FACTOR * pixels
+}
+
+/// The share of the picture a target covers, as a percentage.
+fn share_words(view: &SceneView, target: &Target) -> String {
+    let pixels = (u64::from(view.scene.width()) * u64::from(view.scene.height())).max(1);
+    let percent = 100 * target_area(view, target) / pixels;
+    format!("{percent}%")
 }
 
 fn room_kind(resolver: &mut Resolver, room: RoomId) -> Option<GroundedKind> {
