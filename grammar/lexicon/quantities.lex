@@ -11,6 +11,8 @@ a dozen -> quantity exactly 12
 half a dozen -> quantity exactly 6
 dozen -> quantity exactly 12
 both -> quantity exactly 2
+a single -> quantity exactly 1
+the same -> quantity exactly 1
 several -> quantity at_least 3
 a few -> quantity at_least 2
 a lot of -> quantity at_least 3
@@ -20,6 +22,7 @@ some -> quantity some
 any -> quantity some
 no -> no
 none of the -> quantity none
+none -> quantity none
 at least -> comparator at_least
 no fewer than -> comparator at_least
 no less than -> comparator at_least

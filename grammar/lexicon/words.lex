@@ -33,6 +33,10 @@ doesn't = does not
 can't = cannot
 i'm = i am
 im = i am
+didn't = did not
+didnt = did not
+one's = one is
+w = with
 r = are
 u = you
 ur = you are
@@ -61,8 +65,14 @@ belongs -> be
 goes -> be
 looks like -> be
 seems to be -> be
+appears -> be
+appear -> be
+shows up -> be
+show up -> be
+should be -> be
 
 there -> there
+present -> there
 here -> skip
 
 # Negation and the word "no" (quantity, negation or repair cue, decided from context).
@@ -73,6 +83,8 @@ cannot -> negation
 # Deictics.
 that -> deictic demonstrative
 this -> deictic demonstrative
+that there -> deictic demonstrative
+this here -> deictic demonstrative
 those -> deictic demonstrative plural
 these -> deictic demonstrative plural
 it -> deictic pronoun
@@ -83,9 +95,29 @@ them -> deictic pronoun plural
 thing -> thing
 things -> thing plural
 object -> thing
+objects -> thing plural
 stuff -> thing
-room -> thing
 area -> thing
+piece -> thing
+pieces -> thing plural
+part -> thing
+parts -> thing plural
+bits -> thing plural
+fragments -> thing plural
+
+# Words for the whole view: never a landmark ("there's no cat in this room"), a room type's holder
+# ("the scene is in the kitchen").
+room -> scene
+room type -> scene
+scene -> scene
+picture -> scene
+image -> scene
+photo -> scene
+view -> scene
+frame -> scene
+shot -> scene
+screen -> scene
+space -> scene
 
 # Determiners that add nothing.
 the -> determiner
@@ -108,6 +140,81 @@ call -> called
 missed -> missed
 forgot -> missed
 missing -> missed
+add -> missed
+did not pick up -> missed
+did not see -> missed
+did not spot -> missed
+did not catch -> missed
+did not find -> missed
+did not notice -> missed
+did not label -> missed
+did not get -> missed
+did not detect -> missed
+
+# Having, seeing, removing, counting, relabelling, pointing.
+has -> have
+have -> have
+had -> have
+has got -> have
+contains -> have
+holds -> have
+see -> see
+can see -> see
+i count -> see
+i can count -> see
+i spot -> see
+i notice -> see
+i found -> see
+i spotted -> see
+i noticed -> see
+remove -> remove
+delete -> remove
+erase -> remove
+get rid of -> remove
+hallucinated -> remove
+imagined -> remove
+invented -> remove
+made up -> remove
+the number of -> count
+number of -> count
+count -> count
+the count of -> count
+count of -> count
+change -> change
+relabel -> change
+label -> change
+rename -> change
+mark -> change
+make -> change
+switch -> change
+set -> change
+i am pointing at -> pointing
+i am pointing to -> pointing
+i am pointing -> pointing
+i point at -> pointing
+i pointed at -> pointing
+i am looking at -> pointing
+i am clicking on -> pointing
+i clicked on -> pointing
+i clicked -> pointing
+i selected -> pointing
+i have selected -> pointing
+i am selecting -> pointing
+i highlighted -> pointing
+i am highlighting -> pointing
+i am touching -> pointing
+i am indicating -> pointing
+under my cursor -> pointing
+under the cursor -> pointing
+with -> with
+to -> as
+as -> as
+as well -> skip
+in the wrong place -> skip
+in the wrong spot -> skip
+somewhere else -> skip
+elsewhere -> skip
+
 and -> and
 but -> and
 plus -> and
@@ -150,6 +257,17 @@ within -> relation inside
 into -> relation inside
 between -> relation between
 in between -> relation between
+alongside -> relation next_to
+close by -> relation next_to
+around -> relation next_to
+at the side of -> relation next_to
+to the side of -> relation next_to
+by the side of -> relation next_to
+supported by -> relation on
+side by side -> reciprocal next_to
+next to each other -> reciprocal next_to
+beside each other -> reciprocal next_to
+next to one another -> reciprocal next_to
 
 # Image regions (camera's point of view).
 on the left -> region left
@@ -245,6 +363,17 @@ anyway -> filler
 basically -> filler
 actually -> filler
 really -> filler
+definitely -> filler
+certainly -> filler
+clearly -> filler
+obviously -> filler
+surely -> filler
+honestly -> filler
+fyi -> filler
+please -> filler
+no doubt -> filler
+there is no doubt -> filler
+from where -> filler
 i think -> filler
 i guess -> filler
 i believe -> filler
@@ -255,13 +384,12 @@ hey -> greeting
 # Words that carry nothing for a correction.
 i -> skip
 me -> skip
-see -> skip
-can see -> skip
+does -> skip
+do -> skip
+did -> skip
 now -> skip
 too -> skip
-as -> skip
 of -> skip
-to -> skip
 very -> skip
 quite -> skip
 robot -> skip
@@ -280,8 +408,32 @@ perfect -> skip
 yes -> skip
 yeah -> skip
 then -> skip
-with -> skip
 from -> skip
+anywhere -> skip
+somewhere -> skip
+directly -> skip
+immediately -> skip
+down -> skip
+located -> skip
+standing -> skip
+sitting -> skip
+lying -> skip
+resting -> skip
+placed -> skip
+too many -> skip
+too few -> skip
+once -> skip
+all -> skip
+in here -> skip
+in there -> skip
+right here -> skip
+over here -> skip
+in total -> skip
+altogether -> skip
+part of -> skip
+parts of -> skip
+pieces of -> skip
+bits of -> skip
 off -> skip
 up -> skip
 
@@ -290,7 +442,6 @@ can you -> request
 could you -> request
 would you -> request
 will you -> request
-please -> request
 bring -> request
 fetch -> request
 go -> request

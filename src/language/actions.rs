@@ -1,13 +1,14 @@
 //! Actions: turning a matched rule's chunks into typed constraints, and binding deictic words.
 //!
-//! Owns: what each action builds (existence and counts, relabels, relations, places, attributes, room type),
-//! how a noun phrase becomes a `Referent`, and which deictic words point at the focus or at the previous
-//! referent.
+//! Owns: what each action builds (existence and counts, relabels, relations, places, attributes, room type,
+//! "has" clauses, counts stated apart from their noun), how a noun phrase becomes a `Referent`, which deictic
+//! words point at the focus or at the previous referent, and what the utterance itself mentioned: the last
+//! class named (for "there are three of them") and a noun phrase no rule used (for a later "it").
 //! Must not: look at scene content or the conversation history; the conversation binds "previous" later.
 
 use crate::ids::ClassId;
 
-use super::chunks::{Chunk, ChunkKind, NounPhrase, Quantity};
+use super::chunks::{AttachedRelation, Chunk, ChunkKind, NounPhrase, Quantity};
 use super::constraint::{
     Constraint, ConstraintKind, Count, Deixis, Place, Referent, RelationClause, Span,
 };
@@ -23,6 +24,11 @@ pub struct Builder {
     has_focus: bool,
     /// A referent has already been named in this utterance.
     seen_referent: bool,
+    /// The class of the last noun phrase named in this utterance, used or not.
+    last_class: Option<ClassId>,
+    /// The last noun phrase with a class that no rule used ("you have the mug somewhere else"): a later "it"
+    /// in the same utterance means it, since the conversation never saw it as a referent.
+    unused_antecedent: Option<NounPhrase>,
     pub constraints: Vec<Constraint>,
 }
 
@@ -31,7 +37,19 @@ impl Builder {
         Builder {
             has_focus,
             seen_referent: false,
+            last_class: None,
+            unused_antecedent: None,
             constraints: Vec::new(),
+        }
+    }
+
+    /// Notes a chunk the parser passed over: `used` when a rule consumed it.
+    pub fn mention(&mut self, chunk: &Chunk, used: bool) {
+        if let ChunkKind::NounPhrase(phrase) = &chunk.kind {
+            if let Some(class) = phrase.class {
+                self.last_class = Some(class);
+                self.unused_antecedent = (!used).then(|| phrase.clone());
+            }
         }
     }
 
@@ -47,7 +65,25 @@ impl Builder {
 
     /// Turns a noun phrase into a referent (dropping its quantity) and notes that a referent was named.
     fn referent(&mut self, phrase: &NounPhrase) -> Referent {
-        let deixis = phrase.deictic.map(|word| self.deixis_for(word.pronoun));
+        let mut deixis = phrase.deictic.map(|word| self.deixis_for(word.pronoun));
+        let mut class = phrase.class;
+        let mut plural = phrase.plural;
+        let mut attributes = phrase.attributes.clone();
+        // "You have the mug somewhere else, it's on the table": with nothing pointed at, a pronoun means the
+        // noun phrase the utterance named and no rule used.
+        if let (Some(word), None, false, Some(antecedent)) = (
+            phrase.deictic,
+            phrase.class,
+            self.has_focus,
+            &self.unused_antecedent,
+        ) {
+            if word.pronoun {
+                deixis = None;
+                class = antecedent.class;
+                plural = antecedent.plural;
+                attributes.extend(antecedent.attributes.iter().copied());
+            }
+        }
         let relations = phrase
             .relations
             .iter()
@@ -63,10 +99,10 @@ impl Builder {
             .collect();
         self.seen_referent = true;
         Referent {
-            class: phrase.class,
+            class,
             deixis,
-            plural: phrase.plural,
-            attributes: phrase.attributes.clone(),
+            plural,
+            attributes,
             relations,
             region: phrase.region,
             span: phrase.span,
@@ -185,6 +221,10 @@ impl Builder {
                 }
             }
             Action::RoomType => {
+                // "Not the bedroom" says what the room is not, which no constraint states.
+                if negated {
+                    return;
+                }
                 if let Some(&index) = found.role("room").first() {
                     if let ChunkKind::Room(room) = chunks[index].kind {
                         self.push(ConstraintKind::RoomType { room }, span, misspelled);
@@ -200,7 +240,9 @@ impl Builder {
                         .role("relation")
                         .first()
                         .and_then(|&index| match chunks[index].kind {
-                            ChunkKind::Relation(relation) => Some(relation),
+                            ChunkKind::Relation(relation) | ChunkKind::Reciprocal(relation) => {
+                                Some(relation)
+                            }
                             _ => None,
                         });
                 let Some(relation) = relation else { return };
@@ -248,6 +290,28 @@ impl Builder {
                 let subject = self.referent(&subject);
                 self.push(ConstraintKind::Place { subject, place }, span, misspelled);
             }
+            Action::Have => {
+                let Some(np) = first_phrase("np") else {
+                    return;
+                };
+                let owner = first_phrase("owner");
+                self.have(owner.as_ref(), &np, negated, span, misspelled);
+            }
+            Action::Count => {
+                let number =
+                    found
+                        .role("number")
+                        .first()
+                        .and_then(|&index| match chunks[index].kind {
+                            ChunkKind::Number { quantity, bare } => Some((quantity, bare)),
+                            _ => None,
+                        });
+                if let Some((quantity, bare)) = number {
+                    let np = first_phrase("np");
+                    let quantity = if negated { Quantity::None } else { quantity };
+                    self.count(np.as_ref(), quantity, bare, span, misspelled);
+                }
+            }
             Action::Attribute => {
                 let Some(subject) = first_phrase("subject") else {
                     return;
@@ -276,6 +340,58 @@ impl Builder {
         }
     }
 
+    /// "The table has a mug on it", "the room has no cat": a relation to "it" is a relation to the owner,
+    /// and to the whole view it is no relation at all.
+    fn have(
+        &mut self,
+        owner: Option<&NounPhrase>,
+        np: &NounPhrase,
+        negated: bool,
+        span: Span,
+        misspelled: bool,
+    ) {
+        let points_back = |attached: &AttachedRelation| {
+            attached.landmarks.iter().all(|landmark| {
+                landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
+            })
+        };
+        let mut np = np.clone();
+        match owner {
+            Some(owner) => {
+                let mut landmark = owner.clone();
+                landmark.quantity = None;
+                for attached in np.relations.iter_mut().filter(|a| points_back(a)) {
+                    attached.landmarks = vec![landmark.clone()];
+                }
+            }
+            None => np.relations.retain(|attached| !points_back(attached)),
+        }
+        self.exist(&np, negated, span, misspelled);
+    }
+
+    /// "Mugs: two", "the number of mugs is two", "there are exactly two" (of the class named last).
+    fn count(
+        &mut self,
+        np: Option<&NounPhrase>,
+        quantity: Quantity,
+        bare: bool,
+        span: Span,
+        misspelled: bool,
+    ) {
+        let Some(class) = np.and_then(|phrase| phrase.class).or(self.last_class) else {
+            return;
+        };
+        // "Add a mug, there's one in this room": a bare "one" with no noun is the pronoun, not a count.
+        let quantity = if np.is_none() && bare && quantity == Quantity::Exactly(1) {
+            Quantity::Some
+        } else {
+            quantity
+        };
+        if let Some(kind) = count_kind(class, quantity, false) {
+            self.push(kind, span, misspelled);
+        }
+    }
+
     /// "Both chairs are by the table": a stated number on a subject is also a count.
     fn count_of_subject(&mut self, subject: &NounPhrase, span: Span, misspelled: bool) {
         if let (Some(class), Some(quantity)) = (subject.class, subject.quantity) {
@@ -289,6 +405,22 @@ impl Builder {
 
     /// "There are two chairs next to the table", "no cats", "there's a mug on the counter".
     fn exist(&mut self, np: &NounPhrase, negated: bool, span: Span, misspelled: bool) {
+        // "It's one object", "there are three of them": a stated number with no class counts the class the
+        // utterance named last.
+        let counted = matches!(
+            np.quantity,
+            Some(Quantity::Exactly(_) | Quantity::AtLeast(_) | Quantity::AtMost(_))
+        );
+        let elliptical;
+        let np = if np.class.is_none() && counted && self.last_class.is_some() {
+            let mut filled = np.clone();
+            filled.class = self.last_class;
+            filled.deictic = None;
+            elliptical = filled;
+            &elliptical
+        } else {
+            np
+        };
         if np.deictic.is_some() {
             return;
         }

@@ -66,13 +66,28 @@ pub enum ChunkKind {
     Side(Side),
     Region(ImageRegion),
     Room(RoomId),
+    /// A phrase naming the whole view ("the scene", "this room").
+    Scene,
+    /// A relation stated of two things at once ("side by side").
+    Reciprocal(Relation),
     Attributes(Vec<Attribute>),
-    /// A number with no noun after it.
-    Number(u32),
+    /// A number or quantity word with no noun after it ("exactly two", "none"); `bare` for a number word
+    /// alone, with no comparator ("there's one").
+    Number {
+        quantity: Quantity,
+        bare: bool,
+    },
     We,
     You,
     Called,
     Missed,
+    Have,
+    See,
+    Remove,
+    Count,
+    Change,
+    Pointing,
+    As,
     And,
     Separator,
     Repair,
@@ -121,6 +136,8 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
     let mut determiner = false;
     let mut misspelled = false;
     let mut lead_number = None;
+    let mut number_compared = false;
+    let mut quantity_word = false;
     match lexicon_tag(items.get(index))? {
         Tag::Determiner => {
             determiner = true;
@@ -138,6 +155,7 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
                 QuantityWord::Some => Quantity::Some,
                 QuantityWord::None => Quantity::None,
             });
+            quantity_word = true;
             index += 1;
         }
         Tag::No => {
@@ -148,6 +166,7 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
             if let Some(Tag::Number(number)) = lexicon_tag(items.get(index + 1)) {
                 quantity = Some(apply_comparator(comparator, number));
                 lead_number = Some(number);
+                number_compared = true;
                 index += 2;
             } else {
                 return None;
@@ -172,6 +191,20 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
                     kind: ChunkKind::Room(room),
                     span,
                     misspelled: item.misspelled,
+                },
+                index + 1 - start,
+            ));
+        }
+    }
+    // The whole view after a determiner or deictic: "the scene", "this room".
+    if let Some(Tag::Scene) = lexicon_tag(items.get(index)) {
+        if quantity.is_none() {
+            let span = items[start].span.cover(items[index].span);
+            return Some((
+                Chunk {
+                    kind: ChunkKind::Scene,
+                    span,
+                    misspelled: items[index].misspelled,
                 },
                 index + 1 - start,
             ));
@@ -204,8 +237,23 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
             has_head = true;
             index += 1;
         }
-        Some(Tag::Number(1)) if deictic.is_some() && attributes.is_empty() => {
-            // "that one", "this one".
+        Some(Tag::Number(1))
+            if attributes.is_empty()
+                && (deictic.is_some() || (quantity.is_some() && lead_number.is_none())) =>
+        {
+            // "that one", "this one", "a single one".
+            has_head = true;
+            index += 1;
+        }
+        Some(Tag::Deictic {
+            pronoun,
+            plural: true,
+        }) if lead_number.is_some() && attributes.is_empty() => {
+            // "two of them", "three of those".
+            deictic = Some(DeicticWord {
+                pronoun,
+                plural: true,
+            });
             has_head = true;
             index += 1;
         }
@@ -232,11 +280,15 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
                 1,
             ));
         }
-        if let (Some(number), true) = (lead_number, attributes.is_empty() && !determiner) {
+        let stated = lead_number.is_some() || quantity_word;
+        if let (Some(quantity), true) = (quantity, stated && attributes.is_empty() && !determiner) {
             let span = items[start].span.cover(items[index - 1].span);
             return Some((
                 Chunk {
-                    kind: ChunkKind::Number(number),
+                    kind: ChunkKind::Number {
+                        quantity,
+                        bare: lead_number.is_some() && !number_compared,
+                    },
                     span,
                     misspelled: false,
                 },
@@ -291,14 +343,26 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Side(side) => ChunkKind::Side(side),
                 Tag::Region(region) => ChunkKind::Region(region),
                 Tag::Room(room) => ChunkKind::Room(room),
+                Tag::Scene => ChunkKind::Scene,
+                Tag::Reciprocal(relation) => ChunkKind::Reciprocal(relation),
                 Tag::Colour(_) | Tag::Size(_) => {
                     ChunkKind::Attributes(attribute_of(tag).into_iter().collect())
                 }
-                Tag::Number(number) => ChunkKind::Number(number),
+                Tag::Number(number) => ChunkKind::Number {
+                    quantity: Quantity::Exactly(number),
+                    bare: true,
+                },
                 Tag::We => ChunkKind::We,
                 Tag::You => ChunkKind::You,
                 Tag::Called => ChunkKind::Called,
                 Tag::Missed => ChunkKind::Missed,
+                Tag::Have => ChunkKind::Have,
+                Tag::See => ChunkKind::See,
+                Tag::Remove => ChunkKind::Remove,
+                Tag::Count => ChunkKind::Count,
+                Tag::Change => ChunkKind::Change,
+                Tag::Pointing => ChunkKind::Pointing,
+                Tag::As => ChunkKind::As,
                 Tag::And => ChunkKind::And,
                 Tag::Repair => ChunkKind::Repair,
                 Tag::Request | Tag::Question | Tag::Thanks | Tag::Greeting => ChunkKind::Separator,
@@ -327,7 +391,7 @@ enum RepairKind {
 
 fn repair_kind(kind: &ChunkKind) -> Option<RepairKind> {
     match kind {
-        ChunkKind::NounPhrase(_) | ChunkKind::Number(_) => Some(RepairKind::Noun),
+        ChunkKind::NounPhrase(_) | ChunkKind::Number { .. } => Some(RepairKind::Noun),
         ChunkKind::Relation(_) | ChunkKind::Side(_) => Some(RepairKind::Relation),
         ChunkKind::Attributes(_) => Some(RepairKind::Attribute),
         ChunkKind::Room(_) => Some(RepairKind::Room),

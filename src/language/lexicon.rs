@@ -71,6 +71,10 @@ pub enum Tag {
     Thing {
         plural: bool,
     },
+    /// A word for the whole view ("scene", "picture", "room"): never a landmark.
+    Scene,
+    /// A relation stated of two things at once ("side by side").
+    Reciprocal(Relation),
     Determiner,
     Be,
     There,
@@ -79,6 +83,22 @@ pub enum Tag {
     You,
     Called,
     Missed,
+    /// "has", "contains": the owner has the thing (on it, in it).
+    Have,
+    /// "I see", "I count": the operator reports what is there.
+    See,
+    /// "remove", "get rid of", "you hallucinated": the thing is not there.
+    Remove,
+    /// "the number of", "count": names a count.
+    Count,
+    /// "change", "label": an order to relabel the thing that follows.
+    Change,
+    /// "I'm pointing at", "I selected": makes the phrase before it point at the operator's focus.
+    Pointing,
+    /// "to", "as": between a thing and its new name ("change this to a mug", "label it as a towel").
+    As,
+    /// "with", "w/": a modifier of the phrase before it, dropped up to the next verb or pause.
+    With,
     And,
     Repair,
     Filler,

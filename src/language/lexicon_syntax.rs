@@ -190,6 +190,10 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
             no_more(3)?;
             Tag::Deictic { pronoun, plural }
         }
+        "reciprocal" => {
+            no_more(2)?;
+            Tag::Reciprocal(parse_relation(need_value()?)?)
+        }
         "thing" => {
             let plural = match value {
                 None => false,
@@ -212,6 +216,15 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 "you" => Tag::You,
                 "called" => Tag::Called,
                 "missed" => Tag::Missed,
+                "scene" => Tag::Scene,
+                "have" => Tag::Have,
+                "see" => Tag::See,
+                "remove" => Tag::Remove,
+                "count" => Tag::Count,
+                "change" => Tag::Change,
+                "pointing" => Tag::Pointing,
+                "with" => Tag::With,
+                "as" => Tag::As,
                 "and" => Tag::And,
                 "repair" => Tag::Repair,
                 "filler" => Tag::Filler,

@@ -16,6 +16,7 @@
 
 mod actions;
 pub mod allen;
+mod asides;
 mod chunks;
 pub mod constraint;
 pub mod conversation;

@@ -3,8 +3,8 @@
 //!
 //! Owns: `Grammar` (taxonomy, lexicon and rules, from the embedded defaults or a directory with a site
 //! word directory), the length limit, sentence classification (correction, request, question, thanks,
-//! chit-chat, empty, unparsed), and running the stages normalise -> tokens -> tagging -> chunks -> rules ->
-//! actions in order.
+//! chit-chat, empty, unparsed), and running the stages normalise -> tokens -> tagging -> asides -> chunks ->
+//! rules -> actions in order.
 //! Must not: remember earlier utterances (that is `conversation`) or touch scene content.
 
 use std::path::Path;
@@ -14,6 +14,7 @@ use serde::{Deserialize, Serialize};
 use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
+use super::asides::{drop_asides, resolve_pointing};
 use super::chunks::{attach, chunk, repair, ChunkKind};
 use super::constraint::{Constraint, ConstraintKind, Focus, Span};
 use super::error::{GrammarError, LanguageError};
@@ -284,7 +285,8 @@ impl Grammar {
             .text
             .chars()
             .any(|c| !c.is_whitespace() && !",.;:!?'\"-".contains(c));
-        for sentence in sentences {
+        for mut sentence in sentences {
+            sentence.items = resolve_pointing(sentence.items);
             let words = sentence
                 .items
                 .iter()
@@ -304,7 +306,7 @@ impl Grammar {
                 }
                 other_kinds.push(kind);
             }
-            let items = clean(sentence.items, &mut ignored_raw);
+            let items = drop_asides(clean(sentence.items, &mut ignored_raw), &mut ignored_raw);
             let chunks = attach(repair(chunk(&items), &mut ignored_raw));
             let mut position = 0;
             while position < chunks.len() {
@@ -315,10 +317,14 @@ impl Grammar {
                 match best_match(&self.rules, &chunks, position) {
                     Some(found) => {
                         builder.apply(&found, &chunks, position);
+                        for chunk in &chunks[position..position + found.length] {
+                            builder.mention(chunk, true);
+                        }
                         position += found.length;
                     }
                     None => {
                         ignored_raw.push((chunks[position].span, IgnoredReason::NoRuleMatched));
+                        builder.mention(&chunks[position], false);
                         position += 1;
                     }
                 }

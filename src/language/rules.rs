@@ -20,11 +20,21 @@ pub enum Symbol {
     Relation,
     Region,
     Room,
+    Scene,
+    Reciprocal,
+    Number,
     Attributes,
     We,
     You,
     Called,
     Missed,
+    Have,
+    See,
+    Remove,
+    Count,
+    Change,
+    Pointing,
+    As,
     And,
     Separator,
 }
@@ -36,6 +46,10 @@ pub enum Filter {
     Quantified,
     /// A noun phrase headed or determined by a deictic word.
     Deictic,
+    /// A noun phrase with a stated number ("two", "exactly one", "a single"), not "no" or "some".
+    Counted,
+    /// A noun phrase with a relation phrase attached ("mug left of cabinet").
+    Related,
     /// A relation phrase of one relation.
     Relation(Relation),
 }
@@ -65,6 +79,8 @@ pub enum Action {
     Relation,
     Place,
     Attribute,
+    Have,
+    Count,
 }
 
 impl Action {
@@ -77,6 +93,8 @@ impl Action {
             "relation" => Action::Relation,
             "place" => Action::Place,
             "attribute" => Action::Attribute,
+            "have" => Action::Have,
+            "count" => Action::Count,
             _ => return None,
         })
     }
@@ -87,10 +105,12 @@ impl Action {
             Action::Exist => (&["np"], &["negated"]),
             Action::Relabel => (&[], &["target", "from", "to"]),
             Action::RelabelCalled => (&["target", "from"], &[]),
-            Action::RoomType => (&["room"], &[]),
+            Action::RoomType => (&["room"], &["negated"]),
             Action::Relation => (&["subject", "relation", "landmark"], &["negated"]),
             Action::Place => (&["subject"], &["room", "region"]),
             Action::Attribute => (&["subject", "attributes"], &[]),
+            Action::Have => (&["owner", "np"], &["negated"]),
+            Action::Count => (&["number"], &["np", "negated"]),
         }
     }
 }
@@ -238,11 +258,21 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "REL" => Symbol::Relation,
             "REGION" => Symbol::Region,
             "ROOM" => Symbol::Room,
+            "SCENE" => Symbol::Scene,
+            "RECIPROCAL" => Symbol::Reciprocal,
+            "NUMBER" => Symbol::Number,
             "ATTRIBUTES" => Symbol::Attributes,
             "WE" => Symbol::We,
             "YOU" => Symbol::You,
             "CALLED" => Symbol::Called,
             "MISSED" => Symbol::Missed,
+            "HAVE" => Symbol::Have,
+            "SEE" => Symbol::See,
+            "REMOVE" => Symbol::Remove,
+            "COUNT" => Symbol::Count,
+            "CHANGE" => Symbol::Change,
+            "POINTING" => Symbol::Pointing,
+            "AS" => Symbol::As,
             "AND" => Symbol::And,
             "SEP" => Symbol::Separator,
             other => return Err(format!("unknown symbol '{other}'")),
@@ -251,7 +281,11 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             (_, None) => None,
             (Symbol::NounPhrase, Some("quantified")) => Some(Filter::Quantified),
             (Symbol::NounPhrase, Some("deictic")) => Some(Filter::Deictic),
-            (Symbol::Relation, Some(name)) => Some(Filter::Relation(parse_relation(name)?)),
+            (Symbol::NounPhrase, Some("counted")) => Some(Filter::Counted),
+            (Symbol::NounPhrase, Some("related")) => Some(Filter::Related),
+            (Symbol::Relation | Symbol::Reciprocal, Some(name)) => {
+                Some(Filter::Relation(parse_relation(name)?))
+            }
             (_, Some(name)) => {
                 return Err(format!("symbol '{symbol_name}' has no filter '{name}'"))
             }
@@ -271,9 +305,15 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
             None => true,
             Some(Filter::Quantified) => !matches!(phrase.quantity, None | Some(Quantity::Some)),
             Some(Filter::Deictic) => phrase.deictic.is_some(),
+            Some(Filter::Counted) => matches!(
+                phrase.quantity,
+                Some(Quantity::Exactly(_) | Quantity::AtLeast(_) | Quantity::AtMost(_))
+            ),
+            Some(Filter::Related) => !phrase.relations.is_empty(),
             Some(Filter::Relation(_)) => false,
         },
-        (Symbol::Relation, ChunkKind::Relation(relation)) => match alternative.filter {
+        (Symbol::Relation, ChunkKind::Relation(relation))
+        | (Symbol::Reciprocal, ChunkKind::Reciprocal(relation)) => match alternative.filter {
             Some(Filter::Relation(wanted)) => *relation == wanted,
             _ => true,
         },
@@ -282,11 +322,20 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
         | (Symbol::There, ChunkKind::There)
         | (Symbol::Region, ChunkKind::Region(_))
         | (Symbol::Room, ChunkKind::Room(_))
+        | (Symbol::Scene, ChunkKind::Scene)
+        | (Symbol::Number, ChunkKind::Number { .. })
         | (Symbol::Attributes, ChunkKind::Attributes(_))
         | (Symbol::We, ChunkKind::We)
         | (Symbol::You, ChunkKind::You)
         | (Symbol::Called, ChunkKind::Called)
         | (Symbol::Missed, ChunkKind::Missed)
+        | (Symbol::Have, ChunkKind::Have)
+        | (Symbol::See, ChunkKind::See)
+        | (Symbol::Remove, ChunkKind::Remove)
+        | (Symbol::Count, ChunkKind::Count)
+        | (Symbol::Change, ChunkKind::Change)
+        | (Symbol::Pointing, ChunkKind::Pointing)
+        | (Symbol::As, ChunkKind::As)
         | (Symbol::And, ChunkKind::And)
         | (Symbol::Separator, ChunkKind::Separator) => true,
         _ => false,

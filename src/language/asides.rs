@@ -1,0 +1,164 @@
+//! Asides: phrases that name no referent of their own, settled on the tagged items before chunking.
+//!
+//! Owns: pointing phrases ("the thing I'm pointing at", "what I'm looking at" become a demonstrative, so they
+//! point at the operator's focus), locatives that name the whole view ("in this room", "in the picture",
+//! "in this one": dropped, never a landmark), "with" modifiers ("the mug w/ the box around it": dropped up to
+//! the next verb or pause) and intensifiers directly before a relation ("right next to", "just left of").
+//! Must not: decide what a clause means; it only re-tags or drops items, recording what it dropped.
+
+use super::constraint::{Relation, Span};
+use super::lexicon::{Side, Tag};
+use super::parse::IgnoredReason;
+use super::tagging::{Item, ItemTag};
+
+fn tag_of(item: Option<&Item>) -> Option<Tag> {
+    match item?.tag {
+        ItemTag::Lexicon(tag) => Some(tag),
+        _ => None,
+    }
+}
+
+const DEMONSTRATIVE: Tag = Tag::Deictic {
+    pronoun: false,
+    plural: false,
+};
+
+/// Turns "the thing I'm pointing at" into "that thing" and "what I'm looking at" into "that". A pointing
+/// phrase after no noun is kept (a rule reads "I'm pointing at a mug"). Runs before the sentence is
+/// classified, so "what I'm looking at is a mug" is not taken for a question.
+pub fn resolve_pointing(items: Vec<Item>) -> Vec<Item> {
+    let mut out: Vec<Item> = Vec::with_capacity(items.len());
+    for item in items {
+        if item.tag != ItemTag::Lexicon(Tag::Pointing) {
+            out.push(item);
+            continue;
+        }
+        match tag_of(out.last()) {
+            Some(Tag::Question) => {
+                let previous = out.last_mut().expect("a previous item");
+                previous.tag = ItemTag::Lexicon(DEMONSTRATIVE);
+                previous.span = previous.span.cover(item.span);
+            }
+            Some(Tag::Class { plural, .. } | Tag::Thing { plural }) => {
+                point_at_head(&mut out, item.span, plural)
+            }
+            Some(Tag::Number(1)) => point_at_head(&mut out, item.span, false),
+            _ => out.push(item),
+        }
+    }
+    out
+}
+
+/// Makes the noun phrase ending in the last item deictic: its determiner or article becomes a
+/// demonstrative, or one is put before it.
+fn point_at_head(items: &mut Vec<Item>, pointing: Span, plural: bool) {
+    let head = items.len() - 1;
+    items[head].span = items[head].span.cover(pointing);
+    let mut start = head;
+    while start > 0
+        && matches!(
+            tag_of(items.get(start - 1)),
+            Some(Tag::Colour(_) | Tag::Size(_))
+        )
+    {
+        start -= 1;
+    }
+    let deictic = Tag::Deictic {
+        pronoun: false,
+        plural,
+    };
+    match tag_of(start.checked_sub(1).and_then(|index| items.get(index))) {
+        Some(Tag::Determiner | Tag::Article) => items[start - 1].tag = ItemTag::Lexicon(deictic),
+        Some(Tag::Deictic { .. }) => {}
+        _ => {
+            let span = items[start].span;
+            items.insert(
+                start,
+                Item {
+                    tag: ItemTag::Lexicon(deictic),
+                    span: Span::new(span.start, span.start),
+                    text: "that".to_string(),
+                    misspelled: false,
+                },
+            );
+        }
+    }
+}
+
+/// How many items a locative starting at `index` covers: "in" or "on" with the whole view ("in the
+/// picture", "in this room", "on screen"), or "in this one".
+fn locative_length(items: &[Item], index: usize) -> Option<usize> {
+    let Some(Tag::Relation(Relation::Inside | Relation::On)) = tag_of(items.get(index)) else {
+        return None;
+    };
+    let lead = matches!(
+        tag_of(items.get(index + 1)),
+        Some(Tag::Determiner | Tag::Article | Tag::Deictic { pronoun: false, .. })
+    );
+    let head = index + 1 + usize::from(lead);
+    match tag_of(items.get(head)) {
+        Some(Tag::Scene) => Some(head + 1 - index),
+        Some(Tag::Number(1))
+            if lead && matches!(tag_of(items.get(index + 1)), Some(Tag::Deictic { .. })) =>
+        {
+            Some(head + 1 - index)
+        }
+        _ => None,
+    }
+}
+
+/// Whether an item ends a "with" modifier: a pause, a verb, or a word that starts a new clause.
+fn ends_modifier(item: &Item) -> bool {
+    match item.tag {
+        ItemTag::Pause => true,
+        ItemTag::Lexicon(tag) => matches!(
+            tag,
+            Tag::Be
+                | Tag::There
+                | Tag::And
+                | Tag::Repair
+                | Tag::Have
+                | Tag::See
+                | Tag::Remove
+                | Tag::Missed
+                | Tag::Called
+                | Tag::Change
+        ),
+        _ => false,
+    }
+}
+
+/// Drops locatives, "with" modifiers and intensifiers before a relation, recording each as ignored.
+pub fn drop_asides(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Item> {
+    let mut kept: Vec<Item> = Vec::with_capacity(items.len());
+    let mut index = 0;
+    while index < items.len() {
+        let dropped = if let Some(length) = locative_length(&items, index) {
+            length
+        } else if items[index].tag == ItemTag::Lexicon(Tag::With) {
+            1 + items[index + 1..]
+                .iter()
+                .take_while(|item| !ends_modifier(item))
+                .count()
+        } else {
+            let intensifier = matches!(
+                tag_of(items.get(index)),
+                Some(Tag::Side(Side::Right) | Tag::Comparator(_))
+            );
+            let before_relation = matches!(
+                tag_of(items.get(index + 1)),
+                Some(Tag::Relation(_) | Tag::Region(_))
+            );
+            usize::from(intensifier && before_relation)
+        };
+        if dropped == 0 {
+            kept.push(items[index].clone());
+            index += 1;
+            continue;
+        }
+        let span = items[index].span.cover(items[index + dropped - 1].span);
+        ignored.push((span, IgnoredReason::FunctionWord));
+        index += dropped;
+    }
+    kept
+}
