@@ -762,7 +762,11 @@ fn target_area(view: &SceneView, target: &Target) -> u64 {
 
 /// Whether relabelling `target` as `class` covers far more than one object of the class usually does.
 fn too_large_for(view: &SceneView, target: &Target, class: ClassId) -> bool {
-    let Some(share) = view.taxonomy.class(class).and_then(|info| usual_share(info.group)) else {
+    let Some(share) = view
+        .taxonomy
+        .class(class)
+        .and_then(|info| usual_share(info.group))
+    else {
         return false;
     };
     let pixels = u64::from(view.scene.width()) * u64::from(view.scene.height());

@@ -15,7 +15,8 @@
 //! seen apart from its seat; a reach relative to the anchor's size is our own choice), or at any distance when
 //! the band between the two boxes is nearer the camera than both (one object seen in two parts around an
 //! occluder: a desk behind a chair). What is left beyond
-//! `k` is surplus; a surplus object no larger than a quarter of the smallest kept one is a fragment, whose
+//! `k` is surplus; a surplus object no larger than a quarter of the smallest kept one and under
+//! `MIN_PARTED_AREA` pixels is a fragment, whose
 //! segments then carry a hard factor against the class, so the solver gives them the best other label. A
 //! surplus object of a credible size stays and the count is reported unmet.
 
@@ -202,8 +203,9 @@ const MIN_PARTED_AREA: u64 = 1500;
 const FRAGMENT_SHARE: u64 = 4;
 
 /// Hard factors against the class on the members of the objects of a capped class beyond its cap that are
-/// fragments: at most 1/`FRAGMENT_SHARE` of the smallest object the cap keeps (the graph is formed after
-/// `merge_parts`). Surplus objects of a credible size stay, and the count is reported unmet: which of them is
+/// fragments: at most 1/`FRAGMENT_SHARE` of the smallest object the cap keeps and under `MIN_PARTED_AREA`
+/// pixels (the graph is formed after `merge_parts`; on trial renders a larger "fragment" of a rug was the part
+/// of the rug seen past the table, and taking it away cost 8000 right pixels). Surplus objects of a credible size stay, and the count is reported unmet: which of them is
 /// the false one is the operator's to point at.
 pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<UnaryFactor> {
     let mut factors = Vec::new();
@@ -223,7 +225,7 @@ pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<U
         of_class.sort_by_key(|entry| std::cmp::Reverse(entry.0));
         let smallest_kept = of_class[cap.most as usize - 1].0;
         for (area, members) in &of_class[cap.most as usize..] {
-            if FRAGMENT_SHARE * area > smallest_kept {
+            if FRAGMENT_SHARE * area > smallest_kept || *area >= MIN_PARTED_AREA {
                 continue;
             }
             factors.push(UnaryFactor {

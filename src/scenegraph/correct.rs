@@ -11,6 +11,7 @@ use super::changes::{
     list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
 };
 use super::instances::InstanceCuts;
+use super::locality::{stray_factors, Concern};
 use super::supersede::retire_superseded;
 use super::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
@@ -272,6 +273,44 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             solution = solve_joint(&built.energy, Some(&start), request.options)?;
         }
     }
+    // Put back what moved between labels no note concerns (`super::locality`), and solve once more.
+    if let Some(concern) = Concern::of_turn(
+        request.constraints,
+        &in_force,
+        offset,
+        &built.hypotheses,
+        request.unaries.class_count(),
+        scene.segment_count(),
+    ) {
+        let strays = stray_factors(&concern, &before_state.labels, &solution.state.labels);
+        if !strays.is_empty() {
+            built.energy.unary_factors.extend(strays);
+            let start = WarmStart {
+                state: solution.state.clone(),
+                multipliers: None,
+            };
+            solution = solve_joint(&built.energy, Some(&start), request.options)?;
+        }
+    }
+    // A count or presence of this turn the picture still does not show is withdrawn: the turn is solved again
+    // without its factors, so a note that cannot be met moves nothing (it is reported unmet below).
+    let withdrawn = unmet_counts(
+        scene,
+        taxonomy,
+        &built.hypotheses,
+        &solution,
+        &in_force,
+        offset,
+        (&counted, &caps),
+        request.instance_cuts,
+    );
+    if !withdrawn.is_empty() {
+        let gone = |source: Option<usize>| source.is_some_and(|s| withdrawn.contains(&s));
+        built.energy.count_factors.retain(|f| !gone(f.source));
+        built.energy.unary_factors.retain(|f| !gone(f.source));
+        built.energy.tuple_factors.retain(|f| !gone(f.source));
+        solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
+    }
     let mut changes = list_changes(
         &built.energy,
         taxonomy,
@@ -454,6 +493,56 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         grounded: in_force,
         constraint_labels: labels,
     })
+}
+
+/// The counts and presences of this turn (constraint index `first` on) that the scene graph of `solution`
+/// does not show.
+#[allow(clippy::too_many_arguments)]
+fn unmet_counts(
+    scene: &Scene,
+    taxonomy: &Taxonomy,
+    hypotheses: &[Hypothesis],
+    solution: &JointSolution,
+    in_force: &[GroundedConstraint],
+    first: usize,
+    (counted, caps): (&[(ClassId, u32)], &[Cap]),
+    cuts: &InstanceCuts,
+) -> Vec<usize> {
+    let asks: Vec<(usize, ClassId, Count)> = in_force
+        .iter()
+        .filter(|grounded| grounded.constraint >= first)
+        .filter_map(|grounded| match grounded.kind {
+            GroundedKind::Present { class } => {
+                Some((grounded.constraint, class, Count::AtLeast(1)))
+            }
+            GroundedKind::Count { class, count } => Some((grounded.constraint, class, count)),
+            _ => None,
+        })
+        .collect();
+    if asks.is_empty() {
+        return Vec::new();
+    }
+    let graph = build_scene_graph(
+        scene,
+        taxonomy,
+        hypotheses,
+        &solution.state,
+        SolvedFigures {
+            energy: solution.energy,
+            lower_bound: solution.lower_bound,
+            relative_gap: solution.relative_gap,
+            counted,
+            capped: caps,
+        },
+        cuts,
+    );
+    asks.into_iter()
+        .filter(|&(_, class, count)| {
+            let shown = graph.objects.iter().filter(|o| o.class == class).count();
+            count_violation(count, shown as u32) > 0
+        })
+        .map(|(constraint, _, _)| constraint)
+        .collect()
 }
 
 fn energy_inputs<'a>(

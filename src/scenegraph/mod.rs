@@ -12,6 +12,7 @@ pub mod correct;
 pub mod differences;
 pub mod instance_statistics;
 pub mod instances;
+pub mod locality;
 pub mod objects;
 pub mod split;
 pub mod supersede;

@@ -1,0 +1,133 @@
+//! A note never costs what was right: a turn moves only labels its notes concern.
+//!
+//! Owns: `Concern` (the classes and segments the constraints in force are about) and `stray_factors` (hard
+//! factors that put back every fine segment the solve moved between two labels no note concerns).
+//! Must not: solve; `super::correct` adds the factors and solves again.
+//!
+//! # The rule
+//!
+//! A class is concerned when a constraint of the turn names it (presence, absence, count, either end of a
+//! relation, a place's subject, a relabel's old or new class, an attribute's target) or when a hypothesis a
+//! grounded constraint in force resolved to is of that class; a segment is concerned when a grounded target of
+//! the turn covers it. After the solve, a fine segment that moved from an unconcerned label to another
+//! unconcerned label, outside every concerned segment, is a stray: "there are two pillows" has no business
+//! turning a wall patch into floor. Strays are held at their label before the turn by hard factors and the turn
+//! is solved once more. A room type stated in the turn concerns every class (the room changes every class's
+//! prior), so it is left alone.
+
+use crate::energy::{UnaryFactor, HARD_WEIGHT};
+use crate::grounding::{GroundedConstraint, GroundedKind, Target};
+use crate::hypotheses::Hypothesis;
+use crate::language::constraint::{Constraint, ConstraintKind};
+
+/// What the constraints in force are about.
+pub struct Concern {
+    classes: Vec<bool>,
+    segments: Vec<bool>,
+}
+
+fn targets(kind: &GroundedKind) -> Vec<&Target> {
+    match kind {
+        GroundedKind::Relation {
+            subject, landmarks, ..
+        } => std::iter::once(subject).chain(landmarks).collect(),
+        GroundedKind::Region { subject, .. } => vec![subject],
+        GroundedKind::Relabel { target, .. } | GroundedKind::Attribute { target, .. } => {
+            vec![target]
+        }
+        _ => Vec::new(),
+    }
+}
+
+impl Concern {
+    /// The concern of a turn (`constraints`, whose grounded forms are those of `in_force` numbered from
+    /// `first`), or `None` when the turn states a room type.
+    pub fn of_turn(
+        constraints: &[Constraint],
+        in_force: &[GroundedConstraint],
+        first: usize,
+        hypotheses: &[Hypothesis],
+        class_count: usize,
+        segment_count: usize,
+    ) -> Option<Concern> {
+        let mut classes = vec![false; class_count];
+        let mut mark = |class: Option<crate::ids::ClassId>| {
+            if let Some(flag) = class.and_then(|c| classes.get_mut(c.index())) {
+                *flag = true;
+            }
+        };
+        for constraint in constraints {
+            match &constraint.kind {
+                ConstraintKind::RoomType { .. } => return None,
+                ConstraintKind::Place {
+                    place: crate::language::constraint::Place::Room(_),
+                    ..
+                } => return None,
+                ConstraintKind::Present { class }
+                | ConstraintKind::Absent { class }
+                | ConstraintKind::Count { class, .. } => mark(Some(*class)),
+                ConstraintKind::Relation {
+                    subject, landmarks, ..
+                } => {
+                    mark(subject.class);
+                    for landmark in landmarks {
+                        mark(landmark.class);
+                    }
+                }
+                ConstraintKind::Place { subject, .. } => mark(subject.class),
+                ConstraintKind::Relabel { target, from, to } => {
+                    mark(target.class);
+                    mark(*from);
+                    mark(*to);
+                }
+                ConstraintKind::Attribute { target, .. } => mark(target.class),
+            }
+        }
+        let mut segments = vec![false; segment_count];
+        for grounded in in_force {
+            for target in targets(&grounded.kind) {
+                for &h in &target.hypotheses {
+                    mark(hypotheses.get(h).map(|hypothesis| hypothesis.class));
+                }
+                if grounded.constraint >= first {
+                    for segment in &target.segments {
+                        if let Some(flag) = segments.get_mut(segment.index()) {
+                            *flag = true;
+                        }
+                    }
+                }
+            }
+        }
+        Some(Concern { classes, segments })
+    }
+
+    fn class(&self, label: u16) -> bool {
+        self.classes.get(label as usize).copied().unwrap_or(true)
+    }
+}
+
+/// Hard factors holding every stray fine segment (see the module doc) at its label `before`, one factor per
+/// label. Empty when nothing strayed.
+pub fn stray_factors(concern: &Concern, before: &[u16], after: &[u16]) -> Vec<UnaryFactor> {
+    let mut by_label: std::collections::BTreeMap<u16, Vec<u32>> = std::collections::BTreeMap::new();
+    for (segment, (&was, &now)) in before
+        .iter()
+        .zip(after)
+        .enumerate()
+        .take(concern.segments.len())
+    {
+        if was != now && !concern.segments[segment] && !concern.class(was) && !concern.class(now) {
+            by_label.entry(was).or_default().push(segment as u32);
+        }
+    }
+    by_label
+        .into_iter()
+        .map(|(label, segments)| UnaryFactor {
+            segments,
+            label,
+            wanted: true,
+            weight: HARD_WEIGHT,
+            source: None,
+        })
+        .collect()
+}
