@@ -14,7 +14,9 @@
 //! anchor's area, the anchor has at least `MIN_PARTED_AREA` pixels and the gap between the boxes is at most half the square root of the anchor's area (a bed parted by a blanket lying across it, a chair's back
 //! seen apart from its seat; a reach relative to the anchor's size is our own choice), or at any distance when
 //! the band between the two boxes is nearer the camera than both (one object seen in two parts around an
-//! occluder: a desk behind a chair). What is left beyond
+//! occluder: a desk behind a chair). When the operator says there is just one (`k = 1`), every other object
+//! of the class joins the one kept: labels stay as they are, and "those pieces are all the same rug" is met.
+//! What is left beyond
 //! `k` is surplus; a surplus object no larger than a quarter of the smallest kept one and under
 //! `MIN_PARTED_AREA` pixels is a fragment, whose
 //! segments then carry a hard factor against the class, so the solver gives them the best other label. A
@@ -174,7 +176,9 @@ pub fn merge_parts(
                     _ => false,
                 }
             };
-            if !near && !occluded() {
+            // "Just one": every piece of the class the operator sees is part of that one object.
+            let single = cap.most == 1;
+            if !single && !near && !occluded() {
                 continue;
             }
             let members = std::mem::take(&mut objects[index].members);
