@@ -15,7 +15,8 @@
 //! seen apart from its seat; a reach relative to the anchor's size is our own choice), or at any distance when
 //! the band between the two boxes is nearer the camera than both (one object seen in two parts around an
 //! occluder: a desk behind a chair). When the operator says there is just one (`k = 1`), every other object
-//! of the class joins the one kept: labels stay as they are, and "those pieces are all the same rug" is met.
+//! of the class that is not a small far fragment joins the one kept: labels stay as they are, and "those
+//! pieces are all the same rug" is met.
 //! What is left beyond
 //! `k` is surplus; a surplus object no larger than a quarter of the smallest kept one and under
 //! `MIN_PARTED_AREA` pixels is a fragment, whose
@@ -177,7 +178,9 @@ pub fn merge_parts(
                 }
             };
             // "Just one": every piece of the class the operator sees is part of that one object.
-            let single = cap.most == 1;
+            // (Small far fragments are still taken away, see `surplus_factors`.)
+            let fragment = FRAGMENT_SHARE * area <= anchors[a].2 && area < MIN_PARTED_AREA;
+            let single = cap.most == 1 && !fragment;
             if !single && !near && !occluded() {
                 continue;
             }
