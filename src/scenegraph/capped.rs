@@ -14,9 +14,10 @@
 //! anchor's area, the anchor has at least `MIN_PARTED_AREA` pixels and the gap between the boxes is at most half the square root of the anchor's area (a bed parted by a blanket lying across it, a chair's back
 //! seen apart from its seat; a reach relative to the anchor's size is our own choice), or at any distance when
 //! the band between the two boxes is nearer the camera than both (one object seen in two parts around an
-//! occluder: a desk behind a chair). When the operator says there is just one (`k = 1`), every other object
-//! of the class that is not a small far fragment joins the one kept: labels stay as they are, and "those
-//! pieces are all the same rug" is met.
+//! occluder: a desk behind a chair). When the operator says there is just one (`k = 1`), every other
+//! object of the class within twice that reach that is not a small fragment joins the one kept: labels stay
+//! as they are, and "those pieces are all the same rug" is met (a piece further away stays, and the count is
+//! reported unmet: joining far pieces made objects that matched nothing on the development trial).
 //! What is left beyond
 //! `k` is surplus; a surplus object no larger than a quarter of the smallest kept one and under
 //! `MIN_PARTED_AREA` pixels is a fragment, whose
@@ -180,7 +181,7 @@ pub fn merge_parts(
             // "Just one": every piece of the class the operator sees is part of that one object.
             // (Small far fragments are still taken away, see `surplus_factors`.)
             let fragment = FRAGMENT_SHARE * area <= anchors[a].2 && area < MIN_PARTED_AREA;
-            let single = cap.most == 1 && !fragment;
+            let single = cap.most == 1 && !fragment && f64::from(distance) <= 2.0 * reach;
             if !single && !near && !occluded() {
                 continue;
             }
