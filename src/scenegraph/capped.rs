@@ -10,19 +10,22 @@
 //!
 //! For a class with an upper bound in force (exactly `k` or at most `k`, `k >= 1`) and more than `k` objects
 //! formed, the `k` largest objects (in pixels) are kept as anchors. Every other object of the class, largest
-//! first, joins the anchor whose bounding box lies nearest to its own when it is at most a quarter of the
-//! anchor's area, the anchor has at least `MIN_PARTED_AREA` pixels and the gap between the boxes is at most half the square root of the anchor's area (a bed parted by a blanket lying across it, a chair's back
-//! seen apart from its seat; a reach relative to the anchor's size is our own choice), or at any distance when
-//! the band between the two boxes is nearer the camera than both (one object seen in two parts around an
-//! occluder: a desk behind a chair). When the operator says there is just one (`k = 1`), every other
-//! object of the class within twice that reach that is not a small fragment joins the one kept: labels stay
-//! as they are, and "those pieces are all the same rug" is met (a piece further away stays, and the count is
-//! reported unmet: joining far pieces made objects that matched nothing on the development trial).
-//! What is left beyond
-//! `k` is surplus; a surplus object no larger than a quarter of the smallest kept one and under
-//! `MIN_PARTED_AREA` pixels is a fragment, whose
-//! segments then carry a hard factor against the class, so the solver gives them the best other label. A
-//! surplus object of a credible size stays and the count is reported unmet.
+//! first, joins the anchor whose bounding box lies nearest to its own when
+//!
+//! - it is at most a quarter of the anchor's area, the anchor has at least `MIN_PARTED_AREA` pixels and the
+//!   gap between the boxes is at most half the square root of the anchor's area (the reach: a bed parted by
+//!   a blanket lying across it, a chair's back seen apart from its seat; our own choice), or
+//! - the band between the two boxes is nearer the camera than both, at any distance (one object seen in two
+//!   parts around an occluder: a desk behind a chair), or
+//! - the operator said there is just one (`k = 1`), it lies within twice the reach and it is not a small
+//!   fragment: labels stay as they are, and "those pieces are all the same rug" is met. A piece further away
+//!   stays and the count is reported unmet (joining far pieces made objects that matched nothing on the
+//!   development trial).
+//!
+//! What is left beyond `k` is surplus. A surplus object no larger than a quarter of the smallest kept one and
+//! under `MIN_PARTED_AREA` pixels is a fragment: its segments then carry a hard factor against the class, so
+//! the solver gives them the best other label. A surplus object of a credible size stays and the count is
+//! reported unmet.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::ids::{ClassId, SegmentId};
