@@ -598,11 +598,13 @@ pub fn report_text(report: &CorrectionReport, taxonomy: &Taxonomy) -> String {
         let changes = relabel_summary(&turn.changes, taxonomy);
         let objects = object_summary(&turn.objects, taxonomy);
         if changes.is_empty() && objects.is_empty() {
-            text.push_str(if turn.unmet.is_empty() {
-                "  changed: nothing; the scene already showed this\n"
-            } else {
-                "  changed: nothing\n"
-            });
+            text.push_str(
+                if turn.unmet.is_empty() && turn.questions.is_empty() && turn.issues.is_empty() {
+                    "  changed: nothing; the scene already showed this\n"
+                } else {
+                    "  changed: nothing\n"
+                },
+            );
         }
         for line in changes {
             text.push_str(&format!("  changed: {line}\n"));

@@ -93,8 +93,9 @@ pub struct GroundedConstraint {
     pub kind: GroundedKind,
 }
 
-/// A pointer's grown region covers at most this fraction (1/n) of the image.
-pub const POINTER_MAX_SHARE: u64 = 16;
+/// A pointer's grown region covers at most this fraction (1/n) of the image: more than a small object's
+/// asking threshold (`usual_share`), so a point on a bare wall reaches it and the relabel asks first.
+pub const POINTER_MAX_SHARE: u64 = 12;
 /// The robot's object under the pointer stands for what was pointed at when it is at most this many times the
 /// area the pointer reaches by colour and depth (our own choice).
 pub const POINTER_OBJECT_SLACK: u64 = 3;
@@ -749,7 +750,7 @@ fn usual_share(group: ClassGroup) -> Option<u64> {
 }
 
 /// How many times its usual share a relabel may cover before it asks first.
-const RELABEL_ASK_FACTOR: u64 = 3;
+const RELABEL_ASK_FACTOR: u64 = 2;
 
 fn target_area(view: &SceneView, target: &Target) -> u64 {
     target

@@ -26,7 +26,7 @@ pub fn svg(trials: &[SceneTrial], summary: &TrialSummary, title: &str) -> String
     let group = 3.0 * 9.0 + 8.0;
     let left = 60.0;
     let plot_width = (trials.len().max(1) as f64) * group;
-    let width = left + plot_width + 20.0;
+    let width = left + plot_width + 90.0;
     let top = 96.0;
     let plot_height = 300.0;
     let height = top + plot_height + 150.0;
