@@ -292,6 +292,30 @@ mod tests {
     use super::*;
 
     #[test]
+    fn notes_may_point_and_a_bad_point_is_a_typed_error() {
+        let directory = tempfile::tempdir().unwrap();
+        std::fs::write(
+            directory.path().join(NOTES_FILE),
+            "# a comment\nthere are two mugs\n@165,203 that's the counter\n",
+        )
+        .unwrap();
+        let notes = read_pointed_notes(directory.path()).unwrap();
+        assert_eq!(notes.len(), 2);
+        assert_eq!(notes[0].focus, None);
+        assert_eq!(notes[1].text, "that's the counter");
+        assert_eq!(notes[1].focus, Some(Focus::Pixel { x: 165, y: 203 }));
+        std::fs::write(
+            directory.path().join(NOTES_FILE),
+            "@165 that's the counter\n",
+        )
+        .unwrap();
+        assert!(matches!(
+            read_pointed_notes(directory.path()),
+            Err(EvaluationError::Notes { .. })
+        ));
+    }
+
+    #[test]
     fn regions_split_equal_labels_that_do_not_touch() {
         // 4x2: a a b a / a b b a -> regions: left a, b block, right a.
         let labels = [1u16, 1, 2, 1, 1, 2, 2, 1];

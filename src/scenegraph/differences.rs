@@ -117,3 +117,85 @@ pub fn difference_class(difference: &ObjectDifference) -> ClassId {
         | ObjectDifference::Removed { class, .. } => *class,
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::ids::{HypothesisId, RoomId, SegmentId};
+    use crate::scene::BoundingBox;
+    use crate::scenegraph::{RunLengthMask, SceneGraph, SceneObject};
+
+    fn object(id: u32, class: u16, members: &[u32]) -> SceneObject {
+        SceneObject {
+            id: ObjectId(id),
+            hypothesis: HypothesisId(id),
+            class: ClassId(class),
+            class_name: String::new(),
+            score: 0.0,
+            bbox: BoundingBox {
+                x0: 0,
+                y0: 0,
+                x1: 1,
+                y1: 1,
+            },
+            members: members.iter().map(|&m| SegmentId(m)).collect(),
+            mask: RunLengthMask {
+                width: 1,
+                height: 1,
+                runs: Vec::new(),
+            },
+        }
+    }
+
+    fn graph(objects: Vec<SceneObject>) -> SceneGraph {
+        SceneGraph {
+            schema: 1,
+            scene: String::new(),
+            room: RoomId(0),
+            room_name: String::new(),
+            objects,
+            relations: Vec::new(),
+            segment_labels: vec![ClassId(0); 10],
+            energy: 0.0,
+            lower_bound: 0.0,
+            relative_gap: 0.0,
+        }
+    }
+
+    #[test]
+    fn joins_splits_additions_and_removals_are_named() {
+        let before = graph(vec![
+            object(1, 11, &[0, 1]),
+            object(2, 11, &[2]),
+            object(3, 12, &[3, 4, 5]),
+            object(4, 13, &[6]),
+        ]);
+        let after = graph(vec![
+            object(5, 11, &[0, 1, 2]),
+            object(6, 12, &[3]),
+            object(7, 12, &[4, 5]),
+            object(8, 14, &[7]),
+        ]);
+        let differences = object_differences(&before, &after);
+        assert!(differences.contains(&ObjectDifference::Joined {
+            class: ClassId(11),
+            parts: vec![ObjectId(1), ObjectId(2)],
+            into: ObjectId(5)
+        }));
+        assert!(differences.contains(&ObjectDifference::Split {
+            class: ClassId(12),
+            from: ObjectId(3),
+            into: vec![ObjectId(6), ObjectId(7)]
+        }));
+        assert!(differences.contains(&ObjectDifference::Added {
+            class: ClassId(14),
+            id: ObjectId(8)
+        }));
+        assert!(differences.contains(&ObjectDifference::Removed {
+            class: ClassId(13),
+            id: ObjectId(4)
+        }));
+        assert_eq!(differences.len(), 4);
+        assert!(object_differences(&after, &after).is_empty());
+    }
+}

@@ -131,3 +131,51 @@ pub fn stray_factors(concern: &Concern, before: &[u16], after: &[u16]) -> Vec<Un
         })
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn concern(classes: &[u16], segments: &[usize]) -> Concern {
+        let mut c = Concern {
+            classes: vec![false; 8],
+            segments: vec![false; 6],
+        };
+        for &class in classes {
+            c.classes[class as usize] = true;
+        }
+        for &segment in segments {
+            c.segments[segment] = true;
+        }
+        c
+    }
+
+    #[test]
+    fn only_moves_between_unconcerned_labels_outside_the_targets_are_strays() {
+        // Class 3 is the note's; segment 5 is inside its target.
+        let concern = concern(&[3], &[5]);
+        let before = [0u16, 1, 3, 0, 1, 2];
+        let after = [1u16, 3, 0, 0, 2, 1];
+        // 0: 0->1 stray; 1: 1->3 concerned; 2: 3->0 concerned; 3: unmoved; 4: 1->2 stray; 5: in the target.
+        let factors = stray_factors(&concern, &before, &after);
+        let held: Vec<(u16, Vec<u32>)> = factors
+            .iter()
+            .map(|f| (f.label, f.segments.clone()))
+            .collect();
+        assert_eq!(held, vec![(0, vec![0]), (1, vec![4])]);
+        assert!(factors.iter().all(|f| f.wanted && f.weight == HARD_WEIGHT));
+    }
+
+    #[test]
+    fn a_room_type_concerns_everything() {
+        use crate::ids::RoomId;
+        use crate::language::constraint::Span;
+        let room = Constraint {
+            kind: ConstraintKind::RoomType { room: RoomId(2) },
+            span: Span::new(0, 4),
+            confidence: 1.0,
+            gloss: "the room is a bedroom".to_string(),
+        };
+        assert!(Concern::of_turn(&[room], &[], 0, &[], 8, 6).is_none());
+    }
+}
