@@ -39,7 +39,7 @@ pub struct TrialArgs {
     #[arg(long, default_value_t = 2)]
     pub notes: usize,
     /// Where the chart goes.
-    #[arg(long, default_value = "trial.svg")]
+    #[arg(long, default_value = "out/trial/trial.svg")]
     pub chart: PathBuf,
     /// Also write every record as JSON here.
     #[arg(long)]
@@ -194,6 +194,9 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         summary.median_millis, summary.max_millis
     );
     let title = format!("sayso trial, {} half, seeds {first}..{end}", set.table());
+    if let Some(parent) = args.chart.parent().filter(|p| !p.as_os_str().is_empty()) {
+        std::fs::create_dir_all(parent).with_context(|| format!("creating {}", parent.display()))?;
+    }
     std::fs::write(&args.chart, chart::svg(&trials, &summary, &title))
         .with_context(|| format!("writing {}", args.chart.display()))?;
     println!("chart: {}", args.chart.display());
