@@ -195,7 +195,8 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
     );
     let title = format!("sayso trial, {} half, seeds {first}..{end}", set.table());
     if let Some(parent) = args.chart.parent().filter(|p| !p.as_os_str().is_empty()) {
-        std::fs::create_dir_all(parent).with_context(|| format!("creating {}", parent.display()))?;
+        std::fs::create_dir_all(parent)
+            .with_context(|| format!("creating {}", parent.display()))?;
     }
     std::fs::write(&args.chart, chart::svg(&trials, &summary, &title))
         .with_context(|| format!("writing {}", args.chart.display()))?;

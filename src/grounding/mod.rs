@@ -139,6 +139,22 @@ pub enum GroundingIssue {
 
 impl GroundingIssue {
     /// The constraint the issue is about.
+    /// The same issue about the constraint `by` places further on (a turn's constraints are numbered after
+    /// the earlier turns' ones in force).
+    pub fn shifted(mut self, by: usize) -> GroundingIssue {
+        match &mut self {
+            GroundingIssue::UnknownObject { constraint, .. }
+            | GroundingIssue::FocusOutside { constraint, .. }
+            | GroundingIssue::NoFocus { constraint }
+            | GroundingIssue::NoPrevious { constraint }
+            | GroundingIssue::UnknownClass { constraint, .. }
+            | GroundingIssue::UnknownRoom { constraint, .. }
+            | GroundingIssue::NoCandidate { constraint, .. }
+            | GroundingIssue::NoneInRelation { constraint, .. } => *constraint += by,
+        }
+        self
+    }
+
     pub fn constraint(&self) -> usize {
         match self {
             GroundingIssue::UnknownObject { constraint, .. }

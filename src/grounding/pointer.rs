@@ -83,9 +83,12 @@ pub fn pointed_region_with(
     region_delta_e: f32,
     depth_limit: f32,
 ) -> Vec<SegmentId> {
-    let count = scene.segment_count();
+    let count = scene.segment_count().min(scene.stats.len());
     if seed.index() >= count {
         return Vec::new();
+    }
+    if scene.stats[seed.index()].area == 0 {
+        return vec![seed];
     }
     let stats = &scene.stats;
     let mut inside = vec![false; count];

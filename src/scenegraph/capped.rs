@@ -93,7 +93,11 @@ fn occluded_between(scene: &Scene, a: &BoundingBox, b: &BoundingBox, depths: (f6
     let (mut sum, mut count) = (0.0f64, 0u64);
     for y in y0..y1.min(depth.height) {
         for x in x0..x1.min(depth.width) {
-            let value = depth.millimetres[y as usize * depth.width as usize + x as usize];
+            let value = depth
+                .millimetres
+                .get(y as usize * depth.width as usize + x as usize)
+                .copied()
+                .unwrap_or(0);
             if value > 0 {
                 sum += f64::from(value);
                 count += 1;
@@ -153,11 +157,13 @@ pub fn merge_parts(
         }
         of_class.sort_by(|a, b| b.2.cmp(&a.2).then(a.0.cmp(&b.0)));
         let (anchors, rest) = of_class.split_at_mut(cap.most as usize);
+        // Gaps are measured to each anchor's own box, not to the box it grows to: pieces do not chain outward.
+        let original: Vec<BoundingBox> = anchors.iter().map(|anchor| anchor.1).collect();
         for &(index, bounds, area) in rest.iter() {
             let nearest = anchors
                 .iter()
                 .enumerate()
-                .map(|(a, anchor)| (gap(&anchor.1, &bounds), a))
+                .map(|(a, _)| (gap(&original[a], &bounds), a))
                 .min();
             let Some((distance, a)) = nearest else {
                 continue;
@@ -234,6 +240,9 @@ pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<U
             continue;
         }
         of_class.sort_by_key(|entry| std::cmp::Reverse(entry.0));
+        if cap.most == 0 {
+            continue;
+        }
         let smallest_kept = of_class[cap.most as usize - 1].0;
         for (area, members) in &of_class[cap.most as usize..] {
             if FRAGMENT_SHARE * area > smallest_kept || *area >= MIN_PARTED_AREA {

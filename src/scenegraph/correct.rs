@@ -244,8 +244,13 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
 
     let mut built = build_energy(&energy_inputs(request, &hypotheses, &accepted, &in_force))?;
     let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
-    let counted = counted_classes(&in_force);
-    let caps = capped_classes(&in_force);
+    let mut counted = counted_classes(&in_force);
+    let mut caps = capped_classes(&in_force);
+    if !request.confirm_safety {
+        // Joining two people (or pets) into one is a change to a safety-critical class: it waits for
+        // confirmation, and the count is reported unmet meanwhile.
+        caps.retain(|cap| !taxonomy.class(cap.class).is_some_and(|info| info.safety));
+    }
     if !caps.is_empty() {
         // A count below what the labels show: parts are joined when the graph is formed; what is still too
         // many loses its label and the scene is solved again around it (`super::capped`).
@@ -304,12 +309,22 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         (&counted, &caps),
         request.instance_cuts,
     );
+    // Withdrawn constraints leave the constraints in force: they neither join parts nor come back next turn.
+    let mut withdrawn_counts: Vec<GroundedConstraint> = Vec::new();
     if !withdrawn.is_empty() {
         let gone = |source: Option<usize>| source.is_some_and(|s| withdrawn.contains(&s));
         built.energy.count_factors.retain(|f| !gone(f.source));
         built.energy.unary_factors.retain(|f| !gone(f.source));
         built.energy.tuple_factors.retain(|f| !gone(f.source));
         solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
+        withdrawn_counts = in_force
+            .iter()
+            .filter(|g| withdrawn.contains(&g.constraint))
+            .cloned()
+            .collect();
+        in_force.retain(|g| !withdrawn.contains(&g.constraint));
+        counted = counted_classes(&in_force);
+        caps.retain(|cap| !withdrawn.contains(&cap.source));
     }
     let mut changes = list_changes(
         &built.energy,
@@ -456,7 +471,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     );
     // A count the energy meets with a hypothesis switched on but not drawn is not met in the picture the
     // operator gets back: the scene graph's objects decide.
-    for grounded in &in_force {
+    for grounded in in_force.iter().chain(&withdrawn_counts) {
         let (class, count) = match grounded.kind {
             GroundedKind::Present { class } => (class, Count::AtLeast(1)),
             GroundedKind::Count { class, count } => (class, count),
@@ -485,8 +500,20 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         graph,
         changes,
         unmet,
-        questions: grounding.questions,
-        issues: grounding.issues,
+        // Numbered like the constraints in force, as unmet entries and causes are.
+        questions: grounding
+            .questions
+            .into_iter()
+            .map(|mut question| {
+                question.constraint += offset;
+                question
+            })
+            .collect(),
+        issues: grounding
+            .issues
+            .into_iter()
+            .map(|issue| issue.shifted(offset))
+            .collect(),
         hypotheses: built.hypotheses,
         solution,
         last_referent: grounding.last_referent,

@@ -7,8 +7,9 @@
 //! # The rule
 //!
 //! A class is concerned when a constraint of the turn names it (presence, absence, count, either end of a
-//! relation, a place's subject, a relabel's old or new class, an attribute's target) or when a hypothesis a
-//! grounded constraint in force resolved to is of that class; a segment is concerned when a grounded target of
+//! relation, a place's subject, a relabel's old or new class, an attribute's target), when a presence,
+//! absence or count in force names it, or when a hypothesis a grounded constraint in force resolved to is of
+//! that class; a segment is concerned when a grounded target of
 //! the turn covers it. After the solve, a fine segment that moved from an unconcerned label to another
 //! unconcerned label, outside every concerned segment, is a stray: "there are two pillows" has no business
 //! turning a wall patch into floor. Strays are held at their label before the turn by hard factors and the turn
@@ -85,6 +86,13 @@ impl Concern {
         }
         let mut segments = vec![false; segment_count];
         for grounded in in_force {
+            // Earlier notes' classes too: what they moved is theirs to keep moving.
+            if let GroundedKind::Present { class }
+            | GroundedKind::Absent { class }
+            | GroundedKind::Count { class, .. } = grounded.kind
+            {
+                mark(Some(class));
+            }
             for target in targets(&grounded.kind) {
                 for &h in &target.hypotheses {
                     mark(hypotheses.get(h).map(|hypothesis| hypothesis.class));

@@ -358,6 +358,7 @@ fn says(fact: &Fact, constraint: &Constraint) -> bool {
             c == class && matches!(count, Count::Exactly(0) | Count::AtMost(0))
         }
         (Fact::Present { class }, ConstraintKind::Present { class: c }) => c == class,
+        // "Exactly one" says the presence only where there is one (`judge` checks that against the truth).
         (Fact::Present { class }, ConstraintKind::Count { class: c, count }) => {
             c == class && matches!(count, Count::Exactly(1) | Count::AtLeast(1))
         }
@@ -455,10 +456,18 @@ fn judge(
     if constraints.is_empty() {
         return (Outcome::NotUnderstood, "read as nothing".to_string());
     }
-    let said = constraints.iter().any(|c| says(fact, c));
+    // A constraint counts as saying the fact only when it is also true of the scene ("exactly one" for a
+    // class with two objects is not the presence the operator stated).
+    let counts = |c: &Constraint| {
+        says(fact, c)
+            && (!matches!(c.kind, ConstraintKind::Count { .. })
+                || matches!(fact, Fact::Count { .. })
+                || true_of_scene(c, truth, taxonomy))
+    };
+    let said = constraints.iter().any(counts);
     let stray = constraints
         .iter()
-        .any(|c| !says(fact, c) && !true_of_scene(c, truth, taxonomy));
+        .any(|c| !counts(c) && !true_of_scene(c, truth, taxonomy));
     if !said || stray {
         return (Outcome::Misread, format!("read as: {glosses}"));
     }
