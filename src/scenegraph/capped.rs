@@ -10,7 +10,8 @@
 //!
 //! For a class with an upper bound in force (exactly `k` or at most `k`, `k >= 1`) and more than `k` objects
 //! formed, the `k` largest objects (in pixels) are kept as anchors. Every other object of the class, largest
-//! first, joins the anchor whose bounding box lies nearest to its own when
+//! first, joins the anchor nearest to it (the gap from its box to the nearest box the anchor is made of: its
+//! own and those of the parts it took in) when
 //!
 //! - it is at most a quarter of the anchor's area, the anchor has at least `MIN_PARTED_AREA` pixels and the
 //!   gap between the boxes is at most half the square root of the anchor's area (the reach: a bed parted by
@@ -157,13 +158,22 @@ pub fn merge_parts(
         }
         of_class.sort_by(|a, b| b.2.cmp(&a.2).then(a.0.cmp(&b.0)));
         let (anchors, rest) = of_class.split_at_mut(cap.most as usize);
-        // Gaps are measured to each anchor's own box, not to the box it grows to: pieces do not chain outward.
-        let original: Vec<BoundingBox> = anchors.iter().map(|anchor| anchor.1).collect();
+        // Gaps are measured to the nearest of the boxes an anchor is made of (its own and those of the parts it
+        // took in), never to empty space inside the box they span together.
+        let mut parts: Vec<Vec<BoundingBox>> =
+            anchors.iter().map(|anchor| vec![anchor.1]).collect();
         for &(index, bounds, area) in rest.iter() {
             let nearest = anchors
                 .iter()
                 .enumerate()
-                .map(|(a, _)| (gap(&original[a], &bounds), a))
+                .map(|(a, _)| {
+                    let nearest = parts[a]
+                        .iter()
+                        .map(|part| gap(part, &bounds))
+                        .min()
+                        .unwrap_or(u32::MAX);
+                    (nearest, a)
+                })
                 .min();
             let Some((distance, a)) = nearest else {
                 continue;
@@ -200,6 +210,7 @@ pub fn merge_parts(
             anchor.members.sort_unstable();
             anchor.members.dedup();
             anchors[a].1 = anchors[a].1.union(&bounds);
+            parts[a].push(bounds);
             removed[index] = true;
         }
     }
