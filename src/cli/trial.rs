@@ -100,7 +100,11 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
     println!();
     println!(
         "{:<22} {:>17} {:>17} {:>17} {:>17}",
-        "scene", "classifier", "no-note solve", "after 1 note", "after 2 notes"
+        "scene",
+        "classifier",
+        "no-note solve",
+        "after 1 note",
+        format!("after {} notes", args.notes)
     );
     println!(
         "{:<22} {:>17} {:>17} {:>17} {:>17}",
@@ -115,6 +119,7 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         )
     };
     for trial in &trials {
+        // A scene where the operator ran out of things to say keeps its last step.
         let at = |k: usize| trial.steps[k.min(trial.steps.len() - 1)];
         println!(
             "{:<22} {:>17} {:>17} {:>17} {:>17}",
@@ -122,7 +127,7 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
             cell(&trial.classifier),
             cell(&at(0)),
             cell(&at(1)),
-            cell(&at(2))
+            cell(&at(args.notes))
         );
     }
     let summary = summarise(&trials);
@@ -140,7 +145,7 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         args.notes, summary.gain_all.object, summary.gain_all.mean_iou, summary.gain_all.pixel
     );
     println!(
-        "the no-note solve against the classifier alone (separate from the notes): object {:+.1}, mIoU {:+.1}, pixel {:+.1}",
+        "the no-note solve against the classifier alone (separate from the notes; the classifier's objects are its label map's regions): object {:+.1}, mIoU {:+.1}, pixel {:+.1}",
         summary.solve_over_classifier.object,
         summary.solve_over_classifier.mean_iou,
         summary.solve_over_classifier.pixel

@@ -494,7 +494,8 @@ fn judge(
 #[derive(Clone, Debug, Default, Serialize)]
 pub struct TrialSummary {
     pub scenes: usize,
-    /// Mean gain against the no-note solve after one note and after every note, in points.
+    /// Mean gain against the no-note solve after one note (over the scenes with a note) and after every note
+    /// (over every scene; a scene with nothing to say gains nothing), in points.
     pub gain_one: Scores,
     pub gain_all: Scores,
     /// Mean of the no-note solve against the classifier alone, in points.
@@ -532,7 +533,19 @@ pub fn summarise(trials: &[SceneTrial]) -> TrialSummary {
     times.sort_by(f64::total_cmp);
     TrialSummary {
         scenes: trials.len(),
-        gain_one: mean(&|t| t.gain_after(1)),
+        gain_one: {
+            // Over the scenes where the operator said at least one note.
+            let spoken: Vec<&SceneTrial> = trials.iter().filter(|t| !t.notes.is_empty()).collect();
+            let n = spoken.len().max(1) as f64;
+            let mut total = Scores::default();
+            for trial in spoken {
+                let s = trial.gain_after(1);
+                total.pixel += 100.0 * s.pixel / n;
+                total.mean_iou += 100.0 * s.mean_iou / n;
+                total.object += 100.0 * s.object / n;
+            }
+            total
+        },
         gain_all: mean(&|t| t.gain()),
         solve_over_classifier: mean(&|t| t.steps[0].minus(&t.classifier)),
         worse: trials
