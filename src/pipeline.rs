@@ -177,13 +177,6 @@ pub struct Understood {
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct TurnReport {
     pub utterance: String,
-    /// The constraints the note was read as (empty when it could not be read).
-    #[serde(skip)]
-    pub constraints: Vec<Constraint>,
-    /// Index of this note's first constraint among every constraint in force (`Unmet::constraint` and
-    /// `ClarifyingQuestion::constraint` count the same way).
-    #[serde(skip)]
-    pub first_constraint: usize,
     /// The parser's error when the note could not be read (the scene is then left as it was).
     pub parse_error: Option<String>,
     pub understood: Vec<Understood>,
@@ -315,8 +308,6 @@ pub fn correct_notes(
         let this_note = |constraint: usize| constraint >= first_new;
         turns.push(TurnReport {
             utterance: utterance.clone(),
-            constraints: parse.constraints.clone(),
-            first_constraint: first_new,
             parse_error: None,
             understood: parse
                 .constraints
@@ -430,8 +421,6 @@ pub fn correct_turn(
 fn failed_turn(utterance: &str, error: &LanguageError) -> TurnReport {
     TurnReport {
         utterance: utterance.to_string(),
-        constraints: Vec::new(),
-        first_constraint: 0,
         parse_error: Some(error.to_string()),
         understood: Vec::new(),
         conflicts: Vec::new(),

@@ -21,7 +21,6 @@ fn a_development_trial_scene_keeps_its_books_straight() {
         classifier: &classifier,
         settings: &settings,
         phrasings: &phrasings,
-        set: PhrasingSet::Dev,
         notes: 2,
     };
     let index = 3;

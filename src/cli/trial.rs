@@ -71,7 +71,6 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         classifier: &classifier,
         settings: &settings,
         phrasings: &phrasings,
-        set,
         notes: args.notes,
     };
     let mut trials = Vec::new();

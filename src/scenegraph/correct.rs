@@ -254,20 +254,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     if !caps.is_empty() {
         // A count below what the labels show: parts are joined when the graph is formed; what is still too
         // many loses its label and the scene is solved again around it (`super::capped`).
-        let graph = build_scene_graph(
-            scene,
-            taxonomy,
-            &built.hypotheses,
-            &solution.state,
-            SolvedFigures {
-                energy: solution.energy,
-                lower_bound: solution.lower_bound,
-                relative_gap: solution.relative_gap,
-                counted: &counted,
-                capped: &caps,
-            },
-            request.instance_cuts,
-        );
+        let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
         let surplus = surplus_factors(scene, &graph, &caps);
         if !surplus.is_empty() {
             built.energy.unary_factors.extend(surplus);
@@ -300,14 +287,12 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     // A count or presence of this turn the picture still does not show is withdrawn: the turn is solved again
     // without its factors, so a note that cannot be met moves nothing (it is reported unmet below).
     let withdrawn = unmet_counts(
-        scene,
-        taxonomy,
+        request,
         &built.hypotheses,
         &solution,
         &in_force,
         offset,
         (&counted, &caps),
-        request.instance_cuts,
     );
     // Withdrawn constraints leave the constraints in force: they neither join parts nor come back next turn.
     let mut withdrawn_counts: Vec<GroundedConstraint> = Vec::new();
@@ -455,20 +440,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         }
     }
     unmet.sort_by_key(|u| u.constraint);
-    let graph = build_scene_graph(
-        scene,
-        taxonomy,
-        &built.hypotheses,
-        &solution.state,
-        SolvedFigures {
-            energy: solution.energy,
-            lower_bound: solution.lower_bound,
-            relative_gap: solution.relative_gap,
-            counted: &counted,
-            capped: &caps,
-        },
-        request.instance_cuts,
-    );
+    let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
     // A count the energy meets with a hypothesis switched on but not drawn is not met in the picture the
     // operator gets back: the scene graph's objects decide.
     for grounded in in_force.iter().chain(&withdrawn_counts) {
@@ -524,16 +496,13 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
 
 /// The counts and presences of this turn (constraint index `first` on) that the scene graph of `solution`
 /// does not show.
-#[allow(clippy::too_many_arguments)]
 fn unmet_counts(
-    scene: &Scene,
-    taxonomy: &Taxonomy,
+    request: &CorrectionRequest,
     hypotheses: &[Hypothesis],
     solution: &JointSolution,
     in_force: &[GroundedConstraint],
     first: usize,
     (counted, caps): (&[(ClassId, u32)], &[Cap]),
-    cuts: &InstanceCuts,
 ) -> Vec<usize> {
     let asks: Vec<(usize, ClassId, Count)> = in_force
         .iter()
@@ -549,9 +518,26 @@ fn unmet_counts(
     if asks.is_empty() {
         return Vec::new();
     }
-    let graph = build_scene_graph(
-        scene,
-        taxonomy,
+    let graph = graph_of(request, hypotheses, solution, (counted, caps));
+    asks.into_iter()
+        .filter(|&(_, class, count)| {
+            let shown = graph.objects.iter().filter(|o| o.class == class).count();
+            count_violation(count, shown as u32) > 0
+        })
+        .map(|(constraint, _, _)| constraint)
+        .collect()
+}
+
+/// The scene graph of a solved state, with the counts and caps in force.
+fn graph_of(
+    request: &CorrectionRequest,
+    hypotheses: &[Hypothesis],
+    solution: &JointSolution,
+    (counted, caps): (&[(ClassId, u32)], &[Cap]),
+) -> SceneGraph {
+    build_scene_graph(
+        request.scene,
+        request.taxonomy,
         hypotheses,
         &solution.state,
         SolvedFigures {
@@ -561,15 +547,8 @@ fn unmet_counts(
             counted,
             capped: caps,
         },
-        cuts,
-    );
-    asks.into_iter()
-        .filter(|&(_, class, count)| {
-            let shown = graph.objects.iter().filter(|o| o.class == class).count();
-            count_violation(count, shown as u32) > 0
-        })
-        .map(|(constraint, _, _)| constraint)
-        .collect()
+        request.instance_cuts,
+    )
 }
 
 fn energy_inputs<'a>(

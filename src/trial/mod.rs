@@ -32,7 +32,7 @@ use crate::taxonomy::{Taxonomy, UNLABELLED};
 use crate::unaries::Classifier;
 
 use operator::{candidate_facts, Fact, FactRelation, Shown};
-use phrasings::{PhrasingSet, Phrasings};
+use phrasings::Phrasings;
 
 /// Seeds reserved for trials; tuning refuses them. Development trials start at the first, held-out trials
 /// (the reported figures) at `HELD_OUT_START`.
@@ -154,7 +154,6 @@ pub struct TrialContext<'a> {
     pub classifier: &'a Classifier,
     pub settings: &'a CorrectionSettings,
     pub phrasings: &'a Phrasings,
-    pub set: PhrasingSet,
     /// Notes per scene.
     pub notes: usize,
 }
