@@ -155,6 +155,10 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         summary.notes,
         100.0 * summary.failed as f64 / summary.notes.max(1) as f64
     );
+    println!(
+        "answers to the notes' questions (the operator pointing at a candidate that is not of the class, one turn each): {}",
+        summary.answers
+    );
     let mut kinds: Vec<&str> = trials
         .iter()
         .flat_map(|t| t.notes.iter().map(|n| n.kind))

@@ -3,34 +3,46 @@
 //! for the correction to take away.
 //!
 //! Owns: `merge_parts` (joining the parts of a capped class that lie close to one of the objects the count
-//! keeps) and `surplus_factors` (the unary factors that take the label off the objects still too many).
+//! keeps), `surplus_factors` (the unary factors that take the label off the objects still too many) and
+//! `surplus_question` (asking which of the objects shown are not of the class, when a credible surplus stays).
 //! Must not: solve, or change labels itself; `super::correct` adds the factors and solves again.
 //!
 //! # The rule
 //!
 //! For a class with an upper bound in force (exactly `k` or at most `k`, `k >= 1`) and more than `k` objects
-//! formed, the `k` largest objects (in pixels) are kept as anchors. Every other object of the class, largest
-//! first, joins the anchor nearest to it (the gap from its box to the nearest box the anchor is made of: its
-//! own and those of the parts it took in) when
+//! formed, objects are joined one pair at a time, the pair across the smallest gap first (the gap from box to
+//! box, measured to each box an object is made of: its own and those of the parts it took in), until `k` are
+//! left or no pair is plainly one object. The `k` largest objects at each step are the ones the count keeps;
+//! a piece joins a larger object when
 //!
-//! - it is at most a quarter of the anchor's area, the anchor has at least `MIN_PARTED_AREA` pixels and the
-//!   gap between the boxes is at most half the square root of the anchor's area (the reach: a bed parted by
-//!   a blanket lying across it, a chair's back seen apart from its seat; our own choice), or
-//! - the band between the two boxes is nearer the camera than both, at any distance (one object seen in two
-//!   parts around an occluder: a desk behind a chair), or
-//! - the operator said there is just one (`k = 1`), it lies within twice the reach and it is not a small
-//!   fragment: labels stay as they are, and "those pieces are all the same rug" is met. A piece further away
-//!   stays and the count is reported unmet (joining far pieces made objects that matched nothing on the
-//!   development trial).
+//! - it is small (under `MIN_PARTED_AREA` pixels) and at least `OVERLAP_SHARE` of its box lies inside a box of
+//!   the larger one (a shoe's sole seen apart from its upper), or both are strips that continue each other
+//!   along their length across a gap within the reach (a counter top seen in pieces between the bottles on
+//!   it); a small object among the `k` largest may be joined this way too (a cabinet's plinth);
+//! - it is not among the `k` largest, and it is at most a quarter of the larger one's area, the larger one has
+//!   at least `MIN_PARTED_AREA` pixels and the gap is at most half the square root of the larger one's area
+//!   (the reach: a bed parted by a blanket lying across it, a chair's back seen apart from its seat); or it is
+//!   a speck (under two fine segments of mean size) within the reach or `SPECK_REACH`; or the operator said
+//!   there is just one (`k = 1`), it lies within twice the reach and it is not a small fragment. A piece
+//!   further away stays and the count is reported unmet (joining far pieces made objects that matched nothing
+//!   on the development trial);
+//! - failing every plain join, the band between a piece and the nearest larger object is nearer the camera
+//!   than both, at any distance (one object seen in two parts around an occluder: a desk behind a chair).
+//!
+//! Reach grows with what an object took in, so a shelf seen in five pieces between its books is joined piece
+//! by piece, each next to the last. Large objects are never joined for sharing a box: chairs around a table
+//! overlap in their boxes.
 //!
 //! What is left beyond `k` is surplus. A surplus object no larger than a quarter of the smallest kept one and
-//! under `MIN_PARTED_AREA` pixels is a fragment: its segments then carry a hard factor against the class, so
-//! the solver gives them the best other label. A surplus object of a credible size stays and the count is
-//! reported unmet.
+//! under `MIN_PARTED_AREA` pixels is a fragment, and one under two fine segments of mean size a speck: their
+//! segments then carry a hard factor against the class, so the solver gives them the best other label. A
+//! surplus object of a credible size stays and the count is reported unmet.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
+use crate::grounding::ClarifyingQuestion;
 use crate::ids::{ClassId, SegmentId};
 use crate::scene::{BoundingBox, Scene};
+use crate::taxonomy::{how_many, plural, Taxonomy};
 
 use super::objects::FormedObject;
 use super::SceneGraph;
@@ -134,7 +146,189 @@ fn gap(a: &BoundingBox, b: &BoundingBox) -> u32 {
     dx.max(dy)
 }
 
-/// Joins parts of capped classes into the objects the count keeps (see the module doc).
+/// An object of a capped class, and the parts it has taken in so far.
+struct Cluster {
+    /// Index into the formed objects.
+    index: usize,
+    /// Its box and the boxes of the parts it took in: gaps are measured to the nearest of them, never to
+    /// empty space inside the box they span together.
+    parts: Vec<BoundingBox>,
+    /// The box they span together.
+    bounds: BoundingBox,
+    /// Pixels, its own and its parts'.
+    area: u64,
+}
+
+/// The share of a piece's box that must lie inside one box of a larger object, or overlap it, for the two to
+/// count as one object seen in parts (our own choice: a shoe's sole seen apart from its upper, a bottle's neck
+/// above its base; two objects of one class standing apart do not share their boxes).
+const OVERLAP_SHARE: f64 = 0.4;
+
+/// The share of the thinner strip's thickness two strips must share across their length to continue each
+/// other (our own choice).
+const ALIGNED_SHARE: f64 = 0.8;
+
+fn box_area(b: &BoundingBox) -> u64 {
+    u64::from(b.x1.saturating_sub(b.x0)) * u64::from(b.y1.saturating_sub(b.y0))
+}
+
+/// The share of box `inner`'s area that lies inside `outer`.
+fn share_inside(inner: &BoundingBox, outer: &BoundingBox) -> f64 {
+    let width = inner
+        .x1
+        .min(outer.x1)
+        .saturating_sub(inner.x0.max(outer.x0));
+    let height = inner
+        .y1
+        .min(outer.y1)
+        .saturating_sub(inner.y0.max(outer.y0));
+    let own = box_area(inner);
+    if own == 0 {
+        return 0.0;
+    }
+    (u64::from(width) * u64::from(height)) as f64 / own as f64
+}
+
+/// Whether two strips continue each other along their length across a gap no wider than `limit`: a counter
+/// top seen in two pieces between the bottles standing on it. Both are at least one and a half times longer
+/// than thick along the gap's direction and share most of the thinner one's thickness.
+fn continues(a: &BoundingBox, b: &BoundingBox, limit: f64) -> bool {
+    let (aw, ah) = (a.x1.saturating_sub(a.x0), a.y1.saturating_sub(a.y0));
+    let (bw, bh) = (b.x1.saturating_sub(b.x0), b.y1.saturating_sub(b.y0));
+    let rows = a.y1.min(b.y1).saturating_sub(a.y0.max(b.y0));
+    let columns = a.x1.min(b.x1).saturating_sub(a.x0.max(b.x0));
+    let horizontal_gap = a.x0.saturating_sub(b.x1).max(b.x0.saturating_sub(a.x1));
+    let vertical_gap = a.y0.saturating_sub(b.y1).max(b.y0.saturating_sub(a.y1));
+    let long = |length: u32, thickness: u32| 2 * length >= 3 * thickness;
+    let side_by_side = long(aw, ah)
+        && long(bw, bh)
+        && f64::from(rows) >= ALIGNED_SHARE * f64::from(ah.min(bh))
+        && f64::from(horizontal_gap) <= limit;
+    let one_above = long(ah, aw)
+        && long(bh, bw)
+        && f64::from(columns) >= ALIGNED_SHARE * f64::from(aw.min(bw))
+        && f64::from(vertical_gap) <= limit;
+    side_by_side || one_above
+}
+
+/// Whether `piece` joins `keeper` (at least as large) without looking at depth, and the gap it would join
+/// across. A piece among the `cap.most` largest (`kept`) joins only as a small part sharing a box or continuing
+/// a strip.
+fn joins_plainly(
+    cap: &Cap,
+    keeper: &Cluster,
+    piece: &Cluster,
+    kept: bool,
+    speck: u64,
+) -> Option<u32> {
+    let distance = keeper
+        .parts
+        .iter()
+        .flat_map(|part| piece.parts.iter().map(move |other| gap(part, other)))
+        .min()
+        .unwrap_or(u32::MAX);
+    let reach = 0.5 * (keeper.area as f64).sqrt();
+    // Only a small piece is joined for sharing a box or continuing a strip: large objects of one class
+    // overlap in their boxes whenever they stand near each other (chairs around a table).
+    let small = piece.area < MIN_PARTED_AREA;
+    // Sharing a box: a part of it seen apart (a shoe's sole and upper).
+    let shared = small
+        && keeper.parts.iter().any(|part| {
+            piece
+                .parts
+                .iter()
+                .any(|other| share_inside(other, part) >= OVERLAP_SHARE)
+        });
+    // Strips continuing each other past what stands on them.
+    let continued = small
+        && keeper.parts.iter().any(|part| {
+            piece
+                .parts
+                .iter()
+                .any(|other| continues(part, other, reach))
+        });
+    // Near and much smaller than the keeper: a part of it. Two like-sized objects side by side (bottles in a
+    // row) are two objects, however close.
+    let near = f64::from(distance) <= reach
+        && FRAGMENT_SHARE * piece.area <= keeper.area
+        && keeper.area >= MIN_PARTED_AREA;
+    // "Just one": every piece of the class the operator sees is part of that one object. (Small far fragments
+    // are still taken away, see `surplus_factors`.)
+    let fragment = FRAGMENT_SHARE * piece.area <= keeper.area && piece.area < MIN_PARTED_AREA;
+    let single = cap.most == 1 && !fragment && f64::from(distance) <= 2.0 * reach;
+    // A speck next to an object of its class belongs to it.
+    let speck_near = piece.area < speck && f64::from(distance) <= reach.max(SPECK_REACH);
+    (shared || continued || (!kept && (near || single || speck_near))).then_some(distance)
+}
+
+/// Whether `piece` and `keeper` are one object seen in two parts around a nearer occluder.
+fn joins_around_occluder(
+    scene: &Scene,
+    objects: &[FormedObject],
+    keeper: &Cluster,
+    piece: &Cluster,
+) -> bool {
+    let depths = (
+        mean_depth(scene, &objects[keeper.index].members),
+        mean_depth(scene, &objects[piece.index].members),
+    );
+    match depths {
+        (Some(d0), Some(d1)) => occluded_between(scene, &keeper.bounds, &piece.bounds, (d0, d1)),
+        _ => false,
+    }
+}
+
+/// The next join of a capped class: (keeper, piece), the plain join across the smallest gap first; failing
+/// that, a piece and the nearest larger object it is seen around an occluder with.
+fn next_join(
+    scene: &Scene,
+    objects: &[FormedObject],
+    cap: &Cap,
+    clusters: &[Cluster],
+    speck: u64,
+) -> Option<(usize, usize)> {
+    // The clusters the count keeps: the `cap.most` largest.
+    let mut order: Vec<usize> = (0..clusters.len()).collect();
+    order.sort_by_key(|&c| std::cmp::Reverse((clusters[c].area, c)));
+    let mut kept = vec![false; clusters.len()];
+    for &c in order.iter().take(cap.most as usize) {
+        kept[c] = true;
+    }
+    let mut best: Option<(u32, u64, usize, usize)> = None;
+    for (k, keeper) in clusters.iter().enumerate() {
+        for (p, piece) in clusters.iter().enumerate() {
+            if k == p || (piece.area, p) > (keeper.area, k) {
+                continue;
+            }
+            if let Some(distance) = joins_plainly(cap, keeper, piece, kept[p], speck) {
+                // Across the smallest gap; between equals, the larger keeper.
+                let key = (distance, u64::MAX - keeper.area, k, p);
+                if best.is_none_or(|b| key < b) {
+                    best = Some(key);
+                }
+            }
+        }
+    }
+    if let Some((_, _, k, p)) = best {
+        return Some((k, p));
+    }
+    clusters.iter().enumerate().find_map(|(p, piece)| {
+        if kept[p] {
+            return None;
+        }
+        let keeper = clusters
+            .iter()
+            .enumerate()
+            .filter(|&(k, keeper)| k != p && (keeper.area, k) > (piece.area, p))
+            .min_by_key(|(_, keeper)| gap(&keeper.bounds, &piece.bounds))
+            .map(|(k, _)| k)?;
+        joins_around_occluder(scene, objects, &clusters[keeper], piece).then_some((keeper, p))
+    })
+}
+
+/// Joins parts of capped classes until the count is met or nothing more is plainly one object (see the
+/// module doc). Joins go nearest first and an object's reach grows with what it took in, so a shelf seen in
+/// five pieces between its books is joined piece by piece, each next to the last.
 pub fn merge_parts(
     scene: &Scene,
     mut objects: Vec<FormedObject>,
@@ -145,73 +339,36 @@ pub fn merge_parts(
         if cap.most == 0 {
             continue;
         }
-        let mut of_class: Vec<(usize, BoundingBox, u64)> = objects
+        let mut clusters: Vec<Cluster> = objects
             .iter()
             .enumerate()
             .filter(|(_, object)| object.class == cap.class)
             .filter_map(|(index, object)| {
-                extent(scene, &object.members).map(|(b, a)| (index, b, a))
+                extent(scene, &object.members).map(|(bounds, area)| Cluster {
+                    index,
+                    parts: vec![bounds],
+                    bounds,
+                    area,
+                })
             })
             .collect();
-        if of_class.len() <= cap.most as usize {
-            continue;
-        }
-        of_class.sort_by(|a, b| b.2.cmp(&a.2).then(a.0.cmp(&b.0)));
-        let (anchors, rest) = of_class.split_at_mut(cap.most as usize);
-        // Gaps are measured to the nearest of the boxes an anchor is made of (its own and those of the parts it
-        // took in), never to empty space inside the box they span together.
-        let mut parts: Vec<Vec<BoundingBox>> =
-            anchors.iter().map(|anchor| vec![anchor.1]).collect();
-        for &(index, bounds, area) in rest.iter() {
-            let nearest = anchors
-                .iter()
-                .enumerate()
-                .map(|(a, _)| {
-                    let nearest = parts[a]
-                        .iter()
-                        .map(|part| gap(part, &bounds))
-                        .min()
-                        .unwrap_or(u32::MAX);
-                    (nearest, a)
-                })
-                .min();
-            let Some((distance, a)) = nearest else {
-                continue;
+        while clusters.len() > cap.most as usize {
+            let Some((k, p)) = next_join(scene, &objects, cap, &clusters, speck_area(scene)) else {
+                break;
             };
-            let reach = 0.5 * (anchors[a].2 as f64).sqrt();
-            let anchor_index = anchors[a].0;
-            // Near and much smaller than the anchor: a part of it. Two like-sized objects side by side (bottles
-            // in a row) are two objects, however close.
-            let near = f64::from(distance) <= reach
-                && FRAGMENT_SHARE * area <= anchors[a].2
-                && anchors[a].2 >= MIN_PARTED_AREA;
-            let occluded = || {
-                let depths = (
-                    mean_depth(scene, &objects[anchor_index].members),
-                    mean_depth(scene, &objects[index].members),
-                );
-                match depths {
-                    (Some(d0), Some(d1)) => {
-                        occluded_between(scene, &anchors[a].1, &bounds, (d0, d1))
-                    }
-                    _ => false,
-                }
-            };
-            // "Just one": every piece of the class the operator sees is part of that one object.
-            // (Small far fragments are still taken away, see `surplus_factors`.)
-            let fragment = FRAGMENT_SHARE * area <= anchors[a].2 && area < MIN_PARTED_AREA;
-            let single = cap.most == 1 && !fragment && f64::from(distance) <= 2.0 * reach;
-            if !single && !near && !occluded() {
-                continue;
-            }
-            let members = std::mem::take(&mut objects[index].members);
-            let anchor = &mut objects[anchor_index];
-            anchor.members.extend(members);
-            anchor.members.sort_unstable();
-            anchor.members.dedup();
-            anchors[a].1 = anchors[a].1.union(&bounds);
-            parts[a].push(bounds);
-            removed[index] = true;
+            let piece = clusters.swap_remove(p);
+            // `swap_remove` moved the last cluster into `p`.
+            let k = if k == clusters.len() { p } else { k };
+            let members = std::mem::take(&mut objects[piece.index].members);
+            let keeper = &mut clusters[k];
+            let kept = &mut objects[keeper.index];
+            kept.members.extend(members);
+            kept.members.sort_unstable();
+            kept.members.dedup();
+            keeper.bounds = keeper.bounds.union(&piece.bounds);
+            keeper.parts.extend(piece.parts);
+            keeper.area += piece.area;
+            removed[piece.index] = true;
         }
     }
     objects
@@ -230,6 +387,21 @@ const MIN_PARTED_AREA: u64 = 1500;
 /// own choice; on the demo scenes a half share joined bottles standing in a row into one).
 const FRAGMENT_SHARE: u64 = 4;
 
+/// A surplus object smaller than this many fine segments of mean size is a speck, whatever the size of the
+/// objects kept: it is never an object of its own (our own choice: two segments, about 256 pixels at the
+/// production segment count).
+const SPECK_SEGMENTS: u64 = 2;
+
+/// A speck joins an object of its class within this many pixels even when the object's own reach is shorter
+/// (our own choice: about two segments across).
+const SPECK_REACH: f64 = 24.0;
+
+/// The area under which an object is a speck: `SPECK_SEGMENTS` fine segments of mean size.
+fn speck_area(scene: &Scene) -> u64 {
+    let pixels = u64::from(scene.width()) * u64::from(scene.height());
+    SPECK_SEGMENTS * pixels / (scene.segment_count().max(1) as u64)
+}
+
 /// Hard factors against the class on the members of the objects of a capped class beyond its cap that are
 /// fragments: at most 1/`FRAGMENT_SHARE` of the smallest object the cap keeps and under `MIN_PARTED_AREA`
 /// pixels (the graph is formed after `merge_parts`; on trial renders a larger "fragment" of a rug was the part
@@ -237,6 +409,7 @@ const FRAGMENT_SHARE: u64 = 4;
 /// the false one is the operator's to point at.
 pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<UnaryFactor> {
     let mut factors = Vec::new();
+    let speck = speck_area(scene);
     for cap in caps {
         let mut of_class: Vec<(u64, &[SegmentId])> = graph
             .objects
@@ -256,7 +429,8 @@ pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<U
         }
         let smallest_kept = of_class[cap.most as usize - 1].0;
         for (area, members) in &of_class[cap.most as usize..] {
-            if FRAGMENT_SHARE * area > smallest_kept || *area >= MIN_PARTED_AREA {
+            let fragment = FRAGMENT_SHARE * area <= smallest_kept && *area < MIN_PARTED_AREA;
+            if !fragment && *area >= speck {
                 continue;
             }
             factors.push(UnaryFactor {
@@ -269,4 +443,79 @@ pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<U
         }
     }
     factors
+}
+
+/// Where a box lies in the picture, in words: "top left", "bottom", "middle" (thirds of each side).
+fn place_words(bbox: &BoundingBox, width: u32, height: u32) -> &'static str {
+    let third = |centre: u32, side: u32| (3 * centre / side.max(1)).min(2);
+    let column = third((bbox.x0 + bbox.x1) / 2, width);
+    let row = third((bbox.y0 + bbox.y1) / 2, height);
+    match (row, column) {
+        (0, 0) => "top left",
+        (0, 1) => "top",
+        (0, _) => "top right",
+        (1, 0) => "left",
+        (1, 1) => "middle",
+        (1, _) => "right",
+        (_, 0) => "bottom left",
+        (_, 1) => "bottom",
+        _ => "bottom right",
+    }
+}
+
+fn ordinal(n: usize) -> String {
+    let suffix = match (n % 10, n % 100) {
+        (_, 11..=13) => "th",
+        (1, _) => "st",
+        (2, _) => "nd",
+        (3, _) => "rd",
+        _ => "th",
+    };
+    format!("{n}{suffix}")
+}
+
+/// The question a count below what the graph still shows asks: which of the objects shown are not of the
+/// class. Candidates are every object of the class, left to right, each described by its place in the
+/// picture and its number from the left ("the 2nd from the left, bottom right"), so an answer can name one
+/// or point at it. `None` when the graph shows no more than `most`.
+pub fn surplus_question(
+    scene: &Scene,
+    taxonomy: &Taxonomy,
+    graph: &SceneGraph,
+    cap: &Cap,
+    constraint: usize,
+) -> Option<ClarifyingQuestion> {
+    let mut shown: Vec<&super::SceneObject> = graph
+        .objects
+        .iter()
+        .filter(|object| object.class == cap.class)
+        .collect();
+    if shown.len() <= cap.most as usize {
+        return None;
+    }
+    shown.sort_by_key(|object| (object.bbox.x0 + object.bbox.x1, object.id));
+    let name = taxonomy.class_name(cap.class);
+    let descriptions: Vec<String> = shown
+        .iter()
+        .enumerate()
+        .map(|(position, object)| {
+            format!(
+                "the {} from the left, {}",
+                ordinal(position + 1),
+                place_words(&object.bbox, scene.width(), scene.height())
+            )
+        })
+        .collect();
+    Some(ClarifyingQuestion {
+        constraint,
+        text: format!(
+            "the picture still shows {} that look like separate objects, more than the {} you said: \
+             which of them are not {}? Point at one and say what it is",
+            how_many(shown.len(), name),
+            cap.most,
+            plural(name)
+        ),
+        candidates: shown.iter().map(|object| object.hypothesis).collect(),
+        descriptions,
+    })
 }

@@ -6,7 +6,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::capped::{surplus_factors, Cap};
+use super::capped::{surplus_factors, surplus_question, Cap};
 use super::changes::{
     list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
 };
@@ -441,6 +441,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     }
     unmet.sort_by_key(|u| u.constraint);
     let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
+    let mut surplus_questions: Vec<ClarifyingQuestion> = Vec::new();
     // A count the energy meets with a hypothesis switched on but not drawn is not met in the picture the
     // operator gets back: the scene graph's objects decide.
     for grounded in in_force.iter().chain(&withdrawn_counts) {
@@ -456,6 +457,21 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
         }
         let shown = graph.objects.iter().filter(|o| o.class == class).count();
         if count_violation(count, shown as u32) > 0 {
+            // Too many still shown: ask which are not of the class, with every candidate named.
+            if let Count::Exactly(most) | Count::AtMost(most) = count {
+                let cap = Cap {
+                    class,
+                    most,
+                    source: grounded.constraint,
+                };
+                surplus_questions.extend(surplus_question(
+                    scene,
+                    taxonomy,
+                    &graph,
+                    &cap,
+                    grounded.constraint,
+                ));
+            }
             unmet.push(Unmet {
                 constraint: grounded.constraint,
                 span: grounded.span,
@@ -480,6 +496,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
                 question.constraint += offset;
                 question
             })
+            .chain(surplus_questions)
             .collect(),
         issues: grounding
             .issues

@@ -17,7 +17,9 @@ use std::time::Instant;
 use serde::Serialize;
 
 use crate::demo::DemoScene;
-use crate::evaluation::{matched_objects, object_accuracy, objects_from_graph, score_labels};
+use crate::evaluation::{
+    matched_objects, object_accuracy, objects_from_graph, objects_from_members, score_labels,
+};
 use crate::ids::{ClassId, RoomId};
 use crate::language::constraint::{Constraint, ConstraintKind, Count, Focus, Place, Relation};
 use crate::pipeline::{
@@ -31,7 +33,7 @@ use crate::scenegraph::label_map;
 use crate::taxonomy::{Taxonomy, UNLABELLED};
 use crate::unaries::Classifier;
 
-use operator::{candidate_facts, Fact, FactRelation, Shown};
+use operator::{candidate_facts, deepest_pixel, Fact, FactRelation, Shown};
 use phrasings::Phrasings;
 
 /// Seeds reserved for trials; tuning refuses them. Development trials start at the first, held-out trials
@@ -115,6 +117,8 @@ pub struct NoteRecord {
     pub right_to_wrong: u64,
     /// Wall-clock milliseconds of the turn's solve.
     pub millis: f64,
+    /// Answers the operator gave to the note's question (pointing at a candidate that is not of the class).
+    pub answers: usize,
 }
 
 /// One scene's trial.
@@ -279,6 +283,7 @@ pub fn run_scene(
                     wrong_to_right: 0,
                     right_to_wrong: 0,
                     millis: 0.0,
+                    answers: 0,
                 });
                 steps.push(current.scores);
                 continue;
@@ -299,7 +304,7 @@ pub fn run_scene(
             .constraint_labels
             .len()
             .saturating_sub(parse.constraints.len());
-        let (outcome, detail) = judge(
+        let (mut outcome, mut detail) = judge(
             &fact,
             &parse.constraints,
             &correction,
@@ -307,6 +312,28 @@ pub fn run_scene(
             &truth,
             taxonomy,
         );
+        let mut correction = correction;
+        let mut millis = millis;
+        let mut answers = 0;
+        if outcome == Outcome::Asked {
+            if let Fact::Count { class, count } = fact {
+                let answered = answer_surplus(
+                    context,
+                    &truth,
+                    &inputs,
+                    correction,
+                    first_new,
+                    (class, count),
+                )?;
+                correction = answered.correction;
+                millis += answered.millis;
+                answers = answered.answers;
+                if answered.met {
+                    outcome = Outcome::Met;
+                    detail = format!("{detail}; met after {answers} answer(s)");
+                }
+            }
+        }
         let next = state_of(&truth, &prepared.scene, &correction, class_count)?;
         let (wrong_to_right, right_to_wrong) =
             flips(&truth.labels.values, &current.labels, &next.labels);
@@ -319,6 +346,7 @@ pub fn run_scene(
             wrong_to_right,
             right_to_wrong,
             millis,
+            answers,
         });
         steps.push(next.scores);
         current = next;
@@ -338,6 +366,112 @@ pub fn run_scene(
         notes,
         wrong_to_right,
         right_to_wrong,
+    })
+}
+
+/// The most answers the operator gives to one note's question (our own choice).
+const MOST_ANSWERS: usize = 3;
+
+/// The operator's own words answering "which of them are not Xs?" while pointing at one.
+const ANSWER: &str = "that one isn't a {class}";
+
+/// What answering a count's question came to.
+struct Answered {
+    correction: Correction,
+    answers: usize,
+    millis: f64,
+    /// The graph shows the count after the answers.
+    met: bool,
+}
+
+/// Answers the question a count below what the graph shows asked: the operator looks at the candidates,
+/// points at those that are mostly not `class` in the truth (the least first) and says so, one turn each,
+/// up to the surplus and `MOST_ANSWERS`. Candidates are followed by hypothesis id across turns.
+fn answer_surplus(
+    context: &TrialContext<'_>,
+    truth: &DemoScene,
+    inputs: &TurnInputs<'_>,
+    mut correction: Correction,
+    first_new: usize,
+    (class, count): (ClassId, u32),
+) -> Result<Answered, TrialError> {
+    let Some(question) = correction
+        .questions
+        .iter()
+        .find(|q| q.constraint >= first_new && !q.candidates.is_empty())
+        .cloned()
+    else {
+        return Ok(Answered {
+            correction,
+            answers: 0,
+            millis: 0.0,
+            met: false,
+        });
+    };
+    let width = truth.labels.width as usize;
+    let shown = |c: &Correction| c.graph.objects.iter().filter(|o| o.class == class).count();
+    let mut answers = 0;
+    let mut millis = 0.0;
+    let name = context.taxonomy.class_name(class).replace('_', " ");
+    while answers < MOST_ANSWERS && shown(&correction) > count as usize {
+        // The candidates still shown as the class, with the share of their pixels that truly are.
+        let mut wrong: Vec<(f64, Vec<u32>)> = question
+            .candidates
+            .iter()
+            .filter_map(|id| {
+                correction
+                    .graph
+                    .objects
+                    .iter()
+                    .find(|o| o.hypothesis == *id && o.class == class)
+            })
+            .filter_map(|object| {
+                let pixels = objects_from_members(
+                    inputs.scene,
+                    std::iter::once((object.class, object.members.as_slice())),
+                )
+                .pop()?
+                .pixels;
+                let right = pixels
+                    .iter()
+                    .filter(|&&p| truth.labels.values.get(p as usize) == Some(&class.0))
+                    .count();
+                let share = right as f64 / pixels.len().max(1) as f64;
+                (share < 0.5).then_some((share, pixels))
+            })
+            .collect();
+        wrong.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let Some((_, pixels)) = wrong.into_iter().next() else {
+            break;
+        };
+        let Some((x, y)) = deepest_pixel(&pixels, width, |p| {
+            truth.labels.values.get(p as usize) != Some(&class.0)
+        }) else {
+            break;
+        };
+        let focus = Some(Focus::Pixel { x, y });
+        let utterance = ANSWER.replace("{class}", &name);
+        let Ok(parse) = context.settings.grammar.parse(&utterance, focus) else {
+            break;
+        };
+        let started = Instant::now();
+        correction = correct_turn(
+            inputs,
+            Some(&correction),
+            &parse.constraints,
+            focus,
+            true,
+            context.settings,
+        )?;
+        millis += started.elapsed().as_secs_f64() * 1000.0;
+        answers += 1;
+    }
+    let met = shown(&correction) == count as usize;
+    Ok(Answered {
+        correction,
+        answers,
+        millis,
+        met,
     })
 }
 
@@ -504,6 +638,8 @@ pub struct TrialSummary {
     pub notes: usize,
     /// Notes not met: unmet, asked, misread or not understood.
     pub failed: usize,
+    /// Answers the operator gave to questions, over all notes.
+    pub answers: usize,
     pub wrong_to_right: u64,
     pub right_to_wrong: u64,
     pub median_millis: f64,
@@ -557,6 +693,7 @@ pub fn summarise(trials: &[SceneTrial]) -> TrialSummary {
             .collect(),
         notes: notes.len(),
         failed: notes.iter().filter(|n| n.outcome != Outcome::Met).count(),
+        answers: notes.iter().map(|n| n.answers).sum(),
         wrong_to_right: trials.iter().map(|t| t.wrong_to_right).sum(),
         right_to_wrong: trials.iter().map(|t| t.right_to_wrong).sum(),
         median_millis: times.get(times.len() / 2).copied().unwrap_or(0.0),
