@@ -32,7 +32,7 @@ pub use crate::taxonomy::{how_many, plural};
 pub use extent::Extents;
 pub use measures::{footprint_of, in_region, mean_colour, relation_holds, relation_holds_measured};
 pub use predicates::{holds, Footprint};
-pub use questions::ClarifyingQuestion;
+pub use questions::{numbered, ClarifyingQuestion};
 
 /// A resolved referent: the segments it covers and the hypotheses it may be.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]

@@ -65,6 +65,18 @@ pub fn describe_referent(taxonomy: &Taxonomy, referent: &Referent) -> String {
     words.join(" ")
 }
 
+/// "7th", "11th", "22nd": a position said back as a number.
+pub fn numbered(n: usize) -> String {
+    let suffix = match (n % 10, n % 100) {
+        (_, 11..=13) => "th",
+        (1, _) => "st",
+        (2, _) => "nd",
+        (3, _) => "rd",
+        _ => "th",
+    };
+    format!("{n}{suffix}")
+}
+
 fn region_phrase(region: ImageRegion) -> &'static str {
     match region {
         ImageRegion::Left => "on the left",
@@ -183,7 +195,11 @@ pub(super) fn ask(
     if sorted.len() < descriptions.len() {
         let ordinals = ["first", "second", "third", "fourth", "fifth", "sixth"];
         for (position, description) in descriptions.iter_mut().enumerate() {
-            let ordinal = ordinals.get(position).copied().unwrap_or("next");
+            // Every candidate keeps its own number: "the 7th from the left", never "the next".
+            let ordinal = ordinals
+                .get(position)
+                .map(|word| word.to_string())
+                .unwrap_or_else(|| numbered(position + 1));
             *description = format!("the {ordinal} from the left");
         }
     }
@@ -210,6 +226,21 @@ pub(super) fn ask(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn numbered_ordinals_follow_english_suffixes() {
+        let said: Vec<String> = [1, 2, 3, 4, 7, 11, 12, 13, 21, 22, 23, 101, 111]
+            .into_iter()
+            .map(numbered)
+            .collect();
+        assert_eq!(
+            said,
+            [
+                "1st", "2nd", "3rd", "4th", "7th", "11th", "12th", "13th", "21st", "22nd", "23rd",
+                "101st", "111th"
+            ]
+        );
+    }
 
     fn first_referent(utterance: &str) -> (Taxonomy, Referent) {
         use crate::language::constraint::ConstraintKind;

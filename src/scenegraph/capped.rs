@@ -39,7 +39,7 @@
 //! surplus object of a credible size stays and the count is reported unmet.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
-use crate::grounding::ClarifyingQuestion;
+use crate::grounding::{numbered, ClarifyingQuestion};
 use crate::ids::{ClassId, SegmentId};
 use crate::scene::{BoundingBox, Scene};
 use crate::taxonomy::{how_many, plural, Taxonomy};
@@ -463,17 +463,6 @@ fn place_words(bbox: &BoundingBox, width: u32, height: u32) -> &'static str {
     }
 }
 
-fn ordinal(n: usize) -> String {
-    let suffix = match (n % 10, n % 100) {
-        (_, 11..=13) => "th",
-        (1, _) => "st",
-        (2, _) => "nd",
-        (3, _) => "rd",
-        _ => "th",
-    };
-    format!("{n}{suffix}")
-}
-
 /// The question a count below what the graph still shows asks: which of the objects shown are not of the
 /// class. Candidates are every object of the class, left to right, each described by its place in the
 /// picture and its number from the left ("the 2nd from the left, bottom right"), so an answer can name one
@@ -501,7 +490,7 @@ pub fn surplus_question(
         .map(|(position, object)| {
             format!(
                 "the {} from the left, {}",
-                ordinal(position + 1),
+                numbered(position + 1),
                 place_words(&object.bbox, scene.width(), scene.height())
             )
         })
