@@ -48,10 +48,10 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
     let focus = args.focus.as_deref().map(parse_focus).transpose()?;
     let taxonomy = Taxonomy::embedded();
     let source = SceneSource::from_text(&args.scene, &demo_directory(args.demo_dir.as_deref()));
-    let demo = source.load()?;
+    let capture = source.load()?;
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let settings = CorrectionSettings::embedded()?;
-    let prepared = prepare_loaded(demo, &classifier)?;
+    let prepared = prepare_loaded(capture, &classifier)?;
     let report = correct_prepared(prepared, &args.say, focus, args.confirm, &settings)?;
     write_outputs(&report, &taxonomy, &args.out)?;
     print!("{}", report_text(&report, &taxonomy));
@@ -91,7 +91,7 @@ pub fn write_outputs(
     out: &Path,
 ) -> anyhow::Result<()> {
     std::fs::create_dir_all(out).with_context(|| format!("creating {}", out.display()))?;
-    let name = &report.prepared.demo.name;
+    let name = &report.prepared.capture.name;
     overlay_png(
         report,
         &report.prepared.classifier_labels,
