@@ -20,7 +20,7 @@ use crate::ids::ClassId;
 use crate::language::constraint::{Constraint, Focus, Span};
 use crate::language::error::{GrammarError, LanguageError};
 use crate::language::{Conversation, Grammar};
-use crate::raster::DEFAULT_PIXEL_LIMIT;
+use crate::raster::{read_rgb_image, DEFAULT_PIXEL_LIMIT};
 use crate::scene::{load_capture, Capture, Scene, SceneError, SceneParams};
 use crate::scenegraph::changes::{Change, ChangeKind, ChangeStatus, Unmet};
 use crate::scenegraph::correct::{correct, Correction, CorrectionError, CorrectionRequest};
@@ -73,14 +73,18 @@ pub enum SceneSource {
     },
     /// A scene directory: an image (PNG or JPEG), optionally depth and camera (`crate::scene::files`).
     Directory(PathBuf),
+    /// One image file, PNG or JPEG: a scene with no depth.
+    Image(PathBuf),
 }
 
 impl SceneSource {
-    /// A demo scene name, or a path when the text names an existing directory.
+    /// A scene directory or an image file when the text names one that exists, else a demo scene name.
     pub fn from_text(text: &str, demo_directory: &Path) -> SceneSource {
         let path = Path::new(text);
         if path.is_dir() {
             SceneSource::Directory(path.to_path_buf())
+        } else if path.is_file() {
+            SceneSource::Image(path.to_path_buf())
         } else {
             SceneSource::Demo {
                 directory: demo_directory.to_path_buf(),
@@ -94,11 +98,22 @@ impl SceneSource {
         match self {
             SceneSource::Demo { directory, name } => demo_scene_path(directory, name.as_deref()),
             SceneSource::Directory(path) => Ok(path.clone()),
+            SceneSource::Image(path) => {
+                Ok(path.parent().map_or_else(PathBuf::new, Path::to_path_buf))
+            }
         }
     }
 
     /// Reads what a robot would have of the scene (`crate::scene::load_capture`); never its ground truth.
     pub fn load(&self) -> Result<Capture, PipelineError> {
+        if let SceneSource::Image(path) = self {
+            let image = read_rgb_image(path, DEFAULT_PIXEL_LIMIT)
+                .map_err(|error| PipelineError::Capture(error.into()))?;
+            let name = path.file_stem().map_or("scene".to_string(), |stem| {
+                stem.to_string_lossy().into_owned()
+            });
+            return Ok(Capture::from_image(name, image));
+        }
         load_capture(&self.directory()?, DEFAULT_PIXEL_LIMIT).map_err(PipelineError::Capture)
     }
 }
@@ -144,9 +159,25 @@ pub fn prepare_loaded(
     classifier: &Classifier,
 ) -> Result<PreparedScene, PipelineError> {
     let capture = capture.into();
+    let started = std::time::Instant::now();
     let scene = superpixels_of(&capture)?;
+    tracing::debug!(
+        scene = %capture.name,
+        width = capture.image.width,
+        height = capture.image.height,
+        depth = capture.depth.is_some(),
+        segments = scene.segment_count(),
+        milliseconds = started.elapsed().as_millis() as u64,
+        "superpixels built"
+    );
+    let started = std::time::Instant::now();
     let unaries = builtin_unaries(&scene, classifier)?;
     let classifier_labels = best_classes(&unaries);
+    tracing::debug!(
+        classes = unaries.class_count(),
+        milliseconds = started.elapsed().as_millis() as u64,
+        "segments scored by the built-in classifier"
+    );
     Ok(PreparedScene {
         capture,
         scene,
@@ -200,6 +231,8 @@ pub struct TurnReport {
 /// The whole job's result.
 pub struct CorrectionReport {
     pub prepared: PreparedScene,
+    /// What the robot believed before any note: the joint solve with no constraint.
+    pub baseline: Correction,
     /// The last correction (None when no note could be read).
     pub correction: Option<Correction>,
     /// The correction after each note, in order (a failed parse repeats the previous one).
@@ -295,6 +328,7 @@ pub fn correct_notes(
         };
         let turn = conversation.add(&parse);
         let before = previous.as_ref().unwrap_or(&baseline);
+        let started = std::time::Instant::now();
         let correction = correct_turn(
             &TurnInputs {
                 scene: &prepared.scene,
@@ -307,6 +341,13 @@ pub fn correct_notes(
             confirm_safety,
             settings,
         )?;
+        tracing::debug!(
+            note = %utterance,
+            constraints = parse.constraints.len(),
+            changes = correction.changes.len(),
+            milliseconds = started.elapsed().as_millis() as u64,
+            "note solved"
+        );
         // Constraints of this note are the last ones in force; causes index into all of them.
         let first_new = correction
             .constraint_labels
@@ -347,6 +388,7 @@ pub fn correct_notes(
     }
     Ok(CorrectionReport {
         prepared,
+        baseline,
         correction: previous,
         after_each,
         turns,

@@ -152,9 +152,15 @@ fn fix(directory: &Path, out: &Path) {
         serde_json::from_str(&std::fs::read_to_string(out.join("scene_graph.json")).unwrap())
             .unwrap();
     assert!(!graph["objects"].as_array().unwrap().is_empty());
-    for picture in ["overlay_before.png", "overlay_after.png", "labels.png"] {
-        assert!(out.join(picture).is_file(), "{picture} written");
-    }
+    let before = read_rgb_png(&out.join("overlay_before.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let after = read_rgb_png(&out.join("overlay_after.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert_eq!(
+        (before.width, before.height),
+        (after.width, after.height),
+        "before and after are drawn at the same size"
+    );
+    let both = read_rgb_png(&out.join("before_after.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(both.width > after.width && both.height == after.height);
     let stdout = String::from_utf8_lossy(&result.stdout);
     assert!(stdout.contains("there are two mugs"), "{stdout}");
 }
@@ -165,6 +171,19 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
         let out = tempfile::tempdir().unwrap();
         fix(directory.path(), out.path());
     }
+    // An image file named directly is a scene too.
+    let out = tempfile::tempdir().unwrap();
+    fix(&Path::new(FIXTURES).join("living_room_320.jpg"), out.path());
+    // labels.png is a palette PNG whose pixel values are class ids.
+    let decoder = png::Decoder::new(std::fs::File::open(out.path().join("labels.png")).unwrap());
+    assert_eq!(
+        decoder.read_info().unwrap().info().color_type,
+        png::ColorType::Indexed
+    );
+    let labels =
+        sayso::raster::read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert_eq!((labels.width, labels.height), (320, 240));
+    assert!(labels.values.iter().all(|&value| value < 41));
 }
 
 /// The service over the joint pipeline and built-in classifier, its log in a fresh directory (returned so it

@@ -71,7 +71,7 @@ fn run_main_job(args: &DemoArgs) -> anyhow::Result<()> {
     let report = correct_notes(prepared, &notes, false, &settings)?;
     super::fix::write_outputs(&report, &taxonomy, &args.out)?;
     println!(
-        "{}: the built-in classifier's view is in overlay_before.png",
+        "{}: before_after.png shows the scene before the notes and after them",
         report.prepared.capture.name
     );
     for turn in &report.turns {
