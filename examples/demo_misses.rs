@@ -30,12 +30,8 @@ fn main() -> anyhow::Result<()> {
         if !only.is_empty() && !only.contains(&name) {
             continue;
         }
-        let source = SceneSource::Demo {
-            directory: directory.clone(),
-            name: Some(name.clone()),
-        };
-        let prepared = prepare_scene(&source, &classifier)?;
-        let demo = prepared.demo.clone();
+        let demo = sayso::demo::load_demo_scene(&directory, Some(&name))?;
+        let prepared = prepare_loaded(demo.capture(), &classifier)?;
         let scene = prepared.scene.clone();
         let notes: Vec<String> = sayso::evaluation::read_notes(&demo.directory)?
             .into_iter()

@@ -52,14 +52,10 @@ fn main() -> anyhow::Result<()> {
         if !only.is_empty() && !only.contains(&name) {
             continue;
         }
-        let source = SceneSource::Demo {
-            directory: directory.clone(),
-            name: Some(name.clone()),
-        };
         let started = Instant::now();
-        let prepared = prepare_scene(&source, &classifier)?;
+        let demo = sayso::demo::load_demo_scene(&directory, Some(&name))?;
+        let prepared = prepare_loaded(demo.capture(), &classifier)?;
         let prepare_seconds = started.elapsed().as_secs_f64();
-        let demo = prepared.demo.clone();
         let scene = prepared.scene.clone();
         let notes: Vec<String> = sayso::evaluation::read_notes(&demo.directory)?
             .into_iter()

@@ -35,7 +35,7 @@ fn main() -> anyhow::Result<()> {
     let (mut objects, mut iou_sum, mut hits, mut spills) = (0u64, 0.0f64, 0u64, 0u64);
     for index in 0..count as usize {
         let truth = render_training_scene(&taxonomy, 200_000 + index as u64, index)?;
-        let scene = superpixels_of(&truth)?;
+        let scene = superpixels_of(&truth.capture())?;
         let width = truth.labels.width as usize;
         let max_area = truth.labels.values.len() as u64 / sayso::grounding::POINTER_MAX_SHARE;
         for object in &truth.objects {

@@ -29,11 +29,11 @@ fn main() -> anyhow::Result<()> {
         let p = &t.prepared;
         let cm = label_map(&p.scene, &p.classifier_labels);
         let cls = object_accuracy(
-            &p.demo,
+            &t.truth,
             &objects_from_regions(p.scene.width() as usize, &cm.values),
         );
         let base = believe_without_notes(p, &settings)?;
-        let bo = object_accuracy(&p.demo, &objects_from_graph(&p.scene, &base.graph));
+        let bo = object_accuracy(&t.truth, &objects_from_graph(&p.scene, &base.graph));
         let inputs = TurnInputs {
             scene: &p.scene,
             unaries: &p.unaries,
@@ -56,20 +56,20 @@ fn main() -> anyhow::Result<()> {
             )?);
         }
         let g = prev.as_ref().map(|x| &x.graph).unwrap_or(&base.graph);
-        let ao = object_accuracy(&p.demo, &objects_from_graph(&p.scene, g));
+        let ao = object_accuracy(&t.truth, &objects_from_graph(&p.scene, g));
         let bl = score_labels(
-            &p.demo,
+            &t.truth,
             &label_map(&p.scene, &base.graph.segment_labels).values,
             taxonomy.class_count(),
         )?;
         let al = score_labels(
-            &p.demo,
+            &t.truth,
             &label_map(&p.scene, &g.segment_labels).values,
             taxonomy.class_count(),
         )?;
         println!(
             "{:<32} cls {:.3} base {:.3} after {:.3}  mIoU base {:.3} after {:.3}  {:?}",
-            p.demo.name, cls, bo, ao, bl.mean_iou, al.mean_iou, t.notes
+            t.truth.name, cls, bo, ao, bl.mean_iou, al.mean_iou, t.notes
         );
         c += cls;
         b += bo;

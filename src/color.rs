@@ -179,11 +179,42 @@ impl LabConverter {
     }
 }
 
+/// Lightness range of the class palette's colours (CIE L*): light enough to read over a dark photo, dark
+/// enough to show on white.
+pub const PALETTE_LIGHTNESS: std::ops::RangeInclusive<f32> = 50.0..=80.0;
+
+/// How much lightness counts when the palette spreads its colours: under a translucent tint a photo's own
+/// shading hides lightness differences, so colours are spread mostly by hue and chroma (the a*b* plane).
+pub const PALETTE_LIGHTNESS_WEIGHT: f32 = 0.3;
+
+/// For up to `PALETTE_SEPARATED_COUNT` colours, every pair of the palette is at least this far apart in CIE76
+/// delta E*ab (`tests` check it with this module's CIELAB, itself checked against scikit-image).
+pub const PALETTE_MIN_DELTA_E: f32 = 20.0;
+
+/// ... and at least this far apart in the a*b* plane alone (hue and chroma, lightness left out).
+pub const PALETTE_MIN_CHROMATIC_DISTANCE: f32 = 18.0;
+
+/// The palette size the two distances above are guaranteed (and tested) for: the taxonomy's 41 classes.
+pub const PALETTE_SEPARATED_COUNT: usize = 41;
+
+/// Distance in the a*b* plane (hue and chroma), lightness left out.
+pub fn chromatic_distance(first: Lab, second: Lab) -> f32 {
+    ((first.a - second.a).powi(2) + (first.b - second.b).powi(2)).sqrt()
+}
+
+fn palette_distance(first: Lab, second: Lab) -> f32 {
+    ((PALETTE_LIGHTNESS_WEIGHT * (first.l - second.l)).powi(2)
+        + (first.a - second.a).powi(2)
+        + (first.b - second.b).powi(2))
+    .sqrt()
+}
+
 /// Generates `count` colours that are well separated in CIELAB, deterministically.
 ///
-/// Candidates are an sRGB grid (every channel in steps of 17) restricted to lightness 35..85 so labels stay
-/// readable over images; the first pick is the candidate nearest a mid grey-blue, and every later pick is the
-/// candidate farthest (CIE76) from all picks so far (greedy farthest-point sampling).
+/// Candidates are an sRGB grid (every channel in steps of 17) restricted to `PALETTE_LIGHTNESS`; the first
+/// pick is the candidate nearest a mid grey-blue, and every later pick is the candidate farthest from all
+/// picks so far (greedy farthest-point sampling) in CIELAB with lightness weighted by
+/// `PALETTE_LIGHTNESS_WEIGHT`. See `PALETTE_MIN_DELTA_E` for what that guarantees.
 pub fn generate_palette(count: usize) -> Vec<[u8; 3]> {
     let mut candidates: Vec<([u8; 3], Lab)> = Vec::new();
     for r in (0..=255u16).step_by(17) {
@@ -191,7 +222,7 @@ pub fn generate_palette(count: usize) -> Vec<[u8; 3]> {
             for b in (0..=255u16).step_by(17) {
                 let rgb = [r as u8, g as u8, b as u8];
                 let lab = srgb8_to_lab(rgb);
-                if (35.0..=85.0).contains(&lab.l) {
+                if PALETTE_LIGHTNESS.contains(&lab.l) {
                     candidates.push((rgb, lab));
                 }
             }
@@ -214,7 +245,7 @@ pub fn generate_palette(count: usize) -> Vec<[u8; 3]> {
         let (rgb, lab) = candidates[pick];
         palette.push(rgb);
         for (distance, candidate) in nearest_distance.iter_mut().zip(candidates.iter()) {
-            *distance = distance.min(candidate.1.delta_e(lab));
+            *distance = distance.min(palette_distance(candidate.1, lab));
         }
         pick = nearest_distance
             .iter()
@@ -269,20 +300,32 @@ mod tests {
     }
 
     #[test]
-    fn palette_is_deterministic_and_separated() {
-        let first = generate_palette(41);
-        assert_eq!(first, generate_palette(41));
-        assert_eq!(first.len(), 41);
+    fn palette_is_deterministic_and_separated_by_hue_not_only_lightness() {
+        let first = generate_palette(PALETTE_SEPARATED_COUNT);
+        assert_eq!(first, generate_palette(PALETTE_SEPARATED_COUNT));
+        assert_eq!(first.len(), PALETTE_SEPARATED_COUNT);
         let labs: Vec<Lab> = first.iter().map(|&rgb| srgb8_to_lab(rgb)).collect();
-        let mut min_distance = f32::INFINITY;
+        let (mut closest, mut closest_chromatic) = (f32::INFINITY, f32::INFINITY);
         for i in 0..labs.len() {
+            assert!(
+                (PALETTE_LIGHTNESS.start() - 0.01..=PALETTE_LIGHTNESS.end() + 0.01)
+                    .contains(&labs[i].l),
+                "{:?} has L* {}",
+                first[i],
+                labs[i].l
+            );
             for j in (i + 1)..labs.len() {
-                min_distance = min_distance.min(labs[i].delta_e(labs[j]));
+                closest = closest.min(labs[i].delta_e(labs[j]));
+                closest_chromatic = closest_chromatic.min(chromatic_distance(labs[i], labs[j]));
             }
         }
         assert!(
-            min_distance > 10.0,
-            "closest pair only {min_distance} apart"
+            closest >= PALETTE_MIN_DELTA_E,
+            "closest pair {closest} apart"
+        );
+        assert!(
+            closest_chromatic >= PALETTE_MIN_CHROMATIC_DISTANCE,
+            "closest pair {closest_chromatic} apart in a*b*"
         );
     }
 }

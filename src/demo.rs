@@ -1,21 +1,25 @@
-//! The committed demo scenes: finding the `demo_scenes/` directory, listing its scenes and loading one.
+//! The committed demo scenes: finding the `demo_scenes/` directory, listing its scenes and loading one with
+//! its ground truth.
 //!
 //! The directory is `demo_scenes/` beside the crate's manifest (fixed at compile time), unless the
-//! `SAYSO_DEMO_DIR` environment variable or an explicit path says otherwise.
-//! Owns: `DemoScene` (the raw rasters and metadata of one scene directory) and `DemoError`.
-//! Must not: segment, classify or correct anything; it only reads files.
+//! `SAYSO_DEMO_DIR` environment variable or an explicit path says otherwise; every command and the service
+//! find it with `demo_directory` and a scene in it with `demo_scene_path`.
+//! Owns: `DemoScene` (a scene's capture plus its ground-truth layer: labels, instances, objects, the
+//! renderer's metadata), read only by evaluation, training and the trial, and `DemoError`.
+//! Must not: segment, classify or correct anything; it only reads files. The capture itself is read by
+//! `crate::scene::capture`, with file names from `crate::scene::files`.
 
 use std::path::{Path, PathBuf};
 
 use crate::raster::{
-    read_depth_png, read_index_png, read_rgb_png, DepthImage, IndexImage, RasterError, RgbImage,
-    DEFAULT_PIXEL_LIMIT,
+    read_index_png, DepthImage, IndexImage, RasterError, RgbImage, DEFAULT_PIXEL_LIMIT,
 };
 use crate::render::catalogue::DEMO_SCENES;
-use crate::render::writer::{
-    DEPTH_FILE, IMAGE_FILE, INSTANCES_FILE, LABELS_FILE, OBJECTS_FILE, SCENE_FILE,
-};
 use crate::render::{RenderedScene, SceneMetadata, SceneObject};
+use crate::scene::files::{
+    DEPTH_FILE, INSTANCES_FILE, LABELS_FILE, METADATA_FILE as SCENE_FILE, OBJECTS_FILE,
+};
+use crate::scene::{load_capture, Capture, SceneError};
 
 /// The environment variable that overrides where demo scenes are read from.
 pub const DEMO_DIR_VARIABLE: &str = "SAYSO_DEMO_DIR";
@@ -30,19 +34,25 @@ pub enum DemoError {
     NoDirectory(PathBuf),
     #[error("no demo scenes (directories holding {SCENE_FILE}) under {0}")]
     NoScenes(PathBuf),
-    #[error("no demo scene named '{name}' (available: {available})")]
-    UnknownScene { name: String, available: String },
+    #[error("no demo scene named '{name}' under {directory} (available: {available})")]
+    UnknownScene {
+        name: String,
+        directory: PathBuf,
+        available: String,
+    },
     #[error("demo scene file {0} is missing")]
     MissingFile(PathBuf),
     #[error(transparent)]
     Raster(#[from] RasterError),
+    #[error(transparent)]
+    Capture(#[from] SceneError),
     #[error("{path} is not valid: {message}")]
     BadJson { path: PathBuf, message: String },
     #[error("{path}: {message}")]
     Inconsistent { path: PathBuf, message: String },
 }
 
-/// One demo scene as stored: rasters plus records.
+/// One demo (or rendered) scene: its capture's rasters plus the ground-truth layer.
 #[derive(Clone, Debug, PartialEq)]
 pub struct DemoScene {
     pub name: String,
@@ -67,6 +77,31 @@ impl DemoScene {
             labels: rendered.labels,
             instances: rendered.instances,
             objects: rendered.objects,
+        }
+    }
+
+    /// What a robot would have of this scene: image and depth, no ground truth.
+    pub fn capture(&self) -> Capture {
+        Capture {
+            name: self.name.clone(),
+            directory: (!self.directory.as_os_str().is_empty()).then(|| self.directory.clone()),
+            image: self.image.clone(),
+            depth: Some(self.depth.clone()),
+            camera: None,
+            room: Some(self.metadata.room.clone()),
+        }
+    }
+}
+
+impl From<DemoScene> for Capture {
+    fn from(scene: DemoScene) -> Capture {
+        Capture {
+            directory: (!scene.directory.as_os_str().is_empty()).then_some(scene.directory),
+            name: scene.name,
+            image: scene.image,
+            depth: Some(scene.depth),
+            camera: None,
+            room: Some(scene.metadata.room),
         }
     }
 }
@@ -108,8 +143,9 @@ pub fn list_demo_scenes(directory: &Path) -> Result<Vec<String>, DemoError> {
     Ok(ordered)
 }
 
-/// Loads the scene `name` (or the first listed when `None`) from `directory`.
-pub fn load_demo_scene(directory: &Path, name: Option<&str>) -> Result<DemoScene, DemoError> {
+/// The directory of the demo scene `name` (or the first listed when `None`) under `directory`; the error
+/// names the directory looked in and the scenes it holds.
+pub fn demo_scene_path(directory: &Path, name: Option<&str>) -> Result<PathBuf, DemoError> {
     let names = list_demo_scenes(directory)?;
     let chosen = match name {
         Some(name) => names
@@ -118,6 +154,7 @@ pub fn load_demo_scene(directory: &Path, name: Option<&str>) -> Result<DemoScene
             .cloned()
             .ok_or_else(|| DemoError::UnknownScene {
                 name: name.to_string(),
+                directory: directory.to_path_buf(),
                 available: names.join(", "),
             })?,
         None => names
@@ -125,10 +162,17 @@ pub fn load_demo_scene(directory: &Path, name: Option<&str>) -> Result<DemoScene
             .cloned()
             .ok_or_else(|| DemoError::NoScenes(directory.to_path_buf()))?,
     };
-    load_scene_directory(&directory.join(&chosen))
+    Ok(directory.join(chosen))
 }
 
-/// Loads one scene directory and checks its parts agree in size.
+/// Loads the scene `name` (or the first listed when `None`) from `directory`, with its ground truth.
+pub fn load_demo_scene(directory: &Path, name: Option<&str>) -> Result<DemoScene, DemoError> {
+    load_scene_directory(&demo_scene_path(directory, name)?)
+}
+
+/// Loads one scene directory with its ground truth (the capture by `crate::scene::load_capture`, then
+/// `depth.png`, `labels.png`, `instances.png`, `objects.json` and `scene.json`, all required here) and checks
+/// its parts agree in size.
 pub fn load_scene_directory(scene_directory: &Path) -> Result<DemoScene, DemoError> {
     let file = |name: &str| -> Result<PathBuf, DemoError> {
         let path = scene_directory.join(name);
@@ -140,8 +184,11 @@ pub fn load_scene_directory(scene_directory: &Path) -> Result<DemoScene, DemoErr
     };
     let metadata: SceneMetadata = read_json(&file(SCENE_FILE)?)?;
     let objects: Vec<SceneObject> = read_json(&file(OBJECTS_FILE)?)?;
-    let image = read_rgb_png(&file(IMAGE_FILE)?, DEFAULT_PIXEL_LIMIT)?;
-    let depth = read_depth_png(&file(DEPTH_FILE)?, DEFAULT_PIXEL_LIMIT)?;
+    let capture = load_capture(scene_directory, DEFAULT_PIXEL_LIMIT)?;
+    let image = capture.image;
+    let depth = capture
+        .depth
+        .ok_or_else(|| DemoError::MissingFile(scene_directory.join(DEPTH_FILE)))?;
     let labels = read_index_png(&file(LABELS_FILE)?, DEFAULT_PIXEL_LIMIT)?;
     let instances = read_index_png(&file(INSTANCES_FILE)?, DEFAULT_PIXEL_LIMIT)?;
     for (name, width, height) in [
@@ -164,7 +211,7 @@ pub fn load_scene_directory(scene_directory: &Path) -> Result<DemoScene, DemoErr
         return Err(DemoError::Inconsistent {
             path: scene_directory.join(SCENE_FILE),
             message: format!(
-                "says {}x{} but {IMAGE_FILE} is {}x{}",
+                "says {}x{} but the image is {}x{}",
                 metadata.width, metadata.height, image.width, image.height
             ),
         });

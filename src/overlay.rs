@@ -1,19 +1,27 @@
-//! Drawing what the robot believes over its camera image: class colours blended over each pixel, region
-//! boundaries as thin dark lines, and a legend panel listing the classes present with swatches and shares.
+//! Drawing what the robot believes over its camera image so a person can read it: the photo under a
+//! translucent class tint, the outlines of the regions the caller names (objects, not superpixels), and a
+//! legend of the classes shown in mixed-case text; and a correction's before and after side by side at the
+//! same size, with the regions it changed ringed and named.
 //!
-//! Owns: `draw_overlay`, its options and its error type, and the bitmap font in `overlay::font`.
+//! Owns: `draw_overlay`, `draw_before_after`, their options and error type; painting (`overlay::paint`), the
+//! legend panel (`overlay::legend`) and text (`overlay::text`, the Go font by `ab_glyph`).
 //! Must not: decide labels (the caller passes them, from ground truth, a classifier or a corrected scene);
 //! class colours come only from `ClassInfo::colour`, the generated palette.
 
-pub mod font;
+pub mod legend;
+pub mod paint;
+pub mod text;
 
 use crate::ids::ClassId;
 use crate::raster::RgbImage;
 use crate::taxonomy::{Taxonomy, UNLABELLED};
 
-use font::{draw_text, text_width, GLYPH_HEIGHT};
+use legend::{display_name, legend_panel, wrap, LegendRow, PANEL_BACKGROUND, PANEL_TEXT};
+use paint::{mark_changes, outline_regions, tint, ChangedRegion};
+use text::{draw_text, line_height};
 
-/// Any per-pixel region map (superpixels, ground-truth instances, or labels themselves), row-major.
+/// Any per-pixel region map, row-major: its borders are outlined. Pass objects (scene-graph objects,
+/// ground-truth instances, or the labels themselves), not superpixels.
 #[derive(Clone, Copy, Debug)]
 pub struct RegionMap<'a> {
     pub width: u32,
@@ -32,20 +40,21 @@ pub enum Labelling<'a> {
 /// How the overlay looks.
 #[derive(Clone, Debug, PartialEq)]
 pub struct OverlayOptions {
-    /// Weight of the class colour over the image, 0..1.
+    /// Weight of the class colour over the photo, 0..1 (the photo keeps the rest).
     pub alpha: f32,
     /// A heading printed at the top of the legend (e.g. what the labels are).
     pub title: String,
-    /// Integer scale of the legend text (1 = 5x7 pixel glyphs).
-    pub text_scale: u32,
+    /// Text height in pixels.
+    pub text_size: f32,
 }
 
 impl Default for OverlayOptions {
+    /// A 40% tint (the photo stays readable under it; our own choice) and 15-pixel text.
     fn default() -> OverlayOptions {
         OverlayOptions {
-            alpha: 0.45,
+            alpha: 0.4,
             title: String::new(),
-            text_scale: 2,
+            text_size: 15.0,
         }
     }
 }
@@ -82,11 +91,8 @@ pub struct Overlay {
     pub legend: Vec<LegendEntry>,
 }
 
-const PANEL_BACKGROUND: [u8; 3] = [28, 30, 34];
-const PANEL_TEXT: [u8; 3] = [236, 236, 230];
-const BOUNDARY_DARKENING: f32 = 0.35;
-
-/// Blends class colours over `image`, draws region boundaries and a legend panel to the right.
+/// Tints `image` with the classes, outlines the regions of `regions` and puts a legend of the classes
+/// present (most pixels first, with their share) to the right.
 pub fn draw_overlay(
     image: &RgbImage,
     regions: RegionMap<'_>,
@@ -94,66 +100,118 @@ pub fn draw_overlay(
     taxonomy: &Taxonomy,
     options: &OverlayOptions,
 ) -> Result<Overlay, OverlayError> {
-    let count = image.pixel_count();
-    if regions.regions.len() != count || regions.width != image.width {
-        return Err(OverlayError::RegionSize {
-            found: regions.regions.len(),
-            expected: count,
-            width: image.width,
-        });
-    }
-    let class_at = pixel_classes(regions, labelling, count)?;
-    let mut pixels_per_class = vec![0u64; taxonomy.class_count()];
-    for &class in &class_at {
-        if class == UNLABELLED {
-            continue;
-        }
-        let slot = pixels_per_class
-            .get_mut(class as usize)
-            .ok_or(OverlayError::UnknownClass(class))?;
-        *slot += 1;
-    }
-    let alpha = options.alpha.clamp(0.0, 1.0);
-    let (width, height) = (image.width, image.height);
-    let mut blended = image.clone();
-    for (pixel, &class) in blended.pixels.iter_mut().zip(&class_at) {
-        if class == UNLABELLED {
-            continue;
-        }
-        if let Some(info) = taxonomy.class(ClassId(class)) {
-            for (value, &tint) in pixel.iter_mut().zip(&info.colour) {
-                let mixed = *value as f32 * (1.0 - alpha) + tint as f32 * alpha;
-                *value = mixed.round().clamp(0.0, 255.0) as u8;
-            }
-        }
-    }
-    // Boundaries: a pixel whose right or lower neighbour is in another region.
-    let w = width as usize;
-    for y in 0..height as usize {
-        for x in 0..w {
-            let here = regions.regions[y * w + x];
-            let right = x + 1 < w && regions.regions[y * w + x + 1] != here;
-            let below = y + 1 < height as usize && regions.regions[(y + 1) * w + x] != here;
-            if right || below {
-                let pixel = &mut blended.pixels[y * w + x];
-                for value in pixel.iter_mut() {
-                    *value = (*value as f32 * BOUNDARY_DARKENING).round() as u8;
-                }
-            }
-        }
-    }
-    let mut legend: Vec<LegendEntry> = pixels_per_class
-        .iter()
-        .enumerate()
-        .filter(|(_, pixels)| **pixels > 0)
-        .map(|(class, pixels)| LegendEntry {
-            class: ClassId(class as u16),
-            pixels: *pixels,
-        })
-        .collect();
-    legend.sort_by(|a, b| b.pixels.cmp(&a.pixels).then(a.class.cmp(&b.class)));
-    let image = compose_with_legend(&blended, &legend, taxonomy, options, count as u64);
+    check_regions(image, regions)?;
+    let class_at = pixel_classes(regions, labelling, image.pixel_count())?;
+    let legend = count_classes(&class_at, taxonomy)?;
+    let mut painted = tint(image, &class_at, taxonomy, options.alpha);
+    outline_regions(&mut painted, regions.regions, &class_at, taxonomy);
+    let rows = share_rows(taxonomy, &legend, &[], class_at.len() as u64);
+    let panel = legend_panel(
+        &wrap(&options.title, 28),
+        &rows,
+        taxonomy,
+        options.text_size,
+        image.height,
+    );
+    let image = beside(&[&painted, &panel], 0);
     Ok(Overlay { image, legend })
+}
+
+/// One labelled view of the image for `draw_before_after`.
+#[derive(Clone, Copy, Debug)]
+pub struct View<'a> {
+    /// Outlined regions (objects).
+    pub regions: RegionMap<'a>,
+    /// One class per pixel, row-major (`UNLABELLED` leaves the photo as it is).
+    pub labels: &'a [u16],
+    /// Printed above the view.
+    pub title: &'a str,
+}
+
+/// Before and after, drawn alike.
+#[derive(Clone, Debug, PartialEq)]
+pub struct BeforeAfter {
+    /// The two views side by side, titled, with one legend to the right.
+    pub side_by_side: RgbImage,
+    /// The before view alone, titled, with the same legend (so it has the size of `after`).
+    pub before: RgbImage,
+    /// The after view alone, titled, with the changed regions ringed and named, and the same legend.
+    pub after: RgbImage,
+    /// Classes in either view, most pixels after first, then those only before.
+    pub legend: Vec<LegendEntry>,
+    /// The regions whose class changed, largest first.
+    pub changed: Vec<ChangedRegion>,
+}
+
+/// Gap between the two views of `side_by_side`, in pixels.
+pub const VIEW_GAP: u32 = 8;
+
+/// Draws a correction's before and after at the same size: each view tinted and outlined, the after view
+/// with every changed region ringed and the larger ones named "New (was Old)", and one legend of the classes
+/// in either view with their share after (or "before only").
+pub fn draw_before_after(
+    image: &RgbImage,
+    before: View<'_>,
+    after: View<'_>,
+    taxonomy: &Taxonomy,
+    options: &OverlayOptions,
+) -> Result<BeforeAfter, OverlayError> {
+    let count = image.pixel_count();
+    for view in [before, after] {
+        check_regions(image, view.regions)?;
+        if view.labels.len() != count {
+            return Err(OverlayError::LabelSize {
+                found: view.labels.len(),
+                expected: count,
+            });
+        }
+    }
+    let before_counts = count_classes(before.labels, taxonomy)?;
+    let mut legend = count_classes(after.labels, taxonomy)?;
+    let only_before: Vec<LegendEntry> = before_counts
+        .into_iter()
+        .filter(|entry| !legend.iter().any(|shown| shown.class == entry.class))
+        .collect();
+    let rows = share_rows(taxonomy, &legend, &only_before, count as u64);
+    legend.extend(only_before);
+
+    let mut before_picture = tint(image, before.labels, taxonomy, options.alpha);
+    outline_regions(
+        &mut before_picture,
+        before.regions.regions,
+        before.labels,
+        taxonomy,
+    );
+    let mut after_picture = tint(image, after.labels, taxonomy, options.alpha);
+    outline_regions(
+        &mut after_picture,
+        after.regions.regions,
+        after.labels,
+        taxonomy,
+    );
+    let changed = mark_changes(
+        &mut after_picture,
+        before.labels,
+        after.labels,
+        taxonomy,
+        options.text_size,
+    );
+    let before_view = titled(&before_picture, before.title, options.text_size);
+    let after_view = titled(&after_picture, after.title, options.text_size);
+    let panel = legend_panel(
+        &wrap(&options.title, 28),
+        &rows,
+        taxonomy,
+        options.text_size,
+        before_view.height,
+    );
+    Ok(BeforeAfter {
+        side_by_side: beside(&[&before_view, &after_view, &panel], VIEW_GAP),
+        before: beside(&[&before_view, &panel], 0),
+        after: beside(&[&after_view, &panel], 0),
+        legend,
+        changed,
+    })
 }
 
 fn pixel_classes(
@@ -186,89 +244,107 @@ fn pixel_classes(
     }
 }
 
-fn compose_with_legend(
-    blended: &RgbImage,
-    legend: &[LegendEntry],
-    taxonomy: &Taxonomy,
-    options: &OverlayOptions,
-    total_pixels: u64,
-) -> RgbImage {
-    let scale = options.text_scale.max(1);
-    let line = (GLYPH_HEIGHT + 4) * scale;
-    let margin = 4 * scale;
-    let swatch = GLYPH_HEIGHT * scale;
-    let rows: Vec<String> = legend
+fn check_regions(image: &RgbImage, regions: RegionMap<'_>) -> Result<(), OverlayError> {
+    let count = image.pixel_count();
+    if regions.regions.len() != count || regions.width != image.width {
+        return Err(OverlayError::RegionSize {
+            found: regions.regions.len(),
+            expected: count,
+            width: image.width,
+        });
+    }
+    Ok(())
+}
+
+/// Pixels per class present, most first (ties by class id); an id outside the taxonomy is an error.
+fn count_classes(labels: &[u16], taxonomy: &Taxonomy) -> Result<Vec<LegendEntry>, OverlayError> {
+    let mut pixels_per_class = vec![0u64; taxonomy.class_count()];
+    for &class in labels {
+        if class == UNLABELLED {
+            continue;
+        }
+        *pixels_per_class
+            .get_mut(class as usize)
+            .ok_or(OverlayError::UnknownClass(class))? += 1;
+    }
+    let mut legend: Vec<LegendEntry> = pixels_per_class
         .iter()
-        .map(|entry| {
-            let share = entry.pixels as f64 * 100.0 / total_pixels.max(1) as f64;
-            if share < 0.1 {
-                format!("{} {:.2}%", taxonomy.class_name(entry.class), share)
-            } else {
-                format!("{} {:.1}%", taxonomy.class_name(entry.class), share)
-            }
+        .enumerate()
+        .filter(|(_, pixels)| **pixels > 0)
+        .map(|(class, pixels)| LegendEntry {
+            class: ClassId(class as u16),
+            pixels: *pixels,
         })
         .collect();
-    let title_lines = wrap(&options.title, 20);
-    let widest_row = rows
+    legend.sort_by(|a, b| b.pixels.cmp(&a.pixels).then(a.class.cmp(&b.class)));
+    Ok(legend)
+}
+
+/// Legend rows: "Name 12.3%" for `shown`, "Name (before only)" for `gone`; safety-critical classes say so.
+fn share_rows(
+    taxonomy: &Taxonomy,
+    shown: &[LegendEntry],
+    gone: &[LegendEntry],
+    total: u64,
+) -> Vec<LegendRow> {
+    shown
         .iter()
-        .map(|row| text_width(row, scale) + swatch + 3 * scale)
-        .chain(title_lines.iter().map(|text| text_width(text, scale)))
-        .max()
-        .unwrap_or(0);
-    let panel_width = widest_row + 2 * margin;
-    let needed_height = margin * 2 + line * (title_lines.len() as u32 + rows.len() as u32 + 1);
-    let height = blended.height.max(needed_height);
-    let mut out = RgbImage::filled(blended.width + panel_width, height, PANEL_BACKGROUND);
-    for y in 0..blended.height {
-        for x in 0..blended.width {
-            out.set(x, y, blended.get(x, y));
-        }
-    }
-    let left = blended.width + margin;
-    let mut y = margin;
-    for text in &title_lines {
-        draw_text(&mut out, left, y, text, scale, PANEL_TEXT);
-        y += line;
-    }
-    if !title_lines.is_empty() {
-        y += line / 2;
-    }
-    for (entry, row) in legend.iter().zip(&rows) {
-        let colour = taxonomy
-            .class(entry.class)
-            .map(|info| info.colour)
-            .unwrap_or([128, 128, 128]);
-        for dy in 0..swatch {
-            for dx in 0..swatch {
-                out.set(left + dx, y + dy, colour);
-            }
-        }
-        draw_text(
-            &mut out,
-            left + swatch + 3 * scale,
-            y,
-            row,
-            scale,
-            PANEL_TEXT,
-        );
-        y += line;
+        .map(|entry| (entry, false))
+        .chain(gone.iter().map(|entry| (entry, true)))
+        .map(|(entry, gone)| LegendRow {
+            class: entry.class,
+            text: {
+                let name = display_name(taxonomy.class_name(entry.class));
+                let note = if gone {
+                    "(before only)".to_string()
+                } else {
+                    let share = entry.pixels as f64 * 100.0 / total.max(1) as f64;
+                    if share < 0.1 {
+                        format!("{share:.2}%")
+                    } else {
+                        format!("{share:.1}%")
+                    }
+                };
+                let safety = if taxonomy.is_safety_critical(entry.class) {
+                    " (safety)"
+                } else {
+                    ""
+                };
+                format!("{name} {note}{safety}")
+            },
+        })
+        .collect()
+}
+
+/// The picture under a strip holding its title.
+fn titled(picture: &RgbImage, title: &str, text_size: f32) -> RgbImage {
+    let strip = line_height(text_size) + 8;
+    let mut out = RgbImage::filled(picture.width, picture.height + strip, PANEL_BACKGROUND);
+    paste(&mut out, picture, 0, strip);
+    draw_text(&mut out, 6, 4, title, text_size, PANEL_TEXT);
+    out
+}
+
+/// The pictures left to right, tops aligned, `gap` pixels apart, on the panel background.
+fn beside(pictures: &[&RgbImage], gap: u32) -> RgbImage {
+    let width = pictures.iter().map(|p| p.width).sum::<u32>()
+        + gap * (pictures.len() as u32).saturating_sub(1);
+    let height = pictures.iter().map(|p| p.height).max().unwrap_or(0);
+    let mut out = RgbImage::filled(width, height, PANEL_BACKGROUND);
+    let mut left = 0;
+    for picture in pictures {
+        paste(&mut out, picture, left, 0);
+        left += picture.width + gap;
     }
     out
 }
 
-/// Splits text into lines of at most `limit` characters at spaces.
-fn wrap(text: &str, limit: usize) -> Vec<String> {
-    let mut lines: Vec<String> = Vec::new();
-    for word in text.split_whitespace() {
-        match lines.last_mut() {
-            Some(last) if last.len() + 1 + word.len() <= limit => {
-                last.push(' ');
-                last.push_str(word);
-            }
-            _ => lines.push(word.to_string()),
+fn paste(canvas: &mut RgbImage, picture: &RgbImage, left: u32, top: u32) {
+    for y in 0..picture.height {
+        for x in 0..picture.width {
+            canvas.set(left + x, top + y, picture.get(x, y));
         }
     }
-    lines
 }
 
 #[cfg(test)]
@@ -286,7 +362,7 @@ mod tests {
     }
 
     #[test]
-    fn colours_blend_and_boundaries_darken() {
+    fn colours_tint_and_region_borders_take_the_class_colour() {
         let taxonomy = Taxonomy::embedded();
         let (image, regions, labels) = two_region_scene();
         let overlay = draw_overlay(
@@ -303,12 +379,11 @@ mod tests {
         let floor = taxonomy.class(ClassId(0)).unwrap().colour;
         let expected: Vec<u8> = floor
             .iter()
-            .map(|&c| (100.0 * 0.55 + c as f32 * 0.45).round() as u8)
+            .map(|&c| (100.0 * 0.6 + c as f32 * 0.4).round() as u8)
             .collect();
         assert_eq!(overlay.image.get(0, 0).to_vec(), expected);
-        // Column 3 touches region 1 on its right, so it is darkened.
-        let edge = overlay.image.get(3, 0);
-        assert!(edge[0] < expected[0] || expected[0] == 0);
+        // Column 3 touches region 1 on its right: it is outlined in its own class's full colour.
+        assert_eq!(overlay.image.get(3, 0), floor);
         assert_eq!(overlay.legend.len(), 2);
         assert_eq!(overlay.legend[0].pixels, 16);
         assert!(overlay.image.width > 8);

@@ -10,7 +10,7 @@ use std::path::{Path, PathBuf};
 
 use serde::Serialize;
 
-use crate::demo::{load_demo_scene, load_scene_directory, DemoError, DemoScene};
+use crate::demo::{demo_scene_path, DemoError};
 use crate::energy::build::{EnergyWeights, RoomClassPrior};
 use crate::energy::EnergyError;
 use crate::grounding::{ClarifyingQuestion, GroundingContext, GroundingIssue, KnownObject};
@@ -20,7 +20,8 @@ use crate::ids::ClassId;
 use crate::language::constraint::{Constraint, Focus, Span};
 use crate::language::error::{GrammarError, LanguageError};
 use crate::language::{Conversation, Grammar};
-use crate::scene::{Scene, SceneError, SceneParams};
+use crate::raster::{read_rgb_image, DEFAULT_PIXEL_LIMIT};
+use crate::scene::{load_capture, Capture, Scene, SceneError, SceneParams};
 use crate::scenegraph::changes::{Change, ChangeKind, ChangeStatus, Unmet};
 use crate::scenegraph::correct::{correct, Correction, CorrectionError, CorrectionRequest};
 use crate::scenegraph::differences::{difference_class, object_differences, ObjectDifference};
@@ -45,6 +46,9 @@ pub const COMPILED_MODEL_PATH: &str = concat!(
 pub enum PipelineError {
     #[error(transparent)]
     Scene(#[from] DemoError),
+    /// The scene's files could not be read (built only by `SceneSource::load`).
+    #[error("reading the scene: {0}")]
+    Capture(SceneError),
     #[error("building superpixels: {0}")]
     Superpixels(#[from] SceneError),
     #[error("built-in classifier: {0}")]
@@ -67,16 +71,20 @@ pub enum SceneSource {
         directory: PathBuf,
         name: Option<String>,
     },
-    /// A scene directory (image.png, depth.png, labels.png, instances.png, scene.json, objects.json).
+    /// A scene directory: an image (PNG or JPEG), optionally depth and camera (`crate::scene::files`).
     Directory(PathBuf),
+    /// One image file, PNG or JPEG: a scene with no depth.
+    Image(PathBuf),
 }
 
 impl SceneSource {
-    /// A demo scene name, or a path when the text names an existing directory.
+    /// A scene directory or an image file when the text names one that exists, else a demo scene name.
     pub fn from_text(text: &str, demo_directory: &Path) -> SceneSource {
         let path = Path::new(text);
         if path.is_dir() {
             SceneSource::Directory(path.to_path_buf())
+        } else if path.is_file() {
+            SceneSource::Image(path.to_path_buf())
         } else {
             SceneSource::Demo {
                 directory: demo_directory.to_path_buf(),
@@ -85,11 +93,28 @@ impl SceneSource {
         }
     }
 
-    pub fn load(&self) -> Result<DemoScene, DemoError> {
+    /// The scene's directory: the given one, or the demo scene's under the demo directory.
+    pub fn directory(&self) -> Result<PathBuf, DemoError> {
         match self {
-            SceneSource::Demo { directory, name } => load_demo_scene(directory, name.as_deref()),
-            SceneSource::Directory(path) => load_scene_directory(path),
+            SceneSource::Demo { directory, name } => demo_scene_path(directory, name.as_deref()),
+            SceneSource::Directory(path) => Ok(path.clone()),
+            SceneSource::Image(path) => {
+                Ok(path.parent().map_or_else(PathBuf::new, Path::to_path_buf))
+            }
         }
+    }
+
+    /// Reads what a robot would have of the scene (`crate::scene::load_capture`); never its ground truth.
+    pub fn load(&self) -> Result<Capture, PipelineError> {
+        if let SceneSource::Image(path) = self {
+            let image = read_rgb_image(path, DEFAULT_PIXEL_LIMIT)
+                .map_err(|error| PipelineError::Capture(error.into()))?;
+            let name = path.file_stem().map_or("scene".to_string(), |stem| {
+                stem.to_string_lossy().into_owned()
+            });
+            return Ok(Capture::from_image(name, image));
+        }
+        load_capture(&self.directory()?, DEFAULT_PIXEL_LIMIT).map_err(PipelineError::Capture)
     }
 }
 
@@ -104,9 +129,9 @@ pub fn model_path(explicit: Option<&Path>) -> PathBuf {
     }
 }
 
-/// A scene ready for correction: the raw files, the superpixel scene and the classifier's scores.
+/// A scene ready for correction: the capture, the superpixel scene and the classifier's scores.
 pub struct PreparedScene {
-    pub demo: DemoScene,
+    pub capture: Capture,
     pub scene: Scene,
     pub unaries: Unaries,
     /// The classifier's best class per fine segment (what it believes with no correction).
@@ -121,27 +146,40 @@ pub fn prepare_scene(
     prepare_loaded(source.load()?, classifier)
 }
 
-/// The superpixels of a loaded scene as the pipeline builds them (scene defaults, with its depth map).
-pub fn superpixels_of(demo: &DemoScene) -> Result<Scene, PipelineError> {
-    Ok(Scene::from_image(
-        demo.name.clone(),
-        demo.image.clone(),
-        Some(demo.depth.clone()),
-        None,
-        &SceneParams::default(),
-    )?)
+/// The superpixels of a capture as the pipeline builds them (scene defaults, with its depth map when it has
+/// one; the declared room is left to the solve).
+pub fn superpixels_of(capture: &Capture) -> Result<Scene, PipelineError> {
+    Ok(capture.segment(None, &SceneParams::default())?)
 }
 
-/// Builds superpixels of an already loaded scene and scores them with the classifier.
+/// Builds superpixels of an already loaded scene (a `Capture`, or a `DemoScene` whose ground truth is then
+/// dropped) and scores them with the classifier.
 pub fn prepare_loaded(
-    demo: DemoScene,
+    capture: impl Into<Capture>,
     classifier: &Classifier,
 ) -> Result<PreparedScene, PipelineError> {
-    let scene = superpixels_of(&demo)?;
+    let capture = capture.into();
+    let started = std::time::Instant::now();
+    let scene = superpixels_of(&capture)?;
+    tracing::debug!(
+        scene = %capture.name,
+        width = capture.image.width,
+        height = capture.image.height,
+        depth = capture.depth.is_some(),
+        segments = scene.segment_count(),
+        milliseconds = started.elapsed().as_millis() as u64,
+        "superpixels built"
+    );
+    let started = std::time::Instant::now();
     let unaries = builtin_unaries(&scene, classifier)?;
     let classifier_labels = best_classes(&unaries);
+    tracing::debug!(
+        classes = unaries.class_count(),
+        milliseconds = started.elapsed().as_millis() as u64,
+        "segments scored by the built-in classifier"
+    );
     Ok(PreparedScene {
-        demo,
+        capture,
         scene,
         unaries,
         classifier_labels,
@@ -193,6 +231,8 @@ pub struct TurnReport {
 /// The whole job's result.
 pub struct CorrectionReport {
     pub prepared: PreparedScene,
+    /// What the robot believed before any note: the joint solve with no constraint.
+    pub baseline: Correction,
     /// The last correction (None when no note could be read).
     pub correction: Option<Correction>,
     /// The correction after each note, in order (a failed parse repeats the previous one).
@@ -288,6 +328,7 @@ pub fn correct_notes(
         };
         let turn = conversation.add(&parse);
         let before = previous.as_ref().unwrap_or(&baseline);
+        let started = std::time::Instant::now();
         let correction = correct_turn(
             &TurnInputs {
                 scene: &prepared.scene,
@@ -300,6 +341,13 @@ pub fn correct_notes(
             confirm_safety,
             settings,
         )?;
+        tracing::debug!(
+            note = %utterance,
+            constraints = parse.constraints.len(),
+            changes = correction.changes.len(),
+            milliseconds = started.elapsed().as_millis() as u64,
+            "note solved"
+        );
         // Constraints of this note are the last ones in force; causes index into all of them.
         let first_new = correction
             .constraint_labels
@@ -340,6 +388,7 @@ pub fn correct_notes(
     }
     Ok(CorrectionReport {
         prepared,
+        baseline,
         correction: previous,
         after_each,
         turns,
@@ -563,7 +612,7 @@ fn status_prefix(status: ChangeStatus) -> &'static str {
 /// The plain-text summary: per note, what was understood, what changed and why, what is unmet, questions and
 /// pending safety confirmations.
 pub fn report_text(report: &CorrectionReport, taxonomy: &Taxonomy) -> String {
-    let mut text = format!("scene: {}\n", report.prepared.demo.name);
+    let mut text = format!("scene: {}\n", report.prepared.capture.name);
     for (index, turn) in report.turns.iter().enumerate() {
         text.push_str(&format!("\nnote {}: {:?}\n", index + 1, turn.utterance));
         if let Some(error) = &turn.parse_error {

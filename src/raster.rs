@@ -1,7 +1,8 @@
-//! Plain raster containers and their PNG encoding: RGB images, 16-bit depth maps, index (label) maps.
+//! Plain raster containers and their file encodings: RGB images, 16-bit depth maps, index (label) maps.
 //!
-//! Owns: `RgbImage`, `DepthImage`, `IndexImage`, reading and writing them as PNG with typed errors and a
-//! pixel limit.
+//! Owns: `RgbImage`, `DepthImage`, `IndexImage`, reading and writing them as PNG (by the `png` crate; index
+//! maps also as palette PNG with colours the caller gives) and reading colour images from JPEG (`jpeg`,
+//! by `zune-jpeg`), with typed errors and a pixel limit checked before decoding.
 //! Must not: know about segments, classes or scenes; a raster is only numbers on a grid.
 
 use std::fs::File;
@@ -9,6 +10,10 @@ use std::io::{BufReader, BufWriter, Read, Write};
 use std::path::{Path, PathBuf};
 
 use serde::{Deserialize, Serialize};
+
+pub mod jpeg;
+
+pub use jpeg::is_jpeg;
 
 /// The largest image sayso accepts by default (about 16.8 megapixels).
 pub const DEFAULT_PIXEL_LIMIT: u64 = 4096 * 4096;
@@ -45,8 +50,13 @@ pub enum RasterError {
         path: PathBuf,
         source: std::io::Error,
     },
-    #[error("{path} is not a readable PNG: {message}")]
-    Decode { path: PathBuf, message: String },
+    #[error("{path} is not a readable {format}: {message}")]
+    Decode {
+        path: PathBuf,
+        /// "PNG" or "JPEG".
+        format: &'static str,
+        message: String,
+    },
     #[error("cannot write {path}: {message}")]
     Encode { path: PathBuf, message: String },
     #[error("{path} is {width}x{height} = {pixels} pixels, above the limit of {limit}")]
@@ -142,13 +152,23 @@ fn decode_png(path: &Path, limit: u64) -> Result<Decoded, RasterError> {
 }
 
 fn decode_png_from<R: Read>(reader: R, path: &Path, limit: u64) -> Result<Decoded, RasterError> {
+    decode_png_with(reader, path, limit, png::Transformations::EXPAND)
+}
+
+fn decode_png_with<R: Read>(
+    reader: R,
+    path: &Path,
+    limit: u64,
+    transformations: png::Transformations,
+) -> Result<Decoded, RasterError> {
     let decode_error = |message: String| RasterError::Decode {
         path: path.to_path_buf(),
+        format: "PNG",
         message,
     };
     let mut decoder = png::Decoder::new(reader);
-    // Expand palettes and sub-byte depths, keep 16-bit samples as they are.
-    decoder.set_transformations(png::Transformations::EXPAND);
+    // By default: expand palettes and sub-byte depths, keep 16-bit samples as they are.
+    decoder.set_transformations(transformations);
     let mut reader = decoder
         .read_info()
         .map_err(|error| decode_error(error.to_string()))?;
@@ -241,6 +261,24 @@ pub fn read_rgb_png(path: &Path, limit: u64) -> Result<RgbImage, RasterError> {
     rgb_from_decoded(decode_png(path, limit)?, path)
 }
 
+/// Reads a colour image from PNG or JPEG bytes (told apart by their signatures); `origin` names it in errors.
+pub fn decode_rgb_image(bytes: &[u8], origin: &Path, limit: u64) -> Result<RgbImage, RasterError> {
+    if is_jpeg(bytes) {
+        jpeg::decode_rgb_jpeg(bytes, origin, limit)
+    } else {
+        decode_rgb_png(bytes, origin, limit)
+    }
+}
+
+/// Reads a colour image file, PNG or JPEG (told apart by content, not by the file name).
+pub fn read_rgb_image(path: &Path, limit: u64) -> Result<RgbImage, RasterError> {
+    let bytes = std::fs::read(path).map_err(|source| RasterError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    decode_rgb_image(&bytes, path, limit)
+}
+
 /// Reads an RGB PNG from bytes; `origin` names it in errors.
 pub fn decode_rgb_png(bytes: &[u8], origin: &Path, limit: u64) -> Result<RgbImage, RasterError> {
     rgb_from_decoded(decode_png_from(bytes, origin, limit)?, origin)
@@ -257,15 +295,14 @@ pub fn read_depth_png(path: &Path, limit: u64) -> Result<DepthImage, RasterError
     })
 }
 
-/// Reads a single-channel index PNG (8- or 16-bit).
+/// Reads a single-channel index PNG (8- or 16-bit greyscale, or an 8-bit palette PNG whose pixel values are
+/// the indices, as `write_palette_png` writes).
 pub fn read_index_png(path: &Path, limit: u64) -> Result<IndexImage, RasterError> {
-    let decoded = decode_png(path, limit)?;
-    let values = single_channel(&decoded, path)?;
-    Ok(IndexImage {
-        width: decoded.width,
-        height: decoded.height,
-        values,
-    })
+    let bytes = std::fs::read(path).map_err(|source| RasterError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    decode_index_png(&bytes, path, limit)
 }
 
 /// Reads an index PNG from bytes; `origin` names it in errors.
@@ -274,6 +311,18 @@ pub fn decode_index_png(
     origin: &Path,
     limit: u64,
 ) -> Result<IndexImage, RasterError> {
+    let mut header = png::Decoder::new(bytes);
+    let palette_indices = header.read_header_info().is_ok_and(|info| {
+        info.color_type == png::ColorType::Indexed && info.bit_depth == png::BitDepth::Eight
+    });
+    if palette_indices {
+        let raw = decode_png_with(bytes, origin, limit, png::Transformations::IDENTITY)?;
+        return Ok(IndexImage {
+            width: raw.width,
+            height: raw.height,
+            values: raw.bytes.iter().map(|&value| u16::from(value)).collect(),
+        });
+    }
     let decoded = decode_png_from(bytes, origin, limit)?;
     let values = single_channel(&decoded, origin)?;
     Ok(IndexImage {
@@ -373,6 +422,51 @@ pub fn encode_index_png(image: &IndexImage) -> Result<Vec<u8>, String> {
         )?;
     }
     Ok(bytes)
+}
+
+/// Encodes an index map as an 8-bit palette PNG: pixel value `v` shows as `palette[v]`. Every value must be
+/// below 256 and have a colour; `palette` holds at most 256 colours.
+pub fn encode_palette_png(image: &IndexImage, palette: &[[u8; 3]]) -> Result<Vec<u8>, String> {
+    if palette.is_empty() || palette.len() > 256 {
+        return Err(format!(
+            "a palette PNG holds 1 to 256 colours, not {}",
+            palette.len()
+        ));
+    }
+    let mut data = Vec::with_capacity(image.values.len());
+    for &value in &image.values {
+        if value as usize >= palette.len() {
+            return Err(format!(
+                "value {value} has no colour in a palette of {}",
+                palette.len()
+            ));
+        }
+        data.push(value as u8);
+    }
+    let mut bytes = Vec::new();
+    let mut encoder = png::Encoder::new(&mut bytes, image.width, image.height);
+    encoder.set_color(png::ColorType::Indexed);
+    encoder.set_depth(png::BitDepth::Eight);
+    encoder.set_palette(palette.iter().flatten().copied().collect::<Vec<u8>>());
+    encoder.set_compression(png::Compression::Best);
+    let mut writer = encoder.write_header().map_err(|error| error.to_string())?;
+    writer
+        .write_image_data(&data)
+        .map_err(|error| error.to_string())?;
+    writer.finish().map_err(|error| error.to_string())?;
+    Ok(bytes)
+}
+
+/// Writes an index map as a palette PNG (see `encode_palette_png`).
+pub fn write_palette_png(
+    path: &Path,
+    image: &IndexImage,
+    palette: &[[u8; 3]],
+) -> Result<(), RasterError> {
+    write_file(path, |bytes| {
+        *bytes = encode_palette_png(image, palette)?;
+        Ok(())
+    })
 }
 
 /// Writes an RGB PNG.

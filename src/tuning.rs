@@ -158,7 +158,7 @@ pub fn count_statistics(
             .room_by_name(&rendered.metadata.room)
             .ok_or_else(|| TuningError::UnknownRoom(rendered.metadata.room.clone()))?;
         rooms.add_scene(room.id.index(), &rendered.labels.values)?;
-        let scene = superpixels_of(&rendered)?;
+        let scene = superpixels_of(&rendered.capture())?;
         instances.add_scene(&scene, &rendered.labels.values, &rendered.instances.values)?;
         progress(&rendered.name);
     }
@@ -202,9 +202,12 @@ pub fn training_notes(taxonomy: &Taxonomy, scene: &DemoScene) -> Vec<String> {
     notes
 }
 
-/// One tuning scene: prepared (superpixels and the classifier's scores) with its training notes.
+/// One tuning scene: prepared (superpixels and the classifier's scores) with its ground truth and training
+/// notes.
 pub struct TuningScene {
     pub prepared: PreparedScene,
+    /// The render's ground truth, which the tuning scores against.
+    pub truth: DemoScene,
     pub notes: Vec<String>,
     /// The classifier alone, scored once: what every state's shortfall is measured against.
     pub classifier: SceneScore,
@@ -223,15 +226,12 @@ pub fn prepare_tuning_scenes(
         let demo = render_training_scene(taxonomy, seed, index)?;
         let notes = training_notes(taxonomy, &demo);
         progress(&format!("{} ({})", demo.name, notes.join("; ")));
-        let prepared = prepare_loaded(demo, classifier)?;
+        let prepared = prepare_loaded(demo.capture(), classifier)?;
         let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels);
-        let classifier = score_labels(
-            &prepared.demo,
-            &classifier_map.values,
-            taxonomy.class_count(),
-        )?;
+        let classifier = score_labels(&demo, &classifier_map.values, taxonomy.class_count())?;
         scenes.push(TuningScene {
             prepared,
+            truth: demo,
             notes,
             classifier,
         });
@@ -240,14 +240,14 @@ pub fn prepare_tuning_scenes(
 }
 
 fn state_score(
-    prepared: &PreparedScene,
+    tuning: &TuningScene,
     graph: &SceneGraph,
     class_count: usize,
-    classifier: &SceneScore,
 ) -> Result<f64, TuningError> {
+    let (prepared, classifier) = (&tuning.prepared, &tuning.classifier);
     let labels = label_map(&prepared.scene, &graph.segment_labels);
-    let score = score_labels(&prepared.demo, &labels.values, class_count)?;
-    let objects = object_accuracy(&prepared.demo, &objects_from_graph(&prepared.scene, graph));
+    let score = score_labels(&tuning.truth, &labels.values, class_count)?;
+    let objects = object_accuracy(&tuning.truth, &objects_from_graph(&prepared.scene, graph));
     let shortfall = (classifier.pixel_accuracy - score.pixel_accuracy).max(0.0)
         + (classifier.mean_iou - score.mean_iou).max(0.0);
     Ok(0.5 * (score.mean_iou + objects) - SHORTFALL_WEIGHT * shortfall)
@@ -297,12 +297,7 @@ pub fn objective(
     let mut states = 0usize;
     for tuning in scenes {
         walk_states(tuning, settings, |correction| {
-            total += state_score(
-                &tuning.prepared,
-                &correction.graph,
-                class_count,
-                &tuning.classifier,
-            )?;
+            total += state_score(tuning, &correction.graph, class_count)?;
             states += 1;
             Ok(())
         })?;

@@ -104,7 +104,7 @@ pub fn cut_objective(scenes: &[TuningScene], states: &[SolvedState], cuts: &Inst
         };
         let prepared = &tuning.prepared;
         let objects = formed_objects(&prepared.scene, state, cuts);
-        total += object_accuracy(&prepared.demo, &objects);
+        total += object_accuracy(&tuning.truth, &objects);
         counted += 1;
     }
     if counted == 0 {
@@ -144,7 +144,7 @@ pub fn refine_cuts(
     let mut trials = Vec::new();
     let mut objects: BTreeMap<String, u64> = BTreeMap::new();
     for tuning in scenes {
-        for object in &tuning.prepared.demo.objects {
+        for object in &tuning.truth.objects {
             *objects.entry(object.class.clone()).or_default() += 1;
         }
     }

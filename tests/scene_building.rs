@@ -399,7 +399,10 @@ fn scene_directory_errors_name_the_file_and_the_problem() {
     std::fs::remove_file(path.join("image.png")).unwrap();
     let error = load(&path).unwrap_err();
     assert!(
-        matches!(error, SceneError::MissingFile { .. }) && error.to_string().contains("image.png")
+        matches!(error, SceneError::NoImage { .. })
+            && error.to_string().contains("image.png")
+            && error.to_string().contains("image.jpg"),
+        "{error}"
     );
     let error = load(&path.join("nowhere")).unwrap_err();
     assert!(matches!(error, SceneError::NotADirectory { .. }), "{error}");

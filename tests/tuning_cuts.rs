@@ -30,7 +30,7 @@ fn refined_cuts_score_the_scene_graphs_objects_and_never_lose() {
             .expect("solved")
             .graph;
         let expected = object_accuracy(
-            &tuning.prepared.demo,
+            &tuning.truth,
             &objects_from_graph(&tuning.prepared.scene, &graph),
         );
         let first: Vec<&SolvedState> = states.iter().filter(|s| s.scene == index).collect();

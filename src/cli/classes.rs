@@ -1,9 +1,12 @@
 //! `sayso classes`: print the class taxonomy with groups, safety flags and generated colours.
 //!
-//! Owns: the table layout of that listing. Must not: change the taxonomy.
+//! Owns: the table layout of that listing (columns aligned by `comfy-table`, no borders, no colour codes).
+//! Must not: change the taxonomy.
 
 use std::path::PathBuf;
 
+use comfy_table::presets::NOTHING;
+use comfy_table::{CellAlignment, Table};
 use sayso::taxonomy::Taxonomy;
 
 /// Print the class taxonomy (id, name, group, safety flag, colour, typical rooms).
@@ -26,10 +29,9 @@ pub fn run(args: ClassesArgs) -> anyhow::Result<()> {
         println!("{}", serde_json::to_string_pretty(&taxonomy)?);
         return Ok(());
     }
-    println!(
-        "{:>3}  {:<10} {:<10} {:<6} {:<8} rooms",
-        "id", "name", "group", "safety", "colour"
-    );
+    let mut table = Table::new();
+    table.load_style(NOTHING);
+    table.set_header(["id", "name", "group", "safety", "colour", "rooms"]);
     for class in taxonomy.classes() {
         let rooms: Vec<&str> = class
             .rooms
@@ -37,14 +39,20 @@ pub fn run(args: ClassesArgs) -> anyhow::Result<()> {
             .filter_map(|room| taxonomy.room(*room).map(|info| info.name.as_str()))
             .collect();
         let [r, g, b] = class.colour;
-        println!(
-            "{:>3}  {:<10} {:<10} {:<6} #{r:02x}{g:02x}{b:02x}  {}",
-            class.id,
-            class.name,
+        table.add_row([
+            class.id.to_string(),
+            class.name.clone(),
             format!("{:?}", class.group).to_lowercase(),
-            if class.safety { "yes" } else { "" },
-            rooms.join(",")
-        );
+            if class.safety { "yes" } else { "" }.to_string(),
+            format!("#{r:02x}{g:02x}{b:02x}"),
+            rooms.join(","),
+        ]);
+    }
+    if let Some(column) = table.column_mut(0) {
+        column.set_cell_alignment(CellAlignment::Right);
+    }
+    for line in table.lines() {
+        println!("{}", line.trim_end());
     }
     Ok(())
 }

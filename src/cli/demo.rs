@@ -9,7 +9,9 @@
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::demo::{demo_directory, load_demo_scene, summarise, summary_text, BeliefSource};
+use sayso::demo::{
+    demo_directory, demo_scene_path, load_demo_scene, summarise, summary_text, BeliefSource,
+};
 use sayso::evaluation::read_pointed_notes;
 use sayso::overlay::{draw_overlay, Labelling, OverlayOptions, RegionMap};
 use sayso::pipeline::{
@@ -17,6 +19,8 @@ use sayso::pipeline::{
     PointedNote,
 };
 use sayso::raster::write_rgb_png;
+use sayso::raster::DEFAULT_PIXEL_LIMIT;
+use sayso::scene::load_capture;
 use sayso::scenegraph::changes::ChangeKind;
 use sayso::taxonomy::Taxonomy;
 
@@ -55,19 +59,20 @@ pub struct DemoArgs {
 fn run_main_job(args: &DemoArgs) -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();
     let directory = demo_directory(args.demo_dir.as_deref());
-    let demo = load_demo_scene(&directory, args.scene.as_deref())?;
+    let scene_directory = demo_scene_path(&directory, args.scene.as_deref())?;
+    let capture = load_capture(&scene_directory, DEFAULT_PIXEL_LIMIT)?;
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let settings = CorrectionSettings::embedded()?;
-    let prepared = prepare_loaded(demo, &classifier)?;
-    let notes: Vec<PointedNote> = read_pointed_notes(&prepared.demo.directory)?
+    let prepared = prepare_loaded(capture, &classifier)?;
+    let notes: Vec<PointedNote> = read_pointed_notes(&scene_directory)?
         .into_iter()
         .take(args.notes)
         .collect();
     let report = correct_notes(prepared, &notes, false, &settings)?;
     super::fix::write_outputs(&report, &taxonomy, &args.out)?;
     println!(
-        "{}: the built-in classifier's view is in overlay_before.png",
-        report.prepared.demo.name
+        "{}: before_after.png shows the scene before the notes and after them",
+        report.prepared.capture.name
     );
     for turn in &report.turns {
         let relabelled = turn

@@ -1,28 +1,28 @@
 //! `sayso fix`: the main job on the command line. A scene (demo name or directory) and one or more operator
 //! notes in; the corrected scene graph, label map, before/after overlays and a plain summary out.
 //!
-//! Owns: the flags, the output file names, drawing the two overlays.
+//! Owns: the flags, the output file names, drawing the before and after pictures.
 //! Must not: run pipeline stages itself; everything goes through `sayso::pipeline`.
 
 use std::path::{Path, PathBuf};
 
 use anyhow::Context;
 use sayso::demo::demo_directory;
-use sayso::ids::ClassId;
 use sayso::language::parse_focus;
-use sayso::overlay::{draw_overlay, Labelling, OverlayOptions, RegionMap};
+use sayso::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
 use sayso::pipeline::{
     correct_prepared, load_classifier, model_path, prepare_loaded, report_text, CorrectionReport,
     CorrectionSettings, SceneSource,
 };
-use sayso::raster::{write_index_png, write_rgb_png};
-use sayso::scenegraph::label_map;
-use sayso::taxonomy::Taxonomy;
+use sayso::raster::{write_palette_png, write_rgb_png};
+use sayso::scenegraph::{label_map, SceneGraph};
+use sayso::taxonomy::{Taxonomy, UNLABELLED};
 
 /// Correct a scene from operator notes.
 #[derive(Debug, clap::Args)]
 pub struct FixArgs {
-    /// A demo scene name or a scene directory.
+    /// A demo scene name, an image file (PNG or JPEG), or a scene directory holding at least an image
+    /// (image.png, image.jpg or image.jpeg; optionally depth.png, camera.json and scene.json).
     pub scene: String,
     /// An operator note; repeat for several, applied in order as one conversation.
     #[arg(long = "say", required = true)]
@@ -48,10 +48,10 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
     let focus = args.focus.as_deref().map(parse_focus).transpose()?;
     let taxonomy = Taxonomy::embedded();
     let source = SceneSource::from_text(&args.scene, &demo_directory(args.demo_dir.as_deref()));
-    let demo = source.load()?;
+    let capture = source.load()?;
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let settings = CorrectionSettings::embedded()?;
-    let prepared = prepare_loaded(demo, &classifier)?;
+    let prepared = prepare_loaded(capture, &classifier)?;
     let report = correct_prepared(prepared, &args.say, focus, args.confirm, &settings)?;
     write_outputs(&report, &taxonomy, &args.out)?;
     print!("{}", report_text(&report, &taxonomy));
@@ -59,56 +59,103 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
-fn overlay_png(
-    report: &CorrectionReport,
-    labels: &[ClassId],
-    title: String,
-    taxonomy: &Taxonomy,
-    path: &Path,
-) -> anyhow::Result<()> {
-    let scene = &report.prepared.scene;
-    let overlay = draw_overlay(
-        &scene.image,
-        RegionMap {
-            width: scene.segments.width,
-            regions: &scene.segments.labels,
-        },
-        Labelling::PerRegion(labels),
-        taxonomy,
-        &OverlayOptions {
-            title,
-            ..OverlayOptions::default()
-        },
-    )?;
-    write_rgb_png(path, &overlay.image)?;
-    Ok(())
+/// Per pixel: the scene-graph object it belongs to, or (outside every object) a region per class, so the
+/// outlines follow objects and class borders, never superpixels.
+fn object_regions(scene: &sayso::scene::Scene, graph: &SceneGraph) -> Vec<u32> {
+    let mut object_of = vec![None; scene.segment_count()];
+    for (index, object) in graph.objects.iter().enumerate() {
+        for member in &object.members {
+            if let Some(slot) = object_of.get_mut(member.index()) {
+                *slot = Some(index as u32);
+            }
+        }
+    }
+    scene
+        .segments
+        .labels
+        .iter()
+        .map(|&segment| {
+            let segment = segment as usize;
+            match object_of.get(segment).copied().flatten() {
+                Some(object) => object,
+                None => {
+                    let class = graph
+                        .segment_labels
+                        .get(segment)
+                        .map_or(u32::from(u16::MAX), |c| u32::from(c.0));
+                    u32::MAX - class
+                }
+            }
+        })
+        .collect()
 }
 
-/// Writes scene_graph.json, labels.png, overlay_before.png, overlay_after.png and summary.txt.
+/// The class colours as a 256-entry palette for `labels.png`: class `i` is `palette[i]`, unlabelled (255) is
+/// black, unused entries grey.
+fn label_palette(taxonomy: &Taxonomy) -> Vec<[u8; 3]> {
+    let mut palette = vec![[128, 128, 128]; 256];
+    for class in taxonomy.classes() {
+        if let Some(slot) = palette.get_mut(class.id.index()) {
+            *slot = class.colour;
+        }
+    }
+    palette[usize::from(UNLABELLED)] = [0, 0, 0];
+    palette
+}
+
+/// Writes scene_graph.json, labels.png (a palette PNG: pixel value = class id, shown in the class's colour),
+/// overlay_before.png and overlay_after.png (the same size), before_after.png (both side by side) and
+/// summary.txt.
 pub fn write_outputs(
     report: &CorrectionReport,
     taxonomy: &Taxonomy,
     out: &Path,
 ) -> anyhow::Result<()> {
     std::fs::create_dir_all(out).with_context(|| format!("creating {}", out.display()))?;
-    let name = &report.prepared.demo.name;
-    overlay_png(
-        report,
-        &report.prepared.classifier_labels,
-        format!("{name}: built-in classifier"),
+    let scene = &report.prepared.scene;
+    let name = &report.prepared.capture.name;
+    let before_graph = &report.baseline.graph;
+    let after_graph = report
+        .correction
+        .as_ref()
+        .map_or(before_graph, |correction| &correction.graph);
+    let before_labels = label_map(scene, &before_graph.segment_labels).values;
+    let after_labels = label_map(scene, &after_graph.segment_labels).values;
+    let before_regions = object_regions(scene, before_graph);
+    let after_regions = object_regions(scene, after_graph);
+    let notes = report.turns.len();
+    let after_title = format!("After {notes} note{}", if notes == 1 { "" } else { "s" });
+    let pictures = draw_before_after(
+        &scene.image,
+        View {
+            regions: RegionMap {
+                width: scene.width(),
+                regions: &before_regions,
+            },
+            labels: &before_labels,
+            title: "Before the notes",
+        },
+        View {
+            regions: RegionMap {
+                width: scene.width(),
+                regions: &after_regions,
+            },
+            labels: &after_labels,
+            title: &after_title,
+        },
         taxonomy,
-        &out.join("overlay_before.png"),
+        &OverlayOptions {
+            title: name.clone(),
+            ..OverlayOptions::default()
+        },
     )?;
-    overlay_png(
-        report,
-        report.final_labels(),
-        format!("{name}: after the notes"),
-        taxonomy,
-        &out.join("overlay_after.png"),
-    )?;
-    write_index_png(
+    write_rgb_png(&out.join("overlay_before.png"), &pictures.before)?;
+    write_rgb_png(&out.join("overlay_after.png"), &pictures.after)?;
+    write_rgb_png(&out.join("before_after.png"), &pictures.side_by_side)?;
+    write_palette_png(
         &out.join("labels.png"),
-        &label_map(&report.prepared.scene, report.final_labels()),
+        &label_map(scene, report.final_labels()),
+        &label_palette(taxonomy),
     )?;
     if let Some(correction) = &report.correction {
         let path = out.join("scene_graph.json");

@@ -22,9 +22,17 @@ mod unaries;
 
 /// sayso: correct a robot's semantic scene picture from plain-language operator notes.
 #[derive(Debug, Parser)]
-#[command(name = "sayso", version, about, long_about = None)]
+#[command(
+    name = "sayso",
+    version,
+    about,
+    long_about = None,
+    after_help = "Exit codes: 0 success (also when the reader of standard output stops early, as `| head` does); \
+                  1 the command failed (reason on standard error); 2 the command line was not understood."
+)]
 pub struct Arguments {
-    /// Log debug detail to standard error (or set SAYSO_LOG, e.g. SAYSO_LOG=sayso=trace).
+    /// Log sayso's own debug lines (stage timings, sizes) to standard error; SAYSO_LOG (e.g.
+    /// SAYSO_LOG=sayso=trace, or tract=debug for the inference library) overrides.
     #[arg(long, short, global = true)]
     pub verbose: bool,
     #[command(subcommand)]

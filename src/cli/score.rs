@@ -13,12 +13,12 @@
 
 use std::path::PathBuf;
 
-use sayso::demo::{demo_directory, list_demo_scenes};
+use sayso::demo::{demo_directory, list_demo_scenes, load_demo_scene};
 use sayso::evaluation::{object_accuracy, objects_from_graph, read_pointed_notes, score_labels};
 use sayso::language::constraint::Focus;
 use sayso::pipeline::{
-    believe_without_notes, correct_notes, load_classifier, model_path, prepare_scene,
-    CorrectionSettings, PointedNote, SceneSource,
+    believe_without_notes, correct_notes, load_classifier, model_path, prepare_loaded,
+    CorrectionSettings, PointedNote,
 };
 use sayso::scenegraph::label_map;
 use sayso::taxonomy::Taxonomy;
@@ -98,17 +98,13 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
     let mut worse = Vec::new();
     let mut worse_region = Vec::new();
     for name in &names {
-        let source = SceneSource::Demo {
-            directory: directory.clone(),
-            name: Some(name.clone()),
-        };
-        let prepared = prepare_scene(&source, &classifier)?;
-        let notes: Vec<PointedNote> = read_pointed_notes(&prepared.demo.directory)?
+        let demo = load_demo_scene(&directory, Some(name))?;
+        let prepared = prepare_loaded(demo.capture(), &classifier)?;
+        let notes: Vec<PointedNote> = read_pointed_notes(&demo.directory)?
             .into_iter()
             .take(args.notes)
             .collect();
         let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels);
-        let demo = prepared.demo.clone();
         let scene = prepared.scene.clone();
         let baseline = believe_without_notes(&prepared, &settings)?;
         let row_of = |graph: &sayso::scenegraph::SceneGraph| -> anyhow::Result<Row> {

@@ -33,7 +33,7 @@ pub struct ServiceFlags {
     /// The segment classifier model (ONNX).
     #[arg(long, env = "SAYSO_MODEL")]
     pub model: Option<PathBuf>,
-    /// Demo scenes registrable by name [default: demo_scenes].
+    /// Demo scenes registrable by name [default: the crate's demo_scenes/, as for demo, fix and score].
     #[arg(long, env = "SAYSO_DEMO_DIR")]
     pub demo_dir: Option<PathBuf>,
 }
@@ -55,7 +55,7 @@ impl ServiceFlags {
             config.model = Some(model.clone());
         }
         if let Some(directory) = &self.demo_dir {
-            config.demo_dir = directory.clone();
+            config.demo_dir = Some(directory.clone());
         }
         Ok(config)
     }
@@ -81,7 +81,7 @@ pub fn open_coordinator(config: &ServiceConfig) -> anyhow::Result<Arc<Coordinato
         &CoordinatorSettings {
             log_path: config.log_path(),
             pixel_limit: config.pixel_limit,
-            demo_dir: config.demo_dir.clone(),
+            demo_dir: config.demo_directory(),
         },
         Arc::new(Metrics::default()),
     )

@@ -11,7 +11,7 @@ use sayso::service::coordinator::SceneUpload;
 
 use super::serve::{open_coordinator, ServiceFlags};
 
-/// Register demo scenes by name, or a scene from image (and optional depth) PNG files, in the correction
+/// Register demo scenes by name, or a scene from an image (PNG or JPEG) and optional depth PNG, in the correction
 /// log; prints each new scene id.
 #[derive(Debug, clap::Args)]
 pub struct StoreArgs {
@@ -20,7 +20,7 @@ pub struct StoreArgs {
     /// Demo scene names (from the demo directory); repeat for several.
     #[arg(long = "demo")]
     pub demos: Vec<String>,
-    /// A colour PNG to register (instead of --demo).
+    /// A colour image, PNG or JPEG, to register (instead of --demo).
     #[arg(long, conflicts_with = "demos")]
     pub image: Option<PathBuf>,
     /// A 16-bit depth PNG in millimetres matching --image.

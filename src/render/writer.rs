@@ -1,8 +1,8 @@
 //! Writing a rendered scene to its directory: image.png, depth.png, labels.png, instances.png, objects.json and
 //! scene.json.
 //!
-//! Owns: the file names and the JSON shapes of `objects.json` and `scene.json`, and reading those JSON files
-//! back. Must not: render (it receives a finished `RenderedScene`).
+//! Owns: the JSON shapes of `objects.json` and `scene.json`, and reading those JSON files back; the file names
+//! come from `crate::scene::files`. Must not: render (it receives a finished `RenderedScene`).
 
 use std::path::{Path, PathBuf};
 
@@ -10,13 +10,10 @@ use crate::raster::{write_depth_png, write_index_png, write_rgb_png};
 
 use super::{RenderError, RenderedScene, SceneMetadata, SceneObject};
 
-/// File names inside a scene directory.
-pub const IMAGE_FILE: &str = "image.png";
-pub const DEPTH_FILE: &str = "depth.png";
-pub const LABELS_FILE: &str = "labels.png";
-pub const INSTANCES_FILE: &str = "instances.png";
-pub const OBJECTS_FILE: &str = "objects.json";
-pub const SCENE_FILE: &str = "scene.json";
+/// File names inside a scene directory (the one list is `crate::scene::files`).
+pub use crate::scene::files::{
+    DEPTH_FILE, IMAGE_FILE, INSTANCES_FILE, LABELS_FILE, METADATA_FILE as SCENE_FILE, OBJECTS_FILE,
+};
 
 /// Writes every file of `scene` into `directory`, creating it when needed.
 pub fn write_scene(directory: &Path, scene: &RenderedScene) -> Result<(), RenderError> {

@@ -17,6 +17,8 @@ pub enum SceneError {
     MissingFile { path: PathBuf },
     #[error("{path} is not a scene directory")]
     NotADirectory { path: PathBuf },
+    #[error("{directory} holds no colour image (looked for {tried})")]
+    NoImage { directory: PathBuf, tried: String },
     /// An unreadable, truncated, oversized or wrongly sized raster; the raster error names the file.
     #[error(transparent)]
     Raster(#[from] RasterError),

@@ -1,13 +1,16 @@
 //! The scene model: what the robot sees, cut into segments, with the statistics every later stage reads.
 //!
 //! Owns: `Scene` and its parts (segment map, per-segment statistics, region adjacency graph, coarse level,
-//! room metadata), building them from an image, and loading a scene directory from disk.
+//! room metadata), building them from an image, the names of a scene directory's files (`files`) and
+//! loading what a robot has of a scene from disk (`capture`: image PNG or JPEG, optional depth and camera).
 //! Must not: know about classes' meanings, unaries, language or the solver. Features for the classifier live
 //! in `crate::features`, superpixels in `crate::slic`.
 
 pub mod build;
+pub mod capture;
 pub mod coarse;
 pub mod error;
+pub mod files;
 pub mod io;
 
 use std::sync::Arc;
@@ -20,8 +23,9 @@ use crate::ids::{RegionId, RoomId, SegmentId};
 use crate::raster::{DepthImage, RgbImage};
 use crate::slic::SlicParams;
 
+pub use capture::{load_capture, CameraIntrinsics, Capture, SceneMetadata};
 pub use error::SceneError;
-pub use io::{load_label_map, load_scene_dir, SceneMetadata};
+pub use io::{load_label_map, load_scene_dir};
 
 /// How a scene is cut into segments and regions.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]

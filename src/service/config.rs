@@ -11,7 +11,7 @@
 //! data_dir = "sayso-data"        # the correction log lives here
 //! grammar_dir = "grammar"        # classes.toml and the lexicon
 //! model = "models/segments.onnx" # the segment classifier (optional)
-//! demo_dir = "demo_scenes"       # scenes registrable by name
+//! demo_dir = "demo_scenes"       # scenes registrable by name [default: the crate's demo_scenes/]
 //! body_limit_bytes = 33554432
 //! pixel_limit = 16777216
 //! rate_per_second = 100.0        # per token (or per caller when no tokens are set)
@@ -47,7 +47,9 @@ pub struct ServiceConfig {
     pub data_dir: PathBuf,
     pub grammar_dir: Option<PathBuf>,
     pub model: Option<PathBuf>,
-    pub demo_dir: PathBuf,
+    /// Where demo scenes are found; `None` is the crate's `demo_scenes/` (as for `sayso demo`, `fix` and
+    /// `score`). The binary lays `--demo-dir` and `SAYSO_DEMO_DIR` over it.
+    pub demo_dir: Option<PathBuf>,
     pub body_limit_bytes: usize,
     pub pixel_limit: u64,
     pub rate_per_second: f64,
@@ -63,7 +65,7 @@ impl Default for ServiceConfig {
             data_dir: PathBuf::from("sayso-data"),
             grammar_dir: None,
             model: None,
-            demo_dir: PathBuf::from("demo_scenes"),
+            demo_dir: None,
             body_limit_bytes: 32 * 1024 * 1024,
             pixel_limit: crate::raster::DEFAULT_PIXEL_LIMIT,
             rate_per_second: 100.0,
@@ -173,6 +175,13 @@ impl ServiceConfig {
             }
         }
         Ok(())
+    }
+
+    /// Where demo scenes are found: `demo_dir`, else the crate's `demo_scenes/`.
+    pub fn demo_directory(&self) -> PathBuf {
+        self.demo_dir
+            .clone()
+            .unwrap_or_else(|| PathBuf::from(crate::demo::COMPILED_DEMO_DIR))
     }
 
     /// The correction log's file inside the data directory.

@@ -179,9 +179,28 @@ pub trait Corrector: Send + Sync + 'static {
     /// service decides (and may roll it back if logging fails).
     fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError>;
 
-    /// The overlay image: the picture with class colours blended in. The default blends half and half.
+    /// The overlay image: the photo under a translucent class tint, class borders outlined, and a legend of
+    /// the classes shown to the right (`crate::overlay::draw_overlay`). Labels that do not fit the image
+    /// give the plain half-and-half blend instead.
     fn overlay(&self, image: &RgbImage, state: &SceneState) -> RgbImage {
-        blend_overlay(image, &state.labels, self.taxonomy())
+        let regions: Vec<u32> = state
+            .labels
+            .values
+            .iter()
+            .map(|&label| u32::from(label))
+            .collect();
+        crate::overlay::draw_overlay(
+            image,
+            crate::overlay::RegionMap {
+                width: state.labels.width,
+                regions: &regions,
+            },
+            crate::overlay::Labelling::PerPixel(&state.labels.values),
+            self.taxonomy(),
+            &crate::overlay::OverlayOptions::default(),
+        )
+        .map(|overlay| overlay.image)
+        .unwrap_or_else(|_| blend_overlay(image, &state.labels, self.taxonomy()))
     }
 }
 

@@ -38,7 +38,7 @@ pub struct DetectionIn {
     pub score: f32,
 }
 
-/// Register a scene: either `demo` (a demo scene's name) or `image_png_base64` with optional extras.
+/// Register a scene: either `demo` (a demo scene's name) or `image_base64` with optional extras.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema, Default)]
 #[serde(deny_unknown_fields)]
 pub struct RegisterSceneRequest {
@@ -46,7 +46,9 @@ pub struct RegisterSceneRequest {
     pub name: Option<String>,
     /// The name of a demo scene under the service's demo directory.
     pub demo: Option<String>,
-    /// The colour image as a base64-encoded PNG.
+    /// The colour image, base64-encoded PNG or JPEG (told apart by content).
+    pub image_base64: Option<String>,
+    /// The same as `image_base64` (the earlier name); send one of the two.
     pub image_png_base64: Option<String>,
     /// A 16-bit depth PNG in millimetres, base64.
     pub depth_png_base64: Option<String>,

@@ -1,8 +1,9 @@
 //! Registering scenes: decoding what the caller sent (or a demo scene by name), checking it, asking the
 //! corrector for the first state, and committing it.
 //!
-//! Owns: the checks on uploaded parts (PNG decoding under the pixel limit, matching sizes, class and room
-//! names, boxes inside the image) and the demo-scene lookup.
+//! Owns: the checks on uploaded parts (PNG or JPEG decoding under the pixel limit, matching sizes, class and
+//! room names, boxes inside the image) and the demo-scene lookup (`crate::demo::demo_scene_path` and
+//! `crate::scene::load_capture`, as `fix` and `demo` find and read scenes).
 //! Must not: interpret NPY scores or detections beyond names and bounds; the corrector does that.
 
 use std::path::Path;
@@ -13,8 +14,10 @@ use axum::http::StatusCode;
 use serde::{Deserialize, Serialize};
 
 use crate::correction_log::{blob_hash, NewScene};
+use crate::demo::demo_scene_path;
 use crate::ids::{ClassId, RoomId};
 use crate::raster::{self, RasterError};
+use crate::scene::files::{image_file, DEPTH_FILE, IMAGE_FILES};
 use crate::scene::BoundingBox;
 
 use super::super::corrector::{CorrectorError, Detection, SceneInput};
@@ -28,6 +31,7 @@ use crate::raster::DepthImage;
 pub struct SceneUpload {
     pub name: Option<String>,
     pub demo: Option<String>,
+    /// PNG or JPEG bytes.
     pub image_png: Option<Vec<u8>>,
     pub depth_png: Option<Vec<u8>>,
     pub scores_npy: Option<Vec<u8>>,
@@ -55,8 +59,18 @@ fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, 
 impl SceneUpload {
     /// Removes the base64 from a wire request.
     pub fn from_request(request: RegisterSceneRequest) -> Result<SceneUpload, ApiError> {
+        let image = match (&request.image_base64, &request.image_png_base64) {
+            (Some(_), Some(_)) => {
+                return Err(ApiError::bad_request(
+                    "conflicting_fields",
+                    "send image_base64 or image_png_base64, not both",
+                ))
+            }
+            (Some(_), None) => decode_base64("image_base64", &request.image_base64)?,
+            (None, _) => decode_base64("image_png_base64", &request.image_png_base64)?,
+        };
         Ok(SceneUpload {
-            image_png: decode_base64("image_png_base64", &request.image_png_base64)?,
+            image_png: image,
             depth_png: decode_base64("depth_png_base64", &request.depth_png_base64)?,
             scores_npy: decode_base64("scores_npy_base64", &request.scores_npy_base64)?,
             label_map_png: decode_base64("label_map_png_base64", &request.label_map_png_base64)?,
@@ -96,9 +110,11 @@ fn raster_error(field: &str, error: RasterError) -> ApiError {
             "bad_image",
             format!("{field} has colour type {found}; expected {expected}"),
         ),
-        RasterError::Decode { message, .. } => ApiError::unprocessable(
+        RasterError::Decode {
+            format, message, ..
+        } => ApiError::unprocessable(
             "bad_image",
-            format!("{field} is not a readable PNG: {message}"),
+            format!("{field} is not a readable {format}: {message}"),
         ),
         other => ApiError::internal(other),
     }
@@ -110,10 +126,6 @@ fn valid_demo_name(name: &str) -> bool {
         && name.chars().all(|character| {
             character.is_ascii_alphanumeric() || character == '_' || character == '-'
         })
-}
-
-fn read_optional(path: &Path) -> Option<Vec<u8>> {
-    std::fs::read(path).ok()
 }
 
 /// What a scene's `input_json` records besides the image: blob hashes of the other parts, the
@@ -192,34 +204,55 @@ impl Coordinator {
                     "demo names are 1-64 letters, digits, '-' or '_'",
                 ));
             }
-            let directory = self.demo_dir.join(&demo);
-            let image = std::fs::read(directory.join("image.png")).map_err(|_| {
+            let directory = demo_scene_path(&self.demo_dir, Some(&demo)).map_err(|error| {
+                ApiError::caller(
+                    StatusCode::NOT_FOUND,
+                    "unknown_demo_scene",
+                    error.to_string(),
+                )
+            })?;
+            let unreadable = |what: &Path, error: std::io::Error| {
+                ApiError::internal(format!("reading {}: {error}", what.display()))
+            };
+            let image_path = image_file(&directory).ok_or_else(|| {
                 ApiError::caller(
                     StatusCode::NOT_FOUND,
                     "unknown_demo_scene",
                     format!(
-                        "there is no demo scene named {demo:?} in the service's demo directory"
+                        "demo scene {} holds no image (looked for {})",
+                        directory.display(),
+                        IMAGE_FILES.join(", ")
                     ),
                 )
             })?;
-            upload.image_png = Some(image);
+            upload.image_png =
+                Some(std::fs::read(&image_path).map_err(|error| unreadable(&image_path, error))?);
             // The demo's ground-truth labels are not handed in: the scene starts from the built-in
             // classifier's belief, as on a robot.
-            if upload.depth_png.is_none() {
-                upload.depth_png = read_optional(&directory.join("depth.png"));
+            let depth_path = directory.join(DEPTH_FILE);
+            if upload.depth_png.is_none() && depth_path.is_file() {
+                upload.depth_png = Some(
+                    std::fs::read(&depth_path).map_err(|error| unreadable(&depth_path, error))?,
+                );
             }
             if upload.name.is_none() {
                 upload.name = Some(demo);
             }
         }
-        let image_png = upload.image_png.take().ok_or_else(|| {
+        let image_bytes = upload.image_png.take().ok_or_else(|| {
             ApiError::bad_request(
                 "missing_image",
-                "send image_png_base64 (a base64 PNG) or demo (a demo scene name)",
+                "send image_base64 (a base64 PNG or JPEG) or demo (a demo scene name)",
             )
         })?;
-        let image = raster::decode_rgb_png(&image_png, Path::new("image"), self.pixel_limit)
-            .map_err(|error| raster_error("image_png_base64", error))?;
+        let image = raster::decode_rgb_image(&image_bytes, Path::new("image"), self.pixel_limit)
+            .map_err(|error| raster_error("image_base64", error))?;
+        // The log keeps PNG (its export writes image.png): a JPEG is stored as the PNG of its decoded pixels.
+        let image_png = if raster::is_jpeg(&image_bytes) {
+            raster::encode_rgb_png(&image).map_err(ApiError::internal)?
+        } else {
+            image_bytes
+        };
         let (width, height) = (image.width, image.height);
         let size_check = |field: &str, found_width: u32, found_height: u32| {
             if (found_width, found_height) != (width, height) {

@@ -1,0 +1,303 @@
+//! A robot's own scene, with no renderer behind it: an image alone, an image with depth, a JPEG, corrected
+//! through `sayso fix` and through the service; the JPEG decoder checked against a reference decoding; the
+//! capture loader's refusals.
+//!
+//! Owns: checks that the correction path reads only the capture (`sayso::scene::capture`).
+//! Must not: judge correction quality (the built-in classifier runs, but only the plumbing is checked).
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+use std::sync::Arc;
+
+use axum::body::Body;
+use axum::http::{Request, StatusCode};
+use sayso::raster::{read_rgb_image, read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso::scene::{load_capture, SceneError};
+use tower::ServiceExt;
+
+const DEMO: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/demo_scenes/kitchen_breakfast");
+const FIXTURES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/capture");
+
+/// A scene directory holding copies of `files` (source path, name inside the directory).
+fn scene_dir(files: &[(PathBuf, &str)]) -> tempfile::TempDir {
+    let directory = tempfile::tempdir().unwrap();
+    for (source, name) in files {
+        std::fs::copy(source, directory.path().join(name)).unwrap();
+    }
+    directory
+}
+
+fn image_only() -> tempfile::TempDir {
+    scene_dir(&[(Path::new(DEMO).join("image.png"), "image.png")])
+}
+
+fn image_and_depth() -> tempfile::TempDir {
+    scene_dir(&[
+        (Path::new(DEMO).join("image.png"), "image.png"),
+        (Path::new(DEMO).join("depth.png"), "depth.png"),
+    ])
+}
+
+fn jpeg_only() -> tempfile::TempDir {
+    scene_dir(&[(Path::new(FIXTURES).join("living_room_320.jpg"), "image.jpg")])
+}
+
+#[test]
+fn the_jpeg_decoder_agrees_with_pillow() {
+    // Reference: Pillow (PyPI) decoding of the same file, by tests/fixtures/capture/make_capture_fixtures.py.
+    // Two conforming decoders may differ by rounding in the inverse DCT and chroma upsampling, so a
+    // difference of a few levels is allowed per sample (common practice), and the mean difference must stay
+    // far below one level.
+    let ours = read_rgb_image(
+        &Path::new(FIXTURES).join("living_room_320.jpg"),
+        DEFAULT_PIXEL_LIMIT,
+    )
+    .unwrap();
+    let reference = read_rgb_png(
+        &Path::new(FIXTURES).join("living_room_320_pillow.png"),
+        DEFAULT_PIXEL_LIMIT,
+    )
+    .unwrap();
+    assert_eq!((ours.width, ours.height), (320, 240));
+    assert_eq!((reference.width, reference.height), (320, 240));
+    let mut largest = 0i32;
+    let mut total = 0u64;
+    for (a, b) in ours.pixels.iter().zip(&reference.pixels) {
+        for channel in 0..3 {
+            let difference = (i32::from(a[channel]) - i32::from(b[channel])).abs();
+            largest = largest.max(difference);
+            total += difference as u64;
+        }
+    }
+    let mean = total as f64 / (ours.pixels.len() * 3) as f64;
+    assert!(largest <= 4, "largest difference {largest}");
+    assert!(mean < 0.5, "mean difference {mean}");
+}
+
+#[test]
+fn a_capture_reads_no_ground_truth_and_names_what_is_missing() {
+    let only = image_only();
+    let capture = load_capture(only.path(), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(capture.depth.is_none() && capture.camera.is_none() && capture.room.is_none());
+    assert_eq!((capture.image.width, capture.image.height), (640, 480));
+
+    let empty = tempfile::tempdir().unwrap();
+    let error = load_capture(empty.path(), DEFAULT_PIXEL_LIMIT).unwrap_err();
+    assert!(matches!(error, SceneError::NoImage { .. }), "{error}");
+    let message = error.to_string();
+    assert!(
+        message.contains("image.png") && message.contains("image.jpg"),
+        "{message}"
+    );
+
+    // Too large a JPEG is refused from its header, naming the limit.
+    let jpeg = jpeg_only();
+    let error = load_capture(jpeg.path(), 1000).unwrap_err().to_string();
+    assert!(
+        error.contains("320x240") && error.contains("1000"),
+        "{error}"
+    );
+}
+
+#[test]
+fn camera_json_scales_depth_and_bad_intrinsics_are_named() {
+    let directory = image_and_depth();
+    let plain = load_capture(directory.path(), DEFAULT_PIXEL_LIMIT).unwrap();
+    std::fs::write(
+        directory.path().join("camera.json"),
+        r#"{"fx": 525.0, "fy": 525.0, "cx": 319.5, "cy": 239.5, "depth_unit_mm": 0.5}"#,
+    )
+    .unwrap();
+    let scaled = load_capture(directory.path(), DEFAULT_PIXEL_LIMIT).unwrap();
+    let camera = scaled.camera.expect("intrinsics read");
+    assert_eq!((camera.fx, camera.cy), (525.0, 239.5));
+    let (plain, scaled) = (plain.depth.unwrap(), scaled.depth.unwrap());
+    for (a, b) in plain.millimetres.iter().zip(&scaled.millimetres) {
+        assert_eq!(*b, ((f64::from(*a) * 0.5).round()) as u16);
+    }
+
+    std::fs::write(directory.path().join("camera.json"), r#"{"fx": 525.0}"#).unwrap();
+    let error = load_capture(directory.path(), DEFAULT_PIXEL_LIMIT)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        error.contains("camera.json") && error.contains("all four"),
+        "{error}"
+    );
+    std::fs::write(
+        directory.path().join("camera.json"),
+        r#"{"depth_unit_mm": 1000}"#,
+    )
+    .unwrap();
+    let error = load_capture(directory.path(), DEFAULT_PIXEL_LIMIT)
+        .unwrap_err()
+        .to_string();
+    assert!(error.contains("65535 mm"), "{error}");
+}
+
+fn fix(directory: &Path, out: &Path) {
+    let result = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .arg("fix")
+        .arg(directory)
+        .args(["--say", "there are two mugs", "--out"])
+        .arg(out)
+        .output()
+        .unwrap();
+    assert!(
+        result.status.success(),
+        "{}",
+        String::from_utf8_lossy(&result.stderr)
+    );
+    let graph: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("scene_graph.json")).unwrap())
+            .unwrap();
+    assert!(!graph["objects"].as_array().unwrap().is_empty());
+    let before = read_rgb_png(&out.join("overlay_before.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let after = read_rgb_png(&out.join("overlay_after.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert_eq!(
+        (before.width, before.height),
+        (after.width, after.height),
+        "before and after are drawn at the same size"
+    );
+    let both = read_rgb_png(&out.join("before_after.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(both.width > after.width && both.height == after.height);
+    let stdout = String::from_utf8_lossy(&result.stdout);
+    assert!(stdout.contains("there are two mugs"), "{stdout}");
+}
+
+#[test]
+fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
+    for directory in [image_only(), image_and_depth(), jpeg_only()] {
+        let out = tempfile::tempdir().unwrap();
+        fix(directory.path(), out.path());
+    }
+    // An image file named directly is a scene too.
+    let out = tempfile::tempdir().unwrap();
+    fix(&Path::new(FIXTURES).join("living_room_320.jpg"), out.path());
+    // labels.png is a palette PNG whose pixel values are class ids.
+    let decoder = png::Decoder::new(std::fs::File::open(out.path().join("labels.png")).unwrap());
+    assert_eq!(
+        decoder.read_info().unwrap().info().color_type,
+        png::ColorType::Indexed
+    );
+    let labels =
+        sayso::raster::read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert_eq!((labels.width, labels.height), (320, 240));
+    assert!(labels.values.iter().all(|&value| value < 41));
+}
+
+/// The service over the joint pipeline and built-in classifier, its log in a fresh directory (returned so it
+/// lives as long as the router).
+fn service() -> (tempfile::TempDir, axum::Router) {
+    use sayso::pipeline::model_path;
+    use sayso::service::config::ServiceConfig;
+    use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
+    use sayso::service::joint::JointCorrector;
+    use sayso::service::metrics::Metrics;
+    let data = tempfile::tempdir().unwrap();
+    let config = ServiceConfig {
+        data_dir: data.path().to_path_buf(),
+        ..ServiceConfig::default()
+    };
+    let coordinator = Coordinator::open(
+        Arc::new(JointCorrector::load(&model_path(None)).unwrap()),
+        &CoordinatorSettings {
+            log_path: config.log_path(),
+            pixel_limit: config.pixel_limit,
+            demo_dir: config.demo_directory(),
+        },
+        Arc::new(Metrics::default()),
+    )
+    .unwrap();
+    let app = sayso::service::app(sayso::service::AppState::new(Arc::new(coordinator), config));
+    (data, app)
+}
+
+async fn post(
+    app: &axum::Router,
+    path: &str,
+    body: serde_json::Value,
+) -> (StatusCode, serde_json::Value) {
+    let response = app
+        .clone()
+        .oneshot(
+            Request::post(path)
+                .header("content-type", "application/json")
+                .body(Body::from(body.to_string()))
+                .unwrap(),
+        )
+        .await
+        .unwrap();
+    let status = response.status();
+    let bytes = axum::body::to_bytes(response.into_body(), usize::MAX)
+        .await
+        .unwrap();
+    (status, serde_json::from_slice(&bytes).unwrap_or_default())
+}
+
+fn base64_of(path: &Path) -> String {
+    use base64::Engine;
+    base64::engine::general_purpose::STANDARD.encode(std::fs::read(path).unwrap())
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn the_service_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
+    let (_data, app) = service();
+    let jpeg = Path::new(FIXTURES).join("living_room_320.jpg");
+    let uploads = [
+        serde_json::json!({"image_base64": base64_of(&Path::new(DEMO).join("image.png"))}),
+        serde_json::json!({
+            "image_base64": base64_of(&Path::new(DEMO).join("image.png")),
+            "depth_png_base64": base64_of(&Path::new(DEMO).join("depth.png")),
+        }),
+        serde_json::json!({"image_base64": base64_of(&jpeg), "name": "a jpeg"}),
+    ];
+    for (upload, size) in uploads
+        .into_iter()
+        .zip([(640, 480), (640, 480), (320, 240)])
+    {
+        let (status, created) = post(&app, "/v1/scenes", upload).await;
+        assert_eq!(status, StatusCode::CREATED, "{created}");
+        assert_eq!(
+            (created["width"].as_u64(), created["height"].as_u64()),
+            (Some(size.0), Some(size.1))
+        );
+        let (status, conversation) = post(
+            &app,
+            "/v1/conversations",
+            serde_json::json!({"scene_id": created["scene_id"]}),
+        )
+        .await;
+        assert_eq!(status, StatusCode::CREATED, "{conversation}");
+        let path = format!(
+            "/v1/conversations/{}/utterances",
+            conversation["conversation_id"]
+        );
+        let (status, reply) = post(
+            &app,
+            &path,
+            serde_json::json!({"text": "there are two mugs"}),
+        )
+        .await;
+        assert_eq!(status, StatusCode::OK, "{reply}");
+    }
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn the_service_finds_demo_scenes_like_fix_and_says_where_it_looked() {
+    let (_data, app) = service();
+    let (status, created) = post(
+        &app,
+        "/v1/scenes",
+        serde_json::json!({"demo": "kitchen_breakfast"}),
+    )
+    .await;
+    assert_eq!(status, StatusCode::CREATED, "{created}");
+    let (status, error) = post(&app, "/v1/scenes", serde_json::json!({"demo": "attic"})).await;
+    assert_eq!(status, StatusCode::NOT_FOUND, "{error}");
+    let message = error["message"].as_str().unwrap();
+    assert!(
+        message.contains(sayso::demo::COMPILED_DEMO_DIR) && message.contains("kitchen_breakfast"),
+        "{message}"
+    );
+}
