@@ -15,7 +15,9 @@ mod demo_turns;
 use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use demo_turns::{chain, load_average, load_scenes, percentile, settings, turn, turn_energy};
+use demo_turns::{
+    chain, load_average, load_scenes, percentile, settings, thread_cpu_ms, turn, turn_energy,
+};
 use sayso::solver::joint::{solve_joint, JointSolution};
 
 /// Timed runs of each turn's solves.
@@ -25,22 +27,27 @@ fn milliseconds(duration: Duration) -> f64 {
     duration.as_secs_f64() * 1e3
 }
 
-fn timed<T>(run: impl FnOnce() -> T) -> (T, Duration) {
-    let start = Instant::now();
+/// The value, its wall-clock time, and the thread's CPU time in milliseconds.
+fn timed<T>(run: impl FnOnce() -> T) -> (T, Duration, f64) {
+    let (start, cpu) = (Instant::now(), thread_cpu_ms());
     let value = std::hint::black_box(run());
-    (value, start.elapsed())
+    (value, start.elapsed(), thread_cpu_ms() - cpu)
 }
 
-fn summary(label: &str, mut samples: Vec<Duration>, goal_ms: f64) {
+fn summary(label: &str, mut samples: Vec<Duration>, mut cpu: Vec<f64>, goal_ms: f64) {
     samples.sort();
+    cpu.sort_by(f64::total_cmp);
     let (p50, p99) = (
         milliseconds(percentile(&samples, 0.5)),
         milliseconds(percentile(&samples, 0.99)),
     );
     println!(
-        "{label}: p50 {p50:.2} ms, p99 {p99:.2} ms over {} runs (goal p50 {goal_ms} ms, ratio {:.2})",
+        "{label}: p50 {p50:.2} ms, p99 {p99:.2} ms wall over {} runs (goal p50 {goal_ms} ms, ratio {:.2}); \
+         thread CPU p50 {:.2} ms, p99 {:.2} ms",
         samples.len(),
-        p50 / goal_ms
+        p50 / goal_ms,
+        percentile(&cpu, 0.5),
+        percentile(&cpu, 0.99)
     );
 }
 
@@ -52,6 +59,7 @@ fn bench_joint(criterion: &mut Criterion) {
     let mut full_times = Vec::new();
     let mut warm_times = Vec::new();
     let mut turn_times = Vec::new();
+    let (mut full_cpu, mut warm_cpu, mut turn_cpu) = (Vec::new(), Vec::new(), Vec::new());
     let (mut full_energy, mut warm_energy) = (0.0, 0.0);
     let (mut full_gaps, mut warm_gaps) = (Vec::new(), Vec::new());
     let mut turns = 0;
@@ -63,15 +71,18 @@ fn bench_joint(criterion: &mut Criterion) {
             let mut full: Option<JointSolution> = None;
             let mut warm: Option<JointSolution> = None;
             for _ in 0..REPEATS {
-                let (solution, took) = timed(|| solve_joint(&energy.energy, None, options));
+                let (solution, took, cpu) = timed(|| solve_joint(&energy.energy, None, options));
                 full_times.push(took);
+                full_cpu.push(cpu);
                 full = Some(solution.expect("solves"));
-                let (solution, took) =
+                let (solution, took, cpu) =
                     timed(|| solve_joint(&energy.energy, Some(&energy.warm), options));
                 warm_times.push(took);
+                warm_cpu.push(cpu);
                 warm = Some(solution.expect("solves"));
-                let (_, took) = timed(|| turn(scene, before, note, &settings));
+                let (_, took, cpu) = timed(|| turn(scene, before, note, &settings));
                 turn_times.push(took);
+                turn_cpu.push(cpu);
             }
             let (full, warm) = (full.expect("ran"), warm.expect("ran"));
             println!(
@@ -107,9 +118,14 @@ fn bench_joint(criterion: &mut Criterion) {
         full_gaps.last().copied().unwrap_or(0.0),
         warm_gaps.last().copied().unwrap_or(0.0),
     );
-    summary("joint full solve", full_times, 5.0);
-    summary("joint warm re-solve after one note", warm_times, 2.0);
-    summary("one correction turn end to end", turn_times, 10.0);
+    summary("joint full solve", full_times, full_cpu, 5.0);
+    summary(
+        "joint warm re-solve after one note",
+        warm_times,
+        warm_cpu,
+        2.0,
+    );
+    summary("one correction turn end to end", turn_times, turn_cpu, 10.0);
     println!("load average at end {}", load_average());
 
     let scene = &scenes[0];

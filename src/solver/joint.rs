@@ -549,8 +549,13 @@ pub fn solve_joint(
     try_class_removals(&context, &mut workspace, &mut best);
     try_hypothesis_moves(&context, &mut best);
     if gap(best.energy, lower_bound) > TIGHTEN_ABOVE_GAP.max(options.gap_tolerance) {
-        let tighter =
-            diffused_dual_bound(&context, &mut workspace, &best_multipliers, FINAL_SWEEPS);
+        let tighter = diffused_dual_bound(
+            &context,
+            &mut workspace,
+            &best_multipliers,
+            FINAL_SWEEPS,
+            best.energy,
+        );
         lower_bound = lower_bound.max(tighter);
     }
     if energy.node_count * label_count <= options.polish_budget
