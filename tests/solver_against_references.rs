@@ -134,7 +134,14 @@ fn alpha_expansion_is_within_a_thousandth_of_gco() {
         );
         // The labeller the joint solver runs, over every label and with its label pruning.
         let every = label_potts(&problem, None, CandidateLabels::All).expect("valid");
-        let pruned = label_potts(&problem, None, CandidateLabels::Pruned).expect("valid");
+        let pruned = label_potts(
+            &problem,
+            None,
+            CandidateLabels::Pruned {
+                fine_count: problem.node_count,
+            },
+        )
+        .expect("valid");
         assert!(
             every.energy <= gco * 1.001,
             "{}: the joint labeller {} vs GCO {}",

@@ -482,6 +482,30 @@ pub(crate) fn candidate_table(
     table
 }
 
+/// Grows a candidate table of the first `fine_count` nodes to all `node_count` nodes: a coarse node (index
+/// `fine_count` and up) may take every label one of the fine nodes it is linked to may take.
+pub(crate) fn widen_to_coarse<W: Copy>(
+    table: &mut Vec<bool>,
+    fine_count: usize,
+    node_count: usize,
+    label_count: usize,
+    edges: &[(u32, u32, W)],
+) {
+    table.resize(node_count * label_count, false);
+    for &(a, b, _) in edges {
+        let (fine, coarse) = match (a as usize, b as usize) {
+            (a, b) if a < fine_count && b >= fine_count => (a, b),
+            (a, b) if b < fine_count && a >= fine_count => (b, a),
+            _ => continue,
+        };
+        for label in 0..label_count {
+            if table[fine * label_count + label] {
+                table[coarse * label_count + label] = true;
+            }
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

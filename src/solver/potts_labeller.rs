@@ -7,14 +7,16 @@
 //! it once, as the joint solver does per labelling.
 
 use crate::solver::expansion::{cheapest_labels, validate_problem, LabellingError};
-use crate::solver::joint_labeller::{candidate_table, Labeller, LabellerTables};
+use crate::solver::joint_labeller::{candidate_table, widen_to_coarse, Labeller, LabellerTables};
 use crate::solver::labelling::{LabellingProblem, LabellingResult};
 
 /// Which labels a node may switch to.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum CandidateLabels {
-    /// Its few cheapest by unary, as the joint solver prunes them (before adding hypotheses' classes).
-    Pruned,
+    /// As the joint solver prunes them (before adding hypotheses' classes): each of the first `fine_count`
+    /// nodes its few cheapest labels by unary, each later (coarse) node the labels of the fine nodes it has
+    /// an edge to.
+    Pruned { fine_count: usize },
     /// Every label: the plain expansion.
     All,
 }
@@ -35,8 +37,22 @@ pub fn label_potts(
         .map(|&(a, b, weight)| (a, b, weight as f64))
         .collect();
     let table = match candidates {
-        CandidateLabels::Pruned => {
-            candidate_table(&unary, problem.node_count, problem.label_count, &[])
+        CandidateLabels::Pruned { fine_count } => {
+            let fine_count = fine_count.min(problem.node_count);
+            let mut table = candidate_table(
+                &unary[..fine_count * problem.label_count],
+                fine_count,
+                problem.label_count,
+                &[],
+            );
+            widen_to_coarse(
+                &mut table,
+                fine_count,
+                problem.node_count,
+                problem.label_count,
+                &edges,
+            );
+            table
         }
         CandidateLabels::All => Vec::new(),
     };
