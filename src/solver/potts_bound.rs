@@ -41,18 +41,43 @@ pub(crate) struct PottsBound {
 /// relative gap each).
 const STOP_SHARE: f64 = 0.05;
 
-/// The split the last diffusion on this thread ended with, and the problem shape it belongs to: kept so the
-/// next diffusion over the same edges starts from it, and so its buffer (16 bytes per edge and label, about
-/// 6 MB on a production scene) is allocated once per thread rather than once per solve.
-#[derive(Default)]
-struct LastSplit {
-    label_count: usize,
-    edges: Vec<(usize, usize, f64)>,
-    shift: Vec<f64>,
+/// Splits that diffusions ended with, kept so the next diffusion over the same problem shape starts from
+/// one: each solve of a correction, and each correction on the same scene, then starts near the fixed point
+/// and stops after a sweep or two. Keyed by a digest of the edges and the label count, shared by every
+/// thread (the service solves a scene on whichever blocking thread is free), at most `KEPT_SPLITS` kept,
+/// the oldest forgotten first. The shifts are kept in single precision (4 bytes per edge end and label,
+/// about 3 MB for a production scene): a key that collides or a rounded shift only changes where the
+/// diffusion starts, since its first sweep rewrites every shift of every node with two or more edges from
+/// the other ends' (restoring the zero sums the bound's validity rests on), and the shift of a node with
+/// one edge is set to 0 on loading.
+struct KeptSplit {
+    key: u64,
+    shift: Vec<f32>,
 }
 
-thread_local! {
-    static LAST_SPLIT: std::cell::RefCell<LastSplit> = std::cell::RefCell::new(LastSplit::default());
+/// Splits kept at most (one per scene being corrected at once is enough).
+const KEPT_SPLITS: usize = 4;
+
+static KEPT: std::sync::Mutex<Vec<KeptSplit>> = std::sync::Mutex::new(Vec::new());
+
+fn kept() -> std::sync::MutexGuard<'static, Vec<KeptSplit>> {
+    KEPT.lock().unwrap_or_else(|poisoned| poisoned.into_inner())
+}
+
+/// FNV-1a over the label count and every edge's ends and weight bits.
+fn shape_key(label_count: usize, edges: &[(usize, usize, f64)]) -> u64 {
+    let mut hash = 0xcbf2_9ce4_8422_2325u64;
+    let mut mix = |value: u64| {
+        hash ^= value;
+        hash = hash.wrapping_mul(0x0000_0100_0000_01b3);
+    };
+    mix(label_count as u64);
+    for &(a, b, weight) in edges {
+        mix(a as u64);
+        mix(b as u64);
+        mix(weight.to_bits());
+    }
+    hash
 }
 
 impl PottsBound {
@@ -162,10 +187,8 @@ impl PottsBound {
     /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual). Never
     /// below `bound` for the same unaries.
     ///
-    /// The split starts from the one the last diffusion on this thread ended with when that was over the
-    /// same edges and label count (any split whose shifts sum to 0 at every node gives a valid bound; a
-    /// solve that follows another on the same scene, as a correction's solves do, then starts near the
-    /// fixed point and stops after a sweep or two), else from the even split.
+    /// The split starts from one a diffusion over the same edges and label count ended with, when one is
+    /// kept (`KeptSplit`), else from the even split.
     pub(crate) fn diffused(&mut self, unary: &[f64], sweeps: usize, target: f64) -> f64 {
         let label_count = self.label_count;
         let node_count = self.row_minimum.len();
@@ -173,25 +196,35 @@ impl PottsBound {
         if unary.len() != node_count * label_count || unary.iter().any(|v| !v.is_finite()) {
             return even;
         }
-        let remembered = LAST_SPLIT.with(|last| {
-            let mut last = last.borrow_mut();
-            let same = last.label_count == label_count
-                && last.edges.len() == self.edges.len()
-                && last.edges.iter().eq(self.edges.iter());
-            let shift = std::mem::take(&mut last.shift);
-            (same && shift.len() == 2 * self.edges.len() * label_count).then_some(shift)
-        });
+        let key = shape_key(label_count, &self.edges);
+        let length = 2 * self.edges.len() * label_count;
+        let remembered = {
+            let mut kept = kept();
+            let found = kept.iter().position(|split| split.key == key);
+            found.map(|index| kept.remove(index).shift)
+        };
+        self.shift.clear();
         match remembered {
-            Some(shift) => self.shift = shift,
-            None => {
-                self.shift.clear();
-                self.shift.resize(2 * self.edges.len() * label_count, 0.0);
+            Some(shift) if shift.len() == length => {
+                self.shift.extend(shift.iter().map(|&value| value as f64));
+                // A node with one edge is never rebalanced: its shift must be 0 whatever was kept.
+                for node in 0..node_count {
+                    let incident = self.incident_start[node]..self.incident_start[node + 1];
+                    if incident.len() == 1 {
+                        let (edge, side) = self.incident[incident.start];
+                        self.shift
+                            [(2 * edge + side) * label_count..(2 * edge + side + 1) * label_count]
+                            .fill(0.0);
+                    }
+                }
             }
+            _ => self.shift.resize(length, 0.0),
         }
         let mut here = vec![0.0; label_count];
         let mut there = vec![0.0; label_count];
         let mut average = vec![0.0; label_count];
-        let mut best = even.max(self.split_bound(unary, &mut here, &mut there));
+        // The remembered split is read only after a sweep has rebalanced it (see `KeptSplit`).
+        let mut best = even;
         for _ in 0..sweeps {
             for node in 0..node_count {
                 self.diffuse(node, &mut there, &mut average);
@@ -205,12 +238,13 @@ impl PottsBound {
                 break;
             }
         }
-        LAST_SPLIT.with(|last| {
-            let mut last = last.borrow_mut();
-            last.label_count = label_count;
-            last.edges.clone_from(&self.edges);
-            last.shift = std::mem::take(&mut self.shift);
-        });
+        let shift: Vec<f32> = self.shift.iter().map(|&value| value as f32).collect();
+        let mut kept = kept();
+        kept.retain(|split| split.key != key);
+        if kept.len() >= KEPT_SPLITS {
+            kept.remove(0);
+        }
+        kept.push(KeptSplit { key, shift });
         best
     }
 
