@@ -41,45 +41,6 @@ pub(crate) struct PottsBound {
 /// relative gap each).
 const STOP_SHARE: f64 = 0.05;
 
-/// Splits that diffusions ended with, kept so the next diffusion over the same problem shape starts from
-/// one: each solve of a correction, and each correction on the same scene, then starts near the fixed point
-/// and stops after a sweep or two. Keyed by a digest of the edges and the label count, shared by every
-/// thread (the service solves a scene on whichever blocking thread is free), at most `KEPT_SPLITS` kept,
-/// the oldest forgotten first. The shifts are kept in single precision (4 bytes per edge end and label,
-/// about 3 MB for a production scene): a key that collides or a rounded shift only changes where the
-/// diffusion starts, since its first sweep rewrites every shift of every node with two or more edges from
-/// the other ends' (restoring the zero sums the bound's validity rests on), and the shift of a node with
-/// one edge is set to 0 on loading.
-struct KeptSplit {
-    key: u64,
-    shift: Vec<f32>,
-}
-
-/// Splits kept at most (one per scene being corrected at once is enough).
-const KEPT_SPLITS: usize = 4;
-
-static KEPT: std::sync::Mutex<Vec<KeptSplit>> = std::sync::Mutex::new(Vec::new());
-
-fn kept() -> std::sync::MutexGuard<'static, Vec<KeptSplit>> {
-    KEPT.lock().unwrap_or_else(|poisoned| poisoned.into_inner())
-}
-
-/// FNV-1a over the label count and every edge's ends and weight bits.
-fn shape_key(label_count: usize, edges: &[(usize, usize, f64)]) -> u64 {
-    let mut hash = 0xcbf2_9ce4_8422_2325u64;
-    let mut mix = |value: u64| {
-        hash ^= value;
-        hash = hash.wrapping_mul(0x0000_0100_0000_01b3);
-    };
-    mix(label_count as u64);
-    for &(a, b, weight) in edges {
-        mix(a as u64);
-        mix(b as u64);
-        mix(weight.to_bits());
-    }
-    hash
-}
-
 impl PottsBound {
     pub(crate) fn new(
         node_count: usize,
@@ -187,8 +148,9 @@ impl PottsBound {
     /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual). Never
     /// below `bound` for the same unaries.
     ///
-    /// The split starts from one a diffusion over the same edges and label count ended with, when one is
-    /// kept (`KeptSplit`), else from the even split.
+    /// The split starts from the even split every time, so the bound depends on the inputs alone (a split
+    /// kept from an earlier solve of the same scene started closer to the fixed point and stopped sooner,
+    /// but made the reported bound depend on what was solved before).
     pub(crate) fn diffused(&mut self, unary: &[f64], sweeps: usize, target: f64) -> f64 {
         let label_count = self.label_count;
         let node_count = self.row_minimum.len();
@@ -196,34 +158,11 @@ impl PottsBound {
         if unary.len() != node_count * label_count || unary.iter().any(|v| !v.is_finite()) {
             return even;
         }
-        let key = shape_key(label_count, &self.edges);
-        let length = 2 * self.edges.len() * label_count;
-        let remembered = {
-            let mut kept = kept();
-            let found = kept.iter().position(|split| split.key == key);
-            found.map(|index| kept.remove(index).shift)
-        };
         self.shift.clear();
-        match remembered {
-            Some(shift) if shift.len() == length => {
-                self.shift.extend(shift.iter().map(|&value| value as f64));
-                // A node with one edge is never rebalanced: its shift must be 0 whatever was kept.
-                for node in 0..node_count {
-                    let incident = self.incident_start[node]..self.incident_start[node + 1];
-                    if incident.len() == 1 {
-                        let (edge, side) = self.incident[incident.start];
-                        self.shift
-                            [(2 * edge + side) * label_count..(2 * edge + side + 1) * label_count]
-                            .fill(0.0);
-                    }
-                }
-            }
-            _ => self.shift.resize(length, 0.0),
-        }
+        self.shift.resize(2 * self.edges.len() * label_count, 0.0);
         let mut here = vec![0.0; label_count];
         let mut there = vec![0.0; label_count];
         let mut average = vec![0.0; label_count];
-        // The remembered split is read only after a sweep has rebalanced it (see `KeptSplit`).
         let mut best = even;
         for _ in 0..sweeps {
             for node in 0..node_count {
@@ -238,13 +177,6 @@ impl PottsBound {
                 break;
             }
         }
-        let shift: Vec<f32> = self.shift.iter().map(|&value| value as f32).collect();
-        let mut kept = kept();
-        kept.retain(|split| split.key != key);
-        if kept.len() >= KEPT_SPLITS {
-            kept.remove(0);
-        }
-        kept.push(KeptSplit { key, shift });
         best
     }
 
