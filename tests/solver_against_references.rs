@@ -6,6 +6,7 @@
 use sayso::solver::expansion::alpha_expansion;
 use sayso::solver::labelling::{ExpansionOptions, LabellingProblem};
 use sayso::solver::maxflow_reference::{cut_capacity, FlowProblem};
+use sayso::solver::potts_labeller::{label_potts, CandidateLabels};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -131,13 +132,34 @@ fn alpha_expansion_is_within_a_thousandth_of_gco() {
             result.energy,
             gco
         );
+        // The labeller the joint solver runs, over every label and with its label pruning.
+        let every = label_potts(&problem, None, CandidateLabels::All).expect("valid");
+        let pruned = label_potts(
+            &problem,
+            None,
+            CandidateLabels::Pruned {
+                fine_count: problem.node_count,
+            },
+        )
+        .expect("valid");
+        assert!(
+            every.energy <= gco * 1.001,
+            "{}: the joint labeller {} vs GCO {}",
+            case.name,
+            every.energy,
+            gco
+        );
         println!(
-            "{}: sayso {} GCO {} ({:+.3}%) in {} sweeps",
+            "{}: sayso {} GCO {} ({:+.3}%) in {} sweeps; joint labeller {} ({:+.3}%), pruned {} ({:+.3}%)",
             case.name,
             result.energy,
             gco,
             100.0 * (result.energy - gco) / gco,
-            result.sweeps
+            result.sweeps,
+            every.energy,
+            100.0 * (every.energy - gco) / gco,
+            pruned.energy,
+            100.0 * (pruned.energy - gco) / gco,
         );
     }
 }

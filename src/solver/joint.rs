@@ -42,7 +42,7 @@ use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledTables};
 use crate::solver::joint_dual::{
     adapt_multipliers, diffused_dual_bound, dual_value, fresh_multipliers, subgradient_step,
 };
-use crate::solver::joint_labeller::{candidate_table, Labeller, LabellerTables};
+use crate::solver::joint_labeller::{candidate_table, widen_to_coarse, Labeller, LabellerTables};
 use crate::solver::joint_moves::{polish, try_class_removals, try_hypothesis_moves};
 use crate::solver::potts_bound::PottsBound;
 
@@ -290,19 +290,13 @@ fn candidates(energy: &JointEnergy, unary: &[f64]) -> Vec<bool> {
         }
     }
     let mut table = candidate_table(unary, energy.fine_count, label_count, &extra);
-    table.resize(energy.node_count * label_count, false);
-    for &(a, b, _) in &energy.edges {
-        let (fine, coarse) = match (a as usize, b as usize) {
-            (a, b) if a < energy.fine_count && b >= energy.fine_count => (a, b),
-            (a, b) if b < energy.fine_count && a >= energy.fine_count => (b, a),
-            _ => continue,
-        };
-        for label in 0..label_count {
-            if table[fine * label_count + label] {
-                table[coarse * label_count + label] = true;
-            }
-        }
-    }
+    widen_to_coarse(
+        &mut table,
+        energy.fine_count,
+        energy.node_count,
+        label_count,
+        &energy.edges,
+    );
     table
 }
 
@@ -549,8 +543,13 @@ pub fn solve_joint(
     try_class_removals(&context, &mut workspace, &mut best);
     try_hypothesis_moves(&context, &mut best);
     if gap(best.energy, lower_bound) > TIGHTEN_ABOVE_GAP.max(options.gap_tolerance) {
-        let tighter =
-            diffused_dual_bound(&context, &mut workspace, &best_multipliers, FINAL_SWEEPS);
+        let tighter = diffused_dual_bound(
+            &context,
+            &mut workspace,
+            &best_multipliers,
+            FINAL_SWEEPS,
+            best.energy,
+        );
         lower_bound = lower_bound.max(tighter);
     }
     if energy.node_count * label_count <= options.polish_budget

@@ -104,16 +104,21 @@ fn coupled_minimum(context: &Context, multipliers: &Multipliers) -> CoupledResul
 
 /// The dual function at `multipliers` with the segment part bounded by `sweeps` sweeps of min-sum
 /// diffusion (`PottsBound::diffused`) instead of the even split: a tighter valid bound, too costly for
-/// every iteration of the loop, taken once at the best multipliers.
+/// every iteration of the loop, taken once at the best multipliers. The sweeps stop early once they close
+/// little of the gap to `energy_found`, the energy of a state the caller holds.
 pub(crate) fn diffused_dual_bound(
     context: &Context,
     workspace: &mut Workspace,
     multipliers: &Multipliers,
     sweeps: usize,
+    energy_found: f64,
 ) -> f64 {
     shift_unary(context, workspace, multipliers);
-    let segment_bound = workspace.bound.diffused(&workspace.unary, sweeps);
-    segment_bound + coupled_minimum(context, multipliers).value
+    let coupled = coupled_minimum(context, multipliers).value;
+    let segment_bound = workspace
+        .bound
+        .diffused(&workspace.unary, sweeps, energy_found - coupled);
+    segment_bound + coupled
 }
 
 /// One evaluation of the dual function at the current multipliers.

@@ -482,6 +482,30 @@ pub(crate) fn candidate_table(
     table
 }
 
+/// Grows a candidate table of the first `fine_count` nodes to all `node_count` nodes: a coarse node (index
+/// `fine_count` and up) may take every label one of the fine nodes it is linked to may take.
+pub(crate) fn widen_to_coarse<W: Copy>(
+    table: &mut Vec<bool>,
+    fine_count: usize,
+    node_count: usize,
+    label_count: usize,
+    edges: &[(u32, u32, W)],
+) {
+    table.resize(node_count * label_count, false);
+    for &(a, b, _) in edges {
+        let (fine, coarse) = match (a as usize, b as usize) {
+            (a, b) if a < fine_count && b >= fine_count => (a, b),
+            (a, b) if b < fine_count && a >= fine_count => (b, a),
+            _ => continue,
+        };
+        for label in 0..label_count {
+            if table[fine * label_count + label] {
+                table[coarse * label_count + label] = true;
+            }
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -585,14 +609,20 @@ mod tests {
         assert_eq!(brute_force_minimum(&unary, 2, &edges), 3.0);
         let mut bound = PottsBound::new(3, 2, &edges);
         assert_eq!(bound.bound(&unary), 0.0);
-        let diffused = bound.diffused(&unary, 50);
+        let diffused = bound.diffused(&unary, 50, f64::INFINITY);
         assert!((diffused - 3.0).abs() < 1e-6, "{diffused}");
         // Bad input: the wrong length or a non-finite unary falls back to the even split.
-        assert_eq!(bound.diffused(&unary[..4], 50), f64::NEG_INFINITY);
+        assert_eq!(
+            bound.diffused(&unary[..4], 50, f64::INFINITY),
+            f64::NEG_INFINITY
+        );
         let mut broken = unary;
         broken[2] = f64::NAN;
         let even = bound.bound(&broken);
-        assert_eq!(bound.diffused(&broken, 50).to_bits(), even.to_bits());
+        assert_eq!(
+            bound.diffused(&broken, 50, f64::INFINITY).to_bits(),
+            even.to_bits()
+        );
     }
 
     proptest::proptest! {
@@ -607,7 +637,7 @@ mod tests {
             let even = bound.bound(&unary);
             proptest::prop_assert!(even <= minimum + 1e-9);
             // Diffusion never lowers the bound and never passes the minimum.
-            let diffused = bound.diffused(&unary, 20);
+            let diffused = bound.diffused(&unary, 20, f64::INFINITY);
             proptest::prop_assert!(diffused >= even - 1e-9);
             proptest::prop_assert!(diffused <= minimum + 1e-9, "{} > {}", diffused, minimum);
         }

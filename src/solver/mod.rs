@@ -14,3 +14,4 @@ pub mod labelling;
 pub mod maxflow;
 pub mod maxflow_reference;
 mod potts_bound;
+pub mod potts_labeller;
