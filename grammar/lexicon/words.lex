@@ -433,6 +433,15 @@ immediately -> skip
 down -> skip
 located -> skip
 standing -> skip
+stuck -> skip
+sleeping -> skip
+curled -> skip
+perched -> skip
+tucked -> skip
+leaning -> skip
+hidden -> skip
+kept -> skip
+stored -> skip
 sitting -> skip
 lying -> skip
 resting -> skip
