@@ -84,3 +84,20 @@ puppies -> class dog plural puppy
 kitten -> class cat
 kitty -> class cat
 kitties -> class cat plural kitty
+
+# Compound names whose first word alone is no class word (or another class): the whole phrase names one
+# thing, so "floor lamp" is a lamp, not a floor and a lamp.
+cardboard box -> class box
+cardboard boxes -> class box plural cardboard box
+tea towel -> class towel
+bath towel -> class towel
+water bottle -> class bottle
+teddy bear -> class toy
+coffee mug -> class mug
+coffee cup -> class mug
+floor lamp -> class lamp
+table lamp -> class lamp
+desk lamp -> class lamp
+office chair -> class chair
+dining chair -> class chair
+kitchen counter -> class counter

@@ -78,6 +78,8 @@ here -> skip
 # Negation and the word "no" (quantity, negation or repair cue, decided from context).
 not -> negation
 never -> negation
+neither -> negation
+nor = and
 cannot -> negation
 
 # Deictics.
@@ -238,7 +240,12 @@ near -> relation next_to
 nearby -> relation next_to
 close to -> relation next_to
 against -> relation next_to
+the side of -> skip
 left of -> relation left_of
+to left of -> relation left_of
+on left of -> relation left_of
+to right of -> relation right_of
+on right of -> relation right_of
 to the left of -> relation left_of
 on the left of -> relation left_of
 on the left hand side of -> relation left_of
@@ -302,6 +309,16 @@ in the background -> region back
 at the front -> region front
 in the front -> region front
 in the foreground -> region front
+at left -> region left
+at right -> region right
+on left -> region left
+on right -> region right
+at top -> region top
+at bottom -> region bottom
+in centre -> region centre
+in center -> region centre
+in middle -> region centre
+in corner -> region corner
 left -> side left
 right -> side right
 
@@ -323,12 +340,12 @@ sitting room -> room living_room
 front room -> room living_room
 bedroom -> room bedroom
 bathroom -> room bathroom
-toilet -> room bathroom
 hallway -> room hallway
 hall -> room hallway
 corridor -> room hallway
 landing -> room hallway
 office -> room office
+home office -> room office
 study -> room office
 dining room -> room dining_room
 
@@ -356,9 +373,9 @@ like -> filler
 you know -> filler
 well -> filler
 so -> filler
-okay -> filler
-ok -> filler
-alright -> filler
+okay -> greeting
+ok -> greeting
+alright -> greeting
 anyway -> filler
 basically -> filler
 actually -> filler
@@ -401,12 +418,12 @@ today -> skip
 right now -> skip
 over there -> skip
 just there -> skip
-great -> skip
-good -> skip
-nice -> skip
-perfect -> skip
-yes -> skip
-yeah -> skip
+great -> greeting
+good -> greeting
+nice -> greeting
+perfect -> greeting
+yes -> greeting
+yeah -> greeting
 then -> skip
 from -> skip
 anywhere -> skip
@@ -416,6 +433,15 @@ immediately -> skip
 down -> skip
 located -> skip
 standing -> skip
+stuck -> skip
+sleeping -> skip
+curled -> skip
+perched -> skip
+tucked -> skip
+leaning -> skip
+hidden -> skip
+kept -> skip
+stored -> skip
 sitting -> skip
 lying -> skip
 resting -> skip
@@ -458,6 +484,14 @@ stop -> request
 find -> request
 get -> request
 grab -> request
+clear -> request
+look at -> request
+feed -> request
+drop -> request
+check -> request
+wait here -> request
+can you see -> question
+do you see -> question
 let's -> request
 what -> question
 where -> question
@@ -479,6 +513,15 @@ well done -> thanks
 good job -> thanks
 nice work -> thanks
 hello -> greeting
+exactly right -> greeting
+all good -> greeting
+fine -> greeting
+hang on -> greeting
+never mind -> greeting
+doing great -> greeting
+i am home -> greeting
+get started -> greeting
+what a mess -> greeting
 hi -> greeting
 good morning -> greeting
 good afternoon -> greeting

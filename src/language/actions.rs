@@ -10,7 +10,7 @@ use crate::ids::ClassId;
 
 use super::chunks::{AttachedRelation, Chunk, ChunkKind, NounPhrase, Quantity};
 use super::constraint::{
-    Constraint, ConstraintKind, Count, Deixis, Place, Referent, RelationClause, Span,
+    Constraint, ConstraintKind, Count, Deixis, Place, Referent, Relation, RelationClause, Span,
 };
 use super::rules::{Action, Match};
 
@@ -29,6 +29,8 @@ pub struct Builder {
     /// The last noun phrase with a class that no rule used ("you have the mug somewhere else"): a later "it"
     /// in the same utterance means it, since the conversation never saw it as a referent.
     unused_antecedent: Option<NounPhrase>,
+    /// The last relation stated (subject, relation, landmarks), for ", not on the table".
+    last_relation: Option<(Referent, Relation, Vec<Referent>)>,
     pub constraints: Vec<Constraint>,
 }
 
@@ -39,6 +41,7 @@ impl Builder {
             seen_referent: false,
             last_class: None,
             unused_antecedent: None,
+            last_relation: None,
             constraints: Vec::new(),
         }
     }
@@ -162,8 +165,30 @@ impl Builder {
         let negated = !found.role("negated").is_empty();
         match found.rule.action {
             Action::Exist => {
-                if let Some(np) = first_phrase("np") {
+                // "There's neither a pillow nor a blanket": each listed noun phrase.
+                for np in found.role("np").into_iter().filter_map(phrase) {
                     self.exist(&np, negated, span, misspelled);
+                }
+            }
+            Action::Located => {
+                if let Some(np) = first_phrase("np") {
+                    let stated = np.article || np.quantity.is_some();
+                    let before = self.constraints.len();
+                    self.exist(&np, negated, span, misspelled);
+                    if !stated {
+                        // A bare noun with a relation ("desk below window") says where, not that.
+                        let mut index = before;
+                        while index < self.constraints.len() {
+                            if matches!(
+                                self.constraints[index].kind,
+                                ConstraintKind::Present { .. }
+                            ) {
+                                self.constraints.remove(index);
+                            } else {
+                                index += 1;
+                            }
+                        }
+                    }
                 }
             }
             Action::Relabel => {
@@ -232,9 +257,29 @@ impl Builder {
                 }
             }
             Action::Relation => {
+                let subjects: Vec<NounPhrase> = found
+                    .role("subject")
+                    .into_iter()
+                    .filter_map(phrase)
+                    .collect();
+                // "The plant and the lamp are by the sofa": one relation per coordinated subject.
+                for extra in subjects.iter().skip(1) {
+                    let mut single = found.clone();
+                    single.roles.retain(|(role, index)| {
+                        *role != "subject" || chunks[*index].span == extra.span
+                    });
+                    self.apply(&single, chunks, position);
+                }
                 let Some(subject) = first_phrase("subject") else {
                     return;
                 };
+                // "In the microwave there's a plate": a fronted place with "there is" or "a" says the
+                // thing exists too.
+                if found.rule.name.starts_with("relation_fronted")
+                    && (subject.article || subject.quantity.is_some())
+                {
+                    self.exist(&subject, false, span, misspelled);
+                }
                 let relation =
                     found
                         .role("relation")
@@ -253,10 +298,11 @@ impl Builder {
                     .collect();
                 self.count_of_subject(&subject, span, misspelled);
                 let subject_referent = self.referent(&subject);
-                let landmarks = landmark_phrases
+                let landmarks: Vec<Referent> = landmark_phrases
                     .iter()
                     .map(|landmark| self.plain_referent(landmark))
                     .collect();
+                self.last_relation = Some((subject_referent.clone(), relation, landmarks.clone()));
                 self.push(
                     ConstraintKind::Relation {
                         subject: subject_referent,
@@ -268,6 +314,58 @@ impl Builder {
                     misspelled,
                 );
             }
+            Action::RelationMore => {
+                // ", not on the table", "and left of the lamp", ", not the sofa", ", not on it": the subject
+                // of the last relation; no relation word repeats the last one, and "it" its landmark.
+                let Some((subject, last, last_landmarks)) = self.last_relation.clone() else {
+                    return;
+                };
+                let relation = found
+                    .role("relation")
+                    .first()
+                    .and_then(|&index| match chunks[index].kind {
+                        ChunkKind::Relation(relation) => Some(relation),
+                        _ => None,
+                    })
+                    .unwrap_or(last);
+                let landmark_phrases: Vec<NounPhrase> = found
+                    .role("landmark")
+                    .into_iter()
+                    .filter_map(phrase)
+                    .collect();
+                let points_back = landmark_phrases.len() == 1
+                    && landmark_phrases[0].class.is_none()
+                    && landmark_phrases[0].deictic.is_some_and(|word| word.pronoun);
+                if points_back && negated {
+                    // "On the cabinet, not next to it" is left to the first relation: the trial's dev
+                    // phrasings read it as that one fact.
+                    return;
+                }
+                let landmarks: Vec<Referent> = if points_back {
+                    last_landmarks
+                } else {
+                    landmark_phrases
+                        .iter()
+                        .map(|landmark| self.plain_referent(landmark))
+                        .collect()
+                };
+                let wanted = if relation == Relation::Between { 2 } else { 1 };
+                if landmarks.len() != wanted {
+                    return;
+                }
+                self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
+                self.push(
+                    ConstraintKind::Relation {
+                        subject,
+                        relation,
+                        negated,
+                        landmarks,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
+            Action::Unread => {}
             Action::Place => {
                 let Some(subject) = first_phrase("subject") else {
                     return;

@@ -50,6 +50,8 @@ pub struct NounPhrase {
     pub quantity: Option<Quantity>,
     pub relations: Vec<AttachedRelation>,
     pub region: Option<ImageRegion>,
+    /// Introduced by "a" or "an": the shape of an identity statement ("is a towel").
+    pub article: bool,
     pub span: Span,
 }
 
@@ -134,6 +136,7 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
     let mut quantity = None;
     let mut deictic = None;
     let mut determiner = false;
+    let mut article = false;
     let mut misspelled = false;
     let mut lead_number = None;
     let mut number_compared = false;
@@ -143,7 +146,10 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
             determiner = true;
             index += 1;
         }
-        Tag::Article => index += 1,
+        Tag::Article => {
+            article = true;
+            index += 1;
+        }
         Tag::Deictic { pronoun, plural } => {
             deictic = Some(DeicticWord { pronoun, plural });
             index += 1;
@@ -272,6 +278,7 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
                         quantity: None,
                         relations: Vec::new(),
                         region: None,
+                        article: false,
                         span,
                     }),
                     span,
@@ -311,6 +318,7 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
                 quantity,
                 relations: Vec::new(),
                 region: None,
+                article,
                 span,
             }),
             span,
@@ -524,7 +532,35 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
             }
         }
     }
+    share_relations(&mut chunks);
     chunks
+}
+
+/// "Four mugs and a plate in the sink": a stated noun phrase ("four mugs", "a plate") joined by "and" to a
+/// located one shares its place. A phrase with "the" never does, so a landmark ("on the bed and the dog
+/// under the table") keeps its own meaning.
+fn share_relations(chunks: &mut [Chunk]) {
+    for index in (0..chunks.len().saturating_sub(2)).rev() {
+        let shared = match (&chunks[index + 1].kind, &chunks[index + 2].kind) {
+            (ChunkKind::And, ChunkKind::NounPhrase(next))
+                if !next.relations.is_empty() || next.region.is_some() =>
+            {
+                (next.relations.clone(), next.region)
+            }
+            _ => continue,
+        };
+        if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
+            let stated = phrase.article
+                || !matches!(
+                    phrase.quantity,
+                    None | Some(Quantity::None) | Some(Quantity::Exactly(0))
+                );
+            if stated && phrase.relations.is_empty() && phrase.region.is_none() {
+                phrase.relations = shared.0;
+                phrase.region = shared.1;
+            }
+        }
+    }
 }
 
 /// One landmark noun phrase at `start`, or two joined by "and" for "between"; returns them and the number

@@ -14,7 +14,7 @@ use crate::taxonomy::Taxonomy;
 use super::constraint::{ColourTerm, ImageRegion, Relation, SizeTerm};
 use super::error::GrammarError;
 pub use super::lexicon_syntax::{parse_colour, parse_region, parse_relation};
-use super::lexicon_syntax::{parse_line, split_words, LexLine};
+use super::lexicon_syntax::{parse_line, split_words, Condition, LexLine};
 
 /// A stated quantity before a comparator is applied.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -144,7 +144,7 @@ struct Continuation<T> {
 #[derive(Clone, Debug, Default)]
 pub struct Lexicon {
     phrases: HashMap<String, Vec<Continuation<Tag>>>,
-    rewrites: HashMap<String, Vec<Continuation<Vec<String>>>>,
+    rewrites: HashMap<String, Vec<Continuation<(Vec<String>, Vec<Condition>)>>>,
     class_words: Vec<ClassWord>,
     /// Single words offered for spelling correction, sorted for deterministic ties.
     spelling_words: Vec<(String, Tag)>,
@@ -177,7 +177,14 @@ impl Lexicon {
                 let parsed = parse_line(line, taxonomy)
                     .map_err(|message| GrammarError::line(file, line_number, message))?;
                 let phrase_key = match &parsed {
-                    LexLine::Tag(words, ..) | LexLine::Rewrite(words, _) => words.join(" "),
+                    LexLine::Tag(words, ..) => words.join(" "),
+                    LexLine::Rewrite(words, _, conditions) if conditions.is_empty() => {
+                        words.join(" ")
+                    }
+                    // A conditional rewrite may share its phrase with a tag or another condition.
+                    LexLine::Rewrite(words, _, conditions) => {
+                        format!("{} {conditions:?}", words.join(" "))
+                    }
                 };
                 if let Some(previous) =
                     seen.insert(phrase_key.clone(), format!("{file}:{line_number}"))
@@ -189,8 +196,8 @@ impl Lexicon {
                     ));
                 }
                 match parsed {
-                    LexLine::Rewrite(words, replacement) => {
-                        lexicon.insert_rewrite(words, replacement)
+                    LexLine::Rewrite(words, replacement, conditions) => {
+                        lexicon.insert_rewrite(words, replacement, conditions)
                     }
                     LexLine::Tag(words, tag, extra) => {
                         if let (Tag::Class { class, plural }, Some(extra)) = (tag, &extra) {
@@ -305,16 +312,62 @@ impl Lexicon {
         entry.sort_by_key(|continuation| std::cmp::Reverse(continuation.rest.len()));
     }
 
-    fn insert_rewrite(&mut self, words: Vec<String>, replacement: Vec<String>) {
+    fn insert_rewrite(
+        &mut self,
+        words: Vec<String>,
+        replacement: Vec<String>,
+        conditions: Vec<Condition>,
+    ) {
         let mut words = words.into_iter();
         let Some(first) = words.next() else { return };
         let rest: Vec<String> = words.collect();
         let entry = self.rewrites.entry(first).or_default();
         entry.push(Continuation {
             rest,
-            value: replacement,
+            value: (replacement, conditions),
         });
-        entry.sort_by_key(|continuation| std::cmp::Reverse(continuation.rest.len()));
+        // Longest first; among equally long phrases, conditional rewrites before the plain one.
+        entry.sort_by_key(|continuation| {
+            (
+                std::cmp::Reverse(continuation.rest.len()),
+                continuation.value.1.is_empty(),
+            )
+        });
+    }
+
+    /// Whether one neighbour word (and the words after it, for a class phrase) meets a rewrite condition.
+    fn condition_holds<S: AsRef<str>>(
+        &self,
+        condition: &Condition,
+        previous: Option<&str>,
+        following: &[S],
+    ) -> bool {
+        let listed = condition.words.iter().any(|wanted| {
+            if condition.after {
+                return previous == Some(wanted.as_str());
+            }
+            let Some(next) = following.first() else {
+                return wanted == "<end>";
+            };
+            match wanted.as_str() {
+                "<class>" | "<plural>" => match self.longest_phrase(following) {
+                    Some(Found {
+                        tag: Tag::Class { plural, .. },
+                        ..
+                    }) => wanted == "<class>" || plural,
+                    _ => false,
+                },
+                "<number>" => {
+                    next.as_ref().chars().all(|c| c.is_ascii_digit())
+                        || matches!(
+                            self.longest_phrase(following).map(|found| found.tag),
+                            Some(Tag::Number(_) | Tag::Tens(_))
+                        )
+                }
+                word => next.as_ref() == word,
+            }
+        });
+        listed != condition.negated
     }
 
     /// The longest phrase starting at `words[0]`.
@@ -334,17 +387,27 @@ impl Lexicon {
         })
     }
 
-    /// The longest rewrite starting at `words[0]`: how many words it replaces and with what.
-    pub fn longest_rewrite<S: AsRef<str>>(&self, words: &[S]) -> Option<(usize, &[String])> {
+    /// The longest rewrite starting at `words[0]` whose conditions hold: how many words it replaces and
+    /// with what. `previous` is the word before, as already rewritten.
+    pub fn longest_rewrite<S: AsRef<str>>(
+        &self,
+        words: &[S],
+        previous: Option<&str>,
+    ) -> Option<(usize, &[String])> {
         let first = words.first()?;
         let continuations = self.rewrites.get(first.as_ref())?;
         continuations.iter().find_map(|continuation| {
-            let rest = words.get(1..1 + continuation.rest.len())?;
+            let length = 1 + continuation.rest.len();
+            let rest = words.get(1..length)?;
             let matches = rest
                 .iter()
                 .zip(&continuation.rest)
                 .all(|(word, expected)| word.as_ref() == expected);
-            matches.then_some((1 + continuation.rest.len(), continuation.value.as_slice()))
+            let (replacement, conditions) = &continuation.value;
+            let context = conditions
+                .iter()
+                .all(|condition| self.condition_holds(condition, previous, &words[length..]));
+            (matches && context).then_some((length, replacement.as_slice()))
         })
     }
 

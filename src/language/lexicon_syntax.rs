@@ -1,7 +1,8 @@
 //! The `.lex` line syntax: one lexicon line to a phrase and its tag (or a rewrite), with the messages that
 //! name what is wrong on a bad line; and the names of relations, regions and colour terms.
 //!
-//! Owns: reading `phrase -> kind [value] [flags]` and `phrase = replacement` lines.
+//! Owns: reading `phrase -> kind [value] [flags]` and `phrase = replacement [when|unless after|before W|W]`
+//! lines.
 //! Must not: insert into the lexicon or generate plurals; `lexicon` does that with what this returns.
 
 use crate::taxonomy::Taxonomy;
@@ -12,7 +13,54 @@ use super::lexicon::{Comparator, QuantityWord, Side, Tag};
 /// One parsed lexicon line, before it is inserted.
 pub(super) enum LexLine {
     Tag(Vec<String>, Tag, Option<ClassExtra>),
-    Rewrite(Vec<String>, Vec<String>),
+    Rewrite(Vec<String>, Vec<String>, Vec<Condition>),
+}
+
+/// A context a conditional rewrite needs: `when after WORD|WORD`, `when before WORD|<class>|<plural>`,
+/// `unless ...` for the opposite.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Condition {
+    /// The word before the phrase (after its own rewriting), else the word after it.
+    pub after: bool,
+    /// The condition holds when the neighbour is *not* listed.
+    pub negated: bool,
+    /// Listed words; `<class>` is any class word, `<plural>` a plural class word, `<number>` a number.
+    pub words: Vec<String>,
+}
+
+/// Reads the conditions after a rewrite's replacement: `when|unless after|before WORD|WORD ...`.
+fn split_conditions(right: &str) -> Result<(Vec<String>, Vec<Condition>), String> {
+    let mut fields = right.split_whitespace().peekable();
+    let mut replacement = Vec::new();
+    while let Some(word) = fields.next_if(|word| *word != "when" && *word != "unless") {
+        replacement.push(word.to_string());
+    }
+    let mut conditions = Vec::new();
+    while let Some(keyword) = fields.next() {
+        let side = fields.next().unwrap_or("");
+        let after = match side {
+            "after" => true,
+            "before" => false,
+            other => {
+                return Err(format!(
+                    "'{keyword}' must be followed by after or before, found '{other}'"
+                ))
+            }
+        };
+        let list = fields
+            .next()
+            .ok_or_else(|| format!("'{keyword} {side}' needs words joined by |"))?;
+        let words: Vec<String> = list.split('|').map(str::to_string).collect();
+        if words.iter().any(|word| word.is_empty()) {
+            return Err(format!("empty word in '{list}'"));
+        }
+        conditions.push(Condition {
+            after,
+            negated: keyword == "unless",
+            words,
+        });
+    }
+    Ok((replacement, conditions))
 }
 
 /// Extra facts on a class line.
@@ -29,11 +77,11 @@ pub(super) fn split_words(phrase: &str) -> Vec<String> {
 pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, String> {
     if let Some((left, right)) = line.split_once(" = ") {
         let words = split_words(left);
-        let replacement = split_words(right);
+        let (replacement, conditions) = split_conditions(right)?;
         if words.is_empty() || replacement.is_empty() {
             return Err("a rewrite needs words on both sides of ' = '".to_string());
         }
-        return Ok(LexLine::Rewrite(words, replacement));
+        return Ok(LexLine::Rewrite(words, replacement, conditions));
     }
     let Some((left, right)) = line.split_once(" -> ") else {
         return Err(format!(

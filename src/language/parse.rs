@@ -21,7 +21,7 @@ use super::error::{GrammarError, LanguageError};
 use super::lexicon::{Lexicon, Tag};
 use super::normalise::normalise;
 use super::notation::constraint_gloss;
-use super::rules::{best_match, parse_rules, Rule};
+use super::rules::{best_match, parse_rules, Action, Rule};
 use super::tagging::{clean, tag_sentences, ItemTag};
 use super::tokens::tokenise;
 
@@ -132,12 +132,20 @@ const EMBEDDED_LEXICON: &[(&str, &str)] = &[
         include_str!("../../grammar/lexicon/colours.lex"),
     ),
     (
+        "lexicon/notes.lex",
+        include_str!("../../grammar/lexicon/notes.lex"),
+    ),
+    (
         "lexicon/numbers.lex",
         include_str!("../../grammar/lexicon/numbers.lex"),
     ),
     (
         "lexicon/quantities.lex",
         include_str!("../../grammar/lexicon/quantities.lex"),
+    ),
+    (
+        "lexicon/slips.lex",
+        include_str!("../../grammar/lexicon/slips.lex"),
     ),
     (
         "lexicon/words.lex",
@@ -316,6 +324,11 @@ impl Grammar {
                 }
                 match best_match(&self.rules, &chunks, position) {
                     Some(found) => {
+                        if found.rule.action == Action::Unread {
+                            let end = position + found.length - 1;
+                            let span = chunks[position].span.cover(chunks[end].span);
+                            ignored_raw.push((span, IgnoredReason::NoRuleMatched));
+                        }
                         builder.apply(&found, &chunks, position);
                         for chunk in &chunks[position..position + found.length] {
                             builder.mention(chunk, true);
@@ -390,7 +403,8 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
         )
     })?;
     match first.tag {
-        ItemTag::Lexicon(Tag::Question) => return Some(UtteranceKind::Question),
+        // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
+        ItemTag::Lexicon(Tag::Question | Tag::Be) => return Some(UtteranceKind::Question),
         ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
         _ => {}
     }

@@ -50,6 +50,8 @@ pub enum Filter {
     Counted,
     /// A noun phrase with a relation phrase attached ("mug left of cabinet").
     Related,
+    /// A noun phrase introduced by "a" or "an" ("is a towel").
+    Indefinite,
     /// A relation phrase of one relation.
     Relation(Relation),
 }
@@ -73,6 +75,8 @@ pub struct PatternItem {
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Action {
     Exist,
+    /// "mugs by desk", "a cat to L of lamp": as `exist`, but the bare noun states no presence of its own.
+    Located,
     Relabel,
     RelabelCalled,
     RoomType,
@@ -81,12 +85,18 @@ pub enum Action {
     Attribute,
     Have,
     Count,
+    /// A further relation of the last relation's subject: ", not on the table", "and left of the lamp".
+    RelationMore,
+    /// Words that hold together but state nothing the parser can use ("is in the kitchen" after an unknown
+    /// subject): consumed so no part is misread, and reported as not understood.
+    Unread,
 }
 
 impl Action {
     fn parse(name: &str) -> Option<Action> {
         Some(match name {
             "exist" => Action::Exist,
+            "located" => Action::Located,
             "relabel" => Action::Relabel,
             "relabel_called" => Action::RelabelCalled,
             "room_type" => Action::RoomType,
@@ -95,6 +105,8 @@ impl Action {
             "attribute" => Action::Attribute,
             "have" => Action::Have,
             "count" => Action::Count,
+            "relation_more" => Action::RelationMore,
+            "unread" => Action::Unread,
             _ => return None,
         })
     }
@@ -102,7 +114,7 @@ impl Action {
     /// Roles the action may read; the first list must all be present, the second are optional.
     fn roles(self) -> (&'static [&'static str], &'static [&'static str]) {
         match self {
-            Action::Exist => (&["np"], &["negated"]),
+            Action::Exist | Action::Located => (&["np"], &["negated"]),
             Action::Relabel => (&[], &["target", "from", "to"]),
             Action::RelabelCalled => (&["target", "from"], &[]),
             Action::RoomType => (&["room"], &["negated"]),
@@ -111,6 +123,8 @@ impl Action {
             Action::Attribute => (&["subject", "attributes"], &[]),
             Action::Have => (&["owner", "np"], &["negated"]),
             Action::Count => (&["number"], &["np", "negated"]),
+            Action::RelationMore => (&["landmark"], &["relation", "negated"]),
+            Action::Unread => (&[], &[]),
         }
     }
 }
@@ -283,6 +297,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             (Symbol::NounPhrase, Some("deictic")) => Some(Filter::Deictic),
             (Symbol::NounPhrase, Some("counted")) => Some(Filter::Counted),
             (Symbol::NounPhrase, Some("related")) => Some(Filter::Related),
+            (Symbol::NounPhrase, Some("indefinite")) => Some(Filter::Indefinite),
             (Symbol::Relation | Symbol::Reciprocal, Some(name)) => {
                 Some(Filter::Relation(parse_relation(name)?))
             }
@@ -310,6 +325,7 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
                 Some(Quantity::Exactly(_) | Quantity::AtLeast(_) | Quantity::AtMost(_))
             ),
             Some(Filter::Related) => !phrase.relations.is_empty(),
+            Some(Filter::Indefinite) => phrase.article,
             Some(Filter::Relation(_)) => false,
         },
         (Symbol::Relation, ChunkKind::Relation(relation))

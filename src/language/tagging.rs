@@ -1,6 +1,8 @@
 //! Tagging: tokens to lexicon items, with rewrites, numbers, spelling correction and speech clean-up.
 //!
-//! Owns: applying rewrites ("that's" -> "that is", "r" -> "are", "bag's" -> "bag is"), longest-phrase
+//! Owns: applying rewrites ("that's" -> "that is", "r" -> "are", "bag's" -> "bag is", conditional slips
+//! such as "to" -> "two" before a plural class word), note counts ("mugs x9" -> "9 mugs", "3+" -> "at least
+//! 3"), longest-phrase
 //! tagging, digits and compound numbers ("forty-two"), accepting misspellings, and removing fillers,
 //! function words, cut-off fragments and stuttered repeats, each recorded as ignored with a reason.
 //! Must not: group items into phrases or decide meaning; that is `chunks` and `rules`.
@@ -67,20 +69,81 @@ fn rewrite(lexicon: &Lexicon, tokens: &[Token]) -> Vec<Word> {
             index += 1;
             continue;
         }
+        if let Some(number) = note_multiplier(&token.text) {
+            // "mugs by desk x9": the count moves before the clause's first class word ("9 mugs by desk").
+            let clause_start = words
+                .iter()
+                .rposition(|word| word.shape != TokenShape::Word)
+                .map_or(0, |index| index + 1);
+            let head = (clause_start..words.len()).find(|&index| {
+                matches!(
+                    lexicon.longest_phrase(&[words[index].text.as_str()]),
+                    Some(super::lexicon::Found {
+                        tag: Tag::Class { .. },
+                        ..
+                    })
+                )
+            });
+            if let Some(head) = head {
+                words.insert(
+                    head,
+                    Word {
+                        text: number.to_string(),
+                        span: token.span,
+                        shape: TokenShape::Word,
+                        fragment: false,
+                    },
+                );
+                index += 1;
+                continue;
+            }
+        }
+        let glued_plus = token.text == "+"
+            && words.last().is_some_and(|last| {
+                last.span.end == token.span.start
+                    && !last.text.is_empty()
+                    && last.text.chars().all(|c| c.is_ascii_digit())
+            });
+        if glued_plus {
+            // "3+": at least three.
+            if let Some(last) = words.pop() {
+                for text in ["at", "least"] {
+                    words.push(Word {
+                        text: text.to_string(),
+                        span: last.span,
+                        shape: TokenShape::Word,
+                        fragment: false,
+                    });
+                }
+                words.push(last);
+            }
+            index += 1;
+            continue;
+        }
         // A window of following word tokens for multi-word rewrites.
         let window: Vec<&str> = tokens[index..]
             .iter()
-            .take(4)
+            .take(6)
             .take_while(|token| token.shape == TokenShape::Word)
             .map(|token| token.text.as_str())
             .collect();
-        if let Some((length, replacement)) = lexicon.longest_rewrite(&window) {
+        let previous = words
+            .last()
+            .filter(|word| word.shape == TokenShape::Word)
+            .map(|word| word.text.as_str());
+        if let Some((length, replacement)) = lexicon.longest_rewrite(&window, previous) {
             let span = tokens[index].span.cover(tokens[index + length - 1].span);
             for text in replacement {
+                // A rewrite to punctuation ("/ = ;") separates clauses like the punctuation itself.
+                let shape = match text.as_str() {
+                    "," | ":" => TokenShape::Pause,
+                    ";" | "." => TokenShape::Stop,
+                    _ => TokenShape::Word,
+                };
                 words.push(Word {
                     text: text.clone(),
                     span,
-                    shape: TokenShape::Word,
+                    shape,
                     fragment: false,
                 });
             }
@@ -118,6 +181,15 @@ fn rewrite(lexicon: &Lexicon, tokens: &[Token]) -> Vec<Word> {
         index += 1;
     }
     words
+}
+
+/// The count of a note's multiplier ("x9", "x 12" is not one): `Some(9)`.
+fn note_multiplier(text: &str) -> Option<u32> {
+    let digits = text.strip_prefix('x')?;
+    if digits.is_empty() || !digits.chars().all(|c| c.is_ascii_digit()) {
+        return None;
+    }
+    digits.parse().ok().filter(|number| *number < 1_000_000)
 }
 
 /// Tags tokens into sentences of items; records notes and ignored spans.
@@ -315,7 +387,9 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     )
 }
 
-/// Removes fillers (with the pauses around them), function words and stuttered repeats.
+/// Removes fillers (with the pauses around them), function words and stuttered repeats. Unknown words stay:
+/// no rule matches across one, so a clause with a word nobody understood is never read as something else
+/// ("the plant is buy the window" is not "the plant is the window").
 pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Item> {
     // Fillers and function words.
     let mut kept: Vec<Item> = Vec::with_capacity(items.len());
@@ -330,7 +404,6 @@ pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<
                 drop_next_pause = true;
             }
             ItemTag::Lexicon(Tag::Skip) => ignored.push((item.span, IgnoredReason::FunctionWord)),
-            ItemTag::Unknown => {}
             ItemTag::Pause if drop_next_pause => drop_next_pause = false,
             _ => {
                 drop_next_pause = false;

@@ -1,7 +1,8 @@
 //! Tokenisation of normalised text into words and clause punctuation, with spans into the original text.
 //!
 //! Owns: `Token`, word boundaries (Unicode UAX #29 via unicode-segmentation), which punctuation separates
-//! clauses or sentences, and word fragments cut off with a hyphen ("the m- the mug").
+//! clauses or sentences, note symbols kept as words for the lexicon to read ("/", "+", "&", "=", a
+//! spaced dash), and word fragments cut off with a hyphen ("the m- the mug").
 //! Must not: know any vocabulary; tagging is `lexicon`'s job.
 
 use unicode_segmentation::UnicodeSegmentation;
@@ -44,7 +45,17 @@ pub fn tokenise(normalised: &Normalised) -> Vec<Token> {
         let length = piece.chars().count();
         let start = character_index;
         let end = character_index + length;
+        let spaced = |offset: isize| {
+            let neighbour = piece_index as isize + offset;
+            neighbour < 0
+                || pieces
+                    .get(neighbour as usize)
+                    .is_none_or(|(_, next)| next.chars().all(char::is_whitespace))
+        };
         let shape = if piece.chars().any(|c| c.is_alphanumeric()) {
+            Some(TokenShape::Word)
+        } else if is_note_symbol(piece) && (*piece != "-" || (spaced(-1) && spaced(1))) {
+            // Note shorthand ("/", "+", "&", "=", ">=", a spaced dash): a word the lexicon rewrites.
             Some(TokenShape::Word)
         } else {
             match *piece {
@@ -62,6 +73,17 @@ pub fn tokenise(normalised: &Normalised) -> Vec<Token> {
                     .map(|(_, next)| next.chars().all(char::is_whitespace))
                     .unwrap_or(true);
             if let Some(span) = original_span(normalised, start, end) {
+                // Symbols written together (">=", "<=") make one word.
+                if let Some(previous) = tokens.last_mut().filter(|previous: &&mut Token| {
+                    is_note_symbol(&previous.text)
+                        && is_note_symbol(piece)
+                        && previous.span.end == span.start
+                }) {
+                    previous.text.push_str(piece);
+                    previous.span = previous.span.cover(span);
+                    character_index = end;
+                    continue;
+                }
                 tokens.push(Token {
                     text: piece.to_string(),
                     shape,
@@ -73,6 +95,11 @@ pub fn tokenise(normalised: &Normalised) -> Vec<Token> {
         character_index = end;
     }
     tokens
+}
+
+/// Symbols that field notes use as words or separators: the lexicon says what each one means.
+fn is_note_symbol(piece: &str) -> bool {
+    !piece.is_empty() && piece.chars().all(|c| "/+&=<>~".contains(c)) || piece == "-"
 }
 
 /// The original span of normalised characters `start..end`.

@@ -1,0 +1,81 @@
+# Field-note shorthand: abbreviations, symbols and clipped words typed in terse notes. Same syntax as
+# slips.lex; a rewrite to "," ":" ";" or "." separates clauses like that punctuation.
+
+# Symbols (the tokeniser keeps them as words; ">=" written together is one word).
+/ = ;
++ = ;
+& = and
+= = :
+>= = at least
+=> = at least
+<= = at most
+=< = at most
+> = more than
+< = fewer than
+- = ,
+~ = about
+
+# Sides and relations.
+l of = left of
+r of = right of
+to l of = left of
+to r of = right of
+to the l of = left of
+to the r of = right of
+on l = on the left
+on r = on the right
+l side = left side
+r side = right side
+nxt = next
+nxt to = next to
+undr = under
+blw = below
+bhd = behind
+bh = behind
+btwn = between
+betw = between
+btw = between
+abv = above
+front of = in front of unless after in|the|at|to
+frnt of = in front of
+infr of = in front of
+top = at the top unless after the|on|at|of
+btm = at the bottom
+bottom = at the bottom unless after the|on|at|of
+ctr = counter
+ctre = at the centre unless after the|in|at
+middle = in the middle unless after the|in|at
+
+# Clipped class words.
+tbl = table
+tbls = tables
+wdw = window
+wdws = windows
+cab = cabinet
+cabs = cabinets
+cupbd = cupboard
+cupbds = cupboards
+ppl = people
+pers = person
+bk = book
+bks = books
+bkshelf = bookshelf
+pic = picture
+rm = room
+liv rm = living room
+living rm = living room
+lvg rm = living room
+bed rm = bedroom
+bedrm = bedroom
+bath rm = bathroom
+bathrm = bathroom
+dining rm = dining room
+din rm = dining room
+hallwy = hallway
+kit = kitchen
+ofc = office
+
+# Quantities.
+max = at most
+min = at least
+w / = with

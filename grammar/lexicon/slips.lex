@@ -1,0 +1,110 @@
+# Speech-recognition slips a human reads through: homophones, near-homophones, and words the recogniser
+# split or joined. Rewrites run before tagging; a conditional rewrite applies only in the context it names:
+#   phrase = replacement when after W|W      the word before (as already rewritten) is listed
+#   phrase = replacement when before W|W     the word after is listed; <class> any class word, <plural> a
+#                                            plural class word, <number> a number
+#   unless after|before ...                  the opposite
+# A word read through a slip lowers the constraint's confidence like an accepted misspelling.
+
+# Numbers heard as other words.
+won = one
+fore = four
+ate = eight
+for = four when before <plural>
+for = four when after is|be|was when before <end>
+to = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
+too = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
+too = two when after is|be|was when before <end>
+to = two when after is|be|was when before <end>
+tree = three when before <plural>
+free = three when before <plural>
+
+# "no" heard as "know".
+know = no unless after you|i|not|do|we|they|to|dont|don't|didn't
+
+# "there" heard as "their" / "they're".
+their is = there is
+their are = there are
+their was = there was
+their were = there were
+their isn't = there is not
+their aren't = there are not
+theirs = there is
+their's = there is
+they're is = there is
+they're are = there are
+weir = we are
+
+# Relations and sides.
+write = right
+rite = right
+wright = right
+buy = by
+bye the = by the
+be hind = behind
+be tween = between
+be side = beside
+in front off = in front of
+front off = front of
+on top off = on top of
+next two = next to
+left off = left of
+right off = right of
+under neath = underneath
+in side = inside
+infront = in front
+inbetween = in between
+on to = onto
+
+# Words split or joined by the recogniser.
+cup board = cupboard
+cup boards = cupboards
+lap top = laptop
+lap tops = laptops
+tele vision = television
+tele visions = televisions
+tee vee = tv
+t v = tv
+re mote = remote
+re motes = remotes
+count her = counter
+count hers = counters
+so far = sofa
+so fas = sofas
+win doe = window
+win does = windows
+win dow = window
+hall way = hallway
+tow el = towel
+tow els = towels
+book shelf = bookshelf
+book shelves = bookshelves
+book case = bookcase
+arm chair = armchair
+arm chairs = armchairs
+pill ow = pillow
+pill ows = pillows
+dish washer = dishwasher
+bath room = bathroom
+bed room = bedroom
+kit chen = kitchen
+of fice = office
+living rum = living room
+
+# Near-homophones of class, colour and room words.
+bole = bowl
+boles = bowls
+boll = bowl
+bolls = bowls
+dore = door
+dores = doors
+disk = desk
+disks = desks
+wight = white
+coach = couch
+coaches = couches
+frig = fridge
+sync = sink
+syncs = sinks
+read = red when after is|are|be|was|looks
+blew = blue when after is|are|be|was|looks

@@ -1,0 +1,221 @@
+//! The operator-styles corpus (tests/language/styles_dev.jsonl and styles_heldout.jsonl, written blind by
+//! tests/language/styles_generator/) run through the parser: strict frame recall per style, constraints
+//! produced from sentences that are not corrections, and relabels nobody asked for.
+//!
+//! Owns: reading the two style files, scoring each line, printing the figures (and, for the development
+//! file only, the failing lines) and holding the floors.
+//! Must not: adjust expectations or print held-out lines; the held-out file is reported, never tuned on.
+
+use std::collections::BTreeMap;
+
+use sayso::language::notation::notation_list;
+use sayso::language::{parse_focus, Grammar, LanguageError};
+use serde::Deserialize;
+
+#[derive(Deserialize)]
+struct Line {
+    /// Style label.
+    c: String,
+    /// Utterance text.
+    u: String,
+    /// Expected constraints, `; `-separated, in the compact notation.
+    e: String,
+    /// Expected utterance kind (default: correction when constraints are expected, else unparsed).
+    #[serde(default)]
+    k: Option<String>,
+    /// Focus: object:ID or pixel:X,Y.
+    #[serde(default)]
+    f: Option<String>,
+}
+
+fn split_expected(text: &str) -> Vec<String> {
+    let mut list: Vec<String> = text
+        .split("; ")
+        .map(str::trim)
+        .filter(|part| !part.is_empty())
+        .map(str::to_string)
+        .collect();
+    list.sort();
+    list
+}
+
+/// The figures of one style file.
+#[derive(Default)]
+struct Score {
+    /// Per style: (frame-exact lines, lines).
+    per_style: BTreeMap<String, (usize, usize)>,
+    /// Lines expected to carry no constraint.
+    non_corrections: usize,
+    /// Constraints the parse produced on those lines.
+    spurious_constraints: usize,
+    /// Lines whose parse holds a relabel while the expectation holds none.
+    unasked_relabels: usize,
+    /// The failing lines, described.
+    failures: Vec<String>,
+    passed: usize,
+    total: usize,
+}
+
+fn is_relabel(notation: &str) -> bool {
+    notation.starts_with("relabel(")
+}
+
+fn score(grammar: &Grammar, text: &str) -> Score {
+    let mut result = Score::default();
+    for (index, raw) in text.lines().enumerate() {
+        if raw.trim().is_empty() {
+            continue;
+        }
+        let line: Line = serde_json::from_str(raw)
+            .unwrap_or_else(|error| panic!("style line {}: {error}", index + 1));
+        let focus = line
+            .f
+            .as_deref()
+            .map(|text| parse_focus(text).expect("style focus"));
+        let expected_kind = line.k.clone().unwrap_or_else(|| {
+            if line.e.trim().is_empty() {
+                "unparsed".into()
+            } else {
+                "correction".into()
+            }
+        });
+        let expected = split_expected(&line.e);
+        let (kind, mut got) = match grammar.parse(&line.u, focus) {
+            Ok(parse) => (
+                parse.utterance_kind.name().to_string(),
+                notation_list(&parse.constraints, grammar.taxonomy()),
+            ),
+            Err(LanguageError::TooLong { .. }) => ("error".to_string(), Vec::new()),
+            Err(other) => (format!("error: {other}"), Vec::new()),
+        };
+        got.sort();
+        if expected.is_empty() {
+            result.non_corrections += 1;
+            result.spurious_constraints += got.len();
+        }
+        if !expected.iter().any(|c| is_relabel(c)) && got.iter().any(|c| is_relabel(c)) {
+            result.unasked_relabels += 1;
+        }
+        let ok = kind == expected_kind && got == expected;
+        let entry = result.per_style.entry(line.c.clone()).or_default();
+        entry.1 += 1;
+        result.total += 1;
+        if ok {
+            entry.0 += 1;
+            result.passed += 1;
+        } else {
+            result.failures.push(format!(
+                "  line {} [{}] {:?}{}\n    expected {expected_kind} {expected:?}\n    got      {kind} {got:?}",
+                index + 1,
+                line.c,
+                line.u,
+                line.f.as_deref().map(|f| format!(" (focus {f})")).unwrap_or_default(),
+            ));
+        }
+    }
+    result
+}
+
+/// The grammar under test: the embedded one, or (while tuning) a directory named by SAYSO_STYLES_GRAMMAR.
+fn grammar() -> Grammar {
+    match std::env::var("SAYSO_STYLES_GRAMMAR") {
+        Ok(directory) => {
+            Grammar::load(std::path::Path::new(&directory)).expect("grammar directory")
+        }
+        Err(_) => Grammar::embedded().expect("embedded grammar"),
+    }
+}
+
+fn load(name: &str) -> String {
+    let path = format!("{}/tests/language/{name}", env!("CARGO_MANIFEST_DIR"));
+    std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"))
+}
+
+fn recall(ok: usize, count: usize) -> f64 {
+    100.0 * ok as f64 / count.max(1) as f64
+}
+
+fn print_figures(title: &str, result: &Score) {
+    println!(
+        "{title}: {}/{} frame-exact ({:.1}%); {} constraints from {} non-corrections; {} unasked relabels",
+        result.passed,
+        result.total,
+        recall(result.passed, result.total),
+        result.spurious_constraints,
+        result.non_corrections,
+        result.unasked_relabels
+    );
+    for (style, (ok, count)) in &result.per_style {
+        println!(
+            "  {style:<18} {ok:>4}/{count:<4} {:>5.1}%",
+            recall(*ok, *count)
+        );
+    }
+}
+
+/// Per-style floors on the development file: what the parser reached when the floors were last raised
+/// (a regression fails the test).
+/// Measured 2026-12-04 after the normalisation stage: 163, 121, 133, 157, 147 and 156 of 167 lines.
+const DEV_FLOORS: [(&str, f64); 6] = [
+    ("asr_slip", 97.5),
+    ("field_note", 72.0),
+    ("hard", 79.5),
+    ("not_a_correction", 93.5),
+    ("speech", 87.5),
+    ("typed_tidy", 93.0),
+];
+
+#[test]
+fn development_styles_recall_per_style() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_dev.jsonl"));
+    print_figures("styles dev", &result);
+    if !result.failures.is_empty() {
+        println!("failures:\n{}", result.failures.join("\n"));
+    }
+    assert!(
+        result.total >= 1000,
+        "the development file has {} lines",
+        result.total
+    );
+    for (style, floor) in DEV_FLOORS {
+        let (ok, count) = result.per_style.get(style).copied().unwrap_or_default();
+        assert!(count > 0, "no development line of style {style}");
+        assert!(
+            recall(ok, count) >= floor,
+            "style {style}: {ok}/{count} is below the floor of {floor}%"
+        );
+    }
+    assert!(result.unasked_relabels <= DEV_MAX_UNASKED_RELABELS);
+    assert!(result.spurious_constraints <= DEV_MAX_SPURIOUS);
+}
+
+const DEV_MAX_UNASKED_RELABELS: usize = 0;
+const DEV_MAX_SPURIOUS: usize = 2;
+
+/// Held-out floors at the measured figures (399/498, one unasked relabel, five constraints from
+/// non-corrections); the goals of zero are not reached yet.
+const HELDOUT_FLOOR: f64 = 79.5;
+const HELDOUT_MAX_UNASKED_RELABELS: usize = 1;
+const HELDOUT_MAX_SPURIOUS: usize = 5;
+
+/// The held-out file is run for its figures only; its lines are never printed.
+#[test]
+fn heldout_styles_figures_are_reported() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_heldout.jsonl"));
+    print_figures("styles held-out", &result);
+    assert!(
+        result.total >= 450,
+        "the held-out file has {} lines",
+        result.total
+    );
+    assert!(
+        recall(result.passed, result.total) >= HELDOUT_FLOOR,
+        "held-out recall {}/{} fell below {HELDOUT_FLOOR}%",
+        result.passed,
+        result.total
+    );
+    assert!(result.unasked_relabels <= HELDOUT_MAX_UNASKED_RELABELS);
+    assert!(result.spurious_constraints <= HELDOUT_MAX_SPURIOUS);
+}
