@@ -140,11 +140,14 @@ struct Continuation<T> {
     value: T,
 }
 
+/// What a rewrite turns a phrase into, and the conditions under which it applies.
+type Rewrite = (Vec<String>, Vec<Condition>);
+
 /// The validated lexicon.
 #[derive(Clone, Debug, Default)]
 pub struct Lexicon {
     phrases: HashMap<String, Vec<Continuation<Tag>>>,
-    rewrites: HashMap<String, Vec<Continuation<(Vec<String>, Vec<Condition>)>>>,
+    rewrites: HashMap<String, Vec<Continuation<Rewrite>>>,
     class_words: Vec<ClassWord>,
     /// Single words offered for spelling correction, sorted for deterministic ties.
     spelling_words: Vec<(String, Tag)>,
