@@ -6,7 +6,7 @@
 //! from the parent version's solved state and multipliers (what a correction runs), and (3) the whole
 //! correction turn end to end (`pipeline::correct_turn`: hypotheses, grounding, energy, every solve, the
 //! scene graph). Prints medians and 99th percentiles, the energies and optimality gaps, and the ratio to the
-//! goals of issue 22 (full 5 ms, warm 2 ms, a correction 10 ms at the median).
+//! project's goals (full 5 ms, warm 2 ms, a correction 10 ms at the median).
 //!
 //! Reference measured in the same run: GCO's alpha-expansion (PyPI `gco-wrapper`) through
 //! `benches/reference/gco_labeller.py`, on the segment part of each scene's first-turn energy (folded

@@ -5,7 +5,7 @@
 //!
 //! Prints, with the load average: closed-loop throughput (one client per scene) against the 500
 //! corrections/s goal with its p50 and p99, and p50 and p99 latency at an offered rate against the 10 ms
-//! and 30 ms goals (issue 22; common practice for an interactive service, set as the project's targets).
+//! and 30 ms goals (common practice for an interactive service, set as the project's targets).
 //! Request counts are bounded; the run stops by itself. A criterion group also times one round trip.
 
 #[path = "../tests/service_support/mod.rs"]

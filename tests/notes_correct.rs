@@ -12,7 +12,9 @@ use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use common::turns::{constraint, turn, Stage};
 use sayso::grounding::GroundingContext;
 use sayso::ids::ClassId;
-use sayso::language::constraint::{ConstraintKind, Count, Deixis, Focus, Referent, Span};
+use sayso::language::constraint::{
+    Constraint, ConstraintKind, Count, Deixis, Focus, Referent, Span,
+};
 use sayso::language::Grammar;
 use sayso::scene::Scene;
 use sayso::scenegraph::correct::Correction;
@@ -55,11 +57,27 @@ fn room(layout: &[&str], legend: &Legend) -> Room {
     }
 }
 
+/// One turn on `room` with constraints built from kinds (confidence 0.95), unconfirmed.
 fn solve(
     room: &Room,
     previous: Option<&Correction>,
     kinds: Vec<(ConstraintKind, &str)>,
     focus: Option<Focus>,
+) -> Correction {
+    let constraints: Vec<_> = kinds
+        .into_iter()
+        .map(|(kind, gloss)| constraint(kind, 0.95, gloss))
+        .collect();
+    solve_constraints(room, previous, &constraints, focus, false)
+}
+
+/// One turn on `room` with given constraints (a parse's), pointed at `focus`.
+fn solve_constraints(
+    room: &Room,
+    previous: Option<&Correction>,
+    constraints: &[Constraint],
+    focus: Option<Focus>,
+    confirm_safety: bool,
 ) -> Correction {
     let cuts = InstanceCuts::embedded(&room.taxonomy).unwrap();
     let stage = Stage {
@@ -68,15 +86,11 @@ fn solve(
         taxonomy: &room.taxonomy,
         cuts: &cuts,
     };
-    let constraints: Vec<_> = kinds
-        .into_iter()
-        .map(|(kind, gloss)| constraint(kind, 0.95, gloss))
-        .collect();
     let context = GroundingContext {
         focus,
         ..Default::default()
     };
-    turn(&stage, previous, &constraints, &context, false)
+    turn(&stage, previous, constraints, &context, confirm_safety)
 }
 
 fn objects_of(correction: &Correction, class: u16) -> usize {
@@ -415,21 +429,8 @@ fn in_this_room_is_not_a_landmark_and_the_absence_is_applied() {
         );
         let before = solve(&room, None, vec![], None);
         assert_eq!(objects_of(&before, cat), 1);
-        let cuts = InstanceCuts::embedded(&room.taxonomy).unwrap();
-        let stage = Stage {
-            scene: &room.scene,
-            unaries: &room.unaries,
-            taxonomy: &room.taxonomy,
-            cuts: &cuts,
-        };
         // The operator states ground truth about a pet, so confirms the change.
-        let after = turn(
-            &stage,
-            Some(&before),
-            &parse.constraints,
-            &GroundingContext::default(),
-            true,
-        );
+        let after = solve_constraints(&room, Some(&before), &parse.constraints, None, true);
         assert_eq!(objects_of(&after, cat), 0, "{note}");
         assert!(after.unmet.is_empty(), "{note}: {:?}", after.unmet);
     }
@@ -505,29 +506,13 @@ fn a_count_still_short_asks_which_naming_every_candidate() {
             "every candidate is a rug the picture shows"
         );
     }
-    // The operator points into the right-hand patch: the middle of cells 8..11 of row 2.
+    // The operator points into the right-hand patch: column 9, at the top edge of row 3.
     let focus = Focus::Pixel {
         x: 9 * CELL + CELL / 2,
         y: 2 * CELL + CELL,
     };
     let parse = grammar.parse("that one isn't a rug", Some(focus)).unwrap();
-    let cuts = InstanceCuts::embedded(&room.taxonomy).unwrap();
-    let stage = Stage {
-        scene: &room.scene,
-        unaries: &room.unaries,
-        taxonomy: &room.taxonomy,
-        cuts: &cuts,
-    };
-    let answered = turn(
-        &stage,
-        Some(&after),
-        &parse.constraints,
-        &GroundingContext {
-            focus: Some(focus),
-            ..Default::default()
-        },
-        false,
-    );
+    let answered = solve_constraints(&room, Some(&after), &parse.constraints, Some(focus), false);
     // The pointed cell is no longer rug and nothing of the rug on the left moved. (On this grid the pointer
     // picks the smallest accepted hypothesis under it, one cell, so the rest of the right-hand patch stays
     // rug; on rendered scenes the answer takes the whole candidate, see `sayso trial`.)

@@ -153,10 +153,18 @@ struct Cluster {
     /// Its box and the boxes of the parts it took in: gaps are measured to the nearest of them, never to
     /// empty space inside the box they span together.
     parts: Vec<BoundingBox>,
-    /// The box they span together.
-    bounds: BoundingBox,
     /// Pixels, its own and its parts'.
     area: u64,
+}
+
+impl Cluster {
+    /// The box its parts span together.
+    fn bounds(&self) -> BoundingBox {
+        self.parts
+            .iter()
+            .skip(1)
+            .fold(self.parts[0], |spanned, part| spanned.union(part))
+    }
 }
 
 /// The share of a piece's box that must lie inside one box of a larger object, or overlap it, for the two to
@@ -273,7 +281,9 @@ fn joins_around_occluder(
         mean_depth(scene, &objects[piece.index].members),
     );
     match depths {
-        (Some(d0), Some(d1)) => occluded_between(scene, &keeper.bounds, &piece.bounds, (d0, d1)),
+        (Some(d0), Some(d1)) => {
+            occluded_between(scene, &keeper.bounds(), &piece.bounds(), (d0, d1))
+        }
         _ => false,
     }
 }
@@ -320,7 +330,7 @@ fn next_join(
             .iter()
             .enumerate()
             .filter(|&(k, keeper)| k != p && (keeper.area, k) > (piece.area, p))
-            .min_by_key(|(_, keeper)| gap(&keeper.bounds, &piece.bounds))
+            .min_by_key(|(_, keeper)| gap(&keeper.bounds(), &piece.bounds()))
             .map(|(k, _)| k)?;
         joins_around_occluder(scene, objects, &clusters[keeper], piece).then_some((keeper, p))
     })
@@ -347,13 +357,13 @@ pub fn merge_parts(
                 extent(scene, &object.members).map(|(bounds, area)| Cluster {
                     index,
                     parts: vec![bounds],
-                    bounds,
                     area,
                 })
             })
             .collect();
+        let speck = speck_area(scene);
         while clusters.len() > cap.most as usize {
-            let Some((k, p)) = next_join(scene, &objects, cap, &clusters, speck_area(scene)) else {
+            let Some((k, p)) = next_join(scene, &objects, cap, &clusters, speck) else {
                 break;
             };
             let piece = clusters.swap_remove(p);
@@ -365,7 +375,6 @@ pub fn merge_parts(
             kept.members.extend(members);
             kept.members.sort_unstable();
             kept.members.dedup();
-            keeper.bounds = keeper.bounds.union(&piece.bounds);
             keeper.parts.extend(piece.parts);
             keeper.area += piece.area;
             removed[piece.index] = true;
