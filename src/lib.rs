@@ -52,4 +52,5 @@ pub mod taxonomy;
 pub mod trial;
 pub mod tuning;
 pub mod tuning_cuts;
+pub mod turn;
 pub mod unaries;

@@ -6,7 +6,10 @@
 //!
 //! Exit codes: 0 success (also when whoever reads standard output stops early, as `| head` does); 1 the
 //! command failed (the reason is printed on standard error as `sayso: error: ...`); 2 the command line
-//! was not understood (clap's usage error).
+//! was not understood (clap's usage error). `sayso fix` writes its outputs and then ends with 3 when a note
+//! was not understood (or a conversation command could not be done), else 4 when a question waits for an
+//! answer or a note left something unmet, else 5 when a change to a person, pet or hazard is still held
+//! for confirmation (`cli::fix::Unsettled`).
 
 mod cli;
 
@@ -60,6 +63,10 @@ fn main() {
         if closed {
             // A command that writes through `io::Write` sees the closed pipe as an error: the same quiet end.
             std::process::exit(0);
+        }
+        if let Some(unsettled) = error.downcast_ref::<cli::fix::Unsettled>() {
+            eprintln!("sayso: {unsettled}");
+            std::process::exit(unsettled.code);
         }
         let chain: Vec<String> = error.chain().map(|cause| cause.to_string()).collect();
         eprintln!("sayso: error: {}", chain.join(": "));

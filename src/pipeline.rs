@@ -4,30 +4,28 @@
 //! parse each note in one conversation, correct turn by turn with the previous turn as warm start),
 //! `CorrectionReport` and its plain-text summary, and where the built-in classifier file is found.
 //! Must not: write files or know about flags (the binary does that), nor reach inside the solver: it calls
-//! `scenegraph::correct::correct` only.
+//! `turn::solve::correct` only.
 
 use std::path::{Path, PathBuf};
 
 use serde::Serialize;
 
 use crate::demo::{demo_scene_path, DemoError};
-use crate::energy::build::{EnergyWeights, RoomClassPrior};
 use crate::energy::EnergyError;
-use crate::grounding::{ClarifyingQuestion, GroundingContext, GroundingIssue, KnownObject};
-use crate::hypotheses::Detection;
-use crate::hypotheses::ProposalOptions;
+use crate::grounding::{ClarifyingQuestion, GroundingIssue};
 use crate::ids::ClassId;
 use crate::language::constraint::{Constraint, Focus, Span};
-use crate::language::error::{GrammarError, LanguageError};
-use crate::language::{Conversation, Grammar};
+use crate::language::error::GrammarError;
 use crate::raster::{read_rgb_image, DEFAULT_PIXEL_LIMIT};
 use crate::scene::{load_capture, Capture, Scene, SceneError, SceneParams};
 use crate::scenegraph::changes::{Change, ChangeKind, ChangeStatus, Unmet};
-use crate::scenegraph::correct::{correct, Correction, CorrectionError, CorrectionRequest};
 use crate::scenegraph::differences::{difference_class, object_differences, ObjectDifference};
-use crate::scenegraph::instances::{InstanceCuts, InstanceCutsError};
-use crate::solver::joint::JointOptions;
+use crate::scenegraph::instances::InstanceCutsError;
 use crate::taxonomy::Taxonomy;
+use crate::turn::dialogue::{Dialogue, Reply, Status};
+use crate::turn::solve::{Correction, CorrectionError};
+use crate::turn::{Candidate, TurnError};
+pub use crate::turn::{CorrectionSettings, TurnInputs};
 use crate::unaries::builtin::{builtin_unaries, current_feature_layout};
 use crate::unaries::classifier::{Classifier, ClassifierError};
 use crate::unaries::Unaries;
@@ -61,6 +59,8 @@ pub enum PipelineError {
     Correction(#[from] CorrectionError),
     #[error("{0}")]
     InstanceCuts(#[from] InstanceCutsError),
+    #[error(transparent)]
+    Turn(#[from] TurnError),
 }
 
 /// Which scene to work on.
@@ -215,7 +215,11 @@ pub struct Understood {
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct TurnReport {
     pub utterance: String,
-    /// The parser's error when the note could not be read (the scene is then left as it was).
+    /// What became of it: applied, held, asked, not understood, undone...
+    pub status: Status,
+    /// Why a conversation command was refused, or what an undo, redo, confirmation or rejection did.
+    pub message: Option<String>,
+    /// Why the note could not be read (the scene is then left as it was).
     pub parse_error: Option<String>,
     pub understood: Vec<Understood>,
     /// Disagreements with earlier notes the conversation found.
@@ -225,7 +229,15 @@ pub struct TurnReport {
     pub objects: Vec<ObjectDifference>,
     pub unmet: Vec<Unmet>,
     pub questions: Vec<ClarifyingQuestion>,
+    /// The question this note asked (or asked again), in words.
+    pub question: Option<String>,
+    /// The question's candidates (scene-graph objects), when it names some.
+    pub candidates: Vec<Candidate>,
+    /// The earlier note this one answered or confirmed, when its constraints come from that note.
+    pub answers: Option<String>,
     pub issues: Vec<GroundingIssue>,
+    /// Notes whose changes still wait for confirmation after this one.
+    pub waiting: Vec<String>,
 }
 
 /// The whole job's result.
@@ -233,9 +245,9 @@ pub struct CorrectionReport {
     pub prepared: PreparedScene,
     /// What the robot believed before any note: the joint solve with no constraint.
     pub baseline: Correction,
-    /// The last correction (None when no note could be read).
+    /// The scene as it stands after the last note (None while no note has changed anything).
     pub correction: Option<Correction>,
-    /// The correction after each note, in order (a failed parse repeats the previous one).
+    /// The scene as it stood after each note, in order (None while nothing has changed).
     pub after_each: Vec<Option<Correction>>,
     pub turns: Vec<TurnReport>,
 }
@@ -247,32 +259,6 @@ impl CorrectionReport {
             Some(correction) => &correction.graph.segment_labels,
             None => &self.prepared.classifier_labels,
         }
-    }
-}
-
-/// The fixed settings of a correction run.
-pub struct CorrectionSettings {
-    pub grammar: Grammar,
-    pub prior: RoomClassPrior,
-    pub weights: EnergyWeights,
-    pub proposals: ProposalOptions,
-    pub options: JointOptions,
-    pub instance_cuts: InstanceCuts,
-}
-
-impl CorrectionSettings {
-    /// The built-in grammar, room prior, default weights and instance cuts.
-    pub fn embedded() -> Result<CorrectionSettings, PipelineError> {
-        let grammar = Grammar::embedded()?;
-        let instance_cuts = InstanceCuts::embedded(grammar.taxonomy())?;
-        Ok(CorrectionSettings {
-            grammar,
-            instance_cuts,
-            prior: RoomClassPrior::embedded()?,
-            weights: EnergyWeights::embedded()?,
-            proposals: ProposalOptions::default(),
-            options: JointOptions::default(),
-        })
     }
 }
 
@@ -301,98 +287,136 @@ pub fn correct_prepared(
     correct_notes(prepared, &notes, confirm_safety, settings)
 }
 
-/// Applies notes one after another to a prepared scene, each with its own focus.
+/// Applies notes one after another to a prepared scene, each with its own focus, as one conversation
+/// (`crate::turn::dialogue`): a note may answer the previous note's question, confirm or reject a held
+/// change, or undo and redo.
 pub fn correct_notes(
     prepared: PreparedScene,
     notes: &[PointedNote],
     confirm_safety: bool,
     settings: &CorrectionSettings,
 ) -> Result<CorrectionReport, PipelineError> {
-    let taxonomy: &Taxonomy = settings.grammar.taxonomy();
-    let mut conversation = Conversation::new(taxonomy.clone())?;
-    // What the robot believes before anyone speaks: the first note's "before", so its summary names what the
-    // note itself changed.
-    let baseline = believe_without_notes(&prepared, settings)?;
-    let mut previous: Option<Correction> = None;
+    let inputs = TurnInputs {
+        scene: &prepared.scene,
+        unaries: &prepared.unaries,
+        detections: &[],
+    };
+    let mut dialogue = Dialogue::new(inputs, settings, confirm_safety)?;
     let mut after_each = Vec::new();
     let mut turns = Vec::new();
+    let mut changed = false;
     for note in notes {
-        let (utterance, focus) = (&note.text, note.focus);
-        let parse = match settings.grammar.parse(utterance, focus) {
-            Ok(parse) => parse,
-            Err(error) => {
-                turns.push(failed_turn(utterance, &error));
-                after_each.push(previous.clone());
-                continue;
-            }
-        };
-        let turn = conversation.add(&parse);
-        let before = previous.as_ref().unwrap_or(&baseline);
         let started = std::time::Instant::now();
-        let correction = correct_turn(
-            &TurnInputs {
-                scene: &prepared.scene,
-                unaries: &prepared.unaries,
-                detections: &[],
-            },
-            Some(before),
-            &parse.constraints,
-            focus,
-            confirm_safety,
-            settings,
-        )?;
+        let reply = dialogue.say(&note.text, note.focus)?;
         tracing::debug!(
-            note = %utterance,
-            constraints = parse.constraints.len(),
-            changes = correction.changes.len(),
+            note = %note.text,
+            status = ?reply.status,
+            changes = reply.changes.len(),
             milliseconds = started.elapsed().as_millis() as u64,
-            "note solved"
+            "note worked out"
         );
-        // Constraints of this note are the last ones in force; causes index into all of them.
-        let first_new = correction
-            .constraint_labels
-            .len()
-            .saturating_sub(parse.constraints.len());
-        let this_note = |constraint: usize| constraint >= first_new;
-        turns.push(TurnReport {
-            utterance: utterance.clone(),
-            parse_error: None,
-            understood: parse
-                .constraints
-                .iter()
-                .map(|c| Understood {
-                    span: c.span,
-                    gloss: c.gloss.clone(),
-                    confidence: c.confidence,
-                })
-                .collect(),
-            conflicts: turn.conflicts.iter().map(|c| c.message.clone()).collect(),
-            changes: correction.changes.clone(),
-            objects: object_differences(&before.graph, &correction.graph),
-            unmet: correction.unmet.clone(),
-            questions: correction
+        turns.push(turn_report(&note.text, &reply));
+        changed |= matches!(
+            reply.status,
+            Status::Applied | Status::Confirmed | Status::Undone | Status::Redone
+        );
+        after_each.push(changed.then(|| dialogue.current().clone()));
+    }
+    let baseline = dialogue.baseline().clone();
+    let correction = changed.then(|| dialogue.current().clone());
+    drop(dialogue);
+    Ok(CorrectionReport {
+        prepared,
+        baseline,
+        correction,
+        after_each,
+        turns,
+    })
+}
+
+/// The report of one reply.
+fn turn_report(utterance: &str, reply: &Reply) -> TurnReport {
+    let solved = reply.solved.as_ref();
+    let solving = matches!(
+        reply.status,
+        Status::Applied
+            | Status::Held
+            | Status::Asked
+            | Status::NothingToChange
+            | Status::Confirmed
+    );
+    let understood = match &reply.note {
+        Some(note) if solving => note
+            .constraints
+            .iter()
+            .map(|c| Understood {
+                span: c.span,
+                gloss: c.gloss.clone(),
+                confidence: c.confidence,
+            })
+            .collect(),
+        _ => Vec::new(),
+    };
+    let new_count = reply.note.as_ref().map_or(0, |n| n.constraints.len());
+    let this_note = |constraint: usize| {
+        solved.is_some_and(|s| constraint >= s.constraint_labels.len().saturating_sub(new_count))
+    };
+    TurnReport {
+        utterance: utterance.to_string(),
+        status: reply.status,
+        message: reply.message.clone(),
+        parse_error: (reply.status == Status::NotUnderstood)
+            .then(|| reply.message.clone())
+            .flatten(),
+        understood,
+        conflicts: reply.conflicts.clone(),
+        changes: if reply.status == Status::Asked {
+            Vec::new()
+        } else {
+            reply.changes.clone()
+        },
+        objects: match (solved, reply.status) {
+            (
+                Some(after),
+                Status::Applied | Status::Confirmed | Status::Undone | Status::Redone,
+            ) => object_differences(&reply.before.graph, &after.graph),
+            _ => Vec::new(),
+        },
+        unmet: match solved {
+            Some(s) if solving => s.unmet.clone(),
+            _ => Vec::new(),
+        },
+        questions: match solved {
+            Some(s) if solving => s
                 .questions
                 .iter()
                 .filter(|q| this_note(q.constraint))
                 .cloned()
                 .collect(),
-            issues: correction
+            _ => Vec::new(),
+        },
+        question: reply.question.as_ref().map(|q| q.text.clone()),
+        candidates: reply
+            .question
+            .as_ref()
+            .map(|q| q.candidates.clone())
+            .unwrap_or_default(),
+        answers: reply
+            .note
+            .as_ref()
+            .filter(|note| solving && note.text != utterance)
+            .map(|note| note.text.clone()),
+        issues: match solved {
+            Some(s) if solving => s
                 .issues
                 .iter()
                 .filter(|i| this_note(i.constraint()))
                 .cloned()
                 .collect(),
-        });
-        after_each.push(Some(correction.clone()));
-        previous = Some(correction);
+            _ => Vec::new(),
+        },
+        waiting: reply.waiting.clone(),
     }
-    Ok(CorrectionReport {
-        prepared,
-        baseline,
-        correction: previous,
-        after_each,
-        turns,
-    })
 }
 
 /// What the robot believes with no note: the joint solve of the prepared scene under no constraint (its scene
@@ -415,16 +439,7 @@ pub fn believe_without_notes(
     )
 }
 
-/// The parts of a scene one turn is solved on.
-#[derive(Clone, Copy)]
-pub struct TurnInputs<'a> {
-    pub scene: &'a Scene,
-    pub unaries: &'a Unaries,
-    pub detections: &'a [Detection],
-}
-
-/// Solves one turn: grounds `constraints` against the previous turn's objects (or the scene solved with no
-/// constraints when there is none) and re-solves with every constraint in force.
+/// Solves one turn (`crate::turn::correct_turn`), with the pipeline's error type.
 pub fn correct_turn(
     inputs: &TurnInputs<'_>,
     previous: Option<&Correction>,
@@ -433,52 +448,14 @@ pub fn correct_turn(
     confirm_safety: bool,
     settings: &CorrectionSettings,
 ) -> Result<Correction, PipelineError> {
-    let context = GroundingContext {
-        focus,
-        previous: previous.and_then(|p| p.last_referent.clone()),
-        objects: previous
-            .map(|p| {
-                p.graph
-                    .objects
-                    .iter()
-                    .map(|object| KnownObject {
-                        id: object.id,
-                        hypothesis: object.hypothesis,
-                    })
-                    .collect()
-            })
-            .unwrap_or_default(),
-    };
-    let request = CorrectionRequest {
-        scene: inputs.scene,
-        unaries: inputs.unaries,
-        taxonomy: settings.grammar.taxonomy(),
-        detections: inputs.detections,
+    Ok(crate::turn::correct_turn(
+        inputs,
         previous,
         constraints,
-        context: &context,
+        focus,
         confirm_safety,
-        prior: &settings.prior,
-        weights: &settings.weights,
-        proposals: &settings.proposals,
-        options: &settings.options,
-        instance_cuts: &settings.instance_cuts,
-    };
-    Ok(correct(&request)?)
-}
-
-fn failed_turn(utterance: &str, error: &LanguageError) -> TurnReport {
-    TurnReport {
-        utterance: utterance.to_string(),
-        parse_error: Some(error.to_string()),
-        understood: Vec::new(),
-        conflicts: Vec::new(),
-        changes: Vec::new(),
-        objects: Vec::new(),
-        unmet: Vec::new(),
-        questions: Vec::new(),
-        issues: Vec::new(),
-    }
+        settings,
+    )?)
 }
 
 /// The main job: load, segment, classify, and apply the notes in order.
@@ -554,7 +531,7 @@ pub fn object_summary(differences: &[ObjectDifference], taxonomy: &Taxonomy) -> 
 
 fn relabel_summary(changes: &[Change], taxonomy: &Taxonomy) -> Vec<String> {
     let mut pairs: Vec<(ClassId, ClassId, ChangeStatus, usize, String)> = Vec::new();
-    let mut lines = Vec::new();
+    let mut lines: Vec<String> = Vec::new();
     for change in changes {
         let why = change
             .causes
@@ -590,6 +567,24 @@ fn relabel_summary(changes: &[Change], taxonomy: &Taxonomy) -> Vec<String> {
             )),
         }
     }
+    // The same object line many times ("object removed: person" for six pieces) is said once, counted.
+    let mut counted: Vec<(String, usize)> = Vec::new();
+    for line in lines {
+        match counted.iter_mut().find(|(seen, _)| *seen == line) {
+            Some(entry) => entry.1 += 1,
+            None => counted.push((line, 1)),
+        }
+    }
+    let mut lines: Vec<String> = counted
+        .into_iter()
+        .map(|(line, n)| {
+            if n == 1 {
+                line
+            } else {
+                format!("{line} (x{n})")
+            }
+        })
+        .collect();
     pairs.sort_by_key(|pair| std::cmp::Reverse(pair.3));
     for (from, to, status, count, why) in pairs {
         lines.push(format!(
@@ -609,72 +604,37 @@ fn status_prefix(status: ChangeStatus) -> &'static str {
     }
 }
 
-/// The plain-text summary: per note, what was understood, what changed and why, what is unmet, questions and
-/// pending safety confirmations.
+/// The plain-text summary: per note, what was understood, what changed and why, what is unmet, questions
+/// with their candidates, and held safety changes (every note lists those still waiting).
 pub fn report_text(report: &CorrectionReport, taxonomy: &Taxonomy) -> String {
     let mut text = format!("scene: {}\n", report.prepared.capture.name);
     for (index, turn) in report.turns.iter().enumerate() {
         text.push_str(&format!("\nnote {}: {:?}\n", index + 1, turn.utterance));
-        if let Some(error) = &turn.parse_error {
-            text.push_str(&format!("  not understood: {error}\n"));
-            continue;
+        match turn.status {
+            Status::NotUnderstood => {
+                let reason = turn.message.as_deref().unwrap_or("nothing could be read");
+                text.push_str(&format!("  not understood: {reason}\n"));
+            }
+            Status::Refused => {
+                let reason = turn.message.as_deref().unwrap_or("nothing to do");
+                text.push_str(&format!("  not done: {reason}\n"));
+            }
+            Status::Undone | Status::Redone | Status::Rejected => {
+                if let Some(message) = &turn.message {
+                    text.push_str(&format!("  {message}\n"));
+                }
+                for line in relabel_summary(&turn.changes, taxonomy) {
+                    text.push_str(&format!("  changed back: {line}\n"));
+                }
+                for line in object_summary(&turn.objects, taxonomy) {
+                    text.push_str(&format!("  objects: {line}\n"));
+                }
+            }
+            _ => note_text(&mut text, turn, taxonomy),
         }
-        if turn.understood.is_empty() {
-            text.push_str("  understood: nothing to apply\n");
-        }
-        for understood in &turn.understood {
+        for waiting in turn.waiting.iter().filter(|_| turn.status != Status::Held) {
             text.push_str(&format!(
-                "  understood {}: {} (confidence {:.2})\n",
-                quoted_span(&turn.utterance, understood.span),
-                understood.gloss,
-                understood.confidence
-            ));
-        }
-        for conflict in &turn.conflicts {
-            text.push_str(&format!("  conflicts with an earlier note: {conflict}\n"));
-        }
-        let changes = relabel_summary(&turn.changes, taxonomy);
-        let objects = object_summary(&turn.objects, taxonomy);
-        if changes.is_empty() && objects.is_empty() {
-            text.push_str(
-                if turn.unmet.is_empty() && turn.questions.is_empty() && turn.issues.is_empty() {
-                    "  changed: nothing; the scene already showed this\n"
-                } else {
-                    "  changed: nothing\n"
-                },
-            );
-        }
-        for line in changes {
-            text.push_str(&format!("  changed: {line}\n"));
-        }
-        for line in objects {
-            text.push_str(&format!("  objects: {line}\n"));
-        }
-        for unmet in &turn.unmet {
-            text.push_str(&format!(
-                "  unmet{}: {}\n",
-                if unmet.contradictory {
-                    " (contradictory)"
-                } else {
-                    ""
-                },
-                unmet.reason
-            ));
-        }
-        for issue in &turn.issues {
-            text.push_str(&format!("  could not ground: {issue}\n"));
-        }
-        for question in &turn.questions {
-            text.push_str(&format!("  question: {}\n", question.text));
-        }
-        let pending = turn
-            .changes
-            .iter()
-            .filter(|c| c.status == ChangeStatus::Pending)
-            .count();
-        if pending > 0 {
-            text.push_str(&format!(
-                "  {pending} change(s) touch a person, pet or hazard and wait for confirmation (--confirm)\n"
+                "  still held: {waiting:?} changes a person, pet or hazard; say \"yes\" to apply it or \"no\" to drop it (or run with --confirm)\n"
             ));
         }
     }
@@ -688,4 +648,87 @@ pub fn report_text(report: &CorrectionReport, taxonomy: &Taxonomy) -> String {
         ));
     }
     text
+}
+
+/// The summary of a note that was solved (applied, held, asked, confirmed or already shown).
+fn note_text(text: &mut String, turn: &TurnReport, taxonomy: &Taxonomy) {
+    if turn.status == Status::Confirmed {
+        if let Some(message) = &turn.message {
+            text.push_str(&format!("  {message}\n"));
+        }
+    }
+    if let Some(answered) = turn
+        .answers
+        .as_ref()
+        .filter(|_| turn.status != Status::Confirmed)
+    {
+        text.push_str(&format!("  answers the question about {answered:?}\n"));
+    }
+    if turn.understood.is_empty() {
+        text.push_str("  understood: nothing to apply\n");
+    }
+    let said = turn.answers.as_deref().unwrap_or(&turn.utterance);
+    for understood in &turn.understood {
+        text.push_str(&format!(
+            "  understood {}: {} (confidence {:.2})\n",
+            quoted_span(said, understood.span),
+            understood.gloss,
+            understood.confidence
+        ));
+    }
+    for conflict in &turn.conflicts {
+        text.push_str(&format!("  conflicts with an earlier note: {conflict}\n"));
+    }
+    let changes = relabel_summary(&turn.changes, taxonomy);
+    let objects = object_summary(&turn.objects, taxonomy);
+    if changes.is_empty() && objects.is_empty() {
+        text.push_str(match turn.status {
+            Status::NothingToChange if turn.unmet.is_empty() && turn.issues.is_empty() => {
+                "  changed: nothing; the scene already showed this\n"
+            }
+            Status::Asked => "  changed: nothing yet\n",
+            _ => "  changed: nothing\n",
+        });
+    }
+    for line in changes {
+        text.push_str(&format!("  changed: {line}\n"));
+    }
+    for line in objects {
+        text.push_str(&format!("  objects: {line}\n"));
+    }
+    for unmet in &turn.unmet {
+        text.push_str(&format!(
+            "  unmet{}: {}\n",
+            if unmet.contradictory {
+                " (contradictory)"
+            } else {
+                ""
+            },
+            unmet.reason
+        ));
+    }
+    for issue in &turn.issues {
+        text.push_str(&format!("  could not ground: {issue}\n"));
+    }
+    match &turn.question {
+        Some(question) => text.push_str(&format!("  question: {question}\n")),
+        None => {
+            for question in &turn.questions {
+                text.push_str(&format!("  question: {}\n", question.text));
+            }
+        }
+    }
+    for (position, candidate) in turn.candidates.iter().enumerate() {
+        text.push_str(&format!(
+            "    {}. object {}: {}\n",
+            position + 1,
+            candidate.object.0,
+            candidate.description
+        ));
+    }
+    if turn.status == Status::Held {
+        text.push_str(
+            "  held: these changes touch a person, pet or hazard and wait for confirmation (say \"yes\", or run with --confirm)\n",
+        );
+    }
 }

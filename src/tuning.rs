@@ -39,10 +39,10 @@ use crate::pipeline::{
 };
 use crate::render::catalogue::DEMO_SEEDS;
 use crate::render::{render_scene, RenderError, SceneRequest, ROOM_TYPES};
-use crate::scenegraph::correct::Correction;
 use crate::scenegraph::instance_statistics::{InstanceCountError, InstanceCutCounts};
 use crate::scenegraph::{label_map, SceneGraph};
 use crate::taxonomy::{ClassGroup, Taxonomy};
+use crate::turn::solve::Correction;
 use crate::unaries::classifier::Classifier;
 
 /// Multipliers tried for each weight in a pass.

@@ -32,12 +32,12 @@ use crate::hypotheses::Hypothesis;
 use crate::ids::ClassId;
 use crate::pipeline::CorrectionSettings;
 use crate::scene::Scene;
-use crate::scenegraph::correct::{counted_classes, Correction};
 use crate::scenegraph::instance_statistics::{CANDIDATE_CUTS, MIN_OBJECTS};
 use crate::scenegraph::instances::{InstanceCuts, InstanceCutsFile};
 use crate::scenegraph::objects::form_objects;
 use crate::taxonomy::Taxonomy;
 use crate::tuning::{walk_states, TuningError, TuningScene, MIN_GAIN};
+use crate::turn::solve::{counted_classes, Correction};
 
 /// One solved state of a tuning scene: what forming its objects reads.
 pub struct SolvedState {

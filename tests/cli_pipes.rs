@@ -80,7 +80,7 @@ fn verbose_shows_sayso_stages_without_colour_codes_and_usage_errors_exit_2() {
     assert!(output.status.success(), "{stderr}");
     assert!(!stderr.contains('\u{1b}'), "{stderr}");
     assert!(
-        stderr.contains("superpixels built") && stderr.contains("note solved"),
+        stderr.contains("superpixels built") && stderr.contains("note worked out"),
         "{stderr}"
     );
     // Every debug line is sayso's own, none the inference library's.

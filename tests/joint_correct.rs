@@ -19,10 +19,10 @@ use sayso::language::constraint::{
 };
 use sayso::scene::Scene;
 use sayso::scenegraph::changes::{ChangeKind, ChangeStatus};
-use sayso::scenegraph::correct::{correct, Correction, CorrectionRequest};
 use sayso::scenegraph::instances::InstanceCuts;
 use sayso::solver::joint::JointOptions;
 use sayso::taxonomy::Taxonomy;
+use sayso::turn::solve::{correct, Correction, CorrectionRequest};
 use sayso::unaries::Unaries;
 
 const COLUMNS: u32 = 8;
@@ -356,6 +356,8 @@ fn bad_references_are_typed_issues_and_nothing_panics() {
         objects: vec![KnownObject {
             id: ObjectId(1),
             hypothesis: sayso::ids::HypothesisId(1),
+            class: None,
+            members: Vec::new(),
         }],
         ..Default::default()
     };

@@ -17,9 +17,9 @@ use sayso::ids::{ClassId, SegmentId};
 use sayso::language::constraint::{Constraint, ConstraintKind, Count, Referent, Relation, Span};
 use sayso::scene::Scene;
 use sayso::scenegraph::changes::ChangeKind;
-use sayso::scenegraph::correct::Correction;
 use sayso::scenegraph::instances::InstanceCuts;
 use sayso::taxonomy::Taxonomy;
+use sayso::turn::solve::Correction;
 use sayso::unaries::Unaries;
 
 const COLUMNS: u32 = 8;
@@ -396,6 +396,8 @@ fn the_landmark_is_the_one_the_operator_sees() {
             .map(|o| KnownObject {
                 id: o.id,
                 hypothesis: o.hypothesis,
+                class: Some(o.class),
+                members: o.members.clone(),
             })
             .collect(),
         ..Default::default()

@@ -17,9 +17,9 @@ use sayso::language::constraint::{
 };
 use sayso::language::Grammar;
 use sayso::scene::Scene;
-use sayso::scenegraph::correct::Correction;
 use sayso::scenegraph::instances::InstanceCuts;
 use sayso::taxonomy::Taxonomy;
+use sayso::turn::solve::Correction;
 use sayso::unaries::Unaries;
 
 const CELL: u32 = 32;

@@ -143,9 +143,12 @@ fn fix(directory: &Path, out: &Path) {
         .arg(out)
         .output()
         .unwrap();
+    // 0: the note was met; 4: it was read and solved, and a question about it waits (the image alone may
+    // show more mugs than two). Either way the outputs are written; 1, 3 or 5 would be a failure here.
     assert!(
-        result.status.success(),
-        "{}",
+        matches!(result.status.code(), Some(0 | 4)),
+        "{:?} {}",
+        result.status.code(),
         String::from_utf8_lossy(&result.stderr)
     );
     let graph: serde_json::Value =

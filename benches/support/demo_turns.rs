@@ -20,8 +20,8 @@ use sayso::pipeline::{
     SceneSource, TurnInputs,
 };
 use sayso::scene::SCENE_SEGMENTS;
-use sayso::scenegraph::correct::Correction;
 use sayso::solver::joint::WarmStart;
+use sayso::turn::solve::Correction;
 
 /// The demo scenes every production bench runs on: one of each of four room types.
 pub const BENCH_SCENES: [&str; 4] = [

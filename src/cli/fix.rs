@@ -11,12 +11,13 @@ use sayso::demo::demo_directory;
 use sayso::language::parse_focus;
 use sayso::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
 use sayso::pipeline::{
-    correct_prepared, load_classifier, model_path, prepare_loaded, report_text, CorrectionReport,
-    CorrectionSettings, SceneSource,
+    correct_notes, load_classifier, model_path, prepare_loaded, report_text, CorrectionReport,
+    CorrectionSettings, PointedNote, SceneSource,
 };
 use sayso::raster::{write_palette_png, write_rgb_png};
 use sayso::scenegraph::{label_map, SceneGraph};
 use sayso::taxonomy::{Taxonomy, UNLABELLED};
+use sayso::turn::dialogue::Status;
 
 /// Correct a scene from operator notes.
 #[derive(Debug, clap::Args)]
@@ -27,9 +28,10 @@ pub struct FixArgs {
     /// An operator note; repeat for several, applied in order as one conversation.
     #[arg(long = "say", required = true)]
     pub say: Vec<String>,
-    /// What the operator points at: object:ID or pixel:X,Y.
+    /// What the operator points at with the note before it: object:ID or pixel:X,Y (repeat, one after each
+    /// pointed note; a focus before every note goes with the first).
     #[arg(long)]
-    pub focus: Option<String>,
+    pub focus: Vec<String>,
     /// Apply changes that remove or rename a person, pet or hazard.
     #[arg(long)]
     pub confirm: bool,
@@ -44,18 +46,129 @@ pub struct FixArgs {
     pub model: Option<PathBuf>,
 }
 
+/// Notes that were not all settled: the process exits with `code` after the outputs are written.
+#[derive(Debug, thiserror::Error)]
+#[error("{why}")]
+pub struct Unsettled {
+    pub code: i32,
+    pub why: String,
+}
+
+/// Exit code: a note was not understood, or a conversation command could not be carried out.
+pub const EXIT_NOT_UNDERSTOOD: i32 = 3;
+/// Exit code: a note's question is still open, or something it asks for is unmet.
+pub const EXIT_UNMET: i32 = 4;
+/// Exit code: a change that touches a person, pet or hazard is still held for confirmation.
+pub const EXIT_HELD: i32 = 5;
+
+/// Which note each `--focus` goes with, from the order of the flags on the command line: the nearest
+/// `--say` before it, or the first note when it comes before every `--say`.
+fn focus_owners(arguments: &[String]) -> Vec<usize> {
+    let mut notes_seen = 0usize;
+    let mut owners = Vec::new();
+    let mut skip_value = false;
+    for argument in arguments {
+        if skip_value {
+            skip_value = false;
+            continue;
+        }
+        let is = |flag: &str| argument == flag || argument.starts_with(&format!("{flag}="));
+        if is("--say") {
+            notes_seen += 1;
+            skip_value = argument == "--say";
+        } else if is("--focus") {
+            owners.push(notes_seen.saturating_sub(1));
+            skip_value = argument == "--focus";
+        } else if argument == "--" {
+            break;
+        }
+    }
+    owners
+}
+
+/// The notes with their focus.
+fn pointed_notes(args: &FixArgs, arguments: &[String]) -> anyhow::Result<Vec<PointedNote>> {
+    let mut notes: Vec<PointedNote> = args
+        .say
+        .iter()
+        .map(|text| PointedNote {
+            text: text.clone(),
+            focus: None,
+        })
+        .collect();
+    let owners = focus_owners(arguments);
+    for (index, focus) in args.focus.iter().enumerate() {
+        let owner = owners.get(index).copied().unwrap_or(0);
+        let note = notes
+            .get_mut(owner)
+            .ok_or_else(|| anyhow::anyhow!("--focus {focus} has no --say note to go with"))?;
+        if note.focus.is_some() {
+            anyhow::bail!(
+                "two --focus flags go with the note {:?}; put each --focus after the --say it belongs to",
+                note.text
+            );
+        }
+        note.focus = Some(parse_focus(focus)?);
+    }
+    Ok(notes)
+}
+
+/// Whether every note was settled, else the exit code and why.
+fn settled(report: &CorrectionReport) -> Result<(), Unsettled> {
+    let not_understood = report
+        .turns
+        .iter()
+        .filter(|t| matches!(t.status, Status::NotUnderstood | Status::Refused))
+        .count();
+    let last_asked = report
+        .turns
+        .last()
+        .is_some_and(|t| t.status == Status::Asked);
+    let unmet = report.turns.iter().filter(|t| !t.unmet.is_empty()).count();
+    let held = report.turns.last().map_or(0, |t| {
+        t.waiting.len().max(usize::from(t.status == Status::Held))
+    });
+    if not_understood > 0 {
+        return Err(Unsettled {
+            code: EXIT_NOT_UNDERSTOOD,
+            why: format!("{not_understood} note(s) not understood or not done"),
+        });
+    }
+    if last_asked || unmet > 0 {
+        return Err(Unsettled {
+            code: EXIT_UNMET,
+            why: if last_asked {
+                "a question waits for an answer".to_string()
+            } else {
+                format!("{unmet} note(s) left something unmet")
+            },
+        });
+    }
+    if held > 0 {
+        return Err(Unsettled {
+            code: EXIT_HELD,
+            why: format!(
+                "{held} change(s) touch a person, pet or hazard and wait for confirmation"
+            ),
+        });
+    }
+    Ok(())
+}
+
 pub fn run(args: FixArgs) -> anyhow::Result<()> {
-    let focus = args.focus.as_deref().map(parse_focus).transpose()?;
+    let arguments: Vec<String> = std::env::args().collect();
+    let notes = pointed_notes(&args, &arguments)?;
     let taxonomy = Taxonomy::embedded();
     let source = SceneSource::from_text(&args.scene, &demo_directory(args.demo_dir.as_deref()));
     let capture = source.load()?;
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let settings = CorrectionSettings::embedded()?;
     let prepared = prepare_loaded(capture, &classifier)?;
-    let report = correct_prepared(prepared, &args.say, focus, args.confirm, &settings)?;
+    let report = correct_notes(prepared, &notes, args.confirm, &settings)?;
     write_outputs(&report, &taxonomy, &args.out)?;
     print!("{}", report_text(&report, &taxonomy));
     println!("wrote {}", args.out.display());
+    settled(&report)?;
     Ok(())
 }
 
@@ -157,14 +270,9 @@ pub fn write_outputs(
         &label_map(scene, report.final_labels()),
         &label_palette(taxonomy),
     )?;
-    if let Some(correction) = &report.correction {
-        let path = out.join("scene_graph.json");
-        std::fs::write(
-            &path,
-            serde_json::to_string_pretty(&correction.graph)? + "\n",
-        )
+    let path = out.join("scene_graph.json");
+    std::fs::write(&path, serde_json::to_string_pretty(after_graph)? + "\n")
         .with_context(|| format!("writing {}", path.display()))?;
-    }
     let path = out.join("summary.txt");
     std::fs::write(&path, report_text(report, taxonomy))
         .with_context(|| format!("writing {}", path.display()))?;

@@ -9,7 +9,7 @@ mod classes;
 mod demo;
 mod export;
 mod field_notes;
-mod fix;
+pub mod fix;
 mod parse;
 mod render;
 mod score;

@@ -169,11 +169,18 @@ impl GroundingIssue {
     }
 }
 
-/// An object of the previous scene graph, so an operator can point at it by id.
+/// An object of the previous scene graph, so an operator can point at it by id, and a question can name
+/// the objects the operator sees.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub struct KnownObject {
     pub id: ObjectId,
     pub hypothesis: HypothesisId,
+    /// The object's class as shown (`None` when the caller did not say).
+    #[serde(default)]
+    pub class: Option<ClassId>,
+    /// The object's segments as shown, ascending (empty when the caller did not say).
+    #[serde(default)]
+    pub members: Vec<SegmentId>,
 }
 
 /// What the operator sent with the utterance, and what the conversation has said before.
@@ -256,6 +263,61 @@ impl Resolver<'_, '_> {
         }
     }
 
+    /// The previous scene graph's objects (of `class`, when given) that share segments with a candidate's
+    /// extent, in the graph's order.
+    fn shown_objects(&self, class: Option<ClassId>, candidates: &[usize]) -> Vec<KnownObject> {
+        let mut covered: Vec<SegmentId> = candidates
+            .iter()
+            .flat_map(|&h| self.extents.of(self.view.hypotheses, h).iter().copied())
+            .collect();
+        covered.sort();
+        covered.dedup();
+        self.context
+            .objects
+            .iter()
+            .filter(|object| !object.members.is_empty())
+            .filter(|object| class.is_none() || object.class == class)
+            .filter(|object| {
+                object
+                    .members
+                    .iter()
+                    .any(|segment| covered.binary_search(segment).is_ok())
+            })
+            .cloned()
+            .collect()
+    }
+
+    /// A question for a deictic word with nothing to stand for: point and say it again.
+    fn ask_to_point(&mut self, why: &str) {
+        self.questions.push(ClarifyingQuestion {
+            constraint: self.constraint,
+            text: format!("Which one do you mean? {why}: point at it and say it again."),
+            candidates: Vec::new(),
+            descriptions: Vec::new(),
+            objects: Vec::new(),
+        });
+    }
+
+    /// The target of a shown object, as if the operator had pointed at it.
+    fn focus_on(&mut self, id: ObjectId) -> Option<Target> {
+        let focused = GroundingContext {
+            focus: Some(Focus::Object { id }),
+            previous: self.context.previous.clone(),
+            objects: self.context.objects.clone(),
+        };
+        let mut resolver = Resolver {
+            view: self.view,
+            extents: self.extents,
+            context: &focused,
+            constraint: self.constraint,
+            issues: Vec::new(),
+            questions: Vec::new(),
+        };
+        let target = resolver.focus_target(None);
+        self.issues.append(&mut resolver.issues);
+        target
+    }
+
     fn check_class(&mut self, class: ClassId) -> bool {
         if class.index() >= self.view.class_count {
             self.issues.push(GroundingIssue::UnknownClass {
@@ -274,6 +336,7 @@ impl Resolver<'_, '_> {
                 self.issues.push(GroundingIssue::NoFocus {
                     constraint: self.constraint,
                 });
+                self.ask_to_point("\"that\" needs a point on the picture");
                 None
             }
             Some(Focus::Object { id }) => {
@@ -283,9 +346,19 @@ impl Resolver<'_, '_> {
                         .iter()
                         .position(|h| h.id == object.hypothesis)
                 });
-                match index {
-                    Some(index) => Some(self.target_of(vec![index])),
-                    None => {
+                match (known, index) {
+                    // The object as the operator saw it: all of its segments, not only its hypothesis's.
+                    (Some(object), index) if !object.members.is_empty() => {
+                        let mut target = index
+                            .map(|index| self.target_of(vec![index]))
+                            .unwrap_or_default();
+                        target.segments.extend(object.members.iter().copied());
+                        target.segments.sort();
+                        target.segments.dedup();
+                        Some(target)
+                    }
+                    (_, Some(index)) => Some(self.target_of(vec![index])),
+                    _ => {
                         self.issues.push(GroundingIssue::UnknownObject {
                             constraint: self.constraint,
                             id,
@@ -382,6 +455,7 @@ impl Resolver<'_, '_> {
                         self.issues.push(GroundingIssue::NoPrevious {
                             constraint: self.constraint,
                         });
+                        self.ask_to_point("nothing was named before for \"it\" to mean");
                         None
                     }
                 };
@@ -473,6 +547,22 @@ impl Resolver<'_, '_> {
             && !referent.plural
             && distinct_objects(view, self.extents, &candidates) > 1
         {
+            // Ask about the objects the operator was shown, when the caller said what they were: several
+            // hypotheses may be parts of one object the scene graph shows, and then there is nothing to ask.
+            let shown = self.shown_objects(referent.class, &candidates);
+            match shown.as_slice() {
+                [only] => return self.focus_on(only.id),
+                [_, _, ..] => {
+                    self.questions.push(questions::ask_objects(
+                        view,
+                        self.constraint,
+                        referent,
+                        &shown,
+                    ));
+                    return None;
+                }
+                [] => {}
+            }
             self.questions
                 .push(questions::ask(view, self.constraint, referent, &candidates));
             return None;
@@ -710,8 +800,17 @@ pub fn ground(
                             ),
                             candidates: Vec::new(),
                             descriptions: Vec::new(),
+                            objects: Vec::new(),
                         });
                         None
+                    }
+                    // "Get rid of it": not there, whatever it is shown as.
+                    (Some(target), None) if from.is_none() => {
+                        shown_class(view, &target).map(|shown| GroundedKind::Relabel {
+                            target,
+                            from: Some(shown),
+                            to: None,
+                        })
                     }
                     (resolved, _) => resolved.map(|target| GroundedKind::Relabel {
                         target,
@@ -752,6 +851,38 @@ pub fn ground(
     }
     grounding.last_referent = previous;
     grounding
+}
+
+/// The class a target is shown as: its hypotheses' class when they agree, else the class most of its
+/// segments' hypotheses take.
+fn shown_class(view: &SceneView, target: &Target) -> Option<ClassId> {
+    let mut classes: Vec<ClassId> = target
+        .hypotheses
+        .iter()
+        .filter_map(|&h| view.hypotheses.get(h).map(|h| h.class))
+        .collect();
+    if classes.is_empty() {
+        classes = view
+            .hypotheses
+            .iter()
+            .zip(view.accepted)
+            .filter(|(h, &on)| {
+                on && h
+                    .members
+                    .iter()
+                    .any(|m| target.segments.binary_search(m).is_ok())
+            })
+            .map(|(h, _)| h.class)
+            .collect();
+    }
+    classes.sort();
+    let mut best: Option<(usize, ClassId)> = None;
+    for run in classes.chunk_by(|a, b| a == b) {
+        if best.is_none_or(|(n, _)| run.len() > n) {
+            best = Some((run.len(), run[0]));
+        }
+    }
+    best.map(|(_, class)| class)
 }
 
 /// The most of the image (1/n) one object of a group usually covers, for the "much larger than usual" check

@@ -6,9 +6,9 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::predicates::{holds, relation_words};
-use super::{in_region, SceneView};
-use crate::ids::HypothesisId;
+use super::predicates::{holds, relation_words, Footprint};
+use super::{footprint_of, in_region, KnownObject, SceneView};
+use crate::ids::{ClassId, HypothesisId, ObjectId};
 use crate::language::constraint::{ImageRegion, Referent, Relation};
 use crate::language::notation::attribute_name;
 use crate::taxonomy::{plural, ClassGroup, Taxonomy};
@@ -23,6 +23,9 @@ pub struct ClarifyingQuestion {
     pub candidates: Vec<HypothesisId>,
     /// How each candidate is described in the text.
     pub descriptions: Vec<String>,
+    /// The candidates as scene-graph object ids, in the same order (what an answer names or points at).
+    #[serde(default)]
+    pub objects: Vec<ObjectId>,
 }
 
 fn number_word(n: usize) -> String {
@@ -100,8 +103,7 @@ const DESCRIBING_RELATIONS: [Relation; 7] = [
     Relation::Below,
 ];
 
-fn region_words(view: &SceneView, hypothesis: usize) -> String {
-    let footprint = view.footprint(hypothesis);
+fn region_words(view: &SceneView, footprint: &Footprint) -> String {
     let (width, height) = (view.scene.width(), view.scene.height());
     for region in [
         ImageRegion::Left,
@@ -109,7 +111,7 @@ fn region_words(view: &SceneView, hypothesis: usize) -> String {
         ImageRegion::Top,
         ImageRegion::Bottom,
     ] {
-        if in_region(&footprint, region, width, height) {
+        if in_region(footprint, region, width, height) {
             return format!("the one {}", region_phrase(region));
         }
     }
@@ -120,10 +122,22 @@ fn region_words(view: &SceneView, hypothesis: usize) -> String {
 fn describe_candidate(view: &SceneView, hypothesis: usize, candidates: &[usize]) -> String {
     let subject = view.footprint(hypothesis);
     let class = view.hypotheses[hypothesis].class;
+    describe_footprint(view, &subject, class, |other| {
+        other == hypothesis || candidates.contains(&other)
+    })
+}
+
+/// "the one left of the sink" for any footprint: a relation to the nearest accepted object of another class
+/// that `skip` does not exclude, else where it is in the picture.
+fn describe_footprint(
+    view: &SceneView,
+    subject: &Footprint,
+    class: ClassId,
+    skip: impl Fn(usize) -> bool,
+) -> String {
     let mut landmarks: Vec<(f32, usize)> = (0..view.hypotheses.len())
         .filter(|&other| {
-            other != hypothesis
-                && !candidates.contains(&other)
+            !skip(other)
                 && view.accepted.get(other).copied().unwrap_or(false)
                 && view.hypotheses[other].class != class
                 && view
@@ -142,7 +156,7 @@ fn describe_candidate(view: &SceneView, hypothesis: usize, candidates: &[usize])
     for &(_, landmark) in landmarks.iter().take(3) {
         let footprint = view.footprint(landmark);
         for relation in DESCRIBING_RELATIONS {
-            if holds(relation, &subject, &[footprint]) {
+            if holds(relation, subject, &[footprint]) {
                 let name = view
                     .taxonomy
                     .class_name(view.hypotheses[landmark].class)
@@ -151,7 +165,47 @@ fn describe_candidate(view: &SceneView, hypothesis: usize, candidates: &[usize])
             }
         }
     }
-    region_words(view, hypothesis)
+    region_words(view, subject)
+}
+
+/// Builds the question for a referent that matched several objects of the scene graph the operator was
+/// shown: the candidates are those objects, by id, left to right.
+pub(super) fn ask_objects(
+    view: &SceneView,
+    constraint: usize,
+    referent: &Referent,
+    objects: &[KnownObject],
+) -> ClarifyingQuestion {
+    let mut shown: Vec<(&KnownObject, Footprint)> = objects
+        .iter()
+        .map(|object| (object, footprint_of(view.scene, &object.members)))
+        .collect();
+    shown.sort_by(|a, b| {
+        a.1.centroid
+            .0
+            .total_cmp(&b.1.centroid.0)
+            .then(a.0.id.cmp(&b.0.id))
+    });
+    let shown_ids: Vec<HypothesisId> = shown.iter().map(|(object, _)| object.hypothesis).collect();
+    let descriptions: Vec<String> = shown
+        .iter()
+        .map(|(object, footprint)| {
+            let class = object.class.or(referent.class).unwrap_or(ClassId(0));
+            describe_footprint(view, footprint, class, |other| {
+                shown_ids.contains(&view.hypotheses[other].id)
+            })
+        })
+        .collect();
+    let candidates: Vec<HypothesisId> = shown.iter().map(|(object, _)| object.hypothesis).collect();
+    let mut question = worded(
+        constraint,
+        referent,
+        view.taxonomy,
+        candidates,
+        descriptions,
+    );
+    question.objects = shown.iter().map(|(object, _)| object.id).collect();
+    question
 }
 
 /// Builds the question for a referent that matched several objects.
@@ -184,10 +238,29 @@ pub(super) fn ask(
             .total_cmp(&view.footprint(b).centroid.0)
             .then(a.cmp(&b))
     });
-    let mut descriptions: Vec<String> = distinct
+    let descriptions: Vec<String> = distinct
         .iter()
         .map(|&h| describe_candidate(view, h, &distinct))
         .collect();
+    let candidates: Vec<HypothesisId> = distinct.iter().map(|&h| view.hypotheses[h].id).collect();
+    worded(
+        constraint,
+        referent,
+        view.taxonomy,
+        candidates,
+        descriptions,
+    )
+}
+
+/// The question's words: "which of the three chairs: the one left of the table, ...?", each candidate with
+/// its own description (positions in reading order when two descriptions would be alike).
+fn worded(
+    constraint: usize,
+    referent: &Referent,
+    taxonomy: &Taxonomy,
+    candidates: Vec<HypothesisId>,
+    mut descriptions: Vec<String>,
+) -> ClarifyingQuestion {
     // Two candidates described alike would not help; fall back to positions in reading order.
     let mut sorted = descriptions.clone();
     sorted.sort();
@@ -204,7 +277,7 @@ pub(super) fn ask(
         }
     }
     let noun = match referent.class {
-        Some(class) => plural(view.taxonomy.class_name(class)),
+        Some(class) => plural(taxonomy.class_name(class)),
         None => "things".to_string(),
     };
     let listed = match descriptions.as_slice() {
@@ -216,9 +289,11 @@ pub(super) fn ask(
         constraint,
         text: format!(
             "which of the {} {noun}: {listed}?",
-            number_word(distinct.len())
+            number_word(candidates.len())
         ),
-        candidates: distinct.iter().map(|&h| view.hypotheses[h].id).collect(),
+        // A scene-graph object is numbered after the hypothesis it is named for.
+        objects: candidates.iter().map(|h| ObjectId(h.0)).collect(),
+        candidates,
         descriptions,
     }
 }

@@ -170,6 +170,24 @@ impl Builder {
                     self.exist(&np, negated, span, misspelled);
                 }
             }
+            Action::Remove => {
+                for np in found.role("np").into_iter().filter_map(phrase) {
+                    if np.deictic.is_some() {
+                        let target = self.referent(&np);
+                        self.push(
+                            ConstraintKind::Relabel {
+                                target,
+                                from: np.class,
+                                to: None,
+                            },
+                            span,
+                            misspelled,
+                        );
+                    } else {
+                        self.exist(&np, true, span, misspelled);
+                    }
+                }
+            }
             Action::Located => {
                 if let Some(np) = first_phrase("np") {
                     let stated = np.article || np.quantity.is_some();

@@ -132,11 +132,16 @@ impl Conversation {
     /// Adds one parse: binds deictic words, checks every constraint against what was said before (including
     /// earlier constraints of the same utterance), and records it.
     pub fn add(&mut self, parse: &Parse) -> Turn {
+        self.add_constraints(&parse.constraints)
+    }
+
+    /// Adds one utterance's constraints (as `add` does for a parse).
+    pub fn add_constraints(&mut self, constraints: &[Constraint]) -> Turn {
         let turn = self.turn;
         self.turn += 1;
         let mut bindings = Vec::new();
         let mut conflicts = Vec::new();
-        for constraint in &parse.constraints {
+        for constraint in constraints {
             let mut bound = constraint.clone();
             self.bind(&mut bound, &mut bindings);
             let at = Location {

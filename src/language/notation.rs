@@ -282,6 +282,9 @@ pub fn constraint_gloss(kind: &ConstraintKind, taxonomy: &Taxonomy) -> String {
                 }
                 let _ = write!(out, " is a {}", name(*to));
             }
+            if from.is_none() && to.is_none() {
+                out.push_str(" is not there");
+            }
             out
         }
         ConstraintKind::Attribute { target, attribute } => format!(

@@ -87,6 +87,9 @@ pub enum Action {
     Count,
     /// A further relation of the last relation's subject: ", not on the table", "and left of the lamp".
     RelationMore,
+    /// "Remove the dog", "get rid of it": a class named is absent; a thing pointed at or mentioned before is
+    /// not there (whatever it is shown as).
+    Remove,
     /// Words that hold together but state nothing the parser can use ("is in the kitchen" after an unknown
     /// subject): consumed so no part is misread, and reported as not understood.
     Unread,
@@ -96,6 +99,7 @@ impl Action {
     fn parse(name: &str) -> Option<Action> {
         Some(match name {
             "exist" => Action::Exist,
+            "remove" => Action::Remove,
             "located" => Action::Located,
             "relabel" => Action::Relabel,
             "relabel_called" => Action::RelabelCalled,
@@ -114,7 +118,7 @@ impl Action {
     /// Roles the action may read; the first list must all be present, the second are optional.
     fn roles(self) -> (&'static [&'static str], &'static [&'static str]) {
         match self {
-            Action::Exist | Action::Located => (&["np"], &["negated"]),
+            Action::Exist | Action::Located | Action::Remove => (&["np"], &["negated"]),
             Action::Relabel => (&[], &["target", "from", "to"]),
             Action::RelabelCalled => (&["target", "from"], &[]),
             Action::RoomType => (&["room"], &["negated"]),

@@ -2,13 +2,12 @@
 //!
 //! Owns: `SceneGraph` and its parts, building it from a solved state (objects are formed from the final
 //! labels and the accepted hypotheses, see `objects`), run-length masks, the label map, and
-//! (in `changes`) the change list with causes, unmet constraints and safety holds; `correct` (in `correct`)
-//! runs grounding, energy, solver and this stage in order.
-//! Must not: search for solutions or read words; it describes a state the solver returned.
+//! (in `changes`) the change list with causes, unmet constraints and safety holds. `crate::turn::solve` runs
+//! grounding, energy, solver and this stage in order.
+//! Must not: search for solutions, call the solver or read words; it describes a state the solver returned.
 
 pub mod capped;
 pub mod changes;
-pub mod correct;
 pub mod differences;
 pub mod instance_statistics;
 pub mod instances;

@@ -14,6 +14,7 @@ use crate::language::constraint::{Constraint, Focus};
 use crate::raster::{DepthImage, IndexImage, RgbImage};
 use crate::scene::BoundingBox;
 use crate::taxonomy::{Taxonomy, UNLABELLED};
+use crate::turn::OpenQuestion;
 
 /// A key the service gives each registered scene; a corrector may cache per key.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
@@ -106,6 +107,11 @@ pub struct CorrectionRequest<'a> {
     pub history: &'a [PastTurn],
     pub utterance: &'a str,
     pub focus: Option<Focus>,
+    /// The constraints already read for this utterance (an answer to a question, a held change being
+    /// confirmed): used as they are instead of reading `utterance` again.
+    pub note: Option<&'a [Constraint]>,
+    /// The operator confirmed changes to people, pets and hazards: apply them instead of holding them.
+    pub confirmed: bool,
 }
 
 /// One change a correction makes, for the operator to read.
@@ -136,8 +142,8 @@ pub enum Verdict {
         proposed: SceneState,
         reason: String,
     },
-    /// The sentence was understood but is ambiguous; ask this.
-    NeedsClarification { question: String },
+    /// The sentence was understood but is ambiguous; ask this (with the candidates an answer may name).
+    NeedsClarification { question: OpenQuestion },
     /// Nothing usable was found in the sentence.
     NotUnderstood { reason: String },
     /// Understood, and the scene already agrees.
@@ -152,6 +158,9 @@ pub struct CorrectionOutcome {
     pub unmet: Vec<Unmet>,
     /// Relative gap between the solution's energy and the best lower bound, when the solver reports one.
     pub solver_gap: Option<f64>,
+    /// A question asked alongside an applied or held change (a count the graph still cannot show: which
+    /// of the objects shown are not of the class); answered by a new note, not by choosing.
+    pub question: Option<OpenQuestion>,
     pub verdict: Verdict,
 }
 

@@ -17,13 +17,13 @@ use std::sync::{Arc, Mutex};
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 
-use crate::ids::ClassId;
 use crate::language::constraint::{Constraint, Focus};
 use crate::pipeline::{correct_turn, CorrectionSettings, TurnInputs};
-use crate::scenegraph::changes::{Change as GraphChange, ChangeKind, ChangeStatus};
-use crate::scenegraph::correct::Correction;
+use crate::scenegraph::changes::{Change as GraphChange, ChangeKind};
 use crate::scenegraph::{label_map, object_id};
 use crate::taxonomy::Taxonomy;
+use crate::turn::solve::Correction;
+use crate::turn::{decide, hold_reason, question_alongside, Decision, Note, OpenQuestion};
 use crate::unaries::Classifier;
 
 use super::corrector::{
@@ -43,7 +43,7 @@ const SOLVED_CACHE: usize = 128;
 
 /// One turn that led to a version: what was understood, where the operator pointed, and whether safety
 /// changes were confirmed.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
 struct TurnRecord {
     constraints: Vec<Constraint>,
     focus: Option<Focus>,
@@ -329,10 +329,10 @@ impl JointCorrector {
         let Some(head) = stored.last() else {
             return Ok(None);
         };
-        if head.turn.is_none() {
-            return Ok(None);
-        }
         let head_key = head.key();
+        if head.turn.is_none() {
+            return self.baseline(prepared, &head_key).map(Some);
+        }
         if let Some(found) = lock(&self.solved).get(&head_key) {
             return Ok(Some(found));
         }
@@ -372,8 +372,8 @@ impl JointCorrector {
         }
         for index in start..chain.len() {
             let Some(turn) = &chain[index].turn else {
-                // The registered version: the next turn starts from scratch.
-                current = None;
+                // The registered version: the scene solved with no note.
+                current = Some(self.baseline(prepared, &keys[index])?);
                 continue;
             };
             let solved = Arc::new(self.solve(prepared, current.as_deref(), turn)?);
@@ -383,6 +383,20 @@ impl JointCorrector {
             current = Some(solved);
         }
         Ok(current)
+    }
+
+    /// The registered version's solve (no note), cached under its engine state's key.
+    fn baseline(
+        &self,
+        prepared: &PreparedInput,
+        key: &str,
+    ) -> Result<Arc<Correction>, CorrectorError> {
+        if let Some(found) = lock(&self.solved).get(key) {
+            return Ok(found);
+        }
+        let solved = Arc::new(self.solve(prepared, None, &TurnRecord::default())?);
+        lock(&self.solved).insert(key.to_string(), solved.clone());
+        Ok(solved)
     }
 
     fn scene_state(
@@ -541,24 +555,6 @@ fn service_unmet(correction: &Correction) -> Vec<Unmet> {
     unmet
 }
 
-/// The safety classes a list of pending changes touches, by name, sorted.
-fn pending_safety_classes(changes: &[GraphChange], taxonomy: &Taxonomy) -> Vec<String> {
-    let mut names: Vec<String> = changes
-        .iter()
-        .filter(|c| c.status == ChangeStatus::Pending)
-        .filter_map(|c| match c.kind {
-            ChangeKind::SegmentRelabelled { from, .. } => Some(from),
-            ChangeKind::ObjectRemoved { class, .. } => Some(class),
-            _ => None,
-        })
-        .filter(|&class: &ClassId| taxonomy.is_safety_critical(class))
-        .map(|class| taxonomy.class_name(class).to_string())
-        .collect();
-    names.sort();
-    names.dedup();
-    names
-}
-
 impl Corrector for JointCorrector {
     fn taxonomy(&self) -> &Taxonomy {
         self.settings.grammar.taxonomy()
@@ -567,16 +563,10 @@ impl Corrector for JointCorrector {
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {
         let prepared = self.prepared_for(input, None)?;
         let engine = EngineState::root(input_digest(input));
-        let baseline = self.solve(
-            &prepared,
-            None,
-            &TurnRecord {
-                constraints: Vec::new(),
-                focus: None,
-                confirmed: false,
-            },
-        )?;
-        Ok(self.scene_state(&prepared, &baseline, engine.encode()))
+        let baseline = self.solve(&prepared, None, &TurnRecord::default())?;
+        let state = self.scene_state(&prepared, &baseline, engine.encode());
+        self.remember(&engine, baseline);
+        Ok(state)
     }
 
     fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError> {
@@ -586,101 +576,118 @@ impl Corrector for JointCorrector {
             return Err(internal("stored engine state is empty"));
         };
         let prepared = self.prepared_for(request.input, Some(&engine.input))?;
-        let parse = match self
-            .settings
-            .grammar
-            .parse(request.utterance, request.focus)
-        {
-            Ok(parse) => parse,
-            Err(error) => {
-                return Ok(CorrectionOutcome {
-                    constraints: Vec::new(),
-                    changes: Vec::new(),
-                    unmet: Vec::new(),
-                    solver_gap: None,
-                    verdict: Verdict::NotUnderstood {
-                        reason: error.to_string(),
-                    },
-                })
-            }
+        let not_understood = |reason: String| CorrectionOutcome {
+            constraints: Vec::new(),
+            changes: Vec::new(),
+            unmet: Vec::new(),
+            solver_gap: None,
+            question: None,
+            verdict: Verdict::NotUnderstood { reason },
         };
-        let constraints = parse.constraints;
+        let constraints = match request.note {
+            Some(constraints) => constraints.to_vec(),
+            None => match self
+                .settings
+                .grammar
+                .parse(request.utterance, request.focus)
+            {
+                Ok(parse) => parse.constraints,
+                Err(error) => return Ok(not_understood(error.to_string())),
+            },
+        };
         if constraints.is_empty() {
-            return Ok(CorrectionOutcome {
-                constraints,
-                changes: Vec::new(),
-                unmet: Vec::new(),
-                solver_gap: None,
-                verdict: Verdict::NotUnderstood {
-                    reason: "no constraint could be read from the sentence".into(),
-                },
-            });
+            return Ok(not_understood(
+                "no constraint could be read from the sentence".into(),
+            ));
         }
         let previous = self.version(&prepared, stored, request.lineage)?;
         let turn = TurnRecord {
             constraints: constraints.clone(),
             focus: request.focus,
-            confirmed: false,
+            confirmed: request.confirmed,
         };
         let correction = self.solve(&prepared, previous.as_deref(), &turn)?;
         let gap = Some(correction.graph.relative_gap);
-        if let Some(question) = correction.questions.first() {
-            return Ok(CorrectionOutcome {
+        let first_new = correction
+            .constraint_labels
+            .len()
+            .saturating_sub(constraints.len());
+        let note = Note {
+            text: request.utterance.to_string(),
+            focus: request.focus,
+            constraints: constraints.clone(),
+        };
+        let decision = decide(
+            &correction,
+            &constraints,
+            first_new,
+            request.confirmed,
+            taxonomy,
+        );
+        let shown = previous.as_deref().map_or(&correction.graph, |p| &p.graph);
+        let alongside = question_alongside(&correction, &constraints, first_new).map(|index| {
+            OpenQuestion::from_solve(&note, &correction.questions[index], first_new, shown)
+        });
+        match decision {
+            Decision::Ask(index) => {
+                let question =
+                    OpenQuestion::from_solve(&note, &correction.questions[index], first_new, shown);
+                Ok(CorrectionOutcome {
+                    constraints,
+                    changes: Vec::new(),
+                    unmet: service_unmet(&correction),
+                    solver_gap: gap,
+                    question: None,
+                    verdict: Verdict::NeedsClarification { question },
+                })
+            }
+            Decision::Hold { classes } => {
+                let confirmed = TurnRecord {
+                    confirmed: true,
+                    ..turn
+                };
+                let proposed = self.solve(&prepared, previous.as_deref(), &confirmed)?;
+                let next = engine.child(confirmed).with_snapshot(&proposed);
+                let changes = service_changes(&proposed.changes, &prepared, &proposed, taxonomy);
+                let unmet = service_unmet(&proposed);
+                let state = self.scene_state(&prepared, &proposed, next.encode());
+                self.remember(&next, proposed);
+                Ok(CorrectionOutcome {
+                    constraints,
+                    changes,
+                    unmet,
+                    solver_gap: gap,
+                    question: alongside,
+                    verdict: Verdict::NeedsConfirmation {
+                        proposed: state,
+                        reason: hold_reason(&classes),
+                    },
+                })
+            }
+            Decision::Nothing => Ok(CorrectionOutcome {
                 constraints,
                 changes: Vec::new(),
                 unmet: service_unmet(&correction),
                 solver_gap: gap,
-                verdict: Verdict::NeedsClarification {
-                    question: question.text.clone(),
-                },
-            });
-        }
-        let safety = pending_safety_classes(&correction.changes, taxonomy);
-        if !safety.is_empty() {
-            let confirmed = TurnRecord {
-                confirmed: true,
-                ..turn
-            };
-            let proposed = self.solve(&prepared, previous.as_deref(), &confirmed)?;
-            let next = engine.child(confirmed).with_snapshot(&proposed);
-            let changes = service_changes(&proposed.changes, &prepared, &proposed, taxonomy);
-            let unmet = service_unmet(&proposed);
-            let state = self.scene_state(&prepared, &proposed, next.encode());
-            self.remember(&next, proposed);
-            return Ok(CorrectionOutcome {
-                constraints,
-                changes,
-                unmet,
-                solver_gap: gap,
-                verdict: Verdict::NeedsConfirmation {
-                    proposed: state,
-                    reason: format!(
-                        "this removes or renames {}, a person, pet or hazard class; confirm to apply",
-                        safety.join(", ")
-                    ),
-                },
-            });
-        }
-        let changes = service_changes(&correction.changes, &prepared, &correction, taxonomy);
-        let unmet = service_unmet(&correction);
-        if changes.is_empty() {
-            return Ok(CorrectionOutcome {
-                constraints,
-                changes,
-                unmet,
-                solver_gap: gap,
+                question: alongside,
                 verdict: Verdict::NothingToChange,
-            });
+            }),
+            Decision::Apply => {
+                let changes =
+                    service_changes(&correction.changes, &prepared, &correction, taxonomy);
+                let unmet = service_unmet(&correction);
+                let next = engine.child(turn).with_snapshot(&correction);
+                let state = self.scene_state(&prepared, &correction, next.encode());
+                self.remember(&next, correction);
+                Ok(CorrectionOutcome {
+                    constraints,
+                    changes,
+                    unmet,
+                    solver_gap: gap,
+                    question: alongside,
+                    verdict: Verdict::Applied(state),
+                })
+            }
         }
-        let next = engine.child(turn).with_snapshot(&correction);
-        let state = self.scene_state(&prepared, &correction, next.encode());
-        self.remember(&next, correction);
-        Ok(CorrectionOutcome {
-            constraints,
-            changes,
-            unmet,
-            solver_gap: gap,
-            verdict: Verdict::Applied(state),
-        })
     }
 }

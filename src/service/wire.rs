@@ -196,12 +196,32 @@ pub struct UtteranceReply {
     pub unmet: Vec<UnmetOut>,
     /// Set when the sentence needs a clarification.
     pub question: Option<String>,
+    /// The objects the question asks about, in the order it names them; the next utterance may answer by
+    /// position ("the second from the left"), side ("the one on the right"), object id ("object 12"),
+    /// one of the descriptions, or by pointing ("this one" with a focus).
+    pub candidates: Vec<CandidateOut>,
     /// Set when the change waits for confirmation.
     pub pending: Option<PendingOut>,
-    /// Set when nothing could be understood.
+    /// The conversation's change still waiting for confirmation after this turn (this turn's or an
+    /// earlier one's): it stays until confirmed or rejected.
+    pub waiting: Option<PendingOut>,
+    /// Contradictions and repeats of earlier notes of this conversation.
+    pub conflicts: Vec<String>,
+    /// Set when nothing could be understood, or a conversation command could not be done; for undo,
+    /// redo, confirm and reject, what was done.
     pub reason: Option<String>,
     /// The scene version in force after this turn.
     pub scene_version: i64,
+}
+
+/// One object a question asks about.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct CandidateOut {
+    pub object_id: u32,
+    pub class: Option<String>,
+    /// How the question describes it ("the one left of the table").
+    pub description: String,
+    pub bbox: Option<PixelBox>,
 }
 
 /// The answer to confirm, reject, undo and redo.
@@ -210,6 +230,8 @@ pub struct TurnReply {
     pub turn_id: i64,
     pub status: TurnStatus,
     pub scene_version: i64,
+    /// What moved: for undo and redo the labels that changed back, for a confirmation the applied change.
+    pub changes: Vec<ChangeOut>,
 }
 
 /// One turn of a conversation.
@@ -220,7 +242,10 @@ pub struct TurnOut {
     pub kind: String,
     pub text: String,
     pub status: TurnStatus,
-    pub constraints: Vec<String>,
+    /// What was understood, typed (the same shape an utterance's answer gives).
+    pub constraints: Vec<ConstraintOut>,
+    /// Where the operator pointed with the utterance.
+    pub focus: Option<FocusIn>,
     pub scene_version: Option<i64>,
     pub operator: String,
     pub at: String,

@@ -28,9 +28,9 @@ use crate::pipeline::{
 };
 use crate::render::random::mix64;
 use crate::render::{render_scene, SceneRequest, ROOM_TYPES};
-use crate::scenegraph::correct::Correction;
 use crate::scenegraph::label_map;
 use crate::taxonomy::{Taxonomy, UNLABELLED};
+use crate::turn::solve::Correction;
 use crate::unaries::Classifier;
 
 use operator::{candidate_facts, deepest_pixel, Fact, FactRelation, Shown};

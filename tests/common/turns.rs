@@ -11,10 +11,10 @@ use sayso::grounding::GroundingContext;
 use sayso::hypotheses::ProposalOptions;
 use sayso::language::constraint::{Constraint, ConstraintKind, Span};
 use sayso::scene::Scene;
-use sayso::scenegraph::correct::{correct, Correction, CorrectionRequest};
 use sayso::scenegraph::instances::InstanceCuts;
 use sayso::solver::joint::JointOptions;
 use sayso::taxonomy::Taxonomy;
+use sayso::turn::solve::{correct, Correction, CorrectionRequest};
 use sayso::unaries::Unaries;
 
 /// A constraint as the parser would give it, spanning the whole gloss.

@@ -277,6 +277,7 @@ impl Corrector for GridEngine {
             changes,
             unmet: Vec::new(),
             solver_gap: Some(0.0),
+            question: None,
             verdict,
         };
         if words.first() == Some(&"sleep") {
@@ -285,7 +286,16 @@ impl Corrector for GridEngine {
         if words.first() == Some(&"which") {
             return Ok(outcome(
                 Verdict::NeedsClarification {
-                    question: "which pixel?".into(),
+                    question: sayso::turn::OpenQuestion {
+                        note: sayso::turn::Note {
+                            text: request.utterance.to_string(),
+                            focus: request.focus,
+                            constraints: Vec::new(),
+                        },
+                        constraint: 0,
+                        text: "which pixel?".into(),
+                        candidates: Vec::new(),
+                    },
                 },
                 Vec::new(),
                 Vec::new(),

@@ -4,13 +4,16 @@
 //! Must not: change any value's meaning; a conversion only renames.
 
 use crate::correction_log::SceneKey;
-use crate::ids::ObjectId;
+use crate::ids::{ClassId, ObjectId};
 use crate::language::constraint::{Constraint, ConstraintKind, Focus};
+use crate::raster::IndexImage;
 use crate::taxonomy::Taxonomy;
+use crate::turn::Candidate;
 
 use super::super::corrector::{Change, Unmet};
 use super::super::wire::{
-    ChangeOut, ConstraintOut, FocusIn, ObjectOut, PixelBox, SceneGraphOut, TextSpan, UnmetOut,
+    CandidateOut, ChangeOut, ConstraintOut, FocusIn, ObjectOut, PixelBox, SceneGraphOut, TextSpan,
+    UnmetOut,
 };
 use super::SceneSlot;
 
@@ -60,6 +63,59 @@ pub(crate) fn change_out(change: &Change, taxonomy: &Taxonomy) -> ChangeOut {
         pixels: change.pixels,
         description: change.description.clone(),
     }
+}
+
+pub(crate) fn focus_to_wire(focus: Focus) -> FocusIn {
+    match focus {
+        Focus::Object { id } => FocusIn::Object { object_id: id.0 },
+        Focus::Pixel { x, y } => FocusIn::Pixel { x, y },
+    }
+}
+
+pub(crate) fn candidate_out(candidate: &Candidate, taxonomy: &Taxonomy) -> CandidateOut {
+    CandidateOut {
+        object_id: candidate.object.0,
+        class: candidate
+            .class
+            .map(|class| taxonomy.class_name(class).to_string()),
+        description: candidate.description.clone(),
+        bbox: candidate.bbox.map(|b| PixelBox {
+            x0: b.x0,
+            y0: b.y0,
+            x1: b.x1,
+            y1: b.y1,
+        }),
+    }
+}
+
+/// The labels that moved from one label map to another, summed in pixels per (from, to) pair, largest
+/// first: what an undo or redo changed back.
+pub(crate) fn label_changes(
+    before: &IndexImage,
+    after: &IndexImage,
+    taxonomy: &Taxonomy,
+) -> Vec<ChangeOut> {
+    let mut pairs: std::collections::BTreeMap<(u16, u16), u64> = Default::default();
+    if before.width == after.width && before.height == after.height {
+        for (&from, &to) in before.values.iter().zip(&after.values) {
+            if from != to {
+                *pairs.entry((from, to)).or_default() += 1;
+            }
+        }
+    }
+    let name = |label: u16| taxonomy.class_name(ClassId(label)).to_string();
+    let mut out: Vec<ChangeOut> = pairs
+        .into_iter()
+        .map(|((from, to), pixels)| ChangeOut {
+            object_id: None,
+            from: Some(name(from)),
+            to: Some(name(to)),
+            pixels,
+            description: format!("{} -> {}", name(from), name(to)),
+        })
+        .collect();
+    out.sort_by_key(|change| std::cmp::Reverse(change.pixels));
+    out
 }
 
 pub(crate) fn unmet_out(unmet: &Unmet) -> UnmetOut {

@@ -23,6 +23,7 @@ use crate::correction_log::{
 };
 use crate::language::constraint::Constraint;
 use crate::raster;
+use crate::turn::{Answered, OpenQuestion};
 
 use super::corrector::{Change, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
 use super::error::ApiError;
@@ -52,6 +53,7 @@ pub(crate) struct PendingSlot {
     changes: Vec<Change>,
     utterance: String,
     constraints: Vec<Constraint>,
+    focus: Option<crate::language::constraint::Focus>,
 }
 
 pub(crate) struct ConversationSlot {
@@ -63,6 +65,10 @@ pub(crate) struct ConversationSlot {
     pending: Option<PendingSlot>,
     applied: Vec<VersionKey>,
     redo: Vec<VersionKey>,
+    /// The question the conversation waits on (restored from the last turn when it asked one).
+    question: Option<OpenQuestion>,
+    /// The version the last answer to a question made, and that answer, for "no, the other one".
+    answered: Option<(VersionKey, Answered)>,
 }
 
 /// The service's state; share it behind an `Arc`.
@@ -241,6 +247,9 @@ impl Coordinator {
                         constraints: turn
                             .and_then(|turn| serde_json::from_str(&turn.constraints_json).ok())
                             .unwrap_or_default(),
+                        focus: turn
+                            .and_then(|turn| turn.focus_json.as_deref())
+                            .and_then(|text| serde_json::from_str(text).ok()),
                     })
                 }
                 None => None,
@@ -256,6 +265,16 @@ impl Coordinator {
                     pending,
                     applied: row.applied_stack,
                     redo: row.redo_stack,
+                    question: turns
+                        .last()
+                        .filter(|turn| turn.status == "needs_clarification")
+                        .and_then(|turn| {
+                            serde_json::from_str::<serde_json::Value>(&turn.result_json).ok()
+                        })
+                        .and_then(|result| {
+                            serde_json::from_value(result.get("open_question")?.clone()).ok()
+                        }),
+                    answered: None,
                 })),
             );
         }
@@ -397,6 +416,8 @@ impl Coordinator {
                     pending: None,
                     applied: Vec::new(),
                     redo: Vec::new(),
+                    question: None,
+                    answered: None,
                 })),
             );
         Ok(out)

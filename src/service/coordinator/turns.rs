@@ -7,20 +7,38 @@
 //! Must not: talk HTTP; answers are wire values or `ApiError`s.
 
 use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, VersionKey};
-use crate::language::constraint::Constraint;
+use crate::language::constraint::{Constraint, Focus};
+use crate::taxonomy::Taxonomy;
+use crate::turn::words::{self, Command};
+use crate::turn::{answer, conversation_checks, Answered, Note};
 
 use super::super::corrector::{
-    CorrectionRequest, CorrectorError, Lineage, PastTurn, SceneHandle, Verdict,
+    CorrectionOutcome, CorrectionRequest, CorrectorError, Lineage, PastTurn, SceneHandle, Verdict,
 };
 use super::super::error::ApiError;
 use super::super::wire::{
     FocusIn, HistoryOut, PendingOut, TurnOut, TurnReply, TurnStatus, UtteranceReply,
 };
-use super::convert::{change_out, constraint_out, focus_from_wire, unmet_out};
+use super::convert::{
+    candidate_out, change_out, constraint_out, focus_from_wire, focus_to_wire, label_changes,
+    unmet_out,
+};
 use super::{
-    decode_state, encode_state, lock, log_error, Coordinator, PendingSlot,
+    decode_state, encode_state, lock, log_error, ConversationSlot, Coordinator, PendingSlot,
     UTTERANCE_CHARACTER_LIMIT,
 };
+
+/// The change a conversation holds for confirmation, as the wire shows it.
+fn waiting_out(conversation: &ConversationSlot, taxonomy: &Taxonomy) -> Option<PendingOut> {
+    conversation.pending.as_ref().map(|pending| PendingOut {
+        reason: format!("\"{}\": {}", pending.utterance, pending.reason),
+        changes: pending
+            .changes
+            .iter()
+            .map(|change| change_out(change, taxonomy))
+            .collect(),
+    })
+}
 
 fn status_text(status: TurnStatus) -> &'static str {
     match status {
@@ -80,6 +98,9 @@ impl Coordinator {
         focus: Option<FocusIn>,
     ) -> Result<UtteranceReply, ApiError> {
         check_utterance_text(text)?;
+        if let Some(command) = words::command(text) {
+            return self.spoken(conversation, operator, text, command);
+        }
         let conversation_slot = self.conversation_slot(conversation)?;
         let mut conversation_state = lock(&conversation_slot);
         let scene_slot = self.scene_slot(conversation_state.scene)?;
@@ -111,24 +132,74 @@ impl Coordinator {
         }
         let focus_internal = focus.map(focus_from_wire);
         let head = scene.head;
-        let read_lineage = || self.lineage(head);
-        let outcome = self
-            .corrector
-            .apply(&CorrectionRequest {
-                scene: SceneHandle(conversation_state.scene.0),
-                input: &scene.input,
-                state: &scene.state,
-                lineage: Lineage(&read_lineage),
-                history: &conversation_state.history,
-                utterance: text,
-                focus: focus_internal,
-            })
-            .map_err(|error| match error {
-                CorrectorError::BadInput { field, message } => {
-                    ApiError::unprocessable("bad_utterance", format!("{field}: {message}"))
+        // An answer to the open question solves the question's note about the chosen object.
+        let mut answered: Option<Answered> = None;
+        let mut note: Option<Note> = None;
+        let mut refusal: Option<String> = None;
+        if let Some(question) = conversation_state
+            .question
+            .as_ref()
+            .filter(|q| !q.candidates.is_empty())
+        {
+            let descriptions: Vec<String> = question
+                .candidates
+                .iter()
+                .map(|c| c.description.clone())
+                .collect();
+            if let Some(choice) = words::choice(text, &descriptions) {
+                match answer::pick(&choice, &question.candidates, focus_internal) {
+                    Ok(chosen) => {
+                        note = Some(question.answered_with(question.candidates[chosen].object));
+                        answered = Some(Answered {
+                            question: question.clone(),
+                            chosen,
+                        });
+                    }
+                    Err(reason) => refusal = Some(reason),
                 }
-                internal => ApiError::internal(internal),
-            })?;
+            }
+        }
+        let solve_focus = note.as_ref().map_or(focus_internal, |note| note.focus);
+        let read_lineage = || self.lineage(head);
+        let outcome = match refusal {
+            Some(reason) => CorrectionOutcome {
+                constraints: Vec::new(),
+                changes: Vec::new(),
+                unmet: Vec::new(),
+                solver_gap: None,
+                question: None,
+                verdict: Verdict::NotUnderstood { reason },
+            },
+            None => self
+                .corrector
+                .apply(&CorrectionRequest {
+                    scene: SceneHandle(conversation_state.scene.0),
+                    input: &scene.input,
+                    state: &scene.state,
+                    lineage: Lineage(&read_lineage),
+                    history: &conversation_state.history,
+                    utterance: note.as_ref().map_or(text, |note| note.text.as_str()),
+                    focus: solve_focus,
+                    note: note.as_ref().map(|note| note.constraints.as_slice()),
+                    confirmed: false,
+                })
+                .map_err(|error| match error {
+                    CorrectorError::BadInput { field, message } => {
+                        ApiError::unprocessable("bad_utterance", format!("{field}: {message}"))
+                    }
+                    internal => ApiError::internal(internal),
+                })?,
+        };
+        let earlier: Vec<Vec<Constraint>> = conversation_state
+            .history
+            .iter()
+            .map(|turn| turn.constraints.clone())
+            .collect();
+        let conflicts =
+            conversation_checks(self.corrector.taxonomy(), &earlier, &outcome.constraints);
+        // One held change at a time: a second waits until the first is confirmed or rejected.
+        let second_hold = matches!(outcome.verdict, Verdict::NeedsConfirmation { .. })
+            && conversation_state.pending.is_some();
         if let Some(gap) = outcome.solver_gap {
             self.metrics.record_solver_gap(gap);
         }
@@ -140,11 +211,25 @@ impl Coordinator {
             .iter()
             .map(|change| change_out(change, taxonomy))
             .collect();
-        let focus_json = match focus_internal {
+        let focus_json = match solve_focus {
             Some(focus) => Some(serde_json::to_string(&focus).map_err(ApiError::internal)?),
             None => None,
         };
         let (status, effect, question, reason, pending_out) = match &outcome.verdict {
+            Verdict::NeedsConfirmation { .. } if second_hold => (
+                TurnStatus::NeedsConfirmation,
+                TurnEffect::None,
+                None,
+                Some(format!(
+                    "a change is already held for confirmation ({}); confirm or reject it first, \
+                     then say this again",
+                    conversation_state
+                        .pending
+                        .as_ref()
+                        .map_or("", |pending| pending.utterance.as_str())
+                )),
+                None,
+            ),
             Verdict::Applied(state) => (
                 TurnStatus::Applied,
                 TurnEffect::NewVersion {
@@ -176,7 +261,7 @@ impl Coordinator {
             Verdict::NeedsClarification { question } => (
                 TurnStatus::NeedsClarification,
                 TurnEffect::None,
-                Some(question.clone()),
+                Some(question.text.clone()),
                 None,
                 None,
             ),
@@ -195,10 +280,16 @@ impl Coordinator {
                 None,
             ),
         };
+        let open_question = match &outcome.verdict {
+            Verdict::NeedsClarification { question } => Some(question.clone()),
+            _ => None,
+        };
         let result_json = serde_json::json!({
             "changes": changes_out,
             "unmet": outcome.unmet,
             "question": question,
+            "open_question": open_question,
+            "conflicts": conflicts,
             "reason": reason,
             "solver_gap": outcome.solver_gap,
         })
@@ -231,9 +322,17 @@ impl Coordinator {
         self.metrics.record_turn(new_version.is_some());
         conversation_state.history.push(PastTurn {
             utterance: text.to_string(),
-            focus: focus_internal,
+            focus: solve_focus,
             constraints: outcome.constraints.clone(),
         });
+        // A question asked alongside an applied change is shown with it (answered by a new note).
+        let alongside = outcome.question.clone();
+        let question = question.or_else(|| alongside.as_ref().map(|q| q.text.clone()));
+        let mut candidates: Vec<_> = alongside
+            .iter()
+            .flat_map(|q| q.candidates.iter())
+            .map(|candidate| candidate_out(candidate, taxonomy))
+            .collect();
         match outcome.verdict {
             Verdict::Applied(state) => {
                 if let Some(version) = new_version {
@@ -241,9 +340,12 @@ impl Coordinator {
                     scene.state = state;
                     conversation_state.applied.push(version);
                     conversation_state.redo.clear();
-                    conversation_state.pending = None;
+                    // A held change stays held: only a confirmation or a rejection ends it.
+                    conversation_state.answered = answered.map(|answered| (version, answered));
                 }
+                conversation_state.question = None;
             }
+            Verdict::NeedsConfirmation { .. } if second_hold => {}
             Verdict::NeedsConfirmation { proposed, reason } => {
                 conversation_state.pending = Some(PendingSlot {
                     base: head,
@@ -252,9 +354,20 @@ impl Coordinator {
                     changes: outcome.changes.clone(),
                     utterance: text.to_string(),
                     constraints: outcome.constraints.clone(),
+                    focus: solve_focus,
                 });
+                conversation_state.question = None;
             }
-            _ => {}
+            Verdict::NeedsClarification { question } => {
+                candidates = question
+                    .candidates
+                    .iter()
+                    .map(|candidate| candidate_out(candidate, taxonomy))
+                    .collect();
+                conversation_state.question = Some(question);
+            }
+            Verdict::NothingToChange => conversation_state.question = None,
+            Verdict::NotUnderstood { .. } => {}
         }
         Ok(UtteranceReply {
             turn_id: turn_key.0,
@@ -263,9 +376,217 @@ impl Coordinator {
             changes: changes_out,
             unmet: outcome.unmet.iter().map(unmet_out).collect(),
             question,
+            candidates,
             pending: pending_out,
+            waiting: waiting_out(&conversation_state, taxonomy),
+            conflicts,
             reason,
             scene_version: scene.head.0,
+        })
+    }
+
+    /// A conversation command said in words ("undo", "yes", "no", "no, the other one"): done as its
+    /// route would do it, answered in the utterance's shape.
+    fn spoken(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+        text: &str,
+        command: Command,
+    ) -> Result<UtteranceReply, ApiError> {
+        let turn = match command {
+            Command::Undo => self.undo(conversation, operator)?,
+            Command::Redo => self.redo(conversation, operator)?,
+            Command::Confirm => self.confirm(conversation, operator)?,
+            Command::Reject => {
+                let has_pending = {
+                    let slot = self.conversation_slot(conversation)?;
+                    let state = lock(&slot);
+                    state.pending.is_some()
+                };
+                if has_pending {
+                    self.reject(conversation, operator)?
+                } else {
+                    return self.drop_question(conversation, operator, text);
+                }
+            }
+            Command::OtherOne => return self.other_one(conversation, operator, text),
+        };
+        let slot = self.conversation_slot(conversation)?;
+        let state = lock(&slot);
+        let said = match turn.status {
+            TurnStatus::Undone => "took back the conversation's last change",
+            TurnStatus::Redone => "put back the change taken back last",
+            TurnStatus::Confirmed => "applied the held change",
+            TurnStatus::Rejected => "dropped the held change",
+            _ => "done",
+        };
+        Ok(UtteranceReply {
+            turn_id: turn.turn_id,
+            status: turn.status,
+            constraints: Vec::new(),
+            changes: turn.changes,
+            unmet: Vec::new(),
+            question: None,
+            candidates: Vec::new(),
+            pending: None,
+            waiting: waiting_out(&state, self.corrector.taxonomy()),
+            conflicts: Vec::new(),
+            reason: Some(said.to_string()),
+            scene_version: turn.scene_version,
+        })
+    }
+
+    /// Logs a turn that changes nothing in the log's versions (a dropped question, a re-asked one).
+    fn quiet_turn(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+        text: &str,
+        status: TurnStatus,
+        result_json: &str,
+    ) -> Result<i64, ApiError> {
+        let (turn_key, _) = self
+            .group
+            .commit(
+                &self.log,
+                &NewTurn {
+                    conversation,
+                    kind: "utterance",
+                    text,
+                    focus_json: None,
+                    status: status_text(status),
+                    constraints_json: "[]",
+                    result_json,
+                    operator,
+                    effect: TurnEffect::None,
+                },
+                None,
+            )
+            .map_err(log_error)?;
+        self.metrics.record_turn(false);
+        Ok(turn_key.0)
+    }
+
+    /// "No" with no held change: drops the open question.
+    fn drop_question(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+        text: &str,
+    ) -> Result<UtteranceReply, ApiError> {
+        let slot = self.conversation_slot(conversation)?;
+        let mut state = lock(&slot);
+        let Some(question) = state.question.take() else {
+            return Err(ApiError::conflict(
+                "nothing_waiting",
+                "nothing waits for a confirmation or an answer in this conversation",
+            ));
+        };
+        let scene_version = {
+            let scene_slot = self.scene_slot(state.scene)?;
+            let scene = lock(&scene_slot);
+            scene.head.0
+        };
+        let turn_id = self.quiet_turn(conversation, operator, text, TurnStatus::Rejected, "{}")?;
+        Ok(UtteranceReply {
+            turn_id,
+            status: TurnStatus::Rejected,
+            constraints: Vec::new(),
+            changes: Vec::new(),
+            unmet: Vec::new(),
+            question: None,
+            candidates: Vec::new(),
+            pending: None,
+            waiting: waiting_out(&state, self.corrector.taxonomy()),
+            conflicts: Vec::new(),
+            reason: Some(format!("dropped the question \"{}\"", question.text)),
+            scene_version,
+        })
+    }
+
+    /// "No, the other one": takes back the change the last answer made and applies the question's note to
+    /// the other candidate (with two), or asks again among the rest.
+    fn other_one(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+        text: &str,
+    ) -> Result<UtteranceReply, ApiError> {
+        let answered = {
+            let slot = self.conversation_slot(conversation)?;
+            let state = lock(&slot);
+            match &state.answered {
+                Some((version, answered)) if state.applied.last() == Some(version) => {
+                    answered.clone()
+                }
+                _ => return Err(ApiError::conflict(
+                    "no_answer_to_change",
+                    "\"the other one\" follows an answer to a question, and this conversation's \
+                         last change answered none",
+                )),
+            }
+        };
+        self.undo(conversation, operator)?;
+        let mut rest = answered.question.clone();
+        rest.candidates.remove(answered.chosen);
+        rest.text = format!(
+            "which one then: {}?",
+            rest.candidates
+                .iter()
+                .map(|c| c.description.clone())
+                .collect::<Vec<_>>()
+                .join(", ")
+        );
+        let only = (rest.candidates.len() == 1).then(|| rest.candidates[0].object);
+        {
+            let slot = self.conversation_slot(conversation)?;
+            let mut state = lock(&slot);
+            state.question = Some(rest.clone());
+        }
+        if let Some(object) = only {
+            // The one left: answered as if named.
+            return self.utterance(
+                conversation,
+                operator,
+                &format!("object {}", object.0),
+                None,
+            );
+        }
+        let slot = self.conversation_slot(conversation)?;
+        let state = lock(&slot);
+        let scene_version = {
+            let scene_slot = self.scene_slot(state.scene)?;
+            let scene = lock(&scene_slot);
+            scene.head.0
+        };
+        let taxonomy = self.corrector.taxonomy();
+        let result_json =
+            serde_json::json!({ "question": rest.text, "open_question": rest }).to_string();
+        let turn_id = self.quiet_turn(
+            conversation,
+            operator,
+            text,
+            TurnStatus::NeedsClarification,
+            &result_json,
+        )?;
+        Ok(UtteranceReply {
+            turn_id,
+            status: TurnStatus::NeedsClarification,
+            constraints: Vec::new(),
+            changes: Vec::new(),
+            unmet: Vec::new(),
+            question: Some(rest.text.clone()),
+            candidates: rest
+                .candidates
+                .iter()
+                .map(|candidate| candidate_out(candidate, taxonomy))
+                .collect(),
+            pending: None,
+            waiting: waiting_out(&state, taxonomy),
+            conflicts: Vec::new(),
+            reason: Some("took back the last answer's change".to_string()),
+            scene_version,
         })
     }
 
@@ -299,12 +620,37 @@ impl Coordinator {
                 "this conversation has no change waiting for confirmation",
             )
         })?;
-        if pending.base != scene.head {
-            return Err(ApiError::conflict(
-                "stale_change",
-                "the scene changed since this change was proposed; reject it and say it again",
-            ));
-        }
+        // The scene moved on since the change was proposed: work its note out again on the scene as it is
+        // now, confirmed, so the whole change applies on top of what happened since.
+        let (state, changes) = if pending.base == scene.head {
+            (pending.state.clone(), pending.changes.clone())
+        } else {
+            let head = scene.head;
+            let read_lineage = || self.lineage(head);
+            let outcome = self
+                .corrector
+                .apply(&CorrectionRequest {
+                    scene: SceneHandle(conversation_state.scene.0),
+                    input: &scene.input,
+                    state: &scene.state,
+                    lineage: Lineage(&read_lineage),
+                    history: &conversation_state.history,
+                    utterance: &pending.utterance,
+                    focus: pending.focus,
+                    note: Some(&pending.constraints),
+                    confirmed: true,
+                })
+                .map_err(ApiError::internal)?;
+            match outcome.verdict {
+                Verdict::Applied(state) => (state, outcome.changes),
+                Verdict::NothingToChange => (scene.state.clone(), Vec::new()),
+                _ => return Err(ApiError::conflict(
+                    "stale_change",
+                    "the scene changed since this change was proposed and it no longer applies \
+                         as it was; reject it and say it again",
+                )),
+            }
+        };
         let constraints_json =
             serde_json::to_string(&pending.constraints).map_err(ApiError::internal)?;
         let (turn_key, new_version) = self
@@ -322,7 +668,7 @@ impl Coordinator {
                     operator,
                     effect: TurnEffect::NewVersion {
                         base: scene.head,
-                        state: encode_state(&pending.state)?,
+                        state: encode_state(&state)?,
                         utterance: pending.utterance.clone(),
                         constraints_json: constraints_json.clone(),
                     },
@@ -331,16 +677,22 @@ impl Coordinator {
             )
             .map_err(log_error)?;
         self.metrics.record_turn(new_version.is_some());
-        if let (Some(version), Some(pending)) = (new_version, conversation_state.pending.take()) {
+        conversation_state.pending = None;
+        if let Some(version) = new_version {
             scene.head = version;
-            scene.state = pending.state;
+            scene.state = state;
             conversation_state.applied.push(version);
             conversation_state.redo.clear();
         }
+        let taxonomy = self.corrector.taxonomy();
         Ok(TurnReply {
             turn_id: turn_key.0,
             status: TurnStatus::Confirmed,
             scene_version: scene.head.0,
+            changes: changes
+                .iter()
+                .map(|change| change_out(change, taxonomy))
+                .collect(),
         })
     }
 
@@ -384,6 +736,7 @@ impl Coordinator {
             turn_id: turn_key.0,
             status: TurnStatus::Rejected,
             scene_version: scene.head.0,
+            changes: Vec::new(),
         })
     }
 
@@ -445,14 +798,21 @@ impl Coordinator {
             )
             .map_err(log_error)?;
         self.metrics.record_turn(false);
+        let changes = label_changes(
+            &scene.state.labels,
+            &parent_state.labels,
+            self.corrector.taxonomy(),
+        );
         scene.head = parent;
         scene.state = parent_state;
         conversation_state.applied = applied_after;
         conversation_state.redo = redo_after;
+        conversation_state.answered = None;
         Ok(TurnReply {
             turn_id: turn_key.0,
             status: TurnStatus::Undone,
             scene_version: parent.0,
+            changes,
         })
     }
 
@@ -511,6 +871,11 @@ impl Coordinator {
             )
             .map_err(log_error)?;
         self.metrics.record_turn(false);
+        let changes = label_changes(
+            &scene.state.labels,
+            &state.labels,
+            self.corrector.taxonomy(),
+        );
         scene.head = undone;
         scene.state = state;
         conversation_state.applied = applied_after;
@@ -519,6 +884,7 @@ impl Coordinator {
             turn_id: turn_key.0,
             status: TurnStatus::Redone,
             scene_version: undone.0,
+            changes,
         })
     }
 
@@ -547,15 +913,17 @@ impl Coordinator {
                 .map(|turn| {
                     let constraints: Vec<Constraint> =
                         serde_json::from_str(&turn.constraints_json).unwrap_or_default();
+                    let focus: Option<Focus> = turn
+                        .focus_json
+                        .as_deref()
+                        .and_then(|text| serde_json::from_str(text).ok());
                     TurnOut {
                         turn_id: turn.key.0,
                         kind: turn.kind,
                         text: turn.text,
                         status: status_from_text(&turn.status),
-                        constraints: constraints
-                            .iter()
-                            .map(|constraint| constraint.gloss.clone())
-                            .collect(),
+                        constraints: constraints.iter().map(constraint_out).collect(),
+                        focus: focus.map(focus_to_wire),
                         scene_version: turn.scene_version.map(|version| version.0),
                         operator: turn.operator,
                         at: turn.created_at,

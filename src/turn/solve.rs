@@ -1,4 +1,4 @@
-//! `correct`: one operator turn, end to end — ground the constraints, build the energy, solve, describe.
+//! `solve`: the solve of one operator turn — ground the constraints, build the energy, solve, describe.
 //!
 //! Owns: `CorrectionRequest`, `Correction`, the safety hold (a second solve that keeps safety-critical labels
 //! and objects unless the operator confirmed) and the baseline solve when there is no previous turn.
@@ -6,14 +6,6 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::capped::{surplus_factors, surplus_question, Cap};
-use super::changes::{
-    list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
-};
-use super::instances::InstanceCuts;
-use super::locality::{stray_factors, Concern};
-use super::supersede::retire_superseded;
-use super::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
 use crate::energy::{
     count_violation, EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
@@ -29,6 +21,14 @@ use crate::hypotheses::{
 use crate::ids::ClassId;
 use crate::language::constraint::{Constraint, ConstraintKind, Count, Relation};
 use crate::scene::Scene;
+use crate::scenegraph::capped::{surplus_factors, surplus_question, Cap};
+use crate::scenegraph::changes::{
+    list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
+};
+use crate::scenegraph::instances::InstanceCuts;
+use crate::scenegraph::locality::{stray_factors, Concern};
+use crate::scenegraph::supersede::retire_superseded;
+use crate::scenegraph::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::solver::joint::{solve_joint, JointError, JointOptions, JointSolution, WarmStart};
 use crate::taxonomy::{ClassGroup, Taxonomy};
 use crate::unaries::Unaries;
@@ -60,7 +60,7 @@ pub struct CorrectionRequest<'a> {
     pub weights: &'a EnergyWeights,
     pub proposals: &'a ProposalOptions,
     pub options: &'a JointOptions,
-    /// Where a patch of a class holds several objects (`super::instances`).
+    /// Where a patch of a class holds several objects (`crate::scenegraph::instances`).
     pub instance_cuts: &'a InstanceCuts,
 }
 
@@ -253,7 +253,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
     }
     if !caps.is_empty() {
         // A count below what the labels show: parts are joined when the graph is formed; what is still too
-        // many loses its label and the scene is solved again around it (`super::capped`).
+        // many loses its label and the scene is solved again around it (`crate::scenegraph::capped`).
         let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
         let surplus = surplus_factors(scene, &graph, &caps);
         if !surplus.is_empty() {
@@ -265,7 +265,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
             solution = solve_joint(&built.energy, Some(&start), request.options)?;
         }
     }
-    // Put back what moved between labels no note concerns (`super::locality`), and solve once more.
+    // Put back what moved between labels no note concerns (`crate::scenegraph::locality`), and solve once more.
     if let Some(concern) = Concern::of_turn(
         request.constraints,
         &in_force,
