@@ -423,6 +423,29 @@ impl Resolver<'_, '_> {
         let pixels = u64::from(view.scene.width()) * u64::from(view.scene.height());
         let reached = pointer::pointed_region(view.scene, segment, pixels / POINTER_MAX_SHARE);
         let reached_area = area(&reached);
+        // The object the operator saw under the pointer, when the caller said which objects were shown: all
+        // of it, as drawn, under the same limits as a hypothesis.
+        if let Some(object) = self
+            .context
+            .objects
+            .iter()
+            .find(|object| object.members.binary_search(&segment).is_ok())
+        {
+            let structure = object
+                .class
+                .and_then(|class| view.taxonomy.class(class))
+                .is_some_and(|info| info.group == ClassGroup::Structure);
+            if !structure && area(&object.members) <= POINTER_OBJECT_SLACK * reached_area.max(1) {
+                let mut target = view
+                    .hypotheses
+                    .iter()
+                    .position(|h| h.id == object.hypothesis)
+                    .map(|index| self.target_of(vec![index]))
+                    .unwrap_or_default();
+                target.segments = object.members.clone();
+                return target;
+            }
+        }
         if let Some(h) = pick(true).or_else(|| pick(false)) {
             let hypothesis = &view.hypotheses[h];
             let structure = view

@@ -17,6 +17,7 @@ use std::sync::{Arc, Mutex};
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 
+use crate::ids::ClassId;
 use crate::language::constraint::{Constraint, Focus};
 use crate::pipeline::{correct_turn, CorrectionSettings, TurnInputs};
 use crate::scenegraph::changes::{Change as GraphChange, ChangeKind};
@@ -466,12 +467,35 @@ fn service_changes(
             .map(|stats| stats.area as u64)
             .unwrap_or(0)
     };
-    let object_pixels = |hypothesis| {
+    // An object added or removed counts only the pixels whose label moved to or from its class, so the
+    // figures of one change list agree with each other.
+    let moved: HashMap<u32, (ClassId, ClassId)> = changes
+        .iter()
+        .filter_map(|change| match change.kind {
+            ChangeKind::SegmentRelabelled { segment, from, to } => Some((segment.0, (from, to))),
+            _ => None,
+        })
+        .collect();
+    let object_pixels = |hypothesis, class: ClassId, arriving: bool| -> u64 {
         correction
             .hypotheses
             .iter()
             .find(|h| h.id == hypothesis)
-            .map(|h| h.members.iter().map(|m| segment_pixels(m.0 as usize)).sum())
+            .map(|h| {
+                h.members
+                    .iter()
+                    .filter(|m| {
+                        moved.get(&m.0).is_some_and(|&(from, to)| {
+                            if arriving {
+                                to == class
+                            } else {
+                                from == class
+                            }
+                        })
+                    })
+                    .map(|m| segment_pixels(m.0 as usize))
+                    .sum()
+            })
             .unwrap_or(0)
     };
     let mut out: Vec<Change> = Vec::new();
@@ -502,14 +526,14 @@ fn service_changes(
                 object: Some(object_id(hypothesis)),
                 from: None,
                 to: Some(class),
-                pixels: object_pixels(hypothesis),
+                pixels: object_pixels(hypothesis, class, true),
                 description: format!("object added: {}{because}", taxonomy.class_name(class)),
             }),
             ChangeKind::ObjectRemoved { hypothesis, class } => out.push(Change {
                 object: Some(object_id(hypothesis)),
                 from: Some(class),
                 to: None,
-                pixels: object_pixels(hypothesis),
+                pixels: object_pixels(hypothesis, class, false),
                 description: format!("object removed: {}{because}", taxonomy.class_name(class)),
             }),
             ChangeKind::RoomChanged { from, to } => out.push(Change {
