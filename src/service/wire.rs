@@ -232,6 +232,8 @@ pub struct TurnReply {
     pub scene_version: i64,
     /// What moved: for undo and redo the labels that changed back, for a confirmation the applied change.
     pub changes: Vec<ChangeOut>,
+    /// The conversation's change still waiting for confirmation after this turn, if any.
+    pub waiting: Option<PendingOut>,
 }
 
 /// One turn of a conversation.
