@@ -2,7 +2,11 @@
 //! L2 regularisation or decoupled weight decay (AdamW), mini-batches, class-balanced weights, early stopping
 //! on a validation split, then temperature scaling on the same held-out split.
 //!
-//! Owns: `TrainingConfig`, `LabelledFeatures`, `train`, `split_for_validation`, `TrainError`.
+//! `train_from` fine-tunes: it starts from a given network (its normalisation kept, so its weights keep
+//! their meaning) and takes a weight per row, so some rows (an operator's corrections) count more.
+//!
+//! Owns: `TrainingConfig`, `LabelledFeatures`, `train`, `train_from`, `split_by_scene` (validation by whole
+//! scenes), `split_for_validation` (by row, for a feature matrix that carries no scenes), `TrainError`.
 //! Must not: read scenes or files, or write ONNX; callers turn the returned `Mlp` into a model file.
 
 use indicatif::{ProgressBar, ProgressStyle};
@@ -165,6 +169,53 @@ pub fn split_for_validation(
     training_rows.sort_unstable();
     validation_rows.sort_unstable();
     (data.select(&training_rows), data.select(&validation_rows))
+}
+
+/// Splits whole scenes: `fraction` of the scenes (rounded, at least one, and at least one left to train
+/// on) go to validation, chosen at random (seeded), so no validation row comes from a training image.
+/// Returns the training rows, the validation rows and the validation scenes' indices.
+pub fn split_by_scene(
+    scenes: &[LabelledFeatures],
+    fraction: f64,
+    seed: u64,
+) -> Result<(LabelledFeatures, LabelledFeatures, Vec<usize>), TrainError> {
+    if scenes.len() < 2 {
+        return Err(TrainError::Config(format!(
+            "validation is split by scene, so at least two scenes are needed; got {}",
+            scenes.len()
+        )));
+    }
+    let width = scenes[0].features.ncols();
+    if let Some(other) = scenes.iter().find(|scene| scene.features.ncols() != width) {
+        return Err(TrainError::WidthMismatch {
+            training: width,
+            validation: other.features.ncols(),
+        });
+    }
+    let mut order: Vec<usize> = (0..scenes.len()).collect();
+    SplitMix64::new(seed ^ 0x5CE7_E5A1).shuffle(&mut order);
+    let held = ((scenes.len() as f64 * fraction).round() as usize).clamp(1, scenes.len() - 1);
+    let mut validation_scenes = order[..held].to_vec();
+    validation_scenes.sort_unstable();
+    let gather = |chosen: &dyn Fn(usize) -> bool| {
+        let mut labels = Vec::new();
+        let mut values = Vec::new();
+        for (index, scene) in scenes.iter().enumerate() {
+            if chosen(index) {
+                labels.extend_from_slice(&scene.labels);
+                values.extend(scene.features.iter().copied());
+            }
+        }
+        let rows = labels.len();
+        LabelledFeatures {
+            features: Array2::from_shape_vec((rows, width), values)
+                .unwrap_or_else(|_| Array2::zeros((0, width))),
+            labels,
+        }
+    };
+    let validation = gather(&|index| validation_scenes.binary_search(&index).is_ok());
+    let training = gather(&|index| validation_scenes.binary_search(&index).is_err());
+    Ok((training, validation, validation_scenes))
 }
 
 fn check_set(
@@ -396,7 +447,49 @@ pub fn train(
     class_count: usize,
     config: &TrainingConfig,
 ) -> Result<TrainingOutcome, TrainError> {
+    train_from(training, None, validation, class_count, config, None)
+}
+
+/// Like `train`, with a weight per training row (multiplied into the class-balanced weight; `None`: all 1)
+/// and, when `start` is given, starting from that network: its feature normalisation and layer shapes are
+/// kept (`config.mode` is then not used) and only the calibration temperature is fitted afresh.
+pub fn train_from(
+    training: &LabelledFeatures,
+    row_weights: Option<&[f32]>,
+    validation: &LabelledFeatures,
+    class_count: usize,
+    config: &TrainingConfig,
+    start: Option<&Mlp>,
+) -> Result<TrainingOutcome, TrainError> {
     check_set("training", training, class_count)?;
+    if let Some(weights) = row_weights {
+        if weights.len() != training.len() {
+            return Err(TrainError::Config(format!(
+                "{} row weights for {} training rows",
+                weights.len(),
+                training.len()
+            )));
+        }
+        if weights.iter().any(|w| !(w.is_finite() && *w >= 0.0)) {
+            return Err(TrainError::Config(
+                "row weights must be finite numbers >= 0".to_string(),
+            ));
+        }
+    }
+    if let Some(start) = start {
+        if start.feature_count() != training.features.ncols()
+            || start.class_count() != class_count
+            || !start.shapes_are_consistent()
+        {
+            return Err(TrainError::Config(format!(
+                "the starting network maps {} features to {} classes; the data has {} features and {} classes",
+                start.feature_count(),
+                start.class_count(),
+                training.features.ncols(),
+                class_count
+            )));
+        }
+    }
     check_set("validation", validation, class_count)?;
     if training.features.ncols() != validation.features.ncols() {
         return Err(TrainError::WidthMismatch {
@@ -432,7 +525,10 @@ pub fn train(
         ));
     }
     let mut generator = SplitMix64::new(config.seed);
-    let (feature_means, feature_stds) = normalisation(training.features.view());
+    let (feature_means, feature_stds) = match start {
+        Some(start) => (start.feature_means.clone(), start.feature_stds.clone()),
+        None => normalisation(training.features.view()),
+    };
     let mut scaffold = Mlp {
         feature_means,
         feature_stds,
@@ -444,7 +540,10 @@ pub fn train(
     let mut widths = vec![training.features.ncols()];
     widths.extend(&hidden);
     widths.push(class_count);
-    let mut layers = initial_layers(&widths, hidden.is_empty(), &mut generator);
+    let mut layers = match start {
+        Some(start) => start.layers.clone(),
+        None => initial_layers(&widths, hidden.is_empty(), &mut generator),
+    };
     let mut class_rows = vec![0usize; class_count];
     for &label in &training.labels {
         class_rows[label] += 1;
@@ -453,12 +552,15 @@ pub fn train(
     let row_weights: Vec<f32> = training
         .labels
         .iter()
-        .map(|&label| {
-            if config.class_balanced {
-                training.len() as f32 / (present as f32 * class_rows[label] as f32)
-            } else {
-                1.0
-            }
+        .enumerate()
+        .map(|(row, &label)| {
+            let given = row_weights.map_or(1.0, |weights| weights[row]);
+            given
+                * if config.class_balanced {
+                    training.len() as f32 / (present as f32 * class_rows[label] as f32)
+                } else {
+                    1.0
+                }
         })
         .collect();
     let mut adam = Adam::new(&layers);
@@ -595,6 +697,99 @@ mod tests {
             assert_eq!(first.mlp, second.mlp, "same seed, same model");
             assert!(first.validation_accuracy > 0.9, "{first:?}");
         }
+    }
+
+    #[test]
+    fn fine_tuning_starts_from_the_given_network_and_heeds_row_weights() {
+        let data = blobs(600, 4);
+        let (training, validation) = split_for_validation(&data, 0.25, 3);
+        let config = TrainingConfig {
+            mode: TrainingMode::Mlp { hidden: vec![8] },
+            max_epochs: 40,
+            ..TrainingConfig::default()
+        };
+        let base = train(&training, &validation, 3, &config).unwrap().mlp;
+        // One epoch at a tiny rate barely moves the network, and the normalisation is the base's.
+        let gentle = TrainingConfig {
+            max_epochs: 1,
+            learning_rate: 1e-6,
+            ..config.clone()
+        };
+        let tuned = train_from(&training, None, &validation, 3, &gentle, Some(&base))
+            .unwrap()
+            .mlp;
+        assert_eq!(tuned.feature_means, base.feature_means);
+        let moved = tuned.layers[0]
+            .weights
+            .iter()
+            .zip(base.layers[0].weights.iter())
+            .map(|(a, b)| (a - b).abs())
+            .fold(0.0f32, f32::max);
+        assert!(moved < 1e-3, "moved {moved}");
+        // Relabel the rows of class 0 near the origin as class 1 and weight them heavily: the tuned
+        // network follows them, where the base did not.
+        let mut relabelled = training.clone();
+        let mut weights = vec![1.0f32; relabelled.len()];
+        for row in 0..relabelled.len() {
+            if relabelled.labels[row] == 0 {
+                relabelled.labels[row] = 1;
+                weights[row] = 20.0;
+            }
+        }
+        let eager = TrainingConfig {
+            max_epochs: 30,
+            class_balanced: false,
+            ..config.clone()
+        };
+        let tuned = train_from(
+            &relabelled,
+            Some(&weights),
+            &relabelled,
+            3,
+            &eager,
+            Some(&base),
+        )
+        .unwrap()
+        .mlp;
+        let origin = ndarray::array![[0.0f32, 0.0]];
+        let best = |mlp: &Mlp| {
+            let row = mlp.log_probabilities(origin.view());
+            (0..3)
+                .max_by(|&a, &b| row[[0, a]].total_cmp(&row[[0, b]]))
+                .unwrap()
+        };
+        assert_eq!(best(&base), 0);
+        assert_eq!(best(&tuned), 1);
+        assert!(matches!(
+            train_from(
+                &training,
+                Some(&[1.0f32][..]),
+                &validation,
+                3,
+                &config,
+                Some(&base)
+            ),
+            Err(TrainError::Config(_))
+        ));
+    }
+
+    #[test]
+    fn a_scene_split_keeps_every_scene_whole() {
+        let scenes: Vec<LabelledFeatures> =
+            (0..5).map(|seed| blobs(30 + seed as usize, seed)).collect();
+        let (training, validation, held) = split_by_scene(&scenes, 0.2, 9).unwrap();
+        assert_eq!(held.len(), 1);
+        let held_rows = scenes[held[0]].len();
+        assert_eq!(validation.len(), held_rows);
+        assert_eq!(validation.features, scenes[held[0]].features);
+        assert_eq!(
+            training.len() + held_rows,
+            scenes.iter().map(|s| s.len()).sum::<usize>()
+        );
+        assert!(matches!(
+            split_by_scene(&scenes[..1], 0.2, 9),
+            Err(TrainError::Config(_))
+        ));
     }
 
     #[test]
