@@ -56,7 +56,7 @@ pub fn run(args: &TrainArgs, corrections: &Path) -> anyhow::Result<()> {
             weight_decay: args.weight_decay,
             regularisation: args.regularisation(),
             patience: args.patience.unwrap_or(8),
-            class_balanced: args.class_balanced,
+            class_balanced: args.class_balanced.unwrap_or(false),
             seed: args.seed,
             show_progress: true,
             ..TrainingConfig::default()

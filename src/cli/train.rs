@@ -128,9 +128,11 @@ pub struct TrainArgs {
     /// Fraction of scenes (of rows, for --feature-matrix) held out for early stopping and calibration.
     #[arg(long, default_value_t = 0.2)]
     pub validation_fraction: f64,
-    /// Weight every class equally instead of every row.
-    #[arg(long, default_value_t = true, action = clap::ArgAction::Set)]
-    pub class_balanced: bool,
+    /// Weight every class equally instead of every row (default true; false with --corrections, where
+    /// the replay set is small and balanced weights would lift its rarest classes far above what the
+    /// served model was trained with).
+    #[arg(long, action = clap::ArgAction::Set)]
+    pub class_balanced: Option<bool>,
     #[arg(long, default_value_t = 7)]
     pub seed: u64,
 }
@@ -241,7 +243,7 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         weight_decay: args.weight_decay,
         regularisation: args.regularisation(),
         patience: args.patience.unwrap_or(20),
-        class_balanced: args.class_balanced,
+        class_balanced: args.class_balanced.unwrap_or(true),
         seed: args.seed,
         show_progress: true,
     };

@@ -224,7 +224,11 @@ impl Comparison {
                 base_line + 18.0 + 15.0 * words.len() as f64,
                 if gain < 0.0 { "#b3261e" } else { "#2b7a2b" },
                 gain,
-                if row.higher_is_better { "" } else { " (lower)" }
+                if row.higher_is_better {
+                    ""
+                } else {
+                    " (lower is better)"
+                }
             );
         }
         let _ = writeln!(

@@ -117,6 +117,7 @@ impl Default for FineTuneSettings {
                 max_epochs: 30,
                 learning_rate: 1e-3,
                 patience: 8,
+                class_balanced: false,
                 ..TrainingConfig::default()
             },
             show_progress: false,

@@ -109,9 +109,10 @@ impl ModelCard {
                 }
                 text.push('\n');
             }
-            None => {
+            None if self.appendix.is_none() => {
                 let _ = writeln!(text, "No held-out scene set was evaluated for this run.\n");
             }
+            None => {}
         }
         let c = &self.calibration;
         let _ = writeln!(
