@@ -730,10 +730,10 @@ mod tests {
         // network follows them, where the base did not.
         let mut relabelled = training.clone();
         let mut weights = vec![1.0f32; relabelled.len()];
-        for row in 0..relabelled.len() {
-            if relabelled.labels[row] == 0 {
-                relabelled.labels[row] = 1;
-                weights[row] = 20.0;
+        for (label, weight) in relabelled.labels.iter_mut().zip(&mut weights) {
+            if *label == 0 {
+                *label = 1;
+                *weight = 20.0;
             }
         }
         let eager = TrainingConfig {
