@@ -67,3 +67,45 @@ pub fn spawn(corrector: Arc<JointCorrector>, path: PathBuf) {
         eprintln!("sayso: cannot watch the model file for replacements: {error}");
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use sayso::unaries::classifier::model_id;
+    use sayso::unaries::onnx_reader::read_mlp;
+    use sayso::unaries::onnx_writer::encode_model;
+
+    #[test]
+    fn a_replaced_model_file_is_served_without_a_restart() {
+        let shipped = std::fs::read(concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/models/segment_classifier.onnx"
+        ))
+        .unwrap();
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("served.onnx");
+        std::fs::write(&path, &shipped).unwrap();
+        let corrector = Arc::new(JointCorrector::load(&path).unwrap());
+        spawn(corrector.clone(), path.clone());
+        // A file that is not a model is reported and changes nothing.
+        std::fs::write(&path, b"not a model").unwrap();
+        std::thread::sleep(POLL_INTERVAL * 2);
+        assert_eq!(corrector.model_id(), model_id(&shipped));
+        // Another model (the shipped one at another temperature) is taken up within a few polls.
+        let mut mlp = read_mlp(&shipped, "shipped").unwrap();
+        mlp.temperature *= 2.0;
+        let taxonomy = sayso::taxonomy::Taxonomy::embedded();
+        let contract =
+            Classifier::from_bytes(&shipped, "shipped", &taxonomy, current_feature_layout())
+                .unwrap()
+                .contract()
+                .clone();
+        let other = encode_model(&mlp, &contract).unwrap();
+        std::fs::write(&path, &other).unwrap();
+        let deadline = std::time::Instant::now() + POLL_INTERVAL * 5;
+        while corrector.model_id() != model_id(&other) && std::time::Instant::now() < deadline {
+            std::thread::sleep(Duration::from_millis(100));
+        }
+        assert_eq!(corrector.model_id(), model_id(&other));
+    }
+}
