@@ -23,6 +23,7 @@ pub mod onnx_reader;
 pub mod onnx_writer;
 pub mod pooling;
 pub mod rng;
+pub mod split;
 pub mod trainer;
 
 use ndarray::Array2;
