@@ -168,6 +168,14 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
             args.feature_layout_version,
         )
     } else if let Some(directory) = &args.data {
+        if directory.join("index.jsonl").is_file() {
+            eprintln!(
+                "sayso: {} holds exported corrections; training on them alone forgets the rest of the flat. \
+                 `--corrections {}` fine-tunes the served model on them with replay renders and a gate.",
+                directory.display(),
+                directory.display()
+            );
+        }
         let entries = list_dataset(directory)?;
         let rows = dataset_scene_rows(&entries, &taxonomy, &SceneParams::default(), true)?;
         (

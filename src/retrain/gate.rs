@@ -137,7 +137,9 @@ impl Comparison {
         let verdict = self.verdict();
         let panel = 150.0;
         let left = 30.0;
-        let top = 90.0;
+        // One line per reason a candidate was refused, between the verdict and the legend.
+        let reason_lines = 16.0 * verdict.reasons.len() as f64;
+        let top = 90.0 + reason_lines;
         let plot_height = 240.0;
         let width = left * 2.0 + panel * rows.len() as f64;
         let height = top + plot_height + 90.0;
@@ -165,13 +167,23 @@ impl Comparison {
             r#"<text x="{left}" y="46" fill="{verdict_colour}" font-weight="bold">{}</text>"#,
             escape(&verdict_text)
         );
+        for (index, reason) in verdict.reasons.iter().enumerate() {
+            let _ = writeln!(
+                out,
+                r#"<text x="{left}" y="{:.0}" fill="{verdict_colour}">- {}</text>"#,
+                62.0 + 16.0 * index as f64,
+                escape(reason)
+            );
+        }
         let legend = [("served model", "#8a8f98"), ("candidate", "#1f5fa8")];
         for (index, (name, colour)) in legend.iter().enumerate() {
             let x = left + 140.0 * index as f64;
             let _ = writeln!(
                 out,
-                r#"<rect x="{x}" y="58" width="12" height="12" fill="{colour}"/><text x="{}" y="69">{name}</text>"#,
-                x + 16.0
+                r#"<rect x="{x}" y="{:.0}" width="12" height="12" fill="{colour}"/><text x="{}" y="{:.0}">{name}</text>"#,
+                58.0 + reason_lines,
+                x + 16.0,
+                69.0 + reason_lines
             );
         }
         let base_line = top + plot_height;
@@ -309,6 +321,7 @@ mod tests {
             assert!(svg.contains(row.name.split(", ").next().unwrap()));
         }
         assert!(svg.contains("candidate refused"));
+        assert!(svg.contains("- held-out pixel accuracy is 1.00 points worse"));
         assert!(svg.contains("-1.00 points"));
     }
 }
