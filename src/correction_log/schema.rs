@@ -9,7 +9,7 @@ use rusqlite::Connection;
 use super::LogError;
 
 /// The schema version this build writes; every stored row carries the version it was written under.
-pub const LOG_SCHEMA_VERSION: i64 = 1;
+pub const LOG_SCHEMA_VERSION: i64 = 2;
 
 /// Migration `n` (1-based) moves the database from version `n - 1` to version `n`.
 const MIGRATIONS: &[&str] = &[
@@ -93,6 +93,12 @@ const MIGRATIONS: &[&str] = &[
         row_schema INTEGER NOT NULL
     );
     "#,
+    // Version 2: which classifier model produced each version (and each pending change); NULL where it was
+    // not recorded (every row written under version 1).
+    r#"
+    ALTER TABLE scene_versions ADD COLUMN model TEXT;
+    ALTER TABLE pending_changes ADD COLUMN model TEXT;
+    "#,
 ];
 
 /// Opens pragmas for durability and brings the schema up to `LOG_SCHEMA_VERSION`.
@@ -151,6 +157,65 @@ mod tests {
             .query_row("SELECT COUNT(*) FROM schema_version", [], |row| row.get(0))
             .unwrap();
         assert_eq!(rows, MIGRATIONS.len() as i64);
+    }
+
+    #[test]
+    fn a_version_1_database_migrates_and_keeps_its_rows() {
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("log.sqlite");
+        {
+            // A log as the first release wrote it: migration 1 only, one scene with one version.
+            let connection = Connection::open(&path).unwrap();
+            connection.execute_batch(MIGRATIONS[0]).unwrap();
+            connection
+                .execute_batch(
+                    "CREATE TABLE schema_version (version INTEGER NOT NULL, applied_at TEXT NOT NULL);
+                     INSERT INTO schema_version VALUES (1, 'then');
+                     INSERT INTO blobs VALUES ('aa', x'0102'), ('bb', x'0304');
+                     INSERT INTO scenes VALUES (1, 'juniper-lane-hall', 'aa', '{}', 1, 'then', 'mira', 1);
+                     INSERT INTO scene_versions VALUES (1, 1, NULL, 'bb', '{\"room\":1}', x'09', NULL, 'then', 1);",
+                )
+                .unwrap();
+        }
+        let mut log = crate::correction_log::CorrectionLog::open(&path).unwrap();
+        assert_eq!(log.schema_version().unwrap(), 2);
+        let (old, parent) = log.version(crate::correction_log::VersionKey(1)).unwrap();
+        assert_eq!(parent, None);
+        assert_eq!(old.labels_png, vec![3, 4]);
+        assert_eq!(old.summary_json, "{\"room\":1}");
+        assert_eq!(old.model, None, "not recorded before schema 2");
+        // A version made after the migration records its model.
+        let scene = crate::correction_log::SceneKey(1);
+        let conversation = log.open_conversation(scene, "mira").unwrap().key;
+        let state = crate::correction_log::StateRecord {
+            labels_png: vec![5],
+            summary_json: "{}".into(),
+            engine_state: vec![],
+            model: Some("0123456789ab".into()),
+        };
+        let (_, version) = log
+            .commit_turn(
+                &crate::correction_log::NewTurn {
+                    conversation,
+                    kind: "utterance",
+                    text: "that's a rug",
+                    focus_json: None,
+                    status: "applied",
+                    constraints_json: "[]",
+                    result_json: "{}",
+                    operator: "mira",
+                    effect: crate::correction_log::TurnEffect::NewVersion {
+                        base: crate::correction_log::VersionKey(1),
+                        state: state.clone(),
+                        utterance: "that's a rug".into(),
+                        constraints_json: "[]".into(),
+                    },
+                },
+                None,
+            )
+            .unwrap();
+        assert_eq!(log.version(version.unwrap()).unwrap().0, state);
+        assert_eq!(log.integrity_check().unwrap(), "ok");
     }
 
     #[test]

@@ -12,12 +12,15 @@ use sha2::{Digest, Sha256};
 use super::schema::{self, LOG_SCHEMA_VERSION};
 use super::{now_text, ConversationKey, LogError, SceneKey, TurnKey, VersionKey};
 
-/// A scene labelling as stored: the label map as index PNG bytes, the summary as JSON, engine state as bytes.
+/// A scene labelling as stored: the label map as index PNG bytes, the summary as JSON, engine state as
+/// bytes, and the id of the classifier model that produced it (`None`: not recorded, as in rows written
+/// before schema 2).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct StateRecord {
     pub labels_png: Vec<u8>,
     pub summary_json: String,
     pub engine_state: Vec<u8>,
+    pub model: Option<String>,
 }
 
 /// A scene to register.
@@ -197,9 +200,9 @@ fn write_turn(
             }
             let labels_hash = put_blob(transaction, &state.labels_png)?;
             transaction.execute(
-                "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
-                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
-                params![scene, base.0, labels_hash, state.summary_json, state.engine_state, turn_key.0, now, LOG_SCHEMA_VERSION],
+                "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema, model)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9)",
+                params![scene, base.0, labels_hash, state.summary_json, state.engine_state, turn_key.0, now, LOG_SCHEMA_VERSION, state.model],
             )?;
             let version = transaction.last_insert_rowid();
             transaction.execute(
@@ -230,9 +233,9 @@ fn write_turn(
         } => {
             let labels_hash = put_blob(transaction, &state.labels_png)?;
             transaction.execute(
-                "INSERT OR REPLACE INTO pending_changes (conversation_id, turn_id, base_version, labels_hash, summary_json, engine_state, reason, changes_json, created_at, row_schema)
-                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)",
-                params![turn.conversation.0, turn_key.0, base.0, labels_hash, state.summary_json, state.engine_state, reason, changes_json, now, LOG_SCHEMA_VERSION],
+                "INSERT OR REPLACE INTO pending_changes (conversation_id, turn_id, base_version, labels_hash, summary_json, engine_state, reason, changes_json, created_at, row_schema, model)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)",
+                params![turn.conversation.0, turn_key.0, base.0, labels_hash, state.summary_json, state.engine_state, reason, changes_json, now, LOG_SCHEMA_VERSION, state.model],
             )?;
         }
         TurnEffect::ClearPending => {
@@ -313,6 +316,11 @@ fn stack_text(stack: &[VersionKey]) -> String {
 }
 
 impl CorrectionLog {
+    /// The connection, for the queries of sibling modules (export filters).
+    pub(super) fn connection(&self) -> &Connection {
+        &self.connection
+    }
+
     /// Opens (creating if needed) the log at `path`, migrating its schema.
     pub fn open(path: &Path) -> Result<CorrectionLog, LogError> {
         if let Some(parent) = path.parent() {
@@ -376,9 +384,9 @@ impl CorrectionLog {
         )?;
         let scene_key = SceneKey(transaction.last_insert_rowid());
         transaction.execute(
-            "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
-             VALUES (?1, NULL, ?2, ?3, ?4, NULL, ?5, ?6)",
-            params![scene_key.0, labels_hash, scene.state.summary_json, scene.state.engine_state, now, LOG_SCHEMA_VERSION],
+            "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema, model)
+             VALUES (?1, NULL, ?2, ?3, ?4, NULL, ?5, ?6, ?7)",
+            params![scene_key.0, labels_hash, scene.state.summary_json, scene.state.engine_state, now, LOG_SCHEMA_VERSION, scene.state.model],
         )?;
         let version = VersionKey(transaction.last_insert_rowid());
         transaction.execute(
@@ -505,7 +513,7 @@ impl CorrectionLog {
     ) -> Result<(StateRecord, Option<VersionKey>), LogError> {
         self.connection
             .query_row(
-                "SELECT b.bytes, v.summary_json, v.engine_state, v.parent_id
+                "SELECT b.bytes, v.summary_json, v.engine_state, v.parent_id, v.model
                  FROM scene_versions v JOIN blobs b ON b.hash = v.labels_hash WHERE v.id = ?1",
                 [version.0],
                 |row| {
@@ -514,6 +522,7 @@ impl CorrectionLog {
                             labels_png: row.get(0)?,
                             summary_json: row.get(1)?,
                             engine_state: row.get(2)?,
+                            model: row.get(4)?,
                         },
                         row.get::<_, Option<i64>>(3)?.map(VersionKey),
                     ))
@@ -597,7 +606,7 @@ impl CorrectionLog {
         Ok(self
             .connection
             .query_row(
-                "SELECT p.turn_id, p.base_version, b.bytes, p.summary_json, p.engine_state, p.reason, p.changes_json
+                "SELECT p.turn_id, p.base_version, b.bytes, p.summary_json, p.engine_state, p.reason, p.changes_json, p.model
                  FROM pending_changes p JOIN blobs b ON b.hash = p.labels_hash WHERE p.conversation_id = ?1",
                 [conversation.0],
                 |row| {
@@ -609,6 +618,7 @@ impl CorrectionLog {
                             labels_png: row.get(2)?,
                             summary_json: row.get(3)?,
                             engine_state: row.get(4)?,
+                            model: row.get(7)?,
                         },
                         reason: row.get(5)?,
                         changes_json: row.get(6)?,
@@ -662,6 +672,7 @@ mod tests {
             labels_png: vec![byte; 8],
             summary_json: format!("{{\"v\":{byte}}}"),
             engine_state: vec![byte],
+            model: Some(format!("model-{byte}")),
         }
     }
 

@@ -1,7 +1,8 @@
 //! The built-in segment classifier at run time: loads a sayso ONNX file with tract (CPU), checks its
 //! contract, and turns a feature matrix into calibrated per-segment log-probabilities.
 //!
-//! Owns: `Classifier`, `ClassifierError`, input and output validation around the tract plan.
+//! Owns: `Classifier`, `ClassifierError`, input and output validation around the tract plan, and a model's
+//! id (`model_id`: the first 12 hex digits of the SHA-256 of its file, what the correction log records).
 //! Must not: compute features or pool pixels; it takes a plain `segments x features` matrix.
 
 use std::path::{Path, PathBuf};
@@ -63,18 +64,30 @@ pub enum ClassifierError {
     Run { message: String },
 }
 
+/// A model file's id: the first 12 lower-case hex digits of the SHA-256 of its bytes.
+pub fn model_id(bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    Sha256::digest(bytes)
+        .iter()
+        .take(6)
+        .map(|byte| format!("{byte:02x}"))
+        .collect()
+}
+
 /// A loaded, checked segment classifier.
 #[derive(Clone)]
 pub struct Classifier {
     plan: Plan,
     contract: ModelContract,
     origin: String,
+    id: String,
 }
 
 impl std::fmt::Debug for Classifier {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("Classifier")
             .field("origin", &self.origin)
+            .field("id", &self.id)
             .field("contract", &self.contract)
             .finish()
     }
@@ -161,7 +174,13 @@ impl Classifier {
             plan,
             contract,
             origin,
+            id: model_id(bytes),
         })
+    }
+
+    /// The model's id (`model_id` of the bytes it was loaded from).
+    pub fn id(&self) -> &str {
+        &self.id
     }
 
     /// The contract read from the file.

@@ -238,6 +238,7 @@ fn grid_summary(labels: &IndexImage) -> SceneSummary {
     SceneSummary {
         objects,
         room: None,
+        model: None,
     }
 }
 

@@ -127,6 +127,7 @@ pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, ApiError> 
         labels_png: raster::encode_index_png(&state.labels).map_err(ApiError::internal)?,
         summary_json: serde_json::to_string(&state.summary).map_err(ApiError::internal)?,
         engine_state: state.engine_state.clone(),
+        model: state.summary.model.clone(),
     })
 }
 
