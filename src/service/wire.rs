@@ -35,16 +35,21 @@ pub struct DetectionIn {
     #[serde(rename = "box")]
     pub bbox: PixelBox,
     /// 0..1.
+    #[schema(minimum = 0.0, maximum = 1.0)]
     pub score: f32,
 }
 
-/// Register a scene: either `demo` (a demo scene's name) or `image_base64` with optional extras.
+/// Register a scene: either `demo` (a demo scene's name) or `image_base64` with optional extras; one of
+/// `demo`, `image_base64` and `image_png_base64` is required, and only one.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema, Default)]
 #[serde(deny_unknown_fields)]
 pub struct RegisterSceneRequest {
-    /// A name for people; defaults to the demo name or "scene".
+    /// A name for people; defaults to the demo name or "scene". Plain text: no control characters or
+    /// text-direction overrides; longer than 200 characters is cut to 200.
+    #[schema(pattern = r"^[^\u0000-\u001F\u007F-\u009F\u202A-\u202E\u2066-\u2069]*$")]
     pub name: Option<String>,
-    /// The name of a demo scene under the service's demo directory.
+    /// The name of a demo scene under the service's demo directory: 1-64 letters, digits, '-' or '_'.
+    #[schema(pattern = "^[A-Za-z0-9_-]{1,64}$")]
     pub demo: Option<String>,
     /// The colour image, base64-encoded PNG or JPEG (told apart by content).
     pub image_base64: Option<String>,
@@ -101,6 +106,7 @@ pub struct SceneGraphOut {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct OpenConversationRequest {
+    #[schema(minimum = 1)]
     pub scene_id: i64,
 }
 
@@ -125,6 +131,8 @@ pub enum FocusIn {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct UtteranceRequest {
+    /// What the operator said; at least one character that is not white space, at most 2000 characters.
+    #[schema(min_length = 1, max_length = 2000, pattern = r"\S")]
     pub text: String,
     pub focus: Option<FocusIn>,
 }
@@ -253,4 +261,58 @@ pub struct ClassOut {
     pub safety: bool,
     /// sRGB colour used in overlays.
     pub colour: [u8; 3],
+}
+
+/// Where a page of a list starts and how long it is (query parameters of the list routes).
+#[derive(
+    Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize, utoipa::IntoParams,
+)]
+#[serde(deny_unknown_fields)]
+#[into_params(parameter_in = Query)]
+pub struct PageQuery {
+    /// Items with ids above this one: the `next_after` of the previous page; 0 or absent starts at the first.
+    #[param(minimum = 0)]
+    pub after: Option<i64>,
+    /// Items on the page, 1 to 200; 50 when absent.
+    #[param(minimum = 1, maximum = 200)]
+    pub limit: Option<u32>,
+}
+
+/// One registered scene in a list.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct SceneListed {
+    pub scene_id: i64,
+    pub name: String,
+    /// The version in force.
+    pub version: i64,
+    pub width: u32,
+    pub height: u32,
+}
+
+/// A page of registered scenes, by ascending id.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ScenePage {
+    pub scenes: Vec<SceneListed>,
+    /// Pass as `after` for the next page; absent on the last page.
+    pub next_after: Option<i64>,
+}
+
+/// One conversation in a list.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ConversationListed {
+    pub conversation_id: i64,
+    pub scene_id: i64,
+    /// The operator who opened it (and may act on it, with any supervisor).
+    pub operator: String,
+    pub opened_at: String,
+    /// Whether a change waits for confirmation.
+    pub pending: bool,
+}
+
+/// A page of the conversations the caller may read (their own; every one for a supervisor), by ascending id.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ConversationPage {
+    pub conversations: Vec<ConversationListed>,
+    /// Pass as `after` for the next page; absent on the last page.
+    pub next_after: Option<i64>,
 }

@@ -95,10 +95,12 @@ impl UserModel {
             .parent()
             .unwrap_or(Path::new("."))
             .join(&config.model);
-        let bytes = std::fs::read(&model_path).map_err(|error| PerceptionError::Io {
-            path: model_path.clone(),
-            message: error.to_string(),
-        })?;
+        let bytes =
+            super::model_file::read_model_bytes(&model_path, super::model_file::MODEL_BYTES_LIMIT)
+                .map_err(|error| PerceptionError::Io {
+                    path: model_path.clone(),
+                    message: error.to_string(),
+                })?;
         UserModel::from_parts(config, &bytes, &origin)
     }
 
@@ -139,14 +141,18 @@ impl UserModel {
             TensorLayout::Nchw => [1, 3, h, w],
             TensorLayout::Nhwc => [1, h, w, 3],
         };
-        let mut reader = model_bytes;
-        let model = tract_onnx::onnx()
-            .model_for_read(&mut reader)
-            .map_err(model_error)?
-            .with_input_fact(0, f32::fact(shape).into())
-            .map_err(model_error)?
-            .into_optimized()
-            .map_err(model_error)?;
+        // The inference library panics on some malformed graphs; a panic here is the model's fault.
+        let model = super::model_file::guard_library(|| {
+            let mut reader = model_bytes;
+            tract_onnx::onnx()
+                .model_for_read(&mut reader)?
+                .with_input_fact(0, f32::fact(shape).into())?
+                .into_optimized()
+        })
+        .map_err(|message| PerceptionError::Model {
+            message: format!("{origin}: {message}"),
+        })?
+        .map_err(model_error)?;
         let output = model.output_fact(0).map_err(model_error)?.clone();
         let dims: Option<Vec<usize>> = output.shape.iter().map(|d| d.to_usize().ok()).collect();
         let class_count = config.classes.len();
@@ -163,7 +169,11 @@ impl UserModel {
                 ),
             });
         }
-        let plan = model.into_runnable().map_err(model_error)?;
+        let plan = super::model_file::guard_library(|| model.into_runnable())
+            .map_err(|message| PerceptionError::Model {
+                message: format!("{origin}: {message}"),
+            })?
+            .map_err(model_error)?;
         Ok(UserModel {
             config,
             plan,
