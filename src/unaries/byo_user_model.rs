@@ -38,6 +38,9 @@ use crate::raster::RgbImage;
 use crate::scene::SegmentMap;
 use crate::taxonomy::Taxonomy;
 
+/// The largest model config file read, in bytes.
+const CONFIG_BYTES_LIMIT: u64 = 1024 * 1024;
+
 /// Tensor layout of the model's input and output.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "lowercase")]
@@ -82,9 +85,17 @@ impl UserModel {
     /// Reads the TOML config and the model it names, checking the config's numbers.
     pub fn load(config_path: &Path) -> Result<UserModel, PerceptionError> {
         let origin = config_path.display().to_string();
-        let text = std::fs::read_to_string(config_path).map_err(|error| PerceptionError::Io {
+        let io_error = |message: String| PerceptionError::Io {
             path: config_path.to_path_buf(),
-            message: error.to_string(),
+            message,
+        };
+        let bytes = super::model_file::read_model_bytes(config_path, CONFIG_BYTES_LIMIT)
+            .map_err(|error| io_error(error.to_string()))?;
+        let text = String::from_utf8(bytes).map_err(|error| {
+            io_error(format!(
+                "not UTF-8 text (the first bad byte is at offset {})",
+                error.utf8_error().valid_up_to()
+            ))
         })?;
         let config: UserModelConfig =
             toml::from_str(&text).map_err(|error| PerceptionError::Config {
@@ -303,4 +314,64 @@ impl UserModel {
 /// The source index for target index `index` when resizing `target` samples from `source` samples.
 fn nearest(index: usize, target: usize, source: usize) -> usize {
     (((index as f64 + 0.5) * source as f64 / target as f64) as usize).min(source.saturating_sub(1))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+    use crate::unaries::mlp::seeded_random_mlp;
+    use crate::unaries::onnx_writer::build_model_proto;
+    use prost::Message;
+
+    fn config(model: &str) -> UserModelConfig {
+        toml::from_str(&format!(
+            "model = {model:?}\ninput_width = 4\ninput_height = 4\nlayout = \"nchw\"\n\
+             mean = [0.5, 0.5, 0.5]\nstd = [0.25, 0.25, 0.25]\noutput = \"logits\"\n\
+             classes = [\"floor\", \"wall\"]\n"
+        ))
+        .unwrap()
+    }
+
+    #[test]
+    fn a_model_whose_declared_output_no_node_makes_is_an_error_not_a_panic() {
+        let mlp = seeded_random_mlp(5, &[5, 2]);
+        let contract = ModelContract {
+            format_version: MODEL_FORMAT_VERSION,
+            class_names: vec!["floor".into(), "wall".into()],
+            feature_layout_version: 3,
+            feature_means: mlp.feature_means.to_vec(),
+            feature_stds: mlp.feature_stds.to_vec(),
+            temperature: mlp.temperature,
+        };
+        let mut proto = build_model_proto(&mlp, &contract).unwrap();
+        proto.graph.as_mut().unwrap().output[0].name = "made_by_no_node".into();
+        let error = UserModel::from_parts(config("x.onnx"), &proto.encode_to_vec(), "broken.toml")
+            .unwrap_err();
+        assert!(matches!(error, PerceptionError::Model { .. }), "{error}");
+        assert!(error.to_string().contains("broken.toml"), "{error}");
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_device_as_the_model_or_the_config_is_refused() {
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("model.toml");
+        std::fs::write(
+            &path,
+            "model = \"/dev/zero\"\ninput_width = 4\ninput_height = 4\nlayout = \"nchw\"\n\
+             mean = [0.5, 0.5, 0.5]\nstd = [0.25, 0.25, 0.25]\noutput = \"logits\"\n\
+             classes = [\"floor\"]\n",
+        )
+        .unwrap();
+        let error = UserModel::load(&path).unwrap_err().to_string();
+        assert!(
+            error.contains("/dev/zero") && error.contains("not a regular file"),
+            "{error}"
+        );
+        let error = UserModel::load(Path::new("/dev/zero"))
+            .unwrap_err()
+            .to_string();
+        assert!(error.contains("not a regular file"), "{error}");
+    }
 }
