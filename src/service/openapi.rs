@@ -115,7 +115,11 @@ fn add_refusals(document: &mut Value) {
             let secured = operation.get("security").is_some();
             let has_body = operation.get("requestBody").is_some();
             let has_id = path.contains('{');
-            if let Some(parameters) = operation["parameters"].as_array_mut() {
+            // `get_mut`, not indexing: indexing a missing key would insert a null.
+            if let Some(parameters) = operation
+                .get_mut("parameters")
+                .and_then(Value::as_array_mut)
+            {
                 for parameter in parameters {
                     if parameter["in"] == "path" && parameter["schema"]["type"] == "integer" {
                         parameter["schema"]["minimum"] = json!(1);
@@ -216,7 +220,10 @@ fn add_refusals(document: &mut Value) {
                     ),
                 ));
             }
-            let Some(responses) = operation["responses"].as_object_mut() else {
+            let Some(responses) = operation
+                .get_mut("responses")
+                .and_then(Value::as_object_mut)
+            else {
                 continue;
             };
             for (status, response) in refusals {
@@ -224,14 +231,30 @@ fn add_refusals(document: &mut Value) {
             }
         }
     }
+    // Each kind of focus takes its own fields only (the wire type refuses unknown fields).
+    if let Some(variants) = document
+        .pointer_mut("/components/schemas/FocusIn/oneOf")
+        .and_then(Value::as_array_mut)
+    {
+        for variant in variants.iter_mut().filter_map(Value::as_object_mut) {
+            variant.insert("additionalProperties".into(), json!(false));
+        }
+    }
     // A registration names a demo scene or sends an image: exactly one of the three.
-    let register = &mut document["components"]["schemas"]["RegisterSceneRequest"];
-    if register.is_object() {
-        register["oneOf"] = json!([
-            {"required": ["demo"]},
-            {"required": ["image_base64"]},
-            {"required": ["image_png_base64"]}
-        ]);
+    let register = document
+        .pointer_mut("/components/schemas/RegisterSceneRequest")
+        .and_then(Value::as_object_mut);
+    if let Some(register) = register {
+        let named =
+            |field: &str| json!({"required": [field], "properties": {field: {"type": "string"}}});
+        register.insert(
+            "oneOf".into(),
+            json!([
+                named("demo"),
+                named("image_base64"),
+                named("image_png_base64")
+            ]),
+        );
     }
 }
 

@@ -8,6 +8,40 @@
 use serde::{Deserialize, Serialize};
 use utoipa::ToSchema;
 
+/// Reads a JSON integer also when it is written with a zero fraction (`2.0`): JSON Schema counts that an
+/// integer, and some JSON writers (Python's, for floats) write whole numbers so.
+mod whole {
+    use serde::de::Error;
+    use serde::{Deserialize, Deserializer};
+
+    #[derive(Deserialize)]
+    #[serde(untagged)]
+    enum Number {
+        Integer(i64),
+        Float(f64),
+    }
+
+    /// The largest magnitude below which every whole `f64` is exact (2^53).
+    const EXACT: f64 = 9_007_199_254_740_992.0;
+
+    pub fn deserialize<'de, D: Deserializer<'de>, T: TryFrom<i64>>(
+        deserializer: D,
+    ) -> Result<T, D::Error> {
+        let value = match Number::deserialize(deserializer)
+            .map_err(|_| D::Error::custom("expected a whole number"))?
+        {
+            Number::Integer(value) => value,
+            Number::Float(value) if value.fract() == 0.0 && value.abs() < EXACT => value as i64,
+            Number::Float(value) => {
+                return Err(D::Error::custom(format!(
+                    "expected a whole number, got {value}"
+                )))
+            }
+        };
+        T::try_from(value).map_err(|_| D::Error::custom(format!("{value} is out of range")))
+    }
+}
+
 /// Every failure: a stable code to branch on and a plain message saying what to fix.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
 pub struct ErrorBody {
@@ -20,9 +54,13 @@ pub struct ErrorBody {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PixelBox {
+    #[serde(deserialize_with = "whole::deserialize")]
     pub x0: u32,
+    #[serde(deserialize_with = "whole::deserialize")]
     pub y0: u32,
+    #[serde(deserialize_with = "whole::deserialize")]
     pub x1: u32,
+    #[serde(deserialize_with = "whole::deserialize")]
     pub y1: u32,
 }
 
@@ -52,14 +90,34 @@ pub struct RegisterSceneRequest {
     #[schema(pattern = "^[A-Za-z0-9_-]{1,64}$")]
     pub demo: Option<String>,
     /// The colour image, base64-encoded PNG or JPEG (told apart by content).
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub image_base64: Option<String>,
     /// The same as `image_base64` (the earlier name); send one of the two.
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub image_png_base64: Option<String>,
     /// A 16-bit depth PNG in millimetres, base64.
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub depth_png_base64: Option<String>,
     /// Per-pixel class scores as a base64-encoded NPY array (height x width x classes, little-endian f32).
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub scores_npy_base64: Option<String>,
     /// A label map as a base64-encoded single-channel index PNG (pixel value = class id, 255 = unlabelled).
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub label_map_png_base64: Option<String>,
     #[serde(default)]
     pub detections: Vec<DetectionIn>,
@@ -107,6 +165,7 @@ pub struct SceneGraphOut {
 #[serde(deny_unknown_fields)]
 pub struct OpenConversationRequest {
     #[schema(minimum = 1)]
+    #[serde(deserialize_with = "whole::deserialize")]
     pub scene_id: i64,
 }
 
@@ -123,8 +182,16 @@ pub struct ConversationOut {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
 #[serde(tag = "type", rename_all = "snake_case", deny_unknown_fields)]
 pub enum FocusIn {
-    Object { object_id: u32 },
-    Pixel { x: u32, y: u32 },
+    Object {
+        #[serde(deserialize_with = "whole::deserialize")]
+        object_id: u32,
+    },
+    Pixel {
+        #[serde(deserialize_with = "whole::deserialize")]
+        x: u32,
+        #[serde(deserialize_with = "whole::deserialize")]
+        y: u32,
+    },
 }
 
 /// An utterance, typed or transcribed, with an optional focus.
@@ -315,4 +382,33 @@ pub struct ConversationPage {
     pub conversations: Vec<ConversationListed>,
     /// Pass as `after` for the next page; absent on the last page.
     pub next_after: Option<i64>,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn whole_numbers_are_read_also_with_a_zero_fraction() {
+        let request: OpenConversationRequest =
+            serde_json::from_str(r#"{"scene_id": 904.0}"#).unwrap();
+        assert_eq!(request.scene_id, 904);
+        let focus: FocusIn =
+            serde_json::from_str(r#"{"type": "object", "object_id": 1075382.0}"#).unwrap();
+        assert_eq!(focus, FocusIn::Object { object_id: 1075382 });
+        let focus: FocusIn =
+            serde_json::from_str(r#"{"type": "pixel", "x": 3, "y": 4.0}"#).unwrap();
+        assert_eq!(focus, FocusIn::Pixel { x: 3, y: 4 });
+        for refused in [
+            r#"{"scene_id": 904.5}"#,
+            r#"{"scene_id": "904"}"#,
+            r#"{"scene_id": 1e300}"#,
+        ] {
+            assert!(
+                serde_json::from_str::<OpenConversationRequest>(refused).is_err(),
+                "{refused}"
+            );
+        }
+        assert!(serde_json::from_str::<FocusIn>(r#"{"type": "pixel", "x": -1, "y": 0}"#).is_err());
+    }
 }
