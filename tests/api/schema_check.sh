@@ -5,7 +5,7 @@
 #
 #   bash tests/api/schema_check.sh [path/to/sayso] [examples per operation]
 set -euo pipefail
-binary="${1:-target/release/sayso}"
+binary="$(realpath "${1:-target/release/sayso}")"
 examples="${2:-20}"
 work="$(mktemp -d)"
 token="juniper-lane-schema-check-01"
@@ -34,4 +34,6 @@ curl -sf -X POST "$base/v1/scenes" -H "$auth" -H 'Content-Type: application/json
     -d '{"demo": "kitchen_breakfast"}' > /dev/null
 curl -sf -X POST "$base/v1/conversations" -H "$auth" -H 'Content-Type: application/json' \
     -d '{"scene_id": 1}' > /dev/null
+# Run from the scratch directory, so schemathesis's cache stays out of the repository.
+cd "$work"
 st run "$base/v1/openapi.json" -H "$auth" --max-examples "$examples" --request-timeout 30 --workers 1
