@@ -58,7 +58,11 @@ struct ExampleRecord<'a> {
     scene_version: i64,
     utterance: &'a str,
     constraints: serde_json::Value,
+    /// The operator who said it.
     operator: &'a str,
+    /// The operator who confirmed it, for a change that was held for confirmation.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    confirmed_by: Option<&'a str>,
     created_at: &'a str,
     log_schema: i64,
     /// The id of the classifier model that produced the corrected version, when the log recorded it.
@@ -229,6 +233,7 @@ pub fn export_dataset_showing(
             constraints: serde_json::from_str(&example.constraints_json)
                 .unwrap_or(serde_json::Value::Null),
             operator: &example.operator,
+            confirmed_by: example.confirmed_by.as_deref(),
             created_at: &example.created_at,
             log_schema: example.row_schema,
             model: log.version(example.version)?.0.model,

@@ -107,4 +107,6 @@ pub enum LogError {
     Stale { head: i64, base: i64 },
     #[error("the batch of turns this one was committed with failed, so it was not recorded: {0}")]
     Batch(String),
+    #[error("the caller withdrew the turn before it was written, so nothing was recorded")]
+    Withdrawn,
 }

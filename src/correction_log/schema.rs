@@ -9,7 +9,7 @@ use rusqlite::Connection;
 use super::LogError;
 
 /// The schema version this build writes; every stored row carries the version it was written under.
-pub const LOG_SCHEMA_VERSION: i64 = 2;
+pub const LOG_SCHEMA_VERSION: i64 = 3;
 
 /// Migration `n` (1-based) moves the database from version `n - 1` to version `n`.
 const MIGRATIONS: &[&str] = &[
@@ -99,10 +99,20 @@ const MIGRATIONS: &[&str] = &[
     ALTER TABLE scene_versions ADD COLUMN model TEXT;
     ALTER TABLE pending_changes ADD COLUMN model TEXT;
     "#,
+    // Version 3: who confirmed a change that was held for confirmation (NULL where none was needed, and
+    // on rows written before version 3).
+    r#"
+    ALTER TABLE training_examples ADD COLUMN confirmed_by TEXT;
+    "#,
 ];
 
 /// Opens pragmas for durability and brings the schema up to `LOG_SCHEMA_VERSION`.
 pub fn prepare(connection: &mut Connection) -> Result<(), LogError> {
+    prepare_up_to(connection, MIGRATIONS.len())
+}
+
+/// As `prepare`, applying migrations only up to version `target` (tests build old databases with it).
+pub(crate) fn prepare_up_to(connection: &mut Connection, target: usize) -> Result<(), LogError> {
     connection.pragma_update(None, "journal_mode", "WAL")?;
     connection.pragma_update(None, "synchronous", "FULL")?;
     connection.pragma_update(None, "foreign_keys", "ON")?;
@@ -121,7 +131,12 @@ pub fn prepare(connection: &mut Connection) -> Result<(), LogError> {
             supported: MIGRATIONS.len() as i64,
         });
     }
-    for (index, sql) in MIGRATIONS.iter().enumerate().skip(current as usize) {
+    for (index, sql) in MIGRATIONS
+        .iter()
+        .enumerate()
+        .take(target)
+        .skip(current as usize)
+    {
         let version = index as i64 + 1;
         let transaction = connection.transaction()?;
         transaction.execute_batch(sql)?;
@@ -178,7 +193,7 @@ mod tests {
                 .unwrap();
         }
         let mut log = crate::correction_log::CorrectionLog::open(&path).unwrap();
-        assert_eq!(log.schema_version().unwrap(), 2);
+        assert_eq!(log.schema_version().unwrap(), LOG_SCHEMA_VERSION);
         let (old, parent) = log.version(crate::correction_log::VersionKey(1)).unwrap();
         assert_eq!(parent, None);
         assert_eq!(old.labels_png, vec![3, 4]);
@@ -216,6 +231,38 @@ mod tests {
             .unwrap();
         assert_eq!(log.version(version.unwrap()).unwrap().0, state);
         assert_eq!(log.integrity_check().unwrap(), "ok");
+    }
+
+    #[test]
+    fn a_version_1_database_with_rows_migrates_and_keeps_them() {
+        let mut connection = Connection::open_in_memory().unwrap();
+        prepare_up_to(&mut connection, 1).unwrap();
+        assert_eq!(recorded_version(&connection).unwrap(), 1);
+        connection
+            .execute_batch(
+                "INSERT INTO blobs (hash, bytes) VALUES ('h', x'00');
+                 INSERT INTO scenes (id, name, image_hash, input_json, head_version, created_at, operator, row_schema)
+                     VALUES (1, 'hall', 'h', '{}', 1, 't', 'mira', 1);
+                 INSERT INTO scene_versions (id, scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
+                     VALUES (1, 1, NULL, 'h', '{}', x'', NULL, 't', 1);
+                 INSERT INTO conversations (id, scene_id, operator, opened_at, applied_stack, redo_stack, row_schema)
+                     VALUES (1, 1, 'mira', 't', '[]', '[]', 1);
+                 INSERT INTO turns (id, conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
+                     VALUES (1, 1, 'utterance', 'paint mug', NULL, 'applied', '[]', '{}', 1, 'mira', 't', 1);
+                 INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema)
+                     VALUES (1, 1, 1, 'h', 'h', 'h', 'paint mug', '[]', 'mira', 't', 1, 1);",
+            )
+            .unwrap();
+        prepare(&mut connection).unwrap();
+        assert_eq!(recorded_version(&connection).unwrap(), LOG_SCHEMA_VERSION);
+        let (operator, confirmed_by): (String, Option<String>) = connection
+            .query_row(
+                "SELECT operator, confirmed_by FROM training_examples",
+                [],
+                |row| Ok((row.get(0)?, row.get(1)?)),
+            )
+            .unwrap();
+        assert_eq!((operator.as_str(), confirmed_by), ("mira", None));
     }
 
     #[test]

@@ -149,7 +149,10 @@ pub struct ExampleRow {
     pub labels_after_hash: String,
     pub utterance: String,
     pub constraints_json: String,
+    /// The operator who said the utterance.
     pub operator: String,
+    /// The operator who confirmed the change, when it was held for confirmation (schema 2 on).
+    pub confirmed_by: Option<String>,
     pub created_at: String,
     pub row_schema: i64,
 }
@@ -198,6 +201,25 @@ fn write_turn(
             if base.0 != head {
                 return Err(LogError::Stale { head, base: base.0 });
             }
+            // A confirmation applies a change someone said earlier: the example names who said it (the
+            // operator of the turn that was held) and, apart, who confirmed it.
+            let held_by: Option<String> = if turn.kind == "confirm" {
+                transaction
+                    .query_row(
+                        "SELECT t.operator FROM pending_changes p JOIN turns t ON t.id = p.turn_id
+                         WHERE p.conversation_id = ?1",
+                        [turn.conversation.0],
+                        |row| row.get(0),
+                    )
+                    .optional()?
+            } else {
+                None
+            };
+            let (said_by, confirmed_by) = match &held_by {
+                Some(said_by) => (said_by.as_str(), Some(turn.operator)),
+                None if turn.kind == "confirm" => (turn.operator, Some(turn.operator)),
+                None => (turn.operator, None),
+            };
             let labels_hash = put_blob(transaction, &state.labels_png)?;
             transaction.execute(
                 "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema, model)
@@ -210,10 +232,10 @@ fn write_turn(
                 params![version, scene],
             )?;
             transaction.execute(
-                "INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema)
-                 SELECT ?1, ?2, ?3, s.image_hash, v.labels_hash, ?4, ?5, ?6, ?7, ?8, 1, ?9
+                "INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema, confirmed_by)
+                 SELECT ?1, ?2, ?3, s.image_hash, v.labels_hash, ?4, ?5, ?6, ?7, ?8, 1, ?9, ?11
                  FROM scenes s JOIN scene_versions v ON v.id = ?10 WHERE s.id = ?1",
-                params![scene, version, turn_key.0, labels_hash, utterance, constraints_json, turn.operator, now, LOG_SCHEMA_VERSION, base.0],
+                params![scene, version, turn_key.0, labels_hash, utterance, constraints_json, said_by, now, LOG_SCHEMA_VERSION, base.0, confirmed_by],
             )?;
             transaction.execute(
                 "DELETE FROM pending_changes WHERE conversation_id = ?1",
@@ -632,7 +654,8 @@ impl CorrectionLog {
     pub fn training_examples(&self) -> Result<Vec<ExampleRow>, LogError> {
         let mut statement = self.connection.prepare(
             "SELECT e.id, e.scene_id, s.name, e.version_id, e.turn_id, e.image_hash, e.labels_before_hash,
-                    e.labels_after_hash, e.utterance, e.constraints_json, e.operator, e.created_at, e.row_schema
+                    e.labels_after_hash, e.utterance, e.constraints_json, e.operator, e.created_at, e.row_schema,
+                    e.confirmed_by
              FROM training_examples e JOIN scenes s ON s.id = e.scene_id WHERE e.active = 1 ORDER BY e.id",
         )?;
         let rows = statement.query_map([], |row| {
@@ -650,6 +673,7 @@ impl CorrectionLog {
                 operator: row.get(10)?,
                 created_at: row.get(11)?,
                 row_schema: row.get(12)?,
+                confirmed_by: row.get(13)?,
             })
         })?;
         Ok(rows.collect::<Result<Vec<_>, _>>()?)

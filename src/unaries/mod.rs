@@ -19,6 +19,7 @@ pub mod dataset;
 pub mod metrics;
 pub mod mlp;
 pub mod model_card;
+pub mod model_file;
 pub mod onnx_reader;
 pub mod onnx_writer;
 pub mod pooling;
