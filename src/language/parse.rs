@@ -16,7 +16,7 @@ use crate::taxonomy::Taxonomy;
 use super::actions::Builder;
 use super::asides::{drop_asides, resolve_pointing};
 use super::chunks::{attach, chunk, repair, ChunkKind};
-use super::constraint::{Constraint, ConstraintKind, Focus, Span};
+use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Span};
 use super::error::{GrammarError, LanguageError};
 use super::lexicon::{Lexicon, Tag};
 use super::normalise::normalise;
@@ -343,7 +343,7 @@ impl Grammar {
                 }
             }
         }
-        let mut constraints = builder.constraints;
+        let mut constraints = join_relabels(builder.constraints);
         for constraint in &mut constraints {
             constraint.gloss = constraint_gloss(&constraint.kind, &self.taxonomy);
             let removed = match &constraint.kind {
@@ -389,6 +389,43 @@ impl Grammar {
             notes,
         })
     }
+}
+
+/// Tidies what the rules built: a constraint said twice is kept once, and a denial followed by a naming of
+/// the same thing ("it's not the wall. it's the ceiling") is one relabel with both classes.
+fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
+    let mut out: Vec<Constraint> = Vec::new();
+    for constraint in built {
+        if out.iter().any(|earlier| earlier.kind == constraint.kind) {
+            continue;
+        }
+        if let (
+            Some(Constraint {
+                kind:
+                    ConstraintKind::Relabel {
+                        from: Some(_),
+                        to: to @ None,
+                        ..
+                    },
+                span,
+                ..
+            }),
+            ConstraintKind::Relabel {
+                target,
+                from: None,
+                to: Some(named),
+            },
+        ) = (out.last_mut(), &constraint.kind)
+        {
+            if target.deixis == Some(Deixis::Previous) && target.class.is_none() {
+                *to = Some(*named);
+                *span = span.cover(constraint.span);
+                continue;
+            }
+        }
+        out.push(constraint);
+    }
+    out
 }
 
 /// Classifies a sentence that is not a correction by its cue words; `None` means "read it for constraints".
