@@ -37,6 +37,10 @@ bookcase -> class shelf
 worktop -> class counter
 countertop -> class counter
 basin -> class sink
+washbasin -> class sink
+wash basin -> class sink
+hand basin -> class sink
+washbowl -> class sink
 refrigerator -> class fridge
 cooker -> class stove
 oven -> class stove
