@@ -236,6 +236,19 @@ impl Builder {
                 if from_class.is_some() && from_class == to_class {
                     return;
                 }
+                // "This pillow is not a cat" while pointing: the pointed thing is a pillow, not a cat.
+                let mut target_referent = target_referent;
+                if let (Some(Deixis::Focus), Some(named), Some(from), None) = (
+                    target_referent.deixis,
+                    target_referent.class,
+                    from_class,
+                    to_class,
+                ) {
+                    if named != from {
+                        to_class = Some(named);
+                        target_referent.class = None;
+                    }
+                }
                 self.push(
                     ConstraintKind::Relabel {
                         target: target_referent,

@@ -423,6 +423,35 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
                 continue;
             }
         }
+        // "You think that's a pillow but it's a blanket": the first naming is what the robot shows.
+        if let (
+            Some(Constraint {
+                kind:
+                    ConstraintKind::Relabel {
+                        from: from @ None,
+                        to: to @ Some(_),
+                        ..
+                    },
+                span,
+                ..
+            }),
+            ConstraintKind::Relabel {
+                target,
+                from: None,
+                to: Some(named),
+            },
+        ) = (out.last_mut(), &constraint.kind)
+        {
+            if target.deixis == Some(Deixis::Previous)
+                && target.class.is_none()
+                && *to != Some(*named)
+            {
+                *from = *to;
+                *to = Some(*named);
+                *span = span.cover(constraint.span);
+                continue;
+            }
+        }
         out.push(constraint);
     }
     out
