@@ -13,6 +13,7 @@
 //! pipeline of `crate::pipeline`) is the implementation the binary uses.
 
 pub mod config;
+mod console;
 pub mod coordinator;
 pub mod corrector;
 pub mod error;
@@ -111,6 +112,7 @@ pub fn app(state: AppState) -> Router {
         .route("/v1/health", get(handlers::health))
         .route("/v1/openapi.json", get(handlers::openapi_document))
         .merge(protected)
+        .merge(console::routes())
         .fallback(handlers::no_such_route)
         .layer(DefaultBodyLimit::max(state.config.body_limit_bytes))
         .layer(axum::middleware::from_fn_with_state(
