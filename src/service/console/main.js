@@ -113,6 +113,7 @@ async function openScene(sceneId) {
   const conversation = await api.openConversation(sceneId);
   state.conversation = conversation.conversation_id;
   byId("workspace").hidden = false;
+  byId("chooser").open = false;
   byId("answer").hidden = true;
   panels.showQuestion(null);
   picture.setCandidates([]);
