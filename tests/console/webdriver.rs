@@ -78,7 +78,7 @@ const ELEMENT: &str = "element-6066-11e4-a52e-4f735466cecf";
 /// Finds a program: the environment variable when set, else the first of `names` on `PATH`.
 fn find_program(variable: &str, names: &[&str]) -> Option<PathBuf> {
     if let Some(path) = std::env::var_os(variable) {
-        return Some(PathBuf::from(path));
+        return Some(PathBuf::from(path)).filter(|path| path.is_file());
     }
     let path = std::env::var_os("PATH")?;
     std::env::split_paths(&path)
