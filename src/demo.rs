@@ -362,12 +362,24 @@ pub fn summary_text(summary: &SceneSummary) -> String {
 }
 
 fn read_json<T: serde::de::DeserializeOwned>(path: &Path) -> Result<T, DemoError> {
-    let text =
-        std::fs::read_to_string(path).map_err(|_| DemoError::MissingFile(path.to_path_buf()))?;
-    serde_json::from_str(&text).map_err(|error| DemoError::BadJson {
+    let bad = |message: String| DemoError::BadJson {
         path: path.to_path_buf(),
-        message: error.to_string(),
-    })
+        message,
+    };
+    let bytes = match std::fs::read(path) {
+        Ok(bytes) => bytes,
+        Err(error) if error.kind() == std::io::ErrorKind::NotFound => {
+            return Err(DemoError::MissingFile(path.to_path_buf()))
+        }
+        Err(error) => return Err(bad(format!("it cannot be read ({error})"))),
+    };
+    let text = std::str::from_utf8(&bytes).map_err(|error| {
+        bad(format!(
+            "it is not UTF-8 text (the first bad byte is at offset {})",
+            error.valid_up_to()
+        ))
+    })?;
+    serde_json::from_str(text).map_err(|error| bad(error.to_string()))
 }
 
 #[cfg(test)]
@@ -388,6 +400,15 @@ mod tests {
         std::fs::write(scene.join(SCENE_FILE), "{}").unwrap();
         let error = load_demo_scene(empty.path(), Some("half_scene")).unwrap_err();
         assert!(matches!(error, DemoError::BadJson { .. }), "{error}");
+        // Bytes that are not UTF-8 are reported as such, not as a missing file.
+        std::fs::write(scene.join(SCENE_FILE), b"{\"name\": \"hall\xff\"}").unwrap();
+        let error = load_demo_scene(empty.path(), Some("half_scene")).unwrap_err();
+        assert!(
+            matches!(error, DemoError::BadJson { .. })
+                && error.to_string().contains("not UTF-8")
+                && error.to_string().contains("offset 14"),
+            "{error}"
+        );
         let error = load_demo_scene(empty.path(), Some("attic")).unwrap_err();
         assert!(error.to_string().contains("attic") && error.to_string().contains("half_scene"));
     }

@@ -43,6 +43,7 @@ pub mod overlay;
 pub mod pipeline;
 pub mod raster;
 pub mod render;
+pub mod retrain;
 pub mod scene;
 pub mod scenegraph;
 pub mod service;

@@ -552,6 +552,76 @@ mod tests {
         );
     }
 
+    /// CRC-32 as PNG chunks use it (ISO 3309 / ITU-T V.42, the PNG specification's annex D), bit by bit.
+    fn png_crc(bytes: &[u8]) -> u32 {
+        let mut crc = 0xFFFF_FFFFu32;
+        for &byte in bytes {
+            crc ^= u32::from(byte);
+            for _ in 0..8 {
+                crc = if crc & 1 == 1 {
+                    0xEDB8_8320 ^ (crc >> 1)
+                } else {
+                    crc >> 1
+                };
+            }
+        }
+        !crc
+    }
+
+    fn png_chunk(kind: &[u8; 4], data: &[u8]) -> Vec<u8> {
+        let mut body = kind.to_vec();
+        body.extend_from_slice(data);
+        let mut chunk = (data.len() as u32).to_be_bytes().to_vec();
+        chunk.extend_from_slice(&body);
+        chunk.extend_from_slice(&png_crc(&body).to_be_bytes());
+        chunk
+    }
+
+    /// A PNG declaring `width` x `height` 8-bit `colour_type` whose image data is one empty chunk.
+    fn header_only_png(width: u32, height: u32, colour_type: u8) -> Vec<u8> {
+        let mut header = width.to_be_bytes().to_vec();
+        header.extend_from_slice(&height.to_be_bytes());
+        header.extend_from_slice(&[8, colour_type, 0, 0, 0]);
+        let mut bytes = b"\x89PNG\r\n\x1a\n".to_vec();
+        bytes.extend(png_chunk(b"IHDR", &header));
+        if colour_type == 3 {
+            bytes.extend(png_chunk(b"PLTE", &[0, 0, 0]));
+        }
+        bytes.extend(png_chunk(b"IDAT", &[]));
+        bytes.extend(png_chunk(b"IEND", &[]));
+        bytes
+    }
+
+    #[test]
+    fn a_huge_declared_size_is_refused_from_the_header_alone() {
+        // 100000 x 100000 RGB would need 30 GB; the answer comes from the 33-byte header, before any buffer.
+        let rgb = header_only_png(100_000, 100_000, 2);
+        let error = decode_rgb_image(&rgb, Path::new("huge.png"), DEFAULT_PIXEL_LIMIT).unwrap_err();
+        assert!(
+            matches!(
+                error,
+                RasterError::TooLarge {
+                    width: 100_000,
+                    height: 100_000,
+                    ..
+                }
+            ),
+            "{error}"
+        );
+        // The index-map path reads the header first too (greyscale and palette alike).
+        for colour_type in [0, 3] {
+            let index = header_only_png(100_000, 100_000, colour_type);
+            let error =
+                decode_index_png(&index, Path::new("huge.png"), DEFAULT_PIXEL_LIMIT).unwrap_err();
+            assert!(matches!(error, RasterError::TooLarge { .. }), "{error}");
+        }
+        // A size under the limit gets past the header and fails on the missing data instead.
+        let small = header_only_png(4, 4, 2);
+        let error =
+            decode_rgb_image(&small, Path::new("small.png"), DEFAULT_PIXEL_LIMIT).unwrap_err();
+        assert!(matches!(error, RasterError::Decode { .. }), "{error}");
+    }
+
     #[test]
     fn missing_file_is_io_error() {
         let error =

@@ -464,6 +464,22 @@ mod service {
             .changes
             .iter()
             .any(|c| c.to.as_deref() == Some("sofa")));
+        // One change list's figures agree: an object added as a sofa counts no more pixels than the
+        // labels that moved to sofa.
+        let relabelled: u64 = answered
+            .changes
+            .iter()
+            .filter(|c| c.object_id.is_none() && c.to.as_deref() == Some("sofa"))
+            .map(|c| c.pixels)
+            .sum();
+        for added in answered.changes.iter().filter(|c| {
+            c.object_id.is_some() && c.from.is_none() && c.to.as_deref() == Some("sofa")
+        }) {
+            assert!(
+                added.pixels <= relabelled,
+                "{added:?} counts more than the {relabelled} px relabelled"
+            );
+        }
         assert!(!chairs(&coordinator, scene).contains(&pick));
         assert!(
             chairs(&coordinator, scene).len() + 1

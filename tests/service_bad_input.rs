@@ -14,6 +14,7 @@ fn config() -> ServiceConfig {
         operators: vec![OperatorToken {
             name: "mira".into(),
             token: TOKEN.into(),
+            role: sayso::service::config::Role::Operator,
         }],
         body_limit_bytes: 64 * 1024,
         pixel_limit: 10_000,

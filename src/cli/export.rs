@@ -4,7 +4,8 @@
 
 use std::path::PathBuf;
 
-use sayso::correction_log::{export_dataset, CorrectionLog};
+use indicatif::{ProgressBar, ProgressStyle};
+use sayso::correction_log::{export_dataset_showing, CorrectionLog, LeftOutReason};
 
 use super::serve::ServiceFlags;
 
@@ -23,11 +24,35 @@ pub fn run(args: ExportArgs) -> anyhow::Result<()> {
     let config = args.service.config()?;
     let corrector = super::serve::corrector(&config)?;
     let log = CorrectionLog::open(&config.log_path())?;
-    let summary = export_dataset(&log, corrector.taxonomy(), &args.output)?;
+    let progress = ProgressBar::new(0);
+    if let Ok(style) = ProgressStyle::with_template("exporting {bar:30} example {pos}/{len}") {
+        progress.set_style(style);
+    }
+    let summary = export_dataset_showing(&log, corrector.taxonomy(), &args.output, &progress)?;
     println!(
         "sayso: wrote {} training example(s) to {}",
         summary.examples,
         summary.directory.display()
     );
+    if !summary.left_out.is_empty() {
+        println!(
+            "sayso: left out {} correction(s) (listed in left_out.jsonl):",
+            summary.left_out.len()
+        );
+        for left in &summary.left_out {
+            let why = match &left.reason {
+                LeftOutReason::Undone => "undone".to_string(),
+                LeftOutReason::Rejected => "rejected when asked to confirm".to_string(),
+                LeftOutReason::Contradicted {
+                    share,
+                    current_version,
+                } => format!(
+                    "contradicted: {:.0}% of the pixels it changed are labelled otherwise in version {current_version}",
+                    100.0 * share
+                ),
+            };
+            println!("  {} \"{}\": {why}", left.scene_name, left.utterance);
+        }
+    }
     Ok(())
 }

@@ -32,8 +32,8 @@ pub struct FieldNotesArgs {
 
 pub fn run(args: FieldNotesArgs) -> anyhow::Result<()> {
     let config = args.service.config()?;
-    let text = std::fs::read_to_string(&args.notes)
-        .with_context(|| format!("reading {}", args.notes.display()))?;
+    let text =
+        std::fs::read(&args.notes).with_context(|| format!("reading {}", args.notes.display()))?;
     let coordinator = open_coordinator(&config)?;
     let bar = if args.quiet {
         indicatif::ProgressBar::hidden()

@@ -63,6 +63,11 @@ impl ServiceFlags {
 
 /// The corrector the binary runs: the joint pipeline with the configured grammar and classifier.
 pub fn corrector(config: &ServiceConfig) -> anyhow::Result<Arc<dyn Corrector>> {
+    Ok(joint_corrector(config)?)
+}
+
+/// The joint corrector itself (the service keeps a handle to swap its model).
+pub fn joint_corrector(config: &ServiceConfig) -> anyhow::Result<Arc<JointCorrector>> {
     let mut settings = CorrectionSettings::embedded()?;
     if let Some(directory) = &config.grammar_dir {
         settings.grammar = Grammar::load(directory)
@@ -76,8 +81,16 @@ pub fn corrector(config: &ServiceConfig) -> anyhow::Result<Arc<dyn Corrector>> {
 
 /// Opens the coordinator (and with it the correction log) for a configuration.
 pub fn open_coordinator(config: &ServiceConfig) -> anyhow::Result<Arc<Coordinator>> {
+    open_coordinator_with(config, corrector(config)?)
+}
+
+/// Opens the coordinator with a corrector the caller made.
+fn open_coordinator_with(
+    config: &ServiceConfig,
+    corrector: Arc<dyn Corrector>,
+) -> anyhow::Result<Arc<Coordinator>> {
     let coordinator = Coordinator::open(
-        corrector(config)?,
+        corrector,
         &CoordinatorSettings {
             log_path: config.log_path(),
             pixel_limit: config.pixel_limit,
@@ -113,7 +126,9 @@ pub fn run(args: ServeArgs) -> anyhow::Result<()> {
         config.bind.set_port(port);
     }
     config.validate()?;
-    let coordinator = open_coordinator(&config)?;
+    let joint = joint_corrector(&config)?;
+    super::model_watch::spawn(joint.clone(), model_path(config.model.as_deref()));
+    let coordinator = open_coordinator_with(&config, joint)?;
     let runtime = tokio::runtime::Builder::new_multi_thread()
         .enable_all()
         .build()

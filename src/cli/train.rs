@@ -1,7 +1,10 @@
-//! `sayso train`: trains the segment classifier and writes the ONNX file and its model card.
+//! `sayso train`: trains the segment classifier and writes the ONNX file and its model card; with
+//! `--corrections`, fine-tunes the served model instead and gates the candidate (`super::retrain`).
 //!
 //! Owns: the flags, reading the training data named on the command line, printing a summary.
 //! Must not: implement training or ONNX writing; those are `sayso::unaries::trainer` and `onnx_writer`.
+//! Validation is split by whole scene for scene data (`split_by_scene`); a feature matrix carries no
+//! scenes, so its rows are split.
 
 use std::path::PathBuf;
 use std::time::Instant;
@@ -12,15 +15,16 @@ use clap::{Args, ValueEnum};
 use sayso::ids::ClassId;
 use sayso::scene::SceneParams;
 use sayso::taxonomy::Taxonomy;
-use sayso::unaries::builtin::{dataset_training_rows, evaluate_on_dataset};
+use sayso::unaries::builtin::{dataset_scene_rows, evaluate_on_dataset};
 use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
-use sayso::unaries::dataset::list_dataset;
 use sayso::unaries::dataset::read_feature_csv;
+use sayso::unaries::dataset::{list_dataset, DatasetEntry};
 use sayso::unaries::model_card::EvaluationFigures;
 use sayso::unaries::model_card::ModelCard;
 use sayso::unaries::onnx_writer::encode_model;
 use sayso::unaries::trainer::{
-    split_for_validation, train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode,
+    split_by_scene, split_for_validation, train, LabelledFeatures, Regularisation, TrainingConfig,
+    TrainingMode,
 };
 use sayso::unaries::{current_feature_layout, Classifier};
 
@@ -45,14 +49,48 @@ pub enum PenaltyFlag {
 #[derive(Debug, Args)]
 pub struct TrainArgs {
     /// A dataset directory of scene subdirectories (image.png + labels.png each).
-    #[arg(long, conflicts_with = "feature_matrix")]
+    #[arg(long, conflicts_with_all = ["feature_matrix", "corrections"])]
     pub data: Option<PathBuf>,
+    /// Fine-tune the served model on corrections exported by `sayso export` (this directory), mixed with
+    /// replay renders; the candidate replaces the served model only when the gate takes it.
+    #[arg(long, conflicts_with_all = ["feature_matrix", "render"])]
+    pub corrections: Option<PathBuf>,
     /// Render this many training scenes instead of reading --data.
     #[arg(long)]
     pub render: Option<u32>,
-    /// First renderer seed for --render (must be outside the demo scenes' seed range).
+    /// First renderer seed for --render, and of the replay renders with --corrections (must be outside
+    /// the demo scenes' seed range).
     #[arg(long, default_value_t = 100_000)]
     pub seed_base: u64,
+    /// With --corrections: replay renders to train on (seeds from --seed-base, within 100000..100100).
+    #[arg(long, default_value_t = 28)]
+    pub replay: u32,
+    /// With --corrections: whole renders for early stopping and the temperature (within 100100..100200).
+    #[arg(long, default_value_t = 7)]
+    pub validation_scenes: u32,
+    #[arg(long, default_value_t = 100_100)]
+    pub validation_seed: u64,
+    /// With --corrections: held-out renders the gate judges on (within 500000..501000).
+    #[arg(long, default_value_t = 21)]
+    pub held_out: u32,
+    #[arg(long, default_value_t = 500_000)]
+    pub held_out_seed: u64,
+    /// With --corrections: weight of a corrected scene's rows (a replay row weighs 1).
+    #[arg(long, default_value_t = 4.0)]
+    pub correction_weight: f32,
+    /// With --corrections: further factor for the segments the corrections changed.
+    #[arg(long, default_value_t = 8.0)]
+    pub emphasis: f32,
+    /// With --corrections: the model to start from (default: the served model, --serve).
+    #[arg(long)]
+    pub base: Option<PathBuf>,
+    /// With --corrections: the served model file the gate replaces (default: $SAYSO_MODEL, else the
+    /// built-in models/segment_classifier.onnx).
+    #[arg(long)]
+    pub serve: Option<PathBuf>,
+    /// With --corrections: judge the candidate but never replace the served model.
+    #[arg(long)]
+    pub no_install: bool,
     /// An exported feature matrix (CSV: class index, then features) to train on directly.
     #[arg(long)]
     pub feature_matrix: Option<PathBuf>,
@@ -62,53 +100,86 @@ pub struct TrainArgs {
     /// A scene set (same layout as --data) to report pixel accuracy and IoU on, e.g. demo_scenes.
     #[arg(long)]
     pub evaluate: Option<PathBuf>,
-    /// Output directory for segment_classifier.onnx and README.md.
-    #[arg(long, default_value = "models")]
-    pub out: PathBuf,
+    /// Output directory for segment_classifier.onnx and README.md (default: models; with --corrections,
+    /// candidates/<model id>).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
     #[arg(long, value_enum, default_value_t = ModeFlag::Mlp)]
     pub mode: ModeFlag,
     /// Hidden layer width(s) for --mode mlp; repeat for two layers.
     #[arg(long, default_values_t = [128])]
     pub hidden: Vec<usize>,
-    #[arg(long, default_value_t = 200)]
-    pub epochs: usize,
+    /// At most this many epochs (default 200; 30 with --corrections).
+    #[arg(long)]
+    pub epochs: Option<usize>,
     #[arg(long, default_value_t = 128)]
     pub batch_size: usize,
-    #[arg(long, default_value_t = 3e-3)]
-    pub learning_rate: f32,
+    /// Default 3e-3; 1e-3 with --corrections.
+    #[arg(long)]
+    pub learning_rate: Option<f32>,
     /// Penalty strength lambda on weights.
     #[arg(long, default_value_t = 1e-4)]
     pub weight_decay: f32,
     #[arg(long, value_enum, default_value_t = PenaltyFlag::Decoupled)]
     pub penalty: PenaltyFlag,
-    /// Epochs without validation improvement before stopping.
-    #[arg(long, default_value_t = 20)]
-    pub patience: usize,
-    /// Fraction of rows held out for early stopping and calibration.
+    /// Epochs without validation improvement before stopping (default 20; 8 with --corrections).
+    #[arg(long)]
+    pub patience: Option<usize>,
+    /// Fraction of scenes (of rows, for --feature-matrix) held out for early stopping and calibration.
     #[arg(long, default_value_t = 0.2)]
     pub validation_fraction: f64,
-    /// Weight every class equally instead of every row.
-    #[arg(long, default_value_t = true, action = clap::ArgAction::Set)]
-    pub class_balanced: bool,
+    /// Weight every class equally instead of every row (default true; false with --corrections, where
+    /// the replay set is small and balanced weights would lift its rarest classes far above what the
+    /// served model was trained with).
+    #[arg(long, action = clap::ArgAction::Set)]
+    pub class_balanced: Option<bool>,
     #[arg(long, default_value_t = 7)]
     pub seed: u64,
 }
 
+impl TrainArgs {
+    /// The penalty flag as the trainer's setting.
+    pub fn regularisation(&self) -> Regularisation {
+        match self.penalty {
+            PenaltyFlag::Decoupled => Regularisation::DecoupledWeightDecay,
+            PenaltyFlag::L2 => Regularisation::L2,
+        }
+    }
+}
+
+/// Training data: whole scenes (split by scene) or a feature matrix (split by row).
+enum TrainingData {
+    Scenes(Vec<LabelledFeatures>, Vec<DatasetEntry>),
+    Matrix(LabelledFeatures),
+}
+
 pub fn run(args: TrainArgs) -> anyhow::Result<()> {
+    if let Some(corrections) = &args.corrections {
+        return super::retrain::run(&args, corrections);
+    }
     let taxonomy = Taxonomy::embedded();
     let started = Instant::now();
+    let out = args.out.clone().unwrap_or_else(|| PathBuf::from("models"));
     let (data, description, layout_version) = if let Some(path) = &args.feature_matrix {
         let (features, labels) = read_feature_csv(path)?;
         (
-            LabelledFeatures { features, labels },
+            TrainingData::Matrix(LabelledFeatures { features, labels }),
             format!("Exported feature matrix `{}`.", path.display()),
             args.feature_layout_version,
         )
     } else if let Some(directory) = &args.data {
+        if directory.join("index.jsonl").is_file() {
+            eprintln!(
+                "sayso: {} holds exported corrections; training on them alone forgets the rest of the flat. \
+                 `--corrections {}` fine-tunes the served model on them with replay renders and a gate.",
+                directory.display(),
+                directory.display()
+            );
+        }
         let entries = list_dataset(directory)?;
-        let rows = dataset_training_rows(&entries, &taxonomy, &SceneParams::default(), true)?;
+        let rows = dataset_scene_rows(&entries, &taxonomy, &SceneParams::default(), true)?;
         (
-            rows,
+            TrainingData::Scenes(rows, entries.clone()),
             format!(
                 "{} scenes from `{}`; one row per segment (the scene defaults: SLIC aiming at `scene::SCENE_SEGMENTS` segments), labelled with the majority class of its pixels in labels.png{}.",
                 entries.len(),
@@ -124,10 +195,10 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
     } else if let Some(count) = args.render {
         let directory = render_training_scenes(count, args.seed_base)?;
         let entries = list_dataset(&directory)?;
-        let rows = dataset_training_rows(&entries, &taxonomy, &SceneParams::default(), true);
+        let rows = dataset_scene_rows(&entries, &taxonomy, &SceneParams::default(), true);
         let _ = std::fs::remove_dir_all(&directory);
         (
-            rows?,
+            TrainingData::Scenes(rows?, entries),
             format!(
                 "{count} scenes rendered with seeds {}..{} (room types in turn, as `sayso render --seed {} --count {count}`); one row per segment (the scene defaults: SLIC aiming at `scene::SCENE_SEGMENTS` segments), labelled with the majority ground-truth class of its pixels.",
                 args.seed_base,
@@ -142,7 +213,31 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
     if !(0.0..1.0).contains(&args.validation_fraction) || args.validation_fraction == 0.0 {
         bail!("--validation-fraction must be between 0 and 1");
     }
-    let (training, validation) = split_for_validation(&data, args.validation_fraction, args.seed);
+    let (training, validation, validation_description) = match &data {
+        TrainingData::Matrix(rows) => {
+            let (training, validation) =
+                split_for_validation(rows, args.validation_fraction, args.seed);
+            (
+                training,
+                validation,
+                Some("a share of the matrix's rows (it names no scenes)".to_string()),
+            )
+        }
+        TrainingData::Scenes(scenes, entries) => {
+            let (training, validation, held) =
+                split_by_scene(scenes, args.validation_fraction, args.seed)?;
+            let names: Vec<&str> = held.iter().map(|&i| entries[i].name.as_str()).collect();
+            (
+                training,
+                validation,
+                Some(format!(
+                    "{} whole scene(s), never trained on: {}",
+                    held.len(),
+                    names.join(", ")
+                )),
+            )
+        }
+    };
     let config = TrainingConfig {
         mode: match args.mode {
             ModeFlag::Softmax => TrainingMode::SoftmaxRegression,
@@ -150,16 +245,13 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
                 hidden: args.hidden.clone(),
             },
         },
-        max_epochs: args.epochs,
+        max_epochs: args.epochs.unwrap_or(200),
         batch_size: args.batch_size,
-        learning_rate: args.learning_rate,
+        learning_rate: args.learning_rate.unwrap_or(3e-3),
         weight_decay: args.weight_decay,
-        regularisation: match args.penalty {
-            PenaltyFlag::Decoupled => Regularisation::DecoupledWeightDecay,
-            PenaltyFlag::L2 => Regularisation::L2,
-        },
-        patience: args.patience,
-        class_balanced: args.class_balanced,
+        regularisation: args.regularisation(),
+        patience: args.patience.unwrap_or(20),
+        class_balanced: args.class_balanced.unwrap_or(true),
         seed: args.seed,
         show_progress: true,
     };
@@ -177,9 +269,8 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         temperature: outcome.mlp.temperature,
     };
     let bytes = encode_model(&outcome.mlp, &contract)?;
-    std::fs::create_dir_all(&args.out)
-        .with_context(|| format!("creating {}", args.out.display()))?;
-    let model_path = args.out.join("segment_classifier.onnx");
+    std::fs::create_dir_all(&out).with_context(|| format!("creating {}", out.display()))?;
+    let model_path = out.join("segment_classifier.onnx");
     std::fs::write(&model_path, &bytes)
         .with_context(|| format!("writing {}", model_path.display()))?;
     // The card names the program plainly, whatever path it was started by.
@@ -207,6 +298,8 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         validation_accuracy: outcome.validation_accuracy,
         calibration: outcome.calibration,
         evaluation: None,
+        validation_description,
+        appendix: None,
     };
     if let Some(directory) = &args.evaluate {
         let classifier = Classifier::from_bytes(
@@ -242,7 +335,7 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
             matrix.mean_iou()
         );
     }
-    let card_path = args.out.join("README.md");
+    let card_path = out.join("README.md");
     std::fs::write(&card_path, card.to_markdown())
         .with_context(|| format!("writing {}", card_path.display()))?;
     let c = outcome.calibration;

@@ -128,6 +128,7 @@ mod tests {
                     labels_png: vec![index as u8; 2048],
                     summary_json: "{}".into(),
                     engine_state: vec![],
+                    model: None,
                 },
             })
             .unwrap();

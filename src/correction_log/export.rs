@@ -3,8 +3,9 @@
 //! Owns: the dataset layout. Each example is a folder like a rendered demo scene
 //! (`<name>/image.png`, `labels.png` — the corrected index PNG —, `labels_before.png`, `depth.png` when the
 //! scene has depth, `scene.json`), with
-//! `index.jsonl` (one record per example) and `classes.json` (the class manifest) at the top.
-//! Must not: decode images or judge examples; the bytes in the log are written as they are.
+//! `index.jsonl` (one record per example), `left_out.jsonl` (the corrections not exported and why:
+//! `export_filter`) and `classes.json` (the class manifest) at the top.
+//! Must not: change the bytes in the log; they are written as they are.
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -28,11 +29,12 @@ pub enum ExportError {
     NotEmpty { path: PathBuf },
 }
 
-/// What an export wrote.
-#[derive(Clone, Debug, PartialEq, Eq)]
+/// What an export wrote, and what it left out.
+#[derive(Clone, Debug, PartialEq)]
 pub struct ExportSummary {
     pub examples: usize,
     pub directory: PathBuf,
+    pub left_out: Vec<super::export_filter::LeftOut>,
 }
 
 #[derive(Serialize)]
@@ -56,9 +58,16 @@ struct ExampleRecord<'a> {
     scene_version: i64,
     utterance: &'a str,
     constraints: serde_json::Value,
+    /// The operator who said it.
     operator: &'a str,
+    /// The operator who confirmed it, for a change that was held for confirmation.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    confirmed_by: Option<&'a str>,
     created_at: &'a str,
     log_schema: i64,
+    /// The id of the classifier model that produced the corrected version, when the log recorded it.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    model: Option<String>,
 }
 
 #[derive(Serialize)]
@@ -123,11 +132,23 @@ fn room_name(
         .map(|info| info.name.clone())
 }
 
-/// Writes every counting training example of `log` into `directory` (created; must be empty if it exists).
+/// Writes every counting training example of `log` into `directory` (created; must be empty if it exists),
+/// leaving out corrections undone or later contradicted, and listing those and the rejected proposals in
+/// `left_out.jsonl`.
 pub fn export_dataset(
     log: &CorrectionLog,
     taxonomy: &Taxonomy,
     directory: &Path,
+) -> Result<ExportSummary, ExportError> {
+    export_dataset_showing(log, taxonomy, directory, &indicatif::ProgressBar::hidden())
+}
+
+/// `export_dataset`, advancing `progress` once per example written (its length is set here).
+pub fn export_dataset_showing(
+    log: &CorrectionLog,
+    taxonomy: &Taxonomy,
+    directory: &Path,
+    progress: &indicatif::ProgressBar,
 ) -> Result<ExportSummary, ExportError> {
     if let Ok(mut entries) = std::fs::read_dir(directory) {
         if entries.next().is_some() {
@@ -159,7 +180,9 @@ pub fn export_dataset(
     write_file(&directory.join("classes.json"), manifest_text.as_bytes())?;
     let index_path = directory.join("index.jsonl");
     let mut index = Vec::new();
-    let examples = log.training_examples()?;
+    let audit = super::export_filter::audit(log)?;
+    let examples = audit.kept;
+    progress.set_length(examples.len() as u64);
     for example in &examples {
         let folder = format!("example-{:06}", example.id);
         let example_directory = directory.join(&folder);
@@ -210,15 +233,25 @@ pub fn export_dataset(
             constraints: serde_json::from_str(&example.constraints_json)
                 .unwrap_or(serde_json::Value::Null),
             operator: &example.operator,
+            confirmed_by: example.confirmed_by.as_deref(),
             created_at: &example.created_at,
             log_schema: example.row_schema,
+            model: log.version(example.version)?.0.model,
         };
         let scene_text = serde_json::to_string_pretty(&record).unwrap_or_default();
         write_file(&example_directory.join("scene.json"), scene_text.as_bytes())?;
         let line = serde_json::to_string(&record).unwrap_or_default();
         index.extend_from_slice(line.as_bytes());
         index.push(b'\n');
+        progress.inc(1);
     }
+    progress.finish_and_clear();
+    let mut left_out_text = String::new();
+    for left in &audit.left_out {
+        left_out_text.push_str(&serde_json::to_string(left).unwrap_or_default());
+        left_out_text.push('\n');
+    }
+    write_file(&directory.join("left_out.jsonl"), left_out_text.as_bytes())?;
     let mut file = std::fs::File::create(&index_path).map_err(|source| ExportError::Write {
         path: index_path.clone(),
         source,
@@ -231,5 +264,6 @@ pub fn export_dataset(
     Ok(ExportSummary {
         examples: examples.len(),
         directory: directory.to_path_buf(),
+        left_out: audit.left_out,
     })
 }

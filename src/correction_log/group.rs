@@ -149,6 +149,7 @@ mod tests {
             labels_png: vec![byte; 4],
             summary_json: "{}".into(),
             engine_state: vec![byte],
+            model: None,
         }
     }
 

@@ -13,7 +13,12 @@
 //!
 //! let directory = tempfile::tempdir().unwrap();
 //! let mut log = CorrectionLog::open(&directory.path().join("log.sqlite")).unwrap();
-//! let state = StateRecord { labels_png: vec![1, 2, 3], summary_json: "{}".into(), engine_state: vec![] };
+//! let state = StateRecord {
+//!     labels_png: vec![1, 2, 3],
+//!     summary_json: "{}".into(),
+//!     engine_state: vec![],
+//!     model: Some("3f2a9c01be47".into()),
+//! };
 //! let (scene, _version) = log
 //!     .register_scene(&NewScene {
 //!         name: "juniper-lane-kitchen",
@@ -29,13 +34,15 @@
 
 mod checkpoint;
 mod export;
+mod export_filter;
 mod group;
 mod schema;
 mod store;
 mod time;
 
 pub use checkpoint::BackgroundCheckpoints;
-pub use export::{export_dataset, ExportError, ExportSummary};
+pub use export::{export_dataset, export_dataset_showing, ExportError, ExportSummary};
+pub use export_filter::{LeftOut, LeftOutReason, CONTRADICTED_SHARE};
 pub use group::{GroupCommit, GroupCommitCounts, TurnWritten};
 pub use schema::LOG_SCHEMA_VERSION;
 pub use store::{
@@ -100,4 +107,6 @@ pub enum LogError {
     Stale { head: i64, base: i64 },
     #[error("the batch of turns this one was committed with failed, so it was not recorded: {0}")]
     Batch(String),
+    #[error("the caller withdrew the turn before it was written, so nothing was recorded")]
+    Withdrawn,
 }

@@ -9,7 +9,7 @@ use rusqlite::Connection;
 use super::LogError;
 
 /// The schema version this build writes; every stored row carries the version it was written under.
-pub const LOG_SCHEMA_VERSION: i64 = 1;
+pub const LOG_SCHEMA_VERSION: i64 = 3;
 
 /// Migration `n` (1-based) moves the database from version `n - 1` to version `n`.
 const MIGRATIONS: &[&str] = &[
@@ -93,10 +93,26 @@ const MIGRATIONS: &[&str] = &[
         row_schema INTEGER NOT NULL
     );
     "#,
+    // Version 2: which classifier model produced each version (and each pending change); NULL where it was
+    // not recorded (every row written under version 1).
+    r#"
+    ALTER TABLE scene_versions ADD COLUMN model TEXT;
+    ALTER TABLE pending_changes ADD COLUMN model TEXT;
+    "#,
+    // Version 3: who confirmed a change that was held for confirmation (NULL where none was needed, and
+    // on rows written before version 3).
+    r#"
+    ALTER TABLE training_examples ADD COLUMN confirmed_by TEXT;
+    "#,
 ];
 
 /// Opens pragmas for durability and brings the schema up to `LOG_SCHEMA_VERSION`.
 pub fn prepare(connection: &mut Connection) -> Result<(), LogError> {
+    prepare_up_to(connection, MIGRATIONS.len())
+}
+
+/// As `prepare`, applying migrations only up to version `target` (tests build old databases with it).
+pub(crate) fn prepare_up_to(connection: &mut Connection, target: usize) -> Result<(), LogError> {
     connection.pragma_update(None, "journal_mode", "WAL")?;
     connection.pragma_update(None, "synchronous", "FULL")?;
     connection.pragma_update(None, "foreign_keys", "ON")?;
@@ -115,7 +131,12 @@ pub fn prepare(connection: &mut Connection) -> Result<(), LogError> {
             supported: MIGRATIONS.len() as i64,
         });
     }
-    for (index, sql) in MIGRATIONS.iter().enumerate().skip(current as usize) {
+    for (index, sql) in MIGRATIONS
+        .iter()
+        .enumerate()
+        .take(target)
+        .skip(current as usize)
+    {
         let version = index as i64 + 1;
         let transaction = connection.transaction()?;
         transaction.execute_batch(sql)?;
@@ -151,6 +172,97 @@ mod tests {
             .query_row("SELECT COUNT(*) FROM schema_version", [], |row| row.get(0))
             .unwrap();
         assert_eq!(rows, MIGRATIONS.len() as i64);
+    }
+
+    #[test]
+    fn a_version_1_database_migrates_and_keeps_its_rows() {
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("log.sqlite");
+        {
+            // A log as the first release wrote it: migration 1 only, one scene with one version.
+            let connection = Connection::open(&path).unwrap();
+            connection.execute_batch(MIGRATIONS[0]).unwrap();
+            connection
+                .execute_batch(
+                    "CREATE TABLE schema_version (version INTEGER NOT NULL, applied_at TEXT NOT NULL);
+                     INSERT INTO schema_version VALUES (1, 'then');
+                     INSERT INTO blobs VALUES ('aa', x'0102'), ('bb', x'0304');
+                     INSERT INTO scenes VALUES (1, 'juniper-lane-hall', 'aa', '{}', 1, 'then', 'mira', 1);
+                     INSERT INTO scene_versions VALUES (1, 1, NULL, 'bb', '{\"room\":1}', x'09', NULL, 'then', 1);",
+                )
+                .unwrap();
+        }
+        let mut log = crate::correction_log::CorrectionLog::open(&path).unwrap();
+        assert_eq!(log.schema_version().unwrap(), LOG_SCHEMA_VERSION);
+        let (old, parent) = log.version(crate::correction_log::VersionKey(1)).unwrap();
+        assert_eq!(parent, None);
+        assert_eq!(old.labels_png, vec![3, 4]);
+        assert_eq!(old.summary_json, "{\"room\":1}");
+        assert_eq!(old.model, None, "not recorded before schema 2");
+        // A version made after the migration records its model.
+        let scene = crate::correction_log::SceneKey(1);
+        let conversation = log.open_conversation(scene, "mira").unwrap().key;
+        let state = crate::correction_log::StateRecord {
+            labels_png: vec![5],
+            summary_json: "{}".into(),
+            engine_state: vec![],
+            model: Some("0123456789ab".into()),
+        };
+        let (_, version) = log
+            .commit_turn(
+                &crate::correction_log::NewTurn {
+                    conversation,
+                    kind: "utterance",
+                    text: "that's a rug",
+                    focus_json: None,
+                    status: "applied",
+                    constraints_json: "[]",
+                    result_json: "{}",
+                    operator: "mira",
+                    effect: crate::correction_log::TurnEffect::NewVersion {
+                        base: crate::correction_log::VersionKey(1),
+                        state: state.clone(),
+                        utterance: "that's a rug".into(),
+                        constraints_json: "[]".into(),
+                    },
+                },
+                None,
+            )
+            .unwrap();
+        assert_eq!(log.version(version.unwrap()).unwrap().0, state);
+        assert_eq!(log.integrity_check().unwrap(), "ok");
+    }
+
+    #[test]
+    fn a_version_1_database_with_rows_migrates_and_keeps_them() {
+        let mut connection = Connection::open_in_memory().unwrap();
+        prepare_up_to(&mut connection, 1).unwrap();
+        assert_eq!(recorded_version(&connection).unwrap(), 1);
+        connection
+            .execute_batch(
+                "INSERT INTO blobs (hash, bytes) VALUES ('h', x'00');
+                 INSERT INTO scenes (id, name, image_hash, input_json, head_version, created_at, operator, row_schema)
+                     VALUES (1, 'hall', 'h', '{}', 1, 't', 'mira', 1);
+                 INSERT INTO scene_versions (id, scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
+                     VALUES (1, 1, NULL, 'h', '{}', x'', NULL, 't', 1);
+                 INSERT INTO conversations (id, scene_id, operator, opened_at, applied_stack, redo_stack, row_schema)
+                     VALUES (1, 1, 'mira', 't', '[]', '[]', 1);
+                 INSERT INTO turns (id, conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
+                     VALUES (1, 1, 'utterance', 'paint mug', NULL, 'applied', '[]', '{}', 1, 'mira', 't', 1);
+                 INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema)
+                     VALUES (1, 1, 1, 'h', 'h', 'h', 'paint mug', '[]', 'mira', 't', 1, 1);",
+            )
+            .unwrap();
+        prepare(&mut connection).unwrap();
+        assert_eq!(recorded_version(&connection).unwrap(), LOG_SCHEMA_VERSION);
+        let (operator, confirmed_by): (String, Option<String>) = connection
+            .query_row(
+                "SELECT operator, confirmed_by FROM training_examples",
+                [],
+                |row| Ok((row.get(0)?, row.get(1)?)),
+            )
+            .unwrap();
+        assert_eq!((operator.as_str(), confirmed_by), ("mira", None));
     }
 
     #[test]

@@ -12,12 +12,15 @@ use sha2::{Digest, Sha256};
 use super::schema::{self, LOG_SCHEMA_VERSION};
 use super::{now_text, ConversationKey, LogError, SceneKey, TurnKey, VersionKey};
 
-/// A scene labelling as stored: the label map as index PNG bytes, the summary as JSON, engine state as bytes.
+/// A scene labelling as stored: the label map as index PNG bytes, the summary as JSON, engine state as
+/// bytes, and the id of the classifier model that produced it (`None`: not recorded, as in rows written
+/// before schema 2).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct StateRecord {
     pub labels_png: Vec<u8>,
     pub summary_json: String,
     pub engine_state: Vec<u8>,
+    pub model: Option<String>,
 }
 
 /// A scene to register.
@@ -146,7 +149,10 @@ pub struct ExampleRow {
     pub labels_after_hash: String,
     pub utterance: String,
     pub constraints_json: String,
+    /// The operator who said the utterance.
     pub operator: String,
+    /// The operator who confirmed the change, when it was held for confirmation (schema 2 on).
+    pub confirmed_by: Option<String>,
     pub created_at: String,
     pub row_schema: i64,
 }
@@ -195,11 +201,30 @@ fn write_turn(
             if base.0 != head {
                 return Err(LogError::Stale { head, base: base.0 });
             }
+            // A confirmation applies a change someone said earlier: the example names who said it (the
+            // operator of the turn that was held) and, apart, who confirmed it.
+            let held_by: Option<String> = if turn.kind == "confirm" {
+                transaction
+                    .query_row(
+                        "SELECT t.operator FROM pending_changes p JOIN turns t ON t.id = p.turn_id
+                         WHERE p.conversation_id = ?1",
+                        [turn.conversation.0],
+                        |row| row.get(0),
+                    )
+                    .optional()?
+            } else {
+                None
+            };
+            let (said_by, confirmed_by) = match &held_by {
+                Some(said_by) => (said_by.as_str(), Some(turn.operator)),
+                None if turn.kind == "confirm" => (turn.operator, Some(turn.operator)),
+                None => (turn.operator, None),
+            };
             let labels_hash = put_blob(transaction, &state.labels_png)?;
             transaction.execute(
-                "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
-                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
-                params![scene, base.0, labels_hash, state.summary_json, state.engine_state, turn_key.0, now, LOG_SCHEMA_VERSION],
+                "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema, model)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9)",
+                params![scene, base.0, labels_hash, state.summary_json, state.engine_state, turn_key.0, now, LOG_SCHEMA_VERSION, state.model],
             )?;
             let version = transaction.last_insert_rowid();
             transaction.execute(
@@ -207,10 +232,10 @@ fn write_turn(
                 params![version, scene],
             )?;
             transaction.execute(
-                "INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema)
-                 SELECT ?1, ?2, ?3, s.image_hash, v.labels_hash, ?4, ?5, ?6, ?7, ?8, 1, ?9
+                "INSERT INTO training_examples (scene_id, version_id, turn_id, image_hash, labels_before_hash, labels_after_hash, utterance, constraints_json, operator, created_at, active, row_schema, confirmed_by)
+                 SELECT ?1, ?2, ?3, s.image_hash, v.labels_hash, ?4, ?5, ?6, ?7, ?8, 1, ?9, ?11
                  FROM scenes s JOIN scene_versions v ON v.id = ?10 WHERE s.id = ?1",
-                params![scene, version, turn_key.0, labels_hash, utterance, constraints_json, turn.operator, now, LOG_SCHEMA_VERSION, base.0],
+                params![scene, version, turn_key.0, labels_hash, utterance, constraints_json, said_by, now, LOG_SCHEMA_VERSION, base.0, confirmed_by],
             )?;
             transaction.execute(
                 "DELETE FROM pending_changes WHERE conversation_id = ?1",
@@ -230,9 +255,9 @@ fn write_turn(
         } => {
             let labels_hash = put_blob(transaction, &state.labels_png)?;
             transaction.execute(
-                "INSERT OR REPLACE INTO pending_changes (conversation_id, turn_id, base_version, labels_hash, summary_json, engine_state, reason, changes_json, created_at, row_schema)
-                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)",
-                params![turn.conversation.0, turn_key.0, base.0, labels_hash, state.summary_json, state.engine_state, reason, changes_json, now, LOG_SCHEMA_VERSION],
+                "INSERT OR REPLACE INTO pending_changes (conversation_id, turn_id, base_version, labels_hash, summary_json, engine_state, reason, changes_json, created_at, row_schema, model)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)",
+                params![turn.conversation.0, turn_key.0, base.0, labels_hash, state.summary_json, state.engine_state, reason, changes_json, now, LOG_SCHEMA_VERSION, state.model],
             )?;
         }
         TurnEffect::ClearPending => {
@@ -313,6 +338,11 @@ fn stack_text(stack: &[VersionKey]) -> String {
 }
 
 impl CorrectionLog {
+    /// The connection, for the queries of sibling modules (export filters).
+    pub(super) fn connection(&self) -> &Connection {
+        &self.connection
+    }
+
     /// Opens (creating if needed) the log at `path`, migrating its schema.
     pub fn open(path: &Path) -> Result<CorrectionLog, LogError> {
         if let Some(parent) = path.parent() {
@@ -376,9 +406,9 @@ impl CorrectionLog {
         )?;
         let scene_key = SceneKey(transaction.last_insert_rowid());
         transaction.execute(
-            "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema)
-             VALUES (?1, NULL, ?2, ?3, ?4, NULL, ?5, ?6)",
-            params![scene_key.0, labels_hash, scene.state.summary_json, scene.state.engine_state, now, LOG_SCHEMA_VERSION],
+            "INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema, model)
+             VALUES (?1, NULL, ?2, ?3, ?4, NULL, ?5, ?6, ?7)",
+            params![scene_key.0, labels_hash, scene.state.summary_json, scene.state.engine_state, now, LOG_SCHEMA_VERSION, scene.state.model],
         )?;
         let version = VersionKey(transaction.last_insert_rowid());
         transaction.execute(
@@ -505,7 +535,7 @@ impl CorrectionLog {
     ) -> Result<(StateRecord, Option<VersionKey>), LogError> {
         self.connection
             .query_row(
-                "SELECT b.bytes, v.summary_json, v.engine_state, v.parent_id
+                "SELECT b.bytes, v.summary_json, v.engine_state, v.parent_id, v.model
                  FROM scene_versions v JOIN blobs b ON b.hash = v.labels_hash WHERE v.id = ?1",
                 [version.0],
                 |row| {
@@ -514,6 +544,7 @@ impl CorrectionLog {
                             labels_png: row.get(0)?,
                             summary_json: row.get(1)?,
                             engine_state: row.get(2)?,
+                            model: row.get(4)?,
                         },
                         row.get::<_, Option<i64>>(3)?.map(VersionKey),
                     ))
@@ -597,7 +628,7 @@ impl CorrectionLog {
         Ok(self
             .connection
             .query_row(
-                "SELECT p.turn_id, p.base_version, b.bytes, p.summary_json, p.engine_state, p.reason, p.changes_json
+                "SELECT p.turn_id, p.base_version, b.bytes, p.summary_json, p.engine_state, p.reason, p.changes_json, p.model
                  FROM pending_changes p JOIN blobs b ON b.hash = p.labels_hash WHERE p.conversation_id = ?1",
                 [conversation.0],
                 |row| {
@@ -609,6 +640,7 @@ impl CorrectionLog {
                             labels_png: row.get(2)?,
                             summary_json: row.get(3)?,
                             engine_state: row.get(4)?,
+                            model: row.get(7)?,
                         },
                         reason: row.get(5)?,
                         changes_json: row.get(6)?,
@@ -622,7 +654,8 @@ impl CorrectionLog {
     pub fn training_examples(&self) -> Result<Vec<ExampleRow>, LogError> {
         let mut statement = self.connection.prepare(
             "SELECT e.id, e.scene_id, s.name, e.version_id, e.turn_id, e.image_hash, e.labels_before_hash,
-                    e.labels_after_hash, e.utterance, e.constraints_json, e.operator, e.created_at, e.row_schema
+                    e.labels_after_hash, e.utterance, e.constraints_json, e.operator, e.created_at, e.row_schema,
+                    e.confirmed_by
              FROM training_examples e JOIN scenes s ON s.id = e.scene_id WHERE e.active = 1 ORDER BY e.id",
         )?;
         let rows = statement.query_map([], |row| {
@@ -640,6 +673,7 @@ impl CorrectionLog {
                 operator: row.get(10)?,
                 created_at: row.get(11)?,
                 row_schema: row.get(12)?,
+                confirmed_by: row.get(13)?,
             })
         })?;
         Ok(rows.collect::<Result<Vec<_>, _>>()?)
@@ -662,6 +696,7 @@ mod tests {
             labels_png: vec![byte; 8],
             summary_json: format!("{{\"v\":{byte}}}"),
             engine_state: vec![byte],
+            model: Some(format!("model-{byte}")),
         }
     }
 

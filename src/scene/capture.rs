@@ -96,9 +96,31 @@ fn read_json<T: serde::de::DeserializeOwned>(path: &Path) -> Result<T, SceneErro
         path: path.to_path_buf(),
         message,
     };
-    let text = std::fs::read_to_string(path)
-        .map_err(|error| metadata_error(format!("cannot read: {error}")))?;
-    serde_json::from_str(&text).map_err(|error| metadata_error(format!("not valid: {error}")))
+    let bytes =
+        std::fs::read(path).map_err(|error| metadata_error(format!("cannot read: {error}")))?;
+    let text = std::str::from_utf8(&bytes).map_err(|error| {
+        metadata_error(format!(
+            "not UTF-8 text (the first bad byte is at offset {})",
+            error.valid_up_to()
+        ))
+    })?;
+    serde_json::from_str(text).map_err(|error| metadata_error(format!("not valid: {error}")))
+}
+
+/// Why a scene name cannot be shown to people as it is, if it cannot: it holds a control character (NUL,
+/// a line break...) or a bidirectional override or isolate (U+202A..U+202E, U+2066..U+2069), which would
+/// make the name, or the text printed after it, read differently from what it is.
+pub fn scene_name_problem(name: &str) -> Option<String> {
+    name.chars().enumerate().find_map(|(index, character)| {
+        let bidi = matches!(character, '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}');
+        (character.is_control() || bidi).then(|| {
+            format!(
+                "character {index} of the name is U+{:04X}, a {} character; names are plain text",
+                u32::from(character),
+                if bidi { "text-direction" } else { "control" }
+            )
+        })
+    })
 }
 
 /// Reads `camera.json`: the intrinsics (all four or none) and the depth unit in millimetres (default 1).
@@ -219,6 +241,12 @@ pub fn load_capture(directory: &Path, pixel_limit: u64) -> Result<Capture, Scene
             ),
         });
     }
+    if let Some(problem) = metadata.name.as_deref().and_then(scene_name_problem) {
+        return Err(SceneError::Metadata {
+            path: metadata_path,
+            message: problem,
+        });
+    }
     let name = metadata.name.clone().unwrap_or_else(|| {
         directory.file_name().map_or("scene".to_string(), |name| {
             name.to_string_lossy().into_owned()
@@ -232,4 +260,39 @@ pub fn load_capture(directory: &Path, pixel_limit: u64) -> Result<Capture, Scene
         camera,
         room: metadata.room,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_with_control_or_direction_characters_are_refused() {
+        assert_eq!(scene_name_problem("Juniper Lane hall, morning"), None);
+        assert_eq!(scene_name_problem("salle de séjour"), None);
+        for (name, index) in [
+            ("hall\u{0}", 4),
+            ("hall\nkitchen", 4),
+            ("\u{202E}llah", 0),
+            ("hall\u{2067}", 4),
+        ] {
+            let problem = scene_name_problem(name).unwrap();
+            assert!(problem.contains(&format!("character {index}")), "{problem}");
+        }
+    }
+
+    #[test]
+    fn scene_json_that_is_not_utf8_is_named_as_such() {
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("scene.json");
+        std::fs::write(&path, b"{\"name\": \"hall\xff\"}").unwrap();
+        let error = read_json::<SceneMetadata>(&path).unwrap_err().to_string();
+        assert!(
+            error.contains("not UTF-8") && error.contains("offset 14"),
+            "{error}"
+        );
+        std::fs::write(&path, "{\"name\": \"hall\\u202e\"}").unwrap();
+        let metadata: SceneMetadata = read_json(&path).unwrap();
+        assert!(scene_name_problem(metadata.name.as_deref().unwrap()).is_some());
+    }
 }

@@ -17,10 +17,20 @@
 //! rate_per_second = 100.0        # per token (or per caller when no tokens are set)
 //! rate_burst = 200
 //! request_timeout_ms = 10000
+//! header_timeout_ms = 5000        # to send a request's head; also the longest a kept-alive connection idles
+//! max_connections = 256           # open connections; more are answered 503 with Retry-After and closed
+//! max_requests_in_flight = 64     # requests being worked on; more are answered 503 with Retry-After
+//! auth_failures_per_minute = 10.0 # wrong or missing tokens per client address before 429 with Retry-After
+//! auth_failure_burst = 10
 //!
 //! [[operators]]
 //! name = "mira"
-//! token = "a long random string"
+//! token = "kV8q-3zTn-Yp2w-Lr6d-Hc9x"  # at least 20 characters, at least 10 of them different
+//!
+//! [[operators]]
+//! name = "noor"
+//! token = "another long random string"
+//! role = "supervisor"            # may read and act on every operator's conversations
 //! ```
 
 use std::net::SocketAddr;
@@ -31,12 +41,30 @@ use serde::{Deserialize, Serialize};
 /// The port sayso listens on unless told otherwise.
 pub const DEFAULT_PORT: u16 = 8417;
 
-/// One operator and the bearer token they present.
+/// The shortest bearer token accepted, in characters.
+pub const TOKEN_MIN_CHARACTERS: usize = 20;
+/// The fewest different characters a bearer token must hold (refuses "aaaa..." and "abababab...").
+pub const TOKEN_MIN_DISTINCT_CHARACTERS: usize = 10;
+
+/// What an operator may act on.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Role {
+    /// Reads and acts on the conversations they opened (scenes are shared).
+    #[default]
+    Operator,
+    /// Reads and acts on every operator's conversations, e.g. to confirm a held change.
+    Supervisor,
+}
+
+/// One operator, the bearer token they present and their role.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct OperatorToken {
     pub name: String,
     pub token: String,
+    #[serde(default)]
+    pub role: Role,
 }
 
 /// Every setting of the service.
@@ -55,6 +83,17 @@ pub struct ServiceConfig {
     pub rate_per_second: f64,
     pub rate_burst: u32,
     pub request_timeout_ms: u64,
+    /// How long a client has to send a request's head (request line and headers); also how long a
+    /// kept-alive connection may wait idle for its next request. Past it the connection is closed.
+    pub header_timeout_ms: u64,
+    /// Open connections at once; past it a new connection is answered 503 with Retry-After and closed.
+    pub max_connections: usize,
+    /// Requests being worked on at once; past it a request is answered 503 with Retry-After.
+    pub max_requests_in_flight: usize,
+    /// Failed authentications (missing or wrong token) a client address may make a minute on average...
+    pub auth_failures_per_minute: f64,
+    /// ...and at once, before it is answered 429 with Retry-After.
+    pub auth_failure_burst: u32,
     pub operators: Vec<OperatorToken>,
 }
 
@@ -71,6 +110,11 @@ impl Default for ServiceConfig {
             rate_per_second: 100.0,
             rate_burst: 200,
             request_timeout_ms: 10_000,
+            header_timeout_ms: 5_000,
+            max_connections: 256,
+            max_requests_in_flight: 64,
+            auth_failures_per_minute: 10.0,
+            auth_failure_burst: 10,
             operators: Vec::new(),
         }
     }
@@ -99,6 +143,25 @@ pub enum ConfigError {
     },
     #[error("operator {name:?}: {problem}")]
     BadOperator { name: String, problem: &'static str },
+}
+
+/// Why a bearer token is too weak to accept, if it is: too short, too few different characters, or
+/// holding spaces or control characters (which do not survive an `Authorization` header intact).
+pub fn weak_token(token: &str) -> Option<&'static str> {
+    if token.chars().count() < TOKEN_MIN_CHARACTERS {
+        return Some("the token must be at least 20 characters");
+    }
+    if token
+        .chars()
+        .any(|character| character.is_whitespace() || character.is_control())
+    {
+        return Some("the token must not hold spaces or control characters");
+    }
+    let distinct: std::collections::HashSet<char> = token.chars().collect();
+    if distinct.len() < TOKEN_MIN_DISTINCT_CHARACTERS {
+        return Some("the token must hold at least 10 different characters");
+    }
+    None
 }
 
 impl ServiceConfig {
@@ -146,11 +209,26 @@ impl ServiceConfig {
                 found: format!("{} / {}", self.rate_per_second, self.rate_burst),
             });
         }
-        if self.request_timeout_ms == 0 {
+        for (field, value) in [
+            ("request_timeout_ms", self.request_timeout_ms),
+            ("header_timeout_ms", self.header_timeout_ms),
+            ("max_connections", self.max_connections as u64),
+            ("max_requests_in_flight", self.max_requests_in_flight as u64),
+            ("auth_failure_burst", u64::from(self.auth_failure_burst)),
+        ] {
+            if value == 0 {
+                return Err(ConfigError::OutOfRange {
+                    field,
+                    expected: "at least 1",
+                    found: "0".into(),
+                });
+            }
+        }
+        if !(self.auth_failures_per_minute > 0.0 && self.auth_failures_per_minute.is_finite()) {
             return Err(ConfigError::OutOfRange {
-                field: "request_timeout_ms",
-                expected: "at least 1",
-                found: "0".into(),
+                field: "auth_failures_per_minute",
+                expected: "a positive number",
+                found: self.auth_failures_per_minute.to_string(),
             });
         }
         let mut seen = std::collections::HashSet::new();
@@ -161,10 +239,10 @@ impl ServiceConfig {
                     problem: "the name is empty",
                 });
             }
-            if operator.token.len() < 16 {
+            if let Some(problem) = weak_token(&operator.token) {
                 return Err(ConfigError::BadOperator {
                     name: operator.name.clone(),
-                    problem: "the token must be at least 16 characters",
+                    problem,
                 });
             }
             if !seen.insert(operator.token.as_str()) {
@@ -215,6 +293,40 @@ mod tests {
         )
         .unwrap();
         with_tokens.validate().unwrap();
+    }
+
+    #[test]
+    fn weak_tokens_are_refused_at_load_and_roles_default_to_operator() {
+        for (token, accepted) in [
+            ("juniper-lane-0123456789", true),
+            ("kV8q-3zTn-Yp2w-Lr6d-Hc9x", true),
+            ("abcdefghijklmnopqrs", false),            // 19 characters
+            ("aaaaaaaaaaaaaaaaaaaaaaaaaaaaaa", false), // one character, repeated
+            ("abababababababababababab", false),       // two characters
+            ("juniper lane 0123456789", false),        // a space
+            ("juniper-lane-\u{7}0123456789", false),   // a control character
+        ] {
+            assert_eq!(weak_token(token).is_none(), accepted, "{token:?}");
+        }
+        let weak = ServiceConfig::parse(
+            "[[operators]]\nname = \"ola\"\ntoken = \"aaaaaaaaaaaaaaaaaaaaaaaa\"\n",
+            Path::new("sayso.toml"),
+        )
+        .unwrap();
+        assert_eq!(weak.operators[0].role, Role::Operator);
+        let error = weak.validate().unwrap_err().to_string();
+        assert!(error.contains("10 different characters"), "{error}");
+        let supervisor = ServiceConfig::parse(
+            "[[operators]]\nname = \"noor\"\ntoken = \"juniper-lane-0123456789\"\nrole = \"supervisor\"\n",
+            Path::new("sayso.toml"),
+        )
+        .unwrap();
+        assert_eq!(supervisor.operators[0].role, Role::Supervisor);
+        let unknown_role = ServiceConfig::parse(
+            "[[operators]]\nname = \"noor\"\ntoken = \"juniper-lane-0123456789\"\nrole = \"boss\"\n",
+            Path::new("sayso.toml"),
+        );
+        assert!(unknown_role.is_err());
     }
 
     #[test]

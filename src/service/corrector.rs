@@ -58,6 +58,10 @@ pub struct SceneObject {
 pub struct SceneSummary {
     pub objects: Vec<SceneObject>,
     pub room: Option<RoomId>,
+    /// The id of the classifier model whose scores this state was solved from, when the corrector knows
+    /// it (`crate::unaries::classifier::model_id`); the log records it with the version.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub model: Option<String>,
 }
 
 /// A scene's labelling at one version: label map, summary, and whatever else the engine needs later.

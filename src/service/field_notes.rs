@@ -60,8 +60,31 @@ pub struct FieldNotesReport {
 /// Parses the records of a file; blank lines and lines starting with `#` are skipped. A line that cannot
 /// be read becomes an `Err` with its reason, kept in place so the report names it.
 pub fn parse_notes(text: &str) -> Vec<(usize, Result<FieldNote, String>)> {
+    parse_note_bytes(text.as_bytes())
+}
+
+/// As `parse_notes`, for a file's bytes: a line that is not UTF-8 is reported (with the offset of its first
+/// bad byte) and the other lines are read as usual.
+pub fn parse_note_bytes(bytes: &[u8]) -> Vec<(usize, Result<FieldNote, String>)> {
     let mut records = Vec::new();
-    for (index, raw) in text.lines().enumerate() {
+    let mut lines: Vec<&[u8]> = bytes.split(|&byte| byte == b'\n').collect();
+    if lines.last().is_some_and(|line| line.is_empty()) {
+        lines.pop();
+    }
+    for (index, raw) in lines.into_iter().enumerate() {
+        let raw = match std::str::from_utf8(raw) {
+            Ok(text) => text,
+            Err(error) => {
+                records.push((
+                    index + 1,
+                    Err(format!(
+                        "the line is not UTF-8 text (the first bad byte is at column {})",
+                        error.valid_up_to() + 1
+                    )),
+                ));
+                continue;
+            }
+        };
         let line = raw.trim_end_matches('\r');
         if line.trim().is_empty() || line.trim_start().starts_with('#') {
             continue;
@@ -111,14 +134,15 @@ fn outcome_name(outcome: NoteOutcome) -> &'static str {
     }
 }
 
-/// Applies every record as `operator`, one conversation per scene, calling `progress(done, total)`.
+/// Applies every record of a notes file's bytes as `operator`, one conversation per scene, calling
+/// `progress(done, total)`. A line that cannot be read is reported skipped with its reason; the rest go on.
 pub fn apply_notes(
     coordinator: &Coordinator,
-    text: &str,
+    notes: impl AsRef<[u8]>,
     operator: &str,
     mut progress: impl FnMut(usize, usize),
 ) -> FieldNotesReport {
-    let records = parse_notes(text);
+    let records = parse_note_bytes(notes.as_ref());
     let total = records.len();
     let mut conversations: HashMap<SceneKey, ConversationKey> = HashMap::new();
     let mut report = FieldNotesReport::default();
@@ -229,5 +253,21 @@ mod tests {
         assert!(records[2].1.as_ref().unwrap_err().contains("\"x\""));
         assert!(records[3].1.is_err());
         assert_eq!(records[3].0, 6);
+    }
+
+    #[test]
+    fn a_line_with_a_bad_byte_is_reported_and_the_rest_are_read() {
+        let bytes = b"2\tthe mug is a vase\r\n3\tthe cat is a to\xffwel\n4\tthe rug is a mat";
+        let records = parse_note_bytes(bytes);
+        assert_eq!(records.len(), 3);
+        assert_eq!(records[0].1.as_ref().unwrap().text, "the mug is a vase");
+        assert_eq!(records[1].0, 2);
+        let reason = records[1].1.as_ref().unwrap_err();
+        assert!(
+            reason.contains("not UTF-8") && reason.contains("column 18"),
+            "{reason}"
+        );
+        assert_eq!(records[2].0, 3);
+        assert_eq!(records[2].1.as_ref().unwrap().scene_id, 4);
     }
 }

@@ -6,31 +6,49 @@
 
 use std::sync::Arc;
 
-use axum::extract::rejection::JsonRejection;
-use axum::extract::{Path, State};
+use axum::extract::rejection::{JsonRejection, QueryRejection};
+use axum::extract::{Path, Query, State};
 use axum::http::StatusCode;
 use axum::response::{IntoResponse, Response};
 use axum::{Extension, Json};
 
 use crate::correction_log::{ConversationKey, SceneKey};
 
-use super::coordinator::{Coordinator, SceneUpload};
+use super::abandon;
+use super::coordinator::{Caller, Coordinator, PageRequest, SceneUpload};
 use super::error::ApiError;
-use super::guard::{bytes_response, Operator};
+use super::guard::bytes_response;
 use super::wire::{
-    ClassOut, ConversationOut, ErrorBody, HealthOut, HistoryOut, OpenConversationRequest,
-    RegisterSceneRequest, SceneCreated, SceneGraphOut, TurnReply, UtteranceReply, UtteranceRequest,
+    ClassOut, ConversationOut, ConversationPage, ErrorBody, HealthOut, HistoryOut,
+    OpenConversationRequest, PageQuery, RegisterSceneRequest, SceneCreated, SceneGraphOut,
+    ScenePage, TurnReply, UtteranceReply, UtteranceRequest,
 };
 use super::AppState;
 
+/// Runs `work` on a blocking thread, under the request's commit gate (`super::abandon`).
 async fn blocking<T: Send + 'static>(
     state: &AppState,
     work: impl FnOnce(&Coordinator) -> Result<T, ApiError> + Send + 'static,
 ) -> Result<T, ApiError> {
     let coordinator: Arc<Coordinator> = state.coordinator.clone();
-    tokio::task::spawn_blocking(move || work(&coordinator))
+    let gate = abandon::current_request_gate();
+    tokio::task::spawn_blocking(move || abandon::with_gate(gate, || work(&coordinator)))
         .await
         .map_err(ApiError::internal)?
+}
+
+fn page(query: Result<Query<PageQuery>, QueryRejection>) -> Result<PageRequest, ApiError> {
+    match query {
+        Ok(Query(query)) => PageRequest::new(query.after, query.limit),
+        Err(error) => Err(ApiError::bad_request(
+            "bad_page",
+            format!(
+                "the query takes after (an id, 0 or more) and limit (1 to {}): {}",
+                super::coordinator::PAGE_LIMIT_MAX,
+                error.body_text()
+            ),
+        )),
+    }
 }
 
 fn body<T>(payload: Result<Json<T>, JsonRejection>) -> Result<T, ApiError> {
@@ -140,6 +158,44 @@ pub async fn classes(State(state): State<AppState>) -> Response {
     (StatusCode::OK, Json(classes)).into_response()
 }
 
+/// List registered scenes, a page at a time, by ascending id. Every operator may read every scene.
+#[utoipa::path(get, path = "/v1/scenes", tag = "scenes", security(("bearer" = [])),
+    params(PageQuery),
+    responses((status = 200, description = "One page of scenes", body = ScenePage),
+        (status = 400, description = "after below 0, limit outside 1..=200, or another query key", body = ErrorBody)))]
+pub async fn list_scenes(
+    State(state): State<AppState>,
+    query: Result<Query<PageQuery>, QueryRejection>,
+) -> Response {
+    let result = async {
+        let page = page(query)?;
+        blocking(&state, move |coordinator| Ok(coordinator.scenes_page(page))).await
+    }
+    .await;
+    answer(result, StatusCode::OK)
+}
+
+/// List the conversations the caller may read (their own; every one for a supervisor), by ascending id.
+#[utoipa::path(get, path = "/v1/conversations", tag = "conversations", security(("bearer" = [])),
+    params(PageQuery),
+    responses((status = 200, description = "One page of conversations", body = ConversationPage),
+        (status = 400, description = "after below 0, limit outside 1..=200, or another query key", body = ErrorBody)))]
+pub async fn list_conversations(
+    State(state): State<AppState>,
+    Extension(caller): Extension<Caller>,
+    query: Result<Query<PageQuery>, QueryRejection>,
+) -> Response {
+    let result = async {
+        let page = page(query)?;
+        blocking(&state, move |coordinator| {
+            Ok(coordinator.conversations_page(&caller, page))
+        })
+        .await
+    }
+    .await;
+    answer(result, StatusCode::OK)
+}
+
 /// Register a scene from an image (with optional depth, scores, label map, detections) or a demo name.
 #[utoipa::path(post, path = "/v1/scenes", tag = "scenes", security(("bearer" = [])),
     request_body = RegisterSceneRequest,
@@ -151,13 +207,13 @@ pub async fn classes(State(state): State<AppState>) -> Response {
         (status = 422, description = "Unreadable PNG or NPY, sizes that do not match, unknown names", body = ErrorBody)))]
 pub async fn register_scene(
     State(state): State<AppState>,
-    Extension(Operator(operator)): Extension<Operator>,
+    Extension(caller): Extension<Caller>,
     payload: Result<Json<RegisterSceneRequest>, JsonRejection>,
 ) -> Response {
     let result = async {
         let upload = SceneUpload::from_request(body(payload)?)?;
         blocking(&state, move |coordinator| {
-            coordinator.register_scene(upload, &operator)
+            coordinator.register_scene(upload, &caller.name)
         })
         .await
     }
@@ -221,14 +277,14 @@ pub async fn overlay(State(state): State<AppState>, Path(scene_id): Path<String>
         (status = 404, description = "Unknown scene", body = ErrorBody)))]
 pub async fn open_conversation(
     State(state): State<AppState>,
-    Extension(Operator(operator)): Extension<Operator>,
+    Extension(caller): Extension<Caller>,
     payload: Result<Json<OpenConversationRequest>, JsonRejection>,
 ) -> Response {
     let result = async {
         let request = body(payload)?;
         let scene = SceneKey(request.scene_id);
         blocking(&state, move |coordinator| {
-            coordinator.open_conversation(scene, &operator)
+            coordinator.open_conversation(scene, &caller.name)
         })
         .await
     }
@@ -243,11 +299,16 @@ pub async fn open_conversation(
         (status = 404, description = "Unknown conversation", body = ErrorBody)))]
 pub async fn history(
     State(state): State<AppState>,
+    Extension(caller): Extension<Caller>,
     Path(conversation_id): Path<String>,
 ) -> Response {
     let result = async {
         let conversation = ConversationKey(path_id(&conversation_id, "conversation")?);
-        blocking(&state, move |coordinator| coordinator.history(conversation)).await
+        blocking(&state, move |coordinator| {
+            coordinator.check_access(conversation, &caller)?;
+            coordinator.history(conversation)
+        })
+        .await
     }
     .await;
     answer(result, StatusCode::OK)
@@ -266,7 +327,7 @@ pub async fn history(
         (status = 429, description = "Rate limited", body = ErrorBody)))]
 pub async fn utterance(
     State(state): State<AppState>,
-    Extension(Operator(operator)): Extension<Operator>,
+    Extension(caller): Extension<Caller>,
     Path(conversation_id): Path<String>,
     payload: Result<Json<UtteranceRequest>, JsonRejection>,
 ) -> Response {
@@ -275,7 +336,8 @@ pub async fn utterance(
         let request = body(payload)?;
         super::coordinator::check_utterance_text(&request.text)?;
         blocking(&state, move |coordinator| {
-            coordinator.utterance(conversation, &operator, &request.text, request.focus)
+            coordinator.check_access(conversation, &caller)?;
+            coordinator.utterance(conversation, &caller.name, &request.text, request.focus)
         })
         .await
     }
@@ -293,13 +355,14 @@ macro_rules! turn_route {
                 (status = 409, description = "Nothing to do, or the scene moved on", body = ErrorBody)))]
         pub async fn $name(
             State(state): State<AppState>,
-            Extension(Operator(operator)): Extension<Operator>,
+            Extension(caller): Extension<Caller>,
             Path(conversation_id): Path<String>,
         ) -> Response {
             let result = async {
                 let conversation = ConversationKey(path_id(&conversation_id, "conversation")?);
                 blocking(&state, move |coordinator| {
-                    coordinator.$method(conversation, &operator)
+                    coordinator.check_access(conversation, &caller)?;
+                    coordinator.$method(conversation, &caller.name)
                 })
                 .await
             }

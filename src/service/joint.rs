@@ -214,6 +214,11 @@ impl<V: Clone> Bounded<V> {
         self.entries.get(key).cloned()
     }
 
+    fn clear(&mut self) {
+        self.entries.clear();
+        self.order.clear();
+    }
+
     fn insert(&mut self, key: String, value: V) {
         if self.entries.insert(key.clone(), value).is_none() {
             self.order.push_back(key);
@@ -229,7 +234,8 @@ impl<V: Clone> Bounded<V> {
 /// The joint pipeline as a service engine.
 pub struct JointCorrector {
     settings: CorrectionSettings,
-    classifier: Classifier,
+    /// The built-in classifier; `replace_classifier` swaps it while the service runs.
+    classifier: std::sync::RwLock<Arc<Classifier>>,
     prepared: Mutex<Bounded<Arc<PreparedInput>>>,
     solved: Mutex<Bounded<Arc<Correction>>>,
     /// Turns re-solved to rebuild versions the cache and the snapshots did not hold, since start.
@@ -251,11 +257,34 @@ impl JointCorrector {
     pub fn new(settings: CorrectionSettings, classifier: Classifier) -> JointCorrector {
         JointCorrector {
             settings,
-            classifier,
+            classifier: std::sync::RwLock::new(Arc::new(classifier)),
             prepared: Mutex::new(Bounded::new(PREPARED_CACHE)),
             solved: Mutex::new(Bounded::new(SOLVED_CACHE)),
             replayed: std::sync::atomic::AtomicU64::new(0),
         }
+    }
+
+    /// Serves `classifier` from now on: scenes prepared with the one before are dropped from the cache, so
+    /// every later turn scores its scene with the new model (a turn already running finishes with the old
+    /// one, and its version records the old model's id). Stored versions are not re-solved.
+    pub fn replace_classifier(&self, classifier: Classifier) {
+        *self
+            .classifier
+            .write()
+            .unwrap_or_else(|poisoned| poisoned.into_inner()) = Arc::new(classifier);
+        lock(&self.prepared).clear();
+    }
+
+    /// The id of the classifier now served.
+    pub fn model_id(&self) -> String {
+        self.current_classifier().id().to_string()
+    }
+
+    fn current_classifier(&self) -> Arc<Classifier> {
+        self.classifier
+            .read()
+            .unwrap_or_else(|poisoned| poisoned.into_inner())
+            .clone()
     }
 
     /// How many turns this corrector has re-solved to rebuild a version it had neither cached nor could
@@ -292,8 +321,12 @@ impl JointCorrector {
         if let Some(found) = lock(&self.prepared).get(&digest) {
             return Ok(found);
         }
-        let prepared = Arc::new(prepare_input(input, self.taxonomy(), &self.classifier)?);
-        lock(&self.prepared).insert(digest, prepared.clone());
+        let classifier = self.current_classifier();
+        let prepared = Arc::new(prepare_input(input, self.taxonomy(), &classifier)?);
+        // A model replaced meanwhile: this turn keeps the scores it has, but the cache does not.
+        if self.current_classifier().id() == classifier.id() {
+            lock(&self.prepared).insert(digest, prepared.clone());
+        }
         Ok(prepared)
     }
 
@@ -429,6 +462,7 @@ impl JointCorrector {
             summary: SceneSummary {
                 objects,
                 room: Some(graph.room),
+                model: prepared.model.clone(),
             },
             engine_state,
         }

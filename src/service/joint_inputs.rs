@@ -26,6 +26,8 @@ pub struct PreparedInput {
     pub scene: Scene,
     pub unaries: Unaries,
     pub detections: Vec<HypothesisDetection>,
+    /// The id of the built-in classifier that scored the scene (`None` when the scores came with it).
+    pub model: Option<String>,
 }
 
 /// The lower-case hex SHA-256 of everything that decides a scene's solve: its name, pixels, depth, scores,
@@ -155,10 +157,13 @@ pub fn prepare_input(
             mask: None,
         })
         .collect();
+    let model =
+        matches!(unaries.source, UnarySource::BuiltIn { .. }).then(|| classifier.id().to_string());
     Ok(PreparedInput {
         scene,
         unaries,
         detections,
+        model,
     })
 }
 

@@ -3,6 +3,10 @@
 //! Owns: `Metrics` — requests by route, method and status; request latency histogram by route; solver gap
 //! histogram; turns and corrections logged — and their text rendering.
 //! Must not: time anything itself beyond what callers record, or depend on handler internals.
+//!
+//! Labels are bounded: callers pass route templates and a closed set of methods (`guard::method_label`),
+//! and past `SERIES_LIMIT` label sets anything new is counted under `route="other"`, so no caller can make
+//! the metrics, or the memory holding them, grow without end.
 
 use std::collections::BTreeMap;
 use std::fmt::Write;
@@ -13,6 +17,9 @@ use std::sync::Mutex;
 const LATENCY_BUCKETS: [f64; 12] = [
     0.001, 0.002, 0.005, 0.01, 0.02, 0.03, 0.05, 0.1, 0.25, 0.5, 1.0, 5.0,
 ];
+/// The most request label sets (route, method, status) kept; later new ones count under `route="other"`.
+pub const SERIES_LIMIT: usize = 512;
+
 /// Upper bounds of the relative solver gap buckets.
 const GAP_BUCKETS: [f64; 7] = [0.0, 0.001, 0.01, 0.02, 0.05, 0.1, 0.5];
 
@@ -81,12 +88,19 @@ fn escape_label(value: &str) -> String {
 impl Metrics {
     /// Records one finished request.
     pub fn record_request(&self, route: &str, method: &str, status: u16, seconds: f64) {
+        let mut route = route;
         if let Ok(mut requests) = self.requests.lock() {
-            *requests
-                .entry((route.to_string(), method.to_string(), status))
-                .or_insert(0) += 1;
+            let mut key = (route.to_string(), method.to_string(), status);
+            if !requests.contains_key(&key) && requests.len() >= SERIES_LIMIT {
+                route = "other";
+                key = ("other".to_string(), "other".to_string(), status);
+            }
+            *requests.entry(key).or_insert(0) += 1;
         }
         if let Ok(mut latency) = self.latency.lock() {
+            if !latency.contains_key(route) && latency.len() >= SERIES_LIMIT {
+                route = "other";
+            }
             latency
                 .entry(route.to_string())
                 .or_default()
@@ -173,6 +187,22 @@ impl Metrics {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn label_sets_stop_growing_at_the_limit() {
+        let metrics = Metrics::default();
+        for index in 0..(SERIES_LIMIT * 3) {
+            metrics.record_request(&format!("/made/up/{index}"), "GET", 404, 0.001);
+        }
+        let series = metrics
+            .render()
+            .matches("sayso_http_requests_total{")
+            .count();
+        assert_eq!(series, SERIES_LIMIT + 1);
+        assert!(metrics.render().contains(
+            "sayso_http_requests_total{route=\"other\",method=\"other\",status=\"404\"}"
+        ));
+    }
 
     #[test]
     fn histogram_buckets_are_cumulative_and_counted() {

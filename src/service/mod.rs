@@ -1,7 +1,8 @@
 //! The correction service: an HTTP API (axum on tokio) over the coordinator and the correction log.
 //!
 //! Owns: `AppState`, `app(state) -> Router` (testable without a socket), `run(listener, shutdown)`, the
-//! route table under `/v1`, access control and limits, metrics and the OpenAPI document.
+//! route table under `/v1`, access control (tokens, roles, ownership of conversations) and limits, metrics
+//! and the OpenAPI document.
 //! Must not: work out corrections (that is the `Corrector`'s job, reached only through the coordinator) or
 //! write SQL (the correction log's job).
 //!
@@ -12,6 +13,7 @@
 //! The pipeline plugs in through one trait, [`corrector::Corrector`]; [`joint::JointCorrector`] (the joint
 //! pipeline of `crate::pipeline`) is the implementation the binary uses.
 
+pub mod abandon;
 pub mod config;
 mod console;
 pub mod coordinator;
@@ -24,10 +26,11 @@ pub mod joint;
 mod joint_inputs;
 pub mod metrics;
 pub mod openapi;
+mod server;
 pub mod wire;
 
-use std::collections::HashMap;
 use std::future::Future;
+use std::net::IpAddr;
 use std::sync::Arc;
 
 use axum::extract::DefaultBodyLimit;
@@ -44,28 +47,32 @@ pub struct AppState {
     pub coordinator: Arc<Coordinator>,
     pub config: Arc<ServiceConfig>,
     pub metrics: Arc<Metrics>,
-    limiter: Arc<guard::RateLimiter>,
-    /// Token to operator name.
-    tokens: Arc<HashMap<String, String>>,
+    /// Requests a second per operator.
+    limiter: Arc<guard::RateLimiter<String>>,
+    /// Failed authentications per client address.
+    auth_failures: Arc<guard::RateLimiter<IpAddr>>,
+    /// One permit per request being worked on (`max_requests_in_flight`).
+    in_flight: Arc<tokio::sync::Semaphore>,
+    tokens: Arc<guard::TokenTable>,
 }
 
 impl AppState {
     /// Builds the state from a coordinator (already open) and the settings.
     pub fn new(coordinator: Arc<Coordinator>, config: ServiceConfig) -> AppState {
-        let tokens = config
-            .operators
-            .iter()
-            .map(|operator| (operator.token.clone(), operator.name.clone()))
-            .collect();
         AppState {
             metrics: coordinator.metrics().clone(),
             limiter: Arc::new(guard::RateLimiter::new(
                 config.rate_per_second,
                 config.rate_burst,
             )),
+            auth_failures: Arc::new(guard::RateLimiter::new(
+                config.auth_failures_per_minute / 60.0,
+                config.auth_failure_burst,
+            )),
+            in_flight: Arc::new(tokio::sync::Semaphore::new(config.max_requests_in_flight)),
+            tokens: Arc::new(guard::TokenTable::new(&config.operators)),
             coordinator,
             config: Arc::new(config),
-            tokens: Arc::new(tokens),
         }
     }
 }
@@ -75,11 +82,17 @@ pub fn app(state: AppState) -> Router {
     let protected = Router::new()
         .route("/v1/metrics", get(handlers::metrics))
         .route("/v1/classes", get(handlers::classes))
-        .route("/v1/scenes", post(handlers::register_scene))
+        .route(
+            "/v1/scenes",
+            post(handlers::register_scene).get(handlers::list_scenes),
+        )
         .route("/v1/scenes/{scene_id}", get(handlers::scene_graph))
         .route("/v1/scenes/{scene_id}/labels.png", get(handlers::label_map))
         .route("/v1/scenes/{scene_id}/overlay.png", get(handlers::overlay))
-        .route("/v1/conversations", post(handlers::open_conversation))
+        .route(
+            "/v1/conversations",
+            post(handlers::open_conversation).get(handlers::list_conversations),
+        )
         .route(
             "/v1/conversations/{conversation_id}",
             get(handlers::history),
@@ -121,18 +134,22 @@ pub fn app(state: AppState) -> Router {
         ))
         .layer(axum::middleware::from_fn_with_state(
             state.clone(),
+            guard::shed_load,
+        ))
+        .layer(axum::middleware::from_fn_with_state(
+            state.clone(),
             guard::shape_and_measure,
         ))
         .with_state(state)
 }
 
-/// Serves `app(state)` on `listener` until `shutdown` resolves, then finishes requests in flight.
+/// Serves `app(state)` on `listener` until `shutdown` resolves, then finishes requests in flight; with the
+/// configured header timeout and connection cap (`server`).
 pub async fn run(
     listener: tokio::net::TcpListener,
     state: AppState,
     shutdown: impl Future<Output = ()> + Send + 'static,
 ) -> std::io::Result<()> {
-    axum::serve(listener, app(state))
-        .with_graceful_shutdown(shutdown)
-        .await
+    let limits = server::ConnectionLimits::from_config(&state.config);
+    server::serve(listener, app(state), limits, shutdown).await
 }

@@ -3,7 +3,13 @@
 //! Owns: `ApiDoc` and its JSON text (served at `/v1/openapi.json` and committed beside this file as
 //! `openapi.json`; a test regenerates it and fails on any drift).
 //! Must not: describe anything by hand that the types already say.
+//!
+//! What no handler's annotation says is added in one place, `add_refusals`: the refusals every route can
+//! give from the layers around it (head limits, load shedding, time limit, internal faults, and for routes
+//! behind a token the 401 and 429 of the guard), the 403 of the conversation routes, the 400/413/415 of a
+//! JSON body, the minimum of path ids, and the rule that a scene registration names a demo or an image.
 
+use serde_json::{json, Value};
 use utoipa::openapi::security::{HttpAuthScheme, HttpBuilder, SecurityScheme};
 use utoipa::{Modify, OpenApi};
 
@@ -39,10 +45,12 @@ configured, send `Authorization: Bearer <token>`."
         handlers::metrics,
         handlers::openapi_document,
         handlers::classes,
+        handlers::list_scenes,
         handlers::register_scene,
         handlers::scene_graph,
         handlers::label_map,
         handlers::overlay,
+        handlers::list_conversations,
         handlers::open_conversation,
         handlers::history,
         handlers::utterance,
@@ -57,7 +65,8 @@ configured, send `Authorization: Bearer <token>`."
         wire::ConversationOut, wire::FocusIn, wire::UtteranceRequest, wire::TextSpan,
         wire::ConstraintOut, wire::ChangeOut, wire::UnmetOut, wire::TurnStatus, wire::PendingOut,
         wire::UtteranceReply, wire::TurnReply, wire::TurnOut, wire::HistoryOut, wire::HealthOut,
-        wire::ClassOut,
+        wire::ClassOut, wire::SceneListed, wire::ScenePage, wire::ConversationListed,
+        wire::ConversationPage,
     )),
     modifiers(&BearerSecurity),
     tags(
@@ -68,11 +77,192 @@ configured, send `Authorization: Bearer <token>`."
 )]
 pub struct ApiDoc;
 
+fn error_response(description: &str, retry_after: bool, challenge: bool) -> Value {
+    let mut response = json!({
+        "description": description,
+        "content": {"application/json": {"schema": {"$ref": "#/components/schemas/ErrorBody"}}}
+    });
+    let mut headers = serde_json::Map::new();
+    if retry_after {
+        headers.insert(
+            "Retry-After".into(),
+            json!({"description": "Seconds to wait before trying again", "schema": {"type": "integer", "minimum": 1}}),
+        );
+    }
+    if challenge {
+        headers.insert(
+            "WWW-Authenticate".into(),
+            json!({"description": "The scheme to authenticate with: Bearer", "schema": {"type": "string"}}),
+        );
+    }
+    if !headers.is_empty() {
+        response["headers"] = Value::Object(headers);
+    }
+    response
+}
+
+/// Adds the refusals the layers give (see the module doc) to every operation, keeping any a handler
+/// already describes.
+fn add_refusals(document: &mut Value) {
+    let Some(paths) = document["paths"].as_object_mut() else {
+        return;
+    };
+    for (path, item) in paths.iter_mut() {
+        let Some(operations) = item.as_object_mut() else {
+            continue;
+        };
+        for operation in operations.values_mut() {
+            let secured = operation.get("security").is_some();
+            let has_body = operation.get("requestBody").is_some();
+            let has_id = path.contains('{');
+            // `get_mut`, not indexing: indexing a missing key would insert a null.
+            if let Some(parameters) = operation
+                .get_mut("parameters")
+                .and_then(Value::as_array_mut)
+            {
+                for parameter in parameters {
+                    if parameter["in"] == "path" && parameter["schema"]["type"] == "integer" {
+                        parameter["schema"]["minimum"] = json!(1);
+                    }
+                }
+            }
+            let mut refusals: Vec<(&str, Value)> = vec![
+                (
+                    "414",
+                    error_response("The request target is over 8 KiB (uri_too_long)", false, false),
+                ),
+                (
+                    "431",
+                    error_response(
+                        "More than 100 headers or 16 KiB of them (headers_too_large)",
+                        false,
+                        false,
+                    ),
+                ),
+                (
+                    "500",
+                    error_response("An internal fault; nothing was applied (internal)", false, false),
+                ),
+                (
+                    "503",
+                    error_response(
+                        "Too many requests in flight (overloaded, with Retry-After) or over the time limit \
+                         (timeout: nothing was stored)",
+                        true,
+                        false,
+                    ),
+                ),
+            ];
+            if secured {
+                refusals.push((
+                    "401",
+                    error_response(
+                        "No bearer token, or a wrong one (missing_token, wrong_token)",
+                        false,
+                        true,
+                    ),
+                ));
+                refusals.push((
+                    "429",
+                    error_response(
+                        "Over the operator's request rate (rate_limited) or too many failed logins from \
+                         this address (too_many_failed_logins)",
+                        true,
+                        false,
+                    ),
+                ));
+            }
+            if has_id {
+                refusals.push((
+                    "400",
+                    error_response(
+                        "An id that is not a positive integer (bad_id)",
+                        false,
+                        false,
+                    ),
+                ));
+            }
+            if path.starts_with("/v1/conversations/{conversation_id}") {
+                refusals.push((
+                    "403",
+                    error_response(
+                        "Another operator's conversation; only they or a supervisor may read it or act on \
+                         it (not_your_conversation)",
+                        false,
+                        false,
+                    ),
+                ));
+            }
+            if has_body {
+                refusals.push((
+                    "400",
+                    error_response(
+                        "The body is not JSON, or not the fields and types this route takes (bad_json, \
+                         wrong_shape)",
+                        false,
+                        false,
+                    ),
+                ));
+                refusals.push((
+                    "413",
+                    error_response(
+                        "The body is over body_limit_bytes (body_too_large)",
+                        false,
+                        false,
+                    ),
+                ));
+                refusals.push((
+                    "415",
+                    error_response(
+                        "The body is not sent as application/json (bad_content_type)",
+                        false,
+                        false,
+                    ),
+                ));
+            }
+            let Some(responses) = operation
+                .get_mut("responses")
+                .and_then(Value::as_object_mut)
+            else {
+                continue;
+            };
+            for (status, response) in refusals {
+                responses.entry(status).or_insert(response);
+            }
+        }
+    }
+    // Each kind of focus takes its own fields only (the wire type refuses unknown fields).
+    if let Some(variants) = document
+        .pointer_mut("/components/schemas/FocusIn/oneOf")
+        .and_then(Value::as_array_mut)
+    {
+        for variant in variants.iter_mut().filter_map(Value::as_object_mut) {
+            variant.insert("additionalProperties".into(), json!(false));
+        }
+    }
+    // A registration names a demo scene or sends an image: exactly one of the three.
+    let register = document
+        .pointer_mut("/components/schemas/RegisterSceneRequest")
+        .and_then(Value::as_object_mut);
+    if let Some(register) = register {
+        let named =
+            |field: &str| json!({"required": [field], "properties": {field: {"type": "string"}}});
+        register.insert(
+            "oneOf".into(),
+            json!([
+                named("demo"),
+                named("image_base64"),
+                named("image_png_base64")
+            ]),
+        );
+    }
+}
+
 /// The document as pretty JSON with a trailing newline, exactly as committed.
 pub fn document_json() -> String {
-    let mut text = ApiDoc::openapi()
-        .to_pretty_json()
-        .unwrap_or_else(|_| "{}".to_string());
+    let mut document = serde_json::to_value(ApiDoc::openapi()).unwrap_or_else(|_| json!({}));
+    add_refusals(&mut document);
+    let mut text = serde_json::to_string_pretty(&document).unwrap_or_else(|_| "{}".to_string());
     text.push('\n');
     text
 }
@@ -110,5 +300,38 @@ mod tests {
             document["paths"]["/v1/conversations/{conversation_id}/utterances"]["post"].is_object()
         );
         assert!(document["components"]["securitySchemes"]["bearer"].is_object());
+    }
+
+    #[test]
+    fn every_refusal_a_route_can_give_is_documented() {
+        let document: serde_json::Value = serde_json::from_str(&document_json()).unwrap();
+        let confirm = &document["paths"]["/v1/conversations/{conversation_id}/confirm"]["post"];
+        for status in [
+            "200", "400", "401", "403", "404", "409", "414", "429", "431", "500", "503",
+        ] {
+            assert!(confirm["responses"][status].is_object(), "confirm {status}");
+        }
+        assert_eq!(confirm["parameters"][0]["schema"]["minimum"], 1);
+        assert!(confirm["responses"]["429"]["headers"]["Retry-After"].is_object());
+        let register = &document["paths"]["/v1/scenes"]["post"];
+        for status in ["201", "400", "401", "404", "413", "415", "422", "503"] {
+            assert!(
+                register["responses"][status].is_object(),
+                "register {status}"
+            );
+        }
+        let health = &document["paths"]["/v1/health"]["get"];
+        assert!(
+            health["responses"]["401"].is_null(),
+            "health needs no token"
+        );
+        let schema = &document["components"]["schemas"]["RegisterSceneRequest"];
+        assert_eq!(schema["oneOf"].as_array().unwrap().len(), 3);
+        let text = &document["components"]["schemas"]["UtteranceRequest"]["properties"]["text"];
+        assert_eq!(
+            (text["minLength"].as_u64(), text["maxLength"].as_u64()),
+            (Some(1), Some(2000))
+        );
+        assert!(document["paths"]["/v1/conversations"]["get"].is_object());
     }
 }

@@ -8,6 +8,40 @@
 use serde::{Deserialize, Serialize};
 use utoipa::ToSchema;
 
+/// Reads a JSON integer also when it is written with a zero fraction (`2.0`): JSON Schema counts that an
+/// integer, and some JSON writers (Python's, for floats) write whole numbers so.
+mod whole {
+    use serde::de::Error;
+    use serde::{Deserialize, Deserializer};
+
+    #[derive(Deserialize)]
+    #[serde(untagged)]
+    enum Number {
+        Integer(i64),
+        Float(f64),
+    }
+
+    /// The largest magnitude below which every whole `f64` is exact (2^53).
+    const EXACT: f64 = 9_007_199_254_740_992.0;
+
+    pub fn deserialize<'de, D: Deserializer<'de>, T: TryFrom<i64>>(
+        deserializer: D,
+    ) -> Result<T, D::Error> {
+        let value = match Number::deserialize(deserializer)
+            .map_err(|_| D::Error::custom("expected a whole number"))?
+        {
+            Number::Integer(value) => value,
+            Number::Float(value) if value.fract() == 0.0 && value.abs() < EXACT => value as i64,
+            Number::Float(value) => {
+                return Err(D::Error::custom(format!(
+                    "expected a whole number, got {value}"
+                )))
+            }
+        };
+        T::try_from(value).map_err(|_| D::Error::custom(format!("{value} is out of range")))
+    }
+}
+
 /// Every failure: a stable code to branch on and a plain message saying what to fix.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
 pub struct ErrorBody {
@@ -20,9 +54,13 @@ pub struct ErrorBody {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PixelBox {
+    #[serde(deserialize_with = "whole::deserialize")]
     pub x0: u32,
+    #[serde(deserialize_with = "whole::deserialize")]
     pub y0: u32,
+    #[serde(deserialize_with = "whole::deserialize")]
     pub x1: u32,
+    #[serde(deserialize_with = "whole::deserialize")]
     pub y1: u32,
 }
 
@@ -35,26 +73,51 @@ pub struct DetectionIn {
     #[serde(rename = "box")]
     pub bbox: PixelBox,
     /// 0..1.
+    #[schema(minimum = 0.0, maximum = 1.0)]
     pub score: f32,
 }
 
-/// Register a scene: either `demo` (a demo scene's name) or `image_base64` with optional extras.
+/// Register a scene: either `demo` (a demo scene's name) or `image_base64` with optional extras; one of
+/// `demo`, `image_base64` and `image_png_base64` is required, and only one.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema, Default)]
 #[serde(deny_unknown_fields)]
 pub struct RegisterSceneRequest {
-    /// A name for people; defaults to the demo name or "scene".
+    /// A name for people; defaults to the demo name or "scene". Plain text: no control characters or
+    /// text-direction overrides; longer than 200 characters is cut to 200.
+    #[schema(pattern = r"^[^\u0000-\u001F\u007F-\u009F\u202A-\u202E\u2066-\u2069]*$")]
     pub name: Option<String>,
-    /// The name of a demo scene under the service's demo directory.
+    /// The name of a demo scene under the service's demo directory: 1-64 letters, digits, '-' or '_'.
+    #[schema(pattern = "^[A-Za-z0-9_-]{1,64}$")]
     pub demo: Option<String>,
     /// The colour image, base64-encoded PNG or JPEG (told apart by content).
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub image_base64: Option<String>,
     /// The same as `image_base64` (the earlier name); send one of the two.
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub image_png_base64: Option<String>,
     /// A 16-bit depth PNG in millimetres, base64.
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub depth_png_base64: Option<String>,
     /// Per-pixel class scores as a base64-encoded NPY array (height x width x classes, little-endian f32).
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub scores_npy_base64: Option<String>,
     /// A label map as a base64-encoded single-channel index PNG (pixel value = class id, 255 = unlabelled).
+    #[schema(
+        min_length = 1,
+        pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
+    )]
     pub label_map_png_base64: Option<String>,
     #[serde(default)]
     pub detections: Vec<DetectionIn>,
@@ -101,6 +164,8 @@ pub struct SceneGraphOut {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct OpenConversationRequest {
+    #[schema(minimum = 1)]
+    #[serde(deserialize_with = "whole::deserialize")]
     pub scene_id: i64,
 }
 
@@ -117,14 +182,24 @@ pub struct ConversationOut {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
 #[serde(tag = "type", rename_all = "snake_case", deny_unknown_fields)]
 pub enum FocusIn {
-    Object { object_id: u32 },
-    Pixel { x: u32, y: u32 },
+    Object {
+        #[serde(deserialize_with = "whole::deserialize")]
+        object_id: u32,
+    },
+    Pixel {
+        #[serde(deserialize_with = "whole::deserialize")]
+        x: u32,
+        #[serde(deserialize_with = "whole::deserialize")]
+        y: u32,
+    },
 }
 
 /// An utterance, typed or transcribed, with an optional focus.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct UtteranceRequest {
+    /// What the operator said; at least one character that is not white space, at most 2000 characters.
+    #[schema(min_length = 1, max_length = 2000, pattern = r"\S")]
     pub text: String,
     pub focus: Option<FocusIn>,
 }
@@ -232,6 +307,8 @@ pub struct TurnReply {
     pub scene_version: i64,
     /// What moved: for undo and redo the labels that changed back, for a confirmation the applied change.
     pub changes: Vec<ChangeOut>,
+    /// The conversation's change still waiting for confirmation after this turn, if any.
+    pub waiting: Option<PendingOut>,
 }
 
 /// One turn of a conversation.
@@ -278,4 +355,87 @@ pub struct ClassOut {
     pub safety: bool,
     /// sRGB colour used in overlays.
     pub colour: [u8; 3],
+}
+
+/// Where a page of a list starts and how long it is (query parameters of the list routes).
+#[derive(
+    Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize, utoipa::IntoParams,
+)]
+#[serde(deny_unknown_fields)]
+#[into_params(parameter_in = Query)]
+pub struct PageQuery {
+    /// Items with ids above this one: the `next_after` of the previous page; 0 or absent starts at the first.
+    #[param(minimum = 0)]
+    pub after: Option<i64>,
+    /// Items on the page, 1 to 200; 50 when absent.
+    #[param(minimum = 1, maximum = 200)]
+    pub limit: Option<u32>,
+}
+
+/// One registered scene in a list.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct SceneListed {
+    pub scene_id: i64,
+    pub name: String,
+    /// The version in force.
+    pub version: i64,
+    pub width: u32,
+    pub height: u32,
+}
+
+/// A page of registered scenes, by ascending id.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ScenePage {
+    pub scenes: Vec<SceneListed>,
+    /// Pass as `after` for the next page; absent on the last page.
+    pub next_after: Option<i64>,
+}
+
+/// One conversation in a list.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ConversationListed {
+    pub conversation_id: i64,
+    pub scene_id: i64,
+    /// The operator who opened it (and may act on it, with any supervisor).
+    pub operator: String,
+    pub opened_at: String,
+    /// Whether a change waits for confirmation.
+    pub pending: bool,
+}
+
+/// A page of the conversations the caller may read (their own; every one for a supervisor), by ascending id.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct ConversationPage {
+    pub conversations: Vec<ConversationListed>,
+    /// Pass as `after` for the next page; absent on the last page.
+    pub next_after: Option<i64>,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn whole_numbers_are_read_also_with_a_zero_fraction() {
+        let request: OpenConversationRequest =
+            serde_json::from_str(r#"{"scene_id": 904.0}"#).unwrap();
+        assert_eq!(request.scene_id, 904);
+        let focus: FocusIn =
+            serde_json::from_str(r#"{"type": "object", "object_id": 1075382.0}"#).unwrap();
+        assert_eq!(focus, FocusIn::Object { object_id: 1075382 });
+        let focus: FocusIn =
+            serde_json::from_str(r#"{"type": "pixel", "x": 3, "y": 4.0}"#).unwrap();
+        assert_eq!(focus, FocusIn::Pixel { x: 3, y: 4 });
+        for refused in [
+            r#"{"scene_id": 904.5}"#,
+            r#"{"scene_id": "904"}"#,
+            r#"{"scene_id": 1e300}"#,
+        ] {
+            assert!(
+                serde_json::from_str::<OpenConversationRequest>(refused).is_err(),
+                "{refused}"
+            );
+        }
+        assert!(serde_json::from_str::<FocusIn>(r#"{"type": "pixel", "x": -1, "y": 0}"#).is_err());
+    }
 }

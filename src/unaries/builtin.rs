@@ -3,7 +3,7 @@
 //! predicted label maps, evaluation over a scene set).
 //!
 //! Owns: `builtin_unaries`, `current_feature_layout`, `predicted_label_map`, `scene_training_rows`,
-//! `dataset_training_rows`, `evaluate_on_dataset`.
+//! `dataset_scene_rows`, `dataset_training_rows`, `evaluate_on_dataset`.
 //! Must not: compute features itself (that is `crate::features`) or build segments (`crate::scene`).
 
 use indicatif::{ProgressBar, ProgressStyle};
@@ -122,6 +122,27 @@ fn progress_bar(length: usize, show: bool, verb: &str) -> ProgressBar {
     bar
 }
 
+/// Training rows of every scene of a dataset, one set per scene, in scene order.
+pub fn dataset_scene_rows(
+    entries: &[DatasetEntry],
+    taxonomy: &Taxonomy,
+    params: &SceneParams,
+    show_progress: bool,
+) -> Result<Vec<LabelledFeatures>, DatasetError> {
+    let progress = progress_bar(entries.len(), show_progress, "segmenting");
+    let mut scenes = Vec::new();
+    for entry in entries {
+        scenes.push(scene_training_rows(
+            &load_labelled_image(entry, taxonomy.class_count())?,
+            taxonomy,
+            params,
+        )?);
+        progress.inc(1);
+    }
+    progress.finish_and_clear();
+    Ok(scenes)
+}
+
 /// Training rows of every scene of a dataset, stacked in scene order.
 pub fn dataset_training_rows(
     entries: &[DatasetEntry],
@@ -129,20 +150,12 @@ pub fn dataset_training_rows(
     params: &SceneParams,
     show_progress: bool,
 ) -> Result<LabelledFeatures, DatasetError> {
-    let progress = progress_bar(entries.len(), show_progress, "segmenting");
     let mut labels = Vec::new();
     let mut values = Vec::new();
-    for entry in entries {
-        let rows = scene_training_rows(
-            &load_labelled_image(entry, taxonomy.class_count())?,
-            taxonomy,
-            params,
-        )?;
+    for rows in dataset_scene_rows(entries, taxonomy, params, show_progress)? {
         labels.extend(rows.labels);
         values.extend(rows.features.iter().copied());
-        progress.inc(1);
     }
-    progress.finish_and_clear();
     let features =
         Array2::from_shape_vec((labels.len(), FEATURE_COUNT), values).map_err(|error| {
             DatasetError::Metadata {

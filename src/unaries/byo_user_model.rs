@@ -38,6 +38,9 @@ use crate::raster::RgbImage;
 use crate::scene::SegmentMap;
 use crate::taxonomy::Taxonomy;
 
+/// The largest model config file read, in bytes.
+const CONFIG_BYTES_LIMIT: u64 = 1024 * 1024;
+
 /// Tensor layout of the model's input and output.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "lowercase")]
@@ -82,9 +85,17 @@ impl UserModel {
     /// Reads the TOML config and the model it names, checking the config's numbers.
     pub fn load(config_path: &Path) -> Result<UserModel, PerceptionError> {
         let origin = config_path.display().to_string();
-        let text = std::fs::read_to_string(config_path).map_err(|error| PerceptionError::Io {
+        let io_error = |message: String| PerceptionError::Io {
             path: config_path.to_path_buf(),
-            message: error.to_string(),
+            message,
+        };
+        let bytes = super::model_file::read_model_bytes(config_path, CONFIG_BYTES_LIMIT)
+            .map_err(|error| io_error(error.to_string()))?;
+        let text = String::from_utf8(bytes).map_err(|error| {
+            io_error(format!(
+                "not UTF-8 text (the first bad byte is at offset {})",
+                error.utf8_error().valid_up_to()
+            ))
         })?;
         let config: UserModelConfig =
             toml::from_str(&text).map_err(|error| PerceptionError::Config {
@@ -95,10 +106,12 @@ impl UserModel {
             .parent()
             .unwrap_or(Path::new("."))
             .join(&config.model);
-        let bytes = std::fs::read(&model_path).map_err(|error| PerceptionError::Io {
-            path: model_path.clone(),
-            message: error.to_string(),
-        })?;
+        let bytes =
+            super::model_file::read_model_bytes(&model_path, super::model_file::MODEL_BYTES_LIMIT)
+                .map_err(|error| PerceptionError::Io {
+                    path: model_path.clone(),
+                    message: error.to_string(),
+                })?;
         UserModel::from_parts(config, &bytes, &origin)
     }
 
@@ -139,14 +152,18 @@ impl UserModel {
             TensorLayout::Nchw => [1, 3, h, w],
             TensorLayout::Nhwc => [1, h, w, 3],
         };
-        let mut reader = model_bytes;
-        let model = tract_onnx::onnx()
-            .model_for_read(&mut reader)
-            .map_err(model_error)?
-            .with_input_fact(0, f32::fact(shape).into())
-            .map_err(model_error)?
-            .into_optimized()
-            .map_err(model_error)?;
+        // The inference library panics on some malformed graphs; a panic here is the model's fault.
+        let model = super::model_file::guard_library(|| {
+            let mut reader = model_bytes;
+            tract_onnx::onnx()
+                .model_for_read(&mut reader)?
+                .with_input_fact(0, f32::fact(shape).into())?
+                .into_optimized()
+        })
+        .map_err(|message| PerceptionError::Model {
+            message: format!("{origin}: {message}"),
+        })?
+        .map_err(model_error)?;
         let output = model.output_fact(0).map_err(model_error)?.clone();
         let dims: Option<Vec<usize>> = output.shape.iter().map(|d| d.to_usize().ok()).collect();
         let class_count = config.classes.len();
@@ -163,7 +180,11 @@ impl UserModel {
                 ),
             });
         }
-        let plan = model.into_runnable().map_err(model_error)?;
+        let plan = super::model_file::guard_library(|| model.into_runnable())
+            .map_err(|message| PerceptionError::Model {
+                message: format!("{origin}: {message}"),
+            })?
+            .map_err(model_error)?;
         Ok(UserModel {
             config,
             plan,
@@ -293,4 +314,64 @@ impl UserModel {
 /// The source index for target index `index` when resizing `target` samples from `source` samples.
 fn nearest(index: usize, target: usize, source: usize) -> usize {
     (((index as f64 + 0.5) * source as f64 / target as f64) as usize).min(source.saturating_sub(1))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+    use crate::unaries::mlp::seeded_random_mlp;
+    use crate::unaries::onnx_writer::build_model_proto;
+    use prost::Message;
+
+    fn config(model: &str) -> UserModelConfig {
+        toml::from_str(&format!(
+            "model = {model:?}\ninput_width = 4\ninput_height = 4\nlayout = \"nchw\"\n\
+             mean = [0.5, 0.5, 0.5]\nstd = [0.25, 0.25, 0.25]\noutput = \"logits\"\n\
+             classes = [\"floor\", \"wall\"]\n"
+        ))
+        .unwrap()
+    }
+
+    #[test]
+    fn a_model_whose_declared_output_no_node_makes_is_an_error_not_a_panic() {
+        let mlp = seeded_random_mlp(5, &[5, 2]);
+        let contract = ModelContract {
+            format_version: MODEL_FORMAT_VERSION,
+            class_names: vec!["floor".into(), "wall".into()],
+            feature_layout_version: 3,
+            feature_means: mlp.feature_means.to_vec(),
+            feature_stds: mlp.feature_stds.to_vec(),
+            temperature: mlp.temperature,
+        };
+        let mut proto = build_model_proto(&mlp, &contract).unwrap();
+        proto.graph.as_mut().unwrap().output[0].name = "made_by_no_node".into();
+        let error = UserModel::from_parts(config("x.onnx"), &proto.encode_to_vec(), "broken.toml")
+            .unwrap_err();
+        assert!(matches!(error, PerceptionError::Model { .. }), "{error}");
+        assert!(error.to_string().contains("broken.toml"), "{error}");
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_device_as_the_model_or_the_config_is_refused() {
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("model.toml");
+        std::fs::write(
+            &path,
+            "model = \"/dev/zero\"\ninput_width = 4\ninput_height = 4\nlayout = \"nchw\"\n\
+             mean = [0.5, 0.5, 0.5]\nstd = [0.25, 0.25, 0.25]\noutput = \"logits\"\n\
+             classes = [\"floor\"]\n",
+        )
+        .unwrap();
+        let error = UserModel::load(&path).unwrap_err().to_string();
+        assert!(
+            error.contains("/dev/zero") && error.contains("not a regular file"),
+            "{error}"
+        );
+        let error = UserModel::load(Path::new("/dev/zero"))
+            .unwrap_err()
+            .to_string();
+        assert!(error.contains("not a regular file"), "{error}");
+    }
 }

@@ -1,7 +1,8 @@
 //! The built-in segment classifier at run time: loads a sayso ONNX file with tract (CPU), checks its
 //! contract, and turns a feature matrix into calibrated per-segment log-probabilities.
 //!
-//! Owns: `Classifier`, `ClassifierError`, input and output validation around the tract plan.
+//! Owns: `Classifier`, `ClassifierError`, input and output validation around the tract plan, and a model's
+//! id (`model_id`: the first 12 hex digits of the SHA-256 of its file, what the correction log records).
 //! Must not: compute features or pool pixels; it takes a plain `segments x features` matrix.
 
 use std::path::{Path, PathBuf};
@@ -63,18 +64,30 @@ pub enum ClassifierError {
     Run { message: String },
 }
 
+/// A model file's id: the first 12 lower-case hex digits of the SHA-256 of its bytes.
+pub fn model_id(bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    Sha256::digest(bytes)
+        .iter()
+        .take(6)
+        .map(|byte| format!("{byte:02x}"))
+        .collect()
+}
+
 /// A loaded, checked segment classifier.
 #[derive(Clone)]
 pub struct Classifier {
     plan: Plan,
     contract: ModelContract,
     origin: String,
+    id: String,
 }
 
 impl std::fmt::Debug for Classifier {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("Classifier")
             .field("origin", &self.origin)
+            .field("id", &self.id)
             .field("contract", &self.contract)
             .finish()
     }
@@ -91,10 +104,11 @@ impl Classifier {
         taxonomy: &Taxonomy,
         layout: FeatureLayout,
     ) -> Result<Classifier, ClassifierError> {
-        let bytes = std::fs::read(path).map_err(|source| ClassifierError::Io {
-            path: path.to_path_buf(),
-            source,
-        })?;
+        let bytes = super::model_file::read_model_bytes(path, super::model_file::MODEL_BYTES_LIMIT)
+            .map_err(|source| ClassifierError::Io {
+                path: path.to_path_buf(),
+                source,
+            })?;
         Classifier::from_bytes(&bytes, &path.display().to_string(), taxonomy, layout)
     }
 
@@ -131,11 +145,17 @@ impl Classifier {
             origin: origin.clone(),
             message: format!("{error:#}"),
         };
-        let model = tract_onnx::onnx()
-            .model_for_proto_model(&proto)
-            .map_err(unsupported)?
-            .into_optimized()
-            .map_err(unsupported)?;
+        // The inference library panics on some malformed graphs; a panic here is the model's fault.
+        let model = super::model_file::guard_library(|| {
+            tract_onnx::onnx()
+                .model_for_proto_model(&proto)?
+                .into_optimized()
+        })
+        .map_err(|message| ClassifierError::Unsupported {
+            origin: origin.clone(),
+            message,
+        })?
+        .map_err(unsupported)?;
         let output = model.output_fact(0).map_err(unsupported)?.clone();
         if output.rank() != 2
             || concrete_last_dimension(&output) != Some(contract.class_names.len())
@@ -156,12 +176,23 @@ impl Classifier {
                 expected: contract.feature_means.len(),
             });
         }
-        let plan = model.into_runnable().map_err(unsupported)?;
+        let plan = super::model_file::guard_library(|| model.into_runnable())
+            .map_err(|message| ClassifierError::Unsupported {
+                origin: origin.clone(),
+                message,
+            })?
+            .map_err(unsupported)?;
         Ok(Classifier {
             plan,
             contract,
             origin,
+            id: model_id(bytes),
         })
+    }
+
+    /// The model's id (`model_id` of the bytes it was loaded from).
+    pub fn id(&self) -> &str {
+        &self.id
     }
 
     /// The contract read from the file.
@@ -245,6 +276,26 @@ mod tests {
             feature_stds: mlp.feature_stds.to_vec(),
             temperature: mlp.temperature,
         }
+    }
+
+    #[test]
+    fn a_model_whose_declared_output_no_node_makes_is_an_error_not_a_panic() {
+        let taxonomy = Taxonomy::embedded();
+        let mlp = seeded_random_mlp(3, &[5, taxonomy.class_count()]);
+        let mut proto = build_model_proto(&mlp, &contract_for(&taxonomy, &mlp)).unwrap();
+        let graph = proto.graph.as_mut().unwrap();
+        graph.output[0].name = "made_by_no_node".to_string();
+        let bytes = proto.encode_to_vec();
+        let layout = FeatureLayout {
+            version: 3,
+            count: 5,
+        };
+        let error = Classifier::from_bytes(&bytes, "broken model", &taxonomy, layout).unwrap_err();
+        assert!(
+            matches!(error, ClassifierError::Unsupported { .. }),
+            "{error}"
+        );
+        assert!(error.to_string().contains("broken model"), "{error}");
     }
 
     #[test]

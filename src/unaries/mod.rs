@@ -19,9 +19,12 @@ pub mod dataset;
 pub mod metrics;
 pub mod mlp;
 pub mod model_card;
+pub mod model_file;
+pub mod onnx_reader;
 pub mod onnx_writer;
 pub mod pooling;
 pub mod rng;
+pub mod split;
 pub mod trainer;
 
 use ndarray::Array2;

@@ -38,6 +38,10 @@ pub struct ModelCard {
     pub validation_accuracy: f64,
     pub calibration: CalibrationReport,
     pub evaluation: Option<EvaluationFigures>,
+    /// What the validation rows are (e.g. "6 whole renders, seeds ..."); `None`: a share of the rows.
+    pub validation_description: Option<String>,
+    /// Further Markdown the caller writes (a fine-tuning run's data and before/after figures).
+    pub appendix: Option<String>,
 }
 
 impl ModelCard {
@@ -50,8 +54,12 @@ impl ModelCard {
         let _ = writeln!(text, "- training rows (segments): {}", self.training_rows);
         let _ = writeln!(
             text,
-            "- validation rows (early stopping and temperature fit): {}\n",
-            self.validation_rows
+            "- validation rows (early stopping and temperature fit): {}{}\n",
+            self.validation_rows,
+            self.validation_description
+                .as_deref()
+                .map(|what| format!(", {what}"))
+                .unwrap_or_default()
         );
         let _ = writeln!(text, "## Model\n");
         let _ = writeln!(text, "- mode: {}", self.mode);
@@ -101,9 +109,10 @@ impl ModelCard {
                 }
                 text.push('\n');
             }
-            None => {
+            None if self.appendix.is_none() => {
                 let _ = writeln!(text, "No held-out scene set was evaluated for this run.\n");
             }
+            None => {}
         }
         let c = &self.calibration;
         let _ = writeln!(
@@ -121,6 +130,10 @@ impl ModelCard {
             "| after (T = {:.3}) | {:.4} | {:.4} |",
             c.temperature, c.nll_after, c.ece_after
         );
+        if let Some(appendix) = &self.appendix {
+            text.push('\n');
+            text.push_str(appendix);
+        }
         text
     }
 }

@@ -2,7 +2,11 @@
 //! L2 regularisation or decoupled weight decay (AdamW), mini-batches, class-balanced weights, early stopping
 //! on a validation split, then temperature scaling on the same held-out split.
 //!
-//! Owns: `TrainingConfig`, `LabelledFeatures`, `train`, `split_for_validation`, `TrainError`.
+//! `train_from` fine-tunes: it starts from a given network (its normalisation kept, so its weights keep
+//! their meaning) and takes a weight per row, so some rows (an operator's corrections) count more.
+//!
+//! Owns: `TrainingConfig`, `LabelledFeatures`, `train`, `train_from`, `TrainError`; the validation splits
+//! live in `super::split` and are re-exported here.
 //! Must not: read scenes or files, or write ONNX; callers turn the returned `Mlp` into a model file.
 
 use indicatif::{ProgressBar, ProgressStyle};
@@ -11,6 +15,7 @@ use ndarray::{Array1, Array2, ArrayView2, Axis};
 use super::calibration::{calibrate, negative_log_likelihood, CalibrationReport};
 use super::mlp::{DenseLayer, Mlp};
 use super::rng::SplitMix64;
+pub use super::split::{split_by_scene, split_for_validation};
 
 /// The network shape to train.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -84,7 +89,7 @@ impl LabelledFeatures {
         self.labels.is_empty()
     }
 
-    fn select(&self, rows: &[usize]) -> LabelledFeatures {
+    pub(super) fn select(&self, rows: &[usize]) -> LabelledFeatures {
         LabelledFeatures {
             features: self.features.select(Axis(0), rows),
             labels: rows.iter().map(|&row| self.labels[row]).collect(),
@@ -135,36 +140,6 @@ pub enum TrainError {
     },
     #[error("invalid training setting: {0}")]
     Config(String),
-}
-
-/// Splits rows at random (seeded) into a training part and a validation part of `fraction` of the rows,
-/// stratified by class so every class with two or more rows has at least one in each part.
-pub fn split_for_validation(
-    data: &LabelledFeatures,
-    fraction: f64,
-    seed: u64,
-) -> (LabelledFeatures, LabelledFeatures) {
-    let mut generator = SplitMix64::new(seed ^ 0x5EED_5A1D);
-    let class_count = data.labels.iter().copied().max().map_or(0, |m| m + 1);
-    let mut training_rows = Vec::new();
-    let mut validation_rows = Vec::new();
-    for class in 0..class_count {
-        let mut rows: Vec<usize> = (0..data.len())
-            .filter(|&row| data.labels[row] == class)
-            .collect();
-        generator.shuffle(&mut rows);
-        let mut held = (rows.len() as f64 * fraction).round() as usize;
-        if rows.len() >= 2 {
-            held = held.clamp(1, rows.len() - 1);
-        } else {
-            held = 0;
-        }
-        validation_rows.extend_from_slice(&rows[..held]);
-        training_rows.extend_from_slice(&rows[held..]);
-    }
-    training_rows.sort_unstable();
-    validation_rows.sort_unstable();
-    (data.select(&training_rows), data.select(&validation_rows))
 }
 
 fn check_set(
@@ -396,7 +371,49 @@ pub fn train(
     class_count: usize,
     config: &TrainingConfig,
 ) -> Result<TrainingOutcome, TrainError> {
+    train_from(training, None, validation, class_count, config, None)
+}
+
+/// Like `train`, with a weight per training row (multiplied into the class-balanced weight; `None`: all 1)
+/// and, when `start` is given, starting from that network: its feature normalisation and layer shapes are
+/// kept (`config.mode` is then not used) and only the calibration temperature is fitted afresh.
+pub fn train_from(
+    training: &LabelledFeatures,
+    row_weights: Option<&[f32]>,
+    validation: &LabelledFeatures,
+    class_count: usize,
+    config: &TrainingConfig,
+    start: Option<&Mlp>,
+) -> Result<TrainingOutcome, TrainError> {
     check_set("training", training, class_count)?;
+    if let Some(weights) = row_weights {
+        if weights.len() != training.len() {
+            return Err(TrainError::Config(format!(
+                "{} row weights for {} training rows",
+                weights.len(),
+                training.len()
+            )));
+        }
+        if weights.iter().any(|w| !(w.is_finite() && *w >= 0.0)) {
+            return Err(TrainError::Config(
+                "row weights must be finite numbers >= 0".to_string(),
+            ));
+        }
+    }
+    if let Some(start) = start {
+        if start.feature_count() != training.features.ncols()
+            || start.class_count() != class_count
+            || !start.shapes_are_consistent()
+        {
+            return Err(TrainError::Config(format!(
+                "the starting network maps {} features to {} classes; the data has {} features and {} classes",
+                start.feature_count(),
+                start.class_count(),
+                training.features.ncols(),
+                class_count
+            )));
+        }
+    }
     check_set("validation", validation, class_count)?;
     if training.features.ncols() != validation.features.ncols() {
         return Err(TrainError::WidthMismatch {
@@ -432,7 +449,10 @@ pub fn train(
         ));
     }
     let mut generator = SplitMix64::new(config.seed);
-    let (feature_means, feature_stds) = normalisation(training.features.view());
+    let (feature_means, feature_stds) = match start {
+        Some(start) => (start.feature_means.clone(), start.feature_stds.clone()),
+        None => normalisation(training.features.view()),
+    };
     let mut scaffold = Mlp {
         feature_means,
         feature_stds,
@@ -444,7 +464,10 @@ pub fn train(
     let mut widths = vec![training.features.ncols()];
     widths.extend(&hidden);
     widths.push(class_count);
-    let mut layers = initial_layers(&widths, hidden.is_empty(), &mut generator);
+    let mut layers = match start {
+        Some(start) => start.layers.clone(),
+        None => initial_layers(&widths, hidden.is_empty(), &mut generator),
+    };
     let mut class_rows = vec![0usize; class_count];
     for &label in &training.labels {
         class_rows[label] += 1;
@@ -453,12 +476,15 @@ pub fn train(
     let row_weights: Vec<f32> = training
         .labels
         .iter()
-        .map(|&label| {
-            if config.class_balanced {
-                training.len() as f32 / (present as f32 * class_rows[label] as f32)
-            } else {
-                1.0
-            }
+        .enumerate()
+        .map(|(row, &label)| {
+            let given = row_weights.map_or(1.0, |weights| weights[row]);
+            given
+                * if config.class_balanced {
+                    training.len() as f32 / (present as f32 * class_rows[label] as f32)
+                } else {
+                    1.0
+                }
         })
         .collect();
     let mut adam = Adam::new(&layers);
@@ -595,6 +621,80 @@ mod tests {
             assert_eq!(first.mlp, second.mlp, "same seed, same model");
             assert!(first.validation_accuracy > 0.9, "{first:?}");
         }
+    }
+
+    #[test]
+    fn fine_tuning_starts_from_the_given_network_and_heeds_row_weights() {
+        let data = blobs(600, 4);
+        let (training, validation) = split_for_validation(&data, 0.25, 3);
+        let config = TrainingConfig {
+            mode: TrainingMode::Mlp { hidden: vec![8] },
+            max_epochs: 40,
+            ..TrainingConfig::default()
+        };
+        let base = train(&training, &validation, 3, &config).unwrap().mlp;
+        // One epoch at a tiny rate barely moves the network, and the normalisation is the base's.
+        let gentle = TrainingConfig {
+            max_epochs: 1,
+            learning_rate: 1e-6,
+            ..config.clone()
+        };
+        let tuned = train_from(&training, None, &validation, 3, &gentle, Some(&base))
+            .unwrap()
+            .mlp;
+        assert_eq!(tuned.feature_means, base.feature_means);
+        let moved = tuned.layers[0]
+            .weights
+            .iter()
+            .zip(base.layers[0].weights.iter())
+            .map(|(a, b)| (a - b).abs())
+            .fold(0.0f32, f32::max);
+        assert!(moved < 1e-3, "moved {moved}");
+        // Relabel the rows of class 0 near the origin as class 1 and weight them heavily: the tuned
+        // network follows them, where the base did not.
+        let mut relabelled = training.clone();
+        let mut weights = vec![1.0f32; relabelled.len()];
+        for (label, weight) in relabelled.labels.iter_mut().zip(&mut weights) {
+            if *label == 0 {
+                *label = 1;
+                *weight = 20.0;
+            }
+        }
+        let eager = TrainingConfig {
+            max_epochs: 30,
+            class_balanced: false,
+            ..config.clone()
+        };
+        let tuned = train_from(
+            &relabelled,
+            Some(&weights),
+            &relabelled,
+            3,
+            &eager,
+            Some(&base),
+        )
+        .unwrap()
+        .mlp;
+        let origin = ndarray::array![[0.0f32, 0.0]];
+        let best = |mlp: &Mlp| {
+            let row = mlp.log_probabilities(origin.view());
+            (0..3)
+                .max_by(|&a, &b| row[[0, a]].total_cmp(&row[[0, b]]))
+                .unwrap()
+        };
+        assert_eq!(best(&base), 0);
+        assert_eq!(best(&tuned), 1);
+        assert!(matches!(
+            train_from(
+                &training,
+                Some(&[1.0f32][..]),
+                &validation,
+                3,
+                &config,
+                Some(&base)
+            ),
+            Err(TrainError::Config(_))
+        ));
     }
 
     #[test]

@@ -238,6 +238,7 @@ fn grid_summary(labels: &IndexImage) -> SceneSummary {
     SceneSummary {
         objects,
         room: None,
+        model: None,
     }
 }
 
@@ -478,4 +479,128 @@ pub fn scene_and_conversation(
     );
     assert_eq!(opened.status, 201);
     (scene_id, opened.json()["conversation_id"].as_i64().unwrap())
+}
+
+/// The router over a coordinator with `corrector` on `data_dir`, with `config` (its data_dir replaced);
+/// called with `call`, no socket.
+pub fn router_with(
+    data_dir: &Path,
+    mut config: ServiceConfig,
+    corrector: Arc<dyn Corrector>,
+) -> (axum::Router, Arc<Coordinator>) {
+    config.data_dir = data_dir.to_path_buf();
+    config.validate().expect("test config is valid");
+    let coordinator = Arc::new(
+        Coordinator::open(
+            corrector,
+            &CoordinatorSettings {
+                log_path: config.log_path(),
+                pixel_limit: config.pixel_limit,
+                demo_dir: data_dir.join("demo_scenes"),
+            },
+            Arc::new(Metrics::default()),
+        )
+        .expect("open coordinator"),
+    );
+    let router = sayso::service::app(AppState::new(coordinator.clone(), config));
+    (router, coordinator)
+}
+
+/// A request to the router as a test builds it.
+pub struct Call<'a> {
+    pub method: &'a str,
+    pub path: &'a str,
+    pub token: Option<&'a str>,
+    pub body: Option<serde_json::Value>,
+    /// The client's address, as the connection layer would hand it over.
+    pub from: [u8; 4],
+}
+
+impl<'a> Call<'a> {
+    pub fn new(method: &'a str, path: &'a str, token: Option<&'a str>) -> Call<'a> {
+        Call {
+            method,
+            path,
+            token,
+            body: None,
+            from: [127, 0, 0, 1],
+        }
+    }
+
+    pub fn json(mut self, body: serde_json::Value) -> Call<'a> {
+        self.body = Some(body);
+        self
+    }
+
+    pub fn from(mut self, address: [u8; 4]) -> Call<'a> {
+        self.from = address;
+        self
+    }
+
+    /// The `http::Request` the router receives.
+    pub fn request(&self) -> axum::http::Request<axum::body::Body> {
+        let mut builder = axum::http::Request::builder()
+            .method(axum::http::Method::from_bytes(self.method.as_bytes()).expect("a method token"))
+            .uri(self.path);
+        if let Some(token) = self.token {
+            builder = builder.header("authorization", format!("Bearer {token}"));
+        }
+        let body = match &self.body {
+            Some(value) => {
+                builder = builder.header("content-type", "application/json");
+                axum::body::Body::from(value.to_string())
+            }
+            None => axum::body::Body::empty(),
+        };
+        let mut request = builder.body(body).expect("request");
+        request
+            .extensions_mut()
+            .insert(axum::extract::ConnectInfo(SocketAddr::from((
+                self.from, 40000,
+            ))));
+        request
+    }
+}
+
+/// Sends `request` through `router` (tower's `oneshot`) and reads the whole answer.
+pub async fn call_request(
+    router: &axum::Router,
+    request: axum::http::Request<axum::body::Body>,
+) -> Reply {
+    use tower::ServiceExt;
+    let response = router.clone().oneshot(request).await.expect("infallible");
+    let status = response.status().as_u16();
+    let headers = response
+        .headers()
+        .iter()
+        .map(|(name, value)| {
+            (
+                name.as_str().to_string(),
+                value.to_str().unwrap_or("").to_string(),
+            )
+        })
+        .collect();
+    let body = axum::body::to_bytes(response.into_body(), usize::MAX)
+        .await
+        .expect("body")
+        .to_vec();
+    Reply {
+        status,
+        headers,
+        body,
+    }
+}
+
+/// Sends `call` through `router`.
+pub async fn call(router: &axum::Router, call: Call<'_>) -> Reply {
+    call_request(router, call.request()).await
+}
+
+/// The body of a scene registration from labels (all floor except as given).
+pub fn scene_body(labels: &IndexImage) -> serde_json::Value {
+    serde_json::json!({
+        "name": "juniper-lane-hall",
+        "image_png_base64": png_base64(&picture_of(labels)),
+        "label_map_png_base64": index_png_base64(labels),
+    })
 }

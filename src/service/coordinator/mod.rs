@@ -9,6 +9,7 @@
 //!
 //! Lock order, always: a conversation, then its scene, then the log.
 
+mod access;
 mod convert;
 mod register;
 mod turns;
@@ -18,8 +19,8 @@ use std::path::PathBuf;
 use std::sync::{Arc, Mutex, MutexGuard, RwLock};
 
 use crate::correction_log::{
-    BackgroundCheckpoints, ConversationKey, CorrectionLog, GroupCommit, LogError, SceneKey,
-    StateRecord, VersionKey,
+    BackgroundCheckpoints, ConversationKey, CorrectionLog, GroupCommit, LogError, NewTurn,
+    SceneKey, StateRecord, TurnWritten, VersionKey,
 };
 use crate::language::constraint::Constraint;
 use crate::raster;
@@ -30,6 +31,7 @@ use super::error::ApiError;
 use super::metrics::Metrics;
 use super::wire::{ConversationOut, HealthOut, SceneGraphOut};
 
+pub use access::{Caller, PageRequest, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
 pub use register::SceneUpload;
 pub use turns::check_utterance_text;
 
@@ -76,7 +78,7 @@ pub struct Coordinator {
     corrector: Arc<dyn Corrector>,
     log: Mutex<CorrectionLog>,
     /// Turns from many requests share one commit (and one fsync) through this queue.
-    group: GroupCommit,
+    group: GatedCommit,
     /// Copies the WAL into the database file off the commit path (stopped when the coordinator drops).
     _checkpoints: Option<BackgroundCheckpoints>,
     scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
@@ -127,6 +129,7 @@ pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, ApiError> 
         labels_png: raster::encode_index_png(&state.labels).map_err(ApiError::internal)?,
         summary_json: serde_json::to_string(&state.summary).map_err(ApiError::internal)?,
         engine_state: state.engine_state.clone(),
+        model: state.summary.model.clone(),
     })
 }
 
@@ -146,8 +149,38 @@ pub(crate) fn decode_state(record: &StateRecord) -> Result<SceneState, String> {
     })
 }
 
+/// The group commit behind one check: a turn whose request was answered "abandoned" is not written
+/// (`super::abandon`). Outside a request (the CLI, tests) every turn is written.
+pub(crate) struct GatedCommit(GroupCommit);
+
+impl GatedCommit {
+    /// As `GroupCommit::commit`, or `LogError::Withdrawn` (nothing written) for an abandoned request.
+    pub(crate) fn commit(
+        &self,
+        log: &Mutex<CorrectionLog>,
+        turn: &NewTurn<'_>,
+        stacks: Option<(&[VersionKey], &[VersionKey])>,
+    ) -> Result<TurnWritten, LogError> {
+        if !super::abandon::may_commit() {
+            return Err(LogError::Withdrawn);
+        }
+        self.0.commit(log, turn, stacks)
+    }
+}
+
+/// The answer to work whose request was abandoned before it could be written (the caller has by then
+/// been told so by the time limit).
+pub(crate) fn withdrawn() -> ApiError {
+    ApiError::caller(
+        axum::http::StatusCode::SERVICE_UNAVAILABLE,
+        "timeout",
+        "the request took too long and was abandoned before anything was stored",
+    )
+}
+
 fn log_error(error: LogError) -> ApiError {
     match error {
+        LogError::Withdrawn => withdrawn(),
         LogError::Stale { .. } => ApiError::conflict(
             "stale_change",
             "the scene changed while this request was being worked out; send it again",
@@ -281,7 +314,7 @@ impl Coordinator {
         Ok(Coordinator {
             corrector,
             log: Mutex::new(log),
-            group: GroupCommit::new(),
+            group: GatedCommit(GroupCommit::new()),
             _checkpoints: checkpoints,
             scenes: RwLock::new(scenes),
             conversations: RwLock::new(conversations),

@@ -350,6 +350,9 @@ impl Coordinator {
             .chars()
             .take(200)
             .collect::<String>();
+        if let Some(problem) = crate::scene::capture::scene_name_problem(&name) {
+            return Err(ApiError::unprocessable("bad_scene_name", problem));
+        }
         let input = SceneInput {
             name: name.clone(),
             image,
@@ -382,6 +385,10 @@ impl Coordinator {
             room,
         })
         .map_err(ApiError::internal)?;
+        // Past this check the request is no longer abandoned by its time limit: the caller gets the ids.
+        if !super::super::abandon::may_commit() {
+            return Err(super::withdrawn());
+        }
         let (key, version) = lock(&self.log)
             .register_scene(&NewScene {
                 name: &name,

@@ -693,6 +693,7 @@ impl Coordinator {
                 .iter()
                 .map(|change| change_out(change, taxonomy))
                 .collect(),
+            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
         })
     }
 
@@ -737,6 +738,7 @@ impl Coordinator {
             status: TurnStatus::Rejected,
             scene_version: scene.head.0,
             changes: Vec::new(),
+            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
         })
     }
 
@@ -813,6 +815,7 @@ impl Coordinator {
             status: TurnStatus::Undone,
             scene_version: parent.0,
             changes,
+            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
         })
     }
 
@@ -885,6 +888,7 @@ impl Coordinator {
             status: TurnStatus::Redone,
             scene_version: undone.0,
             changes,
+            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
         })
     }
 

@@ -1,0 +1,205 @@
+//! Limits that keep an unauthenticated or overeager client from exhausting the service. Through the router:
+//! a request answered "abandoned" leaves no trace, and requests over `max_requests_in_flight` are shed
+//! with 503 and Retry-After. Over a socket (only what needs one): half-sent requests and idle connections
+//! are closed after the header timeout, connections over the cap are answered 503 in the JSON shape, and
+//! the service still shuts down promptly with idle connections open.
+
+mod service_support;
+
+use std::io::{Read, Write};
+use std::net::TcpStream;
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+use sayso::raster::{IndexImage, RgbImage};
+use sayso::service::config::ServiceConfig;
+use sayso::service::corrector::{
+    CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput, SceneState,
+};
+use sayso::taxonomy::Taxonomy;
+use service_support::*;
+
+/// The grid engine, slowed down: registering a scene takes `delay`.
+struct SlowEngine {
+    inner: GridEngine,
+    delay: Duration,
+}
+
+impl Corrector for SlowEngine {
+    fn taxonomy(&self) -> &Taxonomy {
+        self.inner.taxonomy()
+    }
+
+    fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {
+        std::thread::sleep(self.delay);
+        self.inner.register(input)
+    }
+
+    fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError> {
+        self.inner.apply(request)
+    }
+
+    fn overlay(&self, image: &RgbImage, state: &SceneState) -> RgbImage {
+        self.inner.overlay(image, state)
+    }
+}
+
+fn slow(delay_ms: u64) -> Arc<dyn Corrector> {
+    Arc::new(SlowEngine {
+        inner: GridEngine::new(),
+        delay: Duration::from_millis(delay_ms),
+    })
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_request_answered_abandoned_stores_nothing() {
+    let data = tempfile::tempdir().unwrap();
+    let config = ServiceConfig {
+        request_timeout_ms: 100,
+        ..ServiceConfig::default()
+    };
+    let (router, coordinator) = router_with(data.path(), config, slow(400));
+    let labels = IndexImage::filled(6, 4, 0);
+    let abandoned = call(
+        &router,
+        Call::new("POST", "/v1/scenes", None).json(scene_body(&labels)),
+    )
+    .await;
+    assert_eq!(
+        (abandoned.status, abandoned.code().as_str()),
+        (503, "timeout")
+    );
+    assert!(abandoned.json()["message"]
+        .as_str()
+        .unwrap()
+        .contains("nothing was stored"));
+    // Long after the registration's work has finished, there is still no scene, in memory or in the log.
+    tokio::time::sleep(Duration::from_millis(700)).await;
+    let listed = call(&router, Call::new("GET", "/v1/scenes", None))
+        .await
+        .json();
+    assert_eq!(listed["scenes"].as_array().unwrap().len(), 0, "{listed}");
+    assert_eq!(coordinator.with_log(|log| log.scenes().unwrap().len()), 0);
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn requests_over_the_in_flight_cap_are_shed_with_retry_after() {
+    let data = tempfile::tempdir().unwrap();
+    let config = ServiceConfig {
+        max_requests_in_flight: 1,
+        ..ServiceConfig::default()
+    };
+    let (router, _coordinator) = router_with(data.path(), config, slow(500));
+    let labels = IndexImage::filled(6, 4, 0);
+    let slow_router = router.clone();
+    let first = tokio::spawn(async move {
+        call(
+            &slow_router,
+            Call::new("POST", "/v1/scenes", None).json(scene_body(&labels)),
+        )
+        .await
+    });
+    tokio::time::sleep(Duration::from_millis(150)).await;
+    let shed = call(&router, Call::new("GET", "/v1/classes", None)).await;
+    assert_eq!((shed.status, shed.code().as_str()), (503, "overloaded"));
+    assert_eq!(shed.header("retry-after"), Some("1"));
+    assert_eq!(first.await.unwrap().status, 201);
+    // Once the first is done, the next is served.
+    assert_eq!(
+        call(&router, Call::new("GET", "/v1/classes", None))
+            .await
+            .status,
+        200
+    );
+}
+
+/// Whether the server closed `stream` (end of file or reset) within `limit`.
+fn closed_within(stream: &mut TcpStream, limit: Duration) -> Option<Duration> {
+    let started = Instant::now();
+    stream.set_read_timeout(Some(limit)).unwrap();
+    let mut buffer = [0u8; 1024];
+    loop {
+        match stream.read(&mut buffer) {
+            Ok(0) => return Some(started.elapsed()),
+            Ok(_) => continue,
+            Err(error)
+                if matches!(
+                    error.kind(),
+                    std::io::ErrorKind::WouldBlock | std::io::ErrorKind::TimedOut
+                ) =>
+            {
+                return None
+            }
+            Err(_) => return Some(started.elapsed()),
+        }
+    }
+}
+
+#[test]
+fn half_sent_requests_and_idle_connections_are_closed_after_the_header_timeout() {
+    let data = tempfile::tempdir().unwrap();
+    let service = start_service(
+        data.path(),
+        ServiceConfig {
+            header_timeout_ms: 300,
+            ..ServiceConfig::default()
+        },
+    );
+    // Half a request head, never finished.
+    let mut half = TcpStream::connect(service.address).unwrap();
+    half.write_all(b"GET /v1/health HTTP/1.1\r\nHost: x\r\n")
+        .unwrap();
+    let closed = closed_within(&mut half, Duration::from_secs(5));
+    assert!(
+        closed.is_some_and(|after| after < Duration::from_secs(2)),
+        "{closed:?}"
+    );
+    // A kept-alive connection that has been answered and then idles.
+    let mut idle = TcpStream::connect(service.address).unwrap();
+    idle.write_all(b"GET /v1/health HTTP/1.1\r\nHost: x\r\n\r\n")
+        .unwrap();
+    let mut answer = [0u8; 4096];
+    let read = idle.read(&mut answer).unwrap();
+    assert!(answer[..read].starts_with(b"HTTP/1.1 200"));
+    let closed = closed_within(&mut idle, Duration::from_secs(5));
+    assert!(
+        closed.is_some_and(|after| after < Duration::from_secs(2)),
+        "{closed:?}"
+    );
+}
+
+#[test]
+fn connections_over_the_cap_are_answered_503_and_shutdown_is_prompt() {
+    let data = tempfile::tempdir().unwrap();
+    let service = start_service(
+        data.path(),
+        ServiceConfig {
+            max_connections: 2,
+            header_timeout_ms: 10_000,
+            ..ServiceConfig::default()
+        },
+    );
+    let holders: Vec<TcpStream> = (0..2)
+        .map(|_| TcpStream::connect(service.address).unwrap())
+        .collect();
+    // Let the server take both before the third arrives.
+    std::thread::sleep(Duration::from_millis(200));
+    let refused = send(service.address, "GET", "/v1/health", &[], b"").unwrap();
+    assert_eq!(refused.status, 503);
+    assert_eq!(refused.code(), "too_many_connections");
+    assert_eq!(refused.header("retry-after"), Some("1"));
+    // A holder leaving frees a place.
+    drop(holders);
+    std::thread::sleep(Duration::from_millis(200));
+    assert_eq!(get(service.address, "/v1/health", None).status, 200);
+    // Shutting down with an idle connection open does not wait for the idle connection's timeout.
+    let _idle = TcpStream::connect(service.address).unwrap();
+    std::thread::sleep(Duration::from_millis(100));
+    let started = Instant::now();
+    drop(service);
+    assert!(
+        started.elapsed() < Duration::from_secs(3),
+        "{:?}",
+        started.elapsed()
+    );
+}
