@@ -15,7 +15,7 @@ use std::net::SocketAddr;
 use std::sync::Arc;
 use std::time::Duration;
 
-use sayso::service::config::{OperatorToken, ServiceConfig};
+use sayso::service::config::{OperatorToken, Role, ServiceConfig};
 use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
 use sayso::service::joint::JointCorrector;
 use sayso::service::metrics::Metrics;
@@ -54,6 +54,7 @@ fn start_service(data: &std::path::Path) -> Service {
         operators: vec![OperatorToken {
             name: "tess".into(),
             token: TOKEN.into(),
+            role: Role::Operator,
         }],
         ..ServiceConfig::default()
     };
