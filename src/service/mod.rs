@@ -15,6 +15,7 @@
 
 pub mod abandon;
 pub mod config;
+mod console;
 pub mod coordinator;
 pub mod corrector;
 pub mod error;
@@ -124,6 +125,7 @@ pub fn app(state: AppState) -> Router {
         .route("/v1/health", get(handlers::health))
         .route("/v1/openapi.json", get(handlers::openapi_document))
         .merge(protected)
+        .merge(console::routes())
         .fallback(handlers::no_such_route)
         .layer(DefaultBodyLimit::max(state.config.body_limit_bytes))
         .layer(axum::middleware::from_fn_with_state(
