@@ -377,7 +377,7 @@ pub fn decide(
 /// The reason a hold gives.
 pub fn hold_reason(classes: &[String]) -> String {
     format!(
-        "this removes or renames {}, a person, pet or hazard class; confirm to apply (say \"yes\" or \"confirm\"), or say \"no\" to drop it",
+        "this removes or renames what the robot shows as {} (people, pets and hazards wait for confirmation); say \"yes\" to apply it or \"no\" to drop it",
         classes.join(", ")
     )
 }
