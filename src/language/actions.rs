@@ -31,6 +31,8 @@ pub struct Builder {
     unused_antecedent: Option<NounPhrase>,
     /// The last relation stated (subject, relation, landmarks), for ", not on the table".
     last_relation: Option<(Referent, Relation, Vec<Referent>)>,
+    /// The owner of the last "X has a Y on it": a later "and a Z beside it" in the same utterance means X.
+    owner: Option<NounPhrase>,
     pub constraints: Vec<Constraint>,
 }
 
@@ -42,6 +44,7 @@ impl Builder {
             last_class: None,
             unused_antecedent: None,
             last_relation: None,
+            owner: None,
             constraints: Vec::new(),
         }
     }
@@ -489,13 +492,29 @@ impl Builder {
             Some(owner) => {
                 let mut landmark = owner.clone();
                 landmark.quantity = None;
-                for attached in np.relations.iter_mut().filter(|a| points_back(a)) {
-                    attached.landmarks = vec![landmark.clone()];
-                }
+                self.owner = Some(landmark);
             }
-            None => np.relations.retain(|attached| !points_back(attached)),
+            None => {
+                self.owner = None;
+                np.relations.retain(|attached| !points_back(attached));
+            }
         }
         self.exist(&np, negated, span, misspelled);
+    }
+
+    /// Relations of `np` to a bare "it" go to the owner of the last "X has ..." of this utterance.
+    fn to_owner(&self, np: &NounPhrase) -> NounPhrase {
+        let mut np = np.clone();
+        if let Some(owner) = &self.owner {
+            for attached in np.relations.iter_mut().filter(|attached| {
+                attached.landmarks.iter().all(|landmark| {
+                    landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
+                })
+            }) {
+                attached.landmarks = vec![owner.clone()];
+            }
+        }
+        np
     }
 
     /// "Mugs: two", "the number of mugs is two", "there are exactly two" (of the class named last).
@@ -534,6 +553,8 @@ impl Builder {
 
     /// "There are two chairs next to the table", "no cats", "there's a mug on the counter".
     fn exist(&mut self, np: &NounPhrase, negated: bool, span: Span, misspelled: bool) {
+        let owned = self.to_owner(np);
+        let np = &owned;
         // "It's one object", "there are three of them": a stated number with no class counts the class the
         // utterance named last.
         let counted = matches!(
