@@ -4,7 +4,7 @@
 //!
 //! Owns: timing, per turn, (1) the full joint solve of the turn's energy from nothing, (2) the warm re-solve
 //! from the parent version's solved state and multipliers (what a correction runs), and (3) the whole
-//! correction turn end to end (`pipeline::correct_turn`: hypotheses, grounding, energy, every solve, the
+//! correction turn end to end (`turn::correct_turn`: hypotheses, grounding, energy, every solve, the
 //! scene graph). Prints medians and 99th percentiles, the energies and optimality gaps, and the ratio to the
 //! project's goals (full 5 ms, warm 2 ms, a correction 10 ms at the median).
 //!

@@ -14,7 +14,7 @@ use crate::demo::{demo_scene_path, DemoError};
 use crate::energy::EnergyError;
 use crate::grounding::{ClarifyingQuestion, GroundingIssue};
 use crate::ids::ClassId;
-use crate::language::constraint::{Constraint, Focus, Span};
+use crate::language::constraint::{Focus, Span};
 use crate::language::error::GrammarError;
 use crate::raster::{read_rgb_image, DEFAULT_PIXEL_LIMIT};
 use crate::scene::{load_capture, Capture, Scene, SceneError, SceneParams};
@@ -24,8 +24,8 @@ use crate::scenegraph::instances::InstanceCutsError;
 use crate::taxonomy::Taxonomy;
 use crate::turn::dialogue::{Dialogue, Reply, Status};
 use crate::turn::solve::{Correction, CorrectionError};
+pub use crate::turn::{correct_turn, CorrectionSettings, TurnInputs};
 use crate::turn::{Candidate, TurnError};
-pub use crate::turn::{CorrectionSettings, TurnInputs};
 use crate::unaries::builtin::{builtin_unaries, current_feature_layout};
 use crate::unaries::classifier::{Classifier, ClassifierError};
 use crate::unaries::Unaries;
@@ -425,7 +425,7 @@ pub fn believe_without_notes(
     prepared: &PreparedScene,
     settings: &CorrectionSettings,
 ) -> Result<Correction, PipelineError> {
-    correct_turn(
+    Ok(correct_turn(
         &TurnInputs {
             scene: &prepared.scene,
             unaries: &prepared.unaries,
@@ -435,25 +435,6 @@ pub fn believe_without_notes(
         &[],
         None,
         false,
-        settings,
-    )
-}
-
-/// Solves one turn (`crate::turn::correct_turn`), with the pipeline's error type.
-pub fn correct_turn(
-    inputs: &TurnInputs<'_>,
-    previous: Option<&Correction>,
-    constraints: &[Constraint],
-    focus: Option<Focus>,
-    confirm_safety: bool,
-    settings: &CorrectionSettings,
-) -> Result<Correction, PipelineError> {
-    Ok(crate::turn::correct_turn(
-        inputs,
-        previous,
-        constraints,
-        focus,
-        confirm_safety,
         settings,
     )?)
 }
@@ -507,24 +488,29 @@ pub fn object_summary(differences: &[ObjectDifference], taxonomy: &Taxonomy) -> 
                     ObjectDifference::Removed { .. } => "one removed".to_string(),
                 });
             }
-            let mut counted: Vec<(String, usize)> = Vec::new();
-            for part in parts {
-                match counted.iter_mut().find(|(p, _)| *p == part) {
-                    Some(entry) => entry.1 += 1,
-                    None => counted.push((part, 1)),
-                }
-            }
-            let said: Vec<String> = counted
-                .into_iter()
-                .map(|(part, n)| {
-                    if n == 1 {
-                        part
-                    } else {
-                        format!("{part} (x{n})")
-                    }
-                })
-                .collect();
+            let said = counted_once(parts);
             format!("{}: {}", taxonomy.class_name(class), said.join(", "))
+        })
+        .collect()
+}
+
+/// Lines said once each in first-seen order, a repeated one with its count: "one removed (x2)".
+fn counted_once(lines: Vec<String>) -> Vec<String> {
+    let mut counted: Vec<(String, usize)> = Vec::new();
+    for line in lines {
+        match counted.iter_mut().find(|(seen, _)| *seen == line) {
+            Some(entry) => entry.1 += 1,
+            None => counted.push((line, 1)),
+        }
+    }
+    counted
+        .into_iter()
+        .map(|(line, n)| {
+            if n == 1 {
+                line
+            } else {
+                format!("{line} (x{n})")
+            }
         })
         .collect()
 }
@@ -568,23 +554,7 @@ fn relabel_summary(changes: &[Change], taxonomy: &Taxonomy) -> Vec<String> {
         }
     }
     // The same object line many times ("object removed: person" for six pieces) is said once, counted.
-    let mut counted: Vec<(String, usize)> = Vec::new();
-    for line in lines {
-        match counted.iter_mut().find(|(seen, _)| *seen == line) {
-            Some(entry) => entry.1 += 1,
-            None => counted.push((line, 1)),
-        }
-    }
-    let mut lines: Vec<String> = counted
-        .into_iter()
-        .map(|(line, n)| {
-            if n == 1 {
-                line
-            } else {
-                format!("{line} (x{n})")
-            }
-        })
-        .collect();
+    let mut lines = counted_once(lines);
     pairs.sort_by_key(|pair| std::cmp::Reverse(pair.3));
     for (from, to, status, count, why) in pairs {
         lines.push(format!(

@@ -280,7 +280,8 @@ pub fn walk_states(
             None,
             false,
             settings,
-        )?;
+        )
+        .map_err(PipelineError::from)?;
         visit(&correction)?;
         previous = Some(correction);
     }

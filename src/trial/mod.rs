@@ -298,7 +298,8 @@ pub fn run_scene(
             focus,
             true,
             context.settings,
-        )?;
+        )
+        .map_err(PipelineError::from)?;
         let millis = started.elapsed().as_secs_f64() * 1000.0;
         let first_new = correction
             .constraint_labels
@@ -462,7 +463,8 @@ fn answer_surplus(
             focus,
             true,
             context.settings,
-        )?;
+        )
+        .map_err(PipelineError::from)?;
         millis += started.elapsed().as_secs_f64() * 1000.0;
         answers += 1;
     }

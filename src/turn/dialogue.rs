@@ -395,8 +395,7 @@ impl<'a> Dialogue<'a> {
             }
         };
         self.applied.pop();
-        let mut rest = answered.question.clone();
-        rest.candidates.remove(answered.chosen);
+        let rest = answered.rest();
         if rest.candidates.len() == 1 {
             let note = rest.answered_with(rest.candidates[0].object);
             let mut reply = self.note(
@@ -411,14 +410,6 @@ impl<'a> Dialogue<'a> {
         }
         let before = self.current().clone();
         let mut reply = self.reply(Status::Asked, before);
-        rest.text = format!(
-            "which one then: {}?",
-            rest.candidates
-                .iter()
-                .map(|c| c.description.clone())
-                .collect::<Vec<_>>()
-                .join(", ")
-        );
         reply.message = Some("took back the last answer".to_string());
         reply.question = Some(rest.clone());
         self.question = Some(rest);

@@ -210,6 +210,25 @@ pub struct Answered {
     pub chosen: usize,
 }
 
+impl Answered {
+    /// The question again without the candidate this answer chose ("no, the other one").
+    pub fn rest(&self) -> OpenQuestion {
+        let mut rest = self.question.clone();
+        if self.chosen < rest.candidates.len() {
+            rest.candidates.remove(self.chosen);
+        }
+        rest.text = format!(
+            "which one then: {}?",
+            rest.candidates
+                .iter()
+                .map(|c| c.description.as_str())
+                .collect::<Vec<_>>()
+                .join(", ")
+        );
+        rest
+    }
+}
+
 /// What an utterance is in its conversation.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Reading {

@@ -228,7 +228,12 @@ if (Recognition) {
   speak.addEventListener("click", () => {
     const recognition = new Recognition();
     recognition.lang = document.documentElement.lang || "en";
-    recognition.onresult = (event) => { byId("note").value = event.results[0][0].transcript; byId("note").focus(); };
+    // The Web Speech API (W3C) gives its best guess first; its text field is named by that API.
+    recognition.onresult = (event) => {
+      const [best] = event.results[0];
+      byId("note").value = best.transcript;
+      byId("note").focus();
+    };
     recognition.onerror = (event) => problem("problem", new Error(`dictation: ${event.error}`));
     recognition.start();
   });

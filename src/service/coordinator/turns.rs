@@ -28,6 +28,30 @@ use super::{
     UTTERANCE_CHARACTER_LIMIT,
 };
 
+/// The answer to a conversation command said in words: what was done, and the change still held.
+fn command_reply(
+    turn_id: i64,
+    status: TurnStatus,
+    scene_version: i64,
+    waiting: Option<PendingOut>,
+    said: &str,
+) -> UtteranceReply {
+    UtteranceReply {
+        turn_id,
+        status,
+        constraints: Vec::new(),
+        changes: Vec::new(),
+        unmet: Vec::new(),
+        question: None,
+        candidates: Vec::new(),
+        pending: None,
+        waiting,
+        conflicts: Vec::new(),
+        reason: Some(said.to_string()),
+        scene_version,
+    }
+}
+
 /// The change a conversation holds for confirmation, as the wire shows it.
 fn waiting_out(conversation: &ConversationSlot, taxonomy: &Taxonomy) -> Option<PendingOut> {
     conversation.pending.as_ref().map(|pending| PendingOut {
@@ -422,18 +446,14 @@ impl Coordinator {
             _ => "done",
         };
         Ok(UtteranceReply {
-            turn_id: turn.turn_id,
-            status: turn.status,
-            constraints: Vec::new(),
             changes: turn.changes,
-            unmet: Vec::new(),
-            question: None,
-            candidates: Vec::new(),
-            pending: None,
-            waiting: waiting_out(&state, self.corrector.taxonomy()),
-            conflicts: Vec::new(),
-            reason: Some(said.to_string()),
-            scene_version: turn.scene_version,
+            ..command_reply(
+                turn.turn_id,
+                turn.status,
+                turn.scene_version,
+                waiting_out(&state, self.corrector.taxonomy()),
+                said,
+            )
         })
     }
 
@@ -489,20 +509,13 @@ impl Coordinator {
             scene.head.0
         };
         let turn_id = self.quiet_turn(conversation, operator, text, TurnStatus::Rejected, "{}")?;
-        Ok(UtteranceReply {
+        Ok(command_reply(
             turn_id,
-            status: TurnStatus::Rejected,
-            constraints: Vec::new(),
-            changes: Vec::new(),
-            unmet: Vec::new(),
-            question: None,
-            candidates: Vec::new(),
-            pending: None,
-            waiting: waiting_out(&state, self.corrector.taxonomy()),
-            conflicts: Vec::new(),
-            reason: Some(format!("dropped the question \"{}\"", question.text)),
+            TurnStatus::Rejected,
             scene_version,
-        })
+            waiting_out(&state, self.corrector.taxonomy()),
+            &format!("dropped the question \"{}\"", question.text),
+        ))
     }
 
     /// "No, the other one": takes back the change the last answer made and applies the question's note to
@@ -528,16 +541,7 @@ impl Coordinator {
             }
         };
         self.undo(conversation, operator)?;
-        let mut rest = answered.question.clone();
-        rest.candidates.remove(answered.chosen);
-        rest.text = format!(
-            "which one then: {}?",
-            rest.candidates
-                .iter()
-                .map(|c| c.description.clone())
-                .collect::<Vec<_>>()
-                .join(", ")
-        );
+        let rest = answered.rest();
         let only = (rest.candidates.len() == 1).then(|| rest.candidates[0].object);
         {
             let slot = self.conversation_slot(conversation)?;
@@ -571,22 +575,19 @@ impl Coordinator {
             &result_json,
         )?;
         Ok(UtteranceReply {
-            turn_id,
-            status: TurnStatus::NeedsClarification,
-            constraints: Vec::new(),
-            changes: Vec::new(),
-            unmet: Vec::new(),
             question: Some(rest.text.clone()),
             candidates: rest
                 .candidates
                 .iter()
                 .map(|candidate| candidate_out(candidate, taxonomy))
                 .collect(),
-            pending: None,
-            waiting: waiting_out(&state, taxonomy),
-            conflicts: Vec::new(),
-            reason: Some("took back the last answer's change".to_string()),
-            scene_version,
+            ..command_reply(
+                turn_id,
+                TurnStatus::NeedsClarification,
+                scene_version,
+                waiting_out(&state, taxonomy),
+                "took back the last answer's change",
+            )
         })
     }
 
