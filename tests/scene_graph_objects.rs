@@ -363,3 +363,65 @@ fn a_bottle_drawn_as_one_segment_counts_as_shown_when_it_is_bottle_sized() {
     assert!(fragment.contains(&vec![0]), "{fragment:?}");
     assert!(fragment.iter().all(|b| b.len() <= 2), "{fragment:?}");
 }
+
+#[test]
+fn a_count_cuts_the_patch_with_a_plain_seam_not_merely_the_largest() {
+    // Six book cells of one colour (one long book, no seam), a wall cell, then four book cells, two red
+    // and two blue (two books meeting along a colour edge). "Three books": one is missing. The patch to cut
+    // is the one with a seam, though the uniform patch is larger; cutting the largest would split the long
+    // book and leave the two coloured ones as one.
+    let scene = coloured_row(
+        "juniper-lane-long-book",
+        &[
+            [120, 90, 60],
+            [120, 90, 60],
+            [120, 90, 60],
+            [120, 90, 60],
+            [120, 90, 60],
+            [120, 90, 60],
+            [200, 200, 200],
+            [170, 30, 30],
+            [170, 30, 30],
+            [30, 40, 170],
+            [30, 40, 170],
+        ],
+        &[0, 0, 0, 0, 0, 0, 1, 2, 2, 2, 2],
+    );
+    let labels = [
+        BOOK, BOOK, BOOK, BOOK, BOOK, BOOK, WALL, BOOK, BOOK, BOOK, BOOK,
+    ];
+    let books = members_of(
+        &form_uncut(&scene, &labels, &[], &[], &[(ClassId(BOOK), 3)]),
+        BOOK,
+    );
+    assert_eq!(
+        books,
+        vec![vec![0, 1, 2, 3, 4, 5], vec![7, 8], vec![9, 10]],
+        "{books:?}"
+    );
+}
+
+#[test]
+fn a_sliver_of_the_class_does_not_count_as_an_object_shown() {
+    // Forty-four book cells in one colour (two books side by side, no visible seam), a wall cell, and a
+    // separate patch of four book cells: enough segments to count, but under a tenth of the large patch's
+    // pixels (`SHOWN_LARGEST_SHARE`), so a sliver and not the second book. "Two books": the large patch is
+    // cut in two.
+    let mut colours = vec![[120u8, 90, 60]; 44];
+    colours.push([200, 200, 200]);
+    colours.extend([[120u8, 90, 60]; 4]);
+    let mut regions = vec![0u32; 44];
+    regions.push(1);
+    regions.extend([2u32; 4]);
+    let scene = coloured_row("juniper-lane-sliver", &colours, &regions);
+    let mut labels = vec![BOOK; 44];
+    labels.push(WALL);
+    labels.extend([BOOK; 4]);
+    let books = members_of(
+        &form_uncut(&scene, &labels, &[], &[], &[(ClassId(BOOK), 2)]),
+        BOOK,
+    );
+    assert_eq!(books.len(), 3, "{books:?}");
+    assert!(books.contains(&vec![45, 46, 47, 48]), "{books:?}");
+    assert!(!books.contains(&(0..44).collect::<Vec<u32>>()), "{books:?}");
+}

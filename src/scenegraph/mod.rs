@@ -6,6 +6,7 @@
 //! grounding, energy, solver and this stage in order.
 //! Must not: search for solutions, call the solver or read words; it describes a state the solver returned.
 
+pub mod bisect;
 pub mod capped;
 pub mod changes;
 pub mod differences;
