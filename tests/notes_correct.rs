@@ -313,6 +313,71 @@ fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
 }
 
 #[test]
+fn a_fragment_taken_away_joins_what_surrounds_it_not_the_next_best_class() {
+    // A rug on the floor, and a far one-cell patch the classifier takes for rug with plant as its second
+    // guess: no plant is anywhere in the room, so making the patch a plant would add a class of one sliver.
+    // "Exactly one rug" takes the fragment away, and it becomes the floor all round it.
+    let room = room(
+        &[
+            "wwwwwwwwwwww",
+            "ffffffffffff",
+            "fRRRRfffffff",
+            "fRRRRffffffg",
+            "fRRRRfffffff",
+            "ffffffffffff",
+        ],
+        &|c, class| match c {
+            'w' => Cell {
+                colour: [215, 205, 185],
+                scores: vec![(class("wall"), 0.9)],
+            },
+            'f' => Cell {
+                colour: [150, 110, 70],
+                scores: vec![(class("floor"), 0.9)],
+            },
+            'R' => Cell {
+                colour: [60, 140, 90],
+                scores: vec![(class("rug"), 0.9)],
+            },
+            _ => Cell {
+                colour: [70, 135, 95],
+                scores: vec![(class("rug"), 0.6), (class("plant"), 0.39)],
+            },
+        },
+    );
+    let (rug, floor) = (class_of(&room, "rug"), class_of(&room, "floor"));
+    let before = solve(&room, None, vec![], None);
+    assert_eq!(
+        objects_of(&before, rug),
+        2,
+        "the fragment shows as a second rug"
+    );
+    let after = solve(
+        &room,
+        Some(&before),
+        vec![(
+            ConstraintKind::Count {
+                class: ClassId(rug),
+                count: Count::Exactly(1),
+            },
+            "exactly 1 rug",
+        )],
+        None,
+    );
+    assert_eq!(objects_of(&after, rug), 1, "{:?}", after.unmet);
+    let fragment = [
+        3 * room.columns as usize + 10,
+        3 * room.columns as usize + 11,
+    ];
+    for segment in fragment {
+        assert_eq!(
+            after.graph.segment_labels[segment].0, floor,
+            "segment {segment}"
+        );
+    }
+}
+
+#[test]
 fn a_point_on_a_wall_relabels_only_the_towel_hanging_there() {
     // A blue towel hangs on the wall; the classifier calls it wall.
     let room = room(

@@ -35,8 +35,11 @@
 //!
 //! What is left beyond `k` is surplus. A surplus object no larger than a quarter of the smallest kept one and
 //! under `MIN_PARTED_AREA` pixels is a fragment, and one under two fine segments of mean size a speck: their
-//! segments then carry a hard factor against the class, so the solver gives them the best other label. A
-//! surplus object of a credible size stays and the count is reported unmet.
+//! segments then carry a hard factor against the class and one towards the label they share the longest
+//! boundary with (`surrounding_label`), so the fragment joins what surrounds it. `sayso trial --half dev`:
+//! mean IoU after two notes against the no-note solve +1.7 -> +1.8 (first 28 seeds) and +1.5 -> +1.6 (next
+//! 28); "chair count is one" in a bedroom had cost 4 mIoU points by making a chair sliver a class seen
+//! nowhere else. A surplus object of a credible size stays and the count is reported unmet.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{numbered, ClarifyingQuestion};
@@ -449,9 +452,55 @@ pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<U
                 weight: HARD_WEIGHT,
                 source: Some(cap.source),
             });
+            if let Some(around) = surrounding_label(scene, graph, members, cap.class) {
+                factors.push(UnaryFactor {
+                    segments: members.iter().map(|s| s.0).collect(),
+                    label: around.0,
+                    wanted: true,
+                    weight: HARD_WEIGHT,
+                    source: Some(cap.source),
+                });
+            }
         }
     }
     factors
+}
+
+/// The label that shares the longest boundary with `members` from outside, other than `class`: what a
+/// fragment taken away from `class` becomes. Merging a small region into the neighbour it shares the most
+/// boundary with is common practice in segmentation clean-up; left to the unaries alone, a fragment took
+/// the next best class, often one the scene shows nowhere else (a new class of one sliver, which costs a
+/// whole class in mean IoU: the development trial's "chair count is one" lost 4 mIoU points that way).
+fn surrounding_label(
+    scene: &Scene,
+    graph: &SceneGraph,
+    members: &[SegmentId],
+    class: ClassId,
+) -> Option<ClassId> {
+    let mut inside: Vec<u32> = members.iter().map(|s| s.0).collect();
+    inside.sort_unstable();
+    let mut shared: std::collections::BTreeMap<u16, u64> = std::collections::BTreeMap::new();
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index() as u32, edge.target().index() as u32);
+        let outside = match (
+            inside.binary_search(&a).is_ok(),
+            inside.binary_search(&b).is_ok(),
+        ) {
+            (true, false) => b,
+            (false, true) => a,
+            _ => continue,
+        };
+        let Some(&label) = graph.segment_labels.get(outside as usize) else {
+            continue;
+        };
+        if label != class {
+            *shared.entry(label.0).or_insert(0) += u64::from(edge.weight.boundary_length);
+        }
+    }
+    shared
+        .into_iter()
+        .max_by(|a, b| a.1.cmp(&b.1).then(b.0.cmp(&a.0)))
+        .map(|(label, _)| ClassId(label))
 }
 
 /// Where a box lies in the picture, in words: "top left", "bottom", "middle" (thirds of each side).
