@@ -27,8 +27,11 @@
 
 use crate::solver::maxflow::FlowGraph;
 
-/// The most sweeps over all labels in one call.
-const MAX_SWEEPS: u32 = 3;
+/// The most sweeps over all labels in one call. Sweeps stop as soon as one changes nothing, which leaves a
+/// local minimum of the allowed expansion moves (every label's move tried on the final labelling and
+/// failed); the cap only guards against rounding making moves cycle. Each sweep after the first re-tries
+/// only the labels the last changes touched, so converging costs little more than the first sweep.
+const MAX_SWEEPS: u32 = 100;
 
 /// Labels a node may switch to: its `CANDIDATE_LABELS` cheapest by unary (label pruning, common practice for
 /// many-label Potts problems); the move is re-scored exactly, so pruning can only miss improvements.
