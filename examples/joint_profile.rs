@@ -100,6 +100,34 @@ fn main() {
                 median(&warm_times)
             );
         }
-        _ => eprintln!("usage: joint_profile dump DIR | solve DIR REPEATS [full|warm|both]"),
+        "fixture" => {
+            // One JSON line per dumped turn: the energy of its warm start's state (which identifies the
+            // energy, whatever solves it) and the full and warm solves' energies.
+            let mut paths: Vec<_> = std::fs::read_dir(&directory)
+                .expect("directory")
+                .map(|entry| entry.expect("entry").path())
+                .collect();
+            paths.sort();
+            let options = JointOptions::default();
+            for path in paths {
+                let value: serde_json::Value =
+                    serde_json::from_slice(&std::fs::read(&path).expect("read")).expect("json");
+                let energy: JointEnergy =
+                    serde_json::from_value(value["energy"].clone()).expect("energy");
+                let warm: WarmStart = serde_json::from_value(value["warm"].clone()).expect("warm");
+                let full = solve_joint(&energy, None, &options).expect("solves");
+                let solved = solve_joint(&energy, Some(&warm), &options).expect("solves");
+                let line = serde_json::json!({
+                    "turn": path.file_stem().map(|s| s.to_string_lossy().to_string()),
+                    "warm_state_energy": energy.evaluate(&warm.state),
+                    "full": full.energy,
+                    "warm": solved.energy,
+                });
+                println!("{line}");
+            }
+        }
+        _ => eprintln!(
+            "usage: joint_profile dump DIR | solve DIR REPEATS [full|warm|both] | fixture DIR"
+        ),
     }
 }

@@ -612,11 +612,11 @@ mod tests {
         assert_eq!(brute_force_minimum(&unary, 2, &edges), 3.0);
         let mut bound = PottsBound::new(3, 2, &edges);
         assert_eq!(bound.bound(&unary), 0.0);
-        let diffused = bound.diffused(&unary, 50, f64::INFINITY);
+        let diffused = bound.diffused(&unary, 50, f64::INFINITY, f64::INFINITY);
         assert!((diffused - 3.0).abs() < 1e-6, "{diffused}");
         // Bad input: the wrong length or a non-finite unary falls back to the even split.
         assert_eq!(
-            bound.diffused(&unary[..4], 50, f64::INFINITY),
+            bound.diffused(&unary[..4], 50, f64::INFINITY, f64::INFINITY),
             f64::NEG_INFINITY
         );
         let mut broken = unary;
@@ -640,7 +640,7 @@ mod tests {
             let even = bound.bound(&unary);
             proptest::prop_assert!(even <= minimum + 1e-9);
             // Diffusion never lowers the bound and never passes the minimum.
-            let diffused = bound.diffused(&unary, 20, f64::INFINITY);
+            let diffused = bound.diffused(&unary, 20, f64::INFINITY, f64::INFINITY);
             proptest::prop_assert!(diffused >= even - 1e-9);
             proptest::prop_assert!(diffused <= minimum + 1e-9, "{} > {}", diffused, minimum);
         }

@@ -157,14 +157,21 @@ impl PottsBound {
 
     /// The bound after at most `sweeps` sweeps of diffusion, stopping early once a sweep raises it by less
     /// than `1e-9` relative, or by less than `STOP_SHARE` of what separates it from `target` (the value the
-    /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual). Never
+    /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual), or
+    /// once it reaches `enough` (what the caller counts as close; infinite to run the sweeps out). Never
     /// below `bound` for the same unaries. Each edge's minimum is kept and recomputed when a diffusion step
     /// writes one of its parts, so a sweep's bound is a sum, not a second pass over every part.
     ///
     /// The split starts from the even split every time, so the bound depends on the inputs alone (a split
     /// kept from an earlier solve of the same scene started closer to the fixed point and stopped sooner,
     /// but made the reported bound depend on what was solved before).
-    pub(crate) fn diffused(&mut self, unary: &[f64], sweeps: usize, target: f64) -> f64 {
+    pub(crate) fn diffused(
+        &mut self,
+        unary: &[f64],
+        sweeps: usize,
+        target: f64,
+        enough: f64,
+    ) -> f64 {
         let label_count = self.label_count;
         let node_count = self.row_minimum.len();
         let even = self.even_split(unary);
@@ -203,7 +210,7 @@ impl PottsBound {
             let rising = rise > 1e-9 * best.abs().max(1.0)
                 && (!target.is_finite() || rise > STOP_SHARE * (target - best));
             best = best.max(reached);
-            if !rising {
+            if !rising || best >= enough {
                 break;
             }
         }
