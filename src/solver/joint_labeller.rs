@@ -623,7 +623,9 @@ mod tests {
         broken[2] = f64::NAN;
         let even = bound.bound(&broken);
         assert_eq!(
-            bound.diffused(&broken, 50, f64::INFINITY).to_bits(),
+            bound
+                .diffused(&broken, 50, f64::INFINITY, f64::INFINITY)
+                .to_bits(),
             even.to_bits()
         );
     }
