@@ -2,7 +2,8 @@
 //! labeller over every label) reaches the energy of the reference alpha-expansion
 //! (`solver::expansion::alpha_expansion`, itself checked against GCO in `solver_against_references`) within
 //! 0.1% on random Potts problems shaped like superpixel graphs (a jittered grid's 4- and some
-//! 8-neighbourhood, unaries like negative log-probabilities, boundary-length weights).
+//! 8-neighbourhood, unaries like negative log-probabilities, boundary-length weights), and that no expansion
+//! move lowers its result (it is an expansion local minimum).
 //!
 //! Owns: the random problem generator and the comparison.
 //! Must not: time anything (benches/joint.rs does).
@@ -72,12 +73,11 @@ fn problem(
 }
 
 proptest! {
-    // A fixed seed: the same 200 problems on every run, so a result is repeatable on any machine. The
-    // labeller is not an exact expansion local minimum on every problem (an expansion move started from
-    // its labelling can still lower some by a few units), so on other seeds a problem can exceed the 0.1%.
+    // Random seeds on every run: the labeller sweeps until no expansion move lowers its labelling, so it is
+    // a local minimum of the same moves the reference makes (with its sweep cap of 3 it was not: on 20,000
+    // problems of this generator, 14 came out more than 0.1% above the reference).
     #![proptest_config(ProptestConfig {
-        cases: 200,
-        rng_seed: proptest::test_runner::RngSeed::Fixed(20261204),
+        cases: 300,
         failure_persistence: None,
         ..ProptestConfig::default()
     })]
@@ -100,6 +100,17 @@ proptest! {
             "joint labeller {} against the reference expansion {}",
             ours.energy,
             reference.energy
+        );
+        // A local minimum of expansion moves: the reference started from our labelling finds no move that
+        // lowers it.
+        let from_ours =
+            alpha_expansion(&problem, Some(&ours.labels), &ExpansionOptions { max_sweeps: 50 })
+                .expect("valid problem");
+        prop_assert!(
+            from_ours.energy >= ours.energy,
+            "an expansion move lowered the joint labeller's {} to {}",
+            ours.energy,
+            from_ours.energy
         );
     }
 }

@@ -105,19 +105,23 @@ fn coupled_minimum(context: &Context, multipliers: &Multipliers) -> CoupledResul
 /// The dual function at `multipliers` with the segment part bounded by `sweeps` sweeps of min-sum
 /// diffusion (`PottsBound::diffused`) instead of the even split: a tighter valid bound, too costly for
 /// every iteration of the loop, taken once at the best multipliers. The sweeps stop early once they close
-/// little of the gap to `energy_found`, the energy of a state the caller holds.
+/// little of the gap to `energy_found`, the energy of a state the caller holds, or once the relative gap
+/// to it (as `crate::solver::joint` reports it) is at most `close_gap`.
 pub(crate) fn diffused_dual_bound(
     context: &Context,
     workspace: &mut Workspace,
     multipliers: &Multipliers,
     sweeps: usize,
     energy_found: f64,
+    close_gap: f64,
 ) -> f64 {
     shift_unary(context, workspace, multipliers);
     let coupled = coupled_minimum(context, multipliers).value;
-    let segment_bound = workspace
-        .bound
-        .diffused(&workspace.unary, sweeps, energy_found - coupled);
+    let enough = energy_found - close_gap * energy_found.abs().max(1.0) - coupled;
+    let segment_bound =
+        workspace
+            .bound
+            .diffused(&workspace.unary, sweeps, energy_found - coupled, enough);
     segment_bound + coupled
 }
 

@@ -27,8 +27,11 @@
 
 use crate::solver::maxflow::FlowGraph;
 
-/// The most sweeps over all labels in one call.
-const MAX_SWEEPS: u32 = 3;
+/// The most sweeps over all labels in one call. Sweeps stop as soon as one changes nothing, which leaves a
+/// local minimum of the allowed expansion moves (every label's move tried on the final labelling and
+/// failed); the cap only guards against rounding making moves cycle. Each sweep after the first re-tries
+/// only the labels the last changes touched, so converging costs little more than the first sweep.
+const MAX_SWEEPS: u32 = 100;
 
 /// Labels a node may switch to: its `CANDIDATE_LABELS` cheapest by unary (label pruning, common practice for
 /// many-label Potts problems); the move is re-scored exactly, so pruning can only miss improvements.
@@ -609,18 +612,20 @@ mod tests {
         assert_eq!(brute_force_minimum(&unary, 2, &edges), 3.0);
         let mut bound = PottsBound::new(3, 2, &edges);
         assert_eq!(bound.bound(&unary), 0.0);
-        let diffused = bound.diffused(&unary, 50, f64::INFINITY);
+        let diffused = bound.diffused(&unary, 50, f64::INFINITY, f64::INFINITY);
         assert!((diffused - 3.0).abs() < 1e-6, "{diffused}");
         // Bad input: the wrong length or a non-finite unary falls back to the even split.
         assert_eq!(
-            bound.diffused(&unary[..4], 50, f64::INFINITY),
+            bound.diffused(&unary[..4], 50, f64::INFINITY, f64::INFINITY),
             f64::NEG_INFINITY
         );
         let mut broken = unary;
         broken[2] = f64::NAN;
         let even = bound.bound(&broken);
         assert_eq!(
-            bound.diffused(&broken, 50, f64::INFINITY).to_bits(),
+            bound
+                .diffused(&broken, 50, f64::INFINITY, f64::INFINITY)
+                .to_bits(),
             even.to_bits()
         );
     }
@@ -637,7 +642,7 @@ mod tests {
             let even = bound.bound(&unary);
             proptest::prop_assert!(even <= minimum + 1e-9);
             // Diffusion never lowers the bound and never passes the minimum.
-            let diffused = bound.diffused(&unary, 20, f64::INFINITY);
+            let diffused = bound.diffused(&unary, 20, f64::INFINITY, f64::INFINITY);
             proptest::prop_assert!(diffused >= even - 1e-9);
             proptest::prop_assert!(diffused <= minimum + 1e-9, "{} > {}", diffused, minimum);
         }

@@ -23,11 +23,14 @@ pub(crate) struct PottsBound {
     /// `incident[incident_start[n]..incident_start[n + 1]]`.
     incident_start: Vec<usize>,
     incident: Vec<(usize, usize)>,
-    /// The split's shifts: `shift[(2 e + side) L + x]` is added to the even share of the unary of edge
-    /// `e`'s end `side` at label `x`; the shifts of one node's edges sum to 0 at every label. Allocated by
-    /// the first diffusion only: most solves never diffuse, and zeroing it cost about a twentieth of a warm
-    /// re-solve on the bench scene.
-    shift: Vec<f64>,
+    /// The split: `end[(2 e + side) L + x]` is the part of the unary of edge `e`'s end `side` at label `x`
+    /// that the edge carries (the even share plus the diffusion's shift); one node's parts sum to its unary.
+    /// Allocated by the first diffusion only: most solves never diffuse.
+    end: Vec<f64>,
+    /// The least value of each part in `end`, kept with it so a node's neighbours need not rescan it.
+    end_minimum: Vec<f64>,
+    /// Each edge's minimum under the current split; the bound is their sum (plus isolated nodes' minima).
+    edge_value: Vec<f64>,
     /// Scratch: each node's row minimum.
     row_minimum: Vec<f64>,
     /// Scratch: each node's unary row times its share.
@@ -77,32 +80,32 @@ impl PottsBound {
                 .collect(),
             incident_start,
             incident,
-            shift: Vec::new(),
+            end: Vec::new(),
+            end_minimum: Vec::new(),
+            edge_value: Vec::new(),
             row_minimum: vec![0.0; node_count],
             scaled: Vec::new(),
             marginals: Vec::new(),
         }
     }
 
-    /// The unary of edge `edge`'s end `side` (node `node`) at every label, written into `out`; returns its
-    /// least value. Reads the even shares from `scaled` (filled by `even_split`).
-    fn end_unary(&self, edge: usize, side: usize, node: usize, out: &mut [f64]) -> f64 {
+    /// Edge `edge`'s minimum under the current split.
+    fn edge_minimum(&self, edge: usize) -> f64 {
         let label_count = self.label_count;
-        let row = &self.scaled[node * label_count..(node + 1) * label_count];
-        let shift =
-            &self.shift[(2 * edge + side) * label_count..(2 * edge + side + 1) * label_count];
-        for ((slot, &value), &moved) in out.iter_mut().zip(row).zip(shift) {
-            *slot = value + moved;
-        }
-        lowest(out)
+        let weight = self.edges[edge].2;
+        let here = &self.end[2 * edge * label_count..(2 * edge + 1) * label_count];
+        let there = &self.end[(2 * edge + 1) * label_count..(2 * edge + 2) * label_count];
+        lowest_sum(here, there)
+            .min(self.end_minimum[2 * edge] + self.end_minimum[2 * edge + 1] + weight)
     }
 
     /// One diffusion step at `node`: equalise the min-marginals of its edges. Edge `e`'s min-marginal at
     /// label `x` is `share u(x) + shift_e(x) + t_e(x)` with `t_e(x) = min(v_e(x), min v_e + w_e)` over the
-    /// other end's unary `v_e`; the node's own `share u(x)` is common to all its edges and cancels. Moving
+    /// other end's part `v_e`; the node's own `share u(x)` is common to all its edges and cancels. Moving
     /// each marginal to their average sets `shift_e = mean(shift + t) - t_e`, and since a node's shifts sum
-    /// to 0 at every label, `shift_e = mean(t) - t_e`: the node's old shifts are never read.
-    fn diffuse(&mut self, node: usize, there: &mut [f64], average: &mut [f64]) {
+    /// to 0 at every label, `shift_e = mean(t) - t_e`: the node's old parts are never read. Updates the
+    /// minima of the node's edges.
+    fn diffuse(&mut self, node: usize, average: &mut [f64]) {
         let label_count = self.label_count;
         let incident = self.incident_start[node]..self.incident_start[node + 1];
         let degree = incident.len();
@@ -110,30 +113,39 @@ impl PottsBound {
             return;
         }
         let mut marginals = std::mem::take(&mut self.marginals);
-        marginals.clear();
-        marginals.resize(degree * label_count, 0.0);
+        // Every row is written in full below, so the buffer only grows.
+        if marginals.len() < degree * label_count {
+            marginals.resize(degree * label_count, 0.0);
+        }
         average.iter_mut().for_each(|v| *v = 0.0);
         for (slot, position) in incident.clone().enumerate() {
             let (edge, side) = self.incident[position];
-            let (a, b, weight) = self.edges[edge];
-            let other = if side == 0 { b } else { a };
-            let cheapest = self.end_unary(edge, 1 - side, other, there) + weight;
+            let weight = self.edges[edge].2;
+            let other_end = 2 * edge + 1 - side;
+            let cheapest = self.end_minimum[other_end] + weight;
+            let there = &self.end[other_end * label_count..(other_end + 1) * label_count];
             let row = &mut marginals[slot * label_count..(slot + 1) * label_count];
-            for ((value, &here), sum) in row.iter_mut().zip(there.iter()).zip(average.iter_mut()) {
-                *value = here.min(cheapest);
+            for ((value, &part), sum) in row.iter_mut().zip(there).zip(average.iter_mut()) {
+                // A comparison, not `f64::min`: the parts are finite, and the loop vectorises.
+                *value = if part < cheapest { part } else { cheapest };
                 *sum += *value;
             }
         }
         let inverse = 1.0 / degree as f64;
         average.iter_mut().for_each(|v| *v *= inverse);
+        let own = &self.scaled[node * label_count..(node + 1) * label_count];
         for (slot, position) in incident.enumerate() {
             let (edge, side) = self.incident[position];
             let row = &marginals[slot * label_count..(slot + 1) * label_count];
-            let shift = &mut self.shift
-                [(2 * edge + side) * label_count..(2 * edge + side + 1) * label_count];
-            for ((moved, &mean), &value) in shift.iter_mut().zip(average.iter()).zip(row) {
-                *moved = mean - value;
+            let this_end = 2 * edge + side;
+            let part = &mut self.end[this_end * label_count..(this_end + 1) * label_count];
+            for ((slot_value, &share), (&mean, &value)) in
+                part.iter_mut().zip(own).zip(average.iter().zip(row))
+            {
+                *slot_value = share + (mean - value);
             }
+            self.end_minimum[this_end] = lowest(part);
+            self.edge_value[edge] = self.edge_minimum(edge);
         }
         self.marginals = marginals;
     }
@@ -145,54 +157,64 @@ impl PottsBound {
 
     /// The bound after at most `sweeps` sweeps of diffusion, stopping early once a sweep raises it by less
     /// than `1e-9` relative, or by less than `STOP_SHARE` of what separates it from `target` (the value the
-    /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual). Never
-    /// below `bound` for the same unaries.
+    /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual), or
+    /// once it reaches `enough` (what the caller counts as close; infinite to run the sweeps out). Never
+    /// below `bound` for the same unaries. Each edge's minimum is kept and recomputed when a diffusion step
+    /// writes one of its parts, so a sweep's bound is a sum, not a second pass over every part.
     ///
     /// The split starts from the even split every time, so the bound depends on the inputs alone (a split
     /// kept from an earlier solve of the same scene started closer to the fixed point and stopped sooner,
     /// but made the reported bound depend on what was solved before).
-    pub(crate) fn diffused(&mut self, unary: &[f64], sweeps: usize, target: f64) -> f64 {
+    pub(crate) fn diffused(
+        &mut self,
+        unary: &[f64],
+        sweeps: usize,
+        target: f64,
+        enough: f64,
+    ) -> f64 {
         let label_count = self.label_count;
         let node_count = self.row_minimum.len();
         let even = self.even_split(unary);
         if unary.len() != node_count * label_count || unary.iter().any(|v| !v.is_finite()) {
             return even;
         }
-        self.shift.clear();
-        self.shift.resize(2 * self.edges.len() * label_count, 0.0);
-        let mut here = vec![0.0; label_count];
-        let mut there = vec![0.0; label_count];
+        // The even split: each edge end carries its node's share.
+        self.end.clear();
+        self.end_minimum.clear();
+        for &(a, b, _) in &self.edges {
+            for node in [a, b] {
+                self.end
+                    .extend_from_slice(&self.scaled[node * label_count..(node + 1) * label_count]);
+                self.end_minimum
+                    .push(self.row_minimum[node] * self.share[node]);
+            }
+        }
+        self.edge_value.clear();
+        for edge in 0..self.edges.len() {
+            let value = self.edge_minimum(edge);
+            self.edge_value.push(value);
+        }
+        let isolated: f64 = self
+            .isolated
+            .iter()
+            .map(|&node| self.row_minimum[node])
+            .sum();
         let mut average = vec![0.0; label_count];
         let mut best = even;
         for _ in 0..sweeps {
             for node in 0..node_count {
-                self.diffuse(node, &mut there, &mut average);
+                self.diffuse(node, &mut average);
             }
-            let reached = self.split_bound(unary, &mut here, &mut there);
+            let reached = isolated + self.edge_value.iter().sum::<f64>();
             let rise = reached - best;
             let rising = rise > 1e-9 * best.abs().max(1.0)
                 && (!target.is_finite() || rise > STOP_SHARE * (target - best));
             best = best.max(reached);
-            if !rising {
+            if !rising || best >= enough {
                 break;
             }
         }
         best
-    }
-
-    /// The bound of the current split.
-    fn split_bound(&self, unary: &[f64], here: &mut [f64], there: &mut [f64]) -> f64 {
-        let label_count = self.label_count;
-        let mut bound = 0.0;
-        for &node in &self.isolated {
-            bound += lowest(&unary[node * label_count..(node + 1) * label_count]);
-        }
-        for (edge, &(a, b, weight)) in self.edges.iter().enumerate() {
-            let lowest_here = self.end_unary(edge, 0, a, here);
-            let lowest_there = self.end_unary(edge, 1, b, there);
-            bound += lowest_sum(here, there).min(lowest_here + lowest_there + weight);
-        }
-        bound
     }
 
     /// The even split's bound, for inputs the diffusion does not take.
@@ -210,7 +232,7 @@ impl PottsBound {
         self.scaled.reserve(node_count * label_count);
         for (node, minimum) in self.row_minimum.iter_mut().enumerate() {
             let row = &unary[node * label_count..(node + 1) * label_count];
-            *minimum = row.iter().copied().fold(f64::INFINITY, f64::min);
+            *minimum = lowest(row);
             let share = self.share[node];
             self.scaled.extend(row.iter().map(|&value| value * share));
         }
