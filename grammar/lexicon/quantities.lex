@@ -12,6 +12,9 @@ half a dozen -> quantity exactly 6
 dozen -> quantity exactly 12
 both -> quantity exactly 2
 a single -> quantity exactly 1
+single -> quantity exactly 1
+not a single -> quantity none
+not any -> quantity none
 the same -> quantity exactly 1
 several -> quantity at_least 3
 a few -> quantity at_least 2

@@ -22,7 +22,15 @@ free = three when before <plural>
 # "no" heard as "know".
 know = no unless after you|i|not|do|we|they|to|dont|don't|didn't
 
-# "there" heard as "their" / "they're".
+# "there" heard as "their" / "they're"; "here" as "hear"; "scene" as "seen"; "see" as "sea".
+their = there when before <end>
+their should = there should
+hear = here when after in|over|right|is|are
+seen = scene when after this|the|in|that
+sea = see when after not|can|i|you|did|could
+were = we are when after <start> when before in
+wear = we are when before in
+your = you are when after <start> when before in
 their is = there is
 their are = there are
 their was = there was
@@ -48,6 +56,14 @@ in front off = in front of
 front off = front of
 on top off = on top of
 next two = next to
+next too = next to
+too the = to the when before left|right|write|rite
+two the = to the when before left|right|write|rite
+be neath = beneath
+lefthand = left hand
+righthand = right hand
+any where = anywhere
+to gether = together
 left off = left of
 right off = right of
 under neath = underneath

@@ -3,7 +3,13 @@
 #   phrase -> kind [value]     tags a phrase; the longest phrase wins
 
 # Contractions and casual spellings.
+# "The mug that's on the desk": after a class word, "that" opens a clause about it.
+that's = , it is when after <class>
+that = , it when after <class>
 that's = that is
+is there = is present when before <end>|.|!|,|;
+it's there = it is present when before <end>|.|!|,|;
+its there = it is present when before <end>|.|!|,|;
 thats = that is
 this's = this is
 it's = it is
@@ -253,6 +259,14 @@ right of -> relation right_of
 to the right of -> relation right_of
 on the right of -> relation right_of
 on the right hand side of -> relation right_of
+on the left side of -> relation left_of
+on the right side of -> relation right_of
+to the left side of -> relation left_of
+to the right side of -> relation right_of
+left side of -> relation left_of
+right side of -> relation right_of
+left hand side of -> relation left_of
+right hand side of -> relation right_of
 in front of -> relation in_front_of
 behind -> relation behind
 in back of -> relation behind
@@ -432,6 +446,17 @@ directly -> skip
 immediately -> skip
 down -> skip
 located -> skip
+positioned -> skip
+right there -> there
+in your detections -> skip
+in the detections -> skip
+in your labels -> skip
+can be found -> be
+be found -> be
+exist -> there
+exists -> there
+all together -> skip
+together -> skip
 standing -> skip
 stuck -> skip
 sleeping -> skip

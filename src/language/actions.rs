@@ -33,6 +33,12 @@ pub struct Builder {
     last_relation: Option<(Referent, Relation, Vec<Referent>)>,
     /// The owner of the last "X has a Y on it": a later "and a Z beside it" in the same utterance means X.
     owner: Option<NounPhrase>,
+    /// The thing the last clause said exists ("you missed a mug"): a later "it's on the desk" in the same
+    /// utterance, with nothing pointed at, means it.
+    introduced: Option<NounPhrase>,
+    /// A question of this utterance asked about an unnamed thing ("what's that by the desk?"): a later
+    /// "it's a mug" with nothing pointed at may mean that thing, so it is not read as a relabel.
+    asked_about_unnamed: bool,
     pub constraints: Vec<Constraint>,
 }
 
@@ -45,8 +51,20 @@ impl Builder {
             unused_antecedent: None,
             last_relation: None,
             owner: None,
+            introduced: None,
+            asked_about_unnamed: false,
             constraints: Vec::new(),
         }
+    }
+
+    /// Notes a chunk of a question: what it names is what a later "one" or "it" of the utterance means.
+    pub fn mention_asked(&mut self, chunk: &Chunk) {
+        if let ChunkKind::NounPhrase(phrase) = &chunk.kind {
+            if phrase.class.is_none() && phrase.deictic.is_some() {
+                self.asked_about_unnamed = true;
+            }
+        }
+        self.mention(chunk, false);
     }
 
     /// Notes a chunk the parser passed over: `used` when a rule consumed it.
@@ -216,6 +234,14 @@ impl Builder {
                 let target = first_phrase("target");
                 let from = first_phrase("from");
                 let to = first_phrase("to");
+                let asked = self.asked_about_unnamed && !self.has_focus;
+                if asked
+                    && target.as_ref().is_some_and(|target| {
+                        target.class.is_none() && target.deictic.is_some_and(|word| word.pronoun)
+                    })
+                {
+                    return;
+                }
                 let target_referent = match &target {
                     Some(target) => self.referent(target),
                     None => self.implicit_target(span),
@@ -304,9 +330,24 @@ impl Builder {
                     });
                     self.apply(&single, chunks, position);
                 }
-                let Some(subject) = first_phrase("subject") else {
+                let Some(mut subject) = first_phrase("subject") else {
                     return;
                 };
+                // "You missed a mug, it's on the desk": with nothing pointed at and no unused noun phrase, a
+                // pronoun subject means the thing the utterance just said exists.
+                if let (Some(word), None, false, None, Some(introduced)) = (
+                    subject.deictic,
+                    subject.class,
+                    self.has_focus,
+                    &self.unused_antecedent,
+                    &self.introduced,
+                ) {
+                    if word.pronoun {
+                        subject.deictic = None;
+                        subject.class = introduced.class;
+                        subject.plural = introduced.plural;
+                    }
+                }
                 // "In the microwave there's a plate": a fronted place with "there is" or "a" says the
                 // thing exists too.
                 if found.rule.name.starts_with("relation_fronted")
@@ -331,6 +372,9 @@ impl Builder {
                     .filter_map(phrase)
                     .collect();
                 self.count_of_subject(&subject, span, misspelled);
+                if subject.class.is_some() && subject.quantity != Some(Quantity::None) {
+                    self.introduced = Some(subject.clone());
+                }
                 let subject_referent = self.referent(&subject);
                 let landmarks: Vec<Referent> = landmark_phrases
                     .iter()
@@ -351,6 +395,25 @@ impl Builder {
             Action::RelationMore => {
                 // ", not on the table", "and left of the lamp", ", not the sofa", ", not on it": the subject
                 // of the last relation; no relation word repeats the last one, and "it" its landmark.
+                // "Missed a mug, on the desk": with no relation yet, a further place is stated of the thing
+                // the utterance just said exists.
+                let stated_relation = !found.role("relation").is_empty();
+                // Only right after the noun phrase and a pause: never across a word no rule read.
+                let follows_the_thing = position >= 2
+                    && chunks[position - 1].kind == ChunkKind::Separator
+                    && matches!(&chunks[position - 2].kind, ChunkKind::NounPhrase(phrase)
+                        if phrase.class.is_some()
+                            && phrase.class == self.introduced.as_ref().and_then(|np| np.class));
+                if self.last_relation.is_none() && stated_relation && follows_the_thing {
+                    if let Some(introduced) = self.introduced.clone() {
+                        let mut subject = introduced;
+                        subject.quantity = None;
+                        subject.relations.clear();
+                        subject.region = None;
+                        let subject = self.referent(&subject);
+                        self.last_relation = Some((subject, Relation::On, Vec::new()));
+                    }
+                }
                 let Some((subject, last, last_landmarks)) = self.last_relation.clone() else {
                     return;
                 };
@@ -529,6 +592,13 @@ impl Builder {
         let Some(class) = np.and_then(|phrase| phrase.class).or(self.last_class) else {
             return;
         };
+        // "No mug, any": a noun phrase whose own quantity disagrees with the number read after it is not
+        // read surely, so it states nothing.
+        if let Some(own) = np.and_then(|phrase| phrase.quantity) {
+            if own != quantity {
+                return;
+            }
+        }
         // "Add a mug, there's one in this room": a bare "one" with no noun is the pronoun, not a count.
         let quantity = if np.is_none() && bare && quantity == Quantity::Exactly(1) {
             Quantity::Some
@@ -553,7 +623,23 @@ impl Builder {
 
     /// "There are two chairs next to the table", "no cats", "there's a mug on the counter".
     fn exist(&mut self, np: &NounPhrase, negated: bool, span: Span, misspelled: bool) {
-        let owned = self.to_owner(np);
+        let mut owned = self.to_owner(np);
+        // "How did you miss the mug? It's right there.": with nothing pointed at, "it" means the noun phrase
+        // the utterance named and no rule used.
+        if let (Some(word), None, None, false, Some(antecedent)) = (
+            owned.deictic,
+            owned.class,
+            owned.quantity,
+            self.has_focus,
+            &self.unused_antecedent,
+        ) {
+            if word.pronoun && !word.plural {
+                let span = owned.span;
+                owned = antecedent.clone();
+                owned.quantity = None;
+                owned.span = span;
+            }
+        }
         let np = &owned;
         // "It's one object", "there are three of them": a stated number with no class counts the class the
         // utterance named last.
@@ -606,6 +692,9 @@ impl Builder {
                 );
             }
             return;
+        }
+        if np.class.is_some() && !zero && np.deictic.is_none() {
+            self.introduced = Some(np.clone());
         }
         if let Some(class) = np.class {
             let quantity = if zero {

@@ -420,7 +420,14 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
             continue;
         }
         let next = (index + 1..chunks.len()).find(|&j| chunks[j].kind != ChunkKind::Separator);
-        let wanted = next.and_then(|j| repair_kind(&chunks[j].kind));
+        // "A rug and no, the microwave is not on the counter": "and no" joins a new clause, it repairs
+        // nothing before it.
+        let joined = chunks[index].kind == ChunkKind::No
+            && index > 0
+            && chunks[index - 1].kind == ChunkKind::And;
+        let wanted = next
+            .filter(|_| !joined)
+            .and_then(|j| repair_kind(&chunks[j].kind));
         let earlier = wanted.and_then(|wanted| {
             (index.saturating_sub(4)..index)
                 .rev()

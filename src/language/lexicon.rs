@@ -347,7 +347,17 @@ impl Lexicon {
     ) -> bool {
         let listed = condition.words.iter().any(|wanted| {
             if condition.after {
-                return previous == Some(wanted.as_str());
+                return match (previous, wanted.as_str()) {
+                    (None, wanted) => wanted == "<start>",
+                    (Some(word), "<class>") => matches!(
+                        self.longest_phrase(&[word]),
+                        Some(Found {
+                            tag: Tag::Class { .. },
+                            ..
+                        })
+                    ),
+                    (Some(word), wanted) => word == wanted,
+                };
             }
             let Some(next) = following.first() else {
                 return wanted == "<end>";

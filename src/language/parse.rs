@@ -310,6 +310,13 @@ impl Grammar {
                         ignored_raw.push((span, IgnoredReason::NotACorrection));
                     }
                     other_kinds.push(kind);
+                    // "Why is there a mug? There isn't one.": what a question names is what a later "one"
+                    // or "it" of the same utterance means.
+                    let mut scratch = Vec::new();
+                    let items = clean(sentence.items, &mut scratch);
+                    for chunk in attach(repair(chunk(&items), &mut scratch)) {
+                        builder.mention_asked(&chunk);
+                    }
                     continue;
                 }
                 other_kinds.push(kind);
@@ -452,9 +459,37 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
                 continue;
             }
         }
+        // "You say there's no mug, but there is one": a later presence of a class the utterance said was
+        // absent (or the other way round) takes back the earlier one, as a self-repair does.
+        if let Some(class) = presence_of(&constraint.kind) {
+            let taken_back = |earlier: &Constraint| {
+                presence_of(&earlier.kind) == Some(class)
+                    && is_absence(&earlier.kind) != is_absence(&constraint.kind)
+            };
+            out.retain(|earlier| !taken_back(earlier));
+        }
         out.push(constraint);
     }
     out
+}
+
+/// The class a presence, absence or count constraint is about.
+fn presence_of(kind: &ConstraintKind) -> Option<crate::ids::ClassId> {
+    match kind {
+        ConstraintKind::Present { class }
+        | ConstraintKind::Absent { class }
+        | ConstraintKind::Count { class, .. } => Some(*class),
+        _ => None,
+    }
+}
+
+/// Whether a presence, absence or count constraint says there is none.
+fn is_absence(kind: &ConstraintKind) -> bool {
+    match kind {
+        ConstraintKind::Absent { .. } => true,
+        ConstraintKind::Count { count, .. } => !count.admits(1) && !count.admits(2),
+        _ => false,
+    }
 }
 
 /// Classifies a sentence that is not a correction by its cue words; `None` means "read it for constraints".

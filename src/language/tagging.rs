@@ -53,12 +53,45 @@ pub struct Sentence {
     pub span: Option<Span>,
 }
 
+/// Sounds of hesitation, which never belong to a phrase (fillers that are words, such as "like", stay for
+/// the lexicon to judge).
+const HESITATIONS: [&str; 8] = ["uh", "um", "umm", "uhm", "er", "erm", "hmm", "ah"];
+
 /// Applies rewrites and splits tokens into sentences of words.
-fn rewrite(lexicon: &Lexicon, tokens: &[Token]) -> Vec<Word> {
+fn rewrite(
+    lexicon: &Lexicon,
+    tokens: &[Token],
+    ignored: &mut Vec<(Span, IgnoredReason)>,
+) -> Vec<Word> {
     let mut words: Vec<Word> = Vec::with_capacity(tokens.len() + 4);
     let mut index = 0;
     while index < tokens.len() {
         let token = &tokens[index];
+        // "On the uh left of the desk": a hesitation sound between two words is dropped before phrases are
+        // matched, so it cannot split a phrase.
+        let between_words = words
+            .last()
+            .is_some_and(|word| word.shape == TokenShape::Word)
+            && tokens
+                .get(index + 1)
+                .is_some_and(|next| next.shape == TokenShape::Word);
+        if token.shape == TokenShape::Word
+            && between_words
+            && HESITATIONS.contains(&token.text.as_str())
+        {
+            ignored.push((token.span, IgnoredReason::Filler));
+            index += 1;
+            continue;
+        }
+        // "On the the left of": a word said twice is one word before phrases are matched.
+        let repeated = words.last().is_some_and(|word| {
+            word.shape == TokenShape::Word && !word.fragment && word.text == token.text
+        });
+        if token.shape == TokenShape::Word && repeated {
+            ignored.push((token.span, IgnoredReason::Stutter));
+            index += 1;
+            continue;
+        }
         if token.shape != TokenShape::Word {
             words.push(Word {
                 text: token.text.clone(),
@@ -199,7 +232,7 @@ pub fn tag_sentences(
     notes: &mut Vec<Note>,
     ignored: &mut Vec<(Span, IgnoredReason)>,
 ) -> Vec<Sentence> {
-    let words = rewrite(lexicon, tokens);
+    let words = rewrite(lexicon, tokens, ignored);
     let mut sentences = Vec::new();
     let mut current = Sentence::default();
     let mut index = 0;
