@@ -12,7 +12,7 @@
 //! grammar_dir = "grammar"        # classes.toml and the lexicon
 //! model = "models/segments.onnx" # the segment classifier (optional)
 //! demo_dir = "demo_scenes"       # scenes registrable by name [default: the crate's demo_scenes/]
-//! body_limit_bytes = 33554432
+//! body_limit_bytes = 67108864
 //! pixel_limit = 16777216
 //! rate_per_second = 100.0        # per token (or per caller when no tokens are set)
 //! rate_burst = 200
@@ -105,7 +105,7 @@ impl Default for ServiceConfig {
             grammar_dir: None,
             model: None,
             demo_dir: None,
-            body_limit_bytes: 32 * 1024 * 1024,
+            body_limit_bytes: 64 * 1024 * 1024,
             pixel_limit: crate::raster::DEFAULT_PIXEL_LIMIT,
             rate_per_second: 100.0,
             rate_burst: 200,
