@@ -250,11 +250,33 @@ fn store_keeps_the_scores_and_field_notes_are_solved_on_them() {
         &std::fs::read_to_string(data.path().join("notes.jsonl.report.json")).unwrap(),
     )
     .unwrap();
-    // The stored scores show a sofa, so the note has something to take away.
     assert_eq!(report["results"][0]["outcome"], "applied", "{report}");
+    // The exported example shows what the note was solved on: the stored scores' sofa (the built-in
+    // classifier alone shows another class there), and after the note no sofa.
+    let dataset = data.path().join("dataset");
+    let exported = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["export", "--data-dir"])
+        .arg(data.path())
+        .arg("--output")
+        .arg(&dataset)
+        .output()
+        .unwrap();
+    assert!(exported.status.success(), "{}", text(&exported.stderr));
+    let example = dataset.join("example-000001");
+    let before = read_index_png(&example.join("labels_before.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let after = read_index_png(&example.join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(block_share(&before, class("sofa")) > 0.9);
+    assert!(block_share(&after, class("sofa")) < 0.1);
 }
 
 fn router(body_limit_bytes: usize) -> (tempfile::TempDir, axum::Router) {
+    router_with(body_limit_bytes, None)
+}
+
+fn router_with(
+    body_limit_bytes: usize,
+    user_model: Option<&Path>,
+) -> (tempfile::TempDir, axum::Router) {
     use sayso::pipeline::model_path;
     use sayso::service::config::ServiceConfig;
     use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
@@ -266,7 +288,7 @@ fn router(body_limit_bytes: usize) -> (tempfile::TempDir, axum::Router) {
         body_limit_bytes,
         ..ServiceConfig::default()
     };
-    let coordinator = Coordinator::open(
+    let mut coordinator = Coordinator::open(
         Arc::new(JointCorrector::load(&model_path(None)).unwrap()),
         &CoordinatorSettings {
             log_path: config.log_path(),
@@ -276,6 +298,10 @@ fn router(body_limit_bytes: usize) -> (tempfile::TempDir, axum::Router) {
         Arc::new(Metrics::default()),
     )
     .unwrap();
+    if let Some(path) = user_model {
+        let model = sayso::unaries::byo_user_model::UserModel::load(path).unwrap();
+        coordinator = coordinator.with_user_model(Arc::new(model));
+    }
     let app = sayso::service::app(sayso::service::AppState::new(Arc::new(coordinator), config));
     (data, app)
 }
@@ -444,4 +470,26 @@ async fn every_refusal_of_a_large_body_states_the_limit() {
             .contains(&format!("{limit} bytes")),
         "{refused}"
     );
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_service_with_a_user_model_scores_plain_images_with_it() {
+    let (_data, app) = router_with(64 * 1024 * 1024, Some(Path::new(USER_MODEL)));
+    let (status, scene) = upload(&app, &[("image", read("corner.png"))]).await;
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+    let labels = labels_of(&app, &scene).await;
+    let known = [class("floor"), class("wall"), class("sofa"), class("towel")];
+    assert!(labels.values.iter().all(|value| known.contains(value)));
+    // Scores sent with a scene still win over the service's model.
+    let (status, scene) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("label_map", read("corner_label_map.png")),
+            ("label_map_classes", read("corner_label_classes.txt")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+    assert!(block_share(&labels_of(&app, &scene).await, class("sofa")) > 0.9);
 }

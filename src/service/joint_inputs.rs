@@ -130,7 +130,7 @@ pub fn prepare_input(
     )
     .map_err(|error| bad("image_png_base64", error.to_string()))?;
     let (scores, field) = if let Some(bytes) = &input.scores_npy {
-        const FIELD: &str = "scores_npy_base64";
+        const FIELD: &str = "scores";
         let array = parse_npy(bytes).map_err(|error| bad(FIELD, error.to_string()))?;
         let scores = ScoreSource::PixelScores(PixelScores {
             values: array.values,
@@ -144,9 +144,9 @@ pub fn prepare_input(
         let map = ScoreSource::LabelMap(LabelMap {
             labels: labels.clone(),
             class_names: input.classes.label_map.clone(),
-            origin: "label_map_png_base64".into(),
+            origin: "label_map".into(),
         });
-        (map, "label_map_png_base64")
+        (map, "label_map")
     } else {
         (ScoreSource::BuiltIn, "image_base64")
     };

@@ -300,6 +300,23 @@ impl Coordinator {
         } else {
             image_bytes
         };
+        if let Some(model) = &self.user_model {
+            if upload.scores_npy.is_none() && upload.label_map_png.is_none() {
+                let scores = model.scores_for_image(&image).map_err(|error| {
+                    ApiError::unprocessable(
+                        "user_model",
+                        format!("the service's user model: {error}"),
+                    )
+                })?;
+                let values: Vec<f32> = scores.iter().map(|&value| value as f32).collect();
+                upload.scores_npy = Some(crate::unaries::byo_npy::encode_npy_f32(
+                    scores.shape(),
+                    &values,
+                ));
+                upload.scores_classes = Some(model.config().classes.clone());
+                upload.scores_kind = Some(model.config().output);
+            }
+        }
         let (width, height) = (image.width, image.height);
         let size_check = |field: &str, found_width: u32, found_height: u32| {
             if (found_width, found_height) != (width, height) {
