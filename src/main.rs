@@ -68,7 +68,14 @@ fn main() {
             eprintln!("sayso: {unsettled}");
             std::process::exit(unsettled.code);
         }
-        let chain: Vec<String> = error.chain().map(|cause| cause.to_string()).collect();
+        // A cause whose text its parent's message already ends with is not repeated.
+        let mut chain: Vec<String> = Vec::new();
+        for cause in error.chain() {
+            let text = cause.to_string();
+            if !chain.last().is_some_and(|last| last.ends_with(&text)) {
+                chain.push(text);
+            }
+        }
         eprintln!("sayso: error: {}", chain.join(": "));
         std::process::exit(EXIT_FAILED);
     }

@@ -18,7 +18,7 @@ use crate::taxonomy::{Taxonomy, UNLABELLED};
 
 use legend::{display_name, legend_panel, wrap, LegendRow, PANEL_BACKGROUND, PANEL_TEXT};
 use paint::{mark_changes, outline_regions, tint, ChangedRegion};
-use text::{draw_text, line_height};
+use text::{draw_text, line_height, text_width};
 
 /// Any per-pixel region map, row-major: its borders are outlined. Pass objects (scene-graph objects,
 /// ground-truth instances, or the labels themselves), not superpixels.
@@ -316,12 +316,23 @@ fn share_rows(
         .collect()
 }
 
-/// The picture under a strip holding its title.
+/// The smallest title text, in pixels, on a picture too narrow for the usual size (our own choice).
+const SMALLEST_TITLE_SIZE: f32 = 7.0;
+
+/// The picture under a strip holding its title; on a picture too narrow for the title the text is made
+/// smaller to fit (down to `SMALLEST_TITLE_SIZE`), so a small image's panels still say which is which.
 fn titled(picture: &RgbImage, title: &str, text_size: f32) -> RgbImage {
+    let room = picture.width.saturating_sub(12) as f32;
+    let width = text_width(title, text_size) as f32;
+    let size = if width > room && width > 0.0 {
+        (text_size * room / width).max(SMALLEST_TITLE_SIZE)
+    } else {
+        text_size
+    };
     let strip = line_height(text_size) + 8;
     let mut out = RgbImage::filled(picture.width, picture.height + strip, PANEL_BACKGROUND);
     paste(&mut out, picture, 0, strip);
-    draw_text(&mut out, 6, 4, title, text_size, PANEL_TEXT);
+    draw_text(&mut out, 6, 4, title, size, PANEL_TEXT);
     out
 }
 
@@ -350,6 +361,31 @@ fn paste(canvas: &mut RgbImage, picture: &RgbImage, left: u32, top: u32) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The rightmost column of the title strip holding a pixel other than the background.
+    fn title_end(out: &RgbImage, strip: u32) -> u32 {
+        (0..out.width)
+            .filter(|&x| (0..strip).any(|y| out.get(x, y) != PANEL_BACKGROUND))
+            .max()
+            .unwrap_or(0)
+    }
+
+    #[test]
+    fn a_title_is_made_smaller_to_fit_a_narrow_picture() {
+        let size = 15.0;
+        let strip = line_height(size) + 8;
+        let title = "Before the notes";
+        assert!(
+            text_width(title, size) + 12 > 96,
+            "the title must not fit at full size"
+        );
+        let narrow = titled(&RgbImage::filled(96, 20, [90, 90, 90]), title, size);
+        assert!(title_end(&narrow, strip) < 96 - 4);
+        assert_eq!(narrow.height, 20 + strip);
+        // A wide picture keeps the full size: the title ends where its full width does.
+        let wide = titled(&RgbImage::filled(400, 20, [90, 90, 90]), title, size);
+        assert!(title_end(&wide, strip) + 12 >= 6 + text_width(title, size));
+    }
 
     fn two_region_scene() -> (RgbImage, Vec<u32>, Vec<u16>) {
         let image = RgbImage::filled(8, 4, [100, 100, 100]);

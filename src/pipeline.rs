@@ -1,7 +1,7 @@
 //! The main job end to end: a scene and operator notes in, a corrected scene graph and a report out.
 //!
-//! Owns: `correct_scene` (load the scene, build superpixels, score segments with the built-in classifier,
-//! parse each note in one conversation, correct turn by turn with the previous turn as warm start),
+//! Owns: `correct_scene` (load the scene, build superpixels, score segments with the built-in classifier
+//! or the robot's own perception through `unaries::perception`, parse each note in one conversation, correct turn by turn with the previous turn as warm start),
 //! `CorrectionReport` and its plain-text summary, and where the built-in classifier file is found.
 //! Must not: write files or know about flags (the binary does that), nor reach inside the solver: it calls
 //! `turn::solve::correct` only.
@@ -27,7 +27,9 @@ use crate::turn::solve::{Correction, CorrectionError};
 pub use crate::turn::{correct_turn, CorrectionSettings, TurnInputs};
 use crate::turn::{Candidate, TurnError};
 use crate::unaries::builtin::{builtin_unaries, current_feature_layout};
+use crate::unaries::byo::PerceptionError;
 use crate::unaries::classifier::{Classifier, ClassifierError};
+use crate::unaries::perception::Perception;
 use crate::unaries::Unaries;
 
 /// Environment variable naming the built-in classifier's ONNX file.
@@ -61,6 +63,8 @@ pub enum PipelineError {
     InstanceCuts(#[from] InstanceCutsError),
     #[error(transparent)]
     Turn(#[from] TurnError),
+    #[error("the robot's own perception: {0}")]
+    Perception(#[from] PerceptionError),
 }
 
 /// Which scene to work on.
@@ -129,11 +133,15 @@ pub fn model_path(explicit: Option<&Path>) -> PathBuf {
     }
 }
 
-/// A scene ready for correction: the capture, the superpixel scene and the classifier's scores.
+/// A scene ready for correction: the capture, the superpixel scene and the classifier's scores (or the
+/// robot's own), with the robot's detections.
 pub struct PreparedScene {
     pub capture: Capture,
     pub scene: Scene,
     pub unaries: Unaries,
+    pub detections: Vec<crate::hypotheses::Detection>,
+    /// Class names of the robot's own perception that were left out as unknown.
+    pub dropped_classes: Vec<String>,
     /// The classifier's best class per fine segment (what it believes with no correction).
     pub classifier_labels: Vec<ClassId>,
 }
@@ -158,7 +166,62 @@ pub fn prepare_loaded(
     capture: impl Into<Capture>,
     classifier: &Classifier,
 ) -> Result<PreparedScene, PipelineError> {
-    let capture = capture.into();
+    let scene = built_superpixels(capture.into())?;
+    let started = std::time::Instant::now();
+    let unaries = builtin_unaries(&scene.1, classifier)?;
+    tracing::debug!(
+        classes = unaries.class_count(),
+        milliseconds = started.elapsed().as_millis() as u64,
+        "segments scored by the built-in classifier"
+    );
+    Ok(prepared(scene, unaries, Vec::new(), Vec::new()))
+}
+
+/// Builds superpixels of a capture and scores them from the robot's own perception (the built-in
+/// classifier when it brings no scores).
+pub fn prepare_perceived(
+    capture: Capture,
+    perception: &Perception,
+    taxonomy: &Taxonomy,
+    classifier: &Classifier,
+) -> Result<PreparedScene, PipelineError> {
+    let (capture, scene) = built_superpixels(capture)?;
+    let started = std::time::Instant::now();
+    let perceived = perception.unaries(&scene, &capture.image, taxonomy, classifier)?;
+    tracing::debug!(
+        source = ?perception.scores,
+        classes = perceived.unaries.class_count(),
+        detections = perceived.detections.len(),
+        dropped = perceived.dropped.len(),
+        milliseconds = started.elapsed().as_millis() as u64,
+        "segments scored"
+    );
+    Ok(prepared(
+        (capture, scene),
+        perceived.unaries,
+        perceived.detections,
+        perceived.dropped,
+    ))
+}
+
+fn prepared(
+    (capture, scene): (Capture, Scene),
+    unaries: Unaries,
+    detections: Vec<crate::hypotheses::Detection>,
+    dropped_classes: Vec<String>,
+) -> PreparedScene {
+    let classifier_labels = best_classes(&unaries);
+    PreparedScene {
+        capture,
+        scene,
+        unaries,
+        detections,
+        dropped_classes,
+        classifier_labels,
+    }
+}
+
+fn built_superpixels(capture: Capture) -> Result<(Capture, Scene), PipelineError> {
     let started = std::time::Instant::now();
     let scene = superpixels_of(&capture)?;
     tracing::debug!(
@@ -170,20 +233,7 @@ pub fn prepare_loaded(
         milliseconds = started.elapsed().as_millis() as u64,
         "superpixels built"
     );
-    let started = std::time::Instant::now();
-    let unaries = builtin_unaries(&scene, classifier)?;
-    let classifier_labels = best_classes(&unaries);
-    tracing::debug!(
-        classes = unaries.class_count(),
-        milliseconds = started.elapsed().as_millis() as u64,
-        "segments scored by the built-in classifier"
-    );
-    Ok(PreparedScene {
-        capture,
-        scene,
-        unaries,
-        classifier_labels,
-    })
+    Ok((capture, scene))
 }
 
 /// The highest-scoring class of every segment row.
@@ -299,7 +349,7 @@ pub fn correct_notes(
     let inputs = TurnInputs {
         scene: &prepared.scene,
         unaries: &prepared.unaries,
-        detections: &[],
+        detections: &prepared.detections,
     };
     let mut dialogue = Dialogue::new(inputs, settings, confirm_safety)?;
     let mut after_each = Vec::new();
@@ -429,7 +479,7 @@ pub fn believe_without_notes(
         &TurnInputs {
             scene: &prepared.scene,
             unaries: &prepared.unaries,
-            detections: &[],
+            detections: &prepared.detections,
         },
         None,
         &[],

@@ -1,5 +1,5 @@
-//! `sayso fix`: the main job on the command line. A scene (demo name or directory) and one or more operator
-//! notes in; the corrected scene graph, label map, before/after overlays and a plain summary out.
+//! `sayso fix`: the main job on the command line. A scene (demo name, image or directory), optionally the
+//! robot's own perception of it (`super::perception`), and one or more operator notes in; the corrected scene graph, label map, before/after overlays and a plain summary out.
 //!
 //! Owns: the flags, the output file names, drawing the before and after pictures.
 //! Must not: run pipeline stages itself; everything goes through `sayso::pipeline`.
@@ -11,7 +11,7 @@ use sayso::demo::demo_directory;
 use sayso::language::parse_focus;
 use sayso::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
 use sayso::pipeline::{
-    correct_notes, load_classifier, model_path, prepare_loaded, report_text, CorrectionReport,
+    correct_notes, load_classifier, model_path, prepare_perceived, report_text, CorrectionReport,
     CorrectionSettings, PointedNote, SceneSource,
 };
 use sayso::raster::{write_palette_png, write_rgb_png};
@@ -44,6 +44,8 @@ pub struct FixArgs {
     /// The classifier's ONNX file (default: $SAYSO_MODEL, else models/segment_classifier.onnx).
     #[arg(long)]
     pub model: Option<PathBuf>,
+    #[command(flatten)]
+    pub perception: super::perception::PerceptionArgs,
 }
 
 /// Notes that were not all settled: the process exits with `code` after the outputs are written.
@@ -163,7 +165,16 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
     let capture = source.load()?;
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let settings = CorrectionSettings::embedded()?;
-    let prepared = prepare_loaded(capture, &classifier)?;
+    let perception =
+        args.perception
+            .perception(capture.image.width, capture.image.height, &taxonomy)?;
+    let prepared = prepare_perceived(capture, &perception, &taxonomy, &classifier)?;
+    if !prepared.dropped_classes.is_empty() {
+        eprintln!(
+            "sayso: left out classes with unknown names: {}",
+            prepared.dropped_classes.join(", ")
+        );
+    }
     let report = correct_notes(prepared, &notes, args.confirm, &settings)?;
     write_outputs(&report, &taxonomy, &args.out)?;
     print!("{}", report_text(&report, &taxonomy));

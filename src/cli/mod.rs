@@ -12,6 +12,7 @@ mod field_notes;
 pub mod fix;
 mod model_watch;
 mod parse;
+mod perception;
 mod render;
 mod retrain;
 mod score;

@@ -89,7 +89,7 @@ fn open_coordinator_with(
     config: &ServiceConfig,
     corrector: Arc<dyn Corrector>,
 ) -> anyhow::Result<Arc<Coordinator>> {
-    let coordinator = Coordinator::open(
+    let mut coordinator = Coordinator::open(
         corrector,
         &CoordinatorSettings {
             log_path: config.log_path(),
@@ -99,6 +99,11 @@ fn open_coordinator_with(
         Arc::new(Metrics::default()),
     )
     .with_context(|| format!("opening the correction log {}", config.log_path().display()))?;
+    if let Some(path) = &config.user_model {
+        let model = sayso::unaries::byo_user_model::UserModel::load(path)
+            .with_context(|| format!("loading the user model {}", path.display()))?;
+        coordinator = coordinator.with_user_model(Arc::new(model));
+    }
     Ok(Arc::new(coordinator))
 }
 
@@ -115,6 +120,10 @@ pub struct ServeArgs {
     /// The port [default: 8417]; 0 picks a free one (printed on standard output).
     #[arg(long, env = "SAYSO_PORT")]
     pub port: Option<u16>,
+    /// A user per-pixel ONNX model's config file (docs/perception.md) that scores every scene registered
+    /// without scores or a label map [default: the built-in classifier].
+    #[arg(long, env = "SAYSO_USER_MODEL")]
+    pub user_model: Option<PathBuf>,
 }
 
 pub fn run(args: ServeArgs) -> anyhow::Result<()> {
@@ -124,6 +133,9 @@ pub fn run(args: ServeArgs) -> anyhow::Result<()> {
     }
     if let Some(port) = args.port {
         config.bind.set_port(port);
+    }
+    if let Some(path) = args.user_model {
+        config.user_model = Some(path);
     }
     config.validate()?;
     let joint = joint_corrector(&config)?;

@@ -11,8 +11,8 @@ use sayso::service::coordinator::SceneUpload;
 
 use super::serve::{open_coordinator, ServiceFlags};
 
-/// Register demo scenes by name, or a scene from an image (PNG or JPEG) and optional depth PNG, in the correction
-/// log; prints each new scene id.
+/// Register demo scenes by name, or a scene from an image (PNG or JPEG) with an optional depth PNG and the
+/// robot's own perception, in the correction log; prints each new scene id.
 #[derive(Debug, clap::Args)]
 pub struct StoreArgs {
     #[command(flatten)]
@@ -32,6 +32,10 @@ pub struct StoreArgs {
     /// The operator the registration is logged as.
     #[arg(long, default_value = "local")]
     pub operator: String,
+    /// The robot's own perception of --image (kept with the scene; field notes applied to it later are
+    /// solved on it).
+    #[command(flatten)]
+    pub perception: super::perception::PerceptionArgs,
 }
 
 pub fn run(args: StoreArgs) -> anyhow::Result<()> {
@@ -45,11 +49,18 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
             ..SceneUpload::default()
         });
     }
+    let brings_perception = args.perception.scores.is_some()
+        || args.perception.label_map.is_some()
+        || args.perception.user_model.is_some()
+        || args.perception.detections.is_some();
+    if brings_perception && args.image.is_none() {
+        anyhow::bail!("--scores, --label-map, --user-model and --detections go with an --image");
+    }
     if let Some(image) = &args.image {
         let read = |path: &PathBuf| {
             std::fs::read(path).with_context(|| format!("reading {}", path.display()))
         };
-        uploads.push(SceneUpload {
+        let mut upload = SceneUpload {
             image_png: Some(read(image)?),
             depth_png: args.depth.as_ref().map(read).transpose()?,
             name: args.name.clone().or_else(|| {
@@ -58,7 +69,9 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
                     .map(|stem| stem.to_string_lossy().into_owned())
             }),
             ..SceneUpload::default()
-        });
+        };
+        args.perception.fill_upload(&mut upload, image)?;
+        uploads.push(upload);
     }
     if uploads.is_empty() {
         anyhow::bail!("name at least one --demo scene or an --image to store");

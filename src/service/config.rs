@@ -12,7 +12,9 @@
 //! grammar_dir = "grammar"        # classes.toml and the lexicon
 //! model = "models/segments.onnx" # the segment classifier (optional)
 //! demo_dir = "demo_scenes"       # scenes registrable by name [default: the crate's demo_scenes/]
-//! body_limit_bytes = 33554432
+//! user_model = "my_model.toml"   # a user ONNX model's config (docs/perception.md): scores every scene
+//!                                # registered without scores or a label map [default: the built-in classifier]
+//! body_limit_bytes = 67108864
 //! pixel_limit = 16777216
 //! rate_per_second = 100.0        # per token (or per caller when no tokens are set)
 //! rate_burst = 200
@@ -78,6 +80,9 @@ pub struct ServiceConfig {
     /// Where demo scenes are found; `None` is the crate's `demo_scenes/` (as for `sayso demo`, `fix` and
     /// `score`). The binary lays `--demo-dir` and `SAYSO_DEMO_DIR` over it.
     pub demo_dir: Option<PathBuf>,
+    /// A user per-pixel ONNX model's config file (`crate::unaries::byo_user_model`): it scores every scene
+    /// registered without scores or a label map, in place of the built-in classifier.
+    pub user_model: Option<PathBuf>,
     pub body_limit_bytes: usize,
     pub pixel_limit: u64,
     pub rate_per_second: f64,
@@ -105,7 +110,8 @@ impl Default for ServiceConfig {
             grammar_dir: None,
             model: None,
             demo_dir: None,
-            body_limit_bytes: 32 * 1024 * 1024,
+            user_model: None,
+            body_limit_bytes: 64 * 1024 * 1024,
             pixel_limit: crate::raster::DEFAULT_PIXEL_LIMIT,
             rate_per_second: 100.0,
             rate_burst: 200,

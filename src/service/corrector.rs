@@ -29,6 +29,24 @@ pub struct Detection {
     pub score: f32,
 }
 
+/// How the robot's own scores and label map sent with a scene name their classes (a class name is a
+/// taxonomy name or a perception synonym; see `crate::unaries::perception`).
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct PerceptionClasses {
+    /// The scores' channel names in order; `None`: the taxonomy's classes in id order.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub scores: Option<Vec<String>>,
+    /// How to read the scores; `None`: probabilities when every pixel sums to 1, else logits.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub scores_kind: Option<crate::unaries::byo_pixel_scores::ScoreKind>,
+    /// The label map's class list (value k is the k-th name); `None`: values are taxonomy class ids.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub label_map: Option<Vec<String>>,
+    /// Leave classes with unknown names out instead of refusing the scene.
+    #[serde(default)]
+    pub drop_unknown: bool,
+}
+
 /// Everything a scene is registered with. The image is decoded and within the pixel limit; the other parts
 /// are checked by the corrector (it alone knows what it can use).
 #[derive(Clone, Debug)]
@@ -41,6 +59,8 @@ pub struct SceneInput {
     pub label_map: Option<IndexImage>,
     pub detections: Vec<Detection>,
     pub room: Option<RoomId>,
+    /// The class names of `scores_npy` and `label_map`.
+    pub classes: PerceptionClasses,
 }
 
 /// One object of the current scene graph, as the service shows it.

@@ -80,6 +80,20 @@ impl IntoResponse for ApiError {
     }
 }
 
+/// The refusal of a body over `body_limit_bytes`, stating the limit.
+pub fn body_too_large(limit: usize) -> ApiError {
+    ApiError::caller(
+        StatusCode::PAYLOAD_TOO_LARGE,
+        "body_too_large",
+        format!(
+            "the request body is larger than body_limit_bytes = {limit} bytes ({:.1} MiB); send large \
+             scores as a multipart upload (POST /v1/scenes/upload, no base64), or raise body_limit_bytes \
+             in the service's config",
+            limit as f64 / (1024.0 * 1024.0)
+        ),
+    )
+}
+
 /// The error code used when a bare status (from a layer or the router) has to be put into the JSON shape.
 pub fn code_for_status(status: StatusCode) -> (&'static str, &'static str) {
     match status {

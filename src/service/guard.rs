@@ -428,7 +428,11 @@ pub async fn shape_and_measure(
             tracing::error!(%status, %route, "a layer answered with a bare server error");
         }
         let retry_after = response.headers().get(header::RETRY_AFTER).cloned();
-        response = ApiError::caller(status, code, message).into_response();
+        response = if status == StatusCode::PAYLOAD_TOO_LARGE {
+            super::error::body_too_large(state.config.body_limit_bytes).into_response()
+        } else {
+            ApiError::caller(status, code, message).into_response()
+        };
         if let Some(value) = retry_after {
             response.headers_mut().insert(header::RETRY_AFTER, value);
         }

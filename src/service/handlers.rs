@@ -51,7 +51,7 @@ fn page(query: Result<Query<PageQuery>, QueryRejection>) -> Result<PageRequest, 
     }
 }
 
-fn body<T>(payload: Result<Json<T>, JsonRejection>) -> Result<T, ApiError> {
+fn body<T>(payload: Result<Json<T>, JsonRejection>, state: &AppState) -> Result<T, ApiError> {
     match payload {
         Ok(Json(value)) => Ok(value),
         Err(JsonRejection::JsonSyntaxError(error)) => Err(ApiError::bad_request(
@@ -73,11 +73,7 @@ fn body<T>(payload: Result<Json<T>, JsonRejection>) -> Result<T, ApiError> {
         Err(JsonRejection::BytesRejection(error))
             if error.status() == StatusCode::PAYLOAD_TOO_LARGE =>
         {
-            Err(ApiError::caller(
-                StatusCode::PAYLOAD_TOO_LARGE,
-                "body_too_large",
-                "the request body is larger than the configured body_limit_bytes",
-            ))
+            Err(super::error::body_too_large(state.config.body_limit_bytes))
         }
         Err(other) => Err(ApiError::bad_request(
             "bad_body",
@@ -211,7 +207,48 @@ pub async fn register_scene(
     payload: Result<Json<RegisterSceneRequest>, JsonRejection>,
 ) -> Response {
     let result = async {
-        let upload = SceneUpload::from_request(body(payload)?)?;
+        let upload = SceneUpload::from_request(body(payload, &state)?)?;
+        blocking(&state, move |coordinator| {
+            coordinator.register_scene(upload, &caller.name)
+        })
+        .await
+    }
+    .await;
+    answer(result, StatusCode::CREATED)
+}
+
+/// Register a scene from a multipart upload (`multipart/form-data`), for parts too large for base64 in
+/// JSON. Parts: `image` (PNG or JPEG) or `demo`; optional `depth` (16-bit PNG, millimetres), `scores` (NPY),
+/// `scores_classes` (one class name per line), `label_map` (index PNG), `label_map_classes` (one name per
+/// line), `detections` (JSON Lines: `{"class": .., "box": [x0, y0, x1, y1], "score": ..}` per line),
+/// `name`, `room`, `drop_unknown_classes` (`true` or `false`). The whole body is limited by
+/// `body_limit_bytes` (default 64 MiB: a 640x480 float32 score map of 41 classes fits).
+#[utoipa::path(post, path = "/v1/scenes/upload", tag = "scenes", security(("bearer" = [])),
+    request_body(content = String, content_type = "multipart/form-data",
+        description = "Parts: image or demo; optional depth, scores, scores_classes, label_map, label_map_classes, detections, name, room, drop_unknown_classes"),
+    responses(
+        (status = 201, description = "Registered and committed", body = SceneCreated),
+        (status = 400, description = "Not multipart, an unknown or repeated part", body = ErrorBody),
+        (status = 404, description = "No such demo scene", body = ErrorBody),
+        (status = 413, description = "Body over body_limit_bytes, or image over the pixel limit", body = ErrorBody),
+        (status = 422, description = "Unreadable PNG or NPY, sizes that do not match, unknown names", body = ErrorBody)))]
+pub async fn upload_scene(
+    State(state): State<AppState>,
+    Extension(caller): Extension<Caller>,
+    multipart: Result<axum::extract::Multipart, axum::extract::multipart::MultipartRejection>,
+) -> Response {
+    let result = async {
+        let multipart = multipart.map_err(|error| {
+            ApiError::caller(
+                StatusCode::UNSUPPORTED_MEDIA_TYPE,
+                "bad_content_type",
+                format!(
+                    "send the parts as multipart/form-data with a boundary: {}",
+                    error.body_text()
+                ),
+            )
+        })?;
+        let upload = super::upload::read_upload(multipart, state.config.body_limit_bytes).await?;
         blocking(&state, move |coordinator| {
             coordinator.register_scene(upload, &caller.name)
         })
@@ -281,7 +318,7 @@ pub async fn open_conversation(
     payload: Result<Json<OpenConversationRequest>, JsonRejection>,
 ) -> Response {
     let result = async {
-        let request = body(payload)?;
+        let request = body(payload, &state)?;
         let scene = SceneKey(request.scene_id);
         blocking(&state, move |coordinator| {
             coordinator.open_conversation(scene, &caller.name)
@@ -333,7 +370,7 @@ pub async fn utterance(
 ) -> Response {
     let result = async {
         let conversation = ConversationKey(path_id(&conversation_id, "conversation")?);
-        let request = body(payload)?;
+        let request = body(payload, &state)?;
         super::coordinator::check_utterance_text(&request.text)?;
         blocking(&state, move |coordinator| {
             coordinator.check_access(conversation, &caller)?;

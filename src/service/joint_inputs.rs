@@ -1,25 +1,22 @@
 //! Turning what a scene was registered with into what the joint pipeline solves on.
 //!
 //! Owns: `PreparedInput` (superpixels, per-segment unaries, detections), the choice of unary source (NPY
-//! scores, else a label map, else the built-in classifier), and the digest that names a registration.
+//! scores, else a label map, else the built-in classifier; each read with its class names through
+//! `crate::unaries::perception`, as `fix` reads them), and the digest that names a registration.
 //! Must not: parse utterances, solve, or know about the service's storage; the caller caches.
 
-use ndarray::Axis;
 use sha2::{Digest, Sha256};
 
 use crate::hypotheses::Detection as HypothesisDetection;
 use crate::scene::{Scene, SceneParams};
 use crate::taxonomy::Taxonomy;
-use crate::unaries::byo::SynonymTable;
-use crate::unaries::byo_label_map::unaries_from_label_map;
+use crate::unaries::byo::PerceptionError;
 use crate::unaries::byo_npy::parse_npy;
-use crate::unaries::byo_pixel_scores::{
-    unaries_from_pixel_scores, PixelScoreOptions, ScoreKind, ScoreLayout,
-};
-use crate::unaries::pooling::PoolingRule;
-use crate::unaries::{builtin_unaries, Classifier, Unaries, UnarySource};
+use crate::unaries::byo_pixel_scores::ScoreLayout;
+use crate::unaries::perception::{LabelMap, Perception, PixelScores, ScoreSource};
+use crate::unaries::{Classifier, Unaries, UnarySource};
 
-use super::corrector::{CorrectorError, SceneInput};
+use super::corrector::{CorrectorError, PerceptionClasses, SceneInput};
 
 /// A registered scene ready to be solved.
 pub struct PreparedInput {
@@ -72,6 +69,10 @@ pub fn input_digest(input: &SceneInput) -> String {
     if let Some(room) = input.room {
         part("room", &room.0.to_le_bytes());
     }
+    if input.classes != PerceptionClasses::default() {
+        let text = serde_json::to_string(&input.classes).unwrap_or_default();
+        part("classes", text.as_bytes());
+    }
     hex(&hasher.finalize())
 }
 
@@ -114,7 +115,7 @@ fn scene_params(width: u32, height: u32) -> Result<SceneParams, CorrectorError> 
     Ok(params)
 }
 
-/// Builds superpixels and unaries for a registration.
+/// Builds superpixels and unaries for a registration, through the same `Perception` as `fix`.
 pub fn prepare_input(
     input: &SceneInput,
     taxonomy: &Taxonomy,
@@ -128,109 +129,57 @@ pub fn prepare_input(
         &scene_params(input.image.width, input.image.height)?,
     )
     .map_err(|error| bad("image_png_base64", error.to_string()))?;
-    let class_count = taxonomy.class_count();
-    let unaries = if let Some(bytes) = &input.scores_npy {
-        scores_unaries(bytes, &scene, taxonomy)?
+    let (scores, field) = if let Some(bytes) = &input.scores_npy {
+        const FIELD: &str = "scores";
+        let array = parse_npy(bytes).map_err(|error| bad(FIELD, error.to_string()))?;
+        let scores = ScoreSource::PixelScores(PixelScores {
+            values: array.values,
+            class_names: input.classes.scores.clone(),
+            kind: input.classes.scores_kind,
+            layout: ScoreLayout::Infer,
+            origin: FIELD.into(),
+        });
+        (scores, FIELD)
     } else if let Some(labels) = &input.label_map {
-        unaries_from_label_map(
-            labels,
-            None,
-            &scene.segments,
-            class_count,
-            PoolingRule::MeanProbability,
-            UnarySource::LabelMap {
-                file: "label_map_png_base64".into(),
-            },
-        )
-        .map_err(|error| bad("label_map_png_base64", error.to_string()))?
+        let map = ScoreSource::LabelMap(LabelMap {
+            labels: labels.clone(),
+            class_names: input.classes.label_map.clone(),
+            origin: "label_map".into(),
+        });
+        (map, "label_map")
     } else {
-        builtin_unaries(&scene, classifier)
-            .map_err(|error| CorrectorError::Internal(error.to_string()))?
+        (ScoreSource::BuiltIn, "image_base64")
     };
-    let detections = input
-        .detections
-        .iter()
-        .map(|detection| HypothesisDetection {
-            class: detection.class,
-            bbox: detection.bbox,
-            score: detection.score,
-            mask: None,
-        })
-        .collect();
-    let model =
-        matches!(unaries.source, UnarySource::BuiltIn { .. }).then(|| classifier.id().to_string());
+    let perception = Perception {
+        scores,
+        detections: input
+            .detections
+            .iter()
+            .map(|detection| HypothesisDetection {
+                class: detection.class,
+                bbox: detection.bbox,
+                score: detection.score,
+                mask: None,
+            })
+            .collect(),
+        drop_unknown_classes: input.classes.drop_unknown,
+    };
+    let perceived = perception
+        .unaries(&scene, &input.image, taxonomy, classifier)
+        .map_err(|error| match error {
+            PerceptionError::Model { message } if field == "image_base64" => {
+                CorrectorError::Internal(message)
+            }
+            other => bad(field, other.to_string()),
+        })?;
+    let model = matches!(perceived.unaries.source, UnarySource::BuiltIn { .. })
+        .then(|| classifier.id().to_string());
     Ok(PreparedInput {
         scene,
-        unaries,
-        detections,
+        unaries: perceived.unaries,
+        detections: perceived.detections,
         model,
     })
-}
-
-/// Per-pixel NPY scores over the taxonomy's classes in id order, `HxWxC` or `CxHxW`. Probabilities when
-/// every pixel's values are non-negative and sum to 1 (within 1e-3), otherwise logits (softmax per pixel).
-fn scores_unaries(
-    bytes: &[u8],
-    scene: &Scene,
-    taxonomy: &Taxonomy,
-) -> Result<Unaries, CorrectorError> {
-    const FIELD: &str = "scores_npy_base64";
-    let array = parse_npy(bytes).map_err(|error| bad(FIELD, error.to_string()))?;
-    let values = array.values;
-    let class_count = taxonomy.class_count();
-    let shape = values.shape().to_vec();
-    let (height, width) = (scene.height() as usize, scene.width() as usize);
-    let layout = if shape == [height, width, class_count] {
-        ScoreLayout::HeightWidthChannels
-    } else if shape == [class_count, height, width] {
-        ScoreLayout::ChannelsHeightWidth
-    } else {
-        return Err(bad(
-            FIELD,
-            format!(
-                "scores have shape {shape:?}; expected ({height}, {width}, {class_count}) or \
-                 ({class_count}, {height}, {width}) for this image and the {class_count} classes"
-            ),
-        ));
-    };
-    if let Some(value) = values.iter().find(|value| !value.is_finite()) {
-        return Err(bad(
-            FIELD,
-            format!("scores contain {value}; every score must be finite"),
-        ));
-    }
-    let channel_axis = match layout {
-        ScoreLayout::ChannelsHeightWidth => Axis(0),
-        _ => Axis(2),
-    };
-    let sums = values.sum_axis(channel_axis);
-    let probabilities = values.iter().all(|&value| value >= 0.0)
-        && sums.iter().all(|&sum| (sum - 1.0).abs() <= 1e-3);
-    let options = PixelScoreOptions {
-        class_names: taxonomy
-            .classes()
-            .iter()
-            .map(|class| class.name.clone())
-            .collect(),
-        kind: if probabilities {
-            ScoreKind::Probabilities
-        } else {
-            ScoreKind::Logits
-        },
-        layout,
-        pooling: PoolingRule::MeanProbability,
-        allow_unknown_classes: false,
-    };
-    let synonyms = SynonymTable::embedded(taxonomy);
-    unaries_from_pixel_scores(
-        values.view(),
-        &scene.segments,
-        &options,
-        taxonomy,
-        &synonyms,
-        UnarySource::PixelScores { file: FIELD.into() },
-    )
-    .map_err(|error| bad(FIELD, error.to_string()))
 }
 
 #[cfg(test)]

@@ -27,6 +27,7 @@ mod joint_inputs;
 pub mod metrics;
 pub mod openapi;
 mod server;
+mod upload;
 pub mod wire;
 
 use std::future::Future;
@@ -86,6 +87,7 @@ pub fn app(state: AppState) -> Router {
             "/v1/scenes",
             post(handlers::register_scene).get(handlers::list_scenes),
         )
+        .route("/v1/scenes/upload", post(handlers::upload_scene))
         .route("/v1/scenes/{scene_id}", get(handlers::scene_graph))
         .route("/v1/scenes/{scene_id}/labels.png", get(handlers::label_map))
         .route("/v1/scenes/{scene_id}/overlay.png", get(handlers::overlay))

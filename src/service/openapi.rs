@@ -47,6 +47,7 @@ configured, send `Authorization: Bearer <token>`."
         handlers::classes,
         handlers::list_scenes,
         handlers::register_scene,
+        handlers::upload_scene,
         handlers::scene_graph,
         handlers::label_map,
         handlers::overlay,

@@ -107,7 +107,9 @@ pub struct RegisterSceneRequest {
         pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
     )]
     pub depth_png_base64: Option<String>,
-    /// Per-pixel class scores as a base64-encoded NPY array (height x width x classes, little-endian f32).
+    /// Per-pixel class scores as a base64-encoded NPY array (float32 or float64, height x width x classes or
+    /// classes x height x width); channels named by `scores_classes`. Large arrays go better as a
+    /// multipart upload (`POST /v1/scenes/upload`).
     #[schema(
         min_length = 1,
         pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
@@ -119,6 +121,15 @@ pub struct RegisterSceneRequest {
         pattern = r"^\s*(?:[A-Za-z0-9+/]{4})*(?:[A-Za-z0-9+/][AQgw]==|[A-Za-z0-9+/]{2}[AEIMQUYcgkosw048]=)?\s*$"
     )]
     pub label_map_png_base64: Option<String>,
+    /// The channel names of `scores_npy_base64` in order: taxonomy names or perception synonyms
+    /// (default: the taxonomy's classes in id order, as `GET /v1/classes` lists them).
+    pub scores_classes: Option<Vec<String>>,
+    /// The class list of `label_map_png_base64`: pixel value k is the k-th name (default: values are
+    /// taxonomy class ids).
+    pub label_map_classes: Option<Vec<String>>,
+    /// Leave classes with unknown names out instead of refusing the scene (default false: every unknown
+    /// name is listed in the refusal).
+    pub drop_unknown_classes: Option<bool>,
     #[serde(default)]
     pub detections: Vec<DetectionIn>,
     /// A room type name, when known.

@@ -91,8 +91,8 @@ pub enum PerceptionError {
     Config { origin: String, message: String },
     #[error("the user model failed: {message}")]
     Model { message: String },
-    #[error("detection {index}: {message}")]
-    Detection { index: usize, message: String },
+    #[error("detections line {line}: {message}")]
+    Detection { line: usize, message: String },
 }
 
 #[derive(Deserialize)]

@@ -1,12 +1,14 @@
 //! Object detections from a robot's own detector, parsed into plain `Detection` values that seed object
 //! hypotheses for the solver.
 //!
-//! Owns: `Detection`, `DetectionMask`, reading the detections JSON file:
-//! `{"detections": [{"class": "mug", "box": [x0, y0, x1, y1], "score": 0.9, "mask_png": "m.png"}]}` where
-//! the box is in pixels (end exclusive), the score is in [0, 1], and an optional mask is either
-//! `"mask_png"` (an index PNG path relative to the JSON file; non-zero = inside) or `"mask_runs"`
+//! Owns: `Detection`, `DetectionMask`, reading a detections file in JSON Lines, one detection per line
+//! (blank lines and lines starting with `#` are skipped):
+//! `{"class": "mug", "box": [x0, y0, x1, y1], "score": 0.9}` where the class is a taxonomy name or a
+//! synonym from `grammar/perception_synonyms.toml`, the box is in pixels (end exclusive, fractions widened
+//! to whole pixels), the score is in [0, 1], and an optional mask is either `"mask_png"` (an index PNG path
+//! relative to the detections file, the image's size; non-zero = inside) or `"mask_runs"`
 //! (`{"width": W, "height": H, "runs": [..]}`: row-major run lengths alternating outside/inside, starting
-//! with outside, summing to W*H).
+//! with outside, summing to W*H). Unknown fields are refused.
 //! Must not: create hypotheses itself or touch segments; the grounding and solver stages do that.
 
 use std::path::Path;
@@ -39,12 +41,6 @@ pub struct Detection {
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
-struct RawFile {
-    detections: Vec<RawDetection>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
 struct RawDetection {
     class: String,
     #[serde(rename = "box")]
@@ -64,78 +60,104 @@ struct RawRuns {
     runs: Vec<u64>,
 }
 
-/// Parses detections JSON for an image of `width x height`; `base` is the directory mask paths are
-/// relative to.
+/// Parses a JSON Lines detections file for an image of `width x height`; `base` is the directory mask
+/// paths are relative to (`None`: masks given by path are refused, as for an upload). Errors name the
+/// line (counted from 1).
 pub fn parse_detections(
     text: &str,
-    base: &Path,
+    base: Option<&Path>,
     width: u32,
     height: u32,
     taxonomy: &Taxonomy,
     synonyms: &SynonymTable,
 ) -> Result<Vec<Detection>, PerceptionError> {
-    let raw: RawFile = serde_json::from_str(text).map_err(|error| PerceptionError::Config {
-        origin: "detections file".to_string(),
-        message: error.to_string(),
-    })?;
     let mut detections = Vec::new();
-    for (index, item) in raw.detections.into_iter().enumerate() {
-        let fail = |message: String| PerceptionError::Detection { index, message };
-        let class = synonyms
-            .resolve(&item.class, taxonomy)
-            .ok_or_else(|| fail(format!("unknown class name '{}'", item.class)))?;
-        if !(item.score.is_finite() && (0.0..=1.0).contains(&item.score)) {
-            return Err(fail(format!("score {} is not in [0, 1]", item.score)));
+    for (index, line) in text.lines().enumerate() {
+        let line_number = index + 1;
+        let trimmed = line.trim();
+        if trimmed.is_empty() || trimmed.starts_with('#') {
+            continue;
         }
-        let [x0, y0, x1, y1] = item.bbox;
-        let inside =
-            |value: f64, limit: u32| value.is_finite() && value >= 0.0 && value <= limit as f64;
-        if !(inside(x0, width) && inside(x1, width) && inside(y0, height) && inside(y1, height))
-            || x0 >= x1
-            || y0 >= y1
-        {
-            return Err(fail(format!(
-                "box {:?} is empty or outside the {width}x{height} image",
-                item.bbox
-            )));
-        }
-        let bbox = BoundingBox {
-            x0: x0.floor() as u32,
-            y0: y0.floor() as u32,
-            x1: x1.ceil() as u32,
-            y1: y1.ceil() as u32,
+        let fail = |message: String| PerceptionError::Detection {
+            line: line_number,
+            message,
         };
-        let mask = match (item.mask_png, item.mask_runs) {
-            (Some(_), Some(_)) => {
-                return Err(fail("give mask_png or mask_runs, not both".to_string()))
-            }
-            (Some(path), None) => {
-                let image = read_index_png(&base.join(&path), DEFAULT_PIXEL_LIMIT)?;
-                Some(DetectionMask {
-                    width: image.width,
-                    height: image.height,
-                    inside: image.values.iter().map(|&value| value != 0).collect(),
-                })
-            }
-            (None, Some(runs)) => Some(decode_runs(&runs).map_err(fail)?),
-            (None, None) => None,
-        };
-        if let Some(mask) = &mask {
-            if mask.width != width || mask.height != height {
-                return Err(fail(format!(
-                    "mask is {}x{} but the image is {width}x{height}",
-                    mask.width, mask.height
-                )));
-            }
-        }
-        detections.push(Detection {
-            class,
-            bbox,
-            score: item.score as f32,
-            mask,
-        });
+        let item: RawDetection = serde_json::from_str(trimmed).map_err(|error| {
+            fail(format!(
+                "not a detection ({error}); expected {{\"class\": .., \"box\": [x0, y0, x1, y1], \"score\": ..}}"
+            ))
+        })?;
+        detections.push(detection(item, base, width, height, taxonomy, synonyms).map_err(fail)?);
     }
     Ok(detections)
+}
+
+fn detection(
+    item: RawDetection,
+    base: Option<&Path>,
+    width: u32,
+    height: u32,
+    taxonomy: &Taxonomy,
+    synonyms: &SynonymTable,
+) -> Result<Detection, String> {
+    let class = synonyms.resolve(&item.class, taxonomy).ok_or_else(|| {
+        format!(
+            "unknown class name '{}' (not a taxonomy name nor a synonym)",
+            item.class
+        )
+    })?;
+    if !(item.score.is_finite() && (0.0..=1.0).contains(&item.score)) {
+        return Err(format!("score {} is not in [0, 1]", item.score));
+    }
+    let [x0, y0, x1, y1] = item.bbox;
+    let inside =
+        |value: f64, limit: u32| value.is_finite() && value >= 0.0 && value <= limit as f64;
+    if !(inside(x0, width) && inside(x1, width) && inside(y0, height) && inside(y1, height))
+        || x0 >= x1
+        || y0 >= y1
+    {
+        return Err(format!(
+            "box {:?} is empty or outside the {width}x{height} image",
+            item.bbox
+        ));
+    }
+    let bbox = BoundingBox {
+        x0: x0.floor() as u32,
+        y0: y0.floor() as u32,
+        x1: x1.ceil() as u32,
+        y1: y1.ceil() as u32,
+    };
+    let mask = match (item.mask_png, item.mask_runs) {
+        (Some(_), Some(_)) => return Err("give mask_png or mask_runs, not both".to_string()),
+        (Some(path), None) => {
+            let base = base.ok_or_else(|| {
+                "mask_png names a file, which an upload cannot; send mask_runs".to_string()
+            })?;
+            let image = read_index_png(&base.join(&path), DEFAULT_PIXEL_LIMIT)
+                .map_err(|error| error.to_string())?;
+            Some(DetectionMask {
+                width: image.width,
+                height: image.height,
+                inside: image.values.iter().map(|&value| value != 0).collect(),
+            })
+        }
+        (None, Some(runs)) => Some(decode_runs(&runs)?),
+        (None, None) => None,
+    };
+    if let Some(mask) = &mask {
+        if mask.width != width || mask.height != height {
+            return Err(format!(
+                "mask is {}x{} but the image is {width}x{height}",
+                mask.width, mask.height
+            ));
+        }
+    }
+    Ok(Detection {
+        class,
+        bbox,
+        score: item.score as f32,
+        mask,
+    })
 }
 
 fn decode_runs(runs: &RawRuns) -> Result<DetectionMask, String> {
@@ -169,14 +191,14 @@ mod tests {
     fn parse(text: &str) -> Result<Vec<Detection>, PerceptionError> {
         let taxonomy = Taxonomy::embedded();
         let synonyms = SynonymTable::embedded(&taxonomy);
-        parse_detections(text, Path::new("."), 4, 2, &taxonomy, &synonyms)
+        parse_detections(text, Some(Path::new(".")), 4, 2, &taxonomy, &synonyms)
     }
 
     #[test]
     fn a_detection_with_run_length_mask() {
         let found = parse(
-            r#"{"detections": [{"class": "cup", "box": [1, 0, 3.5, 2], "score": 0.75,
-                "mask_runs": {"width": 4, "height": 2, "runs": [1, 2, 3, 2]}}]}"#,
+            "# the robot's detector\n\n{\"class\": \"cup\", \"box\": [1, 0, 3.5, 2], \"score\": 0.75, \
+             \"mask_runs\": {\"width\": 4, \"height\": 2, \"runs\": [1, 2, 3, 2]}}\n",
         )
         .unwrap();
         let taxonomy = Taxonomy::embedded();
@@ -200,24 +222,27 @@ mod tests {
     #[test]
     fn bad_detections_name_their_index_and_fault() {
         let cases = [
-            r#"{"detections": [{"class": "ufo", "box": [0, 0, 1, 1], "score": 0.5}]}"#,
-            r#"{"detections": [{"class": "mug", "box": [0, 0, 1, 1], "score": 1.5}]}"#,
-            r#"{"detections": [{"class": "mug", "box": [3, 0, 1, 1], "score": 0.5}]}"#,
-            r#"{"detections": [{"class": "mug", "box": [0, 0, 9, 1], "score": 0.5}]}"#,
-            r#"{"detections": [{"class": "mug", "box": [0, 0, 1, 1], "score": 0.5, "mask_runs": {"width": 4, "height": 2, "runs": [3]}}]}"#,
+            r#"{"class": "ufo", "box": [0, 0, 1, 1], "score": 0.5}"#,
+            r#"{"class": "mug", "box": [0, 0, 1, 1], "score": 1.5}"#,
+            r#"{"class": "mug", "box": [3, 0, 1, 1], "score": 0.5}"#,
+            r#"{"class": "mug", "box": [0, 0, 9, 1], "score": 0.5}"#,
+            r#"{"class": "mug", "box": [0, 0, 1, 1], "score": 0.5, "mask_runs": {"width": 4, "height": 2, "runs": [3]}}"#,
+            r#"{"class": "mug", "box": [0, 0, 1, 1], "score": 0.5, "colour": "red"}"#,
+            r#"{"detections": []}"#,
         ];
         for case in cases {
+            let text =
+                format!("{{\"class\": \"mug\", \"box\": [0, 0, 1, 1], \"score\": 0.5}}\n{case}\n");
+            let error = parse(&text).unwrap_err();
             assert!(
-                matches!(
-                    parse(case),
-                    Err(PerceptionError::Detection { index: 0, .. })
-                ),
-                "{case}"
+                matches!(error, PerceptionError::Detection { line: 2, .. }),
+                "{case}: {error}"
             );
         }
-        assert!(matches!(
-            parse("{\"detections\": 3}"),
-            Err(PerceptionError::Config { .. })
-        ));
+        let taxonomy = Taxonomy::embedded();
+        let synonyms = SynonymTable::embedded(&taxonomy);
+        let upload = r#"{"class": "mug", "box": [0, 0, 1, 1], "score": 0.5, "mask_png": "m.png"}"#;
+        let error = parse_detections(upload, None, 4, 2, &taxonomy, &synonyms).unwrap_err();
+        assert!(error.to_string().contains("mask_runs"), "{error}");
     }
 }

@@ -22,6 +22,7 @@ pub mod model_card;
 pub mod model_file;
 pub mod onnx_reader;
 pub mod onnx_writer;
+pub mod perception;
 pub mod pooling;
 pub mod rng;
 pub mod split;

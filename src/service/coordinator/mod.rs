@@ -86,6 +86,8 @@ pub struct Coordinator {
     metrics: Arc<Metrics>,
     pixel_limit: u64,
     demo_dir: PathBuf,
+    /// A user per-pixel model that scores scenes registered without scores or a label map.
+    user_model: Option<Arc<crate::unaries::byo_user_model::UserModel>>,
     /// Held for the coordinator's life: one process per log, so no two memories drift apart.
     _exclusive: std::fs::File,
 }
@@ -321,8 +323,19 @@ impl Coordinator {
             metrics,
             pixel_limit: settings.pixel_limit,
             demo_dir: settings.demo_dir.clone(),
+            user_model: None,
             _exclusive: exclusive,
         })
+    }
+
+    /// Scores every scene registered without scores or a label map with a user per-pixel model (its
+    /// scores are kept with the scene, as if the caller had sent them).
+    pub fn with_user_model(
+        mut self,
+        model: Arc<crate::unaries::byo_user_model::UserModel>,
+    ) -> Coordinator {
+        self.user_model = Some(model);
+        self
     }
 
     /// The metrics the coordinator records into.

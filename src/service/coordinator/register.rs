@@ -20,7 +20,7 @@ use crate::raster::{self, RasterError};
 use crate::scene::files::{image_file, DEPTH_FILE, IMAGE_FILES};
 use crate::scene::BoundingBox;
 
-use super::super::corrector::{CorrectorError, Detection, SceneInput};
+use super::super::corrector::{CorrectorError, Detection, PerceptionClasses, SceneInput};
 use super::super::error::ApiError;
 use super::super::wire::{RegisterSceneRequest, SceneCreated};
 use super::{encode_state, lock, log_error, Coordinator, SceneSlot};
@@ -37,7 +37,16 @@ pub struct SceneUpload {
     pub scores_npy: Option<Vec<u8>>,
     pub label_map_png: Option<Vec<u8>>,
     pub detections: Vec<super::super::wire::DetectionIn>,
+    /// Detections as JSON Lines (`crate::unaries::byo_detections`; boxes, and masks as `mask_runs` only
+    /// as the service keeps boxes), added to `detections`.
+    pub detections_jsonl: Option<String>,
     pub room: Option<String>,
+    /// The channel names of `scores_npy`, in order.
+    pub scores_classes: Option<Vec<String>>,
+    pub scores_kind: Option<crate::unaries::byo_pixel_scores::ScoreKind>,
+    /// The label map's class list: value k is the k-th name.
+    pub label_map_classes: Option<Vec<String>>,
+    pub drop_unknown_classes: bool,
 }
 
 fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, ApiError> {
@@ -77,7 +86,12 @@ impl SceneUpload {
             name: request.name,
             demo: request.demo,
             detections: request.detections,
+            detections_jsonl: None,
             room: request.room,
+            scores_classes: request.scores_classes,
+            scores_kind: None,
+            label_map_classes: request.label_map_classes,
+            drop_unknown_classes: request.drop_unknown_classes.unwrap_or(false),
         })
     }
 }
@@ -120,6 +134,36 @@ fn raster_error(field: &str, error: RasterError) -> ApiError {
     }
 }
 
+/// Detections sent as JSON Lines, read as `fix --detections` reads them; a mask is refused (the service
+/// keeps boxes).
+fn jsonl_detections(
+    text: &str,
+    width: u32,
+    height: u32,
+    taxonomy: &crate::taxonomy::Taxonomy,
+) -> Result<Vec<Detection>, ApiError> {
+    let synonyms = crate::unaries::byo::SynonymTable::embedded(taxonomy);
+    let parsed = crate::unaries::byo_detections::parse_detections(
+        text, None, width, height, taxonomy, &synonyms,
+    )
+    .map_err(|error| ApiError::unprocessable("bad_detections", error.to_string()))?;
+    parsed
+        .into_iter()
+        .enumerate()
+        .map(|(index, detection)| match detection.mask {
+            Some(_) => Err(ApiError::unprocessable(
+                "bad_detections",
+                format!("detection {} has a mask; the service takes boxes only (fix --detections reads masks)", index + 1),
+            )),
+            None => Ok(Detection {
+                class: detection.class,
+                bbox: detection.bbox,
+                score: detection.score,
+            }),
+        })
+        .collect()
+}
+
 fn valid_demo_name(name: &str) -> bool {
     !name.is_empty()
         && name.len() <= 64
@@ -143,6 +187,8 @@ pub(crate) struct StoredInput {
     detections: Vec<Detection>,
     #[serde(default)]
     room: Option<RoomId>,
+    #[serde(default)]
+    classes: PerceptionClasses,
 }
 
 /// Rebuilds a stored scene's registration from its row: `blob` fetches a stored blob by hash.
@@ -181,6 +227,7 @@ pub(crate) fn restore_input(
         label_map,
         detections: stored.detections,
         room: stored.room,
+        classes: stored.classes,
     })
 }
 
@@ -253,6 +300,23 @@ impl Coordinator {
         } else {
             image_bytes
         };
+        if let Some(model) = &self.user_model {
+            if upload.scores_npy.is_none() && upload.label_map_png.is_none() {
+                let scores = model.scores_for_image(&image).map_err(|error| {
+                    ApiError::unprocessable(
+                        "user_model",
+                        format!("the service's user model: {error}"),
+                    )
+                })?;
+                let values: Vec<f32> = scores.iter().map(|&value| value as f32).collect();
+                upload.scores_npy = Some(crate::unaries::byo_npy::encode_npy_f32(
+                    scores.shape(),
+                    &values,
+                ));
+                upload.scores_classes = Some(model.config().classes.clone());
+                upload.scores_kind = Some(model.config().output);
+            }
+        }
         let (width, height) = (image.width, image.height);
         let size_check = |field: &str, found_width: u32, found_height: u32| {
             if (found_width, found_height) != (width, height) {
@@ -329,6 +393,29 @@ impl Coordinator {
                 score: detection.score,
             });
         }
+        if let Some(text) = &upload.detections_jsonl {
+            detections.extend(jsonl_detections(text, width, height, taxonomy)?);
+        }
+        let classes = PerceptionClasses {
+            scores: upload.scores_classes.clone(),
+            scores_kind: upload.scores_kind,
+            label_map: upload.label_map_classes.clone(),
+            drop_unknown: upload.drop_unknown_classes,
+        };
+        for (field, names) in [
+            ("scores_classes", &classes.scores),
+            ("label_map_classes", &classes.label_map),
+        ] {
+            if names
+                .as_ref()
+                .is_some_and(|names| names.is_empty() || names.len() > 255)
+            {
+                return Err(ApiError::unprocessable(
+                    "bad_class_list",
+                    format!("{field} must name 1 to 255 classes"),
+                ));
+            }
+        }
         let room: Option<RoomId> = match &upload.room {
             Some(name) => Some(
                 taxonomy
@@ -361,6 +448,7 @@ impl Coordinator {
             label_map,
             detections: detections.clone(),
             room,
+            classes: classes.clone(),
         };
         let state = self
             .corrector
@@ -383,6 +471,7 @@ impl Coordinator {
             label_map_png: upload.label_map_png.as_deref().map(blob_hash),
             detections: detections.clone(),
             room,
+            classes,
         })
         .map_err(ApiError::internal)?;
         // Past this check the request is no longer abandoned by its time limit: the caller gets the ids.

@@ -1,0 +1,495 @@
+//! The robot's own perception on every entry point: per-pixel scores (NPY, written by numpy) with a class-name
+//! list in an order unlike the taxonomy's, a label map with its own class list, a user ONNX model with its
+//! config file, and detections in JSON Lines, through `fix`, `store` + `field-notes`, and the service (JSON
+//! and multipart upload, whose refusals state the body limit).
+//!
+//! Owns: checks that each input reaches the solve and that bad input is refused naming what was wrong.
+//! Must not: check the solver's quality. Fixtures: `tests/fixtures/perception/make_perception_fixtures.py`
+//! (numpy and Pillow) and `tests/fixtures/unaries/make_onnx_reference.py` (the user model).
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::Arc;
+
+use axum::body::Body;
+use axum::http::{Request, StatusCode};
+use sayso::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
+use sayso::taxonomy::Taxonomy;
+use tower::ServiceExt;
+
+const FIXTURES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/perception");
+const USER_MODEL: &str = concat!(
+    env!("CARGO_MANIFEST_DIR"),
+    "/tests/fixtures/unaries/pixel_model.toml"
+);
+
+/// The block the fixture's scores call a couch: x 30..66, y 38..60 (see the script).
+const BLOCK: (u32, u32, u32, u32) = (30, 38, 66, 60);
+
+fn fixture(name: &str) -> PathBuf {
+    Path::new(FIXTURES).join(name)
+}
+
+fn class(name: &str) -> u16 {
+    Taxonomy::embedded().class_by_name(name).unwrap().id.0
+}
+
+/// The share of the block's inner pixels (one pixel in from its edge) labelled `wanted`.
+fn block_share(labels: &IndexImage, wanted: u16) -> f64 {
+    let (x0, y0, x1, y1) = BLOCK;
+    let mut hits = 0;
+    let mut total = 0;
+    for y in y0 + 1..y1 - 1 {
+        for x in x0 + 1..x1 - 1 {
+            total += 1;
+            if labels.values[(y * labels.width + x) as usize] == wanted {
+                hits += 1;
+            }
+        }
+    }
+    hits as f64 / total as f64
+}
+
+fn at(labels: &IndexImage, x: u32, y: u32) -> u16 {
+    labels.values[(y * labels.width + x) as usize]
+}
+
+fn fix(extra: &[&str], out: &Path) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .arg("fix")
+        .arg(fixture("corner.png"))
+        .args(["--say", "this is the living room", "--out"])
+        .arg(out)
+        .args(extra)
+        .output()
+        .unwrap()
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8_lossy(bytes).into_owned()
+}
+
+fn path(name: &str) -> String {
+    fixture(name).display().to_string()
+}
+
+#[test]
+fn fix_reads_scores_by_their_class_names_and_names_unknown_ones() {
+    let out = tempfile::tempdir().unwrap();
+    let scored = fix(
+        &[
+            "--scores",
+            &path("corner_scores.npy"),
+            "--score-classes",
+            &path("corner_score_classes.txt"),
+        ],
+        out.path(),
+    );
+    assert!(scored.status.success(), "{}", text(&scored.stderr));
+    let labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(block_share(&labels, class("sofa")) > 0.9);
+    assert_eq!(at(&labels, 10, 10), class("wall"));
+    assert_eq!(at(&labels, 10, 65), class("floor"));
+
+    let unknown = fix(
+        &[
+            "--scores",
+            &path("corner_scores.npy"),
+            "--score-classes",
+            &path("corner_score_classes_unknown.txt"),
+        ],
+        out.path(),
+    );
+    assert_eq!(unknown.status.code(), Some(1));
+    let message = text(&unknown.stderr);
+    assert!(
+        message.contains("unknown class names") && message.contains("gnome"),
+        "{message}"
+    );
+    assert_eq!(message.matches("gnome").count(), 1, "said once: {message}");
+
+    let dropped = fix(
+        &[
+            "--scores",
+            &path("corner_scores.npy"),
+            "--score-classes",
+            &path("corner_score_classes_unknown.txt"),
+            "--drop-unknown-classes",
+        ],
+        out.path(),
+    );
+    assert!(dropped.status.success(), "{}", text(&dropped.stderr));
+    assert!(text(&dropped.stderr).contains("left out classes with unknown names: gnome"));
+}
+
+#[test]
+fn fix_reads_a_label_map_through_its_own_class_list() {
+    let out = tempfile::tempdir().unwrap();
+    let run = fix(
+        &[
+            "--label-map",
+            &path("corner_label_map.png"),
+            "--label-classes",
+            &path("corner_label_classes.txt"),
+        ],
+        out.path(),
+    );
+    assert!(run.status.success(), "{}", text(&run.stderr));
+    let labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    // Value 1 is "settee", the taxonomy's sofa; read as a class id it would be the wall.
+    assert!(block_share(&labels, class("sofa")) > 0.9);
+    assert_eq!(at(&labels, 10, 10), class("wall"));
+}
+
+#[test]
+fn fix_runs_a_user_model_from_its_config_file() {
+    let out = tempfile::tempdir().unwrap();
+    let run = fix(&["--user-model", USER_MODEL], out.path());
+    assert!(run.status.success(), "{}", text(&run.stderr));
+    let labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    // The model knows four classes (its config's list, "couch" being the sofa): nothing else is shown.
+    let known = [class("floor"), class("wall"), class("sofa"), class("towel")];
+    assert!(labels.values.iter().all(|value| known.contains(value)));
+}
+
+#[test]
+fn detections_come_as_json_lines_and_a_bad_line_is_named() {
+    let taxonomy = Taxonomy::embedded();
+    let capture =
+        sayso::raster::read_rgb_image(&fixture("corner.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let synonyms = sayso::unaries::byo::SynonymTable::embedded(&taxonomy);
+    let detections = sayso::unaries::byo_detections::parse_detections(
+        &std::fs::read_to_string(fixture("corner_detections.jsonl")).unwrap(),
+        Some(Path::new(FIXTURES)),
+        capture.width,
+        capture.height,
+        &taxonomy,
+        &synonyms,
+    )
+    .unwrap();
+    assert_eq!(detections.len(), 2);
+    assert!(detections.iter().all(|d| d.class.0 == class("sofa")));
+    let mask = detections[1].mask.as_ref().unwrap();
+    let inside = mask.inside.iter().filter(|&&inside| inside).count();
+    assert_eq!(inside, 36 * 22);
+
+    let out = tempfile::tempdir().unwrap();
+    let good = fix(
+        &["--detections", &path("corner_detections.jsonl")],
+        out.path(),
+    );
+    assert!(good.status.success(), "{}", text(&good.stderr));
+    let bad = fix(
+        &["--detections", &path("corner_detections_bad.jsonl")],
+        out.path(),
+    );
+    assert_eq!(bad.status.code(), Some(1));
+    let message = text(&bad.stderr);
+    assert!(
+        message.contains("line 2") && message.contains("outside the 96x72 image"),
+        "{message}"
+    );
+}
+
+#[test]
+fn store_keeps_the_scores_and_field_notes_are_solved_on_them() {
+    let data = tempfile::tempdir().unwrap();
+    let stored = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["store", "--data-dir"])
+        .arg(data.path())
+        .arg("--image")
+        .arg(fixture("corner.png"))
+        .arg("--scores")
+        .arg(fixture("corner_scores.npy"))
+        .arg("--score-classes")
+        .arg(fixture("corner_score_classes.txt"))
+        .arg("--detections")
+        .arg(fixture("corner_detections.jsonl"))
+        .output()
+        .unwrap();
+    // The detections file's second line has a mask, which a stored scene cannot keep.
+    assert_eq!(stored.status.code(), Some(1));
+    assert!(
+        text(&stored.stderr).contains("mask"),
+        "{}",
+        text(&stored.stderr)
+    );
+    let stored = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["store", "--data-dir"])
+        .arg(data.path())
+        .arg("--image")
+        .arg(fixture("corner.png"))
+        .arg("--scores")
+        .arg(fixture("corner_scores.npy"))
+        .arg("--score-classes")
+        .arg(fixture("corner_score_classes.txt"))
+        .output()
+        .unwrap();
+    assert!(stored.status.success(), "{}", text(&stored.stderr));
+    let scene_id: i64 = text(&stored.stdout)
+        .split('\t')
+        .next()
+        .unwrap()
+        .trim()
+        .parse()
+        .unwrap();
+    let notes = data.path().join("notes.jsonl");
+    std::fs::write(
+        &notes,
+        format!("{{\"scene_id\": {scene_id}, \"text\": \"there is no sofa\"}}\n"),
+    )
+    .unwrap();
+    let applied = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["field-notes", "--quiet", "--data-dir"])
+        .arg(data.path())
+        .arg(&notes)
+        .output()
+        .unwrap();
+    assert!(applied.status.success(), "{}", text(&applied.stderr));
+    let report: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(data.path().join("notes.jsonl.report.json")).unwrap(),
+    )
+    .unwrap();
+    assert_eq!(report["results"][0]["outcome"], "applied", "{report}");
+    // The exported example shows what the note was solved on: the stored scores' sofa (the built-in
+    // classifier alone shows another class there), and after the note no sofa.
+    let dataset = data.path().join("dataset");
+    let exported = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["export", "--data-dir"])
+        .arg(data.path())
+        .arg("--output")
+        .arg(&dataset)
+        .output()
+        .unwrap();
+    assert!(exported.status.success(), "{}", text(&exported.stderr));
+    let example = dataset.join("example-000001");
+    let before = read_index_png(&example.join("labels_before.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let after = read_index_png(&example.join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(block_share(&before, class("sofa")) > 0.9);
+    assert!(block_share(&after, class("sofa")) < 0.1);
+}
+
+fn router(body_limit_bytes: usize) -> (tempfile::TempDir, axum::Router) {
+    router_with(body_limit_bytes, None)
+}
+
+fn router_with(
+    body_limit_bytes: usize,
+    user_model: Option<&Path>,
+) -> (tempfile::TempDir, axum::Router) {
+    use sayso::pipeline::model_path;
+    use sayso::service::config::ServiceConfig;
+    use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
+    use sayso::service::joint::JointCorrector;
+    use sayso::service::metrics::Metrics;
+    let data = tempfile::tempdir().unwrap();
+    let config = ServiceConfig {
+        data_dir: data.path().to_path_buf(),
+        body_limit_bytes,
+        ..ServiceConfig::default()
+    };
+    let mut coordinator = Coordinator::open(
+        Arc::new(JointCorrector::load(&model_path(None)).unwrap()),
+        &CoordinatorSettings {
+            log_path: config.log_path(),
+            pixel_limit: config.pixel_limit,
+            demo_dir: config.demo_directory(),
+        },
+        Arc::new(Metrics::default()),
+    )
+    .unwrap();
+    if let Some(path) = user_model {
+        let model = sayso::unaries::byo_user_model::UserModel::load(path).unwrap();
+        coordinator = coordinator.with_user_model(Arc::new(model));
+    }
+    let app = sayso::service::app(sayso::service::AppState::new(Arc::new(coordinator), config));
+    (data, app)
+}
+
+const BOUNDARY: &str = "sayso-test-boundary-21";
+
+fn multipart(parts: &[(&str, Vec<u8>)]) -> Vec<u8> {
+    let mut body = Vec::new();
+    for (name, bytes) in parts {
+        body.extend_from_slice(
+            format!(
+                "--{BOUNDARY}\r\nContent-Disposition: form-data; name=\"{name}\"; filename=\"{name}\"\r\n\
+                 Content-Type: application/octet-stream\r\n\r\n"
+            )
+            .as_bytes(),
+        );
+        body.extend_from_slice(bytes);
+        body.extend_from_slice(b"\r\n");
+    }
+    body.extend_from_slice(format!("--{BOUNDARY}--\r\n").as_bytes());
+    body
+}
+
+async fn send(app: &axum::Router, request: Request<Body>) -> (StatusCode, Vec<u8>) {
+    let response = app.clone().oneshot(request).await.unwrap();
+    let status = response.status();
+    let bytes = axum::body::to_bytes(response.into_body(), usize::MAX)
+        .await
+        .unwrap();
+    (status, bytes.to_vec())
+}
+
+async fn upload(app: &axum::Router, parts: &[(&str, Vec<u8>)]) -> (StatusCode, serde_json::Value) {
+    let request = Request::post("/v1/scenes/upload")
+        .header(
+            "content-type",
+            format!("multipart/form-data; boundary={BOUNDARY}"),
+        )
+        .body(Body::from(multipart(parts)))
+        .unwrap();
+    let (status, bytes) = send(app, request).await;
+    (status, serde_json::from_slice(&bytes).unwrap_or_default())
+}
+
+async fn labels_of(app: &axum::Router, scene: &serde_json::Value) -> IndexImage {
+    let request = Request::get(format!("/v1/scenes/{}/labels.png", scene["scene_id"]))
+        .body(Body::empty())
+        .unwrap();
+    let (status, bytes) = send(app, request).await;
+    assert_eq!(status, StatusCode::OK);
+    decode_index_png(&bytes, Path::new("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap()
+}
+
+fn read(name: &str) -> Vec<u8> {
+    std::fs::read(fixture(name)).unwrap()
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn the_service_takes_perception_by_multipart_and_json_with_class_names() {
+    let (_data, app) = router(64 * 1024 * 1024);
+    let (status, scene) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("scores", read("corner_scores.npy")),
+            ("scores_classes", read("corner_score_classes.txt")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+    assert!(block_share(&labels_of(&app, &scene).await, class("sofa")) > 0.9);
+
+    let (status, scene) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("label_map", read("corner_label_map.png")),
+            ("label_map_classes", read("corner_label_classes.txt")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+    assert!(block_share(&labels_of(&app, &scene).await, class("sofa")) > 0.9);
+
+    let (status, refused) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("scores", read("corner_scores.npy")),
+            ("scores_classes", read("corner_score_classes_unknown.txt")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::UNPROCESSABLE_ENTITY);
+    assert!(
+        refused["message"].as_str().unwrap().contains("gnome"),
+        "{refused}"
+    );
+
+    let (status, refused) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("detections", read("corner_detections_bad.jsonl")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::UNPROCESSABLE_ENTITY);
+    assert!(
+        refused["message"].as_str().unwrap().contains("line 2"),
+        "{refused}"
+    );
+
+    let (status, refused) = upload(&app, &[("picture", read("corner.png"))]).await;
+    assert_eq!(status, StatusCode::BAD_REQUEST);
+    assert_eq!(refused["code"], "unknown_part");
+
+    use base64::Engine;
+    let base64 = |bytes: Vec<u8>| base64::engine::general_purpose::STANDARD.encode(bytes);
+    let body = serde_json::json!({
+        "image_base64": base64(read("corner.png")),
+        "scores_npy_base64": base64(read("corner_scores.npy")),
+        "scores_classes": ["couch", "wall", "Floor"],
+    });
+    let request = Request::post("/v1/scenes")
+        .header("content-type", "application/json")
+        .body(Body::from(body.to_string()))
+        .unwrap();
+    let (status, bytes) = send(&app, request).await;
+    let scene: serde_json::Value = serde_json::from_slice(&bytes).unwrap();
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+    assert!(block_share(&labels_of(&app, &scene).await, class("sofa")) > 0.9);
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn every_refusal_of_a_large_body_states_the_limit() {
+    let limit = 64 * 1024;
+    let (_data, app) = router(limit);
+    let (status, refused) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("scores", read("corner_scores.npy")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::PAYLOAD_TOO_LARGE);
+    let message = refused["message"].as_str().unwrap();
+    assert!(
+        message.contains(&format!("body_limit_bytes = {limit} bytes")),
+        "{message}"
+    );
+
+    let body = serde_json::json!({"image_base64": "A".repeat(2 * limit)});
+    let request = Request::post("/v1/scenes")
+        .header("content-type", "application/json")
+        .body(Body::from(body.to_string()))
+        .unwrap();
+    let (status, bytes) = send(&app, request).await;
+    assert_eq!(status, StatusCode::PAYLOAD_TOO_LARGE);
+    let refused: serde_json::Value = serde_json::from_slice(&bytes).unwrap();
+    assert!(
+        refused["message"]
+            .as_str()
+            .unwrap()
+            .contains(&format!("{limit} bytes")),
+        "{refused}"
+    );
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_service_with_a_user_model_scores_plain_images_with_it() {
+    let (_data, app) = router_with(64 * 1024 * 1024, Some(Path::new(USER_MODEL)));
+    let (status, scene) = upload(&app, &[("image", read("corner.png"))]).await;
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+    let labels = labels_of(&app, &scene).await;
+    let known = [class("floor"), class("wall"), class("sofa"), class("towel")];
+    assert!(labels.values.iter().all(|value| known.contains(value)));
+    // Scores sent with a scene still win over the service's model.
+    let (status, scene) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("label_map", read("corner_label_map.png")),
+            ("label_map_classes", read("corner_label_classes.txt")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+    assert!(block_share(&labels_of(&app, &scene).await, class("sofa")) > 0.9);
+}
