@@ -23,7 +23,7 @@ pub struct ExportArgs {
 pub fn run(args: ExportArgs) -> anyhow::Result<()> {
     let config = args.service.config()?;
     let corrector = super::serve::corrector(&config)?;
-    let log = CorrectionLog::open(&config.log_path())?;
+    let log = CorrectionLog::connect(&config.log_location())?;
     let progress = ProgressBar::new(0);
     if let Ok(style) = ProgressStyle::with_template("exporting {bar:30} example {pos}/{len}") {
         progress.set_style(style);

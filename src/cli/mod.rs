@@ -10,6 +10,7 @@ mod demo;
 mod export;
 mod field_notes;
 pub mod fix;
+mod migrate;
 mod model_watch;
 mod parse;
 mod perception;
@@ -72,6 +73,8 @@ pub enum Command {
     FieldNotes(field_notes::FieldNotesArgs),
     /// Register scenes in the correction log without the HTTP service.
     Store(store::StoreArgs),
+    /// Bring the correction log's schema (SQLite or PostgreSQL) up to this build's version.
+    Migrate(migrate::MigrateArgs),
 }
 
 /// Runs one subcommand.
@@ -79,6 +82,7 @@ pub fn run(arguments: Arguments) -> anyhow::Result<()> {
     match arguments.command {
         Command::Classes(args) => classes::run(args),
         Command::Store(args) => store::run(args),
+        Command::Migrate(args) => migrate::run(args),
         Command::Demo(args) => demo::run(args),
         Command::Render(args) => render::run(args),
         Command::Train(args) => train::run(args),

@@ -9,6 +9,7 @@ use std::path::PathBuf;
 use std::sync::Arc;
 
 use anyhow::Context;
+use sayso::correction_log::LogLocation;
 use sayso::language::Grammar;
 use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
 use sayso::service::config::ServiceConfig;
@@ -27,6 +28,10 @@ pub struct ServiceFlags {
     /// The data directory holding the correction log [default: sayso-data].
     #[arg(long, env = "SAYSO_DATA_DIR")]
     pub data_dir: Option<PathBuf>,
+    /// Where the correction log lives: a `postgres://` address or a SQLite file path [default:
+    /// corrections.sqlite in the data directory].
+    #[arg(long, env = "SAYSO_DATABASE")]
+    pub database: Option<String>,
     /// The grammar directory (classes.toml) [default: the embedded one].
     #[arg(long, env = "SAYSO_GRAMMAR_DIR")]
     pub grammar_dir: Option<PathBuf>,
@@ -47,6 +52,9 @@ impl ServiceFlags {
         };
         if let Some(directory) = &self.data_dir {
             config.data_dir = directory.clone();
+        }
+        if let Some(database) = &self.database {
+            config.database = Some(database.clone());
         }
         if let Some(directory) = &self.grammar_dir {
             config.grammar_dir = Some(directory.clone());
@@ -89,16 +97,26 @@ fn open_coordinator_with(
     config: &ServiceConfig,
     corrector: Arc<dyn Corrector>,
 ) -> anyhow::Result<Arc<Coordinator>> {
-    let mut coordinator = Coordinator::open(
-        corrector,
-        &CoordinatorSettings {
-            log_path: config.log_path(),
-            pixel_limit: config.pixel_limit,
-            demo_dir: config.demo_directory(),
-        },
-        Arc::new(Metrics::default()),
-    )
-    .with_context(|| format!("opening the correction log {}", config.log_path().display()))?;
+    let location = config.log_location();
+    let settings = CoordinatorSettings {
+        log_path: config.log_path(),
+        pixel_limit: config.pixel_limit,
+        demo_dir: config.demo_directory(),
+    };
+    let mut coordinator = match &location {
+        LogLocation::Sqlite(path) => Coordinator::open(
+            corrector,
+            &CoordinatorSettings {
+                log_path: path.clone(),
+                ..settings
+            },
+            Arc::new(Metrics::default()),
+        ),
+        LogLocation::Postgres(url) => {
+            Coordinator::open_postgres(corrector, url, &settings, Arc::new(Metrics::default()))
+        }
+    }
+    .with_context(|| format!("opening the correction log {}", location.shown()))?;
     if let Some(path) = &config.user_model {
         let model = sayso::unaries::byo_user_model::UserModel::load(path)
             .with_context(|| format!("loading the user model {}", path.display()))?;
@@ -151,8 +169,8 @@ pub fn run(args: ServeArgs) -> anyhow::Result<()> {
             .with_context(|| format!("binding {}", config.bind))?;
         let address = listener.local_addr()?;
         println!(
-            "sayso: listening on http://{address}/v1 (data in {})",
-            config.data_dir.display()
+            "sayso: listening on http://{address}/v1 (correction log {})",
+            config.log_location().shown()
         );
         eprintln!(
             "sayso: a corrected scene is advisory; it never replaces the robot's own safety sensors"

@@ -3,7 +3,7 @@
 //! Owns: `BackgroundCheckpoints`. SQLite's automatic checkpoint runs inside whichever commit crosses the
 //! WAL size threshold, and with `synchronous = FULL` it ends in an fsync of the database file, so that one
 //! commit (and every turn queued behind it) waits tens of milliseconds. A long-running service turns the
-//! automatic checkpoint off on its writing connection (`CorrectionLog::set_automatic_checkpoints(false)`) and
+//! automatic checkpoint off on its writing connection (`SqliteLog::set_automatic_checkpoints(false)`) and
 //! starts this thread instead: it runs a PASSIVE checkpoint on its own connection at a fixed interval.
 //! PASSIVE never waits for writers or readers, and commits keep appending to the WAL meanwhile, so a
 //! correction's acknowledgement still waits only for its own WAL fsync. Durability is unchanged: what was
@@ -108,13 +108,13 @@ impl Drop for BackgroundCheckpoints {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::correction_log::{CorrectionLog, NewScene, StateRecord};
+    use crate::correction_log::{NewScene, SqliteLog, StateRecord};
 
     #[test]
     fn the_background_thread_checkpoints_while_commits_go_on_and_stops_when_dropped() {
         let directory = tempfile::tempdir().unwrap();
         let path = directory.path().join("log.sqlite");
-        let mut log = CorrectionLog::open(&path).unwrap();
+        let mut log = SqliteLog::open(&path).unwrap();
         log.set_automatic_checkpoints(false).unwrap();
         let checkpoints = BackgroundCheckpoints::start(&path, Duration::from_millis(5)).unwrap();
         for index in 0..200u32 {
@@ -142,7 +142,7 @@ mod tests {
         // Everything committed is readable, from this connection and from a fresh one.
         assert_eq!(log.scenes().unwrap().len(), 200);
         drop(log);
-        let reopened = CorrectionLog::open(&path).unwrap();
+        let reopened = SqliteLog::open(&path).unwrap();
         assert_eq!(reopened.scenes().unwrap().len(), 200);
         assert_eq!(reopened.integrity_check().unwrap(), "ok");
     }

@@ -71,35 +71,22 @@ fn overruled_share(before: &[u16], after: &[u16], current: &[u16]) -> Option<f64
 /// Splits the log's counting examples into those to export and those contradicted since, and lists the
 /// undone corrections and rejected proposals.
 pub fn audit(log: &CorrectionLog) -> Result<ExportAudit, LogError> {
-    let connection = log.connection();
     let mut left_out = Vec::new();
-    let mut undone = connection.prepare(
-        "SELECT s.name, e.version_id, e.utterance FROM training_examples e JOIN scenes s ON s.id = e.scene_id
-         WHERE e.active = 0 ORDER BY e.id",
-    )?;
-    for row in undone.query_map([], |row| {
-        Ok(LeftOut {
-            scene_name: row.get(0)?,
-            scene_version: Some(row.get(1)?),
-            utterance: row.get(2)?,
+    for (scene_name, version, utterance) in log.undone_examples()? {
+        left_out.push(LeftOut {
+            scene_name,
+            scene_version: Some(version),
+            utterance,
             reason: LeftOutReason::Undone,
-        })
-    })? {
-        left_out.push(row?);
+        });
     }
-    let mut rejected = connection.prepare(
-        "SELECT s.name, t.text FROM turns t JOIN conversations c ON c.id = t.conversation_id
-         JOIN scenes s ON s.id = c.scene_id WHERE t.kind = 'reject' ORDER BY t.id",
-    )?;
-    for row in rejected.query_map([], |row| {
-        Ok(LeftOut {
-            scene_name: row.get(0)?,
+    for (scene_name, utterance) in log.rejected_turns()? {
+        left_out.push(LeftOut {
+            scene_name,
             scene_version: None,
-            utterance: row.get(1)?,
+            utterance,
             reason: LeftOutReason::Rejected,
-        })
-    })? {
-        left_out.push(row?);
+        });
     }
     let heads: HashMap<SceneKey, VersionKey> = log
         .scenes()?

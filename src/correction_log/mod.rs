@@ -1,6 +1,9 @@
-//! The durable correction log: every scene, conversation, utterance, result and training example, in SQLite.
+//! The durable correction log: every scene, conversation, utterance, result and training example, in SQLite
+//! (the embedded default) or PostgreSQL (a server shared by a fleet), behind one interface (`CorrectionLog`,
+//! chosen by a `LogLocation`).
 //!
-//! Owns: the database file under the data directory (WAL journal, `synchronous = FULL`, versioned schema),
+//! Owns: the database (a SQLite file under the data directory, WAL journal, `synchronous = FULL`; or a
+//! PostgreSQL database), the same numbered migrations on both,
 //! the row keys (`SceneKey`, `ConversationKey`, `TurnKey`, `VersionKey`), content-addressed blobs, and the
 //! one-transaction-per-turn rule: a turn and everything it changes are committed together or not at all (under
 //! load several turns share one transaction through `GroupCommit`, each in its own savepoint), and a caller
@@ -32,21 +35,25 @@
 //! assert_eq!(log.scenes().unwrap()[0].key, scene);
 //! ```
 
+mod backend;
 mod checkpoint;
 mod export;
 mod export_filter;
 mod group;
+mod postgres;
 mod schema;
 mod store;
 mod time;
 
+pub use backend::{CorrectionLog, LogLocation};
 pub use checkpoint::BackgroundCheckpoints;
 pub use export::{export_dataset, export_dataset_showing, ExportError, ExportSummary};
 pub use export_filter::{LeftOut, LeftOutReason, CONTRADICTED_SHARE};
 pub use group::{GroupCommit, GroupCommitCounts, TurnWritten};
+pub use postgres::{redact as redact_address, PostgresLog};
 pub use schema::LOG_SCHEMA_VERSION;
 pub use store::{
-    blob_hash, ConversationRow, CorrectionLog, ExampleRow, NewScene, NewTurn, PendingRow, SceneRow,
+    blob_hash, ConversationRow, ExampleRow, NewScene, NewTurn, PendingRow, SceneRow, SqliteLog,
     StateRecord, TurnEffect, TurnRow, TurnStacks,
 };
 pub use time::now_text;
@@ -95,6 +102,18 @@ pub enum LogError {
     },
     #[error("database error: {0}")]
     Database(#[from] rusqlite::Error),
+    #[error("PostgreSQL error: {0}")]
+    Postgres(String),
+    #[error("not a usable PostgreSQL address: {0}")]
+    Address(String),
+    #[error(
+        "the database {database} is at schema {found}, this build needs {supported}: run `sayso migrate` first"
+    )]
+    NotMigrated {
+        database: String,
+        found: i64,
+        supported: i64,
+    },
     #[error(
         "the log was written by a newer sayso (schema {found}; this build reads up to {supported})"
     )]
@@ -109,4 +128,20 @@ pub enum LogError {
     Batch(String),
     #[error("the caller withdrew the turn before it was written, so nothing was recorded")]
     Withdrawn,
+}
+
+impl From<tokio_postgres::Error> for LogError {
+    fn from(error: tokio_postgres::Error) -> LogError {
+        // The server's own message (severity, text, detail) says more than the driver's summary.
+        match error.as_db_error() {
+            Some(db) => LogError::Postgres(format!("{}: {}", db.severity(), db.message())),
+            None => LogError::Postgres(error.to_string()),
+        }
+    }
+}
+
+impl From<deadpool_postgres::PoolError> for LogError {
+    fn from(error: deadpool_postgres::PoolError) -> LogError {
+        LogError::Postgres(format!("no connection to the server: {error}"))
+    }
 }

@@ -1,6 +1,6 @@
 //! The log's queries: registering scenes, opening conversations, committing turns, reading everything back.
 //!
-//! Owns: `CorrectionLog` (one SQLite connection) and the row types it returns.
+//! Owns: `SqliteLog` (one SQLite connection) and the row types both backends return.
 //! Must not: interpret summaries or engine state, or decide whether a correction is allowed; callers decide,
 //! the log records. The one check made here is that a new version still sits on the scene's head.
 
@@ -161,7 +161,7 @@ pub struct ExampleRow {
 fn write_turn(
     transaction: &Connection,
     turn: &NewTurn<'_>,
-    stacks: Option<(&[VersionKey], &[VersionKey])>,
+    stacks: TurnStacks<'_>,
 ) -> Result<(TurnKey, Option<VersionKey>), LogError> {
     let now = now_text();
     let scene: i64 = transaction
@@ -308,8 +308,8 @@ fn write_turn(
     Ok((turn_key, new_version))
 }
 
-/// The correction log: one SQLite connection on `<data dir>/...sqlite`.
-pub struct CorrectionLog {
+/// The correction log on SQLite: one connection on `<data dir>/...sqlite`.
+pub struct SqliteLog {
     connection: Connection,
     path: PathBuf,
 }
@@ -329,22 +329,17 @@ fn put_blob(transaction: &Connection, bytes: &[u8]) -> Result<String, LogError> 
     Ok(hash)
 }
 
-fn parse_stack(text: &str) -> Result<Vec<VersionKey>, LogError> {
+pub(super) fn parse_stack(text: &str) -> Result<Vec<VersionKey>, LogError> {
     serde_json::from_str(text).map_err(|error| LogError::Corrupt(format!("version stack: {error}")))
 }
 
-fn stack_text(stack: &[VersionKey]) -> String {
+pub(super) fn stack_text(stack: &[VersionKey]) -> String {
     serde_json::to_string(stack).unwrap_or_else(|_| "[]".to_string())
 }
 
-impl CorrectionLog {
-    /// The connection, for the queries of sibling modules (export filters).
-    pub(super) fn connection(&self) -> &Connection {
-        &self.connection
-    }
-
+impl SqliteLog {
     /// Opens (creating if needed) the log at `path`, migrating its schema.
-    pub fn open(path: &Path) -> Result<CorrectionLog, LogError> {
+    pub fn open(path: &Path) -> Result<SqliteLog, LogError> {
         if let Some(parent) = path.parent() {
             if !parent.as_os_str().is_empty() {
                 std::fs::create_dir_all(parent).map_err(|source| LogError::Directory {
@@ -355,10 +350,26 @@ impl CorrectionLog {
         }
         let mut connection = Connection::open(path)?;
         schema::prepare(&mut connection)?;
-        Ok(CorrectionLog {
+        Ok(SqliteLog {
             connection,
             path: path.to_path_buf(),
         })
+    }
+
+    /// The schema version recorded in the SQLite file at `path` (0 before any migration), read without
+    /// migrating it.
+    pub fn recorded_version_of(path: &Path) -> Result<i64, LogError> {
+        let connection =
+            Connection::open_with_flags(path, rusqlite::OpenFlags::SQLITE_OPEN_READ_ONLY)?;
+        let tables: i64 = connection.query_row(
+            "SELECT COUNT(*) FROM sqlite_master WHERE type = 'table' AND name = 'schema_version'",
+            [],
+            |row| row.get(0),
+        )?;
+        if tables == 0 {
+            return Ok(0);
+        }
+        schema::recorded_version(&connection)
     }
 
     /// Where the database file is.
@@ -461,7 +472,11 @@ impl CorrectionLog {
         turn: &NewTurn<'_>,
         stacks: Option<(&[VersionKey], &[VersionKey])>,
     ) -> Result<(TurnKey, Option<VersionKey>), LogError> {
-        let transaction = self.connection.transaction()?;
+        // IMMEDIATE: the write lock is taken before the head is read, so a second writer on the same file
+        // waits (busy timeout) and then reads the head the first one left, instead of failing to upgrade.
+        let transaction = self
+            .connection
+            .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)?;
         let written = write_turn(&transaction, turn, stacks)?;
         transaction.commit()?;
         Ok(written)
@@ -679,6 +694,26 @@ impl CorrectionLog {
         Ok(rows.collect::<Result<Vec<_>, _>>()?)
     }
 
+    /// Undone corrections (scene name, version, utterance), oldest first.
+    pub fn undone_examples(&self) -> Result<Vec<(String, i64, String)>, LogError> {
+        let mut statement = self.connection.prepare(
+            "SELECT s.name, e.version_id, e.utterance FROM training_examples e JOIN scenes s ON s.id = e.scene_id
+             WHERE e.active = 0 ORDER BY e.id",
+        )?;
+        let rows = statement.query_map([], |row| Ok((row.get(0)?, row.get(1)?, row.get(2)?)))?;
+        Ok(rows.collect::<Result<Vec<_>, _>>()?)
+    }
+
+    /// Rejected proposals (scene name, the rejecting turn's text), oldest first.
+    pub fn rejected_turns(&self) -> Result<Vec<(String, String)>, LogError> {
+        let mut statement = self.connection.prepare(
+            "SELECT s.name, t.text FROM turns t JOIN conversations c ON c.id = t.conversation_id
+             JOIN scenes s ON s.id = c.scene_id WHERE t.kind = 'reject' ORDER BY t.id",
+        )?;
+        let rows = statement.query_map([], |row| Ok((row.get(0)?, row.get(1)?)))?;
+        Ok(rows.collect::<Result<Vec<_>, _>>()?)
+    }
+
     /// Number of turns stored in total.
     pub fn turn_count(&self) -> Result<i64, LogError> {
         Ok(self
@@ -718,7 +753,7 @@ mod tests {
     fn a_stale_change_writes_nothing_and_earlier_rows_stay() {
         let directory = tempfile::tempdir().unwrap();
         let path = directory.path().join("log.sqlite");
-        let mut log = CorrectionLog::open(&path).unwrap();
+        let mut log = SqliteLog::open(&path).unwrap();
         let registered = state(1);
         let (scene, first) = log
             .register_scene(&NewScene {
@@ -753,7 +788,7 @@ mod tests {
         drop(log);
 
         // Reopened, everything is as committed, stacks included.
-        let log = CorrectionLog::open(&path).unwrap();
+        let log = SqliteLog::open(&path).unwrap();
         assert_eq!(log.integrity_check().unwrap(), "ok");
         assert_eq!(log.version(second).unwrap(), (state(2), Some(first)));
         assert_eq!(log.conversations().unwrap()[0].applied_stack, vec![second]);
@@ -777,7 +812,7 @@ mod tests {
     #[test]
     fn undo_moves_the_head_and_withdraws_the_example() {
         let directory = tempfile::tempdir().unwrap();
-        let mut log = CorrectionLog::open(&directory.path().join("log.sqlite")).unwrap();
+        let mut log = SqliteLog::open(&directory.path().join("log.sqlite")).unwrap();
         let registered = state(1);
         let (scene, first) = log
             .register_scene(&NewScene {

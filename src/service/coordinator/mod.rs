@@ -20,7 +20,7 @@ use std::sync::{Arc, Mutex, MutexGuard, RwLock};
 
 use crate::correction_log::{
     BackgroundCheckpoints, ConversationKey, CorrectionLog, GroupCommit, LogError, NewTurn,
-    SceneKey, StateRecord, TurnWritten, VersionKey,
+    PostgresLog, SceneKey, SqliteLog, StateRecord, TurnWritten, VersionKey,
 };
 use crate::language::constraint::Constraint;
 use crate::raster;
@@ -88,8 +88,9 @@ pub struct Coordinator {
     demo_dir: PathBuf,
     /// A user per-pixel model that scores scenes registered without scores or a label map.
     user_model: Option<Arc<crate::unaries::byo_user_model::UserModel>>,
-    /// Held for the coordinator's life: one process per log, so no two memories drift apart.
-    _exclusive: std::fs::File,
+    /// Held for the coordinator's life: one process per log, so no two memories drift apart (for a SQLite
+    /// log, a locked file beside it; a PostgreSQL log holds a session lock of its own).
+    _exclusive: Option<std::fs::File>,
 }
 
 /// Settings the coordinator needs.
@@ -108,10 +109,10 @@ pub enum OpenError {
     #[error("stored scene {scene} cannot be restored: {message}")]
     Restore { scene: i64, message: String },
     #[error(
-        "the correction log {path} is in use by another sayso process (a running service?); stop it \
+        "the correction log {shown} is in use by another sayso process (a running service?); stop it \
          or send the work through its HTTP API"
     )]
-    InUse { path: PathBuf },
+    InUse { shown: String },
     #[error("cannot create the lock file {path}: {source}")]
     LockFile {
         path: PathBuf,
@@ -213,10 +214,10 @@ impl Coordinator {
             })?;
         if exclusive.try_lock().is_err() {
             return Err(OpenError::InUse {
-                path: settings.log_path.clone(),
+                shown: settings.log_path.display().to_string(),
             });
         }
-        let log = CorrectionLog::open(&settings.log_path)?;
+        let log = SqliteLog::open(&settings.log_path)?;
         // Checkpoints run on their own thread so no commit waits for one; if the thread cannot start,
         // SQLite's automatic checkpoint stays on.
         let checkpoints =
@@ -224,6 +225,50 @@ impl Coordinator {
         if checkpoints.is_some() {
             log.set_automatic_checkpoints(false)?;
         }
+        Coordinator::restore(
+            corrector,
+            CorrectionLog::Sqlite(log),
+            checkpoints,
+            Some(exclusive),
+            settings,
+            metrics,
+        )
+    }
+
+    /// Opens the coordinator on a PostgreSQL log (`url`, already at this build's schema) and restores
+    /// every scene and conversation in it. One coordinator per database: the log's session lock refuses a
+    /// second while this one runs (`settings.log_path` is not used).
+    pub fn open_postgres(
+        corrector: Arc<dyn Corrector>,
+        url: &str,
+        settings: &CoordinatorSettings,
+        metrics: Arc<Metrics>,
+    ) -> Result<Coordinator, OpenError> {
+        let mut log = PostgresLog::connect(url)?;
+        if !log.hold_exclusive(url)? {
+            return Err(OpenError::InUse {
+                shown: log.shown().to_string(),
+            });
+        }
+        Coordinator::restore(
+            corrector,
+            CorrectionLog::Postgres(log),
+            None,
+            None,
+            settings,
+            metrics,
+        )
+    }
+
+    /// Restores every scene and conversation from an opened log.
+    fn restore(
+        corrector: Arc<dyn Corrector>,
+        log: CorrectionLog,
+        checkpoints: Option<BackgroundCheckpoints>,
+        exclusive: Option<std::fs::File>,
+        settings: &CoordinatorSettings,
+        metrics: Arc<Metrics>,
+    ) -> Result<Coordinator, OpenError> {
         let mut scenes = HashMap::new();
         for row in log.scenes()? {
             let restore_error = |message: String| OpenError::Restore {

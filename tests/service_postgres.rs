@@ -1,0 +1,165 @@
+//! The service on a PostgreSQL log (a real server, `tests/postgres_support`): `sayso migrate` prepares the
+//! database, the coordinator restores what it wrote after a restart (read from the stored snapshot, no chain
+//! replayed), one coordinator per database while scenes live in its memory, and `sayso export` reads the
+//! same store.
+
+mod postgres_support;
+mod service_support;
+
+use std::process::Command;
+use std::sync::Arc;
+
+use sayso::correction_log::{ConversationKey, SceneKey};
+use sayso::raster::IndexImage;
+use sayso::service::coordinator::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
+use sayso::service::joint::JointCorrector;
+use sayso::service::metrics::Metrics;
+use sayso::service::wire::{FocusIn, TurnStatus};
+use service_support::picture_of;
+
+const FLOOR: u16 = 0;
+const RUG: u16 = 6;
+const CELLS: u32 = 6;
+const CELL: u32 = 16;
+
+fn sayso(arguments: &[&str]) -> (bool, String) {
+    let output = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(arguments)
+        .output()
+        .expect("the binary runs");
+    (
+        output.status.success(),
+        format!(
+            "{}{}",
+            String::from_utf8_lossy(&output.stdout),
+            String::from_utf8_lossy(&output.stderr)
+        ),
+    )
+}
+
+fn open(url: &str, corrector: Arc<JointCorrector>) -> Result<Coordinator, OpenError> {
+    Coordinator::open_postgres(
+        corrector,
+        url,
+        &CoordinatorSettings {
+            log_path: std::path::PathBuf::from("unused"),
+            pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+            demo_dir: std::path::PathBuf::from("none"),
+        },
+        Arc::new(Metrics::default()),
+    )
+}
+
+fn engine() -> Arc<JointCorrector> {
+    Arc::new(JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier"))
+}
+
+/// A 96x96 floor with a checkerboard of rug cells, registered with its label map.
+fn register(coordinator: &Coordinator) -> (SceneKey, ConversationKey) {
+    let mut labels = IndexImage::filled(CELLS * CELL, CELLS * CELL, FLOOR);
+    for y in 0..labels.height {
+        for x in 0..labels.width {
+            if (x / CELL + y / CELL) % 2 == 1 {
+                labels.set(x, y, RUG);
+            }
+        }
+    }
+    let created = coordinator
+        .register_scene(
+            SceneUpload {
+                name: Some("juniper-lane-landing".into()),
+                image_png: Some(sayso::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                label_map_png: Some(sayso::raster::encode_index_png(&labels).unwrap()),
+                ..Default::default()
+            },
+            "odile",
+        )
+        .expect("registered");
+    let scene = SceneKey(created.scene_id);
+    let conversation = coordinator
+        .open_conversation(scene, "odile")
+        .expect("opened");
+    (scene, ConversationKey(conversation.conversation_id))
+}
+
+fn say(coordinator: &Coordinator, conversation: ConversationKey, text: &str) -> TurnStatus {
+    coordinator
+        .utterance(
+            conversation,
+            "odile",
+            text,
+            Some(FocusIn::Pixel {
+                x: CELL + CELL / 2,
+                y: CELL / 2,
+            }),
+        )
+        .expect("answered")
+        .status
+}
+
+#[test]
+fn the_service_keeps_its_log_on_postgresql_across_a_restart() {
+    let url = postgres_support::fresh_database();
+    // A replica does not migrate: before `sayso migrate` it refuses to start, naming the command.
+    let refused = open(&url, engine())
+        .err()
+        .expect("refused before migrating");
+    assert!(refused.to_string().contains("sayso migrate"), "{refused}");
+    let (ok, said) = sayso(&["migrate", "--database", &url]);
+    assert!(ok, "{said}");
+    assert!(said.contains("applied 1, 2, 3"), "{said}");
+    let (ok, said) = sayso(&["migrate", "--database", &url]);
+    assert!(ok && said.contains("nothing to do"), "{said}");
+
+    let (scene, conversation, label_map) = {
+        let coordinator = open(&url, engine()).expect("opens on the migrated database");
+        // One coordinator per database while scenes live in its memory.
+        let second = open(&url, engine())
+            .err()
+            .expect("a second coordinator is refused");
+        assert!(matches!(second, OpenError::InUse { .. }), "{second}");
+        let (scene, conversation) = register(&coordinator);
+        for text in ["that's a towel", "no, it's a mug", "that's a towel"] {
+            assert_eq!(
+                say(&coordinator, conversation, text),
+                TurnStatus::Applied,
+                "{text}"
+            );
+        }
+        (
+            scene,
+            conversation,
+            coordinator.label_map_png(scene).unwrap(),
+        )
+    };
+
+    let corrector = engine();
+    let restarted = open(&url, corrector.clone()).expect("reopens once the first has gone");
+    assert_eq!(restarted.label_map_png(scene).unwrap(), label_map);
+    assert_eq!(
+        say(&restarted, conversation, "no, it's a mug"),
+        TurnStatus::Applied
+    );
+    assert_eq!(
+        corrector.replayed_turns(),
+        0,
+        "the head came from its snapshot"
+    );
+    let examples = restarted.with_log(|log| log.training_examples().unwrap().len());
+    assert_eq!(examples, 4);
+    drop(restarted);
+
+    let out = tempfile::tempdir().unwrap();
+    let dataset = out.path().join("dataset");
+    let (ok, said) = sayso(&[
+        "export",
+        "--database",
+        &url,
+        "--output",
+        dataset.to_str().unwrap(),
+    ]);
+    assert!(ok, "{said}");
+    let index = std::fs::read_to_string(dataset.join("index.jsonl")).unwrap();
+    assert!(!index.trim().is_empty(), "{said}");
+    assert!(said.contains("training example"), "{said}");
+}
