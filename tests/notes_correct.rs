@@ -243,10 +243,10 @@ fn one_shelf_seen_between_its_books_is_joined_piece_by_piece() {
     );
 }
 
-#[test]
-fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
-    // A rug on the floor, and a far one-cell patch the classifier also takes for rug.
-    let room = room(
+/// A rug on the floor below a wall, and a far one-cell greenish patch `g` with the scores `patch`.
+fn rug_room(patch: &[(&str, f32)]) -> Room {
+    let patch: Vec<(String, f32)> = patch.iter().map(|&(n, p)| (n.to_string(), p)).collect();
+    room(
         &[
             "wwwwwwwwwwww",
             "ffffffffffff",
@@ -255,7 +255,7 @@ fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
             "fRRRRfffffff",
             "ffffffffffff",
         ],
-        &|c, class| match c {
+        &move |c, class| match c {
             'w' => Cell {
                 colour: [215, 205, 185],
                 scores: vec![(class("wall"), 0.9)],
@@ -268,13 +268,19 @@ fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
                 colour: [60, 140, 90],
                 scores: vec![(class("rug"), 0.9)],
             },
-            // Sunlight on the boards, greenish through the curtain.
             _ => Cell {
                 colour: [70, 135, 95],
-                scores: vec![(class("rug"), 0.8), (class("floor"), 0.19)],
+                scores: patch.iter().map(|(name, p)| (class(name), *p)).collect(),
             },
         },
-    );
+    )
+}
+
+#[test]
+fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
+    // A rug on the floor, and a far one-cell patch the classifier also takes for rug.
+    // Sunlight on the boards, greenish through the curtain.
+    let room = rug_room(&[("rug", 0.8), ("floor", 0.19)]);
     let (rug, floor) = (class_of(&room, "rug"), class_of(&room, "floor"));
     let before = solve(&room, None, vec![], None);
     assert_eq!(
@@ -317,34 +323,7 @@ fn a_fragment_taken_away_joins_what_surrounds_it_not_the_next_best_class() {
     // A rug on the floor, and a far one-cell patch the classifier takes for rug with plant as its second
     // guess: no plant is anywhere in the room, so making the patch a plant would add a class of one sliver.
     // "Exactly one rug" takes the fragment away, and it becomes the floor all round it.
-    let room = room(
-        &[
-            "wwwwwwwwwwww",
-            "ffffffffffff",
-            "fRRRRfffffff",
-            "fRRRRffffffg",
-            "fRRRRfffffff",
-            "ffffffffffff",
-        ],
-        &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
-            'R' => Cell {
-                colour: [60, 140, 90],
-                scores: vec![(class("rug"), 0.9)],
-            },
-            _ => Cell {
-                colour: [70, 135, 95],
-                scores: vec![(class("rug"), 0.6), (class("plant"), 0.39)],
-            },
-        },
-    );
+    let room = rug_room(&[("rug", 0.6), ("plant", 0.39)]);
     let (rug, floor) = (class_of(&room, "rug"), class_of(&room, "floor"));
     let before = solve(&room, None, vec![], None);
     assert_eq!(

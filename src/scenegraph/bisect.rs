@@ -41,7 +41,8 @@ pub struct Sizing<'a> {
 }
 
 impl Sizing<'_> {
-    fn pixels(&self, members: &[usize]) -> u64 {
+    /// Pixels of `members`.
+    pub fn pixels(&self, members: &[usize]) -> u64 {
         members
             .iter()
             .map(|&s| u64::from(self.area.get(s).copied().unwrap_or(0)))

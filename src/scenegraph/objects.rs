@@ -135,18 +135,18 @@ pub fn form_objects(
     let mut pieces: Vec<(ClassId, Vec<usize>)> = Vec::new();
     let mut split_classes: Vec<(ClassId, u32)> = Vec::new();
     let mut eligible = vec![false; all_components.len()];
-    let pixels = |component: &[usize]| -> u64 {
-        component
-            .iter()
-            .map(|&s| u64::from(area.get(s).copied().unwrap_or(0)))
-            .sum()
+    let sizing = Sizing {
+        neighbours: &neighbours,
+        depth: &depth,
+        area: &area,
+        cuts,
     };
     for &(class, wanted) in counted {
         // The class's largest patch: a patch far smaller than it is a fragment, not an object counted.
         let largest = all_components
             .iter()
             .filter(|component| labels[component[0]] == class.0)
-            .map(|component| pixels(component))
+            .map(|component| sizing.pixels(component))
             .max()
             .unwrap_or(0);
         // Enough segments, or (for a class with a typical size) enough of a typical object.
@@ -167,7 +167,7 @@ pub fn form_objects(
                             >= component.len()
                 })
             };
-            let credible = pixels(component) as f64 >= SHOWN_LARGEST_SHARE * largest as f64;
+            let credible = sizing.pixels(component) as f64 >= SHOWN_LARGEST_SHARE * largest as f64;
             credible
                 && (component.len() >= MIN_SHOWN_SEGMENTS
                     || cuts.typical_size(class).is_some_and(sized)
@@ -190,12 +190,7 @@ pub fn form_objects(
         &eligible,
         labels,
         &mut split_classes,
-        &Sizing {
-            neighbours: &neighbours,
-            depth: &depth,
-            area: &area,
-            cuts,
-        },
+        &sizing,
     );
     let split: Vec<bool> = parts_of.iter().map(|parts| parts.len() > 1).collect();
     let mut parts_of = parts_of;
