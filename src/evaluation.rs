@@ -223,6 +223,122 @@ fn object_accuracy_of(
     found.iter().filter(|&&f| f).count() as f64 / truth.len() as f64
 }
 
+/// Objects counted one-to-one at IoU >= 0.5: the ground truth's, the predicted ones that could match
+/// anything, and the matches.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize)]
+pub struct ObjectTally {
+    pub truth: usize,
+    pub predicted: usize,
+    pub matched: usize,
+}
+
+impl ObjectTally {
+    /// Share of ground-truth objects matched (what `object_accuracy` returns).
+    pub fn recall(&self) -> f64 {
+        if self.truth == 0 {
+            0.0
+        } else {
+            self.matched as f64 / self.truth as f64
+        }
+    }
+
+    /// The F1 score of the one-to-one matching, `2 matched / (truth + predicted)`: the "recognition
+    /// quality" of panoptic quality (Kirillov et al., "Panoptic Segmentation", CVPR 2019), which charges a
+    /// spurious predicted object as much as a missed one. 1 when both sides are empty.
+    pub fn f1(&self) -> f64 {
+        let total = self.truth + self.predicted;
+        if total == 0 {
+            1.0
+        } else {
+            2.0 * self.matched as f64 / total as f64
+        }
+    }
+}
+
+/// Counts ground-truth objects, predicted objects and one-to-one matches at IoU >= 0.5. A predicted object
+/// of a class the truth labels but never makes an instance of (floor, wall, ceiling) is left out: it cannot
+/// match and is no spurious object either. A predicted object of a class the scene does not hold at all
+/// counts as spurious.
+pub fn object_tally(scene: &DemoScene, predicted: &[PredictedObject]) -> ObjectTally {
+    object_tally_of(
+        &scene.labels.values,
+        &scene.instances.values,
+        &scene.objects,
+        predicted,
+        Smallest::default(),
+    )
+}
+
+/// The smallest objects a tally counts, in pixels: ground-truth objects below `truth` are left out with
+/// any predicted object that matches them, and predicted objects below `predicted` are left out.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct Smallest {
+    pub truth: u64,
+    pub predicted: u64,
+}
+
+/// `object_tally` over the objects at least `smallest` in size.
+pub fn object_tally_sized(
+    scene: &DemoScene,
+    predicted: &[PredictedObject],
+    smallest: Smallest,
+) -> ObjectTally {
+    object_tally_of(
+        &scene.labels.values,
+        &scene.instances.values,
+        &scene.objects,
+        predicted,
+        smallest,
+    )
+}
+
+/// `object_tally` on the raw parts: the truth's label map, its instance map and object list.
+fn object_tally_of(
+    labels: &[u16],
+    instances: &[u16],
+    truth: &[SceneObject],
+    predicted: &[PredictedObject],
+    smallest: Smallest,
+) -> ObjectTally {
+    let mut labelled = vec![false; usize::from(u16::MAX) + 1];
+    for &label in labels {
+        labelled[usize::from(label)] = true;
+    }
+    let instanced: std::collections::HashSet<ClassId> =
+        truth.iter().map(|object| object.class_id).collect();
+    let candidates: Vec<PredictedObject> = predicted
+        .iter()
+        .filter(|object| {
+            instanced.contains(&object.class) || !labelled[usize::from(object.class.0)]
+        })
+        .cloned()
+        .collect();
+    let (kept, small): (Vec<SceneObject>, Vec<SceneObject>) = truth
+        .iter()
+        .cloned()
+        .partition(|object| object.area >= smallest.truth);
+    // A predicted object that matches a truth object too small to count is left out with it.
+    let counted: Vec<PredictedObject> = candidates
+        .into_iter()
+        .filter(|object| {
+            object.pixels.len() as u64 >= smallest.predicted
+                && !matched_of(instances, &small, std::slice::from_ref(object))
+                    .iter()
+                    .any(|&found| found)
+        })
+        .collect();
+    let found = matched_of(instances, &kept, &counted)
+        .iter()
+        .filter(|&&found| found)
+        .count();
+    ObjectTally {
+        truth: kept.len(),
+        predicted: counted.len(),
+        // At IoU exactly 0.5 one predicted object may cover two truth objects; it is one match.
+        matched: found.min(counted.len()),
+    }
+}
+
 /// For every ground-truth object of `scene` (in `scene.objects` order), whether a predicted object of its
 /// class covers it at IoU >= 0.5.
 pub fn matched_objects(scene: &DemoScene, predicted: &[PredictedObject]) -> Vec<bool> {
@@ -389,5 +505,69 @@ mod tests {
             pixels: vec![0, 1],
         };
         assert_eq!(object_accuracy_of(&instances, &truth, &[enough]), 1.0);
+    }
+
+    #[test]
+    fn the_tally_charges_spurious_objects_but_not_structure() {
+        // 6x1: books 1 and 2 (pixels 0-1 and 2-3), floor (label 0, no instance) on pixels 4-5.
+        let labels = [26u16, 26, 26, 26, 0, 0];
+        let instances = [1u16, 1, 2, 2, 0, 0];
+        let truth = [book(1), book(2)];
+        let object = |class: u16, pixels: Vec<u32>| PredictedObject {
+            class: ClassId(class),
+            pixels,
+        };
+        // Book 1 found, book 2 missed, a floor object, and a mug (class 40) the scene does not hold.
+        let predicted = vec![
+            object(26, vec![0, 1]),
+            object(0, vec![4, 5]),
+            object(40, vec![5]),
+        ];
+        let tally = object_tally_of(&labels, &instances, &truth, &predicted, Smallest::default());
+        // The floor object is left out; the mug is spurious.
+        assert_eq!(
+            tally,
+            ObjectTally {
+                truth: 2,
+                predicted: 2,
+                matched: 1
+            }
+        );
+        assert_eq!(tally.recall(), 0.5);
+        // F1 = 2 * 1 / (2 + 2).
+        assert_eq!(tally.f1(), 0.5);
+        // Dropping the spurious mug raises F1 and leaves recall alone.
+        let fewer = object_tally_of(&labels, &instances, &truth, &predicted[..2], Smallest::default());
+        assert_eq!(fewer.recall(), 0.5);
+        assert!((fewer.f1() - 2.0 / 3.0).abs() < 1e-12);
+        // Nothing on either side is a perfect score; truth with nothing found is 0.
+        assert_eq!(object_tally_of(&[0], &[0], &[], &[], Smallest::default()).f1(), 1.0);
+        assert_eq!(object_tally_of(&labels, &instances, &truth, &[], Smallest::default()).f1(), 0.0);
+    }
+
+    #[test]
+    fn a_sized_tally_leaves_out_small_truth_and_what_matches_it() {
+        // 8x1: a 2-pixel book (instance 1) and a 6-pixel book (instance 2, area 6).
+        let labels = [26u16; 8];
+        let instances = [1u16, 1, 2, 2, 2, 2, 2, 2];
+        let mut big = book(2);
+        big.area = 6;
+        let truth = [book(1), big];
+        let object = |pixels: Vec<u32>| PredictedObject {
+            class: ClassId(26),
+            pixels,
+        };
+        // The small book found, the big one found, and a 1-pixel piece of the big one.
+        let predicted = vec![object(vec![0, 1]), object(vec![2, 3, 4, 5, 6]), object(vec![7])];
+        let all = object_tally_of(&labels, &instances, &truth, &predicted, Smallest::default());
+        assert_eq!((all.truth, all.predicted, all.matched), (2, 3, 2));
+        let sized = Smallest {
+            truth: 3,
+            predicted: 2,
+        };
+        let seen = object_tally_of(&labels, &instances, &truth, &predicted, sized);
+        // The small book and its match are left out, and so is the 1-pixel piece.
+        assert_eq!((seen.truth, seen.predicted, seen.matched), (1, 1, 1));
+        assert_eq!(seen.f1(), 1.0);
     }
 }

@@ -136,16 +136,32 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         summary.scenes
     );
     println!(
-        "  after 1 note:  object {:+.1}, mIoU {:+.1}, pixel {:+.1}",
-        summary.gain_one.object, summary.gain_one.mean_iou, summary.gain_one.pixel
+        "  after 1 note:  object {:+.1} (recall {:+.1}, seen {:+.1}), mIoU {:+.1}, pixel {:+.1}",
+        summary.gain_one.object,
+        summary.gain_one.object_recall,
+        summary.gain_one.object_seen,
+        summary.gain_one.mean_iou,
+        summary.gain_one.pixel
     );
     println!(
-        "  after {} notes: object {:+.1}, mIoU {:+.1}, pixel {:+.1}",
-        args.notes, summary.gain_all.object, summary.gain_all.mean_iou, summary.gain_all.pixel
+        "  after {} notes: object {:+.1} (recall {:+.1}, seen {:+.1}), mIoU {:+.1}, pixel {:+.1}",
+        args.notes,
+        summary.gain_all.object,
+        summary.gain_all.object_recall,
+        summary.gain_all.object_seen,
+        summary.gain_all.mean_iou,
+        summary.gain_all.pixel
     );
     println!(
-        "the no-note solve against the classifier alone (separate from the notes; the classifier's objects are its label map's regions): object {:+.1}, mIoU {:+.1}, pixel {:+.1}",
+        "  (object: F1 of scene-graph objects matched one-to-one to true objects at IoU 0.5, the recognition quality of panoptic quality; recall: the share of true objects matched; seen: the F1 over true objects of at least {} px and shown ones of at least {} px, those the operator notices and can speak of)",
+        sayso::trial::operator::MIN_VISIBLE,
+        sayso::trial::operator::MIN_NOTICED
+    );
+    println!(
+        "the no-note solve against the classifier alone (separate from the notes; the classifier's objects are its label map's regions): object {:+.1} (recall {:+.1}, seen {:+.1}), mIoU {:+.1}, pixel {:+.1}",
         summary.solve_over_classifier.object,
+        summary.solve_over_classifier.object_recall,
+        summary.solve_over_classifier.object_seen,
         summary.solve_over_classifier.mean_iou,
         summary.solve_over_classifier.pixel
     );
@@ -189,7 +205,7 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         100.0 * summary.right_to_wrong as f64 / summary.wrong_to_right.max(1) as f64
     );
     if summary.worse.is_empty() {
-        println!("no scene worse than its no-note solve on pixel, mIoU or object accuracy");
+        println!("no scene worse than its no-note solve on pixel, mIoU, object F1, object recall or seen-object F1");
     } else {
         println!(
             "worse than the no-note solve on some measure: {} ({})",

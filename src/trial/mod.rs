@@ -18,7 +18,8 @@ use serde::Serialize;
 
 use crate::demo::DemoScene;
 use crate::evaluation::{
-    matched_objects, object_accuracy, objects_from_graph, objects_from_members, score_labels,
+    matched_objects, object_tally, object_tally_sized, objects_from_graph, objects_from_members, objects_from_regions,
+    score_labels, Smallest,
 };
 use crate::ids::{ClassId, RoomId};
 use crate::language::constraint::{Constraint, ConstraintKind, Count, Focus, Place, Relation};
@@ -57,12 +58,19 @@ pub enum TrialError {
     Scoring(String),
 }
 
-/// Pixel accuracy, mean IoU and object accuracy (scene-graph objects, one-to-one at IoU 0.5), as fractions.
+/// Pixel accuracy, mean IoU and object accuracy (scene-graph objects matched one-to-one at IoU 0.5), as
+/// fractions. `object` is the matching's F1 (`ObjectTally::f1`: a spurious object costs as much as a missed
+/// one); `object_recall` is the share of true objects matched, which a spurious object does not move;
+/// `object_seen` is the F1 over the objects the operator notices (true objects of at least
+/// `operator::MIN_VISIBLE` pixels, shown ones of at least `operator::MIN_NOTICED`), the only ones a note
+/// can be about.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Serialize)]
 pub struct Scores {
     pub pixel: f64,
     pub mean_iou: f64,
     pub object: f64,
+    pub object_recall: f64,
+    pub object_seen: f64,
 }
 
 impl Scores {
@@ -71,9 +79,17 @@ impl Scores {
             pixel: self.pixel - other.pixel,
             mean_iou: self.mean_iou - other.mean_iou,
             object: self.object - other.object,
+            object_recall: self.object_recall - other.object_recall,
+            object_seen: self.object_seen - other.object_seen,
         }
     }
 }
+
+/// The objects the operator notices, for `Scores::object_seen`.
+const NOTICED: Smallest = Smallest {
+    truth: operator::MIN_VISIBLE,
+    predicted: operator::MIN_NOTICED,
+};
 
 /// How a note came out.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -195,11 +211,14 @@ fn state_of(
     let score = score_labels(truth, &labels, class_count)
         .map_err(|e| TrialError::Scoring(e.to_string()))?;
     let objects = objects_from_graph(scene, &correction.graph);
+    let tally = object_tally(truth, &objects);
     Ok(State {
         scores: Scores {
             pixel: score.pixel_accuracy,
             mean_iou: score.mean_iou,
-            object: object_accuracy(truth, &objects),
+            object: tally.f1(),
+            object_recall: tally.recall(),
+            object_seen: object_tally_sized(truth, &objects, NOTICED).f1(),
         },
         matched: matched_objects(truth, &objects),
         labels,
@@ -238,6 +257,8 @@ pub fn run_scene(
     let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels).values;
     let classifier_score = score_labels(&truth, &classifier_map, class_count)
         .map_err(|e| TrialError::Scoring(e.to_string()))?;
+    let classifier_objects = objects_from_regions(truth.labels.width as usize, &classifier_map);
+    let classifier_tally = object_tally(&truth, &classifier_objects);
     let baseline = believe_without_notes(&prepared, context.settings)?;
     let first = state_of(&truth, &prepared.scene, &baseline, class_count)?;
     let inputs = TurnInputs {
@@ -361,7 +382,9 @@ pub fn run_scene(
         classifier: Scores {
             pixel: classifier_score.pixel_accuracy,
             mean_iou: classifier_score.mean_iou,
-            object: classifier_score.object_accuracy,
+            object: classifier_tally.f1(),
+            object_recall: classifier_tally.recall(),
+            object_seen: object_tally_sized(&truth, &classifier_objects, NOTICED).f1(),
         },
         steps,
         notes,
@@ -658,6 +681,8 @@ pub fn summarise(trials: &[SceneTrial]) -> TrialSummary {
             total.pixel += 100.0 * s.pixel / count;
             total.mean_iou += 100.0 * s.mean_iou / count;
             total.object += 100.0 * s.object / count;
+            total.object_recall += 100.0 * s.object_recall / count;
+            total.object_seen += 100.0 * s.object_seen / count;
         }
         total
     };
@@ -680,6 +705,8 @@ pub fn summarise(trials: &[SceneTrial]) -> TrialSummary {
                 total.pixel += 100.0 * s.pixel / n;
                 total.mean_iou += 100.0 * s.mean_iou / n;
                 total.object += 100.0 * s.object / n;
+                total.object_recall += 100.0 * s.object_recall / n;
+                total.object_seen += 100.0 * s.object_seen / n;
             }
             total
         },
@@ -689,7 +716,11 @@ pub fn summarise(trials: &[SceneTrial]) -> TrialSummary {
             .iter()
             .filter(|t| {
                 let g = t.gain();
-                g.pixel < -1e-9 || g.mean_iou < -1e-9 || g.object < -1e-9
+                g.pixel < -1e-9
+                    || g.mean_iou < -1e-9
+                    || g.object < -1e-9
+                    || g.object_recall < -1e-9
+                    || g.object_seen < -1e-9
             })
             .map(|t| t.name.clone())
             .collect(),
