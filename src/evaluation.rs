@@ -537,12 +537,24 @@ mod tests {
         // F1 = 2 * 1 / (2 + 2).
         assert_eq!(tally.f1(), 0.5);
         // Dropping the spurious mug raises F1 and leaves recall alone.
-        let fewer = object_tally_of(&labels, &instances, &truth, &predicted[..2], Smallest::default());
+        let fewer = object_tally_of(
+            &labels,
+            &instances,
+            &truth,
+            &predicted[..2],
+            Smallest::default(),
+        );
         assert_eq!(fewer.recall(), 0.5);
         assert!((fewer.f1() - 2.0 / 3.0).abs() < 1e-12);
         // Nothing on either side is a perfect score; truth with nothing found is 0.
-        assert_eq!(object_tally_of(&[0], &[0], &[], &[], Smallest::default()).f1(), 1.0);
-        assert_eq!(object_tally_of(&labels, &instances, &truth, &[], Smallest::default()).f1(), 0.0);
+        assert_eq!(
+            object_tally_of(&[0], &[0], &[], &[], Smallest::default()).f1(),
+            1.0
+        );
+        assert_eq!(
+            object_tally_of(&labels, &instances, &truth, &[], Smallest::default()).f1(),
+            0.0
+        );
     }
 
     #[test]
@@ -558,7 +570,11 @@ mod tests {
             pixels,
         };
         // The small book found, the big one found, and a 1-pixel piece of the big one.
-        let predicted = vec![object(vec![0, 1]), object(vec![2, 3, 4, 5, 6]), object(vec![7])];
+        let predicted = vec![
+            object(vec![0, 1]),
+            object(vec![2, 3, 4, 5, 6]),
+            object(vec![7]),
+        ];
         let all = object_tally_of(&labels, &instances, &truth, &predicted, Smallest::default());
         assert_eq!((all.truth, all.predicted, all.matched), (2, 3, 2));
         let sized = Smallest {

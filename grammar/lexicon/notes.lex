@@ -2,7 +2,9 @@
 # slips.lex; a rewrite to "," ":" ";" or "." separates clauses like that punctuation.
 
 # Symbols (the tokeniser keeps them as words; ">=" written together is one word).
+/ = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
 / = ;
+-> = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
 + = ; unless after <start>
 & = and
 = = :
@@ -24,6 +26,11 @@ false neg = false negative
 false negative -> missed
 + = add when after <start>
 obj = object
+pt = this
+det = detection
+dets = detections
+missed det = missed
+missed dets = missed
 objs = objects
 
 # Sides and relations.
@@ -40,6 +47,9 @@ on r = on the right
 l side = left side
 r side = right side
 nxt = next
+lft = left
+lft of = left of
+rt of = right of
 nxt to = next to
 undr = under
 blw = below

@@ -69,6 +69,11 @@ right off = right of
 under neath = underneath
 in side = inside
 infront = in front
+tothe = to the
+rightof = right of
+leftof = left of
+nextto = next to
+ontop = on top
 inbetween = in between
 on to = onto
 

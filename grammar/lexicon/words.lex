@@ -3,6 +3,10 @@
 #   phrase -> kind [value]     tags a phrase; the longest phrase wins
 
 # Contractions and casual spellings.
+# "No, that's a mug": a "no" opening the note before a pointing word answers the robot; it denies nothing.
+no no = no when after <start>
+relabel = this is when after <start> when before <class>
+no = no , when after <start> when before that|this|it|that's|thats|it's|its|this's
 # "The mug that's on the desk": after a class word, "that" opens a clause about it.
 that's = , it is when after <class>
 that = , it when after <class>
@@ -23,6 +27,8 @@ where's = where is
 who's = who is
 we're = we are
 you're = you are
+you'll = you will
+youll = you will
 youre = you are
 they're = they are
 theyre = they are
@@ -60,6 +66,9 @@ were -> be
 am -> be
 be -> be
 sits -> be
+rests -> be
+rest -> be
+is resting -> be
 sit -> be
 stands -> be
 stand -> be
@@ -175,6 +184,11 @@ i notice -> see
 i found -> see
 i spotted -> see
 i noticed -> see
+you will find -> see
+you can find -> see
+you will see -> see
+right here i see -> pointing
+here i see -> pointing
 remove -> remove
 delete -> remove
 erase -> remove
@@ -183,6 +197,8 @@ hallucinated -> remove
 imagined -> remove
 invented -> remove
 made up -> remove
+take out -> remove
+take away -> remove
 the number of -> count
 number of -> count
 count -> count
@@ -196,6 +212,7 @@ mark -> change
 make -> change
 switch -> change
 set -> change
+-> -> change
 i am pointing at -> pointing
 i am pointing to -> pointing
 i am pointing -> pointing
@@ -406,6 +423,12 @@ no doubt -> filler
 there is no doubt -> filler
 from where -> filler
 i think -> filler
+i am pretty sure -> filler
+i am sure -> filler
+pretty sure -> filler
+you got the wrong number of -> count
+the wrong number of -> count
+wrong number of -> count
 i guess -> filler
 i believe -> filler
 kind of -> filler
@@ -450,6 +473,8 @@ positioned -> skip
 right there -> there
 in your detections -> skip
 in the detections -> skip
+detection -> skip
+detections -> skip
 in your labels -> skip
 can be found -> be
 be found -> be

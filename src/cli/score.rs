@@ -3,7 +3,8 @@
 //! after each note; the headline is the notes' own effect, the last note against step 0. The no-note solve's
 //! gain over the classifier is printed on its own line, never counted as the notes' gain.
 //!
-//! `obj:graph` is object-level accuracy over the scene graph's objects (accepted hypotheses with their final
+//! Object-level accuracy is the F1 of matching objects one-to-one to the truth's (`ObjectTally::f1`: a
+//! spurious object costs as much as a missed one). `obj:graph` is that over the scene graph's objects (accepted hypotheses with their final
 //! members); `obj:region` the same measure over 4-connected regions of the label map (adjacent objects of one
 //! class merge). The classifier alone proposes no objects, so both its object columns are its regions. See
 //! `sayso::evaluation` for the matching rule. A note line starting `@x,y` points at that pixel.
@@ -14,7 +15,9 @@
 use std::path::PathBuf;
 
 use sayso::demo::{demo_directory, list_demo_scenes, load_demo_scene};
-use sayso::evaluation::{object_accuracy, objects_from_graph, read_pointed_notes, score_labels};
+use sayso::evaluation::{
+    object_tally, objects_from_graph, objects_from_regions, read_pointed_notes, score_labels,
+};
 use sayso::language::constraint::Focus;
 use sayso::pipeline::{
     believe_without_notes, correct_notes, load_classifier, model_path, prepare_loaded,
@@ -86,7 +89,7 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
     );
     println!("step n: the corrected scene after note n. obj:graph = the scene graph's objects, obj:region =");
     println!(
-        "        4-connected regions of the label map. Object match: right class, IoU >= 0.5."
+        "        4-connected regions of the label map. Object match: right class, IoU >= 0.5, one-to-one; the\n        object figures are the matching's F1 (a spurious object costs as much as a missed one)."
     );
     println!("The headline is the notes' own effect: the last note's row against step 0.");
     println!(
@@ -113,16 +116,25 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
             Ok(Row {
                 pixel: score.pixel_accuracy,
                 mean_iou: score.mean_iou,
-                object_graph: object_accuracy(&demo, &objects_from_graph(&scene, graph)),
-                object_region: score.object_accuracy,
+                object_graph: object_tally(&demo, &objects_from_graph(&scene, graph)).f1(),
+                object_region: object_tally(
+                    &demo,
+                    &objects_from_regions(demo.labels.width as usize, &labels.values),
+                )
+                .f1(),
             })
         };
         let classifier_score = score_labels(&demo, &classifier_map.values, taxonomy.class_count())?;
+        let classifier_regions = object_tally(
+            &demo,
+            &objects_from_regions(demo.labels.width as usize, &classifier_map.values),
+        )
+        .f1();
         let alone = Row {
             pixel: classifier_score.pixel_accuracy,
             mean_iou: classifier_score.mean_iou,
-            object_graph: classifier_score.object_accuracy,
-            object_region: classifier_score.object_accuracy,
+            object_graph: classifier_regions,
+            object_region: classifier_regions,
         };
         println!("{name:<28} {:<10} {}", "classifier", alone.cells());
         let before = row_of(&baseline.graph)?;

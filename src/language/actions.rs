@@ -77,6 +77,15 @@ impl Builder {
         }
     }
 
+    /// Whether this utterance already said `class` is absent.
+    fn said_absent(&self, class: Option<ClassId>) -> bool {
+        class.is_some_and(|class| {
+            self.constraints
+                .iter()
+                .any(|c| matches!(c.kind, ConstraintKind::Absent { class: said } if said == class))
+        })
+    }
+
     fn deixis_for(&self, pronoun: bool) -> Deixis {
         if pronoun && self.seen_referent {
             Deixis::Previous
@@ -194,7 +203,26 @@ impl Builder {
             Action::Remove => {
                 for np in found.role("np").into_iter().filter_map(phrase) {
                     if np.deictic.is_some() {
+                        // "There's no mug here, remove it": with nothing pointed at, a pronoun after an
+                        // absence of the utterance says that absence again.
+                        let pronoun = np.class.is_none() && np.deictic.is_some_and(|w| w.pronoun);
+                        if pronoun && !self.has_focus && self.said_absent(self.last_class) {
+                            continue;
+                        }
                         let target = self.referent(&np);
+                        // "The mug you show isn't there, get rid of it": the pronoun took the mug the
+                        // utterance named; with nothing pointed at, removing it is its absence.
+                        if let (None, Some(class), true, false) = (
+                            target.deixis,
+                            target.class,
+                            target.relations.is_empty(),
+                            self.has_focus,
+                        ) {
+                            if !self.said_absent(Some(class)) {
+                                self.push(ConstraintKind::Absent { class }, span, misspelled);
+                            }
+                            continue;
+                        }
                         self.push(
                             ConstraintKind::Relabel {
                                 target,

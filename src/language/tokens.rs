@@ -54,8 +54,13 @@ pub fn tokenise(normalised: &Normalised) -> Vec<Token> {
         };
         let shape = if piece.chars().any(|c| c.is_alphanumeric()) {
             Some(TokenShape::Word)
-        } else if is_note_symbol(piece) && (*piece != "-" || (spaced(-1) && spaced(1))) {
-            // Note shorthand ("/", "+", "&", "=", ">=", a spaced dash): a word the lexicon rewrites.
+        } else if is_note_symbol(piece)
+            && (*piece != "-"
+                || (spaced(-1) && spaced(1))
+                || pieces.get(piece_index + 1).map(|(_, next)| *next) == Some(">"))
+        {
+            // Note shorthand ("/", "+", "&", "=", ">=", an arrow "->", a spaced dash): a word the lexicon
+            // rewrites.
             Some(TokenShape::Word)
         } else {
             match *piece {

@@ -18,8 +18,8 @@ use serde::Serialize;
 
 use crate::demo::DemoScene;
 use crate::evaluation::{
-    matched_objects, object_tally, object_tally_sized, objects_from_graph, objects_from_members, objects_from_regions,
-    score_labels, Smallest,
+    matched_objects, object_tally, object_tally_sized, objects_from_graph, objects_from_members,
+    objects_from_regions, score_labels, Smallest,
 };
 use crate::ids::{ClassId, RoomId};
 use crate::language::constraint::{Constraint, ConstraintKind, Count, Focus, Place, Relation};
