@@ -23,7 +23,9 @@ use sayso::turn::dialogue::Status;
 #[derive(Debug, clap::Args)]
 pub struct FixArgs {
     /// A demo scene name, an image file (PNG or JPEG), or a scene directory holding at least an image
-    /// (image.png, image.jpg or image.jpeg; optionally depth.png, camera.json and scene.json).
+    /// (image.png, image.jpg or image.jpeg; optionally depth.png, camera.json, scene.json, and the robot's
+    /// perception: scores.npy with scores_classes.txt, or label_map.png with label_map_classes.txt, and
+    /// detections.jsonl; a flag naming the same input wins).
     pub scene: String,
     /// An operator note; repeat for several, applied in order as one conversation.
     #[arg(long = "say", required = true)]
@@ -165,9 +167,22 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
     let capture = source.load()?;
     let classifier = load_classifier(&model_path(args.model.as_deref()), &taxonomy)?;
     let settings = CorrectionSettings::embedded()?;
+    let perception_args = match &source {
+        SceneSource::Directory(directory) => {
+            let (with_files, taken) = args.perception.with_scene_files(directory)?;
+            if !taken.is_empty() {
+                eprintln!(
+                    "sayso: the robot's perception from {}: {}",
+                    directory.display(),
+                    taken.join(", ")
+                );
+            }
+            with_files
+        }
+        _ => args.perception.clone(),
+    };
     let perception =
-        args.perception
-            .perception(capture.image.width, capture.image.height, &taxonomy)?;
+        perception_args.perception(capture.image.width, capture.image.height, &taxonomy)?;
     let prepared = prepare_perceived(capture, &perception, &taxonomy, &classifier)?;
     if !prepared.dropped_classes.is_empty() {
         eprintln!(
