@@ -87,6 +87,7 @@ fn fix_reads_scores_by_their_class_names_and_names_unknown_ones() {
         out.path(),
     );
     assert!(scored.status.success(), "{}", text(&scored.stderr));
+    assert!(!text(&scored.stderr).contains("no depth map"));
     let labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     assert!(block_share(&labels, class("sofa")) > 0.9);
     assert_eq!(at(&labels, 10, 10), class("wall"));
@@ -180,6 +181,12 @@ fn detections_come_as_json_lines_and_a_bad_line_is_named() {
         out.path(),
     );
     assert!(good.status.success(), "{}", text(&good.stderr));
+    // The built-in classifier on an image with no depth: the command says it labels such images poorly.
+    assert!(
+        text(&good.stderr).contains("no depth map: the built-in classifier"),
+        "{}",
+        text(&good.stderr)
+    );
     let bad = fix(
         &["--detections", &path("corner_detections_bad.jsonl")],
         out.path(),
@@ -339,6 +346,20 @@ fn a_scene_directory_brings_its_perception_to_fix_and_store() {
     let after = read_index_png(&example.join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     assert!(block_share(&before, class("sofa")) > 0.9);
     assert_eq!(after, fixed_labels, "fix and store + field-notes differ");
+
+    // A path that is not there is named as a path, not looked up as a demo scene.
+    let missing = run(&[
+        "fix".as_ref(),
+        "no/such/photo.jpg".as_ref(),
+        "--say".as_ref(),
+        "there is no sofa".as_ref(),
+    ]);
+    assert_eq!(missing.status.code(), Some(1));
+    assert!(
+        text(&missing.stderr).contains("no/such/photo.jpg is not a file or directory"),
+        "{}",
+        text(&missing.stderr)
+    );
 
     // A directory with both scores and a label map is refused, naming both.
     let both = tempfile::tempdir().unwrap();

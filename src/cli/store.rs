@@ -70,7 +70,11 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
     }
     let taxonomy = Taxonomy::embedded();
     if let Some(directory) = &args.scene {
-        uploads.push(scene_upload(directory, &args, &taxonomy)?);
+        let upload = scene_upload(directory, &args, &taxonomy)?;
+        if config.user_model.is_none() {
+            warn_without_depth(&upload);
+        }
+        uploads.push(upload);
     }
     if let Some(image) = &args.image {
         let read = |path: &PathBuf| {
@@ -87,6 +91,9 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
             ..SceneUpload::default()
         };
         args.perception.fill_upload(&mut upload, image, &taxonomy)?;
+        if config.user_model.is_none() {
+            warn_without_depth(&upload);
+        }
         uploads.push(upload);
     }
     if uploads.is_empty() {
@@ -141,4 +148,12 @@ fn scene_upload(
     }
     perception.fill_upload(&mut upload, &image, taxonomy)?;
     Ok(upload)
+}
+
+/// Says so when a scene without depth will be scored by the built-in classifier (the caller checks that
+/// no user model scores it instead).
+fn warn_without_depth(upload: &SceneUpload) {
+    if upload.depth_png.is_none() && upload.scores_npy.is_none() && upload.label_map_png.is_none() {
+        eprintln!("sayso: {}", super::fix::NO_DEPTH_WARNING);
+    }
 }
