@@ -546,7 +546,7 @@ pub fn object_summary(differences: &[ObjectDifference], taxonomy: &Taxonomy) -> 
 }
 
 /// Lines said once each in first-seen order, a repeated one with its count: "one removed (x2)".
-fn counted_once(lines: Vec<String>) -> Vec<String> {
+pub fn counted_once(lines: Vec<String>) -> Vec<String> {
     let mut counted: Vec<(String, usize)> = Vec::new();
     for line in lines {
         match counted.iter_mut().find(|(seen, _)| *seen == line) {

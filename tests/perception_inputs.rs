@@ -242,6 +242,13 @@ fn store_keeps_the_scores_and_field_notes_are_solved_on_them() {
     )
     .unwrap();
     assert_eq!(report["results"][0]["outcome"], "applied", "{report}");
+    // Each change is said once (counted when repeated), as fix says it.
+    let reason = report["results"][0]["reason"].as_str().unwrap();
+    let mut said: Vec<&str> = reason.split("; ").collect();
+    let count = said.len();
+    said.sort_unstable();
+    said.dedup();
+    assert_eq!(said.len(), count, "{reason}");
     // The exported example shows what the note was solved on: the stored scores' sofa (the built-in
     // classifier alone shows another class there), and after the note no sofa.
     let dataset = data.path().join("dataset");
