@@ -154,10 +154,11 @@ pub fn prepare_scene(
     prepare_loaded(source.load()?, classifier)
 }
 
-/// The superpixels of a capture as the pipeline builds them (scene defaults, with its depth map when it has
-/// one; the declared room is left to the solve).
+/// The superpixels of a capture as every entry point builds them (`SceneParams::for_image_size`, with its
+/// depth map when it has one; the declared room is left to the solve).
 pub fn superpixels_of(capture: &Capture) -> Result<Scene, PipelineError> {
-    Ok(capture.segment(None, &SceneParams::default())?)
+    let params = SceneParams::for_image_size(capture.image.width, capture.image.height);
+    Ok(capture.segment(None, &params)?)
 }
 
 /// Builds superpixels of an already loaded scene (a `Capture`, or a `DemoScene` whose ground truth is then
@@ -545,7 +546,7 @@ pub fn object_summary(differences: &[ObjectDifference], taxonomy: &Taxonomy) -> 
 }
 
 /// Lines said once each in first-seen order, a repeated one with its count: "one removed (x2)".
-fn counted_once(lines: Vec<String>) -> Vec<String> {
+pub fn counted_once(lines: Vec<String>) -> Vec<String> {
     let mut counted: Vec<(String, usize)> = Vec::new();
     for line in lines {
         match counted.iter_mut().find(|(seen, _)| *seen == line) {

@@ -1,7 +1,8 @@
 //! The robot's own perception on every entry point: per-pixel scores (NPY, written by numpy) with a class-name
 //! list in an order unlike the taxonomy's, a label map with its own class list, a user ONNX model with its
-//! config file, and detections in JSON Lines, through `fix`, `store` + `field-notes`, and the service (JSON
-//! and multipart upload, whose refusals state the body limit).
+//! config file, and detections in JSON Lines (boxes and masks), through `fix`, `store` + `field-notes`, and
+//! the service (JSON and multipart upload, whose refusals state the body limit); the same files in a scene
+//! directory, picked up by `fix DIR` and `store --scene DIR`.
 //!
 //! Owns: checks that each input reaches the solve and that bad input is refused naming what was wrong.
 //! Must not: check the solver's quality. Fixtures: `tests/fixtures/perception/make_perception_fixtures.py`
@@ -86,6 +87,7 @@ fn fix_reads_scores_by_their_class_names_and_names_unknown_ones() {
         out.path(),
     );
     assert!(scored.status.success(), "{}", text(&scored.stderr));
+    assert!(!text(&scored.stderr).contains("no depth map"));
     let labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     assert!(block_share(&labels, class("sofa")) > 0.9);
     assert_eq!(at(&labels, 10, 10), class("wall"));
@@ -179,6 +181,12 @@ fn detections_come_as_json_lines_and_a_bad_line_is_named() {
         out.path(),
     );
     assert!(good.status.success(), "{}", text(&good.stderr));
+    // The built-in classifier on an image with no depth: the command says it labels such images poorly.
+    assert!(
+        text(&good.stderr).contains("no depth map: the built-in classifier"),
+        "{}",
+        text(&good.stderr)
+    );
     let bad = fix(
         &["--detections", &path("corner_detections_bad.jsonl")],
         out.path(),
@@ -194,6 +202,7 @@ fn detections_come_as_json_lines_and_a_bad_line_is_named() {
 #[test]
 fn store_keeps_the_scores_and_field_notes_are_solved_on_them() {
     let data = tempfile::tempdir().unwrap();
+    // The detections file's second line has a mask (run lengths): the stored scene keeps it.
     let stored = Command::new(env!("CARGO_BIN_EXE_sayso"))
         .args(["store", "--data-dir"])
         .arg(data.path())
@@ -205,24 +214,6 @@ fn store_keeps_the_scores_and_field_notes_are_solved_on_them() {
         .arg(fixture("corner_score_classes.txt"))
         .arg("--detections")
         .arg(fixture("corner_detections.jsonl"))
-        .output()
-        .unwrap();
-    // The detections file's second line has a mask, which a stored scene cannot keep.
-    assert_eq!(stored.status.code(), Some(1));
-    assert!(
-        text(&stored.stderr).contains("mask"),
-        "{}",
-        text(&stored.stderr)
-    );
-    let stored = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["store", "--data-dir"])
-        .arg(data.path())
-        .arg("--image")
-        .arg(fixture("corner.png"))
-        .arg("--scores")
-        .arg(fixture("corner_scores.npy"))
-        .arg("--score-classes")
-        .arg(fixture("corner_score_classes.txt"))
         .output()
         .unwrap();
     assert!(stored.status.success(), "{}", text(&stored.stderr));
@@ -251,6 +242,13 @@ fn store_keeps_the_scores_and_field_notes_are_solved_on_them() {
     )
     .unwrap();
     assert_eq!(report["results"][0]["outcome"], "applied", "{report}");
+    // Each change is said once (counted when repeated), as fix says it.
+    let reason = report["results"][0]["reason"].as_str().unwrap();
+    let mut said: Vec<&str> = reason.split("; ").collect();
+    let count = said.len();
+    said.sort_unstable();
+    said.dedup();
+    assert_eq!(said.len(), count, "{reason}");
     // The exported example shows what the note was solved on: the stored scores' sofa (the built-in
     // classifier alone shows another class there), and after the note no sofa.
     let dataset = data.path().join("dataset");
@@ -267,6 +265,133 @@ fn store_keeps_the_scores_and_field_notes_are_solved_on_them() {
     let after = read_index_png(&example.join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     assert!(block_share(&before, class("sofa")) > 0.9);
     assert!(block_share(&after, class("sofa")) < 0.1);
+}
+
+fn run(arguments: &[&std::ffi::OsStr]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(arguments)
+        .output()
+        .unwrap()
+}
+
+/// A scene directory's perception files (`scene::files`: scores.npy, scores_classes.txt, detections.jsonl
+/// with a mask by file name and one by run lengths) are picked up by `fix DIR` and by `store --scene DIR`,
+/// and "there is no sofa" is one turn on both paths: the same labels come out of `fix` as out of `store` +
+/// `field-notes` + `export` (they once differed: the service cut a small image into fewer superpixels).
+#[test]
+fn a_scene_directory_brings_its_perception_to_fix_and_store() {
+    let scene = fixture("corner_scene");
+    let out = tempfile::tempdir().unwrap();
+    let fixed = run(&[
+        "fix".as_ref(),
+        scene.as_os_str(),
+        "--say".as_ref(),
+        "there is no sofa".as_ref(),
+        "--out".as_ref(),
+        out.path().as_os_str(),
+    ]);
+    assert!(fixed.status.success(), "{}", text(&fixed.stderr));
+    let said = text(&fixed.stderr);
+    assert!(
+        said.contains("scores.npy, scores_classes.txt, detections.jsonl"),
+        "{said}"
+    );
+    let summary = text(&fixed.stdout);
+    assert!(summary.contains("sofa: one removed"), "{summary}");
+    let fixed_labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(block_share(&fixed_labels, class("sofa")) < 0.1);
+
+    // Without a note that changes anything, the scores' sofa shows (the built-in classifier alone shows
+    // another class there).
+    let kept = run(&[
+        "fix".as_ref(),
+        scene.as_os_str(),
+        "--say".as_ref(),
+        "this is the living room".as_ref(),
+        "--out".as_ref(),
+        out.path().as_os_str(),
+    ]);
+    assert!(kept.status.success(), "{}", text(&kept.stderr));
+    let kept_labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(block_share(&kept_labels, class("sofa")) > 0.9);
+
+    let data = tempfile::tempdir().unwrap();
+    let stored = run(&[
+        "store".as_ref(),
+        "--data-dir".as_ref(),
+        data.path().as_os_str(),
+        "--scene".as_ref(),
+        scene.as_os_str(),
+    ]);
+    assert!(stored.status.success(), "{}", text(&stored.stderr));
+    assert!(text(&stored.stdout).starts_with("1\tcorner_scene"));
+    let notes = data.path().join("notes.jsonl");
+    std::fs::write(
+        &notes,
+        "{\"scene_id\": 1, \"text\": \"there is no sofa\"}\n",
+    )
+    .unwrap();
+    let applied = run(&[
+        "field-notes".as_ref(),
+        "--quiet".as_ref(),
+        "--data-dir".as_ref(),
+        data.path().as_os_str(),
+        notes.as_os_str(),
+    ]);
+    assert!(applied.status.success(), "{}", text(&applied.stderr));
+    let dataset = data.path().join("dataset");
+    let exported = run(&[
+        "export".as_ref(),
+        "--data-dir".as_ref(),
+        data.path().as_os_str(),
+        "--output".as_ref(),
+        dataset.as_os_str(),
+    ]);
+    assert!(exported.status.success(), "{}", text(&exported.stderr));
+    let example = dataset.join("example-000001");
+    let before = read_index_png(&example.join("labels_before.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let after = read_index_png(&example.join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    assert!(block_share(&before, class("sofa")) > 0.9);
+    assert_eq!(after, fixed_labels, "fix and store + field-notes differ");
+
+    // A path that is not there is named as a path, not looked up as a demo scene.
+    let missing = run(&[
+        "fix".as_ref(),
+        "no/such/photo.jpg".as_ref(),
+        "--say".as_ref(),
+        "there is no sofa".as_ref(),
+    ]);
+    assert_eq!(missing.status.code(), Some(1));
+    assert!(
+        text(&missing.stderr).contains("no/such/photo.jpg is not a file or directory"),
+        "{}",
+        text(&missing.stderr)
+    );
+
+    // A directory with both scores and a label map is refused, naming both.
+    let both = tempfile::tempdir().unwrap();
+    for name in ["image.png", "scores.npy"] {
+        std::fs::copy(scene.join(name), both.path().join(name)).unwrap();
+    }
+    std::fs::copy(
+        fixture("corner_label_map.png"),
+        both.path().join("label_map.png"),
+    )
+    .unwrap();
+    let refused = run(&[
+        "fix".as_ref(),
+        both.path().as_os_str(),
+        "--say".as_ref(),
+        "there is no sofa".as_ref(),
+        "--out".as_ref(),
+        out.path().as_os_str(),
+    ]);
+    assert_eq!(refused.status.code(), Some(1));
+    let message = text(&refused.stderr);
+    assert!(
+        message.contains("scores.npy") && message.contains("label_map.png"),
+        "{message}"
+    );
 }
 
 fn router(body_limit_bytes: usize) -> (tempfile::TempDir, axum::Router) {
@@ -415,6 +540,17 @@ async fn the_service_takes_perception_by_multipart_and_json_with_class_names() {
         "{refused}"
     );
 
+    // Detections with masks: run lengths in JSON Lines, and in the JSON route's mask_runs.
+    let (status, scene) = upload(
+        &app,
+        &[
+            ("image", read("corner.png")),
+            ("detections", read("corner_detections.jsonl")),
+        ],
+    )
+    .await;
+    assert_eq!(status, StatusCode::CREATED, "{scene}");
+
     let (status, refused) = upload(&app, &[("picture", read("corner.png"))]).await;
     assert_eq!(status, StatusCode::BAD_REQUEST);
     assert_eq!(refused["code"], "unknown_part");
@@ -434,6 +570,38 @@ async fn the_service_takes_perception_by_multipart_and_json_with_class_names() {
     let scene: serde_json::Value = serde_json::from_slice(&bytes).unwrap();
     assert_eq!(status, StatusCode::CREATED, "{scene}");
     assert!(block_share(&labels_of(&app, &scene).await, class("sofa")) > 0.9);
+
+    let masked = |runs: serde_json::Value| {
+        let body = serde_json::json!({
+            "image_base64": base64(read("corner.png")),
+            "detections": [{"class": "sofa", "box": {"x0": 30, "y0": 38, "x1": 66, "y1": 60},
+                            "score": 0.8, "mask_runs": runs}],
+        });
+        Request::post("/v1/scenes")
+            .header("content-type", "application/json")
+            .body(Body::from(body.to_string()))
+            .unwrap()
+    };
+    let runs: Vec<u64> = std::iter::once(38 * 96 + 30)
+        .chain((0..21).flat_map(|_| [36, 60]))
+        .chain([36, 72 * 96 - (38 * 96 + 30) - 22 * 96 + 60])
+        .collect();
+    assert_eq!(runs.iter().sum::<u64>(), 96 * 72);
+    let good = serde_json::json!({"width": 96, "height": 72, "runs": runs});
+    let (status, bytes) = send(&app, masked(good)).await;
+    assert_eq!(status, StatusCode::CREATED, "{}", text(&bytes));
+    let small = serde_json::json!({"width": 48, "height": 36, "runs": [1728]});
+    let (status, bytes) = send(&app, masked(small)).await;
+    assert_eq!(status, StatusCode::UNPROCESSABLE_ENTITY);
+    let refused: serde_json::Value = serde_json::from_slice(&bytes).unwrap();
+    assert_eq!(refused["code"], "bad_mask", "{refused}");
+    assert!(
+        refused["message"]
+            .as_str()
+            .unwrap()
+            .contains("detections[0].mask_runs is 48x36 but the image is 96x72"),
+        "{refused}"
+    );
 }
 
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]

@@ -1,6 +1,7 @@
 //! Builds scenes from images and scene directories and checks their parts and errors.
 //!
-//! Owns: tests of `Scene::from_image`, `load_scene_dir`, `load_label_map` and `segment_features`.
+//! Owns: tests of `Scene::from_image`, `SceneParams::for_image_size`, `load_scene_dir`, `load_label_map` and
+//! `segment_features`.
 //! Must not: depend on demo scenes being present; it draws its own small images or reads committed fixtures.
 
 use std::path::{Path, PathBuf};
@@ -479,4 +480,52 @@ proptest::proptest! {
             }
         }
     }
+}
+
+/// The segment count scales with the image area (segments keep their reference size of about 128 pixels),
+/// with a floor for tiny images and the reference count as the ceiling; every entry point cuts this way.
+#[test]
+fn the_segment_count_scales_with_the_image_area() {
+    let full = SceneParams::default();
+    let reference = full.superpixels.target_segments();
+    assert_eq!(SceneParams::for_image_size(640, 480), full);
+    assert_eq!(SceneParams::for_image_size(1280, 960), full);
+    let quarter = SceneParams::for_image_size(320, 240);
+    assert_eq!(quarter.superpixels.target_segments() * 4, reference);
+    assert_eq!(quarter.segments_per_region * 4, full.segments_per_region);
+    // 96 x 72 = 6912 pixels: 2400 * 6912 / 307200 = 54 segments, one coarse region per 0.54 (so 1).
+    let small = SceneParams::for_image_size(96, 72);
+    assert_eq!(small.superpixels.target_segments(), 54);
+    assert_eq!(small.segments_per_region, 1);
+    // 32 x 8: the area alone gives 2; the floor is 16 segments.
+    assert_eq!(
+        SceneParams::for_image_size(32, 8)
+            .superpixels
+            .target_segments(),
+        16
+    );
+    // 4 x 4: at most one segment per 4 pixels; 1 x 1: one.
+    assert_eq!(
+        SceneParams::for_image_size(4, 4)
+            .superpixels
+            .target_segments(),
+        4
+    );
+    assert_eq!(
+        SceneParams::for_image_size(1, 1)
+            .superpixels
+            .target_segments(),
+        1
+    );
+    // The compactness and iterations stay the scene's.
+    assert_eq!(
+        small.superpixels.with_target_segments(reference).unwrap(),
+        full.superpixels
+    );
+
+    // On a real small image the pipeline's superpixels are about as many as the rule asks, not 2400.
+    let capture = sayso::scene::Capture::from_image("small room", small_room(96, 72));
+    let scene = sayso::pipeline::superpixels_of(&capture).unwrap();
+    let count = scene.segment_count();
+    assert!((40..=70).contains(&count), "{count} segments on 96x72");
 }

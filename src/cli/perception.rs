@@ -2,8 +2,9 @@
 //! names, a label map with its own class list, a user ONNX model's config, detections in JSON Lines. Large
 //! inputs go by file path. The formats are described in `docs/perception.md`.
 //!
-//! Owns: the flags and reading the files they name into `sayso::unaries::perception::Perception` (for
-//! `fix`) or into the parts of a registration (for `store`).
+//! Owns: the flags, filling in what they leave out from a scene directory's perception files
+//! (`sayso::scene::files`), and reading the files into `sayso::unaries::perception::Perception` (for `fix`)
+//! or into the parts of a registration (for `store`).
 //! Must not: turn scores into unaries or check class names itself; the library does.
 
 use std::path::{Path, PathBuf};
@@ -11,7 +12,9 @@ use std::sync::Arc;
 
 use anyhow::Context;
 use sayso::raster::{read_index_png, DEFAULT_PIXEL_LIMIT};
+use sayso::scene::files::perception_files;
 use sayso::service::coordinator::SceneUpload;
+use sayso::service::wire::{DetectionIn, MaskRunsIn, PixelBox};
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::byo::SynonymTable;
 use sayso::unaries::byo_detections::parse_detections;
@@ -76,6 +79,54 @@ fn class_list(path: &Option<PathBuf>) -> anyhow::Result<Option<Vec<String>>> {
 }
 
 impl PerceptionArgs {
+    /// These flags with the perception files of a scene directory (`sayso::scene::files`) filling in what
+    /// no flag names: its scores (with their class list) or its label map (with its), unless a flag names a
+    /// score source, and its detections unless `--detections` is given. A directory holding both scores and
+    /// a label map is refused. Returns the names of the files taken, for the caller to say.
+    pub fn with_scene_files(
+        &self,
+        directory: &Path,
+    ) -> anyhow::Result<(PerceptionArgs, Vec<String>)> {
+        let found = perception_files(directory);
+        let mut args = self.clone();
+        let mut taken = Vec::new();
+        let mut take = |path: &Option<PathBuf>| {
+            if let Some(path) = path {
+                taken.push(
+                    path.file_name()
+                        .map_or(String::new(), |name| name.to_string_lossy().into_owned()),
+                );
+            }
+            path.clone()
+        };
+        let flagged =
+            self.scores.is_some() || self.label_map.is_some() || self.user_model.is_some();
+        if !flagged {
+            match (&found.scores, &found.label_map) {
+                (Some(scores), Some(map)) => anyhow::bail!(
+                    "{} holds both {} and {}: a scene takes one score source; remove one, or name one with \
+                     --scores or --label-map",
+                    directory.display(),
+                    scores.display(),
+                    map.display()
+                ),
+                (Some(_), None) => {
+                    args.scores = take(&found.scores);
+                    args.score_classes = take(&found.scores_classes);
+                }
+                (None, Some(_)) => {
+                    args.label_map = take(&found.label_map);
+                    args.label_classes = take(&found.label_map_classes);
+                }
+                (None, None) => {}
+            }
+        }
+        if self.detections.is_none() {
+            args.detections = take(&found.detections);
+        }
+        Ok((args, taken))
+    }
+
     fn kind(&self) -> Option<ScoreKind> {
         self.score_kind.map(|kind| match kind {
             KindArg::Logits => ScoreKind::Logits,
@@ -137,8 +188,15 @@ impl PerceptionArgs {
     }
 
     /// Puts the named files into a registration, as an upload would carry them. A user model is run here
-    /// and its scores registered (with its class names), so the stored scene keeps them.
-    pub fn fill_upload(&self, upload: &mut SceneUpload, image: &Path) -> anyhow::Result<()> {
+    /// and its scores registered (with its class names), so the stored scene keeps them; detections are
+    /// read here (masks by file name are relative to the detections file) and registered with their masks
+    /// as run lengths.
+    pub fn fill_upload(
+        &self,
+        upload: &mut SceneUpload,
+        image: &Path,
+        taxonomy: &Taxonomy,
+    ) -> anyhow::Result<()> {
         let read = |path: &Path| {
             std::fs::read(path).with_context(|| format!("reading {}", path.display()))
         };
@@ -150,19 +208,52 @@ impl PerceptionArgs {
             upload.label_map_png = Some(read(path)?);
             upload.label_map_classes = class_list(&self.label_classes)?;
         }
-        if let Some(path) = &self.user_model {
+        let rgb = if self.user_model.is_some() || self.detections.is_some() {
+            Some(sayso::raster::read_rgb_image(image, DEFAULT_PIXEL_LIMIT)?)
+        } else {
+            None
+        };
+        if let (Some(path), Some(rgb)) = (&self.user_model, &rgb) {
             let model = UserModel::load(path)
                 .with_context(|| format!("loading the user model {}", path.display()))?;
-            let rgb = sayso::raster::read_rgb_image(image, DEFAULT_PIXEL_LIMIT)?;
-            let scores = model.scores_for_image(&rgb)?;
+            let scores = model.scores_for_image(rgb)?;
             let shape = scores.shape().to_vec();
             let values: Vec<f32> = scores.iter().map(|&value| value as f32).collect();
             upload.scores_npy = Some(encode_npy_f32(&shape, &values));
             upload.scores_classes = Some(model.config().classes.clone());
             upload.scores_kind = Some(model.config().output);
         }
-        if let Some(path) = &self.detections {
-            upload.detections_jsonl = Some(read_text(path)?);
+        if let (Some(path), Some(rgb)) = (&self.detections, &rgb) {
+            let base = path.parent().unwrap_or(Path::new("."));
+            let parsed = parse_detections(
+                &read_text(path)?,
+                Some(base),
+                rgb.width,
+                rgb.height,
+                taxonomy,
+                &SynonymTable::embedded(taxonomy),
+            )
+            .with_context(|| format!("reading {}", path.display()))?;
+            upload
+                .detections
+                .extend(parsed.into_iter().map(|detection| DetectionIn {
+                    class: taxonomy.class_name(detection.class).to_string(),
+                    bbox: PixelBox {
+                        x0: detection.bbox.x0,
+                        y0: detection.bbox.y0,
+                        x1: detection.bbox.x1,
+                        y1: detection.bbox.y1,
+                    },
+                    score: detection.score,
+                    mask_runs: detection.mask.map(|mask| {
+                        let runs = mask.runs();
+                        MaskRunsIn {
+                            width: runs.width,
+                            height: runs.height,
+                            runs: runs.runs,
+                        }
+                    }),
+                }));
         }
         upload.drop_unknown_classes = self.drop_unknown_classes;
         Ok(())

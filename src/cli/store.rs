@@ -4,15 +4,19 @@
 //! Owns: the command's flags and its output (one `scene id<TAB>name` line per stored scene).
 //! Must not: check or decode uploads itself; the coordinator's registration does, as for the HTTP route.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use anyhow::Context;
+use sayso::raster::{encode_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
+use sayso::scene::files::image_file;
+use sayso::scene::load_capture;
 use sayso::service::coordinator::SceneUpload;
+use sayso::taxonomy::Taxonomy;
 
 use super::serve::{open_coordinator, ServiceFlags};
 
-/// Register demo scenes by name, or a scene from an image (PNG or JPEG) with an optional depth PNG and the
-/// robot's own perception, in the correction log; prints each new scene id.
+/// Register demo scenes by name, a scene from an image (PNG or JPEG) with an optional depth PNG and the
+/// robot's own perception, or a scene directory, in the correction log; prints each new scene id.
 #[derive(Debug, clap::Args)]
 pub struct StoreArgs {
     #[command(flatten)]
@@ -23,6 +27,12 @@ pub struct StoreArgs {
     /// A colour image, PNG or JPEG, to register (instead of --demo).
     #[arg(long, conflicts_with = "demos")]
     pub image: Option<PathBuf>,
+    /// A scene directory to register (instead of --demo or --image): its image, depth (scaled by
+    /// camera.json's depth unit) and name, and the robot's perception files in it (scores.npy with
+    /// scores_classes.txt, or label_map.png with label_map_classes.txt, and detections.jsonl; a flag naming
+    /// the same input wins). The layout is `fix DIR`'s.
+    #[arg(long, value_name = "DIR", conflicts_with_all = ["demos", "image", "depth"])]
+    pub scene: Option<PathBuf>,
     /// A 16-bit depth PNG in millimetres matching --image.
     #[arg(long, requires = "image")]
     pub depth: Option<PathBuf>,
@@ -53,8 +63,18 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
         || args.perception.label_map.is_some()
         || args.perception.user_model.is_some()
         || args.perception.detections.is_some();
-    if brings_perception && args.image.is_none() {
-        anyhow::bail!("--scores, --label-map, --user-model and --detections go with an --image");
+    if brings_perception && args.image.is_none() && args.scene.is_none() {
+        anyhow::bail!(
+            "--scores, --label-map, --user-model and --detections go with an --image or a --scene"
+        );
+    }
+    let taxonomy = Taxonomy::embedded();
+    if let Some(directory) = &args.scene {
+        let upload = scene_upload(directory, &args, &taxonomy)?;
+        if config.user_model.is_none() {
+            warn_without_depth(&upload);
+        }
+        uploads.push(upload);
     }
     if let Some(image) = &args.image {
         let read = |path: &PathBuf| {
@@ -70,11 +90,14 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
             }),
             ..SceneUpload::default()
         };
-        args.perception.fill_upload(&mut upload, image)?;
+        args.perception.fill_upload(&mut upload, image, &taxonomy)?;
+        if config.user_model.is_none() {
+            warn_without_depth(&upload);
+        }
         uploads.push(upload);
     }
     if uploads.is_empty() {
-        anyhow::bail!("name at least one --demo scene or an --image to store");
+        anyhow::bail!("name at least one --demo scene, an --image or a --scene to store");
     }
     for upload in uploads {
         let created = coordinator
@@ -83,4 +106,54 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
         println!("{}\t{}", created.scene_id, created.name);
     }
     Ok(())
+}
+
+/// A scene directory as a registration: the capture as `fix DIR` reads it (its depth re-encoded in
+/// millimetres) and its perception files under the flags.
+fn scene_upload(
+    directory: &Path,
+    args: &StoreArgs,
+    taxonomy: &Taxonomy,
+) -> anyhow::Result<SceneUpload> {
+    let capture = load_capture(directory, DEFAULT_PIXEL_LIMIT)
+        .with_context(|| format!("reading the scene {}", directory.display()))?;
+    let image = image_file(directory)
+        .ok_or_else(|| anyhow::anyhow!("{} holds no image", directory.display()))?;
+    let depth_png = match &capture.depth {
+        Some(depth) => Some(
+            encode_index_png(&IndexImage {
+                width: depth.width,
+                height: depth.height,
+                values: depth.millimetres.clone(),
+            })
+            .map_err(|message| anyhow::anyhow!("encoding the depth map: {message}"))?,
+        ),
+        None => None,
+    };
+    let mut upload = SceneUpload {
+        image_png: Some(
+            std::fs::read(&image).with_context(|| format!("reading {}", image.display()))?,
+        ),
+        depth_png,
+        name: args.name.clone().or(Some(capture.name.clone())),
+        ..SceneUpload::default()
+    };
+    let (perception, taken) = args.perception.with_scene_files(directory)?;
+    if !taken.is_empty() {
+        eprintln!(
+            "sayso: the robot's perception from {}: {}",
+            directory.display(),
+            taken.join(", ")
+        );
+    }
+    perception.fill_upload(&mut upload, &image, taxonomy)?;
+    Ok(upload)
+}
+
+/// Says so when a scene without depth will be scored by the built-in classifier (the caller checks that
+/// no user model scores it instead).
+fn warn_without_depth(upload: &SceneUpload) {
+    if upload.depth_png.is_none() && upload.scores_npy.is_none() && upload.label_map_png.is_none() {
+        eprintln!("sayso: {}", super::fix::NO_DEPTH_WARNING);
+    }
 }

@@ -149,6 +149,27 @@ pub fn changed_regions(before: &[u16], after: &[u16], width: u32) -> Vec<Changed
     regions
 }
 
+/// The smallest text size a change's tag is drawn at to fit a narrow picture.
+const SMALLEST_TAG_SIZE: f32 = 7.0;
+
+/// A change's tag, "New (was Old)", and the text size that fits it in a picture `width` pixels wide with
+/// its 8 pixels of margin: `text_size`, else smaller (down to `SMALLEST_TAG_SIZE`), else the new class's
+/// name alone at that size.
+fn fitted_tag(new: &str, old: &str, text_size: f32, width: u32) -> (String, f32) {
+    let text = format!("{new} (was {old})");
+    let room = width.saturating_sub(8);
+    let wide = text_width(&text, text_size);
+    if wide <= room {
+        return (text, text_size);
+    }
+    let size = (text_size * room as f32 / wide.max(1) as f32).max(SMALLEST_TAG_SIZE);
+    if text_width(&text, size) <= room {
+        (text, size)
+    } else {
+        (new.to_string(), size)
+    }
+}
+
 /// Rings every pixel region where `before` and `after` differ (a white line two pixels wide on the border,
 /// a dark line outside it) and names the larger ones "New (was Old)" on a dark tag above their box.
 pub fn mark_changes(
@@ -173,18 +194,19 @@ pub fn mark_changes(
     }
     let regions = changed_regions(&before[..count], &after[..count], canvas.width);
     let smallest = (count as f64 * SMALLEST_NAMED_SHARE).max(1.0) as u64;
-    let tag_height = line_height(text_size) + 4;
     for region in regions
         .iter()
         .filter(|region| region.pixels >= smallest)
         .take(MOST_NAMED)
     {
-        let text = format!(
-            "{} (was {})",
-            display_name(taxonomy.class_name(region.to)),
-            display_name(taxonomy.class_name(region.from))
+        let (text, size) = fitted_tag(
+            &display_name(taxonomy.class_name(region.to)),
+            &display_name(taxonomy.class_name(region.from)),
+            text_size,
+            canvas.width,
         );
-        let tag_width = text_width(&text, text_size) + 8;
+        let tag_height = line_height(size) + 4;
+        let tag_width = text_width(&text, size) + 8;
         let x = i64::from(region.bbox[0])
             .min(i64::from(canvas.width) - i64::from(tag_width))
             .max(0);
@@ -202,7 +224,26 @@ pub fn mark_changes(
                 canvas.set(tx as u32, ty as u32, CHANGE_EDGE);
             }
         }
-        draw_text(canvas, x + 4, y + 2, &text, text_size, CHANGE_RING);
+        draw_text(canvas, x + 4, y + 2, &text, size, CHANGE_RING);
     }
     regions
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_change_tag_fits_a_narrow_picture() {
+        // Wide enough: the tag as it is.
+        let (text, size) = fitted_tag("Floor", "Sofa", 15.0, 640);
+        assert_eq!((text.as_str(), size), ("Floor (was Sofa)", 15.0));
+        // A 96-pixel picture (the perception fixture's): smaller text, whole tag inside.
+        let (text, size) = fitted_tag("Floor", "Sofa", 15.0, 96);
+        assert!((SMALLEST_TAG_SIZE..15.0).contains(&size), "{size}");
+        assert!(text_width(&text, size) + 8 <= 96, "{text} at {size}");
+        // Too narrow even at the smallest size: the new class alone.
+        let (text, size) = fitted_tag("Television", "Picture frame", 15.0, 60);
+        assert_eq!((text.as_str(), size), ("Television", SMALLEST_TAG_SIZE));
+    }
 }

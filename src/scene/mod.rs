@@ -58,6 +58,47 @@ impl Default for SceneParams {
     }
 }
 
+/// The image size `SCENE_SEGMENTS` was chosen for: 640 x 480 pixels.
+pub const REFERENCE_PIXELS: u64 = 640 * 480;
+
+/// The fewest segments a scene aims at, however small its image (a tiny image has at most one segment per
+/// `SMALLEST_SEGMENT_PIXELS` pixels).
+pub const MIN_SCENE_SEGMENTS: u32 = 16;
+
+/// Pixels per segment at least, for images too small to reach `MIN_SCENE_SEGMENTS` otherwise.
+pub const SMALLEST_SEGMENT_PIXELS: u64 = 4;
+
+impl SceneParams {
+    /// The settings for a `width x height` image. Rule: the segments keep the size they have at the
+    /// reference size (`SCENE_SEGMENTS` on `REFERENCE_PIXELS`, about 128 pixels each), so the count scales
+    /// with the image area: `round(SCENE_SEGMENTS * area / REFERENCE_PIXELS)`, at least
+    /// `MIN_SCENE_SEGMENTS` (or one per `SMALLEST_SEGMENT_PIXELS` pixels on a tinier image) and at most
+    /// `SCENE_SEGMENTS` (a larger image gets larger segments, which bounds the solve's time). Fixing the
+    /// superpixel size rather than the count is common practice with SLIC, whose grid interval
+    /// `S = sqrt(area / count)` is the parameter (from memory: VLFeat's `vl_slic` takes a region size). The
+    /// coarse level keeps its share of the image: `segments_per_region` scales with the count (at least 1).
+    /// Every entry point (`fix`, `store`, `field-notes`, the service) cuts a scene with these settings.
+    pub fn for_image_size(width: u32, height: u32) -> SceneParams {
+        let full = SceneParams::default();
+        let area = u64::from(width) * u64::from(height);
+        let reference = u64::from(full.superpixels.target_segments());
+        let scaled = (reference * area + REFERENCE_PIXELS / 2) / REFERENCE_PIXELS;
+        let floor = u64::from(MIN_SCENE_SEGMENTS).min(area / SMALLEST_SEGMENT_PIXELS);
+        let target = scaled.max(floor).clamp(1, reference);
+        if target == reference {
+            return full;
+        }
+        let per_region = (u64::from(full.segments_per_region) * target / reference).max(1);
+        SceneParams {
+            superpixels: full
+                .superpixels
+                .with_target_segments(target as u32)
+                .unwrap_or(full.superpixels),
+            segments_per_region: per_region as u32,
+        }
+    }
+}
+
 /// An axis-aligned box in pixel coordinates: `x0..x1` columns and `y0..y1` rows (end exclusive).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
 pub struct BoundingBox {

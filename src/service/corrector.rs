@@ -20,13 +20,17 @@ use crate::turn::OpenQuestion;
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
 pub struct SceneHandle(pub i64);
 
-/// A detection box handed in with a scene.
+/// A detection handed in with a scene: a box, and optionally the object's mask.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Detection {
     pub class: ClassId,
     pub bbox: BoundingBox,
     /// 0..1.
     pub score: f32,
+    /// The object's pixels inside the box, as run lengths over the whole image (checked against the
+    /// image's size at registration).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub mask: Option<crate::unaries::byo_detections::MaskRuns>,
 }
 
 /// How the robot's own scores and label map sent with a scene name their classes (a class name is a

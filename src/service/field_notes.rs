@@ -200,12 +200,16 @@ fn apply_one(
         Ok(reply) => {
             let outcome = outcome_of(reply.status);
             let reason = match outcome {
-                NoteOutcome::Applied => reply
-                    .changes
-                    .iter()
-                    .map(|change| change.description.clone())
-                    .collect::<Vec<_>>()
-                    .join("; "),
+                // A change said many times ("object removed: sofa" for six pieces) is said once, counted,
+                // as `fix` says it.
+                NoteOutcome::Applied => crate::pipeline::counted_once(
+                    reply
+                        .changes
+                        .iter()
+                        .map(|change| change.description.clone())
+                        .collect(),
+                )
+                .join("; "),
                 NoteOutcome::NeedsConfirmation => reply
                     .pending
                     .as_ref()

@@ -220,7 +220,8 @@ pub async fn register_scene(
 /// Register a scene from a multipart upload (`multipart/form-data`), for parts too large for base64 in
 /// JSON. Parts: `image` (PNG or JPEG) or `demo`; optional `depth` (16-bit PNG, millimetres), `scores` (NPY),
 /// `scores_classes` (one class name per line), `label_map` (index PNG), `label_map_classes` (one name per
-/// line), `detections` (JSON Lines: `{"class": .., "box": [x0, y0, x1, y1], "score": ..}` per line),
+/// line), `detections` (JSON Lines: `{"class": .., "box": [x0, y0, x1, y1], "score": ..}` per line, with
+/// an optional `"mask_runs": {"width": .., "height": .., "runs": [..]}`; docs/perception.md),
 /// `name`, `room`, `drop_unknown_classes` (`true` or `false`). The whole body is limited by
 /// `body_limit_bytes` (default 64 MiB: a 640x480 float32 score map of 41 classes fits).
 #[utoipa::path(post, path = "/v1/scenes/upload", tag = "scenes", security(("bearer" = [])),

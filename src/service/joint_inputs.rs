@@ -2,7 +2,8 @@
 //!
 //! Owns: `PreparedInput` (superpixels, per-segment unaries, detections), the choice of unary source (NPY
 //! scores, else a label map, else the built-in classifier; each read with its class names through
-//! `crate::unaries::perception`, as `fix` reads them), and the digest that names a registration.
+//! `crate::unaries::perception`, as `fix` reads them; detections with their masks), and the digest that
+//! names a registration. Superpixels are cut with `SceneParams::for_image_size`, as on the command line.
 //! Must not: parse utterances, solve, or know about the service's storage; the caller caches.
 
 use sha2::{Digest, Sha256};
@@ -11,6 +12,7 @@ use crate::hypotheses::Detection as HypothesisDetection;
 use crate::scene::{Scene, SceneParams};
 use crate::taxonomy::Taxonomy;
 use crate::unaries::byo::PerceptionError;
+use crate::unaries::byo_detections::DetectionMask;
 use crate::unaries::byo_npy::parse_npy;
 use crate::unaries::byo_pixel_scores::ScoreLayout;
 use crate::unaries::perception::{LabelMap, Perception, PixelScores, ScoreSource};
@@ -65,6 +67,10 @@ pub fn input_digest(input: &SceneInput) -> String {
             detection.score.to_bits()
         );
         part("detection", text.as_bytes());
+        if let Some(mask) = &detection.mask {
+            let runs: Vec<u8> = mask.runs.iter().flat_map(|run| run.to_le_bytes()).collect();
+            part("mask", &[&mask.width.to_le_bytes()[..], &runs].concat());
+        }
     }
     if let Some(room) = input.room {
         part("room", &room.0.to_le_bytes());
@@ -95,26 +101,6 @@ fn bad(field: &str, message: impl Into<String>) -> CorrectorError {
     }
 }
 
-/// Pixels per superpixel at least, for images too small for the default segment count (our own choice).
-const SMALLEST_SEGMENT_PIXELS: u64 = 4;
-
-/// The default scene settings, with fewer superpixels on images too small for the default count, and
-/// proportionally fewer per coarse region (at least one), so the coarse level keeps its share of the image.
-fn scene_params(width: u32, height: u32) -> Result<SceneParams, CorrectorError> {
-    let mut params = SceneParams::default();
-    let default_target = params.superpixels.target_segments() as u64;
-    let fits = (width as u64 * height as u64 / SMALLEST_SEGMENT_PIXELS).max(1);
-    if fits < default_target {
-        params.superpixels = params
-            .superpixels
-            .with_target_segments(fits as u32)
-            .map_err(|error| bad("image_png_base64", error.to_string()))?;
-        let per_region = (params.segments_per_region as u64 * fits / default_target).max(1);
-        params.segments_per_region = per_region as u32;
-    }
-    Ok(params)
-}
-
 /// Builds superpixels and unaries for a registration, through the same `Perception` as `fix`.
 pub fn prepare_input(
     input: &SceneInput,
@@ -126,7 +112,7 @@ pub fn prepare_input(
         input.image.clone(),
         input.depth.clone(),
         input.room,
-        &scene_params(input.image.width, input.image.height)?,
+        &SceneParams::for_image_size(input.image.width, input.image.height),
     )
     .map_err(|error| bad("image_png_base64", error.to_string()))?;
     let (scores, field) = if let Some(bytes) = &input.scores_npy {
@@ -150,18 +136,33 @@ pub fn prepare_input(
     } else {
         (ScoreSource::BuiltIn, "image_base64")
     };
+    let mut detections = Vec::with_capacity(input.detections.len());
+    for (index, detection) in input.detections.iter().enumerate() {
+        let mask = match &detection.mask {
+            Some(runs) => {
+                let refuse = |message: String| {
+                    bad("detections", format!("detection {}: {message}", index + 1))
+                };
+                if (runs.width, runs.height) != (input.image.width, input.image.height) {
+                    return Err(refuse(format!(
+                        "mask is {}x{} but the image is {}x{}",
+                        runs.width, runs.height, input.image.width, input.image.height
+                    )));
+                }
+                Some(DetectionMask::from_runs(runs).map_err(refuse)?)
+            }
+            None => None,
+        };
+        detections.push(HypothesisDetection {
+            class: detection.class,
+            bbox: detection.bbox,
+            score: detection.score,
+            mask,
+        });
+    }
     let perception = Perception {
         scores,
-        detections: input
-            .detections
-            .iter()
-            .map(|detection| HypothesisDetection {
-                class: detection.class,
-                bbox: detection.bbox,
-                score: detection.score,
-                mask: None,
-            })
-            .collect(),
+        detections,
         drop_unknown_classes: input.classes.drop_unknown,
     };
     let perceived = perception
@@ -185,27 +186,76 @@ pub fn prepare_input(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::raster::{IndexImage, RgbImage};
+    use crate::scene::BoundingBox;
+    use crate::unaries::byo_detections::MaskRuns;
 
+    /// A detection's mask reaches the solve's detections, and a mask changes the registration's digest.
     #[test]
-    fn small_images_get_fewer_segments_and_smaller_coarse_regions() {
-        let full = SceneParams::default();
-        let same = scene_params(640, 480).unwrap();
-        assert_eq!(
-            same.superpixels.target_segments(),
-            full.superpixels.target_segments()
+    fn detection_masks_reach_the_solve_and_the_digest() {
+        let taxonomy = Taxonomy::embedded();
+        let classifier = crate::pipeline::load_classifier(
+            std::path::Path::new(crate::pipeline::COMPILED_MODEL_PATH),
+            &taxonomy,
+        )
+        .unwrap();
+        let mug = taxonomy.class_by_name("mug").unwrap().id;
+        let wall = taxonomy.class_by_name("wall").unwrap().id;
+        // 8 x 4: the mask is the box's left half only.
+        let mut inside = vec![false; 32];
+        for y in 1..3 {
+            for x in 2..4 {
+                inside[y * 8 + x] = true;
+            }
+        }
+        let runs = DetectionMask {
+            width: 8,
+            height: 4,
+            inside: inside.clone(),
+        }
+        .runs();
+        let boxed = super::super::corrector::Detection {
+            class: mug,
+            bbox: BoundingBox {
+                x0: 2,
+                y0: 1,
+                x1: 6,
+                y1: 3,
+            },
+            score: 0.8,
+            mask: None,
+        };
+        let mut input = SceneInput {
+            name: "shelf".into(),
+            image: RgbImage::filled(8, 4, [200, 190, 170]),
+            depth: None,
+            scores_npy: None,
+            label_map: Some(IndexImage {
+                width: 8,
+                height: 4,
+                values: vec![wall.0; 32],
+            }),
+            detections: vec![boxed.clone()],
+            room: None,
+            classes: PerceptionClasses::default(),
+        };
+        let box_digest = input_digest(&input);
+        input.detections[0].mask = Some(runs);
+        assert_ne!(input_digest(&input), box_digest);
+        let prepared = prepare_input(&input, &taxonomy, &classifier).unwrap();
+        let mask = prepared.detections[0].mask.as_ref().unwrap();
+        assert_eq!(mask.inside, inside);
+
+        input.detections[0].mask = Some(MaskRuns {
+            width: 8,
+            height: 4,
+            runs: vec![3, 2],
+        });
+        let refused = prepare_input(&input, &taxonomy, &classifier).err().unwrap();
+        assert!(
+            refused.to_string().contains("detection 1")
+                && refused.to_string().contains("mask runs"),
+            "{refused}"
         );
-        assert_eq!(same.segments_per_region, full.segments_per_region);
-        // 32 x 8 pixels: 64 segments of 4 pixels; the regions keep their share of the image (at least 1).
-        let tiny = scene_params(32, 8).unwrap();
-        assert_eq!(tiny.superpixels.target_segments(), 64);
-        assert_eq!(tiny.segments_per_region, 1);
-        // Half the default count: half as many segments per region.
-        let pixels = full.superpixels.target_segments() as u64 * SMALLEST_SEGMENT_PIXELS / 2;
-        let half = scene_params(pixels as u32, 1).unwrap();
-        assert_eq!(
-            half.superpixels.target_segments() * 2,
-            full.superpixels.target_segments()
-        );
-        assert_eq!(half.segments_per_region * 2, full.segments_per_region);
     }
 }

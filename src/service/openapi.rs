@@ -61,7 +61,7 @@ configured, send `Authorization: Bearer <token>`."
         handlers::redo,
     ),
     components(schemas(
-        wire::ErrorBody, wire::PixelBox, wire::DetectionIn, wire::RegisterSceneRequest,
+        wire::ErrorBody, wire::PixelBox, wire::DetectionIn, wire::MaskRunsIn, wire::RegisterSceneRequest,
         wire::SceneCreated, wire::ObjectOut, wire::SceneGraphOut, wire::OpenConversationRequest,
         wire::ConversationOut, wire::FocusIn, wire::UtteranceRequest, wire::TextSpan,
         wire::ConstraintOut, wire::ChangeOut, wire::UnmetOut, wire::TurnStatus, wire::PendingOut,

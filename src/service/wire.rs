@@ -75,6 +75,20 @@ pub struct DetectionIn {
     /// 0..1.
     #[schema(minimum = 0.0, maximum = 1.0)]
     pub score: f32,
+    /// The object's mask over the whole image, as run lengths (see `MaskRunsIn`); without it the box is
+    /// the object.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub mask_runs: Option<MaskRunsIn>,
+}
+
+/// A binary mask the image's size as run lengths: row-major, alternating outside and inside, starting
+/// with outside (a mask whose first pixel is inside starts with 0), summing to `width x height`.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
+#[serde(deny_unknown_fields)]
+pub struct MaskRunsIn {
+    pub width: u32,
+    pub height: u32,
+    pub runs: Vec<u64>,
 }
 
 /// Register a scene: either `demo` (a demo scene's name) or `image_base64` with optional extras; one of

@@ -1,7 +1,7 @@
 //! Object detections from a robot's own detector, parsed into plain `Detection` values that seed object
 //! hypotheses for the solver.
 //!
-//! Owns: `Detection`, `DetectionMask`, reading a detections file in JSON Lines, one detection per line
+//! Owns: `Detection`, `DetectionMask` and its run lengths (`MaskRuns`), reading a detections file in JSON Lines, one detection per line
 //! (blank lines and lines starting with `#` are skipped):
 //! `{"class": "mug", "box": [x0, y0, x1, y1], "score": 0.9}` where the class is a taxonomy name or a
 //! synonym from `grammar/perception_synonyms.toml`, the box is in pixels (end exclusive, fractions widened
@@ -13,7 +13,7 @@
 
 use std::path::Path;
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 use super::byo::{PerceptionError, SynonymTable};
 use crate::ids::ClassId;
@@ -49,15 +49,46 @@ struct RawDetection {
     #[serde(default)]
     mask_png: Option<String>,
     #[serde(default)]
-    mask_runs: Option<RawRuns>,
+    mask_runs: Option<MaskRuns>,
 }
 
-#[derive(Deserialize)]
+/// A mask as run lengths, as `mask_runs` carries it: row-major, alternating outside and inside, starting
+/// with outside (a mask whose first pixel is inside starts with a run of 0), summing to `width x height`.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
-struct RawRuns {
-    width: u32,
-    height: u32,
-    runs: Vec<u64>,
+pub struct MaskRuns {
+    pub width: u32,
+    pub height: u32,
+    pub runs: Vec<u64>,
+}
+
+impl DetectionMask {
+    /// The mask a run-length encoding describes; an error says why the runs do not fit.
+    pub fn from_runs(runs: &MaskRuns) -> Result<DetectionMask, String> {
+        decode_runs(runs)
+    }
+
+    /// The run-length encoding of this mask (what `from_runs` reads back).
+    pub fn runs(&self) -> MaskRuns {
+        let mut runs = Vec::new();
+        let mut current = false;
+        let mut length = 0u64;
+        for &inside in &self.inside {
+            if inside == current {
+                length += 1;
+            } else {
+                runs.push(length);
+                current = inside;
+                length = 1;
+            }
+        }
+        runs.push(length);
+        MaskRuns {
+            width: self.width,
+            height: self.height,
+            runs,
+        }
+    }
 }
 
 /// Parses a JSON Lines detections file for an image of `width x height`; `base` is the directory mask
@@ -160,7 +191,7 @@ fn detection(
     })
 }
 
-fn decode_runs(runs: &RawRuns) -> Result<DetectionMask, String> {
+fn decode_runs(runs: &MaskRuns) -> Result<DetectionMask, String> {
     let pixels = runs.width as u64 * runs.height as u64;
     let total: u64 = runs
         .runs
@@ -217,6 +248,14 @@ mod tests {
             mask.inside,
             vec![false, true, true, false, false, false, true, true]
         );
+        assert_eq!(mask.runs().runs, vec![1, 2, 3, 2]);
+        assert_eq!(DetectionMask::from_runs(&mask.runs()).as_ref(), Ok(mask));
+        let starts_inside = DetectionMask {
+            width: 2,
+            height: 1,
+            inside: vec![true, false],
+        };
+        assert_eq!(starts_inside.runs().runs, vec![0, 1, 1]);
     }
 
     #[test]

@@ -19,6 +19,7 @@ use crate::ids::{ClassId, RoomId};
 use crate::raster::{self, RasterError};
 use crate::scene::files::{image_file, DEPTH_FILE, IMAGE_FILES};
 use crate::scene::BoundingBox;
+use crate::unaries::byo_detections::{DetectionMask, MaskRuns};
 
 use super::super::corrector::{CorrectorError, Detection, PerceptionClasses, SceneInput};
 use super::super::error::ApiError;
@@ -37,8 +38,8 @@ pub struct SceneUpload {
     pub scores_npy: Option<Vec<u8>>,
     pub label_map_png: Option<Vec<u8>>,
     pub detections: Vec<super::super::wire::DetectionIn>,
-    /// Detections as JSON Lines (`crate::unaries::byo_detections`; boxes, and masks as `mask_runs` only
-    /// as the service keeps boxes), added to `detections`.
+    /// Detections as JSON Lines (`crate::unaries::byo_detections`; boxes, and masks as `mask_runs`: a
+    /// mask by file name cannot come with an upload), added to `detections`.
     pub detections_jsonl: Option<String>,
     pub room: Option<String>,
     /// The channel names of `scores_npy`, in order.
@@ -134,8 +135,8 @@ fn raster_error(field: &str, error: RasterError) -> ApiError {
     }
 }
 
-/// Detections sent as JSON Lines, read as `fix --detections` reads them; a mask is refused (the service
-/// keeps boxes).
+/// Detections sent as JSON Lines, read as `fix --detections` reads them, masks as run lengths (a mask by
+/// file name cannot come with an upload).
 fn jsonl_detections(
     text: &str,
     width: u32,
@@ -147,21 +148,43 @@ fn jsonl_detections(
         text, None, width, height, taxonomy, &synonyms,
     )
     .map_err(|error| ApiError::unprocessable("bad_detections", error.to_string()))?;
-    parsed
+    Ok(parsed
         .into_iter()
-        .enumerate()
-        .map(|(index, detection)| match detection.mask {
-            Some(_) => Err(ApiError::unprocessable(
-                "bad_detections",
-                format!("detection {} has a mask; the service takes boxes only (fix --detections reads masks)", index + 1),
-            )),
-            None => Ok(Detection {
-                class: detection.class,
-                bbox: detection.bbox,
-                score: detection.score,
-            }),
+        .map(|detection| Detection {
+            class: detection.class,
+            bbox: detection.bbox,
+            score: detection.score,
+            mask: detection.mask.as_ref().map(DetectionMask::runs),
         })
-        .collect()
+        .collect())
+}
+
+/// A detection's `mask_runs`, checked: the image's size and runs that cover it exactly.
+fn mask_of(
+    index: usize,
+    runs: &super::super::wire::MaskRunsIn,
+    width: u32,
+    height: u32,
+) -> Result<MaskRuns, ApiError> {
+    let refuse = |message: String| {
+        ApiError::unprocessable(
+            "bad_mask",
+            format!("detections[{index}].mask_runs {message}"),
+        )
+    };
+    if (runs.width, runs.height) != (width, height) {
+        return Err(refuse(format!(
+            "is {}x{} but the image is {width}x{height}",
+            runs.width, runs.height
+        )));
+    }
+    let runs = MaskRuns {
+        width: runs.width,
+        height: runs.height,
+        runs: runs.runs.clone(),
+    };
+    DetectionMask::from_runs(&runs).map_err(|message| refuse(format!("do not fit: {message}")))?;
+    Ok(runs)
 }
 
 fn valid_demo_name(name: &str) -> bool {
@@ -391,6 +414,11 @@ impl Coordinator {
                     y1: bbox.y1,
                 },
                 score: detection.score,
+                mask: detection
+                    .mask_runs
+                    .as_ref()
+                    .map(|runs| mask_of(index, runs, width, height))
+                    .transpose()?,
             });
         }
         if let Some(text) = &upload.detections_jsonl {
