@@ -134,18 +134,13 @@ impl Coordinator {
 
     /// One page of the conversations `caller` may read (their own; every one for a supervisor), by id.
     pub fn conversations_page(&self, caller: &Caller, page: PageRequest) -> ConversationPage {
-        let mut slots: Vec<_> = self
-            .conversations
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .iter()
-            .map(|(key, slot)| (key.0, slot.clone()))
-            .collect();
-        slots.sort_by_key(|(key, _)| *key);
-        let visible: Vec<ConversationListed> = slots
+        // Lazily: on a shared log each conversation looked at is read from it, so stop once the page is full.
+        let visible: Vec<ConversationListed> = self
+            .conversation_ids()
             .into_iter()
-            .filter(|(key, _)| *key > page.after)
-            .filter_map(|(_, slot)| {
+            .filter(|key| key.0 > page.after)
+            .filter_map(|key| {
+                let slot = self.conversation_slot(key).ok()?;
                 let slot = lock(&slot);
                 caller
                     .may_act_for(&slot.operator)

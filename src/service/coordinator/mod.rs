@@ -1,7 +1,8 @@
 //! The coordinator: the service's working memory over the correction log, and the only caller of the
 //! `Corrector`.
 //!
-//! Owns: the in-memory scenes and conversations (restored from the log at start), the per-scene and
+//! Owns: the in-memory scenes and conversations (on a log this process owns, restored at start; on a log
+//! shared by replicas, a cache read on demand and checked at every use: `replica`), the per-scene and
 //! per-conversation locks that keep updates from being lost, the rule that every answer is given only after
 //! its turn is committed, and the conversion between internal values and wire shapes.
 //! Must not: know about HTTP routing, sockets or tokio; every method is synchronous (handlers call it on a
@@ -12,6 +13,7 @@
 mod access;
 mod convert;
 mod register;
+mod replica;
 mod turns;
 
 use std::collections::HashMap;
@@ -20,7 +22,7 @@ use std::sync::{Arc, Mutex, MutexGuard, RwLock};
 
 use crate::correction_log::{
     BackgroundCheckpoints, ConversationKey, CorrectionLog, GroupCommit, LogError, NewTurn,
-    PostgresLog, SceneKey, SqliteLog, StateRecord, TurnWritten, VersionKey,
+    PostgresLog, SceneKey, SqliteLog, StateRecord, TurnMark, TurnWritten, VersionKey,
 };
 use crate::language::constraint::Constraint;
 use crate::raster;
@@ -71,6 +73,8 @@ pub(crate) struct ConversationSlot {
     question: Option<OpenQuestion>,
     /// The version the last answer to a question made, and that answer, for "no, the other one".
     answered: Option<(VersionKey, Answered)>,
+    /// The turns this copy holds (on a shared log, a copy whose mark differs from the log's is read again).
+    mark: TurnMark,
 }
 
 /// The service's state; share it behind an `Arc`.
@@ -81,6 +85,9 @@ pub struct Coordinator {
     group: GatedCommit,
     /// Copies the WAL into the database file off the commit path (stopped when the coordinator drops).
     _checkpoints: Option<BackgroundCheckpoints>,
+    /// Whether other replicas write to the log too: then every slot is a cache checked at each use
+    /// (`replica`).
+    shared: bool,
     scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
     conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
     metrics: Arc<Metrics>,
@@ -88,8 +95,7 @@ pub struct Coordinator {
     demo_dir: PathBuf,
     /// A user per-pixel model that scores scenes registered without scores or a label map.
     user_model: Option<Arc<crate::unaries::byo_user_model::UserModel>>,
-    /// Held for the coordinator's life: one process per log, so no two memories drift apart (for a SQLite
-    /// log, a locked file beside it; a PostgreSQL log holds a session lock of its own).
+    /// Held for the coordinator's life on a SQLite log: one process per file (a locked file beside it).
     _exclusive: Option<std::fs::File>,
 }
 
@@ -235,21 +241,17 @@ impl Coordinator {
         )
     }
 
-    /// Opens the coordinator on a PostgreSQL log (`url`, already at this build's schema) and restores
-    /// every scene and conversation in it. One coordinator per database: the log's session lock refuses a
-    /// second while this one runs (`settings.log_path` is not used).
+    /// Opens the coordinator on a PostgreSQL log (`url`, already at this build's schema) as one replica of
+    /// any number on the same database: nothing is read up front; scenes and conversations are read from
+    /// the log when first asked for and checked against it at every use (`replica`).
+    /// `settings.log_path` is not used.
     pub fn open_postgres(
         corrector: Arc<dyn Corrector>,
         url: &str,
         settings: &CoordinatorSettings,
         metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
-        let mut log = PostgresLog::connect(url)?;
-        if !log.hold_exclusive(url)? {
-            return Err(OpenError::InUse {
-                shown: log.shown().to_string(),
-            });
-        }
+        let log = PostgresLog::connect(url)?;
         Coordinator::restore(
             corrector,
             CorrectionLog::Postgres(log),
@@ -260,7 +262,8 @@ impl Coordinator {
         )
     }
 
-    /// Restores every scene and conversation from an opened log.
+    /// Restores every scene and conversation from an opened log this process owns; on a shared log,
+    /// none (each is read when first asked for).
     fn restore(
         corrector: Arc<dyn Corrector>,
         log: CorrectionLog,
@@ -269,100 +272,27 @@ impl Coordinator {
         settings: &CoordinatorSettings,
         metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
+        let shared = log.is_shared();
         let mut scenes = HashMap::new();
-        for row in log.scenes()? {
-            let restore_error = |message: String| OpenError::Restore {
-                scene: row.key.0,
-                message,
-            };
-            let image_png = log.blob(&row.image_hash)?;
-            let image =
-                raster::decode_rgb_png(&image_png, std::path::Path::new("stored image"), u64::MAX)
-                    .map_err(|error| restore_error(error.to_string()))?;
-            let input = register::restore_input(&row.name, image, &row.input_json, |hash| {
-                log.blob(hash).map_err(|error| error.to_string())
-            })
-            .map_err(restore_error)?;
-            let (record, _) = log.version(row.head)?;
-            let state = decode_state(&record).map_err(restore_error)?;
-            scenes.insert(
-                row.key,
-                Arc::new(Mutex::new(SceneSlot {
-                    name: row.name,
-                    input: Arc::new(input),
-                    head: row.head,
-                    state,
-                })),
-            );
-        }
         let mut conversations = HashMap::new();
-        for row in log.conversations()? {
-            let turns = log.turns(row.key)?;
-            let history = turns
-                .iter()
-                .filter(|turn| turn.kind == "utterance")
-                .map(|turn| PastTurn {
-                    utterance: turn.text.clone(),
-                    focus: turn
-                        .focus_json
-                        .as_deref()
-                        .and_then(|text| serde_json::from_str(text).ok()),
-                    constraints: serde_json::from_str(&turn.constraints_json).unwrap_or_default(),
-                })
-                .collect();
-            let pending = match log.pending(row.key)? {
-                Some(pending) => {
-                    let state =
-                        decode_state(&pending.state).map_err(|message| OpenError::Restore {
-                            scene: row.scene.0,
-                            message,
-                        })?;
-                    let turn = turns.iter().find(|turn| turn.key == pending.turn);
-                    Some(PendingSlot {
-                        base: pending.base,
-                        state,
-                        reason: pending.reason,
-                        changes: serde_json::from_str(&pending.changes_json).unwrap_or_default(),
-                        utterance: turn.map(|turn| turn.text.clone()).unwrap_or_default(),
-                        constraints: turn
-                            .and_then(|turn| serde_json::from_str(&turn.constraints_json).ok())
-                            .unwrap_or_default(),
-                        focus: turn
-                            .and_then(|turn| turn.focus_json.as_deref())
-                            .and_then(|text| serde_json::from_str(text).ok()),
-                    })
-                }
-                None => None,
-            };
-            conversations.insert(
-                row.key,
-                Arc::new(Mutex::new(ConversationSlot {
-                    key: row.key,
-                    scene: row.scene,
-                    operator: row.operator,
-                    opened_at: row.opened_at,
-                    history,
-                    pending,
-                    applied: row.applied_stack,
-                    redo: row.redo_stack,
-                    question: turns
-                        .last()
-                        .filter(|turn| turn.status == "needs_clarification")
-                        .and_then(|turn| {
-                            serde_json::from_str::<serde_json::Value>(&turn.result_json).ok()
-                        })
-                        .and_then(|result| {
-                            serde_json::from_value(result.get("open_question")?.clone()).ok()
-                        }),
-                    answered: None,
-                })),
-            );
+        if !shared {
+            for row in log.scenes()? {
+                let key = row.key;
+                let slot = replica::load_scene(&log, row)?;
+                scenes.insert(key, Arc::new(Mutex::new(slot)));
+            }
+            for row in log.conversations()? {
+                let key = row.key;
+                let slot = replica::load_conversation(&log, row)?;
+                conversations.insert(key, Arc::new(Mutex::new(slot)));
+            }
         }
         Ok(Coordinator {
             corrector,
             log: Mutex::new(log),
             group: GatedCommit(GroupCommit::new()),
             _checkpoints: checkpoints,
+            shared,
             scenes: RwLock::new(scenes),
             conversations: RwLock::new(conversations),
             metrics,
@@ -393,29 +323,6 @@ impl Coordinator {
         &self.corrector
     }
 
-    pub(crate) fn scene_slot(&self, scene: SceneKey) -> Result<Arc<Mutex<SceneSlot>>, ApiError> {
-        self.scenes
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .get(&scene)
-            .cloned()
-            .ok_or_else(|| ApiError::unknown("unknown_scene", "scene", scene.0))
-    }
-
-    pub(crate) fn conversation_slot(
-        &self,
-        conversation: ConversationKey,
-    ) -> Result<Arc<Mutex<ConversationSlot>>, ApiError> {
-        self.conversations
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .get(&conversation)
-            .cloned()
-            .ok_or_else(|| {
-                ApiError::unknown("unknown_conversation", "conversation", conversation.0)
-            })
-    }
-
     /// Liveness and counts.
     pub fn health(&self) -> Result<HealthOut, ApiError> {
         let log_schema = lock(&self.log).schema_version().map_err(log_error)?;
@@ -423,30 +330,9 @@ impl Coordinator {
             status: "ok".into(),
             version: env!("CARGO_PKG_VERSION").into(),
             log_schema,
-            scenes: self
-                .scenes
-                .read()
-                .unwrap_or_else(|poisoned| poisoned.into_inner())
-                .len(),
-            conversations: self
-                .conversations
-                .read()
-                .unwrap_or_else(|poisoned| poisoned.into_inner())
-                .len(),
+            scenes: self.scene_ids().len(),
+            conversations: self.conversation_ids().len(),
         })
-    }
-
-    /// Every scene id, ascending.
-    pub fn scene_ids(&self) -> Vec<SceneKey> {
-        let mut keys: Vec<SceneKey> = self
-            .scenes
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .keys()
-            .copied()
-            .collect();
-        keys.sort();
-        keys
     }
 
     /// The current scene graph.
@@ -509,6 +395,7 @@ impl Coordinator {
                     redo: Vec::new(),
                     question: None,
                     answered: None,
+                    mark: TurnMark::default(),
                 })),
             );
         Ok(out)

@@ -6,7 +6,7 @@
 //! when it is still the scene's head; redo puts it back when nothing else has happened since.
 //! Must not: talk HTTP; answers are wire values or `ApiError`s.
 
-use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, VersionKey};
+use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, TurnMark, VersionKey};
 use crate::language::constraint::{Constraint, Focus};
 use crate::taxonomy::Taxonomy;
 use crate::turn::words::{self, Command};
@@ -342,6 +342,7 @@ impl Coordinator {
                 Some((&conversation_state.applied, &redo_after)),
             )
             .map_err(log_error)?;
+        conversation_state.mark = conversation_state.mark.after(turn_key);
         // Committed: now the memory follows the log.
         self.metrics.record_turn(new_version.is_some());
         conversation_state.history.push(PastTurn {
@@ -465,6 +466,7 @@ impl Coordinator {
         text: &str,
         status: TurnStatus,
         result_json: &str,
+        mark: &mut TurnMark,
     ) -> Result<i64, ApiError> {
         let (turn_key, _) = self
             .group
@@ -484,6 +486,7 @@ impl Coordinator {
                 None,
             )
             .map_err(log_error)?;
+        *mark = mark.after(turn_key);
         self.metrics.record_turn(false);
         Ok(turn_key.0)
     }
@@ -508,7 +511,14 @@ impl Coordinator {
             let scene = lock(&scene_slot);
             scene.head.0
         };
-        let turn_id = self.quiet_turn(conversation, operator, text, TurnStatus::Rejected, "{}")?;
+        let turn_id = self.quiet_turn(
+            conversation,
+            operator,
+            text,
+            TurnStatus::Rejected,
+            "{}",
+            &mut state.mark,
+        )?;
         Ok(command_reply(
             turn_id,
             TurnStatus::Rejected,
@@ -558,7 +568,7 @@ impl Coordinator {
             );
         }
         let slot = self.conversation_slot(conversation)?;
-        let state = lock(&slot);
+        let mut state = lock(&slot);
         let scene_version = {
             let scene_slot = self.scene_slot(state.scene)?;
             let scene = lock(&scene_slot);
@@ -573,6 +583,7 @@ impl Coordinator {
             text,
             TurnStatus::NeedsClarification,
             &result_json,
+            &mut state.mark,
         )?;
         Ok(UtteranceReply {
             question: Some(rest.text.clone()),
@@ -677,6 +688,7 @@ impl Coordinator {
                 Some((&conversation_state.applied, &[])),
             )
             .map_err(log_error)?;
+        conversation_state.mark = conversation_state.mark.after(turn_key);
         self.metrics.record_turn(new_version.is_some());
         conversation_state.pending = None;
         if let Some(version) = new_version {
@@ -732,6 +744,7 @@ impl Coordinator {
                 None,
             )
             .map_err(log_error)?;
+        conversation_state.mark = conversation_state.mark.after(turn_key);
         self.metrics.record_turn(false);
         conversation_state.pending = None;
         Ok(TurnReply {
@@ -800,6 +813,7 @@ impl Coordinator {
                 Some((&applied_after, &redo_after)),
             )
             .map_err(log_error)?;
+        conversation_state.mark = conversation_state.mark.after(turn_key);
         self.metrics.record_turn(false);
         let changes = label_changes(
             &scene.state.labels,
@@ -874,6 +888,7 @@ impl Coordinator {
                 Some((&applied_after, &redo_after)),
             )
             .map_err(log_error)?;
+        conversation_state.mark = conversation_state.mark.after(turn_key);
         self.metrics.record_turn(false);
         let changes = label_changes(
             &scene.state.labels,
