@@ -301,6 +301,7 @@ fn a_running_corrector_swaps_its_model_and_names_it_in_each_state() {
         detections: Vec::new(),
         room: None,
         classes: Default::default(),
+        superpixels: None,
     };
     let shipped = Path::new(env!("CARGO_MANIFEST_DIR")).join("models/segment_classifier.onnx");
     let corrector = JointCorrector::load(&shipped).unwrap();

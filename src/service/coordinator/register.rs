@@ -189,6 +189,9 @@ pub(crate) struct StoredInput {
     room: Option<RoomId>,
     #[serde(default)]
     classes: PerceptionClasses,
+    /// The superpixels the corrector cut at registration, so a restart need not cut them again.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    superpixels_png: Option<String>,
 }
 
 /// Rebuilds a stored scene's registration from its row: `blob` fetches a stored blob by hash.
@@ -215,6 +218,7 @@ pub(crate) fn restore_input(
         millimetres: decoded.values,
     });
     let label_map = index_png(&stored.label_map_png, "stored label map")?;
+    let superpixels = index_png(&stored.superpixels_png, "stored superpixels")?;
     let scores_npy = match &stored.scores_npy {
         Some(hash) => Some(blob(hash)?),
         None => None,
@@ -228,6 +232,7 @@ pub(crate) fn restore_input(
         detections: stored.detections,
         room: stored.room,
         classes: stored.classes,
+        superpixels,
     })
 }
 
@@ -440,7 +445,7 @@ impl Coordinator {
         if let Some(problem) = crate::scene::capture::scene_name_problem(&name) {
             return Err(ApiError::unprocessable("bad_scene_name", problem));
         }
-        let input = SceneInput {
+        let mut input = SceneInput {
             name: name.clone(),
             image,
             depth,
@@ -449,6 +454,7 @@ impl Coordinator {
             detections: detections.clone(),
             room,
             classes: classes.clone(),
+            superpixels: None,
         };
         let state = self
             .corrector
@@ -460,11 +466,22 @@ impl Coordinator {
                 internal => ApiError::internal(internal),
             })?;
         let record = encode_state(&state)?;
-        let parts: Vec<&[u8]> = [&upload.depth_png, &upload.scores_npy, &upload.label_map_png]
-            .into_iter()
-            .flatten()
-            .map(|bytes| bytes.as_slice())
-            .collect();
+        // Kept with the scene, so a restart or another replica reads them instead of cutting them again.
+        let superpixels = self.corrector.superpixels(&input);
+        let superpixels_png = superpixels
+            .as_ref()
+            .and_then(|map| raster::encode_index_png(map).ok());
+        input.superpixels = superpixels;
+        let parts: Vec<&[u8]> = [
+            &upload.depth_png,
+            &upload.scores_npy,
+            &upload.label_map_png,
+            &superpixels_png,
+        ]
+        .into_iter()
+        .flatten()
+        .map(|bytes| bytes.as_slice())
+        .collect();
         let input_json = serde_json::to_string(&StoredInput {
             depth_png: upload.depth_png.as_deref().map(blob_hash),
             scores_npy: upload.scores_npy.as_deref().map(blob_hash),
@@ -472,6 +489,7 @@ impl Coordinator {
             detections: detections.clone(),
             room,
             classes,
+            superpixels_png: superpixels_png.as_deref().map(blob_hash),
         })
         .map_err(ApiError::internal)?;
         // Past this check the request is no longer abandoned by its time limit: the caller gets the ids.
