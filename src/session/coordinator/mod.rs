@@ -1,11 +1,11 @@
-//! The coordinator: the service's working memory over the correction log, and the only caller of the
+//! The coordinator: the session's working memory over the correction log, and the only caller of the
 //! `Corrector`.
 //!
 //! Owns: the in-memory scenes and conversations (restored from the log at start), the per-scene and
 //! per-conversation locks that keep updates from being lost, the rule that every answer is given only after
-//! its turn is committed, and the conversion between internal values and wire shapes.
-//! Must not: know about HTTP routing, sockets or tokio; every method is synchronous (handlers call it on a
-//! blocking thread) so the CLI can use it directly too.
+//! its turn is committed, and the conversion between internal values and the API's shapes (`crate::wire`).
+//! Must not: know about HTTP, sockets or tokio; every method is synchronous (the service's handlers call
+//! it on a blocking thread, the CLI directly) and fails with a `SessionError`, which carries no status.
 //!
 //! Lock order, always: a conversation, then its scene, then the log.
 
@@ -27,11 +27,11 @@ use crate::raster;
 use crate::turn::{Answered, OpenQuestion};
 
 use super::corrector::{Change, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
-use super::error::ApiError;
-use super::metrics::Metrics;
-use super::wire::{ConversationOut, HealthOut, SceneGraphOut};
+use super::counters::TurnCounters;
+use super::error::SessionError;
+use crate::wire::{ConversationOut, HealthOut, SceneGraphOut};
 
-pub use access::{Caller, PageRequest, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
+pub use access::{Caller, PageRequest, Role, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
 pub use register::SceneUpload;
 pub use turns::check_utterance_text;
 
@@ -83,7 +83,7 @@ pub struct Coordinator {
     _checkpoints: Option<BackgroundCheckpoints>,
     scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
     conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
-    metrics: Arc<Metrics>,
+    counters: Arc<TurnCounters>,
     pixel_limit: u64,
     demo_dir: PathBuf,
     /// A user per-pixel model that scores scenes registered without scores or a label map.
@@ -127,10 +127,10 @@ fn lock<T>(mutex: &Mutex<T>) -> MutexGuard<'_, T> {
         .unwrap_or_else(|poisoned| poisoned.into_inner())
 }
 
-pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, ApiError> {
+pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, SessionError> {
     Ok(StateRecord {
-        labels_png: raster::encode_index_png(&state.labels).map_err(ApiError::internal)?,
-        summary_json: serde_json::to_string(&state.summary).map_err(ApiError::internal)?,
+        labels_png: raster::encode_index_png(&state.labels).map_err(SessionError::internal)?,
+        summary_json: serde_json::to_string(&state.summary).map_err(SessionError::internal)?,
         engine_state: state.engine_state.clone(),
         model: state.summary.model.clone(),
     })
@@ -173,22 +173,18 @@ impl GatedCommit {
 
 /// The answer to work whose request was abandoned before it could be written (the caller has by then
 /// been told so by the time limit).
-pub(crate) fn withdrawn() -> ApiError {
-    ApiError::caller(
-        axum::http::StatusCode::SERVICE_UNAVAILABLE,
-        "timeout",
-        "the request took too long and was abandoned before anything was stored",
-    )
+pub(crate) fn withdrawn() -> SessionError {
+    SessionError::withdrawn()
 }
 
-fn log_error(error: LogError) -> ApiError {
+fn log_error(error: LogError) -> SessionError {
     match error {
         LogError::Withdrawn => withdrawn(),
-        LogError::Stale { .. } => ApiError::conflict(
+        LogError::Stale { .. } => SessionError::conflict(
             "stale_change",
             "the scene changed while this request was being worked out; send it again",
         ),
-        other => ApiError::internal(other),
+        other => SessionError::internal(other),
     }
 }
 
@@ -197,7 +193,6 @@ impl Coordinator {
     pub fn open(
         corrector: Arc<dyn Corrector>,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
         let lock_path = settings.log_path.with_extension("lock");
         if let Some(parent) = lock_path.parent() {
@@ -231,7 +226,6 @@ impl Coordinator {
             checkpoints,
             Some(exclusive),
             settings,
-            metrics,
         )
     }
 
@@ -242,7 +236,6 @@ impl Coordinator {
         corrector: Arc<dyn Corrector>,
         url: &str,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
         let mut log = PostgresLog::connect(url)?;
         if !log.hold_exclusive(url)? {
@@ -256,7 +249,6 @@ impl Coordinator {
             None,
             None,
             settings,
-            metrics,
         )
     }
 
@@ -267,7 +259,6 @@ impl Coordinator {
         checkpoints: Option<BackgroundCheckpoints>,
         exclusive: Option<std::fs::File>,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
         let mut scenes = HashMap::new();
         for row in log.scenes()? {
@@ -365,7 +356,7 @@ impl Coordinator {
             _checkpoints: checkpoints,
             scenes: RwLock::new(scenes),
             conversations: RwLock::new(conversations),
-            metrics,
+            counters: Arc::new(TurnCounters::default()),
             pixel_limit: settings.pixel_limit,
             demo_dir: settings.demo_dir.clone(),
             user_model: None,
@@ -383,9 +374,9 @@ impl Coordinator {
         self
     }
 
-    /// The metrics the coordinator records into.
-    pub fn metrics(&self) -> &Arc<Metrics> {
-        &self.metrics
+    /// What the coordinator counts as it works (turns, corrections, solver gaps).
+    pub fn counters(&self) -> &Arc<TurnCounters> {
+        &self.counters
     }
 
     /// The corrector in use.
@@ -393,31 +384,34 @@ impl Coordinator {
         &self.corrector
     }
 
-    pub(crate) fn scene_slot(&self, scene: SceneKey) -> Result<Arc<Mutex<SceneSlot>>, ApiError> {
+    pub(crate) fn scene_slot(
+        &self,
+        scene: SceneKey,
+    ) -> Result<Arc<Mutex<SceneSlot>>, SessionError> {
         self.scenes
             .read()
             .unwrap_or_else(|poisoned| poisoned.into_inner())
             .get(&scene)
             .cloned()
-            .ok_or_else(|| ApiError::unknown("unknown_scene", "scene", scene.0))
+            .ok_or_else(|| SessionError::unknown("unknown_scene", "scene", scene.0))
     }
 
     pub(crate) fn conversation_slot(
         &self,
         conversation: ConversationKey,
-    ) -> Result<Arc<Mutex<ConversationSlot>>, ApiError> {
+    ) -> Result<Arc<Mutex<ConversationSlot>>, SessionError> {
         self.conversations
             .read()
             .unwrap_or_else(|poisoned| poisoned.into_inner())
             .get(&conversation)
             .cloned()
             .ok_or_else(|| {
-                ApiError::unknown("unknown_conversation", "conversation", conversation.0)
+                SessionError::unknown("unknown_conversation", "conversation", conversation.0)
             })
     }
 
     /// Liveness and counts.
-    pub fn health(&self) -> Result<HealthOut, ApiError> {
+    pub fn health(&self) -> Result<HealthOut, SessionError> {
         let log_schema = lock(&self.log).schema_version().map_err(log_error)?;
         Ok(HealthOut {
             status: "ok".into(),
@@ -450,7 +444,7 @@ impl Coordinator {
     }
 
     /// The current scene graph.
-    pub fn scene_graph(&self, scene: SceneKey) -> Result<SceneGraphOut, ApiError> {
+    pub fn scene_graph(&self, scene: SceneKey) -> Result<SceneGraphOut, SessionError> {
         let slot = self.scene_slot(scene)?;
         let slot = lock(&slot);
         Ok(convert::scene_graph(
@@ -461,20 +455,20 @@ impl Coordinator {
     }
 
     /// The current label map as an index PNG.
-    pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+    pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
         let labels = lock(&slot).state.labels.clone();
-        raster::encode_index_png(&labels).map_err(ApiError::internal)
+        raster::encode_index_png(&labels).map_err(SessionError::internal)
     }
 
     /// The current overlay as an RGB PNG.
-    pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+    pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
         let overlay = {
             let slot = lock(&slot);
             self.corrector.overlay(&slot.input.image, &slot.state)
         };
-        raster::encode_rgb_png(&overlay).map_err(ApiError::internal)
+        raster::encode_rgb_png(&overlay).map_err(SessionError::internal)
     }
 
     /// Opens a conversation on a scene for an operator.
@@ -482,7 +476,7 @@ impl Coordinator {
         &self,
         scene: SceneKey,
         operator: &str,
-    ) -> Result<ConversationOut, ApiError> {
+    ) -> Result<ConversationOut, SessionError> {
         self.scene_slot(scene)?;
         let row = lock(&self.log)
             .open_conversation(scene, operator)
