@@ -23,10 +23,9 @@ use demo_turns::load_average;
 use sayso::correction_log::{ConversationKey, SceneKey};
 use sayso::demo::demo_directory;
 use sayso::pipeline::model_path;
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
-use sayso::service::wire::{FocusIn, TurnStatus};
+use sayso::session::JointCorrector;
+use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
+use sayso::wire::{FocusIn, TurnStatus};
 
 /// The demo scene the chain grows on.
 const SCENE: &str = "kitchen_breakfast";
@@ -53,7 +52,6 @@ fn open(data: &Path) -> Coordinator {
             pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: demo_directory(None),
         },
-        Arc::new(Metrics::default()),
     )
     .expect("the coordinator opens")
 }
@@ -167,7 +165,6 @@ fn restart_figures() {
                     pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
                     demo_dir: demo_directory(None),
                 },
-                Arc::new(Metrics::default()),
             )
             .unwrap();
             reopen.push(started.elapsed());

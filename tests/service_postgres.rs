@@ -11,10 +11,9 @@ use std::sync::Arc;
 
 use sayso::correction_log::{ConversationKey, SceneKey};
 use sayso::raster::IndexImage;
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
-use sayso::service::wire::{FocusIn, TurnStatus};
+use sayso::session::JointCorrector;
+use sayso::session::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
+use sayso::wire::{FocusIn, TurnStatus};
 use service_support::picture_of;
 
 const FLOOR: u16 = 0;
@@ -46,7 +45,6 @@ fn open(url: &str, corrector: Arc<JointCorrector>) -> Result<Coordinator, OpenEr
             pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: std::path::PathBuf::from("none"),
         },
-        Arc::new(Metrics::default()),
     )
 }
 

@@ -10,8 +10,8 @@ use std::process::Command;
 
 use sayso::correction_log::CorrectionLog;
 use sayso::demo::load_demo_scene;
-use sayso::service::corrector::{Corrector, SceneInput};
-use sayso::service::joint::JointCorrector;
+use sayso::session::corrector::{Corrector, SceneInput};
+use sayso::session::JointCorrector;
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::classifier::model_id;
 use sayso::unaries::onnx_reader::read_mlp;

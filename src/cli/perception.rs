@@ -11,7 +11,7 @@ use std::sync::Arc;
 
 use anyhow::Context;
 use sayso::raster::{read_index_png, DEFAULT_PIXEL_LIMIT};
-use sayso::service::coordinator::SceneUpload;
+use sayso::session::SceneUpload;
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::byo::SynonymTable;
 use sayso::unaries::byo_detections::parse_detections;

@@ -7,9 +7,9 @@
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::service::coordinator::SceneUpload;
+use sayso::session::SceneUpload;
 
-use super::serve::{open_coordinator, ServiceFlags};
+use super::open_log::{open_coordinator, ServiceFlags};
 
 /// Register demo scenes by name, or a scene from an image (PNG or JPEG) with an optional depth PNG and the
 /// robot's own perception, in the correction log; prints each new scene id.

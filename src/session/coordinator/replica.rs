@@ -18,7 +18,7 @@ use crate::correction_log::{
 };
 
 use super::super::corrector::PastTurn;
-use super::super::error::ApiError;
+use super::super::error::SessionError;
 use super::{
     decode_state, lock, log_error, register, ConversationSlot, Coordinator, OpenError, PendingSlot,
     SceneSlot,
@@ -112,17 +112,20 @@ pub(super) fn load_conversation(
     })
 }
 
-fn restore_failed(error: OpenError) -> ApiError {
+fn restore_failed(error: OpenError) -> SessionError {
     match error {
         OpenError::Log(error) => log_error(error),
-        other => ApiError::internal(other),
+        other => SessionError::internal(other),
     }
 }
 
 impl Coordinator {
     /// The slot of a scene, current with the log.
-    pub(crate) fn scene_slot(&self, scene: SceneKey) -> Result<Arc<Mutex<SceneSlot>>, ApiError> {
-        let unknown = || ApiError::unknown("unknown_scene", "scene", scene.0);
+    pub(crate) fn scene_slot(
+        &self,
+        scene: SceneKey,
+    ) -> Result<Arc<Mutex<SceneSlot>>, SessionError> {
+        let unknown = || SessionError::unknown("unknown_scene", "scene", scene.0);
         let cached = self
             .scenes
             .read()
@@ -153,7 +156,7 @@ impl Coordinator {
                 .ok_or_else(unknown)?;
             if head != copy.head {
                 let (record, _) = lock(&self.log).version(head).map_err(log_error)?;
-                copy.state = decode_state(&record).map_err(ApiError::internal)?;
+                copy.state = decode_state(&record).map_err(SessionError::internal)?;
                 copy.head = head;
             }
         }
@@ -164,8 +167,9 @@ impl Coordinator {
     pub(crate) fn conversation_slot(
         &self,
         conversation: ConversationKey,
-    ) -> Result<Arc<Mutex<ConversationSlot>>, ApiError> {
-        let unknown = || ApiError::unknown("unknown_conversation", "conversation", conversation.0);
+    ) -> Result<Arc<Mutex<ConversationSlot>>, SessionError> {
+        let unknown =
+            || SessionError::unknown("unknown_conversation", "conversation", conversation.0);
         let cached = self
             .conversations
             .read()
@@ -175,7 +179,7 @@ impl Coordinator {
         if !self.shared {
             return cached.ok_or_else(unknown);
         }
-        let read = || -> Result<ConversationSlot, ApiError> {
+        let read = || -> Result<ConversationSlot, SessionError> {
             let log = lock(&self.log);
             let row = log.conversation(conversation).map_err(log_error)?;
             load_conversation(&log, row.ok_or_else(unknown)?).map_err(restore_failed)

@@ -1,12 +1,12 @@
-//! The coordinator: the service's working memory over the correction log, and the only caller of the
+//! The coordinator: the session's working memory over the correction log, and the only caller of the
 //! `Corrector`.
 //!
 //! Owns: the in-memory scenes and conversations (on a log this process owns, restored at start; on a log
 //! shared by replicas, a cache read on demand and checked at every use: `replica`), the per-scene and
 //! per-conversation locks that keep updates from being lost, the rule that every answer is given only after
-//! its turn is committed, and the conversion between internal values and wire shapes.
-//! Must not: know about HTTP routing, sockets or tokio; every method is synchronous (handlers call it on a
-//! blocking thread) so the CLI can use it directly too.
+//! its turn is committed, and the conversion between internal values and the API's shapes (`crate::wire`).
+//! Must not: know about HTTP, sockets or tokio; every method is synchronous (the service's handlers call
+//! it on a blocking thread, the CLI directly) and fails with a `SessionError`, which carries no status.
 //!
 //! Lock order, always: a conversation, then its scene, then the log.
 
@@ -29,11 +29,11 @@ use crate::raster;
 use crate::turn::{Answered, OpenQuestion};
 
 use super::corrector::{Change, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
-use super::error::ApiError;
-use super::metrics::Metrics;
-use super::wire::{ConversationOut, HealthOut, SceneGraphOut};
+use super::counters::TurnCounters;
+use super::error::SessionError;
+use crate::wire::{ConversationOut, HealthOut, SceneGraphOut};
 
-pub use access::{Caller, PageRequest, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
+pub use access::{Caller, PageRequest, Role, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
 pub use register::SceneUpload;
 pub use turns::check_utterance_text;
 
@@ -90,7 +90,7 @@ pub struct Coordinator {
     shared: bool,
     scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
     conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
-    metrics: Arc<Metrics>,
+    counters: Arc<TurnCounters>,
     pixel_limit: u64,
     demo_dir: PathBuf,
     /// A user per-pixel model that scores scenes registered without scores or a label map.
@@ -133,10 +133,10 @@ fn lock<T>(mutex: &Mutex<T>) -> MutexGuard<'_, T> {
         .unwrap_or_else(|poisoned| poisoned.into_inner())
 }
 
-pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, ApiError> {
+pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, SessionError> {
     Ok(StateRecord {
-        labels_png: raster::encode_index_png(&state.labels).map_err(ApiError::internal)?,
-        summary_json: serde_json::to_string(&state.summary).map_err(ApiError::internal)?,
+        labels_png: raster::encode_index_png(&state.labels).map_err(SessionError::internal)?,
+        summary_json: serde_json::to_string(&state.summary).map_err(SessionError::internal)?,
         engine_state: state.engine_state.clone(),
         model: state.summary.model.clone(),
     })
@@ -179,22 +179,18 @@ impl GatedCommit {
 
 /// The answer to work whose request was abandoned before it could be written (the caller has by then
 /// been told so by the time limit).
-pub(crate) fn withdrawn() -> ApiError {
-    ApiError::caller(
-        axum::http::StatusCode::SERVICE_UNAVAILABLE,
-        "timeout",
-        "the request took too long and was abandoned before anything was stored",
-    )
+pub(crate) fn withdrawn() -> SessionError {
+    SessionError::withdrawn()
 }
 
-fn log_error(error: LogError) -> ApiError {
+fn log_error(error: LogError) -> SessionError {
     match error {
         LogError::Withdrawn => withdrawn(),
-        LogError::Stale { .. } => ApiError::conflict(
+        LogError::Stale { .. } => SessionError::conflict(
             "stale_change",
             "the scene changed while this request was being worked out; send it again",
         ),
-        other => ApiError::internal(other),
+        other => SessionError::internal(other),
     }
 }
 
@@ -203,7 +199,6 @@ impl Coordinator {
     pub fn open(
         corrector: Arc<dyn Corrector>,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
         let lock_path = settings.log_path.with_extension("lock");
         if let Some(parent) = lock_path.parent() {
@@ -237,7 +232,6 @@ impl Coordinator {
             checkpoints,
             Some(exclusive),
             settings,
-            metrics,
         )
     }
 
@@ -249,7 +243,6 @@ impl Coordinator {
         corrector: Arc<dyn Corrector>,
         url: &str,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
         let log = PostgresLog::connect(url)?;
         Coordinator::restore(
@@ -258,7 +251,6 @@ impl Coordinator {
             None,
             None,
             settings,
-            metrics,
         )
     }
 
@@ -270,7 +262,6 @@ impl Coordinator {
         checkpoints: Option<BackgroundCheckpoints>,
         exclusive: Option<std::fs::File>,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
         let shared = log.is_shared();
         let mut scenes = HashMap::new();
@@ -295,7 +286,7 @@ impl Coordinator {
             shared,
             scenes: RwLock::new(scenes),
             conversations: RwLock::new(conversations),
-            metrics,
+            counters: Arc::new(TurnCounters::default()),
             pixel_limit: settings.pixel_limit,
             demo_dir: settings.demo_dir.clone(),
             user_model: None,
@@ -313,9 +304,9 @@ impl Coordinator {
         self
     }
 
-    /// The metrics the coordinator records into.
-    pub fn metrics(&self) -> &Arc<Metrics> {
-        &self.metrics
+    /// What the coordinator counts as it works (turns, corrections, solver gaps).
+    pub fn counters(&self) -> &Arc<TurnCounters> {
+        &self.counters
     }
 
     /// The corrector in use.
@@ -324,7 +315,7 @@ impl Coordinator {
     }
 
     /// Liveness and counts.
-    pub fn health(&self) -> Result<HealthOut, ApiError> {
+    pub fn health(&self) -> Result<HealthOut, SessionError> {
         let log_schema = lock(&self.log).schema_version().map_err(log_error)?;
         Ok(HealthOut {
             status: "ok".into(),
@@ -336,7 +327,7 @@ impl Coordinator {
     }
 
     /// The current scene graph.
-    pub fn scene_graph(&self, scene: SceneKey) -> Result<SceneGraphOut, ApiError> {
+    pub fn scene_graph(&self, scene: SceneKey) -> Result<SceneGraphOut, SessionError> {
         let slot = self.scene_slot(scene)?;
         let slot = lock(&slot);
         Ok(convert::scene_graph(
@@ -347,20 +338,20 @@ impl Coordinator {
     }
 
     /// The current label map as an index PNG.
-    pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+    pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
         let labels = lock(&slot).state.labels.clone();
-        raster::encode_index_png(&labels).map_err(ApiError::internal)
+        raster::encode_index_png(&labels).map_err(SessionError::internal)
     }
 
     /// The current overlay as an RGB PNG.
-    pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+    pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
         let overlay = {
             let slot = lock(&slot);
             self.corrector.overlay(&slot.input.image, &slot.state)
         };
-        raster::encode_rgb_png(&overlay).map_err(ApiError::internal)
+        raster::encode_rgb_png(&overlay).map_err(SessionError::internal)
     }
 
     /// Opens a conversation on a scene for an operator.
@@ -368,7 +359,7 @@ impl Coordinator {
         &self,
         scene: SceneKey,
         operator: &str,
-    ) -> Result<ConversationOut, ApiError> {
+    ) -> Result<ConversationOut, SessionError> {
         self.scene_slot(scene)?;
         let row = lock(&self.log)
             .open_conversation(scene, operator)
