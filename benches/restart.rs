@@ -7,6 +7,8 @@
 //! chain length. The reference is that warm figure, measured in the same run on the same scene and chain.
 //! Prints, with the load average: per chain length the median cold and warm correction, their ratio, and
 //! the time to reopen the coordinator (restoring every scene from the log), which no correction waits for.
+//! Then where a cold correction's extra time goes: the scene prepared again from its registration (the
+//! superpixels, then the built-in classifier's unaries), timed alone on the same scene.
 //! A criterion group also times one warm correction.
 
 #[path = "support/demo_turns.rs"]
@@ -21,10 +23,9 @@ use demo_turns::load_average;
 use sayso::correction_log::{ConversationKey, SceneKey};
 use sayso::demo::demo_directory;
 use sayso::pipeline::model_path;
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
-use sayso::service::wire::{FocusIn, TurnStatus};
+use sayso::session::JointCorrector;
+use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
+use sayso::wire::{FocusIn, TurnStatus};
 
 /// The demo scene the chain grows on.
 const SCENE: &str = "kitchen_breakfast";
@@ -51,7 +52,6 @@ fn open(data: &Path) -> Coordinator {
             pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: demo_directory(None),
         },
-        Arc::new(Metrics::default()),
     )
     .expect("the coordinator opens")
 }
@@ -165,7 +165,6 @@ fn restart_figures() {
                     pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
                     demo_dir: demo_directory(None),
                 },
-                Arc::new(Metrics::default()),
             )
             .unwrap();
             reopen.push(started.elapsed());
@@ -206,8 +205,50 @@ fn restart_figures() {
     println!("restart: the chain ends at version {head} after {turns} turns");
 }
 
+/// The parts of preparing a registration again that a cold corrector pays on its first turn: superpixels
+/// (SLIC, statistics, adjacency, coarse level) and the built-in classifier's unaries; medians of 5.
+fn preparation_profile() {
+    let capture = sayso::pipeline::SceneSource::Demo {
+        directory: demo_directory(None),
+        name: Some(SCENE.into()),
+    }
+    .load()
+    .expect("the demo scene loads");
+    let taxonomy = sayso::pipeline::CorrectionSettings::embedded().unwrap();
+    let classifier =
+        sayso::pipeline::load_classifier(&model_path(None), taxonomy.grammar.taxonomy()).unwrap();
+    let mut slic_alone = Vec::new();
+    let mut superpixels = Vec::new();
+    let mut prepared = Vec::new();
+    let params = sayso::scene::SceneParams::default();
+    for _ in 0..5 {
+        let started = Instant::now();
+        sayso::slic::slic(&capture.image, &params.superpixels).unwrap();
+        slic_alone.push(started.elapsed());
+        let started = Instant::now();
+        sayso::pipeline::superpixels_of(&capture).unwrap();
+        superpixels.push(started.elapsed());
+        let started = Instant::now();
+        sayso::pipeline::prepare_loaded(capture.clone(), &classifier).unwrap();
+        prepared.push(started.elapsed());
+    }
+    let (slic_alone, superpixels, prepared) =
+        (median(slic_alone), median(superpixels), median(prepared));
+    println!(
+        "restart: profile: preparing {SCENE} again {:.1} ms p50: superpixels {:.1} ms (SLIC alone {:.1} ms, \
+         segment statistics, adjacency and coarse level the rest), the classifier's unaries {:.1} ms; \
+         load average {}",
+        milliseconds(prepared),
+        milliseconds(superpixels),
+        milliseconds(slic_alone),
+        milliseconds(prepared.saturating_sub(superpixels)),
+        load_average()
+    );
+}
+
 fn bench_warm(criterion: &mut Criterion) {
     restart_figures();
+    preparation_profile();
     let pixel = applied_pixel();
     let data = tempfile::tempdir().unwrap();
     let coordinator = open(data.path());

@@ -20,15 +20,14 @@ use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::{load_average, BENCH_SCENES};
+use sayso::config::ServiceConfig;
 use sayso::demo::{demo_directory, list_demo_scenes};
 use sayso::evaluation::read_pointed_notes;
 use sayso::language::constraint::Focus;
 use sayso::pipeline::model_path;
-use sayso::service::config::ServiceConfig;
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
 use sayso::service::AppState;
+use sayso::session::JointCorrector;
+use sayso::session::{Coordinator, CoordinatorSettings};
 
 /// The offered rate of the open-loop run, and how many requests it sends.
 const OFFERED_PER_SECOND: f64 = 200.0;
@@ -66,7 +65,6 @@ fn start() -> Bench {
                 pixel_limit: config.pixel_limit,
                 demo_dir: demo_dir.clone(),
             },
-            Arc::new(Metrics::default()),
         )
         .unwrap(),
     );

@@ -29,6 +29,7 @@
 //! ```
 
 pub mod color;
+pub mod config;
 pub mod correction_log;
 pub mod demo;
 pub mod energy;
@@ -47,6 +48,7 @@ pub mod retrain;
 pub mod scene;
 pub mod scenegraph;
 pub mod service;
+pub mod session;
 pub mod slic;
 pub mod solver;
 pub mod taxonomy;
@@ -55,3 +57,4 @@ pub mod tuning;
 pub mod tuning_cuts;
 pub mod turn;
 pub mod unaries;
+pub mod wire;

@@ -15,11 +15,10 @@ use std::net::SocketAddr;
 use std::sync::Arc;
 use std::time::Duration;
 
-use sayso::service::config::{OperatorToken, Role, ServiceConfig};
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
+use sayso::config::{OperatorToken, Role, ServiceConfig};
 use sayso::service::AppState;
+use sayso::session::JointCorrector;
+use sayso::session::{Coordinator, CoordinatorSettings};
 use serde_json::Value;
 use service_support::get;
 use webdriver::Browser;
@@ -68,7 +67,6 @@ fn start_service(data: &std::path::Path) -> Service {
                 pixel_limit: config.pixel_limit,
                 demo_dir: sayso::demo::demo_directory(None),
             },
-            Arc::new(Metrics::default()),
         )
         .expect("open coordinator"),
     );

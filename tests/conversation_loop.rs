@@ -388,10 +388,9 @@ mod service {
     use std::sync::Arc;
 
     use sayso::correction_log::{ConversationKey, SceneKey};
-    use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
-    use sayso::service::joint::JointCorrector;
-    use sayso::service::metrics::Metrics;
-    use sayso::service::wire::{TurnStatus, UtteranceReply};
+    use sayso::session::JointCorrector;
+    use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
+    use sayso::wire::{TurnStatus, UtteranceReply};
 
     fn open(data: &Path) -> Coordinator {
         let engine = JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier");
@@ -402,7 +401,6 @@ mod service {
                 pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
                 demo_dir: sayso::demo::demo_directory(None),
             },
-            Arc::new(Metrics::default()),
         )
         .expect("open")
     }

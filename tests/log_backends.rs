@@ -9,8 +9,8 @@ mod postgres_support;
 use std::sync::{Arc, Barrier};
 
 use sayso::correction_log::{
-    export_dataset, CorrectionLog, LogError, NewScene, NewTurn, PostgresLog, StateRecord,
-    TurnEffect, VersionKey, LOG_SCHEMA_VERSION,
+    export_dataset, ConversationKey, CorrectionLog, LogError, NewScene, NewTurn, PostgresLog,
+    SceneKey, StateRecord, TurnEffect, TurnMark, VersionKey, LOG_SCHEMA_VERSION,
 };
 use sayso::raster::{encode_index_png, IndexImage};
 
@@ -350,6 +350,81 @@ fn race(first: CorrectionLog, second: CorrectionLog) {
     assert_eq!(chain.len(), ROUNDS + 1, "one version a round, in one line");
     assert_eq!(log.training_examples().unwrap().len(), ROUNDS);
     assert_eq!(log.turn_count().unwrap() as usize, ROUNDS);
+}
+
+/// What one handle writes, another handle on the same store reads back through the one-row lookups a
+/// replica makes at each turn: the scene's row and head, the conversation's row, its turn mark.
+fn lookups(writer: CorrectionLog, reader: CorrectionLog) {
+    let mut writer = writer;
+    let (scene, first) = writer
+        .register_scene(&NewScene {
+            name: "juniper-lane-pantry",
+            image_png: &labels(9),
+            input_json: "{}",
+            parts: &[],
+            operator: "odile",
+            state: &state(1),
+        })
+        .unwrap();
+    assert_eq!(
+        reader.scene(scene).unwrap().as_ref(),
+        reader.scenes().unwrap().first()
+    );
+    assert_eq!(reader.scene_head(scene).unwrap(), Some(first));
+    assert_eq!(reader.scene(SceneKey(scene.0 + 100)).unwrap(), None);
+    assert_eq!(reader.scene_head(SceneKey(scene.0 + 100)).unwrap(), None);
+    let conversation = writer.open_conversation(scene, "odile").unwrap().key;
+    assert_eq!(reader.turn_mark(conversation).unwrap(), TurnMark::default());
+    let (turn_key, second) = writer
+        .commit_turn(
+            &turn(conversation, "utterance", "odile", new_version(first, 2)),
+            Some((&[], &[])),
+        )
+        .unwrap();
+    assert_eq!(reader.scene_head(scene).unwrap(), second);
+    let mark = reader.turn_mark(conversation).unwrap();
+    assert_eq!(mark, TurnMark::default().after(turn_key));
+    let (later, _) = writer
+        .commit_turn(
+            &turn(conversation, "utterance", "odile", TurnEffect::None),
+            None,
+        )
+        .unwrap();
+    assert_eq!(reader.turn_mark(conversation).unwrap(), mark.after(later));
+    assert_eq!(
+        reader.turn_mark(conversation).unwrap().count as usize,
+        reader.turns(conversation).unwrap().len()
+    );
+    let stored = reader.conversation(conversation).unwrap().unwrap();
+    assert_eq!(stored.applied_stack, vec![second.unwrap()]);
+    assert_eq!(Some(&stored), reader.conversations().unwrap().first());
+    assert_eq!(
+        reader
+            .conversation(ConversationKey(conversation.0 + 100))
+            .unwrap(),
+        None
+    );
+    assert_eq!(reader.scene_keys().unwrap(), vec![scene]);
+    assert_eq!(reader.conversation_keys().unwrap(), vec![conversation]);
+    assert!(!writer.is_shared() || reader.is_shared());
+}
+
+#[test]
+fn a_second_handle_reads_what_the_first_wrote_on_sqlite() {
+    let directory = tempfile::tempdir().unwrap();
+    let (writer, reader) = (sqlite_log(&directory), sqlite_log(&directory));
+    assert!(!writer.is_shared(), "a SQLite file belongs to one process");
+    lookups(writer, reader);
+}
+
+#[test]
+fn a_second_replica_reads_what_the_first_wrote_on_postgresql() {
+    let url = postgres_support::fresh_database();
+    let writer = postgres_log(&url);
+    let reader =
+        CorrectionLog::connect(&sayso::correction_log::LogLocation::Postgres(url)).unwrap();
+    assert!(reader.is_shared(), "a PostgreSQL log is shared by replicas");
+    lookups(writer, reader);
 }
 
 #[test]

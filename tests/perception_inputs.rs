@@ -402,11 +402,10 @@ fn router_with(
     body_limit_bytes: usize,
     user_model: Option<&Path>,
 ) -> (tempfile::TempDir, axum::Router) {
+    use sayso::config::ServiceConfig;
     use sayso::pipeline::model_path;
-    use sayso::service::config::ServiceConfig;
-    use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
-    use sayso::service::joint::JointCorrector;
-    use sayso::service::metrics::Metrics;
+    use sayso::session::JointCorrector;
+    use sayso::session::{Coordinator, CoordinatorSettings};
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {
         data_dir: data.path().to_path_buf(),
@@ -420,7 +419,6 @@ fn router_with(
             pixel_limit: config.pixel_limit,
             demo_dir: config.demo_directory(),
         },
-        Arc::new(Metrics::default()),
     )
     .unwrap();
     if let Some(path) = user_model {

@@ -192,11 +192,10 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
 /// The service over the joint pipeline and built-in classifier, its log in a fresh directory (returned so it
 /// lives as long as the router).
 fn service() -> (tempfile::TempDir, axum::Router) {
+    use sayso::config::ServiceConfig;
     use sayso::pipeline::model_path;
-    use sayso::service::config::ServiceConfig;
-    use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
-    use sayso::service::joint::JointCorrector;
-    use sayso::service::metrics::Metrics;
+    use sayso::session::JointCorrector;
+    use sayso::session::{Coordinator, CoordinatorSettings};
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {
         data_dir: data.path().to_path_buf(),
@@ -209,7 +208,6 @@ fn service() -> (tempfile::TempDir, axum::Router) {
             pixel_limit: config.pixel_limit,
             demo_dir: config.demo_directory(),
         },
-        Arc::new(Metrics::default()),
     )
     .unwrap();
     let app = sayso::service::app(sayso::service::AppState::new(Arc::new(coordinator), config));

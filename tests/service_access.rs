@@ -6,8 +6,8 @@ mod service_support;
 
 use std::sync::Arc;
 
+use sayso::config::{OperatorToken, Role, ServiceConfig};
 use sayso::raster::IndexImage;
-use sayso::service::config::{OperatorToken, Role, ServiceConfig};
 use service_support::*;
 
 const CAT: u16 = 40;

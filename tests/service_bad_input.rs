@@ -1,10 +1,10 @@
-//! Bad input over HTTP: each case gets the right status and stable error code in the JSON error shape,
+//! Bad input through the router: each case gets the right status and stable error code in the JSON error shape,
 //! and the service still serves the next request.
 
 mod service_support;
 
+use sayso::config::{OperatorToken, ServiceConfig};
 use sayso::raster::IndexImage;
-use sayso::service::config::{OperatorToken, ServiceConfig};
 use service_support::*;
 
 const TOKEN: &str = "juniper-lane-mira-0001";
@@ -14,7 +14,7 @@ fn config() -> ServiceConfig {
         operators: vec![OperatorToken {
             name: "mira".into(),
             token: TOKEN.into(),
-            role: sayso::service::config::Role::Operator,
+            role: sayso::config::Role::Operator,
         }],
         body_limit_bytes: 64 * 1024,
         pixel_limit: 10_000,
@@ -59,8 +59,8 @@ fn case(
 #[test]
 fn every_bad_request_is_named_and_the_next_request_is_served() {
     let data = tempfile::tempdir().unwrap();
-    let service = start_service(data.path(), config());
-    let address = service.address;
+    let service = route_service(data.path(), config());
+    let address = &service;
     let (scene, conversation) =
         scene_and_conversation(address, Some(TOKEN), &IndexImage::filled(8, 8, 0));
     let utterances = format!("/v1/conversations/{conversation}/utterances");
@@ -392,7 +392,7 @@ fn every_bad_request_is_named_and_the_next_request_is_served() {
 #[test]
 fn a_caller_over_the_rate_is_told_to_wait() {
     let data = tempfile::tempdir().unwrap();
-    let service = start_service(
+    let service = route_service(
         data.path(),
         ServiceConfig {
             rate_per_second: 1.0,
@@ -400,7 +400,7 @@ fn a_caller_over_the_rate_is_told_to_wait() {
             ..config()
         },
     );
-    let address = service.address;
+    let address = &service;
     let statuses: Vec<u16> = (0..5)
         .map(|_| get(address, "/v1/classes", Some(TOKEN)).status)
         .collect();

@@ -5,8 +5,8 @@ mod service_support;
 
 use std::collections::HashMap;
 
+use sayso::config::ServiceConfig;
 use sayso::raster::{self, IndexImage};
-use sayso::service::config::ServiceConfig;
 use service_support::*;
 
 const MUG: u16 = 21;
@@ -15,7 +15,7 @@ const TOWEL: u16 = 37;
 #[test]
 fn concurrent_conversations_lose_no_update() {
     let data = tempfile::tempdir().unwrap();
-    let service = start_service(
+    let service = route_service(
         data.path(),
         ServiceConfig {
             rate_per_second: 100_000.0,
@@ -23,7 +23,7 @@ fn concurrent_conversations_lose_no_update() {
             ..ServiceConfig::default()
         },
     );
-    let address = service.address;
+    let address = &service;
     // Two shared scenes (four conversations each) and four scenes of their own.
     let shared: Vec<i64> = (0..2)
         .map(|_| scene_and_conversation(address, None, &IndexImage::filled(16, 16, 0)).0)
@@ -52,7 +52,9 @@ fn concurrent_conversations_lose_no_update() {
     let threads: Vec<_> = plans
         .into_iter()
         .map(|(worker, scene, conversation)| {
+            let service = service.clone();
             std::thread::spawn(move || {
+                let address = &service;
                 let mut acknowledged = Vec::new();
                 // Each worker owns two rows of the scene: no two workers paint the same pixel.
                 let row = (worker / 2) % 8 * 2;

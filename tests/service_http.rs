@@ -1,10 +1,10 @@
-//! End-to-end over real HTTP on loopback: register, read, converse, confirm, undo, redo, history,
+//! End-to-end through the router (no socket): register, read, converse, confirm, undo, redo, history,
 //! metrics, OpenAPI; then a restart restores everything, and the export and field notes read the log.
 
 mod service_support;
 
+use sayso::config::ServiceConfig;
 use sayso::raster::{self, IndexImage};
-use sayso::service::config::ServiceConfig;
 use service_support::*;
 
 const CAT: u16 = 40;
@@ -18,8 +18,8 @@ fn a_conversation_corrects_a_scene_and_survives_a_restart() {
     let mut labels = IndexImage::filled(6, 4, 0);
     labels.set(2, 1, CAT);
     let (scene_id, conversation_id, history_before, graph_before) = {
-        let service = start_service(data.path(), ServiceConfig::default());
-        let address = service.address;
+        let service = route_service(data.path(), ServiceConfig::default());
+        let address = &service;
         let health = get(address, "/v1/health", None);
         assert_eq!(health.status, 200);
         assert_eq!(health.json()["status"], "ok");
@@ -184,8 +184,8 @@ fn a_conversation_corrects_a_scene_and_survives_a_restart() {
     };
 
     // A new service on the same data directory has every scene and conversation back.
-    let service = start_service(data.path(), ServiceConfig::default());
-    let address = service.address;
+    let service = route_service(data.path(), ServiceConfig::default());
+    let address = &service;
     assert_eq!(
         get(address, &format!("/v1/scenes/{scene_id}"), None).json(),
         graph_before
@@ -261,22 +261,21 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
     let data = tempfile::tempdir().unwrap();
     let coordinator = open_grid_coordinator(data.path());
     // A second process (or coordinator) on the same log is refused while the first holds it.
-    let second = sayso::service::coordinator::Coordinator::open(
+    let second = sayso::session::Coordinator::open(
         std::sync::Arc::new(GridEngine::new()),
-        &sayso::service::coordinator::CoordinatorSettings {
+        &sayso::session::CoordinatorSettings {
             log_path: data.path().join("corrections.sqlite"),
             pixel_limit: 1 << 20,
             demo_dir: data.path().to_path_buf(),
         },
-        std::sync::Arc::new(sayso::service::metrics::Metrics::default()),
     );
     assert!(matches!(
         second,
-        Err(sayso::service::coordinator::OpenError::InUse { .. })
+        Err(sayso::session::OpenError::InUse { .. })
     ));
     let mut labels = IndexImage::filled(4, 4, 0);
     labels.set(1, 1, CAT);
-    let upload = sayso::service::coordinator::SceneUpload {
+    let upload = sayso::session::SceneUpload {
         image_png: Some(raster::encode_rgb_png(&picture(4, 4)).unwrap()),
         label_map_png: Some(raster::encode_index_png(&labels).unwrap()),
         ..Default::default()
@@ -290,7 +289,7 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
          999\tpaint mug\n"
     );
     let mut ticks = Vec::new();
-    let report = sayso::service::field_notes::apply_notes(
+    let report = sayso::session::field_notes::apply_notes(
         &coordinator,
         &notes,
         "field-notes",
@@ -329,19 +328,17 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
 
 #[test]
 fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
-    use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
+    use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
     let data = tempfile::tempdir().unwrap();
     let coordinator = Coordinator::open(
         std::sync::Arc::new(
-            sayso::service::joint::JointCorrector::load(&sayso::pipeline::model_path(None))
-                .unwrap(),
+            sayso::session::JointCorrector::load(&sayso::pipeline::model_path(None)).unwrap(),
         ),
         &CoordinatorSettings {
             log_path: data.path().join("corrections.sqlite"),
             pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes"),
         },
-        std::sync::Arc::new(sayso::service::metrics::Metrics::default()),
     )
     .unwrap();
     let created = coordinator
@@ -382,10 +379,10 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
             sayso::correction_log::ConversationKey(conversation.conversation_id),
             "mira",
             "no, that's a rug, not a box",
-            Some(sayso::service::wire::FocusIn::Pixel { x, y }),
+            Some(sayso::wire::FocusIn::Pixel { x, y }),
         )
         .unwrap();
-    assert_eq!(reply.status, sayso::service::wire::TurnStatus::Applied);
+    assert_eq!(reply.status, sayso::wire::TurnStatus::Applied);
     // The joint solve relabels the pointed-at region (and may move other labels with it).
     assert!(
         reply

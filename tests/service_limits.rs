@@ -11,9 +11,9 @@ use std::net::TcpStream;
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
+use sayso::config::ServiceConfig;
 use sayso::raster::{IndexImage, RgbImage};
-use sayso::service::config::ServiceConfig;
-use sayso::service::corrector::{
+use sayso::session::corrector::{
     CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput, SceneState,
 };
 use sayso::taxonomy::Taxonomy;

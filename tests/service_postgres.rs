@@ -1,7 +1,7 @@
 //! The service on a PostgreSQL log (a real server, `tests/postgres_support`): `sayso migrate` prepares the
-//! database, the coordinator restores what it wrote after a restart (read from the stored snapshot, no chain
-//! replayed), one coordinator per database while scenes live in its memory, and `sayso export` reads the
-//! same store.
+//! database, two replicas on one database serve one conversation turn about turn, the coordinator restores
+//! what it wrote after a restart (read from the stored snapshot, no chain replayed), and `sayso export`
+//! reads the same store.
 
 mod postgres_support;
 mod service_support;
@@ -11,10 +11,9 @@ use std::sync::Arc;
 
 use sayso::correction_log::{ConversationKey, SceneKey};
 use sayso::raster::IndexImage;
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
-use sayso::service::wire::{FocusIn, TurnStatus};
+use sayso::session::JointCorrector;
+use sayso::session::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
+use sayso::wire::{FocusIn, TurnStatus};
 use service_support::picture_of;
 
 const FLOOR: u16 = 0;
@@ -46,7 +45,6 @@ fn open(url: &str, corrector: Arc<JointCorrector>) -> Result<Coordinator, OpenEr
             pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: std::path::PathBuf::from("none"),
         },
-        Arc::new(Metrics::default()),
     )
 }
 
@@ -112,25 +110,41 @@ fn the_service_keeps_its_log_on_postgresql_across_a_restart() {
     assert!(ok && said.contains("nothing to do"), "{said}");
 
     let (scene, conversation, label_map) = {
-        let coordinator = open(&url, engine()).expect("opens on the migrated database");
-        // One coordinator per database while scenes live in its memory.
-        let second = open(&url, engine())
-            .err()
-            .expect("a second coordinator is refused");
-        assert!(matches!(second, OpenError::InUse { .. }), "{second}");
-        let (scene, conversation) = register(&coordinator);
-        for text in ["that's a towel", "no, it's a mug", "that's a towel"] {
+        // Any number of replicas on one database: a conversation's turns alternate between two, and
+        // each reads what the other wrote (the scene's head and the conversation's turns) before solving.
+        let first = open(&url, engine()).expect("opens on the migrated database");
+        let second = open(&url, engine()).expect("a second replica opens on the same database");
+        let (scene, conversation) = register(&first);
+        let replicas = [&first, &second];
+        for (index, text) in ["that's a towel", "no, it's a mug", "that's a towel"]
+            .into_iter()
+            .enumerate()
+        {
+            let (speaking, other) = (replicas[index % 2], replicas[(index + 1) % 2]);
             assert_eq!(
-                say(&coordinator, conversation, text),
+                say(speaking, conversation, text),
                 TurnStatus::Applied,
                 "{text}"
             );
+            assert_eq!(
+                other.label_map_png(scene).unwrap(),
+                speaking.label_map_png(scene).unwrap(),
+                "after {text:?} both replicas show the same head"
+            );
         }
-        (
-            scene,
-            conversation,
-            coordinator.label_map_png(scene).unwrap(),
-        )
+        let history = first.history(conversation).expect("the history reads");
+        assert_eq!(
+            history.turns.len(),
+            3,
+            "the first replica sees the second's turn"
+        );
+        assert_eq!(first.scene_ids(), second.scene_ids());
+        assert_eq!(
+            second.health().unwrap().conversations,
+            1,
+            "counts come from the database"
+        );
+        (scene, conversation, first.label_map_png(scene).unwrap())
     };
 
     let corrector = engine();

@@ -10,10 +10,9 @@ use std::sync::Arc;
 
 use sayso::correction_log::{ConversationKey, SceneKey};
 use sayso::raster::IndexImage;
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings, SceneUpload};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
-use sayso::service::wire::{FocusIn, TurnStatus};
+use sayso::session::JointCorrector;
+use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
+use sayso::wire::{FocusIn, TurnStatus};
 use service_support::picture_of;
 
 const FLOOR: u16 = 0;
@@ -37,7 +36,6 @@ fn open_with(data: &Path, corrector: Arc<JointCorrector>) -> Coordinator {
             pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: data.join("none"),
         },
-        Arc::new(Metrics::default()),
     )
     .expect("open")
 }

@@ -10,8 +10,8 @@ use std::process::Command;
 
 use sayso::correction_log::CorrectionLog;
 use sayso::demo::load_demo_scene;
-use sayso::service::corrector::{Corrector, SceneInput};
-use sayso::service::joint::JointCorrector;
+use sayso::session::corrector::{Corrector, SceneInput};
+use sayso::session::JointCorrector;
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::classifier::model_id;
 use sayso::unaries::onnx_reader::read_mlp;
@@ -301,6 +301,7 @@ fn a_running_corrector_swaps_its_model_and_names_it_in_each_state() {
         detections: Vec::new(),
         room: None,
         classes: Default::default(),
+        superpixels: None,
     };
     let shipped = Path::new(env!("CARGO_MANIFEST_DIR")).join("models/segment_classifier.onnx");
     let corrector = JointCorrector::load(&shipped).unwrap();

@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use indicatif::{ProgressBar, ProgressStyle};
 use sayso::correction_log::{export_dataset_showing, CorrectionLog, LeftOutReason};
 
-use super::serve::ServiceFlags;
+use super::open_log::ServiceFlags;
 
 /// Write every accepted correction as a training example (image.png, labels.png, labels_before.png,
 /// scene.json per example; index.jsonl; classes.json).
@@ -22,7 +22,7 @@ pub struct ExportArgs {
 
 pub fn run(args: ExportArgs) -> anyhow::Result<()> {
     let config = args.service.config()?;
-    let corrector = super::serve::corrector(&config)?;
+    let corrector = super::open_log::corrector(&config)?;
     let log = CorrectionLog::connect(&config.log_location())?;
     let progress = ProgressBar::new(0);
     if let Ok(style) = ProgressStyle::with_template("exporting {bar:30} example {pos}/{len}") {

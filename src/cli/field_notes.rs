@@ -1,14 +1,14 @@
 //! `sayso field-notes`: apply a file of field notes to stored scenes, with a progress bar and a report.
 //!
 //! Owns: the command's flags, the progress bar and the printed tally. Must not: apply notes itself
-//! (`sayso::service::field_notes` does, through the same rules as the service).
+//! (`sayso::session::field_notes` does, through the session layer the service also uses).
 
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::service::field_notes::apply_notes;
+use sayso::session::field_notes::apply_notes;
 
-use super::serve::{open_coordinator, ServiceFlags};
+use super::open_log::{open_coordinator, ServiceFlags};
 
 /// Apply field notes (JSON Lines `{"scene_id", "text", "focus"}` or TSV `scene id<TAB>utterance`) to
 /// stored scenes and write a JSON report: applied, needs confirmation, needs clarification, not

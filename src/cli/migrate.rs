@@ -6,7 +6,7 @@
 use anyhow::Context;
 use sayso::correction_log::{CorrectionLog, LOG_SCHEMA_VERSION};
 
-use super::serve::ServiceFlags;
+use super::open_log::ServiceFlags;
 
 /// Apply the correction log's pending schema migrations (a PostgreSQL database is never migrated by
 /// `serve`: run this once before starting replicas of a new build).

@@ -12,6 +12,7 @@ mod field_notes;
 pub mod fix;
 mod migrate;
 mod model_watch;
+mod open_log;
 mod parse;
 mod perception;
 mod render;

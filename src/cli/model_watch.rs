@@ -10,8 +10,8 @@ use std::path::PathBuf;
 use std::sync::Arc;
 use std::time::{Duration, SystemTime};
 
-use sayso::service::corrector::Corrector;
-use sayso::service::joint::JointCorrector;
+use sayso::session::Corrector;
+use sayso::session::JointCorrector;
 use sayso::unaries::{current_feature_layout, Classifier};
 
 /// How often the file's size and modification time are looked at (a stat call: cheap).

@@ -13,8 +13,7 @@ use std::sync::Arc;
 use anyhow::Context;
 use sayso::raster::{read_index_png, DEFAULT_PIXEL_LIMIT};
 use sayso::scene::files::perception_files;
-use sayso::service::coordinator::SceneUpload;
-use sayso::service::wire::{DetectionIn, MaskRunsIn, PixelBox};
+use sayso::session::SceneUpload;
 use sayso::taxonomy::Taxonomy;
 use sayso::unaries::byo::SynonymTable;
 use sayso::unaries::byo_detections::parse_detections;
@@ -22,6 +21,7 @@ use sayso::unaries::byo_npy::{encode_npy_f32, read_npy};
 use sayso::unaries::byo_pixel_scores::{ScoreKind, ScoreLayout};
 use sayso::unaries::byo_user_model::UserModel;
 use sayso::unaries::perception::{read_class_list, LabelMap, Perception, PixelScores, ScoreSource};
+use sayso::wire::{DetectionIn, MaskRunsIn, PixelBox};
 
 /// How the numbers of a scores file are to be read.
 #[derive(Clone, Copy, Debug, clap::ValueEnum)]

@@ -10,10 +10,10 @@ use anyhow::Context;
 use sayso::raster::{encode_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
 use sayso::scene::files::image_file;
 use sayso::scene::load_capture;
-use sayso::service::coordinator::SceneUpload;
+use sayso::session::SceneUpload;
 use sayso::taxonomy::Taxonomy;
 
-use super::serve::{open_coordinator, ServiceFlags};
+use super::open_log::{open_coordinator, ServiceFlags};
 
 /// Register demo scenes by name, a scene from an image (PNG or JPEG) with an optional depth PNG and the
 /// robot's own perception, or a scene directory, in the correction log; prints each new scene id.

@@ -12,7 +12,7 @@ use super::postgres::PostgresLog;
 use super::store::SqliteLog;
 use super::{
     ConversationKey, ConversationRow, ExampleRow, LogError, NewScene, NewTurn, PendingRow,
-    SceneKey, SceneRow, StateRecord, TurnKey, TurnRow, TurnStacks, VersionKey,
+    SceneKey, SceneRow, StateRecord, TurnKey, TurnMark, TurnRow, TurnStacks, VersionKey,
 };
 
 /// Where the log lives.
@@ -216,5 +216,44 @@ impl CorrectionLog {
     /// Rejected proposals (scene name, the rejecting turn's text), oldest first.
     pub fn rejected_turns(&self) -> Result<Vec<(String, String)>, LogError> {
         dispatch!(self, log => log.rejected_turns())
+    }
+
+    /// Whether other processes may write to this log while it is open (a PostgreSQL database shared by
+    /// replicas); a SQLite file belongs to one process.
+    pub fn is_shared(&self) -> bool {
+        matches!(self, CorrectionLog::Postgres(_))
+    }
+
+    /// One stored scene, if there is one with this key.
+    pub fn scene(&self, scene: SceneKey) -> Result<Option<SceneRow>, LogError> {
+        dispatch!(self, log => log.scene(scene))
+    }
+
+    /// A scene's head version, if there is such a scene.
+    pub fn scene_head(&self, scene: SceneKey) -> Result<Option<VersionKey>, LogError> {
+        dispatch!(self, log => log.scene_head(scene))
+    }
+
+    /// One stored conversation, if there is one with this key.
+    pub fn conversation(
+        &self,
+        conversation: ConversationKey,
+    ) -> Result<Option<ConversationRow>, LogError> {
+        dispatch!(self, log => log.conversation(conversation))
+    }
+
+    /// How many turns a conversation has and the latest one.
+    pub fn turn_mark(&self, conversation: ConversationKey) -> Result<TurnMark, LogError> {
+        dispatch!(self, log => log.turn_mark(conversation))
+    }
+
+    /// Every scene's key, ascending.
+    pub fn scene_keys(&self) -> Result<Vec<SceneKey>, LogError> {
+        dispatch!(self, log => log.scene_keys())
+    }
+
+    /// Every conversation's key, ascending.
+    pub fn conversation_keys(&self) -> Result<Vec<ConversationKey>, LogError> {
+        dispatch!(self, log => log.conversation_keys())
     }
 }

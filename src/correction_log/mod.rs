@@ -40,6 +40,7 @@ mod checkpoint;
 mod export;
 mod export_filter;
 mod group;
+mod lookup;
 mod postgres;
 mod schema;
 mod store;
@@ -50,6 +51,7 @@ pub use checkpoint::BackgroundCheckpoints;
 pub use export::{export_dataset, export_dataset_showing, ExportError, ExportSummary};
 pub use export_filter::{LeftOut, LeftOutReason, CONTRADICTED_SHARE};
 pub use group::{GroupCommit, GroupCommitCounts, TurnWritten};
+pub use lookup::TurnMark;
 pub use postgres::{redact as redact_address, PostgresLog};
 pub use schema::LOG_SCHEMA_VERSION;
 pub use store::{

@@ -310,7 +310,7 @@ fn write_turn(
 
 /// The correction log on SQLite: one connection on `<data dir>/...sqlite`.
 pub struct SqliteLog {
-    connection: Connection,
+    pub(super) connection: Connection,
     path: PathBuf,
 }
 

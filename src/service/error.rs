@@ -1,14 +1,16 @@
 //! The service's one error type and its one JSON shape, `{"code": ..., "message": ...}`.
 //!
-//! Owns: `ApiError`, the stable error codes, their HTTP statuses, and the rule that a 5xx answer never
-//! carries internals (they are logged with tracing instead).
-//! Must not: decide when an error happens; handlers and the coordinator do.
+//! Owns: `ApiError`, the stable error codes of the HTTP layer, the HTTP status of every session error kind
+//! (`From<SessionError>`), and the rule that a 5xx answer never carries internals (they are logged with
+//! tracing instead).
+//! Must not: decide when an error happens; handlers, the guard and the session do.
 
 use axum::http::StatusCode;
 use axum::response::{IntoResponse, Response};
 use axum::Json;
 
-use super::wire::ErrorBody;
+use crate::session::{ErrorKind, SessionError};
+use crate::wire::ErrorBody;
 
 /// A failure answered to the caller.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -74,6 +76,32 @@ impl ApiError {
     }
 }
 
+/// The HTTP status a session error is answered with.
+pub fn status_of(kind: ErrorKind) -> StatusCode {
+    match kind {
+        ErrorKind::Malformed => StatusCode::BAD_REQUEST,
+        ErrorKind::Unknown => StatusCode::NOT_FOUND,
+        ErrorKind::NotYours => StatusCode::FORBIDDEN,
+        ErrorKind::Conflict => StatusCode::CONFLICT,
+        ErrorKind::Unusable => StatusCode::UNPROCESSABLE_ENTITY,
+        ErrorKind::TooLarge => StatusCode::PAYLOAD_TOO_LARGE,
+        ErrorKind::Withdrawn => StatusCode::SERVICE_UNAVAILABLE,
+        // `ErrorKind` may grow; a kind not mapped yet is our fault, never the caller's.
+        _ => StatusCode::INTERNAL_SERVER_ERROR,
+    }
+}
+
+impl From<SessionError> for ApiError {
+    fn from(error: SessionError) -> ApiError {
+        // The session already logged an internal fault's detail and kept it out of the message.
+        ApiError {
+            status: status_of(error.kind),
+            code: error.code,
+            message: error.message,
+        }
+    }
+}
+
 impl IntoResponse for ApiError {
     fn into_response(self) -> Response {
         (self.status, Json(self.body())).into_response()
@@ -122,5 +150,30 @@ pub fn code_for_status(status: StatusCode) -> (&'static str, &'static str) {
             "the service hit an internal fault; the request was not applied, try again",
         ),
         _ => ("bad_request", "the request could not be read"),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_session_error_kind_has_its_own_status() {
+        let kinds = [
+            (ErrorKind::Malformed, 400),
+            (ErrorKind::Unknown, 404),
+            (ErrorKind::NotYours, 403),
+            (ErrorKind::Conflict, 409),
+            (ErrorKind::Unusable, 422),
+            (ErrorKind::TooLarge, 413),
+            (ErrorKind::Withdrawn, 503),
+            (ErrorKind::Internal, 500),
+        ];
+        for (kind, status) in kinds {
+            assert_eq!(status_of(kind).as_u16(), status, "{kind:?}");
+        }
+        let answered = ApiError::from(SessionError::conflict("nothing_to_undo", "no change"));
+        assert_eq!(answered.status, StatusCode::CONFLICT);
+        assert_eq!(answered.code, "nothing_to_undo");
     }
 }

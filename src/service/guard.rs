@@ -22,10 +22,11 @@ use sha2::{Digest, Sha256};
 use subtle::ConstantTimeEq;
 
 use super::abandon::{CommitGate, REQUEST_GATE};
-use super::config::{OperatorToken, Role};
-use super::coordinator::Caller;
 use super::error::{code_for_status, ApiError};
 use super::AppState;
+use crate::config::OperatorToken;
+use crate::session::Caller;
+use crate::session::Role;
 
 /// The operator name used when the service runs without tokens (loopback only). With no tokens there is
 /// no telling callers apart, so this caller acts as a supervisor.

@@ -1,4 +1,4 @@
-//! Route handlers: read the request, hand the work to the coordinator on a blocking thread, answer.
+//! Route handlers: read the request, hand the work to the session's coordinator on a blocking thread, answer.
 //!
 //! Owns: extracting and checking path ids and JSON bodies (every rejection in the JSON error shape), the
 //! status codes of successful answers, and each route's OpenAPI description.
@@ -15,36 +15,38 @@ use axum::{Extension, Json};
 use crate::correction_log::{ConversationKey, SceneKey};
 
 use super::abandon;
-use super::coordinator::{Caller, Coordinator, PageRequest, SceneUpload};
 use super::error::ApiError;
 use super::guard::bytes_response;
-use super::wire::{
+use super::AppState;
+use crate::session::abandon::with_gate;
+use crate::session::{Caller, Coordinator, PageRequest, SceneUpload, SessionError};
+use crate::wire::{
     ClassOut, ConversationOut, ConversationPage, ErrorBody, HealthOut, HistoryOut,
     OpenConversationRequest, PageQuery, RegisterSceneRequest, SceneCreated, SceneGraphOut,
     ScenePage, TurnReply, UtteranceReply, UtteranceRequest,
 };
-use super::AppState;
 
 /// Runs `work` on a blocking thread, under the request's commit gate (`super::abandon`).
 async fn blocking<T: Send + 'static>(
     state: &AppState,
-    work: impl FnOnce(&Coordinator) -> Result<T, ApiError> + Send + 'static,
+    work: impl FnOnce(&Coordinator) -> Result<T, SessionError> + Send + 'static,
 ) -> Result<T, ApiError> {
     let coordinator: Arc<Coordinator> = state.coordinator.clone();
     let gate = abandon::current_request_gate();
-    tokio::task::spawn_blocking(move || abandon::with_gate(gate, || work(&coordinator)))
+    tokio::task::spawn_blocking(move || with_gate(gate, || work(&coordinator)))
         .await
         .map_err(ApiError::internal)?
+        .map_err(ApiError::from)
 }
 
 fn page(query: Result<Query<PageQuery>, QueryRejection>) -> Result<PageRequest, ApiError> {
     match query {
-        Ok(Query(query)) => PageRequest::new(query.after, query.limit),
+        Ok(Query(query)) => PageRequest::new(query.after, query.limit).map_err(ApiError::from),
         Err(error) => Err(ApiError::bad_request(
             "bad_page",
             format!(
                 "the query takes after (an id, 0 or more) and limit (1 to {}): {}",
-                super::coordinator::PAGE_LIMIT_MAX,
+                crate::session::PAGE_LIMIT_MAX,
                 error.body_text()
             ),
         )),
@@ -372,7 +374,7 @@ pub async fn utterance(
     let result = async {
         let conversation = ConversationKey(path_id(&conversation_id, "conversation")?);
         let request = body(payload, &state)?;
-        super::coordinator::check_utterance_text(&request.text)?;
+        crate::session::check_utterance_text(&request.text)?;
         blocking(&state, move |coordinator| {
             coordinator.check_access(conversation, &caller)?;
             coordinator.utterance(conversation, &caller.name, &request.text, request.focus)

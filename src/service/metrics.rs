@@ -1,7 +1,8 @@
 //! Counters and histograms, rendered in the Prometheus text exposition format (version 0.0.4).
 //!
-//! Owns: `Metrics` — requests by route, method and status; request latency histogram by route; solver gap
-//! histogram; turns and corrections logged — and their text rendering.
+//! Owns: `Metrics` — requests by route, method and status; request latency histogram by route — and the text
+//! rendering of those and of the session's counters (`crate::session::TurnCounters`: solver gap histogram,
+//! turns and corrections logged).
 //! Must not: time anything itself beyond what callers record, or depend on handler internals.
 //!
 //! Labels are bounded: callers pass route templates and a closed set of methods (`guard::method_label`),
@@ -10,8 +11,9 @@
 
 use std::collections::BTreeMap;
 use std::fmt::Write;
-use std::sync::atomic::{AtomicU64, Ordering};
-use std::sync::Mutex;
+use std::sync::{Arc, Mutex};
+
+use crate::session::counters::{TurnCounters, GAP_BUCKETS};
 
 /// Upper bounds (seconds) of the request latency buckets.
 const LATENCY_BUCKETS: [f64; 12] = [
@@ -19,9 +21,6 @@ const LATENCY_BUCKETS: [f64; 12] = [
 ];
 /// The most request label sets (route, method, status) kept; later new ones count under `route="other"`.
 pub const SERIES_LIMIT: usize = 512;
-
-/// Upper bounds of the relative solver gap buckets.
-const GAP_BUCKETS: [f64; 7] = [0.0, 0.001, 0.01, 0.02, 0.05, 0.1, 0.5];
 
 #[derive(Default, Clone)]
 struct Histogram {
@@ -73,9 +72,8 @@ impl Histogram {
 pub struct Metrics {
     requests: Mutex<BTreeMap<(String, String, u16), u64>>,
     latency: Mutex<BTreeMap<String, Histogram>>,
-    solver_gap: Mutex<Histogram>,
-    turns_logged: AtomicU64,
-    corrections_logged: AtomicU64,
+    /// What the session counts (turns, corrections, solver gaps), rendered with the rest.
+    session: Arc<TurnCounters>,
 }
 
 fn escape_label(value: &str) -> String {
@@ -86,6 +84,14 @@ fn escape_label(value: &str) -> String {
 }
 
 impl Metrics {
+    /// Metrics that also render the session's `counters`.
+    pub fn over(counters: Arc<TurnCounters>) -> Metrics {
+        Metrics {
+            session: counters,
+            ..Metrics::default()
+        }
+    }
+
     /// Records one finished request.
     pub fn record_request(&self, route: &str, method: &str, status: u16, seconds: f64) {
         let mut route = route;
@@ -106,26 +112,6 @@ impl Metrics {
                 .or_default()
                 .observe(&LATENCY_BUCKETS, seconds);
         }
-    }
-
-    /// Records a solver's relative gap.
-    pub fn record_solver_gap(&self, gap: f64) {
-        if let Ok(mut histogram) = self.solver_gap.lock() {
-            histogram.observe(&GAP_BUCKETS, gap);
-        }
-    }
-
-    /// Records one committed turn, and whether it made a correction (a new scene version).
-    pub fn record_turn(&self, made_correction: bool) {
-        self.turns_logged.fetch_add(1, Ordering::Relaxed);
-        if made_correction {
-            self.corrections_logged.fetch_add(1, Ordering::Relaxed);
-        }
-    }
-
-    /// Corrections logged since start.
-    pub fn corrections_logged(&self) -> u64 {
-        self.corrections_logged.load(Ordering::Relaxed)
     }
 
     /// The text exposition.
@@ -161,9 +147,13 @@ impl Metrics {
             "# HELP sayso_solver_gap Relative gap between solution energy and lower bound.\n",
         );
         out.push_str("# TYPE sayso_solver_gap histogram\n");
-        if let Ok(histogram) = self.solver_gap.lock() {
-            histogram.render(&mut out, "sayso_solver_gap", "", &GAP_BUCKETS);
+        let gaps = self.session.solver_gaps();
+        Histogram {
+            counts: gaps.cumulative.to_vec(),
+            sum: gaps.sum,
+            total: gaps.total,
         }
+        .render(&mut out, "sayso_solver_gap", "", &GAP_BUCKETS);
         out.push_str(
             "# HELP sayso_turns_logged_total Conversation turns committed to the correction log.\n",
         );
@@ -171,14 +161,14 @@ impl Metrics {
         let _ = writeln!(
             out,
             "sayso_turns_logged_total {}",
-            self.turns_logged.load(Ordering::Relaxed)
+            self.session.turns_logged()
         );
         out.push_str("# HELP sayso_corrections_logged_total Corrections (new scene versions) committed to the log.\n");
         out.push_str("# TYPE sayso_corrections_logged_total counter\n");
         let _ = writeln!(
             out,
             "sayso_corrections_logged_total {}",
-            self.corrections_logged()
+            self.session.corrections_logged()
         );
         out
     }

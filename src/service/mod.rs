@@ -1,34 +1,32 @@
 //! The correction service: an HTTP API (axum on tokio) over the coordinator and the correction log.
 //!
 //! Owns: `AppState`, `app(state) -> Router` (testable without a socket), `run(listener, shutdown)`, the
-//! route table under `/v1`, access control (tokens, roles, ownership of conversations) and limits, metrics
-//! and the OpenAPI document.
-//! Must not: work out corrections (that is the `Corrector`'s job, reached only through the coordinator) or
-//! write SQL (the correction log's job).
+//! route table under `/v1`, authentication (tokens, the failed-login throttle), limits, metrics, the
+//! OpenAPI document, and the mapping of the session's errors to HTTP statuses (`error`).
+//! Must not: hold conversation rules or work out corrections (the session layer, `crate::session`, does:
+//! every route calls its `Coordinator`) or write SQL (the correction log's job).
 //!
 //! **Safety.** A corrected scene is advisory. It is never a substitute for the robot's own safety sensors
 //! and interlocks; follow the robot maker's safety guidance and local regulations when acting on it.
 //! Changes that would remove or rename a person, a pet or a hazard wait for explicit confirmation.
 //!
-//! The pipeline plugs in through one trait, [`corrector::Corrector`]; [`joint::JointCorrector`] (the joint
-//! pipeline of `crate::pipeline`) is the implementation the binary uses.
+//! The pipeline plugs in behind the session layer (`crate::session::Corrector`); the service sees only the
+//! session's `Coordinator`, its answers (the shapes of `crate::wire`) and its `SessionError`s.
 
 pub mod abandon;
-pub mod config;
 mod console;
-pub mod coordinator;
-pub mod corrector;
 pub mod error;
-pub mod field_notes;
 mod guard;
 mod handlers;
-pub mod joint;
-mod joint_inputs;
 pub mod metrics;
 pub mod openapi;
 mod server;
 mod upload;
-pub mod wire;
+
+/// The deployment's settings (`crate::config`), which the service reads first.
+pub use crate::config;
+/// The JSON shapes the service sends and reads (`crate::wire`).
+pub use crate::wire;
 
 use std::future::Future;
 use std::net::IpAddr;
@@ -38,8 +36,8 @@ use axum::extract::DefaultBodyLimit;
 use axum::routing::{get, post};
 use axum::Router;
 
-use config::ServiceConfig;
-use coordinator::Coordinator;
+use crate::config::ServiceConfig;
+use crate::session::Coordinator;
 use metrics::Metrics;
 
 /// Everything a request handler can reach. Cheap to clone.
@@ -61,7 +59,7 @@ impl AppState {
     /// Builds the state from a coordinator (already open) and the settings.
     pub fn new(coordinator: Arc<Coordinator>, config: ServiceConfig) -> AppState {
         AppState {
-            metrics: coordinator.metrics().clone(),
+            metrics: Arc::new(Metrics::over(coordinator.counters().clone())),
             limiter: Arc::new(guard::RateLimiter::new(
                 config.rate_per_second,
                 config.rate_burst,

@@ -30,8 +30,8 @@ use tokio::net::{TcpListener, TcpStream};
 use tokio::sync::{watch, Semaphore};
 use tower::ServiceExt;
 
-use super::config::ServiceConfig;
 use super::error::ApiError;
+use crate::config::ServiceConfig;
 
 /// Headers hyper reads before refusing a request bare; the router refuses more than
 /// `guard::HEADER_COUNT_LIMIT` in the JSON shape.

@@ -8,8 +8,8 @@
 use axum::extract::multipart::{Field, Multipart, MultipartError};
 use axum::http::StatusCode;
 
-use super::coordinator::SceneUpload;
 use super::error::{body_too_large, ApiError};
+use crate::session::SceneUpload;
 use crate::unaries::perception::read_class_list;
 
 /// The parts a scene upload may carry.

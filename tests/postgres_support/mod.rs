@@ -106,3 +106,24 @@ pub fn fresh_database() -> String {
         .expect("the server address names a database");
     format!("{base}/{name}")
 }
+
+/// The rows `sql` returns on the database at `url`.
+pub fn query(url: &str, sql: &str) -> Vec<tokio_postgres::Row> {
+    let runtime = tokio::runtime::Builder::new_current_thread()
+        .enable_all()
+        .build()
+        .unwrap();
+    runtime.block_on(async {
+        let (client, connection) = tokio_postgres::connect(url, tokio_postgres::NoTls)
+            .await
+            .unwrap_or_else(|error| panic!("cannot connect to {url}: {error}; {HOW_TO_INSTALL}"));
+        let driver = tokio::spawn(connection);
+        let rows = client
+            .query(sql, &[])
+            .await
+            .unwrap_or_else(|error| panic!("{sql}: {error}"));
+        drop(client);
+        let _ = driver.await;
+        rows
+    })
+}

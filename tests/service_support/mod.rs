@@ -1,5 +1,8 @@
-//! Shared helpers for the service tests and the service bench: a minimal HTTP/1.1 client over `std::net::TcpStream`, a small
-//! grid engine implementing `Corrector` on plain label maps, and a way to start the service on port 0.
+//! Shared helpers for the service tests and the service bench: the router called directly (`route_service`,
+//! `router_with` and `call`, tower's `oneshot`, no socket), a small grid engine implementing `Corrector` on
+//! plain label maps, and, for the tests of limits, timeouts and shutdown only, the service started on port 0
+//! with a minimal HTTP/1.1 client over `std::net::TcpStream` (a connection cap or a header timeout exists
+//! only on a socket).
 //!
 //! Owns: test-only code. Must not: be used by the library; the grid engine exists only to exercise the
 //! service without the real pipeline.
@@ -12,18 +15,17 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use base64::Engine;
+use sayso::config::ServiceConfig;
 use sayso::ids::ClassId;
 use sayso::language::constraint::{Constraint, ConstraintKind, Focus, Referent, Span};
 use sayso::raster::{self, IndexImage, RgbImage};
 use sayso::scene::BoundingBox;
-use sayso::service::config::ServiceConfig;
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
-use sayso::service::corrector::{
+use sayso::service::AppState;
+use sayso::session::corrector::{
     Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
     SceneObject, SceneState, SceneSummary, Verdict,
 };
-use sayso::service::metrics::Metrics;
-use sayso::service::AppState;
+use sayso::session::{Coordinator, CoordinatorSettings};
 use sayso::taxonomy::Taxonomy;
 
 /// An HTTP response as the tests read it.
@@ -58,8 +60,95 @@ impl Reply {
     }
 }
 
-/// Sends one request with `Connection: close` and reads the whole answer.
+/// Where a test sends its requests: the router itself (`&Routed`), or a socket (`SocketAddr`, for limits,
+/// timeouts and shutdown only).
+pub trait Client {
+    fn exchange(
+        &self,
+        method: &str,
+        path: &str,
+        headers: &[(&str, &str)],
+        body: &[u8],
+    ) -> std::io::Result<Reply>;
+}
+
+impl Client for SocketAddr {
+    fn exchange(
+        &self,
+        method: &str,
+        path: &str,
+        headers: &[(&str, &str)],
+        body: &[u8],
+    ) -> std::io::Result<Reply> {
+        over_socket(*self, method, path, headers, body)
+    }
+}
+
+/// The router over a coordinator with the grid engine, and a runtime to call it on, from plain test code
+/// (`route_service`). Clones share the router, the runtime and the coordinator.
+#[derive(Clone)]
+pub struct Routed {
+    pub router: axum::Router,
+    pub coordinator: Arc<Coordinator>,
+    runtime: Arc<tokio::runtime::Runtime>,
+}
+
+impl Client for &Routed {
+    fn exchange(
+        &self,
+        method: &str,
+        path: &str,
+        headers: &[(&str, &str)],
+        body: &[u8],
+    ) -> std::io::Result<Reply> {
+        let mut builder = axum::http::Request::builder()
+            .method(axum::http::Method::from_bytes(method.as_bytes()).expect("a method token"))
+            .uri(path);
+        for (name, value) in headers {
+            builder = builder.header(*name, *value);
+        }
+        let mut request = builder
+            .body(axum::body::Body::from(body.to_vec()))
+            .expect("request");
+        request
+            .extensions_mut()
+            .insert(axum::extract::ConnectInfo(SocketAddr::from((
+                [127, 0, 0, 1],
+                40000,
+            ))));
+        Ok(self.runtime.block_on(call_request(&self.router, request)))
+    }
+}
+
+/// The router of a service with the grid engine over `data_dir`, with `config` (its data_dir replaced),
+/// called without a socket.
+pub fn route_service(data_dir: &Path, config: ServiceConfig) -> Routed {
+    let (router, coordinator) = router_with(data_dir, config, Arc::new(GridEngine::new()));
+    let runtime = tokio::runtime::Builder::new_multi_thread()
+        .worker_threads(2)
+        .enable_all()
+        .build()
+        .expect("runtime");
+    Routed {
+        router,
+        coordinator,
+        runtime: Arc::new(runtime),
+    }
+}
+
+/// Sends one request and reads the whole answer.
 pub fn send(
+    client: impl Client,
+    method: &str,
+    path: &str,
+    headers: &[(&str, &str)],
+    body: &[u8],
+) -> std::io::Result<Reply> {
+    client.exchange(method, path, headers, body)
+}
+
+/// Sends one request over a socket with `Connection: close` and reads the whole answer.
+fn over_socket(
     address: SocketAddr,
     method: &str,
     path: &str,
@@ -134,7 +223,7 @@ fn dechunk(mut data: &[u8]) -> Option<Vec<u8>> {
 
 /// A JSON request.
 pub fn send_json(
-    address: SocketAddr,
+    client: impl Client,
     method: &str,
     path: &str,
     token: Option<&str>,
@@ -145,17 +234,17 @@ pub fn send_json(
     if let Some(bearer) = &bearer {
         headers.push(("Authorization", bearer.as_str()));
     }
-    send(address, method, path, &headers, body.to_string().as_bytes()).expect("request")
+    send(client, method, path, &headers, body.to_string().as_bytes()).expect("request")
 }
 
 /// A GET request.
-pub fn get(address: SocketAddr, path: &str, token: Option<&str>) -> Reply {
+pub fn get(client: impl Client, path: &str, token: Option<&str>) -> Reply {
     let bearer = token.map(|token| format!("Bearer {token}"));
     let mut headers = Vec::new();
     if let Some(bearer) = &bearer {
         headers.push(("Authorization", bearer.as_str()));
     }
-    send(address, "GET", path, &headers, b"").expect("request")
+    send(client, "GET", path, &headers, b"").expect("request")
 }
 
 pub fn base64(bytes: &[u8]) -> String {
@@ -382,7 +471,6 @@ pub fn open_grid_coordinator_with(data_dir: &Path, pixel_limit: u64) -> Arc<Coor
                 pixel_limit: config.pixel_limit,
                 demo_dir: data_dir.join("demo_scenes"),
             },
-            Arc::new(Metrics::default()),
         )
         .expect("open coordinator"),
     )
@@ -448,12 +536,12 @@ pub fn start_service(data_dir: &Path, mut config: ServiceConfig) -> RunningServi
 
 /// Registers a `width` x `height` scene (labels all floor except as given) and opens a conversation.
 pub fn scene_and_conversation(
-    address: SocketAddr,
+    client: impl Client + Copy,
     token: Option<&str>,
     labels: &IndexImage,
 ) -> (i64, i64) {
     let created = send_json(
-        address,
+        client,
         "POST",
         "/v1/scenes",
         token,
@@ -471,7 +559,7 @@ pub fn scene_and_conversation(
     );
     let scene_id = created.json()["scene_id"].as_i64().unwrap();
     let opened = send_json(
-        address,
+        client,
         "POST",
         "/v1/conversations",
         token,
@@ -498,7 +586,6 @@ pub fn router_with(
                 pixel_limit: config.pixel_limit,
                 demo_dir: data_dir.join("demo_scenes"),
             },
-            Arc::new(Metrics::default()),
         )
         .expect("open coordinator"),
     );

@@ -1,8 +1,8 @@
 //! The correction log on a PostgreSQL server, for a fleet sharing one store (`database = "postgres://..."`).
 //!
 //! Owns: `PostgresLog` (a deadpool pool of tokio-postgres connections and the small runtime that drives
-//! them), the bridge that lets the log's synchronous callers wait on it, and the session lock that keeps one
-//! coordinator per database while a coordinator still holds scenes in memory.
+//! them) and the bridge that lets the log's synchronous callers wait on it. Any number of replicas may
+//! open one database at once.
 //! Must not: decide anything the SQLite log does not: the rows, the transaction rule and the answers are the
 //! same, and a turn is acknowledged only after its transaction has committed on the server.
 //!
@@ -14,6 +14,7 @@
 //! against a race that is rare (two operators on the same scene in the same instant) and already has an
 //! answer (the service says the scene moved on, and the client sends the turn again).
 
+mod lookup;
 mod queries;
 mod schema;
 
@@ -36,8 +37,6 @@ pub struct PostgresLog {
     runtime: Option<tokio::runtime::Runtime>,
     /// The address without its password, for messages.
     shown: String,
-    /// The session that holds the coordinator's lock, once taken.
-    exclusive: Option<tokio_postgres::Client>,
 }
 
 /// `url` with any password replaced by `***`.
@@ -87,7 +86,6 @@ impl PostgresLog {
             pool,
             runtime: Some(runtime),
             shown: redact(url),
-            exclusive: None,
         })
     }
 
@@ -159,32 +157,10 @@ impl PostgresLog {
             schema::recorded_version(&client).await
         })
     }
-
-    /// Takes the database's coordinator lock (a session-level advisory lock on a connection of its own,
-    /// held until the log is dropped or the process dies); `false` when another process holds it.
-    pub fn hold_exclusive(&mut self, url: &str) -> Result<bool, LogError> {
-        const COORDINATOR_LOCK: i64 = 0x7361_7973_6f01;
-        let config: tokio_postgres::Config = url
-            .parse()
-            .map_err(|error| LogError::Address(format!("{}: {error}", redact(url))))?;
-        let client = self.run(async {
-            let (client, connection) = config.connect(NoTls).await?;
-            tokio::spawn(connection);
-            let held: bool = client
-                .query_one("SELECT pg_try_advisory_lock($1)", &[&COORDINATOR_LOCK])
-                .await?
-                .get(0);
-            Ok::<_, LogError>(held.then_some(client))
-        })?;
-        let held = client.is_some();
-        self.exclusive = client;
-        Ok(held)
-    }
 }
 
 impl Drop for PostgresLog {
     fn drop(&mut self) {
-        self.exclusive = None;
         if let Some(runtime) = self.runtime.take() {
             runtime.shutdown_background();
         }

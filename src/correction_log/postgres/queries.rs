@@ -222,6 +222,53 @@ async fn write_turn(
     Ok((TurnKey(turn_key), new_version))
 }
 
+/// Takes every lock a batch will need on rows other batches share, in one global order, before any turn
+/// is written: the batch's new label maps (a blob another open transaction is inserting is waited for),
+/// then its conversations, then their scenes, each by ascending key. Two replicas' batches touching the same
+/// scenes then wait for each other instead of deadlocking (each would otherwise lock its scenes, and insert
+/// identical label maps, in the order its turns happened to arrive).
+async fn lock_in_order(
+    client: &impl GenericClient,
+    turns: &[(NewTurn<'_>, TurnStacks<'_>)],
+) -> Result<(), LogError> {
+    let mut blobs: Vec<(String, &[u8])> = turns
+        .iter()
+        .filter_map(|(turn, _)| match &turn.effect {
+            TurnEffect::NewVersion { state, .. } | TurnEffect::Pending { state, .. } => {
+                Some((blob_hash(&state.labels_png), state.labels_png.as_slice()))
+            }
+            _ => None,
+        })
+        .collect();
+    blobs.sort_by(|a, b| a.0.cmp(&b.0));
+    blobs.dedup_by(|a, b| a.0 == b.0);
+    for (hash, bytes) in &blobs {
+        client
+            .execute(
+                "INSERT INTO blobs (hash, bytes) VALUES ($1, $2) ON CONFLICT (hash) DO NOTHING",
+                &[hash, bytes],
+            )
+            .await?;
+    }
+    let mut conversations: Vec<i64> = turns.iter().map(|(turn, _)| turn.conversation.0).collect();
+    conversations.sort_unstable();
+    conversations.dedup();
+    client
+        .query(
+            "SELECT id FROM conversations WHERE id = ANY($1) ORDER BY id FOR NO KEY UPDATE",
+            &[&conversations],
+        )
+        .await?;
+    client
+        .query(
+            "SELECT id FROM scenes WHERE id IN (SELECT scene_id FROM conversations WHERE id = ANY($1))
+             ORDER BY id FOR NO KEY UPDATE",
+            &[&conversations],
+        )
+        .await?;
+    Ok(())
+}
+
 fn state_of(row: &Row, labels: usize, summary: usize, engine: usize, model: usize) -> StateRecord {
     StateRecord {
         labels_png: row.get(labels),
@@ -315,6 +362,7 @@ impl PostgresLog {
             let mut object = self.pool().get().await?;
             let client: &mut tokio_postgres::Client = &mut object;
             let mut transaction = client.transaction().await?;
+            lock_in_order(&transaction, turns).await?;
             let mut answers = Vec::with_capacity(turns.len());
             for (turn, stacks) in turns {
                 let savepoint = transaction.savepoint("turn").await?;

@@ -31,7 +31,7 @@ use super::corrector::{
     Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, Lineage, SceneInput,
     SceneObject, SceneState, SceneSummary, Unmet, Verdict,
 };
-use super::joint_inputs::{hex, input_digest, prepare_input, PreparedInput};
+use super::joint_inputs::{hex, input_digest, prepare_input, superpixel_image, PreparedInput};
 
 /// The engine-state format this build writes: one link of a chain (the parent's key and one turn).
 const ENGINE_STATE_FORMAT: u32 = 2;
@@ -616,6 +616,11 @@ fn service_unmet(correction: &Correction) -> Vec<Unmet> {
 impl Corrector for JointCorrector {
     fn taxonomy(&self) -> &Taxonomy {
         self.settings.grammar.taxonomy()
+    }
+
+    fn superpixels(&self, input: &SceneInput) -> Option<crate::raster::IndexImage> {
+        let prepared = self.prepared_for(input, None).ok()?;
+        superpixel_image(&prepared.scene.segments)
     }
 
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {

@@ -13,7 +13,7 @@ use serde::{Deserialize, Serialize};
 use crate::correction_log::{ConversationKey, SceneKey};
 
 use super::coordinator::Coordinator;
-use super::wire::{FocusIn, TurnStatus};
+use crate::wire::{FocusIn, TurnStatus};
 
 /// One record of a field-notes file.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

@@ -2,14 +2,22 @@
 //!
 //! Owns: `PreparedInput` (superpixels, per-segment unaries, detections), the choice of unary source (NPY
 //! scores, else a label map, else the built-in classifier; each read with its class names through
-//! `crate::unaries::perception`, as `fix` reads them; detections with their masks), and the digest that
-//! names a registration. Superpixels are cut with `SceneParams::for_image_size`, as on the command line.
+//! `crate::unaries::perception`, as `fix` reads them; detections with their masks), the digest that
+//! names a registration, and the superpixels kept with a registration (`superpixel_image`; read back by
+//! `scene_on_stored`, which builds the same scene `Scene::from_image` builds on the superpixels it cuts,
+//! without cutting them again). Superpixels are cut with `SceneParams::for_image_size`, as on the
+//! command line.
 //! Must not: parse utterances, solve, or know about the service's storage; the caller caches.
 
 use sha2::{Digest, Sha256};
 
 use crate::hypotheses::Detection as HypothesisDetection;
-use crate::scene::{Scene, SceneParams};
+use std::sync::Arc;
+
+use crate::raster::IndexImage;
+use crate::scene::build::{adjacency_graph, segment_stats};
+use crate::scene::coarse::coarse_level;
+use crate::scene::{Scene, SceneParams, SegmentMap};
 use crate::taxonomy::Taxonomy;
 use crate::unaries::byo::PerceptionError;
 use crate::unaries::byo_detections::DetectionMask;
@@ -101,20 +109,103 @@ fn bad(field: &str, message: impl Into<String>) -> CorrectorError {
     }
 }
 
-/// Builds superpixels and unaries for a registration, through the same `Perception` as `fix`.
+/// A scene's superpixels as an index image to keep with its registration; `None` past 65,536 segments,
+/// which an index image cannot hold.
+pub fn superpixel_image(segments: &SegmentMap) -> Option<IndexImage> {
+    if segments.segment_count > u32::from(u16::MAX) + 1 {
+        return None;
+    }
+    Some(IndexImage {
+        width: segments.width,
+        height: segments.height,
+        values: segments.labels.iter().map(|&label| label as u16).collect(),
+    })
+}
+
+/// The scene on superpixels kept with the registration: the segment statistics, adjacency graph and coarse
+/// level `Scene::from_image` builds on the superpixels it cuts (the same steps in the same order, so the
+/// same scene). `None` when the map does not fit the image (another size, a segment id with no pixel, a
+/// depth map of another size); the caller then cuts the superpixels again.
+fn scene_on_stored(input: &SceneInput, stored: &IndexImage, params: &SceneParams) -> Option<Scene> {
+    let (width, height) = (input.image.width, input.image.height);
+    let pixels = width as usize * height as usize;
+    if stored.width != width || stored.height != height || stored.values.len() != pixels {
+        return None;
+    }
+    if let Some(depth) = &input.depth {
+        let fits = depth.width == width
+            && depth.height == height
+            && depth.millimetres.len() == depth.pixel_count();
+        if !fits {
+            return None;
+        }
+    }
+    if params.segments_per_region == 0 {
+        return None;
+    }
+    let segment_count = stored
+        .values
+        .iter()
+        .max()
+        .map(|&most| u32::from(most) + 1)?;
+    let mut present = vec![false; segment_count as usize];
+    for &value in &stored.values {
+        present[value as usize] = true;
+    }
+    if present.contains(&false) {
+        return None;
+    }
+    let segments = SegmentMap {
+        width,
+        height,
+        labels: stored
+            .values
+            .iter()
+            .map(|&value| u32::from(value))
+            .collect(),
+        segment_count,
+    };
+    let stats = segment_stats(&input.image, input.depth.as_ref(), &segments);
+    let adjacency = adjacency_graph(&segments, &stats);
+    let target_regions = (segment_count as f64 / params.segments_per_region as f64)
+        .round()
+        .max(1.0) as usize;
+    let coarse = coarse_level(&adjacency, &stats, target_regions);
+    Some(Scene {
+        name: input.name.clone(),
+        image: Arc::new(input.image.clone()),
+        depth: input.depth.clone().map(Arc::new),
+        segments: Arc::new(segments),
+        stats: Arc::new(stats),
+        adjacency: Arc::new(adjacency),
+        coarse: Arc::new(coarse),
+        room: input.room,
+    })
+}
+
+/// Builds superpixels (or reads back the ones kept with the registration) and unaries for a registration,
+/// through the same `Perception` as `fix`.
 pub fn prepare_input(
     input: &SceneInput,
     taxonomy: &Taxonomy,
     classifier: &Classifier,
 ) -> Result<PreparedInput, CorrectorError> {
-    let scene = Scene::from_image(
-        input.name.clone(),
-        input.image.clone(),
-        input.depth.clone(),
-        input.room,
-        &SceneParams::for_image_size(input.image.width, input.image.height),
-    )
-    .map_err(|error| bad("image_png_base64", error.to_string()))?;
+    let params = SceneParams::for_image_size(input.image.width, input.image.height);
+    let stored = input
+        .superpixels
+        .as_ref()
+        .and_then(|map| scene_on_stored(input, map, &params));
+    let scene = match stored {
+        Some(scene) => scene,
+        None => Scene::from_image(
+            input.name.clone(),
+            input.image.clone(),
+            input.depth.clone(),
+            input.room,
+            &params,
+        )
+        .map_err(|error| bad("image_png_base64", error.to_string()))?,
+    };
     let (scores, field) = if let Some(bytes) = &input.scores_npy {
         const FIELD: &str = "scores";
         let array = parse_npy(bytes).map_err(|error| bad(FIELD, error.to_string()))?;
@@ -190,6 +281,52 @@ mod tests {
     use crate::scene::BoundingBox;
     use crate::unaries::byo_detections::MaskRuns;
 
+    fn input_of(width: u32, height: u32) -> SceneInput {
+        let mut image = crate::raster::RgbImage::filled(width, height, [0, 0, 0]);
+        for y in 0..height {
+            for x in 0..width {
+                // Four colour blocks with a gradient, so SLIC has edges to follow.
+                let block = (x * 2 / width + 2 * (y * 2 / height)) as u8;
+                image.set(x, y, [block * 60, (x * 3) as u8, 200 - (y * 2) as u8]);
+            }
+        }
+        SceneInput {
+            name: "juniper-lane-scullery".into(),
+            image,
+            depth: None,
+            scores_npy: None,
+            label_map: None,
+            detections: Vec::new(),
+            room: None,
+            classes: PerceptionClasses::default(),
+            superpixels: None,
+        }
+    }
+
+    #[test]
+    fn superpixels_kept_with_a_registration_give_back_the_same_scene() {
+        let input = input_of(96, 72);
+        let params = SceneParams::for_image_size(96, 72);
+        let cut = Scene::from_image(input.name.clone(), input.image.clone(), None, None, &params)
+            .unwrap();
+        let kept = superpixel_image(&cut.segments).unwrap();
+        let read_back = scene_on_stored(&input, &kept, &params).expect("the kept map fits");
+        assert_eq!(read_back.segments, cut.segments);
+        assert_eq!(read_back.stats, cut.stats);
+        assert_eq!(read_back.coarse, cut.coarse);
+        assert_eq!(read_back.adjacency.edge_count(), cut.adjacency.edge_count());
+        // A map of another size, or one with a segment id no pixel has, is not used.
+        let other = input_of(95, 72);
+        assert!(scene_on_stored(&other, &kept, &params).is_none());
+        let mut gap = kept.clone();
+        let most = *gap.values.iter().max().unwrap();
+        gap.values
+            .iter_mut()
+            .filter(|v| **v == most)
+            .for_each(|v| *v = most + 1);
+        assert!(scene_on_stored(&input, &gap, &params).is_none());
+    }
+
     /// A detection's mask reaches the solve's detections, and a mask changes the registration's digest.
     #[test]
     fn detection_masks_reach_the_solve_and_the_digest() {
@@ -238,6 +375,7 @@ mod tests {
             detections: vec![boxed.clone()],
             room: None,
             classes: PerceptionClasses::default(),
+            superpixels: None,
         };
         let box_digest = input_digest(&input);
         input.detections[0].mask = Some(runs);

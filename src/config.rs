@@ -1,8 +1,10 @@
-//! The service's settings: where to listen, where the data lives, who may call, and the limits.
+//! The deployment's settings file, read by `sayso serve` and by every command that opens the correction log
+//! (`store`, `field-notes`, `export`): where to listen, where the data lives, who may call, and the limits.
 //!
 //! Owns: `ServiceConfig` (read from a TOML file, with defaults that work out of the box), its validation
 //! (most importantly: no non-loopback address without operator tokens), and `OperatorToken`.
-//! Must not: read flags or the environment (the CLI layers those on top) or start anything.
+//! Must not: read flags or the environment (the CLI layers those on top), start anything, or reach into
+//! the service or the session it configures (only `Role` is the session's).
 //!
 //! A complete file, every key optional:
 //!
@@ -49,16 +51,7 @@ pub const TOKEN_MIN_CHARACTERS: usize = 20;
 /// The fewest different characters a bearer token must hold (refuses "aaaa..." and "abababab...").
 pub const TOKEN_MIN_DISTINCT_CHARACTERS: usize = 10;
 
-/// What an operator may act on.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Role {
-    /// Reads and acts on the conversations they opened (scenes are shared).
-    #[default]
-    Operator,
-    /// Reads and acts on every operator's conversations, e.g. to confirm a held change.
-    Supervisor,
-}
+pub use crate::session::Role;
 
 /// One operator, the bearer token they present and their role.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]

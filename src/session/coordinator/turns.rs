@@ -4,21 +4,14 @@
 //! turn is committed. A safety change waits as the conversation's one pending change and is applied on
 //! confirmation only if the scene has not moved on. Undo takes back the conversation's own latest change
 //! when it is still the scene's head; redo puts it back when nothing else has happened since.
-//! Must not: talk HTTP; answers are wire values or `ApiError`s.
+//! Must not: talk HTTP; answers are wire values or `SessionError`s.
 
-use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, VersionKey};
+use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, TurnMark, VersionKey};
 use crate::language::constraint::{Constraint, Focus};
 use crate::taxonomy::Taxonomy;
 use crate::turn::words::{self, Command};
 use crate::turn::{answer, conversation_checks, Answered, Note};
 
-use super::super::corrector::{
-    CorrectionOutcome, CorrectionRequest, CorrectorError, Lineage, PastTurn, SceneHandle, Verdict,
-};
-use super::super::error::ApiError;
-use super::super::wire::{
-    FocusIn, HistoryOut, PendingOut, TurnOut, TurnReply, TurnStatus, UtteranceReply,
-};
 use super::convert::{
     candidate_out, change_out, constraint_out, focus_from_wire, focus_to_wire, label_changes,
     unmet_out,
@@ -26,6 +19,13 @@ use super::convert::{
 use super::{
     decode_state, encode_state, lock, log_error, ConversationSlot, Coordinator, PendingSlot,
     UTTERANCE_CHARACTER_LIMIT,
+};
+use crate::session::corrector::{
+    CorrectionOutcome, CorrectionRequest, CorrectorError, Lineage, PastTurn, SceneHandle, Verdict,
+};
+use crate::session::error::SessionError;
+use crate::wire::{
+    FocusIn, HistoryOut, PendingOut, TurnOut, TurnReply, TurnStatus, UtteranceReply,
 };
 
 /// The answer to a conversation command said in words: what was done, and the change still held.
@@ -93,16 +93,16 @@ fn status_from_text(text: &str) -> TurnStatus {
 }
 
 /// Checks an utterance's text before any work is done on it.
-pub fn check_utterance_text(text: &str) -> Result<(), ApiError> {
+pub fn check_utterance_text(text: &str) -> Result<(), SessionError> {
     if text.trim().is_empty() {
-        return Err(ApiError::unprocessable(
+        return Err(SessionError::unusable(
             "empty_utterance",
             "text is empty; say what is wrong, e.g. \"that's a towel, not a cat\"",
         ));
     }
     let characters = text.chars().count();
     if characters > UTTERANCE_CHARACTER_LIMIT {
-        return Err(ApiError::unprocessable(
+        return Err(SessionError::unusable(
             "utterance_too_long",
             format!(
                 "text is {characters} characters; send at most {UTTERANCE_CHARACTER_LIMIT}, one correction at a time"
@@ -120,7 +120,7 @@ impl Coordinator {
         operator: &str,
         text: &str,
         focus: Option<FocusIn>,
-    ) -> Result<UtteranceReply, ApiError> {
+    ) -> Result<UtteranceReply, SessionError> {
         check_utterance_text(text)?;
         if let Some(command) = words::command(text) {
             return self.spoken(conversation, operator, text, command);
@@ -131,7 +131,7 @@ impl Coordinator {
         let mut scene = lock(&scene_slot);
         if let Some(FocusIn::Pixel { x, y }) = focus {
             if x >= scene.input.image.width || y >= scene.input.image.height {
-                return Err(ApiError::unprocessable(
+                return Err(SessionError::unusable(
                     "focus_outside_image",
                     format!(
                         "focus pixel ({x}, {y}) is outside the {}x{} image",
@@ -148,7 +148,7 @@ impl Coordinator {
                 .iter()
                 .any(|object| object.id.0 == object_id)
             {
-                return Err(ApiError::unprocessable(
+                return Err(SessionError::unusable(
                     "unknown_object",
                     format!("focus object {object_id} is not in the current scene graph; read GET /v1/scenes/{{id}} first"),
                 ));
@@ -209,9 +209,9 @@ impl Coordinator {
                 })
                 .map_err(|error| match error {
                     CorrectorError::BadInput { field, message } => {
-                        ApiError::unprocessable("bad_utterance", format!("{field}: {message}"))
+                        SessionError::unusable("bad_utterance", format!("{field}: {message}"))
                     }
-                    internal => ApiError::internal(internal),
+                    internal => SessionError::internal(internal),
                 })?,
         };
         let earlier: Vec<Vec<Constraint>> = conversation_state
@@ -225,18 +225,18 @@ impl Coordinator {
         let second_hold = matches!(outcome.verdict, Verdict::NeedsConfirmation { .. })
             && conversation_state.pending.is_some();
         if let Some(gap) = outcome.solver_gap {
-            self.metrics.record_solver_gap(gap);
+            self.counters.record_solver_gap(gap);
         }
         let taxonomy = self.corrector.taxonomy();
         let constraints_json =
-            serde_json::to_string(&outcome.constraints).map_err(ApiError::internal)?;
+            serde_json::to_string(&outcome.constraints).map_err(SessionError::internal)?;
         let changes_out: Vec<_> = outcome
             .changes
             .iter()
             .map(|change| change_out(change, taxonomy))
             .collect();
         let focus_json = match solve_focus {
-            Some(focus) => Some(serde_json::to_string(&focus).map_err(ApiError::internal)?),
+            Some(focus) => Some(serde_json::to_string(&focus).map_err(SessionError::internal)?),
             None => None,
         };
         let (status, effect, question, reason, pending_out) = match &outcome.verdict {
@@ -273,7 +273,7 @@ impl Coordinator {
                     state: encode_state(proposed)?,
                     reason: reason.clone(),
                     changes_json: serde_json::to_string(&outcome.changes)
-                        .map_err(ApiError::internal)?,
+                        .map_err(SessionError::internal)?,
                 },
                 None,
                 None,
@@ -342,8 +342,9 @@ impl Coordinator {
                 Some((&conversation_state.applied, &redo_after)),
             )
             .map_err(log_error)?;
+        conversation_state.mark = conversation_state.mark.after(turn_key);
         // Committed: now the memory follows the log.
-        self.metrics.record_turn(new_version.is_some());
+        self.counters.record_turn(new_version.is_some());
         conversation_state.history.push(PastTurn {
             utterance: text.to_string(),
             focus: solve_focus,
@@ -417,7 +418,7 @@ impl Coordinator {
         operator: &str,
         text: &str,
         command: Command,
-    ) -> Result<UtteranceReply, ApiError> {
+    ) -> Result<UtteranceReply, SessionError> {
         let turn = match command {
             Command::Undo => self.undo(conversation, operator)?,
             Command::Redo => self.redo(conversation, operator)?,
@@ -465,7 +466,8 @@ impl Coordinator {
         text: &str,
         status: TurnStatus,
         result_json: &str,
-    ) -> Result<i64, ApiError> {
+        mark: &mut TurnMark,
+    ) -> Result<i64, SessionError> {
         let (turn_key, _) = self
             .group
             .commit(
@@ -484,7 +486,8 @@ impl Coordinator {
                 None,
             )
             .map_err(log_error)?;
-        self.metrics.record_turn(false);
+        *mark = mark.after(turn_key);
+        self.counters.record_turn(false);
         Ok(turn_key.0)
     }
 
@@ -494,11 +497,11 @@ impl Coordinator {
         conversation: ConversationKey,
         operator: &str,
         text: &str,
-    ) -> Result<UtteranceReply, ApiError> {
+    ) -> Result<UtteranceReply, SessionError> {
         let slot = self.conversation_slot(conversation)?;
         let mut state = lock(&slot);
         let Some(question) = state.question.take() else {
-            return Err(ApiError::conflict(
+            return Err(SessionError::conflict(
                 "nothing_waiting",
                 "nothing waits for a confirmation or an answer in this conversation",
             ));
@@ -508,7 +511,14 @@ impl Coordinator {
             let scene = lock(&scene_slot);
             scene.head.0
         };
-        let turn_id = self.quiet_turn(conversation, operator, text, TurnStatus::Rejected, "{}")?;
+        let turn_id = self.quiet_turn(
+            conversation,
+            operator,
+            text,
+            TurnStatus::Rejected,
+            "{}",
+            &mut state.mark,
+        )?;
         Ok(command_reply(
             turn_id,
             TurnStatus::Rejected,
@@ -525,7 +535,7 @@ impl Coordinator {
         conversation: ConversationKey,
         operator: &str,
         text: &str,
-    ) -> Result<UtteranceReply, ApiError> {
+    ) -> Result<UtteranceReply, SessionError> {
         let answered = {
             let slot = self.conversation_slot(conversation)?;
             let state = lock(&slot);
@@ -533,7 +543,7 @@ impl Coordinator {
                 Some((version, answered)) if state.applied.last() == Some(version) => {
                     answered.clone()
                 }
-                _ => return Err(ApiError::conflict(
+                _ => return Err(SessionError::conflict(
                     "no_answer_to_change",
                     "\"the other one\" follows an answer to a question, and this conversation's \
                          last change answered none",
@@ -558,7 +568,7 @@ impl Coordinator {
             );
         }
         let slot = self.conversation_slot(conversation)?;
-        let state = lock(&slot);
+        let mut state = lock(&slot);
         let scene_version = {
             let scene_slot = self.scene_slot(state.scene)?;
             let scene = lock(&scene_slot);
@@ -573,6 +583,7 @@ impl Coordinator {
             text,
             TurnStatus::NeedsClarification,
             &result_json,
+            &mut state.mark,
         )?;
         Ok(UtteranceReply {
             question: Some(rest.text.clone()),
@@ -610,13 +621,13 @@ impl Coordinator {
         &self,
         conversation: ConversationKey,
         operator: &str,
-    ) -> Result<TurnReply, ApiError> {
+    ) -> Result<TurnReply, SessionError> {
         let conversation_slot = self.conversation_slot(conversation)?;
         let mut conversation_state = lock(&conversation_slot);
         let scene_slot = self.scene_slot(conversation_state.scene)?;
         let mut scene = lock(&scene_slot);
         let pending = conversation_state.pending.as_ref().ok_or_else(|| {
-            ApiError::conflict(
+            SessionError::conflict(
                 "no_pending_change",
                 "this conversation has no change waiting for confirmation",
             )
@@ -641,11 +652,11 @@ impl Coordinator {
                     note: Some(&pending.constraints),
                     confirmed: true,
                 })
-                .map_err(ApiError::internal)?;
+                .map_err(SessionError::internal)?;
             match outcome.verdict {
                 Verdict::Applied(state) => (state, outcome.changes),
                 Verdict::NothingToChange => (scene.state.clone(), Vec::new()),
-                _ => return Err(ApiError::conflict(
+                _ => return Err(SessionError::conflict(
                     "stale_change",
                     "the scene changed since this change was proposed and it no longer applies \
                          as it was; reject it and say it again",
@@ -653,7 +664,7 @@ impl Coordinator {
             }
         };
         let constraints_json =
-            serde_json::to_string(&pending.constraints).map_err(ApiError::internal)?;
+            serde_json::to_string(&pending.constraints).map_err(SessionError::internal)?;
         let (turn_key, new_version) = self
             .group
             .commit(
@@ -677,7 +688,8 @@ impl Coordinator {
                 Some((&conversation_state.applied, &[])),
             )
             .map_err(log_error)?;
-        self.metrics.record_turn(new_version.is_some());
+        conversation_state.mark = conversation_state.mark.after(turn_key);
+        self.counters.record_turn(new_version.is_some());
         conversation_state.pending = None;
         if let Some(version) = new_version {
             scene.head = version;
@@ -703,13 +715,13 @@ impl Coordinator {
         &self,
         conversation: ConversationKey,
         operator: &str,
-    ) -> Result<TurnReply, ApiError> {
+    ) -> Result<TurnReply, SessionError> {
         let conversation_slot = self.conversation_slot(conversation)?;
         let mut conversation_state = lock(&conversation_slot);
         let scene_slot = self.scene_slot(conversation_state.scene)?;
         let scene = lock(&scene_slot);
         let pending = conversation_state.pending.as_ref().ok_or_else(|| {
-            ApiError::conflict(
+            SessionError::conflict(
                 "no_pending_change",
                 "this conversation has no change waiting for confirmation",
             )
@@ -732,7 +744,8 @@ impl Coordinator {
                 None,
             )
             .map_err(log_error)?;
-        self.metrics.record_turn(false);
+        conversation_state.mark = conversation_state.mark.after(turn_key);
+        self.counters.record_turn(false);
         conversation_state.pending = None;
         Ok(TurnReply {
             turn_id: turn_key.0,
@@ -748,19 +761,19 @@ impl Coordinator {
         &self,
         conversation: ConversationKey,
         operator: &str,
-    ) -> Result<TurnReply, ApiError> {
+    ) -> Result<TurnReply, SessionError> {
         let conversation_slot = self.conversation_slot(conversation)?;
         let mut conversation_state = lock(&conversation_slot);
         let scene_slot = self.scene_slot(conversation_state.scene)?;
         let mut scene = lock(&scene_slot);
         let latest = *conversation_state.applied.last().ok_or_else(|| {
-            ApiError::conflict(
+            SessionError::conflict(
                 "nothing_to_undo",
                 "this conversation has no applied change to undo",
             )
         })?;
         if latest != scene.head {
-            return Err(ApiError::conflict(
+            return Err(SessionError::conflict(
                 "undo_blocked",
                 "another conversation changed the scene after this one; undo that change first",
             ));
@@ -769,9 +782,12 @@ impl Coordinator {
             let log = lock(&self.log);
             let (_, parent) = log.version(latest).map_err(log_error)?;
             let parent =
-                parent.ok_or_else(|| ApiError::internal("an applied version has no parent"))?;
+                parent.ok_or_else(|| SessionError::internal("an applied version has no parent"))?;
             let (record, _) = log.version(parent).map_err(log_error)?;
-            (decode_state(&record).map_err(ApiError::internal)?, parent)
+            (
+                decode_state(&record).map_err(SessionError::internal)?,
+                parent,
+            )
         };
         let mut applied_after = conversation_state.applied.clone();
         applied_after.pop();
@@ -800,7 +816,8 @@ impl Coordinator {
                 Some((&applied_after, &redo_after)),
             )
             .map_err(log_error)?;
-        self.metrics.record_turn(false);
+        conversation_state.mark = conversation_state.mark.after(turn_key);
+        self.counters.record_turn(false);
         let changes = label_changes(
             &scene.state.labels,
             &parent_state.labels,
@@ -825,13 +842,13 @@ impl Coordinator {
         &self,
         conversation: ConversationKey,
         operator: &str,
-    ) -> Result<TurnReply, ApiError> {
+    ) -> Result<TurnReply, SessionError> {
         let conversation_slot = self.conversation_slot(conversation)?;
         let mut conversation_state = lock(&conversation_slot);
         let scene_slot = self.scene_slot(conversation_state.scene)?;
         let mut scene = lock(&scene_slot);
         let undone = *conversation_state.redo.last().ok_or_else(|| {
-            ApiError::conflict(
+            SessionError::conflict(
                 "nothing_to_redo",
                 "this conversation has no undone change to redo",
             )
@@ -839,10 +856,13 @@ impl Coordinator {
         let (state, parent) = {
             let log = lock(&self.log);
             let (record, parent) = log.version(undone).map_err(log_error)?;
-            (decode_state(&record).map_err(ApiError::internal)?, parent)
+            (
+                decode_state(&record).map_err(SessionError::internal)?,
+                parent,
+            )
         };
         if parent != Some(scene.head) {
-            return Err(ApiError::conflict(
+            return Err(SessionError::conflict(
                 "redo_blocked",
                 "the scene changed after the undo; the undone change no longer fits on top",
             ));
@@ -874,7 +894,8 @@ impl Coordinator {
                 Some((&applied_after, &redo_after)),
             )
             .map_err(log_error)?;
-        self.metrics.record_turn(false);
+        conversation_state.mark = conversation_state.mark.after(turn_key);
+        self.counters.record_turn(false);
         let changes = label_changes(
             &scene.state.labels,
             &state.labels,
@@ -894,7 +915,7 @@ impl Coordinator {
     }
 
     /// The conversation's turns, oldest first, and its pending change.
-    pub fn history(&self, conversation: ConversationKey) -> Result<HistoryOut, ApiError> {
+    pub fn history(&self, conversation: ConversationKey) -> Result<HistoryOut, SessionError> {
         let conversation_slot = self.conversation_slot(conversation)?;
         let conversation_state = lock(&conversation_slot);
         let taxonomy = self.corrector.taxonomy();
@@ -942,7 +963,7 @@ impl Coordinator {
     pub fn conversation_owner(
         &self,
         conversation: ConversationKey,
-    ) -> Result<(String, i64, String), ApiError> {
+    ) -> Result<(String, i64, String), SessionError> {
         let slot = self.conversation_slot(conversation)?;
         let state = lock(&slot);
         Ok((

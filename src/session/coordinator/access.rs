@@ -5,19 +5,29 @@
 //! Must not: authenticate anyone (the service's guard does, and hands a `Caller` over) or change any
 //! conversation; it only answers yes or no and lists.
 
-use axum::http::StatusCode;
-
 use crate::correction_log::{ConversationKey, SceneKey};
 
-use super::super::config::Role;
-use super::super::error::ApiError;
-use super::super::wire::{ConversationListed, ConversationPage, SceneListed, ScenePage};
+use serde::{Deserialize, Serialize};
+
 use super::{lock, Coordinator};
+use crate::session::error::{ErrorKind, SessionError};
+use crate::wire::{ConversationListed, ConversationPage, SceneListed, ScenePage};
 
 /// The most items one page of a list holds.
 pub const PAGE_LIMIT_MAX: u32 = 200;
 /// The items a page holds when the caller does not say.
 pub const PAGE_LIMIT_DEFAULT: u32 = 50;
+
+/// What an operator may act on.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Role {
+    /// Reads and acts on the conversations they opened (scenes are shared).
+    #[default]
+    Operator,
+    /// Reads and acts on every operator's conversations, e.g. to confirm a held change.
+    Supervisor,
+}
 
 /// The operator a request acts for.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -51,17 +61,17 @@ pub struct PageRequest {
 
 impl PageRequest {
     /// Checks the query values of a list route.
-    pub fn new(after: Option<i64>, limit: Option<u32>) -> Result<PageRequest, ApiError> {
+    pub fn new(after: Option<i64>, limit: Option<u32>) -> Result<PageRequest, SessionError> {
         let after = after.unwrap_or(0);
         if after < 0 {
-            return Err(ApiError::bad_request(
+            return Err(SessionError::malformed(
                 "bad_page",
                 "after is an id from an earlier page (0 or more)",
             ));
         }
         let limit = limit.unwrap_or(PAGE_LIMIT_DEFAULT);
         if !(1..=PAGE_LIMIT_MAX).contains(&limit) {
-            return Err(ApiError::bad_request(
+            return Err(SessionError::malformed(
                 "bad_page",
                 format!("limit is between 1 and {PAGE_LIMIT_MAX}; got {limit}"),
             ));
@@ -93,14 +103,14 @@ impl Coordinator {
         &self,
         conversation: ConversationKey,
         caller: &Caller,
-    ) -> Result<(), ApiError> {
+    ) -> Result<(), SessionError> {
         let slot = self.conversation_slot(conversation)?;
         let owner = lock(&slot).operator.clone();
         if caller.may_act_for(&owner) {
             Ok(())
         } else {
-            Err(ApiError::caller(
-                StatusCode::FORBIDDEN,
+            Err(SessionError::new(
+                ErrorKind::NotYours,
                 "not_your_conversation",
                 format!(
                     "conversation {} was opened by another operator; only they or a supervisor may \
@@ -134,18 +144,13 @@ impl Coordinator {
 
     /// One page of the conversations `caller` may read (their own; every one for a supervisor), by id.
     pub fn conversations_page(&self, caller: &Caller, page: PageRequest) -> ConversationPage {
-        let mut slots: Vec<_> = self
-            .conversations
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .iter()
-            .map(|(key, slot)| (key.0, slot.clone()))
-            .collect();
-        slots.sort_by_key(|(key, _)| *key);
-        let visible: Vec<ConversationListed> = slots
+        // Lazily: on a shared log each conversation looked at is read from it, so stop once the page is full.
+        let visible: Vec<ConversationListed> = self
+            .conversation_ids()
             .into_iter()
-            .filter(|(key, _)| *key > page.after)
-            .filter_map(|(_, slot)| {
+            .filter(|key| key.0 > page.after)
+            .filter_map(|key| {
+                let slot = self.conversation_slot(key).ok()?;
                 let slot = lock(&slot);
                 caller
                     .may_act_for(&slot.operator)

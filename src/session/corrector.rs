@@ -65,6 +65,10 @@ pub struct SceneInput {
     pub room: Option<RoomId>,
     /// The class names of `scores_npy` and `label_map`.
     pub classes: PerceptionClasses,
+    /// Superpixels cut for this registration before (stored with the scene and read back after a restart
+    /// or by another replica), so they need not be cut again; `None` cuts them. Not part of what the
+    /// registration is: its digest leaves them out, and a map that does not fit the image is ignored.
+    pub superpixels: Option<IndexImage>,
 }
 
 /// One object of the current scene graph, as the service shows it.
@@ -211,6 +215,13 @@ pub trait Corrector: Send + Sync + 'static {
     /// Builds the first state of a newly registered scene. The scene has no handle yet (it gets one when
     /// the log commits it); anything worth caching can be cached by handle on the first `apply`.
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError>;
+
+    /// The superpixels the corrector cut for `input` (asked right after `register`), as an index image the
+    /// service stores with the scene, so that a restart or another replica need not cut them again; `None`
+    /// when it keeps none.
+    fn superpixels(&self, _input: &SceneInput) -> Option<IndexImage> {
+        None
+    }
 
     /// Works out one utterance against the scene's current state. Must not assume it is applied: the
     /// service decides (and may roll it back if logging fails).

@@ -1,17 +1,19 @@
-//! The coordinator: the service's working memory over the correction log, and the only caller of the
+//! The coordinator: the session's working memory over the correction log, and the only caller of the
 //! `Corrector`.
 //!
-//! Owns: the in-memory scenes and conversations (restored from the log at start), the per-scene and
+//! Owns: the in-memory scenes and conversations (on a log this process owns, restored at start; on a log
+//! shared by replicas, a cache read on demand and checked at every use: `replica`), the per-scene and
 //! per-conversation locks that keep updates from being lost, the rule that every answer is given only after
-//! its turn is committed, and the conversion between internal values and wire shapes.
-//! Must not: know about HTTP routing, sockets or tokio; every method is synchronous (handlers call it on a
-//! blocking thread) so the CLI can use it directly too.
+//! its turn is committed, and the conversion between internal values and the API's shapes (`crate::wire`).
+//! Must not: know about HTTP, sockets or tokio; every method is synchronous (the service's handlers call
+//! it on a blocking thread, the CLI directly) and fails with a `SessionError`, which carries no status.
 //!
 //! Lock order, always: a conversation, then its scene, then the log.
 
 mod access;
 mod convert;
 mod register;
+mod replica;
 mod turns;
 
 use std::collections::HashMap;
@@ -20,18 +22,18 @@ use std::sync::{Arc, Mutex, MutexGuard, RwLock};
 
 use crate::correction_log::{
     BackgroundCheckpoints, ConversationKey, CorrectionLog, GroupCommit, LogError, NewTurn,
-    PostgresLog, SceneKey, SqliteLog, StateRecord, TurnWritten, VersionKey,
+    PostgresLog, SceneKey, SqliteLog, StateRecord, TurnMark, TurnWritten, VersionKey,
 };
 use crate::language::constraint::Constraint;
 use crate::raster;
 use crate::turn::{Answered, OpenQuestion};
 
 use super::corrector::{Change, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
-use super::error::ApiError;
-use super::metrics::Metrics;
-use super::wire::{ConversationOut, HealthOut, SceneGraphOut};
+use super::counters::TurnCounters;
+use super::error::SessionError;
+use crate::wire::{ConversationOut, HealthOut, SceneGraphOut};
 
-pub use access::{Caller, PageRequest, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
+pub use access::{Caller, PageRequest, Role, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
 pub use register::SceneUpload;
 pub use turns::check_utterance_text;
 
@@ -71,6 +73,8 @@ pub(crate) struct ConversationSlot {
     question: Option<OpenQuestion>,
     /// The version the last answer to a question made, and that answer, for "no, the other one".
     answered: Option<(VersionKey, Answered)>,
+    /// The turns this copy holds (on a shared log, a copy whose mark differs from the log's is read again).
+    mark: TurnMark,
 }
 
 /// The service's state; share it behind an `Arc`.
@@ -81,15 +85,17 @@ pub struct Coordinator {
     group: GatedCommit,
     /// Copies the WAL into the database file off the commit path (stopped when the coordinator drops).
     _checkpoints: Option<BackgroundCheckpoints>,
+    /// Whether other replicas write to the log too: then every slot is a cache checked at each use
+    /// (`replica`).
+    shared: bool,
     scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
     conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
-    metrics: Arc<Metrics>,
+    counters: Arc<TurnCounters>,
     pixel_limit: u64,
     demo_dir: PathBuf,
     /// A user per-pixel model that scores scenes registered without scores or a label map.
     user_model: Option<Arc<crate::unaries::byo_user_model::UserModel>>,
-    /// Held for the coordinator's life: one process per log, so no two memories drift apart (for a SQLite
-    /// log, a locked file beside it; a PostgreSQL log holds a session lock of its own).
+    /// Held for the coordinator's life on a SQLite log: one process per file (a locked file beside it).
     _exclusive: Option<std::fs::File>,
 }
 
@@ -127,10 +133,10 @@ fn lock<T>(mutex: &Mutex<T>) -> MutexGuard<'_, T> {
         .unwrap_or_else(|poisoned| poisoned.into_inner())
 }
 
-pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, ApiError> {
+pub(crate) fn encode_state(state: &SceneState) -> Result<StateRecord, SessionError> {
     Ok(StateRecord {
-        labels_png: raster::encode_index_png(&state.labels).map_err(ApiError::internal)?,
-        summary_json: serde_json::to_string(&state.summary).map_err(ApiError::internal)?,
+        labels_png: raster::encode_index_png(&state.labels).map_err(SessionError::internal)?,
+        summary_json: serde_json::to_string(&state.summary).map_err(SessionError::internal)?,
         engine_state: state.engine_state.clone(),
         model: state.summary.model.clone(),
     })
@@ -173,22 +179,18 @@ impl GatedCommit {
 
 /// The answer to work whose request was abandoned before it could be written (the caller has by then
 /// been told so by the time limit).
-pub(crate) fn withdrawn() -> ApiError {
-    ApiError::caller(
-        axum::http::StatusCode::SERVICE_UNAVAILABLE,
-        "timeout",
-        "the request took too long and was abandoned before anything was stored",
-    )
+pub(crate) fn withdrawn() -> SessionError {
+    SessionError::withdrawn()
 }
 
-fn log_error(error: LogError) -> ApiError {
+fn log_error(error: LogError) -> SessionError {
     match error {
         LogError::Withdrawn => withdrawn(),
-        LogError::Stale { .. } => ApiError::conflict(
+        LogError::Stale { .. } => SessionError::conflict(
             "stale_change",
             "the scene changed while this request was being worked out; send it again",
         ),
-        other => ApiError::internal(other),
+        other => SessionError::internal(other),
     }
 }
 
@@ -197,7 +199,6 @@ impl Coordinator {
     pub fn open(
         corrector: Arc<dyn Corrector>,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
         let lock_path = settings.log_path.with_extension("lock");
         if let Some(parent) = lock_path.parent() {
@@ -231,141 +232,61 @@ impl Coordinator {
             checkpoints,
             Some(exclusive),
             settings,
-            metrics,
         )
     }
 
-    /// Opens the coordinator on a PostgreSQL log (`url`, already at this build's schema) and restores
-    /// every scene and conversation in it. One coordinator per database: the log's session lock refuses a
-    /// second while this one runs (`settings.log_path` is not used).
+    /// Opens the coordinator on a PostgreSQL log (`url`, already at this build's schema) as one replica of
+    /// any number on the same database: nothing is read up front; scenes and conversations are read from
+    /// the log when first asked for and checked against it at every use (`replica`).
+    /// `settings.log_path` is not used.
     pub fn open_postgres(
         corrector: Arc<dyn Corrector>,
         url: &str,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
-        let mut log = PostgresLog::connect(url)?;
-        if !log.hold_exclusive(url)? {
-            return Err(OpenError::InUse {
-                shown: log.shown().to_string(),
-            });
-        }
+        let log = PostgresLog::connect(url)?;
         Coordinator::restore(
             corrector,
             CorrectionLog::Postgres(log),
             None,
             None,
             settings,
-            metrics,
         )
     }
 
-    /// Restores every scene and conversation from an opened log.
+    /// Restores every scene and conversation from an opened log this process owns; on a shared log,
+    /// none (each is read when first asked for).
     fn restore(
         corrector: Arc<dyn Corrector>,
         log: CorrectionLog,
         checkpoints: Option<BackgroundCheckpoints>,
         exclusive: Option<std::fs::File>,
         settings: &CoordinatorSettings,
-        metrics: Arc<Metrics>,
     ) -> Result<Coordinator, OpenError> {
+        let shared = log.is_shared();
         let mut scenes = HashMap::new();
-        for row in log.scenes()? {
-            let restore_error = |message: String| OpenError::Restore {
-                scene: row.key.0,
-                message,
-            };
-            let image_png = log.blob(&row.image_hash)?;
-            let image =
-                raster::decode_rgb_png(&image_png, std::path::Path::new("stored image"), u64::MAX)
-                    .map_err(|error| restore_error(error.to_string()))?;
-            let input = register::restore_input(&row.name, image, &row.input_json, |hash| {
-                log.blob(hash).map_err(|error| error.to_string())
-            })
-            .map_err(restore_error)?;
-            let (record, _) = log.version(row.head)?;
-            let state = decode_state(&record).map_err(restore_error)?;
-            scenes.insert(
-                row.key,
-                Arc::new(Mutex::new(SceneSlot {
-                    name: row.name,
-                    input: Arc::new(input),
-                    head: row.head,
-                    state,
-                })),
-            );
-        }
         let mut conversations = HashMap::new();
-        for row in log.conversations()? {
-            let turns = log.turns(row.key)?;
-            let history = turns
-                .iter()
-                .filter(|turn| turn.kind == "utterance")
-                .map(|turn| PastTurn {
-                    utterance: turn.text.clone(),
-                    focus: turn
-                        .focus_json
-                        .as_deref()
-                        .and_then(|text| serde_json::from_str(text).ok()),
-                    constraints: serde_json::from_str(&turn.constraints_json).unwrap_or_default(),
-                })
-                .collect();
-            let pending = match log.pending(row.key)? {
-                Some(pending) => {
-                    let state =
-                        decode_state(&pending.state).map_err(|message| OpenError::Restore {
-                            scene: row.scene.0,
-                            message,
-                        })?;
-                    let turn = turns.iter().find(|turn| turn.key == pending.turn);
-                    Some(PendingSlot {
-                        base: pending.base,
-                        state,
-                        reason: pending.reason,
-                        changes: serde_json::from_str(&pending.changes_json).unwrap_or_default(),
-                        utterance: turn.map(|turn| turn.text.clone()).unwrap_or_default(),
-                        constraints: turn
-                            .and_then(|turn| serde_json::from_str(&turn.constraints_json).ok())
-                            .unwrap_or_default(),
-                        focus: turn
-                            .and_then(|turn| turn.focus_json.as_deref())
-                            .and_then(|text| serde_json::from_str(text).ok()),
-                    })
-                }
-                None => None,
-            };
-            conversations.insert(
-                row.key,
-                Arc::new(Mutex::new(ConversationSlot {
-                    key: row.key,
-                    scene: row.scene,
-                    operator: row.operator,
-                    opened_at: row.opened_at,
-                    history,
-                    pending,
-                    applied: row.applied_stack,
-                    redo: row.redo_stack,
-                    question: turns
-                        .last()
-                        .filter(|turn| turn.status == "needs_clarification")
-                        .and_then(|turn| {
-                            serde_json::from_str::<serde_json::Value>(&turn.result_json).ok()
-                        })
-                        .and_then(|result| {
-                            serde_json::from_value(result.get("open_question")?.clone()).ok()
-                        }),
-                    answered: None,
-                })),
-            );
+        if !shared {
+            for row in log.scenes()? {
+                let key = row.key;
+                let slot = replica::load_scene(&log, row)?;
+                scenes.insert(key, Arc::new(Mutex::new(slot)));
+            }
+            for row in log.conversations()? {
+                let key = row.key;
+                let slot = replica::load_conversation(&log, row)?;
+                conversations.insert(key, Arc::new(Mutex::new(slot)));
+            }
         }
         Ok(Coordinator {
             corrector,
             log: Mutex::new(log),
             group: GatedCommit(GroupCommit::new()),
             _checkpoints: checkpoints,
+            shared,
             scenes: RwLock::new(scenes),
             conversations: RwLock::new(conversations),
-            metrics,
+            counters: Arc::new(TurnCounters::default()),
             pixel_limit: settings.pixel_limit,
             demo_dir: settings.demo_dir.clone(),
             user_model: None,
@@ -383,9 +304,9 @@ impl Coordinator {
         self
     }
 
-    /// The metrics the coordinator records into.
-    pub fn metrics(&self) -> &Arc<Metrics> {
-        &self.metrics
+    /// What the coordinator counts as it works (turns, corrections, solver gaps).
+    pub fn counters(&self) -> &Arc<TurnCounters> {
+        &self.counters
     }
 
     /// The corrector in use.
@@ -393,64 +314,20 @@ impl Coordinator {
         &self.corrector
     }
 
-    pub(crate) fn scene_slot(&self, scene: SceneKey) -> Result<Arc<Mutex<SceneSlot>>, ApiError> {
-        self.scenes
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .get(&scene)
-            .cloned()
-            .ok_or_else(|| ApiError::unknown("unknown_scene", "scene", scene.0))
-    }
-
-    pub(crate) fn conversation_slot(
-        &self,
-        conversation: ConversationKey,
-    ) -> Result<Arc<Mutex<ConversationSlot>>, ApiError> {
-        self.conversations
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .get(&conversation)
-            .cloned()
-            .ok_or_else(|| {
-                ApiError::unknown("unknown_conversation", "conversation", conversation.0)
-            })
-    }
-
     /// Liveness and counts.
-    pub fn health(&self) -> Result<HealthOut, ApiError> {
+    pub fn health(&self) -> Result<HealthOut, SessionError> {
         let log_schema = lock(&self.log).schema_version().map_err(log_error)?;
         Ok(HealthOut {
             status: "ok".into(),
             version: env!("CARGO_PKG_VERSION").into(),
             log_schema,
-            scenes: self
-                .scenes
-                .read()
-                .unwrap_or_else(|poisoned| poisoned.into_inner())
-                .len(),
-            conversations: self
-                .conversations
-                .read()
-                .unwrap_or_else(|poisoned| poisoned.into_inner())
-                .len(),
+            scenes: self.scene_ids().len(),
+            conversations: self.conversation_ids().len(),
         })
     }
 
-    /// Every scene id, ascending.
-    pub fn scene_ids(&self) -> Vec<SceneKey> {
-        let mut keys: Vec<SceneKey> = self
-            .scenes
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .keys()
-            .copied()
-            .collect();
-        keys.sort();
-        keys
-    }
-
     /// The current scene graph.
-    pub fn scene_graph(&self, scene: SceneKey) -> Result<SceneGraphOut, ApiError> {
+    pub fn scene_graph(&self, scene: SceneKey) -> Result<SceneGraphOut, SessionError> {
         let slot = self.scene_slot(scene)?;
         let slot = lock(&slot);
         Ok(convert::scene_graph(
@@ -461,20 +338,20 @@ impl Coordinator {
     }
 
     /// The current label map as an index PNG.
-    pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+    pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
         let labels = lock(&slot).state.labels.clone();
-        raster::encode_index_png(&labels).map_err(ApiError::internal)
+        raster::encode_index_png(&labels).map_err(SessionError::internal)
     }
 
     /// The current overlay as an RGB PNG.
-    pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, ApiError> {
+    pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
         let overlay = {
             let slot = lock(&slot);
             self.corrector.overlay(&slot.input.image, &slot.state)
         };
-        raster::encode_rgb_png(&overlay).map_err(ApiError::internal)
+        raster::encode_rgb_png(&overlay).map_err(SessionError::internal)
     }
 
     /// Opens a conversation on a scene for an operator.
@@ -482,7 +359,7 @@ impl Coordinator {
         &self,
         scene: SceneKey,
         operator: &str,
-    ) -> Result<ConversationOut, ApiError> {
+    ) -> Result<ConversationOut, SessionError> {
         self.scene_slot(scene)?;
         let row = lock(&self.log)
             .open_conversation(scene, operator)
@@ -509,6 +386,7 @@ impl Coordinator {
                     redo: Vec::new(),
                     question: None,
                     answered: None,
+                    mark: TurnMark::default(),
                 })),
             );
         Ok(out)

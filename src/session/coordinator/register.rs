@@ -9,8 +9,6 @@
 use std::path::Path;
 use std::sync::{Arc, Mutex};
 
-use axum::http::StatusCode;
-
 use serde::{Deserialize, Serialize};
 
 use crate::correction_log::{blob_hash, NewScene};
@@ -21,11 +19,11 @@ use crate::scene::files::{image_file, DEPTH_FILE, IMAGE_FILES};
 use crate::scene::BoundingBox;
 use crate::unaries::byo_detections::{DetectionMask, MaskRuns};
 
-use super::super::corrector::{CorrectorError, Detection, PerceptionClasses, SceneInput};
-use super::super::error::ApiError;
-use super::super::wire::{RegisterSceneRequest, SceneCreated};
 use super::{encode_state, lock, log_error, Coordinator, SceneSlot};
 use crate::raster::DepthImage;
+use crate::session::corrector::{CorrectorError, Detection, PerceptionClasses, SceneInput};
+use crate::session::error::{ErrorKind, SessionError};
+use crate::wire::{RegisterSceneRequest, SceneCreated};
 
 /// A scene as the caller sent it, base64 already removed.
 #[derive(Clone, Debug, Default)]
@@ -37,7 +35,7 @@ pub struct SceneUpload {
     pub depth_png: Option<Vec<u8>>,
     pub scores_npy: Option<Vec<u8>>,
     pub label_map_png: Option<Vec<u8>>,
-    pub detections: Vec<super::super::wire::DetectionIn>,
+    pub detections: Vec<crate::wire::DetectionIn>,
     /// Detections as JSON Lines (`crate::unaries::byo_detections`; boxes, and masks as `mask_runs`: a
     /// mask by file name cannot come with an upload), added to `detections`.
     pub detections_jsonl: Option<String>,
@@ -50,7 +48,7 @@ pub struct SceneUpload {
     pub drop_unknown_classes: bool,
 }
 
-fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, ApiError> {
+fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, SessionError> {
     use base64::Engine;
     match text {
         None => Ok(None),
@@ -58,7 +56,7 @@ fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, 
             .decode(text.trim())
             .map(Some)
             .map_err(|error| {
-                ApiError::bad_request(
+                SessionError::malformed(
                     "bad_base64",
                     format!("{field} is not valid standard base64: {error}"),
                 )
@@ -68,10 +66,10 @@ fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, 
 
 impl SceneUpload {
     /// Removes the base64 from a wire request.
-    pub fn from_request(request: RegisterSceneRequest) -> Result<SceneUpload, ApiError> {
+    pub fn from_request(request: RegisterSceneRequest) -> Result<SceneUpload, SessionError> {
         let image = match (&request.image_base64, &request.image_png_base64) {
             (Some(_), Some(_)) => {
-                return Err(ApiError::bad_request(
+                return Err(SessionError::malformed(
                     "conflicting_fields",
                     "send image_base64 or image_png_base64, not both",
                 ))
@@ -97,15 +95,15 @@ impl SceneUpload {
     }
 }
 
-fn raster_error(field: &str, error: RasterError) -> ApiError {
+fn raster_error(field: &str, error: RasterError) -> SessionError {
     match error {
         RasterError::TooLarge {
             width,
             height,
             limit,
             ..
-        } => ApiError::caller(
-            StatusCode::PAYLOAD_TOO_LARGE,
+        } => SessionError::new(
+            ErrorKind::TooLarge,
             "image_too_large",
             format!("{field} is {width}x{height}, above the pixel limit of {limit}; send a smaller image"),
         ),
@@ -115,23 +113,23 @@ fn raster_error(field: &str, error: RasterError) -> ApiError {
             found_width,
             found_height,
             ..
-        } => ApiError::unprocessable(
+        } => SessionError::unusable(
             "size_mismatch",
             format!("{field} is {found_width}x{found_height} but the image is {width}x{height}"),
         ),
         RasterError::WrongFormat {
             found, expected, ..
-        } => ApiError::unprocessable(
+        } => SessionError::unusable(
             "bad_image",
             format!("{field} has colour type {found}; expected {expected}"),
         ),
         RasterError::Decode {
             format, message, ..
-        } => ApiError::unprocessable(
+        } => SessionError::unusable(
             "bad_image",
             format!("{field} is not a readable {format}: {message}"),
         ),
-        other => ApiError::internal(other),
+        other => SessionError::internal(other),
     }
 }
 
@@ -142,12 +140,12 @@ fn jsonl_detections(
     width: u32,
     height: u32,
     taxonomy: &crate::taxonomy::Taxonomy,
-) -> Result<Vec<Detection>, ApiError> {
+) -> Result<Vec<Detection>, SessionError> {
     let synonyms = crate::unaries::byo::SynonymTable::embedded(taxonomy);
     let parsed = crate::unaries::byo_detections::parse_detections(
         text, None, width, height, taxonomy, &synonyms,
     )
-    .map_err(|error| ApiError::unprocessable("bad_detections", error.to_string()))?;
+    .map_err(|error| SessionError::unusable("bad_detections", error.to_string()))?;
     Ok(parsed
         .into_iter()
         .map(|detection| Detection {
@@ -162,12 +160,12 @@ fn jsonl_detections(
 /// A detection's `mask_runs`, checked: the image's size and runs that cover it exactly.
 fn mask_of(
     index: usize,
-    runs: &super::super::wire::MaskRunsIn,
+    runs: &crate::wire::MaskRunsIn,
     width: u32,
     height: u32,
-) -> Result<MaskRuns, ApiError> {
+) -> Result<MaskRuns, SessionError> {
     let refuse = |message: String| {
-        ApiError::unprocessable(
+        SessionError::unusable(
             "bad_mask",
             format!("detections[{index}].mask_runs {message}"),
         )
@@ -212,6 +210,9 @@ pub(crate) struct StoredInput {
     room: Option<RoomId>,
     #[serde(default)]
     classes: PerceptionClasses,
+    /// The superpixels the corrector cut at registration, so a restart need not cut them again.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    superpixels_png: Option<String>,
 }
 
 /// Rebuilds a stored scene's registration from its row: `blob` fetches a stored blob by hash.
@@ -238,6 +239,7 @@ pub(crate) fn restore_input(
         millimetres: decoded.values,
     });
     let label_map = index_png(&stored.label_map_png, "stored label map")?;
+    let superpixels = index_png(&stored.superpixels_png, "stored superpixels")?;
     let scores_npy = match &stored.scores_npy {
         Some(hash) => Some(blob(hash)?),
         None => None,
@@ -251,6 +253,7 @@ pub(crate) fn restore_input(
         detections: stored.detections,
         room: stored.room,
         classes: stored.classes,
+        superpixels,
     })
 }
 
@@ -260,33 +263,29 @@ impl Coordinator {
         &self,
         mut upload: SceneUpload,
         operator: &str,
-    ) -> Result<SceneCreated, ApiError> {
+    ) -> Result<SceneCreated, SessionError> {
         if let Some(demo) = upload.demo.clone() {
             if upload.image_png.is_some() {
-                return Err(ApiError::bad_request(
+                return Err(SessionError::malformed(
                     "conflicting_fields",
                     "send either demo or image_png_base64, not both",
                 ));
             }
             if !valid_demo_name(&demo) {
-                return Err(ApiError::bad_request(
+                return Err(SessionError::malformed(
                     "bad_demo_name",
                     "demo names are 1-64 letters, digits, '-' or '_'",
                 ));
             }
             let directory = demo_scene_path(&self.demo_dir, Some(&demo)).map_err(|error| {
-                ApiError::caller(
-                    StatusCode::NOT_FOUND,
-                    "unknown_demo_scene",
-                    error.to_string(),
-                )
+                SessionError::new(ErrorKind::Unknown, "unknown_demo_scene", error.to_string())
             })?;
             let unreadable = |what: &Path, error: std::io::Error| {
-                ApiError::internal(format!("reading {}: {error}", what.display()))
+                SessionError::internal(format!("reading {}: {error}", what.display()))
             };
             let image_path = image_file(&directory).ok_or_else(|| {
-                ApiError::caller(
-                    StatusCode::NOT_FOUND,
+                SessionError::new(
+                    ErrorKind::Unknown,
                     "unknown_demo_scene",
                     format!(
                         "demo scene {} holds no image (looked for {})",
@@ -310,7 +309,7 @@ impl Coordinator {
             }
         }
         let image_bytes = upload.image_png.take().ok_or_else(|| {
-            ApiError::bad_request(
+            SessionError::malformed(
                 "missing_image",
                 "send image_base64 (a base64 PNG or JPEG) or demo (a demo scene name)",
             )
@@ -319,14 +318,14 @@ impl Coordinator {
             .map_err(|error| raster_error("image_base64", error))?;
         // The log keeps PNG (its export writes image.png): a JPEG is stored as the PNG of its decoded pixels.
         let image_png = if raster::is_jpeg(&image_bytes) {
-            raster::encode_rgb_png(&image).map_err(ApiError::internal)?
+            raster::encode_rgb_png(&image).map_err(SessionError::internal)?
         } else {
             image_bytes
         };
         if let Some(model) = &self.user_model {
             if upload.scores_npy.is_none() && upload.label_map_png.is_none() {
                 let scores = model.scores_for_image(&image).map_err(|error| {
-                    ApiError::unprocessable(
+                    SessionError::unusable(
                         "user_model",
                         format!("the service's user model: {error}"),
                     )
@@ -384,7 +383,7 @@ impl Coordinator {
         let mut detections = Vec::new();
         for (index, detection) in upload.detections.iter().enumerate() {
             let class = taxonomy.class_by_name(&detection.class).ok_or_else(|| {
-                ApiError::unprocessable(
+                SessionError::unusable(
                     "unknown_class",
                     format!(
                         "detections[{index}].class {:?} is not in the taxonomy; see GET /v1/classes",
@@ -394,13 +393,13 @@ impl Coordinator {
             })?;
             let bbox = detection.bbox;
             if bbox.x0 >= bbox.x1 || bbox.y0 >= bbox.y1 || bbox.x1 > width || bbox.y1 > height {
-                return Err(ApiError::unprocessable(
+                return Err(SessionError::unusable(
                     "bad_box",
                     format!("detections[{index}].box must be non-empty and inside the {width}x{height} image"),
                 ));
             }
             if !(0.0..=1.0).contains(&detection.score) {
-                return Err(ApiError::unprocessable(
+                return Err(SessionError::unusable(
                     "bad_score",
                     format!("detections[{index}].score must be between 0 and 1"),
                 ));
@@ -438,7 +437,7 @@ impl Coordinator {
                 .as_ref()
                 .is_some_and(|names| names.is_empty() || names.len() > 255)
             {
-                return Err(ApiError::unprocessable(
+                return Err(SessionError::unusable(
                     "bad_class_list",
                     format!("{field} must name 1 to 255 classes"),
                 ));
@@ -449,7 +448,7 @@ impl Coordinator {
                 taxonomy
                     .room_by_name(name)
                     .ok_or_else(|| {
-                        ApiError::unprocessable(
+                        SessionError::unusable(
                             "unknown_room",
                             format!("room {name:?} is not a room type of the taxonomy"),
                         )
@@ -466,9 +465,9 @@ impl Coordinator {
             .take(200)
             .collect::<String>();
         if let Some(problem) = crate::scene::capture::scene_name_problem(&name) {
-            return Err(ApiError::unprocessable("bad_scene_name", problem));
+            return Err(SessionError::unusable("bad_scene_name", problem));
         }
-        let input = SceneInput {
+        let mut input = SceneInput {
             name: name.clone(),
             image,
             depth,
@@ -477,22 +476,34 @@ impl Coordinator {
             detections: detections.clone(),
             room,
             classes: classes.clone(),
+            superpixels: None,
         };
         let state = self
             .corrector
             .register(&input)
             .map_err(|error| match error {
                 CorrectorError::BadInput { field, message } => {
-                    ApiError::unprocessable("bad_scene_input", format!("{field}: {message}"))
+                    SessionError::unusable("bad_scene_input", format!("{field}: {message}"))
                 }
-                internal => ApiError::internal(internal),
+                internal => SessionError::internal(internal),
             })?;
         let record = encode_state(&state)?;
-        let parts: Vec<&[u8]> = [&upload.depth_png, &upload.scores_npy, &upload.label_map_png]
-            .into_iter()
-            .flatten()
-            .map(|bytes| bytes.as_slice())
-            .collect();
+        // Kept with the scene, so a restart or another replica reads them instead of cutting them again.
+        let superpixels = self.corrector.superpixels(&input);
+        let superpixels_png = superpixels
+            .as_ref()
+            .and_then(|map| raster::encode_index_png(map).ok());
+        input.superpixels = superpixels;
+        let parts: Vec<&[u8]> = [
+            &upload.depth_png,
+            &upload.scores_npy,
+            &upload.label_map_png,
+            &superpixels_png,
+        ]
+        .into_iter()
+        .flatten()
+        .map(|bytes| bytes.as_slice())
+        .collect();
         let input_json = serde_json::to_string(&StoredInput {
             depth_png: upload.depth_png.as_deref().map(blob_hash),
             scores_npy: upload.scores_npy.as_deref().map(blob_hash),
@@ -500,10 +511,11 @@ impl Coordinator {
             detections: detections.clone(),
             room,
             classes,
+            superpixels_png: superpixels_png.as_deref().map(blob_hash),
         })
-        .map_err(ApiError::internal)?;
+        .map_err(SessionError::internal)?;
         // Past this check the request is no longer abandoned by its time limit: the caller gets the ids.
-        if !super::super::abandon::may_commit() {
+        if !crate::session::abandon::may_commit() {
             return Err(super::withdrawn());
         }
         let (key, version) = lock(&self.log)

@@ -10,12 +10,12 @@ use crate::raster::IndexImage;
 use crate::taxonomy::Taxonomy;
 use crate::turn::Candidate;
 
-use super::super::corrector::{Change, Unmet};
-use super::super::wire::{
+use super::SceneSlot;
+use crate::session::corrector::{Change, Unmet};
+use crate::wire::{
     CandidateOut, ChangeOut, ConstraintOut, FocusIn, ObjectOut, PixelBox, SceneGraphOut, TextSpan,
     UnmetOut,
 };
-use super::SceneSlot;
 
 pub(crate) fn focus_from_wire(focus: FocusIn) -> Focus {
     match focus {

@@ -1,0 +1,290 @@
+//! Throughput of a fleet: corrections per second through 1, 2 and 3 `sayso serve` replicas on one
+//! PostgreSQL database, against one `sayso serve` on its SQLite file (the reference), measured in the same
+//! run on the same machine with the same clients.
+//!
+//! Production configuration: the release binary itself (`CARGO_BIN_EXE_sayso`), the demo scenes of
+//! `support::demo_turns` registered by name (about 2,400 superpixels each, scored by the built-in
+//! classifier), one conversation per scene whose scripted notes are sent in turn, closed loop. Each
+//! conversation's turns go to the replicas in rotation, as a reverse proxy without affinity would send them,
+//! so every turn lands on a replica that did not make the scene's head. The PostgreSQL server is the one
+//! `SAYSO_TEST_POSTGRES` names, else a throwaway cluster (`tests/postgres_support`). Everything (server,
+//! replicas, clients) shares the machine's cores; the load average is printed with every figure.
+//! A criterion group also times one correction through a 2-replica fleet.
+
+#[path = "../tests/postgres_support/mod.rs"]
+mod postgres_support;
+
+#[path = "../tests/service_support/mod.rs"]
+mod service_support;
+
+#[path = "support/demo_turns.rs"]
+mod demo_turns;
+
+use std::io::{BufRead, BufReader};
+use std::net::SocketAddr;
+use std::path::Path;
+use std::process::{Child, Command, Stdio};
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+use criterion::{criterion_group, criterion_main, Criterion};
+use demo_turns::{load_average, percentile, BENCH_SCENES};
+use sayso::demo::demo_directory;
+use sayso::evaluation::read_pointed_notes;
+use sayso::language::constraint::Focus;
+
+/// Notes each conversation sends in the measured run (after one warm-up pass over its notes on every
+/// replica).
+const MEASURED_PER_CLIENT: usize = 24;
+
+struct Replica {
+    child: Child,
+    address: SocketAddr,
+}
+
+impl Drop for Replica {
+    fn drop(&mut self) {
+        let _ = self.child.kill();
+        let _ = self.child.wait();
+    }
+}
+
+/// A `sayso serve` on `database` (a `postgres://` address, or `None` for the SQLite file in `data`).
+fn start(database: Option<&str>, data: &Path) -> Replica {
+    std::fs::create_dir_all(data).unwrap();
+    let config = data.join("sayso.toml");
+    std::fs::write(&config, "rate_per_second = 1e9\nrate_burst = 4000000000\n").unwrap();
+    let mut command = Command::new(env!("CARGO_BIN_EXE_sayso"));
+    command
+        .args(["serve", "--port", "0", "--data-dir"])
+        .arg(data);
+    command.arg("--config").arg(&config);
+    if let Some(database) = database {
+        command.args(["--database", database]);
+    }
+    let mut child = command
+        .stdout(Stdio::piped())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("spawn sayso serve");
+    let mut line = String::new();
+    BufReader::new(child.stdout.take().unwrap())
+        .read_line(&mut line)
+        .unwrap();
+    let address = line
+        .split("http://")
+        .nth(1)
+        .and_then(|rest| rest.split('/').next())
+        .and_then(|address| address.parse().ok())
+        .unwrap_or_else(|| panic!("a replica did not start: {line:?}"));
+    Replica { child, address }
+}
+
+/// One conversation on one demo scene, with the notes it sends in turn.
+#[derive(Clone)]
+struct Conversation {
+    id: i64,
+    notes: Arc<Vec<(String, Option<Focus>)>>,
+}
+
+/// Registers the bench scenes through the first replica and opens one conversation on each.
+fn conversations(address: SocketAddr) -> Vec<Conversation> {
+    let demo_dir = demo_directory(None);
+    BENCH_SCENES
+        .iter()
+        .map(|&name| {
+            let created = service_support::send_json(
+                address,
+                "POST",
+                "/v1/scenes",
+                None,
+                &serde_json::json!({ "demo": name }),
+            );
+            assert_eq!(created.status, 201, "{name}: {:?}", created.json());
+            let scene_id = created.json()["scene_id"].as_i64().unwrap();
+            let opened = service_support::send_json(
+                address,
+                "POST",
+                "/v1/conversations",
+                None,
+                &serde_json::json!({ "scene_id": scene_id }),
+            );
+            assert_eq!(opened.status, 201);
+            let notes: Vec<_> = read_pointed_notes(&demo_dir.join(name))
+                .expect("the notes read")
+                .into_iter()
+                .map(|note| (note.text, note.focus))
+                .collect();
+            assert!(!notes.is_empty(), "{name} has notes");
+            Conversation {
+                id: opened.json()["conversation_id"].as_i64().unwrap(),
+                notes: Arc::new(notes),
+            }
+        })
+        .collect()
+}
+
+/// Sends the conversation's `step`th note (cycling) to `address`; how long the answer took.
+fn utterance(address: SocketAddr, conversation: &Conversation, step: usize) -> Duration {
+    let (text, focus) = &conversation.notes[step % conversation.notes.len()];
+    let mut body = serde_json::json!({ "text": text });
+    if let Some(Focus::Pixel { x, y }) = focus {
+        body["focus"] = serde_json::json!({"type": "pixel", "x": x, "y": y});
+    }
+    let started = Instant::now();
+    let reply = service_support::send_json(
+        address,
+        "POST",
+        &format!("/v1/conversations/{}/utterances", conversation.id),
+        None,
+        &body,
+    );
+    let elapsed = started.elapsed();
+    assert_eq!(
+        reply.status,
+        200,
+        "{:?}",
+        String::from_utf8_lossy(&reply.body)
+    );
+    elapsed
+}
+
+/// Every conversation sends `per_client` notes from `first_step` on, each to the next replica; returns
+/// corrections per second and the sorted latencies.
+fn closed_loop(
+    addresses: &[SocketAddr],
+    conversations: &[Conversation],
+    first_step: usize,
+    per_client: usize,
+) -> (f64, Vec<Duration>) {
+    let started = Instant::now();
+    let threads: Vec<_> = conversations
+        .iter()
+        .enumerate()
+        .map(|(client, conversation)| {
+            let addresses = addresses.to_vec();
+            let conversation = conversation.clone();
+            std::thread::spawn(move || {
+                (first_step..first_step + per_client)
+                    .map(|step| {
+                        let address = addresses[(client + step) % addresses.len()];
+                        utterance(address, &conversation, step)
+                    })
+                    .collect::<Vec<_>>()
+            })
+        })
+        .collect();
+    let mut latencies: Vec<Duration> = threads
+        .into_iter()
+        .flat_map(|thread| thread.join().unwrap())
+        .collect();
+    let seconds = started.elapsed().as_secs_f64();
+    latencies.sort();
+    (latencies.len() as f64 / seconds, latencies)
+}
+
+/// Starts `replicas` processes (on a fresh PostgreSQL database, or one on SQLite when `None`), registers
+/// the scenes, warms every replica up, and measures; returns corrections/s, p50 and p99.
+fn measure(replicas: usize, postgres: bool, scratch: &Path) -> (f64, Duration, Duration) {
+    let database = postgres.then(|| {
+        let url = postgres_support::fresh_database();
+        let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
+            .args(["migrate", "--database", &url])
+            .output()
+            .expect("sayso migrate runs");
+        assert!(migrated.status.success(), "{migrated:?}");
+        url
+    });
+    let label = if postgres { "postgres" } else { "sqlite" };
+    let fleet: Vec<Replica> = (0..replicas)
+        .map(|index| {
+            start(
+                database.as_deref(),
+                &scratch.join(format!("{label}-{replicas}-{index}")),
+            )
+        })
+        .collect();
+    let addresses: Vec<SocketAddr> = fleet.iter().map(|replica| replica.address).collect();
+    let conversations = conversations(addresses[0]);
+    // Warm up: each replica prepares every scene once (superpixels and unaries) before the clock starts.
+    let longest = conversations
+        .iter()
+        .map(|c| c.notes.len())
+        .max()
+        .unwrap_or(1);
+    let warm_steps = longest.max(replicas) * 2;
+    closed_loop(&addresses, &conversations, 0, warm_steps);
+    let (throughput, latencies) =
+        closed_loop(&addresses, &conversations, warm_steps, MEASURED_PER_CLIENT);
+    (
+        throughput,
+        percentile(&latencies, 0.5),
+        percentile(&latencies, 0.99),
+    )
+}
+
+fn milliseconds(duration: Duration) -> f64 {
+    duration.as_secs_f64() * 1e3
+}
+
+fn fleet_figures() {
+    let scratch = tempfile::tempdir().unwrap();
+    println!(
+        "fleet: {} clients (one conversation per demo scene), closed loop, {MEASURED_PER_CLIENT} notes each; \
+         {} cores; load average at start {}",
+        BENCH_SCENES.len(),
+        std::thread::available_parallelism().map_or(0, |n| n.get()),
+        load_average()
+    );
+    let (reference, p50, p99) = measure(1, false, scratch.path());
+    println!(
+        "fleet: sqlite, 1 process:       {reference:6.1} corrections/s (the reference), p50 {:.1} ms, p99 {:.1} ms; \
+         load average {}",
+        milliseconds(p50),
+        milliseconds(p99),
+        load_average()
+    );
+    for replicas in 1..=3 {
+        let (throughput, p50, p99) = measure(replicas, true, scratch.path());
+        println!(
+            "fleet: postgres, {replicas} replica{}: {throughput:6.1} corrections/s, ratio to sqlite {:.2}, p50 {:.1} ms, \
+             p99 {:.1} ms; load average {}",
+            if replicas == 1 { "  " } else { "s " },
+            throughput / reference,
+            milliseconds(p50),
+            milliseconds(p99),
+            load_average()
+        );
+    }
+}
+
+fn bench_fleet(criterion: &mut Criterion) {
+    fleet_figures();
+    let scratch = tempfile::tempdir().unwrap();
+    let url = postgres_support::fresh_database();
+    let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["migrate", "--database", &url])
+        .output()
+        .expect("sayso migrate runs");
+    assert!(migrated.status.success(), "{migrated:?}");
+    let fleet: Vec<Replica> = (0..2)
+        .map(|index| start(Some(&url), &scratch.path().join(format!("timed-{index}"))))
+        .collect();
+    let addresses: Vec<SocketAddr> = fleet.iter().map(|replica| replica.address).collect();
+    let conversations = conversations(addresses[0]);
+    closed_loop(&addresses, &conversations, 0, 8);
+    let conversation = conversations[0].clone();
+    let mut step = 8;
+    let mut group = criterion.benchmark_group("fleet");
+    group.sample_size(20);
+    group.bench_function("correction_two_replicas_alternating", |bencher| {
+        bencher.iter(|| {
+            utterance(addresses[step % 2], &conversation, step);
+            step += 1;
+        })
+    });
+    group.finish();
+}
+
+criterion_group!(benches, bench_fleet);
+criterion_main!(benches);
