@@ -1,8 +1,11 @@
 //! The operator console in a real browser (headless Chromium through chromedriver): with a token set, the
 //! page asks for it; it loads a demo scene, relabels an object the operator points at, answers a question
-//! by clicking a candidate on the picture, confirms a held safety change, takes it back and puts it back
-//! with the keyboard, and every step changes the picture and the lists. Screenshots go to
-//! `$CARGO_TARGET_TMPDIR/console/`.
+//! by clicking a candidate on the picture after a reload brought the question back, goes on with the
+//! conversation from the list of stored conversations with a safety change held, confirms it, takes it back
+//! and puts it back with the keyboard, points with the keyboard alone, reaches every control with Tab,
+//! browses the scene's versions (each one's label map checked against the API's) and compares two in the
+//! split view with a dragged divider; every step changes the picture and the lists. Screenshots, at a
+//! laptop's 1366x768 and a tablet's 820x1180 too, go to `$CARGO_TARGET_TMPDIR/console/`.
 //!
 //! Needs Debian's `chromium` and `chromium-driver` (`.ci/run` installs them); without them it fails and
 //! says so. The scene is the committed demo scene `dining_room_guests` on the real pipeline.
@@ -26,6 +29,11 @@ use webdriver::Browser;
 
 const TOKEN: &str = "wren-street-console-test";
 const ENTER: &str = "\u{E007}";
+const TAB: &str = "\u{E004}";
+const LEFT: &str = "\u{E012}";
+const RIGHT: &str = "\u{E014}";
+const DOWN: &str = "\u{E015}";
+const ESCAPE: &str = "\u{E00C}";
 const TURN: Duration = Duration::from_secs(20);
 
 /// Runs the service on the real pipeline on a loopback port until dropped.
@@ -120,6 +128,23 @@ fn listed_objects(browser: &Browser) -> Vec<(u64, String)> {
         .collect()
 }
 
+/// The page's fingerprint of a label map (FNV-1a over the class id of each pixel, as `picture.js` takes
+/// them from the index PNG's one byte per pixel), for a map read from the API.
+fn fingerprint(labels: &sayso::raster::IndexImage) -> String {
+    let mut hash: u32 = 2166136261;
+    for &value in &labels.values {
+        hash ^= u32::from(value as u8);
+        hash = hash.wrapping_mul(16777619);
+    }
+    format!("{hash:08x}")
+}
+
+fn label_map(address: SocketAddr, path: &str) -> sayso::raster::IndexImage {
+    let reply = get(address, path, Some(TOKEN));
+    assert_eq!(reply.status, 200, "{path}");
+    sayso::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 24).unwrap()
+}
+
 fn digest(browser: &Browser) -> String {
     browser
         .script("return document.getElementById('stage').dataset.labelsDigest;")
@@ -207,6 +232,17 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.type_into("#token-input", TOKEN);
     browser.click("#token-send");
     browser.wait_for("document.body.dataset.ready === 'yes'", TURN);
+    browser.wait_for("document.body.dataset.listsLoaded === 'yes'", TURN);
+    assert_eq!(
+        texts(&browser, "#scene-list li"),
+        vec!["No scene stored yet: load a demo room or send a photo."]
+    );
+    assert_eq!(
+        browser
+            .script("return document.getElementById('workspace').getBoundingClientRect().height;"),
+        0,
+        "no workspace before a scene is open"
+    );
 
     // A demo scene by name: the picture, its frames, legend and object list appear.
     browser.type_into("#demo-name", &format!("dining_room_guests{ENTER}"));
@@ -229,14 +265,15 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.screenshot(&shots.join("02-scene.png"));
 
     // Point at an object and rename it.
-    let labels_png = get(
+    let labels = label_map(
         service.address,
         &format!("/v1/scenes/{scene_id}/labels.png"),
-        Some(TOKEN),
     );
-    let labels =
-        sayso::raster::decode_index_png(&labels_png.body, std::path::Path::new("labels"), 1 << 24)
-            .unwrap();
+    assert_eq!(
+        original,
+        fingerprint(&labels),
+        "the page shows the API's label map"
+    );
     let target = objects
         .iter()
         .filter(|object| object["safety"] == false)
@@ -297,6 +334,20 @@ fn an_operator_corrects_a_scene_in_the_console() {
     assert!(candidates.len() >= 2, "{candidates:?}");
     assert_eq!(texts(&browser, "#candidates li").len(), candidates.len());
     browser.screenshot(&shots.join("04-question.png"));
+
+    // A reload goes on with the conversation: the question, its framed candidates and the notes come back.
+    let address = service.address;
+    browser.goto("about:blank");
+    browser.goto(&format!("http://{address}/console#conversation=1"));
+    browser.wait_for(
+        "document.body.dataset.conversation === '1' && !document.getElementById('question').hidden && !document.body.classList.contains('busy')",
+        TURN,
+    );
+    let restored = browser.script("return [...document.querySelectorAll('#frame-layer g.candidate')].map(g => Number(g.dataset.candidate));");
+    assert_eq!(restored.as_array().unwrap(), candidates);
+    assert_eq!(texts(&browser, "#history li").len(), 2);
+    assert_eq!(digest(&browser), renamed);
+    browser.screenshot(&shots.join("04b-question-after-reload.png"));
     let pick = candidates[0].as_u64().unwrap();
     browser.click(&format!(
         "#frame-layer g.candidate[data-candidate='{pick}'] rect"
@@ -334,6 +385,33 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.screenshot(&shots.join("06-held.png"));
     browser.set_window(820, 1180);
     browser.screenshot(&shots.join("06b-held-tablet.png"));
+
+    // Later, from the page's lists: the stored scene, and the conversation still waiting for a yes or no.
+    browser.set_window(1366, 768);
+    browser.goto("about:blank");
+    browser.goto(&format!("http://{address}/console"));
+    browser.wait_for("document.body.dataset.listsLoaded === 'yes'", TURN);
+    let stored = texts(&browser, "#scene-list li");
+    assert_eq!(stored.len(), 1);
+    assert!(stored[0].contains("dining_room_guests"), "{stored:?}");
+    let waiting = texts(&browser, "#conversation-list li");
+    assert_eq!(waiting.len(), 1);
+    assert!(
+        waiting[0].contains("dining_room_guests")
+            && waiting[0].contains("waiting for your yes or no"),
+        "{waiting:?}"
+    );
+    browser.screenshot(&shots.join("06c-chooser-laptop.png"));
+    browser.click("#conversation-list button[data-conversation='1']");
+    browser.wait_for(
+        "document.body.dataset.conversation === '1' && !document.getElementById('hold').hidden && !document.body.classList.contains('busy')",
+        TURN,
+    );
+    assert_eq!(digest(&browser), held);
+    assert_eq!(texts(&browser, "#history li").len(), 4);
+    assert!(texts(&browser, "#hold-changes li")
+        .iter()
+        .any(|line| line.contains("person")));
     browser.set_window(1280, 900);
     browser.click("#confirm");
     assert_eq!(wait_for_turns(&browser, 5), "confirmed");
@@ -373,4 +451,272 @@ fn an_operator_corrects_a_scene_in_the_console() {
     assert_eq!(digest(&browser), confirmed);
     let turns = texts(&browser, "#history li").len();
     assert_eq!(turns, 7, "{:?}", texts(&browser, "#history li"));
+
+    // The scene's versions: listed as the API lists them; each one viewed shows its own label map.
+    let listed = get(
+        address,
+        &format!("/v1/scenes/{scene_id}/versions"),
+        Some(TOKEN),
+    )
+    .json();
+    let api_versions: Vec<i64> = listed["versions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|version| version["version"].as_i64().unwrap())
+        .collect();
+    assert_eq!(
+        api_versions.len(),
+        4,
+        "registered, renamed, answered, confirmed: {listed}"
+    );
+    let page_versions = browser.script(
+        "return [...document.querySelectorAll('#versions li')].map(li => Number(li.dataset.version));",
+    );
+    assert_eq!(page_versions, serde_json::json!(api_versions));
+    let head = listed["head"].as_i64().unwrap();
+    let registered = *api_versions.last().unwrap();
+    let parent = listed["versions"][0]["parent"].as_i64().unwrap();
+    browser.click(&format!("#versions button[data-view='{registered}']"));
+    browser.wait_for(
+        &format!("document.body.dataset.sceneVersion === '{registered}' && !document.body.classList.contains('busy')"),
+        TURN,
+    );
+    assert_eq!(digest(&browser), original);
+    assert_eq!(
+        fingerprint(&label_map(
+            address,
+            &format!("/v1/scenes/{scene_id}/labels.png?version={registered}")
+        )),
+        original
+    );
+    let viewing = browser.script("return document.getElementById('viewing').textContent;");
+    assert!(
+        viewing
+            .as_str()
+            .unwrap()
+            .contains(&format!("Looking at version {registered}")),
+        "{viewing}"
+    );
+    assert_eq!(
+        listed_objects(&browser).len(),
+        objects.len(),
+        "the registered version's objects"
+    );
+    browser.screenshot(&shots.join("09-registered-version.png"));
+    browser.click("#back-to-current");
+    browser.wait_for(
+        &format!("document.body.dataset.sceneVersion === '{head}' && !document.body.classList.contains('busy')"),
+        TURN,
+    );
+    assert_eq!(digest(&browser), confirmed);
+    assert_eq!(
+        browser.script("return document.getElementById('viewing').getBoundingClientRect().height;"),
+        0,
+        "the note about an earlier version goes away"
+    );
+
+    // Split view: the version before on the left of a divider, dragged with the mouse and moved by keys.
+    let stage = |what: &str| {
+        browser
+            .script(&format!(
+                "return document.getElementById('stage').dataset.{what};"
+            ))
+            .as_str()
+            .unwrap_or("")
+            .to_string()
+    };
+    assert_eq!(stage("beforeVersion"), parent.to_string());
+    assert_eq!(
+        stage("beforeDigest"),
+        fingerprint(&label_map(
+            address,
+            &format!("/v1/scenes/{scene_id}/labels.png?version={parent}")
+        ))
+    );
+    assert_eq!(
+        stage("beforeDigest"),
+        held,
+        "the confirmed change was made from the held picture"
+    );
+    assert_eq!(stage("split"), "", "no split until asked for");
+    browser.click("#split");
+    assert_eq!(stage("split"), "50");
+    assert_eq!(
+        browser.script("return document.getElementById('before-layer').hidden;"),
+        false
+    );
+    let stage_width = browser
+        .script("return document.getElementById('stage').getBoundingClientRect().width;")
+        .as_f64()
+        .unwrap();
+    browser.drag_by("#divider", -stage_width / 4.0);
+    let dragged: f64 = stage("split").parse().unwrap();
+    assert!((dragged - 25.0).abs() <= 3.0, "dragged to {dragged}");
+    browser.script("document.getElementById('divider').focus();");
+    browser.press(&[RIGHT, RIGHT]);
+    let moved: f64 = stage("split").parse().unwrap();
+    assert_eq!(moved, dragged + 10.0);
+    browser.screenshot(&shots.join("10-split.png"));
+    browser.click(&format!("#versions button[data-compare='{registered}']"));
+    browser.wait_for(
+        &format!("document.getElementById('stage').dataset.beforeVersion === '{registered}'"),
+        TURN,
+    );
+    assert_eq!(stage("beforeDigest"), original);
+    browser.set_window(1366, 768);
+    let fits = browser.script(
+        "window.scrollTo(0, 0); const box = document.getElementById('stage').getBoundingClientRect(); \
+         return [box.bottom, window.innerHeight, document.documentElement.scrollWidth, window.innerWidth];",
+    );
+    assert!(
+        fits[0].as_f64().unwrap() <= fits[1].as_f64().unwrap(),
+        "the whole picture shows under the page's head on a laptop screen: {fits}"
+    );
+    browser.screenshot(&shots.join("11a-laptop-top.png"));
+    assert!(
+        fits[2].as_f64().unwrap() <= fits[3].as_f64().unwrap(),
+        "nothing wider than the window: {fits}"
+    );
+    browser.script("document.getElementById('stage').scrollIntoView({block: 'nearest'});");
+    browser.screenshot(&shots.join("11-split-laptop.png"));
+    browser.set_window(820, 1180);
+    let fits = browser.script("return [document.documentElement.scrollWidth, window.innerWidth];");
+    assert!(
+        fits[0].as_f64().unwrap() <= fits[1].as_f64().unwrap(),
+        "nothing wider than a tablet: {fits}"
+    );
+    browser.screenshot(&shots.join("12-split-tablet.png"));
+    browser.set_window(1280, 900);
+    browser.click("#split");
+    assert_eq!(stage("split"), "");
+
+    // Keyboard alone: Tab reaches every control, each with a visible ring.
+    browser.script("document.activeElement.blur(); window.scrollTo(0, 0);");
+    let mut reached = Vec::new();
+    for _ in 0..200 {
+        browser.press(&[TAB]);
+        let focused = browser.script(
+            "const e = document.activeElement; const style = getComputedStyle(e); \
+             const again = e.dataset.tabbed === 'yes'; if (e !== document.body) e.dataset.tabbed = 'yes'; \
+             return [e.id || e.tagName.toLowerCase() + (e.dataset.view ? '-view' : e.dataset.object ? '-object' : ''), style.outlineStyle, again];",
+        );
+        let name = focused[0].as_str().unwrap().to_string();
+        if focused[2] == true {
+            break;
+        }
+        if name == "body" {
+            continue;
+        }
+        assert_ne!(
+            focused[1], "none",
+            "{name} has the focus without a visible ring"
+        );
+        reached.push(name);
+    }
+    for control in [
+        "summary",
+        "show-labels",
+        "label-opacity",
+        "show-boxes",
+        "show-moved",
+        "split",
+        "compare",
+        "stage",
+        "note",
+        "send",
+        "undo",
+        "redo",
+        "li-object",
+        "button-view",
+    ] {
+        assert!(
+            reached.iter().any(|name| name == control),
+            "Tab never reaches {control}: {reached:?}"
+        );
+    }
+    let keys = texts(&browser, "#keys dt").join(" | ");
+    for documented in [
+        "Arrow keys on the picture",
+        "Enter or Space on the picture",
+        "Ctrl+Z",
+        "1 to 9",
+    ] {
+        assert!(keys.contains(documented), "{keys}");
+    }
+
+    // Point with the keyboard: P goes to the picture, arrows move the cursor, Enter points, Esc drops it.
+    browser.script("document.getElementById('undo').focus();");
+    browser.press(&["p"]);
+    assert_eq!(browser.script("return document.activeElement.id;"), "stage");
+    let (width, height) = (
+        graph["width"].as_i64().unwrap(),
+        graph["height"].as_i64().unwrap(),
+    );
+    let step = (width as f64 / 40.0).round() as i64;
+    let (centre_x, centre_y) = (width / 2, height / 2);
+    assert_eq!(stage("cursor"), format!("{centre_x},{centre_y}"));
+    browser.press(&[RIGHT, RIGHT, RIGHT, DOWN, DOWN, LEFT]);
+    let (point_x, point_y) = (centre_x + 2 * step, centre_y + 2 * step);
+    assert_eq!(stage("cursor"), format!("{point_x},{point_y}"));
+    // The tip names the object under the cursor: the smallest frame holding it, as the mouse's hover does.
+    let current = get(address, &format!("/v1/scenes/{scene_id}"), Some(TOKEN)).json();
+    let under = current["objects"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|object| {
+            let frame = &object["box"];
+            let inside = |low: &str, high: &str, at: i64| {
+                frame[low].as_i64().unwrap() <= at && at < frame[high].as_i64().unwrap()
+            };
+            inside("x0", "x1", point_x) && inside("y0", "y1", point_y)
+        })
+        .min_by_key(|object| object["area_pixels"].as_u64().unwrap())
+        .expect("an object under the cursor");
+    let tip = browser.script("return document.getElementById('hover-tip').textContent;");
+    assert_eq!(
+        tip.as_str().unwrap(),
+        format!(
+            "{} · object {}",
+            under["class"].as_str().unwrap(),
+            under["object_id"]
+        )
+    );
+    browser.press(&[ENTER]);
+    assert_eq!(
+        browser.script("return document.getElementById('hover-tip').hidden;"),
+        true,
+        "the tip goes with the picture's focus"
+    );
+    let line = browser.script("return document.getElementById('pointer-line').textContent;");
+    assert!(
+        line.as_str()
+            .unwrap()
+            .contains(&format!("Pointing at {point_x}, {point_y}")),
+        "{line}"
+    );
+    assert_eq!(browser.script("return document.activeElement.id;"), "note");
+    assert_eq!(
+        browser.script("return document.querySelectorAll('#frame-layer circle.point').length;"),
+        1
+    );
+    browser.press(&[ESCAPE]);
+    assert_eq!(
+        browser.script("return document.querySelectorAll('#frame-layer circle.point').length;"),
+        0
+    );
+    browser.script("document.getElementById('undo').focus();");
+    browser.press(&["p", ENTER]);
+    browser.wait_for(
+        "document.getElementById('pointer-line').textContent.includes('Pointing at')",
+        TURN,
+    );
+    browser.screenshot(&shots.join("13-keyboard-point.png"));
+    send_note(&browser, "that's a plant");
+    let latest = texts(&browser, "#history li");
+    assert!(
+        latest[0].contains(&format!("pointing at {point_x}, {point_y}")),
+        "{latest:?}"
+    );
 }

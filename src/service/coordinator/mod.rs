@@ -13,6 +13,7 @@ mod access;
 mod convert;
 mod register;
 mod turns;
+mod versions;
 
 use std::collections::HashMap;
 use std::path::PathBuf;

@@ -913,6 +913,16 @@ impl Coordinator {
                         .map(|change| change_out(change, taxonomy))
                         .collect(),
                 }),
+            question: conversation_state
+                .question
+                .as_ref()
+                .map(|question| question.text.clone()),
+            candidates: conversation_state
+                .question
+                .iter()
+                .flat_map(|question| &question.candidates)
+                .map(|candidate| candidate_out(candidate, taxonomy))
+                .collect(),
             turns: turns
                 .into_iter()
                 .map(|turn| {
