@@ -383,7 +383,33 @@ fn an_operator_corrects_a_scene_in_the_console() {
     );
     let held = digest(&browser);
     browser.screenshot(&shots.join("06-held.png"));
+    // The README's picture: the held change beside the split view, on a laptop screen.
+    browser.set_window(1366, 768);
+    browser.click("#split");
+    browser.script("window.scrollTo(0, 0);");
+    assert_eq!(
+        browser.script("return document.getElementById('stage').dataset.split;"),
+        "50"
+    );
+    browser.screenshot(&shots.join("06a-held-split-laptop.png"));
+    browser.click("#split");
+    browser.set_window(1280, 900);
+    let hold_at = "const hold = document.getElementById('hold').getBoundingClientRect(); \
+                   const stage = document.getElementById('stage').getBoundingClientRect(); \
+                   return [hold.top, stage.top, hold.height, window.innerHeight];";
+    let laptop = browser.script(hold_at);
+    assert!(
+        laptop[0].as_f64().unwrap() + 40.0 < laptop[3].as_f64().unwrap(),
+        "the held change shows on the first screen: {laptop}"
+    );
     browser.set_window(820, 1180);
+    browser.script("window.scrollTo(0, 0);");
+    let tablet = browser.script(hold_at);
+    assert!(
+        tablet[0].as_f64().unwrap() < tablet[1].as_f64().unwrap()
+            && tablet[2].as_f64().unwrap() > 0.0,
+        "on a tablet the held change comes before the picture: {tablet}"
+    );
     browser.screenshot(&shots.join("06b-held-tablet.png"));
 
     // Later, from the page's lists: the stored scene, and the conversation still waiting for a yes or no.
@@ -581,7 +607,17 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.script("document.getElementById('stage').scrollIntoView({block: 'nearest'});");
     browser.screenshot(&shots.join("11-split-laptop.png"));
     browser.set_window(820, 1180);
-    let fits = browser.script("return [document.documentElement.scrollWidth, window.innerWidth];");
+    let fits = browser.script(
+        "return [document.documentElement.scrollWidth, window.innerWidth, \
+         document.getElementById('note').getBoundingClientRect().width, \
+         document.getElementById('answer').getBoundingClientRect().width];",
+    );
+    let tablet_width = fits[1].as_f64().unwrap();
+    assert!(
+        fits[2].as_f64().unwrap() > 0.5 * tablet_width
+            && fits[3].as_f64().unwrap() > 0.9 * tablet_width,
+        "on a tablet the note box and the answer take the screen's width: {fits}"
+    );
     assert!(
         fits[0].as_f64().unwrap() <= fits[1].as_f64().unwrap(),
         "nothing wider than a tablet: {fits}"

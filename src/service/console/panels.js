@@ -121,6 +121,7 @@ export function showLegend(rows) {
 const TURN_WORDS = { utterance: "note", confirm: "yes", reject: "no", undo: "take back", redo: "put back" };
 
 export function showHistory(history) {
+  document.getElementById("history-empty").hidden = history.turns.length > 0;
   const list = document.getElementById("history");
   list.replaceChildren(...history.turns.slice().reverse().map((turn) => {
     const entry = document.createElement("li");

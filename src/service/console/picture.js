@@ -76,7 +76,10 @@ export class Picture {
     this.frames.setAttribute("viewBox", `0 0 ${width} ${height}`);
     this.stage.style.aspectRatio = `${width} / ${height}`;
     // As wide as the column allows, but never taller than the window leaves room for (a laptop's 768 rows).
-    this.stage.style.maxWidth = `calc((100vh - 12.5rem) * ${(width / height).toFixed(4)})`;
+    const widest = `calc((100vh - 12.5rem) * ${(width / height).toFixed(4)})`;
+    this.stage.style.maxWidth = widest;
+    // The picture's column is no wider than the picture, so the panels beside it get the rest.
+    document.getElementById("workspace").style.setProperty("--picture-widest", widest);
     // The overlay carries a legend panel to the right of the picture; only the picture part is drawn.
     this.base.getContext("2d").drawImage(overlay, 0, 0, width, height, 0, 0, width, height);
     const previous = sameSize ? this.labels : null;
