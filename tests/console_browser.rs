@@ -243,6 +243,21 @@ fn an_operator_corrects_a_scene_in_the_console() {
         0,
         "no workspace before a scene is open"
     );
+    // An address naming a conversation that is not there: the lists, and why.
+    browser.goto("about:blank");
+    browser.goto(&format!(
+        "http://{}/console#conversation=99",
+        service.address
+    ));
+    let why = browser.wait_for(
+        "document.body.dataset.listsLoaded === 'yes' && document.getElementById('chooser-problem').textContent",
+        TURN,
+    );
+    assert!(
+        why.as_str().unwrap().contains("unknown_conversation"),
+        "{why}"
+    );
+    assert_eq!(browser.script("return location.hash;"), "");
 
     // A demo scene by name: the picture, its frames, legend and object list appear.
     browser.type_into("#demo-name", &format!("dining_room_guests{ENTER}"));

@@ -2,7 +2,8 @@
 //! the turn that made it (the words only for whom may read that conversation), marks undone ones as no
 //! longer in force, and every version's scene graph, label map and overlay can be read back; a version of
 //! another scene, or a malformed query, is refused in the JSON error shape. A conversation's history also
-//! carries its open question, so a page reloaded later can show it again.
+//! carries its open question (kept through a note not understood and a restart), so a page reloaded later
+//! can show it again.
 
 mod service_support;
 
@@ -271,6 +272,16 @@ async fn a_conversations_history_carries_its_open_question_until_it_is_answered(
     assert_eq!(asked["status"], "needs_clarification");
     let (_, waiting) = get_json(&router, &path, MIRA).await;
     assert_eq!(waiting["question"], "which pixel?");
+    // A note not understood leaves the question open, and so does a restart of the service.
+    let unread = say(&router, conversation, "hm", 2).await;
+    assert_eq!(unread["status"], "not_understood");
+    let (_, still) = get_json(&router, &path, MIRA).await;
+    assert_eq!(still["question"], "which pixel?");
+    drop(router);
+    drop(_coordinator);
+    let (router, _coordinator) = router_with(data.path(), config(), Arc::new(GridEngine::new()));
+    let (_, restarted) = get_json(&router, &path, MIRA).await;
+    assert_eq!(restarted["question"], "which pixel?", "{restarted}");
 
     let painted = say(&router, conversation, "paint mug", 2).await;
     assert_eq!(painted["status"], "applied");

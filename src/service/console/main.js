@@ -153,6 +153,8 @@ async function loadBefore() {
     const key = `${state.scene}/${version}`;
     if (!beforeCache.has(key)) {
       beforeCache.set(key, await Promise.all([api.overlay(state.scene, version), api.labelMap(state.scene, version)]));
+      // A few versions are kept for going back and forth; the oldest fetched goes first.
+      if (beforeCache.size > 4) beforeCache.delete(beforeCache.keys().next().value);
     }
     const [overlay, labels] = beforeCache.get(key);
     picture.setBefore(version, overlay, labels);
@@ -398,7 +400,16 @@ checkAccess().then(async () => {
   document.body.dataset.ready = "yes";
   const earlier = /^#conversation=(\d+)$/.exec(location.hash);
   if (earlier) {
-    await exchange("chooser-problem", () => resume(Number(earlier[1])));
+    await exchange("chooser-problem", async () => {
+      try {
+        await resume(Number(earlier[1]));
+      } catch (error) {
+        // Not a conversation this operator may go on with: show the lists, and say why.
+        history.replaceState(null, "", location.pathname);
+        await loadLists();
+        throw error;
+      }
+    });
   } else {
     await exchange("chooser-problem", loadLists);
   }

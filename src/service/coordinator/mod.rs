@@ -346,15 +346,7 @@ impl Coordinator {
                     pending,
                     applied: row.applied_stack,
                     redo: row.redo_stack,
-                    question: turns
-                        .last()
-                        .filter(|turn| turn.status == "needs_clarification")
-                        .and_then(|turn| {
-                            serde_json::from_str::<serde_json::Value>(&turn.result_json).ok()
-                        })
-                        .and_then(|result| {
-                            serde_json::from_value(result.get("open_question")?.clone()).ok()
-                        }),
+                    question: turns::question_after(&turns),
                     answered: None,
                 })),
             );
