@@ -4,8 +4,9 @@
 //! conversation from the list of stored conversations with a safety change held, confirms it, takes it back
 //! and puts it back with the keyboard, points with the keyboard alone, reaches every control with Tab,
 //! browses the scene's versions (each one's label map checked against the API's) and compares two in the
-//! split view with a dragged divider; every step changes the picture and the lists. Screenshots, at a
-//! laptop's 1366x768 and a tablet's 820x1180 too, go to `$CARGO_TARGET_TMPDIR/console/`.
+//! split view with a dragged divider, and sends a photo with its depth from the chooser; every step changes
+//! the picture and the lists. Screenshots, at a laptop's 1366x768 and a tablet's 820x1180 too, go to
+//! `$CARGO_TARGET_TMPDIR/console/`.
 //!
 //! Needs Debian's `chromium` and `chromium-driver` (`.ci/run` installs them); without them it fails and
 //! says so. The scene is the committed demo scene `dining_room_guests` on the real pipeline.
@@ -770,4 +771,35 @@ fn an_operator_corrects_a_scene_in_the_console() {
         latest[0].contains(&format!("pointing at {point_x}, {point_y}")),
         "{latest:?}"
     );
+
+    // A photo of one's own, with its depth, sent from the chooser: a new scene and a conversation on it.
+    browser.click("#chooser summary");
+    let photo = sayso::demo::demo_scene_path(
+        &sayso::demo::demo_directory(None),
+        Some("kitchen_breakfast"),
+    )
+    .unwrap();
+    browser.type_into("#upload-image", photo.join("image.png").to_str().unwrap());
+    browser.type_into("#upload-depth", photo.join("depth.png").to_str().unwrap());
+    browser.click("#upload-form button[type=submit]");
+    browser.wait_for(
+        "document.body.dataset.conversation === '2' && !document.body.classList.contains('busy')",
+        TURN,
+    );
+    let uploaded = get(address, "/v1/scenes/2", Some(TOKEN)).json();
+    assert_eq!(uploaded["name"], "image.png");
+    assert_eq!(
+        digest(&browser),
+        fingerprint(&label_map(address, "/v1/scenes/2/labels.png"))
+    );
+    assert_eq!(
+        listed_objects(&browser).len(),
+        uploaded["objects"].as_array().unwrap().len()
+    );
+    assert_eq!(
+        browser.script("return document.getElementById('stage').dataset.movedPixels;"),
+        "0",
+        "a new scene is not compared with the last one"
+    );
+    browser.screenshot(&shots.join("14-uploaded.png"));
 }

@@ -68,7 +68,9 @@ export class Picture {
   show(overlay, labelMap, graph) {
     const width = graph.width;
     const height = graph.height;
-    const sameSize = width === this.width && height === this.height;
+    // Only another version of the same scene is compared with what was shown before.
+    const sameScene = width === this.width && height === this.height && graph.scene_id === this.sceneId;
+    this.sceneId = graph.scene_id;
     for (const canvas of [this.base, this.labelLayer, this.movedLayer, this.beforeLayer]) {
       canvas.width = width;
       canvas.height = height;
@@ -82,15 +84,15 @@ export class Picture {
     document.getElementById("workspace").style.setProperty("--picture-widest", widest);
     // The overlay carries a legend panel to the right of the picture; only the picture part is drawn.
     this.base.getContext("2d").drawImage(overlay, 0, 0, width, height, 0, 0, width, height);
-    const previous = sameSize ? this.labels : null;
+    const previous = sameScene ? this.labels : null;
     this.width = width;
     this.height = height;
     const labels = this.readLabels(labelMap);
     this.current = overlay;
     this.labels = labels;
     this.objects = graph.objects;
-    if (!sameSize) this.before = null;
-    if (this.cursor && (this.cursor.x >= width || this.cursor.y >= height)) this.cursor = null;
+    if (!sameScene) this.before = null;
+    if (!sameScene) this.cursor = null;
     this.paintLabels();
     this.paintBefore();
     this.paintMoved(previous);
