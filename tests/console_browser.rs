@@ -12,204 +12,32 @@
 //! says so. The scene is the committed demo scene `dining_room_guests` on the real pipeline.
 
 mod service_support;
+#[path = "console/support.rs"]
+mod support;
 #[path = "console/webdriver.rs"]
 mod webdriver;
 
 use std::net::SocketAddr;
-use std::sync::Arc;
-use std::time::Duration;
+use std::path::PathBuf;
 
-use sayso::service::config::{OperatorToken, Role, ServiceConfig};
-use sayso::service::coordinator::{Coordinator, CoordinatorSettings};
-use sayso::service::joint::JointCorrector;
-use sayso::service::metrics::Metrics;
-use sayso::service::AppState;
 use serde_json::Value;
 use service_support::get;
+use support::*;
 use webdriver::Browser;
 
-const TOKEN: &str = "wren-street-console-test";
-const ENTER: &str = "\u{E007}";
-const TAB: &str = "\u{E004}";
-const LEFT: &str = "\u{E012}";
-const RIGHT: &str = "\u{E014}";
-const DOWN: &str = "\u{E015}";
-const ESCAPE: &str = "\u{E00C}";
-const TURN: Duration = Duration::from_secs(20);
-
-/// Runs the service on the real pipeline on a loopback port until dropped.
-struct Service {
+/// What every step works with: the browser, the service's address, where screenshots go.
+struct Walk {
+    browser: Browser,
     address: SocketAddr,
-    stop: Option<tokio::sync::oneshot::Sender<()>>,
-    thread: Option<std::thread::JoinHandle<()>>,
+    shots: PathBuf,
 }
 
-impl Drop for Service {
-    fn drop(&mut self) {
-        if let Some(stop) = self.stop.take() {
-            let _ = stop.send(());
-        }
-        if let Some(thread) = self.thread.take() {
-            let _ = thread.join();
-        }
-    }
-}
-
-fn start_service(data: &std::path::Path) -> Service {
-    let config = ServiceConfig {
-        data_dir: data.to_path_buf(),
-        bind: SocketAddr::from(([127, 0, 0, 1], 0)),
-        request_timeout_ms: 60_000,
-        operators: vec![OperatorToken {
-            name: "tess".into(),
-            token: TOKEN.into(),
-            role: Role::Operator,
-        }],
-        ..ServiceConfig::default()
-    };
-    config.validate().expect("test config is valid");
-    let engine = JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier");
-    let coordinator = Arc::new(
-        Coordinator::open(
-            Arc::new(engine),
-            &CoordinatorSettings {
-                log_path: config.log_path(),
-                pixel_limit: config.pixel_limit,
-                demo_dir: sayso::demo::demo_directory(None),
-            },
-            Arc::new(Metrics::default()),
-        )
-        .expect("open coordinator"),
-    );
-    let state = AppState::new(coordinator, config);
-    let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
-    let (ready, address) = std::sync::mpsc::channel();
-    let thread = std::thread::spawn(move || {
-        let runtime = tokio::runtime::Builder::new_multi_thread()
-            .worker_threads(2)
-            .enable_all()
-            .build()
-            .expect("runtime");
-        runtime.block_on(async move {
-            let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
-                .await
-                .expect("bind");
-            ready
-                .send(listener.local_addr().expect("address"))
-                .expect("ready");
-            sayso::service::run(listener, state, async {
-                let _ = stopped.await;
-            })
-            .await
-            .expect("serve");
-        });
-    });
-    Service {
-        address: address.recv().expect("service started"),
-        stop: Some(stop),
-        thread: Some(thread),
-    }
-}
-
-/// The page's object list as (object id, class) pairs.
-fn listed_objects(browser: &Browser) -> Vec<(u64, String)> {
-    let listed = browser.script(
-        "return [...document.querySelectorAll('#objects li')].map(li => [Number(li.dataset.object), li.dataset.class]);",
-    );
-    listed
-        .as_array()
-        .expect("object list")
-        .iter()
-        .map(|pair| {
-            (
-                pair[0].as_u64().unwrap(),
-                pair[1].as_str().unwrap().to_string(),
-            )
-        })
-        .collect()
-}
-
-/// The page's fingerprint of a label map (FNV-1a over the class id of each pixel, as `picture.js` takes
-/// them from the index PNG's one byte per pixel), for a map read from the API.
-fn fingerprint(labels: &sayso::raster::IndexImage) -> String {
-    let mut hash: u32 = 2166136261;
-    for &value in &labels.values {
-        hash ^= u32::from(value as u8);
-        hash = hash.wrapping_mul(16777619);
-    }
-    format!("{hash:08x}")
-}
-
-fn label_map(address: SocketAddr, path: &str) -> sayso::raster::IndexImage {
-    let reply = get(address, path, Some(TOKEN));
-    assert_eq!(reply.status, 200, "{path}");
-    sayso::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 24).unwrap()
-}
-
-fn digest(browser: &Browser) -> String {
-    browser
-        .script("return document.getElementById('stage').dataset.labelsDigest;")
-        .as_str()
-        .unwrap()
-        .to_string()
-}
-
-fn texts(browser: &Browser, selector: &str) -> Vec<String> {
-    browser
-        .script(&format!(
-            "return [...document.querySelectorAll('{selector}')].map(e => e.textContent);"
-        ))
-        .as_array()
-        .expect("texts")
-        .iter()
-        .map(|text| text.as_str().unwrap_or("").to_string())
-        .collect()
-}
-
-/// Sends a note by typing it and pressing Enter, and waits for the answer to a new turn.
-fn send_note(browser: &Browser, text: &str) -> String {
-    let turns_before = browser.script("return document.querySelectorAll('#history li').length;");
-    browser.type_into("#note", &format!("{text}{ENTER}"));
-    browser.wait_for(
-        &format!("document.querySelectorAll('#history li').length > {turns_before} && !document.body.classList.contains('busy')"),
-        TURN,
-    );
-    browser
-        .script("return document.getElementById('verdict').dataset.status;")
-        .as_str()
-        .unwrap()
-        .to_string()
-}
-
-/// Waits until the conversation shows `count` turns and returns the latest answer's status.
-fn wait_for_turns(browser: &Browser, count: usize) -> String {
-    browser.wait_for(
-        &format!("document.querySelectorAll('#history li').length === {count} && !document.body.classList.contains('busy')"),
-        TURN,
-    );
-    browser
-        .script("return document.getElementById('verdict').dataset.status;")
-        .as_str()
-        .unwrap()
-        .to_string()
-}
-
-/// A pixel of `object` that carries its class, as close to its frame's centre as there is one.
-fn pixel_of(object: &Value, labels: &sayso::raster::IndexImage) -> (u32, u32) {
-    let frame = &object["box"];
-    let (x0, y0, x1, y1) = (
-        frame["x0"].as_u64().unwrap() as u32,
-        frame["y0"].as_u64().unwrap() as u32,
-        frame["x1"].as_u64().unwrap() as u32,
-        frame["y1"].as_u64().unwrap() as u32,
-    );
-    let class_id = object["class_id"].as_u64().unwrap() as u16;
-    let (centre_x, centre_y) = ((x0 + x1) / 2, (y0 + y1) / 2);
-    (y0..y1)
-        .flat_map(|y| (x0..x1).map(move |x| (x, y)))
-        .filter(|&(x, y)| labels.get(x, y) == class_id)
-        .min_by_key(|&(x, y)| x.abs_diff(centre_x).pow(2) + y.abs_diff(centre_y).pow(2))
-        .expect("an object has a pixel of its class")
+/// What the first steps saw, for later steps to compare with.
+struct Seen {
+    graph: Value,
+    objects: Vec<Value>,
+    original: String,
+    renamed: String,
 }
 
 #[test]
@@ -218,16 +46,34 @@ fn an_operator_corrects_a_scene_in_the_console() {
     let service = start_service(data.path());
     let shots = std::path::PathBuf::from(env!("CARGO_TARGET_TMPDIR")).join("console");
     std::fs::create_dir_all(&shots).unwrap();
-    let browser = Browser::start(1280, 900);
+    let walk = Walk {
+        browser: Browser::start(1280, 900),
+        address: service.address,
+        shots,
+    };
+    let seen = sign_in_open_and_rename(&walk);
+    ask_reload_and_answer(&walk, &seen);
+    let (held, people_before) = hold_and_go_on_from_the_lists(&walk);
+    let confirmed = confirm_take_back_put_back(&walk, &held, people_before);
+    versions_and_split(&walk, &seen, &held, &confirmed);
+    keyboard_alone(&walk, &seen);
+    send_a_photo(&walk);
+}
 
+/// Signs in, meets an unknown conversation in the address, opens a demo scene, points at an object and
+/// renames it.
+fn sign_in_open_and_rename(walk: &Walk) -> Seen {
+    let browser = &walk.browser;
+    let address = walk.address;
+    let shots = &walk.shots;
     // The console's files are served without a token; the page asks for one because the API wants it.
-    let page = get(service.address, "/console", None);
+    let page = get(address, "/console", None);
     assert_eq!(page.status, 200);
     assert_eq!(
         page.header("content-type"),
         Some("text/html; charset=utf-8")
     );
-    browser.goto(&format!("http://{}/console", service.address));
+    browser.goto(&format!("http://{}/console", address));
     browser.wait_for("document.getElementById('token-dialog').open", TURN);
     browser.screenshot(&shots.join("01-token.png"));
     browser.type_into("#token-input", TOKEN);
@@ -235,7 +81,7 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.wait_for("document.body.dataset.ready === 'yes'", TURN);
     browser.wait_for("document.body.dataset.listsLoaded === 'yes'", TURN);
     assert_eq!(
-        texts(&browser, "#scene-list li"),
+        texts(browser, "#scene-list li"),
         vec!["No scene stored yet: load a demo room or send a photo."]
     );
     assert_eq!(
@@ -246,10 +92,7 @@ fn an_operator_corrects_a_scene_in_the_console() {
     );
     // An address naming a conversation that is not there: the lists, and why.
     browser.goto("about:blank");
-    browser.goto(&format!(
-        "http://{}/console#conversation=99",
-        service.address
-    ));
+    browser.goto(&format!("http://{}/console#conversation=99", address));
     let why = browser.wait_for(
         "document.body.dataset.listsLoaded === 'yes' && document.getElementById('chooser-problem').textContent",
         TURN,
@@ -264,27 +107,19 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.type_into("#demo-name", &format!("dining_room_guests{ENTER}"));
     browser.wait_for("document.body.dataset.conversation", TURN);
     let scene_id: i64 = 1;
-    let graph = get(
-        service.address,
-        &format!("/v1/scenes/{scene_id}"),
-        Some(TOKEN),
-    )
-    .json();
+    let graph = get(address, &format!("/v1/scenes/{scene_id}"), Some(TOKEN)).json();
     let objects = graph["objects"].as_array().unwrap().clone();
-    assert_eq!(listed_objects(&browser).len(), objects.len());
+    assert_eq!(listed_objects(browser).len(), objects.len());
     assert_eq!(
         browser.script("return document.querySelectorAll('#frame-layer rect.frame').length;"),
         objects.len()
     );
-    assert!(!texts(&browser, "#legend li").is_empty());
-    let original = digest(&browser);
+    assert!(!texts(browser, "#legend li").is_empty());
+    let original = digest(browser);
     browser.screenshot(&shots.join("02-scene.png"));
 
     // Point at an object and rename it.
-    let labels = label_map(
-        service.address,
-        &format!("/v1/scenes/{scene_id}/labels.png"),
-    );
+    let labels = label_map(address, &format!("/v1/scenes/{scene_id}/labels.png"));
     assert_eq!(
         original,
         fingerprint(&labels),
@@ -316,43 +151,55 @@ fn an_operator_corrects_a_scene_in_the_console() {
         TURN,
     );
     assert!(pointing.as_bool().unwrap());
-    let status = send_note(&browser, "that's a towel");
+    let status = send_note(browser, "that's a towel");
     browser.screenshot(&shots.join("03-pointed-and-renamed.png"));
     assert_eq!(
         status,
         "applied",
         "moved: {:?}",
-        texts(&browser, "#moved li")
+        texts(browser, "#moved li")
     );
     assert!(
-        texts(&browser, "#moved li")
+        texts(browser, "#moved li")
             .iter()
             .any(|line| line.contains("towel")),
         "{:?}",
-        texts(&browser, "#moved li")
+        texts(browser, "#moved li")
     );
-    assert!(listed_objects(&browser)
+    assert!(listed_objects(browser)
         .iter()
         .any(|(_, class)| class == "towel"));
-    assert!(!listed_objects(&browser)
+    assert!(!listed_objects(browser)
         .iter()
         .any(|(id, class)| *id == target_id && class == target["class"].as_str().unwrap()));
-    let renamed = digest(&browser);
+    let renamed = digest(browser);
     assert_ne!(renamed, original, "the picture's labels changed");
     let turn = browser.script("return document.querySelector('#history li').textContent;");
     assert!(turn.as_str().unwrap().contains("pointing at"), "{turn}");
+    Seen {
+        graph,
+        objects,
+        original,
+        renamed,
+    }
+}
 
+/// Asks a question, reloads the page (the question comes back), and answers it by clicking a candidate.
+fn ask_reload_and_answer(walk: &Walk, seen: &Seen) {
+    let browser = &walk.browser;
+    let address = walk.address;
+    let shots = &walk.shots;
+    let renamed = seen.renamed.clone();
     // A question: its candidates are framed on the picture; clicking one answers it.
-    let status = send_note(&browser, "the chair is a sofa");
+    let status = send_note(browser, "the chair is a sofa");
     assert_eq!(status, "needs_clarification");
     let candidates = browser.script("return [...document.querySelectorAll('#frame-layer g.candidate')].map(g => Number(g.dataset.candidate));");
     let candidates = candidates.as_array().unwrap();
     assert!(candidates.len() >= 2, "{candidates:?}");
-    assert_eq!(texts(&browser, "#candidates li").len(), candidates.len());
+    assert_eq!(texts(browser, "#candidates li").len(), candidates.len());
     browser.screenshot(&shots.join("04-question.png"));
 
     // A reload goes on with the conversation: the question, its framed candidates and the notes come back.
-    let address = service.address;
     browser.goto("about:blank");
     browser.goto(&format!("http://{address}/console#conversation=1"));
     browser.wait_for(
@@ -361,20 +208,20 @@ fn an_operator_corrects_a_scene_in_the_console() {
     );
     let restored = browser.script("return [...document.querySelectorAll('#frame-layer g.candidate')].map(g => Number(g.dataset.candidate));");
     assert_eq!(restored.as_array().unwrap(), candidates);
-    assert_eq!(texts(&browser, "#history li").len(), 2);
-    assert_eq!(digest(&browser), renamed);
+    assert_eq!(texts(browser, "#history li").len(), 2);
+    assert_eq!(digest(browser), renamed);
     browser.screenshot(&shots.join("04b-question-after-reload.png"));
     let pick = candidates[0].as_u64().unwrap();
     browser.click(&format!(
         "#frame-layer g.candidate[data-candidate='{pick}'] rect"
     ));
-    assert_eq!(wait_for_turns(&browser, 3), "applied");
+    assert_eq!(wait_for_turns(browser, 3), "applied");
     browser.wait_for("document.getElementById('question').hidden", TURN);
-    assert!(listed_objects(&browser)
+    assert!(listed_objects(browser)
         .iter()
         .any(|(_, class)| class == "sofa"));
-    assert!(!listed_objects(&browser).contains(&(pick, "chair".to_string())));
-    let history = texts(&browser, "#history li");
+    assert!(!listed_objects(browser).contains(&(pick, "chair".to_string())));
+    let history = texts(browser, "#history li");
     assert!(
         history[0].contains(&format!("object {pick}")),
         "{history:?}"
@@ -384,20 +231,27 @@ fn an_operator_corrects_a_scene_in_the_console() {
         0
     );
     browser.screenshot(&shots.join("05-answered.png"));
+}
 
+/// Holds a change to a person, looks at it on a laptop and a tablet, and goes on with the conversation
+/// from the page's lists; gives the held picture's fingerprint and the people shown.
+fn hold_and_go_on_from_the_lists(walk: &Walk) -> (String, usize) {
+    let browser = &walk.browser;
+    let address = walk.address;
+    let shots = &walk.shots;
     // A safety hold stays on screen until answered, then applies.
-    let people_before = listed_objects(&browser)
+    let people_before = listed_objects(browser)
         .iter()
         .filter(|(_, class)| class == "person")
         .count();
     assert!(people_before > 0);
-    let status = send_note(&browser, "there is no person");
+    let status = send_note(browser, "there is no person");
     assert_eq!(status, "needs_confirmation");
     assert_eq!(
         browser.script("return document.getElementById('hold').hidden;"),
         false
     );
-    let held = digest(&browser);
+    let held = digest(browser);
     browser.screenshot(&shots.join("06-held.png"));
     // The README's picture: the held change beside the split view, on a laptop screen.
     browser.set_window(1366, 768);
@@ -433,10 +287,10 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.goto("about:blank");
     browser.goto(&format!("http://{address}/console"));
     browser.wait_for("document.body.dataset.listsLoaded === 'yes'", TURN);
-    let stored = texts(&browser, "#scene-list li");
+    let stored = texts(browser, "#scene-list li");
     assert_eq!(stored.len(), 1);
     assert!(stored[0].contains("dining_room_guests"), "{stored:?}");
-    let waiting = texts(&browser, "#conversation-list li");
+    let waiting = texts(browser, "#conversation-list li");
     assert_eq!(waiting.len(), 1);
     assert!(
         waiting[0].contains("dining_room_guests")
@@ -449,19 +303,28 @@ fn an_operator_corrects_a_scene_in_the_console() {
         "document.body.dataset.conversation === '1' && !document.getElementById('hold').hidden && !document.body.classList.contains('busy')",
         TURN,
     );
-    assert_eq!(digest(&browser), held);
-    assert_eq!(texts(&browser, "#history li").len(), 4);
-    assert!(texts(&browser, "#hold-changes li")
+    assert_eq!(digest(browser), held);
+    assert_eq!(texts(browser, "#history li").len(), 4);
+    assert!(texts(browser, "#hold-changes li")
         .iter()
         .any(|line| line.contains("person")));
     browser.set_window(1280, 900);
+    (held, people_before)
+}
+
+/// Confirms the held change, takes it back with the button and puts it back with Ctrl+Y; gives the
+/// confirmed picture's fingerprint.
+fn confirm_take_back_put_back(walk: &Walk, held: &str, people_before: usize) -> String {
+    let browser = &walk.browser;
+    let shots = &walk.shots;
+    let held = held.to_string();
     browser.click("#confirm");
-    assert_eq!(wait_for_turns(&browser, 5), "confirmed");
+    assert_eq!(wait_for_turns(browser, 5), "confirmed");
     browser.wait_for("document.getElementById('hold').hidden", TURN);
-    assert!(listed_objects(&browser)
+    assert!(listed_objects(browser)
         .iter()
         .all(|(_, class)| class != "person"));
-    let confirmed = digest(&browser);
+    let confirmed = digest(browser);
     assert_ne!(confirmed, held);
     assert!(
         browser
@@ -474,14 +337,14 @@ fn an_operator_corrects_a_scene_in_the_console() {
 
     // Take back with the button, put back with the keyboard.
     browser.click("#undo");
-    assert_eq!(wait_for_turns(&browser, 6), "undone");
+    assert_eq!(wait_for_turns(browser, 6), "undone");
     assert_eq!(
-        digest(&browser),
+        digest(browser),
         held,
         "taking back restores the labels before the confirmation"
     );
     assert_eq!(
-        listed_objects(&browser)
+        listed_objects(browser)
             .iter()
             .filter(|(_, class)| class == "person")
             .count(),
@@ -489,11 +352,21 @@ fn an_operator_corrects_a_scene_in_the_console() {
     );
     browser.screenshot(&shots.join("08-undone.png"));
     browser.control_key("y");
-    assert_eq!(wait_for_turns(&browser, 7), "redone");
-    assert_eq!(digest(&browser), confirmed);
-    let turns = texts(&browser, "#history li").len();
-    assert_eq!(turns, 7, "{:?}", texts(&browser, "#history li"));
+    assert_eq!(wait_for_turns(browser, 7), "redone");
+    assert_eq!(digest(browser), confirmed);
+    let turns = texts(browser, "#history li").len();
+    assert_eq!(turns, 7, "{:?}", texts(browser, "#history li"));
+    confirmed
+}
 
+/// Browses the scene's versions and compares two in the split view, at laptop and tablet sizes.
+fn versions_and_split(walk: &Walk, seen: &Seen, held: &str, confirmed: &str) {
+    let browser = &walk.browser;
+    let address = walk.address;
+    let shots = &walk.shots;
+    let scene_id: i64 = 1;
+    let (original, objects) = (seen.original.clone(), &seen.objects);
+    let (held, confirmed) = (held.to_string(), confirmed.to_string());
     // The scene's versions: listed as the API lists them; each one viewed shows its own label map.
     let listed = get(
         address,
@@ -524,7 +397,7 @@ fn an_operator_corrects_a_scene_in_the_console() {
         &format!("document.body.dataset.sceneVersion === '{registered}' && !document.body.classList.contains('busy')"),
         TURN,
     );
-    assert_eq!(digest(&browser), original);
+    assert_eq!(digest(browser), original);
     assert_eq!(
         fingerprint(&label_map(
             address,
@@ -541,7 +414,7 @@ fn an_operator_corrects_a_scene_in_the_console() {
         "{viewing}"
     );
     assert_eq!(
-        listed_objects(&browser).len(),
+        listed_objects(browser).len(),
         objects.len(),
         "the registered version's objects"
     );
@@ -551,7 +424,7 @@ fn an_operator_corrects_a_scene_in_the_console() {
         &format!("document.body.dataset.sceneVersion === '{head}' && !document.body.classList.contains('busy')"),
         TURN,
     );
-    assert_eq!(digest(&browser), confirmed);
+    assert_eq!(digest(browser), confirmed);
     assert_eq!(
         browser.script("return document.getElementById('viewing').getBoundingClientRect().height;"),
         0,
@@ -559,15 +432,7 @@ fn an_operator_corrects_a_scene_in_the_console() {
     );
 
     // Split view: the version before on the left of a divider, dragged with the mouse and moved by keys.
-    let stage = |what: &str| {
-        browser
-            .script(&format!(
-                "return document.getElementById('stage').dataset.{what};"
-            ))
-            .as_str()
-            .unwrap_or("")
-            .to_string()
-    };
+    let stage = |what: &str| stage_data(browser, what);
     assert_eq!(stage("beforeVersion"), parent.to_string());
     assert_eq!(
         stage("beforeDigest"),
@@ -642,7 +507,16 @@ fn an_operator_corrects_a_scene_in_the_console() {
     browser.set_window(1280, 900);
     browser.click("#split");
     assert_eq!(stage("split"), "");
+}
 
+/// Reaches every control with Tab and points with the keyboard alone.
+fn keyboard_alone(walk: &Walk, seen: &Seen) {
+    let browser = &walk.browser;
+    let address = walk.address;
+    let shots = &walk.shots;
+    let scene_id: i64 = 1;
+    let graph = &seen.graph;
+    let stage = |what: &str| stage_data(browser, what);
     // Keyboard alone: Tab reaches every control, each with a visible ring.
     browser.script("document.activeElement.blur(); window.scrollTo(0, 0);");
     let mut reached = Vec::new();
@@ -687,7 +561,7 @@ fn an_operator_corrects_a_scene_in_the_console() {
             "Tab never reaches {control}: {reached:?}"
         );
     }
-    let keys = texts(&browser, "#keys dt").join(" | ");
+    let keys = texts(browser, "#keys dt").join(" | ");
     for documented in [
         "Arrow keys on the picture",
         "Enter or Space on the picture",
@@ -765,13 +639,19 @@ fn an_operator_corrects_a_scene_in_the_console() {
         TURN,
     );
     browser.screenshot(&shots.join("13-keyboard-point.png"));
-    send_note(&browser, "that's a plant");
-    let latest = texts(&browser, "#history li");
+    send_note(browser, "that's a plant");
+    let latest = texts(browser, "#history li");
     assert!(
         latest[0].contains(&format!("pointing at {point_x}, {point_y}")),
         "{latest:?}"
     );
+}
 
+/// Sends a photo with its depth from the chooser.
+fn send_a_photo(walk: &Walk) {
+    let browser = &walk.browser;
+    let address = walk.address;
+    let shots = &walk.shots;
     // A photo of one's own, with its depth, sent from the chooser: a new scene and a conversation on it.
     browser.click("#chooser summary");
     let photo = sayso::demo::demo_scene_path(
@@ -789,11 +669,11 @@ fn an_operator_corrects_a_scene_in_the_console() {
     let uploaded = get(address, "/v1/scenes/2", Some(TOKEN)).json();
     assert_eq!(uploaded["name"], "image.png");
     assert_eq!(
-        digest(&browser),
+        digest(browser),
         fingerprint(&label_map(address, "/v1/scenes/2/labels.png"))
     );
     assert_eq!(
-        listed_objects(&browser).len(),
+        listed_objects(browser).len(),
         uploaded["objects"].as_array().unwrap().len()
     );
     assert_eq!(
