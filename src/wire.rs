@@ -359,6 +359,12 @@ pub struct HistoryOut {
     pub conversation_id: i64,
     pub scene_id: i64,
     pub pending: Option<PendingOut>,
+    /// The question the conversation waits on, if its last note asked one (it survives a restart).
+    #[serde(default)]
+    pub question: Option<String>,
+    /// The objects that question asks about, as an utterance's answer lists them.
+    #[serde(default)]
+    pub candidates: Vec<CandidateOut>,
     pub turns: Vec<TurnOut>,
 }
 
@@ -434,6 +440,49 @@ pub struct ConversationPage {
     pub conversations: Vec<ConversationListed>,
     /// Pass as `after` for the next page; absent on the last page.
     pub next_after: Option<i64>,
+}
+
+/// Which stored version of a scene to read (query of the scene graph, label map and overlay routes).
+#[derive(
+    Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize, utoipa::IntoParams,
+)]
+#[serde(deny_unknown_fields)]
+#[into_params(parameter_in = Query)]
+pub struct VersionQuery {
+    /// A version of this scene from `GET /v1/scenes/{scene_id}/versions`; absent reads the version in force.
+    #[param(minimum = 1)]
+    pub version: Option<i64>,
+}
+
+/// One stored version of a scene.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct VersionListed {
+    pub version: i64,
+    /// The version it was made from; absent for the registered version.
+    pub parent: Option<i64>,
+    /// Whether it is the version in force or one it descends from (false once undone or replaced).
+    pub in_force: bool,
+    /// The turn that made it; absent for the registered version.
+    pub turn_id: Option<i64>,
+    pub conversation_id: Option<i64>,
+    /// `utterance` or `confirm`.
+    pub kind: Option<String>,
+    /// The note's words, when the caller may read that conversation.
+    pub text: Option<String>,
+    pub operator: String,
+    pub at: String,
+}
+
+/// A scene's stored versions, newest first: the chain of the version in force back to the registered one,
+/// and the versions turns made that are no longer in force.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, ToSchema)]
+pub struct SceneVersions {
+    pub scene_id: i64,
+    /// The version in force.
+    pub head: i64,
+    pub versions: Vec<VersionListed>,
+    /// True when the chain was longer than the list keeps (the oldest were left out).
+    pub truncated: bool,
 }
 
 #[cfg(test)]

@@ -12,7 +12,7 @@ use axum::http::StatusCode;
 use axum::response::{IntoResponse, Response};
 use axum::{Extension, Json};
 
-use crate::correction_log::{ConversationKey, SceneKey};
+use crate::correction_log::{ConversationKey, SceneKey, VersionKey};
 
 use super::abandon;
 use super::error::ApiError;
@@ -23,7 +23,7 @@ use crate::session::{Caller, Coordinator, PageRequest, SceneUpload, SessionError
 use crate::wire::{
     ClassOut, ConversationOut, ConversationPage, ErrorBody, HealthOut, HistoryOut,
     OpenConversationRequest, PageQuery, RegisterSceneRequest, SceneCreated, SceneGraphOut,
-    ScenePage, TurnReply, UtteranceReply, UtteranceRequest,
+    ScenePage, SceneVersions, TurnReply, UtteranceReply, UtteranceRequest, VersionQuery,
 };
 
 /// Runs `work` on a blocking thread, under the request's commit gate (`super::abandon`).
@@ -261,15 +261,64 @@ pub async fn upload_scene(
     answer(result, StatusCode::CREATED)
 }
 
-/// The current scene graph. Advisory only.
+/// Reads the `version` query of the scene routes.
+fn version_query(
+    query: Result<Query<VersionQuery>, QueryRejection>,
+) -> Result<Option<VersionKey>, ApiError> {
+    match query {
+        Ok(Query(query)) => Ok(query.version.map(VersionKey)),
+        Err(error) => Err(ApiError::bad_request(
+            "bad_version",
+            format!(
+                "the query takes only version (a version id from the scene's versions list): {}",
+                error.body_text()
+            ),
+        )),
+    }
+}
+
+/// The scene graph, of the version in force or of the version named. Advisory only.
 #[utoipa::path(get, path = "/v1/scenes/{scene_id}", tag = "scenes", security(("bearer" = [])),
-    params(("scene_id" = i64, Path, description = "A scene id from POST /v1/scenes")),
+    params(("scene_id" = i64, Path, description = "A scene id from POST /v1/scenes"), VersionQuery),
     responses((status = 200, description = "The scene graph", body = SceneGraphOut),
-        (status = 404, description = "Unknown scene", body = ErrorBody)))]
-pub async fn scene_graph(State(state): State<AppState>, Path(scene_id): Path<String>) -> Response {
+        (status = 400, description = "A scene id that is not a positive integer (bad_id); a version that is not one, or another query key (bad_version)", body = ErrorBody),
+        (status = 404, description = "Unknown scene, or a version not of this scene", body = ErrorBody)))]
+pub async fn scene_graph(
+    State(state): State<AppState>,
+    Path(scene_id): Path<String>,
+    query: Result<Query<VersionQuery>, QueryRejection>,
+) -> Response {
     let result = async {
         let scene = SceneKey(path_id(&scene_id, "scene")?);
-        blocking(&state, move |coordinator| coordinator.scene_graph(scene)).await
+        let version = version_query(query)?;
+        blocking(&state, move |coordinator| match version {
+            Some(version) => coordinator.scene_graph_at(scene, version),
+            None => coordinator.scene_graph(scene),
+        })
+        .await
+    }
+    .await;
+    answer(result, StatusCode::OK)
+}
+
+/// The scene's stored versions, newest first: the chain of the version in force back to the registered
+/// one, and versions that are no longer in force (undone, or dropped by a later change); each with the turn
+/// that made it (its words only for a caller who may read that conversation).
+#[utoipa::path(get, path = "/v1/scenes/{scene_id}/versions", tag = "scenes", security(("bearer" = [])),
+    params(("scene_id" = i64, Path, description = "A scene id")),
+    responses((status = 200, description = "The versions", body = SceneVersions),
+        (status = 404, description = "Unknown scene", body = ErrorBody)))]
+pub async fn scene_versions(
+    State(state): State<AppState>,
+    Extension(caller): Extension<Caller>,
+    Path(scene_id): Path<String>,
+) -> Response {
+    let result = async {
+        let scene = SceneKey(path_id(&scene_id, "scene")?);
+        blocking(&state, move |coordinator| {
+            coordinator.scene_versions(scene, &caller)
+        })
+        .await
     }
     .await;
     answer(result, StatusCode::OK)
@@ -282,29 +331,51 @@ fn png_answer(result: Result<Vec<u8>, ApiError>) -> Response {
     }
 }
 
-/// The current label map as a single-channel index PNG (pixel = class id, 255 = unlabelled).
+/// The label map (of the version in force or the version named) as a single-channel index PNG (pixel =
+/// class id, 255 = unlabelled).
 #[utoipa::path(get, path = "/v1/scenes/{scene_id}/labels.png", tag = "scenes", security(("bearer" = [])),
-    params(("scene_id" = i64, Path, description = "A scene id")),
+    params(("scene_id" = i64, Path, description = "A scene id"), VersionQuery),
     responses((status = 200, description = "Index PNG", content_type = "image/png"),
-        (status = 404, description = "Unknown scene", body = ErrorBody)))]
-pub async fn label_map(State(state): State<AppState>, Path(scene_id): Path<String>) -> Response {
+        (status = 400, description = "A scene id that is not a positive integer (bad_id); a version that is not one, or another query key (bad_version)", body = ErrorBody),
+        (status = 404, description = "Unknown scene, or a version not of this scene", body = ErrorBody)))]
+pub async fn label_map(
+    State(state): State<AppState>,
+    Path(scene_id): Path<String>,
+    query: Result<Query<VersionQuery>, QueryRejection>,
+) -> Response {
     let result = async {
         let scene = SceneKey(path_id(&scene_id, "scene")?);
-        blocking(&state, move |coordinator| coordinator.label_map_png(scene)).await
+        let version = version_query(query)?;
+        blocking(&state, move |coordinator| match version {
+            Some(version) => coordinator.label_map_png_at(scene, version),
+            None => coordinator.label_map_png(scene),
+        })
+        .await
     }
     .await;
     png_answer(result)
 }
 
-/// The picture with the current labels blended in, in the generated class colours.
+/// The picture with the labels (of the version in force or the version named) blended in, in the
+/// generated class colours.
 #[utoipa::path(get, path = "/v1/scenes/{scene_id}/overlay.png", tag = "scenes", security(("bearer" = [])),
-    params(("scene_id" = i64, Path, description = "A scene id")),
+    params(("scene_id" = i64, Path, description = "A scene id"), VersionQuery),
     responses((status = 200, description = "RGB PNG", content_type = "image/png"),
-        (status = 404, description = "Unknown scene", body = ErrorBody)))]
-pub async fn overlay(State(state): State<AppState>, Path(scene_id): Path<String>) -> Response {
+        (status = 400, description = "A scene id that is not a positive integer (bad_id); a version that is not one, or another query key (bad_version)", body = ErrorBody),
+        (status = 404, description = "Unknown scene, or a version not of this scene", body = ErrorBody)))]
+pub async fn overlay(
+    State(state): State<AppState>,
+    Path(scene_id): Path<String>,
+    query: Result<Query<VersionQuery>, QueryRejection>,
+) -> Response {
     let result = async {
         let scene = SceneKey(path_id(&scene_id, "scene")?);
-        blocking(&state, move |coordinator| coordinator.overlay_png(scene)).await
+        let version = version_query(query)?;
+        blocking(&state, move |coordinator| match version {
+            Some(version) => coordinator.overlay_png_at(scene, version),
+            None => coordinator.overlay_png(scene),
+        })
+        .await
     }
     .await;
     png_answer(result)

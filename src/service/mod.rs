@@ -90,6 +90,10 @@ pub fn app(state: AppState) -> Router {
         .route("/v1/scenes/{scene_id}/labels.png", get(handlers::label_map))
         .route("/v1/scenes/{scene_id}/overlay.png", get(handlers::overlay))
         .route(
+            "/v1/scenes/{scene_id}/versions",
+            get(handlers::scene_versions),
+        )
+        .route(
             "/v1/conversations",
             post(handlers::open_conversation).get(handlers::list_conversations),
         )

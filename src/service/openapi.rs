@@ -51,6 +51,7 @@ configured, send `Authorization: Bearer <token>`."
         handlers::scene_graph,
         handlers::label_map,
         handlers::overlay,
+        handlers::scene_versions,
         handlers::list_conversations,
         handlers::open_conversation,
         handlers::history,
@@ -67,7 +68,7 @@ configured, send `Authorization: Bearer <token>`."
         wire::ConstraintOut, wire::ChangeOut, wire::UnmetOut, wire::TurnStatus, wire::PendingOut,
         wire::UtteranceReply, wire::TurnReply, wire::TurnOut, wire::HistoryOut, wire::HealthOut,
         wire::ClassOut, wire::SceneListed, wire::ScenePage, wire::ConversationListed,
-        wire::ConversationPage,
+        wire::ConversationPage, wire::VersionListed, wire::SceneVersions,
     )),
     modifiers(&BearerSecurity),
     tags(
@@ -334,5 +335,29 @@ mod tests {
             (Some(1), Some(2000))
         );
         assert!(document["paths"]["/v1/conversations"]["get"].is_object());
+        let versions = &document["paths"]["/v1/scenes/{scene_id}/versions"]["get"];
+        for status in ["200", "400", "401", "404"] {
+            assert!(
+                versions["responses"][status].is_object(),
+                "versions {status}"
+            );
+        }
+        for path in [
+            "/v1/scenes/{scene_id}",
+            "/v1/scenes/{scene_id}/labels.png",
+            "/v1/scenes/{scene_id}/overlay.png",
+        ] {
+            let parameters = document["paths"][path]["get"]["parameters"]
+                .as_array()
+                .unwrap();
+            assert!(
+                parameters
+                    .iter()
+                    .any(|p| p["name"] == "version" && p["in"] == "query"),
+                "{path} takes ?version="
+            );
+        }
+        let history = &document["components"]["schemas"]["HistoryOut"]["properties"];
+        assert!(history["question"].is_object() && history["candidates"].is_object());
     }
 }

@@ -249,6 +249,47 @@ impl Browser {
         self.session_call("DELETE", "/actions", None);
     }
 
+    /// Presses keys one after another (WebDriver key values: `\u{E012}` left, `\u{E014}` right, `\u{E013}`
+    /// up, `\u{E015}` down, `\u{E004}` Tab, `\u{E007}` Enter, `\u{E00C}` Escape), on whatever has the focus.
+    pub fn press(&self, keys: &[&str]) {
+        let actions: Vec<Value> = keys
+            .iter()
+            .flat_map(|key| {
+                [
+                    json!({"type": "keyDown", "value": key}),
+                    json!({"type": "keyUp", "value": key}),
+                ]
+            })
+            .collect();
+        self.session_call(
+            "POST",
+            "/actions",
+            Some(json!({"actions": [{"type": "key", "id": "keyboard", "actions": actions}]})),
+        );
+        self.session_call("DELETE", "/actions", None);
+    }
+
+    /// Drags an element with the mouse by `dx` CSS pixels sideways, in a few steps.
+    pub fn drag_by(&self, selector: &str, dx: f64) {
+        let element = self.find(selector);
+        let mut actions = vec![
+            json!({"type": "pointerMove", "origin": {ELEMENT: element}, "x": 0, "y": 0, "duration": 0}),
+            json!({"type": "pointerDown", "button": 0}),
+        ];
+        for _ in 0..4 {
+            actions.push(json!({"type": "pointerMove", "origin": "pointer",
+                "x": (dx / 4.0).round() as i64, "y": 0, "duration": 20}));
+        }
+        actions.push(json!({"type": "pointerUp", "button": 0}));
+        self.session_call(
+            "POST",
+            "/actions",
+            Some(json!({"actions": [{"type": "pointer", "id": "mouse",
+                "parameters": {"pointerType": "mouse"}, "actions": actions}]})),
+        );
+        self.session_call("DELETE", "/actions", None);
+    }
+
     /// Clicks with the mouse at a point given in CSS pixels from an element's top left corner.
     pub fn click_at(&self, selector: &str, x: f64, y: f64) {
         let element = self.find(selector);

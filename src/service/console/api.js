@@ -11,6 +11,10 @@ export class ApiFailure extends Error {
   }
 }
 
+function versionQuery(version) {
+  return version == null ? "" : `?version=${version}`;
+}
+
 export class Api {
   constructor() {
     this.token = sessionStorage.getItem(TOKEN_KEY) || "";
@@ -62,9 +66,15 @@ export class Api {
   health() { return this.json("GET", "/v1/health"); }
   classes() { return this.json("GET", "/v1/classes"); }
   registerScene(request) { return this.json("POST", "/v1/scenes", request); }
-  sceneGraph(sceneId) { return this.json("GET", `/v1/scenes/${sceneId}`); }
-  labelMap(sceneId) { return this.bitmap(`/v1/scenes/${sceneId}/labels.png`); }
-  overlay(sceneId) { return this.bitmap(`/v1/scenes/${sceneId}/overlay.png`); }
+  /** A page of stored scenes (`after`: the previous page's next_after). */
+  scenes(after) { return this.json("GET", `/v1/scenes?limit=20${after ? "&after=" + after : ""}`); }
+  /** A page of the conversations this operator may read. */
+  conversations(after) { return this.json("GET", `/v1/conversations?limit=20${after ? "&after=" + after : ""}`); }
+  /** `version` null reads the version in force. */
+  sceneGraph(sceneId, version) { return this.json("GET", `/v1/scenes/${sceneId}${versionQuery(version)}`); }
+  labelMap(sceneId, version) { return this.bitmap(`/v1/scenes/${sceneId}/labels.png${versionQuery(version)}`); }
+  overlay(sceneId, version) { return this.bitmap(`/v1/scenes/${sceneId}/overlay.png${versionQuery(version)}`); }
+  versions(sceneId) { return this.json("GET", `/v1/scenes/${sceneId}/versions`); }
   openConversation(sceneId) { return this.json("POST", "/v1/conversations", { scene_id: sceneId }); }
   history(conversationId) { return this.json("GET", `/v1/conversations/${conversationId}`); }
   say(conversationId, text, focus) {

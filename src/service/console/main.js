@@ -1,5 +1,7 @@
-// The console's wiring: choose a scene, open a conversation on it, send notes and answers, and redraw the
-// picture and panels from the service's answers.
+// The console's wiring: choose a stored scene or a conversation to go on with (or register a scene), send
+// notes and answers, browse and compare the scene's versions, and redraw the picture and panels from the
+// service's answers. The open conversation is kept in the address (#conversation=N), so a reload goes on
+// with it.
 
 import { Api, ApiFailure, fileBase64 } from "./api.js";
 import { Picture } from "./picture.js";
@@ -7,7 +9,19 @@ import * as panels from "./panels.js";
 
 const api = new Api();
 const byId = (id) => document.getElementById(id);
-const state = { scene: null, conversation: null, point: null, busy: false };
+const state = {
+  scene: null,
+  conversation: null,
+  point: null,
+  busy: false,
+  /** The version on the picture when it is not the one in force; null shows the one in force. */
+  viewing: null,
+  /** The version the split view compares with; null: the shown version's parent. */
+  chosenBefore: null,
+  versions: null,
+  shown: null,
+  questionOpen: false,
+};
 
 const picture = new Picture(
   (x, y) => setPoint({ x, y }),
@@ -89,37 +103,127 @@ function setPoint(point) {
   if (point) byId("note").focus();
 }
 
+function pick(objectId) {
+  return say(`object ${objectId}`, null);
+}
+
+function showQuestion(question, candidates) {
+  state.questionOpen = Boolean(question);
+  panels.showQuestion(question, candidates || [], pick);
+  picture.setCandidates(question ? candidates || [] : []);
+}
+
 async function redraw() {
-  const [graph, overlay, labels] = await Promise.all([
-    api.sceneGraph(state.scene),
-    api.overlay(state.scene),
-    api.labelMap(state.scene),
+  const version = state.viewing;
+  const [graph, overlay, labels, versions] = await Promise.all([
+    api.sceneGraph(state.scene, version),
+    api.overlay(state.scene, version),
+    api.labelMap(state.scene, version),
+    api.versions(state.scene),
   ]);
   picture.show(overlay, labels, graph);
+  state.shown = graph.version;
+  state.versions = versions;
   panels.showLegend(picture.legend());
   panels.showObjects(graph, (objectId) => picture.drawFrames(objectId));
   byId("scene-title").textContent = `Scene ${graph.scene_id} “${graph.name}” · version ${graph.version} · ${graph.width}×${graph.height}${graph.room ? " · " + graph.room : ""}`;
+  const past = graph.version !== versions.head;
+  byId("viewing").hidden = !past;
+  byId("viewing-text").textContent = past
+    ? `Looking at version ${graph.version}; notes still go to version ${versions.head}, the one in force.`
+    : "";
   document.body.dataset.sceneVersion = String(graph.version);
+  await loadBefore();
+}
+
+/** The version the split compares with: the one chosen, else the shown version's parent. */
+function beforeVersion() {
+  if (state.chosenBefore != null && state.chosenBefore !== state.shown) return state.chosenBefore;
+  const shown = state.versions && state.versions.versions.find((entry) => entry.version === state.shown);
+  return shown ? shown.parent : null;
+}
+
+const beforeCache = new Map();
+
+async function loadBefore() {
+  const version = beforeVersion();
+  if (version == null) {
+    picture.setBefore(null);
+  } else {
+    const key = `${state.scene}/${version}`;
+    if (!beforeCache.has(key)) {
+      beforeCache.set(key, await Promise.all([api.overlay(state.scene, version), api.labelMap(state.scene, version)]));
+      // A few versions are kept for going back and forth; the oldest fetched goes first.
+      if (beforeCache.size > 4) beforeCache.delete(beforeCache.keys().next().value);
+    }
+    const [overlay, labels] = beforeCache.get(key);
+    picture.setBefore(version, overlay, labels);
+  }
+  panels.showVersions(state.versions, state.shown, version, viewVersion, compareWith);
+  const split = byId("split");
+  split.disabled = version == null;
+  byId("compare").disabled = version == null;
+}
+
+function viewVersion(version) {
+  exchange("problem", async () => {
+    state.viewing = state.versions && version === state.versions.head ? null : version;
+    await redraw();
+    // The picture, and the line saying which version it shows, come into view.
+    byId(state.viewing == null ? "stage" : "viewing").scrollIntoView({ block: state.viewing == null ? "nearest" : "start" });
+  });
+}
+
+function compareWith(version) {
+  exchange("problem", async () => {
+    state.chosenBefore = version;
+    await loadBefore();
+    setSplit(true);
+  });
+}
+
+function setSplit(on) {
+  byId("split").setAttribute("aria-pressed", String(on));
+  picture.setSplit(on);
 }
 
 async function refreshConversation() {
   const history = await api.history(state.conversation);
   panels.showHistory(history);
   panels.showHold(history.pending);
+  return history;
+}
+
+function enterWorkspace(conversationId) {
+  state.conversation = conversationId;
+  state.viewing = null;
+  state.chosenBefore = null;
+  byId("workspace").hidden = false;
+  byId("chooser").open = false;
+  byId("answer").hidden = true;
+  showQuestion(null);
+  setPoint(null);
+  history.replaceState(null, "", `#conversation=${conversationId}`);
 }
 
 async function openScene(sceneId) {
   state.scene = sceneId;
   const conversation = await api.openConversation(sceneId);
-  state.conversation = conversation.conversation_id;
-  byId("workspace").hidden = false;
-  byId("chooser").open = false;
-  byId("answer").hidden = true;
-  panels.showQuestion(null);
-  picture.setCandidates([]);
-  setPoint(null);
+  enterWorkspace(conversation.conversation_id);
   await redraw();
   await refreshConversation();
+  document.body.dataset.conversation = String(state.conversation);
+  byId("note").focus();
+}
+
+/** Goes on with an earlier conversation: its picture, notes, open question and held change come back. */
+async function resume(conversationId) {
+  const earlier = await api.history(conversationId);
+  state.scene = earlier.scene_id;
+  enterWorkspace(conversationId);
+  await redraw();
+  const restored = await refreshConversation();
+  showQuestion(restored.question, restored.candidates);
   document.body.dataset.conversation = String(state.conversation);
   byId("note").focus();
 }
@@ -132,9 +236,10 @@ async function say(text, point) {
     byId("note").value = "";
     setPoint(null);
     panels.showAnswer(reply);
-    panels.showQuestion(reply.question, reply.candidates || [], (objectId) => say(`object ${objectId}`, null));
-    picture.setCandidates(reply.question ? reply.candidates || [] : []);
+    showQuestion(reply.question, reply.candidates);
     panels.showHold(reply.waiting);
+    state.viewing = null;
+    state.chosenBefore = null;
     await redraw();
     await refreshConversation();
   });
@@ -145,12 +250,48 @@ async function turn(what) {
   await exchange("problem", async () => {
     const reply = await api.turn(state.conversation, what);
     panels.showAnswer(reply);
-    panels.showQuestion(null);
-    picture.setCandidates([]);
+    showQuestion(null);
+    state.viewing = null;
+    state.chosenBefore = null;
     await redraw();
     await refreshConversation();
   });
 }
+
+/** Fills the chooser's lists of stored scenes and conversations (first pages). */
+async function loadLists() {
+  const names = new Map();
+  const scenes = await api.scenes();
+  for (const scene of scenes.scenes) names.set(scene.scene_id, scene.name);
+  panels.addScenes(scenes, (sceneId) => exchange("chooser-problem", () => openScene(sceneId)), true);
+  const more = byId("scene-more");
+  more.hidden = scenes.next_after == null;
+  more.onclick = () => exchange("chooser-problem", async () => {
+    const page = await api.scenes(more.dataset.after);
+    for (const scene of page.scenes) names.set(scene.scene_id, scene.name);
+    panels.addScenes(page, (sceneId) => exchange("chooser-problem", () => openScene(sceneId)), false);
+    more.hidden = page.next_after == null;
+    more.dataset.after = page.next_after || "";
+  });
+  more.dataset.after = scenes.next_after || "";
+  const conversations = await api.conversations();
+  const resumeOne = (conversationId) => exchange("chooser-problem", () => resume(conversationId));
+  panels.addConversations(conversations, names, resumeOne, true);
+  const moreConversations = byId("conversation-more");
+  moreConversations.hidden = conversations.next_after == null;
+  moreConversations.dataset.after = conversations.next_after || "";
+  moreConversations.onclick = () => exchange("chooser-problem", async () => {
+    const page = await api.conversations(moreConversations.dataset.after);
+    panels.addConversations(page, names, resumeOne, false);
+    moreConversations.hidden = page.next_after == null;
+    moreConversations.dataset.after = page.next_after || "";
+  });
+  document.body.dataset.listsLoaded = "yes";
+}
+
+byId("chooser").addEventListener("toggle", () => {
+  if (byId("chooser").open && document.body.dataset.ready === "yes") exchange("chooser-problem", loadLists);
+});
 
 byId("demo-form").addEventListener("submit", (event) => {
   event.preventDefault();
@@ -158,11 +299,6 @@ byId("demo-form").addEventListener("submit", (event) => {
     const created = await api.registerScene({ demo: byId("demo-name").value.trim() });
     await openScene(created.scene_id);
   });
-});
-
-byId("stored-form").addEventListener("submit", (event) => {
-  event.preventDefault();
-  exchange("chooser-problem", () => openScene(Number(byId("stored-id").value)));
 });
 
 byId("upload-form").addEventListener("submit", (event) => {
@@ -194,21 +330,26 @@ byId("label-opacity").addEventListener("input", layers);
 byId("show-labels").addEventListener("change", layers);
 byId("show-boxes").addEventListener("change", () => picture.setFramesVisible(byId("show-boxes").checked));
 byId("show-moved").addEventListener("change", () => picture.setMovedVisible(byId("show-moved").checked));
+byId("split").addEventListener("click", () => setSplit(byId("split").getAttribute("aria-pressed") !== "true"));
+byId("back-to-current").addEventListener("click", () => viewVersion(null));
+byId("stage").addEventListener("focus", () => picture.focusCursor());
 const compare = byId("compare");
 for (const start of ["pointerdown", "keydown"]) compare.addEventListener(start, (event) => {
   if (event.type === "keydown" && event.key !== " " && event.key !== "Enter") return;
   picture.compare(true);
 });
-for (const end of ["pointerup", "pointerleave", "keyup", "blur"]) compare.addEventListener(end, () => {
-  picture.compare(false);
-  picture.setMovedVisible(byId("show-moved").checked);
-  layers();
-});
+for (const end of ["pointerup", "pointerleave", "keyup", "blur"]) compare.addEventListener(end, () => picture.compare(false));
+
+/** Whether a key press is going into a text field (where letters and digits are words, not shortcuts). */
+function typingIn(target) {
+  return target instanceof HTMLInputElement && !["checkbox", "range", "file"].includes(target.type);
+}
 
 document.addEventListener("keydown", (event) => {
-  if (!state.conversation) return;
+  if (!state.conversation || event.defaultPrevented) return;
   const typing = event.target === byId("note") && byId("note").value !== "";
   const key = event.key.toLowerCase();
+  const plain = !event.ctrlKey && !event.metaKey && !event.altKey && !typingIn(event.target);
   if (event.key === "Escape") {
     setPoint(null);
   } else if ((event.ctrlKey || event.metaKey) && !typing && key === "z") {
@@ -217,6 +358,21 @@ document.addEventListener("keydown", (event) => {
   } else if ((event.ctrlKey || event.metaKey) && !typing && key === "y") {
     event.preventDefault();
     turn("redo");
+  } else if (plain && /^[1-9]$/.test(event.key) && state.questionOpen) {
+    const choice = document.querySelectorAll("#candidates button")[Number(event.key) - 1];
+    if (choice) {
+      event.preventDefault();
+      choice.click();
+    }
+  } else if (plain && key === "n") {
+    event.preventDefault();
+    byId("note").focus();
+  } else if (plain && key === "p") {
+    event.preventDefault();
+    byId("stage").focus();
+  } else if (plain && key === "s" && !byId("split").disabled) {
+    event.preventDefault();
+    byId("split").click();
   }
 });
 
@@ -240,4 +396,21 @@ if (Recognition) {
 }
 
 layers();
-checkAccess().then(() => { document.body.dataset.ready = "yes"; });
+checkAccess().then(async () => {
+  document.body.dataset.ready = "yes";
+  const earlier = /^#conversation=(\d+)$/.exec(location.hash);
+  if (earlier) {
+    await exchange("chooser-problem", async () => {
+      try {
+        await resume(Number(earlier[1]));
+      } catch (error) {
+        // Not a conversation this operator may go on with: show the lists, and say why.
+        history.replaceState(null, "", location.pathname);
+        await loadLists();
+        throw error;
+      }
+    });
+  } else {
+    await exchange("chooser-problem", loadLists);
+  }
+});

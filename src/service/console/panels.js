@@ -95,8 +95,11 @@ export function showObjects(graph, onHover) {
     const entry = item(`${object.object_id} · ${object.class}${object.safety ? " (needs a yes to change)" : ""}`);
     entry.dataset.object = object.object_id;
     entry.dataset.class = object.class;
+    entry.tabIndex = 0;
     entry.addEventListener("mouseenter", () => onHover(object.object_id));
     entry.addEventListener("mouseleave", () => onHover(null));
+    entry.addEventListener("focus", () => onHover(object.object_id));
+    entry.addEventListener("blur", () => onHover(null));
     return entry;
   }));
 }
@@ -118,6 +121,7 @@ export function showLegend(rows) {
 const TURN_WORDS = { utterance: "note", confirm: "yes", reject: "no", undo: "take back", redo: "put back" };
 
 export function showHistory(history) {
+  document.getElementById("history-empty").hidden = history.turns.length > 0;
   const list = document.getElementById("history");
   list.replaceChildren(...history.turns.slice().reverse().map((turn) => {
     const entry = document.createElement("li");
@@ -132,8 +136,86 @@ export function showHistory(history) {
     foot.className = "muted";
     const glosses = turn.constraints.map((constraint) => constraint.gloss).join("; ");
     const version = turn.scene_version != null ? ` · version ${turn.scene_version}` : "";
-    foot.textContent = `${verdict(turn.status)}${glosses ? " " + glosses : ""}${version} · ${turn.operator}, ${turn.at}`;
+    foot.textContent = `${verdict(turn.status)}${glosses ? " " + glosses : ""}${version} · ${turn.operator}, ${when(turn.at, true)}`;
     entry.append(head, foot);
+    return entry;
+  }));
+}
+
+function button(text, onClick, data) {
+  const element = document.createElement("button");
+  element.type = "button";
+  element.textContent = text;
+  for (const [key, value] of Object.entries(data || {})) element.dataset[key] = value;
+  element.addEventListener("click", onClick);
+  return element;
+}
+
+/** A time as the service writes it (RFC 3339), shortened to date and minute. */
+function when(at, seconds) {
+  return at ? at.replace("T", " ").slice(0, seconds ? 19 : 16) : "";
+}
+
+/** Adds a page of stored scenes to the chooser; `open(sceneId)` opens one. */
+export function addScenes(page, open, replace) {
+  const list = document.getElementById("scene-list");
+  const rows = page.scenes.map((scene) => {
+    const entry = document.createElement("li");
+    entry.append(button(`${scene.scene_id} · ${scene.name}`, () => open(scene.scene_id), { scene: scene.scene_id }));
+    const about = document.createElement("span");
+    about.className = "muted";
+    about.textContent = ` version ${scene.version} · ${scene.width}×${scene.height}`;
+    entry.append(about);
+    return entry;
+  });
+  if (replace) fill(list, rows, "No scene stored yet: load a demo room or send a photo.");
+  else list.append(...rows);
+}
+
+/** Adds a page of conversations to the chooser, newest first; `resume(id)` goes on with one. */
+export function addConversations(page, names, resume, replace) {
+  const list = document.getElementById("conversation-list");
+  const rows = page.conversations.slice().reverse().map((conversation) => {
+    const entry = document.createElement("li");
+    const scene = names.get(conversation.scene_id) || `scene ${conversation.scene_id}`;
+    entry.append(button(`${conversation.conversation_id} · on ${scene}`, () => resume(conversation.conversation_id),
+      { conversation: conversation.conversation_id }));
+    const about = document.createElement("span");
+    about.className = conversation.pending ? "warn" : "muted";
+    about.textContent = ` ${conversation.operator}, ${when(conversation.opened_at)}${conversation.pending ? " · waiting for your yes or no" : ""}`;
+    entry.append(about);
+    return entry;
+  });
+  if (replace) fill(list, rows, "None yet.");
+  else list.append(...rows);
+}
+
+/** Lists the scene's versions; `view(version)` shows one, `compare(version)` sets it as the split's before. */
+export function showVersions(listed, shown, before, view, compare) {
+  document.getElementById("version-count").textContent = String(listed.versions.length);
+  const list = document.getElementById("versions");
+  list.replaceChildren(...listed.versions.map((version) => {
+    const entry = document.createElement("li");
+    entry.dataset.version = version.version;
+    if (version.version === shown) entry.setAttribute("aria-current", "true");
+    const head = document.createElement("div");
+    const made = version.turn_id == null
+      ? "as registered"
+      : version.kind === "confirm" ? "a held change, confirmed"
+      : version.text != null ? `“${version.text}”` : "a note in another operator's conversation";
+    const standing = version.version === listed.head ? " · in force"
+      : version.in_force ? "" : " · taken back or replaced";
+    head.textContent = `Version ${version.version}: ${made}${standing}`;
+    const foot = document.createElement("div");
+    foot.className = "muted";
+    foot.textContent = `${version.operator}${version.at ? ", " + when(version.at) : ""}${version.version === shown ? " · on the picture" : ""}${version.version === before ? " · compared as before" : ""}`;
+    const actions = document.createElement("div");
+    actions.className = "row";
+    actions.append(
+      button("View", () => view(version.version), { view: version.version }),
+      button("Compare as before", () => compare(version.version), { compare: version.version }),
+    );
+    entry.append(head, foot, actions);
     return entry;
   }));
 }

@@ -3,7 +3,7 @@
 //! Owns: naming classes and rooms for callers, and the wire spelling of constraint kinds.
 //! Must not: change any value's meaning; a conversion only renames.
 
-use crate::correction_log::SceneKey;
+use crate::correction_log::{SceneKey, VersionKey};
 use crate::ids::{ClassId, ObjectId};
 use crate::language::constraint::{Constraint, ConstraintKind, Focus};
 use crate::raster::IndexImage;
@@ -11,7 +11,7 @@ use crate::taxonomy::Taxonomy;
 use crate::turn::Candidate;
 
 use super::SceneSlot;
-use crate::session::corrector::{Change, Unmet};
+use crate::session::corrector::{Change, SceneSummary, Unmet};
 use crate::wire::{
     CandidateOut, ChangeOut, ConstraintOut, FocusIn, ObjectOut, PixelBox, SceneGraphOut, TextSpan,
     UnmetOut,
@@ -126,21 +126,28 @@ pub(crate) fn unmet_out(unmet: &Unmet) -> UnmetOut {
 }
 
 pub(crate) fn scene_graph(scene: SceneKey, slot: &SceneSlot, taxonomy: &Taxonomy) -> SceneGraphOut {
+    scene_graph_of(scene, slot, slot.head, &slot.state.summary, taxonomy)
+}
+
+/// The scene graph of one version of a scene (`summary` is that version's).
+pub(crate) fn scene_graph_of(
+    scene: SceneKey,
+    slot: &SceneSlot,
+    version: VersionKey,
+    summary: &SceneSummary,
+    taxonomy: &Taxonomy,
+) -> SceneGraphOut {
     SceneGraphOut {
         scene_id: scene.0,
         name: slot.name.clone(),
-        version: slot.head.0,
+        version: version.0,
         width: slot.input.image.width,
         height: slot.input.image.height,
-        room: slot
-            .state
-            .summary
+        room: summary
             .room
             .and_then(|room| taxonomy.room(room))
             .map(|room| room.name.clone()),
-        objects: slot
-            .state
-            .summary
+        objects: summary
             .objects
             .iter()
             .map(|object| ObjectOut {

@@ -15,6 +15,7 @@ mod convert;
 mod register;
 mod replica;
 mod turns;
+mod versions;
 
 use std::collections::HashMap;
 use std::path::PathBuf;

@@ -89,11 +89,7 @@ pub(super) fn load_conversation(
         }
         None => None,
     };
-    let question = turns
-        .last()
-        .filter(|turn| turn.status == "needs_clarification")
-        .and_then(|turn| serde_json::from_str::<serde_json::Value>(&turn.result_json).ok())
-        .and_then(|result| serde_json::from_value(result.get("open_question")?.clone()).ok());
+    let question = super::turns::question_after(&turns);
     let mark = turns
         .iter()
         .fold(TurnMark::default(), |mark, turn| mark.after(turn.key));

@@ -6,11 +6,11 @@
 //! when it is still the scene's head; redo puts it back when nothing else has happened since.
 //! Must not: talk HTTP; answers are wire values or `SessionError`s.
 
-use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, TurnMark, VersionKey};
+use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, TurnMark, TurnRow, VersionKey};
 use crate::language::constraint::{Constraint, Focus};
 use crate::taxonomy::Taxonomy;
 use crate::turn::words::{self, Command};
-use crate::turn::{answer, conversation_checks, Answered, Note};
+use crate::turn::{answer, conversation_checks, Answered, Note, OpenQuestion};
 
 use super::convert::{
     candidate_out, change_out, constraint_out, focus_from_wire, focus_to_wire, label_changes,
@@ -90,6 +90,28 @@ fn status_from_text(text: &str) -> TurnStatus {
         "redone" => TurnStatus::Redone,
         _ => TurnStatus::NotUnderstood,
     }
+}
+
+/// The question a conversation waits on after its logged turns, kept as a live conversation keeps it:
+/// asked by a note that needed a clarification, kept through notes not understood, undo, redo and
+/// confirmations, dropped by a note that applied, held or changed nothing, and by a "no" that dropped it
+/// (the one note logged `rejected`; a held change rejected is a `reject` turn).
+pub(crate) fn question_after(turns: &[TurnRow]) -> Option<OpenQuestion> {
+    let mut question = None;
+    for turn in turns.iter().filter(|turn| turn.kind == "utterance") {
+        match turn.status.as_str() {
+            "needs_clarification" => {
+                question = serde_json::from_str::<serde_json::Value>(&turn.result_json)
+                    .ok()
+                    .and_then(|result| {
+                        serde_json::from_value(result.get("open_question")?.clone()).ok()
+                    });
+            }
+            "applied" | "needs_confirmation" | "nothing_to_change" | "rejected" => question = None,
+            _ => {}
+        }
+    }
+    question
 }
 
 /// Checks an utterance's text before any work is done on it.
@@ -934,6 +956,16 @@ impl Coordinator {
                         .map(|change| change_out(change, taxonomy))
                         .collect(),
                 }),
+            question: conversation_state
+                .question
+                .as_ref()
+                .map(|question| question.text.clone()),
+            candidates: conversation_state
+                .question
+                .iter()
+                .flat_map(|question| &question.candidates)
+                .map(|candidate| candidate_out(candidate, taxonomy))
+                .collect(),
             turns: turns
                 .into_iter()
                 .map(|turn| {
