@@ -207,43 +207,6 @@ fn sample(decoded: &Decoded, index: usize) -> u16 {
     }
 }
 
-fn rgb_from_decoded(decoded: Decoded, path: &Path) -> Result<RgbImage, RasterError> {
-    let channels = match decoded.color {
-        png::ColorType::Rgb => 3,
-        png::ColorType::Rgba => 4,
-        png::ColorType::Grayscale => 1,
-        png::ColorType::GrayscaleAlpha => 2,
-        other => {
-            return Err(RasterError::WrongFormat {
-                path: path.to_path_buf(),
-                found: format!("{other:?}"),
-                expected: "RGB, RGBA or greyscale",
-            })
-        }
-    };
-    let count = decoded.width as usize * decoded.height as usize;
-    let shift = if decoded.depth == png::BitDepth::Sixteen {
-        8
-    } else {
-        0
-    };
-    let mut pixels = Vec::with_capacity(count);
-    for pixel in 0..count {
-        let base = pixel * channels;
-        let value = |channel: usize| (sample(&decoded, base + channel) >> shift) as u8;
-        pixels.push(if channels >= 3 {
-            [value(0), value(1), value(2)]
-        } else {
-            [value(0); 3]
-        });
-    }
-    Ok(RgbImage {
-        width: decoded.width,
-        height: decoded.height,
-        pixels,
-    })
-}
-
 fn single_channel(decoded: &Decoded, path: &Path) -> Result<Vec<u16>, RasterError> {
     if decoded.color != png::ColorType::Grayscale {
         return Err(RasterError::WrongFormat {
@@ -258,7 +221,109 @@ fn single_channel(decoded: &Decoded, path: &Path) -> Result<Vec<u16>, RasterErro
 
 /// Reads an RGB (or RGBA / greyscale, converted) PNG.
 pub fn read_rgb_png(path: &Path, limit: u64) -> Result<RgbImage, RasterError> {
-    rgb_from_decoded(decode_png(path, limit)?, path)
+    let file = File::open(path).map_err(|source| RasterError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    decode_rgb_png_rows(BufReader::new(file), path, limit)
+}
+
+/// Decodes a colour PNG once, row by row, straight into the image's pixels: past the header's size check
+/// (against `limit`, before any pixel is decoded) the only buffer the size of the image is the result
+/// (3 bytes a pixel), whatever the file's colour type and depth (16-bit samples are cut to 8 by the
+/// decoder). An interlaced PNG, whose rows come in seven passes, is decoded whole first.
+fn decode_rgb_png_rows<R: Read>(
+    reader: R,
+    path: &Path,
+    limit: u64,
+) -> Result<RgbImage, RasterError> {
+    let decode_error = |message: String| RasterError::Decode {
+        path: path.to_path_buf(),
+        format: "PNG",
+        message,
+    };
+    let mut decoder = png::Decoder::new(reader);
+    decoder.set_transformations(png::Transformations::EXPAND | png::Transformations::STRIP_16);
+    let mut reader = decoder
+        .read_info()
+        .map_err(|error| decode_error(error.to_string()))?;
+    let info = reader.info();
+    let (width, height, interlaced) = (info.width, info.height, info.interlaced);
+    let pixels = width as u64 * height as u64;
+    if pixels > limit {
+        return Err(RasterError::TooLarge {
+            path: path.to_path_buf(),
+            width,
+            height,
+            pixels,
+            limit,
+        });
+    }
+    let (color, _) = reader.output_color_type();
+    let channels = match color {
+        png::ColorType::Rgb => 3,
+        png::ColorType::Rgba => 4,
+        png::ColorType::Grayscale => 1,
+        png::ColorType::GrayscaleAlpha => 2,
+        other => {
+            return Err(RasterError::WrongFormat {
+                path: path.to_path_buf(),
+                found: format!("{other:?}"),
+                expected: "RGB, RGBA or greyscale",
+            })
+        }
+    };
+    let to_rgb = |sample: &[u8]| -> [u8; 3] {
+        if channels >= 3 {
+            [sample[0], sample[1], sample[2]]
+        } else {
+            [sample[0]; 3]
+        }
+    };
+    let count = pixels as usize;
+    if interlaced {
+        let mut bytes = vec![0u8; reader.output_buffer_size()];
+        let frame = reader
+            .next_frame(&mut bytes)
+            .map_err(|error| decode_error(error.to_string()))?;
+        bytes.truncate(frame.buffer_size());
+        let pixels: Vec<[u8; 3]> = bytes
+            .chunks_exact(channels)
+            .take(count)
+            .map(to_rgb)
+            .collect();
+        if pixels.len() != count {
+            return Err(decode_error("the image data ends early".into()));
+        }
+        return Ok(RgbImage {
+            width,
+            height,
+            pixels,
+        });
+    }
+    let mut pixels = Vec::with_capacity(count);
+    while let Some(row) = reader
+        .next_row()
+        .map_err(|error| decode_error(error.to_string()))?
+    {
+        pixels.extend(
+            row.data()
+                .chunks_exact(channels)
+                .take(width as usize)
+                .map(to_rgb),
+        );
+    }
+    if pixels.len() != count {
+        return Err(decode_error(format!(
+            "the image data ends after {} of {count} pixels",
+            pixels.len()
+        )));
+    }
+    Ok(RgbImage {
+        width,
+        height,
+        pixels,
+    })
 }
 
 /// Reads a colour image from PNG or JPEG bytes (told apart by their signatures); `origin` names it in errors.
@@ -281,7 +346,7 @@ pub fn read_rgb_image(path: &Path, limit: u64) -> Result<RgbImage, RasterError> 
 
 /// Reads an RGB PNG from bytes; `origin` names it in errors.
 pub fn decode_rgb_png(bytes: &[u8], origin: &Path, limit: u64) -> Result<RgbImage, RasterError> {
-    rgb_from_decoded(decode_png_from(bytes, origin, limit)?, origin)
+    decode_rgb_png_rows(bytes, origin, limit)
 }
 
 /// Reads a 16-bit (or 8-bit) single-channel depth PNG in millimetres.

@@ -40,29 +40,36 @@ pub struct PreparedInput {
 /// The lower-case hex SHA-256 of everything that decides a scene's solve: its name, pixels, depth, scores,
 /// label map, detections and declared room. Two registrations with the same digest solve identically.
 pub fn input_digest(input: &SceneInput) -> String {
-    let mut hasher = Sha256::new();
-    let mut part = |tag: &str, bytes: &[u8]| {
+    fn framed(hasher: &mut Sha256, tag: &str, bytes: &[u8]) {
         hasher.update(tag.as_bytes());
         hasher.update((bytes.len() as u64).to_le_bytes());
         hasher.update(bytes);
-    };
-    part("name", input.name.as_bytes());
+    }
+    let mut hasher = Sha256::new();
+    framed(&mut hasher, "name", input.name.as_bytes());
     let size = [
         input.image.width.to_le_bytes(),
         input.image.height.to_le_bytes(),
     ]
     .concat();
-    part("size", &size);
-    let pixels: Vec<u8> = input.image.pixels.iter().flatten().copied().collect();
-    part("image", &pixels);
+    framed(&mut hasher, "size", &size);
+    // The pixels are hashed in place, framed as `framed` frames a part (no copy of the image).
+    hasher.update(b"image");
+    hasher.update((input.image.pixels.len() as u64 * 3).to_le_bytes());
+    let mut chunk = Vec::with_capacity(3 * 4096);
+    for pixels in input.image.pixels.chunks(4096) {
+        chunk.clear();
+        chunk.extend(pixels.iter().flatten());
+        hasher.update(&chunk);
+    }
     if let Some(depth) = &input.depth {
-        part("depth", &le_bytes(&depth.millimetres));
+        framed(&mut hasher, "depth", &le_bytes(&depth.millimetres));
     }
     if let Some(scores) = &input.scores_npy {
-        part("scores", scores);
+        framed(&mut hasher, "scores", scores);
     }
     if let Some(labels) = &input.label_map {
-        part("labels", &le_bytes(&labels.values));
+        framed(&mut hasher, "labels", &le_bytes(&labels.values));
     }
     for detection in &input.detections {
         let text = format!(
@@ -74,18 +81,22 @@ pub fn input_digest(input: &SceneInput) -> String {
             detection.bbox.y1,
             detection.score.to_bits()
         );
-        part("detection", text.as_bytes());
+        framed(&mut hasher, "detection", text.as_bytes());
         if let Some(mask) = &detection.mask {
             let runs: Vec<u8> = mask.runs.iter().flat_map(|run| run.to_le_bytes()).collect();
-            part("mask", &[&mask.width.to_le_bytes()[..], &runs].concat());
+            framed(
+                &mut hasher,
+                "mask",
+                &[&mask.width.to_le_bytes()[..], &runs].concat(),
+            );
         }
     }
     if let Some(room) = input.room {
-        part("room", &room.0.to_le_bytes());
+        framed(&mut hasher, "room", &room.0.to_le_bytes());
     }
     if input.classes != PerceptionClasses::default() {
         let text = serde_json::to_string(&input.classes).unwrap_or_default();
-        part("classes", text.as_bytes());
+        framed(&mut hasher, "classes", text.as_bytes());
     }
     hex(&hasher.finalize())
 }
@@ -395,5 +406,35 @@ mod tests {
                 && refused.to_string().contains("mask runs"),
             "{refused}"
         );
+    }
+
+    #[test]
+    fn the_digest_frames_the_pixels_as_one_part_without_copying_them() {
+        let mut image = crate::raster::RgbImage::filled(70, 90, [0, 0, 0]);
+        for (index, pixel) in image.pixels.iter_mut().enumerate() {
+            *pixel = [index as u8, (index / 7) as u8, (index / 300) as u8];
+        }
+        let input = SceneInput {
+            name: "hall".into(),
+            image: image.clone(),
+            depth: None,
+            scores_npy: None,
+            label_map: None,
+            detections: Vec::new(),
+            room: None,
+            classes: PerceptionClasses::default(),
+            superpixels: None,
+        };
+        // The digest as earlier builds wrote it (stored engine states name their scene by it): every part
+        // framed by its tag and length, the pixels copied out whole.
+        let mut hasher = Sha256::new();
+        let size = [70u32.to_le_bytes(), 90u32.to_le_bytes()].concat();
+        let pixels: Vec<u8> = image.pixels.iter().flatten().copied().collect();
+        for (tag, bytes) in [("name", &b"hall"[..]), ("size", &size), ("image", &pixels)] {
+            hasher.update(tag.as_bytes());
+            hasher.update((bytes.len() as u64).to_le_bytes());
+            hasher.update(bytes);
+        }
+        assert_eq!(input_digest(&input), hex(&hasher.finalize()));
     }
 }

@@ -1,0 +1,7 @@
+//! cargo-fuzz target `detections`: the body is `targets::detections` (shared with the stable harness, `tests/fuzz_corpus.rs`).
+#![no_main]
+
+#[path = "../targets.rs"]
+mod targets;
+
+libfuzzer_sys::fuzz_target!(|data: &[u8]| targets::detections(data));

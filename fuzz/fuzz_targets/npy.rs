@@ -1,0 +1,7 @@
+//! cargo-fuzz target `npy`: the body is `targets::npy` (shared with the stable harness, `tests/fuzz_corpus.rs`).
+#![no_main]
+
+#[path = "../targets.rs"]
+mod targets;
+
+libfuzzer_sys::fuzz_target!(|data: &[u8]| targets::npy(data));

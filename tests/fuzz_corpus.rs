@@ -1,0 +1,156 @@
+//! The fuzz targets on stable Rust, in `cargo test`: every target of `fuzz/` (`fuzz/targets.rs`) runs over
+//! its committed corpus (`fuzz/corpus/<target>/`) and then over seeded mutations of it (bit flips, byte
+//! changes, inserted and deleted runs, truncations, splices of two seeds, boundary numbers written into
+//! the text). Deterministic: the same seed gives the same inputs, so a failure here is reproducible, and the
+//! input that failed is written to `target/fuzz-failures/` to be added to the corpus.
+//!
+//! `SAYSO_FUZZ_MUTATIONS` sets the mutations per target (default 400; e.g. 20000 for a longer run). The
+//! cargo-fuzz targets (nightly, coverage-guided) run the same bodies: `DEVELOPERS.md` has the command.
+
+#[path = "../fuzz/targets.rs"]
+mod targets;
+
+use std::path::{Path, PathBuf};
+
+/// xorshift64*: a small deterministic generator (the mutations need no quality beyond spread).
+struct Mutator(u64);
+
+impl Mutator {
+    fn next(&mut self) -> u64 {
+        self.0 ^= self.0 >> 12;
+        self.0 ^= self.0 << 25;
+        self.0 ^= self.0 >> 27;
+        self.0.wrapping_mul(0x2545_F491_4F6C_DD1D)
+    }
+
+    fn below(&mut self, bound: usize) -> usize {
+        (self.next() % bound.max(1) as u64) as usize
+    }
+
+    /// One to four edits of `seed` (with `other` for splices).
+    fn mutate(&mut self, seed: &[u8], other: &[u8]) -> Vec<u8> {
+        const BOUNDARIES: [&[u8]; 8] = [
+            b"0",
+            b"-1",
+            b"4294967295",
+            b"18446744073709551616",
+            b"1e308",
+            b"NaN",
+            b"\xff\xff\xff\xff",
+            b"\x00\x00\x00\x00",
+        ];
+        let mut data = seed.to_vec();
+        for _ in 0..1 + self.below(4) {
+            let at = self.below(data.len() + 1);
+            match self.below(8) {
+                0 if !data.is_empty() => {
+                    let index = at.min(data.len() - 1);
+                    data[index] ^= 1 << self.below(8);
+                }
+                1 if !data.is_empty() => {
+                    let index = at.min(data.len() - 1);
+                    data[index] = self.next() as u8;
+                }
+                2 => {
+                    let run: Vec<u8> = (0..1 + self.below(16)).map(|_| self.next() as u8).collect();
+                    data.splice(at..at, run);
+                }
+                3 => {
+                    let end = (at + 1 + self.below(32)).min(data.len());
+                    data.drain(at.min(end)..end);
+                }
+                4 => data.truncate(at),
+                5 => {
+                    let from = self.below(other.len() + 1);
+                    data.truncate(at);
+                    data.extend_from_slice(&other[from..]);
+                }
+                6 => {
+                    let boundary = BOUNDARIES[self.below(BOUNDARIES.len())];
+                    data.splice(at..at, boundary.iter().copied());
+                }
+                _ => {
+                    // Repeat a run: grows lengths, counts and nesting.
+                    let end = (at + 1 + self.below(64)).min(data.len());
+                    let run = data[at.min(end)..end].to_vec();
+                    for _ in 0..1 + self.below(8) {
+                        data.splice(at..at, run.iter().copied());
+                    }
+                }
+            }
+        }
+        data
+    }
+}
+
+fn corpus(target: &str) -> Vec<(PathBuf, Vec<u8>)> {
+    let folder = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("fuzz/corpus")
+        .join(target);
+    let mut files: Vec<PathBuf> = std::fs::read_dir(&folder)
+        .unwrap_or_else(|error| panic!("{}: {error}", folder.display()))
+        .map(|entry| entry.unwrap().path())
+        .collect();
+    files.sort();
+    files
+        .into_iter()
+        .map(|path| {
+            let bytes = std::fs::read(&path).unwrap();
+            (path, bytes)
+        })
+        .collect()
+}
+
+/// Runs `body` on `input`; on a panic, writes the input where it can be added to the corpus and fails.
+fn run_one(target: &str, body: fn(&[u8]), input: &[u8], label: &str) {
+    let outcome = std::panic::catch_unwind(|| body(input));
+    if outcome.is_err() {
+        let folder = Path::new(env!("CARGO_MANIFEST_DIR")).join("target/fuzz-failures");
+        let _ = std::fs::create_dir_all(&folder);
+        let path = folder.join(format!("{target}-{label}"));
+        let _ = std::fs::write(&path, input);
+        panic!(
+            "fuzz target {target} panicked on {label} (input written to {})",
+            path.display()
+        );
+    }
+}
+
+#[test]
+fn every_fuzz_target_survives_its_corpus_and_seeded_mutations() {
+    let mutations: usize = std::env::var("SAYSO_FUZZ_MUTATIONS")
+        .ok()
+        .and_then(|text| text.parse().ok())
+        .unwrap_or(400);
+    for (index, (target, body)) in targets::TARGETS.iter().enumerate() {
+        let seeds = corpus(target);
+        assert!(!seeds.is_empty(), "fuzz/corpus/{target} holds no seed");
+        for (path, bytes) in &seeds {
+            let name = path.file_name().unwrap().to_string_lossy().to_string();
+            run_one(target, *body, bytes, &name);
+        }
+        run_one(target, *body, b"", "empty");
+        let mut mutator = Mutator(0x5A15_0024 + index as u64);
+        for round in 0..mutations {
+            let seed = &seeds[mutator.below(seeds.len())].1;
+            let other = &seeds[mutator.below(seeds.len())].1;
+            let input = mutator.mutate(seed, other);
+            run_one(target, *body, &input, &format!("mutation-{round}"));
+        }
+    }
+}
+
+#[test]
+fn the_mutator_is_deterministic_and_changes_its_input() {
+    let seed = b"there are four books on the shelf".to_vec();
+    let first: Vec<Vec<u8>> = {
+        let mut mutator = Mutator(7);
+        (0..50).map(|_| mutator.mutate(&seed, b"{}")).collect()
+    };
+    let again: Vec<Vec<u8>> = {
+        let mut mutator = Mutator(7);
+        (0..50).map(|_| mutator.mutate(&seed, b"{}")).collect()
+    };
+    assert_eq!(first, again);
+    assert!(first.iter().filter(|input| **input != seed).count() >= 45);
+}
