@@ -26,7 +26,9 @@ use crate::turn::dialogue::{Dialogue, Reply, Status};
 use crate::turn::solve::{Correction, CorrectionError};
 pub use crate::turn::{correct_turn, CorrectionSettings, TurnInputs};
 use crate::turn::{Candidate, TurnError};
-use crate::unaries::builtin::{builtin_unaries, current_feature_layout};
+use crate::unaries::builtin::{
+    builtin_unaries, current_feature_layout, IMAGE_ONLY_MODEL_FILE, MODEL_FILE,
+};
 use crate::unaries::byo::PerceptionError;
 use crate::unaries::classifier::{Classifier, ClassifierError};
 use crate::unaries::perception::Perception;
@@ -503,9 +505,29 @@ pub fn correct_scene(
     correct_prepared(prepared, utterances, focus, confirm_safety, settings)
 }
 
-/// Loads the built-in classifier from `path`.
+/// Loads the built-in classifier from `path`, with its image-only companion when `path` is named
+/// `segment_classifier.onnx` and `segment_classifier_rgb.onnx` lies beside it (the shipped pair in
+/// `models/`, or a pair trained with `sayso train --out DIR` and `sayso train --without-depth --out DIR`).
+/// Any other model file is loaded alone and scores every scene, with depth or without.
 pub fn load_classifier(path: &Path, taxonomy: &Taxonomy) -> Result<Classifier, PipelineError> {
-    Ok(Classifier::load(path, taxonomy, current_feature_layout())?)
+    let classifier = Classifier::load(path, taxonomy, current_feature_layout())?;
+    match image_only_companion(path) {
+        Some(companion) => Ok(classifier.with_image_only(Classifier::load(
+            &companion,
+            taxonomy,
+            current_feature_layout(),
+        )?)),
+        None => Ok(classifier),
+    }
+}
+
+/// The image-only model beside a built-in model file, when there is one.
+pub fn image_only_companion(path: &Path) -> Option<PathBuf> {
+    if path.file_name()? != std::ffi::OsStr::new(MODEL_FILE) {
+        return None;
+    }
+    let companion = path.with_file_name(IMAGE_ONLY_MODEL_FILE);
+    companion.is_file().then_some(companion)
 }
 
 fn quoted_span(utterance: &str, span: Span) -> String {

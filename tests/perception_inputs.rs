@@ -181,11 +181,32 @@ fn detections_come_as_json_lines_and_a_bad_line_is_named() {
         out.path(),
     );
     assert!(good.status.success(), "{}", text(&good.stderr));
-    // The built-in classifier on an image with no depth: the command says it labels such images poorly.
+    // The built-in pair on an image with no depth: its image-only model scores it, nothing to warn of.
     assert!(
-        text(&good.stderr).contains("no depth map: the built-in classifier"),
+        !text(&good.stderr).contains("no depth map"),
         "{}",
         text(&good.stderr)
+    );
+    // A model of the built-in contract with no image-only companion beside it: the command says that a
+    // model trained with depth labels such images poorly.
+    let mine = tempfile::tempdir().unwrap();
+    let model = mine.path().join("mine.onnx");
+    std::fs::copy(sayso::pipeline::model_path(None), &model).unwrap();
+    let alone = fix(
+        &[
+            "--detections",
+            &path("corner_detections.jsonl"),
+            "--model",
+            model.to_str().unwrap(),
+        ],
+        out.path(),
+    );
+    assert!(alone.status.success(), "{}", text(&alone.stderr));
+    assert!(
+        text(&alone.stderr)
+            .contains("no depth map, and this classifier has no image-only companion"),
+        "{}",
+        text(&alone.stderr)
     );
     let bad = fix(
         &["--detections", &path("corner_detections_bad.jsonl")],

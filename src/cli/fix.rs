@@ -51,11 +51,14 @@ pub struct FixArgs {
     pub perception: super::perception::PerceptionArgs,
 }
 
-/// Said when the built-in classifier scores an image with no depth map: it was trained on renders that all
-/// have one, and labels an image alone poorly (on four training renders at 640x480, pixel accuracy 92-96%
-/// with depth against 5-12% without, measured 2026-12-04).
-pub const NO_DEPTH_WARNING: &str = "no depth map: the built-in classifier was trained on images with depth \
-     and labels an image alone poorly; add a depth.png beside the image (a scene directory) or bring the \
+/// Said when an image with no depth map is scored by a model of the built-in contract that has no
+/// image-only companion (a model given by --model or $SAYSO_MODEL without `segment_classifier_rgb.onnx`
+/// beside it): models trained on renders with depth label an image alone poorly (the shipped one: on four
+/// training renders at 640x480, pixel accuracy 92-96% with depth against 5-12% without, measured
+/// 2026-12-04). The shipped pair needs no warning: the image-only model scores such a scene.
+pub const NO_DEPTH_WARNING: &str = "no depth map, and this classifier has no image-only companion \
+     (segment_classifier_rgb.onnx beside it): a model trained on images with depth labels an image alone \
+     poorly; add a depth.png beside the image (a scene directory), use the built-in models, or bring the \
      robot's own scores (--scores, --label-map or --user-model; docs/perception.md)";
 
 /// Notes that were not all settled: the process exits with `code` after the outputs are written.
@@ -201,7 +204,10 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
     };
     let perception =
         perception_args.perception(capture.image.width, capture.image.height, &taxonomy)?;
-    if capture.depth.is_none() && matches!(perception.scores, ScoreSource::BuiltIn) {
+    if capture.depth.is_none()
+        && matches!(perception.scores, ScoreSource::BuiltIn)
+        && classifier.image_only().is_none()
+    {
         eprintln!("sayso: {NO_DEPTH_WARNING}");
     }
     let prepared = prepare_perceived(capture, &perception, &taxonomy, &classifier)?;

@@ -6,7 +6,7 @@
 //! Owns: the polling thread and its interval. Must not: decide whether a model is good enough (the gate in
 //! `sayso train` does that before it replaces the file).
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::{Duration, SystemTime};
 
@@ -49,6 +49,7 @@ pub fn spawn(corrector: Arc<JointCorrector>, path: PathBuf) {
                 ) {
                     Ok(classifier) => {
                         let id = classifier.id().to_string();
+                        let classifier = with_companion(classifier, &path, &corrector);
                         corrector.replace_classifier(classifier);
                         eprintln!(
                             "sayso: now serving model {id} from {} (scenes are scored with it from the next turn)",
@@ -65,6 +66,24 @@ pub fn spawn(corrector: Arc<JointCorrector>, path: PathBuf) {
         });
     if let Err(error) = spawned {
         eprintln!("sayso: cannot watch the model file for replacements: {error}");
+    }
+}
+
+/// The replacement with the image-only companion beside its file, as `pipeline::load_classifier` loads
+/// the served model at start-up (a companion that does not load is reported and left out).
+fn with_companion(classifier: Classifier, path: &Path, corrector: &JointCorrector) -> Classifier {
+    let Some(companion) = sayso::pipeline::image_only_companion(path) else {
+        return classifier;
+    };
+    match Classifier::load(&companion, corrector.taxonomy(), current_feature_layout()) {
+        Ok(companion) => classifier.with_image_only(companion),
+        Err(error) => {
+            eprintln!(
+                "sayso: the image-only model {} does not load ({error}); scenes without depth are scored by the new model",
+                companion.display()
+            );
+            classifier
+        }
     }
 }
 

@@ -71,7 +71,7 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();
     if let Some(directory) = &args.scene {
         let upload = scene_upload(directory, &args, &taxonomy)?;
-        if config.user_model.is_none() {
+        if warns_without_depth(&config) {
             warn_without_depth(&upload);
         }
         uploads.push(upload);
@@ -91,7 +91,7 @@ pub fn run(args: StoreArgs) -> anyhow::Result<()> {
             ..SceneUpload::default()
         };
         args.perception.fill_upload(&mut upload, image, &taxonomy)?;
-        if config.user_model.is_none() {
+        if warns_without_depth(&config) {
             warn_without_depth(&upload);
         }
         uploads.push(upload);
@@ -150,8 +150,19 @@ fn scene_upload(
     Ok(upload)
 }
 
-/// Says so when a scene without depth will be scored by the built-in classifier (the caller checks that
-/// no user model scores it instead).
+/// Whether a scene without depth would be scored by a classifier with no image-only companion: no user
+/// model scores it and the configured model has no `segment_classifier_rgb.onnx` beside it
+/// (`pipeline::load_classifier`, which the service's corrector loads it with).
+fn warns_without_depth(config: &sayso::service::config::ServiceConfig) -> bool {
+    config.user_model.is_none()
+        && sayso::pipeline::image_only_companion(&sayso::pipeline::model_path(
+            config.model.as_deref(),
+        ))
+        .is_none()
+}
+
+/// Says so when a scene without depth will be scored by a classifier with no image-only companion (the
+/// caller checks that with `warns_without_depth`).
 fn warn_without_depth(upload: &SceneUpload) {
     if upload.depth_png.is_none() && upload.scores_npy.is_none() && upload.label_map_png.is_none() {
         eprintln!("sayso: {}", super::fix::NO_DEPTH_WARNING);

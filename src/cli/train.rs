@@ -15,7 +15,10 @@ use clap::{Args, ValueEnum};
 use sayso::ids::ClassId;
 use sayso::scene::SceneParams;
 use sayso::taxonomy::Taxonomy;
-use sayso::unaries::builtin::{dataset_scene_rows, evaluate_on_dataset};
+use sayso::unaries::builtin::{
+    dataset_scene_rows, evaluate_on_dataset, DepthUse, IMAGE_ONLY_MODEL_CARD,
+    IMAGE_ONLY_MODEL_FILE, MODEL_FILE,
+};
 use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
 use sayso::unaries::dataset::read_feature_csv;
 use sayso::unaries::dataset::{list_dataset, DatasetEntry};
@@ -135,9 +138,22 @@ pub struct TrainArgs {
     pub class_balanced: Option<bool>,
     #[arg(long, default_value_t = 7)]
     pub seed: u64,
+    /// Train the image-only classifier: every training and evaluation scene is read without its depth
+    /// map; writes segment_classifier_rgb.onnx and its card segment_classifier_rgb.md.
+    #[arg(long, conflicts_with_all = ["corrections", "feature_matrix"])]
+    pub without_depth: bool,
 }
 
 impl TrainArgs {
+    /// Whether scenes are read with their depth maps.
+    pub fn depth_use(&self) -> DepthUse {
+        if self.without_depth {
+            DepthUse::WithoutDepth
+        } else {
+            DepthUse::IfPresent
+        }
+    }
+
     /// The penalty flag as the trainer's setting.
     pub fn regularisation(&self) -> Regularisation {
         match self.penalty {
@@ -177,7 +193,13 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
             );
         }
         let entries = list_dataset(directory)?;
-        let rows = dataset_scene_rows(&entries, &taxonomy, &SceneParams::default(), true)?;
+        let rows = dataset_scene_rows(
+            &entries,
+            &taxonomy,
+            &SceneParams::default(),
+            args.depth_use(),
+            true,
+        )?;
         (
             TrainingData::Scenes(rows, entries.clone()),
             format!(
@@ -195,7 +217,13 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
     } else if let Some(count) = args.render {
         let directory = render_training_scenes(count, args.seed_base)?;
         let entries = list_dataset(&directory)?;
-        let rows = dataset_scene_rows(&entries, &taxonomy, &SceneParams::default(), true);
+        let rows = dataset_scene_rows(
+            &entries,
+            &taxonomy,
+            &SceneParams::default(),
+            args.depth_use(),
+            true,
+        );
         let _ = std::fs::remove_dir_all(&directory);
         (
             TrainingData::Scenes(rows?, entries),
@@ -209,6 +237,11 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         )
     } else {
         bail!("give --data DIR, --render N or --feature-matrix FILE");
+    };
+    let description = if args.without_depth {
+        format!("{description} Every depth map left out (`--without-depth`): the image-only classifier.")
+    } else {
+        description
     };
     if !(0.0..1.0).contains(&args.validation_fraction) || args.validation_fraction == 0.0 {
         bail!("--validation-fraction must be between 0 and 1");
@@ -270,7 +303,11 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
     };
     let bytes = encode_model(&outcome.mlp, &contract)?;
     std::fs::create_dir_all(&out).with_context(|| format!("creating {}", out.display()))?;
-    let model_path = out.join("segment_classifier.onnx");
+    let model_path = out.join(if args.without_depth {
+        IMAGE_ONLY_MODEL_FILE
+    } else {
+        MODEL_FILE
+    });
     std::fs::write(&model_path, &bytes)
         .with_context(|| format!("writing {}", model_path.display()))?;
     // The card names the program plainly, whatever path it was started by.
@@ -309,13 +346,23 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
             current_feature_layout(),
         )?;
         let entries = list_dataset(directory)?;
-        let matrix =
-            evaluate_on_dataset(&entries, &classifier, &taxonomy, &SceneParams::default())?;
+        let matrix = evaluate_on_dataset(
+            &entries,
+            &classifier,
+            &taxonomy,
+            &SceneParams::default(),
+            args.depth_use(),
+        )?;
         card.evaluation = Some(EvaluationFigures {
             description: format!(
-                "{} scenes of `{}` (pixel level)",
+                "{} scenes of `{}` (pixel level{})",
                 entries.len(),
-                directory.display()
+                directory.display(),
+                if args.without_depth {
+                    ", depth maps left out"
+                } else {
+                    ""
+                }
             ),
             pixel_accuracy: matrix.pixel_accuracy(),
             mean_iou: matrix.mean_iou(),
@@ -335,7 +382,11 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
             matrix.mean_iou()
         );
     }
-    let card_path = out.join("README.md");
+    let card_path = out.join(if args.without_depth {
+        IMAGE_ONLY_MODEL_CARD
+    } else {
+        "README.md"
+    });
     std::fs::write(&card_path, card.to_markdown())
         .with_context(|| format!("writing {}", card_path.display()))?;
     let c = outcome.calibration;

@@ -275,8 +275,11 @@ pub fn prepare_input(
             }
             other => bad(field, other.to_string()),
         })?;
-    let model = matches!(perceived.unaries.source, UnarySource::BuiltIn { .. })
-        .then(|| classifier.id().to_string());
+    let model = matches!(perceived.unaries.source, UnarySource::BuiltIn { .. }).then(|| {
+        crate::unaries::builtin::classifier_for(&scene, classifier)
+            .id()
+            .to_string()
+    });
     Ok(PreparedInput {
         scene,
         unaries: perceived.unaries,

@@ -2,7 +2,8 @@
 //! and the scene-level helpers the trainer and the model card need (training rows from labelled scenes,
 //! predicted label maps, evaluation over a scene set).
 //!
-//! Owns: `builtin_unaries`, `current_feature_layout`, `predicted_label_map`, `scene_training_rows`,
+//! Owns: `builtin_unaries`, the choice of the image-only companion for a scene without depth
+//! (`classifier_for`), the model file names (`MODEL_FILE`, `IMAGE_ONLY_MODEL_FILE`), `current_feature_layout`, `predicted_label_map`, `scene_training_rows`,
 //! `dataset_scene_rows`, `dataset_training_rows`, `evaluate_on_dataset`.
 //! Must not: compute features itself (that is `crate::features`) or build segments (`crate::scene`).
 
@@ -22,6 +23,14 @@ use crate::raster::IndexImage;
 use crate::scene::{Scene, SceneParams};
 use crate::taxonomy::Taxonomy;
 
+/// The built-in classifier's file name in `models/` (trained on images with depth).
+pub const MODEL_FILE: &str = "segment_classifier.onnx";
+/// The image-only classifier's file name in `models/`: trained by `sayso train --without-depth`, it scores
+/// the built-in classifier's scenes that have no depth map (`Classifier::for_scene`).
+pub const IMAGE_ONLY_MODEL_FILE: &str = "segment_classifier_rgb.onnx";
+/// The image-only classifier's model card, written beside it by `sayso train --without-depth`.
+pub const IMAGE_ONLY_MODEL_CARD: &str = "segment_classifier_rgb.md";
+
 /// The feature layout this build computes.
 pub fn current_feature_layout() -> FeatureLayout {
     FeatureLayout {
@@ -30,8 +39,27 @@ pub fn current_feature_layout() -> FeatureLayout {
     }
 }
 
-/// Calibrated per-segment log-probabilities for a scene from the built-in classifier.
+/// Whether any segment of the scene has a depth reading (a missing depth map, or one with no reading at
+/// all, is no depth).
+pub fn scene_has_depth(scene: &Scene) -> bool {
+    scene.depth.is_some() && scene.stats.iter().any(|stats| stats.depth_pixels > 0)
+}
+
+/// The model that scores `scene`: the classifier's image-only companion when the scene has no depth and
+/// the classifier has one, else the classifier itself. The one choice behind every entry point (`fix`,
+/// `store`, `serve`, `field-notes`, `demo`, `score` all score through `builtin_unaries`); a user's model
+/// loaded in the built-in one's place has no companion and is never replaced.
+pub fn classifier_for<'a>(scene: &Scene, classifier: &'a Classifier) -> &'a Classifier {
+    match classifier.image_only() {
+        Some(companion) if !scene_has_depth(scene) => companion,
+        _ => classifier,
+    }
+}
+
+/// Calibrated per-segment log-probabilities for a scene from the built-in classifier (its image-only
+/// companion for a scene without depth, `classifier_for`).
 pub fn builtin_unaries(scene: &Scene, classifier: &Classifier) -> Result<Unaries, ClassifierError> {
+    let classifier = classifier_for(scene, classifier);
     let features = segment_features(scene);
     let log_probs = classifier.classify(features.view())?;
     Ok(Unaries {
@@ -66,10 +94,19 @@ pub fn predicted_label_map(scene: &Scene, unaries: &Unaries) -> IndexImage {
     }
 }
 
+/// Whether a labelled scene's depth map is used when it has one (`WithoutDepth` trains and evaluates the
+/// image-only classifier: every scene is read as if it had no depth map).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum DepthUse {
+    IfPresent,
+    WithoutDepth,
+}
+
 fn scene_of(
     labelled: &LabelledImage,
     taxonomy: &Taxonomy,
     params: &SceneParams,
+    depth: DepthUse,
 ) -> Result<Scene, DatasetError> {
     let room = labelled
         .metadata
@@ -81,7 +118,10 @@ fn scene_of(
     Ok(Scene::from_image(
         labelled.name.clone(),
         labelled.image.clone(),
-        labelled.depth.clone(),
+        match depth {
+            DepthUse::IfPresent => labelled.depth.clone(),
+            DepthUse::WithoutDepth => None,
+        },
         room,
         params,
     )?)
@@ -93,8 +133,9 @@ pub fn scene_training_rows(
     labelled: &LabelledImage,
     taxonomy: &Taxonomy,
     params: &SceneParams,
+    depth: DepthUse,
 ) -> Result<LabelledFeatures, DatasetError> {
-    let scene = scene_of(labelled, taxonomy, params)?;
+    let scene = scene_of(labelled, taxonomy, params, depth)?;
     let features = segment_features(&scene);
     let majority = majority_labels(&scene.segments, &labelled.labels, taxonomy.class_count())?;
     let rows: Vec<usize> = (0..majority.len())
@@ -127,6 +168,7 @@ pub fn dataset_scene_rows(
     entries: &[DatasetEntry],
     taxonomy: &Taxonomy,
     params: &SceneParams,
+    depth: DepthUse,
     show_progress: bool,
 ) -> Result<Vec<LabelledFeatures>, DatasetError> {
     let progress = progress_bar(entries.len(), show_progress, "segmenting");
@@ -136,6 +178,7 @@ pub fn dataset_scene_rows(
             &load_labelled_image(entry, taxonomy.class_count())?,
             taxonomy,
             params,
+            depth,
         )?);
         progress.inc(1);
     }
@@ -148,11 +191,12 @@ pub fn dataset_training_rows(
     entries: &[DatasetEntry],
     taxonomy: &Taxonomy,
     params: &SceneParams,
+    depth: DepthUse,
     show_progress: bool,
 ) -> Result<LabelledFeatures, DatasetError> {
     let mut labels = Vec::new();
     let mut values = Vec::new();
-    for rows in dataset_scene_rows(entries, taxonomy, params, show_progress)? {
+    for rows in dataset_scene_rows(entries, taxonomy, params, depth, show_progress)? {
         labels.extend(rows.labels);
         values.extend(rows.features.iter().copied());
     }
@@ -175,11 +219,12 @@ pub fn evaluate_on_dataset(
     classifier: &Classifier,
     taxonomy: &Taxonomy,
     params: &SceneParams,
+    depth: DepthUse,
 ) -> Result<ConfusionMatrix, DatasetError> {
     let mut matrix = ConfusionMatrix::new(taxonomy.class_count());
     for entry in entries {
         let labelled = load_labelled_image(entry, taxonomy.class_count())?;
-        let scene = scene_of(&labelled, taxonomy, params)?;
+        let scene = scene_of(&labelled, taxonomy, params, depth)?;
         let unaries = builtin_unaries(&scene, classifier)?;
         let predicted = predicted_label_map(&scene, &unaries);
         matrix.add_maps(&labelled.labels.values, &predicted.values)?;

@@ -81,6 +81,9 @@ pub struct Classifier {
     contract: ModelContract,
     origin: String,
     id: String,
+    /// The image-only companion that scores scenes without depth in this model's place
+    /// (`builtin::classifier_for`); only the built-in model has one (`pipeline::load_classifier`).
+    image_only: Option<Arc<Classifier>>,
 }
 
 impl std::fmt::Debug for Classifier {
@@ -88,6 +91,10 @@ impl std::fmt::Debug for Classifier {
         f.debug_struct("Classifier")
             .field("origin", &self.origin)
             .field("id", &self.id)
+            .field(
+                "image_only",
+                &self.image_only.as_ref().map(|c| c.id.clone()),
+            )
             .field("contract", &self.contract)
             .finish()
     }
@@ -187,7 +194,19 @@ impl Classifier {
             contract,
             origin,
             id: model_id(bytes),
+            image_only: None,
         })
+    }
+
+    /// This model with `companion` scoring the scenes that have no depth map in its place.
+    pub fn with_image_only(mut self, companion: Classifier) -> Classifier {
+        self.image_only = Some(Arc::new(companion));
+        self
+    }
+
+    /// The image-only companion, when this model has one.
+    pub fn image_only(&self) -> Option<&Classifier> {
+        self.image_only.as_deref()
     }
 
     /// The model's id (`model_id` of the bytes it was loaded from).
