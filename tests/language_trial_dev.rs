@@ -245,17 +245,18 @@ fn fillers(grammar: &Grammar, section: &str) -> Vec<(Slots, Fact)> {
 
 /// Per-section floors on the share of filled sentences read as stated, in percent: just under what the
 /// parser reached when they were last raised (2026-12-04, late, after a fourth batch of blind templates,
-/// twelve per section: absent 98.0, count_exact 95.9, count_one 100, present 100, relabel_point 93.9,
-/// relation_left_of 93.9, relation_next_to 98.0, relation_on 93.9, relation_right_of 95.9,
-/// relation_under 100, room 98.0; 91,406 of 94,946 filled sentences, none misread). Before the parser
-/// changes that batch prompted, the whole file read at 92.0% (87,342 of 94,946), 5 templates misread.
+/// twelve per section less those repeating one already in either half: absent 97.9, count_exact 95.8,
+/// count_one 100, present 100, relabel_point 93.8, relation_left_of 93.5, relation_next_to 97.8,
+/// relation_on 93.6, relation_right_of 95.8, relation_under 100, room 97.9; 87,551 of 91,091 filled
+/// sentences, none misread). Before the parser changes that batch prompted, the whole file read at 92.0%,
+/// 5 templates misread.
 const FLOORS: [(&str, f64); 11] = [
     ("absent", 97.5),
     ("count_exact", 95.5),
     ("count_one", 99.5),
     ("present", 99.5),
     ("relabel_point", 93.5),
-    ("relation_left_of", 93.5),
+    ("relation_left_of", 93.0),
     ("relation_next_to", 97.5),
     ("relation_on", 93.5),
     ("relation_right_of", 95.5),

@@ -70,17 +70,26 @@ fn start(url: &str, data: &Path, config: &Path) -> Replica {
     Replica { child, address }
 }
 
+/// A block's side and the picture's height, in pixels: a block covers about 3% of the picture, under the
+/// share past which a relabel to a small object asks first (`grounding::usual_share`), and the picture is
+/// large enough for 36 superpixels (`SceneParams::for_image_size`).
+const SIDE: u32 = 12;
+const HEIGHT: u32 = 48;
+
 fn block_origin(block: usize) -> (u32, u32) {
-    (block as u32 * 8 + 2, 2)
+    (
+        block as u32 * HEIGHT + (HEIGHT - SIDE) / 2,
+        (HEIGHT - SIDE) / 2,
+    )
 }
 
 /// Two floor blocks walled off from each other.
 fn scene_labels() -> IndexImage {
-    let mut labels = IndexImage::filled(BLOCKS as u32 * 8, 8, WALL);
+    let mut labels = IndexImage::filled(BLOCKS as u32 * HEIGHT, HEIGHT, WALL);
     for block in 0..BLOCKS {
         let (x0, y0) = block_origin(block);
-        for y in y0..y0 + 4 {
-            for x in x0..x0 + 4 {
+        for y in y0..y0 + SIDE {
+            for x in x0..x0 + SIDE {
                 labels.set(x, y, FLOOR);
             }
         }
@@ -138,7 +147,7 @@ fn operate(
     let conversation = opened.json()["conversation_id"].as_i64().unwrap();
     let (x0, y0) = block_origin(block);
     let body_for = |class: u16| {
-        serde_json::json!({"text": text_of(class), "focus": {"type": "pixel", "x": x0 + 1, "y": y0 + 1}})
+        serde_json::json!({"text": text_of(class), "focus": {"type": "pixel", "x": x0 + SIDE / 2, "y": y0 + SIDE / 2}})
             .to_string()
     };
     let mut seen = Seen {
@@ -405,7 +414,7 @@ fn replicas_on_one_database_lose_and_repeat_nothing_when_killed() {
         assert_eq!(reply.status, 200);
         let labels = raster::decode_index_png(&reply.body, Path::new("labels"), 1 << 20).unwrap();
         let (x0, y0) = block_origin(block);
-        let shown = labels.get(x0 + 1, y0 + 1);
+        let shown = labels.get(x0 + SIDE / 2, y0 + SIDE / 2);
         assert!(
             seen.possible.contains(&shown),
             "scene {scene} block {block} shows {shown} where its operator points, expected one of {:?}",
