@@ -4,7 +4,7 @@
 
 # Contractions and casual spellings.
 # "No, that's a mug": a "no" opening the note before a pointing word answers the robot; it denies nothing.
-no no = no when after <start>
+no no = no , when after <start> when before that|this|it|that's|thats|it's|its|this's
 relabel = this is when after <start> when before <class>
 no = no , when after <start> when before that|this|it|that's|thats|it's|its|this's
 # "The mug that's on the desk": after a class word, "that" opens a clause about it.
@@ -423,6 +423,9 @@ no doubt -> filler
 there is no doubt -> filler
 from where -> filler
 i think -> filler
+nothing of the sort = none
+nothing of that sort = none
+nothing like that = none
 i am pretty sure -> filler
 i am sure -> filler
 pretty sure -> filler
