@@ -10,7 +10,7 @@ use super::{SceneTrial, TrialSummary};
 
 /// Bar colours (our own picks, far apart in hue and lightness so they read in grey too).
 const COLOURS: [(&str, &str); 3] = [
-    ("object accuracy", "#1f5fa8"),
+    ("object F1", "#1f5fa8"),
     ("mean IoU", "#e0912b"),
     ("pixel accuracy", "#6aa84f"),
 ];
