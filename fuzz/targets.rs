@@ -46,7 +46,7 @@ fn taxonomy() -> &'static Taxonomy {
     TAXONOMY.get_or_init(Taxonomy::embedded)
 }
 
-/// An utterance, as the service and `fix` read one (lossy UTF-8, as a transcript may arrive).
+/// An utterance, as the service and `fix` read one (bytes decoded as lossy UTF-8).
 pub fn parser(data: &[u8]) {
     let text = String::from_utf8_lossy(data);
     let _ = grammar().parse(&text, None);
