@@ -11,10 +11,10 @@ use std::time::Instant;
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use ndarray::Ix2;
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::byo_npy::read_npy;
-use sayso::unaries::contract::FeatureLayout;
-use sayso::unaries::Classifier;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::byo_npy::read_npy;
+use sayso_perception::unaries::contract::FeatureLayout;
+use sayso_perception::unaries::Classifier;
 
 fn classify_400_segments(criterion: &mut Criterion) {
     let directory = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/unaries");

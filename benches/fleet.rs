@@ -29,9 +29,9 @@ use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::{load_average, percentile, BENCH_SCENES};
-use sayso::demo::demo_directory;
-use sayso::evaluation::read_pointed_notes;
-use sayso::language::constraint::Focus;
+use sayso_render::demo::demo_directory;
+use sayso_lab::evaluation::read_pointed_notes;
+use sayso_core::language::constraint::Focus;
 
 /// Notes each conversation sends in the measured run (after one warm-up pass over its notes on every
 /// replica).

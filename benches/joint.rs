@@ -24,17 +24,17 @@ use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::{
     chain, load_average, load_scenes, percentile, settings, thread_cpu_ms, turn, turn_energy,
 };
-use sayso::solver::expansion::cheapest_labels;
-use sayso::solver::joint::{solve_joint, JointSolution};
-use sayso::solver::labelling::LabellingProblem;
-use sayso::solver::potts_labeller::{label_potts, CandidateLabels};
+use sayso_solver::expansion::cheapest_labels;
+use sayso_solver::joint::{solve_joint, JointSolution};
+use sayso_solver::labelling::LabellingProblem;
+use sayso_solver::potts_labeller::{label_potts, CandidateLabels};
 
 /// Costs are multiplied by this and rounded for GCO, which takes integers; both solvers read the rounded
 /// problem.
 const GCO_SCALE: f64 = 100.0;
 
 /// The segment part of an energy as an integer Potts problem.
-fn integer_problem(energy: &sayso::energy::JointEnergy) -> LabellingProblem {
+fn integer_problem(energy: &sayso_core::energy::JointEnergy) -> LabellingProblem {
     let round = |cost: f64| (cost * GCO_SCALE).round() as f32;
     LabellingProblem {
         node_count: energy.node_count,

@@ -7,7 +7,7 @@ use std::hint::black_box;
 use std::time::Instant;
 
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
-use sayso::language::Grammar;
+use sayso_core::language::Grammar;
 
 fn corpus() -> Vec<String> {
     let text = std::fs::read_to_string(concat!(

@@ -20,12 +20,12 @@ use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::load_average;
-use sayso::correction_log::{ConversationKey, SceneKey};
-use sayso::demo::demo_directory;
-use sayso::pipeline::model_path;
-use sayso::session::JointCorrector;
-use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
-use sayso::wire::{FocusIn, TurnStatus};
+use sayso_correction_log::{ConversationKey, SceneKey};
+use sayso_render::demo::demo_directory;
+use sayso_perception::pipeline::model_path;
+use sayso_session::JointCorrector;
+use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};
+use sayso_wire::{FocusIn, TurnStatus};
 
 /// The demo scene the chain grows on.
 const SCENE: &str = "kitchen_breakfast";
@@ -49,7 +49,7 @@ fn open(data: &Path) -> Coordinator {
         Arc::new(JointCorrector::load(&model_path(None)).expect("the built-in classifier loads")),
         &CoordinatorSettings {
             log_path: data.join("corrections.sqlite"),
-            pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+            pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: demo_directory(None),
         },
     )
@@ -162,7 +162,7 @@ fn restart_figures() {
                 corrector.clone(),
                 &CoordinatorSettings {
                     log_path: data.path().join("corrections.sqlite"),
-                    pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+                    pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
                     demo_dir: demo_directory(None),
                 },
             )
@@ -208,28 +208,28 @@ fn restart_figures() {
 /// The parts of preparing a registration again that a cold corrector pays on its first turn: superpixels
 /// (SLIC, statistics, adjacency, coarse level) and the built-in classifier's unaries; medians of 5.
 fn preparation_profile() {
-    let capture = sayso::pipeline::SceneSource::Demo {
+    let capture = sayso_perception::pipeline::SceneSource::Demo {
         directory: demo_directory(None),
         name: Some(SCENE.into()),
     }
     .load()
     .expect("the demo scene loads");
-    let taxonomy = sayso::pipeline::CorrectionSettings::embedded().unwrap();
+    let taxonomy = sayso_perception::pipeline::CorrectionSettings::embedded().unwrap();
     let classifier =
-        sayso::pipeline::load_classifier(&model_path(None), taxonomy.grammar.taxonomy()).unwrap();
+        sayso_perception::pipeline::load_classifier(&model_path(None), taxonomy.grammar.taxonomy()).unwrap();
     let mut slic_alone = Vec::new();
     let mut superpixels = Vec::new();
     let mut prepared = Vec::new();
-    let params = sayso::scene::SceneParams::default();
+    let params = sayso_core::scene::SceneParams::default();
     for _ in 0..5 {
         let started = Instant::now();
-        sayso::slic::slic(&capture.image, &params.superpixels).unwrap();
+        sayso_core::slic::slic(&capture.image, &params.superpixels).unwrap();
         slic_alone.push(started.elapsed());
         let started = Instant::now();
-        sayso::pipeline::superpixels_of(&capture).unwrap();
+        sayso_perception::pipeline::superpixels_of(&capture).unwrap();
         superpixels.push(started.elapsed());
         let started = Instant::now();
-        sayso::pipeline::prepare_loaded(capture.clone(), &classifier).unwrap();
+        sayso_perception::pipeline::prepare_loaded(capture.clone(), &classifier).unwrap();
         prepared.push(started.elapsed());
     }
     let (slic_alone, superpixels, prepared) =

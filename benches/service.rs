@@ -20,14 +20,14 @@ use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::{load_average, BENCH_SCENES};
-use sayso::config::ServiceConfig;
-use sayso::demo::{demo_directory, list_demo_scenes};
-use sayso::evaluation::read_pointed_notes;
-use sayso::language::constraint::Focus;
-use sayso::pipeline::model_path;
-use sayso::service::AppState;
-use sayso::session::JointCorrector;
-use sayso::session::{Coordinator, CoordinatorSettings};
+use sayso_session::config::ServiceConfig;
+use sayso_render::demo::{demo_directory, list_demo_scenes};
+use sayso_lab::evaluation::read_pointed_notes;
+use sayso_core::language::constraint::Focus;
+use sayso_perception::pipeline::model_path;
+use sayso_service::AppState;
+use sayso_session::JointCorrector;
+use sayso_session::{Coordinator, CoordinatorSettings};
 
 /// The offered rate of the open-loop run, and how many requests it sends.
 const OFFERED_PER_SECOND: f64 = 200.0;
@@ -78,7 +78,7 @@ fn start() -> Bench {
         .unwrap();
     let address = listener.local_addr().unwrap();
     let state = AppState::new(coordinator, config);
-    runtime.spawn(sayso::service::run(listener, state, std::future::pending()));
+    runtime.spawn(sayso_service::run(listener, state, std::future::pending()));
     let conversations = BENCH_SCENES
         .iter()
         .map(|&name| {

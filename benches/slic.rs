@@ -5,7 +5,7 @@
 //! `tests/fixtures/slic/make_slic.py`, read from `tests/fixtures/slic/reference.json`) in wall-clock time
 //! and in the thread's CPU time (the fairer figure on a shared machine), and the peak
 //! working memory per pixel beyond the input image, both as counted by a global allocator wrapper and as
-//! `sayso::slic::working_bytes` accounts for it. Goals: at most 0.25x scikit-image's time, at most
+//! `sayso_core::slic::working_bytes` accounts for it. Goals: at most 0.25x scikit-image's time, at most
 //! 24 bytes per pixel.
 //! Must not: assert; figures are printed for people to read.
 
@@ -15,8 +15,8 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::Instant;
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use sayso::raster::{read_rgb_png, DEFAULT_PIXEL_LIMIT};
-use sayso::slic::{slic, working_bytes, SlicParams};
+use sayso_core::raster::{read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::slic::{slic, working_bytes, SlicParams};
 
 /// Wraps the system allocator to track live and peak heap bytes.
 struct CountingAllocator;

@@ -8,9 +8,9 @@
 use std::time::Instant;
 
 use criterion::{criterion_group, criterion_main, BatchSize, Criterion};
-use sayso::solver::expansion::{alpha_expansion, ExpansionSolver};
-use sayso::solver::labelling::{ExpansionOptions, LabellingProblem};
-use sayso::solver::maxflow::FlowGraph;
+use sayso_solver::expansion::{alpha_expansion, ExpansionSolver};
+use sayso_solver::labelling::{ExpansionOptions, LabellingProblem};
+use sayso_solver::maxflow::FlowGraph;
 use serde::Deserialize;
 
 const WIDTH: usize = 640;

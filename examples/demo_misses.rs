@@ -7,10 +7,10 @@
 //!
 //! Owns: nothing the crate uses. Must not: tune anything on what it prints (the demo scenes are for the
 //! demo and its evaluation only).
-use sayso::demo::{demo_directory, list_demo_scenes};
-use sayso::evaluation::{objects_from_graph, PredictedObject};
-use sayso::pipeline::*;
-use sayso::taxonomy::Taxonomy;
+use sayso_render::demo::{demo_directory, list_demo_scenes};
+use sayso_lab::evaluation::{objects_from_graph, PredictedObject};
+use sayso_perception::pipeline::*;
+use sayso_core::taxonomy::Taxonomy;
 use std::collections::HashMap;
 
 fn iou(a: &[u32], inst: &[u16], id: u16, area: u64) -> f64 {
@@ -30,10 +30,10 @@ fn main() -> anyhow::Result<()> {
         if !only.is_empty() && !only.contains(&name) {
             continue;
         }
-        let demo = sayso::demo::load_demo_scene(&directory, Some(&name))?;
+        let demo = sayso_render::demo::load_demo_scene(&directory, Some(&name))?;
         let prepared = prepare_loaded(demo.capture(), &classifier)?;
         let scene = prepared.scene.clone();
-        let notes: Vec<String> = sayso::evaluation::read_notes(&demo.directory)?
+        let notes: Vec<String> = sayso_lab::evaluation::read_notes(&demo.directory)?
             .into_iter()
             .take(2)
             .collect();
@@ -58,8 +58,8 @@ fn main() -> anyhow::Result<()> {
             seg_pixels[s as usize].push(p as u32);
         }
         let bo = objects_from_graph(&scene, &baseline.graph);
-        let cm = sayso::scenegraph::label_map(&scene, &report_cls);
-        let co = sayso::evaluation::objects_from_regions(scene.width() as usize, &cm.values);
+        let cm = sayso_core::scenegraph::label_map(&scene, &report_cls);
+        let co = sayso_lab::evaluation::objects_from_regions(scene.width() as usize, &cm.values);
         let ao = objects_from_graph(&scene, &last);
         println!(
             "== {name}: {} objects, {} segments; notes {:?}",
@@ -122,7 +122,7 @@ fn main() -> anyhow::Result<()> {
             } else {
                 "MIS"
             };
-            println!("  {tag} {:>3} {:<10} area {:>6} oracle {:.2} cls {:.2} base {:.2} after {:.2} size {:.2} bestany {:.2} {}", o.id, o.class, a, oi, cr, b, af, size, ai, taxonomy.class(sayso::ids::ClassId(ac)).map(|c| c.name.as_str()).unwrap_or("?"));
+            println!("  {tag} {:>3} {:<10} area {:>6} oracle {:.2} cls {:.2} base {:.2} after {:.2} size {:.2} bestany {:.2} {}", o.id, o.class, a, oi, cr, b, af, size, ai, taxonomy.class(sayso_core::ids::ClassId(ac)).map(|c| c.name.as_str()).unwrap_or("?"));
         }
     }
     println!("total {tot} reachable {reach} base {base} after {after}");

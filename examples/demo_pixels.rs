@@ -8,10 +8,10 @@
 //! and its evaluation only).
 use std::time::Instant;
 
-use sayso::demo::{demo_directory, list_demo_scenes};
-use sayso::pipeline::*;
-use sayso::scenegraph::label_map;
-use sayso::taxonomy::Taxonomy;
+use sayso_render::demo::{demo_directory, list_demo_scenes};
+use sayso_perception::pipeline::*;
+use sayso_core::scenegraph::label_map;
+use sayso_core::taxonomy::Taxonomy;
 
 fn correct_by_class(truth: &[u16], predicted: &[u16], classes: usize) -> (Vec<i64>, i64, i64) {
     let mut per_class = vec![0i64; classes];
@@ -53,11 +53,11 @@ fn main() -> anyhow::Result<()> {
             continue;
         }
         let started = Instant::now();
-        let demo = sayso::demo::load_demo_scene(&directory, Some(&name))?;
+        let demo = sayso_render::demo::load_demo_scene(&directory, Some(&name))?;
         let prepared = prepare_loaded(demo.capture(), &classifier)?;
         let prepare_seconds = started.elapsed().as_secs_f64();
         let scene = prepared.scene.clone();
-        let notes: Vec<String> = sayso::evaluation::read_notes(&demo.directory)?
+        let notes: Vec<String> = sayso_lab::evaluation::read_notes(&demo.directory)?
             .into_iter()
             .take(2)
             .collect();
@@ -125,13 +125,13 @@ fn main() -> anyhow::Result<()> {
                 .map(|(n, c)| {
                     format!(
                         "{n} -> {}",
-                        taxonomy.class_name(sayso::ids::ClassId(*c as u16))
+                        taxonomy.class_name(sayso_core::ids::ClassId(*c as u16))
                     )
                 })
                 .collect();
             println!(
                 "  {:<14} correct pixels classifier {:>6} no-note {:>6} after {:>6} ({:+}) lost: {}",
-                taxonomy.class_name(sayso::ids::ClassId(*class as u16)),
+                taxonomy.class_name(sayso_core::ids::ClassId(*class as u16)),
                 cls[*class],
                 base[*class],
                 after[*class],

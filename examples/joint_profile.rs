@@ -10,8 +10,8 @@ mod demo_turns;
 
 use std::time::Instant;
 
-use sayso::energy::JointEnergy;
-use sayso::solver::joint::{solve_joint, JointOptions, WarmStart};
+use sayso_core::energy::JointEnergy;
+use sayso_solver::joint::{solve_joint, JointOptions, WarmStart};
 
 fn main() {
     let arguments: Vec<String> = std::env::args().collect();

@@ -1,4 +1,4 @@
-//! How well a pointed pixel's grown region (`sayso::grounding::pointer`) covers the object pointed at, on
+//! How well a pointed pixel's grown region (`sayso_core::grounding::pointer`) covers the object pointed at, on
 //! training renders (seeds from 200000; never demo or trial seeds):
 //! `cargo run --release --example pointer_reach -- [renders] [edge dE] [region dE] [depth step]`.
 //! For every ground-truth object of at least 400 pixels (floor, walls and ceiling are not objects), the
@@ -6,12 +6,12 @@
 //! >= 0.5, and how often the region spills past twice the object's area.
 //!
 //! Owns: nothing the crate uses. Must not: read demo scenes or trial seeds.
-use sayso::grounding::pointer::pointed_region_with;
-use sayso::ids::SegmentId;
-use sayso::pipeline::superpixels_of;
-use sayso::taxonomy::Taxonomy;
-use sayso::trial::operator::deepest_pixel;
-use sayso::tuning::render_training_scene;
+use sayso_core::grounding::pointer::pointed_region_with;
+use sayso_core::ids::SegmentId;
+use sayso_perception::pipeline::superpixels_of;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::trial::operator::deepest_pixel;
+use sayso_lab::tuning::render_training_scene;
 
 fn main() -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();
@@ -21,23 +21,23 @@ fn main() -> anyhow::Result<()> {
         .get(1)
         .map(|s| s.parse())
         .transpose()?
-        .unwrap_or(sayso::grounding::pointer::EDGE_DELTA_E);
+        .unwrap_or(sayso_core::grounding::pointer::EDGE_DELTA_E);
     let region: f32 = args
         .get(2)
         .map(|s| s.parse())
         .transpose()?
-        .unwrap_or(sayso::grounding::pointer::REGION_DELTA_E);
+        .unwrap_or(sayso_core::grounding::pointer::REGION_DELTA_E);
     let depth: f32 = args
         .get(3)
         .map(|s| s.parse())
         .transpose()?
-        .unwrap_or(sayso::grounding::pointer::DEPTH_STEP);
+        .unwrap_or(sayso_core::grounding::pointer::DEPTH_STEP);
     let (mut objects, mut iou_sum, mut hits, mut spills) = (0u64, 0.0f64, 0u64, 0u64);
     for index in 0..count as usize {
         let truth = render_training_scene(&taxonomy, 200_000 + index as u64, index)?;
         let scene = superpixels_of(&truth.capture())?;
         let width = truth.labels.width as usize;
-        let max_area = truth.labels.values.len() as u64 / sayso::grounding::POINTER_MAX_SHARE;
+        let max_area = truth.labels.values.len() as u64 / sayso_core::grounding::POINTER_MAX_SHARE;
         for object in &truth.objects {
             if object.area < 400 {
                 continue;

@@ -1,15 +1,15 @@
 //! Object accuracy on training renders, for checking a change to how objects are formed:
 //! `cargo run --release --example render_objects -- [first seed, default 200000] [count, default 21]`.
 //! Per render: object accuracy of the classifier's label-map regions, of the scene graph solved with no
-//! note, and after the training notes (`sayso::tuning::training_notes`); mean IoU before and after; then the
-//! means. The figures quoted in `sayso::scenegraph::objects` come from this program.
+//! note, and after the training notes (`sayso_lab::tuning::training_notes`); mean IoU before and after; then the
+//! means. The figures quoted in `sayso_core::scenegraph::objects` come from this program.
 //!
 //! Owns: nothing the crate uses. Must not: read demo_scenes/ (the renders are training seeds only).
-use sayso::evaluation::{object_accuracy, objects_from_graph, objects_from_regions, score_labels};
-use sayso::pipeline::*;
-use sayso::scenegraph::label_map;
-use sayso::taxonomy::Taxonomy;
-use sayso::tuning::prepare_tuning_scenes;
+use sayso_lab::evaluation::{object_accuracy, objects_from_graph, objects_from_regions, score_labels};
+use sayso_perception::pipeline::*;
+use sayso_core::scenegraph::label_map;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::tuning::prepare_tuning_scenes;
 
 fn main() -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();

@@ -5,10 +5,10 @@
 //! Prints the reachable share over all objects and as a mean over scenes, and the scene-building time.
 //!
 //! Owns: nothing the crate uses. Must not: read demo scenes (settings are chosen on training renders).
-use sayso::scene::{Scene, SceneParams};
-use sayso::slic::SlicParams;
-use sayso::taxonomy::Taxonomy;
-use sayso::tuning::render_training_scene;
+use sayso_core::scene::{Scene, SceneParams};
+use sayso_core::slic::SlicParams;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::tuning::render_training_scene;
 use std::collections::HashMap;
 use std::time::Instant;
 

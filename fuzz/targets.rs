@@ -15,9 +15,9 @@
 use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
 
-use sayso::language::Grammar;
-use sayso::raster;
-use sayso::taxonomy::Taxonomy;
+use sayso_core::language::Grammar;
+use sayso_core::raster;
+use sayso_core::taxonomy::Taxonomy;
 
 /// The pixel limit the decoders are fuzzed under (a fuzzer's memory is small).
 pub const FUZZ_PIXEL_LIMIT: u64 = 1 << 20;
@@ -50,7 +50,7 @@ fn taxonomy() -> &'static Taxonomy {
 pub fn parser(data: &[u8]) {
     let text = String::from_utf8_lossy(data);
     let _ = grammar().parse(&text, None);
-    let _ = sayso::turn::words::command(&text);
+    let _ = sayso_core::turn::words::command(&text);
 }
 
 /// A colour image (PNG or JPEG, told apart by content) and an index or depth PNG.
@@ -72,7 +72,7 @@ pub fn image(data: &[u8]) {
 
 /// Per-pixel scores as NPY bytes.
 pub fn npy(data: &[u8]) {
-    if let Ok(array) = sayso::unaries::byo_npy::parse_npy(data) {
+    if let Ok(array) = sayso_perception::unaries::byo_npy::parse_npy(data) {
         assert_eq!(
             array.values.len(),
             array.values.shape().iter().product::<usize>()
@@ -84,16 +84,16 @@ pub fn npy(data: &[u8]) {
 pub fn label_map(data: &[u8]) {
     if let Ok(labels) = raster::decode_index_png(data, Path::new("fuzz"), FUZZ_PIXEL_LIMIT) {
         let classes = taxonomy().classes().len();
-        let _ = sayso::unaries::byo_label_map::label_map_probabilities(&labels, None, classes);
+        let _ = sayso_perception::unaries::byo_label_map::label_map_probabilities(&labels, None, classes);
     }
-    let _ = sayso::unaries::perception::read_class_list(&String::from_utf8_lossy(data));
+    let _ = sayso_perception::unaries::perception::read_class_list(&String::from_utf8_lossy(data));
 }
 
 /// Detections as JSON Lines on a 64 x 48 image.
 pub fn detections(data: &[u8]) {
-    let synonyms = sayso::unaries::byo::SynonymTable::embedded(taxonomy());
+    let synonyms = sayso_perception::unaries::byo::SynonymTable::embedded(taxonomy());
     let text = String::from_utf8_lossy(data);
-    let _ = sayso::unaries::byo_detections::parse_detections(
+    let _ = sayso_perception::unaries::byo_detections::parse_detections(
         &text,
         None,
         64,
@@ -119,7 +119,7 @@ pub fn scene_loader(data: &[u8]) {
             let _ = std::fs::remove_file(&camera);
         }
     }
-    let _ = sayso::scene::capture::load_capture(&directory, FUZZ_PIXEL_LIMIT);
+    let _ = sayso_core::scene::capture::load_capture(&directory, FUZZ_PIXEL_LIMIT);
 }
 
 /// This thread's scene directory, with an 8 x 6 image and depth map written once.
@@ -148,17 +148,17 @@ fn scene_directory() -> PathBuf {
 
 /// The service's request bodies and the field-notes file.
 pub fn wire_json(data: &[u8]) {
-    use sayso::wire::{
+    use sayso_wire::{
         FocusIn, OpenConversationRequest, PageQuery, RegisterSceneRequest, UtteranceRequest,
     };
     if let Ok(request) = serde_json::from_slice::<RegisterSceneRequest>(data) {
-        let _ = sayso::session::SceneUpload::from_request(request);
+        let _ = sayso_session::SceneUpload::from_request(request);
     }
     if let Ok(request) = serde_json::from_slice::<UtteranceRequest>(data) {
-        let _ = sayso::session::check_utterance_text(&request.text);
+        let _ = sayso_session::check_utterance_text(&request.text);
     }
     let _ = serde_json::from_slice::<OpenConversationRequest>(data);
     let _ = serde_json::from_slice::<FocusIn>(data);
     let _ = serde_json::from_slice::<PageQuery>(data);
-    let _ = sayso::session::field_notes::parse_note_bytes(data);
+    let _ = sayso_session::field_notes::parse_note_bytes(data);
 }

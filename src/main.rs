@@ -44,7 +44,7 @@ fn main() {
     // `-v` shows sayso's own debug lines (stage timings and sizes), not those of the libraries it uses.
     let filter = tracing_subscriber::EnvFilter::try_from_env("SAYSO_LOG").unwrap_or_else(|_| {
         tracing_subscriber::EnvFilter::new(if arguments.verbose {
-            "warn,sayso=debug"
+            "warn,sayso=debug,sayso_solver=debug,sayso_core=debug,sayso_perception=debug,sayso_render=debug,sayso_lab=debug,sayso_correction_log=debug,sayso_session=debug,sayso_service=debug"
         } else {
             "warn"
         })

@@ -2,7 +2,7 @@
 
 use std::process::Command;
 
-use sayso::raster::{read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::raster::{read_rgb_png, DEFAULT_PIXEL_LIMIT};
 
 fn sayso() -> Command {
     Command::new(env!("CARGO_BIN_EXE_sayso"))

@@ -8,12 +8,12 @@
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use sayso::features::{FEATURE_COUNT, FEATURE_LAYOUT_VERSION};
-use sayso::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
-use sayso::unaries::mlp::seeded_random_mlp;
-use sayso::unaries::onnx_writer::encode_model;
+use sayso_core::features::{FEATURE_COUNT, FEATURE_LAYOUT_VERSION};
+use sayso_core::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use sayso_perception::unaries::mlp::seeded_random_mlp;
+use sayso_perception::unaries::onnx_writer::encode_model;
 
 fn sayso() -> Command {
     Command::new(env!("CARGO_BIN_EXE_sayso"))

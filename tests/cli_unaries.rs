@@ -7,11 +7,11 @@
 use std::path::Path;
 use std::process::Command;
 
-use sayso::raster::{write_index_png, IndexImage};
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::byo_npy::encode_npy_f32;
-use sayso::unaries::contract::FeatureLayout;
-use sayso::unaries::Classifier;
+use sayso_core::raster::{write_index_png, IndexImage};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::byo_npy::encode_npy_f32;
+use sayso_perception::unaries::contract::FeatureLayout;
+use sayso_perception::unaries::Classifier;
 
 fn sayso() -> Command {
     Command::new(env!("CARGO_BIN_EXE_sayso"))
@@ -90,7 +90,7 @@ fn unaries_from_a_label_map_and_a_refused_npy() {
         "{}",
         String::from_utf8_lossy(&result.stderr)
     );
-    let unaries: sayso::unaries::Unaries =
+    let unaries: sayso_perception::unaries::Unaries =
         serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap();
     assert_eq!(unaries.segment_count(), 3);
     let best = |segment: usize| {

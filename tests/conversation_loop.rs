@@ -1,4 +1,4 @@
-//! The conversation loop on real demo scenes, through the one turn path (`sayso::turn`) that the command
+//! The conversation loop on real demo scenes, through the one turn path (`sayso_core::turn`) that the command
 //! line and the service share: a question names the scene graph's own objects and can be answered by
 //! position, id or pointing; "undo", "redo", "yes", "no" and "no, the other one" work in words; a held
 //! safety change survives later notes until confirmed; and every count or presence in force after a note
@@ -9,13 +9,13 @@
 
 use std::sync::OnceLock;
 
-use sayso::ids::ClassId;
-use sayso::language::constraint::{ConstraintKind, Count, Focus};
-use sayso::pipeline::{load_classifier, model_path, prepare_scene, PreparedScene, SceneSource};
-use sayso::scenegraph::SceneGraph;
-use sayso::taxonomy::Taxonomy;
-use sayso::turn::dialogue::{Dialogue, Status};
-use sayso::turn::{CorrectionSettings, TurnInputs};
+use sayso_core::ids::ClassId;
+use sayso_core::language::constraint::{ConstraintKind, Count, Focus};
+use sayso_perception::pipeline::{load_classifier, model_path, prepare_scene, PreparedScene, SceneSource};
+use sayso_core::scenegraph::SceneGraph;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_core::turn::dialogue::{Dialogue, Status};
+use sayso_core::turn::{CorrectionSettings, TurnInputs};
 
 fn settings() -> &'static CorrectionSettings {
     static SETTINGS: OnceLock<CorrectionSettings> = OnceLock::new();
@@ -26,7 +26,7 @@ fn prepared(name: &str) -> PreparedScene {
     let taxonomy = Taxonomy::embedded();
     let classifier = load_classifier(&model_path(None), &taxonomy).expect("classifier");
     let source = SceneSource::Demo {
-        directory: sayso::demo::demo_directory(None),
+        directory: sayso_render::demo::demo_directory(None),
         name: Some(name.to_string()),
     };
     prepare_scene(&source, &classifier).expect("demo scene")
@@ -387,19 +387,19 @@ mod service {
     use std::path::Path;
     use std::sync::Arc;
 
-    use sayso::correction_log::{ConversationKey, SceneKey};
-    use sayso::session::JointCorrector;
-    use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
-    use sayso::wire::{TurnStatus, UtteranceReply};
+    use sayso_correction_log::{ConversationKey, SceneKey};
+    use sayso_session::JointCorrector;
+    use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};
+    use sayso_wire::{TurnStatus, UtteranceReply};
 
     fn open(data: &Path) -> Coordinator {
-        let engine = JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier");
+        let engine = JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier");
         Coordinator::open(
             Arc::new(engine),
             &CoordinatorSettings {
                 log_path: data.join("corrections.sqlite"),
-                pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
-                demo_dir: sayso::demo::demo_directory(None),
+                pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
+                demo_dir: sayso_render::demo::demo_directory(None),
             },
         )
         .expect("open")

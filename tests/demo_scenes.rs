@@ -3,10 +3,10 @@
 
 use std::path::Path;
 
-use sayso::demo::{list_demo_scenes, load_demo_scene, COMPILED_DEMO_DIR};
-use sayso::render::catalogue::{demo_entry, DEMO_SCENES, DEMO_SEEDS};
-use sayso::render::{render_scene, writer};
-use sayso::taxonomy::{Taxonomy, UNLABELLED};
+use sayso_render::demo::{list_demo_scenes, load_demo_scene, COMPILED_DEMO_DIR};
+use sayso_render::catalogue::{demo_entry, DEMO_SCENES, DEMO_SEEDS};
+use sayso_render::{render_scene, writer};
+use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
 
 fn demo_dir() -> &'static Path {
     Path::new(COMPILED_DEMO_DIR)
@@ -37,7 +37,7 @@ fn rerendering_a_demo_scene_gives_the_committed_bytes() {
     }
 }
 
-fn load_all() -> Vec<sayso::demo::DemoScene> {
+fn load_all() -> Vec<sayso_render::demo::DemoScene> {
     let names = list_demo_scenes(demo_dir()).unwrap();
     names
         .iter()
@@ -72,7 +72,7 @@ fn labels_hold_only_taxonomy_ids_and_objects_agree_with_instances() {
                 );
                 if instance == 0 {
                     let label = scene.labels.get(x, y);
-                    let name = taxonomy.class_name(sayso::ids::ClassId(label));
+                    let name = taxonomy.class_name(sayso_core::ids::ClassId(label));
                     assert!(
                         ["floor", "wall", "ceiling"].contains(&name),
                         "{}: background pixel labelled {name}",
@@ -193,7 +193,7 @@ fn demo_set_covers_the_taxonomy_rooms_and_hard_cases() {
     assert!(together("mug", &["vase"]));
     assert!(together("pillow", &["cat", "dog"]));
     // Rug versus floor: in some scene a rug's mean colour is within 12 CIE76 units of the floor's.
-    let mean_lab = |scene: &sayso::demo::DemoScene, class: u16| {
+    let mean_lab = |scene: &sayso_render::demo::DemoScene, class: u16| {
         let mut sum = [0.0f64; 3];
         let mut count = 0.0f64;
         for (pixel, &label) in scene.image.pixels.iter().zip(&scene.labels.values) {
@@ -205,7 +205,7 @@ fn demo_set_covers_the_taxonomy_rooms_and_hard_cases() {
             }
         }
         let mean = sum.map(|total| (total / count.max(1.0)).round() as u8);
-        sayso::color::srgb8_to_lab(mean)
+        sayso_core::color::srgb8_to_lab(mean)
     };
     let rug = taxonomy.class_by_name("rug").unwrap().id.0;
     let floor = taxonomy.class_by_name("floor").unwrap().id.0;
@@ -338,7 +338,7 @@ fn pillow_decodes_the_committed_files_to_the_same_numbers() {
 /// reported as contradicted when the move is switched off, 1880.5 with the move; measured 2026-12-03).
 #[test]
 fn an_absent_note_drops_a_class_its_own_hypotheses_hold_up() {
-    use sayso::pipeline::{
+    use sayso_perception::pipeline::{
         correct_prepared, load_classifier, model_path, prepare_scene, CorrectionSettings,
         SceneSource,
     };

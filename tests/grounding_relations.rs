@@ -1,5 +1,5 @@
 //! "Next to" a landmark whose box encloses the subject (a wall behind a cabinet, a rug around a chair):
-//! boxes cannot tell whether the two touch, so `sayso::grounding::relation_holds` asks the segment
+//! boxes cannot tell whether the two touch, so `sayso_core::grounding::relation_holds` asks the segment
 //! adjacency graph and the segments' depths.
 
 mod common;
@@ -7,10 +7,10 @@ mod common;
 use std::sync::Arc;
 
 use common::grid_scene::{grid_scene, Cell};
-use sayso::grounding::relation_holds;
-use sayso::ids::SegmentId;
-use sayso::language::constraint::Relation;
-use sayso::scene::Scene;
+use sayso_core::grounding::relation_holds;
+use sayso_core::ids::SegmentId;
+use sayso_core::language::constraint::Relation;
+use sayso_core::scene::Scene;
 
 /// A 5x5 grid of 10-pixel cells: the border ring (16 cells), the inner ring (8 cells), the centre cell.
 fn rings() -> Scene {
@@ -103,15 +103,15 @@ fn touching_in_the_picture_at_very_different_depths_is_not_next_to() {
 
 mod grounding_a_sentence {
     use super::*;
-    use sayso::grounding::{
+    use sayso_core::grounding::{
         ground, GroundedKind, Grounding, GroundingContext, GroundingIssue, SceneView,
     };
-    use sayso::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
-    use sayso::ids::ClassId;
-    use sayso::language::constraint::Constraint;
-    use sayso::language::Grammar;
-    use sayso::scene::BoundingBox;
-    use sayso::taxonomy::Taxonomy;
+    use sayso_core::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
+    use sayso_core::ids::ClassId;
+    use sayso_core::language::constraint::Constraint;
+    use sayso_core::language::Grammar;
+    use sayso_core::scene::BoundingBox;
+    use sayso_core::taxonomy::Taxonomy;
 
     fn hypothesis(class: ClassId, members: &[u32]) -> Hypothesis {
         let members = segments(members);
@@ -186,7 +186,7 @@ mod grounding_a_sentence {
 fn the_scene_graphs_measured_test_agrees_with_relation_holds_on_every_pair() {
     // The scene graph measures every object's footprint once and calls `relation_holds_measured`; it must
     // answer as grounding and the energy do.
-    use sayso::grounding::{footprint_of, relation_holds_measured};
+    use sayso_core::grounding::{footprint_of, relation_holds_measured};
     let scene = rings();
     let mut border_and_inner = segments(&BORDER);
     border_and_inner.extend(segments(&INNER));
@@ -202,7 +202,7 @@ fn the_scene_graphs_measured_test_agrees_with_relation_holds_on_every_pair() {
     let mut next_to_by_masks = 0;
     for subject in &sets {
         for landmark in &sets {
-            for relation in sayso::scenegraph::REPORTED_RELATIONS {
+            for relation in sayso_core::scenegraph::REPORTED_RELATIONS {
                 let whole = relation_holds(&scene, relation, subject, &[landmark.as_slice()]);
                 let measured = relation_holds_measured(
                     &scene,

@@ -12,7 +12,7 @@ use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex};
 
-use sayso::raster::{self, RasterError, RgbImage};
+use sayso_core::raster::{self, RasterError, RgbImage};
 
 struct Counting;
 
@@ -169,8 +169,8 @@ fn a_registration_holds_a_bounded_number_of_bytes_per_pixel() {
     let _one = MEASURING
         .lock()
         .unwrap_or_else(|poisoned| poisoned.into_inner());
-    use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
-    use sayso::session::{Coordinator, CoordinatorSettings, JointCorrector, SceneUpload};
+    use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
+    use sayso_session::{Coordinator, CoordinatorSettings, JointCorrector, SceneUpload};
     let data = tempfile::tempdir().unwrap();
     let settings = CorrectionSettings::embedded().unwrap();
     let classifier = load_classifier(&model_path(None), settings.grammar.taxonomy()).unwrap();

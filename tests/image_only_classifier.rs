@@ -13,11 +13,11 @@ use std::sync::Arc;
 
 use axum::body::Body;
 use axum::http::{Request, StatusCode};
-use sayso::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
-use sayso::render::writer::write_scene;
-use sayso::render::{render_scene, SceneRequest, ROOM_TYPES};
-use sayso::taxonomy::{Taxonomy, UNLABELLED};
-use sayso::unaries::UnarySource;
+use sayso_core::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
+use sayso_render::writer::write_scene;
+use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
+use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
+use sayso_perception::unaries::UnarySource;
 use tower::ServiceExt;
 
 /// Held-out renders as `sayso render --seed 500000 --count 2` writes them (room types in turn).
@@ -82,9 +82,9 @@ fn fix_labels(scene: &Path) -> (IndexImage, String) {
 }
 
 fn service() -> (tempfile::TempDir, axum::Router) {
-    use sayso::config::ServiceConfig;
-    use sayso::pipeline::model_path;
-    use sayso::session::{Coordinator, CoordinatorSettings, JointCorrector};
+    use sayso_session::config::ServiceConfig;
+    use sayso_perception::pipeline::model_path;
+    use sayso_session::{Coordinator, CoordinatorSettings, JointCorrector};
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {
         data_dir: data.path().to_path_buf(),
@@ -99,7 +99,7 @@ fn service() -> (tempfile::TempDir, axum::Router) {
         },
     )
     .unwrap();
-    let app = sayso::service::app(sayso::service::AppState::new(Arc::new(coordinator), config));
+    let app = sayso_service::app(sayso_service::AppState::new(Arc::new(coordinator), config));
     (data, app)
 }
 
@@ -196,8 +196,8 @@ async fn an_image_without_depth_is_labelled_well_and_alike_by_fix_and_the_servic
 
 #[test]
 fn the_image_only_model_scores_scenes_without_depth_and_only_the_built_in_pair_has_one() {
-    use sayso::pipeline::{load_classifier, model_path, prepare_loaded};
-    use sayso::scene::load_capture;
+    use sayso_perception::pipeline::{load_classifier, model_path, prepare_loaded};
+    use sayso_core::scene::load_capture;
     let taxonomy = Taxonomy::embedded();
     let classifier = load_classifier(&model_path(None), &taxonomy).unwrap();
     assert!(classifier.image_only().is_some());

@@ -10,20 +10,20 @@ mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use common::turns::{constraint, turn, Stage};
-use sayso::energy::build::{EnergyWeights, RoomClassPrior};
-use sayso::grounding::{GroundingContext, GroundingIssue, KnownObject};
-use sayso::hypotheses::ProposalOptions;
-use sayso::ids::{ClassId, ObjectId};
-use sayso::language::constraint::{
+use sayso_core::energy::build::{EnergyWeights, RoomClassPrior};
+use sayso_core::grounding::{GroundingContext, GroundingIssue, KnownObject};
+use sayso_core::hypotheses::ProposalOptions;
+use sayso_core::ids::{ClassId, ObjectId};
+use sayso_core::language::constraint::{
     Constraint, ConstraintKind, Count, Deixis, Focus, ImageRegion, Referent, Span,
 };
-use sayso::scene::Scene;
-use sayso::scenegraph::changes::{ChangeKind, ChangeStatus};
-use sayso::scenegraph::instances::InstanceCuts;
-use sayso::solver::joint::JointOptions;
-use sayso::taxonomy::Taxonomy;
-use sayso::turn::solve::{correct, Correction, CorrectionRequest};
-use sayso::unaries::Unaries;
+use sayso_core::scene::Scene;
+use sayso_core::scenegraph::changes::{ChangeKind, ChangeStatus};
+use sayso_core::scenegraph::instances::InstanceCuts;
+use sayso_solver::joint::JointOptions;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_core::turn::solve::{correct, Correction, CorrectionRequest};
+use sayso_perception::unaries::Unaries;
 
 const COLUMNS: u32 = 8;
 const ROWS: u32 = 6;
@@ -150,7 +150,7 @@ fn the_committed_prior_is_counted_from_training_renders() {
     // documented smoothing of the counts stored beside them, over training renders only.
     let taxonomy = Taxonomy::embedded();
     let prior = RoomClassPrior::embedded().unwrap();
-    assert_eq!(prior.schema, sayso::energy::build::PRIOR_SCHEMA);
+    assert_eq!(prior.schema, sayso_core::energy::build::PRIOR_SCHEMA);
     assert_eq!(prior.room_count, taxonomy.rooms().len());
     assert_eq!(prior.class_count, taxonomy.class_count());
     let counts = prior
@@ -355,7 +355,7 @@ fn bad_references_are_typed_issues_and_nothing_panics() {
         }),
         objects: vec![KnownObject {
             id: ObjectId(1),
-            hypothesis: sayso::ids::HypothesisId(1),
+            hypothesis: sayso_core::ids::HypothesisId(1),
             class: None,
             members: Vec::new(),
         }],
@@ -467,11 +467,11 @@ fn the_same_turn_gives_the_same_bytes() {
         serde_json::to_vec(&first).unwrap(),
         serde_json::to_vec(&second).unwrap()
     );
-    let map = sayso::scenegraph::label_map(&kitchen.scene, &first.graph.segment_labels);
+    let map = sayso_core::scenegraph::label_map(&kitchen.scene, &first.graph.segment_labels);
     assert_eq!(map.values.len(), 80 * 60);
-    let png = sayso::raster::encode_index_png(&map).unwrap();
+    let png = sayso_core::raster::encode_index_png(&map).unwrap();
     let decoded =
-        sayso::raster::decode_index_png(&png, std::path::Path::new("map.png"), 1 << 20).unwrap();
+        sayso_core::raster::decode_index_png(&png, std::path::Path::new("map.png"), 1 << 20).unwrap();
     assert_eq!(decoded.values, map.values);
     for object in &first.graph.objects {
         let mask = object.mask.decode();
@@ -503,15 +503,15 @@ fn nan_unaries_and_empty_energies_are_typed_errors() {
     let error = correct(&request).unwrap_err().to_string();
     assert!(error.contains("segment 3 class 2"), "{error}");
 
-    let empty: sayso::energy::JointEnergy = serde_json::from_str(
+    let empty: sayso_core::energy::JointEnergy = serde_json::from_str(
         r#"{"schema":1,"label_count":2,"fine_count":0,"node_count":0,"unary":[],"edges":[],"hypotheses":[],
             "room_count":1,"room_cost":[0.0],"presence_cost":[0.0,0.0]}"#,
     )
     .unwrap();
     assert!(matches!(
-        sayso::solver::joint::solve_joint(&empty, None, &JointOptions::default()),
-        Err(sayso::solver::joint::JointError::Energy(
-            sayso::energy::EnergyError::NoSegments
+        sayso_solver::joint::solve_joint(&empty, None, &JointOptions::default()),
+        Err(sayso_solver::joint::JointError::Energy(
+            sayso_core::energy::EnergyError::NoSegments
         ))
     ));
 }

@@ -9,7 +9,7 @@
 #[path = "../benches/support/demo_turns.rs"]
 mod demo_turns;
 
-use sayso::solver::joint::solve_joint;
+use sayso_solver::joint::solve_joint;
 
 /// The fixture's solved energies are printed to six decimals.
 const PRINTED: f64 = 1e-6;

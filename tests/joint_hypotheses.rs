@@ -2,21 +2,21 @@
 //! wider proposals for named classes, one object per segment within a class, and typed errors for inputs
 //! that do not fit.
 //!
-//! Owns: checks of `sayso::hypotheses` through its public API.
+//! Owns: checks of `sayso_core::hypotheses` through its public API.
 //! Must not: depend on the solver; it only inspects the hypothesis list.
 
 mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
-use sayso::hypotheses::{
+use sayso_core::hypotheses::{
     build_hypotheses, hypothesis_id, propose_named, Detection, HypothesisError, HypothesisOrigin,
     ProposalOptions,
 };
-use sayso::ids::{ClassId, SegmentId};
-use sayso::scene::BoundingBox;
+use sayso_core::ids::{ClassId, SegmentId};
+use sayso_core::scene::BoundingBox;
 
 /// A 4 x 2 strip of the Juniper Lane hallway: shoes (ranked second to bags) on the left, a rug on the right.
-fn hallway() -> (sayso::scene::Scene, sayso::unaries::Unaries) {
+fn hallway() -> (sayso_core::scene::Scene, sayso_perception::unaries::Unaries) {
     let (shoe, bag, rug) = (31u16, 30u16, 6u16);
     let mut cells = Vec::new();
     for index in 0..8 {
@@ -76,7 +76,7 @@ fn ids_do_not_depend_on_the_order_detections_arrive_in() {
     let one = build_hypotheses(&scene, &unaries, &forward, &ProposalOptions::default()).unwrap();
     let two = build_hypotheses(&scene, &unaries, &backward, &ProposalOptions::default()).unwrap();
     let ids =
-        |list: &[sayso::hypotheses::Hypothesis]| list.iter().map(|h| h.id).collect::<Vec<_>>();
+        |list: &[sayso_core::hypotheses::Hypothesis]| list.iter().map(|h| h.id).collect::<Vec<_>>();
     assert_eq!(ids(&one), ids(&two));
     let from_detection = one
         .iter()
@@ -130,7 +130,7 @@ fn inputs_that_do_not_fit_are_typed_errors() {
 /// A 4 x 2 strip of the Juniper Lane study: a desk ranked third (after chair and table) on the left two
 /// columns and fourth on the right two, where a chair is ranked first everywhere and the desk second in
 /// one right-hand cell only.
-fn study() -> (sayso::scene::Scene, sayso::unaries::Unaries) {
+fn study() -> (sayso_core::scene::Scene, sayso_perception::unaries::Unaries) {
     let (table, chair, desk, rug) = (7u16, 8u16, 14u16, 6u16);
     let mut cells = Vec::new();
     for index in 0..8 {

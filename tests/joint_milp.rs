@@ -4,8 +4,8 @@
 //! which linearises the energy exactly and solves it with scipy.optimize.milp / HiGHS) and comparing.
 //! Must not: reach into solver internals; it calls the public `solve_joint` on the serialised energy.
 
-use sayso::energy::JointEnergy;
-use sayso::solver::joint::{solve_joint, JointOptions, JointSolution};
+use sayso_core::energy::JointEnergy;
+use sayso_solver::joint::{solve_joint, JointOptions, JointSolution};
 
 #[derive(serde::Deserialize)]
 struct Instance {
@@ -118,7 +118,7 @@ fn warm_start_from_the_solution_keeps_its_energy() {
     let options = JointOptions::default();
     for instance in instances.iter().take(30) {
         let cold = solve_joint(&instance.energy, None, &options).unwrap();
-        let warm = sayso::solver::joint::WarmStart {
+        let warm = sayso_solver::joint::WarmStart {
             state: cold.state.clone(),
             multipliers: Some(cold.multipliers.clone()),
         };
@@ -170,7 +170,7 @@ fn warm_start_from_perturbed(options: &JointOptions) {
     meets_the_optimality_criteria("warm", &instances, |index, instance| {
         let previous = solve_joint(&perturbed(&instance.energy, index as u64), None, options)
             .expect("valid perturbed instance");
-        let warm = sayso::solver::joint::WarmStart {
+        let warm = sayso_solver::joint::WarmStart {
             state: previous.state.clone(),
             multipliers: Some(previous.multipliers.clone()),
         };
@@ -189,14 +189,14 @@ fn warm_start_from_perturbed(options: &JointOptions) {
 /// in `tests/demo_scenes.rs`.)
 #[test]
 fn a_class_held_up_by_its_own_hypothesis_is_dropped_when_the_operator_says_it_is_absent() {
-    use sayso::energy::{AbsentFactor, HypothesisTerm, JointState};
+    use sayso_core::energy::{AbsentFactor, HypothesisTerm, JointState};
     let segments = 300usize;
     let mut unary = Vec::new();
     for _ in 0..segments {
         unary.extend_from_slice(&[1.0, 0.0]); // wall, door
     }
     let energy = JointEnergy {
-        schema: sayso::energy::ENERGY_SCHEMA,
+        schema: sayso_core::energy::ENERGY_SCHEMA,
         label_count: 2,
         fine_count: segments,
         node_count: segments,
@@ -241,7 +241,7 @@ fn a_class_held_up_by_its_own_hypothesis_is_dropped_when_the_operator_says_it_is
             ..JointOptions::default()
         },
     ] {
-        let warm = sayso::solver::joint::WarmStart {
+        let warm = sayso_solver::joint::WarmStart {
             state: door.clone(),
             multipliers: None,
         };

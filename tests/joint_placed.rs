@@ -2,8 +2,8 @@
 //! Lane flat: an object the classifier took for something else is found where the operator placed it,
 //! and a relation is measured against a landmark the solver drew as several hypotheses.
 //!
-//! Owns: checks of the placed proposals (`sayso::hypotheses::related`), the shown extents
-//! (`sayso::grounding::Extents`), the full drawing of a placed subject, and a change list that reports
+//! Owns: checks of the placed proposals (`sayso_core::hypotheses::related`), the shown extents
+//! (`sayso_core::grounding::Extents`), the full drawing of a placed subject, and a change list that reports
 //! only what the picture shows changed, through the public API.
 //! Must not: depend on the committed models; scenes and unaries are built by hand.
 
@@ -11,16 +11,16 @@ mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use common::turns::{constraint, turn, Stage};
-use sayso::grounding::{GroundingContext, KnownObject};
-use sayso::hypotheses::{build_hypotheses, propose_named, HypothesisOrigin, ProposalOptions};
-use sayso::ids::{ClassId, SegmentId};
-use sayso::language::constraint::{Constraint, ConstraintKind, Count, Referent, Relation, Span};
-use sayso::scene::Scene;
-use sayso::scenegraph::changes::ChangeKind;
-use sayso::scenegraph::instances::InstanceCuts;
-use sayso::taxonomy::Taxonomy;
-use sayso::turn::solve::Correction;
-use sayso::unaries::Unaries;
+use sayso_core::grounding::{GroundingContext, KnownObject};
+use sayso_core::hypotheses::{build_hypotheses, propose_named, HypothesisOrigin, ProposalOptions};
+use sayso_core::ids::{ClassId, SegmentId};
+use sayso_core::language::constraint::{Constraint, ConstraintKind, Count, Referent, Relation, Span};
+use sayso_core::scene::Scene;
+use sayso_core::scenegraph::changes::ChangeKind;
+use sayso_core::scenegraph::instances::InstanceCuts;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_core::turn::solve::Correction;
+use sayso_perception::unaries::Unaries;
 
 const COLUMNS: u32 = 8;
 const ROWS: u32 = 7;

@@ -10,17 +10,17 @@ mod common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use common::turns::{constraint, turn, Stage};
-use sayso::grounding::GroundingContext;
-use sayso::ids::ClassId;
-use sayso::language::constraint::{
+use sayso_core::grounding::GroundingContext;
+use sayso_core::ids::ClassId;
+use sayso_core::language::constraint::{
     Constraint, ConstraintKind, Count, Deixis, Focus, Referent, Span,
 };
-use sayso::language::Grammar;
-use sayso::scene::Scene;
-use sayso::scenegraph::instances::InstanceCuts;
-use sayso::taxonomy::Taxonomy;
-use sayso::turn::solve::Correction;
-use sayso::unaries::Unaries;
+use sayso_core::language::Grammar;
+use sayso_core::scene::Scene;
+use sayso_core::scenegraph::instances::InstanceCuts;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_core::turn::solve::Correction;
+use sayso_perception::unaries::Unaries;
 
 const CELL: u32 = 32;
 

@@ -14,8 +14,8 @@ use std::sync::Arc;
 
 use axum::body::Body;
 use axum::http::{Request, StatusCode};
-use sayso::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
-use sayso::taxonomy::Taxonomy;
+use sayso_core::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
+use sayso_core::taxonomy::Taxonomy;
 use tower::ServiceExt;
 
 const FIXTURES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/perception");
@@ -158,9 +158,9 @@ fn fix_runs_a_user_model_from_its_config_file() {
 fn detections_come_as_json_lines_and_a_bad_line_is_named() {
     let taxonomy = Taxonomy::embedded();
     let capture =
-        sayso::raster::read_rgb_image(&fixture("corner.png"), DEFAULT_PIXEL_LIMIT).unwrap();
-    let synonyms = sayso::unaries::byo::SynonymTable::embedded(&taxonomy);
-    let detections = sayso::unaries::byo_detections::parse_detections(
+        sayso_core::raster::read_rgb_image(&fixture("corner.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let synonyms = sayso_perception::unaries::byo::SynonymTable::embedded(&taxonomy);
+    let detections = sayso_perception::unaries::byo_detections::parse_detections(
         &std::fs::read_to_string(fixture("corner_detections.jsonl")).unwrap(),
         Some(Path::new(FIXTURES)),
         capture.width,
@@ -191,7 +191,7 @@ fn detections_come_as_json_lines_and_a_bad_line_is_named() {
     // model trained with depth labels such images poorly.
     let mine = tempfile::tempdir().unwrap();
     let model = mine.path().join("mine.onnx");
-    std::fs::copy(sayso::pipeline::model_path(None), &model).unwrap();
+    std::fs::copy(sayso_perception::pipeline::model_path(None), &model).unwrap();
     let alone = fix(
         &[
             "--detections",
@@ -423,10 +423,10 @@ fn router_with(
     body_limit_bytes: usize,
     user_model: Option<&Path>,
 ) -> (tempfile::TempDir, axum::Router) {
-    use sayso::config::ServiceConfig;
-    use sayso::pipeline::model_path;
-    use sayso::session::JointCorrector;
-    use sayso::session::{Coordinator, CoordinatorSettings};
+    use sayso_session::config::ServiceConfig;
+    use sayso_perception::pipeline::model_path;
+    use sayso_session::JointCorrector;
+    use sayso_session::{Coordinator, CoordinatorSettings};
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {
         data_dir: data.path().to_path_buf(),
@@ -443,10 +443,10 @@ fn router_with(
     )
     .unwrap();
     if let Some(path) = user_model {
-        let model = sayso::unaries::byo_user_model::UserModel::load(path).unwrap();
+        let model = sayso_perception::unaries::byo_user_model::UserModel::load(path).unwrap();
         coordinator = coordinator.with_user_model(Arc::new(model));
     }
-    let app = sayso::service::app(sayso::service::AppState::new(Arc::new(coordinator), config));
+    let app = sayso_service::app(sayso_service::AppState::new(Arc::new(coordinator), config));
     (data, app)
 }
 

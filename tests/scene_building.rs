@@ -6,14 +6,14 @@
 
 use std::path::{Path, PathBuf};
 
-use sayso::features::{column, feature_names, segment_features, FEATURE_COUNT};
-use sayso::raster::{
+use sayso_core::features::{column, feature_names, segment_features, FEATURE_COUNT};
+use sayso_core::raster::{
     encode_rgb_png, read_rgb_png, write_depth_png, write_index_png, write_rgb_png, DepthImage,
     IndexImage, RasterError, RgbImage, DEFAULT_PIXEL_LIMIT,
 };
-use sayso::scene::{load_label_map, load_scene_dir, Scene, SceneError, SceneParams};
-use sayso::slic::SlicParams;
-use sayso::taxonomy::Taxonomy;
+use sayso_core::scene::{load_label_map, load_scene_dir, Scene, SceneError, SceneParams};
+use sayso_core::slic::SlicParams;
+use sayso_core::taxonomy::Taxonomy;
 
 /// A small room-like picture of our own: a wall, a floor, a dark cabinet and a bright mug.
 fn small_room(width: u32, height: u32) -> RgbImage {
@@ -57,7 +57,7 @@ fn statistics_adjacency_and_coarse_level_are_consistent() {
     let (width, height) = (scene.width() as usize, scene.height() as usize);
     let count = scene.segment_count();
     // SLIC lands within ~15% of the requested count on this picture.
-    let target = sayso::scene::SCENE_SEGMENTS as usize;
+    let target = sayso_core::scene::SCENE_SEGMENTS as usize;
     assert!(
         (target * 85 / 100..=target * 115 / 100).contains(&count),
         "{count} segments for {target} requested"
@@ -524,8 +524,8 @@ fn the_segment_count_scales_with_the_image_area() {
     );
 
     // On a real small image the pipeline's superpixels are about as many as the rule asks, not 2400.
-    let capture = sayso::scene::Capture::from_image("small room", small_room(96, 72));
-    let scene = sayso::pipeline::superpixels_of(&capture).unwrap();
+    let capture = sayso_core::scene::Capture::from_image("small room", small_room(96, 72));
+    let scene = sayso_perception::pipeline::superpixels_of(&capture).unwrap();
     let count = scene.segment_count();
     assert!((40..=70).contains(&count), "{count} segments on 96x72");
 }

@@ -2,7 +2,7 @@
 //! through `sayso fix` and through the service; the JPEG decoder checked against a reference decoding; the
 //! capture loader's refusals.
 //!
-//! Owns: checks that the correction path reads only the capture (`sayso::scene::capture`).
+//! Owns: checks that the correction path reads only the capture (`sayso_core::scene::capture`).
 //! Must not: judge correction quality (the built-in classifier runs, but only the plumbing is checked).
 
 use std::path::{Path, PathBuf};
@@ -11,8 +11,8 @@ use std::sync::Arc;
 
 use axum::body::Body;
 use axum::http::{Request, StatusCode};
-use sayso::raster::{read_rgb_image, read_rgb_png, DEFAULT_PIXEL_LIMIT};
-use sayso::scene::{load_capture, SceneError};
+use sayso_core::raster::{read_rgb_image, read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::scene::{load_capture, SceneError};
 use tower::ServiceExt;
 
 const DEMO: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/demo_scenes/kitchen_breakfast");
@@ -186,7 +186,7 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
         png::ColorType::Indexed
     );
     let labels =
-        sayso::raster::read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+        sayso_core::raster::read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     assert_eq!((labels.width, labels.height), (320, 240));
     assert!(labels.values.iter().all(|&value| value < 41));
 }
@@ -194,10 +194,10 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
 /// The service over the joint pipeline and built-in classifier, its log in a fresh directory (returned so it
 /// lives as long as the router).
 fn service() -> (tempfile::TempDir, axum::Router) {
-    use sayso::config::ServiceConfig;
-    use sayso::pipeline::model_path;
-    use sayso::session::JointCorrector;
-    use sayso::session::{Coordinator, CoordinatorSettings};
+    use sayso_session::config::ServiceConfig;
+    use sayso_perception::pipeline::model_path;
+    use sayso_session::JointCorrector;
+    use sayso_session::{Coordinator, CoordinatorSettings};
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {
         data_dir: data.path().to_path_buf(),
@@ -212,7 +212,7 @@ fn service() -> (tempfile::TempDir, axum::Router) {
         },
     )
     .unwrap();
-    let app = sayso::service::app(sayso::service::AppState::new(Arc::new(coordinator), config));
+    let app = sayso_service::app(sayso_service::AppState::new(Arc::new(coordinator), config));
     (data, app)
 }
 
@@ -300,7 +300,7 @@ async fn the_service_finds_demo_scenes_like_fix_and_says_where_it_looked() {
     assert_eq!(status, StatusCode::NOT_FOUND, "{error}");
     let message = error["message"].as_str().unwrap();
     assert!(
-        message.contains(sayso::demo::COMPILED_DEMO_DIR) && message.contains("kitchen_breakfast"),
+        message.contains(sayso_render::demo::COMPILED_DEMO_DIR) && message.contains("kitchen_breakfast"),
         "{message}"
     );
 }

@@ -1,15 +1,15 @@
-//! Scene-graph objects formed from final labels (`sayso::scenegraph::objects`): connected groups of equal
+//! Scene-graph objects formed from final labels (`sayso_core::scenegraph::objects`): connected groups of equal
 //! labels, split along colour edges (geodesic k-medoids) only where a count says adjacent objects merged.
 
 mod common;
 
 use common::grid_scene::{grid_scene, Cell};
-use sayso::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
-use sayso::ids::{ClassId, SegmentId};
-use sayso::scene::{BoundingBox, Scene};
-use sayso::scenegraph::instances::InstanceCuts;
-use sayso::scenegraph::objects::{form_objects, FormedObject, MIN_SHOWN_SEGMENTS};
-use sayso::taxonomy::Taxonomy;
+use sayso_core::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};
+use sayso_core::ids::{ClassId, SegmentId};
+use sayso_core::scene::{BoundingBox, Scene};
+use sayso_core::scenegraph::instances::InstanceCuts;
+use sayso_core::scenegraph::objects::{form_objects, FormedObject, MIN_SHOWN_SEGMENTS};
+use sayso_core::taxonomy::Taxonomy;
 
 /// `form_objects` with no class ever cut, so the count rule is seen alone.
 fn form_uncut(
@@ -240,7 +240,7 @@ fn books_of_different_colours_side_by_side_are_separate_objects_under_the_commit
 
 #[test]
 fn counted_cuts_part_books_that_differ_in_colour_and_leave_single_walls_whole() {
-    use sayso::scenegraph::instance_statistics::{InstanceCutCounts, CANDIDATE_CUTS, MIN_OBJECTS};
+    use sayso_core::scenegraph::instance_statistics::{InstanceCutCounts, CANDIDATE_CUTS, MIN_OBJECTS};
     // The book row above as ground truth: books are instances 1..=4 (cells 0-1, 2, 3-4, 5), the wall
     // instance 5 (cell 6). Counted five times, so books reach MIN_OBJECTS (20) and the wall does not.
     let cell = 4u32;

@@ -3,8 +3,8 @@
 
 mod service_support;
 
-use sayso::config::{OperatorToken, ServiceConfig};
-use sayso::raster::IndexImage;
+use sayso_session::config::{OperatorToken, ServiceConfig};
+use sayso_core::raster::IndexImage;
 use service_support::*;
 
 const TOKEN: &str = "juniper-lane-mira-0001";
@@ -14,7 +14,7 @@ fn config() -> ServiceConfig {
         operators: vec![OperatorToken {
             name: "mira".into(),
             token: TOKEN.into(),
-            role: sayso::config::Role::Operator,
+            role: sayso_session::config::Role::Operator,
         }],
         body_limit_bytes: 64 * 1024,
         pixel_limit: 10_000,
@@ -66,7 +66,7 @@ fn every_bad_request_is_named_and_the_next_request_is_served() {
     let utterances = format!("/v1/conversations/{conversation}/utterances");
     let json = |value: serde_json::Value| value.to_string().into_bytes();
     let big_picture = png_base64(&picture(200, 100));
-    let mut corrupt_png = sayso::raster::encode_rgb_png(&picture(8, 8)).unwrap();
+    let mut corrupt_png = sayso_core::raster::encode_rgb_png(&picture(8, 8)).unwrap();
     corrupt_png.truncate(corrupt_png.len() / 2);
     let unicode_garbage = "\u{0}\u{202e}\u{fffd}𝔭𝔞𝔦𝔫𝔱 \u{1f408}\u{200d}⬛ \u{7f}ﷺ\u{e000}";
     let mut cases = vec![

@@ -11,7 +11,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-use sayso::raster::{self, IndexImage};
+use sayso_core::raster::{self, IndexImage};
 use service_support::*;
 
 const WALL: u16 = 1;

@@ -19,7 +19,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
-use sayso::raster::{self, IndexImage};
+use sayso_core::raster::{self, IndexImage};
 use service_support::{scene_body, send, send_json};
 
 const WALL: u16 = 1;

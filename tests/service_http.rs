@@ -3,8 +3,8 @@
 
 mod service_support;
 
-use sayso::config::ServiceConfig;
-use sayso::raster::{self, IndexImage};
+use sayso_session::config::ServiceConfig;
+use sayso_core::raster::{self, IndexImage};
 use service_support::*;
 
 const CAT: u16 = 40;
@@ -178,7 +178,7 @@ fn a_conversation_corrects_a_scene_and_survives_a_restart() {
         assert!(text.contains("route=\"/v1/conversations/{conversation_id}/utterances\""));
 
         let document = get(address, "/v1/openapi.json", None);
-        assert_eq!(document.body, sayso::service::openapi::COMMITTED.as_bytes());
+        assert_eq!(document.body, sayso_service::openapi::COMMITTED.as_bytes());
         let graph = get(address, &format!("/v1/scenes/{scene_id}"), None).json();
         (scene_id, conversation_id, history, graph)
     };
@@ -220,10 +220,10 @@ fn a_conversation_corrects_a_scene_and_survives_a_restart() {
     // The export writes only the corrections that still count: the mug (the towel is undone).
     let export = tempfile::tempdir().unwrap();
     let out = export.path().join("dataset");
-    let taxonomy = sayso::taxonomy::Taxonomy::embedded();
+    let taxonomy = sayso_core::taxonomy::Taxonomy::embedded();
     let summary = service
         .coordinator
-        .with_log(|log| sayso::correction_log::export_dataset(log, &taxonomy, &out))
+        .with_log(|log| sayso_correction_log::export_dataset(log, &taxonomy, &out))
         .unwrap();
     assert_eq!(summary.examples, 1);
     let index = std::fs::read_to_string(out.join("index.jsonl")).unwrap();
@@ -261,9 +261,9 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
     let data = tempfile::tempdir().unwrap();
     let coordinator = open_grid_coordinator(data.path());
     // A second process (or coordinator) on the same log is refused while the first holds it.
-    let second = sayso::session::Coordinator::open(
+    let second = sayso_session::Coordinator::open(
         std::sync::Arc::new(GridEngine::new()),
-        &sayso::session::CoordinatorSettings {
+        &sayso_session::CoordinatorSettings {
             log_path: data.path().join("corrections.sqlite"),
             pixel_limit: 1 << 20,
             demo_dir: data.path().to_path_buf(),
@@ -271,11 +271,11 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
     );
     assert!(matches!(
         second,
-        Err(sayso::session::OpenError::InUse { .. })
+        Err(sayso_session::OpenError::InUse { .. })
     ));
     let mut labels = IndexImage::filled(4, 4, 0);
     labels.set(1, 1, CAT);
-    let upload = sayso::session::SceneUpload {
+    let upload = sayso_session::SceneUpload {
         image_png: Some(raster::encode_rgb_png(&picture(4, 4)).unwrap()),
         label_map_png: Some(raster::encode_index_png(&labels).unwrap()),
         ..Default::default()
@@ -289,7 +289,7 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
          999\tpaint mug\n"
     );
     let mut ticks = Vec::new();
-    let report = sayso::session::field_notes::apply_notes(
+    let report = sayso_session::field_notes::apply_notes(
         &coordinator,
         &notes,
         "field-notes",
@@ -328,15 +328,15 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
 
 #[test]
 fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
-    use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
+    use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};
     let data = tempfile::tempdir().unwrap();
     let coordinator = Coordinator::open(
         std::sync::Arc::new(
-            sayso::session::JointCorrector::load(&sayso::pipeline::model_path(None)).unwrap(),
+            sayso_session::JointCorrector::load(&sayso_perception::pipeline::model_path(None)).unwrap(),
         ),
         &CoordinatorSettings {
             log_path: data.path().join("corrections.sqlite"),
-            pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+            pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes"),
         },
     )
@@ -354,7 +354,7 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
         (created.width, created.height, created.name.as_str()),
         (640, 480, "bathroom_morning")
     );
-    let scene = sayso::correction_log::SceneKey(created.scene_id);
+    let scene = sayso_correction_log::SceneKey(created.scene_id);
     let graph = coordinator.scene_graph(scene).unwrap();
     assert!(
         graph.objects.iter().any(|object| object.class == "box"),
@@ -376,13 +376,13 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
     let conversation = coordinator.open_conversation(scene, "mira").unwrap();
     let reply = coordinator
         .utterance(
-            sayso::correction_log::ConversationKey(conversation.conversation_id),
+            sayso_correction_log::ConversationKey(conversation.conversation_id),
             "mira",
             "no, that's a rug, not a box",
-            Some(sayso::wire::FocusIn::Pixel { x, y }),
+            Some(sayso_wire::FocusIn::Pixel { x, y }),
         )
         .unwrap();
-    assert_eq!(reply.status, sayso::wire::TurnStatus::Applied);
+    assert_eq!(reply.status, sayso_wire::TurnStatus::Applied);
     // The joint solve relabels the pointed-at region (and may move other labels with it).
     assert!(
         reply
@@ -400,7 +400,7 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
         1 << 22,
     )
     .unwrap();
-    let rug = sayso::taxonomy::Taxonomy::embedded()
+    let rug = sayso_core::taxonomy::Taxonomy::embedded()
         .class_by_name("rug")
         .unwrap()
         .id

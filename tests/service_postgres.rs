@@ -9,11 +9,11 @@ mod service_support;
 use std::process::Command;
 use std::sync::Arc;
 
-use sayso::correction_log::{ConversationKey, SceneKey};
-use sayso::raster::IndexImage;
-use sayso::session::JointCorrector;
-use sayso::session::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
-use sayso::wire::{FocusIn, TurnStatus};
+use sayso_correction_log::{ConversationKey, SceneKey};
+use sayso_core::raster::IndexImage;
+use sayso_session::JointCorrector;
+use sayso_session::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
+use sayso_wire::{FocusIn, TurnStatus};
 use service_support::picture_of;
 
 const FLOOR: u16 = 0;
@@ -42,14 +42,14 @@ fn open(url: &str, corrector: Arc<JointCorrector>) -> Result<Coordinator, OpenEr
         url,
         &CoordinatorSettings {
             log_path: std::path::PathBuf::from("unused"),
-            pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+            pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: std::path::PathBuf::from("none"),
         },
     )
 }
 
 fn engine() -> Arc<JointCorrector> {
-    Arc::new(JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier"))
+    Arc::new(JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"))
 }
 
 /// A 96x96 floor with a checkerboard of rug cells, registered with its label map.
@@ -66,8 +66,8 @@ fn register(coordinator: &Coordinator) -> (SceneKey, ConversationKey) {
         .register_scene(
             SceneUpload {
                 name: Some("juniper-lane-landing".into()),
-                image_png: Some(sayso::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
-                label_map_png: Some(sayso::raster::encode_index_png(&labels).unwrap()),
+                image_png: Some(sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                label_map_png: Some(sayso_core::raster::encode_index_png(&labels).unwrap()),
                 ..Default::default()
             },
             "odile",

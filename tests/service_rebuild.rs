@@ -8,11 +8,11 @@ mod service_support;
 use std::path::Path;
 use std::sync::Arc;
 
-use sayso::correction_log::{ConversationKey, SceneKey};
-use sayso::raster::IndexImage;
-use sayso::session::JointCorrector;
-use sayso::session::{Coordinator, CoordinatorSettings, SceneUpload};
-use sayso::wire::{FocusIn, TurnStatus};
+use sayso_correction_log::{ConversationKey, SceneKey};
+use sayso_core::raster::IndexImage;
+use sayso_session::JointCorrector;
+use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};
+use sayso_wire::{FocusIn, TurnStatus};
 use service_support::picture_of;
 
 const FLOOR: u16 = 0;
@@ -25,7 +25,7 @@ fn open(data: &Path) -> Coordinator {
 }
 
 fn engine() -> Arc<JointCorrector> {
-    Arc::new(JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier"))
+    Arc::new(JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"))
 }
 
 fn open_with(data: &Path, corrector: Arc<JointCorrector>) -> Coordinator {
@@ -33,7 +33,7 @@ fn open_with(data: &Path, corrector: Arc<JointCorrector>) -> Coordinator {
         corrector,
         &CoordinatorSettings {
             log_path: data.join("corrections.sqlite"),
-            pixel_limit: sayso::raster::DEFAULT_PIXEL_LIMIT,
+            pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
             demo_dir: data.join("none"),
         },
     )
@@ -59,8 +59,8 @@ fn register(coordinator: &Coordinator) -> (SceneKey, ConversationKey) {
         .register_scene(
             SceneUpload {
                 name: Some("juniper-lane-landing".into()),
-                image_png: Some(sayso::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
-                label_map_png: Some(sayso::raster::encode_index_png(&labels).unwrap()),
+                image_png: Some(sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                label_map_png: Some(sayso_core::raster::encode_index_png(&labels).unwrap()),
                 ..Default::default()
             },
             "odile",

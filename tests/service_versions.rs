@@ -9,8 +9,8 @@ mod service_support;
 
 use std::sync::Arc;
 
-use sayso::raster::IndexImage;
-use sayso::service::config::{OperatorToken, Role, ServiceConfig};
+use sayso_core::raster::IndexImage;
+use sayso_service::config::{OperatorToken, Role, ServiceConfig};
 use serde_json::{json, Value};
 use service_support::*;
 
@@ -162,16 +162,16 @@ async fn every_version_of_a_scene_is_listed_and_can_be_read_back() {
                 "{}",
                 String::from_utf8_lossy(&reply.body)
             );
-            sayso::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 20)
+            sayso_core::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 20)
                 .unwrap()
         }
     };
-    let mug = sayso::taxonomy::Taxonomy::embedded()
+    let mug = sayso_core::taxonomy::Taxonomy::embedded()
         .class_by_name("mug")
         .unwrap()
         .id
         .0;
-    let towel = sayso::taxonomy::Taxonomy::embedded()
+    let towel = sayso_core::taxonomy::Taxonomy::embedded()
         .class_by_name("towel")
         .unwrap()
         .id

@@ -8,18 +8,18 @@
 use std::path::{Path, PathBuf};
 
 use ndarray::{Array2, Ix2, Ix4};
-use sayso::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::byo_npy::{read_npy, NpyError, NpyFloat};
-use sayso::unaries::byo_user_model::UserModel;
-use sayso::unaries::calibration::negative_log_likelihood;
-use sayso::unaries::contract::FeatureLayout;
-use sayso::unaries::dataset::read_feature_csv;
-use sayso::unaries::metrics::ConfusionMatrix;
-use sayso::unaries::trainer::{
+use sayso_core::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::byo_npy::{read_npy, NpyError, NpyFloat};
+use sayso_perception::unaries::byo_user_model::UserModel;
+use sayso_perception::unaries::calibration::negative_log_likelihood;
+use sayso_perception::unaries::contract::FeatureLayout;
+use sayso_perception::unaries::dataset::read_feature_csv;
+use sayso_perception::unaries::metrics::ConfusionMatrix;
+use sayso_perception::unaries::trainer::{
     train, LabelledFeatures, Regularisation, TrainingConfig, TrainingMode,
 };
-use sayso::unaries::Classifier;
+use sayso_perception::unaries::Classifier;
 
 fn fixture(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -212,7 +212,7 @@ fn default_model_matches_onnxruntime() {
     let classifier = Classifier::load(
         &root.join("models/segment_classifier.onnx"),
         &taxonomy,
-        sayso::unaries::current_feature_layout(),
+        sayso_perception::unaries::current_feature_layout(),
     )
     .unwrap();
     let features = read_npy(&fixture("default_model_input.npy"))

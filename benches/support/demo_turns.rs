@@ -10,18 +10,18 @@
 
 use std::path::PathBuf;
 
-use sayso::demo::demo_directory;
-use sayso::energy::build::{build_energy, EnergyInputs};
-use sayso::energy::{JointEnergy, JointState};
-use sayso::evaluation::read_pointed_notes;
-use sayso::language::constraint::{Constraint, Focus};
-use sayso::pipeline::{
+use sayso_render::demo::demo_directory;
+use sayso_core::energy::build::{build_energy, EnergyInputs};
+use sayso_core::energy::{JointEnergy, JointState};
+use sayso_lab::evaluation::read_pointed_notes;
+use sayso_core::language::constraint::{Constraint, Focus};
+use sayso_perception::pipeline::{
     correct_turn, load_classifier, model_path, prepare_scene, CorrectionSettings, PreparedScene,
     SceneSource, TurnInputs,
 };
-use sayso::scene::SCENE_SEGMENTS;
-use sayso::solver::joint::WarmStart;
-use sayso::turn::solve::Correction;
+use sayso_core::scene::SCENE_SEGMENTS;
+use sayso_solver::joint::WarmStart;
+use sayso_core::turn::solve::Correction;
 
 /// The demo scenes every production bench runs on: one of each of four room types.
 pub const BENCH_SCENES: [&str; 4] = [
@@ -156,7 +156,7 @@ pub fn turn_energy(
     after: &Correction,
     settings: &CorrectionSettings,
 ) -> TurnEnergy {
-    let accepted_of = |hypotheses: &[sayso::hypotheses::Hypothesis]| -> Vec<bool> {
+    let accepted_of = |hypotheses: &[sayso_core::hypotheses::Hypothesis]| -> Vec<bool> {
         hypotheses
             .iter()
             .map(|h| {

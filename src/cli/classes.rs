@@ -7,7 +7,7 @@ use std::path::PathBuf;
 
 use comfy_table::presets::NOTHING;
 use comfy_table::{CellAlignment, Table};
-use sayso::taxonomy::Taxonomy;
+use sayso_core::taxonomy::Taxonomy;
 
 /// Print the class taxonomy (id, name, group, safety flag, colour, typical rooms).
 #[derive(Debug, clap::Args)]

@@ -4,25 +4,25 @@
 //! renderer's ground truth (overlay.png, summary.txt, summary.json).
 //!
 //! Owns: the flags and the output file names. Must not: hold logic worth testing; loading, summarising and
-//! drawing live in `sayso::demo` and `sayso::overlay`.
+//! drawing live in `sayso_render::demo` and `sayso_core::overlay`.
 
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::demo::{
+use sayso_render::demo::{
     demo_directory, demo_scene_path, load_demo_scene, summarise, summary_text, BeliefSource,
 };
-use sayso::evaluation::read_pointed_notes;
-use sayso::overlay::{draw_overlay, Labelling, OverlayOptions, RegionMap};
-use sayso::pipeline::{
+use sayso_lab::evaluation::read_pointed_notes;
+use sayso_core::overlay::{draw_overlay, Labelling, OverlayOptions, RegionMap};
+use sayso_perception::pipeline::{
     correct_notes, load_classifier, model_path, object_summary, prepare_loaded, CorrectionSettings,
     PointedNote,
 };
-use sayso::raster::write_rgb_png;
-use sayso::raster::DEFAULT_PIXEL_LIMIT;
-use sayso::scene::load_capture;
-use sayso::scenegraph::changes::ChangeKind;
-use sayso::taxonomy::Taxonomy;
+use sayso_core::raster::write_rgb_png;
+use sayso_core::raster::DEFAULT_PIXEL_LIMIT;
+use sayso_core::scene::load_capture;
+use sayso_core::scenegraph::changes::ChangeKind;
+use sayso_core::taxonomy::Taxonomy;
 
 /// Where the shown labels come from.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]

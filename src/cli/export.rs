@@ -5,7 +5,7 @@
 use std::path::PathBuf;
 
 use indicatif::{ProgressBar, ProgressStyle};
-use sayso::correction_log::{export_dataset_showing, CorrectionLog, LeftOutReason};
+use sayso_correction_log::{export_dataset_showing, CorrectionLog, LeftOutReason};
 
 use super::open_log::ServiceFlags;
 

@@ -1,12 +1,12 @@
 //! `sayso field-notes`: apply a file of field notes to stored scenes, with a progress bar and a report.
 //!
 //! Owns: the command's flags, the progress bar and the printed tally. Must not: apply notes itself
-//! (`sayso::session::field_notes` does, through the session layer the service also uses).
+//! (`sayso_session::field_notes` does, through the session layer the service also uses).
 
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::session::field_notes::apply_notes;
+use sayso_session::field_notes::apply_notes;
 
 use super::open_log::{open_coordinator, ServiceFlags};
 

@@ -2,23 +2,23 @@
 //! robot's own perception of it (`super::perception`), and one or more operator notes in; the corrected scene graph, label map, before/after overlays and a plain summary out.
 //!
 //! Owns: the flags, the output file names, drawing the before and after pictures.
-//! Must not: run pipeline stages itself; everything goes through `sayso::pipeline`.
+//! Must not: run pipeline stages itself; everything goes through `sayso_perception::pipeline`.
 
 use std::path::{Path, PathBuf};
 
 use anyhow::Context;
-use sayso::demo::demo_directory;
-use sayso::language::parse_focus;
-use sayso::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
-use sayso::pipeline::{
+use sayso_render::demo::demo_directory;
+use sayso_core::language::parse_focus;
+use sayso_core::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
+use sayso_perception::pipeline::{
     correct_notes, load_classifier, model_path, prepare_perceived, report_text, CorrectionReport,
     CorrectionSettings, PointedNote, SceneSource,
 };
-use sayso::raster::{write_palette_png, write_rgb_png};
-use sayso::scenegraph::{label_map, SceneGraph};
-use sayso::taxonomy::{Taxonomy, UNLABELLED};
-use sayso::turn::dialogue::Status;
-use sayso::unaries::perception::ScoreSource;
+use sayso_core::raster::{write_palette_png, write_rgb_png};
+use sayso_core::scenegraph::{label_map, SceneGraph};
+use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
+use sayso_core::turn::dialogue::Status;
+use sayso_perception::unaries::perception::ScoreSource;
 
 /// Correct a scene from operator notes.
 #[derive(Debug, clap::Args)]
@@ -227,7 +227,7 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
 
 /// Per pixel: the scene-graph object it belongs to, or (outside every object) a region per class, so the
 /// outlines follow objects and class borders, never superpixels.
-fn object_regions(scene: &sayso::scene::Scene, graph: &SceneGraph) -> Vec<u32> {
+fn object_regions(scene: &sayso_core::scene::Scene, graph: &SceneGraph) -> Vec<u32> {
     let mut object_of = vec![None; scene.segment_count()];
     for (index, object) in graph.objects.iter().enumerate() {
         for member in &object.members {

@@ -4,7 +4,7 @@
 //! Must not: hold migrations; the correction log does, the same numbered list for both backends.
 
 use anyhow::Context;
-use sayso::correction_log::{CorrectionLog, LOG_SCHEMA_VERSION};
+use sayso_correction_log::{CorrectionLog, LOG_SCHEMA_VERSION};
 
 use super::open_log::ServiceFlags;
 

@@ -10,9 +10,9 @@ use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::{Duration, SystemTime};
 
-use sayso::session::Corrector;
-use sayso::session::JointCorrector;
-use sayso::unaries::{current_feature_layout, Classifier};
+use sayso_session::Corrector;
+use sayso_session::JointCorrector;
+use sayso_perception::unaries::{current_feature_layout, Classifier};
 
 /// How often the file's size and modification time are looked at (a stat call: cheap).
 pub const POLL_INTERVAL: Duration = Duration::from_secs(2);
@@ -38,7 +38,7 @@ pub fn spawn(corrector: Arc<JointCorrector>, path: PathBuf) {
                 let Ok(bytes) = std::fs::read(&path) else {
                     continue;
                 };
-                if sayso::unaries::classifier::model_id(&bytes) == corrector.model_id() {
+                if sayso_perception::unaries::classifier::model_id(&bytes) == corrector.model_id() {
                     continue;
                 }
                 match Classifier::from_bytes(
@@ -72,7 +72,7 @@ pub fn spawn(corrector: Arc<JointCorrector>, path: PathBuf) {
 /// The replacement with the image-only companion beside its file, as `pipeline::load_classifier` loads
 /// the served model at start-up (a companion that does not load is reported and left out).
 fn with_companion(classifier: Classifier, path: &Path, corrector: &JointCorrector) -> Classifier {
-    let Some(companion) = sayso::pipeline::image_only_companion(path) else {
+    let Some(companion) = sayso_perception::pipeline::image_only_companion(path) else {
         return classifier;
     };
     match Classifier::load(&companion, corrector.taxonomy(), current_feature_layout()) {
@@ -90,9 +90,9 @@ fn with_companion(classifier: Classifier, path: &Path, corrector: &JointCorrecto
 #[cfg(test)]
 mod tests {
     use super::*;
-    use sayso::unaries::classifier::model_id;
-    use sayso::unaries::onnx_reader::read_mlp;
-    use sayso::unaries::onnx_writer::encode_model;
+    use sayso_perception::unaries::classifier::model_id;
+    use sayso_perception::unaries::onnx_reader::read_mlp;
+    use sayso_perception::unaries::onnx_writer::encode_model;
 
     #[test]
     fn a_replaced_model_file_is_served_without_a_restart() {
@@ -113,7 +113,7 @@ mod tests {
         // Another model (the shipped one at another temperature) is taken up within a few polls.
         let mut mlp = read_mlp(&shipped, "shipped").unwrap();
         mlp.temperature *= 2.0;
-        let taxonomy = sayso::taxonomy::Taxonomy::embedded();
+        let taxonomy = sayso_core::taxonomy::Taxonomy::embedded();
         let contract =
             Classifier::from_bytes(&shipped, "shipped", &taxonomy, current_feature_layout())
                 .unwrap()

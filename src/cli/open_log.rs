@@ -2,7 +2,7 @@
 //! `export`, `migrate`), and opening the session over the log.
 //!
 //! Owns: the flags and their environment variables (`SAYSO_*`), layered over the TOML config file
-//! (`sayso::config`) over the defaults; building the joint corrector; opening the session's `Coordinator`
+//! (`sayso_session::config`) over the defaults; building the joint corrector; opening the session's `Coordinator`
 //! on a SQLite file or a PostgreSQL database.
 //! Must not: reach into the HTTP service; `store` and `field-notes` work through the session layer alone.
 
@@ -10,11 +10,11 @@ use std::path::PathBuf;
 use std::sync::Arc;
 
 use anyhow::Context;
-use sayso::config::ServiceConfig;
-use sayso::correction_log::LogLocation;
-use sayso::language::Grammar;
-use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
-use sayso::session::{Coordinator, CoordinatorSettings, Corrector, JointCorrector};
+use sayso_session::config::ServiceConfig;
+use sayso_correction_log::LogLocation;
+use sayso_core::language::Grammar;
+use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
+use sayso_session::{Coordinator, CoordinatorSettings, Corrector, JointCorrector};
 
 /// Where the service's settings come from: flags, then `SAYSO_*` variables, then the config file.
 #[derive(Debug, Clone, clap::Args)]
@@ -112,7 +112,7 @@ pub fn open_coordinator_with(
     }
     .with_context(|| format!("opening the correction log {}", location.shown()))?;
     if let Some(path) = &config.user_model {
-        let model = sayso::unaries::byo_user_model::UserModel::load(path)
+        let model = sayso_perception::unaries::byo_user_model::UserModel::load(path)
             .with_context(|| format!("loading the user model {}", path.display()))?;
         coordinator = coordinator.with_user_model(Arc::new(model));
     }

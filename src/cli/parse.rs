@@ -3,14 +3,14 @@
 //!
 //! Owns: the flags of this subcommand and the JSON line layout. Lines are one conversation, so later lines
 //! see earlier referents and conflicts are reported.
-//! Must not: parse language itself; everything goes through `sayso::language`.
+//! Must not: parse language itself; everything goes through `sayso_core::language`.
 
 use std::io::{BufRead, Write};
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::language::notation::notation_list;
-use sayso::language::{parse_focus, Conversation, Grammar};
+use sayso_core::language::notation::notation_list;
+use sayso_core::language::{parse_focus, Conversation, Grammar};
 use serde_json::json;
 
 /// Parse operator utterances into constraints.

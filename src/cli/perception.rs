@@ -3,7 +3,7 @@
 //! inputs go by file path. The formats are described in `docs/perception.md`.
 //!
 //! Owns: the flags, filling in what they leave out from a scene directory's perception files
-//! (`sayso::scene::files`), and reading the files into `sayso::unaries::perception::Perception` (for `fix`)
+//! (`sayso_core::scene::files`), and reading the files into `sayso_perception::unaries::perception::Perception` (for `fix`)
 //! or into the parts of a registration (for `store`).
 //! Must not: turn scores into unaries or check class names itself; the library does.
 
@@ -11,17 +11,17 @@ use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
 use anyhow::Context;
-use sayso::raster::{read_index_png, DEFAULT_PIXEL_LIMIT};
-use sayso::scene::files::perception_files;
-use sayso::session::SceneUpload;
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::byo::SynonymTable;
-use sayso::unaries::byo_detections::parse_detections;
-use sayso::unaries::byo_npy::{encode_npy_f32, read_npy};
-use sayso::unaries::byo_pixel_scores::{ScoreKind, ScoreLayout};
-use sayso::unaries::byo_user_model::UserModel;
-use sayso::unaries::perception::{read_class_list, LabelMap, Perception, PixelScores, ScoreSource};
-use sayso::wire::{DetectionIn, MaskRunsIn, PixelBox};
+use sayso_core::raster::{read_index_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::scene::files::perception_files;
+use sayso_session::SceneUpload;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::byo::SynonymTable;
+use sayso_perception::unaries::byo_detections::parse_detections;
+use sayso_perception::unaries::byo_npy::{encode_npy_f32, read_npy};
+use sayso_perception::unaries::byo_pixel_scores::{ScoreKind, ScoreLayout};
+use sayso_perception::unaries::byo_user_model::UserModel;
+use sayso_perception::unaries::perception::{read_class_list, LabelMap, Perception, PixelScores, ScoreSource};
+use sayso_wire::{DetectionIn, MaskRunsIn, PixelBox};
 
 /// How the numbers of a scores file are to be read.
 #[derive(Clone, Copy, Debug, clap::ValueEnum)]
@@ -79,7 +79,7 @@ fn class_list(path: &Option<PathBuf>) -> anyhow::Result<Option<Vec<String>>> {
 }
 
 impl PerceptionArgs {
-    /// These flags with the perception files of a scene directory (`sayso::scene::files`) filling in what
+    /// These flags with the perception files of a scene directory (`sayso_core::scene::files`) filling in what
     /// no flag names: its scores (with their class list) or its label map (with its), unless a flag names a
     /// score source, and its detections unless `--detections` is given. A directory holding both scores and
     /// a label map is refused. Returns the names of the files taken, for the caller to say.
@@ -209,7 +209,7 @@ impl PerceptionArgs {
             upload.label_map_classes = class_list(&self.label_classes)?;
         }
         let rgb = if self.user_model.is_some() || self.detections.is_some() {
-            Some(sayso::raster::read_rgb_image(image, DEFAULT_PIXEL_LIMIT)?)
+            Some(sayso_core::raster::read_rgb_image(image, DEFAULT_PIXEL_LIMIT)?)
         } else {
             None
         };

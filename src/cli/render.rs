@@ -1,15 +1,15 @@
 //! `sayso render`: draw scenes of the Juniper Lane flat with ground truth, or re-render the committed demo set.
 //!
-//! Owns: the flags and the progress lines. Must not: draw anything itself; the renderer is `sayso::render`.
+//! Owns: the flags and the progress lines. Must not: draw anything itself; the renderer is `sayso_render`.
 
 use std::path::PathBuf;
 
 use anyhow::{bail, Context};
-use sayso::demo::demo_directory;
-use sayso::render::catalogue::{readme_text, DEMO_SCENES, FIRST_TRAINING_SEED};
-use sayso::render::writer::write_scene;
-use sayso::render::{render_scene, SceneRequest, ROOM_TYPES};
-use sayso::taxonomy::Taxonomy;
+use sayso_render::demo::demo_directory;
+use sayso_render::catalogue::{readme_text, DEMO_SCENES, FIRST_TRAINING_SEED};
+use sayso_render::writer::write_scene;
+use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
+use sayso_core::taxonomy::Taxonomy;
 
 /// Render scenes of the invented flat: image, depth, labels, instances, objects and scene metadata.
 #[derive(Debug, clap::Args)]

@@ -3,7 +3,7 @@
 //! it, puts it in place of the served model file (atomically: a running `sayso serve` picks it up).
 //!
 //! Owns: the fine-tuning flags' meaning, the candidate directory's files, the printed comparison table and
-//! the installation. Must not: train or judge; `sayso::retrain` does both.
+//! the installation. Must not: train or judge; `sayso_lab::retrain` does both.
 
 use std::path::{Path, PathBuf};
 use std::time::Instant;
@@ -12,11 +12,11 @@ use anyhow::Context;
 use comfy_table::presets::NOTHING;
 use comfy_table::{CellAlignment, Table};
 
-use sayso::retrain::{card_section, fine_tune, FineTuneSettings};
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::classifier::model_id;
-use sayso::unaries::model_card::ModelCard;
-use sayso::unaries::trainer::TrainingConfig;
+use sayso_lab::retrain::{card_section, fine_tune, FineTuneSettings};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::classifier::model_id;
+use sayso_perception::unaries::model_card::ModelCard;
+use sayso_perception::unaries::trainer::TrainingConfig;
 
 use super::train::TrainArgs;
 
@@ -38,7 +38,7 @@ fn write_atomically(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
 pub fn run(args: &TrainArgs, corrections: &Path) -> anyhow::Result<()> {
     let started = Instant::now();
     let taxonomy = Taxonomy::embedded();
-    let served = sayso::pipeline::model_path(args.serve.as_deref());
+    let served = sayso_perception::pipeline::model_path(args.serve.as_deref());
     let base_path = args.base.clone().unwrap_or_else(|| served.clone());
     let base_bytes =
         std::fs::read(&base_path).with_context(|| format!("reading {}", base_path.display()))?;
@@ -101,7 +101,7 @@ pub fn run(args: &TrainArgs, corrections: &Path) -> anyhow::Result<()> {
                 .map(|layer| layer.bias.len())
                 .collect::<Vec<_>>()
         ),
-        feature_layout_version: sayso::unaries::current_feature_layout().version,
+        feature_layout_version: sayso_perception::unaries::current_feature_layout().version,
         feature_count: outcome.candidate.feature_count(),
         class_count: outcome.candidate.class_count(),
         parameter_count: outcome.candidate.parameter_count(),

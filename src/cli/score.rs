@@ -7,24 +7,24 @@
 //! spurious object costs as much as a missed one). `obj:graph` is that over the scene graph's objects (accepted hypotheses with their final
 //! members); `obj:region` the same measure over 4-connected regions of the label map (adjacent objects of one
 //! class merge). The classifier alone proposes no objects, so both its object columns are its regions. See
-//! `sayso::evaluation` for the matching rule. A note line starting `@x,y` points at that pixel.
+//! `sayso_lab::evaluation` for the matching rule. A note line starting `@x,y` points at that pixel.
 //!
 //! Owns: the flags and the table layout. Must not: compute scores or run stages itself; that is
-//! `sayso::evaluation` and `sayso::pipeline`.
+//! `sayso_lab::evaluation` and `sayso_perception::pipeline`.
 
 use std::path::PathBuf;
 
-use sayso::demo::{demo_directory, list_demo_scenes, load_demo_scene};
-use sayso::evaluation::{
+use sayso_render::demo::{demo_directory, list_demo_scenes, load_demo_scene};
+use sayso_lab::evaluation::{
     object_tally, objects_from_graph, objects_from_regions, read_pointed_notes, score_labels,
 };
-use sayso::language::constraint::Focus;
-use sayso::pipeline::{
+use sayso_core::language::constraint::Focus;
+use sayso_perception::pipeline::{
     believe_without_notes, correct_notes, load_classifier, model_path, prepare_loaded,
     CorrectionSettings, PointedNote,
 };
-use sayso::scenegraph::label_map;
-use sayso::taxonomy::Taxonomy;
+use sayso_core::scenegraph::label_map;
+use sayso_core::taxonomy::Taxonomy;
 
 /// Score the notes of every demo scene against its ground truth.
 #[derive(Debug, clap::Args)]
@@ -110,7 +110,7 @@ pub fn run(args: ScoreArgs) -> anyhow::Result<()> {
         let classifier_map = label_map(&prepared.scene, &prepared.classifier_labels);
         let scene = prepared.scene.clone();
         let baseline = believe_without_notes(&prepared, &settings)?;
-        let row_of = |graph: &sayso::scenegraph::SceneGraph| -> anyhow::Result<Row> {
+        let row_of = |graph: &sayso_core::scenegraph::SceneGraph| -> anyhow::Result<Row> {
             let labels = label_map(&scene, &graph.segment_labels);
             let score = score_labels(&demo, &labels.values, taxonomy.class_count())?;
             Ok(Row {

@@ -2,14 +2,14 @@
 //!
 //! Owns: the serve-only flags (address, port, user model) and the process's runtime and shutdown signal;
 //! the settings shared with other commands are `super::open_log`'s.
-//! Must not: handle requests; `sayso::service` does.
+//! Must not: handle requests; `sayso_service` does.
 
 use std::net::{IpAddr, SocketAddr};
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::pipeline::model_path;
-use sayso::service::AppState;
+use sayso_perception::pipeline::model_path;
+use sayso_service::AppState;
 
 use super::open_log::{joint_corrector, open_coordinator_with, ServiceFlags};
 
@@ -64,7 +64,7 @@ pub fn run(args: ServeArgs) -> anyhow::Result<()> {
             "sayso: a corrected scene is advisory; it never replaces the robot's own safety sensors"
         );
         let state = AppState::new(coordinator, config);
-        sayso::service::run(listener, state, shutdown_signal()).await?;
+        sayso_service::run(listener, state, shutdown_signal()).await?;
         Ok(())
     })
 }

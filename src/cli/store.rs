@@ -7,11 +7,11 @@
 use std::path::{Path, PathBuf};
 
 use anyhow::Context;
-use sayso::raster::{encode_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
-use sayso::scene::files::image_file;
-use sayso::scene::load_capture;
-use sayso::session::SceneUpload;
-use sayso::taxonomy::Taxonomy;
+use sayso_core::raster::{encode_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
+use sayso_core::scene::files::image_file;
+use sayso_core::scene::load_capture;
+use sayso_session::SceneUpload;
+use sayso_core::taxonomy::Taxonomy;
 
 use super::open_log::{open_coordinator, ServiceFlags};
 
@@ -153,9 +153,9 @@ fn scene_upload(
 /// Whether a scene without depth would be scored by a classifier with no image-only companion: no user
 /// model scores it and the configured model has no `segment_classifier_rgb.onnx` beside it
 /// (`pipeline::load_classifier`, which the service's corrector loads it with).
-fn warns_without_depth(config: &sayso::service::config::ServiceConfig) -> bool {
+fn warns_without_depth(config: &sayso_service::config::ServiceConfig) -> bool {
     config.user_model.is_none()
-        && sayso::pipeline::image_only_companion(&sayso::pipeline::model_path(
+        && sayso_perception::pipeline::image_only_companion(&sayso_perception::pipeline::model_path(
             config.model.as_deref(),
         ))
         .is_none()

@@ -2,7 +2,7 @@
 //! `--corrections`, fine-tunes the served model instead and gates the candidate (`super::retrain`).
 //!
 //! Owns: the flags, reading the training data named on the command line, printing a summary.
-//! Must not: implement training or ONNX writing; those are `sayso::unaries::trainer` and `onnx_writer`.
+//! Must not: implement training or ONNX writing; those are `sayso_perception::unaries::trainer` and `onnx_writer`.
 //! Validation is split by whole scene for scene data (`split_by_scene`); a feature matrix carries no
 //! scenes, so its rows are split.
 
@@ -12,24 +12,24 @@ use std::time::Instant;
 use anyhow::{bail, Context};
 use clap::{Args, ValueEnum};
 
-use sayso::ids::ClassId;
-use sayso::scene::SceneParams;
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::builtin::{
+use sayso_core::ids::ClassId;
+use sayso_core::scene::SceneParams;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::builtin::{
     dataset_scene_rows, evaluate_on_dataset, DepthUse, IMAGE_ONLY_MODEL_CARD,
     IMAGE_ONLY_MODEL_FILE, MODEL_FILE,
 };
-use sayso::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
-use sayso::unaries::dataset::read_feature_csv;
-use sayso::unaries::dataset::{list_dataset, DatasetEntry};
-use sayso::unaries::model_card::EvaluationFigures;
-use sayso::unaries::model_card::ModelCard;
-use sayso::unaries::onnx_writer::encode_model;
-use sayso::unaries::trainer::{
+use sayso_perception::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use sayso_perception::unaries::dataset::read_feature_csv;
+use sayso_perception::unaries::dataset::{list_dataset, DatasetEntry};
+use sayso_perception::unaries::model_card::EvaluationFigures;
+use sayso_perception::unaries::model_card::ModelCard;
+use sayso_perception::unaries::onnx_writer::encode_model;
+use sayso_perception::unaries::trainer::{
     split_by_scene, split_for_validation, train, LabelledFeatures, Regularisation, TrainingConfig,
     TrainingMode,
 };
-use sayso::unaries::{current_feature_layout, Classifier};
+use sayso_perception::unaries::{current_feature_layout, Classifier};
 
 /// The network shape.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -405,9 +405,9 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
 /// Renders `count` training scenes (room types in turn) with seeds from `seed_base` into a fresh
 /// temporary directory; refuses seeds of the demo scenes, which are the evaluation set.
 fn render_training_scenes(count: u32, seed_base: u64) -> anyhow::Result<PathBuf> {
-    use sayso::render::catalogue::DEMO_SCENES;
-    use sayso::render::writer::write_scene;
-    use sayso::render::{render_scene, SceneRequest, ROOM_TYPES};
+    use sayso_render::catalogue::DEMO_SCENES;
+    use sayso_render::writer::write_scene;
+    use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
     if count == 0 {
         bail!("--render needs at least 1 scene");
     }

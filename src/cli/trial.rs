@@ -2,15 +2,15 @@
 //! Prints every note with its outcome, a per-scene table and the summary, and writes the chart (SVG) and,
 //! when asked, the records as JSON.
 //!
-//! Owns: the flags and the printed layout. Must not: judge or score anything itself (`sayso::trial` does).
+//! Owns: the flags and the printed layout. Must not: judge or score anything itself (`sayso_lab::trial` does).
 
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
-use sayso::taxonomy::Taxonomy;
-use sayso::trial::phrasings::{PhrasingSet, Phrasings};
-use sayso::trial::{
+use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::trial::phrasings::{PhrasingSet, Phrasings};
+use sayso_lab::trial::{
     chart, run_scene, summarise, TrialContext, DEV_START, HELD_OUT_START, TRIAL_SEEDS,
 };
 
@@ -109,7 +109,7 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         "{:<22} {:>17} {:>17} {:>17} {:>17}",
         "", "pix  mIoU   obj", "pix  mIoU   obj", "pix  mIoU   obj", "pix  mIoU   obj"
     );
-    let cell = |s: &sayso::trial::Scores| {
+    let cell = |s: &sayso_lab::trial::Scores| {
         format!(
             "{:>5.1} {:>5.1} {:>5.1}",
             100.0 * s.pixel,
@@ -154,8 +154,8 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
     );
     println!(
         "  (object: F1 of scene-graph objects matched one-to-one to true objects at IoU 0.5, the recognition quality of panoptic quality; recall: the share of true objects matched; seen: the F1 over true objects of at least {} px and shown ones of at least {} px, those the operator notices and can speak of)",
-        sayso::trial::operator::MIN_VISIBLE,
-        sayso::trial::operator::MIN_NOTICED
+        sayso_lab::trial::operator::MIN_VISIBLE,
+        sayso_lab::trial::operator::MIN_NOTICED
     );
     println!(
         "the no-note solve against the classifier alone (separate from the notes; the classifier's objects are its label map's regions): object {:+.1} (recall {:+.1}, seen {:+.1}), mIoU {:+.1}, pixel {:+.1}",
@@ -189,7 +189,7 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
             .collect();
         let met = of_kind
             .iter()
-            .filter(|n| n.outcome == sayso::trial::Outcome::Met)
+            .filter(|n| n.outcome == sayso_lab::trial::Outcome::Met)
             .count();
         let gained: u64 = of_kind.iter().map(|n| n.wrong_to_right).sum();
         let lost: u64 = of_kind.iter().map(|n| n.right_to_wrong).sum();

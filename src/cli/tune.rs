@@ -3,7 +3,7 @@
 //! `energy_weights.json` into `--out`.
 //!
 //! Owns: the flags, the progress lines and writing the three files. Must not: count, search or score itself;
-//! that is `sayso::tuning`. It never reads demo scenes: every scene is rendered from a training seed, and
+//! that is `sayso_lab::tuning`. It never reads demo scenes: every scene is rendered from a training seed, and
 //! the demo seeds 1000..=1999 are refused.
 
 use std::path::PathBuf;
@@ -11,12 +11,12 @@ use std::time::Instant;
 
 use anyhow::Context;
 
-use sayso::energy::build::{EnergyWeights, WeightsFile, WEIGHTS_SCHEMA};
-use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
-use sayso::scenegraph::instances::{InstanceCuts, InstanceCutsFile, EMBEDDED_INSTANCE_CUTS};
-use sayso::taxonomy::Taxonomy;
-use sayso::tuning::{count_statistics, prepare_tuning_scenes, tune_weights, TUNED_WEIGHTS};
-use sayso::tuning_cuts::{refine_cuts, solve_states};
+use sayso_core::energy::build::{EnergyWeights, WeightsFile, WEIGHTS_SCHEMA};
+use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
+use sayso_core::scenegraph::instances::{InstanceCuts, InstanceCutsFile, EMBEDDED_INSTANCE_CUTS};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::tuning::{count_statistics, prepare_tuning_scenes, tune_weights, TUNED_WEIGHTS};
+use sayso_lab::tuning_cuts::{refine_cuts, solve_states};
 
 /// Count room/class statistics and tune energy weights on training renders.
 #[derive(Debug, clap::Args)]
@@ -46,7 +46,7 @@ pub struct TuneArgs {
     #[arg(long, default_value = "models")]
     pub out: PathBuf,
     /// Only re-choose the strengths of the committed instance cuts on the solved tuning renders
-    /// (`sayso::tuning_cuts`), with the committed prior and weights; nothing is counted.
+    /// (`sayso_lab::tuning_cuts`), with the committed prior and weights; nothing is counted.
     #[arg(long)]
     pub cuts_only: bool,
 }
@@ -204,7 +204,7 @@ fn refine_and_write(
     let file = InstanceCutsFile {
         source: format!(
             "{base}; strengths re-chosen by `sayso tune` on {} solved training renders, seeds {}..{} (end \
-             exclusive; `sayso::tuning_cuts`): mean object accuracy over no note / each note {:.4} -> {:.4}",
+             exclusive; `sayso_lab::tuning_cuts`): mean object accuracy over no note / each note {:.4} -> {:.4}",
             scenes.len(),
             tune_seeds.start,
             tune_seeds.end,

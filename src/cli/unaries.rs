@@ -2,25 +2,25 @@
 //! per-segment unaries for a segment map, and writes them as JSON.
 //!
 //! Owns: the flags, reading the files they name, writing the result.
-//! Must not: pool or validate scores itself; `sayso::unaries::byo_*` does that.
+//! Must not: pool or validate scores itself; `sayso_perception::unaries::byo_*` does that.
 
 use std::path::PathBuf;
 
 use anyhow::{bail, Context};
 use clap::{Args, ValueEnum};
 
-use sayso::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
-use sayso::scene::SegmentMap;
-use sayso::taxonomy::Taxonomy;
-use sayso::unaries::byo::SynonymTable;
-use sayso::unaries::byo_label_map::{unaries_from_label_map, ConfidenceMap};
-use sayso::unaries::byo_npy::read_npy;
-use sayso::unaries::byo_pixel_scores::{
+use sayso_core::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::scene::SegmentMap;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::unaries::byo::SynonymTable;
+use sayso_perception::unaries::byo_label_map::{unaries_from_label_map, ConfidenceMap};
+use sayso_perception::unaries::byo_npy::read_npy;
+use sayso_perception::unaries::byo_pixel_scores::{
     unaries_from_pixel_scores, PixelScoreOptions, ScoreKind, ScoreLayout,
 };
-use sayso::unaries::byo_user_model::UserModel;
-use sayso::unaries::pooling::PoolingRule;
-use sayso::unaries::UnarySource;
+use sayso_perception::unaries::byo_user_model::UserModel;
+use sayso_perception::unaries::pooling::PoolingRule;
+use sayso_perception::unaries::UnarySource;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum LayoutFlag {

@@ -1,4 +1,4 @@
-//! # sayso
+//! # sayso-core
 //!
 //! sayso corrects a robot's semantic picture of a room from the plain words of the people who run it.
 //! An operator says "that's a towel, not a cat" or "there are four books on the shelf"; sayso turns the
@@ -20,7 +20,7 @@
 //! ## Example
 //!
 //! ```
-//! use sayso::taxonomy::Taxonomy;
+//! use sayso_core::taxonomy::Taxonomy;
 //!
 //! let taxonomy = Taxonomy::embedded();
 //! let mug = taxonomy.class_by_name("mug").expect("mug is in the taxonomy");
@@ -29,11 +29,7 @@
 //! ```
 
 pub mod color;
-pub mod config;
-pub mod correction_log;
 pub mod demo;
-pub mod energy;
-pub mod evaluation;
 pub mod features;
 pub mod geometry;
 pub mod grounding;
@@ -41,20 +37,21 @@ pub mod hypotheses;
 pub mod ids;
 pub mod language;
 pub mod overlay;
-pub mod pipeline;
 pub mod raster;
-pub mod render;
-pub mod retrain;
 pub mod scene;
 pub mod scenegraph;
-pub mod service;
-pub mod session;
 pub mod slic;
-pub mod solver;
 pub mod taxonomy;
-pub mod trial;
-pub mod tuning;
-pub mod tuning_cuts;
 pub mod turn;
 pub mod unaries;
-pub mod wire;
+
+/// The joint energy: its terms and evaluation are the solver crate's (`sayso_solver::energy`, re-exported
+/// here); building one from a scene, its unaries, hypotheses and grounded constraints is this crate's.
+pub mod energy {
+    pub use sayso_solver::energy::*;
+
+    pub mod build;
+    pub mod statistics;
+}
+
+use sayso_solver as solver;

@@ -104,7 +104,7 @@ struct RawClass {
 }
 
 /// The taxonomy shipped in the crate, so the tool works with no files beside it.
-pub const EMBEDDED_CLASSES: &str = include_str!("../grammar/classes.toml");
+pub const EMBEDDED_CLASSES: &str = include_str!("../../grammar/classes.toml");
 
 /// "1 desk", "2 desks": a count of a class name read back.
 pub fn how_many(count: usize, name: &str) -> String {

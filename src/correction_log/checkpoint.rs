@@ -108,7 +108,7 @@ impl Drop for BackgroundCheckpoints {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::correction_log::{NewScene, SqliteLog, StateRecord};
+    use crate::{NewScene, SqliteLog, StateRecord};
 
     #[test]
     fn the_background_thread_checkpoints_while_commits_go_on_and_stops_when_dropped() {

@@ -137,7 +137,7 @@ pub fn audit(log: &CorrectionLog) -> Result<ExportAudit, LogError> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::correction_log::{NewScene, NewTurn, StateRecord, TurnEffect};
+    use crate::{NewScene, NewTurn, StateRecord, TurnEffect};
     use crate::raster::{encode_index_png, IndexImage};
 
     fn labels(values: [u16; 4]) -> StateRecord {
@@ -155,7 +155,7 @@ mod tests {
     }
 
     fn turn<'a>(
-        conversation: crate::correction_log::ConversationKey,
+        conversation: crate::ConversationKey,
         kind: &'a str,
         text: &'a str,
         effect: TurnEffect,

@@ -142,7 +142,7 @@ impl GroupCommit {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::correction_log::{NewScene, StateRecord};
+    use crate::{NewScene, StateRecord};
 
     fn state(byte: u8) -> StateRecord {
         StateRecord {

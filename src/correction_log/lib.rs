@@ -12,7 +12,7 @@
 //! stored as the caller hands them over (JSON text and opaque bytes); only constraints are typed here.
 //!
 //! ```
-//! use sayso::correction_log::{CorrectionLog, NewScene, StateRecord};
+//! use sayso_correction_log::{CorrectionLog, NewScene, StateRecord};
 //!
 //! let directory = tempfile::tempdir().unwrap();
 //! let mut log = CorrectionLog::open(&directory.path().join("log.sqlite")).unwrap();
@@ -45,6 +45,8 @@ mod postgres;
 mod schema;
 mod store;
 mod time;
+
+use sayso_core::{ids, raster, taxonomy};
 
 pub use backend::{CorrectionLog, LogLocation};
 pub use checkpoint::BackgroundCheckpoints;

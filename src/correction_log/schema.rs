@@ -192,17 +192,17 @@ mod tests {
                 )
                 .unwrap();
         }
-        let mut log = crate::correction_log::CorrectionLog::open(&path).unwrap();
+        let mut log = crate::CorrectionLog::open(&path).unwrap();
         assert_eq!(log.schema_version().unwrap(), LOG_SCHEMA_VERSION);
-        let (old, parent) = log.version(crate::correction_log::VersionKey(1)).unwrap();
+        let (old, parent) = log.version(crate::VersionKey(1)).unwrap();
         assert_eq!(parent, None);
         assert_eq!(old.labels_png, vec![3, 4]);
         assert_eq!(old.summary_json, "{\"room\":1}");
         assert_eq!(old.model, None, "not recorded before schema 2");
         // A version made after the migration records its model.
-        let scene = crate::correction_log::SceneKey(1);
+        let scene = crate::SceneKey(1);
         let conversation = log.open_conversation(scene, "mira").unwrap().key;
-        let state = crate::correction_log::StateRecord {
+        let state = crate::StateRecord {
             labels_png: vec![5],
             summary_json: "{}".into(),
             engine_state: vec![],
@@ -210,7 +210,7 @@ mod tests {
         };
         let (_, version) = log
             .commit_turn(
-                &crate::correction_log::NewTurn {
+                &crate::NewTurn {
                     conversation,
                     kind: "utterance",
                     text: "that's a rug",
@@ -219,8 +219,8 @@ mod tests {
                     constraints_json: "[]",
                     result_json: "{}",
                     operator: "mira",
-                    effect: crate::correction_log::TurnEffect::NewVersion {
-                        base: crate::correction_log::VersionKey(1),
+                    effect: crate::TurnEffect::NewVersion {
+                        base: crate::VersionKey(1),
                         state: state.clone(),
                         utterance: "that's a rug".into(),
                         constraints_json: "[]".into(),

@@ -37,10 +37,10 @@ use crate::unaries::Unaries;
 /// Environment variable naming the built-in classifier's ONNX file.
 pub const MODEL_VARIABLE: &str = "SAYSO_MODEL";
 
-/// The built-in classifier's file beside the crate's manifest (fixed at compile time).
+/// The built-in classifier's file under `models/` at the workspace root (fixed at compile time).
 pub const COMPILED_MODEL_PATH: &str = concat!(
     env!("CARGO_MANIFEST_DIR"),
-    "/models/segment_classifier.onnx"
+    "/../../models/segment_classifier.onnx"
 );
 
 /// What can stop the main job.

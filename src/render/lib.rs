@@ -18,7 +18,7 @@
 mod belongings;
 mod builder;
 mod camera;
-pub mod catalogue;
+pub mod demo;
 mod figures;
 mod fittings;
 mod furniture;
@@ -39,6 +39,11 @@ use crate::raster::{DepthImage, IndexImage, RasterError, RgbImage};
 use crate::taxonomy::Taxonomy;
 
 pub use layouts::ROOM_TYPES;
+/// The committed demo set (names, rooms, seeds): core's, since finding a demo scene is on the correction path.
+pub use sayso_core::demo::catalogue;
+
+use sayso_core::demo as core_demo;
+use sayso_core::{ids, raster, scene, taxonomy};
 
 /// The version written into every `scene.json`; bump it whenever the output bytes change.
 pub const RENDERER_VERSION: &str = "juniper-1";
@@ -89,6 +94,16 @@ impl SceneRequest {
             seed,
             width: DEFAULT_WIDTH,
             height: DEFAULT_HEIGHT,
+        }
+    }
+}
+
+impl From<&catalogue::DemoEntry> for SceneRequest {
+    /// The render request for a demo entry (640x480).
+    fn from(entry: &catalogue::DemoEntry) -> SceneRequest {
+        SceneRequest {
+            name: entry.name.to_string(),
+            ..SceneRequest::new(entry.room, entry.seed)
         }
     }
 }

@@ -24,9 +24,13 @@ mod server;
 mod upload;
 
 /// The deployment's settings (`crate::config`), which the service reads first.
-pub use crate::config;
+pub use sayso_session::config;
 /// The JSON shapes the service sends and reads (`crate::wire`).
-pub use crate::wire;
+pub use sayso_wire as wire;
+
+use sayso_correction_log as correction_log;
+use sayso_perception::unaries;
+use sayso_session as session;
 
 use std::future::Future;
 use std::net::IpAddr;

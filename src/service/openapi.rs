@@ -282,7 +282,7 @@ mod tests {
         let generated = document_json();
         if std::env::var_os("SAYSO_WRITE_OPENAPI").is_some() {
             let path =
-                std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("src/service/openapi.json");
+                std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("openapi.json");
             std::fs::write(path, &generated).unwrap();
             return;
         }

@@ -51,7 +51,7 @@ pub const TOKEN_MIN_CHARACTERS: usize = 20;
 /// The fewest different characters a bearer token must hold (refuses "aaaa..." and "abababab...").
 pub const TOKEN_MIN_DISTINCT_CHARACTERS: usize = 10;
 
-pub use crate::session::Role;
+pub use crate::Role;
 
 /// One operator, the bearer token they present and their role.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -376,7 +376,7 @@ mod tests {
 
     #[test]
     fn the_sample_postgresql_config_loads_and_validates() {
-        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/examples/postgres.toml");
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("../../docs/examples/postgres.toml");
         let config = ServiceConfig::load(&path).unwrap();
         config.validate().unwrap();
         assert!(matches!(

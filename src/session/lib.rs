@@ -16,8 +16,8 @@
 //!
 //! ```no_run
 //! use std::sync::Arc;
-//! use sayso::pipeline::{load_classifier, model_path, CorrectionSettings};
-//! use sayso::session::{Coordinator, CoordinatorSettings, JointCorrector, SceneUpload};
+//! use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
+//! use sayso_session::{Coordinator, CoordinatorSettings, JointCorrector, SceneUpload};
 //!
 //! let settings = CorrectionSettings::embedded().unwrap();
 //! let classifier = load_classifier(&model_path(None), settings.grammar.taxonomy()).unwrap();
@@ -41,6 +41,16 @@ pub mod error;
 pub mod field_notes;
 pub mod joint;
 mod joint_inputs;
+
+/// The deployment's settings file, read by `sayso serve` and every command that opens the correction log.
+pub mod config;
+
+use sayso_core::{
+    demo, hypotheses, ids, language, overlay, raster, scene, scenegraph, taxonomy, turn,
+};
+use sayso_correction_log as correction_log;
+use sayso_perception::{pipeline, unaries};
+use sayso_wire as wire;
 
 pub use coordinator::{
     check_utterance_text, Caller, Coordinator, CoordinatorSettings, OpenError, PageRequest, Role,

@@ -1,9 +1,9 @@
 //! The joint energy: one number for a whole explanation of the scene, and every term that makes it up.
 //!
 //! Owns: `JointEnergy` (the serialised form the solver reads and the MILP fixtures write), evaluating it for a
-//! given state, validating it, and (in `build`) turning a scene, its unaries, object hypotheses and grounded
-//! constraints into one.
-//! Must not: search for the minimum (that is `crate::solver::joint`), parse words or touch files.
+//! given state and validating it. Turning a scene, its unaries, object hypotheses and grounded constraints
+//! into one is `sayso_core::energy::build`'s.
+//! Must not: search for the minimum (that is `crate::joint`), parse words or touch files.
 //!
 //! # The energy, term by term
 //!
@@ -36,12 +36,28 @@
 //! `HARD_WEIGHT`, large enough to dominate every other term of a real scene, and is reported as a conflict when
 //! the solution still violates it (the solver never forces an unsatisfiable set).
 
-pub mod build;
-pub mod statistics;
-
 use serde::{Deserialize, Serialize};
 
-use crate::language::constraint::Count;
+
+/// A cardinality: how many objects of a class a count factor admits (the language stage's counts are these).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(tag = "op", content = "n", rename_all = "snake_case")]
+pub enum Count {
+    Exactly(u32),
+    AtLeast(u32),
+    AtMost(u32),
+}
+
+impl Count {
+    /// Whether `n` satisfies the count.
+    pub fn admits(self, n: u32) -> bool {
+        match self {
+            Count::Exactly(k) => n == k,
+            Count::AtLeast(k) => n >= k,
+            Count::AtMost(k) => n <= k,
+        }
+    }
+}
 
 /// The schema of the serialised energy.
 pub const ENERGY_SCHEMA: u32 = 1;

@@ -66,8 +66,8 @@ pub fn data_and_smoothness(problem: &LabellingProblem, labels: &[u16]) -> (f64, 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::solver::expansion::{alpha_expansion, cheapest_labels, LabellingError};
-    use crate::solver::labelling::ExpansionOptions;
+    use crate::expansion::{alpha_expansion, cheapest_labels, LabellingError};
+    use crate::labelling::ExpansionOptions;
     use proptest::prelude::*;
 
     /// Tiny Potts problems: up to 7 nodes, up to 3 labels, integer-valued costs (exact in f32 and f64).

@@ -38,13 +38,13 @@
 use serde::{Deserialize, Serialize};
 
 use crate::energy::{EnergyError, JointEnergy, JointState};
-use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledTables};
-use crate::solver::joint_dual::{
+use crate::joint_coupled::{solve_coupled, CoupledInputs, CoupledTables};
+use crate::joint_dual::{
     adapt_multipliers, diffused_dual_bound, dual_value, fresh_multipliers, subgradient_step,
 };
-use crate::solver::joint_labeller::{candidate_table, widen_to_coarse, Labeller, LabellerTables};
-use crate::solver::joint_moves::{polish, try_class_removals, try_hypothesis_moves};
-use crate::solver::potts_bound::PottsBound;
+use crate::joint_labeller::{candidate_table, widen_to_coarse, Labeller, LabellerTables};
+use crate::joint_moves::{polish, try_class_removals, try_hypothesis_moves};
+use crate::potts_bound::PottsBound;
 
 /// Options of the joint solver.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

@@ -4,12 +4,12 @@
 //!
 //! Owns: `fresh_multipliers`, `adapt_multipliers`, `DualValue`, `dual_value`, `diffused_dual_bound`,
 //! `subgradient_step`.
-//! Must not: keep primal states or decide when the loop stops (that is `crate::solver::joint`); it knows
+//! Must not: keep primal states or decide when the loop stops (that is `crate::joint`); it knows
 //! nothing of language, files or what classes mean.
 
 use crate::energy::JointEnergy;
-use crate::solver::joint::{Context, Multipliers, PresenceMultiplier, Workspace};
-use crate::solver::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
+use crate::joint::{Context, Multipliers, PresenceMultiplier, Workspace};
+use crate::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
 
 pub(crate) fn fresh_multipliers(energy: &JointEnergy) -> Multipliers {
     Multipliers {
@@ -106,7 +106,7 @@ fn coupled_minimum(context: &Context, multipliers: &Multipliers) -> CoupledResul
 /// diffusion (`PottsBound::diffused`) instead of the even split: a tighter valid bound, too costly for
 /// every iteration of the loop, taken once at the best multipliers. The sweeps stop early once they close
 /// little of the gap to `energy_found`, the energy of a state the caller holds, or once the relative gap
-/// to it (as `crate::solver::joint` reports it) is at most `close_gap`.
+/// to it (as `crate::joint` reports it) is at most `close_gap`.
 pub(crate) fn diffused_dual_bound(
     context: &Context,
     workspace: &mut Workspace,

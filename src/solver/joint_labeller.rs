@@ -11,7 +11,7 @@
 //! Alpha-expansion (Boykov, Veksler, Zabih 2001) with label pruning: a node may only move to its few cheapest
 //! labels or to labels the caller adds (hypotheses over it, factors asking for a label), common practice for
 //! many-label Potts problems. Each move is a minimum cut on the Boykov-Kolmogorov graph of
-//! `crate::solver::maxflow`, reset (not reallocated) between moves, and re-scored exactly before it is kept.
+//! `crate::maxflow`, reset (not reallocated) between moves, and re-scored exactly before it is kept.
 //! A node whose unary for `alpha` exceeds its current unary by more than the weights of its edges to
 //! neighbours that are, or may become, `alpha` never switches in that move (switching it back would lower
 //! the energy of any cut), so it stays out of the graph: on the bench scene the nodes per cut fall from
@@ -25,7 +25,7 @@
 //! would give; the joint solver's later dual iterations, whose multipliers move only a few unaries, then cost
 //! a handful of moves each.
 
-use crate::solver::maxflow::FlowGraph;
+use crate::maxflow::FlowGraph;
 
 /// The most sweeps over all labels in one call. Sweeps stop as soon as one changes nothing, which leaves a
 /// local minimum of the allowed expansion moves (every label's move tried on the final labelling and
@@ -512,7 +512,7 @@ pub(crate) fn widen_to_coarse<W: Copy>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::solver::potts_bound::PottsBound;
+    use crate::potts_bound::PottsBound;
 
     /// The one-pass selection keeps the same labels as sorting each row by (cost, label) and taking the
     /// first `CANDIDATE_LABELS`, ties and all.

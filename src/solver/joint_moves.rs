@@ -8,8 +8,8 @@
 //! Must not: keep a state it has not scored with `Context::complete` (the exact completion), nor know what
 //! the classes mean.
 
-use crate::solver::joint::{keep_better, warm_descent, Candidate, Context, Workspace};
-use crate::solver::joint_coupled::{solve_coupled, CoupledInputs};
+use crate::joint::{keep_better, warm_descent, Candidate, Context, Workspace};
+use crate::joint_coupled::{solve_coupled, CoupledInputs};
 
 /// A move is completed exactly only when its screened energy is this far below the best one; rounding in
 /// the screened sum is far smaller.

@@ -1,8 +1,12 @@
-//! The solver: finds the lowest-energy joint labelling.
+//! # sayso-solver
 //!
-//! Owns: max-flow, alpha-expansion over Potts problems, and the coupled joint solve (`joint`).
+//! The joint energy and the solver that finds its lowest-energy joint labelling.
+//!
+//! Owns: the joint energy's serialised form, its evaluation and validation (`energy`), max-flow,
+//! alpha-expansion over Potts problems, and the coupled joint solve (`joint`).
 //! Must not: know about language, files, HTTP or the meaning of classes; it works on numbers and graphs.
 
+pub mod energy;
 pub mod expansion;
 pub mod expansion_reference;
 pub mod joint;

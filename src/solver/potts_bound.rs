@@ -1,5 +1,5 @@
 //! A lower bound of the segment part of the joint energy (unaries and Potts smoothing), for the dual
-//! function of `crate::solver::joint`: edge decomposition with an even split, optionally tightened by
+//! function of `crate::joint`: edge decomposition with an even split, optionally tightened by
 //! min-sum diffusion.
 //!
 //! Owns: `PottsBound`.

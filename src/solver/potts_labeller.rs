@@ -1,14 +1,14 @@
 //! The labeller the joint solver runs (`joint_labeller::Labeller`), offered on a plain Potts problem so it
-//! can be checked and timed against reference alpha-expansions (`crate::solver::expansion_reference`, GCO
+//! can be checked and timed against reference alpha-expansions (`crate::expansion_reference`, GCO
 //! in `benches/joint.rs`).
 //!
 //! Owns: `label_potts` and `CandidateLabels`.
 //! Must not: add behaviour of its own; it builds the labeller's tables the way `solver::joint` does and calls
 //! it once, as the joint solver does per labelling.
 
-use crate::solver::expansion::{cheapest_labels, validate_problem, LabellingError};
-use crate::solver::joint_labeller::{candidate_table, widen_to_coarse, Labeller, LabellerTables};
-use crate::solver::labelling::{LabellingProblem, LabellingResult};
+use crate::expansion::{cheapest_labels, validate_problem, LabellingError};
+use crate::joint_labeller::{candidate_table, widen_to_coarse, Labeller, LabellerTables};
+use crate::labelling::{LabellingProblem, LabellingResult};
 
 /// Which labels a node may switch to.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

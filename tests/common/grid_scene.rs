@@ -9,13 +9,13 @@
 use std::sync::Arc;
 
 use ndarray::Array2;
-use sayso::color::{srgb8_to_lab, Lab};
-use sayso::ids::{RegionId, SegmentId};
-use sayso::raster::RgbImage;
-use sayso::scene::{
+use sayso_core::color::{srgb8_to_lab, Lab};
+use sayso_core::ids::{RegionId, SegmentId};
+use sayso_core::raster::RgbImage;
+use sayso_core::scene::{
     AdjacencyEdge, AdjacencyGraph, BoundingBox, CoarseLevel, Scene, SegmentMap, SegmentStats,
 };
-use sayso::unaries::{Unaries, UnarySource};
+use sayso_perception::unaries::{Unaries, UnarySource};
 
 /// One cell of the layout: its colour and its top classes with probabilities (the rest share what is left).
 #[derive(Clone, Debug)]

@@ -6,16 +6,16 @@
 
 #![allow(dead_code)]
 
-use sayso::energy::build::{EnergyWeights, RoomClassPrior};
-use sayso::grounding::GroundingContext;
-use sayso::hypotheses::ProposalOptions;
-use sayso::language::constraint::{Constraint, ConstraintKind, Span};
-use sayso::scene::Scene;
-use sayso::scenegraph::instances::InstanceCuts;
-use sayso::solver::joint::JointOptions;
-use sayso::taxonomy::Taxonomy;
-use sayso::turn::solve::{correct, Correction, CorrectionRequest};
-use sayso::unaries::Unaries;
+use sayso_core::energy::build::{EnergyWeights, RoomClassPrior};
+use sayso_core::grounding::GroundingContext;
+use sayso_core::hypotheses::ProposalOptions;
+use sayso_core::language::constraint::{Constraint, ConstraintKind, Span};
+use sayso_core::scene::Scene;
+use sayso_core::scenegraph::instances::InstanceCuts;
+use sayso_solver::joint::JointOptions;
+use sayso_core::taxonomy::Taxonomy;
+use sayso_core::turn::solve::{correct, Correction, CorrectionRequest};
+use sayso_perception::unaries::Unaries;
 
 /// A constraint as the parser would give it, spanning the whole gloss.
 pub fn constraint(kind: ConstraintKind, confidence: f32, gloss: &str) -> Constraint {

@@ -5,10 +5,10 @@ use std::net::SocketAddr;
 use std::sync::Arc;
 use std::time::Duration;
 
-use sayso::config::{OperatorToken, Role, ServiceConfig};
-use sayso::service::AppState;
-use sayso::session::JointCorrector;
-use sayso::session::{Coordinator, CoordinatorSettings};
+use sayso_session::config::{OperatorToken, Role, ServiceConfig};
+use sayso_service::AppState;
+use sayso_session::JointCorrector;
+use sayso_session::{Coordinator, CoordinatorSettings};
 use serde_json::Value;
 
 use super::service_support::get;
@@ -54,14 +54,14 @@ pub fn start_service(data: &std::path::Path) -> Service {
         ..ServiceConfig::default()
     };
     config.validate().expect("test config is valid");
-    let engine = JointCorrector::load(&sayso::pipeline::model_path(None)).expect("classifier");
+    let engine = JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier");
     let coordinator = Arc::new(
         Coordinator::open(
             Arc::new(engine),
             &CoordinatorSettings {
                 log_path: config.log_path(),
                 pixel_limit: config.pixel_limit,
-                demo_dir: sayso::demo::demo_directory(None),
+                demo_dir: sayso_render::demo::demo_directory(None),
             },
         )
         .expect("open coordinator"),
@@ -82,7 +82,7 @@ pub fn start_service(data: &std::path::Path) -> Service {
             ready
                 .send(listener.local_addr().expect("address"))
                 .expect("ready");
-            sayso::service::run(listener, state, async {
+            sayso_service::run(listener, state, async {
                 let _ = stopped.await;
             })
             .await
@@ -116,7 +116,7 @@ pub fn listed_objects(browser: &Browser) -> Vec<(u64, String)> {
 
 /// The page's fingerprint of a label map (FNV-1a over the class id of each pixel, as `picture.js` takes
 /// them from the index PNG's one byte per pixel), for a map read from the API.
-pub fn fingerprint(labels: &sayso::raster::IndexImage) -> String {
+pub fn fingerprint(labels: &sayso_core::raster::IndexImage) -> String {
     let mut hash: u32 = 2166136261;
     for &value in &labels.values {
         hash ^= u32::from(value as u8);
@@ -125,10 +125,10 @@ pub fn fingerprint(labels: &sayso::raster::IndexImage) -> String {
     format!("{hash:08x}")
 }
 
-pub fn label_map(address: SocketAddr, path: &str) -> sayso::raster::IndexImage {
+pub fn label_map(address: SocketAddr, path: &str) -> sayso_core::raster::IndexImage {
     let reply = get(address, path, Some(TOKEN));
     assert_eq!(reply.status, 200, "{path}");
-    sayso::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 24).unwrap()
+    sayso_core::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 24).unwrap()
 }
 
 pub fn digest(browser: &Browser) -> String {
@@ -180,7 +180,7 @@ pub fn wait_for_turns(browser: &Browser, count: usize) -> String {
 }
 
 /// A pixel of `object` that carries its class, as close to its frame's centre as there is one.
-pub fn pixel_of(object: &Value, labels: &sayso::raster::IndexImage) -> (u32, u32) {
+pub fn pixel_of(object: &Value, labels: &sayso_core::raster::IndexImage) -> (u32, u32) {
     let frame = &object["box"];
     let (x0, y0, x1, y1) = (
         frame["x0"].as_u64().unwrap() as u32,

@@ -15,18 +15,18 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use base64::Engine;
-use sayso::config::ServiceConfig;
-use sayso::ids::ClassId;
-use sayso::language::constraint::{Constraint, ConstraintKind, Focus, Referent, Span};
-use sayso::raster::{self, IndexImage, RgbImage};
-use sayso::scene::BoundingBox;
-use sayso::service::AppState;
-use sayso::session::corrector::{
+use sayso_session::config::ServiceConfig;
+use sayso_core::ids::ClassId;
+use sayso_core::language::constraint::{Constraint, ConstraintKind, Focus, Referent, Span};
+use sayso_core::raster::{self, IndexImage, RgbImage};
+use sayso_core::scene::BoundingBox;
+use sayso_service::AppState;
+use sayso_session::corrector::{
     Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
     SceneObject, SceneState, SceneSummary, Verdict,
 };
-use sayso::session::{Coordinator, CoordinatorSettings};
-use sayso::taxonomy::Taxonomy;
+use sayso_session::{Coordinator, CoordinatorSettings};
+use sayso_core::taxonomy::Taxonomy;
 
 /// An HTTP response as the tests read it.
 #[derive(Debug)]
@@ -312,7 +312,7 @@ fn grid_summary(labels: &IndexImage) -> SceneSummary {
     for y in 0..labels.height {
         for x in 0..labels.width {
             objects.push(SceneObject {
-                id: sayso::ids::ObjectId(y * labels.width + x + 1),
+                id: sayso_core::ids::ObjectId(y * labels.width + x + 1),
                 class: ClassId(labels.get(x, y)),
                 bbox: BoundingBox {
                     x0: x,
@@ -376,8 +376,8 @@ impl Corrector for GridEngine {
         if words.first() == Some(&"which") {
             return Ok(outcome(
                 Verdict::NeedsClarification {
-                    question: sayso::turn::OpenQuestion {
-                        note: sayso::turn::Note {
+                    question: sayso_core::turn::OpenQuestion {
+                        note: sayso_core::turn::Note {
                             text: request.utterance.to_string(),
                             focus: request.focus,
                             constraints: Vec::new(),
@@ -425,7 +425,7 @@ impl Corrector for GridEngine {
         let mut labels = request.state.labels.clone();
         labels.set(x, y, class.id.0);
         let change = Change {
-            object: Some(sayso::ids::ObjectId(y * labels.width + x + 1)),
+            object: Some(sayso_core::ids::ObjectId(y * labels.width + x + 1)),
             from: Some(ClassId(old)),
             to: Some(class.id),
             pixels: 1,
@@ -453,7 +453,7 @@ impl Corrector for GridEngine {
 
 /// Opens a coordinator with the grid engine on `data_dir`.
 pub fn open_grid_coordinator(data_dir: &Path) -> Arc<Coordinator> {
-    open_grid_coordinator_with(data_dir, sayso::raster::DEFAULT_PIXEL_LIMIT)
+    open_grid_coordinator_with(data_dir, sayso_core::raster::DEFAULT_PIXEL_LIMIT)
 }
 
 /// Opens a coordinator with the grid engine on `data_dir` and a pixel limit.
@@ -518,7 +518,7 @@ pub fn start_service(data_dir: &Path, mut config: ServiceConfig) -> RunningServi
             ready
                 .send(listener.local_addr().expect("address"))
                 .expect("ready");
-            sayso::service::run(listener, state, async {
+            sayso_service::run(listener, state, async {
                 let _ = stopped.await;
             })
             .await
@@ -589,7 +589,7 @@ pub fn router_with(
         )
         .expect("open coordinator"),
     );
-    let router = sayso::service::app(AppState::new(coordinator.clone(), config));
+    let router = sayso_service::app(AppState::new(coordinator.clone(), config));
     (router, coordinator)
 }
 

@@ -1,9 +1,8 @@
 //! The committed demo set: which scenes of the Juniper Lane flat live under `demo_scenes/`, with their seeds.
 //!
 //! Demo seeds live in 1000..=1999. Training renders use seeds from 100000 up, so they never repeat a demo scene.
-//! Owns: that list and the README text describing it. Must not: render or read files.
-
-use super::SceneRequest;
+//! Owns: that list and the README text describing it. Must not: render or read files (the render request
+//! for an entry is `sayso_render::SceneRequest::from(&entry)`).
 
 /// The lowest and highest seed a demo scene may use.
 pub const DEMO_SEEDS: std::ops::RangeInclusive<u64> = 1000..=1999;
@@ -18,16 +17,6 @@ pub struct DemoEntry {
     pub seed: u64,
     /// A one-line description of this particular scene.
     pub note: &'static str,
-}
-
-impl DemoEntry {
-    /// The render request for this entry (640x480).
-    pub fn request(&self) -> SceneRequest {
-        SceneRequest {
-            name: self.name.to_string(),
-            ..SceneRequest::new(self.room, self.seed)
-        }
-    }
 }
 
 /// Every demo scene, in listing order (the first is the default scene of `sayso demo`).

@@ -85,10 +85,10 @@ pub struct RoomClassPrior {
 }
 
 /// The committed prior, embedded so the library needs no files.
-pub const EMBEDDED_PRIOR: &str = include_str!("../../models/room_class_prior.json");
+pub const EMBEDDED_PRIOR: &str = include_str!("../../../models/room_class_prior.json");
 
 /// The committed energy weights (`sayso tune` writes them), embedded so the library needs no files.
-pub const EMBEDDED_WEIGHTS: &str = include_str!("../../models/energy_weights.json");
+pub const EMBEDDED_WEIGHTS: &str = include_str!("../../../models/energy_weights.json");
 
 /// Probability a class listed as typical for a room is in view there, and one that is not (a smoothed guess
 /// from the taxonomy, until training renders exist to count from).

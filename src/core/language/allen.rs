@@ -61,7 +61,7 @@ pub struct CompositionTable {
 }
 
 /// The table shipped with the crate.
-pub const EMBEDDED_TABLE: &str = include_str!("../../grammar/allen_composition.txt");
+pub const EMBEDDED_TABLE: &str = include_str!("../../../grammar/allen_composition.txt");
 
 impl CompositionTable {
     /// The embedded table; validated by a unit test.

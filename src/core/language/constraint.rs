@@ -33,25 +33,8 @@ impl Span {
     }
 }
 
-/// A cardinality.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(tag = "op", content = "n", rename_all = "snake_case")]
-pub enum Count {
-    Exactly(u32),
-    AtLeast(u32),
-    AtMost(u32),
-}
-
-impl Count {
-    /// Whether `n` satisfies the count.
-    pub fn admits(self, n: u32) -> bool {
-        match self {
-            Count::Exactly(k) => n == k,
-            Count::AtLeast(k) => n >= k,
-            Count::AtMost(k) => n <= k,
-        }
-    }
-}
+/// A cardinality (the solver's, so the energy's count factors read it without knowing language).
+pub use crate::energy::Count;
 
 /// A spatial relation between a subject and one (or, for `Between`, two) landmarks.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]

@@ -6,11 +6,11 @@
 //! Must not: look at scene content; referents stay words until the grounding stage resolves them.
 //!
 //! ```
-//! use sayso::language::Grammar;
+//! use sayso_core::language::Grammar;
 //!
 //! let grammar = Grammar::embedded().expect("the embedded grammar is valid");
 //! let parse = grammar.parse("there are two chairs by the table", None).unwrap();
-//! let notation = sayso::language::notation::notation_list(&parse.constraints, grammar.taxonomy());
+//! let notation = sayso_core::language::notation::notation_list(&parse.constraints, grammar.taxonomy());
 //! assert_eq!(notation, ["count(chair, =2)", "rel(chair*, next_to, table)"]);
 //! ```
 

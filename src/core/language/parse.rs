@@ -125,40 +125,40 @@ pub struct Parse {
 const EMBEDDED_LEXICON: &[(&str, &str)] = &[
     (
         "lexicon/classes.lex",
-        include_str!("../../grammar/lexicon/classes.lex"),
+        include_str!("../../../grammar/lexicon/classes.lex"),
     ),
     (
         "lexicon/colours.lex",
-        include_str!("../../grammar/lexicon/colours.lex"),
+        include_str!("../../../grammar/lexicon/colours.lex"),
     ),
     (
         "lexicon/notes.lex",
-        include_str!("../../grammar/lexicon/notes.lex"),
+        include_str!("../../../grammar/lexicon/notes.lex"),
     ),
     (
         "lexicon/numbers.lex",
-        include_str!("../../grammar/lexicon/numbers.lex"),
+        include_str!("../../../grammar/lexicon/numbers.lex"),
     ),
     (
         "lexicon/quantities.lex",
-        include_str!("../../grammar/lexicon/quantities.lex"),
+        include_str!("../../../grammar/lexicon/quantities.lex"),
     ),
     (
         "lexicon/slips.lex",
-        include_str!("../../grammar/lexicon/slips.lex"),
+        include_str!("../../../grammar/lexicon/slips.lex"),
     ),
     (
         "lexicon/words.lex",
-        include_str!("../../grammar/lexicon/words.lex"),
+        include_str!("../../../grammar/lexicon/words.lex"),
     ),
     (
         "site/juniper_lane.lex",
-        include_str!("../../grammar/site/juniper_lane.lex"),
+        include_str!("../../../grammar/site/juniper_lane.lex"),
     ),
 ];
 const EMBEDDED_RULES: &[(&str, &str)] = &[(
     "rules/core.rules",
-    include_str!("../../grammar/rules/core.rules"),
+    include_str!("../../../grammar/rules/core.rules"),
 )];
 
 /// A loaded, validated grammar: taxonomy, lexicon and clause rules.

@@ -11,7 +11,7 @@ use ab_glyph::{point, Font, FontRef, PxScale, ScaleFont};
 use crate::raster::RgbImage;
 
 /// The font file, embedded so pictures need no file at run time.
-const FONT_BYTES: &[u8] = include_bytes!("../../assets/fonts/Go-Medium.ttf");
+const FONT_BYTES: &[u8] = include_bytes!("../../../assets/fonts/Go-Medium.ttf");
 
 fn font() -> Option<&'static FontRef<'static>> {
     static FONT: OnceLock<Option<FontRef<'static>>> = OnceLock::new();

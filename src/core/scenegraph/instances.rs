@@ -43,7 +43,7 @@ use crate::taxonomy::Taxonomy;
 pub const INSTANCE_CUTS_SCHEMA: u32 = 1;
 
 /// The committed cuts, counted by `sayso tune` over training renders.
-pub const EMBEDDED_INSTANCE_CUTS: &str = include_str!("../../models/instance_cuts.json");
+pub const EMBEDDED_INSTANCE_CUTS: &str = include_str!("../../../models/instance_cuts.json");
 
 /// CIE76 units that add 1 to an edge's strength.
 pub const CONTRAST_UNIT: f32 = 10.0;

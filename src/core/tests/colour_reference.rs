@@ -1,4 +1,4 @@
-//! Checks `sayso::color` against scikit-image's `rgb2lab` (D65, CIE 15 two-degree observer).
+//! Checks `sayso_core::color` against scikit-image's `rgb2lab` (D65, CIE 15 two-degree observer).
 //!
 //! Owns: the comparison of our sRGB -> CIELAB conversion with committed reference values.
 //! Must not: regenerate the fixture; `tests/fixtures/colour/make_colour.py` writes `rgb2lab.json`.
@@ -11,7 +11,7 @@
 //! (5e-4 for the double-precision path) covers that plus the fixture's six decimals. The fast per-pixel
 //! converter works in `f32` and is held to 1e-2.
 
-use sayso::color::{srgb8_to_lab, srgb8_to_lab_f64, LabConverter};
+use sayso_core::color::{srgb8_to_lab, srgb8_to_lab_f64, LabConverter};
 use serde::Deserialize;
 
 #[derive(Deserialize)]

@@ -1,9 +1,9 @@
 //! Checks the geometric measures against shapely through a committed fixture.
 //!
-//! Owns: the fixture-driven test of `sayso::geometry` boxes and polygons.
+//! Owns: the fixture-driven test of `sayso_core::geometry` boxes and polygons.
 //! Must not: run Python; the fixture was made by tests/fixtures/geometry/make_geometry_cases.py.
 
-use sayso::geometry::{Point, Polygon, Rect};
+use sayso_core::geometry::{Point, Polygon, Rect};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -49,7 +49,7 @@ fn close(ours: f64, theirs: f64) -> bool {
 fn boxes_and_polygons_match_shapely() {
     let path = format!(
         "{}/tests/fixtures/geometry/geometry_cases.json",
-        env!("CARGO_MANIFEST_DIR")
+        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
     );
     let fixture: Fixture =
         serde_json::from_str(&std::fs::read_to_string(&path).expect("fixture exists"))

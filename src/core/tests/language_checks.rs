@@ -8,16 +8,16 @@
 use std::collections::{BTreeMap, BTreeSet};
 
 use proptest::prelude::*;
-use sayso::language::allen::{converse, names_of, set_of, CompositionTable, ALL};
-use sayso::language::lexicon::Tag;
-use sayso::language::notation::{colour_name, notation_list};
-use sayso::language::{ConflictKind, Conversation, Grammar, LanguageError};
-use sayso::taxonomy::Taxonomy;
+use sayso_core::language::allen::{converse, names_of, set_of, CompositionTable, ALL};
+use sayso_core::language::lexicon::Tag;
+use sayso_core::language::notation::{colour_name, notation_list};
+use sayso_core::language::{ConflictKind, Conversation, Grammar, LanguageError};
+use sayso_core::taxonomy::Taxonomy;
 
 fn fixture(name: &str) -> String {
     std::fs::read_to_string(format!(
         "{}/tests/fixtures/language/{name}",
-        env!("CARGO_MANIFEST_DIR")
+        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
     ))
     .unwrap_or_else(|error| panic!("fixture {name}: {error}"))
 }
@@ -215,7 +215,7 @@ fn allen_table_matches_enumeration_and_known_entries() {
 fn conversation_cases_report_contradictions_and_redundancy_with_both_spans() {
     let grammar = grammar();
     let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
+        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
         "/tests/language/conversations.jsonl"
     ))
     .expect("cases");
@@ -291,7 +291,7 @@ fn previous_deixis_binds_to_the_last_referent_across_turns() {
 #[test]
 fn a_site_word_file_adds_words_without_recompiling() {
     let directory = tempfile::tempdir().unwrap();
-    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("grammar");
+    let root = std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../..")).join("grammar");
     for sub in ["lexicon", "rules", "site"] {
         std::fs::create_dir_all(directory.path().join(sub)).unwrap();
         for entry in std::fs::read_dir(root.join(sub)).unwrap() {
@@ -357,10 +357,10 @@ fn spans_point_into_the_original_text_and_notes_explain_misspellings() {
     assert_eq!(covered, "the “lamp” is next to the sofaa");
     assert!(constraint.confidence < 1.0);
     assert!(parse.notes.iter().any(|note| matches!(&note.kind,
-        sayso::language::NoteKind::MisspellingAccepted { written, read_as } if written == "sofaa" && read_as == "sofa")));
+        sayso_core::language::NoteKind::MisspellingAccepted { written, read_as } if written == "sofaa" && read_as == "sofa")));
     let unknown = grammar.parse("the mug is on the ottoman", None).unwrap();
     assert!(unknown.notes.iter().any(|note| matches!(&note.kind,
-        sayso::language::NoteKind::UnknownWord { written, .. } if written == "ottoman")));
+        sayso_core::language::NoteKind::UnknownWord { written, .. } if written == "ottoman")));
 }
 
 #[test]
@@ -370,7 +370,7 @@ fn removing_or_renaming_a_safety_class_asks_for_confirmation() {
         grammar.parse(text, None).unwrap().notes.iter().any(|note| {
             matches!(
                 note.kind,
-                sayso::language::NoteKind::NeedsConfirmation { .. }
+                sayso_core::language::NoteKind::NeedsConfirmation { .. }
             )
         })
     };
@@ -420,7 +420,7 @@ proptest! {
 
 #[test]
 fn the_grammar_directory_on_disk_reads_the_same_as_the_embedded_copy() {
-    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("grammar");
+    let root = std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../..")).join("grammar");
     let loaded = Grammar::load(&root).expect("grammar directory");
     let embedded = grammar();
     assert_eq!(loaded.lexicon().phrases(), embedded.lexicon().phrases());

@@ -7,8 +7,8 @@
 
 use std::collections::BTreeMap;
 
-use sayso::language::notation::notation_list;
-use sayso::language::{parse_focus, Grammar, LanguageError};
+use sayso_core::language::notation::notation_list;
+use sayso_core::language::{parse_focus, Grammar, LanguageError};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -116,7 +116,7 @@ fn score(grammar: &Grammar, text: &str) -> Score {
 fn corpus_frame_exact_accuracy_per_construction() {
     let grammar = Grammar::embedded().expect("embedded grammar");
     let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
+        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
         "/tests/language/corpus.jsonl"
     ))
     .expect("corpus file");
@@ -163,7 +163,7 @@ fn corpus_frame_exact_accuracy_per_construction() {
 fn heldout_frame_exact_accuracy_is_reported() {
     let grammar = Grammar::embedded().expect("embedded grammar");
     let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
+        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
         "/tests/language/heldout.jsonl"
     ))
     .expect("held-out file");

@@ -8,8 +8,8 @@
 
 use std::collections::BTreeMap;
 
-use sayso::language::notation::notation_list;
-use sayso::language::{parse_focus, Grammar, LanguageError};
+use sayso_core::language::notation::notation_list;
+use sayso_core::language::{parse_focus, Grammar, LanguageError};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -127,7 +127,7 @@ fn grammar() -> Grammar {
 }
 
 fn load(name: &str) -> String {
-    let path = format!("{}/tests/language/{name}", env!("CARGO_MANIFEST_DIR"));
+    let path = format!("{}/tests/language/{name}", concat!(env!("CARGO_MANIFEST_DIR"), "/../.."));
     std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"))
 }
 

@@ -2,7 +2,7 @@
 //! ring, and against a committed golden picture; the class palette's separation; `labels.png` as a palette
 //! PNG.
 //!
-//! Owns: checks on `sayso::overlay` output and the taxonomy's colours.
+//! Owns: checks on `sayso_core::overlay` output and the taxonomy's colours.
 //! Must not: check the correction itself (the labels here are made up for the picture).
 //!
 //! The golden picture `tests/fixtures/pictures/before_after_golden.png` is our own output, looked at by a
@@ -11,17 +11,17 @@
 
 use std::path::Path;
 
-use sayso::color::{
+use sayso_core::color::{
     chromatic_distance, srgb8_to_lab, PALETTE_MIN_CHROMATIC_DISTANCE, PALETTE_MIN_DELTA_E,
 };
-use sayso::overlay::legend::PANEL_TEXT;
-use sayso::overlay::paint::CHANGE_RING;
-use sayso::overlay::{draw_before_after, OverlayOptions, RegionMap, View, VIEW_GAP};
-use sayso::raster::{
+use sayso_core::overlay::legend::PANEL_TEXT;
+use sayso_core::overlay::paint::CHANGE_RING;
+use sayso_core::overlay::{draw_before_after, OverlayOptions, RegionMap, View, VIEW_GAP};
+use sayso_core::raster::{
     encode_palette_png, read_index_png, read_rgb_png, write_palette_png, write_rgb_png, IndexImage,
     RgbImage, DEFAULT_PIXEL_LIMIT,
 };
-use sayso::taxonomy::Taxonomy;
+use sayso_core::taxonomy::Taxonomy;
 
 const WIDTH: u32 = 160;
 const HEIGHT: u32 = 120;
@@ -55,7 +55,7 @@ fn scene(taxonomy: &Taxonomy) -> (RgbImage, Vec<u16>, Vec<u16>) {
     (image, before, after)
 }
 
-fn draw(taxonomy: &Taxonomy) -> sayso::overlay::BeforeAfter {
+fn draw(taxonomy: &Taxonomy) -> sayso_core::overlay::BeforeAfter {
     let (image, before, after) = scene(taxonomy);
     let before_regions: Vec<u32> = before.iter().map(|&c| u32::from(c)).collect();
     let after_regions: Vec<u32> = after.iter().map(|&c| u32::from(c)).collect();
@@ -153,7 +153,7 @@ fn before_and_after_share_a_size_a_legend_and_ring_the_change() {
 fn the_overlay_matches_its_golden_picture() {
     let taxonomy = Taxonomy::embedded();
     let drawn = draw(&taxonomy).side_by_side;
-    let golden_path = Path::new(env!("CARGO_MANIFEST_DIR"))
+    let golden_path = Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../.."))
         .join("tests/fixtures/pictures/before_after_golden.png");
     if std::env::var_os("SAYSO_WRITE_GOLDEN").is_some() {
         std::fs::create_dir_all(golden_path.parent().unwrap()).unwrap();
@@ -176,7 +176,7 @@ fn the_overlay_matches_its_golden_picture() {
 
 #[test]
 fn the_class_palette_keeps_every_pair_apart_in_cielab() {
-    // CIELAB by sayso::color, itself checked against scikit-image's rgb2lab in tests/colour_reference.rs.
+    // CIELAB by sayso_core::color, itself checked against scikit-image's rgb2lab in tests/colour_reference.rs.
     let taxonomy = Taxonomy::embedded();
     let colours: Vec<[u8; 3]> = taxonomy.classes().iter().map(|c| c.colour).collect();
     assert_eq!(colours.len(), 41);

@@ -1,4 +1,4 @@
-//! Checks `sayso::slic` against scikit-image's `slic` on the committed reference images.
+//! Checks `sayso_core::slic` against scikit-image's `slic` on the committed reference images.
 //!
 //! Owns: the comparison of our superpixels with scikit-image 0.26 `skimage.segmentation.slic`
 //! (n_segments=400, compactness=10, max_num_iter=10, sigma=0, convert2lab, enforce_connectivity,
@@ -9,17 +9,17 @@
 //! Must not: regenerate fixtures or time anything (timing lives in benches/slic.rs).
 //!
 //! Checks: our segment count is within 15% of the 400 requested; our boundary recall at 2 pixels (Martin et
-//! al. 2004 style, see `sayso::slic::metrics`) is at most 0.02 below scikit-image's on every image with a
+//! al. 2004 style, see `sayso_core::slic::metrics`) is at most 0.02 below scikit-image's on every image with a
 //! ground truth; our Rust metrics reproduce the script's numpy figures on scikit-image's own segments. The
 //! under-segmentation error (Neubert and Protzel 2012 form) of both is printed beside the recall.
 
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 
-use sayso::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
-use sayso::slic::connectivity::is_each_segment_connected;
-use sayso::slic::metrics::{boundary_recall, undersegmentation_error};
-use sayso::slic::{slic, SlicParams};
+use sayso_core::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
+use sayso_core::slic::connectivity::is_each_segment_connected;
+use sayso_core::slic::metrics::{boundary_recall, undersegmentation_error};
+use sayso_core::slic::{slic, SlicParams};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -44,7 +44,7 @@ struct ReferenceImage {
 
 /// Paths in the reference are relative to the repository root.
 fn repository_path(relative: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(relative)
+    Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../..")).join(relative)
 }
 
 fn reference() -> Reference {

@@ -10,7 +10,7 @@ use regex::Regex;
 use serde::Deserialize;
 
 /// The default phrase lists, compiled in.
-pub const EMBEDDED_CONVERSATION: &str = include_str!("../../grammar/conversation.toml");
+pub const EMBEDDED_CONVERSATION: &str = include_str!("../../../grammar/conversation.toml");
 
 /// An utterance that steers the conversation.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -16,7 +16,7 @@ use crate::raster::RasterError;
 use crate::taxonomy::Taxonomy;
 
 /// The synonym table shipped in the crate.
-pub const EMBEDDED_SYNONYMS: &str = include_str!("../../grammar/perception_synonyms.toml");
+pub const EMBEDDED_SYNONYMS: &str = include_str!("../../../grammar/perception_synonyms.toml");
 
 /// Why per-pixel scores, a user model, a label map or detections could not become unaries.
 #[derive(Debug, thiserror::Error)]

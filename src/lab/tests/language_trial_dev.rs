@@ -10,12 +10,12 @@
 
 use std::collections::BTreeMap;
 
-use sayso::ids::{ClassId, RoomId};
-use sayso::language::constraint::{Constraint, ConstraintKind, Count, Deixis, Focus, Relation};
-use sayso::language::notation::notation_list;
-use sayso::language::Grammar;
-use sayso::trial::operator::SECTIONS;
-use sayso::trial::phrasings::{fill, PhrasingSet, Phrasings, Slots};
+use sayso_core::ids::{ClassId, RoomId};
+use sayso_core::language::constraint::{Constraint, ConstraintKind, Count, Deixis, Focus, Relation};
+use sayso_core::language::notation::notation_list;
+use sayso_core::language::Grammar;
+use sayso_lab::trial::operator::SECTIONS;
+use sayso_lab::trial::phrasings::{fill, PhrasingSet, Phrasings, Slots};
 
 /// Number words the count sections are filled with (`fill` spells them out).
 const COUNTS: [u32; 6] = [2, 3, 4, 6, 11, 12];

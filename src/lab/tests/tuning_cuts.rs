@@ -1,15 +1,15 @@
-//! Re-choosing instance cut strengths on solved training renders (`sayso::tuning_cuts`): the objects it
+//! Re-choosing instance cut strengths on solved training renders (`sayso_lab::tuning_cuts`): the objects it
 //! scores are the scene graph's objects, and the choice never loses against the counted cuts.
 //! The scenes are training renders (seeds from 300000, disjoint from the demo seeds and from the 42 renders
 //! `sayso tune` chooses on).
 
-use sayso::evaluation::{object_accuracy, objects_from_graph};
-use sayso::pipeline::{believe_without_notes, load_classifier, model_path, CorrectionSettings};
-use sayso::scenegraph::instance_statistics::CANDIDATE_CUTS;
-use sayso::scenegraph::instances::{InstanceCuts, InstanceCutsFile, EMBEDDED_INSTANCE_CUTS};
-use sayso::taxonomy::Taxonomy;
-use sayso::tuning::{prepare_tuning_scenes, MIN_GAIN};
-use sayso::tuning_cuts::{cut_objective, refine_cuts, solve_states, SolvedState};
+use sayso_lab::evaluation::{object_accuracy, objects_from_graph};
+use sayso_perception::pipeline::{believe_without_notes, load_classifier, model_path, CorrectionSettings};
+use sayso_core::scenegraph::instance_statistics::CANDIDATE_CUTS;
+use sayso_core::scenegraph::instances::{InstanceCuts, InstanceCutsFile, EMBEDDED_INSTANCE_CUTS};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::tuning::{prepare_tuning_scenes, MIN_GAIN};
+use sayso_lab::tuning_cuts::{cut_objective, refine_cuts, solve_states, SolvedState};
 
 #[test]
 fn refined_cuts_score_the_scene_graphs_objects_and_never_lose() {

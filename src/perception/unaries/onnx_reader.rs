@@ -142,7 +142,7 @@ mod tests {
     fn the_shipped_model_reads_as_one_hidden_layer() {
         let bytes = std::fs::read(concat!(
             env!("CARGO_MANIFEST_DIR"),
-            "/models/segment_classifier.onnx"
+            "/../../models/segment_classifier.onnx"
         ))
         .unwrap();
         let mlp = read_mlp(&bytes, "shipped").unwrap();

@@ -10,7 +10,7 @@ use crate::correction_log::{ConversationKey, SceneKey};
 use serde::{Deserialize, Serialize};
 
 use super::{lock, Coordinator};
-use crate::session::error::{ErrorKind, SessionError};
+use crate::error::{ErrorKind, SessionError};
 use crate::wire::{ConversationListed, ConversationPage, SceneListed, ScenePage};
 
 /// The most items one page of a list holds.

@@ -11,7 +11,7 @@ use crate::taxonomy::Taxonomy;
 use crate::turn::Candidate;
 
 use super::SceneSlot;
-use crate::session::corrector::{Change, SceneSummary, Unmet};
+use crate::corrector::{Change, SceneSummary, Unmet};
 use crate::wire::{
     CandidateOut, ChangeOut, ConstraintOut, FocusIn, ObjectOut, PixelBox, SceneGraphOut, TextSpan,
     UnmetOut,

@@ -21,8 +21,8 @@ use crate::unaries::byo_detections::{DetectionMask, MaskRuns};
 
 use super::{encode_state, lock, log_error, Coordinator, SceneSlot};
 use crate::raster::DepthImage;
-use crate::session::corrector::{CorrectorError, Detection, PerceptionClasses, SceneInput};
-use crate::session::error::{ErrorKind, SessionError};
+use crate::corrector::{CorrectorError, Detection, PerceptionClasses, SceneInput};
+use crate::error::{ErrorKind, SessionError};
 use crate::wire::{RegisterSceneRequest, SceneCreated};
 
 /// A scene as the caller sent it, base64 already removed.
@@ -515,7 +515,7 @@ impl Coordinator {
         })
         .map_err(SessionError::internal)?;
         // Past this check the request is no longer abandoned by its time limit: the caller gets the ids.
-        if !crate::session::abandon::may_commit() {
+        if !crate::abandon::may_commit() {
             return Err(super::withdrawn());
         }
         let (key, version) = lock(&self.log)

@@ -20,10 +20,10 @@ use super::{
     decode_state, encode_state, lock, log_error, ConversationSlot, Coordinator, PendingSlot,
     UTTERANCE_CHARACTER_LIMIT,
 };
-use crate::session::corrector::{
+use crate::corrector::{
     CorrectionOutcome, CorrectionRequest, CorrectorError, Lineage, PastTurn, SceneHandle, Verdict,
 };
-use crate::session::error::SessionError;
+use crate::error::SessionError;
 use crate::wire::{
     FocusIn, HistoryOut, PendingOut, TurnOut, TurnReply, TurnStatus, UtteranceReply,
 };

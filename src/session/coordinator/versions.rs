@@ -12,8 +12,8 @@ use crate::correction_log::{CorrectionLog, LogError, SceneKey, VersionKey};
 use crate::raster;
 
 use super::{convert, decode_state, lock, log_error, Caller, Coordinator};
-use crate::session::corrector::SceneState;
-use crate::session::error::SessionError;
+use crate::corrector::SceneState;
+use crate::error::SessionError;
 use crate::wire::{SceneGraphOut, SceneVersions, VersionListed};
 
 /// The longest chain of versions the list walks back (the oldest beyond it are left out, and said so).

@@ -3,10 +3,10 @@
 //! Owns: the fixture-driven tests for max-flow (against PyMaxflow) and alpha-expansion (against GCO).
 //! Must not: run Python or touch the network; the fixtures were made by the scripts named below.
 
-use sayso::solver::expansion::alpha_expansion;
-use sayso::solver::labelling::{ExpansionOptions, LabellingProblem};
-use sayso::solver::maxflow_reference::{cut_capacity, FlowProblem};
-use sayso::solver::potts_labeller::{label_potts, CandidateLabels};
+use sayso_solver::expansion::alpha_expansion;
+use sayso_solver::labelling::{ExpansionOptions, LabellingProblem};
+use sayso_solver::maxflow_reference::{cut_capacity, FlowProblem};
+use sayso_solver::potts_labeller::{label_potts, CandidateLabels};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -45,7 +45,7 @@ struct PottsCase {
 fn load<T: for<'de> Deserialize<'de>>(file: &str) -> T {
     let path = format!(
         "{}/tests/fixtures/solver/{file}",
-        env!("CARGO_MANIFEST_DIR")
+        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
     );
     let text = std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"));
     serde_json::from_str(&text).unwrap_or_else(|error| panic!("{path}: {error}"))

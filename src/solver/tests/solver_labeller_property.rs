@@ -9,9 +9,9 @@
 //! Must not: time anything (benches/joint.rs does).
 
 use proptest::prelude::*;
-use sayso::solver::expansion::alpha_expansion;
-use sayso::solver::labelling::{ExpansionOptions, LabellingProblem};
-use sayso::solver::potts_labeller::{label_potts, CandidateLabels};
+use sayso_solver::expansion::alpha_expansion;
+use sayso_solver::labelling::{ExpansionOptions, LabellingProblem};
+use sayso_solver::potts_labeller::{label_potts, CandidateLabels};
 
 /// A `columns x rows` grid problem from a seed: integer-valued costs so both solvers read them exactly.
 fn problem(
