@@ -37,6 +37,7 @@ pub mod hypotheses;
 pub mod ids;
 pub mod language;
 pub mod overlay;
+pub mod random;
 pub mod raster;
 pub mod scene;
 pub mod scenegraph;

@@ -148,7 +148,7 @@ pub fn calibrate(logits: ArrayView2<f32>, labels: &[usize]) -> CalibrationReport
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::unaries::rng::SplitMix64;
+    use crate::random::SplitMix64;
     use ndarray::{array, Array2};
 
     #[test]
@@ -170,7 +170,7 @@ mod tests {
         for row in 0..rows {
             let z: Vec<f64> = (0..3).map(|_| generator.next_normal()).collect();
             let total: f64 = z.iter().map(|v| v.exp()).sum();
-            let draw = generator.next_unit() * total;
+            let draw = generator.unit() * total;
             let mut cumulative = 0.0;
             let mut label = 2;
             for (class, value) in z.iter().enumerate() {

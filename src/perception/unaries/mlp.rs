@@ -116,7 +116,7 @@ pub fn log_softmax_rows(mut logits: Array2<f32>) -> Array2<f32> {
 /// A network with seeded random weights (He-scaled normal) and normalisation, for fixtures and benchmarks.
 /// `widths` is `[features, hidden..., classes]`.
 pub fn seeded_random_mlp(seed: u64, widths: &[usize]) -> Mlp {
-    let mut generator = super::rng::SplitMix64::new(seed);
+    let mut generator = crate::random::SplitMix64::new(seed);
     let feature_count = widths.first().copied().unwrap_or(0);
     let mut draw = |scale: f64| (generator.next_normal() * scale) as f32;
     let feature_means = Array1::from_shape_fn(feature_count, |_| draw(10.0));

@@ -22,7 +22,6 @@ pub mod onnx_reader;
 pub mod onnx_writer;
 pub mod perception;
 pub mod pooling;
-pub mod rng;
 pub mod split;
 pub mod trainer;
 

@@ -6,7 +6,7 @@
 
 use ndarray::Array2;
 
-use super::rng::SplitMix64;
+use crate::random::SplitMix64;
 use super::trainer::{LabelledFeatures, TrainError};
 
 /// Splits rows at random (seeded) into a training part and a validation part of `fraction` of the rows,

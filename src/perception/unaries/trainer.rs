@@ -14,7 +14,7 @@ use ndarray::{Array1, Array2, ArrayView2, Axis};
 
 use super::calibration::{calibrate, negative_log_likelihood, CalibrationReport};
 use super::mlp::{DenseLayer, Mlp};
-use super::rng::SplitMix64;
+use crate::random::SplitMix64;
 pub use super::split::{split_by_scene, split_for_validation};
 
 /// The network shape to train.
