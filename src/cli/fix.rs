@@ -15,6 +15,7 @@ use sayso_perception::pipeline::{
     CorrectionSettings, PointedNote, SceneSource,
 };
 use sayso_core::raster::{write_palette_png, write_rgb_png};
+use sayso_core::scene::files::LABELS_FILE;
 use sayso_core::scenegraph::{label_map, SceneGraph};
 use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
 use sayso_core::turn::dialogue::Status;
@@ -319,7 +320,7 @@ pub fn write_outputs(
     write_rgb_png(&out.join("overlay_after.png"), &pictures.after)?;
     write_rgb_png(&out.join("before_after.png"), &pictures.side_by_side)?;
     write_palette_png(
-        &out.join("labels.png"),
+        &out.join(LABELS_FILE),
         &label_map(scene, report.final_labels()),
         &label_palette(taxonomy),
     )?;

@@ -13,6 +13,9 @@ use std::path::{Path, PathBuf};
 use serde::Serialize;
 
 use super::{CorrectionLog, LogError};
+use crate::scene::files::{
+    DEPTH_FILE, IMAGE_FILE, LABELS_BEFORE_FILE, LABELS_FILE, METADATA_FILE,
+};
 use crate::taxonomy::Taxonomy;
 
 /// What went wrong exporting.
@@ -191,15 +194,15 @@ pub fn export_dataset_showing(
             source,
         })?;
         write_file(
-            &example_directory.join("image.png"),
+            &example_directory.join(IMAGE_FILE),
             &log.blob(&example.image_hash)?,
         )?;
         write_file(
-            &example_directory.join("labels.png"),
+            &example_directory.join(LABELS_FILE),
             &log.blob(&example.labels_after_hash)?,
         )?;
         write_file(
-            &example_directory.join("labels_before.png"),
+            &example_directory.join(LABELS_BEFORE_FILE),
             &log.blob(&example.labels_before_hash)?,
         )?;
         let image = log.blob(&example.image_hash)?;
@@ -211,8 +214,8 @@ pub fn export_dataset_showing(
             .and_then(|input| input.get("depth_png")?.as_str().map(str::to_string));
         let depth = match depth_hash {
             Some(hash) => {
-                write_file(&example_directory.join("depth.png"), &log.blob(&hash)?)?;
-                Some(format!("{folder}/depth.png"))
+                write_file(&example_directory.join(DEPTH_FILE), &log.blob(&hash)?)?;
+                Some(format!("{folder}/{DEPTH_FILE}"))
             }
             None => None,
         };
@@ -222,9 +225,9 @@ pub fn export_dataset_showing(
             height,
             room: room.as_deref(),
             directory: folder.clone(),
-            image: format!("{folder}/image.png"),
-            labels: format!("{folder}/labels.png"),
-            labels_before: format!("{folder}/labels_before.png"),
+            image: format!("{folder}/{IMAGE_FILE}"),
+            labels: format!("{folder}/{LABELS_FILE}"),
+            labels_before: format!("{folder}/{LABELS_BEFORE_FILE}"),
             depth,
             scene_id: example.scene.0,
             scene_name: &example.scene_name,
@@ -239,7 +242,7 @@ pub fn export_dataset_showing(
             model: log.version(example.version)?.0.model,
         };
         let scene_text = serde_json::to_string_pretty(&record).unwrap_or_default();
-        write_file(&example_directory.join("scene.json"), scene_text.as_bytes())?;
+        write_file(&example_directory.join(METADATA_FILE), scene_text.as_bytes())?;
         let line = serde_json::to_string(&record).unwrap_or_default();
         index.extend_from_slice(line.as_bytes());
         index.push(b'\n');

@@ -46,7 +46,7 @@ mod schema;
 mod store;
 mod time;
 
-use sayso_core::{ids, raster, taxonomy};
+use sayso_core::{ids, raster, scene, taxonomy};
 
 pub use backend::{CorrectionLog, LogLocation};
 pub use checkpoint::BackgroundCheckpoints;

@@ -58,6 +58,10 @@ pub const DETECTIONS_FILE: &str = "detections.jsonl";
 /// Ground truth: class per pixel.
 pub const LABELS_FILE: &str = "labels.png";
 
+/// An exported correction: the labels before it (beside `LABELS_FILE`, the labels after), written by the
+/// correction log's export and read by retraining.
+pub const LABELS_BEFORE_FILE: &str = "labels_before.png";
+
 /// Ground truth: object number per pixel.
 pub const INSTANCES_FILE: &str = "instances.png";
 

@@ -16,6 +16,7 @@ use ndarray::Axis;
 use super::RetrainError;
 use crate::features::segment_features;
 use crate::raster::IndexImage;
+use crate::scene::files::LABELS_BEFORE_FILE;
 use crate::scene::{Scene, SceneParams};
 use crate::taxonomy::Taxonomy;
 use crate::unaries::dataset::{load_labelled_image, majority_labels, DatasetEntry, LabelledImage};
@@ -113,13 +114,13 @@ pub fn read_corrections(
             directory: directory.join(&last.1),
         };
         let labelled = load_labelled_image(&entry, taxonomy.class_count())?;
-        let before_path = directory.join(&first.1).join("labels_before.png");
+        let before_path = directory.join(&first.1).join(LABELS_BEFORE_FILE);
         let before =
             crate::raster::read_index_png(&before_path, crate::raster::DEFAULT_PIXEL_LIMIT)?;
         if before.width != labelled.labels.width || before.height != labelled.labels.height {
             return Err(RetrainError::Read {
                 path: before_path,
-                message: "labels_before.png is not the size of the image".into(),
+                message: format!("{LABELS_BEFORE_FILE} is not the size of the image"),
             });
         }
         scenes.push(CorrectedScene {

@@ -14,6 +14,7 @@ use crate::raster::{
     read_depth_png, read_index_png, read_rgb_png, DepthImage, IndexImage, RasterError, RgbImage,
     DEFAULT_PIXEL_LIMIT,
 };
+use crate::scene::files::{DEPTH_FILE, IMAGE_FILE, LABELS_FILE, METADATA_FILE};
 use crate::scene::SegmentMap;
 use crate::taxonomy::UNLABELLED;
 
@@ -93,7 +94,7 @@ pub fn list_dataset(directory: &Path) -> Result<Vec<DatasetEntry>, DatasetError>
     for item in std::fs::read_dir(directory).map_err(list_error)? {
         let item = item.map_err(list_error)?;
         let path = item.path();
-        if path.is_dir() && path.join("image.png").is_file() {
+        if path.is_dir() && path.join(IMAGE_FILE).is_file() {
             entries.push(DatasetEntry {
                 name: item.file_name().to_string_lossy().into_owned(),
                 directory: path,
@@ -115,14 +116,14 @@ pub fn load_labelled_image(
     class_count: usize,
 ) -> Result<LabelledImage, DatasetError> {
     let directory = &entry.directory;
-    let labels_path = directory.join("labels.png");
+    let labels_path = directory.join(LABELS_FILE);
     if !labels_path.is_file() {
         return Err(DatasetError::MissingFile {
             path: directory.clone(),
-            file: "labels.png",
+            file: LABELS_FILE,
         });
     }
-    let image = read_rgb_png(&directory.join("image.png"), DEFAULT_PIXEL_LIMIT)?;
+    let image = read_rgb_png(&directory.join(IMAGE_FILE), DEFAULT_PIXEL_LIMIT)?;
     let labels = read_index_png(&labels_path, DEFAULT_PIXEL_LIMIT)?;
     let same_size = |path: PathBuf, found_width: u32, found_height: u32| {
         if found_width != image.width || found_height != image.height {
@@ -149,7 +150,7 @@ pub fn load_labelled_image(
             class_count,
         });
     }
-    let depth_path = directory.join("depth.png");
+    let depth_path = directory.join(DEPTH_FILE);
     let depth = if depth_path.is_file() {
         let depth = read_depth_png(&depth_path, DEFAULT_PIXEL_LIMIT)?;
         same_size(depth_path, depth.width, depth.height)?;
@@ -157,7 +158,7 @@ pub fn load_labelled_image(
     } else {
         None
     };
-    let metadata_path = directory.join("scene.json");
+    let metadata_path = directory.join(METADATA_FILE);
     let metadata = if metadata_path.is_file() {
         let text =
             std::fs::read_to_string(&metadata_path).map_err(|error| DatasetError::Metadata {
