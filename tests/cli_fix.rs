@@ -11,7 +11,7 @@ use std::process::Command;
 use sayso_core::features::{FEATURE_COUNT, FEATURE_LAYOUT_VERSION};
 use sayso_core::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
 use sayso_core::taxonomy::Taxonomy;
-use sayso_perception::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use sayso_perception::unaries::contract::ModelContract;
 use sayso_perception::unaries::mlp::seeded_random_mlp;
 use sayso_perception::unaries::onnx_writer::encode_model;
 
@@ -22,14 +22,7 @@ fn sayso() -> Command {
 fn seeded_model(directory: &Path) -> PathBuf {
     let taxonomy = Taxonomy::embedded();
     let mlp = seeded_random_mlp(7, &[FEATURE_COUNT, 8, taxonomy.class_count()]);
-    let contract = ModelContract {
-        format_version: MODEL_FORMAT_VERSION,
-        class_names: taxonomy.classes().iter().map(|c| c.name.clone()).collect(),
-        feature_layout_version: FEATURE_LAYOUT_VERSION,
-        feature_means: mlp.feature_means.to_vec(),
-        feature_stds: mlp.feature_stds.to_vec(),
-        temperature: mlp.temperature,
-    };
+    let contract = ModelContract::for_network(&taxonomy, &mlp, FEATURE_LAYOUT_VERSION);
     let path = directory.join("seeded.onnx");
     std::fs::write(&path, encode_model(&mlp, &contract).unwrap()).unwrap();
     path

@@ -19,7 +19,7 @@ use sayso_perception::unaries::builtin::{
     dataset_scene_rows, evaluate_on_dataset, DepthUse, IMAGE_ONLY_MODEL_CARD,
     IMAGE_ONLY_MODEL_FILE, MODEL_FILE,
 };
-use sayso_perception::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use sayso_perception::unaries::contract::ModelContract;
 use sayso_perception::unaries::dataset::read_feature_csv;
 use sayso_perception::unaries::dataset::{list_dataset, DatasetEntry};
 use sayso_perception::unaries::model_card::EvaluationFigures;
@@ -289,18 +289,7 @@ pub fn run(args: TrainArgs) -> anyhow::Result<()> {
         show_progress: true,
     };
     let outcome = train(&training, &validation, taxonomy.class_count(), &config)?;
-    let contract = ModelContract {
-        format_version: MODEL_FORMAT_VERSION,
-        class_names: taxonomy
-            .classes()
-            .iter()
-            .map(|class| class.name.clone())
-            .collect(),
-        feature_layout_version: layout_version,
-        feature_means: outcome.mlp.feature_means.to_vec(),
-        feature_stds: outcome.mlp.feature_stds.to_vec(),
-        temperature: outcome.mlp.temperature,
-    };
+    let contract = ModelContract::for_network(&taxonomy, &outcome.mlp, layout_version);
     let bytes = encode_model(&outcome.mlp, &contract)?;
     std::fs::create_dir_all(&out).with_context(|| format!("creating {}", out.display()))?;
     let model_path = out.join(if args.without_depth {

@@ -31,7 +31,7 @@ use indicatif::{ProgressBar, ProgressStyle};
 
 use crate::scene::SceneParams;
 use crate::taxonomy::Taxonomy;
-use crate::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+use crate::unaries::contract::ModelContract;
 use crate::unaries::mlp::Mlp;
 use crate::unaries::trainer::{train_from, LabelledFeatures, TrainingConfig, TrainingOutcome};
 use crate::unaries::{current_feature_layout, Classifier};
@@ -277,14 +277,7 @@ pub fn fine_tune(
         &training_config,
         Some(&base_mlp),
     )?;
-    let contract = ModelContract {
-        format_version: MODEL_FORMAT_VERSION,
-        class_names: taxonomy.classes().iter().map(|c| c.name.clone()).collect(),
-        feature_layout_version: layout.version,
-        feature_means: training.mlp.feature_means.to_vec(),
-        feature_stds: training.mlp.feature_stds.to_vec(),
-        temperature: training.mlp.temperature,
-    };
+    let contract = ModelContract::for_network(taxonomy, &training.mlp, layout.version);
     let candidate_bytes = crate::unaries::onnx_writer::encode_model(&training.mlp, &contract)?;
     let candidate = Classifier::from_bytes(&candidate_bytes, "candidate", taxonomy, layout)?;
 

@@ -236,7 +236,7 @@ pub fn evaluate_on_dataset(
 mod tests {
     use super::*;
     use crate::raster::RgbImage;
-    use crate::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+    use crate::unaries::contract::ModelContract;
     use crate::unaries::mlp::seeded_random_mlp;
     use crate::unaries::onnx_writer::encode_model;
 
@@ -256,14 +256,7 @@ mod tests {
         };
         let scene = Scene::from_image("two halves", image, None, None, &params).unwrap();
         let mlp = seeded_random_mlp(4, &[FEATURE_COUNT, 8, taxonomy.class_count()]);
-        let contract = ModelContract {
-            format_version: MODEL_FORMAT_VERSION,
-            class_names: taxonomy.classes().iter().map(|c| c.name.clone()).collect(),
-            feature_layout_version: FEATURE_LAYOUT_VERSION,
-            feature_means: mlp.feature_means.to_vec(),
-            feature_stds: mlp.feature_stds.to_vec(),
-            temperature: mlp.temperature,
-        };
+        let contract = ModelContract::for_network(&taxonomy, &mlp, FEATURE_LAYOUT_VERSION);
         let bytes = encode_model(&mlp, &contract).unwrap();
         let classifier =
             Classifier::from_bytes(&bytes, "seeded", &taxonomy, current_feature_layout()).unwrap();

@@ -319,7 +319,7 @@ fn nearest(index: usize, target: usize, source: usize) -> usize {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::unaries::contract::{ModelContract, MODEL_FORMAT_VERSION};
+    use crate::unaries::contract::ModelContract;
     use crate::unaries::mlp::seeded_random_mlp;
     use crate::unaries::onnx_writer::build_model_proto;
     use prost::Message;
@@ -336,14 +336,7 @@ mod tests {
     #[test]
     fn a_model_whose_declared_output_no_node_makes_is_an_error_not_a_panic() {
         let mlp = seeded_random_mlp(5, &[5, 2]);
-        let contract = ModelContract {
-            format_version: MODEL_FORMAT_VERSION,
-            class_names: vec!["floor".into(), "wall".into()],
-            feature_layout_version: 3,
-            feature_means: mlp.feature_means.to_vec(),
-            feature_stds: mlp.feature_stds.to_vec(),
-            temperature: mlp.temperature,
-        };
+        let contract = ModelContract::with_classes(vec!["floor".into(), "wall".into()], &mlp, 3);
         let mut proto = build_model_proto(&mlp, &contract).unwrap();
         proto.graph.as_mut().unwrap().output[0].name = "made_by_no_node".into();
         let error = UserModel::from_parts(config("x.onnx"), &proto.encode_to_vec(), "broken.toml")

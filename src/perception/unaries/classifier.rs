@@ -277,24 +277,13 @@ impl Classifier {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::unaries::contract::{KEY_CLASSES, MODEL_FORMAT_VERSION};
+    use crate::unaries::contract::KEY_CLASSES;
     use crate::unaries::mlp::seeded_random_mlp;
     use crate::unaries::onnx_writer::{build_model_proto, encode_model};
 
     fn contract_for(taxonomy: &Taxonomy, mlp: &crate::unaries::mlp::Mlp) -> ModelContract {
-        ModelContract {
-            format_version: MODEL_FORMAT_VERSION,
-            class_names: taxonomy
-                .classes()
-                .iter()
-                .map(|c| c.name.clone())
-                .take(mlp.class_count())
-                .collect(),
-            feature_layout_version: 3,
-            feature_means: mlp.feature_means.to_vec(),
-            feature_stds: mlp.feature_stds.to_vec(),
-            temperature: mlp.temperature,
-        }
+        let class_names = taxonomy.classes().iter().map(|c| c.name.clone());
+        ModelContract::with_classes(class_names.take(mlp.class_count()).collect(), mlp, 3)
     }
 
     #[test]

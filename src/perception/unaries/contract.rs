@@ -1,9 +1,11 @@
 //! The model contract a sayso classifier file carries in its ONNX `metadata_props`, and its checks.
 //!
-//! Owns: `ModelContract`, the metadata key names, turning a contract into key/value pairs and back, and
+//! Owns: `ModelContract` (and the one way to state a trained network's: `ModelContract::for_network`), the
+//! metadata key names, turning a contract into key/value pairs and back, and
 //! checking it against the taxonomy and the feature layout this build computes.
 //! Must not: run models or touch protobuf bytes; `onnx_writer` and `classifier` do that.
 
+use super::mlp::Mlp;
 use crate::taxonomy::Taxonomy;
 
 /// The version of the sayso classifier file format this build writes and reads.
@@ -70,6 +72,29 @@ pub struct FeatureLayout {
 }
 
 impl ModelContract {
+    /// The contract of `mlp` trained for every class of `taxonomy`, in order, on feature layout
+    /// `feature_layout_version`: this build's format, the network's own normalisation and temperature.
+    pub fn for_network(taxonomy: &Taxonomy, mlp: &Mlp, feature_layout_version: u32) -> ModelContract {
+        let class_names = taxonomy.classes().iter().map(|class| class.name.clone());
+        ModelContract::with_classes(class_names.collect(), mlp, feature_layout_version)
+    }
+
+    /// As `for_network`, with the output classes named by the caller.
+    pub fn with_classes(
+        class_names: Vec<String>,
+        mlp: &Mlp,
+        feature_layout_version: u32,
+    ) -> ModelContract {
+        ModelContract {
+            format_version: MODEL_FORMAT_VERSION,
+            class_names,
+            feature_layout_version,
+            feature_means: mlp.feature_means.to_vec(),
+            feature_stds: mlp.feature_stds.to_vec(),
+            temperature: mlp.temperature,
+        }
+    }
+
     /// The contract as ONNX metadata key/value pairs.
     pub fn to_metadata(&self) -> Vec<(String, String)> {
         let json = |values: &[f32]| serde_json::to_string(values).unwrap_or_default();
