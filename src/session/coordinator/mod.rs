@@ -15,6 +15,7 @@ mod convert;
 mod register;
 mod replica;
 mod turns;
+mod undo;
 mod versions;
 
 use std::collections::HashMap;

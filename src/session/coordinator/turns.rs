@@ -2,8 +2,7 @@
 //!
 //! Owns: the turn rules. An utterance is worked out under its scene's lock and answered only after its
 //! turn is committed. A safety change waits as the conversation's one pending change and is applied on
-//! confirmation only if the scene has not moved on. Undo takes back the conversation's own latest change
-//! when it is still the scene's head; redo puts it back when nothing else has happened since.
+//! confirmation only if the scene has not moved on. Undo and redo are `super::undo`'s.
 //! Must not: talk HTTP; answers are wire values or `SessionError`s.
 
 use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, TurnMark, TurnRow, VersionKey};
@@ -53,7 +52,7 @@ fn command_reply(
 }
 
 /// The change a conversation holds for confirmation, as the wire shows it.
-fn waiting_out(conversation: &ConversationSlot, taxonomy: &Taxonomy) -> Option<PendingOut> {
+pub(super) fn waiting_out(conversation: &ConversationSlot, taxonomy: &Taxonomy) -> Option<PendingOut> {
     conversation.pending.as_ref().map(|pending| PendingOut {
         reason: format!("\"{}\": {}", pending.utterance, pending.reason),
         changes: pending
@@ -64,7 +63,7 @@ fn waiting_out(conversation: &ConversationSlot, taxonomy: &Taxonomy) -> Option<P
     })
 }
 
-fn status_text(status: TurnStatus) -> &'static str {
+pub(super) fn status_text(status: TurnStatus) -> &'static str {
     match status {
         TurnStatus::Applied => "applied",
         TurnStatus::NeedsConfirmation => "needs_confirmation",
@@ -774,164 +773,6 @@ impl Coordinator {
             status: TurnStatus::Rejected,
             scene_version: scene.head.0,
             changes: Vec::new(),
-            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
-        })
-    }
-
-    /// Takes back this conversation's latest change, when it is still the scene's head.
-    pub fn undo(
-        &self,
-        conversation: ConversationKey,
-        operator: &str,
-    ) -> Result<TurnReply, SessionError> {
-        let conversation_slot = self.conversation_slot(conversation)?;
-        let mut conversation_state = lock(&conversation_slot);
-        let scene_slot = self.scene_slot(conversation_state.scene)?;
-        let mut scene = lock(&scene_slot);
-        let latest = *conversation_state.applied.last().ok_or_else(|| {
-            SessionError::conflict(
-                "nothing_to_undo",
-                "this conversation has no applied change to undo",
-            )
-        })?;
-        if latest != scene.head {
-            return Err(SessionError::conflict(
-                "undo_blocked",
-                "another conversation changed the scene after this one; undo that change first",
-            ));
-        }
-        let (parent_state, parent) = {
-            let log = lock(&self.log);
-            let (_, parent) = log.version(latest).map_err(log_error)?;
-            let parent =
-                parent.ok_or_else(|| SessionError::internal("an applied version has no parent"))?;
-            let (record, _) = log.version(parent).map_err(log_error)?;
-            (
-                decode_state(&record).map_err(SessionError::internal)?,
-                parent,
-            )
-        };
-        let mut applied_after = conversation_state.applied.clone();
-        applied_after.pop();
-        let mut redo_after = conversation_state.redo.clone();
-        redo_after.push(latest);
-        let (turn_key, _) = self
-            .group
-            .commit(
-                &self.log,
-                &NewTurn {
-                    conversation,
-                    kind: "undo",
-                    text: "",
-                    focus_json: None,
-                    status: status_text(TurnStatus::Undone),
-                    constraints_json: "[]",
-                    result_json: "{}",
-                    operator,
-                    effect: TurnEffect::MoveHead {
-                        from: latest,
-                        to: parent,
-                        deactivate: Some(latest),
-                        activate: None,
-                    },
-                },
-                Some((&applied_after, &redo_after)),
-            )
-            .map_err(log_error)?;
-        conversation_state.mark = conversation_state.mark.after(turn_key);
-        self.counters.record_turn(false);
-        let changes = label_changes(
-            &scene.state.labels,
-            &parent_state.labels,
-            self.corrector.taxonomy(),
-        );
-        scene.head = parent;
-        scene.state = parent_state;
-        conversation_state.applied = applied_after;
-        conversation_state.redo = redo_after;
-        conversation_state.answered = None;
-        Ok(TurnReply {
-            turn_id: turn_key.0,
-            status: TurnStatus::Undone,
-            scene_version: parent.0,
-            changes,
-            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
-        })
-    }
-
-    /// Puts back the change this conversation undid last, when nothing has changed the scene since.
-    pub fn redo(
-        &self,
-        conversation: ConversationKey,
-        operator: &str,
-    ) -> Result<TurnReply, SessionError> {
-        let conversation_slot = self.conversation_slot(conversation)?;
-        let mut conversation_state = lock(&conversation_slot);
-        let scene_slot = self.scene_slot(conversation_state.scene)?;
-        let mut scene = lock(&scene_slot);
-        let undone = *conversation_state.redo.last().ok_or_else(|| {
-            SessionError::conflict(
-                "nothing_to_redo",
-                "this conversation has no undone change to redo",
-            )
-        })?;
-        let (state, parent) = {
-            let log = lock(&self.log);
-            let (record, parent) = log.version(undone).map_err(log_error)?;
-            (
-                decode_state(&record).map_err(SessionError::internal)?,
-                parent,
-            )
-        };
-        if parent != Some(scene.head) {
-            return Err(SessionError::conflict(
-                "redo_blocked",
-                "the scene changed after the undo; the undone change no longer fits on top",
-            ));
-        }
-        let mut applied_after = conversation_state.applied.clone();
-        applied_after.push(undone);
-        let mut redo_after = conversation_state.redo.clone();
-        redo_after.pop();
-        let (turn_key, _) = self
-            .group
-            .commit(
-                &self.log,
-                &NewTurn {
-                    conversation,
-                    kind: "redo",
-                    text: "",
-                    focus_json: None,
-                    status: status_text(TurnStatus::Redone),
-                    constraints_json: "[]",
-                    result_json: "{}",
-                    operator,
-                    effect: TurnEffect::MoveHead {
-                        from: scene.head,
-                        to: undone,
-                        deactivate: None,
-                        activate: Some(undone),
-                    },
-                },
-                Some((&applied_after, &redo_after)),
-            )
-            .map_err(log_error)?;
-        conversation_state.mark = conversation_state.mark.after(turn_key);
-        self.counters.record_turn(false);
-        let changes = label_changes(
-            &scene.state.labels,
-            &state.labels,
-            self.corrector.taxonomy(),
-        );
-        scene.head = undone;
-        scene.state = state;
-        conversation_state.applied = applied_after;
-        conversation_state.redo = redo_after;
-        Ok(TurnReply {
-            turn_id: turn_key.0,
-            status: TurnStatus::Redone,
-            scene_version: undone.0,
-            changes,
             waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
         })
     }
