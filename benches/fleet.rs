@@ -20,6 +20,9 @@ mod service_support;
 #[path = "support/demo_turns.rs"]
 mod demo_turns;
 
+#[path = "support/conversations.rs"]
+mod conversations;
+
 use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;
 use std::path::Path;
@@ -28,10 +31,8 @@ use std::sync::Arc;
 use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use demo_turns::{load_average, percentile, BENCH_SCENES};
-use sayso_render::demo::demo_directory;
-use sayso_lab::evaluation::read_pointed_notes;
-use sayso_core::language::constraint::Focus;
+use conversations::{open_conversations, utterance, Conversation};
+use demo_turns::{load_average, percentile};
 
 /// Notes each conversation sends in the measured run (after one warm-up pass over its notes on every
 /// replica).
@@ -78,75 +79,6 @@ fn start(database: Option<&str>, data: &Path) -> Replica {
         .and_then(|address| address.parse().ok())
         .unwrap_or_else(|| panic!("a replica did not start: {line:?}"));
     Replica { child, address }
-}
-
-/// One conversation on one demo scene, with the notes it sends in turn.
-#[derive(Clone)]
-struct Conversation {
-    id: i64,
-    notes: Arc<Vec<(String, Option<Focus>)>>,
-}
-
-/// Registers the bench scenes through the first replica and opens one conversation on each.
-fn conversations(address: SocketAddr) -> Vec<Conversation> {
-    let demo_dir = demo_directory(None);
-    BENCH_SCENES
-        .iter()
-        .map(|&name| {
-            let created = service_support::send_json(
-                address,
-                "POST",
-                "/v1/scenes",
-                None,
-                &serde_json::json!({ "demo": name }),
-            );
-            assert_eq!(created.status, 201, "{name}: {:?}", created.json());
-            let scene_id = created.json()["scene_id"].as_i64().unwrap();
-            let opened = service_support::send_json(
-                address,
-                "POST",
-                "/v1/conversations",
-                None,
-                &serde_json::json!({ "scene_id": scene_id }),
-            );
-            assert_eq!(opened.status, 201);
-            let notes: Vec<_> = read_pointed_notes(&demo_dir.join(name))
-                .expect("the notes read")
-                .into_iter()
-                .map(|note| (note.text, note.focus))
-                .collect();
-            assert!(!notes.is_empty(), "{name} has notes");
-            Conversation {
-                id: opened.json()["conversation_id"].as_i64().unwrap(),
-                notes: Arc::new(notes),
-            }
-        })
-        .collect()
-}
-
-/// Sends the conversation's `step`th note (cycling) to `address`; how long the answer took.
-fn utterance(address: SocketAddr, conversation: &Conversation, step: usize) -> Duration {
-    let (text, focus) = &conversation.notes[step % conversation.notes.len()];
-    let mut body = serde_json::json!({ "text": text });
-    if let Some(Focus::Pixel { x, y }) = focus {
-        body["focus"] = serde_json::json!({"type": "pixel", "x": x, "y": y});
-    }
-    let started = Instant::now();
-    let reply = service_support::send_json(
-        address,
-        "POST",
-        &format!("/v1/conversations/{}/utterances", conversation.id),
-        None,
-        &body,
-    );
-    let elapsed = started.elapsed();
-    assert_eq!(
-        reply.status,
-        200,
-        "{:?}",
-        String::from_utf8_lossy(&reply.body)
-    );
-    elapsed
 }
 
 /// Every conversation sends `per_client` notes from `first_step` on, each to the next replica; returns
@@ -205,7 +137,7 @@ fn measure(replicas: usize, postgres: bool, scratch: &Path) -> (f64, Duration, D
         })
         .collect();
     let addresses: Vec<SocketAddr> = fleet.iter().map(|replica| replica.address).collect();
-    let conversations = conversations(addresses[0]);
+    let conversations = open_conversations(addresses[0]);
     // Warm up: each replica prepares every scene once (superpixels and unaries) before the clock starts.
     let longest = conversations
         .iter()
@@ -271,7 +203,7 @@ fn bench_fleet(criterion: &mut Criterion) {
         .map(|index| start(Some(&url), &scratch.path().join(format!("timed-{index}"))))
         .collect();
     let addresses: Vec<SocketAddr> = fleet.iter().map(|replica| replica.address).collect();
-    let conversations = conversations(addresses[0]);
+    let conversations = open_conversations(addresses[0]);
     closed_loop(&addresses, &conversations, 0, 8);
     let conversation = conversations[0].clone();
     let mut step = 8;

@@ -14,16 +14,18 @@ mod service_support;
 #[path = "support/demo_turns.rs"]
 mod demo_turns;
 
+#[path = "support/conversations.rs"]
+mod conversations;
+
 use std::net::SocketAddr;
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use demo_turns::{load_average, BENCH_SCENES};
+use conversations::{open_conversations, utterance, Conversation};
+use demo_turns::{load_average, percentile};
 use sayso_session::config::ServiceConfig;
-use sayso_render::demo::{demo_directory, list_demo_scenes};
-use sayso_lab::evaluation::read_pointed_notes;
-use sayso_core::language::constraint::Focus;
+use sayso_core::demo::demo_directory;
 use sayso_perception::pipeline::model_path;
 use sayso_service::AppState;
 use sayso_session::JointCorrector;
@@ -32,13 +34,6 @@ use sayso_session::{Coordinator, CoordinatorSettings};
 /// The offered rate of the open-loop run, and how many requests it sends.
 const OFFERED_PER_SECOND: f64 = 200.0;
 const OFFERED_REQUESTS: u32 = 400;
-
-/// One conversation on one demo scene, with the notes it sends in turn.
-#[derive(Clone)]
-struct Conversation {
-    id: i64,
-    notes: Arc<Vec<(String, Option<Focus>)>>,
-}
 
 struct Bench {
     address: SocketAddr,
@@ -50,7 +45,6 @@ struct Bench {
 fn start() -> Bench {
     let data = tempfile::tempdir().unwrap();
     let demo_dir = demo_directory(None);
-    let available = list_demo_scenes(&demo_dir).expect("the demo scenes are listed");
     let config = ServiceConfig {
         data_dir: data.path().to_path_buf(),
         rate_per_second: 1e9,
@@ -79,80 +73,13 @@ fn start() -> Bench {
     let address = listener.local_addr().unwrap();
     let state = AppState::new(coordinator, config);
     runtime.spawn(sayso_service::run(listener, state, std::future::pending()));
-    let conversations = BENCH_SCENES
-        .iter()
-        .map(|&name| {
-            assert!(available.iter().any(|known| known == name), "{name}");
-            let created = service_support::send_json(
-                address,
-                "POST",
-                "/v1/scenes",
-                None,
-                &serde_json::json!({ "demo": name }),
-            );
-            assert_eq!(
-                created.status,
-                201,
-                "{name}: {:?}",
-                String::from_utf8_lossy(&created.body)
-            );
-            let scene_id = created.json()["scene_id"].as_i64().unwrap();
-            let opened = service_support::send_json(
-                address,
-                "POST",
-                "/v1/conversations",
-                None,
-                &serde_json::json!({ "scene_id": scene_id }),
-            );
-            assert_eq!(opened.status, 201);
-            let notes = read_pointed_notes(&demo_dir.join(name))
-                .expect("the notes read")
-                .into_iter()
-                .map(|note| (note.text, note.focus))
-                .collect::<Vec<_>>();
-            assert!(!notes.is_empty(), "{name} has notes");
-            Conversation {
-                id: opened.json()["conversation_id"].as_i64().unwrap(),
-                notes: Arc::new(notes),
-            }
-        })
-        .collect();
+    let conversations = open_conversations(address);
     Bench {
         address,
         conversations,
         _data: data,
         _runtime: runtime,
     }
-}
-
-/// Sends the conversation's `step`th note (cycling) and returns how long the answer took.
-fn utterance(address: SocketAddr, conversation: &Conversation, step: u32) -> Duration {
-    let (text, focus) = &conversation.notes[step as usize % conversation.notes.len()];
-    let mut body = serde_json::json!({ "text": text });
-    if let Some(Focus::Pixel { x, y }) = focus {
-        body["focus"] = serde_json::json!({"type": "pixel", "x": x, "y": y});
-    }
-    let started = Instant::now();
-    let reply = service_support::send_json(
-        address,
-        "POST",
-        &format!("/v1/conversations/{}/utterances", conversation.id),
-        None,
-        &body,
-    );
-    let elapsed = started.elapsed();
-    assert_eq!(
-        reply.status,
-        200,
-        "{:?}",
-        String::from_utf8_lossy(&reply.body)
-    );
-    elapsed
-}
-
-fn percentile(sorted: &[Duration], fraction: f64) -> Duration {
-    let index = ((sorted.len() as f64 - 1.0) * fraction).round() as usize;
-    sorted[index.min(sorted.len() - 1)]
 }
 
 /// CPU time of the whole process (service and clients), in milliseconds, from `/proc/self/stat` (0 where
@@ -186,7 +113,7 @@ fn closed_loop(bench: &Bench, requests_per_client: u32) -> (f64, Duration, Durat
             let conversation = conversation.clone();
             std::thread::spawn(move || {
                 (0..requests_per_client)
-                    .map(|step| utterance(address, &conversation, step))
+                    .map(|step| utterance(address, &conversation, step as usize))
                     .collect::<Vec<_>>()
             })
         })
@@ -224,7 +151,7 @@ fn open_loop(bench: &Bench, rate: f64, total: u32) -> (Duration, Duration) {
                         std::thread::sleep(wait);
                     }
                     let conversation = &conversations[index as usize % conversations.len()];
-                    utterance(address, conversation, index / conversations.len() as u32);
+                    utterance(address, conversation, (index / conversations.len() as u32) as usize);
                     latencies.push(due.elapsed());
                 }
                 latencies
@@ -278,7 +205,7 @@ fn service_load(criterion: &mut Criterion) {
     criterion.bench_function("service_correction_round_trip", |bencher| {
         bencher.iter(|| {
             step += 1;
-            utterance(address, &conversation, step)
+            utterance(address, &conversation, step as usize)
         })
     });
 }
