@@ -21,7 +21,7 @@ use std::time::{Duration, Instant};
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::load_average;
 use sayso_correction_log::{ConversationKey, SceneKey};
-use sayso_render::demo::demo_directory;
+use sayso_core::demo::demo_directory;
 use sayso_perception::pipeline::model_path;
 use sayso_session::JointCorrector;
 use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};

@@ -7,7 +7,7 @@
 //!
 //! Owns: nothing the crate uses. Must not: tune anything on what it prints (the demo scenes are for the
 //! demo and its evaluation only).
-use sayso_render::demo::{demo_directory, list_demo_scenes};
+use sayso_core::demo::{demo_directory, list_demo_scenes};
 use sayso_lab::evaluation::{objects_from_graph, PredictedObject};
 use sayso_perception::pipeline::*;
 use sayso_core::taxonomy::Taxonomy;

@@ -8,7 +8,7 @@
 //! and its evaluation only).
 use std::time::Instant;
 
-use sayso_render::demo::{demo_directory, list_demo_scenes};
+use sayso_core::demo::{demo_directory, list_demo_scenes};
 use sayso_perception::pipeline::*;
 use sayso_core::scenegraph::label_map;
 use sayso_core::taxonomy::Taxonomy;

@@ -654,8 +654,8 @@ fn send_a_photo(walk: &Walk) {
     let shots = &walk.shots;
     // A photo of one's own, with its depth, sent from the chooser: a new scene and a conversation on it.
     browser.click("#chooser summary");
-    let photo = sayso_render::demo::demo_scene_path(
-        &sayso_render::demo::demo_directory(None),
+    let photo = sayso_core::demo::demo_scene_path(
+        &sayso_core::demo::demo_directory(None),
         Some("kitchen_breakfast"),
     )
     .unwrap();

@@ -26,7 +26,7 @@ fn prepared(name: &str) -> PreparedScene {
     let taxonomy = Taxonomy::embedded();
     let classifier = load_classifier(&model_path(None), &taxonomy).expect("classifier");
     let source = SceneSource::Demo {
-        directory: sayso_render::demo::demo_directory(None),
+        directory: sayso_core::demo::demo_directory(None),
         name: Some(name.to_string()),
     };
     prepare_scene(&source, &classifier).expect("demo scene")
@@ -399,7 +399,7 @@ mod service {
             &CoordinatorSettings {
                 log_path: data.join("corrections.sqlite"),
                 pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
-                demo_dir: sayso_render::demo::demo_directory(None),
+                demo_dir: sayso_core::demo::demo_directory(None),
             },
         )
         .expect("open")

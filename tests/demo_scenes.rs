@@ -5,7 +5,7 @@ use std::path::Path;
 
 use sayso_render::demo::{list_demo_scenes, load_demo_scene, COMPILED_DEMO_DIR};
 use sayso_render::catalogue::{demo_entry, DEMO_SCENES, DEMO_SEEDS};
-use sayso_render::{render_scene, writer};
+use sayso_render::{render_scene, writer, SceneRequest};
 use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
 
 fn demo_dir() -> &'static Path {
@@ -16,7 +16,7 @@ fn demo_dir() -> &'static Path {
 fn rerendering_a_demo_scene_gives_the_committed_bytes() {
     let taxonomy = Taxonomy::embedded();
     let entry = demo_entry("kitchen_breakfast").expect("catalogue has the kitchen scene");
-    let scene = render_scene(&taxonomy, &entry.request()).unwrap();
+    let scene = render_scene(&taxonomy, &SceneRequest::from(entry)).unwrap();
     let out = tempfile::tempdir().unwrap();
     writer::write_scene(out.path(), &scene).unwrap();
     for file in [

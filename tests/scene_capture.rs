@@ -300,7 +300,7 @@ async fn the_service_finds_demo_scenes_like_fix_and_says_where_it_looked() {
     assert_eq!(status, StatusCode::NOT_FOUND, "{error}");
     let message = error["message"].as_str().unwrap();
     assert!(
-        message.contains(sayso_render::demo::COMPILED_DEMO_DIR) && message.contains("kitchen_breakfast"),
+        message.contains(sayso_core::demo::COMPILED_DEMO_DIR) && message.contains("kitchen_breakfast"),
         "{message}"
     );
 }

@@ -10,7 +10,7 @@
 
 use std::path::PathBuf;
 
-use sayso_render::demo::demo_directory;
+use sayso_core::demo::demo_directory;
 use sayso_core::energy::build::{build_energy, EnergyInputs};
 use sayso_core::energy::{JointEnergy, JointState};
 use sayso_lab::evaluation::read_pointed_notes;

@@ -7,7 +7,7 @@
 use std::path::{Path, PathBuf};
 
 use anyhow::Context;
-use sayso_render::demo::demo_directory;
+use sayso_core::demo::demo_directory;
 use sayso_core::language::parse_focus;
 use sayso_core::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
 use sayso_perception::pipeline::{

@@ -5,7 +5,7 @@
 use std::path::PathBuf;
 
 use anyhow::{bail, Context};
-use sayso_render::demo::demo_directory;
+use sayso_core::demo::demo_directory;
 use sayso_render::catalogue::{readme_text, DEMO_SCENES, FIRST_TRAINING_SEED};
 use sayso_render::writer::write_scene;
 use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
@@ -36,7 +36,7 @@ pub fn run(args: RenderArgs) -> anyhow::Result<()> {
     if args.demo {
         let directory = demo_directory(args.out.as_deref());
         for entry in DEMO_SCENES.iter() {
-            let scene = render_scene(&taxonomy, &entry.request())
+            let scene = render_scene(&taxonomy, &SceneRequest::from(entry))
                 .with_context(|| format!("rendering demo scene {}", entry.name))?;
             write_scene(&directory.join(entry.name), &scene)?;
             println!(

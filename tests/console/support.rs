@@ -6,12 +6,11 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use sayso_session::config::{OperatorToken, Role, ServiceConfig};
-use sayso_service::AppState;
 use sayso_session::JointCorrector;
 use sayso_session::{Coordinator, CoordinatorSettings};
 use serde_json::Value;
 
-use super::service_support::get;
+use super::service_support::{get, serve_coordinator, RunningService};
 use super::webdriver::Browser;
 
 pub const TOKEN: &str = "wren-street-console-test";
@@ -23,25 +22,8 @@ pub const DOWN: &str = "\u{E015}";
 pub const ESCAPE: &str = "\u{E00C}";
 pub const TURN: Duration = Duration::from_secs(20);
 
-/// Runs the service on the real pipeline on a loopback port until dropped.
-pub struct Service {
-    pub address: SocketAddr,
-    stop: Option<tokio::sync::oneshot::Sender<()>>,
-    thread: Option<std::thread::JoinHandle<()>>,
-}
-
-impl Drop for Service {
-    fn drop(&mut self) {
-        if let Some(stop) = self.stop.take() {
-            let _ = stop.send(());
-        }
-        if let Some(thread) = self.thread.take() {
-            let _ = thread.join();
-        }
-    }
-}
-
-pub fn start_service(data: &std::path::Path) -> Service {
+/// Runs the service on the real pipeline (the built-in classifier) on a loopback port until dropped.
+pub fn start_service(data: &std::path::Path) -> RunningService {
     let config = ServiceConfig {
         data_dir: data.to_path_buf(),
         bind: SocketAddr::from(([127, 0, 0, 1], 0)),
@@ -61,39 +43,12 @@ pub fn start_service(data: &std::path::Path) -> Service {
             &CoordinatorSettings {
                 log_path: config.log_path(),
                 pixel_limit: config.pixel_limit,
-                demo_dir: sayso_render::demo::demo_directory(None),
+                demo_dir: sayso_core::demo::demo_directory(None),
             },
         )
         .expect("open coordinator"),
     );
-    let state = AppState::new(coordinator, config);
-    let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
-    let (ready, address) = std::sync::mpsc::channel();
-    let thread = std::thread::spawn(move || {
-        let runtime = tokio::runtime::Builder::new_multi_thread()
-            .worker_threads(2)
-            .enable_all()
-            .build()
-            .expect("runtime");
-        runtime.block_on(async move {
-            let listener = tokio::net::TcpListener::bind("127.0.0.1:0")
-                .await
-                .expect("bind");
-            ready
-                .send(listener.local_addr().expect("address"))
-                .expect("ready");
-            sayso_service::run(listener, state, async {
-                let _ = stopped.await;
-            })
-            .await
-            .expect("serve");
-        });
-    });
-    Service {
-        address: address.recv().expect("service started"),
-        stop: Some(stop),
-        thread: Some(thread),
-    }
+    serve_coordinator(coordinator, config)
 }
 
 /// The page's object list as (object id, class) pairs.

@@ -502,6 +502,11 @@ pub fn start_service(data_dir: &Path, mut config: ServiceConfig) -> RunningServi
     config.bind = SocketAddr::from(([127, 0, 0, 1], 0));
     config.validate().expect("test config is valid");
     let coordinator = open_grid_coordinator_with(data_dir, config.pixel_limit);
+    serve_coordinator(coordinator, config)
+}
+
+/// Serves `coordinator` with `config` on a loopback port (port 0) from a thread of its own, until dropped.
+pub fn serve_coordinator(coordinator: Arc<Coordinator>, config: ServiceConfig) -> RunningService {
     let state = AppState::new(coordinator.clone(), config);
     let (stop, stopped) = tokio::sync::oneshot::channel::<()>();
     let (ready, address) = std::sync::mpsc::channel();
