@@ -9,11 +9,8 @@
 //!
 //! The counted cut is the one that best recovers ground-truth objects from ground-truth labels. At run time
 //! objects are formed from the solved labels, whose patches of a class also hold neighbouring segments the
-//! solver gave that class; there, a lower cut can part objects the counted one leaves joined. Measured
-//! first with `examples/render_objects` on the 42 tuning renders (seeds 200000 and 200021, 2026-12-03),
-//! object accuracy with no note / after the notes for the book cut: 1.5 (counted) 0.7800 / 0.7947 and
-//! 0.7878 / 0.8051; 1.25 0.7887 / 0.8034 and 0.7959 / 0.8131; 1.0 0.7927 / 0.8073 and 0.7979 / 0.8151;
-//! 0.75 0.7943 / 0.8090 and 0.7963 / 0.8136; 0.5 0.7876 / 0.8023 and 0.7900 / 0.8072.
+//! solver gave that class; there, a lower cut can part objects the counted one leaves joined (the first
+//! measurement of it, on the book cut, is in `docs/decisions.md`, "Instance cuts on solved scenes").
 //!
 //! The choice: every tuning scene is solved once per state, as the tuning objective does (no note, then each
 //! training note in turn; `crate::tuning::objective`). The solve never reads the cuts, and a later turn

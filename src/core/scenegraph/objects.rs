@@ -10,17 +10,9 @@
 //! 1. The fine segments are grouped into 4-connected components of equal final label over the adjacency
 //!    graph (what the label map shows as one patch of a class), joined only across edges no stronger than
 //!    the class's cut (`super::instances`, `models/instance_cuts.json`): books side by side on a shelf
-//!    share a label but not a colour (the strengths are re-chosen on solved training renders, see
-//!    `crate::tuning_cuts`). Measured on training renders (`examples/render_objects.rs`, seed
-//!    200000, 21 renders, 400-segment scenes): object accuracy after the notes 0.5125 without cuts, 0.5537
-//!    with the counted cuts (book, bottle, shoe, chair); `sayso score --notes 2` against the classifier
-//!    alone +0.6 -> +4.9. With 800-segment scenes and their re-counted cuts and re-tuned weights: 0.7012.
-//!    With 2400-segment scenes (classifier, cuts and weights re-made; 2026-12-03): 0.7818, and 0.8051 on
-//!    the renders from seed 200000 + 21; with the book cut re-chosen on solved renders (1.5 -> 1.0,
-//!    `crate::tuning_cuts`) and small backed patches counted as shown (rule 2): 0.8073 and 0.8151; with
-//!    bottle, cabinet, chair and shoe cut as well (chosen the same way): 0.8153 and 0.8136.
-//!    A patch of a class with a typical size is then parted by its depth-scaled area
-//!    (`super::instances::part_by_size`: chairs pushed together, pillows side by side).
+//!    share a label but not a colour (the strengths are re-chosen on solved training renders by
+//!    `sayso_lab::tuning_cuts`). A patch of a class with a typical size is then parted by its depth-scaled
+//!    area (`super::instances::part_by_size`: chairs pushed together, pillows side by side).
 //! 2. When the operator said there are at least `k` objects of a class ("there are four chairs": a count
 //!    constraint in force, exactly or at least `k`) and the labels show fewer than `k` components of it,
 //!    adjacent objects have merged: components of the class are split, largest first, until there are `k`
@@ -28,39 +20,20 @@
 //!    shown: a stray segment or two of "chair" on a table edge is not a chair the operator counted; but
 //!    a smaller component does count when an accepted hypothesis of its class holds at least half of its
 //!    segments (the solver switched that object on; books on a shelf are often one to three segments of a
-//!    2400-segment scene, and "there are five books" used to cut correct books in two). Training renders
-//!    (`examples/render_objects.rs`, 2026-12-03): object accuracy after the notes 0.7818 -> 0.7947 on seed
-//!    200000 (the three "five books" hallways and one kitchen better, none worse), 0.8051 -> 0.8051 on
-//!    seed 200021. Tried then and not taken: `MIN_SHOWN_SEGMENTS` 2 (0.7862 / 0.8014) and 1 (0.7947 /
-//!    0.7993), which also count stray cabinet fragments, so a merged run of cabinets is no longer split. A
-//!    component is split into as many pieces as are missing plus one by geodesic k-medoids over the segment
-//!    adjacency graph (`super::split`), so pieces meet along colour edges and depth steps; for a class
-//!    with a typical size, into no more pieces than leaves each at least half of it (a shoe-sized patch
-//!    is not cut in two to make up a count: on training renders, seeds 200000 and 200021, 21 each, object
-//!    accuracy after the notes 0.7048 and 0.6756 without this limit, 0.7103 and 0.6895 with it, 0.6996
-//!    and 0.6879 with no count split at all). The accepted
-//!    hypotheses are not used to cut: one hypothesis often spans the very objects that merged (two chairs
-//!    joined through a table edge).
-//!    Otherwise a component is one object, so pieces of one window are not reported as several windows, and
-//!    a count already met by the labels is not second-guessed.
-//!    Checked on training renders only (`examples/render_objects.rs`: `sayso tune`'s 21 renders from seed
-//!    200000 and 21 more from seed 200021, committed weights), mean object accuracy after the training
-//!    notes: 0.4829 and 0.4888 when merged groups were split among their accepted hypotheses (and fragments
-//!    counted as shown); 0.5143 and 0.5052 with this rule. Re-measured after the prior was recounted over
-//!    280 renders and the warm descent switched on (2026-12-03): 0.5103 and 0.5071 (0.5125 on the first set
-//!    with the weights `sayso tune` then re-made). Tried then and not
-//!    taken: every patch counts as shown when all of a class's patches are small (shoes, mugs), 0.5077 and
-//!    0.5079; a patch counts when it is at least half the class's largest, 0.5110 (seed 200000, before the
-//!    descent, against 0.5137 for this rule). Tried on 2400-segment scenes (2026-12-03, seeds 200000 /
-//!    200021, 0.7947 / 0.8051 for this rule) and not taken: joining the label islands of one accepted
-//!    hypothesis into one object, 0.7225 / 0.7515 (a coarse hypothesis spans several objects); parting a
-//!    patch of a class without a typical size by the scene's median patch of that class (at least four
-//!    patches, parted from 1.5 times the median), 0.7978 / 0.8052 but two offices of six worse on each
-//!    seed.
+//!    2400-segment scene). A component is split into as many pieces as are missing plus one by geodesic
+//!    k-medoids over the segment adjacency graph (`super::split`), so pieces meet along colour edges and
+//!    depth steps; for a class with a typical size, into no more pieces than leaves each at least half of
+//!    it (a shoe-sized patch is not cut in two to make up a count). The accepted hypotheses are not used to
+//!    cut: one hypothesis often spans the very objects that merged (two chairs joined through a table
+//!    edge). Otherwise a component is one object, so pieces of one window are not reported as several
+//!    windows, and a count already met by the labels is not second-guessed.
 //! 3. Each object is named after a hypothesis so later notes can point at it (`Focus::Object`): the
 //!    hypothesis of its class sharing the most member segments with it that no larger object took already;
 //!    with none, an id computed from its class and members (`crate::hypotheses::hypothesis_id`), which no
 //!    hypothesis of the list carries.
+//!
+//! Each of these choices was measured on training renders against the alternatives; the figures and what
+//! was tried and not taken are in `docs/decisions.md` ("Forming objects").
 
 use std::collections::BTreeSet;
 
@@ -72,11 +45,7 @@ use super::bisect::{bisect_to_count, Sizing};
 use super::instances::{components, neighbours, part_by_size, scaled_area, InstanceCuts};
 
 /// Components of fewer fine segments than this do not count as objects the labels show apart when a count
-/// asks for more (see the module doc; 4 chosen on training renders: 2, 3, 4 and 6 gave 0.5060, 0.5116,
-/// 0.5143 and 0.5143 on the renders from seed 200000). Re-checked with 800-segment scenes: 2 and 4 both
-/// 0.7012, 1 gives 0.6955, 6 gives 0.6975; a threshold in pixels instead (400, 800 or 1500) also 0.7012.
-/// Re-checked with 1600-segment scenes (seeds 200000 / 200021): 2 gives 0.7785 / 0.7921, 4 0.7758 / 0.7962,
-/// 8 0.7738 / 0.7939.
+/// asks for more (see the module doc; chosen on training renders, figures in `docs/decisions.md`).
 pub const MIN_SHOWN_SEGMENTS: usize = 4;
 
 /// For a class with a typical size, a component of fewer segments than `MIN_SHOWN_SEGMENTS` still counts
