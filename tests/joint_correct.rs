@@ -22,7 +22,7 @@ use sayso_core::scenegraph::changes::{ChangeKind, ChangeStatus};
 use sayso_core::scenegraph::instances::InstanceCuts;
 use sayso_solver::joint::JointOptions;
 use sayso_core::taxonomy::Taxonomy;
-use sayso_core::turn::solve::{correct, Correction, CorrectionRequest};
+use sayso_core::turn::solve::{correct, Correction, SolveRequest};
 use sayso_perception::unaries::Unaries;
 
 const COLUMNS: u32 = 8;
@@ -485,7 +485,7 @@ fn nan_unaries_and_empty_energies_are_typed_errors() {
     let mut kitchen = kitchen();
     kitchen.unaries.log_probs[[3, 2]] = f32::NAN;
     let prior = RoomClassPrior::embedded().unwrap();
-    let request = CorrectionRequest {
+    let request = SolveRequest {
         scene: &kitchen.scene,
         unaries: &kitchen.unaries,
         taxonomy: &kitchen.taxonomy,

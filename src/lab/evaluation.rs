@@ -28,7 +28,7 @@ use crate::demo::DemoScene;
 use crate::ids::{ClassId, SegmentId};
 use crate::language::constraint::Focus;
 use crate::pipeline::PointedNote;
-use crate::render::SceneObject;
+use crate::render::TruthObject;
 use crate::scene::Scene;
 use crate::scenegraph::SceneGraph;
 use crate::taxonomy::UNLABELLED;
@@ -213,7 +213,7 @@ pub fn object_accuracy(scene: &DemoScene, predicted: &[PredictedObject]) -> f64 
 /// `object_accuracy` on the raw parts: the instance map (0 and 255 are no object) and the object list.
 fn object_accuracy_of(
     instances: &[u16],
-    truth: &[SceneObject],
+    truth: &[TruthObject],
     predicted: &[PredictedObject],
 ) -> f64 {
     if truth.is_empty() {
@@ -296,7 +296,7 @@ pub fn object_tally_sized(
 fn object_tally_of(
     labels: &[u16],
     instances: &[u16],
-    truth: &[SceneObject],
+    truth: &[TruthObject],
     predicted: &[PredictedObject],
     smallest: Smallest,
 ) -> ObjectTally {
@@ -313,7 +313,7 @@ fn object_tally_of(
         })
         .cloned()
         .collect();
-    let (kept, small): (Vec<SceneObject>, Vec<SceneObject>) = truth
+    let (kept, small): (Vec<TruthObject>, Vec<TruthObject>) = truth
         .iter()
         .cloned()
         .partition(|object| object.area >= smallest.truth);
@@ -347,7 +347,7 @@ pub fn matched_objects(scene: &DemoScene, predicted: &[PredictedObject]) -> Vec<
 
 fn matched_of(
     instances: &[u16],
-    truth: &[SceneObject],
+    truth: &[TruthObject],
     predicted: &[PredictedObject],
 ) -> Vec<bool> {
     let mut instance_area: HashMap<u16, u64> = HashMap::new();
@@ -442,8 +442,8 @@ mod tests {
         assert_eq!(region[2], region[6]);
     }
 
-    fn book(id: u32) -> SceneObject {
-        SceneObject {
+    fn book(id: u32) -> TruthObject {
+        TruthObject {
             id,
             class: "book".to_string(),
             class_id: ClassId(26),

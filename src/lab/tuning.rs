@@ -423,8 +423,8 @@ mod tests {
         ));
     }
 
-    fn object(id: u32, class: &str, taxonomy: &Taxonomy, area: u64) -> crate::render::SceneObject {
-        crate::render::SceneObject {
+    fn object(id: u32, class: &str, taxonomy: &Taxonomy, area: u64) -> crate::render::TruthObject {
+        crate::render::TruthObject {
             id,
             class: class.to_string(),
             class_id: taxonomy.class_by_name(class).unwrap().id,

@@ -18,7 +18,7 @@ use crate::scene::files::{
     DEPTH_FILE, INSTANCES_FILE, LABELS_FILE, METADATA_FILE as SCENE_FILE, OBJECTS_FILE,
 };
 use crate::scene::{load_capture, Capture};
-use crate::{RenderedScene, SceneMetadata, SceneObject};
+use crate::{RenderedScene, SceneMetadata, TruthObject};
 
 /// One demo (or rendered) scene: its capture's rasters plus the ground-truth layer.
 #[derive(Clone, Debug, PartialEq)]
@@ -30,7 +30,7 @@ pub struct DemoScene {
     pub depth: DepthImage,
     pub labels: IndexImage,
     pub instances: IndexImage,
-    pub objects: Vec<SceneObject>,
+    pub objects: Vec<TruthObject>,
 }
 
 impl DemoScene {
@@ -92,7 +92,7 @@ pub fn load_scene_directory(scene_directory: &Path) -> Result<DemoScene, DemoErr
         }
     };
     let metadata: SceneMetadata = read_json(&file(SCENE_FILE)?)?;
-    let objects: Vec<SceneObject> = read_json(&file(OBJECTS_FILE)?)?;
+    let objects: Vec<TruthObject> = read_json(&file(OBJECTS_FILE)?)?;
     let capture = load_capture(scene_directory, DEFAULT_PIXEL_LIMIT)?;
     let image = capture.image;
     let depth = capture
@@ -187,7 +187,7 @@ pub struct SceneSummary {
     pub description: String,
     /// Classes present, most pixels first.
     pub classes: Vec<ClassShare>,
-    pub objects: Vec<SceneObject>,
+    pub objects: Vec<TruthObject>,
     /// Ids of objects whose class is safety-critical (people, pets, hazards).
     pub safety_objects: Vec<u32>,
 }

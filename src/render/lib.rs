@@ -12,7 +12,8 @@
 //! Same request, same bytes, on every machine: all randomness comes from our own SplitMix64, and the maths is
 //! plain IEEE arithmetic and square roots (no platform trigonometry or exponentials).
 //!
-//! Owns: `SceneRequest`, `RenderedScene`, `SceneObject`, `SceneMetadata`, `RenderError`, the demo catalogue.
+//! Owns: `SceneRequest`, `RenderedScene`, `TruthObject` (a ground-truth object record), `SceneMetadata`,
+//! `RenderError`, and (`demo`) the demo scenes' ground truth; the demo catalogue itself is `sayso_core::demo`'s.
 //! Must not: know about segments, classifiers, language or the solver; class ids come only from the taxonomy.
 
 mod belongings;
@@ -111,7 +112,7 @@ impl From<&catalogue::DemoEntry> for SceneRequest {
 /// One visible object instance of a rendered scene, as written to `objects.json`.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct SceneObject {
+pub struct TruthObject {
     /// The instance number in `instances.png` (1..).
     pub id: u32,
     /// Canonical class name.
@@ -148,7 +149,7 @@ pub struct RenderedScene {
     pub labels: IndexImage,
     /// Instance number per pixel (0 = floor, walls, ceiling).
     pub instances: IndexImage,
-    pub objects: Vec<SceneObject>,
+    pub objects: Vec<TruthObject>,
     pub metadata: SceneMetadata,
 }
 
@@ -196,7 +197,7 @@ fn measure_objects(
     taxonomy: &Taxonomy,
     declarations: &[builder::InstanceDeclaration],
     declared_map: &IndexImage,
-) -> (IndexImage, Vec<SceneObject>) {
+) -> (IndexImage, Vec<TruthObject>) {
     let count = declarations.len() + 1;
     let mut area = vec![0u64; count];
     let mut boxes = vec![[u32::MAX, u32::MAX, 0u32, 0u32]; count];
@@ -233,7 +234,7 @@ fn measure_objects(
             .map(|support| renumbered.get(support as usize).copied().unwrap_or(0))
             .filter(|&support| support != 0)
             .map(u32::from);
-        objects.push(SceneObject {
+        objects.push(TruthObject {
             id: renumbered[number] as u32,
             class: taxonomy.class_name(declaration.class).to_string(),
             class_id: declaration.class,

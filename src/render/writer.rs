@@ -8,7 +8,7 @@ use std::path::{Path, PathBuf};
 
 use crate::raster::{write_depth_png, write_index_png, write_rgb_png};
 
-use super::{RenderError, RenderedScene, SceneMetadata, SceneObject};
+use super::{RenderError, RenderedScene, SceneMetadata, TruthObject};
 
 /// File names inside a scene directory (the one list is `crate::scene::files`).
 pub use crate::scene::files::{
@@ -54,7 +54,7 @@ fn read_json<T: serde::de::DeserializeOwned>(path: &Path) -> Result<T, RenderErr
 }
 
 /// Reads `objects.json` from a scene directory.
-pub fn read_objects(directory: &Path) -> Result<Vec<SceneObject>, RenderError> {
+pub fn read_objects(directory: &Path) -> Result<Vec<TruthObject>, RenderError> {
     read_json(&directory.join(OBJECTS_FILE))
 }
 

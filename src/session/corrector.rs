@@ -73,7 +73,7 @@ pub struct SceneInput {
 
 /// One object of the current scene graph, as the service shows it.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct SceneObject {
+pub struct ObjectSummary {
     pub id: ObjectId,
     pub class: ClassId,
     pub bbox: BoundingBox,
@@ -84,7 +84,7 @@ pub struct SceneObject {
 /// The scene graph reduced to what the service reports: objects and the room type.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
 pub struct SceneSummary {
-    pub objects: Vec<SceneObject>,
+    pub objects: Vec<ObjectSummary>,
     pub room: Option<RoomId>,
     /// The id of the classifier model whose scores this state was solved from, when the corrector knows
     /// it (`crate::unaries::classifier::model_id`); the log records it with the version.
@@ -148,7 +148,7 @@ pub struct CorrectionRequest<'a> {
 
 /// One change a correction makes, for the operator to read.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Change {
+pub struct ReportedChange {
     pub object: Option<ObjectId>,
     pub from: Option<ClassId>,
     pub to: Option<ClassId>,
@@ -159,7 +159,7 @@ pub struct Change {
 
 /// A constraint the solve could not satisfy, and why.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Unmet {
+pub struct ReportedUnmet {
     pub gloss: String,
     pub reason: String,
 }
@@ -186,8 +186,8 @@ pub enum Verdict {
 #[derive(Clone, Debug, PartialEq)]
 pub struct CorrectionOutcome {
     pub constraints: Vec<Constraint>,
-    pub changes: Vec<Change>,
-    pub unmet: Vec<Unmet>,
+    pub changes: Vec<ReportedChange>,
+    pub unmet: Vec<ReportedUnmet>,
     /// Relative gap between the solution's energy and the best lower bound, when the solver reports one.
     pub solver_gap: Option<f64>,
     /// A question asked alongside an applied or held change (a count the graph still cannot show: which

@@ -28,8 +28,8 @@ use crate::turn::{decide, hold_reason, question_alongside, Decision, Note, OpenQ
 use crate::unaries::Classifier;
 
 use super::corrector::{
-    Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, Lineage, SceneInput,
-    SceneObject, SceneState, SceneSummary, Unmet, Verdict,
+    ReportedChange, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, Lineage, SceneInput,
+    ObjectSummary, SceneState, SceneSummary, ReportedUnmet, Verdict,
 };
 use super::joint_inputs::{hex, input_digest, prepare_input, superpixel_image, PreparedInput};
 
@@ -443,7 +443,7 @@ impl JointCorrector {
         let objects = graph
             .objects
             .iter()
-            .map(|object| SceneObject {
+            .map(|object| ObjectSummary {
                 id: object.id,
                 class: object.class,
                 bbox: object.bbox,
@@ -480,7 +480,7 @@ fn service_changes(
     prepared: &PreparedInput,
     correction: &Correction,
     taxonomy: &Taxonomy,
-) -> Vec<Change> {
+) -> Vec<ReportedChange> {
     let reasons = |change: &GraphChange| {
         let glosses: Vec<&str> = change
             .causes
@@ -532,7 +532,7 @@ fn service_changes(
             })
             .unwrap_or(0)
     };
-    let mut out: Vec<Change> = Vec::new();
+    let mut out: Vec<ReportedChange> = Vec::new();
     for change in changes {
         let because = reasons(change);
         match change.kind {
@@ -543,7 +543,7 @@ fn service_changes(
                 });
                 match pair {
                     Some(existing) => existing.pixels += pixels,
-                    None => out.push(Change {
+                    None => out.push(ReportedChange {
                         object: None,
                         from: Some(from),
                         to: Some(to),
@@ -556,21 +556,21 @@ fn service_changes(
                     }),
                 }
             }
-            ChangeKind::ObjectAdded { hypothesis, class } => out.push(Change {
+            ChangeKind::ObjectAdded { hypothesis, class } => out.push(ReportedChange {
                 object: Some(object_id(hypothesis)),
                 from: None,
                 to: Some(class),
                 pixels: object_pixels(hypothesis, class, true),
                 description: format!("object added: {}{because}", taxonomy.class_name(class)),
             }),
-            ChangeKind::ObjectRemoved { hypothesis, class } => out.push(Change {
+            ChangeKind::ObjectRemoved { hypothesis, class } => out.push(ReportedChange {
                 object: Some(object_id(hypothesis)),
                 from: Some(class),
                 to: None,
                 pixels: object_pixels(hypothesis, class, false),
                 description: format!("object removed: {}{because}", taxonomy.class_name(class)),
             }),
-            ChangeKind::RoomChanged { from, to } => out.push(Change {
+            ChangeKind::RoomChanged { from, to } => out.push(ReportedChange {
                 object: None,
                 from: None,
                 to: None,
@@ -586,7 +586,7 @@ fn service_changes(
     out
 }
 
-fn service_unmet(correction: &Correction) -> Vec<Unmet> {
+fn service_unmet(correction: &Correction) -> Vec<ReportedUnmet> {
     let gloss = |index: usize| {
         correction
             .constraint_labels
@@ -594,10 +594,10 @@ fn service_unmet(correction: &Correction) -> Vec<Unmet> {
             .map(|label| label.1.clone())
             .unwrap_or_default()
     };
-    let mut unmet: Vec<Unmet> = correction
+    let mut unmet: Vec<ReportedUnmet> = correction
         .unmet
         .iter()
-        .map(|u| Unmet {
+        .map(|u| ReportedUnmet {
             gloss: gloss(u.constraint),
             reason: if u.contradictory {
                 format!("{} (it contradicts another definite constraint)", u.reason)
@@ -606,7 +606,7 @@ fn service_unmet(correction: &Correction) -> Vec<Unmet> {
             },
         })
         .collect();
-    unmet.extend(correction.issues.iter().map(|issue| Unmet {
+    unmet.extend(correction.issues.iter().map(|issue| ReportedUnmet {
         gloss: String::new(),
         reason: format!("could not tell what this refers to: {issue}"),
     }));

@@ -14,7 +14,7 @@ use sayso_core::scene::Scene;
 use sayso_core::scenegraph::instances::InstanceCuts;
 use sayso_solver::joint::JointOptions;
 use sayso_core::taxonomy::Taxonomy;
-use sayso_core::turn::solve::{correct, Correction, CorrectionRequest};
+use sayso_core::turn::solve::{correct, Correction, SolveRequest};
 use sayso_perception::unaries::Unaries;
 
 /// A constraint as the parser would give it, spanning the whole gloss.
@@ -45,7 +45,7 @@ pub fn turn(
     confirm_safety: bool,
 ) -> Correction {
     let prior = RoomClassPrior::from_taxonomy(stage.taxonomy);
-    let request = CorrectionRequest {
+    let request = SolveRequest {
         scene: stage.scene,
         unaries: stage.unaries,
         taxonomy: stage.taxonomy,

@@ -22,8 +22,8 @@ use sayso_core::raster::{self, IndexImage, RgbImage};
 use sayso_core::scene::BoundingBox;
 use sayso_service::AppState;
 use sayso_session::corrector::{
-    Change, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
-    SceneObject, SceneState, SceneSummary, Verdict,
+    ReportedChange, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
+    ObjectSummary, SceneState, SceneSummary, Verdict,
 };
 use sayso_session::{Coordinator, CoordinatorSettings};
 use sayso_core::taxonomy::Taxonomy;
@@ -311,7 +311,7 @@ fn grid_summary(labels: &IndexImage) -> SceneSummary {
     let mut objects = Vec::new();
     for y in 0..labels.height {
         for x in 0..labels.width {
-            objects.push(SceneObject {
+            objects.push(ObjectSummary {
                 id: sayso_core::ids::ObjectId(y * labels.width + x + 1),
                 class: ClassId(labels.get(x, y)),
                 bbox: BoundingBox {
@@ -424,7 +424,7 @@ impl Corrector for GridEngine {
         }
         let mut labels = request.state.labels.clone();
         labels.set(x, y, class.id.0);
-        let change = Change {
+        let change = ReportedChange {
             object: Some(sayso_core::ids::ObjectId(y * labels.width + x + 1)),
             from: Some(ClassId(old)),
             to: Some(class.id),

@@ -30,7 +30,7 @@ use crate::scenegraph::SceneGraph;
 use crate::solver::joint::JointOptions;
 use crate::taxonomy::Taxonomy;
 use crate::unaries::Unaries;
-use solve::{correct, Correction, CorrectionError, CorrectionRequest};
+use solve::{correct, Correction, CorrectionError, SolveRequest};
 pub use words::Command;
 
 /// What can stop a turn.
@@ -111,7 +111,7 @@ pub fn correct_turn(
             .map(|p| known_objects(&p.graph))
             .unwrap_or_default(),
     };
-    correct(&CorrectionRequest {
+    correct(&SolveRequest {
         scene: inputs.scene,
         unaries: inputs.unaries,
         taxonomy: settings.grammar.taxonomy(),

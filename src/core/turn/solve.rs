@@ -1,6 +1,6 @@
 //! `solve`: the solve of one operator turn — ground the constraints, build the energy, solve, describe.
 //!
-//! Owns: `CorrectionRequest`, `Correction`, the safety hold (a second solve that keeps safety-critical labels
+//! Owns: `SolveRequest`, `Correction`, the safety hold (a second solve that keeps safety-critical labels
 //! and objects unless the operator confirmed) and the baseline solve when there is no previous turn.
 //! Must not: parse utterances or touch files; constraints arrive typed, results leave as plain values.
 
@@ -45,7 +45,7 @@ pub enum CorrectionError {
 }
 
 /// One turn's inputs.
-pub struct CorrectionRequest<'a> {
+pub struct SolveRequest<'a> {
     pub scene: &'a Scene,
     pub unaries: &'a Unaries,
     pub taxonomy: &'a Taxonomy,
@@ -111,7 +111,7 @@ fn carry_state(
 }
 
 /// Runs one turn.
-pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionError> {
+pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     let scene = request.scene;
     let taxonomy = request.taxonomy;
     // A later turn keeps the earlier turn's hypothesis list (the same scene gives the same list, plus any
@@ -514,7 +514,7 @@ pub fn correct(request: &CorrectionRequest) -> Result<Correction, CorrectionErro
 /// The counts and presences of this turn (constraint index `first` on) that the scene graph of `solution`
 /// does not show.
 fn unmet_counts(
-    request: &CorrectionRequest,
+    request: &SolveRequest,
     hypotheses: &[Hypothesis],
     solution: &JointSolution,
     in_force: &[GroundedConstraint],
@@ -547,7 +547,7 @@ fn unmet_counts(
 
 /// The scene graph of a solved state, with the counts and caps in force.
 fn graph_of(
-    request: &CorrectionRequest,
+    request: &SolveRequest,
     hypotheses: &[Hypothesis],
     solution: &JointSolution,
     (counted, caps): (&[(ClassId, u32)], &[Cap]),
@@ -569,7 +569,7 @@ fn graph_of(
 }
 
 fn energy_inputs<'a>(
-    request: &'a CorrectionRequest,
+    request: &'a SolveRequest,
     hypotheses: &'a [Hypothesis],
     accepted: &'a [bool],
     grounded: &'a [GroundedConstraint],

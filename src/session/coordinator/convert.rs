@@ -11,7 +11,7 @@ use crate::taxonomy::Taxonomy;
 use crate::turn::Candidate;
 
 use super::SceneSlot;
-use crate::corrector::{Change, SceneSummary, Unmet};
+use crate::corrector::{ReportedChange, SceneSummary, ReportedUnmet};
 use crate::wire::{
     CandidateOut, ChangeOut, ConstraintOut, FocusIn, ObjectOut, PixelBox, SceneGraphOut, TextSpan,
     UnmetOut,
@@ -51,7 +51,7 @@ pub(crate) fn constraint_out(constraint: &Constraint) -> ConstraintOut {
     }
 }
 
-pub(crate) fn change_out(change: &Change, taxonomy: &Taxonomy) -> ChangeOut {
+pub(crate) fn change_out(change: &ReportedChange, taxonomy: &Taxonomy) -> ChangeOut {
     ChangeOut {
         object_id: change.object.map(|object| object.0),
         from: change
@@ -118,7 +118,7 @@ pub(crate) fn label_changes(
     out
 }
 
-pub(crate) fn unmet_out(unmet: &Unmet) -> UnmetOut {
+pub(crate) fn unmet_out(unmet: &ReportedUnmet) -> UnmetOut {
     UnmetOut {
         gloss: unmet.gloss.clone(),
         reason: unmet.reason.clone(),

@@ -30,7 +30,7 @@ use crate::language::constraint::Constraint;
 use crate::raster;
 use crate::turn::{Answered, OpenQuestion};
 
-use super::corrector::{Change, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
+use super::corrector::{ReportedChange, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
 use super::counters::TurnCounters;
 use super::error::SessionError;
 use crate::wire::{ConversationOut, HealthOut, SceneGraphOut};
@@ -56,7 +56,7 @@ pub(crate) struct PendingSlot {
     base: VersionKey,
     state: SceneState,
     reason: String,
-    changes: Vec<Change>,
+    changes: Vec<ReportedChange>,
     utterance: String,
     constraints: Vec<Constraint>,
     focus: Option<crate::language::constraint::Focus>,
