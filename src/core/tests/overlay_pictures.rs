@@ -176,7 +176,7 @@ fn the_overlay_matches_its_golden_picture() {
 
 #[test]
 fn the_class_palette_keeps_every_pair_apart_in_cielab() {
-    // CIELAB by sayso_core::color, itself checked against scikit-image's rgb2lab in tests/colour_reference.rs.
+    // CIELAB by sayso_core::color, itself checked against scikit-image's rgb2lab in src/core/tests/colour_reference.rs.
     let taxonomy = Taxonomy::embedded();
     let colours: Vec<[u8; 3]> = taxonomy.classes().iter().map(|c| c.colour).collect();
     assert_eq!(colours.len(), 41);
