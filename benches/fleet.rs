@@ -27,12 +27,11 @@ use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;
 use std::path::Path;
 use std::process::{Child, Command, Stdio};
-use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-use criterion::{criterion_group, criterion_main, Criterion};
 use conversations::{open_conversations, utterance, Conversation};
-use demo_turns::{load_average, percentile};
+use criterion::{criterion_group, criterion_main, Criterion};
+use demo_turns::{load_average, percentile, BENCH_SCENES};
 
 /// Notes each conversation sends in the measured run (after one warm-up pass over its notes on every
 /// replica).

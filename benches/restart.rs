@@ -20,8 +20,8 @@ use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::load_average;
-use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_core::demo::demo_directory;
+use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_perception::pipeline::model_path;
 use sayso_session::JointCorrector;
 use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};
@@ -216,7 +216,8 @@ fn preparation_profile() {
     .expect("the demo scene loads");
     let taxonomy = sayso_perception::pipeline::CorrectionSettings::embedded().unwrap();
     let classifier =
-        sayso_perception::pipeline::load_classifier(&model_path(None), taxonomy.grammar.taxonomy()).unwrap();
+        sayso_perception::pipeline::load_classifier(&model_path(None), taxonomy.grammar.taxonomy())
+            .unwrap();
     let mut slic_alone = Vec::new();
     let mut superpixels = Vec::new();
     let mut prepared = Vec::new();

@@ -21,13 +21,13 @@ use std::net::SocketAddr;
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-use criterion::{criterion_group, criterion_main, Criterion};
 use conversations::{open_conversations, utterance, Conversation};
+use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::{load_average, percentile};
-use sayso_session::config::ServiceConfig;
 use sayso_core::demo::demo_directory;
 use sayso_perception::pipeline::model_path;
 use sayso_service::AppState;
+use sayso_session::config::ServiceConfig;
 use sayso_session::JointCorrector;
 use sayso_session::{Coordinator, CoordinatorSettings};
 
@@ -151,7 +151,11 @@ fn open_loop(bench: &Bench, rate: f64, total: u32) -> (Duration, Duration) {
                         std::thread::sleep(wait);
                     }
                     let conversation = &conversations[index as usize % conversations.len()];
-                    utterance(address, conversation, (index / conversations.len() as u32) as usize);
+                    utterance(
+                        address,
+                        conversation,
+                        (index / conversations.len() as u32) as usize,
+                    );
                     latencies.push(due.elapsed());
                 }
                 latencies

@@ -8,9 +8,9 @@
 //! Owns: nothing the crate uses. Must not: tune anything on what it prints (the demo scenes are for the
 //! demo and its evaluation only).
 use sayso_core::demo::{demo_directory, list_demo_scenes};
+use sayso_core::taxonomy::Taxonomy;
 use sayso_lab::evaluation::{objects_from_graph, PredictedObject};
 use sayso_perception::pipeline::*;
-use sayso_core::taxonomy::Taxonomy;
 use std::collections::HashMap;
 
 fn iou(a: &[u32], inst: &[u16], id: u16, area: u64) -> f64 {

@@ -9,9 +9,9 @@
 use std::time::Instant;
 
 use sayso_core::demo::{demo_directory, list_demo_scenes};
-use sayso_perception::pipeline::*;
 use sayso_core::scenegraph::label_map;
 use sayso_core::taxonomy::Taxonomy;
+use sayso_perception::pipeline::*;
 
 fn correct_by_class(truth: &[u16], predicted: &[u16], classes: usize) -> (Vec<i64>, i64, i64) {
     let mut per_class = vec![0i64; classes];

@@ -5,11 +5,13 @@
 //! means. The figures quoted in `sayso_core::scenegraph::objects` come from this program.
 //!
 //! Owns: nothing the crate uses. Must not: read demo_scenes/ (the renders are training seeds only).
-use sayso_lab::evaluation::{object_accuracy, objects_from_graph, objects_from_regions, score_labels};
-use sayso_perception::pipeline::*;
 use sayso_core::scenegraph::label_map;
 use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::evaluation::{
+    object_accuracy, objects_from_graph, objects_from_regions, score_labels,
+};
 use sayso_lab::tuning::prepare_tuning_scenes;
+use sayso_perception::pipeline::*;
 
 fn main() -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();

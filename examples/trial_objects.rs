@@ -7,11 +7,11 @@
 //! Owns: nothing the crate uses. Must not: read the held-out half (seeds from 7000000 are refused).
 use std::collections::HashMap;
 
-use sayso_lab::evaluation::{matched_objects, objects_from_graph, PredictedObject};
 use sayso_core::language::constraint::Focus;
-use sayso_perception::pipeline::*;
 use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::evaluation::{matched_objects, objects_from_graph, PredictedObject};
 use sayso_lab::trial::{render_trial_scene, HELD_OUT_START};
+use sayso_perception::pipeline::*;
 
 fn main() -> anyhow::Result<()> {
     let args: Vec<String> = std::env::args().skip(1).collect();
@@ -30,7 +30,8 @@ fn main() -> anyhow::Result<()> {
     let truth = render_trial_scene(&taxonomy, seed, index)?;
     let prepared = prepare_loaded(truth.clone(), &classifier)?;
     let base = believe_without_notes(&prepared, &settings)?;
-    let name = |c: sayso_core::ids::ClassId| taxonomy.class(c).map_or("?".into(), |i| i.name.clone());
+    let name =
+        |c: sayso_core::ids::ClassId| taxonomy.class(c).map_or("?".into(), |i| i.name.clone());
     let show = |title: &str, graph: &sayso_core::scenegraph::SceneGraph| {
         let objects = objects_from_graph(&prepared.scene, graph);
         // The classifier's mean log-probability margin of each object's class over the best other class.

@@ -84,7 +84,9 @@ pub fn npy(data: &[u8]) {
 pub fn label_map(data: &[u8]) {
     if let Ok(labels) = raster::decode_index_png(data, Path::new("fuzz"), FUZZ_PIXEL_LIMIT) {
         let classes = taxonomy().classes().len();
-        let _ = sayso_perception::unaries::byo_label_map::label_map_probabilities(&labels, None, classes);
+        let _ = sayso_perception::unaries::byo_label_map::label_map_probabilities(
+            &labels, None, classes,
+        );
     }
     let _ = sayso_perception::unaries::perception::read_class_list(&String::from_utf8_lossy(data));
 }

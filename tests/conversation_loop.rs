@@ -11,11 +11,13 @@ use std::sync::OnceLock;
 
 use sayso_core::ids::ClassId;
 use sayso_core::language::constraint::{ConstraintKind, Count, Focus};
-use sayso_perception::pipeline::{load_classifier, model_path, prepare_scene, PreparedScene, SceneSource};
 use sayso_core::scenegraph::SceneGraph;
 use sayso_core::taxonomy::Taxonomy;
 use sayso_core::turn::dialogue::{Dialogue, Status};
 use sayso_core::turn::{CorrectionSettings, TurnInputs};
+use sayso_perception::pipeline::{
+    load_classifier, model_path, prepare_scene, PreparedScene, SceneSource,
+};
 
 fn settings() -> &'static CorrectionSettings {
     static SETTINGS: OnceLock<CorrectionSettings> = OnceLock::new();
@@ -393,7 +395,8 @@ mod service {
     use sayso_wire::{TurnStatus, UtteranceReply};
 
     fn open(data: &Path) -> Coordinator {
-        let engine = JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier");
+        let engine = JointCorrector::load(&sayso_perception::pipeline::model_path(None))
+            .expect("classifier");
         Coordinator::open(
             Arc::new(engine),
             &CoordinatorSettings {

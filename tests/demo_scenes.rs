@@ -3,10 +3,10 @@
 
 use std::path::Path;
 
-use sayso_render::demo::{list_demo_scenes, load_demo_scene, COMPILED_DEMO_DIR};
-use sayso_render::catalogue::{demo_entry, DEMO_SCENES, DEMO_SEEDS};
-use sayso_render::{render_scene, writer, SceneRequest};
 use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
+use sayso_render::catalogue::{demo_entry, DEMO_SCENES, DEMO_SEEDS};
+use sayso_render::demo::{list_demo_scenes, load_demo_scene, COMPILED_DEMO_DIR};
+use sayso_render::{render_scene, writer, SceneRequest};
 
 fn demo_dir() -> &'static Path {
     Path::new(COMPILED_DEMO_DIR)

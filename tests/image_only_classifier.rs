@@ -14,10 +14,10 @@ use std::sync::Arc;
 use axum::body::Body;
 use axum::http::{Request, StatusCode};
 use sayso_core::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
-use sayso_render::writer::write_scene;
-use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
 use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
 use sayso_perception::unaries::UnarySource;
+use sayso_render::writer::write_scene;
+use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
 use tower::ServiceExt;
 
 /// Held-out renders as `sayso render --seed 500000 --count 2` writes them (room types in turn).
@@ -82,8 +82,8 @@ fn fix_labels(scene: &Path) -> (IndexImage, String) {
 }
 
 fn service() -> (tempfile::TempDir, axum::Router) {
-    use sayso_session::config::ServiceConfig;
     use sayso_perception::pipeline::model_path;
+    use sayso_session::config::ServiceConfig;
     use sayso_session::{Coordinator, CoordinatorSettings, JointCorrector};
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {
@@ -196,8 +196,8 @@ async fn an_image_without_depth_is_labelled_well_and_alike_by_fix_and_the_servic
 
 #[test]
 fn the_image_only_model_scores_scenes_without_depth_and_only_the_built_in_pair_has_one() {
-    use sayso_perception::pipeline::{load_classifier, model_path, prepare_loaded};
     use sayso_core::scene::load_capture;
+    use sayso_perception::pipeline::{load_classifier, model_path, prepare_loaded};
     let taxonomy = Taxonomy::embedded();
     let classifier = load_classifier(&model_path(None), &taxonomy).unwrap();
     assert!(classifier.image_only().is_some());

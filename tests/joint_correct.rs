@@ -20,10 +20,10 @@ use sayso_core::language::constraint::{
 use sayso_core::scene::Scene;
 use sayso_core::scenegraph::changes::{ChangeKind, ChangeStatus};
 use sayso_core::scenegraph::instances::InstanceCuts;
-use sayso_solver::joint::JointOptions;
 use sayso_core::taxonomy::Taxonomy;
 use sayso_core::turn::solve::{correct, Correction, SolveRequest};
 use sayso_perception::unaries::Unaries;
+use sayso_solver::joint::JointOptions;
 
 const COLUMNS: u32 = 8;
 const ROWS: u32 = 6;
@@ -471,7 +471,8 @@ fn the_same_turn_gives_the_same_bytes() {
     assert_eq!(map.values.len(), 80 * 60);
     let png = sayso_core::raster::encode_index_png(&map).unwrap();
     let decoded =
-        sayso_core::raster::decode_index_png(&png, std::path::Path::new("map.png"), 1 << 20).unwrap();
+        sayso_core::raster::decode_index_png(&png, std::path::Path::new("map.png"), 1 << 20)
+            .unwrap();
     assert_eq!(decoded.values, map.values);
     for object in &first.graph.objects {
         let mask = object.mask.decode();

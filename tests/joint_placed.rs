@@ -14,7 +14,9 @@ use common::turns::{constraint, turn, Stage};
 use sayso_core::grounding::{GroundingContext, KnownObject};
 use sayso_core::hypotheses::{build_hypotheses, propose_named, HypothesisOrigin, ProposalOptions};
 use sayso_core::ids::{ClassId, SegmentId};
-use sayso_core::language::constraint::{Constraint, ConstraintKind, Count, Referent, Relation, Span};
+use sayso_core::language::constraint::{
+    Constraint, ConstraintKind, Count, Referent, Relation, Span,
+};
 use sayso_core::scene::Scene;
 use sayso_core::scenegraph::changes::ChangeKind;
 use sayso_core::scenegraph::instances::InstanceCuts;

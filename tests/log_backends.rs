@@ -8,11 +8,11 @@ mod postgres_support;
 
 use std::sync::{Arc, Barrier};
 
+use sayso_core::raster::{encode_index_png, IndexImage};
 use sayso_correction_log::{
     export_dataset, ConversationKey, CorrectionLog, LogError, NewScene, NewTurn, PostgresLog,
     SceneKey, StateRecord, TurnEffect, TurnMark, VersionKey, LOG_SCHEMA_VERSION,
 };
-use sayso_core::raster::{encode_index_png, IndexImage};
 
 /// A 4x4 label map filled with `class`, as the index PNG the log stores.
 fn labels(class: u16) -> Vec<u8> {
@@ -421,8 +421,7 @@ fn a_second_handle_reads_what_the_first_wrote_on_sqlite() {
 fn a_second_replica_reads_what_the_first_wrote_on_postgresql() {
     let url = postgres_support::fresh_database();
     let writer = postgres_log(&url);
-    let reader =
-        CorrectionLog::connect(&sayso_correction_log::LogLocation::Postgres(url)).unwrap();
+    let reader = CorrectionLog::connect(&sayso_correction_log::LogLocation::Postgres(url)).unwrap();
     assert!(reader.is_shared(), "a PostgreSQL log is shared by replicas");
     lookups(writer, reader);
 }
@@ -437,8 +436,7 @@ fn two_writers_racing_on_one_scene_never_both_win_on_sqlite() {
 fn two_replicas_racing_on_one_scene_never_both_win_on_postgresql() {
     let url = postgres_support::fresh_database();
     let first = postgres_log(&url);
-    let second =
-        CorrectionLog::connect(&sayso_correction_log::LogLocation::Postgres(url)).unwrap();
+    let second = CorrectionLog::connect(&sayso_correction_log::LogLocation::Postgres(url)).unwrap();
     race(first, second);
 }
 
@@ -505,11 +503,10 @@ fn a_bad_postgresql_address_is_a_typed_error() {
         "postgres://sayso@127.0.0.1:notaport/db",
         "postgres://[::1/db",
     ] {
-        let error = CorrectionLog::connect(&sayso_correction_log::LogLocation::Postgres(
-            address.into(),
-        ))
-        .err()
-        .expect("refused");
+        let error =
+            CorrectionLog::connect(&sayso_correction_log::LogLocation::Postgres(address.into()))
+                .err()
+                .expect("refused");
         assert!(matches!(error, LogError::Address(_)), "{address}: {error}");
     }
     // Nothing listens on port 1: the error says there is no connection, and no password is shown.

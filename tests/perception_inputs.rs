@@ -423,8 +423,8 @@ fn router_with(
     body_limit_bytes: usize,
     user_model: Option<&Path>,
 ) -> (tempfile::TempDir, axum::Router) {
-    use sayso_session::config::ServiceConfig;
     use sayso_perception::pipeline::model_path;
+    use sayso_session::config::ServiceConfig;
     use sayso_session::JointCorrector;
     use sayso_session::{Coordinator, CoordinatorSettings};
     let data = tempfile::tempdir().unwrap();

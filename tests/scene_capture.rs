@@ -186,7 +186,8 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
         png::ColorType::Indexed
     );
     let labels =
-        sayso_core::raster::read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+        sayso_core::raster::read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT)
+            .unwrap();
     assert_eq!((labels.width, labels.height), (320, 240));
     assert!(labels.values.iter().all(|&value| value < 41));
 }
@@ -194,8 +195,8 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
 /// The service over the joint pipeline and built-in classifier, its log in a fresh directory (returned so it
 /// lives as long as the router).
 fn service() -> (tempfile::TempDir, axum::Router) {
-    use sayso_session::config::ServiceConfig;
     use sayso_perception::pipeline::model_path;
+    use sayso_session::config::ServiceConfig;
     use sayso_session::JointCorrector;
     use sayso_session::{Coordinator, CoordinatorSettings};
     let data = tempfile::tempdir().unwrap();
@@ -300,7 +301,8 @@ async fn the_service_finds_demo_scenes_like_fix_and_says_where_it_looked() {
     assert_eq!(status, StatusCode::NOT_FOUND, "{error}");
     let message = error["message"].as_str().unwrap();
     assert!(
-        message.contains(sayso_core::demo::COMPILED_DEMO_DIR) && message.contains("kitchen_breakfast"),
+        message.contains(sayso_core::demo::COMPILED_DEMO_DIR)
+            && message.contains("kitchen_breakfast"),
         "{message}"
     );
 }

@@ -240,7 +240,9 @@ fn books_of_different_colours_side_by_side_are_separate_objects_under_the_commit
 
 #[test]
 fn counted_cuts_part_books_that_differ_in_colour_and_leave_single_walls_whole() {
-    use sayso_core::scenegraph::instance_statistics::{InstanceCutCounts, CANDIDATE_CUTS, MIN_OBJECTS};
+    use sayso_core::scenegraph::instance_statistics::{
+        InstanceCutCounts, CANDIDATE_CUTS, MIN_OBJECTS,
+    };
     // The book row above as ground truth: books are instances 1..=4 (cells 0-1, 2, 3-4, 5), the wall
     // instance 5 (cell 6). Counted five times, so books reach MIN_OBJECTS (20) and the wall does not.
     let cell = 4u32;

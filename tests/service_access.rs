@@ -6,8 +6,8 @@ mod service_support;
 
 use std::sync::Arc;
 
-use sayso_session::config::{OperatorToken, Role, ServiceConfig};
 use sayso_core::raster::IndexImage;
+use sayso_session::config::{OperatorToken, Role, ServiceConfig};
 use service_support::*;
 
 const CAT: u16 = 40;

@@ -3,8 +3,8 @@
 
 mod service_support;
 
-use sayso_session::config::{OperatorToken, ServiceConfig};
 use sayso_core::raster::IndexImage;
+use sayso_session::config::{OperatorToken, ServiceConfig};
 use service_support::*;
 
 const TOKEN: &str = "juniper-lane-mira-0001";

@@ -5,8 +5,8 @@ mod service_support;
 
 use std::collections::HashMap;
 
-use sayso_session::config::ServiceConfig;
 use sayso_core::raster::{self, IndexImage};
+use sayso_session::config::ServiceConfig;
 use service_support::*;
 
 const MUG: u16 = 21;

@@ -3,8 +3,8 @@
 
 mod service_support;
 
-use sayso_session::config::ServiceConfig;
 use sayso_core::raster::{self, IndexImage};
+use sayso_session::config::ServiceConfig;
 use service_support::*;
 
 const CAT: u16 = 40;
@@ -332,7 +332,8 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
     let data = tempfile::tempdir().unwrap();
     let coordinator = Coordinator::open(
         std::sync::Arc::new(
-            sayso_session::JointCorrector::load(&sayso_perception::pipeline::model_path(None)).unwrap(),
+            sayso_session::JointCorrector::load(&sayso_perception::pipeline::model_path(None))
+                .unwrap(),
         ),
         &CoordinatorSettings {
             log_path: data.path().join("corrections.sqlite"),

@@ -11,12 +11,12 @@ use std::net::TcpStream;
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-use sayso_session::config::ServiceConfig;
 use sayso_core::raster::{IndexImage, RgbImage};
+use sayso_core::taxonomy::Taxonomy;
+use sayso_session::config::ServiceConfig;
 use sayso_session::corrector::{
     CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput, SceneState,
 };
-use sayso_core::taxonomy::Taxonomy;
 use service_support::*;
 
 /// The grid engine, slowed down: registering a scene takes `delay`.

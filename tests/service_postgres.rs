@@ -9,8 +9,8 @@ mod service_support;
 use std::process::Command;
 use std::sync::Arc;
 
-use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_core::raster::IndexImage;
+use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_session::JointCorrector;
 use sayso_session::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
 use sayso_wire::{FocusIn, TurnStatus};
@@ -49,7 +49,9 @@ fn open(url: &str, corrector: Arc<JointCorrector>) -> Result<Coordinator, OpenEr
 }
 
 fn engine() -> Arc<JointCorrector> {
-    Arc::new(JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"))
+    Arc::new(
+        JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"),
+    )
 }
 
 /// A 96x96 floor with a checkerboard of rug cells, registered with its label map.

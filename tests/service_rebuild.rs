@@ -8,8 +8,8 @@ mod service_support;
 use std::path::Path;
 use std::sync::Arc;
 
-use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_core::raster::IndexImage;
+use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_session::JointCorrector;
 use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};
 use sayso_wire::{FocusIn, TurnStatus};
@@ -25,7 +25,9 @@ fn open(data: &Path) -> Coordinator {
 }
 
 fn engine() -> Arc<JointCorrector> {
-    Arc::new(JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"))
+    Arc::new(
+        JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"),
+    )
 }
 
 fn open_with(data: &Path, corrector: Arc<JointCorrector>) -> Coordinator {

@@ -8,15 +8,15 @@
 use std::path::Path;
 use std::process::Command;
 
-use sayso_correction_log::CorrectionLog;
-use sayso_render::demo::load_demo_scene;
-use sayso_session::corrector::{Corrector, SceneInput};
-use sayso_session::JointCorrector;
 use sayso_core::taxonomy::Taxonomy;
+use sayso_correction_log::CorrectionLog;
 use sayso_perception::unaries::classifier::model_id;
 use sayso_perception::unaries::onnx_reader::read_mlp;
 use sayso_perception::unaries::onnx_writer::encode_model;
 use sayso_perception::unaries::{current_feature_layout, Classifier};
+use sayso_render::demo::load_demo_scene;
+use sayso_session::corrector::{Corrector, SceneInput};
+use sayso_session::JointCorrector;
 
 /// Runs the binary with `arguments` and returns its standard output; fails the test on a non-zero exit.
 fn run(arguments: &[&std::ffi::OsStr]) -> String {

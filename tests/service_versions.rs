@@ -162,8 +162,12 @@ async fn every_version_of_a_scene_is_listed_and_can_be_read_back() {
                 "{}",
                 String::from_utf8_lossy(&reply.body)
             );
-            sayso_core::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 20)
-                .unwrap()
+            sayso_core::raster::decode_index_png(
+                &reply.body,
+                std::path::Path::new("labels"),
+                1 << 20,
+            )
+            .unwrap()
         }
     };
     let mug = sayso_core::taxonomy::Taxonomy::embedded()

@@ -29,7 +29,10 @@ fn rust_files(directory: &Path, found: &mut Vec<PathBuf>) {
         .collect();
     entries.sort();
     for path in entries {
-        let name = path.file_name().and_then(|name| name.to_str()).unwrap_or("");
+        let name = path
+            .file_name()
+            .and_then(|name| name.to_str())
+            .unwrap_or("");
         if path.is_dir() {
             if name != "target" && !name.starts_with('.') {
                 rust_files(&path, found);
@@ -121,7 +124,10 @@ fn manifests() -> BTreeMap<String, Manifest> {
         let mut internal = BTreeSet::new();
         let mut external = BTreeSet::new();
         let mut features = BTreeMap::new();
-        if let Some(dependencies) = manifest.get("dependencies").and_then(|value| value.as_table()) {
+        if let Some(dependencies) = manifest
+            .get("dependencies")
+            .and_then(|value| value.as_table())
+        {
             for (dependency, value) in dependencies {
                 if dependency.starts_with("sayso") {
                     internal.insert(dependency.clone());
@@ -226,13 +232,41 @@ fn the_manifests_keep_the_layers_apart() {
         // The correction path (core, perception, session) never uses the renderer or the lab.
         (
             "sayso-core",
-            &["sayso-perception", "sayso-render", "sayso-lab", "sayso-correction-log", "sayso-session"],
+            &[
+                "sayso-perception",
+                "sayso-render",
+                "sayso-lab",
+                "sayso-correction-log",
+                "sayso-session",
+            ],
         ),
-        ("sayso-perception", &["sayso-render", "sayso-lab", "sayso-correction-log", "sayso-session"]),
+        (
+            "sayso-perception",
+            &[
+                "sayso-render",
+                "sayso-lab",
+                "sayso-correction-log",
+                "sayso-session",
+            ],
+        ),
         // The session layer knows nothing of HTTP.
-        ("sayso-session", &["sayso-render", "sayso-lab", "sayso-service"]),
-        ("sayso-correction-log", &["sayso-perception", "sayso-render", "sayso-lab", "sayso-session"]),
-        ("sayso-wire", &["sayso-core", "sayso-session", "sayso-service"]),
+        (
+            "sayso-session",
+            &["sayso-render", "sayso-lab", "sayso-service"],
+        ),
+        (
+            "sayso-correction-log",
+            &[
+                "sayso-perception",
+                "sayso-render",
+                "sayso-lab",
+                "sayso-session",
+            ],
+        ),
+        (
+            "sayso-wire",
+            &["sayso-core", "sayso-session", "sayso-service"],
+        ),
     ];
     for (name, forbidden) in rules {
         let reached = reaches(&manifests, name);
@@ -265,6 +299,9 @@ fn the_manifests_keep_the_layers_apart() {
             .features
             .get("utoipa")
             .is_some_and(|features| features.iter().any(|feature| feature.contains("axum")));
-        assert!(!asks_axum || name == "sayso-service", "{name} turns on utoipa's axum support");
+        assert!(
+            !asks_axum || name == "sayso-service",
+            "{name} turns on utoipa's axum support"
+        );
     }
 }

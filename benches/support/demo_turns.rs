@@ -13,15 +13,15 @@ use std::path::PathBuf;
 use sayso_core::demo::demo_directory;
 use sayso_core::energy::build::{build_energy, EnergyInputs};
 use sayso_core::energy::{JointEnergy, JointState};
-use sayso_lab::evaluation::read_pointed_notes;
 use sayso_core::language::constraint::{Constraint, Focus};
+use sayso_core::scene::SCENE_SEGMENTS;
+use sayso_core::turn::solve::Correction;
+use sayso_lab::evaluation::read_pointed_notes;
 use sayso_perception::pipeline::{
     correct_turn, load_classifier, model_path, prepare_scene, CorrectionSettings, PreparedScene,
     SceneSource, TurnInputs,
 };
-use sayso_core::scene::SCENE_SEGMENTS;
 use sayso_solver::joint::WarmStart;
-use sayso_core::turn::solve::Correction;
 
 /// The demo scenes every production bench runs on: one of each of four room types.
 pub const BENCH_SCENES: [&str; 4] = [

@@ -9,20 +9,20 @@
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso_render::demo::{
-    demo_directory, demo_scene_path, load_demo_scene, summarise, summary_text, BeliefSource,
-};
-use sayso_lab::evaluation::read_pointed_notes;
 use sayso_core::overlay::{draw_overlay, Labelling, OverlayOptions, RegionMap};
-use sayso_perception::pipeline::{
-    correct_notes, load_classifier, model_path, object_summary, prepare_loaded, CorrectionSettings,
-    PointedNote,
-};
 use sayso_core::raster::write_rgb_png;
 use sayso_core::raster::DEFAULT_PIXEL_LIMIT;
 use sayso_core::scene::load_capture;
 use sayso_core::scenegraph::changes::ChangeKind;
 use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::evaluation::read_pointed_notes;
+use sayso_perception::pipeline::{
+    correct_notes, load_classifier, model_path, object_summary, prepare_loaded, CorrectionSettings,
+    PointedNote,
+};
+use sayso_render::demo::{
+    demo_directory, demo_scene_path, load_demo_scene, summarise, summary_text, BeliefSource,
+};
 
 /// Where the shown labels come from.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]

@@ -10,15 +10,15 @@ use anyhow::Context;
 use sayso_core::demo::demo_directory;
 use sayso_core::language::parse_focus;
 use sayso_core::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
-use sayso_perception::pipeline::{
-    correct_notes, load_classifier, model_path, prepare_perceived, report_text, CorrectionReport,
-    CorrectionSettings, PointedNote, SceneSource,
-};
 use sayso_core::raster::{write_palette_png, write_rgb_png};
 use sayso_core::scene::files::LABELS_FILE;
 use sayso_core::scenegraph::{label_map, SceneGraph};
 use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
 use sayso_core::turn::dialogue::Status;
+use sayso_perception::pipeline::{
+    correct_notes, load_classifier, model_path, prepare_perceived, report_text, CorrectionReport,
+    CorrectionSettings, PointedNote, SceneSource,
+};
 use sayso_perception::unaries::perception::ScoreSource;
 
 /// Correct a scene from operator notes.

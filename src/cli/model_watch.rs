@@ -10,9 +10,9 @@ use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::{Duration, SystemTime};
 
+use sayso_perception::unaries::{current_feature_layout, Classifier};
 use sayso_session::Corrector;
 use sayso_session::JointCorrector;
-use sayso_perception::unaries::{current_feature_layout, Classifier};
 
 /// How often the file's size and modification time are looked at (a stat call: cheap).
 pub const POLL_INTERVAL: Duration = Duration::from_secs(2);

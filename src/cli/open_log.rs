@@ -10,10 +10,10 @@ use std::path::PathBuf;
 use std::sync::Arc;
 
 use anyhow::Context;
-use sayso_session::config::ServiceConfig;
-use sayso_correction_log::LogLocation;
 use sayso_core::language::Grammar;
+use sayso_correction_log::LogLocation;
 use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
+use sayso_session::config::ServiceConfig;
 use sayso_session::{Coordinator, CoordinatorSettings, Corrector, JointCorrector};
 
 /// Where the service's settings come from: flags, then `SAYSO_*` variables, then the config file.

@@ -13,14 +13,16 @@ use std::sync::Arc;
 use anyhow::Context;
 use sayso_core::raster::{read_index_png, DEFAULT_PIXEL_LIMIT};
 use sayso_core::scene::files::perception_files;
-use sayso_session::SceneUpload;
 use sayso_core::taxonomy::Taxonomy;
 use sayso_perception::unaries::byo::SynonymTable;
 use sayso_perception::unaries::byo_detections::parse_detections;
 use sayso_perception::unaries::byo_npy::{encode_npy_f32, read_npy};
 use sayso_perception::unaries::byo_pixel_scores::{ScoreKind, ScoreLayout};
 use sayso_perception::unaries::byo_user_model::UserModel;
-use sayso_perception::unaries::perception::{read_class_list, LabelMap, Perception, PixelScores, ScoreSource};
+use sayso_perception::unaries::perception::{
+    read_class_list, LabelMap, Perception, PixelScores, ScoreSource,
+};
+use sayso_session::SceneUpload;
 use sayso_wire::{DetectionIn, MaskRunsIn, PixelBox};
 
 /// How the numbers of a scores file are to be read.
@@ -209,7 +211,10 @@ impl PerceptionArgs {
             upload.label_map_classes = class_list(&self.label_classes)?;
         }
         let rgb = if self.user_model.is_some() || self.detections.is_some() {
-            Some(sayso_core::raster::read_rgb_image(image, DEFAULT_PIXEL_LIMIT)?)
+            Some(sayso_core::raster::read_rgb_image(
+                image,
+                DEFAULT_PIXEL_LIMIT,
+            )?)
         } else {
             None
         };

@@ -6,10 +6,10 @@ use std::path::PathBuf;
 
 use anyhow::{bail, Context};
 use sayso_core::demo::demo_directory;
+use sayso_core::taxonomy::Taxonomy;
 use sayso_render::catalogue::{readme_text, DEMO_SCENES, FIRST_TRAINING_SEED};
 use sayso_render::writer::write_scene;
 use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
-use sayso_core::taxonomy::Taxonomy;
 
 /// Render scenes of the invented flat: image, depth, labels, instances, objects and scene metadata.
 #[derive(Debug, clap::Args)]

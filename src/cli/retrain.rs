@@ -12,8 +12,8 @@ use anyhow::Context;
 use comfy_table::presets::NOTHING;
 use comfy_table::{CellAlignment, Table};
 
-use sayso_lab::retrain::{card_section, fine_tune, FineTuneSettings};
 use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::retrain::{card_section, fine_tune, FineTuneSettings};
 use sayso_perception::unaries::classifier::model_id;
 use sayso_perception::unaries::model_card::ModelCard;
 use sayso_perception::unaries::trainer::TrainingConfig;

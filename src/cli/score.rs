@@ -14,17 +14,17 @@
 
 use std::path::PathBuf;
 
-use sayso_render::demo::{demo_directory, list_demo_scenes, load_demo_scene};
+use sayso_core::language::constraint::Focus;
+use sayso_core::scenegraph::label_map;
+use sayso_core::taxonomy::Taxonomy;
 use sayso_lab::evaluation::{
     object_tally, objects_from_graph, objects_from_regions, read_pointed_notes, score_labels,
 };
-use sayso_core::language::constraint::Focus;
 use sayso_perception::pipeline::{
     believe_without_notes, correct_notes, load_classifier, model_path, prepare_loaded,
     CorrectionSettings, PointedNote,
 };
-use sayso_core::scenegraph::label_map;
-use sayso_core::taxonomy::Taxonomy;
+use sayso_render::demo::{demo_directory, list_demo_scenes, load_demo_scene};
 
 /// Score the notes of every demo scene against its ground truth.
 #[derive(Debug, clap::Args)]

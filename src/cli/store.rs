@@ -10,8 +10,8 @@ use anyhow::Context;
 use sayso_core::raster::{encode_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
 use sayso_core::scene::files::image_file;
 use sayso_core::scene::load_capture;
-use sayso_session::SceneUpload;
 use sayso_core::taxonomy::Taxonomy;
+use sayso_session::SceneUpload;
 
 use super::open_log::{open_coordinator, ServiceFlags};
 
@@ -155,9 +155,9 @@ fn scene_upload(
 /// (`pipeline::load_classifier`, which the service's corrector loads it with).
 fn warns_without_depth(config: &sayso_service::config::ServiceConfig) -> bool {
     config.user_model.is_none()
-        && sayso_perception::pipeline::image_only_companion(&sayso_perception::pipeline::model_path(
-            config.model.as_deref(),
-        ))
+        && sayso_perception::pipeline::image_only_companion(
+            &sayso_perception::pipeline::model_path(config.model.as_deref()),
+        )
         .is_none()
 }
 

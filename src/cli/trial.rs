@@ -7,12 +7,12 @@
 use std::path::PathBuf;
 
 use anyhow::Context;
-use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
 use sayso_core::taxonomy::Taxonomy;
 use sayso_lab::trial::phrasings::{PhrasingSet, Phrasings};
 use sayso_lab::trial::{
     chart, run_scene, summarise, TrialContext, DEV_START, HELD_OUT_START, TRIAL_SEEDS,
 };
+use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
 
 /// Which phrasings and seeds a trial uses.
 #[derive(Clone, Copy, Debug, clap::ValueEnum)]

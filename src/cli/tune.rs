@@ -12,11 +12,11 @@ use std::time::Instant;
 use anyhow::Context;
 
 use sayso_core::energy::build::{EnergyWeights, WeightsFile, WEIGHTS_SCHEMA};
-use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
 use sayso_core::scenegraph::instances::{InstanceCuts, InstanceCutsFile, EMBEDDED_INSTANCE_CUTS};
 use sayso_core::taxonomy::Taxonomy;
 use sayso_lab::tuning::{count_statistics, prepare_tuning_scenes, tune_weights, TUNED_WEIGHTS};
 use sayso_lab::tuning_cuts::{refine_cuts, solve_states};
+use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
 
 /// Count room/class statistics and tune energy weights on training renders.
 #[derive(Debug, clap::Args)]

@@ -21,7 +21,7 @@ use catalogue::DEMO_SCENES;
 pub const DEMO_DIR_VARIABLE: &str = "SAYSO_DEMO_DIR";
 
 /// The demo directory compiled into the crate (`demo_scenes/` at the workspace root).
-pub const COMPILED_DEMO_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/../../demo_scenes");
+pub const COMPILED_DEMO_DIR: &str = concat!(env!("SAYSO_WORKSPACE_DIR"), "/demo_scenes");
 
 /// What went wrong finding or reading a demo scene.
 #[derive(Debug, thiserror::Error)]

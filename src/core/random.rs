@@ -107,7 +107,6 @@ impl SplitMix64 {
 mod tests {
     use super::*;
 
-
     #[test]
     fn first_outputs_match_the_published_algorithm() {
         // Reference: the first two outputs of SplitMix64 (Steele, Lea and Flood, OOPSLA 2014) seeded with 0, as
@@ -140,7 +139,6 @@ mod tests {
         assert!(mean.abs() < 0.03, "mean {mean}");
         assert!((variance - 1.0).abs() < 0.05, "variance {variance}");
     }
-
 
     #[test]
     fn splitmix_matches_the_published_reference_sequence() {

@@ -13,9 +13,7 @@ use std::path::{Path, PathBuf};
 use serde::Serialize;
 
 use super::{CorrectionLog, LogError};
-use crate::scene::files::{
-    DEPTH_FILE, IMAGE_FILE, LABELS_BEFORE_FILE, LABELS_FILE, METADATA_FILE,
-};
+use crate::scene::files::{DEPTH_FILE, IMAGE_FILE, LABELS_BEFORE_FILE, LABELS_FILE, METADATA_FILE};
 use crate::taxonomy::Taxonomy;
 
 /// What went wrong exporting.
@@ -242,7 +240,10 @@ pub fn export_dataset_showing(
             model: log.version(example.version)?.0.model,
         };
         let scene_text = serde_json::to_string_pretty(&record).unwrap_or_default();
-        write_file(&example_directory.join(METADATA_FILE), scene_text.as_bytes())?;
+        write_file(
+            &example_directory.join(METADATA_FILE),
+            scene_text.as_bytes(),
+        )?;
         let line = serde_json::to_string(&record).unwrap_or_default();
         index.extend_from_slice(line.as_bytes());
         index.push(b'\n');

@@ -137,8 +137,8 @@ pub fn audit(log: &CorrectionLog) -> Result<ExportAudit, LogError> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::{NewScene, NewTurn, StateRecord, TurnEffect};
     use crate::raster::{encode_index_png, IndexImage};
+    use crate::{NewScene, NewTurn, StateRecord, TurnEffect};
 
     fn labels(values: [u16; 4]) -> StateRecord {
         StateRecord {

@@ -15,7 +15,8 @@ pub mod tuning;
 pub mod tuning_cuts;
 
 use sayso_core::{
-    energy, features, grounding, hypotheses, ids, language, raster, scene, scenegraph, taxonomy, turn,
+    energy, features, grounding, hypotheses, ids, language, raster, scene, scenegraph, taxonomy,
+    turn,
 };
 use sayso_perception::{pipeline, unaries};
 use sayso_render as render;

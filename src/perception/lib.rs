@@ -13,6 +13,6 @@ pub mod pipeline;
 pub mod unaries;
 
 use sayso_core::{
-    demo, energy, features, grounding, hypotheses, ids, language, random, raster, scene, scenegraph, slic,
-    taxonomy, turn,
+    demo, energy, features, grounding, hypotheses, ids, language, random, raster, scene,
+    scenegraph, taxonomy, turn,
 };

@@ -8,11 +8,12 @@
 
 use std::path::{Path, PathBuf};
 
+pub use crate::core_demo::{
+    demo_directory, demo_scene_path, list_demo_scenes, DemoError, COMPILED_DEMO_DIR,
+    DEMO_DIR_VARIABLE,
+};
 use crate::raster::{
     read_index_png, DepthImage, IndexImage, RasterError, RgbImage, DEFAULT_PIXEL_LIMIT,
-};
-pub use crate::core_demo::{
-    demo_directory, demo_scene_path, list_demo_scenes, DemoError, COMPILED_DEMO_DIR, DEMO_DIR_VARIABLE,
 };
 use crate::scene::files::{
     DEPTH_FILE, INSTANCES_FILE, LABELS_FILE, METADATA_FILE as SCENE_FILE, OBJECTS_FILE,

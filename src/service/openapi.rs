@@ -281,8 +281,7 @@ mod tests {
     fn the_committed_document_matches_the_types() {
         let generated = document_json();
         if std::env::var_os("SAYSO_WRITE_OPENAPI").is_some() {
-            let path =
-                std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("openapi.json");
+            let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("openapi.json");
             std::fs::write(path, &generated).unwrap();
             return;
         }

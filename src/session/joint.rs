@@ -28,8 +28,8 @@ use crate::turn::{decide, hold_reason, question_alongside, Decision, Note, OpenQ
 use crate::unaries::Classifier;
 
 use super::corrector::{
-    ReportedChange, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, Lineage, SceneInput,
-    ObjectSummary, SceneState, SceneSummary, ReportedUnmet, Verdict,
+    CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, Lineage, ObjectSummary,
+    ReportedChange, ReportedUnmet, SceneInput, SceneState, SceneSummary, Verdict,
 };
 use super::joint_inputs::{hex, input_digest, prepare_input, superpixel_image, PreparedInput};
 

@@ -38,7 +38,6 @@
 
 use serde::{Deserialize, Serialize};
 
-
 /// A cardinality: how many objects of a class a count factor admits (the language stage's counts are these).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(tag = "op", content = "n", rename_all = "snake_case")]

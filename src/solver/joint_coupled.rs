@@ -455,8 +455,8 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::energy::{AbsentFactor, CountFactor, HypothesisTerm, TupleFactor, ENERGY_SCHEMA};
     use crate::energy::Count;
+    use crate::energy::{AbsentFactor, CountFactor, HypothesisTerm, TupleFactor, ENERGY_SCHEMA};
 
     /// Count factors `(class, kind, k)`, absent classes, and tuples with their `negated` flag.
     type Factors<'a> = (&'a [(u16, u8, u32)], &'a [u16], &'a [(Vec<u32>, bool)]);

@@ -12,10 +12,10 @@ use sayso_core::hypotheses::ProposalOptions;
 use sayso_core::language::constraint::{Constraint, ConstraintKind, Span};
 use sayso_core::scene::Scene;
 use sayso_core::scenegraph::instances::InstanceCuts;
-use sayso_solver::joint::JointOptions;
 use sayso_core::taxonomy::Taxonomy;
 use sayso_core::turn::solve::{correct, Correction, SolveRequest};
 use sayso_perception::unaries::Unaries;
+use sayso_solver::joint::JointOptions;
 
 /// A constraint as the parser would give it, spanning the whole gloss.
 pub fn constraint(kind: ConstraintKind, confidence: f32, gloss: &str) -> Constraint {

@@ -36,7 +36,8 @@ pub fn start_service(data: &std::path::Path) -> RunningService {
         ..ServiceConfig::default()
     };
     config.validate().expect("test config is valid");
-    let engine = JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier");
+    let engine =
+        JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier");
     let coordinator = Arc::new(
         Coordinator::open(
             Arc::new(engine),
@@ -83,7 +84,8 @@ pub fn fingerprint(labels: &sayso_core::raster::IndexImage) -> String {
 pub fn label_map(address: SocketAddr, path: &str) -> sayso_core::raster::IndexImage {
     let reply = get(address, path, Some(TOKEN));
     assert_eq!(reply.status, 200, "{path}");
-    sayso_core::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 24).unwrap()
+    sayso_core::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 24)
+        .unwrap()
 }
 
 pub fn digest(browser: &Browser) -> String {

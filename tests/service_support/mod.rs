@@ -15,18 +15,18 @@ use std::sync::Arc;
 use std::time::Duration;
 
 use base64::Engine;
-use sayso_session::config::ServiceConfig;
 use sayso_core::ids::ClassId;
 use sayso_core::language::constraint::{Constraint, ConstraintKind, Focus, Referent, Span};
 use sayso_core::raster::{self, IndexImage, RgbImage};
 use sayso_core::scene::BoundingBox;
+use sayso_core::taxonomy::Taxonomy;
 use sayso_service::AppState;
+use sayso_session::config::ServiceConfig;
 use sayso_session::corrector::{
-    ReportedChange, CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, SceneInput,
-    ObjectSummary, SceneState, SceneSummary, Verdict,
+    CorrectionOutcome, CorrectionRequest, Corrector, CorrectorError, ObjectSummary, ReportedChange,
+    SceneInput, SceneState, SceneSummary, Verdict,
 };
 use sayso_session::{Coordinator, CoordinatorSettings};
-use sayso_core::taxonomy::Taxonomy;
 
 /// An HTTP response as the tests read it.
 #[derive(Debug)]

@@ -27,7 +27,7 @@ struct Case {
 }
 
 fn fixture() -> Fixture {
-    let text = include_str!("fixtures/colour/rgb2lab.json");
+    let text = include_str!("../../../tests/fixtures/colour/rgb2lab.json");
     serde_json::from_str(text).expect("the committed colour fixture parses")
 }
 

@@ -127,7 +127,10 @@ fn grammar() -> Grammar {
 }
 
 fn load(name: &str) -> String {
-    let path = format!("{}/tests/language/{name}", concat!(env!("CARGO_MANIFEST_DIR"), "/../.."));
+    let path = format!(
+        "{}/tests/language/{name}",
+        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
+    );
     std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"))
 }
 

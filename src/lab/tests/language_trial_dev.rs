@@ -1,4 +1,4 @@
-//! The development half of the trial's operator phrasings (`src/trial/phrasings.toml`, `[dev.*]` only) run
+//! The development half of the trial's operator phrasings (`src/lab/trial/phrasings.toml`, `[dev.*]` only) run
 //! through the parser with many fillers. A filled sentence is read as the fact its section states, or
 //! missed (no constraint it does not state: the operator is told what was not understood), never misread
 //! (a constraint it does not state). No template may be misread for any filler; each section's share read
@@ -11,7 +11,9 @@
 use std::collections::BTreeMap;
 
 use sayso_core::ids::{ClassId, RoomId};
-use sayso_core::language::constraint::{Constraint, ConstraintKind, Count, Deixis, Focus, Relation};
+use sayso_core::language::constraint::{
+    Constraint, ConstraintKind, Count, Deixis, Focus, Relation,
+};
 use sayso_core::language::notation::notation_list;
 use sayso_core::language::Grammar;
 use sayso_lab::trial::operator::SECTIONS;

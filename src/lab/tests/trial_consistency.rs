@@ -5,10 +5,10 @@
 //! Owns: that consistency check on the real pipeline (built-in classifier, embedded settings). Must not: read
 //! held-out seeds or phrasings.
 
-use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
 use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
 use sayso_lab::trial::phrasings::{PhrasingSet, Phrasings};
 use sayso_lab::trial::{render_trial_scene, run_scene, Outcome, TrialContext, DEV_START};
+use sayso_perception::pipeline::{load_classifier, model_path, CorrectionSettings};
 
 #[test]
 fn a_development_trial_scene_keeps_its_books_straight() {

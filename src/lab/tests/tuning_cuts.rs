@@ -3,13 +3,15 @@
 //! The scenes are training renders (seeds from 300000, disjoint from the demo seeds and from the 42 renders
 //! `sayso tune` chooses on).
 
-use sayso_lab::evaluation::{object_accuracy, objects_from_graph};
-use sayso_perception::pipeline::{believe_without_notes, load_classifier, model_path, CorrectionSettings};
 use sayso_core::scenegraph::instance_statistics::CANDIDATE_CUTS;
 use sayso_core::scenegraph::instances::{InstanceCuts, InstanceCutsFile, EMBEDDED_INSTANCE_CUTS};
 use sayso_core::taxonomy::Taxonomy;
+use sayso_lab::evaluation::{object_accuracy, objects_from_graph};
 use sayso_lab::tuning::{prepare_tuning_scenes, MIN_GAIN};
 use sayso_lab::tuning_cuts::{cut_objective, refine_cuts, solve_states, SolvedState};
+use sayso_perception::pipeline::{
+    believe_without_notes, load_classifier, model_path, CorrectionSettings,
+};
 
 #[test]
 fn refined_cuts_score_the_scene_graphs_objects_and_never_lose() {

@@ -251,7 +251,7 @@ mod tests {
         }
         // 1536 pixels: fewer segments than a full-size scene aims at.
         let params = SceneParams {
-            superpixels: crate::slic::SlicParams::new(96, 10.0, 10).unwrap(),
+            superpixels: sayso_core::slic::SlicParams::new(96, 10.0, 10).unwrap(),
             segments_per_region: 8,
         };
         let scene = Scene::from_image("two halves", image, None, None, &params).unwrap();

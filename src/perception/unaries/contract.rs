@@ -74,7 +74,11 @@ pub struct FeatureLayout {
 impl ModelContract {
     /// The contract of `mlp` trained for every class of `taxonomy`, in order, on feature layout
     /// `feature_layout_version`: this build's format, the network's own normalisation and temperature.
-    pub fn for_network(taxonomy: &Taxonomy, mlp: &Mlp, feature_layout_version: u32) -> ModelContract {
+    pub fn for_network(
+        taxonomy: &Taxonomy,
+        mlp: &Mlp,
+        feature_layout_version: u32,
+    ) -> ModelContract {
         let class_names = taxonomy.classes().iter().map(|class| class.name.clone());
         ModelContract::with_classes(class_names.collect(), mlp, feature_layout_version)
     }

@@ -6,8 +6,8 @@
 
 use ndarray::Array2;
 
-use crate::random::SplitMix64;
 use super::trainer::{LabelledFeatures, TrainError};
+use crate::random::SplitMix64;
 
 /// Splits rows at random (seeded) into a training part and a validation part of `fraction` of the rows,
 /// stratified by class so every class with two or more rows has at least one in each part.

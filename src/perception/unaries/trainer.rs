@@ -14,8 +14,8 @@ use ndarray::{Array1, Array2, ArrayView2, Axis};
 
 use super::calibration::{calibrate, negative_log_likelihood, CalibrationReport};
 use super::mlp::{DenseLayer, Mlp};
-use crate::random::SplitMix64;
 pub use super::split::{split_by_scene, split_for_validation};
+use crate::random::SplitMix64;
 
 /// The network shape to train.
 #[derive(Clone, Debug, PartialEq, Eq)]

@@ -11,7 +11,7 @@ use crate::taxonomy::Taxonomy;
 use crate::turn::Candidate;
 
 use super::SceneSlot;
-use crate::corrector::{ReportedChange, SceneSummary, ReportedUnmet};
+use crate::corrector::{ReportedChange, ReportedUnmet, SceneSummary};
 use crate::wire::{
     CandidateOut, ChangeOut, ConstraintOut, FocusIn, ObjectOut, PixelBox, SceneGraphOut, TextSpan,
     UnmetOut,

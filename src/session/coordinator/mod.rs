@@ -30,7 +30,7 @@ use crate::language::constraint::Constraint;
 use crate::raster;
 use crate::turn::{Answered, OpenQuestion};
 
-use super::corrector::{ReportedChange, Corrector, PastTurn, SceneInput, SceneState, SceneSummary};
+use super::corrector::{Corrector, PastTurn, ReportedChange, SceneInput, SceneState, SceneSummary};
 use super::counters::TurnCounters;
 use super::error::SessionError;
 use crate::wire::{ConversationOut, HealthOut, SceneGraphOut};

@@ -20,9 +20,9 @@ use crate::scene::BoundingBox;
 use crate::unaries::byo_detections::{DetectionMask, MaskRuns};
 
 use super::{encode_state, lock, log_error, Coordinator, SceneSlot};
-use crate::raster::DepthImage;
 use crate::corrector::{CorrectorError, Detection, PerceptionClasses, SceneInput};
 use crate::error::{ErrorKind, SessionError};
+use crate::raster::DepthImage;
 use crate::wire::{RegisterSceneRequest, SceneCreated};
 
 /// A scene as the caller sent it, base64 already removed.

@@ -12,11 +12,10 @@ use crate::turn::words::{self, Command};
 use crate::turn::{answer, conversation_checks, Answered, Note, OpenQuestion};
 
 use super::convert::{
-    candidate_out, change_out, constraint_out, focus_from_wire, focus_to_wire, label_changes,
-    unmet_out,
+    candidate_out, change_out, constraint_out, focus_from_wire, focus_to_wire, unmet_out,
 };
 use super::{
-    decode_state, encode_state, lock, log_error, ConversationSlot, Coordinator, PendingSlot,
+    encode_state, lock, log_error, ConversationSlot, Coordinator, PendingSlot,
     UTTERANCE_CHARACTER_LIMIT,
 };
 use crate::corrector::{
@@ -52,7 +51,10 @@ fn command_reply(
 }
 
 /// The change a conversation holds for confirmation, as the wire shows it.
-pub(super) fn waiting_out(conversation: &ConversationSlot, taxonomy: &Taxonomy) -> Option<PendingOut> {
+pub(super) fn waiting_out(
+    conversation: &ConversationSlot,
+    taxonomy: &Taxonomy,
+) -> Option<PendingOut> {
     conversation.pending.as_ref().map(|pending| PendingOut {
         reason: format!("\"{}\": {}", pending.utterance, pending.reason),
         changes: pending

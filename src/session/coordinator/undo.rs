@@ -79,7 +79,13 @@ impl Coordinator {
             redo_after,
             forget_answer: true,
         };
-        self.move_head(conversation, operator, &mut conversation_state, &mut scene, step)
+        self.move_head(
+            conversation,
+            operator,
+            &mut conversation_state,
+            &mut scene,
+            step,
+        )
     }
 
     /// Puts back the change this conversation undid last, when nothing has changed the scene since.
@@ -127,7 +133,13 @@ impl Coordinator {
             redo_after,
             forget_answer: false,
         };
-        self.move_head(conversation, operator, &mut conversation_state, &mut scene, step)
+        self.move_head(
+            conversation,
+            operator,
+            &mut conversation_state,
+            &mut scene,
+            step,
+        )
     }
 
     /// Logs an undo or redo turn and moves the scene's head, answering with the labels that changed.
