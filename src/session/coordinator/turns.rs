@@ -114,6 +114,27 @@ pub(crate) fn question_after(turns: &[TurnRow]) -> Option<OpenQuestion> {
     question
 }
 
+/// The last answer to a question a conversation's logged turns made, with the version it made, kept as a
+/// live conversation keeps it: set (or cleared) by every note that applied a change, cleared by an undo.
+/// "No, the other one" uses it only while that version is still the conversation's latest change.
+pub(crate) fn answer_after(turns: &[TurnRow]) -> Option<(VersionKey, Answered)> {
+    let mut answered = None;
+    for turn in turns {
+        match (turn.kind.as_str(), turn.status.as_str()) {
+            ("utterance", "applied") => {
+                answered = turn.scene_version.zip(
+                    turn.answer_json
+                        .as_deref()
+                        .and_then(|text| serde_json::from_str::<Answered>(text).ok()),
+                );
+            }
+            ("undo", _) => answered = None,
+            _ => {}
+        }
+    }
+    answered
+}
+
 /// Checks an utterance's text before any work is done on it.
 pub fn check_utterance_text(text: &str) -> Result<(), SessionError> {
     if text.trim().is_empty() {
@@ -341,6 +362,13 @@ impl Coordinator {
         })
         .to_string();
         let makes_version = matches!(outcome.verdict, Verdict::Applied(_));
+        // What "no, the other one" needs after this turn, kept with it so any replica can read it back.
+        let answer_json = match (&answered, makes_version) {
+            (Some(answered), true) => {
+                Some(serde_json::to_string(answered).map_err(SessionError::internal)?)
+            }
+            _ => None,
+        };
         let redo_after: Vec<VersionKey> = if makes_version {
             Vec::new()
         } else {
@@ -358,6 +386,7 @@ impl Coordinator {
                     status: status_text(status),
                     constraints_json: &constraints_json,
                     result_json: &result_json,
+                    answer_json: answer_json.as_deref(),
                     operator,
                     effect,
                 },
@@ -502,6 +531,7 @@ impl Coordinator {
                     status: status_text(status),
                     constraints_json: "[]",
                     result_json,
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::None,
                 },
@@ -699,6 +729,7 @@ impl Coordinator {
                     status: status_text(TurnStatus::Confirmed),
                     constraints_json: &constraints_json,
                     result_json: &serde_json::json!({ "reason": pending.reason }).to_string(),
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::NewVersion {
                         base: scene.head,
@@ -760,6 +791,7 @@ impl Coordinator {
                     status: status_text(TurnStatus::Rejected),
                     constraints_json: "[]",
                     result_json: "{}",
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::ClearPending,
                 },
@@ -827,6 +859,7 @@ impl Coordinator {
                     status: status_text(TurnStatus::Undone),
                     constraints_json: "[]",
                     result_json: "{}",
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::MoveHead {
                         from: latest,
@@ -905,6 +938,7 @@ impl Coordinator {
                     status: status_text(TurnStatus::Redone),
                     constraints_json: "[]",
                     result_json: "{}",
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::MoveHead {
                         from: scene.head,
