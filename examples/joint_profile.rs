@@ -1,6 +1,9 @@
 //! Diagnostic: dumps the joint energies of the bench's demo turns (`dump DIR`), and solves dumped energies
 //! full and warm (`solve DIR REPEATS`), printing energies, gaps and median times: a small program to run under
-//! `valgrind --tool=callgrind` or `perf` without the scene pipeline in the profile.
+//! `valgrind --tool=callgrind` or `perf` without the scene pipeline in the profile. `turn - REPEATS` runs
+//! every demo turn whole, as the service does; under callgrind, `--collect-atstart=no
+//! --toggle-collect='*correct_turn*'` counts the turns alone (the chain of versions they start from is
+//! built by the same function, so its turns are counted too).
 //!
 //! Owns: nothing the crate uses.
 //! Must not: tune anything; it prints figures for people to read.
@@ -100,6 +103,27 @@ fn main() {
                 median(&warm_times)
             );
         }
+        "turn" => {
+            // Every demo turn as the service runs it (`pipeline::correct_turn`), REPEATS times each: for
+            // `valgrind --tool=callgrind --toggle-collect='*correct_turn*'`, which counts the turns alone.
+            let repeats: usize = arguments.get(3).and_then(|r| r.parse().ok()).unwrap_or(1);
+            let settings = demo_turns::settings();
+            let scenes = demo_turns::load_scenes(&settings);
+            let mut times = Vec::new();
+            for scene in &scenes {
+                let versions = demo_turns::chain(scene, &settings);
+                for (index, note) in scene.notes.iter().enumerate() {
+                    for _ in 0..repeats {
+                        let start = Instant::now();
+                        let solved = demo_turns::turn(scene, &versions[index], note, &settings);
+                        times.push(start.elapsed().as_secs_f64() * 1e3);
+                        std::hint::black_box(solved);
+                    }
+                }
+            }
+            times.sort_by(f64::total_cmp);
+            println!("turns {}, median ms {:.2}", times.len(), times[times.len() / 2]);
+        }
         "fixture" => {
             // One JSON line per dumped turn: the energy of its warm start's state (which identifies the
             // energy, whatever solves it) and the full and warm solves' energies.
@@ -127,7 +151,7 @@ fn main() {
             }
         }
         _ => eprintln!(
-            "usage: joint_profile dump DIR | solve DIR REPEATS [full|warm|both] | fixture DIR"
+            "usage: joint_profile dump DIR | solve DIR REPEATS [full|warm|both] | turn - REPEATS | fixture DIR"
         ),
     }
 }

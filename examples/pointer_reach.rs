@@ -6,12 +6,12 @@
 //! >= 0.5, and how often the region spills past twice the object's area.
 //!
 //! Owns: nothing the crate uses. Must not: read demo scenes or trial seeds.
-use sayso_core::grounding::pointer::pointed_region_with;
+use sayso_core::grounding::pointer::pointed_region_tries;
 use sayso_core::ids::SegmentId;
+use sayso_perception::pipeline::superpixels_of;
 use sayso_core::taxonomy::Taxonomy;
 use sayso_lab::trial::operator::deepest_pixel;
 use sayso_lab::tuning::render_training_scene;
-use sayso_perception::pipeline::superpixels_of;
 
 fn main() -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();
@@ -32,9 +32,30 @@ fn main() -> anyhow::Result<()> {
         .map(|s| s.parse())
         .transpose()?
         .unwrap_or(sayso_core::grounding::pointer::DEPTH_STEP);
+    let tries: Vec<Vec<f32>> = vec![
+        Vec::new(),
+        sayso_core::grounding::pointer::TIGHTER.to_vec(),
+        vec![0.5],
+        vec![0.75, 0.5],
+        vec![0.8, 0.6, 0.4, 0.25],
+    ];
+    for tighter in &tries {
+        reach(&taxonomy, count, [edge, region, depth], tighter)?;
+    }
+    Ok(())
+}
+
+/// The pointer's reach over `count` training renders with one list of tighter scales.
+fn reach(
+    taxonomy: &Taxonomy,
+    count: u64,
+    thresholds: [f32; 3],
+    tighter: &[f32],
+) -> anyhow::Result<()> {
+    let [edge, region, depth] = thresholds;
     let (mut objects, mut iou_sum, mut hits, mut spills) = (0u64, 0.0f64, 0u64, 0u64);
     for index in 0..count as usize {
-        let truth = render_training_scene(&taxonomy, 200_000 + index as u64, index)?;
+        let truth = render_training_scene(taxonomy, 200_000 + index as u64, index)?;
         let scene = superpixels_of(&truth.capture())?;
         let width = truth.labels.width as usize;
         let max_area = truth.labels.values.len() as u64 / sayso_core::grounding::POINTER_MAX_SHARE;
@@ -54,7 +75,7 @@ fn main() -> anyhow::Result<()> {
                 continue;
             };
             let seed = SegmentId(scene.segments.labels[y as usize * width + x as usize]);
-            let region = pointed_region_with(&scene, seed, max_area, edge, region, depth);
+            let region = pointed_region_tries(&scene, seed, max_area, thresholds, tighter);
             let mut inside = vec![false; scene.segment_count()];
             for s in &region {
                 inside[s.index()] = true;
@@ -77,7 +98,7 @@ fn main() -> anyhow::Result<()> {
         }
     }
     println!(
-        "edge {edge} region {region} depth {depth}: {objects} objects, mean IoU {:.3}, IoU>=0.5 {:.3}, spill {:.3}",
+        "edge {edge} region {region} depth {depth} then {tighter:?}: {objects} objects, mean IoU {:.3}, IoU>=0.5 {:.3}, spill {:.3}",
         iou_sum / objects.max(1) as f64,
         hits as f64 / objects.max(1) as f64,
         spills as f64 / objects.max(1) as f64

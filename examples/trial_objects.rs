@@ -5,7 +5,7 @@
 //! class and IoU) and every shown object that covers no truth object.
 //!
 //! Owns: nothing the crate uses. Must not: read the held-out half (seeds from 7000000 are refused).
-use std::collections::HashMap;
+use std::collections::{BTreeMap, HashMap};
 
 use sayso_core::language::constraint::Focus;
 use sayso_core::taxonomy::Taxonomy;
@@ -162,6 +162,35 @@ fn main() -> anyhow::Result<()> {
             println!("  | unmet: {unmet:?}");
         }
         show(&format!("after {text:?}"), &correction.graph);
+        // Pixels whose label changed against the no-note solve, by truth class and labels before -> after.
+        let mut moved: BTreeMap<(String, String, String, bool), u64> = BTreeMap::new();
+        for (pixel, &segment) in prepared.scene.segments.labels.iter().enumerate() {
+            let (Some(was), Some(now)) = (
+                base.graph.segment_labels.get(segment as usize),
+                correction.graph.segment_labels.get(segment as usize),
+            ) else {
+                continue;
+            };
+            let truth_label = truth.labels.values[pixel];
+            if was != now && (was.0 == truth_label || now.0 == truth_label) {
+                *moved
+                    .entry((
+                        name(sayso_core::ids::ClassId(truth_label)),
+                        name(*was),
+                        name(*now),
+                        now.0 == truth_label,
+                    ))
+                    .or_insert(0) += 1;
+            }
+        }
+        for ((truth_name, was, now, right), pixels) in moved {
+            let arrow = if right {
+                "wrong->right"
+            } else {
+                "right->wrong"
+            };
+            println!("  | {arrow} {pixels:>6} px truth {truth_name}: {was} -> {now}");
+        }
         previous = Some(correction);
     }
     Ok(())

@@ -42,6 +42,7 @@ fn turn<'a>(
         status: "applied",
         constraints_json: "[]",
         result_json: "{}",
+        answer_json: None,
         operator,
         effect,
     }
@@ -74,7 +75,8 @@ struct Outcome {
     examples: Vec<(i64, String, String, Option<String>)>,
     undone: Vec<(String, i64, String)>,
     rejected: Vec<(String, String)>,
-    turns: Vec<(String, Option<i64>, String)>,
+    turns: Vec<(String, Option<i64>, String, Option<String>)>,
+    listing: Vec<(i64, String, i64, Vec<u8>)>,
     chain: Vec<i64>,
     image_hashes: Vec<String>,
     exported: usize,
@@ -106,9 +108,13 @@ fn story(log: &mut CorrectionLog) -> Outcome {
     })
     .unwrap();
     let conversation = log.open_conversation(scene, "mira").unwrap().key;
+    // A turn that answered a question keeps the answer ("no, the other one" reads it back).
     let (_, second) = log
         .commit_turn(
-            &turn(conversation, "utterance", "mira", new_version(first, 2)),
+            &NewTurn {
+                answer_json: Some("{\"chosen\":1}"),
+                ..turn(conversation, "utterance", "mira", new_version(first, 2))
+            },
             Some((&[], &[])),
         )
         .unwrap();
@@ -236,8 +242,15 @@ fn story(log: &mut CorrectionLog) -> Outcome {
                     turn.kind,
                     turn.scene_version.map(|key| key.0),
                     turn.operator,
+                    turn.answer_json,
                 )
             })
+            .collect(),
+        listing: log
+            .scene_listing(0, 10)
+            .unwrap()
+            .into_iter()
+            .map(|row| (row.key.0, row.name, row.head.0, row.image_head))
             .collect(),
         chain,
         image_hashes: scenes.into_iter().map(|scene| scene.image_hash).collect(),
@@ -274,6 +287,16 @@ fn the_same_story_gives_the_same_rows_on_sqlite_and_postgresql() {
     assert_eq!(on_sqlite.examples.len(), 2);
     assert!(on_sqlite.exported >= 1, "{on_sqlite:?}");
     assert_eq!(on_sqlite.rejected.len(), 1);
+    assert_eq!(on_sqlite.turns[0].3.as_deref(), Some("{\"chosen\":1}"));
+    assert!(on_sqlite.turns[1..].iter().all(|turn| turn.3.is_none()));
+    // A scene list reads each image's first bytes only: a PNG's signature and size.
+    let image = labels(9);
+    assert_eq!(on_sqlite.listing.len(), 2);
+    assert_eq!(
+        on_sqlite.listing[0].3,
+        image[..sayso_correction_log::IMAGE_HEAD_BYTES as usize].to_vec()
+    );
+    assert_eq!(on_sqlite.listing[1].1, "juniper-lane-hall-again");
 }
 
 /// Rounds in which two writers race to put a version on the same head.
@@ -455,13 +478,17 @@ fn a_postgresql_log_at_the_previous_schema_is_refused_until_migrated() {
                 VALUES ('juniper-lane-study', '{image}', '{{}}', NULL, 'then', 'ola', 2);
              INSERT INTO scene_versions (scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema, model)
                 VALUES (1, NULL, '{image}', '{{}}', '\\x01', NULL, 'then', 2, 'a1b2c3d4e5f6');
-             UPDATE scenes SET head_version = 1;"
+             UPDATE scenes SET head_version = 1;
+             INSERT INTO conversations (scene_id, operator, opened_at, applied_stack, redo_stack, row_schema)
+                VALUES (1, 'ola', 'then', '[]', '[]', 3);
+             INSERT INTO turns (conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
+                VALUES (1, 'utterance', 'the first one', NULL, 'applied', '[]', '{{}}', 1, 'ola', 'then', 3);"
         ),
     );
     let location = sayso_correction_log::LogLocation::Postgres(url.clone());
     let refused = CorrectionLog::connect(&location).err().expect("refused");
     assert!(
-        matches!(refused, LogError::NotMigrated { found: 2, .. }),
+        matches!(refused, LogError::NotMigrated { found, .. } if found == LOG_SCHEMA_VERSION - 1),
         "{refused}"
     );
     assert!(refused.to_string().contains("sayso migrate"), "{refused}");
@@ -485,6 +512,16 @@ fn a_postgresql_log_at_the_previous_schema_is_refused_until_migrated() {
     let (record, parent) = log.version(scene.head).unwrap();
     assert_eq!(record.model.as_deref(), Some("a1b2c3d4e5f6"));
     assert_eq!(parent, None);
+    // A turn written before schema 4 answered no question, as far as the log knows.
+    let old_turns = log.turns(ConversationKey(1)).unwrap();
+    assert_eq!(old_turns.len(), 1);
+    assert_eq!(
+        (
+            old_turns[0].text.as_str(),
+            old_turns[0].answer_json.as_deref()
+        ),
+        ("the first one", None)
+    );
     // The migrated log takes new turns.
     let conversation = log.open_conversation(scene.key, "ola").unwrap().key;
     let (_, version) = log

@@ -1,7 +1,7 @@
 //! End-to-end checks that a true note moves a hand-built scene toward the truth and costs nothing that was
 //! right: a count below what the graph shows joins the parts of one object (piece by piece, nearest first), a
-//! count drops a stray fragment,
-//! a point on a wall relabels only the thing pointed at, and "in this room" is a place, never a landmark.
+//! count drops a stray fragment, a point on a wall relabels only the thing pointed at (also a door of nearly
+//! the wall's colour), and "in this room" is a place, never a landmark.
 //!
 //! Owns: those behaviours through `correct` (and the embedded grammar for the wording). Must not: depend on
 //! committed models; scenes and unaries are built by hand (`common::grid_scene`).
@@ -427,6 +427,71 @@ fn a_point_on_a_wall_relabels_only_the_towel_hanging_there() {
             >= 30
     );
 }
+#[test]
+fn a_point_on_a_door_of_nearly_the_wall_s_colour_relabels_the_door_not_the_wall() {
+    // A door a shade darker than the wall it is set in (CIE76 5.4 from it: under the pointer's edge
+    // threshold, so growth at the chosen thresholds runs on into the wall until the area limit stops it). The
+    // pointer then grows again with tighter thresholds and takes the door alone.
+    let room = room(
+        &[
+            "wwwwwwwwwwww",
+            "wwwwwddwwwww",
+            "wwwwwddwwwww",
+            "wwwwwwwwwwww",
+            "ffffffffffff",
+        ],
+        &|c, class| match c {
+            'w' => Cell {
+                colour: [215, 205, 185],
+                scores: vec![(class("wall"), 0.9)],
+            },
+            'f' => Cell {
+                colour: [150, 110, 70],
+                scores: vec![(class("floor"), 0.9)],
+            },
+            _ => Cell {
+                colour: [200, 190, 170],
+                scores: vec![(class("wall"), 0.7), (class("door"), 0.2)],
+            },
+        },
+    );
+    let door = class_of(&room, "door");
+    let before = solve(&room, None, vec![], None);
+    let that = Referent {
+        class: None,
+        deixis: Some(Deixis::Focus),
+        ..Referent::class(ClassId(0), Span::new(0, 4))
+    };
+    let after = solve(
+        &room,
+        Some(&before),
+        vec![(
+            ConstraintKind::Relabel {
+                target: that,
+                from: None,
+                to: Some(ClassId(door)),
+            },
+            "the pointed-at thing is a door",
+        )],
+        Some(Focus::Pixel {
+            x: 5 * CELL + 4,
+            y: CELL + 4,
+        }),
+    );
+    let door_cells: Vec<usize> = [(1, 5), (1, 6), (2, 5), (2, 6)]
+        .iter()
+        .map(|&(row, column)| row * room.columns as usize + column)
+        .collect();
+    for (segment, label) in after.graph.segment_labels.iter().enumerate() {
+        let expected = if door_cells.contains(&segment) {
+            door
+        } else {
+            before.graph.segment_labels[segment].0
+        };
+        assert_eq!(label.0, expected, "segment {segment}");
+    }
+}
+
 #[test]
 fn in_this_room_is_not_a_landmark_and_the_absence_is_applied() {
     let grammar = Grammar::embedded().unwrap();

@@ -1,8 +1,9 @@
 //! Limits that keep an unauthenticated or overeager client from exhausting the service. Through the router:
 //! a request answered "abandoned" leaves no trace, and requests over `max_requests_in_flight` are shed
 //! with 503 and Retry-After. Over a socket (only what needs one): half-sent requests and idle connections
-//! are closed after the header timeout, connections over the cap are answered 503 in the JSON shape, and
-//! the service still shuts down promptly with idle connections open.
+//! are closed after the header timeout, connections over the cap are answered 503 in the JSON shape, heads
+//! hyper refuses before the router sees them (malformed, a huge target, too many headers) are answered in
+//! the JSON shape too, and the service still shuts down promptly with idle connections open.
 
 mod service_support;
 
@@ -202,4 +203,68 @@ fn connections_over_the_cap_are_answered_503_and_shutdown_is_prompt() {
         "{:?}",
         started.elapsed()
     );
+}
+
+/// Sends raw bytes and reads the answer until the service closes the connection.
+fn raw_exchange(address: std::net::SocketAddr, request: &[u8]) -> (u16, String, serde_json::Value) {
+    let mut stream = TcpStream::connect(address).unwrap();
+    stream
+        .set_read_timeout(Some(Duration::from_secs(10)))
+        .unwrap();
+    // The service may answer and close before the whole request is sent: a failed write is fine.
+    let _ = stream.write_all(request);
+    let mut answer = Vec::new();
+    let _ = stream.read_to_end(&mut answer);
+    let text = String::from_utf8_lossy(&answer).to_string();
+    let (head, body) = text.split_once("\r\n\r\n").unwrap_or((&text, ""));
+    let status = head
+        .split(' ')
+        .nth(1)
+        .and_then(|code| code.parse().ok())
+        .unwrap_or(0);
+    let json = serde_json::from_str(body).unwrap_or(serde_json::Value::Null);
+    (status, head.to_string(), json)
+}
+
+#[test]
+fn heads_hyper_refuses_are_answered_in_the_json_shape() {
+    let data = tempfile::tempdir().unwrap();
+    let service = start_service(data.path(), ServiceConfig::default());
+    let long_target = format!(
+        "GET /v1/health?{} HTTP/1.1\r\nHost: x\r\n\r\n",
+        "q".repeat(70_000)
+    );
+    let many_headers = format!(
+        "GET /v1/health HTTP/1.1\r\nHost: x\r\n{}\r\n",
+        // Over the 400 headers hyper reads (`service::server::HEADER_COUNT_HARD_LIMIT`).
+        (0..410)
+            .map(|i| format!("x-filler-{i}: 1\r\n"))
+            .collect::<String>()
+    );
+    for (request, status, code) in [
+        (
+            b"GET /v1/health HTTP/1.1\r\nHost x\r\n\r\n".to_vec(),
+            400,
+            "malformed_request",
+        ),
+        (
+            b"\x01\x02 nonsense\r\n\r\n".to_vec(),
+            400,
+            "malformed_request",
+        ),
+        (long_target.into_bytes(), 414, "uri_too_long"),
+        (many_headers.into_bytes(), 431, "headers_too_large"),
+    ] {
+        let (answered, head, json) = raw_exchange(service.address, &request);
+        assert_eq!(answered, status, "{head}");
+        assert!(
+            head.to_ascii_lowercase()
+                .contains("content-type: application/json"),
+            "{head}"
+        );
+        assert_eq!(json["code"], code, "{head}");
+        assert!(json["message"].as_str().is_some_and(|m| !m.is_empty()));
+    }
+    // A well-formed request on the same service is answered as before.
+    assert_eq!(get(service.address, "/v1/health", None).status, 200);
 }

@@ -107,7 +107,7 @@ fn the_service_keeps_its_log_on_postgresql_across_a_restart() {
     assert!(refused.to_string().contains("sayso migrate"), "{refused}");
     let (ok, said) = sayso(&["migrate", "--database", &url]);
     assert!(ok, "{said}");
-    assert!(said.contains("applied 1, 2, 3"), "{said}");
+    assert!(said.contains("applied 1, 2, 3, 4"), "{said}");
     let (ok, said) = sayso(&["migrate", "--database", &url]);
     assert!(ok && said.contains("nothing to do"), "{said}");
 
@@ -178,4 +178,107 @@ fn the_service_keeps_its_log_on_postgresql_across_a_restart() {
     let index = std::fs::read_to_string(dataset.join("index.jsonl")).unwrap();
     assert!(!index.trim().is_empty(), "{said}");
     assert!(said.contains("training example"), "{said}");
+}
+
+fn grid_replica(url: &str) -> Coordinator {
+    open_with(url, Arc::new(service_support::GridEngine::new()))
+}
+
+fn open_with(url: &str, corrector: Arc<dyn sayso_session::Corrector>) -> Coordinator {
+    Coordinator::open_postgres(
+        corrector,
+        url,
+        &CoordinatorSettings {
+            log_path: std::path::PathBuf::from("unused"),
+            pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
+            demo_dir: std::path::PathBuf::from("none"),
+        },
+    )
+    .expect("a replica opens on the migrated database")
+}
+
+/// "No, the other one" said to another replica than the one that took the answer, and after every
+/// replica has stopped: the answer it takes back is read from the answering turn in the log.
+#[test]
+fn no_the_other_one_works_on_any_replica_and_after_a_restart() {
+    let url = postgres_support::fresh_database();
+    let (ok, said) = sayso(&["migrate", "--database", &url]);
+    assert!(ok, "{said}");
+    let mug = sayso_core::taxonomy::Taxonomy::embedded()
+        .class_by_name("mug")
+        .unwrap()
+        .id
+        .0;
+    let top_row = |replica: &Coordinator, scene: SceneKey| -> Vec<u16> {
+        let png = replica.label_map_png(scene).unwrap();
+        let labels =
+            sayso_core::raster::decode_index_png(&png, std::path::Path::new("labels"), 1 << 20).unwrap();
+        (0..2).map(|x| labels.get(x, 0)).collect()
+    };
+    let words = |replica: &Coordinator, conversation: ConversationKey, text: &str| {
+        replica.utterance(conversation, "odile", text, None)
+    };
+    let (scene, conversation) = {
+        let first = grid_replica(&url);
+        let second = grid_replica(&url);
+        let labels = IndexImage::filled(4, 2, FLOOR);
+        let created = first
+            .register_scene(
+                SceneUpload {
+                    name: Some("juniper-lane-sill".into()),
+                    image_png: Some(sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                    label_map_png: Some(sayso_core::raster::encode_index_png(&labels).unwrap()),
+                    ..Default::default()
+                },
+                "odile",
+            )
+            .expect("registered");
+        let scene = SceneKey(created.scene_id);
+        let conversation = ConversationKey(
+            first
+                .open_conversation(scene, "odile")
+                .expect("opened")
+                .conversation_id,
+        );
+        let asked = words(&first, conversation, "either paint mug").expect("asked");
+        assert_eq!(asked.status, TurnStatus::NeedsClarification);
+        assert_eq!(asked.candidates.len(), 2);
+        let answered = words(&second, conversation, "the first one").expect("answered");
+        assert_eq!(answered.status, TurnStatus::Applied);
+        assert_eq!(top_row(&first, scene), vec![mug, FLOOR]);
+        // The first replica never saw the answer: it reads it from the log.
+        let other = words(&first, conversation, "no, the other one").expect("the other one");
+        assert_eq!(other.status, TurnStatus::Applied);
+        assert_eq!(top_row(&second, scene), vec![FLOOR, mug]);
+        // And the first pixel again, through the second replica.
+        let back = words(&second, conversation, "no, the other one").expect("the other one");
+        assert_eq!(
+            back.status,
+            TurnStatus::NeedsClarification,
+            "no candidate is left"
+        );
+        assert_eq!(
+            top_row(&first, scene),
+            vec![FLOOR, FLOOR],
+            "the second replica took back the first one's change, read from the log"
+        );
+        (scene, conversation)
+    };
+    // Every replica stopped: a new one reads the last answer back; first a fresh answer to take back.
+    let answered = {
+        let replica = grid_replica(&url);
+        assert_eq!(
+            words(&replica, conversation, "either paint mug")
+                .unwrap()
+                .status,
+            TurnStatus::NeedsClarification
+        );
+        words(&replica, conversation, "the second one").unwrap()
+    };
+    assert_eq!(answered.status, TurnStatus::Applied);
+    let restarted = grid_replica(&url);
+    assert_eq!(top_row(&restarted, scene), vec![FLOOR, mug]);
+    let other = words(&restarted, conversation, "no, the other one").expect("after a restart");
+    assert_eq!(other.status, TurnStatus::Applied);
+    assert_eq!(top_row(&restarted, scene), vec![mug, FLOOR]);
 }

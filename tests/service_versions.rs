@@ -292,3 +292,81 @@ async fn a_conversations_history_carries_its_open_question_until_it_is_answered(
     let (_, answered) = get_json(&router, &path, MIRA).await;
     assert!(answered["question"].is_null(), "{answered}");
 }
+
+/// The pixel at (x, 0) of a scene's current label map.
+async fn top_row(router: &axum::Router, scene: i64) -> Vec<u16> {
+    let reply = call(
+        router,
+        Call::new("GET", &format!("/v1/scenes/{scene}/labels.png"), Some(MIRA)),
+    )
+    .await;
+    assert_eq!(reply.status, 200);
+    let labels =
+        sayso_core::raster::decode_index_png(&reply.body, std::path::Path::new("labels"), 1 << 20)
+            .unwrap();
+    (0..2).map(|x| labels.get(x, 0)).collect()
+}
+
+#[tokio::test]
+async fn no_the_other_one_still_works_after_a_restart() {
+    let data = tempfile::tempdir().unwrap();
+    let (router, coordinator) = router_with(data.path(), config(), Arc::new(GridEngine::new()));
+    let created = call(
+        &router,
+        Call::new("POST", "/v1/scenes", Some(MIRA)).json(scene_body(&labels())),
+    )
+    .await;
+    let scene = created.json()["scene_id"].as_i64().unwrap();
+    let conversation = open(&router, scene, MIRA).await;
+    let mug = sayso_core::taxonomy::Taxonomy::embedded()
+        .class_by_name("mug")
+        .unwrap()
+        .id
+        .0;
+    let asked = say(&router, conversation, "either paint mug", 2).await;
+    assert_eq!(asked["status"], "needs_clarification", "{asked}");
+    assert_eq!(asked["candidates"].as_array().unwrap().len(), 2, "{asked}");
+    let answered = say(&router, conversation, "the first one", 2).await;
+    assert_eq!(answered["status"], "applied", "{answered}");
+    assert_eq!(top_row(&router, scene).await, vec![mug, 0]);
+    // The service stops and starts again on the same log: the answer is read back from its turn.
+    drop(router);
+    drop(coordinator);
+    let (router, _coordinator) = router_with(data.path(), config(), Arc::new(GridEngine::new()));
+    let other = say(&router, conversation, "no, the other one", 2).await;
+    assert_eq!(other["status"], "applied", "{other}");
+    assert_eq!(
+        top_row(&router, scene).await,
+        vec![0, mug],
+        "the first answer's change is taken back and the note goes to the other pixel"
+    );
+    // An undo forgets the answer, after a restart as before one.
+    let undone = call(
+        &router,
+        Call::new(
+            "POST",
+            &format!("/v1/conversations/{conversation}/undo"),
+            Some(MIRA),
+        )
+        .json(json!({})),
+    )
+    .await;
+    assert_eq!(undone.status, 200);
+    drop(router);
+    drop(_coordinator);
+    let (router, _coordinator) = router_with(data.path(), config(), Arc::new(GridEngine::new()));
+    let refused = call(
+        &router,
+        Call::new(
+            "POST",
+            &format!("/v1/conversations/{conversation}/utterances"),
+            Some(MIRA),
+        )
+        .json(json!({"text": "no, the other one"})),
+    )
+    .await;
+    assert_eq!(
+        (refused.status, refused.code().as_str()),
+        (409, "no_answer_to_change")
+    );
+}

@@ -7,6 +7,7 @@
 -> = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
 + = ; unless after <start>
 & = and
+= = it is when after <start> when before <class>|a|an
 = = :
 >= = at least
 => = at least
@@ -33,7 +34,9 @@ missed det = missed
 missed dets = missed
 objs = objects
 
-# Sides and relations.
+# Sides and relations. A lone "L" or "R" before a pause is a side ("L: mug, R: lamp").
+l = left when before <end>|-|=
+r = right when before <end>|-|=
 adj to = next to
 adj = next to
 l of = left of

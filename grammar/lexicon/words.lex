@@ -65,6 +65,10 @@ was -> be
 were -> be
 am -> be
 be -> be
+has been -> be
+have been -> be
+has been put -> be
+have been put -> be
 sits -> be
 rests -> be
 rest -> be
@@ -265,6 +269,8 @@ close to -> relation next_to
 against -> relation next_to
 the side of -> skip
 left of -> relation left_of
+the left of -> relation left_of
+the right of -> relation right_of
 to left of -> relation left_of
 on left of -> relation left_of
 to right of -> relation right_of
@@ -427,6 +433,8 @@ nothing of the sort = none
 nothing of that sort = none
 nothing like that = none
 i am pretty sure -> filler
+i am fairly sure -> filler
+fairly sure -> filler
 i am sure -> filler
 pretty sure -> filler
 you got the wrong number of -> count
@@ -499,6 +507,8 @@ sitting -> skip
 lying -> skip
 resting -> skip
 placed -> skip
+pushed -> skip
+at all -> skip
 too many -> skip
 too few -> skip
 once -> skip
@@ -546,15 +556,15 @@ wait here -> request
 can you see -> question
 do you see -> question
 let's -> request
-what -> question
-where -> question
+what -> question thing
+where -> question place
 which -> question
 who -> question
 why -> question
 how -> question
-how many -> question
-is there -> question
-are there -> question
+how many -> question count
+is there -> question exists
+are there -> question exists
 do you -> question
 did you -> question
 can i -> question

@@ -12,7 +12,8 @@ use super::postgres::PostgresLog;
 use super::store::SqliteLog;
 use super::{
     ConversationKey, ConversationRow, ExampleRow, LogError, NewScene, NewTurn, PendingRow,
-    SceneKey, SceneRow, StateRecord, TurnKey, TurnMark, TurnRow, TurnStacks, VersionKey,
+    SceneKey, SceneListed, SceneRow, StateRecord, TurnKey, TurnMark, TurnRow, TurnStacks,
+    VersionKey,
 };
 
 /// Where the log lives.
@@ -250,6 +251,11 @@ impl CorrectionLog {
     /// Every scene's key, ascending.
     pub fn scene_keys(&self) -> Result<Vec<SceneKey>, LogError> {
         dispatch!(self, log => log.scene_keys())
+    }
+
+    /// Up to `limit` scenes with a key above `after`, ascending, with their images' first bytes only.
+    pub fn scene_listing(&self, after: i64, limit: i64) -> Result<Vec<SceneListed>, LogError> {
+        dispatch!(self, log => log.scene_listing(after, limit))
     }
 
     /// Every conversation's key, ascending.

@@ -168,6 +168,7 @@ mod tests {
             status: "applied",
             constraints_json: "[]",
             result_json: "{}",
+            answer_json: None,
             operator: "mira",
             effect,
         }

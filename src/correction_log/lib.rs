@@ -53,7 +53,7 @@ pub use checkpoint::BackgroundCheckpoints;
 pub use export::{export_dataset, export_dataset_showing, ExportError, ExportSummary};
 pub use export_filter::{LeftOut, LeftOutReason, CONTRADICTED_SHARE};
 pub use group::{GroupCommit, GroupCommitCounts, TurnWritten};
-pub use lookup::TurnMark;
+pub use lookup::{SceneListed, TurnMark, IMAGE_HEAD_BYTES};
 pub use postgres::{redact as redact_address, PostgresLog};
 pub use schema::LOG_SCHEMA_VERSION;
 pub use store::{

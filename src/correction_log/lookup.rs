@@ -29,6 +29,19 @@ impl TurnMark {
     }
 }
 
+/// How many leading bytes of a stored image a scene listing reads: a PNG's signature and its IHDR chunk.
+pub const IMAGE_HEAD_BYTES: i64 = 33;
+
+/// A scene as a listing shows it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct SceneListed {
+    pub key: SceneKey,
+    pub name: String,
+    pub head: VersionKey,
+    /// The first `IMAGE_HEAD_BYTES` of the stored image (fewer if it is shorter).
+    pub image_head: Vec<u8>,
+}
+
 impl SqliteLog {
     /// One stored scene, if there is one with this key.
     pub fn scene(&self, scene: SceneKey) -> Result<Option<SceneRow>, LogError> {
@@ -119,6 +132,26 @@ impl SqliteLog {
             .prepare("SELECT id FROM scenes ORDER BY id")?;
         let keys = statement.query_map([], |row| row.get(0).map(SceneKey))?;
         Ok(keys.collect::<Result<Vec<_>, _>>()?)
+    }
+
+    /// Up to `limit` scenes with a key above `after`, ascending, each with the first bytes of its image
+    /// (enough for a PNG's size), without reading the image itself.
+    pub fn scene_listing(&self, after: i64, limit: i64) -> Result<Vec<SceneListed>, LogError> {
+        let mut statement = self.connection.prepare(
+            "SELECT s.id, s.name, s.head_version, substr(b.bytes, 1, ?3)
+             FROM scenes s JOIN blobs b ON b.hash = s.image_hash
+             WHERE s.id > ?1 ORDER BY s.id LIMIT ?2",
+        )?;
+        let rows =
+            statement.query_map(rusqlite::params![after, limit, IMAGE_HEAD_BYTES], |row| {
+                Ok(SceneListed {
+                    key: SceneKey(row.get(0)?),
+                    name: row.get(1)?,
+                    head: VersionKey(row.get(2)?),
+                    image_head: row.get(3)?,
+                })
+            })?;
+        Ok(rows.collect::<Result<Vec<_>, _>>()?)
     }
 
     /// Every conversation's key, ascending.

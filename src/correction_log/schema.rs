@@ -9,7 +9,7 @@ use rusqlite::Connection;
 use super::LogError;
 
 /// The schema version this build writes; every stored row carries the version it was written under.
-pub const LOG_SCHEMA_VERSION: i64 = 3;
+pub const LOG_SCHEMA_VERSION: i64 = 4;
 
 /// Migration `n` (1-based) moves the database from version `n - 1` to version `n`.
 const MIGRATIONS: &[&str] = &[
@@ -103,6 +103,12 @@ const MIGRATIONS: &[&str] = &[
     // on rows written before version 3).
     r#"
     ALTER TABLE training_examples ADD COLUMN confirmed_by TEXT;
+    "#,
+    // Version 4: the question a turn answered and the candidate it chose (JSON), so that "no, the other
+    // one" can be said through any replica and after a restart; NULL on turns that answered no question
+    // and on rows written before version 4.
+    r#"
+    ALTER TABLE turns ADD COLUMN answer_json TEXT;
     "#,
 ];
 
@@ -218,6 +224,7 @@ mod tests {
                     status: "applied",
                     constraints_json: "[]",
                     result_json: "{}",
+                    answer_json: None,
                     operator: "mira",
                     effect: crate::TurnEffect::NewVersion {
                         base: crate::VersionKey(1),
@@ -263,6 +270,63 @@ mod tests {
             )
             .unwrap();
         assert_eq!((operator.as_str(), confirmed_by), ("mira", None));
+        // Schema 4: a turn written before it answered no question, as far as the log knows.
+        let answer: Option<String> = connection
+            .query_row("SELECT answer_json FROM turns WHERE id = 1", [], |row| {
+                row.get(0)
+            })
+            .unwrap();
+        assert_eq!(answer, None);
+    }
+
+    #[test]
+    fn a_version_3_database_migrates_and_its_turns_answered_no_question() {
+        let directory = tempfile::tempdir().unwrap();
+        let path = directory.path().join("log.sqlite");
+        {
+            let mut connection = Connection::open(&path).unwrap();
+            prepare_up_to(&mut connection, 3).unwrap();
+            connection
+                .execute_batch(
+                    "INSERT INTO blobs (hash, bytes) VALUES ('h', x'00');
+                     INSERT INTO scenes (id, name, image_hash, input_json, head_version, created_at, operator, row_schema)
+                         VALUES (1, 'landing', 'h', '{}', 1, 't', 'ola', 3);
+                     INSERT INTO scene_versions (id, scene_id, parent_id, labels_hash, summary_json, engine_state, turn_id, created_at, row_schema, model)
+                         VALUES (1, 1, NULL, 'h', '{}', x'', NULL, 't', 3, NULL);
+                     INSERT INTO conversations (id, scene_id, operator, opened_at, applied_stack, redo_stack, row_schema)
+                         VALUES (1, 1, 'ola', 't', '[]', '[]', 3);
+                     INSERT INTO turns (id, conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
+                         VALUES (1, 1, 'utterance', 'the second one', NULL, 'applied', '[]', '{}', 1, 'ola', 't', 3);",
+                )
+                .unwrap();
+        }
+        let mut log = crate::CorrectionLog::open(&path).unwrap();
+        assert_eq!(log.schema_version().unwrap(), 4);
+        let conversation = crate::ConversationKey(1);
+        let (_, _) = log
+            .commit_turn(
+                &crate::NewTurn {
+                    conversation,
+                    kind: "utterance",
+                    text: "the first one",
+                    focus_json: None,
+                    status: "needs_clarification",
+                    constraints_json: "[]",
+                    result_json: "{}",
+                    answer_json: Some("{\"chosen\":0}"),
+                    operator: "ola",
+                    effect: crate::TurnEffect::None,
+                },
+                None,
+            )
+            .unwrap();
+        let answers: Vec<Option<String>> = log
+            .turns(conversation)
+            .unwrap()
+            .into_iter()
+            .map(|turn| turn.answer_json)
+            .collect();
+        assert_eq!(answers, vec![None, Some("{\"chosen\":0}".to_string())]);
     }
 
     #[test]

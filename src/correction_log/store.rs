@@ -46,6 +46,8 @@ pub struct NewTurn<'a> {
     pub status: &'a str,
     pub constraints_json: &'a str,
     pub result_json: &'a str,
+    /// The question this turn answered and the candidate chosen (JSON), for "no, the other one".
+    pub answer_json: Option<&'a str>,
     pub operator: &'a str,
     pub effect: TurnEffect,
 }
@@ -120,6 +122,8 @@ pub struct TurnRow {
     pub constraints_json: String,
     pub result_json: String,
     pub scene_version: Option<VersionKey>,
+    /// The question this turn answered and the candidate chosen (JSON); `None` for most turns.
+    pub answer_json: Option<String>,
     pub operator: String,
     pub created_at: String,
     pub row_schema: i64,
@@ -181,11 +185,12 @@ fn write_turn(
         |row| row.get(0),
     )?;
     transaction.execute(
-        "INSERT INTO turns (conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
-         VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)",
+        "INSERT INTO turns (conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema, answer_json)
+         VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12)",
         params![
             turn.conversation.0, turn.kind, turn.text, turn.focus_json, turn.status,
-            turn.constraints_json, turn.result_json, head, turn.operator, now, LOG_SCHEMA_VERSION
+            turn.constraints_json, turn.result_json, head, turn.operator, now, LOG_SCHEMA_VERSION,
+            turn.answer_json
         ],
     )?;
     let turn_key = TurnKey(transaction.last_insert_rowid());
@@ -616,7 +621,7 @@ impl SqliteLog {
     /// The turns of one conversation, in order.
     pub fn turns(&self, conversation: ConversationKey) -> Result<Vec<TurnRow>, LogError> {
         let mut statement = self.connection.prepare(
-            "SELECT id, conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema
+            "SELECT id, conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema, answer_json
              FROM turns WHERE conversation_id = ?1 ORDER BY id",
         )?;
         let rows = statement.query_map([conversation.0], |row| {
@@ -630,6 +635,7 @@ impl SqliteLog {
                 constraints_json: row.get(6)?,
                 result_json: row.get(7)?,
                 scene_version: row.get::<_, Option<i64>>(8)?.map(VersionKey),
+                answer_json: row.get(12)?,
                 operator: row.get(9)?,
                 created_at: row.get(10)?,
                 row_schema: row.get(11)?,
@@ -744,6 +750,7 @@ mod tests {
             status: "applied",
             constraints_json: "[]",
             result_json: "{}",
+            answer_json: None,
             operator: "mira",
             effect,
         }

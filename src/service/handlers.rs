@@ -167,7 +167,7 @@ pub async fn list_scenes(
 ) -> Response {
     let result = async {
         let page = page(query)?;
-        blocking(&state, move |coordinator| Ok(coordinator.scenes_page(page))).await
+        blocking(&state, move |coordinator| coordinator.scenes_page(page)).await
     }
     .await;
     answer(result, StatusCode::OK)

@@ -18,6 +18,7 @@ mod console;
 pub mod error;
 mod guard;
 mod handlers;
+mod head_refusal;
 pub mod metrics;
 pub mod openapi;
 mod server;

@@ -213,10 +213,15 @@ fn add_refusals(document: &mut Value) {
                         false,
                     ),
                 ));
+                let media = if path == UPLOAD_PATH {
+                    "multipart/form-data with a boundary"
+                } else {
+                    "application/json"
+                };
                 refusals.push((
                     "415",
                     error_response(
-                        "The body is not sent as application/json (bad_content_type)",
+                        &format!("The body is not sent as {media} (bad_content_type)"),
                         false,
                         false,
                     ),
@@ -242,6 +247,7 @@ fn add_refusals(document: &mut Value) {
             variant.insert("additionalProperties".into(), json!(false));
         }
     }
+    upload_parts(document);
     // A registration names a demo scene or sends an image: exactly one of the three.
     let register = document
         .pointer_mut("/components/schemas/RegisterSceneRequest")
@@ -257,6 +263,71 @@ fn add_refusals(document: &mut Value) {
                 named("image_png_base64")
             ]),
         );
+    }
+}
+
+/// The multipart scene upload's route.
+const UPLOAD_PATH: &str = "/v1/scenes/upload";
+
+/// The multipart upload's parts, exactly as `super::upload` reads them: each named part at most once, no
+/// other part, `image` or `demo` and not both; the text parts' rules are the JSON registration's.
+fn upload_parts(document: &mut Value) {
+    let register = document
+        .pointer("/components/schemas/RegisterSceneRequest/properties")
+        .cloned()
+        .unwrap_or_else(|| json!({}));
+    // A text part: the JSON field's schema, as a plain string (a part is never null).
+    let text = |field: &str, description: &str| {
+        let mut schema = register.get(field).cloned().unwrap_or_else(|| json!({}));
+        schema["type"] = json!("string");
+        schema["description"] = json!(description);
+        schema
+    };
+    let bytes = |description: &str| json!({"type": "string", "format": "binary", "minLength": 1, "description": description});
+    let class_list = |description: &str| {
+        // Some line whose first character that is not white space is not `#` (a comment).
+        json!({"type": "string", "pattern": "(?:^|\\n)\\s*[^\\s#]", "description": description})
+    };
+    let schema = json!({
+        "type": "object",
+        "additionalProperties": false,
+        "properties": {
+            "image": bytes("The colour image, PNG or JPEG (told apart by content)."),
+            "demo": text("demo", "The name of a demo scene under the service's demo directory: 1-64 letters, \
+                digits, '-' or '_' (surrounding white space is ignored)."),
+            "depth": bytes("A 16-bit depth PNG in millimetres."),
+            "scores": bytes("Per-pixel class scores as an NPY array (float32 or float64, height x width x \
+                classes or classes x height x width); channels named by `scores_classes`."),
+            "scores_classes": class_list("The channel names of `scores`, one class name per line."),
+            "label_map": bytes("A label map as a single-channel index PNG (pixel value = class id, 255 = \
+                unlabelled)."),
+            "label_map_classes": class_list("The class list of `label_map`, one class name per line."),
+            "detections": {"type": "string", "description": "The robot's detections in JSON Lines, one \
+                `{\"class\": .., \"box\": [x0, y0, x1, y1], \"score\": ..}` per line, with an optional \
+                `\"mask_runs\"` (docs/perception.md)."},
+            "name": text("name", "A name for people; defaults to the demo name or \"scene\". Plain text: no \
+                control characters or text-direction overrides; longer than 200 characters is cut to 200."),
+            "room": text("room", "A room type name, when known (surrounding white space is ignored)."),
+            "drop_unknown_classes": {"type": "string", "enum": ["true", "false"], "description": "Leave \
+                classes with unknown names out instead of refusing the scene (default false)."},
+        },
+        "oneOf": [
+            {"required": ["image"]},
+            {"required": ["demo"]},
+        ],
+    });
+    let encoding = json!({
+        "image": {"contentType": "image/png, image/jpeg"},
+        "depth": {"contentType": "image/png"},
+        "scores": {"contentType": "application/octet-stream"},
+        "label_map": {"contentType": "image/png"},
+    });
+    let pointer = format!(
+        "/paths/{}/post/requestBody/content/multipart~1form-data",
+        UPLOAD_PATH.replace('/', "~1")
+    );
+    if let Some(content) = document.pointer_mut(&pointer) {
+        *content = json!({"schema": schema, "encoding": encoding});
     }
 }
 
@@ -328,6 +399,30 @@ mod tests {
         );
         let schema = &document["components"]["schemas"]["RegisterSceneRequest"];
         assert_eq!(schema["oneOf"].as_array().unwrap().len(), 3);
+        // The multipart upload's parts are exactly the ones `upload` reads, image or demo required.
+        let upload = &document["paths"][UPLOAD_PATH]["post"]["requestBody"]["content"]
+            ["multipart/form-data"]["schema"];
+        let mut documented: Vec<&str> = upload["properties"]
+            .as_object()
+            .expect("the upload's parts")
+            .keys()
+            .map(String::as_str)
+            .collect();
+        documented.sort();
+        let mut read = super::super::upload::PARTS.to_vec();
+        read.sort();
+        assert_eq!(documented, read);
+        assert_eq!(upload["additionalProperties"], false);
+        assert_eq!(upload["oneOf"].as_array().map(Vec::len), Some(2));
+        assert_eq!(
+            upload["properties"]["name"]["pattern"],
+            schema["properties"]["name"]["pattern"]
+        );
+        let refused = &document["paths"][UPLOAD_PATH]["post"]["responses"]["415"]["description"];
+        assert!(
+            refused.as_str().unwrap().contains("multipart/form-data"),
+            "{refused}"
+        );
         let text = &document["components"]["schemas"]["UtteranceRequest"]["properties"]["text"];
         assert_eq!(
             (text["minLength"].as_u64(), text["maxLength"].as_u64()),

@@ -10,10 +10,11 @@
 //! Must not: know routes, callers or bodies; it hands every request, with the client's address as
 //! `ConnectInfo`, to the router.
 //!
-//! Refusals the router never sees are answered by hyper with an empty body: a malformed request line or
-//! header (400), a request target over 65,534 bytes (414), more than `HEADER_COUNT_HARD_LIMIT` headers or
-//! a head over hyper's read buffer (about 400 kB) (431). Smaller heads over the router's own limits are
-//! refused in the JSON shape by `guard::shape_and_measure`.
+//! Refusals the router never sees are answered by hyper: a malformed request line or header (400), a
+//! request target over 65,534 bytes (414), more than `HEADER_COUNT_HARD_LIMIT` headers or a head over
+//! hyper's read buffer (about 400 kB) (431); hyper writes them with an empty body, and the connection's
+//! stream (`head_refusal::JsonHeadRefusals`) puts the JSON error shape in. Smaller heads over the router's
+//! own limits are refused in the JSON shape by `guard::shape_and_measure`.
 
 use std::future::Future;
 use std::net::SocketAddr;
@@ -161,7 +162,10 @@ pub async fn serve(
                 .insert(ConnectInfo::<SocketAddr>(peer));
             router.clone().oneshot(request.map(Body::new))
         });
-        let connection = builder.serve_connection(TokioIo::new(stream), service);
+        let connection = builder.serve_connection(
+            TokioIo::new(super::head_refusal::JsonHeadRefusals::new(stream)),
+            service,
+        );
         let mut close = close_receiver.clone();
         tokio::spawn(async move {
             tokio::pin!(connection);

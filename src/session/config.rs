@@ -27,6 +27,7 @@
 //! max_requests_in_flight = 64     # requests being worked on; more are answered 503 with Retry-After
 //! auth_failures_per_minute = 10.0 # wrong or missing tokens per client address before 429 with Retry-After
 //! auth_failure_burst = 10
+//! scenes_in_memory = 32           # idle scenes held decoded; the others are read from the log when asked for
 //!
 //! [[operators]]
 //! name = "mira"
@@ -96,6 +97,9 @@ pub struct ServiceConfig {
     pub auth_failures_per_minute: f64,
     /// ...and at once, before it is answered 429 with Retry-After.
     pub auth_failure_burst: u32,
+    /// Scenes held decoded in memory when no request is using them, the least recently used let go first
+    /// (read again from the correction log when next asked for).
+    pub scenes_in_memory: usize,
     pub operators: Vec<OperatorToken>,
 }
 
@@ -119,6 +123,7 @@ impl Default for ServiceConfig {
             max_requests_in_flight: 64,
             auth_failures_per_minute: 10.0,
             auth_failure_burst: 10,
+            scenes_in_memory: 32,
             operators: Vec::new(),
         }
     }
@@ -219,6 +224,7 @@ impl ServiceConfig {
             ("max_connections", self.max_connections as u64),
             ("max_requests_in_flight", self.max_requests_in_flight as u64),
             ("auth_failure_burst", u64::from(self.auth_failure_burst)),
+            ("scenes_in_memory", self.scenes_in_memory as u64),
         ] {
             if value == 0 {
                 return Err(ConfigError::OutOfRange {

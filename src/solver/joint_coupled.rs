@@ -305,22 +305,24 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
     let position_in_enumerated = &tables.position_in_enumerated;
     let touches_enumerated = &tables.touches_enumerated;
     let exact = tables.exact;
-    // Free hypotheses of each class, sorted by on-minus-off cost (ties by index, for determinism).
-    let mut free_sorted = tables.free.clone();
-    let mut free_deltas = vec![0.0; free_sorted.len()];
+    // Free hypotheses of each class, sorted by on-minus-off cost (ties by index, for determinism). The key
+    // (cost, index) is a total order, so an unstable sort of the keys gives the one order a stable sort of
+    // the indices gave, without its scratch buffer or a cost lookup per comparison.
+    let mut keyed: Vec<(f64, usize)> = tables
+        .free
+        .iter()
+        .map(|&h| (inputs.cost_on[h] - inputs.cost_off[h], h))
+        .collect();
+    let mut free_sorted = Vec::with_capacity(keyed.len());
+    let mut free_deltas = Vec::with_capacity(keyed.len());
     let mut free_off = vec![0.0; energy.label_count];
     let range = |class: usize| tables.free_start[class]..tables.free_start[class + 1];
     for class in 0..energy.label_count {
-        let free = &mut free_sorted[range(class)];
-        free.sort_by(|&a, &b| {
-            let delta_a = inputs.cost_on[a] - inputs.cost_off[a];
-            let delta_b = inputs.cost_on[b] - inputs.cost_off[b];
-            delta_a.total_cmp(&delta_b).then(a.cmp(&b))
-        });
-        for (delta, &h) in free_deltas[range(class)].iter_mut().zip(free.iter()) {
-            *delta = inputs.cost_on[h] - inputs.cost_off[h];
-        }
-        free_off[class] = free.iter().map(|&h| inputs.cost_off[h]).sum();
+        let keys = &mut keyed[range(class)];
+        keys.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        free_sorted.extend(keys.iter().map(|&(_, h)| h));
+        free_deltas.extend(keys.iter().map(|&(delta, _)| delta));
+        free_off[class] = keys.iter().map(|&(_, h)| inputs.cost_off[h]).sum();
     }
 
     // Room-independent parts first; each room then only adds its presence costs (see `ClassParts`).

@@ -292,9 +292,10 @@ pub fn index_png_base64(labels: &IndexImage) -> String {
     base64(&raster::encode_index_png(labels).unwrap())
 }
 
-/// The grid engine: every pixel is its own object. "paint <class>" with a pixel focus gives that pixel the
-/// class; a pixel of a safety class waits for confirmation; "which" asks back; "sleep" takes 1.5 s; any
-/// other sentence is not understood.
+/// The grid engine: every pixel is its own object. "paint <class>" with a pixel focus (or an object's, the
+/// object's pixel) gives that pixel the class; a pixel of a safety class waits for confirmation; "which"
+/// asks back; "either paint <class>" asks which of the first two pixels of the top row, and an answer
+/// paints the one chosen; "sleep" takes 1.5 s; any other sentence is not understood.
 pub struct GridEngine {
     pub taxonomy: Taxonomy,
 }
@@ -391,11 +392,49 @@ impl Corrector for GridEngine {
                 Vec::new(),
             ));
         }
+        if words.first() == Some(&"either") {
+            let note = sayso_core::turn::Note {
+                text: words[1..].join(" "),
+                focus: None,
+                constraints: Vec::new(),
+            };
+            let candidate = |x: u32| sayso_core::turn::Candidate {
+                object: sayso_core::ids::ObjectId(x + 1),
+                class: Some(ClassId(request.state.labels.get(x, 0))),
+                description: format!("the pixel at ({x}, 0)"),
+                bbox: Some(BoundingBox {
+                    x0: x,
+                    y0: 0,
+                    x1: x + 1,
+                    y1: 1,
+                }),
+            };
+            return Ok(outcome(
+                Verdict::NeedsClarification {
+                    question: sayso_core::turn::OpenQuestion {
+                        note,
+                        constraint: 0,
+                        text: "which one: the pixel at (0, 0) or the pixel at (1, 0)?".into(),
+                        candidates: vec![candidate(0), candidate(1)],
+                    },
+                },
+                Vec::new(),
+                Vec::new(),
+            ));
+        }
+        let width = request.state.labels.width;
+        let focus = match request.focus {
+            Some(Focus::Object { id }) if id.0 >= 1 => Some(Focus::Pixel {
+                x: (id.0 - 1) % width,
+                y: (id.0 - 1) / width,
+            }),
+            other => other,
+        };
         let class = match (words.first(), words.get(1)) {
             (Some(&"paint"), Some(name)) => self.taxonomy.class_by_name(name),
             _ => None,
         };
-        let (Some(class), Some(Focus::Pixel { x, y })) = (class, request.focus) else {
+        let (Some(class), Some(Focus::Pixel { x, y })) = (class, focus) else {
             return Ok(outcome(
                 Verdict::NotUnderstood {
                     reason: "say: paint <class>, with a pixel focus".into(),

@@ -10,6 +10,10 @@
 //! region's area-weighted mean joins when its colour differs from the member it borders by at most
 //! `EDGE_DELTA_E`, from the region's mean by at most `REGION_DELTA_E` (CIE76), its mean depth differs from
 //! that member's by at most `DEPTH_STEP` of the nearer one, and the region stays within `max_area` pixels.
+//! When the growth does not close at edges but is stopped only by `max_area` (a door a shade darker than its
+//! wall), it runs again at `TIGHTER` fractions of the thresholds and the first growth that closes is taken;
+//! failing all, the tightest (a relabel that covers too little is completed by the solve; one that covers a
+//! wall is not undone).
 //! The thresholds were chosen on training renders (seeds from 200000, never the demo or trial seeds) with
 //! `examples/pointer_reach.rs`, which reports how well the grown region covers the pointed ground-truth
 //! object.
@@ -74,7 +78,11 @@ pub fn pointed_region(scene: &Scene, seed: SegmentId, max_area: u64) -> Vec<Segm
     )
 }
 
-/// `pointed_region` with explicit thresholds (for choosing them).
+/// `pointed_region` with explicit thresholds (for choosing them): the growth at those thresholds when it
+/// closes at edges within `max_area`; when it only stops at `max_area` (the thing pointed at is not set off
+/// from its surroundings at those thresholds: a door in a wall of nearly its colour), the growth again at
+/// each of `TIGHTER` times the thresholds in turn, and the first that closes. When none closes, the tightest
+/// growth: a relabel that covers too little is completed by the solve, one that covers a wall is not undone.
 pub fn pointed_region_with(
     scene: &Scene,
     seed: SegmentId,
@@ -83,13 +91,63 @@ pub fn pointed_region_with(
     region_delta_e: f32,
     depth_limit: f32,
 ) -> Vec<SegmentId> {
+    pointed_region_tries(
+        scene,
+        seed,
+        max_area,
+        [edge_delta_e, region_delta_e, depth_limit],
+        &TIGHTER,
+    )
+}
+
+/// `pointed_region_with` with the threshold scales tried after the first (for choosing them).
+pub fn pointed_region_tries(
+    scene: &Scene,
+    seed: SegmentId,
+    max_area: u64,
+    [edge_delta_e, region_delta_e, depth_limit]: [f32; 3],
+    tighter: &[f32],
+) -> Vec<SegmentId> {
+    let mut last = Vec::new();
+    for &scale in std::iter::once(&1.0).chain(tighter) {
+        let (members, closed) = grow(
+            scene,
+            seed,
+            max_area,
+            edge_delta_e * scale,
+            region_delta_e * scale,
+            depth_limit * scale,
+        );
+        if closed {
+            return members;
+        }
+        last = members;
+    }
+    last
+}
+
+/// The threshold scales tried, in turn, when growth at the chosen thresholds does not close (our own choice,
+/// checked with `examples/pointer_reach.rs` on training renders).
+pub const TIGHTER: [f32; 3] = [0.75, 0.5, 0.35];
+
+/// Best-first growth at fixed thresholds; the members (ascending) and whether growth closed at edges before
+/// the area limit refused a neighbour.
+fn grow(
+    scene: &Scene,
+    seed: SegmentId,
+    max_area: u64,
+    edge_delta_e: f32,
+    region_delta_e: f32,
+    depth_limit: f32,
+) -> (Vec<SegmentId>, bool) {
     let count = scene.segment_count().min(scene.stats.len());
     if seed.index() >= count {
-        return Vec::new();
+        return (Vec::new(), true);
     }
     if scene.stats[seed.index()].area == 0 {
-        return vec![seed];
+        return (vec![seed], true);
     }
+    let mut closed = true;
     let stats = &scene.stats;
     let mut inside = vec![false; count];
     let mut queued = vec![false; count];
@@ -141,11 +199,13 @@ pub fn pointed_region_with(
         let edge = stats[n].mean_lab.delta_e(stats[candidate.from].mean_lab);
         let step = depth_step(stats[n].mean_depth_mm, stats[candidate.from].mean_depth_mm);
         let grown = area + u64::from(stats[n].area);
-        if edge > edge_delta_e
-            || stats[n].mean_lab.delta_e(centre) > region_delta_e
-            || step > depth_limit
-            || grown > max_area
-        {
+        let alike = edge <= edge_delta_e
+            && stats[n].mean_lab.delta_e(centre) <= region_delta_e
+            && step <= depth_limit;
+        if alike && grown > max_area {
+            closed = false;
+        }
+        if !alike || grown > max_area {
             // Another member may border it more gently later.
             queued[n] = false;
             continue;
@@ -167,5 +227,5 @@ pub fn pointed_region_with(
         );
     }
     members.sort_unstable();
-    members
+    (members, closed)
 }

@@ -12,6 +12,7 @@ use super::chunks::{AttachedRelation, Chunk, ChunkKind, NounPhrase, Quantity};
 use super::constraint::{
     Constraint, ConstraintKind, Count, Deixis, Place, Referent, Relation, RelationClause, Span,
 };
+use super::lexicon::Side;
 use super::rules::{Action, Match};
 
 /// Confidence of a constraint built only from known words.
@@ -491,6 +492,45 @@ impl Builder {
                 );
             }
             Action::Unread => {}
+            Action::Sides => {
+                // "L: mug, R: lamp": the first thing is left of the second, "R: lamp, L: mug" the same
+                // from the other end; two sides alike state nothing.
+                let sides: Vec<Side> = found
+                    .role("side")
+                    .into_iter()
+                    .filter_map(|index| match chunks[index].kind {
+                        ChunkKind::Side(side) => Some(side),
+                        _ => None,
+                    })
+                    .collect();
+                let relation = match sides.as_slice() {
+                    [Side::Left, Side::Right] => Relation::LeftOf,
+                    [Side::Right, Side::Left] => Relation::RightOf,
+                    _ => return,
+                };
+                let (Some(subject), Some(landmark)) =
+                    (first_phrase("subject"), first_phrase("landmark"))
+                else {
+                    return;
+                };
+                if subject.class.is_none() || landmark.class.is_none() {
+                    return;
+                }
+                self.count_of_subject(&subject, span, misspelled);
+                let subject = self.referent(&subject);
+                let landmarks = vec![self.plain_referent(&landmark)];
+                self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
+                self.push(
+                    ConstraintKind::Relation {
+                        subject,
+                        relation,
+                        negated: false,
+                        landmarks,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
             Action::Place => {
                 let Some(subject) = first_phrase("subject") else {
                     return;

@@ -34,7 +34,7 @@ pub fn resolve_pointing(items: Vec<Item>) -> Vec<Item> {
             continue;
         }
         match tag_of(out.last()) {
-            Some(Tag::Question) => {
+            Some(Tag::Question(_)) => {
                 let previous = out.last_mut().expect("a previous item");
                 previous.tag = ItemTag::Lexicon(DEMONSTRATIVE);
                 previous.span = previous.span.cover(item.span);

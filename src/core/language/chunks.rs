@@ -10,7 +10,7 @@
 use crate::ids::{ClassId, RoomId};
 
 use super::constraint::{Attribute, ImageRegion, Relation, Span};
-use super::lexicon::{Comparator, QuantityWord, Side, Tag};
+use super::lexicon::{Asks, Comparator, QuantityWord, Side, Tag};
 use super::parse::IgnoredReason;
 use super::tagging::{Item, ItemTag};
 
@@ -91,6 +91,8 @@ pub enum ChunkKind {
     Pointing,
     As,
     And,
+    /// "where" in a statement: the cleft "right of the desk is where the mug is".
+    Where,
     Separator,
     Repair,
     /// Anything else; blocks rules from matching across it.
@@ -373,7 +375,11 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::As => ChunkKind::As,
                 Tag::And => ChunkKind::And,
                 Tag::Repair => ChunkKind::Repair,
-                Tag::Request | Tag::Question | Tag::Thanks | Tag::Greeting => ChunkKind::Separator,
+                // "Right of the desk is where the mug is": "where" inside a statement joins a cleft.
+                Tag::Question(Asks::Place) => ChunkKind::Where,
+                Tag::Request | Tag::Question(_) | Tag::Thanks | Tag::Greeting => {
+                    ChunkKind::Separator
+                }
                 _ => ChunkKind::Other,
             },
         };
@@ -394,7 +400,6 @@ enum RepairKind {
     Relation,
     Attribute,
     Room,
-    Region,
 }
 
 fn repair_kind(kind: &ChunkKind) -> Option<RepairKind> {
@@ -403,7 +408,8 @@ fn repair_kind(kind: &ChunkKind) -> Option<RepairKind> {
         ChunkKind::Relation(_) | ChunkKind::Side(_) => Some(RepairKind::Relation),
         ChunkKind::Attributes(_) => Some(RepairKind::Attribute),
         ChunkKind::Room(_) => Some(RepairKind::Room),
-        ChunkKind::Region(_) => Some(RepairKind::Region),
+        // "On the right, no sorry, the left of the desk": a region and a relation both say where.
+        ChunkKind::Region(_) => Some(RepairKind::Relation),
         _ => None,
     }
 }

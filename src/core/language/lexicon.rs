@@ -44,6 +44,21 @@ pub enum Side {
     Right,
 }
 
+/// What a question word asks for, when a fragment answering it later in the utterance can be read.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Asks {
+    /// Nothing a fragment answer could complete ("why", "which", "do you").
+    Other,
+    /// "how many": a number answers it ("How many mugs? Exactly two.").
+    Count,
+    /// "what": a noun phrase answers it ("What's on the desk? A mug.").
+    Thing,
+    /// "where": a place answers it ("Where's the mug? On the desk."); also the cleft "X is where Y is".
+    Place,
+    /// "is there": "there is" or "there isn't" answers it ("Is there a mug? There is.").
+    Exists,
+}
+
 /// What a phrase can be.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Tag {
@@ -104,7 +119,7 @@ pub enum Tag {
     Filler,
     Skip,
     Request,
-    Question,
+    Question(Asks),
     Thanks,
     Greeting,
 }

@@ -8,7 +8,7 @@
 use crate::taxonomy::Taxonomy;
 
 use super::constraint::{ColourTerm, ImageRegion, Relation, SizeTerm};
-use super::lexicon::{Comparator, QuantityWord, Side, Tag};
+use super::lexicon::{Asks, Comparator, QuantityWord, Side, Tag};
 
 /// One parsed lexicon line, before it is inserted.
 pub(super) enum LexLine {
@@ -242,6 +242,21 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
             no_more(2)?;
             Tag::Reciprocal(parse_relation(need_value()?)?)
         }
+        "question" => {
+            no_more(2)?;
+            Tag::Question(match value {
+                None => Asks::Other,
+                Some("count") => Asks::Count,
+                Some("thing") => Asks::Thing,
+                Some("place") => Asks::Place,
+                Some("exists") => Asks::Exists,
+                Some(other) => {
+                    return Err(format!(
+                        "question '{other}' is not count, thing, place or exists"
+                    ))
+                }
+            })
+        }
         "thing" => {
             let plural = match value {
                 None => false,
@@ -278,7 +293,6 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 "filler" => Tag::Filler,
                 "skip" => Tag::Skip,
                 "request" => Tag::Request,
-                "question" => Tag::Question,
                 "thanks" => Tag::Thanks,
                 "greeting" => Tag::Greeting,
                 other => return Err(format!("unknown kind '{other}'")),

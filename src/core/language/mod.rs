@@ -16,6 +16,7 @@
 
 mod actions;
 pub mod allen;
+mod answers;
 mod asides;
 mod chunks;
 pub mod constraint;

@@ -4,7 +4,7 @@
 //! Owns: `Grammar` (taxonomy, lexicon and rules, from the embedded defaults or a directory with a site
 //! word directory), the length limit, sentence classification (correction, request, question, thanks,
 //! chit-chat, empty, unparsed), and running the stages normalise -> tokens -> tagging -> asides -> chunks ->
-//! rules -> actions in order.
+//! (answers: a fragment completed from the question before it) -> rules -> actions in order.
 //! Must not: remember earlier utterances (that is `conversation`) or touch scene content.
 
 use std::path::Path;
@@ -14,6 +14,7 @@ use serde::{Deserialize, Serialize};
 use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
+use super::answers::{asked, complete, Asked};
 use super::asides::{drop_asides, resolve_pointing};
 use super::chunks::{attach, chunk, repair, ChunkKind};
 use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Span};
@@ -293,8 +294,15 @@ impl Grammar {
             .text
             .chars()
             .any(|c| !c.is_whitespace() && !",.;:!?'\"-".contains(c));
+        // A question leaves something open that the next sentence may answer with a fragment.
+        let mut pending: Option<Asked> = None;
         for mut sentence in sentences {
             sentence.items = resolve_pointing(sentence.items);
+            let asks = sentence.items.iter().find_map(|item| match item.tag {
+                ItemTag::Lexicon(Tag::Question(asks)) => Some(asks),
+                _ => None,
+            });
+            let open = pending.take();
             let words = sentence
                 .items
                 .iter()
@@ -314,15 +322,23 @@ impl Grammar {
                     // or "it" of the same utterance means.
                     let mut scratch = Vec::new();
                     let items = clean(sentence.items, &mut scratch);
-                    for chunk in attach(repair(chunk(&items), &mut scratch)) {
-                        builder.mention_asked(&chunk);
+                    let chunks = attach(repair(chunk(&items), &mut scratch));
+                    for chunk in &chunks {
+                        builder.mention_asked(chunk);
+                    }
+                    if kind == UtteranceKind::Question {
+                        pending = asks.and_then(|asks| asked(asks, &chunks, focus.is_some()));
                     }
                     continue;
                 }
                 other_kinds.push(kind);
             }
             let items = drop_asides(clean(sentence.items, &mut ignored_raw), &mut ignored_raw);
-            let chunks = attach(repair(chunk(&items), &mut ignored_raw));
+            let mut chunks = repair(chunk(&items), &mut ignored_raw);
+            if let Some(open) = &open {
+                chunks = complete(open, chunks);
+            }
+            let chunks = attach(chunks);
             let mut position = 0;
             while position < chunks.len() {
                 if matches!(chunks[position].kind, ChunkKind::Separator | ChunkKind::And) {
@@ -505,7 +521,7 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     })?;
     match first.tag {
         // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
-        ItemTag::Lexicon(Tag::Question | Tag::Be) => return Some(UtteranceKind::Question),
+        ItemTag::Lexicon(Tag::Question(_) | Tag::Be) => return Some(UtteranceKind::Question),
         ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
         _ => {}
     }

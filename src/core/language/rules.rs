@@ -36,6 +36,10 @@ pub enum Symbol {
     Pointing,
     As,
     And,
+    /// "where" inside a statement (a cleft).
+    Where,
+    /// A bare "left" or "right" ("L: mug, R: lamp").
+    Side,
     Separator,
 }
 
@@ -52,6 +56,8 @@ pub enum Filter {
     Related,
     /// A noun phrase introduced by "a" or "an" ("is a towel").
     Indefinite,
+    /// A noun phrase naming a class, with no deictic word and no zero quantity ("mug", "the mug").
+    Named,
     /// A relation phrase of one relation.
     Relation(Relation),
 }
@@ -90,6 +96,8 @@ pub enum Action {
     /// "Remove the dog", "get rid of it": a class named is absent; a thing pointed at or mentioned before is
     /// not there (whatever it is shown as).
     Remove,
+    /// "L: mug, R: lamp": the thing named after the left side word is left of the one after the right one.
+    Sides,
     /// Words that hold together but state nothing the parser can use ("is in the kitchen" after an unknown
     /// subject): consumed so no part is misread, and reported as not understood.
     Unread,
@@ -111,6 +119,7 @@ impl Action {
             "count" => Action::Count,
             "relation_more" => Action::RelationMore,
             "unread" => Action::Unread,
+            "sides" => Action::Sides,
             _ => return None,
         })
     }
@@ -129,6 +138,7 @@ impl Action {
             Action::Count => (&["number"], &["np", "negated"]),
             Action::RelationMore => (&["landmark"], &["relation", "negated"]),
             Action::Unread => (&[], &[]),
+            Action::Sides => (&["side", "subject", "landmark"], &[]),
         }
     }
 }
@@ -293,6 +303,8 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "AS" => Symbol::As,
             "AND" => Symbol::And,
             "SEP" => Symbol::Separator,
+            "WHERE" => Symbol::Where,
+            "SIDE" => Symbol::Side,
             other => return Err(format!("unknown symbol '{other}'")),
         };
         let filter = match (symbol, filter_name) {
@@ -302,6 +314,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             (Symbol::NounPhrase, Some("counted")) => Some(Filter::Counted),
             (Symbol::NounPhrase, Some("related")) => Some(Filter::Related),
             (Symbol::NounPhrase, Some("indefinite")) => Some(Filter::Indefinite),
+            (Symbol::NounPhrase, Some("named")) => Some(Filter::Named),
             (Symbol::Relation | Symbol::Reciprocal, Some(name)) => {
                 Some(Filter::Relation(parse_relation(name)?))
             }
@@ -330,6 +343,11 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
             ),
             Some(Filter::Related) => !phrase.relations.is_empty(),
             Some(Filter::Indefinite) => phrase.article,
+            Some(Filter::Named) => {
+                phrase.class.is_some()
+                    && phrase.deictic.is_none()
+                    && !matches!(phrase.quantity, Some(Quantity::None | Quantity::Exactly(0)))
+            }
             Some(Filter::Relation(_)) => false,
         },
         (Symbol::Relation, ChunkKind::Relation(relation))
@@ -357,6 +375,8 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
         | (Symbol::Pointing, ChunkKind::Pointing)
         | (Symbol::As, ChunkKind::As)
         | (Symbol::And, ChunkKind::And)
+        | (Symbol::Where, ChunkKind::Where)
+        | (Symbol::Side, ChunkKind::Side(_))
         | (Symbol::Separator, ChunkKind::Separator) => true,
         _ => false,
     }

@@ -3,6 +3,7 @@
 //!
 //! Owns: these reads. Must not: write anything.
 
+use super::super::lookup::{SceneListed, IMAGE_HEAD_BYTES};
 use super::super::store::{parse_stack, ConversationRow, SceneRow};
 use super::super::{ConversationKey, LogError, SceneKey, TurnKey, TurnMark, VersionKey};
 use super::PostgresLog;
@@ -93,6 +94,32 @@ impl PostgresLog {
                 .query("SELECT id FROM scenes ORDER BY id", &[])
                 .await?;
             Ok(rows.iter().map(|row| SceneKey(row.get(0))).collect())
+        })
+    }
+
+    /// Up to `limit` scenes with a key above `after`, ascending, each with the first bytes of its image,
+    /// without sending the image itself.
+    pub fn scene_listing(&self, after: i64, limit: i64) -> Result<Vec<SceneListed>, LogError> {
+        self.run(async {
+            let client = self.pool().get().await?;
+            let head_bytes = IMAGE_HEAD_BYTES as i32;
+            let rows = client
+                .query(
+                    "SELECT s.id, s.name, s.head_version, substring(b.bytes FROM 1 FOR $3)
+                     FROM scenes s JOIN blobs b ON b.hash = s.image_hash
+                     WHERE s.id > $1 ORDER BY s.id LIMIT $2",
+                    &[&after, &limit, &head_bytes],
+                )
+                .await?;
+            Ok(rows
+                .iter()
+                .map(|row| SceneListed {
+                    key: SceneKey(row.get(0)),
+                    name: row.get(1),
+                    head: VersionKey(row.get(2)),
+                    image_head: row.get(3),
+                })
+                .collect())
         })
     }
 

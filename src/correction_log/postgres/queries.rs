@@ -57,11 +57,12 @@ async fn write_turn(
     let head = head_now(client, scene).await?;
     let turn_key: i64 = client
         .query_one(
-            "INSERT INTO turns (conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema)
-             VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11) RETURNING id",
+            "INSERT INTO turns (conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema, answer_json)
+             VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12) RETURNING id",
             &[
                 &turn.conversation.0, &turn.kind, &turn.text, &turn.focus_json, &turn.status,
                 &turn.constraints_json, &turn.result_json, &head, &turn.operator, &now, &LOG_SCHEMA_VERSION,
+                &turn.answer_json,
             ],
         )
         .await?
@@ -473,7 +474,7 @@ impl PostgresLog {
             let client = self.pool().get().await?;
             let rows = client
                 .query(
-                    "SELECT id, conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema
+                    "SELECT id, conversation_id, kind, text, focus_json, status, constraints_json, result_json, scene_version, operator, created_at, row_schema, answer_json
                      FROM turns WHERE conversation_id = $1 ORDER BY id",
                     &[&conversation.0],
                 )
@@ -490,6 +491,7 @@ impl PostgresLog {
                     constraints_json: row.get(6),
                     result_json: row.get(7),
                     scene_version: row.get::<_, Option<i64>>(8).map(VersionKey),
+                    answer_json: row.get(12),
                     operator: row.get(9),
                     created_at: row.get(10),
                     row_schema: row.get(11),

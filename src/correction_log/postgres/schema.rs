@@ -102,6 +102,10 @@ pub(super) const MIGRATIONS: &[&str] = &[
     r#"
     ALTER TABLE training_examples ADD COLUMN confirmed_by TEXT;
     "#,
+    // Version 4: the question a turn answered and the candidate it chose (JSON).
+    r#"
+    ALTER TABLE turns ADD COLUMN answer_json TEXT;
+    "#,
 ];
 
 /// The key of the advisory lock migrations hold (any fixed number; "sayso" in ASCII).

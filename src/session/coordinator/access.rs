@@ -5,11 +5,11 @@
 //! Must not: authenticate anyone (the service's guard does, and hands a `Caller` over) or change any
 //! conversation; it only answers yes or no and lists.
 
-use crate::correction_log::{ConversationKey, SceneKey};
+use crate::correction_log::ConversationKey;
 
 use serde::{Deserialize, Serialize};
 
-use super::{lock, Coordinator};
+use super::{lock, log_error, Coordinator};
 use crate::error::{ErrorKind, SessionError};
 use crate::wire::{ConversationListed, ConversationPage, SceneListed, ScenePage};
 
@@ -121,25 +121,33 @@ impl Coordinator {
         }
     }
 
-    /// One page of the registered scenes, by ascending id.
-    pub fn scenes_page(&self, page: PageRequest) -> ScenePage {
-        let keys = self.scene_ids();
-        let (ids, next_after) = page.cut(keys.iter().map(|key| key.0));
-        let scenes = ids
+    /// One page of the registered scenes, by ascending id, read from the log's scene rows and the first
+    /// bytes of each image (its size); no scene is decoded or held for a listing.
+    pub fn scenes_page(&self, page: PageRequest) -> Result<ScenePage, SessionError> {
+        let rows = lock(&self.log)
+            .scene_listing(page.after, i64::from(page.limit) + 1)
+            .map_err(log_error)?;
+        let (ids, next_after) = page.cut(rows.iter().map(|row| row.key.0));
+        let scenes = rows
             .into_iter()
-            .filter_map(|id| {
-                let slot = self.scene_slot(SceneKey(id)).ok()?;
-                let slot = lock(&slot);
-                Some(SceneListed {
-                    scene_id: id,
-                    name: slot.name.clone(),
-                    version: slot.head.0,
-                    width: slot.input.image.width,
-                    height: slot.input.image.height,
+            .filter(|row| ids.contains(&row.key.0))
+            .map(|row| {
+                let (width, height) = png_size(&row.image_head).ok_or_else(|| {
+                    SessionError::internal(format!(
+                        "stored scene {}'s image does not start as a PNG",
+                        row.key.0
+                    ))
+                })?;
+                Ok(SceneListed {
+                    scene_id: row.key.0,
+                    name: row.name,
+                    version: row.head.0,
+                    width,
+                    height,
                 })
             })
-            .collect();
-        ScenePage { scenes, next_after }
+            .collect::<Result<Vec<_>, SessionError>>()?;
+        Ok(ScenePage { scenes, next_after })
     }
 
     /// One page of the conversations `caller` may read (their own; every one for a supervisor), by id.
@@ -176,9 +184,35 @@ impl Coordinator {
     }
 }
 
+/// A PNG's width and height from its first bytes (signature and IHDR chunk), or `None` if they are not a
+/// PNG's.
+fn png_size(head: &[u8]) -> Option<(u32, u32)> {
+    const SIGNATURE: [u8; 8] = [0x89, b'P', b'N', b'G', 0x0d, 0x0a, 0x1a, 0x0a];
+    if head.len() < 24 || head[..8] != SIGNATURE || &head[12..16] != b"IHDR" {
+        return None;
+    }
+    let number =
+        |at: usize| u32::from_be_bytes([head[at], head[at + 1], head[at + 2], head[at + 3]]);
+    Some((number(16), number(20)))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_pngs_size_is_read_from_its_first_bytes() {
+        let picture = crate::raster::RgbImage {
+            width: 7,
+            height: 3,
+            pixels: vec![[40, 90, 160]; 21],
+        };
+        let png = crate::raster::encode_rgb_png(&picture).unwrap();
+        let head = &png[..crate::correction_log::IMAGE_HEAD_BYTES as usize];
+        assert_eq!(png_size(head), Some((7, 3)));
+        assert_eq!(png_size(&png[..20]), None, "too short");
+        assert_eq!(png_size(b"GIF89a................................"), None);
+    }
 
     #[test]
     fn pages_cut_after_the_cursor_and_point_at_the_next() {

@@ -14,6 +14,7 @@ mod access;
 mod convert;
 mod register;
 mod replica;
+mod scene_cache;
 mod turns;
 mod undo;
 mod versions;
@@ -37,6 +38,7 @@ use crate::wire::{ConversationOut, HealthOut, SceneGraphOut};
 
 pub use access::{Caller, PageRequest, Role, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
 pub use register::SceneUpload;
+pub use scene_cache::SCENE_CACHE_DEFAULT;
 pub use turns::check_utterance_text;
 
 /// How often the background thread checkpoints the log's WAL.
@@ -90,7 +92,8 @@ pub struct Coordinator {
     /// Whether other replicas write to the log too: then every slot is a cache checked at each use
     /// (`replica`).
     shared: bool,
-    scenes: RwLock<HashMap<SceneKey, Arc<Mutex<SceneSlot>>>>,
+    /// The live scenes, a bounded cache over the log (`scene_cache`).
+    scenes: scene_cache::SceneCache,
     conversations: RwLock<HashMap<ConversationKey, Arc<Mutex<ConversationSlot>>>>,
     counters: Arc<TurnCounters>,
     pixel_limit: u64,
@@ -256,8 +259,9 @@ impl Coordinator {
         )
     }
 
-    /// Restores every scene and conversation from an opened log this process owns; on a shared log,
-    /// none (each is read when first asked for).
+    /// Restores every conversation from an opened log this process owns; on a shared log, none (each is
+    /// read when first asked for). Scenes are never read up front: each is read when first asked for
+    /// and held in a bounded cache (`scene_cache`).
     fn restore(
         corrector: Arc<dyn Corrector>,
         log: CorrectionLog,
@@ -266,14 +270,8 @@ impl Coordinator {
         settings: &CoordinatorSettings,
     ) -> Result<Coordinator, OpenError> {
         let shared = log.is_shared();
-        let mut scenes = HashMap::new();
         let mut conversations = HashMap::new();
         if !shared {
-            for row in log.scenes()? {
-                let key = row.key;
-                let slot = replica::load_scene(&log, row)?;
-                scenes.insert(key, Arc::new(Mutex::new(slot)));
-            }
             for row in log.conversations()? {
                 let key = row.key;
                 let slot = replica::load_conversation(&log, row)?;
@@ -286,7 +284,7 @@ impl Coordinator {
             group: GatedCommit(GroupCommit::new()),
             _checkpoints: checkpoints,
             shared,
-            scenes: RwLock::new(scenes),
+            scenes: scene_cache::SceneCache::new(SCENE_CACHE_DEFAULT),
             conversations: RwLock::new(conversations),
             counters: Arc::new(TurnCounters::default()),
             pixel_limit: settings.pixel_limit,
@@ -304,6 +302,18 @@ impl Coordinator {
     ) -> Coordinator {
         self.user_model = Some(model);
         self
+    }
+
+    /// Holds at most `capacity` idle scenes decoded in memory (default `SCENE_CACHE_DEFAULT`); the others
+    /// are read from the log again when asked for.
+    pub fn with_scene_cache(mut self, capacity: usize) -> Coordinator {
+        self.scenes = scene_cache::SceneCache::new(capacity);
+        self
+    }
+
+    /// How many scenes are held decoded in memory now.
+    pub fn scenes_held(&self) -> usize {
+        self.scenes.len()
     }
 
     /// What the coordinator counts as it works (turns, corrections, solver gaps).

@@ -7,7 +7,7 @@
 //! Must not: interpret NPY scores or detections beyond names and bounds; the corrector does that.
 
 use std::path::Path;
-use std::sync::{Arc, Mutex};
+use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
@@ -528,18 +528,15 @@ impl Coordinator {
                 state: &record,
             })
             .map_err(log_error)?;
-        self.scenes
-            .write()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .insert(
-                key,
-                Arc::new(Mutex::new(SceneSlot {
-                    name: name.clone(),
-                    input: Arc::new(input),
-                    head: version,
-                    state,
-                })),
-            );
+        self.scenes.insert(
+            key,
+            SceneSlot {
+                name: name.clone(),
+                input: Arc::new(input),
+                head: version,
+                state,
+            },
+        );
         Ok(SceneCreated {
             scene_id: key.0,
             name,

@@ -103,7 +103,7 @@ pub(super) fn load_conversation(
         applied: row.applied_stack,
         redo: row.redo_stack,
         question,
-        answered: None,
+        answered: super::turns::answer_after(&turns),
         mark,
     })
 }
@@ -116,33 +116,25 @@ fn restore_failed(error: OpenError) -> SessionError {
 }
 
 impl Coordinator {
-    /// The slot of a scene, current with the log.
+    /// The slot of a scene, current with the log: held in the cache, or read from the log and held.
+    /// On a log only this process writes a held slot is current (every write goes through it); a slot
+    /// just read is checked once, as a turn may have moved the head while it was being read.
     pub(crate) fn scene_slot(
         &self,
         scene: SceneKey,
     ) -> Result<Arc<Mutex<SceneSlot>>, SessionError> {
         let unknown = || SessionError::unknown("unknown_scene", "scene", scene.0);
-        let cached = self
-            .scenes
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .get(&scene)
-            .cloned();
-        if !self.shared {
-            return cached.ok_or_else(unknown);
-        }
-        let Some(slot) = cached else {
-            let row = lock(&self.log).scene(scene).map_err(log_error)?;
-            let loaded =
-                load_scene(&lock(&self.log), row.ok_or_else(unknown)?).map_err(restore_failed)?;
-            // Two requests may load the same scene at once: the first one kept is the one everyone uses.
-            return Ok(self
-                .scenes
-                .write()
-                .unwrap_or_else(|poisoned| poisoned.into_inner())
-                .entry(scene)
-                .or_insert_with(|| Arc::new(Mutex::new(loaded)))
-                .clone());
+        let slot = match self.scenes.get(scene) {
+            Some(slot) if !self.shared => return Ok(slot),
+            Some(slot) => slot,
+            None => {
+                let row = lock(&self.log).scene(scene).map_err(log_error)?;
+                let loaded = load_scene(&lock(&self.log), row.ok_or_else(unknown)?)
+                    .map_err(restore_failed)?;
+                // Two requests may load the same scene at once: the first one kept is the one everyone
+                // uses.
+                self.scenes.insert(scene, loaded)
+            }
         };
         {
             let mut copy = lock(&slot);
@@ -200,22 +192,11 @@ impl Coordinator {
         Ok(slot)
     }
 
-    /// Every scene id, ascending: the log's on a shared log, else the ones this process holds.
+    /// Every scene id, ascending, as the log holds them (else, if the log cannot be read, the ones held).
     pub fn scene_ids(&self) -> Vec<SceneKey> {
-        if self.shared {
-            if let Ok(keys) = lock(&self.log).scene_keys() {
-                return keys;
-            }
-        }
-        let mut keys: Vec<SceneKey> = self
-            .scenes
-            .read()
-            .unwrap_or_else(|poisoned| poisoned.into_inner())
-            .keys()
-            .copied()
-            .collect();
-        keys.sort();
-        keys
+        lock(&self.log)
+            .scene_keys()
+            .unwrap_or_else(|_| self.scenes.keys())
     }
 
     /// Every conversation id, ascending: the log's on a shared log, else the ones this process holds.

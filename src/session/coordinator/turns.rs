@@ -115,6 +115,27 @@ pub(crate) fn question_after(turns: &[TurnRow]) -> Option<OpenQuestion> {
     question
 }
 
+/// The last answer to a question a conversation's logged turns made, with the version it made, kept as a
+/// live conversation keeps it: set (or cleared) by every note that applied a change, cleared by an undo.
+/// "No, the other one" uses it only while that version is still the conversation's latest change.
+pub(crate) fn answer_after(turns: &[TurnRow]) -> Option<(VersionKey, Answered)> {
+    let mut answered = None;
+    for turn in turns {
+        match (turn.kind.as_str(), turn.status.as_str()) {
+            ("utterance", "applied") => {
+                answered = turn.scene_version.zip(
+                    turn.answer_json
+                        .as_deref()
+                        .and_then(|text| serde_json::from_str::<Answered>(text).ok()),
+                );
+            }
+            ("undo", _) => answered = None,
+            _ => {}
+        }
+    }
+    answered
+}
+
 /// Checks an utterance's text before any work is done on it.
 pub fn check_utterance_text(text: &str) -> Result<(), SessionError> {
     if text.trim().is_empty() {
@@ -342,6 +363,13 @@ impl Coordinator {
         })
         .to_string();
         let makes_version = matches!(outcome.verdict, Verdict::Applied(_));
+        // What "no, the other one" needs after this turn, kept with it so any replica can read it back.
+        let answer_json = match (&answered, makes_version) {
+            (Some(answered), true) => {
+                Some(serde_json::to_string(answered).map_err(SessionError::internal)?)
+            }
+            _ => None,
+        };
         let redo_after: Vec<VersionKey> = if makes_version {
             Vec::new()
         } else {
@@ -359,6 +387,7 @@ impl Coordinator {
                     status: status_text(status),
                     constraints_json: &constraints_json,
                     result_json: &result_json,
+                    answer_json: answer_json.as_deref(),
                     operator,
                     effect,
                 },
@@ -503,6 +532,7 @@ impl Coordinator {
                     status: status_text(status),
                     constraints_json: "[]",
                     result_json,
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::None,
                 },
@@ -700,6 +730,7 @@ impl Coordinator {
                     status: status_text(TurnStatus::Confirmed),
                     constraints_json: &constraints_json,
                     result_json: &serde_json::json!({ "reason": pending.reason }).to_string(),
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::NewVersion {
                         base: scene.head,
@@ -761,6 +792,7 @@ impl Coordinator {
                     status: status_text(TurnStatus::Rejected),
                     constraints_json: "[]",
                     result_json: "{}",
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::ClearPending,
                 },

@@ -163,6 +163,7 @@ impl Coordinator {
                     status: status_text(step.status),
                     constraints_json: "[]",
                     result_json: "{}",
+                    answer_json: None,
                     operator,
                     effect: TurnEffect::MoveHead {
                         from: scene.head,

@@ -1,0 +1,209 @@
+//! The coordinator's live scenes are a bounded cache over the correction log: memory does not grow with
+//! the number of stored scenes, a start decodes none of them, listing them decodes none, and a scene let
+//! go is read back from the log when asked for, with every change made to it.
+//!
+//! A counting allocator (this test binary's global allocator) measures the heap the coordinator holds
+//! with N scenes stored: with a cache of every scene (what the coordinator did before it was bounded) and
+//! with a cache of a few. The figures are printed (`cargo test --test service_scene_cache -- --nocapture`).
+
+mod service_support;
+
+use std::alloc::{GlobalAlloc, Layout, System};
+use std::path::Path;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::Arc;
+
+use sayso_correction_log::{ConversationKey, SceneKey};
+use sayso_core::raster::IndexImage;
+use sayso_session::{Coordinator, CoordinatorSettings, PageRequest, SceneUpload};
+use sayso_wire::{FocusIn, TurnStatus};
+use service_support::{picture_of, GridEngine};
+
+struct Counting;
+
+static LIVE: AtomicUsize = AtomicUsize::new(0);
+
+unsafe impl GlobalAlloc for Counting {
+    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
+        let pointer = System.alloc(layout);
+        if !pointer.is_null() {
+            LIVE.fetch_add(layout.size(), Ordering::Relaxed);
+        }
+        pointer
+    }
+
+    unsafe fn dealloc(&self, pointer: *mut u8, layout: Layout) {
+        System.dealloc(pointer, layout);
+        LIVE.fetch_sub(layout.size(), Ordering::Relaxed);
+    }
+
+    unsafe fn realloc(&self, pointer: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
+        let moved = System.realloc(pointer, layout, new_size);
+        if !moved.is_null() {
+            if new_size > layout.size() {
+                LIVE.fetch_add(new_size - layout.size(), Ordering::Relaxed);
+            } else {
+                LIVE.fetch_sub(layout.size() - new_size, Ordering::Relaxed);
+            }
+        }
+        moved
+    }
+}
+
+#[global_allocator]
+static ALLOCATOR: Counting = Counting;
+
+/// Scenes stored.
+const STORED: usize = 24;
+/// Idle scenes the bounded cache keeps.
+const KEPT: usize = 3;
+const WIDTH: u32 = 96;
+const HEIGHT: u32 = 64;
+
+fn open(data: &Path, kept: usize, engine: &Arc<GridEngine>) -> Coordinator {
+    Coordinator::open(
+        engine.clone(),
+        &CoordinatorSettings {
+            log_path: data.join("corrections.sqlite"),
+            pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
+            demo_dir: std::path::PathBuf::from("none"),
+        },
+    )
+    .expect("the log opens")
+    .with_scene_cache(kept)
+}
+
+/// Scene `index`'s labels: floor with a band of wall whose height depends on the index, so no two
+/// scenes' images are the same (each is stored and decoded on its own).
+fn labels(index: usize) -> IndexImage {
+    let mut labels = IndexImage::filled(WIDTH, HEIGHT, 0);
+    for y in 0..(index as u32 % HEIGHT) {
+        for x in 0..WIDTH {
+            labels.set(x, y, 1);
+        }
+    }
+    labels
+}
+
+fn register(coordinator: &Coordinator, index: usize) -> SceneKey {
+    let labels = labels(index);
+    let created = coordinator
+        .register_scene(
+            SceneUpload {
+                name: Some(format!("juniper-lane-shelf-{index}")),
+                image_png: Some(sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                label_map_png: Some(sayso_core::raster::encode_index_png(&labels).unwrap()),
+                ..Default::default()
+            },
+            "mira",
+        )
+        .expect("registered");
+    SceneKey(created.scene_id)
+}
+
+/// Live heap bytes now.
+fn live() -> usize {
+    LIVE.load(Ordering::Relaxed)
+}
+
+/// Reads every stored scene's graph (each one decoded, or held), then the heap the coordinator holds
+/// above `before`.
+fn held_after_reading_all(coordinator: &Coordinator, keys: &[SceneKey], before: usize) -> usize {
+    for key in keys {
+        coordinator.scene_graph(*key).expect("the scene reads");
+    }
+    live().saturating_sub(before)
+}
+
+#[test]
+fn memory_does_not_grow_with_the_scenes_stored_and_a_scene_let_go_comes_back_whole() {
+    let data = tempfile::tempdir().unwrap();
+    // One engine for every coordinator, made before any measurement (its taxonomy is not a scene's).
+    let engine = Arc::new(GridEngine::new());
+    let keys: Vec<SceneKey> = {
+        let coordinator = open(data.path(), KEPT, &engine);
+        let keys: Vec<SceneKey> = (0..STORED).map(|i| register(&coordinator, i)).collect();
+        assert!(
+            coordinator.scenes_held() <= KEPT,
+            "registering {STORED} scenes holds {} of them",
+            coordinator.scenes_held()
+        );
+        keys
+    };
+
+    // A cache of every scene: what the coordinator held before it was bounded.
+    let before = live();
+    let every = open(data.path(), STORED, &engine);
+    let held_every = held_after_reading_all(&every, &keys, before);
+    assert_eq!(every.scenes_held(), STORED);
+    drop(every);
+
+    // The bounded cache: a start decodes nothing, a listing decodes nothing, reading all holds a few.
+    let before = live();
+    let bounded = open(data.path(), KEPT, &engine);
+    let held_at_start = live().saturating_sub(before);
+    assert_eq!(bounded.scenes_held(), 0, "no scene is decoded at start");
+    let page = bounded
+        .scenes_page(PageRequest::new(None, Some(200)).unwrap())
+        .expect("the list reads");
+    assert_eq!(page.scenes.len(), STORED);
+    assert_eq!(
+        (page.scenes[5].width, page.scenes[5].height),
+        (WIDTH, HEIGHT),
+        "sizes come from the stored images' headers"
+    );
+    assert_eq!(page.scenes[5].name, "juniper-lane-shelf-5");
+    assert_eq!(bounded.scenes_held(), 0, "a listing decodes no scene");
+    let held_bounded = held_after_reading_all(&bounded, &keys, before);
+    assert_eq!(bounded.scenes_held(), KEPT);
+    let per_scene = held_every / STORED;
+    println!(
+        "{STORED} scenes of {WIDTH}x{HEIGHT} stored: heap held after reading every one: every scene kept \
+         {held_every} bytes, {KEPT} kept {held_bounded} bytes; right after a start {held_at_start} bytes \
+         (before: every scene decoded at start, about {held_every} bytes)"
+    );
+    assert!(
+        held_bounded < (KEPT + 2) * per_scene,
+        "the bounded cache holds {held_bounded} bytes, more than {} scenes' worth ({per_scene} each)",
+        KEPT + 2
+    );
+    assert!(
+        held_at_start < per_scene,
+        "a start holds {held_at_start} bytes, a scene's worth is {per_scene}"
+    );
+
+    // A turn on a scene let go reads it back from the log, and what it changed is there the next time.
+    let first = keys[0];
+    let conversation = ConversationKey(
+        bounded
+            .open_conversation(first, "mira")
+            .expect("opened")
+            .conversation_id,
+    );
+    let reply = bounded
+        .utterance(
+            conversation,
+            "mira",
+            "paint mug",
+            Some(FocusIn::Pixel { x: 3, y: 20 }),
+        )
+        .expect("answered");
+    assert_eq!(reply.status, TurnStatus::Applied);
+    let painted = bounded.label_map_png(first).unwrap();
+    let _ = held_after_reading_all(&bounded, &keys[1..], 0);
+    assert!(
+        bounded.scenes_held() <= KEPT,
+        "the first scene is let go again"
+    );
+    assert_eq!(
+        bounded.label_map_png(first).unwrap(),
+        painted,
+        "read back from the log with its change"
+    );
+    let undone = bounded.undo(conversation, "mira").expect("undone");
+    assert_eq!(undone.status, TurnStatus::Undone);
+    assert_eq!(
+        bounded.label_map_png(first).unwrap(),
+        sayso_core::raster::encode_index_png(&labels(0)).unwrap()
+    );
+}
