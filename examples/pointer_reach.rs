@@ -8,10 +8,10 @@
 //! Owns: nothing the crate uses. Must not: read demo scenes or trial seeds.
 use sayso_core::grounding::pointer::pointed_region_tries;
 use sayso_core::ids::SegmentId;
-use sayso_perception::pipeline::superpixels_of;
 use sayso_core::taxonomy::Taxonomy;
 use sayso_lab::trial::operator::deepest_pixel;
 use sayso_lab::tuning::render_training_scene;
+use sayso_perception::pipeline::superpixels_of;
 
 fn main() -> anyhow::Result<()> {
     let taxonomy = Taxonomy::embedded();

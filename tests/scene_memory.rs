@@ -17,7 +17,9 @@ use std::alloc::{GlobalAlloc, Layout, System};
 use std::sync::atomic::{AtomicUsize, Ordering};
 
 use sayso_core::demo::demo_directory;
-use sayso_perception::pipeline::{load_classifier, model_path, prepare_scene, PreparedScene, SceneSource};
+use sayso_perception::pipeline::{
+    load_classifier, model_path, prepare_scene, PreparedScene, SceneSource,
+};
 
 struct Counting;
 

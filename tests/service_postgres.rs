@@ -212,7 +212,8 @@ fn no_the_other_one_works_on_any_replica_and_after_a_restart() {
     let top_row = |replica: &Coordinator, scene: SceneKey| -> Vec<u16> {
         let png = replica.label_map_png(scene).unwrap();
         let labels =
-            sayso_core::raster::decode_index_png(&png, std::path::Path::new("labels"), 1 << 20).unwrap();
+            sayso_core::raster::decode_index_png(&png, std::path::Path::new("labels"), 1 << 20)
+                .unwrap();
         (0..2).map(|x| labels.get(x, 0)).collect()
     };
     let words = |replica: &Coordinator, conversation: ConversationKey, text: &str| {
@@ -226,7 +227,9 @@ fn no_the_other_one_works_on_any_replica_and_after_a_restart() {
             .register_scene(
                 SceneUpload {
                     name: Some("juniper-lane-sill".into()),
-                    image_png: Some(sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                    image_png: Some(
+                        sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap(),
+                    ),
                     label_map_png: Some(sayso_core::raster::encode_index_png(&labels).unwrap()),
                     ..Default::default()
                 },

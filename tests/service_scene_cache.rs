@@ -13,8 +13,8 @@ use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::Arc;
 
-use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_core::raster::IndexImage;
+use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_session::{Coordinator, CoordinatorSettings, PageRequest, SceneUpload};
 use sayso_wire::{FocusIn, TurnStatus};
 use service_support::{picture_of, GridEngine};
