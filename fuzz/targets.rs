@@ -1,5 +1,5 @@
 //! The fuzz targets' bodies, shared by cargo-fuzz (`fuzz/fuzz_targets/*.rs`, nightly) and the stable
-//! harness `tests/fuzz_corpus.rs` (every target over its committed corpus plus seeded mutations, in
+//! harness `tests/cli/fuzz_corpus.rs` (every target over its committed corpus plus seeded mutations, in
 //! `cargo test`).
 //!
 //! Owns: one function per target, each taking arbitrary bytes into one input reader of sayso: the

@@ -1,4 +1,4 @@
-//! cargo-fuzz target `detections`: the body is `targets::detections` (shared with the stable harness, `tests/fuzz_corpus.rs`).
+//! cargo-fuzz target `detections`: the body is `targets::detections` (shared with the stable harness, `tests/cli/fuzz_corpus.rs`).
 #![no_main]
 
 #[path = "../targets.rs"]

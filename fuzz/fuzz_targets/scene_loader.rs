@@ -1,4 +1,4 @@
-//! cargo-fuzz target `scene_loader`: the body is `targets::scene_loader` (shared with the stable harness, `tests/fuzz_corpus.rs`).
+//! cargo-fuzz target `scene_loader`: the body is `targets::scene_loader` (shared with the stable harness, `tests/cli/fuzz_corpus.rs`).
 #![no_main]
 
 #[path = "../targets.rs"]

@@ -4,7 +4,7 @@
 //! PostgreSQL database at the previous schema is refused until migrated, then migrates with its rows
 //! readable; images are stored once by content hash; the export reads either store.
 
-mod postgres_support;
+use crate::postgres_support;
 
 use std::sync::{Arc, Barrier};
 

@@ -7,8 +7,8 @@
 //! every scene's versions form one linear chain ending at its head, and where each operator points the
 //! scene shows what their last acknowledged (or cut-off) turn made it.
 
-mod postgres_support;
-mod service_support;
+use crate::postgres_support;
+use crate::service_support;
 
 use std::collections::{HashMap, HashSet};
 use std::io::{BufRead, BufReader};

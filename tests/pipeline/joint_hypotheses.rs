@@ -5,7 +5,7 @@
 //! Owns: checks of `sayso_core::hypotheses` through its public API.
 //! Must not: depend on the solver; it only inspects the hypothesis list.
 
-mod common;
+use crate::common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use sayso_core::hypotheses::{

@@ -2,7 +2,7 @@
 //! boxes cannot tell whether the two touch, so `sayso_core::grounding::relation_holds` asks the segment
 //! adjacency graph and the segments' depths.
 
-mod common;
+use crate::common;
 
 use std::sync::Arc;
 

@@ -5,7 +5,7 @@
 //! carries its open question (kept through a note not understood and a restart), so a page reloaded later
 //! can show it again.
 
-mod service_support;
+use crate::service_support;
 
 use std::sync::Arc;
 

@@ -6,8 +6,7 @@
 //! Must not: time anything (benches/joint.rs does), or accept a changed energy function silently: when the
 //! warm start's state no longer has the energy recorded, the energy changed and the fixture must be remade.
 
-#[path = "../benches/support/demo_turns.rs"]
-mod demo_turns;
+use crate::demo_turns;
 
 use sayso_solver::joint::solve_joint;
 

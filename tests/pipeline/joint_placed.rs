@@ -7,7 +7,7 @@
 //! only what the picture shows changed, through the public API.
 //! Must not: depend on the committed models; scenes and unaries are built by hand.
 
-mod common;
+use crate::common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use common::turns::{constraint, turn, Stage};

@@ -1,7 +1,7 @@
 //! Bad input through the router: each case gets the right status and stable error code in the JSON error shape,
 //! and the service still serves the next request.
 
-mod service_support;
+use crate::service_support;
 
 use sayso_core::raster::IndexImage;
 use sayso_session::config::{OperatorToken, ServiceConfig};

@@ -11,11 +11,8 @@
 //! Needs Debian's `chromium` and `chromium-driver` (`.ci/run` installs them); without them it fails and
 //! says so. The scene is the committed demo scene `dining_room_guests` on the real pipeline.
 
-mod service_support;
-#[path = "console/support.rs"]
-mod support;
-#[path = "console/webdriver.rs"]
-mod webdriver;
+use crate::service_support;
+use crate::{console_support as support, webdriver};
 
 use std::net::SocketAddr;
 use std::path::PathBuf;

@@ -2,7 +2,7 @@
 //! a supervisor may act on all and confirmations record who confirmed; lists page; bearer tokens are read
 //! in any letter case and failed logins from one address are throttled; metric labels stay bounded.
 
-mod service_support;
+use crate::service_support;
 
 use std::sync::Arc;
 

@@ -1,7 +1,7 @@
 //! End-to-end through the router (no socket): register, read, converse, confirm, undo, redo, history,
 //! metrics, OpenAPI; then a restart restores everything, and the export and field notes read the log.
 
-mod service_support;
+use crate::service_support;
 
 use sayso_core::raster::{self, IndexImage};
 use sayso_session::config::ServiceConfig;

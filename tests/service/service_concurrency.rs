@@ -1,7 +1,7 @@
 //! Many conversations at once, on different scenes and on the same scene: no update is lost, and every
 //! scene's final labels are exactly the union of the corrections that were acknowledged.
 
-mod service_support;
+use crate::service_support;
 
 use std::collections::HashMap;
 

@@ -2,7 +2,7 @@
 //! corrections; after each restart every acknowledged correction is present and the database passes
 //! `PRAGMA integrity_check`. Several cycles, bounded in time.
 
-mod service_support;
+use crate::service_support;
 
 use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;

@@ -2,7 +2,7 @@
 //!
 //! Owns: checks that the flags reach the library and that failures exit non-zero with a message naming
 //! the fault.
-//! Must not: re-test the library's numbers; the unit tests and tests/unaries_reference.rs do that.
+//! Must not: re-test the library's numbers; the unit tests and tests/pipeline/unaries_reference.rs do that.
 
 use std::path::Path;
 use std::process::Command;

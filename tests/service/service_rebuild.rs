@@ -3,7 +3,7 @@
 //! a service that never stopped lands. Also checks that a version's stored engine state does not grow with
 //! the number of turns before it.
 
-mod service_support;
+use crate::service_support;
 
 use std::path::Path;
 use std::sync::Arc;

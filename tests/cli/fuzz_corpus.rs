@@ -7,8 +7,7 @@
 //! `SAYSO_FUZZ_MUTATIONS` sets the mutations per target (default 400; e.g. 20000 for a longer run). The
 //! cargo-fuzz targets (nightly, coverage-guided) run the same bodies: `DEVELOPERS.md` has the command.
 
-#[path = "../fuzz/targets.rs"]
-mod targets;
+use crate::targets;
 
 use std::path::{Path, PathBuf};
 

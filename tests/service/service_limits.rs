@@ -5,7 +5,7 @@
 //! hyper refuses before the router sees them (malformed, a huge target, too many headers) are answered in
 //! the JSON shape too, and the service still shuts down promptly with idle connections open.
 
-mod service_support;
+use crate::service_support;
 
 use std::io::{Read, Write};
 use std::net::TcpStream;

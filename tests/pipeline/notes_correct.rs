@@ -6,7 +6,7 @@
 //! Owns: those behaviours through `correct` (and the embedded grammar for the wording). Must not: depend on
 //! committed models; scenes and unaries are built by hand (`common::grid_scene`).
 
-mod common;
+use crate::common;
 
 use common::grid_scene::{grid_scene, grid_unaries, Cell};
 use common::turns::{constraint, turn, Stage};

@@ -1,7 +1,7 @@
 //! Scene-graph objects formed from final labels (`sayso_core::scenegraph::objects`): connected groups of equal
 //! labels, split along colour edges (geodesic k-medoids) only where a count says adjacent objects merged.
 
-mod common;
+use crate::common;
 
 use common::grid_scene::{grid_scene, Cell};
 use sayso_core::hypotheses::{hypothesis_id, Hypothesis, HypothesisOrigin};

@@ -1,7 +1,7 @@
 //! `sayso fix` as an operator runs it: files written for a demo scene and a note, clear errors for an unknown
 //! scene and a bad focus.
 //!
-//! Owns: checks on the written files and messages. Must not: check solver internals (tests/joint_correct.rs).
+//! Owns: checks on the written files and messages. Must not: check solver internals (tests/pipeline/joint_correct.rs).
 //! The classifier is a small seeded random network written for the test, so these checks do not depend on a
 //! trained model (they check the plumbing and the files, not the classifier's quality).
 

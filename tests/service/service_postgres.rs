@@ -3,8 +3,8 @@
 //! what it wrote after a restart (read from the stored snapshot, no chain replayed), and `sayso export`
 //! reads the same store.
 
-mod postgres_support;
-mod service_support;
+use crate::postgres_support;
+use crate::service_support;
 
 use std::process::Command;
 use std::sync::Arc;

@@ -186,7 +186,7 @@ fn warm_start_from_perturbed(options: &JointOptions) {
 /// labelling given the hypothesis keeps the door (agreement) and a completion given the labels keeps the
 /// hypotheses (they lower the energy while the labels show a door anyway); the solve, cold or warm, must
 /// still reach the minimum. (The demo-scene version of this trap, which needs the class-removal move, is
-/// in `tests/demo_scenes.rs`.)
+/// in `tests/pipeline/demo_scenes.rs`.)
 #[test]
 fn a_class_held_up_by_its_own_hypothesis_is_dropped_when_the_operator_says_it_is_absent() {
     use sayso_core::energy::{AbsentFactor, HypothesisTerm, JointState};
