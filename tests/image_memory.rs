@@ -7,60 +7,20 @@
 //! over the pixel limit is refused from its header, before any pixel buffer exists. A registration's peak
 //! is bounded per pixel (`REGISTRATION_BYTES_PER_PIXEL`), so the pixel limit bounds every request's peak.
 
-use std::alloc::{GlobalAlloc, Layout, System};
+#[path = "counting/allocator.rs"]
+mod counting;
 use std::path::Path;
-use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex};
 
 use sayso_core::raster::{self, RasterError, RgbImage};
-
-struct Counting;
-
-static LIVE: AtomicUsize = AtomicUsize::new(0);
-static PEAK: AtomicUsize = AtomicUsize::new(0);
-
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
-        let pointer = System.alloc(layout);
-        if !pointer.is_null() {
-            let live = LIVE.fetch_add(layout.size(), Ordering::Relaxed) + layout.size();
-            PEAK.fetch_max(live, Ordering::Relaxed);
-        }
-        pointer
-    }
-
-    unsafe fn dealloc(&self, pointer: *mut u8, layout: Layout) {
-        System.dealloc(pointer, layout);
-        LIVE.fetch_sub(layout.size(), Ordering::Relaxed);
-    }
-
-    unsafe fn realloc(&self, pointer: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
-        let moved = System.realloc(pointer, layout, new_size);
-        if !moved.is_null() {
-            if new_size > layout.size() {
-                let grown = new_size - layout.size();
-                let live = LIVE.fetch_add(grown, Ordering::Relaxed) + grown;
-                PEAK.fetch_max(live, Ordering::Relaxed);
-            } else {
-                LIVE.fetch_sub(layout.size() - new_size, Ordering::Relaxed);
-            }
-        }
-        moved
-    }
-}
-
-#[global_allocator]
-static ALLOCATOR: Counting = Counting;
 
 /// One measurement at a time: the counters are global to the process.
 static MEASURING: Mutex<()> = Mutex::new(());
 
 /// The heap `work` holds at its peak above what was live when it started, in bytes, and its result.
 fn peak_of<T>(work: impl FnOnce() -> T) -> (usize, T) {
-    let start = LIVE.load(Ordering::Relaxed);
-    PEAK.store(start, Ordering::Relaxed);
-    let result = work();
-    (PEAK.load(Ordering::Relaxed) - start, result)
+    let (peak, _, result) = counting::measured(work);
+    (peak, result)
 }
 
 /// A W x H picture with edges and texture (so the PNG is not trivially small).

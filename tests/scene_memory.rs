@@ -10,54 +10,16 @@
 //! and a turn never reads it. The bytes a service keeps of the upload itself are not counted here.
 //! Must not: time anything (the benches do).
 
+#[path = "counting/allocator.rs"]
+mod counting;
 #[path = "../benches/support/demo_turns.rs"]
 mod demo_turns;
 
-use std::alloc::{GlobalAlloc, Layout, System};
-use std::sync::atomic::{AtomicUsize, Ordering};
-
+use counting::measured;
 use sayso_core::demo::demo_directory;
 use sayso_perception::pipeline::{
     load_classifier, model_path, prepare_scene, PreparedScene, SceneSource,
 };
-
-struct Counting;
-
-static LIVE: AtomicUsize = AtomicUsize::new(0);
-static PEAK: AtomicUsize = AtomicUsize::new(0);
-
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
-        let pointer = System.alloc(layout);
-        if !pointer.is_null() {
-            let live = LIVE.fetch_add(layout.size(), Ordering::Relaxed) + layout.size();
-            PEAK.fetch_max(live, Ordering::Relaxed);
-        }
-        pointer
-    }
-
-    unsafe fn dealloc(&self, pointer: *mut u8, layout: Layout) {
-        System.dealloc(pointer, layout);
-        LIVE.fetch_sub(layout.size(), Ordering::Relaxed);
-    }
-
-    unsafe fn realloc(&self, pointer: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
-        let moved = System.realloc(pointer, layout, new_size);
-        if !moved.is_null() {
-            if new_size > layout.size() {
-                let grown = new_size - layout.size();
-                let live = LIVE.fetch_add(grown, Ordering::Relaxed) + grown;
-                PEAK.fetch_max(live, Ordering::Relaxed);
-            } else {
-                LIVE.fetch_sub(layout.size() - new_size, Ordering::Relaxed);
-            }
-        }
-        moved
-    }
-}
-
-#[global_allocator]
-static ALLOCATOR: Counting = Counting;
 
 /// The project's goal for the memory of one live scene (issue 22), in bytes (decimal megabytes).
 const LIVE_SCENE_GOAL: usize = 4_000_000;
@@ -66,16 +28,6 @@ const LIVE_SCENE_GOAL: usize = 4_000_000;
 /// bound, about three and a half times the largest peak measured when it was set (18.4 MB on
 /// office_deadline, 2026-12-05), so a change that multiplies a turn's working memory fails here.
 const TURN_PEAK_BOUND: usize = 64_000_000;
-
-/// The heap `work` holds at its peak above what was live when it started, what it still holds when it
-/// returns (its result included), and its result.
-fn measured<T>(work: impl FnOnce() -> T) -> (usize, isize, T) {
-    let start = LIVE.load(Ordering::Relaxed);
-    PEAK.store(start, Ordering::Relaxed);
-    let result = work();
-    let kept = LIVE.load(Ordering::Relaxed) as isize - start as isize;
-    (PEAK.load(Ordering::Relaxed) - start, kept, result)
-}
 
 fn megabytes(bytes: impl Into<f64>) -> f64 {
     bytes.into() / 1e6

@@ -6,11 +6,11 @@
 //! with N scenes stored: with a cache of every scene (what the coordinator did before it was bounded) and
 //! with a cache of a few. The figures are printed (`cargo test --test service_scene_cache -- --nocapture`).
 
+#[path = "counting/allocator.rs"]
+mod counting;
 mod service_support;
 
-use std::alloc::{GlobalAlloc, Layout, System};
 use std::path::Path;
-use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::Arc;
 
 use sayso_core::raster::IndexImage;
@@ -18,40 +18,6 @@ use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_session::{Coordinator, CoordinatorSettings, PageRequest, SceneUpload};
 use sayso_wire::{FocusIn, TurnStatus};
 use service_support::{picture_of, GridEngine};
-
-struct Counting;
-
-static LIVE: AtomicUsize = AtomicUsize::new(0);
-
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
-        let pointer = System.alloc(layout);
-        if !pointer.is_null() {
-            LIVE.fetch_add(layout.size(), Ordering::Relaxed);
-        }
-        pointer
-    }
-
-    unsafe fn dealloc(&self, pointer: *mut u8, layout: Layout) {
-        System.dealloc(pointer, layout);
-        LIVE.fetch_sub(layout.size(), Ordering::Relaxed);
-    }
-
-    unsafe fn realloc(&self, pointer: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
-        let moved = System.realloc(pointer, layout, new_size);
-        if !moved.is_null() {
-            if new_size > layout.size() {
-                LIVE.fetch_add(new_size - layout.size(), Ordering::Relaxed);
-            } else {
-                LIVE.fetch_sub(layout.size() - new_size, Ordering::Relaxed);
-            }
-        }
-        moved
-    }
-}
-
-#[global_allocator]
-static ALLOCATOR: Counting = Counting;
 
 /// Scenes stored.
 const STORED: usize = 24;
@@ -103,7 +69,7 @@ fn register(coordinator: &Coordinator, index: usize) -> SceneKey {
 
 /// Live heap bytes now.
 fn live() -> usize {
-    LIVE.load(Ordering::Relaxed)
+    counting::live()
 }
 
 /// Reads every stored scene's graph (each one decoded, or held), then the heap the coordinator holds
