@@ -277,6 +277,19 @@ fn version_query(
     }
 }
 
+/// The part the scene reads that take `?version=` share: the scene id from the path, the version from the
+/// query, then `read` on a blocking thread, given the version named or `None` for the version in force.
+async fn read_version<T: Send + 'static>(
+    state: &AppState,
+    scene_id: &str,
+    query: Result<Query<VersionQuery>, QueryRejection>,
+    read: fn(&Coordinator, SceneKey, Option<VersionKey>) -> Result<T, SessionError>,
+) -> Result<T, ApiError> {
+    let scene = SceneKey(path_id(scene_id, "scene")?);
+    let version = version_query(query)?;
+    blocking(state, move |coordinator| read(coordinator, scene, version)).await
+}
+
 /// The scene graph, of the version in force or of the version named. Advisory only.
 #[utoipa::path(get, path = "/v1/scenes/{scene_id}", tag = "scenes", security(("bearer" = [])),
     params(("scene_id" = i64, Path, description = "A scene id from POST /v1/scenes"), VersionQuery),
@@ -288,15 +301,15 @@ pub async fn scene_graph(
     Path(scene_id): Path<String>,
     query: Result<Query<VersionQuery>, QueryRejection>,
 ) -> Response {
-    let result = async {
-        let scene = SceneKey(path_id(&scene_id, "scene")?);
-        let version = version_query(query)?;
-        blocking(&state, move |coordinator| match version {
+    let result = read_version(
+        &state,
+        &scene_id,
+        query,
+        |coordinator, scene, version| match version {
             Some(version) => coordinator.scene_graph_at(scene, version),
             None => coordinator.scene_graph(scene),
-        })
-        .await
-    }
+        },
+    )
     .await;
     answer(result, StatusCode::OK)
 }
@@ -343,15 +356,15 @@ pub async fn label_map(
     Path(scene_id): Path<String>,
     query: Result<Query<VersionQuery>, QueryRejection>,
 ) -> Response {
-    let result = async {
-        let scene = SceneKey(path_id(&scene_id, "scene")?);
-        let version = version_query(query)?;
-        blocking(&state, move |coordinator| match version {
+    let result = read_version(
+        &state,
+        &scene_id,
+        query,
+        |coordinator, scene, version| match version {
             Some(version) => coordinator.label_map_png_at(scene, version),
             None => coordinator.label_map_png(scene),
-        })
-        .await
-    }
+        },
+    )
     .await;
     png_answer(result)
 }
@@ -368,15 +381,15 @@ pub async fn overlay(
     Path(scene_id): Path<String>,
     query: Result<Query<VersionQuery>, QueryRejection>,
 ) -> Response {
-    let result = async {
-        let scene = SceneKey(path_id(&scene_id, "scene")?);
-        let version = version_query(query)?;
-        blocking(&state, move |coordinator| match version {
+    let result = read_version(
+        &state,
+        &scene_id,
+        query,
+        |coordinator, scene, version| match version {
             Some(version) => coordinator.overlay_png_at(scene, version),
             None => coordinator.overlay_png(scene),
-        })
-        .await
-    }
+        },
+    )
     .await;
     png_answer(result)
 }
