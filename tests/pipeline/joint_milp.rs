@@ -15,7 +15,7 @@ struct Instance {
 }
 
 fn instances() -> Vec<Instance> {
-    let text = include_str!("fixtures/joint/instances.jsonl");
+    let text = include_str!("../fixtures/joint/instances.jsonl");
     text.lines()
         .filter(|line| !line.trim().is_empty())
         .map(|line| serde_json::from_str(line).expect("fixture line parses"))
