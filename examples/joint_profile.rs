@@ -3,7 +3,8 @@
 //! `valgrind --tool=callgrind` or `perf` without the scene pipeline in the profile. `turn - REPEATS` runs
 //! every demo turn whole, as the service does; under callgrind, `--collect-atstart=no
 //! --toggle-collect='*correct_turn*'` counts the turns alone (the chain of versions they start from is
-//! built by the same function, so its turns are counted too).
+//! built by the same function, so its turns are counted too). `digest` prints every demo version's energy,
+//! bound, gap and a hash of its JSON, to compare the answers of two builds.
 //!
 //! Owns: nothing the crate uses.
 //! Must not: tune anything; it prints figures for people to read.
@@ -124,6 +125,29 @@ fn main() {
             times.sort_by(f64::total_cmp);
             println!("turns {}, median ms {:.2}", times.len(), times[times.len() / 2]);
         }
+        "digest" => {
+            // Every version of every demo chain: its energy, bound and gap, and a hash of the whole
+            // correction as JSON (graph, changes, unmet, solution), to compare two builds' answers.
+            let settings = demo_turns::settings();
+            let scenes = demo_turns::load_scenes(&settings);
+            for scene in &scenes {
+                let versions = demo_turns::chain(scene, &settings);
+                for (index, version) in versions.iter().enumerate() {
+                    let text = serde_json::to_string(version).expect("json");
+                    // FNV-1a, 64 bits.
+                    let hash = text.bytes().fold(0xcbf2_9ce4_8422_2325u64, |hash, byte| {
+                        (hash ^ byte as u64).wrapping_mul(0x0100_0000_01b3)
+                    });
+                    println!(
+                        "{} {index}: energy {:.6} bound {:.6} gap {:.4} json {hash:016x}",
+                        scene.name,
+                        version.solution.energy,
+                        version.solution.lower_bound,
+                        version.solution.relative_gap
+                    );
+                }
+            }
+        }
         "fixture" => {
             // One JSON line per dumped turn: the energy of its warm start's state (which identifies the
             // energy, whatever solves it) and the full and warm solves' energies.
@@ -151,7 +175,8 @@ fn main() {
             }
         }
         _ => eprintln!(
-            "usage: joint_profile dump DIR | solve DIR REPEATS [full|warm|both] | turn - REPEATS | fixture DIR"
+            "usage: joint_profile dump DIR | solve DIR REPEATS [full|warm|both] | turn - REPEATS | digest | \
+             fixture DIR"
         ),
     }
 }

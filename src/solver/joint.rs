@@ -1,7 +1,8 @@
 //! The joint solver: minimises a `JointEnergy` over segment labels, hypotheses, presence and room type, and
 //! proves how far from the optimum its answer can be.
 //!
-//! Owns: `solve_joint`, its options, warm start and `JointSolution` (state, energy, lower bound, gap).
+//! Owns: `solve_joint` (and `solve_joint_loose` with `tighten_bound`, the same solve with the bound's final
+//! tightening deferred), its options, warm start and `JointSolution` (state, energy, lower bound, gap).
 //! Must not: know about language, files or what classes mean; it reads numbers from `JointEnergy`.
 //!
 //! # Method
@@ -41,6 +42,7 @@ use crate::energy::{EnergyError, JointEnergy, JointState};
 use crate::joint_coupled::{solve_coupled, CoupledInputs, CoupledTables};
 use crate::joint_dual::{
     adapt_multipliers, diffused_dual_bound, dual_value, fresh_multipliers, subgradient_step,
+    BoundInputs,
 };
 use crate::joint_labeller::{candidate_table, widen_to_coarse, Labeller, LabellerTables};
 use crate::joint_moves::{polish, try_class_removals, try_hypothesis_moves};
@@ -413,11 +415,99 @@ pub(crate) fn warm_descent(
     flags
 }
 
-/// Minimises the energy; `warm` starts from a previous solution of the same (or a similar) energy.
+/// Minimises the energy; `warm` starts from a previous solution of the same (or a similar) energy. The
+/// reported lower bound is tightened (`tighten_bound`) before it returns.
 pub fn solve_joint(
     energy: &JointEnergy,
     warm: Option<&WarmStart>,
     options: &JointOptions,
+) -> Result<JointSolution, JointError> {
+    solve(energy, warm, options, true)
+}
+
+/// `solve_joint` without the final tightening of the lower bound on problems too large to polish (the
+/// polishing pass reads the bound, so small problems are tightened either way): the state, energy,
+/// iterations and multipliers are those `solve_joint` returns, the lower bound is the dual loop's, which may
+/// be looser. For a solve whose bound is thrown away (a turn that solves again around the answer) or
+/// tightened later by `tighten_bound`; `tighten_bound` on this solution gives `solve_joint`'s bound.
+pub fn solve_joint_loose(
+    energy: &JointEnergy,
+    warm: Option<&WarmStart>,
+    options: &JointOptions,
+) -> Result<JointSolution, JointError> {
+    solve(energy, warm, options, false)
+}
+
+/// Tightens a solution's lower bound as `solve_joint` does at its end: when the relative gap is above
+/// `TIGHTEN_ABOVE_GAP`, the segment part's bound at the solution's multipliers is tightened by min-sum
+/// diffusion. The bound stays valid for `energy` whatever the solution holds (any multipliers give a valid
+/// bound; ones that do not fit the energy are refitted as a warm start refits them), and never passes the
+/// solution's energy.
+pub fn tighten_bound(
+    energy: &JointEnergy,
+    solution: &mut JointSolution,
+    options: &JointOptions,
+) -> Result<(), JointError> {
+    energy.validate()?;
+    if !needs_tightening(solution.energy, solution.lower_bound, options) {
+        return Ok(());
+    }
+    let folded = energy.folded_unary();
+    let coupled = CoupledTables::new(energy);
+    let mut bound = PottsBound::new(energy.node_count, energy.label_count, &energy.edges);
+    let mut unary = Vec::with_capacity(folded.len());
+    let multipliers = adapt_multipliers(energy, &solution.multipliers);
+    let inputs = BoundInputs {
+        energy,
+        folded: &folded,
+        coupled: &coupled,
+        bound: &mut bound,
+        unary: &mut unary,
+    };
+    let lower_bound = tightened(
+        inputs,
+        &multipliers,
+        solution.energy,
+        solution.lower_bound,
+        options,
+    )
+    .min(solution.energy);
+    solution.lower_bound = lower_bound;
+    solution.relative_gap = gap(solution.energy, lower_bound);
+    Ok(())
+}
+
+/// Whether the final diffusion runs: the gap left is above `TIGHTEN_ABOVE_GAP` (and the tolerance).
+fn needs_tightening(energy_found: f64, lower_bound: f64, options: &JointOptions) -> bool {
+    gap(energy_found, lower_bound) > TIGHTEN_ABOVE_GAP.max(options.gap_tolerance)
+}
+
+/// `lower_bound`, raised by the diffused bound at `multipliers` when `needs_tightening`.
+fn tightened(
+    inputs: BoundInputs,
+    multipliers: &Multipliers,
+    energy_found: f64,
+    lower_bound: f64,
+    options: &JointOptions,
+) -> f64 {
+    if !needs_tightening(energy_found, lower_bound, options) {
+        return lower_bound;
+    }
+    let tighter = diffused_dual_bound(
+        inputs,
+        multipliers,
+        FINAL_SWEEPS,
+        energy_found,
+        TIGHTEN_ABOVE_GAP.max(options.gap_tolerance),
+    );
+    lower_bound.max(tighter)
+}
+
+fn solve(
+    energy: &JointEnergy,
+    warm: Option<&WarmStart>,
+    options: &JointOptions,
+    tighten: bool,
 ) -> Result<JointSolution, JointError> {
     energy.validate()?;
     let unary = energy.folded_unary();
@@ -546,20 +636,17 @@ pub fn solve_joint(
     }
     try_class_removals(&context, &mut workspace, &mut best);
     try_hypothesis_moves(&context, &mut best);
-    if gap(best.energy, lower_bound) > TIGHTEN_ABOVE_GAP.max(options.gap_tolerance) {
-        let tighter = diffused_dual_bound(
-            &context,
-            &mut workspace,
-            &best_multipliers,
-            FINAL_SWEEPS,
-            best.energy,
-            TIGHTEN_ABOVE_GAP.max(options.gap_tolerance),
-        );
-        lower_bound = lower_bound.max(tighter);
+    if tighten || small {
+        let inputs = BoundInputs {
+            energy,
+            folded: &context.unary,
+            coupled: &context.coupled,
+            bound: &mut workspace.bound,
+            unary: &mut workspace.unary,
+        };
+        lower_bound = tightened(inputs, &best_multipliers, best.energy, lower_bound, options);
     }
-    if energy.node_count * label_count <= options.polish_budget
-        && gap(best.energy, lower_bound) > options.gap_tolerance
-    {
+    if small && gap(best.energy, lower_bound) > options.gap_tolerance {
         // Polish the best few distinct states found, not only the best one, and starts from each
         // constant labelling.
         remember(&mut pool, &best);

@@ -3,7 +3,7 @@
 //! Owns: `CoupledTables` (what the step needs from the energy, built once per solve) and minimising every term of the joint energy that does not involve segment-to-segment smoothing, given a
 //! per-hypothesis on/off cost: enumerate room types; enumerate the on/off states of the (few) hypotheses that
 //! tuple factors mention; per class, choose how many of the remaining hypotheses to switch on by sorting their
-//! costs (so count factors are exact).
+//! costs (so count factors are exact). `coupled_value` gives the minimum alone, without the minimiser.
 //! Must not: label segments; it reads segment labels only through the costs and supports it is given.
 
 use crate::energy::{count_violation, JointEnergy};
@@ -297,8 +297,82 @@ impl ClassParts {
     }
 }
 
+/// The search's minimum and where it was found, with the sorted free hypotheses the minimiser is rebuilt
+/// from.
+struct Search {
+    best_value: f64,
+    best_room: usize,
+    best_mask: u64,
+    free_sorted: Vec<usize>,
+    free_deltas: Vec<f64>,
+    free_off: Vec<f64>,
+}
+
+/// The value `solve_coupled` returns, without rebuilding its minimiser (the flags and presence of every
+/// class), for callers that only compare values.
+pub(crate) fn coupled_value(inputs: &CoupledInputs) -> f64 {
+    search(inputs).best_value
+}
+
 /// Minimises the coupled terms exactly (or, with too many enumerated hypotheses, a lower bound of them).
 pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
+    let energy = inputs.energy;
+    let tables = inputs.tables;
+    let enumerated = &tables.enumerated;
+    let position_in_enumerated = &tables.position_in_enumerated;
+    let Search {
+        best_value,
+        best_room,
+        best_mask,
+        free_sorted,
+        free_deltas,
+        free_off,
+    } = search(inputs);
+    let range = |class: usize| tables.free_start[class]..tables.free_start[class + 1];
+    // Rebuild the minimiser.
+    let mut hypotheses_on = vec![false; energy.hypotheses.len()];
+    for (position, &h) in enumerated.iter().enumerate() {
+        hypotheses_on[h] = best_mask >> position & 1 == 1;
+    }
+    let mut presence = vec![false; energy.label_count];
+    for class in 0..energy.label_count {
+        let (mut forced_on, mut forced_cost) = (0usize, 0.0);
+        for &h in &tables.by_class[class] {
+            if position_in_enumerated[h] != usize::MAX {
+                if hypotheses_on[h] {
+                    forced_on += 1;
+                    forced_cost += inputs.cost_on[h];
+                } else {
+                    forced_cost += inputs.cost_off[h];
+                }
+            }
+        }
+        let choice = best_for_class(
+            inputs,
+            tables,
+            class,
+            best_room,
+            forced_on,
+            forced_cost,
+            &free_deltas[range(class)],
+            free_off[class],
+        );
+        for &h in free_sorted[range(class)].iter().take(choice.switched_on) {
+            hypotheses_on[h] = true;
+        }
+        presence[class] = choice.present;
+    }
+    CoupledResult {
+        value: best_value,
+        hypotheses_on,
+        room: best_room as u16,
+        presence,
+        exact: tables.exact,
+    }
+}
+
+/// The search over rooms and enumerated flags for the least value (see `solve_coupled`).
+fn search(inputs: &CoupledInputs) -> Search {
     let energy = inputs.energy;
     let tables = inputs.tables;
     let enumerated = &tables.enumerated;
@@ -411,46 +485,13 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
             }
         }
     }
-
-    // Rebuild the minimiser.
-    let mut hypotheses_on = vec![false; energy.hypotheses.len()];
-    for (position, &h) in enumerated.iter().enumerate() {
-        hypotheses_on[h] = best_mask >> position & 1 == 1;
-    }
-    let mut presence = vec![false; energy.label_count];
-    for class in 0..energy.label_count {
-        let (mut forced_on, mut forced_cost) = (0usize, 0.0);
-        for &h in &tables.by_class[class] {
-            if position_in_enumerated[h] != usize::MAX {
-                if hypotheses_on[h] {
-                    forced_on += 1;
-                    forced_cost += inputs.cost_on[h];
-                } else {
-                    forced_cost += inputs.cost_off[h];
-                }
-            }
-        }
-        let choice = best_for_class(
-            inputs,
-            tables,
-            class,
-            best_room,
-            forced_on,
-            forced_cost,
-            &free_deltas[range(class)],
-            free_off[class],
-        );
-        for &h in free_sorted[range(class)].iter().take(choice.switched_on) {
-            hypotheses_on[h] = true;
-        }
-        presence[class] = choice.present;
-    }
-    CoupledResult {
-        value: best_value,
-        hypotheses_on,
-        room: best_room as u16,
-        presence,
-        exact,
+    Search {
+        best_value,
+        best_room,
+        best_mask,
+        free_sorted,
+        free_deltas,
+        free_off,
     }
 }
 
@@ -566,7 +607,8 @@ mod tests {
     }
 
     proptest::proptest! {
-        /// The step's minimum over rooms and flags is the brute-force minimum, and its minimiser attains it.
+        /// The step's minimum over rooms and flags is the brute-force minimum, and its minimiser attains it;
+        /// `coupled_value` gives the same minimum.
         #[test]
         fn coupled_step_matches_brute_force(
             labels in 2usize..5,
@@ -606,6 +648,8 @@ mod tests {
                 relaxed_presence: relaxed,
             };
             let result = solve_coupled(&inputs);
+            // The value alone is the same search's, to the bit.
+            proptest::prop_assert_eq!(super::coupled_value(&inputs).to_bits(), result.value.to_bits());
             let mut minimum = f64::INFINITY;
             for room in 0..rooms {
                 for mask in 0u32..1 << hypotheses {

@@ -9,7 +9,8 @@
 
 use crate::energy::JointEnergy;
 use crate::joint::{Context, Multipliers, PresenceMultiplier, Workspace};
-use crate::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult};
+use crate::joint_coupled::{solve_coupled, CoupledInputs, CoupledResult, CoupledTables};
+use crate::potts_bound::PottsBound;
 
 pub(crate) fn fresh_multipliers(energy: &JointEnergy) -> Multipliers {
     Multipliers {
@@ -55,13 +56,17 @@ pub(crate) struct DualValue {
     copies: Vec<Vec<bool>>,
 }
 
-/// The segment part's unaries shifted by the multipliers, written into `workspace.unary`.
-fn shift_unary(context: &Context, workspace: &mut Workspace, multipliers: &Multipliers) {
-    let energy = context.energy;
+/// The segment part's unaries (`folded`, the energy's unaries with unary factors folded in) shifted by the
+/// multipliers, written into `unary`.
+fn shift_unary(
+    energy: &JointEnergy,
+    folded: &[f64],
+    unary: &mut Vec<f64>,
+    multipliers: &Multipliers,
+) {
     let label_count = energy.label_count;
-    let unary = &mut workspace.unary;
     unary.clear();
-    unary.extend_from_slice(&context.unary);
+    unary.extend_from_slice(folded);
     for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
         for (m, &s) in hypothesis.members.iter().enumerate() {
             unary[s as usize * label_count + hypothesis.class as usize] -=
@@ -74,8 +79,11 @@ fn shift_unary(context: &Context, workspace: &mut Workspace, multipliers: &Multi
 }
 
 /// The coupled part's exact minimum at the multipliers (presence relaxed).
-fn coupled_minimum(context: &Context, multipliers: &Multipliers) -> CoupledResult {
-    let energy = context.energy;
+fn coupled_minimum(
+    energy: &JointEnergy,
+    tables: &CoupledTables,
+    multipliers: &Multipliers,
+) -> CoupledResult {
     let label_count = energy.label_count;
     let mut cost_on = Vec::with_capacity(energy.hypotheses.len());
     let mut cost_off = Vec::with_capacity(energy.hypotheses.len());
@@ -93,7 +101,7 @@ fn coupled_minimum(context: &Context, multipliers: &Multipliers) -> CoupledResul
     let no_support = vec![false; label_count];
     solve_coupled(&CoupledInputs {
         energy,
-        tables: &context.coupled,
+        tables,
         cost_on: &cost_on,
         cost_off: &cost_off,
         presence_adjust: &adjust,
@@ -102,26 +110,34 @@ fn coupled_minimum(context: &Context, multipliers: &Multipliers) -> CoupledResul
     })
 }
 
+/// What the diffused bound reads: the energy, its folded unaries (`JointEnergy::folded_unary`) and the
+/// coupled step's tables, with the bound's and the shifted unaries' scratch.
+pub(crate) struct BoundInputs<'a> {
+    pub(crate) energy: &'a JointEnergy,
+    pub(crate) folded: &'a [f64],
+    pub(crate) coupled: &'a CoupledTables,
+    pub(crate) bound: &'a mut PottsBound,
+    pub(crate) unary: &'a mut Vec<f64>,
+}
+
 /// The dual function at `multipliers` with the segment part bounded by `sweeps` sweeps of min-sum
 /// diffusion (`PottsBound::diffused`) instead of the even split: a tighter valid bound, too costly for
 /// every iteration of the loop, taken once at the best multipliers. The sweeps stop early once they close
 /// little of the gap to `energy_found`, the energy of a state the caller holds, or once the relative gap
 /// to it (as `crate::joint` reports it) is at most `close_gap`.
 pub(crate) fn diffused_dual_bound(
-    context: &Context,
-    workspace: &mut Workspace,
+    inputs: BoundInputs,
     multipliers: &Multipliers,
     sweeps: usize,
     energy_found: f64,
     close_gap: f64,
 ) -> f64 {
-    shift_unary(context, workspace, multipliers);
-    let coupled = coupled_minimum(context, multipliers).value;
+    shift_unary(inputs.energy, inputs.folded, inputs.unary, multipliers);
+    let coupled = coupled_minimum(inputs.energy, inputs.coupled, multipliers).value;
     let enough = energy_found - close_gap * energy_found.abs().max(1.0) - coupled;
-    let segment_bound =
-        workspace
-            .bound
-            .diffused(&workspace.unary, sweeps, energy_found - coupled, enough);
+    let segment_bound = inputs
+        .bound
+        .diffused(inputs.unary, sweeps, energy_found - coupled, enough);
     segment_bound + coupled
 }
 
@@ -133,10 +149,10 @@ pub(crate) fn dual_value(
     start: &[u16],
 ) -> DualValue {
     let energy = context.energy;
-    shift_unary(context, workspace, multipliers);
+    shift_unary(energy, &context.unary, &mut workspace.unary, multipliers);
     let segment_bound = workspace.bound.bound(&workspace.unary);
     let segment_labels = workspace.dual.label(&workspace.unary, start).to_vec();
-    let coupled = coupled_minimum(context, multipliers);
+    let coupled = coupled_minimum(energy, &context.coupled, multipliers);
     let copies = energy
         .hypotheses
         .iter()

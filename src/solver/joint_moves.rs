@@ -9,7 +9,7 @@
 //! the classes mean.
 
 use crate::joint::{keep_better, warm_descent, Candidate, Context, Workspace};
-use crate::joint_coupled::{solve_coupled, CoupledInputs};
+use crate::joint_coupled::{coupled_value, CoupledInputs};
 
 /// A move is completed exactly only when its screened energy is this far below the best one; rounding in
 /// the screened sum is far smaller.
@@ -107,7 +107,7 @@ impl MoveScorer {
     }
 
     fn coupled_value(&self, context: &Context) -> f64 {
-        solve_coupled(&CoupledInputs {
+        coupled_value(&CoupledInputs {
             energy: context.energy,
             tables: &context.coupled,
             cost_on: &self.cost_on,
@@ -116,7 +116,6 @@ impl MoveScorer {
             segment_support: &self.segment_support,
             relaxed_presence: false,
         })
-        .value
     }
 
     /// The energy `Context::complete` would give `labels`, which differ from `base` only at `changed` (fine

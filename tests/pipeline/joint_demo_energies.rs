@@ -2,13 +2,14 @@
 //! scenes, solved from nothing and from the parent version, reaches the energy the solver of the commit
 //! named in `tests/fixtures/joint_energies/demo_turns.json` reached, or a lower one.
 //!
-//! Owns: the before/after comparison of solved energies on the demo scenes.
+//! Owns: the before/after comparison of solved energies on the demo scenes, and that a loose solve
+//! tightened afterwards (`solve_joint_loose`, `tighten_bound`) is `solve_joint`'s solution.
 //! Must not: time anything (benches/joint.rs does), or accept a changed energy function silently: when the
 //! warm start's state no longer has the energy recorded, the energy changed and the fixture must be remade.
 
 use crate::demo_turns;
 
-use sayso_solver::joint::solve_joint;
+use sayso_solver::joint::{solve_joint, solve_joint_loose, tighten_bound};
 
 /// The fixture's solved energies are printed to six decimals.
 const PRINTED: f64 = 1e-6;
@@ -49,6 +50,23 @@ fn demo_turn_energies_are_the_same_or_lower() {
             let options = &settings.options;
             let full = solve_joint(&energy.energy, None, options).expect("solves");
             let warm = solve_joint(&energy.energy, Some(&energy.warm), options).expect("solves");
+            // A turn solves loose and tightens its answer's bound once: the same solution, bit for bit.
+            for (what, start, whole) in [("full", None, &full), ("warm", Some(&energy.warm), &warm)]
+            {
+                let mut loose = solve_joint_loose(&energy.energy, start, options).expect("solves");
+                assert!(
+                    loose.lower_bound <= whole.lower_bound,
+                    "{name}: {what} loose bound {} above the tightened {}",
+                    loose.lower_bound,
+                    whole.lower_bound
+                );
+                tighten_bound(&energy.energy, &mut loose, options).expect("tightens");
+                assert_eq!(
+                    serde_json::to_string(&loose).expect("json"),
+                    serde_json::to_string(whole).expect("json"),
+                    "{name}: {what} loose solve tightened afterwards differs from solve_joint"
+                );
+            }
             for (what, solved, before) in [
                 ("full", &full, number("full_before")),
                 ("warm", &warm, number("warm_before")),

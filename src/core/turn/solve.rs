@@ -29,7 +29,9 @@ use crate::scenegraph::instances::InstanceCuts;
 use crate::scenegraph::locality::{stray_factors, Concern};
 use crate::scenegraph::supersede::retire_superseded;
 use crate::scenegraph::{build_scene_graph, SceneGraph, SolvedFigures};
-use crate::solver::joint::{solve_joint, JointError, JointOptions, JointSolution, WarmStart};
+use crate::solver::joint::{
+    solve_joint_loose, tighten_bound, JointError, JointOptions, JointSolution, WarmStart,
+};
 use crate::taxonomy::{ClassGroup, Taxonomy};
 use crate::unaries::Unaries;
 
@@ -243,7 +245,10 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     }
 
     let mut built = build_energy(&energy_inputs(request, &hypotheses, &accepted, &in_force))?;
-    let mut solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
+    let mut solution = solve_joint_loose(&built.energy, warm.as_ref(), request.options)?;
+    // The scene graph of `solution` with the counts and caps in force, while both stand: a turn builds
+    // it once where nothing changed between the checks that read it and the answer.
+    let mut latest_graph: Option<SceneGraph> = None;
     let mut counted = counted_classes(&in_force);
     let mut caps = capped_classes(&in_force);
     if !request.confirm_safety {
@@ -256,13 +261,15 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         // many loses its label and the scene is solved again around it (`crate::scenegraph::capped`).
         let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
         let surplus = surplus_factors(scene, &graph, &caps);
+        latest_graph = Some(graph);
         if !surplus.is_empty() {
+            latest_graph = None;
             built.energy.unary_factors.extend(surplus);
             let start = WarmStart {
                 state: solution.state.clone(),
                 multipliers: None,
             };
-            solution = solve_joint(&built.energy, Some(&start), request.options)?;
+            solution = solve_joint_loose(&built.energy, Some(&start), request.options)?;
         }
     }
     // Put back what moved between labels no note concerns (`crate::scenegraph::locality`), and solve once more.
@@ -276,12 +283,13 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     ) {
         let strays = stray_factors(&concern, &before_state.labels, &solution.state.labels);
         if !strays.is_empty() {
+            latest_graph = None;
             built.energy.unary_factors.extend(strays);
             let start = WarmStart {
                 state: solution.state.clone(),
                 multipliers: None,
             };
-            solution = solve_joint(&built.energy, Some(&start), request.options)?;
+            solution = solve_joint_loose(&built.energy, Some(&start), request.options)?;
         }
     }
     // A count or presence of this turn the picture still does not show is withdrawn: the turn is solved again
@@ -293,15 +301,17 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         &in_force,
         offset,
         (&counted, &caps),
+        &mut latest_graph,
     );
     // Withdrawn constraints leave the constraints in force: they neither join parts nor come back next turn.
     let mut withdrawn_counts: Vec<GroundedConstraint> = Vec::new();
     if !withdrawn.is_empty() {
+        latest_graph = None;
         let gone = |source: Option<usize>| source.is_some_and(|s| withdrawn.contains(&s));
         built.energy.count_factors.retain(|f| !gone(f.source));
         built.energy.unary_factors.retain(|f| !gone(f.source));
         built.energy.tuple_factors.retain(|f| !gone(f.source));
-        solution = solve_joint(&built.energy, warm.as_ref(), request.options)?;
+        solution = solve_joint_loose(&built.energy, warm.as_ref(), request.options)?;
         withdrawn_counts = in_force
             .iter()
             .filter(|g| withdrawn.contains(&g.constraint))
@@ -383,7 +393,8 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
             state: solution.state.clone(),
             multipliers: None,
         };
-        solution = solve_joint(&energy, Some(&start), request.options)?;
+        latest_graph = None;
+        solution = solve_joint_loose(&energy, Some(&start), request.options)?;
         let applied = list_changes(
             &energy,
             taxonomy,
@@ -440,7 +451,17 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         }
     }
     unmet.sort_by_key(|u| u.constraint);
-    let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
+    // Every solve of the turn left its bound as the dual loop had it; the answer's is tightened once here.
+    tighten_bound(&energy, &mut solution, request.options)?;
+    let graph = match latest_graph {
+        Some(mut graph) => {
+            graph.energy = solution.energy;
+            graph.lower_bound = solution.lower_bound;
+            graph.relative_gap = solution.relative_gap;
+            graph
+        }
+        None => graph_of(request, &built.hypotheses, &solution, (&counted, &caps)),
+    };
     let mut surplus_questions: Vec<ClarifyingQuestion> = Vec::new();
     // A count the energy meets with a hypothesis switched on but not drawn is not met in the picture the
     // operator gets back: the scene graph's objects decide.
@@ -512,7 +533,8 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
 }
 
 /// The counts and presences of this turn (constraint index `first` on) that the scene graph of `solution`
-/// does not show.
+/// does not show. `graph` holds that scene graph when the caller has it; when it is built here it is left
+/// there for the caller.
 fn unmet_counts(
     request: &SolveRequest,
     hypotheses: &[Hypothesis],
@@ -520,6 +542,7 @@ fn unmet_counts(
     in_force: &[GroundedConstraint],
     first: usize,
     (counted, caps): (&[(ClassId, u32)], &[Cap]),
+    graph: &mut Option<SceneGraph>,
 ) -> Vec<usize> {
     let asks: Vec<(usize, ClassId, Count)> = in_force
         .iter()
@@ -535,7 +558,8 @@ fn unmet_counts(
     if asks.is_empty() {
         return Vec::new();
     }
-    let graph = graph_of(request, hypotheses, solution, (counted, caps));
+    let graph =
+        graph.get_or_insert_with(|| graph_of(request, hypotheses, solution, (counted, caps)));
     asks.into_iter()
         .filter(|&(_, class, count)| {
             let shown = graph.objects.iter().filter(|o| o.class == class).count();
@@ -646,7 +670,7 @@ fn baseline(
     options: &JointOptions,
 ) -> Result<(JointState, Vec<Hypothesis>, Option<WarmStart>), CorrectionError> {
     let built = build_energy(inputs)?;
-    let solution = solve_joint(&built.energy, None, options)?;
+    let solution = solve_joint_loose(&built.energy, None, options)?;
     let warm = WarmStart {
         state: solution.state.clone(),
         multipliers: Some(solution.multipliers.clone()),
