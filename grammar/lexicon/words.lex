@@ -533,6 +533,8 @@ would you -> request
 will you -> request
 bring -> request
 fetch -> request
+come -> request
+come back -> request
 go -> request
 move -> request
 pick up -> request
@@ -554,6 +556,8 @@ drop -> request
 check -> request
 wait here -> request
 can you see -> question
+can you tell me -> question
+could you tell me -> question
 do you see -> question
 let's -> request
 what -> question thing
@@ -572,9 +576,10 @@ thanks -> thanks
 thank you -> thanks
 cheers -> thanks
 ta -> thanks
-well done -> thanks
-good job -> thanks
-nice work -> thanks
+# Praise is chit-chat, not thanks.
+well done -> greeting
+good job -> greeting
+nice work -> greeting
 hello -> greeting
 exactly right -> greeting
 all good -> greeting

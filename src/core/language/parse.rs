@@ -510,15 +510,20 @@ fn is_absence(kind: &ConstraintKind) -> bool {
 
 /// Classifies a sentence that is not a correction by its cue words; `None` means "read it for constraints".
 fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<UtteranceKind> {
-    if question_mark {
-        return Some(UtteranceKind::Question);
-    }
     let first = items.iter().find(|item| {
         !matches!(
             item.tag,
             ItemTag::Pause | ItemTag::Lexicon(Tag::Filler) | ItemTag::Lexicon(Tag::Skip)
         )
-    })?;
+    });
+    // "Could you check under the sofa?": a request put as a question is still a request.
+    if question_mark {
+        return Some(match first.map(|item| item.tag) {
+            Some(ItemTag::Lexicon(Tag::Request)) => UtteranceKind::Request,
+            _ => UtteranceKind::Question,
+        });
+    }
+    let first = first?;
     match first.tag {
         // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
         ItemTag::Lexicon(Tag::Question(_) | Tag::Be) => return Some(UtteranceKind::Question),

@@ -117,7 +117,9 @@ fn rewrite(
                     })
                 )
             });
-            if let Some(head) = head {
+            // "x6 remotes": opening the clause, the count stays where it is, before the noun.
+            let position = head.or_else(|| (clause_start == words.len()).then_some(words.len()));
+            if let Some(head) = position {
                 words.insert(
                     head,
                     Word {
@@ -160,9 +162,10 @@ fn rewrite(
             .take_while(|token| token.shape == TokenShape::Word)
             .map(|token| token.text.as_str())
             .collect();
+        // A colon is a pause, but a rewrite may name it as the word before ("fridge: yes").
         let previous = words
             .last()
-            .filter(|word| word.shape == TokenShape::Word)
+            .filter(|word| word.shape == TokenShape::Word || word.text == ":")
             .map(|word| word.text.as_str());
         if let Some((length, replacement)) = lexicon.longest_rewrite(&window, previous) {
             let span = tokens[index].span.cover(tokens[index + length - 1].span);
@@ -277,6 +280,18 @@ pub fn tag_sentences(
                 text: window[..found.words].join(" "),
                 misspelled: false,
             };
+            if let Tag::Class {
+                class,
+                plural: true,
+            } = found.tag
+            {
+                if lexicon.names_one_thing(&item.text) {
+                    item.tag = ItemTag::Lexicon(Tag::Class {
+                        class,
+                        plural: false,
+                    });
+                }
+            }
             index += found.words;
             // "forty two", "forty-two": a tens word and a unit word make one number.
             if let Tag::Tens(tens) = found.tag {

@@ -158,14 +158,14 @@ fn print_figures(title: &str, result: &Score) {
 
 /// Per-style floors on the development file: what the parser reached when the floors were last raised
 /// (a regression fails the test).
-/// Measured 2026-12-04 after the normalisation stage: 163, 121, 133, 157, 147 and 156 of 167 lines.
+/// Measured 2026-12-05 (session 4): 167, 160, 149, 165, 163 and 167 of 167 lines (971/1002).
 const DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 97.5),
-    ("field_note", 72.0),
-    ("hard", 79.5),
-    ("not_a_correction", 93.5),
-    ("speech", 87.5),
-    ("typed_tidy", 93.0),
+    ("asr_slip", 99.5),
+    ("field_note", 95.5),
+    ("hard", 89.0),
+    ("not_a_correction", 98.5),
+    ("speech", 97.5),
+    ("typed_tidy", 99.5),
 ];
 
 #[test]
@@ -196,13 +196,13 @@ fn development_styles_recall_per_style() {
     assert!(result.spurious_constraints <= DEV_MAX_SPURIOUS);
 }
 
-const DEV_MAX_SPURIOUS: usize = 2;
+const DEV_MAX_SPURIOUS: usize = 0;
 
-/// Held-out floors at the measured figures (428/498 = 85.9%, one unasked relabel, five constraints from
-/// non-corrections); the goals of zero are not reached yet.
-const HELDOUT_FLOOR: f64 = 85.5;
+/// Held-out floors at the measured figures (2026-12-05, session 4: 454/498 = 91.2%, one unasked relabel, two
+/// constraints from non-corrections); the goals of zero are not reached yet.
+const HELDOUT_FLOOR: f64 = 91.0;
 const HELDOUT_MAX_UNASKED_RELABELS: usize = 1;
-const HELDOUT_MAX_SPURIOUS: usize = 5;
+const HELDOUT_MAX_SPURIOUS: usize = 2;
 
 /// The held-out file is run for its figures only; its lines are never printed.
 #[test]
