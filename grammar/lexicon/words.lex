@@ -407,6 +407,18 @@ hmm -> filler
 ah -> filler
 oh -> filler
 like -> filler
+# "On like the left", "is like next to": the filler goes before phrases are matched, so it splits none.
+on like = on
+in like = in
+at like = at
+to like = to
+of like = of
+by like = by
+is like = is
+are like = are
+under like = under
+behind like = behind
+between like = between
 you know -> filler
 well -> filler
 so -> filler

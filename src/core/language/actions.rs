@@ -497,6 +497,34 @@ impl Builder {
                     misspelled,
                 );
             }
+            Action::RelationSame => {
+                // "The dog is on the rug, and so is the cat": the last relation, of a new subject; never
+                // after a denied one.
+                let last_denied = self.constraints.iter().rev().find_map(|c| match &c.kind {
+                    ConstraintKind::Relation { negated, .. } => Some(*negated),
+                    _ => None,
+                });
+                let (Some(subject), Some((_, relation, landmarks)), Some(false)) = (
+                    first_phrase("subject"),
+                    self.last_relation.clone(),
+                    last_denied,
+                ) else {
+                    return;
+                };
+                self.count_of_subject(&subject, span, misspelled);
+                let subject = self.referent(&subject);
+                self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
+                self.push(
+                    ConstraintKind::Relation {
+                        subject,
+                        relation,
+                        negated: false,
+                        landmarks,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
             Action::Unread => {}
             Action::Sides => {
                 // "L: mug, R: lamp": the first thing is left of the second, "R: lamp, L: mug" the same

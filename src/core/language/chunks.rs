@@ -501,10 +501,14 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                 index = from;
             }
             _ => {
-                // "No the box is not in front of the sofa": "no" opening a sentence before a noun phrase
-                // with no quantity of its own answers what came before; it does not count the noun.
-                let opens_sentence =
-                    index == 0 || matches!(chunks[index - 1].kind, ChunkKind::Separator);
+                // "No the box is not in front of the sofa", "and no the microwave is ...": "no" opening a
+                // sentence or clause before a noun phrase with no quantity of its own answers what came
+                // before; it does not count the noun.
+                let opens_sentence = index == 0
+                    || matches!(
+                        chunks[index - 1].kind,
+                        ChunkKind::Separator | ChunkKind::And
+                    );
                 let before_plain_phrase = next.is_some_and(|j| {
                     matches!(&chunks[j].kind, ChunkKind::NounPhrase(phrase)
                         if phrase.quantity.is_none() && (phrase.class.is_some() || phrase.deictic.is_some()))

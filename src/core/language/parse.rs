@@ -341,8 +341,24 @@ impl Grammar {
             let chunks = attach(chunks);
             let mut position = 0;
             while position < chunks.len() {
-                if matches!(chunks[position].kind, ChunkKind::Separator | ChunkKind::And) {
+                if chunks[position].kind == ChunkKind::Separator {
                     position += 1;
+                    continue;
+                }
+                // "And" joins clauses; only a rule that opens with it ("and so is the cat") reads it.
+                if chunks[position].kind == ChunkKind::And {
+                    match best_match(&self.rules, &chunks, position)
+                        .filter(|found| found.rule.opens_with_and())
+                    {
+                        Some(found) => {
+                            builder.apply(&found, &chunks, position);
+                            for chunk in &chunks[position..position + found.length] {
+                                builder.mention(chunk, true);
+                            }
+                            position += found.length;
+                        }
+                        None => position += 1,
+                    }
                     continue;
                 }
                 match best_match(&self.rules, &chunks, position) {

@@ -101,6 +101,8 @@ pub enum Action {
     Count,
     /// A further relation of the last relation's subject: ", not on the table", "and left of the lamp".
     RelationMore,
+    /// "And so is the cat": the last relation stated of a new subject.
+    RelationSame,
     /// "Remove the dog", "get rid of it": a class named is absent; a thing pointed at or mentioned before is
     /// not there (whatever it is shown as).
     Remove,
@@ -126,6 +128,7 @@ impl Action {
             "have" => Action::Have,
             "count" => Action::Count,
             "relation_more" => Action::RelationMore,
+            "relation_same" => Action::RelationSame,
             "unread" => Action::Unread,
             "sides" => Action::Sides,
             _ => return None,
@@ -145,6 +148,7 @@ impl Action {
             Action::Have => (&["owner", "np"], &["negated"]),
             Action::Count => (&["number"], &["np", "negated", "denied"]),
             Action::RelationMore => (&["landmark"], &["relation", "negated"]),
+            Action::RelationSame => (&["subject"], &[]),
             Action::Unread => (&[], &[]),
             Action::Sides => (&["side", "subject", "landmark"], &[]),
         }
@@ -157,6 +161,19 @@ pub struct Rule {
     pub name: String,
     pub items: Vec<PatternItem>,
     pub action: Action,
+}
+
+impl Rule {
+    /// Whether the rule's first item can only be "and" (such a rule may start at an "and").
+    pub fn opens_with_and(&self) -> bool {
+        self.items.first().is_some_and(|item| {
+            !item.optional
+                && item
+                    .alternatives
+                    .iter()
+                    .all(|alternative| alternative.symbol == Symbol::And)
+        })
+    }
 }
 
 /// A successful match: the rule, how many chunks it covers, and which chunk filled each role.

@@ -169,6 +169,20 @@ fn rewrite(
             .map(|word| word.text.as_str());
         if let Some((length, replacement)) = lexicon.longest_rewrite(&window, previous) {
             let span = tokens[index].span.cover(tokens[index + length - 1].span);
+            // "box betw. bed and desk": a period glued to a clipped relation word, with words after it,
+            // marks the clipping; a relation never ends a note.
+            let words_of: Vec<&str> = replacement.iter().map(String::as_str).collect();
+            let is_relation = matches!(
+                lexicon.longest_phrase(&words_of),
+                Some(super::lexicon::Found { tag: Tag::Relation(_), words }) if words == words_of.len()
+            );
+            let clipped = is_relation
+                && tokens.get(index + length).is_some_and(|dot| {
+                    dot.text == "." && dot.span.start == tokens[index + length - 1].span.end
+                })
+                && tokens
+                    .get(index + length + 1)
+                    .is_some_and(|next| next.shape == TokenShape::Word);
             for text in replacement {
                 // A rewrite to punctuation ("/ = ;") separates clauses like the punctuation itself.
                 let shape = match text.as_str() {
@@ -183,7 +197,7 @@ fn rewrite(
                     fragment: false,
                 });
             }
-            index += length;
+            index += length + usize::from(clipped);
             continue;
         }
         if let Some(stem) = token.text.strip_suffix("'s") {
