@@ -5,7 +5,7 @@
 / = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
 / = ;
 -> = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
-+ = ; unless after <start>
++ = , unless after <start>
 & = and
 = = it is when after <start> when before <class>|a|an
 = = :

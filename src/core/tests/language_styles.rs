@@ -158,10 +158,10 @@ fn print_figures(title: &str, result: &Score) {
 
 /// Per-style floors on the development file: what the parser reached when the floors were last raised
 /// (a regression fails the test).
-/// Measured 2026-12-05 (session 4): 167, 162, 151, 165, 167 and 167 of 167 lines (979/1002).
+/// Measured 2026-12-05 (session 4): 167, 163, 151, 165, 167 and 167 of 167 lines (980/1002).
 const DEV_FLOORS: [(&str, f64); 6] = [
     ("asr_slip", 99.5),
-    ("field_note", 96.5),
+    ("field_note", 97.5),
     ("hard", 90.0),
     ("not_a_correction", 98.5),
     ("speech", 99.5),
@@ -201,9 +201,9 @@ fn development_styles_recall_per_style() {
 
 const DEV_MAX_SPURIOUS: usize = 0;
 
-/// Held-out floors at the measured figures (2026-12-05, session 4: 458/498 = 92.0%, one unasked relabel, two
+/// Held-out floors at the measured figures (2026-12-05, session 4: 460/498 = 92.4%, one unasked relabel, two
 /// constraints from non-corrections); the goals of zero are not reached yet.
-const HELDOUT_FLOOR: f64 = 91.9;
+const HELDOUT_FLOOR: f64 = 92.3;
 const HELDOUT_MAX_UNASKED_RELABELS: usize = 1;
 const HELDOUT_MAX_SPURIOUS: usize = 2;
 
