@@ -50,6 +50,8 @@ struct Score {
     spurious_constraints: usize,
     /// Lines whose parse holds a relabel while the expectation holds none.
     unasked_relabels: usize,
+    /// Lines whose parse holds a constraint the expectation does not (a misread, not just a miss).
+    misread_lines: usize,
     /// The failing lines, described.
     failures: Vec<String>,
     passed: usize,
@@ -92,6 +94,9 @@ fn score(grammar: &Grammar, text: &str) -> Score {
         if expected.is_empty() {
             result.non_corrections += 1;
             result.spurious_constraints += got.len();
+        }
+        if got.iter().any(|c| !expected.contains(c)) {
+            result.misread_lines += 1;
         }
         if !expected.iter().any(|c| is_relabel(c)) && got.iter().any(|c| is_relabel(c)) {
             result.unasked_relabels += 1;
@@ -140,13 +145,14 @@ fn recall(ok: usize, count: usize) -> f64 {
 
 fn print_figures(title: &str, result: &Score) {
     println!(
-        "{title}: {}/{} frame-exact ({:.1}%); {} constraints from {} non-corrections; {} unasked relabels",
+        "{title}: {}/{} frame-exact ({:.1}%); {} constraints from {} non-corrections; {} unasked relabels; {} lines misread",
         result.passed,
         result.total,
         recall(result.passed, result.total),
         result.spurious_constraints,
         result.non_corrections,
-        result.unasked_relabels
+        result.unasked_relabels,
+        result.misread_lines
     );
     for (style, (ok, count)) in &result.per_style {
         println!(
