@@ -1,6 +1,7 @@
 //! Benchmark: utterances per second through the language parser over the whole corpus, single thread,
-//! with the ratio to spaCy's blank English tokenizer plus a rule Matcher on the same corpus (timed by
-//! tests/fixtures/language/time_spacy.py, figure in tests/fixtures/language/spacy_timing.json).
+//! with the ratio to spaCy's blank English tokenizer plus a rule Matcher on the same corpus, timed in the
+//! same run by tests/fixtures/language/time_spacy.py --print-only (Python named by SAYSO_PYTHON, else
+//! python3) when Python and spaCy are present; otherwise no ratio is printed, never a stored figure.
 //! Goal: at least 50,000 utterances per second.
 
 use std::hint::black_box;
@@ -31,14 +32,36 @@ fn corpus() -> Vec<String> {
         .collect()
 }
 
-fn spacy_rate() -> Option<f64> {
-    let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/fixtures/language/spacy_timing.json"
-    ))
-    .ok()?;
-    let value: serde_json::Value = serde_json::from_str(&text).ok()?;
-    value.get("utterances_per_second")?.as_f64()
+/// spaCy's rate on the same corpus, measured now by the committed script; `Err` says why there is none.
+fn spacy_rate() -> Result<(f64, String), String> {
+    let python = std::env::var("SAYSO_PYTHON").unwrap_or_else(|_| "python3".to_string());
+    let output = std::process::Command::new(&python)
+        .arg("tests/fixtures/language/time_spacy.py")
+        .arg("--print-only")
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .map_err(|error| format!("{python} did not start: {error}"))?;
+    if !output.status.success() {
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        let last = stderr.lines().last().unwrap_or("no message").to_string();
+        return Err(format!("{python} time_spacy.py failed: {last}"));
+    }
+    let stdout = String::from_utf8_lossy(&output.stdout);
+    let value: serde_json::Value = stdout
+        .lines()
+        .last()
+        .and_then(|line| serde_json::from_str(line).ok())
+        .ok_or("time_spacy.py printed no JSON")?;
+    let rate = value
+        .get("utterances_per_second")
+        .and_then(serde_json::Value::as_f64)
+        .ok_or("time_spacy.py printed no rate")?;
+    let version = value
+        .get("spacy_version")
+        .and_then(serde_json::Value::as_str)
+        .unwrap_or("?")
+        .to_string();
+    Ok((rate, version))
 }
 
 fn bench_language(criterion: &mut Criterion) {
@@ -70,11 +93,11 @@ fn bench_language(criterion: &mut Criterion) {
         texts.len()
     );
     match spacy_rate() {
-        Some(spacy) => println!(
-            "reference spaCy blank English tokenizer + Matcher: {spacy:.0} utterances/s; ratio {:.1}x",
+        Ok((spacy, version)) => println!(
+            "reference spaCy {version} blank English tokenizer + Matcher, same run: {spacy:.0} utterances/s; ratio {:.1}x",
             rate / spacy
         ),
-        None => println!("reference spaCy figure missing (run tests/fixtures/language/time_spacy.py)"),
+        Err(reason) => println!("no spaCy figure in this run ({reason})"),
     }
 }
 

@@ -5,19 +5,20 @@
 #   phrase -> class NAME plural SINGULAR   the plural of SINGULAR (irregular forms)
 #   phrase -> class NAME plural     a plural-only word (no singular)
 #   phrase -> class NAME mass       a mass noun: no plural, agrees as singular
+#   phrase -> class NAME whole      a plural-only word naming one thing ("the stairs": one staircase)
 
 # Irregular plurals of canonical names.
 shelves -> class shelf plural shelf
 people -> class person plural person
 clothes -> class clothes plural
-stairs -> class stairs plural
+stairs -> class stairs whole
 
 # Synonyms.
 floorboards -> class floor plural
 ceiling light -> class lamp
 doorway -> class door
 staircase -> class stairs
-steps -> class stairs plural
+steps -> class stairs whole
 carpet -> class rug
 mat -> class rug
 dining table -> class table

@@ -5,7 +5,7 @@
 / = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
 / = ;
 -> = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
-+ = ; unless after <start>
++ = , unless after <start>
 & = and
 = = it is when after <start> when before <class>|a|an
 = = :
@@ -35,8 +35,8 @@ missed dets = missed
 objs = objects
 
 # Sides and relations. A lone "L" or "R" before a pause is a side ("L: mug, R: lamp").
-l = left when before <end>|-|=
-r = right when before <end>|-|=
+l = left when before <end>|-|=|,|;|.|/|+
+r = right when before <end>|-|=|,|;|.|/|+
 adj to = next to
 adj = next to
 l of = left of
@@ -105,3 +105,23 @@ ofc = office
 max = at most
 min = at least
 w / = with
+
+# A noted thing's answer or place in one word after a colon or dash ("fridge: yes", "person: corner").
+yes = present when after :|-|=
+y = present when after :|-|=
+corner = in the corner when after :|-|=|in
+center = in the centre when after :|-|=
+centre = in the centre when after :|-|=
+middle = in the middle when after :|-|=
+top of pic = at the top
+top of picture = at the top
+top of image = at the top
+top of photo = at the top
+bottom of pic = at the bottom
+bottom of picture = at the bottom
+bottom of image = at the bottom
+bottom of photo = at the bottom
+no = none when after : when before <end>
+
+# "Exactly!" alone agrees; it counts nothing.
+exactly = great when after <start> when before <end>

@@ -407,6 +407,18 @@ hmm -> filler
 ah -> filler
 oh -> filler
 like -> filler
+# "On like the left", "is like next to": the filler goes before phrases are matched, so it splits none.
+on like = on
+in like = in
+at like = at
+to like = to
+of like = of
+by like = by
+is like = is
+are like = are
+under like = under
+behind like = behind
+between like = between
 you know -> filler
 well -> filler
 so -> filler
@@ -533,6 +545,8 @@ would you -> request
 will you -> request
 bring -> request
 fetch -> request
+come -> request
+come back -> request
 go -> request
 move -> request
 pick up -> request
@@ -554,6 +568,8 @@ drop -> request
 check -> request
 wait here -> request
 can you see -> question
+can you tell me -> question
+could you tell me -> question
 do you see -> question
 let's -> request
 what -> question thing
@@ -572,9 +588,10 @@ thanks -> thanks
 thank you -> thanks
 cheers -> thanks
 ta -> thanks
-well done -> thanks
-good job -> thanks
-nice work -> thanks
+# Praise is chit-chat, not thanks.
+well done -> greeting
+good job -> greeting
+nice work -> greeting
 hello -> greeting
 exactly right -> greeting
 all good -> greeting

@@ -10,7 +10,8 @@ use crate::ids::ClassId;
 
 use super::chunks::{AttachedRelation, Chunk, ChunkKind, NounPhrase, Quantity};
 use super::constraint::{
-    Constraint, ConstraintKind, Count, Deixis, Place, Referent, Relation, RelationClause, Span,
+    Constraint, ConstraintKind, Count, Deixis, ImageRegion, Place, Referent, Relation,
+    RelationClause, Span,
 };
 use super::lexicon::Side;
 use super::rules::{Action, Match};
@@ -239,7 +240,12 @@ impl Builder {
                 }
             }
             Action::Located => {
-                if let Some(np) = first_phrase("np") {
+                let demonstrative = |np: &NounPhrase| np.deictic.is_some_and(|word| !word.pronoun);
+                if let Some(np) = first_phrase("np").filter(demonstrative) {
+                    // "this R of door" in a note: the relations are stated of the thing pointed at.
+                    // A pronoun ("you've got it in bits") is no such note.
+                    self.deictic_relations(&np, span, misspelled);
+                } else if let Some(np) = first_phrase("np") {
                     let stated = np.article || np.quantity.is_some();
                     let before = self.constraints.len();
                     self.exist(&np, negated, span, misspelled);
@@ -491,6 +497,34 @@ impl Builder {
                     misspelled,
                 );
             }
+            Action::RelationSame => {
+                // "The dog is on the rug, and so is the cat": the last relation, of a new subject; never
+                // after a denied one.
+                let last_denied = self.constraints.iter().rev().find_map(|c| match &c.kind {
+                    ConstraintKind::Relation { negated, .. } => Some(*negated),
+                    _ => None,
+                });
+                let (Some(subject), Some((_, relation, landmarks)), Some(false)) = (
+                    first_phrase("subject"),
+                    self.last_relation.clone(),
+                    last_denied,
+                ) else {
+                    return;
+                };
+                self.count_of_subject(&subject, span, misspelled);
+                let subject = self.referent(&subject);
+                self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
+                self.push(
+                    ConstraintKind::Relation {
+                        subject,
+                        relation,
+                        negated: false,
+                        landmarks,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
             Action::Unread => {}
             Action::Sides => {
                 // "L: mug, R: lamp": the first thing is left of the second, "R: lamp, L: mug" the same
@@ -543,6 +577,9 @@ impl Builder {
                 } else if let Some(&index) = found.role("region").first() {
                     match chunks[index].kind {
                         ChunkKind::Region(region) => Some(Place::Region(region)),
+                        // "bag: L": a side word alone after a noted thing is its side of the picture.
+                        ChunkKind::Side(Side::Left) => Some(Place::Region(ImageRegion::Left)),
+                        ChunkKind::Side(Side::Right) => Some(Place::Region(ImageRegion::Right)),
                         _ => None,
                     }
                 } else {
@@ -570,7 +607,13 @@ impl Builder {
                             _ => None,
                         });
                 if let Some((quantity, bare)) = number {
-                    let np = first_phrase("np");
+                    // "Not five plants but three": the denied count names the class, not the number.
+                    let np = first_phrase("np").or_else(|| {
+                        first_phrase("denied").map(|mut phrase| {
+                            phrase.quantity = None;
+                            phrase
+                        })
+                    });
                     let quantity = if negated { Quantity::None } else { quantity };
                     self.count(np.as_ref(), quantity, bare, span, misspelled);
                 }
@@ -579,14 +622,17 @@ impl Builder {
                 let Some(subject) = first_phrase("subject") else {
                     return;
                 };
-                let attributes = found
-                    .role("attributes")
-                    .first()
-                    .and_then(|&index| match &chunks[index].kind {
-                        ChunkKind::Attributes(list) => Some(list.clone()),
-                        _ => None,
-                    })
-                    .unwrap_or_default();
+                // With no attribute words after it, the subject's own ("green bottle" in a note).
+                let (attributes, subject) = match found.role("attributes").first() {
+                    Some(&index) => match &chunks[index].kind {
+                        ChunkKind::Attributes(list) => (list.clone(), subject),
+                        _ => (Vec::new(), subject),
+                    },
+                    None => {
+                        let mut bare = subject;
+                        (std::mem::take(&mut bare.attributes), bare)
+                    }
+                };
                 self.count_of_subject(&subject, span, misspelled);
                 let target = self.referent(&subject);
                 for attribute in attributes {
@@ -631,6 +677,55 @@ impl Builder {
             }
         }
         self.exist(&np, negated, span, misspelled);
+    }
+
+    /// The relations attached to a demonstrative noun phrase, each stated of what it points at.
+    fn deictic_relations(&mut self, np: &NounPhrase, span: Span, misspelled: bool) {
+        let mut subject = np.clone();
+        let relations = std::mem::take(&mut subject.relations);
+        subject.region = None;
+        let referent = self.referent(&subject);
+        for attached in relations {
+            let wanted = if attached.relation == Relation::Between {
+                2
+            } else {
+                1
+            };
+            // Only landmarks naming a class: "it in bits" places nothing.
+            if attached.landmarks.len() != wanted
+                || attached
+                    .landmarks
+                    .iter()
+                    .any(|landmark| landmark.class.is_none())
+            {
+                continue;
+            }
+            let landmarks = attached
+                .landmarks
+                .iter()
+                .map(|landmark| self.plain_referent(landmark))
+                .collect();
+            self.push(
+                ConstraintKind::Relation {
+                    subject: referent.clone(),
+                    relation: attached.relation,
+                    negated: false,
+                    landmarks,
+                },
+                span,
+                misspelled,
+            );
+        }
+        if let Some(region) = np.region {
+            self.push(
+                ConstraintKind::Place {
+                    subject: referent,
+                    place: Place::Region(region),
+                },
+                span,
+                misspelled,
+            );
+        }
     }
 
     /// Relations of `np` to a bare "it" go to the owner of the last "X has ..." of this utterance.
@@ -726,6 +821,16 @@ impl Builder {
             np
         };
         if np.deictic.is_some() {
+            return;
+        }
+        // "There aren't five plants": a denied number above one says the count is not that, never that none is
+        // there ("not one mug" is none).
+        if negated
+            && matches!(
+                np.quantity,
+                Some(Quantity::Exactly(2..) | Quantity::AtLeast(_) | Quantity::AtMost(_))
+            )
+        {
             return;
         }
         let zero = negated

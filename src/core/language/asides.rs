@@ -128,6 +128,16 @@ fn ends_modifier(item: &Item) -> bool {
     }
 }
 
+/// Whether the "with" at `index` follows a pause (or opens the sentence) and comes before a number.
+fn opens_counted_clause(items: &[Item], index: usize) -> bool {
+    let after_pause = index == 0 || items[index - 1].tag == ItemTag::Pause;
+    let before_number = matches!(
+        tag_of(items.get(index + 1)),
+        Some(Tag::Number(_) | Tag::Tens(_))
+    );
+    after_pause && before_number
+}
+
 /// Drops locatives, "with" modifiers and intensifiers before a relation, recording each as ignored.
 pub fn drop_asides(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Item> {
     let mut kept: Vec<Item> = Vec::with_capacity(items.len());
@@ -135,6 +145,12 @@ pub fn drop_asides(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -
     while index < items.len() {
         let dropped = if let Some(length) = locative_length(&items, index) {
             length
+        } else if items[index].tag == ItemTag::Lexicon(Tag::With)
+            && opens_counted_clause(&items, index)
+        {
+            // "We're in the bathroom, with four towels by the sink": after a pause, "with" and a counted
+            // noun open a clause of their own; only the word "with" is dropped.
+            1
         } else if items[index].tag == ItemTag::Lexicon(Tag::With) {
             1 + items[index + 1..]
                 .iter()

@@ -335,7 +335,19 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
     let mut chunks = Vec::with_capacity(items.len());
     let mut index = 0;
     while index < items.len() {
-        if let Some((chunk, used)) = noun_phrase_at(items, index) {
+        if let Some((mut chunk, used)) = noun_phrase_at(items, index) {
+            // "Three fish tanks": a class word read through a spelling guess ("fish" as "dish") directly
+            // before a word nobody knows is rather a modifier of an unknown head (English compounds end in
+            // their head), so the phrase names nothing we know. A word known as written keeps its reading
+            // ("twelve mugs total").
+            let named = chunk.misspelled
+                && matches!(&chunk.kind, ChunkKind::NounPhrase(phrase) if phrase.class.is_some());
+            let head_unknown = items
+                .get(index + used.max(1))
+                .is_some_and(|next| next.tag == ItemTag::Unknown);
+            if named && head_unknown {
+                chunk.kind = ChunkKind::Other;
+            }
             chunks.push(chunk);
             index += used.max(1);
             continue;
@@ -414,6 +426,22 @@ fn repair_kind(kind: &ChunkKind) -> Option<RepairKind> {
     }
 }
 
+/// Whether a repair replaces the number of a counted noun phrase with a bare number ("two books, no, three").
+fn counted_then_number(earlier: &ChunkKind, replacement: &ChunkKind) -> bool {
+    matches!(
+        (earlier, replacement),
+        (
+            ChunkKind::NounPhrase(NounPhrase {
+                class: Some(_),
+                deictic: None,
+                quantity: Some(Quantity::Exactly(_) | Quantity::AtLeast(_) | Quantity::AtMost(_)),
+                ..
+            }),
+            ChunkKind::Number { .. },
+        )
+    )
+}
+
 /// Applies self-repairs: at a cue, the nearest earlier chunk of the same kind as the chunk after the cue is
 /// dropped together with everything up to the cue.
 pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Chunk> {
@@ -440,6 +468,30 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                 .find(|&k| repair_kind(&chunks[k].kind) == Some(wanted))
         });
         match (earlier, next) {
+            // "Nine chairs, actually no, six": a bare number after the cue replaces only the quantity of the
+            // counted noun phrase it repairs.
+            (Some(from), Some(to)) if counted_then_number(&chunks[from].kind, &chunks[to].kind) => {
+                if let (ChunkKind::NounPhrase(phrase), ChunkKind::Number { quantity, .. }) =
+                    (&chunks[from].kind, &chunks[to].kind)
+                {
+                    let mut phrase = phrase.clone();
+                    phrase.quantity = Some(*quantity);
+                    phrase.span = phrase.span.cover(chunks[to].span);
+                    let span = chunks[from].span.cover(chunks[to].span);
+                    ignored.push((
+                        chunks[from + 1].span.cover(chunks[to - 1].span),
+                        IgnoredReason::SelfRepair,
+                    ));
+                    let misspelled = chunks[from].misspelled || chunks[to].misspelled;
+                    chunks[from] = Chunk {
+                        kind: ChunkKind::NounPhrase(phrase),
+                        span,
+                        misspelled,
+                    };
+                    chunks.drain(from + 1..=to);
+                }
+                index = from + 1;
+            }
             (Some(from), Some(to)) => {
                 ignored.push((
                     chunks[from].span.cover(chunks[index].span),
@@ -449,9 +501,24 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                 index = from;
             }
             _ => {
+                // "No the box is not in front of the sofa", "and no the microwave is ...": "no" opening a
+                // sentence or clause before a noun phrase with no quantity of its own answers what came
+                // before; it does not count the noun.
+                let opens_sentence = index == 0
+                    || matches!(
+                        chunks[index - 1].kind,
+                        ChunkKind::Separator | ChunkKind::And
+                    );
+                let before_plain_phrase = next.is_some_and(|j| {
+                    matches!(&chunks[j].kind, ChunkKind::NounPhrase(phrase)
+                        if phrase.quantity.is_none() && (phrase.class.is_some() || phrase.deictic.is_some()))
+                });
                 if chunks[index].kind == ChunkKind::Repair
                     || next.is_none()
                     || next != Some(index + 1)
+                    || (chunks[index].kind == ChunkKind::No
+                        && opens_sentence
+                        && before_plain_phrase)
                 {
                     // A cue with nothing to repair, or "no," as a discourse marker.
                     ignored.push((chunks[index].span, IgnoredReason::FunctionWord));
@@ -595,6 +662,14 @@ fn take_landmarks(
         chunks.get(start + 2).map(|chunk| &chunk.kind),
     ) {
         (Some(ChunkKind::And), Some(ChunkKind::NounPhrase(second))) => {
+            Some((vec![first, second.clone()], 3))
+        }
+        // "bowl between mug, plate": a note's comma joins the two landmarks when the clause ends there.
+        (Some(ChunkKind::Separator), Some(ChunkKind::NounPhrase(second)))
+            if chunks
+                .get(start + 3)
+                .is_none_or(|chunk| chunk.kind == ChunkKind::Separator) =>
+        {
             Some((vec![first, second.clone()], 3))
         }
         _ => None,

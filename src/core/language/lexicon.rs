@@ -166,6 +166,8 @@ pub struct Lexicon {
     class_words: Vec<ClassWord>,
     /// Single words offered for spelling correction, sorted for deterministic ties.
     spelling_words: Vec<(String, Tag)>,
+    /// Plural-only class words that name one thing (`whole`): "the stairs" is one staircase.
+    whole_words: Vec<String>,
 }
 
 /// A phrase found at a position: how many words it spans and its tag.
@@ -176,6 +178,11 @@ pub struct Found {
 }
 
 impl Lexicon {
+    /// Whether a plural-only class phrase names one thing ("stairs"): its referent is not plural.
+    pub fn names_one_thing(&self, phrase: &str) -> bool {
+        self.whole_words.iter().any(|word| word == phrase)
+    }
+
     /// Builds a lexicon from the taxonomy and named `.lex` texts (name, text), in order.
     pub fn build(taxonomy: &Taxonomy, files: &[(String, String)]) -> Result<Lexicon, GrammarError> {
         let mut lexicon = Lexicon::default();
@@ -220,6 +227,9 @@ impl Lexicon {
                     LexLine::Tag(words, tag, extra) => {
                         if let (Tag::Class { class, plural }, Some(extra)) = (tag, &extra) {
                             let phrase = words.join(" ");
+                            if extra.whole {
+                                lexicon.whole_words.push(phrase.clone());
+                            }
                             if extra.mass {
                                 masses.push((phrase.clone(), class));
                             } else if plural {
@@ -364,6 +374,8 @@ impl Lexicon {
             if condition.after {
                 return match (previous, wanted.as_str()) {
                     (None, wanted) => wanted == "<start>",
+                    // After a colon a new clause starts.
+                    (Some(":"), "<start>") => true,
                     (Some(word), "<class>") => matches!(
                         self.longest_phrase(&[word]),
                         Some(Found {

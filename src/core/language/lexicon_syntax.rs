@@ -67,6 +67,8 @@ fn split_conditions(right: &str) -> Result<(Vec<String>, Vec<Condition>), String
 #[derive(Clone, Debug)]
 pub(super) struct ClassExtra {
     pub(super) mass: bool,
+    /// A plural-only word naming one thing ("the stairs": one staircase).
+    pub(super) whole: bool,
     pub(super) plural_of: Option<String>,
 }
 
@@ -122,6 +124,7 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 .id;
             let mut plural = false;
             let mut mass = false;
+            let mut whole = false;
             let mut plural_of = None;
             match fields.get(2).copied() {
                 None => {}
@@ -135,9 +138,20 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                     mass = true;
                     no_more(3)?;
                 }
-                Some(other) => return Err(format!("class flag '{other}' is not plural or mass")),
+                Some("whole") => {
+                    plural = true;
+                    whole = true;
+                    no_more(3)?;
+                }
+                Some(other) => {
+                    return Err(format!("class flag '{other}' is not plural, whole or mass"))
+                }
             }
-            extra = Some(ClassExtra { mass, plural_of });
+            extra = Some(ClassExtra {
+                mass,
+                whole,
+                plural_of,
+            });
             Tag::Class { class, plural }
         }
         "room" => {

@@ -341,8 +341,24 @@ impl Grammar {
             let chunks = attach(chunks);
             let mut position = 0;
             while position < chunks.len() {
-                if matches!(chunks[position].kind, ChunkKind::Separator | ChunkKind::And) {
+                if chunks[position].kind == ChunkKind::Separator {
                     position += 1;
+                    continue;
+                }
+                // "And" joins clauses; only a rule that opens with it ("and so is the cat") reads it.
+                if chunks[position].kind == ChunkKind::And {
+                    match best_match(&self.rules, &chunks, position)
+                        .filter(|found| found.rule.opens_with_and())
+                    {
+                        Some(found) => {
+                            builder.apply(&found, &chunks, position);
+                            for chunk in &chunks[position..position + found.length] {
+                                builder.mention(chunk, true);
+                            }
+                            position += found.length;
+                        }
+                        None => position += 1,
+                    }
                     continue;
                 }
                 match best_match(&self.rules, &chunks, position) {
@@ -510,15 +526,20 @@ fn is_absence(kind: &ConstraintKind) -> bool {
 
 /// Classifies a sentence that is not a correction by its cue words; `None` means "read it for constraints".
 fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<UtteranceKind> {
-    if question_mark {
-        return Some(UtteranceKind::Question);
-    }
     let first = items.iter().find(|item| {
         !matches!(
             item.tag,
             ItemTag::Pause | ItemTag::Lexicon(Tag::Filler) | ItemTag::Lexicon(Tag::Skip)
         )
-    })?;
+    });
+    // "Could you check under the sofa?": a request put as a question is still a request.
+    if question_mark {
+        return Some(match first.map(|item| item.tag) {
+            Some(ItemTag::Lexicon(Tag::Request)) => UtteranceKind::Request,
+            _ => UtteranceKind::Question,
+        });
+    }
+    let first = first?;
     match first.tag {
         // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
         ItemTag::Lexicon(Tag::Question(_) | Tag::Be) => return Some(UtteranceKind::Question),

@@ -41,6 +41,12 @@ pub enum Symbol {
     /// A bare "left" or "right" ("L: mug, R: lamp").
     Side,
     Separator,
+    /// Zero-width: the clause opens here (the sentence's start or just after a pause).
+    Start,
+    /// Zero-width: the sentence opens here.
+    First,
+    /// Zero-width: the clause ends here (the sentence's end or just before a pause).
+    End,
 }
 
 /// A narrowing of a symbol.
@@ -56,6 +62,8 @@ pub enum Filter {
     Related,
     /// A noun phrase introduced by "a" or "an" ("is a towel").
     Indefinite,
+    /// A bare noun phrase with colour or size words and a class ("green bottle").
+    Described,
     /// A noun phrase naming a class, with no deictic word and no zero quantity ("mug", "the mug").
     Named,
     /// A relation phrase of one relation.
@@ -93,6 +101,8 @@ pub enum Action {
     Count,
     /// A further relation of the last relation's subject: ", not on the table", "and left of the lamp".
     RelationMore,
+    /// "And so is the cat": the last relation stated of a new subject.
+    RelationSame,
     /// "Remove the dog", "get rid of it": a class named is absent; a thing pointed at or mentioned before is
     /// not there (whatever it is shown as).
     Remove,
@@ -118,6 +128,7 @@ impl Action {
             "have" => Action::Have,
             "count" => Action::Count,
             "relation_more" => Action::RelationMore,
+            "relation_same" => Action::RelationSame,
             "unread" => Action::Unread,
             "sides" => Action::Sides,
             _ => return None,
@@ -133,10 +144,11 @@ impl Action {
             Action::RoomType => (&["room"], &["negated"]),
             Action::Relation => (&["subject", "relation", "landmark"], &["negated"]),
             Action::Place => (&["subject"], &["room", "region"]),
-            Action::Attribute => (&["subject", "attributes"], &[]),
+            Action::Attribute => (&["subject"], &["attributes"]),
             Action::Have => (&["owner", "np"], &["negated"]),
-            Action::Count => (&["number"], &["np", "negated"]),
+            Action::Count => (&["number"], &["np", "negated", "denied"]),
             Action::RelationMore => (&["landmark"], &["relation", "negated"]),
+            Action::RelationSame => (&["subject"], &[]),
             Action::Unread => (&[], &[]),
             Action::Sides => (&["side", "subject", "landmark"], &[]),
         }
@@ -149,6 +161,19 @@ pub struct Rule {
     pub name: String,
     pub items: Vec<PatternItem>,
     pub action: Action,
+}
+
+impl Rule {
+    /// Whether the rule's first item can only be "and" (such a rule may start at an "and").
+    pub fn opens_with_and(&self) -> bool {
+        self.items.first().is_some_and(|item| {
+            !item.optional
+                && item
+                    .alternatives
+                    .iter()
+                    .all(|alternative| alternative.symbol == Symbol::And)
+        })
+    }
 }
 
 /// A successful match: the rule, how many chunks it covers, and which chunk filled each role.
@@ -305,6 +330,9 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "SEP" => Symbol::Separator,
             "WHERE" => Symbol::Where,
             "SIDE" => Symbol::Side,
+            "START" => Symbol::Start,
+            "FIRST" => Symbol::First,
+            "END" => Symbol::End,
             other => return Err(format!("unknown symbol '{other}'")),
         };
         let filter = match (symbol, filter_name) {
@@ -314,6 +342,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             (Symbol::NounPhrase, Some("counted")) => Some(Filter::Counted),
             (Symbol::NounPhrase, Some("related")) => Some(Filter::Related),
             (Symbol::NounPhrase, Some("indefinite")) => Some(Filter::Indefinite),
+            (Symbol::NounPhrase, Some("described")) => Some(Filter::Described),
             (Symbol::NounPhrase, Some("named")) => Some(Filter::Named),
             (Symbol::Relation | Symbol::Reciprocal, Some(name)) => {
                 Some(Filter::Relation(parse_relation(name)?))
@@ -341,8 +370,17 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
                 phrase.quantity,
                 Some(Quantity::Exactly(_) | Quantity::AtLeast(_) | Quantity::AtMost(_))
             ),
-            Some(Filter::Related) => !phrase.relations.is_empty(),
+            Some(Filter::Related) => !phrase.relations.is_empty() || phrase.region.is_some(),
             Some(Filter::Indefinite) => phrase.article,
+            Some(Filter::Described) => {
+                !phrase.attributes.is_empty()
+                    && phrase.class.is_some()
+                    && !phrase.article
+                    && phrase.quantity.is_none()
+                    && phrase.deictic.is_none()
+                    && phrase.relations.is_empty()
+                    && phrase.region.is_none()
+            }
             Some(Filter::Named) => {
                 phrase.class.is_some()
                     && phrase.deictic.is_none()
@@ -392,6 +430,25 @@ fn match_items<'rule>(
     let Some((item, rest)) = items.split_first() else {
         return Some(0);
     };
+    if let Some(boundary) = item.alternatives.iter().find(|alternative| {
+        matches!(
+            alternative.symbol,
+            Symbol::Start | Symbol::First | Symbol::End
+        )
+    }) {
+        let at_boundary = match boundary.symbol {
+            Symbol::First => position == 0,
+            Symbol::Start => position == 0 || chunks[position - 1].kind == ChunkKind::Separator,
+            _ => chunks
+                .get(position)
+                .is_none_or(|chunk| chunk.kind == ChunkKind::Separator),
+        };
+        return if at_boundary || item.optional {
+            match_items(rest, chunks, position, roles)
+        } else {
+            None
+        };
+    }
     let chunk = chunks.get(position);
     if let Some(chunk) = chunk {
         if item

@@ -117,7 +117,9 @@ fn rewrite(
                     })
                 )
             });
-            if let Some(head) = head {
+            // "x6 remotes": opening the clause, the count stays where it is, before the noun.
+            let position = head.or_else(|| (clause_start == words.len()).then_some(words.len()));
+            if let Some(head) = position {
                 words.insert(
                     head,
                     Word {
@@ -160,12 +162,27 @@ fn rewrite(
             .take_while(|token| token.shape == TokenShape::Word)
             .map(|token| token.text.as_str())
             .collect();
+        // A colon is a pause, but a rewrite may name it as the word before ("fridge: yes").
         let previous = words
             .last()
-            .filter(|word| word.shape == TokenShape::Word)
+            .filter(|word| word.shape == TokenShape::Word || word.text == ":")
             .map(|word| word.text.as_str());
         if let Some((length, replacement)) = lexicon.longest_rewrite(&window, previous) {
             let span = tokens[index].span.cover(tokens[index + length - 1].span);
+            // "box betw. bed and desk": a period glued to a clipped relation word, with words after it,
+            // marks the clipping; a relation never ends a note.
+            let words_of: Vec<&str> = replacement.iter().map(String::as_str).collect();
+            let is_relation = matches!(
+                lexicon.longest_phrase(&words_of),
+                Some(super::lexicon::Found { tag: Tag::Relation(_), words }) if words == words_of.len()
+            );
+            let clipped = is_relation
+                && tokens.get(index + length).is_some_and(|dot| {
+                    dot.text == "." && dot.span.start == tokens[index + length - 1].span.end
+                })
+                && tokens
+                    .get(index + length + 1)
+                    .is_some_and(|next| next.shape == TokenShape::Word);
             for text in replacement {
                 // A rewrite to punctuation ("/ = ;") separates clauses like the punctuation itself.
                 let shape = match text.as_str() {
@@ -180,7 +197,7 @@ fn rewrite(
                     fragment: false,
                 });
             }
-            index += length;
+            index += length + usize::from(clipped);
             continue;
         }
         if let Some(stem) = token.text.strip_suffix("'s") {
@@ -277,6 +294,18 @@ pub fn tag_sentences(
                 text: window[..found.words].join(" "),
                 misspelled: false,
             };
+            if let Tag::Class {
+                class,
+                plural: true,
+            } = found.tag
+            {
+                if lexicon.names_one_thing(&item.text) {
+                    item.tag = ItemTag::Lexicon(Tag::Class {
+                        class,
+                        plural: false,
+                    });
+                }
+            }
             index += found.words;
             // "forty two", "forty-two": a tens word and a unit word make one number.
             if let Tag::Tens(tens) = found.tag {

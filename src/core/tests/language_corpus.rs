@@ -1,5 +1,5 @@
 //! The utterance corpus (tests/language/corpus.jsonl) run through the parser: frame-exact accuracy per
-//! construction, with the failures printed.
+//! construction, with the failures printed (for the development corpus only; held-out figures alone).
 //!
 //! Owns: reading the corpus lines and comparing the parse, in compact notation, with the expected frame.
 //! Must not: adjust expectations; a line passes only if the utterance kind and the whole constraint list
@@ -158,7 +158,7 @@ fn corpus_frame_exact_accuracy_per_construction() {
 }
 
 /// The held-out set (tests/language/heldout.jsonl) was written after the parser and run once, unseen, to
-/// estimate accuracy on new sentences; it is reported, and only a floor is asserted.
+/// estimate accuracy on new sentences; its figure is reported (never its lines), and only a floor is asserted.
 #[test]
 fn heldout_frame_exact_accuracy_is_reported() {
     let grammar = Grammar::embedded().expect("embedded grammar");
@@ -174,9 +174,7 @@ fn heldout_frame_exact_accuracy_is_reported() {
         result.total,
         100.0 * result.passed as f64 / result.total as f64
     );
-    if !result.failures.is_empty() {
-        println!("held-out failures:\n{}", result.failures.join("\n"));
-    }
+    // Its failing lines are never printed: a held-out set is read for its figure only.
     assert!(result.total >= 40);
     assert!(
         result.passed * 2 >= result.total,

@@ -50,6 +50,8 @@ struct Score {
     spurious_constraints: usize,
     /// Lines whose parse holds a relabel while the expectation holds none.
     unasked_relabels: usize,
+    /// Lines whose parse holds a constraint the expectation does not (a misread, not just a miss).
+    misread_lines: usize,
     /// The failing lines, described.
     failures: Vec<String>,
     passed: usize,
@@ -92,6 +94,9 @@ fn score(grammar: &Grammar, text: &str) -> Score {
         if expected.is_empty() {
             result.non_corrections += 1;
             result.spurious_constraints += got.len();
+        }
+        if got.iter().any(|c| !expected.contains(c)) {
+            result.misread_lines += 1;
         }
         if !expected.iter().any(|c| is_relabel(c)) && got.iter().any(|c| is_relabel(c)) {
             result.unasked_relabels += 1;
@@ -140,13 +145,14 @@ fn recall(ok: usize, count: usize) -> f64 {
 
 fn print_figures(title: &str, result: &Score) {
     println!(
-        "{title}: {}/{} frame-exact ({:.1}%); {} constraints from {} non-corrections; {} unasked relabels",
+        "{title}: {}/{} frame-exact ({:.1}%); {} constraints from {} non-corrections; {} unasked relabels; {} lines misread",
         result.passed,
         result.total,
         recall(result.passed, result.total),
         result.spurious_constraints,
         result.non_corrections,
-        result.unasked_relabels
+        result.unasked_relabels,
+        result.misread_lines
     );
     for (style, (ok, count)) in &result.per_style {
         println!(
@@ -158,14 +164,14 @@ fn print_figures(title: &str, result: &Score) {
 
 /// Per-style floors on the development file: what the parser reached when the floors were last raised
 /// (a regression fails the test).
-/// Measured 2026-12-04 after the normalisation stage: 163, 121, 133, 157, 147 and 156 of 167 lines.
+/// Measured 2026-12-05 (session 4): 167, 163, 151, 165, 167 and 167 of 167 lines (980/1002).
 const DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 97.5),
-    ("field_note", 72.0),
-    ("hard", 79.5),
-    ("not_a_correction", 93.5),
-    ("speech", 87.5),
-    ("typed_tidy", 93.0),
+    ("asr_slip", 99.5),
+    ("field_note", 97.5),
+    ("hard", 90.0),
+    ("not_a_correction", 98.5),
+    ("speech", 99.5),
+    ("typed_tidy", 99.5),
 ];
 
 #[test]
@@ -193,16 +199,19 @@ fn development_styles_recall_per_style() {
         result.unasked_relabels, 0,
         "a relabel nobody asked for on the development file"
     );
-    assert!(result.spurious_constraints <= DEV_MAX_SPURIOUS);
+    assert_eq!(
+        result.spurious_constraints, DEV_MAX_SPURIOUS,
+        "constraints from non-corrections on the development file"
+    );
 }
 
-const DEV_MAX_SPURIOUS: usize = 2;
+const DEV_MAX_SPURIOUS: usize = 0;
 
-/// Held-out floors at the measured figures (428/498 = 85.9%, one unasked relabel, five constraints from
-/// non-corrections); the goals of zero are not reached yet.
-const HELDOUT_FLOOR: f64 = 85.5;
+/// Held-out floors at the measured figures (2026-12-05, session 4: 460/498 = 92.4%, one unasked relabel, two
+/// constraints from non-corrections); the goals of zero are not reached yet.
+const HELDOUT_FLOOR: f64 = 92.3;
 const HELDOUT_MAX_UNASKED_RELABELS: usize = 1;
-const HELDOUT_MAX_SPURIOUS: usize = 5;
+const HELDOUT_MAX_SPURIOUS: usize = 2;
 
 /// The held-out file is run for its figures only; its lines are never printed.
 #[test]
