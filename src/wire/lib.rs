@@ -40,6 +40,20 @@ mod whole {
         };
         T::try_from(value).map_err(|_| D::Error::custom(format!("{value} is out of range")))
     }
+
+    /// `deserialize` for every element of a list.
+    pub fn deserialize_each<'de, D: Deserializer<'de>, T: TryFrom<i64>>(
+        deserializer: D,
+    ) -> Result<Vec<T>, D::Error> {
+        struct Whole<T>(T);
+        impl<'de, T: TryFrom<i64>> Deserialize<'de> for Whole<T> {
+            fn deserialize<E: Deserializer<'de>>(deserializer: E) -> Result<Self, E::Error> {
+                deserialize(deserializer).map(Whole)
+            }
+        }
+        Vec::<Whole<T>>::deserialize(deserializer)
+            .map(|list| list.into_iter().map(|Whole(value)| value).collect())
+    }
 }
 
 /// Every failure: a stable code to branch on and a plain message saying what to fix.
@@ -86,8 +100,11 @@ pub struct DetectionIn {
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, ToSchema)]
 #[serde(deny_unknown_fields)]
 pub struct MaskRunsIn {
+    #[serde(deserialize_with = "whole::deserialize")]
     pub width: u32,
+    #[serde(deserialize_with = "whole::deserialize")]
     pub height: u32,
+    #[serde(deserialize_with = "whole::deserialize_each")]
     pub runs: Vec<u64>,
 }
 
@@ -511,5 +528,27 @@ mod tests {
             );
         }
         assert!(serde_json::from_str::<FocusIn>(r#"{"type": "pixel", "x": -1, "y": 0}"#).is_err());
+        // A detection's mask (schemathesis sent `37307.0` in `runs`, which JSON Schema's integer allows).
+        let mask: MaskRunsIn =
+            serde_json::from_str(r#"{"width": 4.0, "height": 2, "runs": [3, 37307.0, 0]}"#)
+                .unwrap();
+        assert_eq!(
+            mask,
+            MaskRunsIn {
+                width: 4,
+                height: 2,
+                runs: vec![3, 37307, 0]
+            }
+        );
+        for refused in [
+            r#"{"width": 4, "height": 2, "runs": [3, 2.5]}"#,
+            r#"{"width": 4, "height": 2, "runs": [-1]}"#,
+            r#"{"width": 4.5, "height": 2, "runs": []}"#,
+        ] {
+            assert!(
+                serde_json::from_str::<MaskRunsIn>(refused).is_err(),
+                "{refused}"
+            );
+        }
     }
 }
