@@ -356,6 +356,49 @@ fn a_fragment_taken_away_joins_what_surrounds_it_not_the_next_best_class() {
     }
 }
 
+/// The turn "the pointed-at thing is a `name`" with the pointer on the 2 x 2 cells at rows 1-2, columns 5-6
+/// of `room`, after its no-note solve; checks that exactly those cells became the class and nothing else
+/// moved, and returns the corrected solve.
+fn point_at_the_hanging_cells(room: &Room, name: &str) -> Correction {
+    let class = class_of(room, name);
+    let gloss = format!("the pointed-at thing is a {name}");
+    let before = solve(room, None, vec![], None);
+    let that = Referent {
+        class: None,
+        deixis: Some(Deixis::Focus),
+        ..Referent::class(ClassId(0), Span::new(0, 4))
+    };
+    let after = solve(
+        room,
+        Some(&before),
+        vec![(
+            ConstraintKind::Relabel {
+                target: that,
+                from: None,
+                to: Some(ClassId(class)),
+            },
+            &gloss,
+        )],
+        Some(Focus::Pixel {
+            x: 5 * CELL + 4,
+            y: CELL + 4,
+        }),
+    );
+    let cells: Vec<usize> = [(1, 5), (1, 6), (2, 5), (2, 6)]
+        .iter()
+        .map(|&(row, column)| row * room.columns as usize + column)
+        .collect();
+    for (segment, label) in after.graph.segment_labels.iter().enumerate() {
+        let expected = if cells.contains(&segment) {
+            class
+        } else {
+            before.graph.segment_labels[segment].0
+        };
+        assert_eq!(label.0, expected, "segment {segment}");
+    }
+    after
+}
+
 #[test]
 fn a_point_on_a_wall_relabels_only_the_towel_hanging_there() {
     // A blue towel hangs on the wall; the classifier calls it wall.
@@ -382,41 +425,8 @@ fn a_point_on_a_wall_relabels_only_the_towel_hanging_there() {
             },
         },
     );
-    let (towel, wall) = (class_of(&room, "towel"), class_of(&room, "wall"));
-    let before = solve(&room, None, vec![], None);
-    let that = Referent {
-        class: None,
-        deixis: Some(Deixis::Focus),
-        ..Referent::class(ClassId(0), Span::new(0, 4))
-    };
-    let after = solve(
-        &room,
-        Some(&before),
-        vec![(
-            ConstraintKind::Relabel {
-                target: that,
-                from: None,
-                to: Some(ClassId(towel)),
-            },
-            "the pointed-at thing is a towel",
-        )],
-        Some(Focus::Pixel {
-            x: 5 * CELL + 4,
-            y: CELL + 4,
-        }),
-    );
-    let towel_cells: Vec<usize> = [(1, 5), (1, 6), (2, 5), (2, 6)]
-        .iter()
-        .map(|&(row, column)| row * room.columns as usize + column)
-        .collect();
-    for (segment, label) in after.graph.segment_labels.iter().enumerate() {
-        let expected = if towel_cells.contains(&segment) {
-            towel
-        } else {
-            before.graph.segment_labels[segment].0
-        };
-        assert_eq!(label.0, expected, "segment {segment}");
-    }
+    let wall = class_of(&room, "wall");
+    let after = point_at_the_hanging_cells(&room, "towel");
     assert!(
         after
             .graph
@@ -455,41 +465,7 @@ fn a_point_on_a_door_of_nearly_the_wall_s_colour_relabels_the_door_not_the_wall(
             },
         },
     );
-    let door = class_of(&room, "door");
-    let before = solve(&room, None, vec![], None);
-    let that = Referent {
-        class: None,
-        deixis: Some(Deixis::Focus),
-        ..Referent::class(ClassId(0), Span::new(0, 4))
-    };
-    let after = solve(
-        &room,
-        Some(&before),
-        vec![(
-            ConstraintKind::Relabel {
-                target: that,
-                from: None,
-                to: Some(ClassId(door)),
-            },
-            "the pointed-at thing is a door",
-        )],
-        Some(Focus::Pixel {
-            x: 5 * CELL + 4,
-            y: CELL + 4,
-        }),
-    );
-    let door_cells: Vec<usize> = [(1, 5), (1, 6), (2, 5), (2, 6)]
-        .iter()
-        .map(|&(row, column)| row * room.columns as usize + column)
-        .collect();
-    for (segment, label) in after.graph.segment_labels.iter().enumerate() {
-        let expected = if door_cells.contains(&segment) {
-            door
-        } else {
-            before.graph.segment_labels[segment].0
-        };
-        assert_eq!(label.0, expected, "segment {segment}");
-    }
+    point_at_the_hanging_cells(&room, "door");
 }
 
 #[test]
