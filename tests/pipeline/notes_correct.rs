@@ -1,7 +1,8 @@
 //! End-to-end checks that a true note moves a hand-built scene toward the truth and costs nothing that was
 //! right: a count below what the graph shows joins the parts of one object (piece by piece, nearest first), a
 //! count drops a stray fragment, a point on a wall relabels only the thing pointed at (also a door of nearly
-//! the wall's colour), and "in this room" is a place, never a landmark.
+//! the wall's colour), "in this room" is a place, never a landmark, a class taken away leaves no sliver of
+//! another class behind, and a count asking for fewer never grows its class past its span.
 //!
 //! Owns: those behaviours through `correct` (and the embedded grammar for the wording). Must not: depend on
 //! committed models; scenes and unaries are built by hand (`common::grid_scene`).
@@ -609,4 +610,146 @@ fn a_count_still_short_asks_which_naming_every_candidate() {
             assert_eq!(answered.graph.segment_labels[cell].0, rug, "the rug stays");
         }
     }
+}
+
+/// An office where the robot shows a desk over a block the classifier also takes for a cabinet, with one
+/// bright cell in it whose second guess is a box (a label on the cabinet door).
+fn office_with_a_labelled_cabinet() -> Room {
+    room(
+        &[
+            "wwwwwwwwwwww",
+            "wwwwwwwwwwww",
+            "ffDDDDDDffff",
+            "ffDDDxDDffff",
+            "ffDDDDDDffff",
+            "ffffffffffff",
+        ],
+        &|c, class| match c {
+            'w' => Cell {
+                colour: [215, 205, 185],
+                scores: vec![(class("wall"), 0.9)],
+            },
+            'f' => Cell {
+                colour: [150, 110, 70],
+                scores: vec![(class("floor"), 0.9)],
+            },
+            'D' => Cell {
+                colour: [95, 70, 55],
+                scores: vec![(class("desk"), 0.55), (class("cabinet"), 0.44)],
+            },
+            _ => Cell {
+                colour: [235, 235, 90],
+                scores: vec![(class("desk"), 0.5), (class("box"), 0.49)],
+            },
+        },
+    )
+}
+
+#[test]
+fn no_desk_leaves_no_sliver_of_another_class_where_the_desk_was() {
+    // "There's no desk in here": the block becomes the cabinet it is. The bright cell's next guess is a box,
+    // but a one-cell box no note asked about is a sliver, not an object: it joins the cabinet around it.
+    let room = office_with_a_labelled_cabinet();
+    let (desk, cabinet, boxes) = (
+        class_of(&room, "desk"),
+        class_of(&room, "cabinet"),
+        class_of(&room, "box"),
+    );
+    let before = solve(&room, None, vec![], None);
+    assert_eq!(objects_of(&before, desk), 1, "the robot shows a desk");
+    let after = solve(
+        &room,
+        Some(&before),
+        vec![(
+            ConstraintKind::Absent {
+                class: ClassId(desk),
+            },
+            "no desk",
+        )],
+        None,
+    );
+    assert!(after.unmet.is_empty(), "{:?}", after.unmet);
+    assert_eq!(objects_of(&after, desk), 0);
+    assert_eq!(objects_of(&after, boxes), 0, "no box sliver");
+    let bright = 3 * room.columns as usize + 5;
+    assert_eq!(after.graph.segment_labels[bright].0, cabinet);
+    for row in 2..5 {
+        for column in 2..8 {
+            let segment = row * room.columns as usize + column;
+            assert_eq!(
+                after.graph.segment_labels[segment].0, cabinet,
+                "the block is cabinet at row {row}, column {column}"
+            );
+        }
+    }
+}
+
+#[test]
+fn a_count_asking_for_fewer_never_grows_its_class_past_its_span() {
+    // A counter top seen in two parts (columns 1-3 and 5-7 of row 2) with the stove at its right end (column
+    // 8). Suppose the solve of "two counters, not three" joined the parts over the floor cell between them
+    // and also took the stove: the cell between lies inside the span of the counter before the turn, the
+    // stove outside it, so only the stove is held at its label.
+    let room = room(
+        &[
+            "wwwwwwwwwwww",
+            "wwwwwwwwwwww",
+            "wCCCfCCCsfff",
+            "ffffffffffff",
+        ],
+        &|c, class| match c {
+            'w' => Cell {
+                colour: [215, 205, 185],
+                scores: vec![(class("wall"), 0.9)],
+            },
+            'f' => Cell {
+                colour: [150, 110, 70],
+                scores: vec![(class("floor"), 0.9)],
+            },
+            'C' => Cell {
+                colour: [200, 200, 200],
+                scores: vec![(class("counter"), 0.9)],
+            },
+            _ => Cell {
+                colour: [40, 40, 40],
+                scores: vec![(class("stove"), 0.9)],
+            },
+        },
+    );
+    use sayso_core::scenegraph::locality::{overreach_factors, Concern};
+    let (counter, stove, floor) = (
+        class_of(&room, "counter"),
+        class_of(&room, "stove"),
+        class_of(&room, "floor"),
+    );
+    let before = solve(&room, None, vec![], None);
+    let labels: Vec<u16> = before.graph.segment_labels.iter().map(|c| c.0).collect();
+    let row = 2 * room.columns as usize;
+    assert_eq!(labels[row + 4], floor);
+    assert_eq!(labels[row + 8], stove);
+    let mut after = labels.clone();
+    after[row + 4] = counter;
+    after[row + 8] = counter;
+    let count = constraint(
+        ConstraintKind::Count {
+            class: ClassId(counter),
+            count: Count::Exactly(1),
+        },
+        0.95,
+        "exactly 1 counter",
+    );
+    let concern = Concern::of_turn(
+        &[count],
+        &[],
+        0,
+        &[],
+        room.taxonomy.class_count(),
+        room.scene.segment_count(),
+    )
+    .expect("a count is not a room type");
+    let held = overreach_factors(&concern, &room.scene, &[(counter, 1)], &labels, &after);
+    let held: Vec<(u16, Vec<u32>)> = held.iter().map(|f| (f.label, f.segments.clone())).collect();
+    assert_eq!(held, vec![(stove, vec![(row + 8) as u32])]);
+    // A count that asks for no fewer than the parts shown holds nothing: growing may be what it needs.
+    assert!(overreach_factors(&concern, &room.scene, &[(counter, 2)], &labels, &after).is_empty());
 }

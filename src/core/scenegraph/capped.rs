@@ -409,7 +409,7 @@ const SPECK_SEGMENTS: u64 = 2;
 const SPECK_REACH: f64 = 24.0;
 
 /// The area under which an object is a speck: `SPECK_SEGMENTS` fine segments of mean size.
-fn speck_area(scene: &Scene) -> u64 {
+pub(crate) fn speck_area(scene: &Scene) -> u64 {
     let pixels = u64::from(scene.width()) * u64::from(scene.height());
     SPECK_SEGMENTS * pixels / (scene.segment_count().max(1) as u64)
 }

@@ -1,7 +1,8 @@
 //! A note never costs what was right: a turn moves only labels its notes concern.
 //!
-//! Owns: `Concern` (the classes and segments the constraints in force are about) and `stray_factors` (hard
-//! factors that put back every fine segment the solve moved between two labels no note concerns).
+//! Owns: `Concern` (the classes and segments the constraints in force are about), `stray_factors` (hard
+//! factors that put back every fine segment the solve moved between two labels no note concerns) and
+//! `overreach_factors` (the same for what a count asking for fewer objects took from outside the class's span).
 //! Must not: solve; `super::correct` adds the factors and solves again.
 //!
 //! # The rule
@@ -15,6 +16,12 @@
 //! turning a wall patch into floor. Strays are held at their label before the turn by hard factors and the turn
 //! is solved once more. A room type stated in the turn concerns every class (the room changes every class's
 //! prior), so it is left alone.
+//!
+//! A count that asks for fewer objects of a class than the labels show apart ("just one desk", "two
+//! counters") joins parts; it never grows the class outward. A fine segment it moved into the class from a
+//! label no note concerns, whose centre lies outside the box spanning every segment of the class before the
+//! turn, overreached (a counter strip lengthened over the stove at its end) and is held at its label too, also
+//! in a turn that states a room type.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{GroundedConstraint, GroundedKind, Target};
@@ -109,7 +116,17 @@ impl Concern {
         Some(Concern { classes, segments })
     }
 
-    fn class(&self, label: u16) -> bool {
+    /// A concern with no class and no segment in it: every move is measured against the rules (a room-type
+    /// turn's count in force, which `of_turn` leaves alone).
+    pub fn nothing(class_count: usize, segment_count: usize) -> Concern {
+        Concern {
+            classes: vec![false; class_count],
+            segments: vec![false; segment_count],
+        }
+    }
+
+    /// Whether a note of the turn concerns class `label` (an unknown label counts as concerned).
+    pub(crate) fn class(&self, label: u16) -> bool {
         self.classes.get(label as usize).copied().unwrap_or(true)
     }
 }
@@ -138,6 +155,106 @@ pub fn stray_factors(concern: &Concern, before: &[u16], after: &[u16]) -> Vec<Un
             source: None,
         })
         .collect()
+}
+
+/// Hard factors holding at their label before the turn the fine segments that a count asking for fewer
+/// objects of its class (`caps`: class and most objects; it asks for fewer when the class's segments before
+/// the turn form more than that many connected parts) moved into the class from an unconcerned label
+/// outside the box spanning the class's segments before the turn (see the module doc).
+pub fn overreach_factors(
+    concern: &Concern,
+    scene: &crate::scene::Scene,
+    caps: &[(u16, u32)],
+    before: &[u16],
+    after: &[u16],
+) -> Vec<UnaryFactor> {
+    let count = concern.segments.len().min(before.len()).min(after.len());
+    let mut held: std::collections::BTreeMap<u16, Vec<u32>> = std::collections::BTreeMap::new();
+    for &(class, most) in caps {
+        let of_class: Vec<usize> = (0..count).filter(|&s| before[s] == class).collect();
+        if parts(scene, before, class, &of_class) <= most as usize {
+            continue;
+        }
+        let Some(span) = span_of(scene, &of_class) else {
+            continue;
+        };
+        for segment in 0..count {
+            let was = before[segment];
+            if was == class
+                || after[segment] != class
+                || concern.segments[segment]
+                || concern.class(was)
+            {
+                continue;
+            }
+            let Some(stats) = scene.stats.get(segment) else {
+                continue;
+            };
+            let (x, y) = stats.centroid;
+            let inside = x >= span.0 && x <= span.2 && y >= span.1 && y <= span.3;
+            if !inside {
+                held.entry(was).or_default().push(segment as u32);
+            }
+        }
+    }
+    held.into_iter()
+        .map(|(label, segments)| UnaryFactor {
+            segments,
+            label,
+            wanted: true,
+            weight: HARD_WEIGHT,
+            source: None,
+        })
+        .collect()
+}
+
+/// The connected parts (over the segment adjacency) that the segments `members`, all labelled `class` in
+/// `labels`, form.
+fn parts(scene: &crate::scene::Scene, labels: &[u16], class: u16, members: &[usize]) -> usize {
+    let mut seen = vec![false; labels.len()];
+    let mut neighbours: Vec<Vec<usize>> = vec![Vec::new(); labels.len()];
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        if a < labels.len() && b < labels.len() && labels[a] == class && labels[b] == class {
+            neighbours[a].push(b);
+            neighbours[b].push(a);
+        }
+    }
+    let mut found = 0;
+    for &start in members {
+        if seen[start] {
+            continue;
+        }
+        found += 1;
+        seen[start] = true;
+        let mut stack = vec![start];
+        while let Some(at) = stack.pop() {
+            for &next in &neighbours[at] {
+                if !seen[next] {
+                    seen[next] = true;
+                    stack.push(next);
+                }
+            }
+        }
+    }
+    found
+}
+
+/// The box (x0, y0, x1, y1, in pixels, inclusive) spanning the boxes of some segments.
+fn span_of(scene: &crate::scene::Scene, members: &[usize]) -> Option<(f32, f32, f32, f32)> {
+    let mut span: Option<(f32, f32, f32, f32)> = None;
+    for &member in members {
+        let Some(stats) = scene.stats.get(member) else {
+            continue;
+        };
+        let b = &stats.bbox;
+        let (x0, y0, x1, y1) = (b.x0 as f32, b.y0 as f32, b.x1 as f32, b.y1 as f32);
+        span = Some(match span {
+            None => (x0, y0, x1, y1),
+            Some(s) => (s.0.min(x0), s.1.min(y0), s.2.max(x1), s.3.max(y1)),
+        });
+    }
+    span
 }
 
 #[cfg(test)]

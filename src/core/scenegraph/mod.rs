@@ -12,6 +12,7 @@ pub mod changes;
 pub mod differences;
 pub mod instance_statistics;
 pub mod instances;
+pub mod leftovers;
 pub mod locality;
 pub mod objects;
 pub mod split;

@@ -26,7 +26,8 @@ use crate::scenegraph::changes::{
     list_changes, unmet_constraints, Change, ChangeKind, ChangeStatus, ConstraintLabels, Unmet,
 };
 use crate::scenegraph::instances::InstanceCuts;
-use crate::scenegraph::locality::{stray_factors, Concern};
+use crate::scenegraph::leftovers::leftover_factors;
+use crate::scenegraph::locality::{overreach_factors, stray_factors, Concern};
 use crate::scenegraph::supersede::retire_superseded;
 use crate::scenegraph::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::solver::joint::{
@@ -272,19 +273,62 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
             solution = solve_joint_loose(&built.energy, Some(&start), request.options)?;
         }
     }
-    // Put back what moved between labels no note concerns (`crate::scenegraph::locality`), and solve once more.
-    if let Some(concern) = Concern::of_turn(
+    // Put back what moved between labels no note concerns and what a count asking for fewer took from outside
+    // its class's span (`crate::scenegraph::locality`), and solve once more. A room type stated in the turn
+    // concerns every class, but a count in force still never grows its class outward.
+    let shrinking: Vec<(u16, u32)> = caps.iter().map(|cap| (cap.class.0, cap.most)).collect();
+    let turn_concern = Concern::of_turn(
         request.constraints,
         &in_force,
         offset,
         &built.hypotheses,
         request.unaries.class_count(),
         scene.segment_count(),
-    ) {
-        let strays = stray_factors(&concern, &before_state.labels, &solution.state.labels);
-        if !strays.is_empty() {
+    );
+    let (concern, room_turn) = match turn_concern {
+        Some(concern) => (concern, false),
+        None => (
+            Concern::nothing(request.unaries.class_count(), scene.segment_count()),
+            true,
+        ),
+    };
+    let mut strays = if room_turn {
+        Vec::new()
+    } else {
+        stray_factors(&concern, &before_state.labels, &solution.state.labels)
+    };
+    strays.extend(overreach_factors(
+        &concern,
+        scene,
+        &shrinking,
+        &before_state.labels,
+        &solution.state.labels,
+    ));
+    if !strays.is_empty() {
+        latest_graph = None;
+        built.energy.unary_factors.extend(strays);
+        let start = WarmStart {
+            state: solution.state.clone(),
+            multipliers: None,
+        };
+        solution = solve_joint_loose(&built.energy, Some(&start), request.options)?;
+    }
+    // Pieces the turn handed to classes no note concerns do not stand as objects of their own
+    // (`crate::scenegraph::leftovers`).
+    if !room_turn {
+        let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
+        let leftovers = leftover_factors(
+            scene,
+            &graph,
+            &concern,
+            &before_state.labels,
+            &built.energy.unary_factors,
+        );
+        if leftovers.is_empty() {
+            latest_graph = Some(graph);
+        } else {
             latest_graph = None;
-            built.energy.unary_factors.extend(strays);
+            built.energy.unary_factors.extend(leftovers);
             let start = WarmStart {
                 state: solution.state.clone(),
                 multipliers: None,
