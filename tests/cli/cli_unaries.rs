@@ -4,7 +4,6 @@
 //! the fault.
 //! Must not: re-test the library's numbers; the unit tests and tests/pipeline/unaries_reference.rs do that.
 
-use std::path::Path;
 use std::process::Command;
 
 use sayso_core::raster::{write_index_png, IndexImage};
@@ -20,8 +19,7 @@ fn sayso() -> Command {
 #[test]
 fn train_on_a_feature_matrix_writes_a_loadable_model_and_a_card() {
     let out = tempfile::tempdir().unwrap();
-    let matrix =
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/unaries/logistic_train.csv");
+    let matrix = crate::paths::fixture("unaries/logistic_train.csv");
     let status = sayso()
         .args([
             "train",

@@ -3,6 +3,8 @@
 //!
 //! Owns: the module list and the helpers these modules share. Must not: hold tests of its own.
 
+#[path = "../paths.rs"]
+mod paths;
 #[path = "../../fuzz/targets.rs"]
 mod targets;
 

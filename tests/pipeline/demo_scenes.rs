@@ -249,11 +249,8 @@ fn demo_set_covers_the_taxonomy_rooms_and_hard_cases() {
 fn pillow_decodes_the_committed_files_to_the_same_numbers() {
     // Reference: tests/fixtures/demo_scenes/pillow_reference.json, made by make_demo_scenes.py with Pillow and
     // NumPy (general-purpose libraries from PyPI) from the committed demo scenes.
-    let text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("tests/fixtures/demo_scenes/pillow_reference.json"),
-    )
-    .unwrap();
+    let text = std::fs::read_to_string(crate::paths::fixture("demo_scenes/pillow_reference.json"))
+        .unwrap();
     let reference: serde_json::Value = serde_json::from_str(&text).unwrap();
     let scenes = reference["scenes"].as_object().unwrap();
     let loaded = load_all();

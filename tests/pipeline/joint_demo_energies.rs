@@ -16,11 +16,8 @@ const PRINTED: f64 = 1e-6;
 
 #[test]
 fn demo_turn_energies_are_the_same_or_lower() {
-    let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/fixtures/joint_energies/demo_turns.json"
-    ))
-    .expect("the fixture reads");
+    let text = std::fs::read_to_string(crate::paths::fixture("joint_energies/demo_turns.json"))
+        .expect("the fixture reads");
     let fixture: serde_json::Value = serde_json::from_str(&text).expect("the fixture parses");
     let recorded = fixture["turns"].as_array().expect("turns");
     let settings = demo_turns::settings();

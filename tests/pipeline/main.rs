@@ -8,6 +8,8 @@
 mod common;
 #[path = "../../benches/support/demo_turns.rs"]
 mod demo_turns;
+#[path = "../paths.rs"]
+mod paths;
 
 mod demo_scenes;
 mod grounding_relations;

@@ -46,7 +46,7 @@ fn params(target: u32) -> SceneParams {
 }
 
 fn synthetic_room() -> RgbImage {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/slic/synthetic_room.png");
+    let path = crate::paths::fixture("slic/synthetic_room.png");
     read_rgb_png(&path, DEFAULT_PIXEL_LIMIT).unwrap()
 }
 

@@ -5,7 +5,7 @@
 //! vs scikit-learn LogisticRegression, tract inference vs onnxruntime).
 //! Must not: need Python or the network; only the committed outputs are read.
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use ndarray::{Array2, Ix2, Ix4};
 use sayso_core::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
@@ -22,9 +22,7 @@ use sayso_perception::unaries::trainer::{
 use sayso_perception::unaries::Classifier;
 
 fn fixture(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/fixtures/unaries")
-        .join(name)
+    crate::paths::fixture("unaries").join(name)
 }
 
 fn json(name: &str) -> serde_json::Value {
@@ -207,7 +205,7 @@ fn tract_classifier_matches_onnxruntime() {
 /// (make_onnx_reference.py); tract must agree to 1e-5.
 #[test]
 fn default_model_matches_onnxruntime() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let root = crate::paths::repo();
     let taxonomy = Taxonomy::embedded();
     let classifier = Classifier::load(
         &root.join("models/segment_classifier.onnx"),

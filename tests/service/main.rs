@@ -6,6 +6,8 @@
 
 #[path = "../console/support.rs"]
 mod console_support;
+#[path = "../paths.rs"]
+mod paths;
 #[path = "../postgres_support/mod.rs"]
 mod postgres_support;
 #[path = "../service_support/mod.rs"]

@@ -338,7 +338,7 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
         &CoordinatorSettings {
             log_path: data.path().join("corrections.sqlite"),
             pixel_limit: sayso_core::raster::DEFAULT_PIXEL_LIMIT,
-            demo_dir: std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes"),
+            demo_dir: crate::paths::demo_scenes(),
         },
     )
     .unwrap();

@@ -34,7 +34,7 @@ fn run(arguments: &[&std::ffi::OsStr]) -> String {
 
 /// A command on the correction log in `data`, with the committed demo scenes.
 fn sayso(arguments: &[&str], data: &Path) -> String {
-    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes");
+    let demo = crate::paths::demo_scenes();
     let mut all: Vec<&std::ffi::OsStr> = arguments.iter().map(std::ffi::OsStr::new).collect();
     all.extend([
         "--data-dir".as_ref(),
@@ -68,13 +68,9 @@ fn store_and_correct(scenes: &[&str], data: &Path, work: &Path, model: &Path) ->
     // Our scripted notes for these scenes, as a field-notes file.
     let mut notes = String::new();
     for (id, scene) in ids.iter().zip(scenes) {
-        let text = std::fs::read_to_string(
-            Path::new(env!("CARGO_MANIFEST_DIR"))
-                .join("demo_scenes")
-                .join(scene)
-                .join("notes.txt"),
-        )
-        .unwrap();
+        let text =
+            std::fs::read_to_string(crate::paths::demo_scenes().join(scene).join("notes.txt"))
+                .unwrap();
         for line in text
             .lines()
             .filter(|l| !l.trim().is_empty() && !l.starts_with('#'))
@@ -100,8 +96,7 @@ fn store_and_correct(scenes: &[&str], data: &Path, work: &Path, model: &Path) ->
 }
 
 fn shipped_model() -> Vec<u8> {
-    std::fs::read(Path::new(env!("CARGO_MANIFEST_DIR")).join("models/segment_classifier.onnx"))
-        .unwrap()
+    std::fs::read(crate::paths::shipped_model()).unwrap()
 }
 
 #[test]
@@ -290,7 +285,7 @@ fn a_candidate_that_learned_nothing_is_refused_and_the_served_model_stays() {
 
 #[test]
 fn a_running_corrector_swaps_its_model_and_names_it_in_each_state() {
-    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo_scenes");
+    let demo = crate::paths::demo_scenes();
     let scene = load_demo_scene(&demo, Some("bathroom_morning")).unwrap();
     let input = SceneInput {
         name: scene.name.clone(),
@@ -303,7 +298,7 @@ fn a_running_corrector_swaps_its_model_and_names_it_in_each_state() {
         classes: Default::default(),
         superpixels: None,
     };
-    let shipped = Path::new(env!("CARGO_MANIFEST_DIR")).join("models/segment_classifier.onnx");
+    let shipped = crate::paths::shipped_model();
     let corrector = JointCorrector::load(&shipped).unwrap();
     let before = corrector.register(&input).unwrap();
     assert_eq!(
