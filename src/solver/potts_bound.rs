@@ -91,6 +91,7 @@ impl PottsBound {
     }
 
     /// Edge `edge`'s minimum under the current split.
+    #[inline]
     fn edge_minimum(&self, edge: usize) -> f64 {
         let label_count = self.label_count;
         let weight = self.edges[edge].2;

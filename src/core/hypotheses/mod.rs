@@ -496,7 +496,16 @@ fn connected_groups(
 
 /// Each fine segment's neighbours over the adjacency graph.
 pub(crate) fn segment_neighbours(scene: &Scene, segment_count: usize) -> Vec<Vec<usize>> {
-    let mut neighbours = vec![Vec::new(); segment_count];
+    // Each list sized to its degree first, so the pushes below never grow one.
+    let mut degree = vec![0usize; segment_count];
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        if a < segment_count && b < segment_count {
+            degree[a] += 1;
+            degree[b] += 1;
+        }
+    }
+    let mut neighbours: Vec<Vec<usize>> = degree.into_iter().map(Vec::with_capacity).collect();
     for edge in scene.adjacency.raw_edges() {
         let (a, b) = (edge.source().index(), edge.target().index());
         if a < segment_count && b < segment_count {
