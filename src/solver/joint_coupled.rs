@@ -3,7 +3,8 @@
 //! Owns: `CoupledTables` (what the step needs from the energy, built once per solve) and minimising every term of the joint energy that does not involve segment-to-segment smoothing, given a
 //! per-hypothesis on/off cost: enumerate room types; enumerate the on/off states of the (few) hypotheses that
 //! tuple factors mention; per class, choose how many of the remaining hypotheses to switch on by sorting their
-//! costs (so count factors are exact). `coupled_value` gives the minimum alone, without the minimiser.
+//! costs (so count factors are exact). `coupled_value_with` gives the minimum alone, without the minimiser,
+//! from per-class orders (`ClassOrders`) a caller may keep across small changes.
 //! Must not: label segments; it reads segment labels only through the costs and supports it is given.
 
 use crate::energy::{count_violation, JointEnergy};
@@ -297,21 +298,102 @@ impl ClassParts {
     }
 }
 
-/// The search's minimum and where it was found, with the sorted free hypotheses the minimiser is rebuilt
-/// from.
+/// Per class, its free hypotheses sorted by on-minus-off cost and what the search reads of them: the part
+/// of the step that depends on one class's costs and support alone.
+#[derive(Clone, Default)]
+pub(crate) struct ClassOrders {
+    /// Free hypotheses of each class (`CoupledTables::free_start` ranges), sorted by on-minus-off cost, ties
+    /// by index.
+    free_sorted: Vec<usize>,
+    free_deltas: Vec<f64>,
+    /// Each class's free hypotheses' off-costs, summed.
+    free_off: Vec<f64>,
+    /// Each class's room-independent parts with none of its enumerated hypotheses on.
+    free_parts: Vec<ClassParts>,
+    /// Scratch for the sort.
+    keyed: Vec<(f64, usize)>,
+}
+
+impl ClassOrders {
+    /// Orders of every class.
+    pub(crate) fn new(inputs: &CoupledInputs) -> ClassOrders {
+        let tables = inputs.tables;
+        let label_count = inputs.energy.label_count;
+        let mut orders = ClassOrders {
+            free_sorted: tables.free.clone(),
+            free_deltas: vec![0.0; tables.free.len()],
+            free_off: vec![0.0; label_count],
+            free_parts: vec![
+                ClassParts {
+                    supported: f64::INFINITY,
+                    unsupported: f64::INFINITY,
+                };
+                label_count
+            ],
+            keyed: Vec::new(),
+        };
+        for class in 0..label_count {
+            orders.refresh(inputs, class);
+        }
+        orders
+    }
+
+    /// Recomputes class `class`'s order and parts from `inputs` (its hypotheses' costs, its support).
+    pub(crate) fn refresh(&mut self, inputs: &CoupledInputs, class: usize) {
+        let tables = inputs.tables;
+        let range = tables.free_start[class]..tables.free_start[class + 1];
+        // Sorted by on-minus-off cost (ties by index, for determinism). The key (cost, index) is a total
+        // order, so an unstable sort of the keys gives the one order a stable sort of the indices gave,
+        // without its scratch buffer or a cost lookup per comparison.
+        self.keyed.clear();
+        self.keyed.extend(
+            tables.free[range.clone()]
+                .iter()
+                .map(|&h| (inputs.cost_on[h] - inputs.cost_off[h], h)),
+        );
+        self.keyed
+            .sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        for ((sorted, delta), &(key, h)) in self.free_sorted[range.clone()]
+            .iter_mut()
+            .zip(&mut self.free_deltas[range.clone()])
+            .zip(&self.keyed)
+        {
+            *sorted = h;
+            *delta = key;
+        }
+        self.free_off[class] = self.keyed.iter().map(|&(_, h)| inputs.cost_off[h]).sum();
+        self.free_parts[class] = ClassParts::new(
+            inputs,
+            tables,
+            class,
+            0,
+            0.0,
+            &self.free_deltas[range],
+            self.free_off[class],
+        );
+    }
+}
+
+/// The search's minimum and where it was found.
 struct Search {
     best_value: f64,
     best_room: usize,
     best_mask: u64,
-    free_sorted: Vec<usize>,
-    free_deltas: Vec<f64>,
-    free_off: Vec<f64>,
 }
 
 /// The value `solve_coupled` returns, without rebuilding its minimiser (the flags and presence of every
 /// class), for callers that only compare values.
+#[cfg(test)]
 pub(crate) fn coupled_value(inputs: &CoupledInputs) -> f64 {
-    search(inputs).best_value
+    search(inputs, &ClassOrders::new(inputs)).best_value
+}
+
+/// `coupled_value` with the classes' orders given: `orders` must be `ClassOrders::new(inputs)`, or orders
+/// of other inputs with every class whose costs or support differ refreshed (`ClassOrders::refresh`). A
+/// caller scoring many small changes of one problem keeps the orders of the rest; the value is the same to
+/// the bit, since each class's part is computed by the same code from the same numbers.
+pub(crate) fn coupled_value_with(inputs: &CoupledInputs, orders: &ClassOrders) -> f64 {
+    search(inputs, orders).best_value
 }
 
 /// Minimises the coupled terms exactly (or, with too many enumerated hypotheses, a lower bound of them).
@@ -320,14 +402,18 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
     let tables = inputs.tables;
     let enumerated = &tables.enumerated;
     let position_in_enumerated = &tables.position_in_enumerated;
+    let orders = ClassOrders::new(inputs);
     let Search {
         best_value,
         best_room,
         best_mask,
+    } = search(inputs, &orders);
+    let ClassOrders {
         free_sorted,
         free_deltas,
         free_off,
-    } = search(inputs);
+        ..
+    } = orders;
     let range = |class: usize| tables.free_start[class]..tables.free_start[class + 1];
     // Rebuild the minimiser.
     let mut hypotheses_on = vec![false; energy.hypotheses.len()];
@@ -371,49 +457,22 @@ pub(crate) fn solve_coupled(inputs: &CoupledInputs) -> CoupledResult {
     }
 }
 
-/// The search over rooms and enumerated flags for the least value (see `solve_coupled`).
-fn search(inputs: &CoupledInputs) -> Search {
+/// The search over rooms and enumerated flags for the least value (see `solve_coupled`), from the classes'
+/// orders (`ClassOrders`).
+fn search(inputs: &CoupledInputs, orders: &ClassOrders) -> Search {
     let energy = inputs.energy;
     let tables = inputs.tables;
     let enumerated = &tables.enumerated;
     let position_in_enumerated = &tables.position_in_enumerated;
     let touches_enumerated = &tables.touches_enumerated;
     let exact = tables.exact;
-    // Free hypotheses of each class, sorted by on-minus-off cost (ties by index, for determinism). The key
-    // (cost, index) is a total order, so an unstable sort of the keys gives the one order a stable sort of
-    // the indices gave, without its scratch buffer or a cost lookup per comparison.
-    let mut keyed: Vec<(f64, usize)> = tables
-        .free
-        .iter()
-        .map(|&h| (inputs.cost_on[h] - inputs.cost_off[h], h))
-        .collect();
-    let mut free_sorted = Vec::with_capacity(keyed.len());
-    let mut free_deltas = Vec::with_capacity(keyed.len());
-    let mut free_off = vec![0.0; energy.label_count];
+    let free_deltas = &orders.free_deltas;
+    let free_off = &orders.free_off;
     let range = |class: usize| tables.free_start[class]..tables.free_start[class + 1];
-    for class in 0..energy.label_count {
-        let keys = &mut keyed[range(class)];
-        keys.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-        free_sorted.extend(keys.iter().map(|&(_, h)| h));
-        free_deltas.extend(keys.iter().map(|&(delta, _)| delta));
-        free_off[class] = keys.iter().map(|&(_, h)| inputs.cost_off[h]).sum();
-    }
 
     // Room-independent parts first; each room then only adds its presence costs (see `ClassParts`).
     let relaxed = inputs.relaxed_presence;
-    let free_parts: Vec<ClassParts> = (0..energy.label_count)
-        .map(|class| {
-            ClassParts::new(
-                inputs,
-                tables,
-                class,
-                0,
-                0.0,
-                &free_deltas[range(class)],
-                free_off[class],
-            )
-        })
-        .collect();
+    let free_parts = &orders.free_parts;
     let fixed_part: Vec<f64> = (0..energy.room_count)
         .map(|room| {
             let mut fixed = energy.room_cost[room];
@@ -489,9 +548,6 @@ fn search(inputs: &CoupledInputs) -> Search {
         best_value,
         best_room,
         best_mask,
-        free_sorted,
-        free_deltas,
-        free_off,
     }
 }
 
@@ -713,6 +769,34 @@ mod tests {
             };
             let before = solve(&before_on, &support_before);
             let after = solve(&after_on, &support_after);
+            // Orders kept from the first problem, with the classes whose costs or support changed refreshed,
+            // give the second problem's value to the bit (what `joint_moves::MoveScorer` relies on).
+            let inputs_before = CoupledInputs {
+                energy: &energy,
+                tables: &tables,
+                cost_on: &before_on[..hypotheses],
+                cost_off: &zeros[..hypotheses],
+                presence_adjust: &zeros[..labels],
+                segment_support: &support_before[..labels],
+                relaxed_presence: false,
+            };
+            let inputs_after = CoupledInputs {
+                cost_on: &after_on[..hypotheses],
+                segment_support: &support_after[..labels],
+                ..inputs_before
+            };
+            let mut orders = ClassOrders::new(&inputs_before);
+            for class in 0..labels {
+                let costs_moved = (0..hypotheses)
+                    .any(|h| classes[h] as usize == class && before_on[h] != after_on[h]);
+                if costs_moved || support_before[class] != support_after[class] {
+                    orders.refresh(&inputs_after, class);
+                }
+            }
+            proptest::prop_assert_eq!(
+                coupled_value_with(&inputs_after, &orders).to_bits(),
+                after.to_bits()
+            );
             let release = tables.support_release(&energy);
             let mut bound = before;
             for h in 0..hypotheses {

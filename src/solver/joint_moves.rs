@@ -9,7 +9,7 @@
 //! the classes mean.
 
 use crate::joint::{keep_better, warm_descent, Candidate, Context, Workspace};
-use crate::joint_coupled::{coupled_value, CoupledInputs};
+use crate::joint_coupled::{coupled_value_with, ClassOrders, CoupledInputs};
 
 /// A move is completed exactly only when its screened energy is this far below the best one; rounding in
 /// the screened sum is far smaller.
@@ -37,6 +37,12 @@ struct MoveScorer {
     /// `CoupledTables::support_release`: how far the coupled minimum can fall when a class loses, or gains,
     /// its segment support.
     release: Vec<(f64, f64)>,
+    /// The coupled step's per-class orders at the base labelling (when the step is exact), and scratch
+    /// orders for a move: a move re-sorts only the classes whose hypotheses' costs or support it changes.
+    orders: ClassOrders,
+    scratch_orders: ClassOrders,
+    /// Scratch: whether a move changed each class's costs or support.
+    class_changed: Vec<bool>,
 }
 
 impl MoveScorer {
@@ -73,6 +79,9 @@ impl MoveScorer {
             scratch_support: Vec::new(),
             base_coupled: None,
             release: context.coupled.support_release(energy),
+            orders: ClassOrders::default(),
+            scratch_orders: ClassOrders::default(),
+            class_changed: vec![false; energy.label_count],
         };
         scorer.rebase(context, base);
         scorer
@@ -102,12 +111,14 @@ impl MoveScorer {
                 &mut self.cost_on,
                 &mut self.segment_support,
             );
-            self.base_coupled = Some(self.coupled_value(context));
+            self.orders = ClassOrders::new(&self.inputs(context));
+            self.base_coupled = Some(coupled_value_with(&self.inputs(context), &self.orders));
         }
     }
 
-    fn coupled_value(&self, context: &Context) -> f64 {
-        coupled_value(&CoupledInputs {
+    /// The coupled step's inputs at the costs and support last written by `coupled_costs`.
+    fn inputs<'a>(&'a self, context: &'a Context) -> CoupledInputs<'a> {
+        CoupledInputs {
             energy: context.energy,
             tables: &context.coupled,
             cost_on: &self.cost_on,
@@ -115,7 +126,37 @@ impl MoveScorer {
             presence_adjust: &self.adjust,
             segment_support: &self.segment_support,
             relaxed_presence: false,
-        })
+        }
+    }
+
+    /// The coupled minimum at the move's costs and support (`scratch_disagreeing`, `scratch_support`,
+    /// written into `cost_on` and `segment_support`): the base's orders with the classes the move changed
+    /// re-sorted, the same value `coupled_value` gives.
+    fn moved_coupled_value(&mut self, context: &Context) -> f64 {
+        let energy = context.energy;
+        self.class_changed.fill(false);
+        for (h, hypothesis) in energy.hypotheses.iter().enumerate() {
+            if self.scratch_disagreeing[h] != self.disagreeing[h] {
+                self.class_changed[hypothesis.class as usize] = true;
+            }
+        }
+        for (class, (&before, &after)) in self.support.iter().zip(&self.scratch_support).enumerate()
+        {
+            if (before > 0) != (after > 0) {
+                self.class_changed[class] = true;
+            }
+        }
+        let mut orders = std::mem::take(&mut self.scratch_orders);
+        orders.clone_from(&self.orders);
+        let inputs = self.inputs(context);
+        for (class, &changed) in self.class_changed.iter().enumerate() {
+            if changed {
+                orders.refresh(&inputs, class);
+            }
+        }
+        let value = coupled_value_with(&inputs, &orders);
+        self.scratch_orders = orders;
+        value
     }
 
     /// The energy `Context::complete` would give `labels`, which differ from `base` only at `changed` (fine
@@ -190,10 +231,10 @@ impl MoveScorer {
             &mut self.cost_on,
             &mut self.segment_support,
         );
-        context
-            .coupled
-            .exact()
-            .then(|| self.segment_energy + delta + self.coupled_value(context))
+        if !context.coupled.exact() {
+            return None;
+        }
+        Some(self.segment_energy + delta + self.moved_coupled_value(context))
     }
 }
 

@@ -29,7 +29,8 @@ pub(crate) struct PottsBound {
     end: Vec<f64>,
     /// The least value of each part in `end`, kept with it so a node's neighbours need not rescan it.
     end_minimum: Vec<f64>,
-    /// Each edge's minimum under the current split; the bound is their sum (plus isolated nodes' minima).
+    /// Each edge's minimum under the split as it stood after the last full sweep (or the even split); the
+    /// bound is their sum (plus isolated nodes' minima).
     edge_value: Vec<f64>,
     /// Scratch: each node's row minimum.
     row_minimum: Vec<f64>,
@@ -90,6 +91,7 @@ impl PottsBound {
     }
 
     /// Edge `edge`'s minimum under the current split.
+    #[inline]
     fn edge_minimum(&self, edge: usize) -> f64 {
         let label_count = self.label_count;
         let weight = self.edges[edge].2;
@@ -103,8 +105,9 @@ impl PottsBound {
     /// label `x` is `share u(x) + shift_e(x) + t_e(x)` with `t_e(x) = min(v_e(x), min v_e + w_e)` over the
     /// other end's part `v_e`; the node's own `share u(x)` is common to all its edges and cancels. Moving
     /// each marginal to their average sets `shift_e = mean(shift + t) - t_e`, and since a node's shifts sum
-    /// to 0 at every label, `shift_e = mean(t) - t_e`: the node's old parts are never read. Updates the
-    /// minima of the node's edges.
+    /// to 0 at every label, `shift_e = mean(t) - t_e`: the node's old parts are never read. Keeps each
+    /// written part's least value; the edges' minima are taken once per sweep (`diffused`), since an edge's
+    /// minimum reads only its two parts and their least values, which the sweep's last write to it fixes.
     fn diffuse(&mut self, node: usize, average: &mut [f64]) {
         let label_count = self.label_count;
         let incident = self.incident_start[node]..self.incident_start[node + 1];
@@ -139,13 +142,7 @@ impl PottsBound {
             let row = &marginals[slot * label_count..(slot + 1) * label_count];
             let this_end = 2 * edge + side;
             let part = &mut self.end[this_end * label_count..(this_end + 1) * label_count];
-            for ((slot_value, &share), (&mean, &value)) in
-                part.iter_mut().zip(own).zip(average.iter().zip(row))
-            {
-                *slot_value = share + (mean - value);
-            }
-            self.end_minimum[this_end] = lowest(part);
-            self.edge_value[edge] = self.edge_minimum(edge);
+            self.end_minimum[this_end] = write_part(part, own, average, row);
         }
         self.marginals = marginals;
     }
@@ -159,8 +156,9 @@ impl PottsBound {
     /// than `1e-9` relative, or by less than `STOP_SHARE` of what separates it from `target` (the value the
     /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual), or
     /// once it reaches `enough` (what the caller counts as close; infinite to run the sweeps out). Never
-    /// below `bound` for the same unaries. Each edge's minimum is kept and recomputed when a diffusion step
-    /// writes one of its parts, so a sweep's bound is a sum, not a second pass over every part.
+    /// below `bound` for the same unaries. Each sweep's bound is the sum of the edges' minima taken once after
+    /// it (a diffusion step keeps the least value of each part it writes, so an edge's minimum reads its two
+    /// parts once).
     ///
     /// The split starts from the even split every time, so the bound depends on the inputs alone (a split
     /// kept from an earlier solve of the same scene started closer to the fixed point and stopped sooner,
@@ -204,6 +202,9 @@ impl PottsBound {
         for _ in 0..sweeps {
             for node in 0..node_count {
                 self.diffuse(node, &mut average);
+            }
+            for edge in 0..self.edges.len() {
+                self.edge_value[edge] = self.edge_minimum(edge);
             }
             let reached = isolated + self.edge_value.iter().sum::<f64>();
             let rise = reached - best;
@@ -250,6 +251,44 @@ impl PottsBound {
         }
         bound
     }
+}
+
+/// Writes `part[x] = own[x] + (mean[x] - marginal[x])` and returns the least value written, as `lowest`
+/// would find it (four running minima; the minimum of a set does not depend on the order it is taken in).
+fn write_part(part: &mut [f64], own: &[f64], mean: &[f64], marginal: &[f64]) -> f64 {
+    let mut lanes = [f64::INFINITY; 4];
+    let mut parts = part.chunks_exact_mut(4);
+    let (mut owns, mut means, mut marginals) = (
+        own.chunks_exact(4),
+        mean.chunks_exact(4),
+        marginal.chunks_exact(4),
+    );
+    for (((p, o), m), t) in (&mut parts)
+        .zip(&mut owns)
+        .zip(&mut means)
+        .zip(&mut marginals)
+    {
+        for lane in 0..4 {
+            let value = o[lane] + (m[lane] - t[lane]);
+            p[lane] = value;
+            if value < lanes[lane] {
+                lanes[lane] = value;
+            }
+        }
+    }
+    let mut least = lanes[0].min(lanes[1]).min(lanes[2].min(lanes[3]));
+    for (((p, &o), &m), &t) in parts
+        .into_remainder()
+        .iter_mut()
+        .zip(owns.remainder())
+        .zip(means.remainder())
+        .zip(marginals.remainder())
+    {
+        let value = o + (m - t);
+        *p = value;
+        least = least.min(value);
+    }
+    least
 }
 
 /// The least value of a finite slice (infinity when empty), in four running minima like `lowest_sum`.

@@ -175,15 +175,21 @@ fn claim_id(
     id
 }
 
-/// The `top_k` classes of a row of log-probabilities, best first (ties by class id).
+/// The `top_k` classes of a row of log-probabilities, best first (ties by class id): the first `top_k` of
+/// the row sorted by that order, kept by one insertion pass instead of sorting the whole row (the order is
+/// total, so both give the same classes in the same order).
 fn top_classes(row: &[f32], top_k: usize) -> Vec<ClassId> {
-    let mut order: Vec<usize> = (0..row.len()).collect();
-    order.sort_by(|&a, &b| row[b].total_cmp(&row[a]).then(a.cmp(&b)));
-    order
-        .into_iter()
-        .take(top_k)
-        .map(|c| ClassId(c as u16))
-        .collect()
+    let mut kept: Vec<usize> = Vec::with_capacity(top_k.min(row.len()) + 1);
+    for class in 0..row.len() {
+        // Classes arrive in increasing id, so a later class tying a kept one ranks after it.
+        let before = |&other: &usize| row[class].total_cmp(&row[other]).is_gt();
+        let at = kept.len() - kept.iter().rev().take_while(|other| before(other)).count();
+        if at < top_k {
+            kept.insert(at, class);
+            kept.truncate(top_k);
+        }
+    }
+    kept.into_iter().map(|c| ClassId(c as u16)).collect()
 }
 
 /// Within one class, hypotheses must not share segments (or one object would be counted twice): detections
@@ -490,7 +496,16 @@ fn connected_groups(
 
 /// Each fine segment's neighbours over the adjacency graph.
 pub(crate) fn segment_neighbours(scene: &Scene, segment_count: usize) -> Vec<Vec<usize>> {
-    let mut neighbours = vec![Vec::new(); segment_count];
+    // Each list sized to its degree first, so the pushes below never grow one.
+    let mut degree = vec![0usize; segment_count];
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        if a < segment_count && b < segment_count {
+            degree[a] += 1;
+            degree[b] += 1;
+        }
+    }
+    let mut neighbours: Vec<Vec<usize>> = degree.into_iter().map(Vec::with_capacity).collect();
     for edge in scene.adjacency.raw_edges() {
         let (a, b) = (edge.source().index(), edge.target().index());
         if a < segment_count && b < segment_count {
@@ -499,4 +514,27 @@ pub(crate) fn segment_neighbours(scene: &Scene, segment_count: usize) -> Vec<Vec
         }
     }
     neighbours
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    proptest::proptest! {
+        /// The insertion pass keeps the classes a full sort of the row by (log-probability descending, class
+        /// id ascending) puts first, in that order, ties and all.
+        #[test]
+        fn top_classes_match_sorting_the_row(
+            row in proptest::collection::vec(-4i8..1, 0..50),
+            top_k in 0usize..8,
+        ) {
+            // Few distinct values, so ties are common.
+            let row: Vec<f32> = row.into_iter().map(|v| v as f32 * 0.5).collect();
+            let mut order: Vec<usize> = (0..row.len()).collect();
+            order.sort_by(|&a, &b| row[b].total_cmp(&row[a]).then(a.cmp(&b)));
+            let expected: Vec<ClassId> =
+                order.into_iter().take(top_k).map(|c| ClassId(c as u16)).collect();
+            proptest::prop_assert_eq!(top_classes(&row, top_k), expected);
+        }
+    }
 }

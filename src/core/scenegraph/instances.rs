@@ -184,7 +184,16 @@ pub fn edge_strength(contrast: f32, depth: (Option<f32>, Option<f32>)) -> f32 {
 /// list ascending by neighbour, without duplicates.
 pub fn neighbours(scene: &Scene) -> Vec<Vec<(usize, f32)>> {
     let count = scene.segment_count();
-    let mut lists = vec![Vec::new(); count];
+    // Each list sized to its degree first, so the pushes below never grow one.
+    let mut degree = vec![0usize; count];
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        if a < count && b < count && a != b {
+            degree[a] += 1;
+            degree[b] += 1;
+        }
+    }
+    let mut lists: Vec<Vec<(usize, f32)>> = degree.into_iter().map(Vec::with_capacity).collect();
     for edge in scene.adjacency.raw_edges() {
         let (a, b) = (edge.source().index(), edge.target().index());
         if a < count && b < count && a != b {
