@@ -34,7 +34,17 @@ missed det = missed
 missed dets = missed
 objs = objects
 
-# Sides and relations. A lone "L" or "R" before a pause is a side ("L: mug, R: lamp").
+# "here: mug" opening a note names the thing pointed at, as "this: mug" does.
+here = this when after <start> when before <end>
+
+# Sides and relations. A lone "L" or "R" before a pause is a side ("L: mug, R: lamp"); "@" is "at":
+# "mug @ L of desk", "mug @ R desk".
+@ l of = left of
+@ r of = right of
+@ l = left of when before <class>|the
+@ r = right of when before <class>|the
+@ l = on the left when before <end>
+@ r = on the right when before <end>
 l = left when before <end>|-|=|,|;|.|/|+
 r = right when before <end>|-|=|,|;|.|/|+
 adj to = next to

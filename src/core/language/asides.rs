@@ -3,7 +3,8 @@
 //! Owns: pointing phrases ("the thing I'm pointing at", "what I'm looking at" become a demonstrative, so they
 //! point at the operator's focus), locatives that name the whole view ("in this room", "in the picture",
 //! "in this one": dropped, never a landmark), "with" modifiers ("the mug w/ the box around it": dropped up to
-//! the next verb or pause) and intensifiers directly before a relation ("right next to", "just left of").
+//! the next verb or pause), intensifiers directly before a relation ("right next to", "just left of") and
+//! the name of a household member or pet after the word for them ("my grandad Osric", "our puppy, Noodle,").
 //! Must not: decide what a clause means; it only re-tags or drops items, recording what it dropped.
 
 use super::constraint::{Relation, Span};
@@ -175,6 +176,49 @@ pub fn drop_asides(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -
         let span = items[index].span.cover(items[index + dropped - 1].span);
         ignored.push((span, IgnoredReason::FunctionWord));
         index += dropped;
+    }
+    kept
+}
+
+/// Drops a name given after a word for a person or a pet ("my grandad Osric", "our puppy, Noodle, is"): a
+/// word nobody knows directly after such a class word (or between two pauses after it) is what they are
+/// called, which says nothing more about the scene.
+pub fn drop_names(
+    items: Vec<Item>,
+    living: impl Fn(crate::ids::ClassId) -> bool,
+    ignored: &mut Vec<(Span, IgnoredReason)>,
+) -> Vec<Item> {
+    let mut kept: Vec<Item> = Vec::with_capacity(items.len());
+    let mut index = 0;
+    while index < items.len() {
+        let after_living = matches!(
+            tag_of(kept.last()),
+            Some(Tag::Class { class, plural: false }) if living(class)
+        );
+        if after_living {
+            let name = |at: usize| {
+                items
+                    .get(at)
+                    .is_some_and(|item| item.tag == ItemTag::Unknown)
+            };
+            let pause = |at: usize| items.get(at).is_some_and(|item| item.tag == ItemTag::Pause);
+            // "puppy Noodle" or "puppy, Noodle," (both pauses go with the name).
+            let length = if name(index) {
+                1
+            } else if pause(index) && name(index + 1) && pause(index + 2) {
+                3
+            } else {
+                0
+            };
+            if length > 0 {
+                let span = items[index].span.cover(items[index + length - 1].span);
+                ignored.push((span, IgnoredReason::FunctionWord));
+                index += length;
+                continue;
+            }
+        }
+        kept.push(items[index].clone());
+        index += 1;
     }
     kept
 }

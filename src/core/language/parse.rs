@@ -15,9 +15,9 @@ use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
 use super::answers::{asked, complete, Asked};
-use super::asides::{drop_asides, resolve_pointing};
+use super::asides::{drop_asides, drop_names, resolve_pointing};
 use super::chunks::{attach, chunk, repair, ChunkKind};
-use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Span};
+use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Referent, Span};
 use super::error::{GrammarError, LanguageError};
 use super::lexicon::{Lexicon, Tag};
 use super::normalise::normalise;
@@ -334,6 +334,12 @@ impl Grammar {
                 other_kinds.push(kind);
             }
             let items = drop_asides(clean(sentence.items, &mut ignored_raw), &mut ignored_raw);
+            let living = |class: crate::ids::ClassId| {
+                self.taxonomy
+                    .class(class)
+                    .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Living)
+            };
+            let items = drop_names(items, living, &mut ignored_raw);
             let mut chunks = repair(chunk(&items), &mut ignored_raw);
             if let Some(open) = &open {
                 chunks = complete(open, chunks);
@@ -435,16 +441,21 @@ impl Grammar {
 fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
     let mut out: Vec<Constraint> = Vec::new();
     for constraint in built {
-        if out.iter().any(|earlier| earlier.kind == constraint.kind) {
+        // Said twice ("the telly's on the wall, you know, mounted on the wall"): the same constraint, wherever
+        // its words were.
+        if out
+            .iter()
+            .any(|earlier| without_spans(&earlier.kind) == without_spans(&constraint.kind))
+        {
             continue;
         }
         if let (
             Some(Constraint {
                 kind:
                     ConstraintKind::Relabel {
+                        target: earlier_target,
                         from: Some(_),
                         to: to @ None,
-                        ..
                     },
                 span,
                 ..
@@ -456,7 +467,7 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
             },
         ) = (out.last_mut(), &constraint.kind)
         {
-            if target.deixis == Some(Deixis::Previous) && target.class.is_none() {
+            if same_thing(target, earlier_target) {
                 *to = Some(*named);
                 *span = span.cover(constraint.span);
                 continue;
@@ -467,9 +478,9 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
             Some(Constraint {
                 kind:
                     ConstraintKind::Relabel {
+                        target: earlier_target,
                         from: from @ None,
                         to: to @ Some(_),
-                        ..
                     },
                 span,
                 ..
@@ -481,10 +492,7 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
             },
         ) = (out.last_mut(), &constraint.kind)
         {
-            if target.deixis == Some(Deixis::Previous)
-                && target.class.is_none()
-                && *to != Some(*named)
-            {
+            if same_thing(target, earlier_target) && *to != Some(*named) {
                 *from = *to;
                 *to = Some(*named);
                 *span = span.cover(constraint.span);
@@ -503,6 +511,43 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
         out.push(constraint);
     }
     out
+}
+
+/// A constraint's kind with every referent's span cleared, to compare what two constraints say.
+fn without_spans(kind: &ConstraintKind) -> ConstraintKind {
+    fn clear(referent: &mut Referent) {
+        referent.span = Span::default();
+        for clause in &mut referent.relations {
+            clause.landmarks.iter_mut().for_each(clear);
+        }
+    }
+    let mut kind = kind.clone();
+    match &mut kind {
+        ConstraintKind::Relation {
+            subject, landmarks, ..
+        } => {
+            clear(subject);
+            landmarks.iter_mut().for_each(clear);
+        }
+        ConstraintKind::Place { subject, .. } => clear(subject),
+        ConstraintKind::Attribute { target, .. } | ConstraintKind::Relabel { target, .. } => {
+            clear(target)
+        }
+        _ => {}
+    }
+    kind
+}
+
+/// Whether a later relabel's target is the earlier one's thing: "it" with nothing named (the previous
+/// referent), or the same pointed or named thing taken up by a pronoun ("that's not a wall, it's the
+/// ceiling" while pointing).
+fn same_thing(later: &Referent, earlier: &Referent) -> bool {
+    let previous = later.deixis == Some(Deixis::Previous) && later.class.is_none();
+    let taken_up = later.deixis == earlier.deixis
+        && later.class == earlier.class
+        && later.relations.is_empty()
+        && (later.deixis.is_some() || later.class.is_some());
+    previous || taken_up
 }
 
 /// The class a presence, absence or count constraint is about.
@@ -534,8 +579,16 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     });
     // "Could you check under the sofa?": a request put as a question is still a request.
     if question_mark {
+        // "So, how was your day?": a question that is nothing but a pleasantry is talk.
+        let pleasantry = items.iter().all(|item| {
+            matches!(
+                item.tag,
+                ItemTag::Pause | ItemTag::Lexicon(Tag::Filler | Tag::Skip | Tag::Greeting)
+            )
+        });
         return Some(match first.map(|item| item.tag) {
             Some(ItemTag::Lexicon(Tag::Request)) => UtteranceKind::Request,
+            _ if pleasantry && first.is_some() => UtteranceKind::ChitChat,
             _ => UtteranceKind::Question,
         });
     }

@@ -172,10 +172,13 @@ fn rewrite(
             // "box betw. bed and desk": a period glued to a clipped relation word, with words after it,
             // marks the clipping; a relation never ends a note.
             let words_of: Vec<&str> = replacement.iter().map(String::as_str).collect();
+            // "cab. under sink": so does one glued to a clipped class word the notes expand.
             let is_relation = matches!(
                 lexicon.longest_phrase(&words_of),
-                Some(super::lexicon::Found { tag: Tag::Relation(_), words }) if words == words_of.len()
-            );
+                Some(super::lexicon::Found { tag: Tag::Relation(_) | Tag::Class { .. }, words })
+                    if words == words_of.len()
+            ) && length == 1
+                && token.text.chars().count() < words_of.concat().chars().count();
             let clipped = is_relation
                 && tokens.get(index + length).is_some_and(|dot| {
                     dot.text == "." && dot.span.start == tokens[index + length - 1].span.end
