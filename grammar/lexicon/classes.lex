@@ -131,7 +131,3 @@ dining chair -> class chair
 kitchen counter -> class counter
 back door -> class door
 front door -> class door
-top shelf -> class shelf
-top shelves -> class shelf plural top shelf
-bottom shelf -> class shelf
-bottom shelves -> class shelf plural bottom shelf

@@ -59,6 +59,7 @@ on l = on the left
 on r = on the right
 l side = left side
 r side = right side
+nxt = next to when before <class>|the|a
 nxt = next
 lft = left
 lft of = left of
@@ -81,6 +82,12 @@ bottom = at the bottom unless after the|on|at|of
 ctr = counter
 ctre = at the centre unless after the|in|at
 middle = in the middle unless after the|in|at
+
+# Which shelf it is says no more than "shelf" ("on the top shelf" is no image region).
+top shelf = shelf
+top shelves = shelves
+bottom shelf = shelf
+bottom shelves = shelves
 
 # Clipped class words.
 tbl = table

@@ -117,6 +117,7 @@ kit chen = kitchen
 of fice = office
 living rum = living room
 micro wave = microwave
+stares = stairs
 micro waves = microwaves
 cab in it = cabinet
 cab in its = cabinets

@@ -577,6 +577,8 @@ would you -> request
 will you -> request
 bring -> request
 fetch -> request
+scan -> request
+show me -> request
 come -> request
 come back -> request
 go -> request

@@ -270,6 +270,17 @@ impl Builder {
                 // "There's neither a pillow nor a blanket": each listed noun phrase.
                 for np in found.role("np").into_iter().filter_map(phrase) {
                     self.exist(&np, negated, span, misspelled);
+                    // "There's a microwave on the counter and a bowl inside it": the thing said to exist,
+                    // not its landmark, is what a later "it" means.
+                    let mut thing = np.clone();
+                    let relations = std::mem::take(&mut thing.relations);
+                    for attached in &relations {
+                        attached
+                            .landmarks
+                            .iter()
+                            .for_each(|landmark| self.name(landmark));
+                    }
+                    self.name(&thing);
                 }
             }
             Action::Remove => {
@@ -479,7 +490,7 @@ impl Builder {
                     &self.unused_antecedent,
                     self.introduced.as_ref().filter(|np| only_said_to_exist(np)),
                 ) {
-                    if word.pronoun {
+                    if word.pronoun && subject.quantity.is_none() {
                         subject.deictic = None;
                         subject.class = introduced.class;
                         subject.plural = introduced.plural;
@@ -508,6 +519,53 @@ impl Builder {
                     .into_iter()
                     .filter_map(phrase)
                     .collect();
+                // "vase on shelf, NOT on tbl": a noted place before the pause is stated too, and the
+                // subject is the thing itself.
+                let subject_index = found.role("subject").first().copied();
+                let noted = subject_index.is_some_and(|index| {
+                    chunks.get(index + 1).map(|chunk| &chunk.kind) == Some(&ChunkKind::Separator)
+                });
+                if noted && !subject.relations.is_empty() {
+                    let mut plain = subject.clone();
+                    plain.quantity = None;
+                    let relations = std::mem::take(&mut plain.relations);
+                    let referent = self.referent(&plain);
+                    for attached in relations {
+                        let landmarks: Vec<Referent> = attached
+                            .landmarks
+                            .iter()
+                            .map(|landmark| self.plain_referent(landmark))
+                            .collect();
+                        self.push(
+                            ConstraintKind::Relation {
+                                subject: referent.clone(),
+                                relation: attached.relation,
+                                negated: false,
+                                landmarks,
+                            },
+                            span,
+                            misspelled,
+                        );
+                    }
+                    subject.relations.clear();
+                }
+                // "None of them is on the desk": no thing of the class named last is.
+                let mut negated = negated;
+                if subject.class.is_none()
+                    && subject
+                        .deictic
+                        .is_some_and(|word| word.pronoun && word.plural)
+                    && subject.quantity.is_some()
+                {
+                    let Some(class) = self.last_class else { return };
+                    if subject.quantity == Some(Quantity::None) {
+                        negated = !negated;
+                    }
+                    subject.class = Some(class);
+                    subject.deictic = None;
+                    subject.plural = true;
+                    subject.quantity = None;
+                }
                 self.count_of_subject(&subject, span, misspelled);
                 if subject.class.is_some() && subject.quantity != Some(Quantity::None) {
                     self.introduced = Some(subject.clone());

@@ -449,6 +449,22 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
         {
             continue;
         }
+        // "The lamp is red, not yellow, it's red": "it" (the previous referent) said again what the
+        // constraint before said of the lamp.
+        if let Some(previous) = out.last().and_then(|last| about(&last.kind)) {
+            let mut bound = constraint.kind.clone();
+            if let Some(target) = about_mut(&mut bound) {
+                if target.deixis == Some(Deixis::Previous) && target.class.is_none() {
+                    *target = previous.clone();
+                    if out
+                        .iter()
+                        .any(|earlier| without_spans(&earlier.kind) == without_spans(&bound))
+                    {
+                        continue;
+                    }
+                }
+            }
+        }
         if let (
             Some(Constraint {
                 kind:
@@ -511,6 +527,27 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
         out.push(constraint);
     }
     out
+}
+
+/// What an attribute, place or relation constraint is about.
+fn about(kind: &ConstraintKind) -> Option<&Referent> {
+    match kind {
+        ConstraintKind::Attribute { target, .. } => Some(target),
+        ConstraintKind::Place { subject, .. } | ConstraintKind::Relation { subject, .. } => {
+            Some(subject)
+        }
+        _ => None,
+    }
+}
+
+fn about_mut(kind: &mut ConstraintKind) -> Option<&mut Referent> {
+    match kind {
+        ConstraintKind::Attribute { target, .. } => Some(target),
+        ConstraintKind::Place { subject, .. } | ConstraintKind::Relation { subject, .. } => {
+            Some(subject)
+        }
+        _ => None,
+    }
 }
 
 /// A constraint's kind with every referent's span cleared, to compare what two constraints say.

@@ -49,6 +49,8 @@ pub enum Symbol {
     First,
     /// Zero-width: the clause ends here (the sentence's end or just before a pause).
     End,
+    /// Zero-width: the sentence ends here (no pause counts).
+    Last,
 }
 
 /// A narrowing of a symbol.
@@ -344,6 +346,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "START" => Symbol::Start,
             "FIRST" => Symbol::First,
             "END" => Symbol::End,
+            "LAST" => Symbol::Last,
             other => return Err(format!("unknown symbol '{other}'")),
         };
         let filter = match (symbol, filter_name) {
@@ -453,12 +456,13 @@ fn match_items<'rule>(
     if let Some(boundary) = item.alternatives.iter().find(|alternative| {
         matches!(
             alternative.symbol,
-            Symbol::Start | Symbol::First | Symbol::End
+            Symbol::Start | Symbol::First | Symbol::End | Symbol::Last
         )
     }) {
         let at_boundary = match boundary.symbol {
             Symbol::First => position == 0,
             Symbol::Start => position == 0 || chunks[position - 1].kind == ChunkKind::Separator,
+            Symbol::Last => position == chunks.len(),
             _ => chunks
                 .get(position)
                 .is_none_or(|chunk| chunk.kind == ChunkKind::Separator),

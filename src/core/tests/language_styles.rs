@@ -166,12 +166,12 @@ fn print_figures(title: &str, result: &Score) {
 
 /// Per-style floors on the development file: what the parser reached when the floors were last raised
 /// (a regression fails the test).
-/// Measured 2026-12-05 (session 4): 167, 163, 151, 165, 167 and 167 of 167 lines (980/1002).
+/// Measured 2026-12-05 (session 5): 167, 164, 167, 167, 167 and 167 of 167 lines (999/1002).
 const DEV_FLOORS: [(&str, f64); 6] = [
     ("asr_slip", 99.5),
-    ("field_note", 97.5),
-    ("hard", 90.0),
-    ("not_a_correction", 98.5),
+    ("field_note", 98.0),
+    ("hard", 99.5),
+    ("not_a_correction", 99.5),
     ("speech", 99.5),
     ("typed_tidy", 99.5),
 ];
@@ -209,11 +209,10 @@ fn development_styles_recall_per_style() {
 
 const DEV_MAX_SPURIOUS: usize = 0;
 
-/// Held-out floors at the measured figures (2026-12-05, session 4: 460/498 = 92.4%, one unasked relabel, two
-/// constraints from non-corrections); the goals of zero are not reached yet.
-const HELDOUT_FLOOR: f64 = 92.3;
-const HELDOUT_MAX_UNASKED_RELABELS: usize = 1;
-const HELDOUT_MAX_SPURIOUS: usize = 2;
+/// Held-out floor at the measured figure (2026-12-05, session 5: 470/498 = 94.4%, no unasked relabel, one
+/// constraint from 83 non-corrections); the goal of no constraint is not reached yet.
+const HELDOUT_FLOOR: f64 = 94.3;
+const HELDOUT_MAX_SPURIOUS: usize = 1;
 
 /// The held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -232,24 +231,29 @@ fn heldout_styles_figures_are_reported() {
         result.passed,
         result.total
     );
-    assert!(result.unasked_relabels <= HELDOUT_MAX_UNASKED_RELABELS);
-    assert!(result.spurious_constraints <= HELDOUT_MAX_SPURIOUS);
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the held-out file"
+    );
+    assert!(
+        result.spurious_constraints <= HELDOUT_MAX_SPURIOUS,
+        "{} constraints from non-corrections on the held-out file",
+        result.spurious_constraints
+    );
 }
 
-/// Per-style floors on the fresh development file (324 lines, 54 per style), set a little under what the
-/// parser of session 4 read when the file arrived, before any parser change (2026-12-05, session 5): 42, 48,
-/// 21, 44, 39 and 49 of 54 lines (243/324, 75.0%), 2 constraints from 54 non-corrections, 4 unasked
-/// relabels, 36 lines misread.
+/// Per-style floors on the fresh development file (324 lines, 54 per style). When the file arrived the parser
+/// of session 4 read 42, 48, 21, 44, 39 and 49 of 54 lines (243/324, 75.0%; 2 constraints from 54
+/// non-corrections, 4 unasked relabels, 36 lines misread); at the end of session 5 it reads 53, 54, 46, 53,
+/// 52 and 54 (312/324, 96.3%; none, none, 6).
 const FRESH_DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 77.0),
-    ("field_note", 88.0),
-    ("hard", 38.0),
-    ("not_a_correction", 81.0),
-    ("speech", 72.0),
-    ("typed_tidy", 90.0),
+    ("asr_slip", 98.0),
+    ("field_note", 99.5),
+    ("hard", 85.0),
+    ("not_a_correction", 98.0),
+    ("speech", 96.0),
+    ("typed_tidy", 99.5),
 ];
-const FRESH_DEV_MAX_UNASKED_RELABELS: usize = 4;
-const FRESH_DEV_MAX_SPURIOUS: usize = 2;
 
 #[test]
 fn fresh_development_styles_recall_per_style() {
@@ -272,13 +276,19 @@ fn fresh_development_styles_recall_per_style() {
             "style {style}: {ok}/{count} is below the floor of {floor}%"
         );
     }
-    assert!(result.unasked_relabels <= FRESH_DEV_MAX_UNASKED_RELABELS);
-    assert!(result.spurious_constraints <= FRESH_DEV_MAX_SPURIOUS);
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the fresh development file"
+    );
+    assert_eq!(
+        result.spurious_constraints, 0,
+        "constraints from non-corrections on the fresh development file"
+    );
 }
 
-/// Fresh held-out floor, set a little under the figure the parser of session 4 read when the file arrived
-/// (2026-12-05, session 5: 120/156 = 76.9%, no unasked relabel, no constraint from 26 non-corrections).
-const FRESH_HELDOUT_FLOOR: f64 = 76.0;
+/// Fresh held-out floor. When the file arrived the parser of session 4 read 120/156 (76.9%), no unasked
+/// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 85.8;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]

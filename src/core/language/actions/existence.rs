@@ -266,11 +266,17 @@ impl Builder {
         let region = subject.region.take();
         let subject_referent = self.referent(&subject);
         for attached in relations {
-            let landmarks = attached
+            let landmarks: Vec<Referent> = attached
                 .landmarks
                 .iter()
                 .map(|landmark| self.landmark_referent(landmark, &subject))
                 .collect();
+            // "blanket on chair, NOT sofa": a later denial is of this relation.
+            self.last_relation = Some((
+                subject_referent.clone(),
+                attached.relation,
+                landmarks.clone(),
+            ));
             self.push(
                 ConstraintKind::Relation {
                     subject: subject_referent.clone(),
