@@ -4,7 +4,8 @@
 //! point at the operator's focus), locatives that name the whole view ("in this room", "in the picture",
 //! "in this one": dropped, never a landmark), "with" modifiers ("the mug w/ the box around it": dropped up to
 //! the next verb or pause), intensifiers directly before a relation ("right next to", "just left of") and
-//! the name of a household member or pet after the word for them ("my grandad Osric", "our puppy, Noodle,").
+//! the name of a household member or pet after the word for them ("my grandad Osric", "our puppy, Noodle,"),
+//! and a note's "sofa w/ five cushions" (a piece of furniture with counted things: they are on it).
 //! Must not: decide what a clause means; it only re-tags or drops items, recording what it dropped.
 
 use super::constraint::{Relation, Span};
@@ -221,4 +222,58 @@ pub fn drop_names(
         index += 1;
     }
     kept
+}
+
+/// "sofa w/ five cushions", "table with 6 plates": a piece of furniture (`support`) followed by "with" and a
+/// counted class says those things are on it, read as "sofa has five cushions on it". Anything else keeps
+/// its "with" for `drop_asides`.
+pub fn with_contents(items: Vec<Item>, support: impl Fn(crate::ids::ClassId) -> bool) -> Vec<Item> {
+    let mut out: Vec<Item> = Vec::with_capacity(items.len() + 2);
+    let mut index = 0;
+    while index < items.len() {
+        let owner = index > 0
+            && matches!(
+                tag_of(items.get(index - 1)),
+                Some(Tag::Class { class, plural: false }) if support(class)
+            );
+        let counted = matches!(
+            tag_of(items.get(index + 1)),
+            Some(Tag::Number(_) | Tag::Tens(_))
+        );
+        let mut head = index + 2;
+        while matches!(tag_of(items.get(head)), Some(Tag::Colour(_) | Tag::Size(_))) {
+            head += 1;
+        }
+        let contents = matches!(tag_of(items.get(head)), Some(Tag::Class { .. }));
+        if items[index].tag == ItemTag::Lexicon(Tag::With) && owner && counted && contents {
+            out.push(Item {
+                tag: ItemTag::Lexicon(Tag::Have),
+                ..items[index].clone()
+            });
+            out.extend(items[index + 1..=head].iter().cloned());
+            let end = items[head].span.end;
+            for (tag, text) in [
+                (Tag::Relation(Relation::On), "on"),
+                (
+                    Tag::Deictic {
+                        pronoun: true,
+                        plural: false,
+                    },
+                    "it",
+                ),
+            ] {
+                out.push(Item {
+                    tag: ItemTag::Lexicon(tag),
+                    span: Span::new(end, end),
+                    text: text.to_string(),
+                    misspelled: false,
+                });
+            }
+            index = head + 1;
+            continue;
+        }
+        out.push(items[index].clone());
+        index += 1;
+    }
+    out
 }

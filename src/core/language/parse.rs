@@ -15,7 +15,7 @@ use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
 use super::answers::{asked, complete, Asked};
-use super::asides::{drop_asides, drop_names, resolve_pointing};
+use super::asides::{drop_asides, drop_names, resolve_pointing, with_contents};
 use super::chunks::{attach, chunk, repair, ChunkKind};
 use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Referent, Span};
 use super::error::{GrammarError, LanguageError};
@@ -333,7 +333,13 @@ impl Grammar {
                 }
                 other_kinds.push(kind);
             }
-            let items = drop_asides(clean(sentence.items, &mut ignored_raw), &mut ignored_raw);
+            let support = |class: crate::ids::ClassId| {
+                self.taxonomy
+                    .class(class)
+                    .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Furniture)
+            };
+            let items = with_contents(clean(sentence.items, &mut ignored_raw), support);
+            let items = drop_asides(items, &mut ignored_raw);
             let living = |class: crate::ids::ClassId| {
                 self.taxonomy
                     .class(class)

@@ -494,6 +494,12 @@ pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<
                 .iter()
                 .zip(second)
                 .all(|(&a, &b)| kept[a].text == kept[b].text && kept[a].tag == kept[b].tag);
+            // "a bowl under desk, desk w/ 10 vases": a landmark ending one clause and the subject opening
+            // the next, a pause between, are two mentions, not a stutter.
+            let paused = second[0] > first[length - 1] + 1;
+            let landmark = first[0] > 0
+                && matches!(kept[first[0] - 1].tag, ItemTag::Lexicon(Tag::Relation(_)));
+            let same = same && !(length == 1 && paused && landmark);
             if same {
                 let from = first[0];
                 let to = second[0];

@@ -166,10 +166,10 @@ fn print_figures(title: &str, result: &Score) {
 
 /// Per-style floors on the development file: what the parser reached when the floors were last raised
 /// (a regression fails the test).
-/// Measured 2026-12-05 (session 5): 167, 164, 167, 167, 167 and 167 of 167 lines (999/1002).
+/// Measured 2026-12-05 (session 5): 167 of 167 lines in every style (1002/1002).
 const DEV_FLOORS: [(&str, f64); 6] = [
     ("asr_slip", 99.5),
-    ("field_note", 98.0),
+    ("field_note", 99.5),
     ("hard", 99.5),
     ("not_a_correction", 99.5),
     ("speech", 99.5),
@@ -209,9 +209,9 @@ fn development_styles_recall_per_style() {
 
 const DEV_MAX_SPURIOUS: usize = 0;
 
-/// Held-out floor at the measured figure (2026-12-05, session 5: 470/498 = 94.4%, no unasked relabel, one
+/// Held-out floor at the measured figure (2026-12-05, session 5: 471/498 = 94.6%, no unasked relabel, one
 /// constraint from 83 non-corrections); the goal of no constraint is not reached yet.
-const HELDOUT_FLOOR: f64 = 94.3;
+const HELDOUT_FLOOR: f64 = 94.5;
 const HELDOUT_MAX_SPURIOUS: usize = 1;
 
 /// The held-out file is run for its figures only; its lines are never printed.
