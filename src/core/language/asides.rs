@@ -189,6 +189,9 @@ pub fn drop_names(
     living: impl Fn(crate::ids::ClassId) -> bool,
     ignored: &mut Vec<(Span, IgnoredReason)>,
 ) -> Vec<Item> {
+    if !items.iter().any(|item| item.tag == ItemTag::Unknown) {
+        return items;
+    }
     let mut kept: Vec<Item> = Vec::with_capacity(items.len());
     let mut index = 0;
     while index < items.len() {
@@ -228,6 +231,12 @@ pub fn drop_names(
 /// counted class says those things are on it, read as "sofa has five cushions on it". Anything else keeps
 /// its "with" for `drop_asides`.
 pub fn with_contents(items: Vec<Item>, support: impl Fn(crate::ids::ClassId) -> bool) -> Vec<Item> {
+    if !items
+        .iter()
+        .any(|item| item.tag == ItemTag::Lexicon(Tag::With))
+    {
+        return items;
+    }
     let mut out: Vec<Item> = Vec::with_capacity(items.len() + 2);
     let mut index = 0;
     while index < items.len() {

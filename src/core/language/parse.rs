@@ -451,21 +451,25 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
         // its words were.
         if out
             .iter()
-            .any(|earlier| without_spans(&earlier.kind) == without_spans(&constraint.kind))
+            .any(|earlier| same_saying(&earlier.kind, &constraint.kind))
         {
             continue;
         }
         // "The lamp is red, not yellow, it's red": "it" (the previous referent) said again what the
         // constraint before said of the lamp.
-        if let Some(previous) = out.last().and_then(|last| about(&last.kind)) {
+        let takes_up_previous = about(&constraint.kind).is_some_and(|target| {
+            target.deixis == Some(Deixis::Previous) && target.class.is_none()
+        });
+        if let Some(previous) = out
+            .last()
+            .and_then(|last| about(&last.kind))
+            .filter(|_| takes_up_previous)
+        {
             let mut bound = constraint.kind.clone();
             if let Some(target) = about_mut(&mut bound) {
                 if target.deixis == Some(Deixis::Previous) && target.class.is_none() {
                     *target = previous.clone();
-                    if out
-                        .iter()
-                        .any(|earlier| without_spans(&earlier.kind) == without_spans(&bound))
-                    {
+                    if out.iter().any(|earlier| same_saying(&earlier.kind, &bound)) {
                         continue;
                     }
                 }
@@ -556,29 +560,80 @@ fn about_mut(kind: &mut ConstraintKind) -> Option<&mut Referent> {
     }
 }
 
-/// A constraint's kind with every referent's span cleared, to compare what two constraints say.
-fn without_spans(kind: &ConstraintKind) -> ConstraintKind {
-    fn clear(referent: &mut Referent) {
-        referent.span = Span::default();
-        for clause in &mut referent.relations {
-            clause.landmarks.iter_mut().for_each(clear);
-        }
+/// Whether two constraints say the same thing, wherever their words were (spans are not compared).
+fn same_saying(a: &ConstraintKind, b: &ConstraintKind) -> bool {
+    fn same(a: &Referent, b: &Referent) -> bool {
+        a.class == b.class
+            && a.deixis == b.deixis
+            && a.plural == b.plural
+            && a.attributes == b.attributes
+            && a.region == b.region
+            && a.relations.len() == b.relations.len()
+            && a.relations.iter().zip(&b.relations).all(|(x, y)| {
+                x.relation == y.relation
+                    && x.negated == y.negated
+                    && x.landmarks.len() == y.landmarks.len()
+                    && x.landmarks
+                        .iter()
+                        .zip(&y.landmarks)
+                        .all(|(p, q)| same(p, q))
+            })
     }
-    let mut kind = kind.clone();
-    match &mut kind {
-        ConstraintKind::Relation {
-            subject, landmarks, ..
-        } => {
-            clear(subject);
-            landmarks.iter_mut().for_each(clear);
+    match (a, b) {
+        (
+            ConstraintKind::Relation {
+                subject: s1,
+                relation: r1,
+                negated: n1,
+                landmarks: l1,
+            },
+            ConstraintKind::Relation {
+                subject: s2,
+                relation: r2,
+                negated: n2,
+                landmarks: l2,
+            },
+        ) => {
+            r1 == r2
+                && n1 == n2
+                && same(s1, s2)
+                && l1.len() == l2.len()
+                && l1.iter().zip(l2).all(|(p, q)| same(p, q))
         }
-        ConstraintKind::Place { subject, .. } => clear(subject),
-        ConstraintKind::Attribute { target, .. } | ConstraintKind::Relabel { target, .. } => {
-            clear(target)
-        }
-        _ => {}
+        (
+            ConstraintKind::Place {
+                subject: s1,
+                place: p1,
+            },
+            ConstraintKind::Place {
+                subject: s2,
+                place: p2,
+            },
+        ) => p1 == p2 && same(s1, s2),
+        (
+            ConstraintKind::Attribute {
+                target: t1,
+                attribute: a1,
+            },
+            ConstraintKind::Attribute {
+                target: t2,
+                attribute: a2,
+            },
+        ) => a1 == a2 && same(t1, t2),
+        (
+            ConstraintKind::Relabel {
+                target: t1,
+                from: f1,
+                to: o1,
+            },
+            ConstraintKind::Relabel {
+                target: t2,
+                from: f2,
+                to: o2,
+            },
+        ) => f1 == f2 && o1 == o2 && same(t1, t2),
+        _ => a == b,
     }
-    kind
 }
 
 /// Whether a later relabel's target is the earlier one's thing: "it" with nothing named (the previous
