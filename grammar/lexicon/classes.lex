@@ -10,7 +10,7 @@
 # Irregular plurals of canonical names.
 shelves -> class shelf plural shelf
 people -> class person plural person
-clothes -> class clothes plural
+clothes -> class clothes whole
 stairs -> class stairs whole
 
 # Synonyms.
@@ -85,6 +85,29 @@ child -> class person
 children -> class person plural child
 kid -> class person
 puppy -> class dog
+# Household members named by their relation to the speaker.
+husband -> class person
+wife -> class person
+wives -> class person plural wife
+partner -> class person
+grandad -> class person
+grandpa -> class person
+grandma -> class person
+granny -> class person
+grandmother -> class person
+grandfather -> class person
+daughter -> class person
+son -> class person
+brother -> class person
+sister -> class person
+mum -> class person
+mom -> class person
+dad -> class person
+baby -> class person
+babies -> class person plural baby
+toddler -> class person
+someone -> class person
+somebody -> class person
 puppies -> class dog plural puppy
 kitten -> class cat
 kitty -> class cat
@@ -106,3 +129,5 @@ desk lamp -> class lamp
 office chair -> class chair
 dining chair -> class chair
 kitchen counter -> class counter
+back door -> class door
+front door -> class door

@@ -34,7 +34,17 @@ missed det = missed
 missed dets = missed
 objs = objects
 
-# Sides and relations. A lone "L" or "R" before a pause is a side ("L: mug, R: lamp").
+# "here: mug" opening a note names the thing pointed at, as "this: mug" does.
+here = this when after <start> when before <end>
+
+# Sides and relations. A lone "L" or "R" before a pause is a side ("L: mug, R: lamp"); "@" is "at":
+# "mug @ L of desk", "mug @ R desk".
+@ l of = left of
+@ r of = right of
+@ l = left of when before <class>|the
+@ r = right of when before <class>|the
+@ l = on the left when before <end>
+@ r = on the right when before <end>
 l = left when before <end>|-|=|,|;|.|/|+
 r = right when before <end>|-|=|,|;|.|/|+
 adj to = next to
@@ -49,6 +59,7 @@ on l = on the left
 on r = on the right
 l side = left side
 r side = right side
+nxt = next to when before <class>|the|a
 nxt = next
 lft = left
 lft of = left of
@@ -71,6 +82,12 @@ bottom = at the bottom unless after the|on|at|of
 ctr = counter
 ctre = at the centre unless after the|in|at
 middle = in the middle unless after the|in|at
+
+# Which shelf it is says no more than "shelf" ("on the top shelf" is no image region).
+top shelf = shelf
+top shelves = shelves
+bottom shelf = shelf
+bottom shelves = shelves
 
 # Clipped class words.
 tbl = table

@@ -19,6 +19,9 @@ to = two when after is|be|was when before <end>
 tree = three when before <plural>
 free = three when before <plural>
 
+# "not" heard as "knot".
+knot = not
+
 # "no" heard as "know".
 know = no unless after you|i|not|do|we|they|to|dont|don't|didn't
 
@@ -113,6 +116,17 @@ bed room = bedroom
 kit chen = kitchen
 of fice = office
 living rum = living room
+micro wave = microwave
+stares = stairs
+micro waves = microwaves
+cab in it = cabinet
+cab in its = cabinets
+blank it = blanket when after the|a|this|that|my
+blank its = blankets when after the|my
+yell oh = yellow
+a bove = above
+dinning = dining
+flaw = floor when after the|on
 
 # Near-homophones of class, colour and room words.
 bole = bowl

@@ -44,6 +44,13 @@ dont = do not
 doesn't = does not
 can't = cannot
 i'm = i am
+he's = he is
+she's = she is
+how's = how is
+# "Nobody", "no one": no person.
+nobody = no person
+no one = no person
+noone = no person
 im = i am
 didn't = did not
 didnt = did not
@@ -109,6 +116,9 @@ this here -> deictic demonstrative
 those -> deictic demonstrative plural
 these -> deictic demonstrative plural
 it -> deictic pronoun
+he -> deictic pronoun
+she -> deictic pronoun
+him -> deictic pronoun
 they -> deictic pronoun plural
 them -> deictic pronoun plural
 
@@ -392,6 +402,9 @@ i mean -> repair
 or rather -> repair
 rather -> repair
 no wait -> repair
+wait = wait here when after <start> when before <end>
+# "They are both on the bed": "both" after the verb adds nothing.
+both = all when after are|were|is
 wait -> repair
 correction -> repair
 scratch that -> repair
@@ -506,6 +519,25 @@ exists -> there
 all together -> skip
 together -> skip
 standing -> skip
+hanging -> skip
+mounted -> skip
+asleep -> skip
+awake -> skip
+curled up -> skip
+up there -> skip
+down there -> skip
+even -> skip
+# Shape and shade words that name no class, colour or size we read ("the low cabinet", "dark blue").
+low -> skip
+tall -> skip
+high -> skip
+short -> skip
+dark -> skip
+pale -> skip
+bright -> skip
+# "A pile of clothes" is clothes.
+pile of -> skip
+heap of -> skip
 stuck -> skip
 sleeping -> skip
 curled -> skip
@@ -545,6 +577,8 @@ would you -> request
 will you -> request
 bring -> request
 fetch -> request
+scan -> request
+show me -> request
 come -> request
 come back -> request
 go -> request
@@ -572,6 +606,19 @@ can you tell me -> question
 could you tell me -> question
 do you see -> question
 let's -> request
+# Getting going and finding one's place are talk, not requests or questions.
+please do not -> request
+nice one -> thanks
+let me think -> greeting
+ugh -> greeting
+how was your day -> greeting
+how is your day -> greeting
+how is it going -> greeting
+let's get started -> greeting
+let's begin -> greeting
+let's start -> greeting
+where was i -> greeting
+where were we -> greeting
 what -> question thing
 where -> question place
 which -> question

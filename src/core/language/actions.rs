@@ -16,6 +16,8 @@ use super::constraint::{
 use super::lexicon::Side;
 use super::rules::{Action, Match};
 
+mod existence;
+
 /// Confidence of a constraint built only from known words.
 pub const FULL_CONFIDENCE: f32 = 1.0;
 /// Confidence when a word in the constraint was read as a misspelling.
@@ -38,6 +40,10 @@ pub struct Builder {
     /// The thing the last clause said exists ("you missed a mug"): a later "it's on the desk" in the same
     /// utterance, with nothing pointed at, means it.
     introduced: Option<NounPhrase>,
+    /// The things this utterance named so far, latest last (a class named, or the thing pointed at): a
+    /// pronoun landmark ("the bowl is on top of it") means the latest of them that is not its clause's
+    /// subject.
+    named: Vec<Referent>,
     /// A question of this utterance asked about an unnamed thing ("what's that by the desk?"): a later
     /// "it's a mug" with nothing pointed at may mean that thing, so it is not read as a relabel.
     asked_about_unnamed: bool,
@@ -54,6 +60,7 @@ impl Builder {
             last_relation: None,
             owner: None,
             introduced: None,
+            named: Vec::new(),
             asked_about_unnamed: false,
             constraints: Vec::new(),
         }
@@ -72,11 +79,74 @@ impl Builder {
     /// Notes a chunk the parser passed over: `used` when a rule consumed it.
     pub fn mention(&mut self, chunk: &Chunk, used: bool) {
         if let ChunkKind::NounPhrase(phrase) = &chunk.kind {
+            self.name(phrase);
             if let Some(class) = phrase.class {
                 self.last_class = Some(class);
                 self.unused_antecedent = (!used).then(|| phrase.clone());
             }
         }
+    }
+
+    /// Records what a noun phrase names, then its landmarks ("the mug on the table": the table is latest).
+    fn name(&mut self, phrase: &NounPhrase) {
+        let pointed = phrase.class.is_none()
+            && phrase.deictic.is_some_and(|word| !word.pronoun)
+            && self.has_focus;
+        if phrase.class.is_some() || pointed {
+            self.named.push(Referent {
+                class: phrase.class,
+                deixis: pointed.then_some(Deixis::Focus),
+                plural: phrase.plural,
+                attributes: phrase.attributes.clone(),
+                relations: Vec::new(),
+                region: None,
+                span: phrase.span,
+            });
+        }
+        for attached in &phrase.relations {
+            for landmark in &attached.landmarks {
+                self.name(landmark);
+            }
+        }
+    }
+
+    /// A landmark's referent; a pronoun landmark ("the bottle is in the fridge, and the bowl is on top of
+    /// it", "the cat isn't on the bed, it's under it") is the latest thing the utterance named that is not
+    /// the clause's own subject, or the previous referent when there is none.
+    pub(super) fn landmark_referent(
+        &mut self,
+        landmark: &NounPhrase,
+        subject: &NounPhrase,
+    ) -> Referent {
+        let pronoun = landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun);
+        let subject_is_pronoun =
+            subject.class.is_none() && subject.deictic.is_some_and(|word| word.pronoun);
+        let last_subject = self
+            .last_relation
+            .as_ref()
+            .map(|(subject, ..)| subject.clone());
+        if pronoun {
+            let found = self.named.iter().rev().find(|named| {
+                let is_subject = if subject_is_pronoun {
+                    // "It's under it": the first "it" is what the last relation was about.
+                    last_subject.as_ref().is_some_and(|last| {
+                        last.class == named.class && last.deixis == named.deixis
+                    })
+                } else {
+                    named.class == subject.class
+                        && named.deixis.is_none()
+                        && subject.deictic.is_none()
+                };
+                !is_subject
+            });
+            if let Some(found) = found {
+                return Referent {
+                    span: landmark.span,
+                    ..found.clone()
+                };
+            }
+        }
+        self.plain_referent(landmark)
     }
 
     /// Whether this utterance already said `class` is absent.
@@ -200,6 +270,17 @@ impl Builder {
                 // "There's neither a pillow nor a blanket": each listed noun phrase.
                 for np in found.role("np").into_iter().filter_map(phrase) {
                     self.exist(&np, negated, span, misspelled);
+                    // "There's a microwave on the counter and a bowl inside it": the thing said to exist,
+                    // not its landmark, is what a later "it" means.
+                    let mut thing = np.clone();
+                    let relations = std::mem::take(&mut thing.relations);
+                    for attached in &relations {
+                        attached
+                            .landmarks
+                            .iter()
+                            .for_each(|landmark| self.name(landmark));
+                    }
+                    self.name(&thing);
                 }
             }
             Action::Remove => {
@@ -264,6 +345,29 @@ impl Builder {
                         }
                     }
                 }
+            }
+            Action::RelabelPointed => {
+                // Only a note that is nothing but the name, said while pointing.
+                if !self.has_focus || position + found.length != chunks.len() {
+                    return;
+                }
+                let Some(to) = first_phrase("to").and_then(|phrase| phrase.class) else {
+                    return;
+                };
+                let from = first_phrase("from").and_then(|phrase| phrase.class);
+                if from == Some(to) {
+                    return;
+                }
+                let target = self.implicit_target(span);
+                self.push(
+                    ConstraintKind::Relabel {
+                        target,
+                        from,
+                        to: Some(to),
+                    },
+                    span,
+                    misspelled,
+                );
             }
             Action::Relabel => {
                 let target = first_phrase("target");
@@ -365,19 +469,28 @@ impl Builder {
                     });
                     self.apply(&single, chunks, position);
                 }
+                // A pronoun subject ("the bag is on the floor and it's also by the door") stays the previous
+                // referent, `^`, which the conversation binds to what the last constraint was about. A thing
+                // only said to exist is no such referent: "you missed a mug, it's on the desk" (nothing
+                // pointed at, no unused noun phrase) means the mug.
                 let Some(mut subject) = first_phrase("subject") else {
                     return;
                 };
-                // "You missed a mug, it's on the desk": with nothing pointed at and no unused noun phrase, a
-                // pronoun subject means the thing the utterance just said exists.
+                let only_said_to_exist = |introduced: &NounPhrase| {
+                    self.constraints.last().is_some_and(|last| {
+                        matches!(last.kind,
+                            ConstraintKind::Present { class } | ConstraintKind::Count { class, .. }
+                                if Some(class) == introduced.class)
+                    })
+                };
                 if let (Some(word), None, false, None, Some(introduced)) = (
                     subject.deictic,
                     subject.class,
                     self.has_focus,
                     &self.unused_antecedent,
-                    &self.introduced,
+                    self.introduced.as_ref().filter(|np| only_said_to_exist(np)),
                 ) {
-                    if word.pronoun {
+                    if word.pronoun && subject.quantity.is_none() {
                         subject.deictic = None;
                         subject.class = introduced.class;
                         subject.plural = introduced.plural;
@@ -406,6 +519,53 @@ impl Builder {
                     .into_iter()
                     .filter_map(phrase)
                     .collect();
+                // "vase on shelf, NOT on tbl": a noted place before the pause is stated too, and the
+                // subject is the thing itself.
+                let subject_index = found.role("subject").first().copied();
+                let noted = subject_index.is_some_and(|index| {
+                    chunks.get(index + 1).map(|chunk| &chunk.kind) == Some(&ChunkKind::Separator)
+                });
+                if noted && !subject.relations.is_empty() {
+                    let mut plain = subject.clone();
+                    plain.quantity = None;
+                    let relations = std::mem::take(&mut plain.relations);
+                    let referent = self.referent(&plain);
+                    for attached in relations {
+                        let landmarks: Vec<Referent> = attached
+                            .landmarks
+                            .iter()
+                            .map(|landmark| self.plain_referent(landmark))
+                            .collect();
+                        self.push(
+                            ConstraintKind::Relation {
+                                subject: referent.clone(),
+                                relation: attached.relation,
+                                negated: false,
+                                landmarks,
+                            },
+                            span,
+                            misspelled,
+                        );
+                    }
+                    subject.relations.clear();
+                }
+                // "None of them is on the desk": no thing of the class named last is.
+                let mut negated = negated;
+                if subject.class.is_none()
+                    && subject
+                        .deictic
+                        .is_some_and(|word| word.pronoun && word.plural)
+                    && subject.quantity.is_some()
+                {
+                    let Some(class) = self.last_class else { return };
+                    if subject.quantity == Some(Quantity::None) {
+                        negated = !negated;
+                    }
+                    subject.class = Some(class);
+                    subject.deictic = None;
+                    subject.plural = true;
+                    subject.quantity = None;
+                }
                 self.count_of_subject(&subject, span, misspelled);
                 if subject.class.is_some() && subject.quantity != Some(Quantity::None) {
                     self.introduced = Some(subject.clone());
@@ -413,7 +573,7 @@ impl Builder {
                 let subject_referent = self.referent(&subject);
                 let landmarks: Vec<Referent> = landmark_phrases
                     .iter()
-                    .map(|landmark| self.plain_referent(landmark))
+                    .map(|landmark| self.landmark_referent(landmark, &subject))
                     .collect();
                 self.last_relation = Some((subject_referent.clone(), relation, landmarks.clone()));
                 self.push(
@@ -468,9 +628,10 @@ impl Builder {
                 let points_back = landmark_phrases.len() == 1
                     && landmark_phrases[0].class.is_none()
                     && landmark_phrases[0].deictic.is_some_and(|word| word.pronoun);
-                if points_back && negated {
-                    // "On the cabinet, not next to it" is left to the first relation: the trial's dev
-                    // phrasings read it as that one fact.
+                // "In the microwave, not on it": a denial the stated relation excludes is stated too. "On
+                // the cabinet, not next to it" denies what the first relation may well include, so it is
+                // left to that relation.
+                if points_back && negated && !last.excludes(relation) {
                     return;
                 }
                 let landmarks: Vec<Referent> = if points_back {
@@ -504,6 +665,23 @@ impl Builder {
                     ConstraintKind::Relation { negated, .. } => Some(*negated),
                     _ => None,
                 });
+                // "And the bowl is too", the last word heard as "two": only after a singular subject.
+                let number = found
+                    .role("number")
+                    .first()
+                    .map(|&index| &chunks[index].kind);
+                if let Some(kind) = number {
+                    let too = matches!(
+                        kind,
+                        ChunkKind::Number {
+                            quantity: Quantity::Exactly(2),
+                            bare: true
+                        }
+                    );
+                    if !too || first_phrase("subject").is_none_or(|subject| subject.plural) {
+                        return;
+                    }
+                }
                 let (Some(subject), Some((_, relation, landmarks)), Some(false)) = (
                     first_phrase("subject"),
                     self.last_relation.clone(),
@@ -648,313 +826,4 @@ impl Builder {
             }
         }
     }
-
-    /// "The table has a mug on it", "the room has no cat": a relation to "it" is a relation to the owner,
-    /// and to the whole view it is no relation at all.
-    fn have(
-        &mut self,
-        owner: Option<&NounPhrase>,
-        np: &NounPhrase,
-        negated: bool,
-        span: Span,
-        misspelled: bool,
-    ) {
-        let points_back = |attached: &AttachedRelation| {
-            attached.landmarks.iter().all(|landmark| {
-                landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
-            })
-        };
-        let mut np = np.clone();
-        match owner {
-            Some(owner) => {
-                let mut landmark = owner.clone();
-                landmark.quantity = None;
-                self.owner = Some(landmark);
-            }
-            None => {
-                self.owner = None;
-                np.relations.retain(|attached| !points_back(attached));
-            }
-        }
-        self.exist(&np, negated, span, misspelled);
-    }
-
-    /// The relations attached to a demonstrative noun phrase, each stated of what it points at.
-    fn deictic_relations(&mut self, np: &NounPhrase, span: Span, misspelled: bool) {
-        let mut subject = np.clone();
-        let relations = std::mem::take(&mut subject.relations);
-        subject.region = None;
-        let referent = self.referent(&subject);
-        for attached in relations {
-            let wanted = if attached.relation == Relation::Between {
-                2
-            } else {
-                1
-            };
-            // Only landmarks naming a class: "it in bits" places nothing.
-            if attached.landmarks.len() != wanted
-                || attached
-                    .landmarks
-                    .iter()
-                    .any(|landmark| landmark.class.is_none())
-            {
-                continue;
-            }
-            let landmarks = attached
-                .landmarks
-                .iter()
-                .map(|landmark| self.plain_referent(landmark))
-                .collect();
-            self.push(
-                ConstraintKind::Relation {
-                    subject: referent.clone(),
-                    relation: attached.relation,
-                    negated: false,
-                    landmarks,
-                },
-                span,
-                misspelled,
-            );
-        }
-        if let Some(region) = np.region {
-            self.push(
-                ConstraintKind::Place {
-                    subject: referent,
-                    place: Place::Region(region),
-                },
-                span,
-                misspelled,
-            );
-        }
-    }
-
-    /// Relations of `np` to a bare "it" go to the owner of the last "X has ..." of this utterance.
-    fn to_owner(&self, np: &NounPhrase) -> NounPhrase {
-        let mut np = np.clone();
-        if let Some(owner) = &self.owner {
-            for attached in np.relations.iter_mut().filter(|attached| {
-                attached.landmarks.iter().all(|landmark| {
-                    landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
-                })
-            }) {
-                attached.landmarks = vec![owner.clone()];
-            }
-        }
-        np
-    }
-
-    /// "Mugs: two", "the number of mugs is two", "there are exactly two" (of the class named last).
-    fn count(
-        &mut self,
-        np: Option<&NounPhrase>,
-        quantity: Quantity,
-        bare: bool,
-        span: Span,
-        misspelled: bool,
-    ) {
-        let Some(class) = np.and_then(|phrase| phrase.class).or(self.last_class) else {
-            return;
-        };
-        // "No mug, any": a noun phrase whose own quantity disagrees with the number read after it is not
-        // read surely, so it states nothing.
-        if let Some(own) = np.and_then(|phrase| phrase.quantity) {
-            if own != quantity {
-                return;
-            }
-        }
-        // "Add a mug, there's one in this room": a bare "one" with no noun is the pronoun, not a count.
-        let quantity = if np.is_none() && bare && quantity == Quantity::Exactly(1) {
-            Quantity::Some
-        } else {
-            quantity
-        };
-        if let Some(kind) = count_kind(class, quantity, false) {
-            self.push(kind, span, misspelled);
-        }
-    }
-
-    /// "Both chairs are by the table": a stated number on a subject is also a count.
-    fn count_of_subject(&mut self, subject: &NounPhrase, span: Span, misspelled: bool) {
-        if let (Some(class), Some(quantity)) = (subject.class, subject.quantity) {
-            if let Some(kind) = count_kind(class, quantity, false) {
-                if !matches!(kind, ConstraintKind::Present { .. }) {
-                    self.push(kind, span, misspelled);
-                }
-            }
-        }
-    }
-
-    /// "There are two chairs next to the table", "no cats", "there's a mug on the counter".
-    fn exist(&mut self, np: &NounPhrase, negated: bool, span: Span, misspelled: bool) {
-        let mut owned = self.to_owner(np);
-        // "How did you miss the mug? It's right there.": with nothing pointed at, "it" means the noun phrase
-        // the utterance named and no rule used.
-        if let (Some(word), None, None, false, Some(antecedent)) = (
-            owned.deictic,
-            owned.class,
-            owned.quantity,
-            self.has_focus,
-            &self.unused_antecedent,
-        ) {
-            if word.pronoun && !word.plural {
-                let span = owned.span;
-                owned = antecedent.clone();
-                owned.quantity = None;
-                owned.span = span;
-            }
-        }
-        let np = &owned;
-        // "It's one object", "there are three of them": a stated number with no class counts the class the
-        // utterance named last.
-        let counted = matches!(
-            np.quantity,
-            Some(Quantity::Exactly(_) | Quantity::AtLeast(_) | Quantity::AtMost(_))
-        );
-        let elliptical;
-        let np = if np.class.is_none() && counted && self.last_class.is_some() {
-            let mut filled = np.clone();
-            filled.class = self.last_class;
-            filled.deictic = None;
-            elliptical = filled;
-            &elliptical
-        } else {
-            np
-        };
-        if np.deictic.is_some() {
-            return;
-        }
-        // "There aren't five plants": a denied number above one says the count is not that, never that none is
-        // there ("not one mug" is none).
-        if negated
-            && matches!(
-                np.quantity,
-                Some(Quantity::Exactly(2..) | Quantity::AtLeast(_) | Quantity::AtMost(_))
-            )
-        {
-            return;
-        }
-        let zero = negated
-            || matches!(
-                np.quantity,
-                Some(Quantity::None) | Some(Quantity::Exactly(0))
-            );
-        let located = !np.relations.is_empty() || np.region.is_some();
-        if zero && located {
-            // "There are no cats on the bed": the relation is denied, not the class.
-            let mut subject = np.clone();
-            subject.quantity = None;
-            let relations = std::mem::take(&mut subject.relations);
-            subject.region = None;
-            subject.span = np.span;
-            let subject_referent = self.referent(&subject);
-            for attached in relations {
-                let landmarks = attached
-                    .landmarks
-                    .iter()
-                    .map(|landmark| self.plain_referent(landmark))
-                    .collect();
-                self.push(
-                    ConstraintKind::Relation {
-                        subject: subject_referent.clone(),
-                        relation: attached.relation,
-                        negated: true,
-                        landmarks,
-                    },
-                    span,
-                    misspelled,
-                );
-            }
-            return;
-        }
-        if np.class.is_some() && !zero && np.deictic.is_none() {
-            self.introduced = Some(np.clone());
-        }
-        if let Some(class) = np.class {
-            let quantity = if zero {
-                Quantity::None
-            } else {
-                np.quantity.unwrap_or(Quantity::Some)
-            };
-            if let Some(kind) = count_kind(class, quantity, negated) {
-                self.push(kind, span, misspelled);
-            }
-        }
-        if !located {
-            // "There's a big box": the attributes are stated of the thing said to exist.
-            if !zero && !np.attributes.is_empty() {
-                let mut target = np.clone();
-                target.quantity = None;
-                let attributes = std::mem::take(&mut target.attributes);
-                let target = self.referent(&target);
-                for attribute in attributes {
-                    self.push(
-                        ConstraintKind::Attribute {
-                            target: target.clone(),
-                            attribute,
-                        },
-                        span,
-                        misspelled,
-                    );
-                }
-            }
-            self.seen_referent = true;
-            return;
-        }
-        let mut subject = np.clone();
-        subject.quantity = None;
-        let relations = std::mem::take(&mut subject.relations);
-        let region = subject.region.take();
-        let subject_referent = self.referent(&subject);
-        for attached in relations {
-            let landmarks = attached
-                .landmarks
-                .iter()
-                .map(|landmark| self.plain_referent(landmark))
-                .collect();
-            self.push(
-                ConstraintKind::Relation {
-                    subject: subject_referent.clone(),
-                    relation: attached.relation,
-                    negated: false,
-                    landmarks,
-                },
-                span,
-                misspelled,
-            );
-        }
-        if let Some(region) = region {
-            self.push(
-                ConstraintKind::Place {
-                    subject: subject_referent,
-                    place: Place::Region(region),
-                },
-                span,
-                misspelled,
-            );
-        }
-    }
-}
-
-/// The existence constraint a quantity states about a class.
-fn count_kind(class: ClassId, quantity: Quantity, _negated: bool) -> Option<ConstraintKind> {
-    Some(match quantity {
-        Quantity::None | Quantity::Exactly(0) | Quantity::AtMost(0) => {
-            ConstraintKind::Absent { class }
-        }
-        Quantity::Some | Quantity::AtLeast(0) | Quantity::AtLeast(1) => {
-            ConstraintKind::Present { class }
-        }
-        Quantity::Exactly(n) => ConstraintKind::Count {
-            class,
-            count: Count::Exactly(n),
-        },
-        Quantity::AtLeast(n) => ConstraintKind::Count {
-            class,
-            count: Count::AtLeast(n),
-        },
-        Quantity::AtMost(n) => ConstraintKind::Count {
-            class,
-            count: Count::AtMost(n),
-        },
-    })
 }

@@ -3,7 +3,9 @@
 //! Owns: pointing phrases ("the thing I'm pointing at", "what I'm looking at" become a demonstrative, so they
 //! point at the operator's focus), locatives that name the whole view ("in this room", "in the picture",
 //! "in this one": dropped, never a landmark), "with" modifiers ("the mug w/ the box around it": dropped up to
-//! the next verb or pause) and intensifiers directly before a relation ("right next to", "just left of").
+//! the next verb or pause), intensifiers directly before a relation ("right next to", "just left of") and
+//! the name of a household member or pet after the word for them ("my grandad Osric", "our puppy, Noodle,"),
+//! and a note's "sofa w/ five cushions" (a piece of furniture with counted things: they are on it).
 //! Must not: decide what a clause means; it only re-tags or drops items, recording what it dropped.
 
 use super::constraint::{Relation, Span};
@@ -177,4 +179,110 @@ pub fn drop_asides(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -
         index += dropped;
     }
     kept
+}
+
+/// Drops a name given after a word for a person or a pet ("my grandad Osric", "our puppy, Noodle, is"): a
+/// word nobody knows directly after such a class word (or between two pauses after it) is what they are
+/// called, which says nothing more about the scene.
+pub fn drop_names(
+    items: Vec<Item>,
+    living: impl Fn(crate::ids::ClassId) -> bool,
+    ignored: &mut Vec<(Span, IgnoredReason)>,
+) -> Vec<Item> {
+    if !items.iter().any(|item| item.tag == ItemTag::Unknown) {
+        return items;
+    }
+    let mut kept: Vec<Item> = Vec::with_capacity(items.len());
+    let mut index = 0;
+    while index < items.len() {
+        let after_living = matches!(
+            tag_of(kept.last()),
+            Some(Tag::Class { class, plural: false }) if living(class)
+        );
+        if after_living {
+            let name = |at: usize| {
+                items
+                    .get(at)
+                    .is_some_and(|item| item.tag == ItemTag::Unknown)
+            };
+            let pause = |at: usize| items.get(at).is_some_and(|item| item.tag == ItemTag::Pause);
+            // "puppy Noodle" or "puppy, Noodle," (both pauses go with the name).
+            let length = if name(index) {
+                1
+            } else if pause(index) && name(index + 1) && pause(index + 2) {
+                3
+            } else {
+                0
+            };
+            if length > 0 {
+                let span = items[index].span.cover(items[index + length - 1].span);
+                ignored.push((span, IgnoredReason::FunctionWord));
+                index += length;
+                continue;
+            }
+        }
+        kept.push(items[index].clone());
+        index += 1;
+    }
+    kept
+}
+
+/// "sofa w/ five cushions", "table with 6 plates": a piece of furniture (`support`) followed by "with" and a
+/// counted class says those things are on it, read as "sofa has five cushions on it". Anything else keeps
+/// its "with" for `drop_asides`.
+pub fn with_contents(items: Vec<Item>, support: impl Fn(crate::ids::ClassId) -> bool) -> Vec<Item> {
+    if !items
+        .iter()
+        .any(|item| item.tag == ItemTag::Lexicon(Tag::With))
+    {
+        return items;
+    }
+    let mut out: Vec<Item> = Vec::with_capacity(items.len() + 2);
+    let mut index = 0;
+    while index < items.len() {
+        let owner = index > 0
+            && matches!(
+                tag_of(items.get(index - 1)),
+                Some(Tag::Class { class, plural: false }) if support(class)
+            );
+        let counted = matches!(
+            tag_of(items.get(index + 1)),
+            Some(Tag::Number(_) | Tag::Tens(_))
+        );
+        let mut head = index + 2;
+        while matches!(tag_of(items.get(head)), Some(Tag::Colour(_) | Tag::Size(_))) {
+            head += 1;
+        }
+        let contents = matches!(tag_of(items.get(head)), Some(Tag::Class { .. }));
+        if items[index].tag == ItemTag::Lexicon(Tag::With) && owner && counted && contents {
+            out.push(Item {
+                tag: ItemTag::Lexicon(Tag::Have),
+                ..items[index].clone()
+            });
+            out.extend(items[index + 1..=head].iter().cloned());
+            let end = items[head].span.end;
+            for (tag, text) in [
+                (Tag::Relation(Relation::On), "on"),
+                (
+                    Tag::Deictic {
+                        pronoun: true,
+                        plural: false,
+                    },
+                    "it",
+                ),
+            ] {
+                out.push(Item {
+                    tag: ItemTag::Lexicon(tag),
+                    span: Span::new(end, end),
+                    text: text.to_string(),
+                    misspelled: false,
+                });
+            }
+            index = head + 1;
+            continue;
+        }
+        out.push(items[index].clone());
+        index += 1;
+    }
+    out
 }

@@ -189,6 +189,13 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
             index += 1;
         }
     }
+    // A room word before a class word modifies it: "the kitchen table" is a table.
+    if let (Some(Tag::Room(_)), Some(Tag::Class { .. })) = (
+        lexicon_tag(items.get(index)),
+        lexicon_tag(items.get(index + 1)),
+    ) {
+        index += 1;
+    }
     // A room after a determiner: "the kitchen".
     if let Some(Tag::Room(room)) = lexicon_tag(items.get(index)) {
         if quantity.is_none() && deictic.is_none() {
@@ -256,8 +263,10 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
         Some(Tag::Deictic {
             pronoun,
             plural: true,
-        }) if lead_number.is_some() && attributes.is_empty() => {
-            // "two of them", "three of those".
+        }) if (lead_number.is_some() || (quantity_word && quantity == Some(Quantity::None)))
+            && attributes.is_empty() =>
+        {
+            // "two of them", "three of those", "none of them".
             deictic = Some(DeicticWord {
                 pronoun,
                 plural: true,
@@ -340,11 +349,17 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
             // before a word nobody knows is rather a modifier of an unknown head (English compounds end in
             // their head), so the phrase names nothing we know. A word known as written keeps its reading
             // ("twelve mugs total").
-            let named = chunk.misspelled
-                && matches!(&chunk.kind, ChunkKind::NounPhrase(phrase) if phrase.class.is_some());
-            let head_unknown = items
-                .get(index + used.max(1))
-                .is_some_and(|next| next.tag == ItemTag::Unknown);
+            // So is a singular class word known as written after "a" ("that's a coat rack"): English compounds
+            // end in their head. Elsewhere a word after the noun is more often a verb or an aside ("the mug
+            // you've got", "two stairs total"), and a plural modifier is rare.
+            let named = matches!(&chunk.kind, ChunkKind::NounPhrase(phrase)
+                if phrase.class.is_some() && (chunk.misspelled || (phrase.article && !phrase.plural)));
+            // A participle after the noun ("the dog by the stove begging") is no compound head.
+            let head_unknown = items.get(index + used.max(1)).is_some_and(|next| {
+                next.tag == ItemTag::Unknown
+                    && (chunk.misspelled
+                        || !(next.text.ends_with("ing") || next.text.ends_with("ed")))
+            });
             if named && head_unknown {
                 chunk.kind = ChunkKind::Other;
             }
@@ -462,11 +477,52 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
         let wanted = next
             .filter(|_| !joined)
             .and_then(|j| repair_kind(&chunks[j].kind));
-        let earlier = wanted.and_then(|wanted| {
+        let mut earlier = wanted.and_then(|wanted| {
             (index.saturating_sub(4)..index)
                 .rev()
                 .find(|&k| repair_kind(&chunks[k].kind) == Some(wanted))
         });
+        // "Five pillows on the couch, no wait, six": a bare number repairs the nearest counted noun phrase,
+        // past a landmark named after it.
+        if let Some(j) = next.filter(|_| !joined) {
+            let counted = (index.saturating_sub(6)..index)
+                .rev()
+                .find(|&k| counted_then_number(&chunks[k].kind, &chunks[j].kind));
+            if counted.is_some() {
+                earlier = counted;
+            }
+        }
+        // "The television is in front of the sofa, no wait, the sofa's in front of the tv": a whole clause
+        // after the cue repairs the whole clause before it.
+        if let Some(j) = next.filter(|_| !joined) {
+            let clause_follows =
+                matches!(chunks[j].kind, ChunkKind::NounPhrase(_) | ChunkKind::There)
+                    && chunks
+                        .get(j + 1)
+                        .is_some_and(|chunk| chunk.kind == ChunkKind::Be);
+            let mut before_cue = index;
+            while before_cue > 0 && chunks[before_cue - 1].kind == ChunkKind::Separator {
+                before_cue -= 1;
+            }
+            let start = (0..before_cue)
+                .rev()
+                .find(|&k| matches!(chunks[k].kind, ChunkKind::Separator | ChunkKind::And))
+                .map_or(0, |k| k + 1);
+            // The clause before has the same opening (a noun phrase, or "there", then a verb) and one verb:
+            // a run-on of several clauses is not taken back whole.
+            let same_opening = std::mem::discriminant(&chunks[start].kind)
+                == std::mem::discriminant(&chunks[j].kind)
+                && chunks
+                    .get(start + 1)
+                    .is_some_and(|chunk| chunk.kind == ChunkKind::Be);
+            let verbs = (start..before_cue)
+                .filter(|&k| chunks[k].kind == ChunkKind::Be)
+                .count();
+            let clause_before = same_opening && verbs == 1;
+            if clause_follows && clause_before {
+                earlier = Some(start);
+            }
+        }
         match (earlier, next) {
             // "Nine chairs, actually no, six": a bare number after the cue replaces only the quantity of the
             // counted noun phrase it repairs.
@@ -476,19 +532,23 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                 {
                     let mut phrase = phrase.clone();
                     phrase.quantity = Some(*quantity);
-                    phrase.span = phrase.span.cover(chunks[to].span);
-                    let span = chunks[from].span.cover(chunks[to].span);
-                    ignored.push((
-                        chunks[from + 1].span.cover(chunks[to - 1].span),
-                        IgnoredReason::SelfRepair,
-                    ));
                     let misspelled = chunks[from].misspelled || chunks[to].misspelled;
                     chunks[from] = Chunk {
                         kind: ChunkKind::NounPhrase(phrase),
-                        span,
+                        span: chunks[from].span,
                         misspelled,
                     };
-                    chunks.drain(from + 1..=to);
+                    // What came between ("on the couch" in "five pillows on the couch, no wait, six")
+                    // stays; the cue, its pauses and the number go.
+                    let mut cut = index;
+                    while cut > from + 1 && chunks[cut - 1].kind == ChunkKind::Separator {
+                        cut -= 1;
+                    }
+                    ignored.push((
+                        chunks[cut].span.cover(chunks[to].span),
+                        IgnoredReason::SelfRepair,
+                    ));
+                    chunks.drain(cut..=to);
                 }
                 index = from + 1;
             }
@@ -622,8 +682,17 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
 fn share_relations(chunks: &mut [Chunk]) {
     for index in (0..chunks.len().saturating_sub(2)).rev() {
         let shared = match (&chunks[index + 1].kind, &chunks[index + 2].kind) {
+            // "A table and a mug on it": a landmark that points back is the phrase before, never shared,
+            // unless an owner comes first ("the desk has a laptop and a lamp on it").
             (ChunkKind::And, ChunkKind::NounPhrase(next))
-                if !next.relations.is_empty() || next.region.is_some() =>
+                if (!next.relations.is_empty() || next.region.is_some())
+                    && (index > 0 && chunks[index - 1].kind == ChunkKind::Have
+                        || !next.relations.iter().any(|attached| {
+                            attached.landmarks.iter().any(|landmark| {
+                                landmark.class.is_none()
+                                    && landmark.deictic.is_some_and(|word| word.pronoun)
+                            })
+                        })) =>
             {
                 (next.relations.clone(), next.region)
             }

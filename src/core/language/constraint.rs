@@ -60,6 +60,27 @@ pub enum Relation {
     Between,
 }
 
+impl Relation {
+    /// Whether a thing in this relation to a landmark cannot also be in `other` to it, by the relations'
+    /// own definitions above: opposite ends of one axis (on or above against under or below, left of against
+    /// right of, in front of against behind) and inside against on, under, above or below. "Next to" and
+    /// "between" exclude nothing ("on the desk, not next to it" may deny no more than the place shown).
+    pub fn excludes(self, other: Relation) -> bool {
+        use Relation::*;
+        let up = |r: Relation| matches!(r, On | Above);
+        let down = |r: Relation| matches!(r, Under | Below);
+        let vertical = |r: Relation| up(r) || down(r);
+        (up(self) && down(other))
+            || (down(self) && up(other))
+            || (self == Inside && vertical(other))
+            || (vertical(self) && other == Inside)
+            || matches!(
+                (self, other),
+                (LeftOf, RightOf) | (RightOf, LeftOf) | (InFrontOf, Behind) | (Behind, InFrontOf)
+            )
+    }
+}
+
 /// A part of the image named from the camera's point of view.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
@@ -218,4 +239,19 @@ pub struct Constraint {
     pub confidence: f32,
     /// A short plain-English gloss, e.g. "exactly 2 chair".
     pub gloss: String,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::Relation::*;
+
+    #[test]
+    fn opposite_ends_of_an_axis_exclude_each_other_and_next_to_excludes_nothing() {
+        assert!(On.excludes(Under) && Under.excludes(Above) && Below.excludes(On));
+        assert!(LeftOf.excludes(RightOf) && Behind.excludes(InFrontOf));
+        assert!(Inside.excludes(On) && On.excludes(Inside));
+        assert!(!On.excludes(Above) && !Under.excludes(Below));
+        assert!(!On.excludes(NextTo) && !NextTo.excludes(On) && !LeftOf.excludes(Behind));
+        assert!(!Between.excludes(LeftOf) && !On.excludes(On));
+    }
 }

@@ -15,9 +15,9 @@ use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
 use super::answers::{asked, complete, Asked};
-use super::asides::{drop_asides, resolve_pointing};
+use super::asides::{drop_asides, drop_names, resolve_pointing, with_contents};
 use super::chunks::{attach, chunk, repair, ChunkKind};
-use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Span};
+use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Referent, Span};
 use super::error::{GrammarError, LanguageError};
 use super::lexicon::{Lexicon, Tag};
 use super::normalise::normalise;
@@ -333,7 +333,19 @@ impl Grammar {
                 }
                 other_kinds.push(kind);
             }
-            let items = drop_asides(clean(sentence.items, &mut ignored_raw), &mut ignored_raw);
+            let support = |class: crate::ids::ClassId| {
+                self.taxonomy
+                    .class(class)
+                    .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Furniture)
+            };
+            let items = with_contents(clean(sentence.items, &mut ignored_raw), support);
+            let items = drop_asides(items, &mut ignored_raw);
+            let living = |class: crate::ids::ClassId| {
+                self.taxonomy
+                    .class(class)
+                    .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Living)
+            };
+            let items = drop_names(items, living, &mut ignored_raw);
             let mut chunks = repair(chunk(&items), &mut ignored_raw);
             if let Some(open) = &open {
                 chunks = complete(open, chunks);
@@ -435,16 +447,41 @@ impl Grammar {
 fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
     let mut out: Vec<Constraint> = Vec::new();
     for constraint in built {
-        if out.iter().any(|earlier| earlier.kind == constraint.kind) {
+        // Said twice ("the telly's on the wall, you know, mounted on the wall"): the same constraint, wherever
+        // its words were.
+        if out
+            .iter()
+            .any(|earlier| same_saying(&earlier.kind, &constraint.kind))
+        {
             continue;
+        }
+        // "The lamp is red, not yellow, it's red": "it" (the previous referent) said again what the
+        // constraint before said of the lamp.
+        let takes_up_previous = about(&constraint.kind).is_some_and(|target| {
+            target.deixis == Some(Deixis::Previous) && target.class.is_none()
+        });
+        if let Some(previous) = out
+            .last()
+            .and_then(|last| about(&last.kind))
+            .filter(|_| takes_up_previous)
+        {
+            let mut bound = constraint.kind.clone();
+            if let Some(target) = about_mut(&mut bound) {
+                if target.deixis == Some(Deixis::Previous) && target.class.is_none() {
+                    *target = previous.clone();
+                    if out.iter().any(|earlier| same_saying(&earlier.kind, &bound)) {
+                        continue;
+                    }
+                }
+            }
         }
         if let (
             Some(Constraint {
                 kind:
                     ConstraintKind::Relabel {
+                        target: earlier_target,
                         from: Some(_),
                         to: to @ None,
-                        ..
                     },
                 span,
                 ..
@@ -456,7 +493,7 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
             },
         ) = (out.last_mut(), &constraint.kind)
         {
-            if target.deixis == Some(Deixis::Previous) && target.class.is_none() {
+            if same_thing(target, earlier_target) {
                 *to = Some(*named);
                 *span = span.cover(constraint.span);
                 continue;
@@ -467,9 +504,9 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
             Some(Constraint {
                 kind:
                     ConstraintKind::Relabel {
+                        target: earlier_target,
                         from: from @ None,
                         to: to @ Some(_),
-                        ..
                     },
                 span,
                 ..
@@ -481,10 +518,7 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
             },
         ) = (out.last_mut(), &constraint.kind)
         {
-            if target.deixis == Some(Deixis::Previous)
-                && target.class.is_none()
-                && *to != Some(*named)
-            {
+            if same_thing(target, earlier_target) && *to != Some(*named) {
                 *from = *to;
                 *to = Some(*named);
                 *span = span.cover(constraint.span);
@@ -503,6 +537,115 @@ fn join_relabels(built: Vec<Constraint>) -> Vec<Constraint> {
         out.push(constraint);
     }
     out
+}
+
+/// What an attribute, place or relation constraint is about.
+fn about(kind: &ConstraintKind) -> Option<&Referent> {
+    match kind {
+        ConstraintKind::Attribute { target, .. } => Some(target),
+        ConstraintKind::Place { subject, .. } | ConstraintKind::Relation { subject, .. } => {
+            Some(subject)
+        }
+        _ => None,
+    }
+}
+
+fn about_mut(kind: &mut ConstraintKind) -> Option<&mut Referent> {
+    match kind {
+        ConstraintKind::Attribute { target, .. } => Some(target),
+        ConstraintKind::Place { subject, .. } | ConstraintKind::Relation { subject, .. } => {
+            Some(subject)
+        }
+        _ => None,
+    }
+}
+
+/// Whether two constraints say the same thing, wherever their words were (spans are not compared).
+fn same_saying(a: &ConstraintKind, b: &ConstraintKind) -> bool {
+    fn same(a: &Referent, b: &Referent) -> bool {
+        a.class == b.class
+            && a.deixis == b.deixis
+            && a.plural == b.plural
+            && a.attributes == b.attributes
+            && a.region == b.region
+            && a.relations.len() == b.relations.len()
+            && a.relations.iter().zip(&b.relations).all(|(x, y)| {
+                x.relation == y.relation
+                    && x.negated == y.negated
+                    && x.landmarks.len() == y.landmarks.len()
+                    && x.landmarks
+                        .iter()
+                        .zip(&y.landmarks)
+                        .all(|(p, q)| same(p, q))
+            })
+    }
+    match (a, b) {
+        (
+            ConstraintKind::Relation {
+                subject: s1,
+                relation: r1,
+                negated: n1,
+                landmarks: l1,
+            },
+            ConstraintKind::Relation {
+                subject: s2,
+                relation: r2,
+                negated: n2,
+                landmarks: l2,
+            },
+        ) => {
+            r1 == r2
+                && n1 == n2
+                && same(s1, s2)
+                && l1.len() == l2.len()
+                && l1.iter().zip(l2).all(|(p, q)| same(p, q))
+        }
+        (
+            ConstraintKind::Place {
+                subject: s1,
+                place: p1,
+            },
+            ConstraintKind::Place {
+                subject: s2,
+                place: p2,
+            },
+        ) => p1 == p2 && same(s1, s2),
+        (
+            ConstraintKind::Attribute {
+                target: t1,
+                attribute: a1,
+            },
+            ConstraintKind::Attribute {
+                target: t2,
+                attribute: a2,
+            },
+        ) => a1 == a2 && same(t1, t2),
+        (
+            ConstraintKind::Relabel {
+                target: t1,
+                from: f1,
+                to: o1,
+            },
+            ConstraintKind::Relabel {
+                target: t2,
+                from: f2,
+                to: o2,
+            },
+        ) => f1 == f2 && o1 == o2 && same(t1, t2),
+        _ => a == b,
+    }
+}
+
+/// Whether a later relabel's target is the earlier one's thing: "it" with nothing named (the previous
+/// referent), or the same pointed or named thing taken up by a pronoun ("that's not a wall, it's the
+/// ceiling" while pointing).
+fn same_thing(later: &Referent, earlier: &Referent) -> bool {
+    let previous = later.deixis == Some(Deixis::Previous) && later.class.is_none();
+    let taken_up = later.deixis == earlier.deixis
+        && later.class == earlier.class
+        && later.relations.is_empty()
+        && (later.deixis.is_some() || later.class.is_some());
+    previous || taken_up
 }
 
 /// The class a presence, absence or count constraint is about.
@@ -534,8 +677,16 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     });
     // "Could you check under the sofa?": a request put as a question is still a request.
     if question_mark {
+        // "So, how was your day?": a question that is nothing but a pleasantry is talk.
+        let pleasantry = items.iter().all(|item| {
+            matches!(
+                item.tag,
+                ItemTag::Pause | ItemTag::Lexicon(Tag::Filler | Tag::Skip | Tag::Greeting)
+            )
+        });
         return Some(match first.map(|item| item.tag) {
             Some(ItemTag::Lexicon(Tag::Request)) => UtteranceKind::Request,
+            _ if pleasantry && first.is_some() => UtteranceKind::ChitChat,
             _ => UtteranceKind::Question,
         });
     }

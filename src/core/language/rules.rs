@@ -40,6 +40,8 @@ pub enum Symbol {
     Where,
     /// A bare "left" or "right" ("L: mug, R: lamp").
     Side,
+    /// A word nobody knows (a chunk no other symbol takes).
+    Unknown,
     Separator,
     /// Zero-width: the clause opens here (the sentence's start or just after a pause).
     Start,
@@ -47,6 +49,8 @@ pub enum Symbol {
     First,
     /// Zero-width: the clause ends here (the sentence's end or just before a pause).
     End,
+    /// Zero-width: the sentence ends here (no pause counts).
+    Last,
 }
 
 /// A narrowing of a symbol.
@@ -66,6 +70,9 @@ pub enum Filter {
     Described,
     /// A noun phrase naming a class, with no deictic word and no zero quantity ("mug", "the mug").
     Named,
+    /// A class word alone, perhaps with "the", "a" or colour and size words: no quantity, deictic word,
+    /// relation or region ("bowl", "a towel", "the red mug").
+    Bare,
     /// A relation phrase of one relation.
     Relation(Relation),
 }
@@ -92,6 +99,9 @@ pub enum Action {
     /// "mugs by desk", "a cat to L of lamp": as `exist`, but the bare noun states no presence of its own.
     Located,
     Relabel,
+    /// "bowl" alone while pointing: the whole note names the thing pointed at; with nothing pointed at it
+    /// states nothing.
+    RelabelPointed,
     RelabelCalled,
     RoomType,
     Relation,
@@ -120,6 +130,7 @@ impl Action {
             "remove" => Action::Remove,
             "located" => Action::Located,
             "relabel" => Action::Relabel,
+            "relabel_pointed" => Action::RelabelPointed,
             "relabel_called" => Action::RelabelCalled,
             "room_type" => Action::RoomType,
             "relation" => Action::Relation,
@@ -141,6 +152,7 @@ impl Action {
             Action::Exist | Action::Located | Action::Remove => (&["np"], &["negated"]),
             Action::Relabel => (&[], &["target", "from", "to"]),
             Action::RelabelCalled => (&["target", "from"], &[]),
+            Action::RelabelPointed => (&["to"], &["from"]),
             Action::RoomType => (&["room"], &["negated"]),
             Action::Relation => (&["subject", "relation", "landmark"], &["negated"]),
             Action::Place => (&["subject"], &["room", "region"]),
@@ -148,7 +160,7 @@ impl Action {
             Action::Have => (&["owner", "np"], &["negated"]),
             Action::Count => (&["number"], &["np", "negated", "denied"]),
             Action::RelationMore => (&["landmark"], &["relation", "negated"]),
-            Action::RelationSame => (&["subject"], &[]),
+            Action::RelationSame => (&["subject"], &["number"]),
             Action::Unread => (&[], &[]),
             Action::Sides => (&["side", "subject", "landmark"], &[]),
         }
@@ -330,9 +342,11 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "SEP" => Symbol::Separator,
             "WHERE" => Symbol::Where,
             "SIDE" => Symbol::Side,
+            "UNKNOWN" => Symbol::Unknown,
             "START" => Symbol::Start,
             "FIRST" => Symbol::First,
             "END" => Symbol::End,
+            "LAST" => Symbol::Last,
             other => return Err(format!("unknown symbol '{other}'")),
         };
         let filter = match (symbol, filter_name) {
@@ -344,6 +358,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             (Symbol::NounPhrase, Some("indefinite")) => Some(Filter::Indefinite),
             (Symbol::NounPhrase, Some("described")) => Some(Filter::Described),
             (Symbol::NounPhrase, Some("named")) => Some(Filter::Named),
+            (Symbol::NounPhrase, Some("bare")) => Some(Filter::Bare),
             (Symbol::Relation | Symbol::Reciprocal, Some(name)) => {
                 Some(Filter::Relation(parse_relation(name)?))
             }
@@ -386,6 +401,13 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
                     && phrase.deictic.is_none()
                     && !matches!(phrase.quantity, Some(Quantity::None | Quantity::Exactly(0)))
             }
+            Some(Filter::Bare) => {
+                phrase.class.is_some()
+                    && phrase.quantity.is_none()
+                    && phrase.deictic.is_none()
+                    && phrase.relations.is_empty()
+                    && phrase.region.is_none()
+            }
             Some(Filter::Relation(_)) => false,
         },
         (Symbol::Relation, ChunkKind::Relation(relation))
@@ -415,7 +437,8 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
         | (Symbol::And, ChunkKind::And)
         | (Symbol::Where, ChunkKind::Where)
         | (Symbol::Side, ChunkKind::Side(_))
-        | (Symbol::Separator, ChunkKind::Separator) => true,
+        | (Symbol::Separator, ChunkKind::Separator)
+        | (Symbol::Unknown, ChunkKind::Other) => true,
         _ => false,
     }
 }
@@ -433,12 +456,13 @@ fn match_items<'rule>(
     if let Some(boundary) = item.alternatives.iter().find(|alternative| {
         matches!(
             alternative.symbol,
-            Symbol::Start | Symbol::First | Symbol::End
+            Symbol::Start | Symbol::First | Symbol::End | Symbol::Last
         )
     }) {
         let at_boundary = match boundary.symbol {
             Symbol::First => position == 0,
             Symbol::Start => position == 0 || chunks[position - 1].kind == ChunkKind::Separator,
+            Symbol::Last => position == chunks.len(),
             _ => chunks
                 .get(position)
                 .is_none_or(|chunk| chunk.kind == ChunkKind::Separator),

@@ -172,10 +172,13 @@ fn rewrite(
             // "box betw. bed and desk": a period glued to a clipped relation word, with words after it,
             // marks the clipping; a relation never ends a note.
             let words_of: Vec<&str> = replacement.iter().map(String::as_str).collect();
+            // "cab. under sink": so does one glued to a clipped class word the notes expand.
             let is_relation = matches!(
                 lexicon.longest_phrase(&words_of),
-                Some(super::lexicon::Found { tag: Tag::Relation(_), words }) if words == words_of.len()
-            );
+                Some(super::lexicon::Found { tag: Tag::Relation(_) | Tag::Class { .. }, words })
+                    if words == words_of.len()
+            ) && length == 1
+                && token.text.chars().count() < words_of.concat().chars().count();
             let clipped = is_relation
                 && tokens.get(index + length).is_some_and(|dot| {
                     dot.text == "." && dot.span.start == tokens[index + length - 1].span.end
@@ -491,6 +494,12 @@ pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<
                 .iter()
                 .zip(second)
                 .all(|(&a, &b)| kept[a].text == kept[b].text && kept[a].tag == kept[b].tag);
+            // "a bowl under desk, desk w/ 10 vases": a landmark ending one clause and the subject opening
+            // the next, a pause between, are two mentions, not a stutter.
+            let paused = second[0] > first[length - 1] + 1;
+            let landmark = first[0] > 0
+                && matches!(kept[first[0] - 1].tag, ItemTag::Lexicon(Tag::Relation(_)));
+            let same = same && !(length == 1 && paused && landmark);
             if same {
                 let from = first[0];
                 let to = second[0];

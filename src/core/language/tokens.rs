@@ -1,7 +1,7 @@
 //! Tokenisation of normalised text into words and clause punctuation, with spans into the original text.
 //!
 //! Owns: `Token`, word boundaries (Unicode UAX #29 via unicode-segmentation), which punctuation separates
-//! clauses or sentences, note symbols kept as words for the lexicon to read ("/", "+", "&", "=", a
+//! clauses or sentences, note symbols kept as words for the lexicon to read ("/", "+", "&", "=", "@", a
 //! spaced dash), and word fragments cut off with a hyphen ("the m- the mug").
 //! Must not: know any vocabulary; tagging is `lexicon`'s job.
 
@@ -104,7 +104,7 @@ pub fn tokenise(normalised: &Normalised) -> Vec<Token> {
 
 /// Symbols that field notes use as words or separators: the lexicon says what each one means.
 fn is_note_symbol(piece: &str) -> bool {
-    !piece.is_empty() && piece.chars().all(|c| "/+&=<>~".contains(c)) || piece == "-"
+    !piece.is_empty() && piece.chars().all(|c| "/+&=<>~@".contains(c)) || piece == "-"
 }
 
 /// The original span of normalised characters `start..end`.

@@ -1,10 +1,12 @@
-//! The operator-styles corpus (tests/language/styles_dev.jsonl and styles_heldout.jsonl, written blind by
-//! tests/language/styles_generator/) run through the parser: strict frame recall per style, constraints
-//! produced from sentences that are not corrections, and relabels nobody asked for.
+//! The operator-styles corpora run through the parser: strict frame recall per style, constraints produced
+//! from sentences that are not corrections, and relabels nobody asked for. Two corpora, each split into a
+//! development and a held-out file: tests/language/styles_dev.jsonl and styles_heldout.jsonl (written blind
+//! by tests/language/styles_generator/), and styles_fresh_dev.jsonl and styles_fresh_heldout.jsonl (written
+//! by hand, blind, by a helper who never saw the parser; tests/language/styles_fresh.md says how).
 //!
-//! Owns: reading the two style files, scoring each line, printing the figures (and, for the development
-//! file only, the failing lines) and holding the floors.
-//! Must not: adjust expectations or print held-out lines; the held-out file is reported, never tuned on.
+//! Owns: reading the style files, scoring each line, printing the figures (and, for the development files
+//! only, the failing lines) and holding the floors.
+//! Must not: adjust expectations or print held-out lines; a held-out file is reported, never tuned on.
 
 use std::collections::BTreeMap;
 
@@ -164,12 +166,12 @@ fn print_figures(title: &str, result: &Score) {
 
 /// Per-style floors on the development file: what the parser reached when the floors were last raised
 /// (a regression fails the test).
-/// Measured 2026-12-05 (session 4): 167, 163, 151, 165, 167 and 167 of 167 lines (980/1002).
+/// Measured 2026-12-05 (session 5): 167 of 167 lines in every style (1002/1002).
 const DEV_FLOORS: [(&str, f64); 6] = [
     ("asr_slip", 99.5),
-    ("field_note", 97.5),
-    ("hard", 90.0),
-    ("not_a_correction", 98.5),
+    ("field_note", 99.5),
+    ("hard", 99.5),
+    ("not_a_correction", 99.5),
     ("speech", 99.5),
     ("typed_tidy", 99.5),
 ];
@@ -207,11 +209,10 @@ fn development_styles_recall_per_style() {
 
 const DEV_MAX_SPURIOUS: usize = 0;
 
-/// Held-out floors at the measured figures (2026-12-05, session 4: 460/498 = 92.4%, one unasked relabel, two
-/// constraints from non-corrections); the goals of zero are not reached yet.
-const HELDOUT_FLOOR: f64 = 92.3;
-const HELDOUT_MAX_UNASKED_RELABELS: usize = 1;
-const HELDOUT_MAX_SPURIOUS: usize = 2;
+/// Held-out floor at the measured figure (2026-12-05, session 5: 471/498 = 94.6%, no unasked relabel, one
+/// constraint from 83 non-corrections); the goal of no constraint is not reached yet.
+const HELDOUT_FLOOR: f64 = 94.5;
+const HELDOUT_MAX_SPURIOUS: usize = 1;
 
 /// The held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -230,6 +231,88 @@ fn heldout_styles_figures_are_reported() {
         result.passed,
         result.total
     );
-    assert!(result.unasked_relabels <= HELDOUT_MAX_UNASKED_RELABELS);
-    assert!(result.spurious_constraints <= HELDOUT_MAX_SPURIOUS);
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the held-out file"
+    );
+    assert!(
+        result.spurious_constraints <= HELDOUT_MAX_SPURIOUS,
+        "{} constraints from non-corrections on the held-out file",
+        result.spurious_constraints
+    );
+}
+
+/// Per-style floors on the fresh development file (324 lines, 54 per style). When the file arrived the parser
+/// of session 4 read 42, 48, 21, 44, 39 and 49 of 54 lines (243/324, 75.0%; 2 constraints from 54
+/// non-corrections, 4 unasked relabels, 36 lines misread); at the end of session 5 it reads 53, 54, 46, 53,
+/// 52 and 54 (312/324, 96.3%; none, none, 6).
+const FRESH_DEV_FLOORS: [(&str, f64); 6] = [
+    ("asr_slip", 98.0),
+    ("field_note", 99.5),
+    ("hard", 85.0),
+    ("not_a_correction", 98.0),
+    ("speech", 96.0),
+    ("typed_tidy", 99.5),
+];
+
+#[test]
+fn fresh_development_styles_recall_per_style() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_fresh_dev.jsonl"));
+    print_figures("styles fresh dev", &result);
+    if !result.failures.is_empty() {
+        println!("failures:\n{}", result.failures.join("\n"));
+    }
+    assert!(
+        result.total >= 300,
+        "the fresh development file has {} lines",
+        result.total
+    );
+    for (style, floor) in FRESH_DEV_FLOORS {
+        let (ok, count) = result.per_style.get(style).copied().unwrap_or_default();
+        assert!(count > 0, "no fresh development line of style {style}");
+        assert!(
+            recall(ok, count) >= floor,
+            "style {style}: {ok}/{count} is below the floor of {floor}%"
+        );
+    }
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the fresh development file"
+    );
+    assert_eq!(
+        result.spurious_constraints, 0,
+        "constraints from non-corrections on the fresh development file"
+    );
+}
+
+/// Fresh held-out floor. When the file arrived the parser of session 4 read 120/156 (76.9%), no unasked
+/// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 85.8;
+
+/// The fresh held-out file is run for its figures only; its lines are never printed.
+#[test]
+fn fresh_heldout_styles_figures_are_reported() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_fresh_heldout.jsonl"));
+    print_figures("styles fresh held-out", &result);
+    assert!(
+        result.total >= 150,
+        "the fresh held-out file has {} lines",
+        result.total
+    );
+    assert!(
+        recall(result.passed, result.total) >= FRESH_HELDOUT_FLOOR,
+        "fresh held-out recall {}/{} fell below {FRESH_HELDOUT_FLOOR}%",
+        result.passed,
+        result.total
+    );
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the fresh held-out file"
+    );
+    assert_eq!(
+        result.spurious_constraints, 0,
+        "constraints from non-corrections on the fresh held-out file"
+    );
 }

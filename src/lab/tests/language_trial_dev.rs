@@ -114,7 +114,8 @@ fn says(fact: &Fact, kind: &ConstraintKind) -> bool {
 }
 
 /// Whether a constraint that does not state the fact is still allowed beside it: a presence or count of
-/// the fact's class that agrees with it, next to a relation or a relabel (or a presence beside a count).
+/// the fact's class that agrees with it, next to a relation or a relabel (or a presence beside a count), or
+/// a denied relation of the fact's two things that the fact's relation excludes.
 fn allowed_beside(fact: &Fact, kind: &ConstraintKind) -> bool {
     let agrees = |class: &ClassId, count: Option<Count>| {
         Some(*class) == fact.class()
@@ -126,6 +127,28 @@ fn allowed_beside(fact: &Fact, kind: &ConstraintKind) -> bool {
             }
     };
     match kind {
+        // "The mug is on the cabinet, not under it": a denial the fact's own relation excludes, as `sayso
+        // trial` judges.
+        ConstraintKind::Relation {
+            subject,
+            relation: denied,
+            negated: true,
+            landmarks,
+        } => match (fact, landmarks.as_slice()) {
+            (
+                Fact::Relation {
+                    class,
+                    relation,
+                    landmark,
+                },
+                [other],
+            ) => {
+                subject.class == Some(*class)
+                    && other.class == Some(*landmark)
+                    && relation.excludes(*denied)
+            }
+            _ => false,
+        },
         ConstraintKind::Present { class } => agrees(class, None),
         ConstraintKind::Count { class, count } => {
             !matches!(fact, Fact::Count(..)) && agrees(class, Some(*count))

@@ -1,0 +1,330 @@
+//! Existence clauses and what hangs on them: "there is", "has", counts stated apart from their noun, the
+//! relations and region attached to a thing said to exist, and the relations of a pointed thing in a note.
+//!
+//! Owns: `Builder`'s existence, "has", count and attached-relation helpers and the quantity-to-constraint
+//! table (`count_kind`).
+//! Must not: match rules or bind deictic words to the conversation; `actions` calls these from its rules.
+
+use super::*;
+
+impl Builder {
+    /// "The table has a mug on it", "the room has no cat": a relation to "it" is a relation to the owner,
+    /// and to the whole view it is no relation at all.
+    pub(super) fn have(
+        &mut self,
+        owner: Option<&NounPhrase>,
+        np: &NounPhrase,
+        negated: bool,
+        span: Span,
+        misspelled: bool,
+    ) {
+        let points_back = |attached: &AttachedRelation| {
+            attached.landmarks.iter().all(|landmark| {
+                landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
+            })
+        };
+        let mut np = np.clone();
+        match owner {
+            Some(owner) => {
+                let mut landmark = owner.clone();
+                landmark.quantity = None;
+                self.owner = Some(landmark);
+            }
+            None => {
+                self.owner = None;
+                np.relations.retain(|attached| !points_back(attached));
+            }
+        }
+        self.exist(&np, negated, span, misspelled);
+    }
+
+    /// The relations attached to a demonstrative noun phrase, each stated of what it points at.
+    pub(super) fn deictic_relations(&mut self, np: &NounPhrase, span: Span, misspelled: bool) {
+        let mut subject = np.clone();
+        let relations = std::mem::take(&mut subject.relations);
+        subject.region = None;
+        let referent = self.referent(&subject);
+        for attached in relations {
+            let wanted = if attached.relation == Relation::Between {
+                2
+            } else {
+                1
+            };
+            // Only landmarks naming a class: "it in bits" places nothing.
+            if attached.landmarks.len() != wanted
+                || attached
+                    .landmarks
+                    .iter()
+                    .any(|landmark| landmark.class.is_none())
+            {
+                continue;
+            }
+            let landmarks = attached
+                .landmarks
+                .iter()
+                .map(|landmark| self.plain_referent(landmark))
+                .collect();
+            self.push(
+                ConstraintKind::Relation {
+                    subject: referent.clone(),
+                    relation: attached.relation,
+                    negated: false,
+                    landmarks,
+                },
+                span,
+                misspelled,
+            );
+        }
+        if let Some(region) = np.region {
+            self.push(
+                ConstraintKind::Place {
+                    subject: referent,
+                    place: Place::Region(region),
+                },
+                span,
+                misspelled,
+            );
+        }
+    }
+
+    /// Relations of `np` to a bare "it" go to the owner of the last "X has ..." of this utterance.
+    pub(super) fn to_owner(&self, np: &NounPhrase) -> NounPhrase {
+        let mut np = np.clone();
+        if let Some(owner) = &self.owner {
+            for attached in np.relations.iter_mut().filter(|attached| {
+                attached.landmarks.iter().all(|landmark| {
+                    landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
+                })
+            }) {
+                attached.landmarks = vec![owner.clone()];
+            }
+        }
+        np
+    }
+
+    /// "Mugs: two", "the number of mugs is two", "there are exactly two" (of the class named last).
+    pub(super) fn count(
+        &mut self,
+        np: Option<&NounPhrase>,
+        quantity: Quantity,
+        bare: bool,
+        span: Span,
+        misspelled: bool,
+    ) {
+        let Some(class) = np.and_then(|phrase| phrase.class).or(self.last_class) else {
+            return;
+        };
+        // "No mug, any": a noun phrase whose own quantity disagrees with the number read after it is not
+        // read surely, so it states nothing.
+        if let Some(own) = np.and_then(|phrase| phrase.quantity) {
+            if own != quantity {
+                return;
+            }
+        }
+        // "Add a mug, there's one in this room": a bare "one" with no noun is the pronoun, not a count.
+        let quantity = if np.is_none() && bare && quantity == Quantity::Exactly(1) {
+            Quantity::Some
+        } else {
+            quantity
+        };
+        if let Some(kind) = count_kind(class, quantity, false) {
+            self.push(kind, span, misspelled);
+        }
+    }
+
+    /// "Both chairs are by the table": a stated number on a subject is also a count.
+    pub(super) fn count_of_subject(&mut self, subject: &NounPhrase, span: Span, misspelled: bool) {
+        if let (Some(class), Some(quantity)) = (subject.class, subject.quantity) {
+            if let Some(kind) = count_kind(class, quantity, false) {
+                if !matches!(kind, ConstraintKind::Present { .. }) {
+                    self.push(kind, span, misspelled);
+                }
+            }
+        }
+    }
+
+    /// "There are two chairs next to the table", "no cats", "there's a mug on the counter" ("a mug on it":
+    /// the thing the utterance named before).
+    pub(super) fn exist(&mut self, np: &NounPhrase, negated: bool, span: Span, misspelled: bool) {
+        let mut owned = self.to_owner(np);
+        // "How did you miss the mug? It's right there.": with nothing pointed at, "it" means the noun phrase
+        // the utterance named and no rule used.
+        if let (Some(word), None, None, false, Some(antecedent)) = (
+            owned.deictic,
+            owned.class,
+            owned.quantity,
+            self.has_focus,
+            &self.unused_antecedent,
+        ) {
+            if word.pronoun && !word.plural {
+                let span = owned.span;
+                owned = antecedent.clone();
+                owned.quantity = None;
+                owned.span = span;
+            }
+        }
+        let np = &owned;
+        // "It's one object", "there are three of them": a stated number with no class counts the class the
+        // utterance named last.
+        let counted = matches!(
+            np.quantity,
+            Some(Quantity::Exactly(_) | Quantity::AtLeast(_) | Quantity::AtMost(_))
+        );
+        let elliptical;
+        let np = if np.class.is_none() && counted && self.last_class.is_some() {
+            let mut filled = np.clone();
+            filled.class = self.last_class;
+            filled.deictic = None;
+            elliptical = filled;
+            &elliptical
+        } else {
+            np
+        };
+        if np.deictic.is_some() {
+            return;
+        }
+        // "There aren't five plants": a denied number above one says the count is not that, never that none is
+        // there ("not one mug" is none).
+        if negated
+            && matches!(
+                np.quantity,
+                Some(Quantity::Exactly(2..) | Quantity::AtLeast(_) | Quantity::AtMost(_))
+            )
+        {
+            return;
+        }
+        let zero = negated
+            || matches!(
+                np.quantity,
+                Some(Quantity::None) | Some(Quantity::Exactly(0))
+            );
+        let located = !np.relations.is_empty() || np.region.is_some();
+        if zero && located {
+            // "There are no cats on the bed": the relation is denied, not the class.
+            let mut subject = np.clone();
+            subject.quantity = None;
+            let relations = std::mem::take(&mut subject.relations);
+            subject.region = None;
+            subject.span = np.span;
+            let subject_referent = self.referent(&subject);
+            for attached in relations {
+                let landmarks = attached
+                    .landmarks
+                    .iter()
+                    .map(|landmark| self.landmark_referent(landmark, &subject))
+                    .collect();
+                self.push(
+                    ConstraintKind::Relation {
+                        subject: subject_referent.clone(),
+                        relation: attached.relation,
+                        negated: true,
+                        landmarks,
+                    },
+                    span,
+                    misspelled,
+                );
+            }
+            return;
+        }
+        if np.class.is_some() && !zero && np.deictic.is_none() {
+            self.introduced = Some(np.clone());
+        }
+        if let Some(class) = np.class {
+            let quantity = if zero {
+                Quantity::None
+            } else {
+                np.quantity.unwrap_or(Quantity::Some)
+            };
+            if let Some(kind) = count_kind(class, quantity, negated) {
+                self.push(kind, span, misspelled);
+            }
+        }
+        if !located {
+            // "There's a big box": the attributes are stated of the thing said to exist.
+            if !zero && !np.attributes.is_empty() {
+                let mut target = np.clone();
+                target.quantity = None;
+                let attributes = std::mem::take(&mut target.attributes);
+                let target = self.referent(&target);
+                for attribute in attributes {
+                    self.push(
+                        ConstraintKind::Attribute {
+                            target: target.clone(),
+                            attribute,
+                        },
+                        span,
+                        misspelled,
+                    );
+                }
+            }
+            self.seen_referent = true;
+            return;
+        }
+        let mut subject = np.clone();
+        subject.quantity = None;
+        let relations = std::mem::take(&mut subject.relations);
+        let region = subject.region.take();
+        let subject_referent = self.referent(&subject);
+        for attached in relations {
+            let landmarks: Vec<Referent> = attached
+                .landmarks
+                .iter()
+                .map(|landmark| self.landmark_referent(landmark, &subject))
+                .collect();
+            // "blanket on chair, NOT sofa": a later denial is of this relation.
+            self.last_relation = Some((
+                subject_referent.clone(),
+                attached.relation,
+                landmarks.clone(),
+            ));
+            self.push(
+                ConstraintKind::Relation {
+                    subject: subject_referent.clone(),
+                    relation: attached.relation,
+                    negated: false,
+                    landmarks,
+                },
+                span,
+                misspelled,
+            );
+        }
+        if let Some(region) = region {
+            self.push(
+                ConstraintKind::Place {
+                    subject: subject_referent,
+                    place: Place::Region(region),
+                },
+                span,
+                misspelled,
+            );
+        }
+    }
+}
+
+/// The existence constraint a quantity states about a class.
+pub(super) fn count_kind(
+    class: ClassId,
+    quantity: Quantity,
+    _negated: bool,
+) -> Option<ConstraintKind> {
+    Some(match quantity {
+        Quantity::None | Quantity::Exactly(0) | Quantity::AtMost(0) => {
+            ConstraintKind::Absent { class }
+        }
+        Quantity::Some | Quantity::AtLeast(0) | Quantity::AtLeast(1) => {
+            ConstraintKind::Present { class }
+        }
+        Quantity::Exactly(n) => ConstraintKind::Count {
+            class,
+            count: Count::Exactly(n),
+        },
+        Quantity::AtLeast(n) => ConstraintKind::Count {
+            class,
+            count: Count::AtLeast(n),
+        },
+        Quantity::AtMost(n) => ConstraintKind::Count {
+            class,
+            count: Count::AtMost(n),
+        },
+    })
+}
