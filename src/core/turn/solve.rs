@@ -315,7 +315,9 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     }
     // Pieces the turn handed to classes no note concerns do not stand as objects of their own
     // (`crate::scenegraph::leftovers`).
-    if !room_turn {
+    let fine = scene.segment_count();
+    let moved = before_state.labels.get(..fine) != solution.state.labels.get(..fine);
+    if !room_turn && moved {
         let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
         let leftovers = leftover_factors(
             scene,
