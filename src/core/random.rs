@@ -110,7 +110,7 @@ mod tests {
     #[test]
     fn first_outputs_match_the_published_algorithm() {
         // Reference: the first two outputs of SplitMix64 (Steele, Lea and Flood, OOPSLA 2014) seeded with 0;
-        // values from memory, recomputed by tests/fixtures/random/splitmix64.py, a transcription of that algorithm.
+        // values from memory, recomputed by tests/fixtures/random/splitmix64.py (our own Python version).
         let mut generator = SplitMix64::new(0);
         assert_eq!(generator.next_u64(), 0xE220_A839_7B1D_CDAF);
         assert_eq!(generator.next_u64(), 0x6E78_9E6A_A1B9_65F4);
@@ -143,7 +143,7 @@ mod tests {
     #[test]
     fn splitmix_matches_the_published_reference_sequence() {
         // First outputs of SplitMix64 (Steele, Lea and Flood, OOPSLA 2014) seeded with 1234567; values from
-        // memory, recomputed by tests/fixtures/random/splitmix64.py, a transcription of that algorithm.
+        // memory, recomputed by tests/fixtures/random/splitmix64.py (our own Python version).
         let mut generator = SplitMix64::new(1234567);
         assert_eq!(generator.next_u64(), 6457827717110365317);
         assert_eq!(generator.next_u64(), 3203168211198807973);

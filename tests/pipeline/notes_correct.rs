@@ -25,7 +25,8 @@ use sayso_perception::unaries::Unaries;
 
 const CELL: u32 = 32;
 
-/// A cell's colour and scores from its layout character, given a class lookup by name.
+/// A cell's colour and scores from its layout character, given a class lookup by name, for every character
+/// but `w` (a wall cell) and `f` (a floor cell), which `room` draws the same in every room.
 type Legend = dyn Fn(char, &dyn Fn(&str) -> u16) -> Cell;
 
 struct Room {
@@ -35,8 +36,8 @@ struct Room {
     columns: u32,
 }
 
-/// A room from a character layout: each character is one cell, `legend` gives its colour and scores. Every
-/// cell is its own coarse region.
+/// A room from a character layout: each character is one cell, `w` wall and `f` floor, and `legend` gives the
+/// colour and scores of the others. Every cell is its own coarse region.
 fn room(layout: &[&str], legend: &Legend) -> Room {
     let taxonomy = Taxonomy::embedded();
     let class = |name: &str| taxonomy.class_by_name(name).unwrap().id.0;
@@ -45,7 +46,17 @@ fn room(layout: &[&str], legend: &Legend) -> Room {
     let cells: Vec<Cell> = layout
         .iter()
         .flat_map(|row| row.chars())
-        .map(|c| legend(c, &class))
+        .map(|c| match c {
+            'w' => Cell {
+                colour: [215, 205, 185],
+                scores: vec![(class("wall"), 0.9)],
+            },
+            'f' => Cell {
+                colour: [150, 110, 70],
+                scores: vec![(class("floor"), 0.9)],
+            },
+            _ => legend(c, &class),
+        })
         .collect();
     let region: Vec<u32> = (0..cells.len() as u32).collect();
     let scene = grid_scene("juniper lane", columns, rows, CELL, &cells, &region);
@@ -120,14 +131,6 @@ fn bedroom() -> Room {
             "ffffffffffff",
         ],
         &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
             'B' => Cell {
                 colour: [90, 120, 170],
                 scores: vec![(class("bed"), 0.85)],
@@ -192,14 +195,6 @@ fn one_shelf_seen_between_its_books_is_joined_piece_by_piece() {
             "ffffffffffff",
         ],
         &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
             'S' => Cell {
                 colour: [120, 80, 40],
                 scores: vec![(class("shelf"), 0.9)],
@@ -257,14 +252,6 @@ fn rug_room(patch: &[(&str, f32)]) -> Room {
             "ffffffffffff",
         ],
         &move |c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
             'R' => Cell {
                 colour: [60, 140, 90],
                 scores: vec![(class("rug"), 0.9)],
@@ -411,19 +398,9 @@ fn a_point_on_a_wall_relabels_only_the_towel_hanging_there() {
             "wwwwwwwwwwww",
             "ffffffffffff",
         ],
-        &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
-            _ => Cell {
-                colour: [70, 100, 190],
-                scores: vec![(class("wall"), 0.6), (class("towel"), 0.3)],
-            },
+        &|_, class| Cell {
+            colour: [70, 100, 190],
+            scores: vec![(class("wall"), 0.6), (class("towel"), 0.3)],
         },
     );
     let wall = class_of(&room, "wall");
@@ -451,19 +428,9 @@ fn a_point_on_a_door_of_nearly_the_wall_s_colour_relabels_the_door_not_the_wall(
             "wwwwwwwwwwww",
             "ffffffffffff",
         ],
-        &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
-            _ => Cell {
-                colour: [200, 190, 170],
-                scores: vec![(class("wall"), 0.7), (class("door"), 0.2)],
-            },
+        &|_, class| Cell {
+            colour: [200, 190, 170],
+            scores: vec![(class("wall"), 0.7), (class("door"), 0.2)],
         },
     );
     point_at_the_hanging_cells(&room, "door");
@@ -474,20 +441,12 @@ fn in_this_room_is_not_a_landmark_and_the_absence_is_applied() {
     let grammar = Grammar::embedded().unwrap();
     let room = room(
         &["wwwwwwww", "wwwwwwww", "ffffCCff", "ffffCCff"],
-        &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
+        &|_, class| {
             // A heap of laundry the classifier takes for a cat.
-            _ => Cell {
+            Cell {
                 colour: [120, 120, 120],
                 scores: vec![(class("cat"), 0.55), (class("clothes"), 0.4)],
-            },
+            }
         },
     );
     let cat = class_of(&room, "cat");
@@ -536,14 +495,6 @@ fn a_count_still_short_asks_which_naming_every_candidate() {
             "ffffffffffff",
         ],
         &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
             'R' => Cell {
                 colour: [60, 140, 90],
                 scores: vec![(class("rug"), 0.9)],
@@ -625,14 +576,6 @@ fn office_with_a_labelled_cabinet() -> Room {
             "ffffffffffff",
         ],
         &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
             'D' => Cell {
                 colour: [95, 70, 55],
                 scores: vec![(class("desk"), 0.55), (class("cabinet"), 0.44)],
@@ -698,14 +641,6 @@ fn a_count_asking_for_fewer_never_grows_its_class_past_its_span() {
             "ffffffffffff",
         ],
         &|c, class| match c {
-            'w' => Cell {
-                colour: [215, 205, 185],
-                scores: vec![(class("wall"), 0.9)],
-            },
-            'f' => Cell {
-                colour: [150, 110, 70],
-                scores: vec![(class("floor"), 0.9)],
-            },
             'C' => Cell {
                 colour: [200, 200, 200],
                 scores: vec![(class("counter"), 0.9)],

@@ -10,7 +10,7 @@ use crate::ids::ClassId;
 
 use super::chunks::{AttachedRelation, Chunk, ChunkKind, NounPhrase, Quantity};
 use super::constraint::{
-    Constraint, ConstraintKind, Count, Deixis, ImageRegion, Place, Referent, Relation,
+    Attribute, Constraint, ConstraintKind, Count, Deixis, ImageRegion, Place, Referent, Relation,
     RelationClause, Span,
 };
 use super::lexicon::Side;
@@ -248,6 +248,48 @@ impl Builder {
             },
             gloss: String::new(),
         });
+    }
+
+    /// States that `subject` stands (or, `negated`, does not stand) in `relation` to `landmarks`.
+    fn push_relation(
+        &mut self,
+        subject: Referent,
+        relation: Relation,
+        negated: bool,
+        landmarks: Vec<Referent>,
+        span: Span,
+        misspelled: bool,
+    ) {
+        self.push(
+            ConstraintKind::Relation {
+                subject,
+                relation,
+                negated,
+                landmarks,
+            },
+            span,
+            misspelled,
+        );
+    }
+
+    /// States each of `attributes` of `target`.
+    fn push_attributes(
+        &mut self,
+        target: &Referent,
+        attributes: Vec<Attribute>,
+        span: Span,
+        misspelled: bool,
+    ) {
+        for attribute in attributes {
+            self.push(
+                ConstraintKind::Attribute {
+                    target: target.clone(),
+                    attribute,
+                },
+                span,
+                misspelled,
+            );
+        }
     }
 
     /// Applies one matched rule to the sentence's chunks.
@@ -536,13 +578,11 @@ impl Builder {
                             .iter()
                             .map(|landmark| self.plain_referent(landmark))
                             .collect();
-                        self.push(
-                            ConstraintKind::Relation {
-                                subject: referent.clone(),
-                                relation: attached.relation,
-                                negated: false,
-                                landmarks,
-                            },
+                        self.push_relation(
+                            referent.clone(),
+                            attached.relation,
+                            false,
+                            landmarks,
                             span,
                             misspelled,
                         );
@@ -576,13 +616,11 @@ impl Builder {
                     .map(|landmark| self.landmark_referent(landmark, &subject))
                     .collect();
                 self.last_relation = Some((subject_referent.clone(), relation, landmarks.clone()));
-                self.push(
-                    ConstraintKind::Relation {
-                        subject: subject_referent,
-                        relation,
-                        negated,
-                        landmarks,
-                    },
+                self.push_relation(
+                    subject_referent,
+                    relation,
+                    negated,
+                    landmarks,
                     span,
                     misspelled,
                 );
@@ -647,16 +685,7 @@ impl Builder {
                     return;
                 }
                 self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
-                self.push(
-                    ConstraintKind::Relation {
-                        subject,
-                        relation,
-                        negated,
-                        landmarks,
-                    },
-                    span,
-                    misspelled,
-                );
+                self.push_relation(subject, relation, negated, landmarks, span, misspelled);
             }
             Action::RelationSame => {
                 // "The dog is on the rug, and so is the cat": the last relation, of a new subject; never
@@ -692,16 +721,7 @@ impl Builder {
                 self.count_of_subject(&subject, span, misspelled);
                 let subject = self.referent(&subject);
                 self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
-                self.push(
-                    ConstraintKind::Relation {
-                        subject,
-                        relation,
-                        negated: false,
-                        landmarks,
-                    },
-                    span,
-                    misspelled,
-                );
+                self.push_relation(subject, relation, false, landmarks, span, misspelled);
             }
             Action::Unread => {}
             Action::Sides => {
@@ -732,16 +752,7 @@ impl Builder {
                 let subject = self.referent(&subject);
                 let landmarks = vec![self.plain_referent(&landmark)];
                 self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
-                self.push(
-                    ConstraintKind::Relation {
-                        subject,
-                        relation,
-                        negated: false,
-                        landmarks,
-                    },
-                    span,
-                    misspelled,
-                );
+                self.push_relation(subject, relation, false, landmarks, span, misspelled);
             }
             Action::Place => {
                 let Some(subject) = first_phrase("subject") else {
@@ -813,16 +824,7 @@ impl Builder {
                 };
                 self.count_of_subject(&subject, span, misspelled);
                 let target = self.referent(&subject);
-                for attribute in attributes {
-                    self.push(
-                        ConstraintKind::Attribute {
-                            target: target.clone(),
-                            attribute,
-                        },
-                        span,
-                        misspelled,
-                    );
-                }
+                self.push_attributes(&target, attributes, span, misspelled);
             }
         }
     }

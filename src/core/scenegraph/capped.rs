@@ -47,6 +47,7 @@ use crate::ids::{ClassId, SegmentId};
 use crate::scene::{BoundingBox, Scene};
 use crate::taxonomy::{how_many, plural, Taxonomy};
 
+use super::leftovers::label_around;
 use super::objects::FormedObject;
 use super::SceneGraph;
 
@@ -477,30 +478,7 @@ fn surrounding_label(
     members: &[SegmentId],
     class: ClassId,
 ) -> Option<ClassId> {
-    let mut inside: Vec<u32> = members.iter().map(|s| s.0).collect();
-    inside.sort_unstable();
-    let mut shared: std::collections::BTreeMap<u16, u64> = std::collections::BTreeMap::new();
-    for edge in scene.adjacency.raw_edges() {
-        let (a, b) = (edge.source().index() as u32, edge.target().index() as u32);
-        let outside = match (
-            inside.binary_search(&a).is_ok(),
-            inside.binary_search(&b).is_ok(),
-        ) {
-            (true, false) => b,
-            (false, true) => a,
-            _ => continue,
-        };
-        let Some(&label) = graph.segment_labels.get(outside as usize) else {
-            continue;
-        };
-        if label != class {
-            *shared.entry(label.0).or_insert(0) += u64::from(edge.weight.boundary_length);
-        }
-    }
-    shared
-        .into_iter()
-        .max_by(|a, b| a.1.cmp(&b.1).then(b.0.cmp(&a.0)))
-        .map(|(label, _)| ClassId(label))
+    label_around(scene, graph, members, &[class.0]).map(ClassId)
 }
 
 /// Where a box lies in the picture, in words: "top left", "bottom", "middle" (thirds of each side).

@@ -92,8 +92,9 @@ pub fn leftover_factors(
     factors
 }
 
-/// The label that shares the longest boundary with some segments, among the labels not `left_out`.
-fn label_around(
+/// The label that shares the longest boundary with some segments, among the labels not `left_out` (ties go to
+/// the lower label).
+pub(crate) fn label_around(
     scene: &Scene,
     graph: &SceneGraph,
     members: &[crate::ids::SegmentId],

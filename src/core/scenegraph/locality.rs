@@ -25,7 +25,7 @@
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{GroundedConstraint, GroundedKind, Target};
-use crate::hypotheses::Hypothesis;
+use crate::hypotheses::{segment_neighbours, Hypothesis};
 use crate::language::constraint::{Constraint, ConstraintKind};
 
 /// What the constraints in force are about.
@@ -145,6 +145,11 @@ pub fn stray_factors(concern: &Concern, before: &[u16], after: &[u16]) -> Vec<Un
             by_label.entry(was).or_default().push(segment as u32);
         }
     }
+    held_at(by_label)
+}
+
+/// One hard factor per label holding the segments listed under it at that label.
+fn held_at(by_label: std::collections::BTreeMap<u16, Vec<u32>>) -> Vec<UnaryFactor> {
     by_label
         .into_iter()
         .map(|(label, segments)| UnaryFactor {
@@ -197,29 +202,14 @@ pub fn overreach_factors(
             }
         }
     }
-    held.into_iter()
-        .map(|(label, segments)| UnaryFactor {
-            segments,
-            label,
-            wanted: true,
-            weight: HARD_WEIGHT,
-            source: None,
-        })
-        .collect()
+    held_at(held)
 }
 
 /// The connected parts (over the segment adjacency) that the segments `members`, all labelled `class` in
 /// `labels`, form.
 fn parts(scene: &crate::scene::Scene, labels: &[u16], class: u16, members: &[usize]) -> usize {
-    let mut seen = vec![false; labels.len()];
-    let mut neighbours: Vec<Vec<usize>> = vec![Vec::new(); labels.len()];
-    for edge in scene.adjacency.raw_edges() {
-        let (a, b) = (edge.source().index(), edge.target().index());
-        if a < labels.len() && b < labels.len() && labels[a] == class && labels[b] == class {
-            neighbours[a].push(b);
-            neighbours[b].push(a);
-        }
-    }
+    let neighbours = segment_neighbours(scene, labels.len().min(scene.segment_count()));
+    let mut seen = vec![false; neighbours.len()];
     let mut found = 0;
     for &start in members {
         if seen[start] {
@@ -230,7 +220,7 @@ fn parts(scene: &crate::scene::Scene, labels: &[u16], class: u16, members: &[usi
         let mut stack = vec![start];
         while let Some(at) = stack.pop() {
             for &next in &neighbours[at] {
-                if !seen[next] {
+                if !seen[next] && labels[next] == class {
                     seen[next] = true;
                     stack.push(next);
                 }

@@ -9,7 +9,7 @@ COLS = set("red blue green yellow black white grey brown orange pink purple".spl
 def cls(x):
     m = re.fullmatch(r"([a-z_]+)\*?", x); assert m and m.group(1) in CL, x
 def ref(x):
-    if x == '@': return
+    if x in ('@', '^'): return  # '^': the previous referent
     cls(x)
 def check(c):
     c = c.strip()
@@ -17,20 +17,20 @@ def check(c):
     if m: return cls(m.group(2))
     m = re.fullmatch(r"count\((\w+), (=|>=|<=)(\d+)\)", c)
     if m: cls(m.group(1)); assert 0 <= int(m.group(3)) <= 12; return
-    m = re.fullmatch(r"rel\(([@\w*]+), (!?)(\w+), ([\w]+)(?:, (\w+))?\)", c)
+    m = re.fullmatch(r"rel\(([@^\w*]+), (!?)(\w+), ([\w]+)(?:, (\w+))?\)", c)
     if m:
         ref(m.group(1)); assert m.group(3) in RELS, c; cls(m.group(4))
         assert (m.group(3) == 'between') == (m.group(5) is not None), c
         if m.group(5): cls(m.group(5))
         return
-    m = re.fullmatch(r"place\(([@\w*]+), (room:)?(\w+)\)", c)
+    m = re.fullmatch(r"place\(([@^\w*]+), (room:)?(\w+)\)", c)
     if m:
         ref(m.group(1)); assert (m.group(3) in ROOMS) if m.group(2) else (m.group(3) in REG), c; return
-    m = re.fullmatch(r"attr\((\w+), (\w+)\)", c)
-    if m: cls(m.group(1)); assert m.group(2) in COLS, c; return
+    m = re.fullmatch(r"attr\(([\^\w]+), (\w+)\)", c)
+    if m: ref(m.group(1)); assert m.group(2) in COLS, c; return
     m = re.fullmatch(r"room\((\w+)\)", c)
     if m: assert m.group(1) in ROOMS, c; return
-    m = re.fullmatch(r"relabel\(@, (?:(\w+) )?->(?: (\w+))? ?\)", c)
+    m = re.fullmatch(r"relabel\([@^], (?:(\w+) )?->(?: (\w+))? ?\)", c)
     if m:
         assert m.group(1) or m.group(2), c
         for g in m.groups():

@@ -64,13 +64,11 @@ impl Builder {
                 .iter()
                 .map(|landmark| self.plain_referent(landmark))
                 .collect();
-            self.push(
-                ConstraintKind::Relation {
-                    subject: referent.clone(),
-                    relation: attached.relation,
-                    negated: false,
-                    landmarks,
-                },
+            self.push_relation(
+                referent.clone(),
+                attached.relation,
+                false,
+                landmarks,
                 span,
                 misspelled,
             );
@@ -213,13 +211,11 @@ impl Builder {
                     .iter()
                     .map(|landmark| self.landmark_referent(landmark, &subject))
                     .collect();
-                self.push(
-                    ConstraintKind::Relation {
-                        subject: subject_referent.clone(),
-                        relation: attached.relation,
-                        negated: true,
-                        landmarks,
-                    },
+                self.push_relation(
+                    subject_referent.clone(),
+                    attached.relation,
+                    true,
+                    landmarks,
                     span,
                     misspelled,
                 );
@@ -246,16 +242,7 @@ impl Builder {
                 target.quantity = None;
                 let attributes = std::mem::take(&mut target.attributes);
                 let target = self.referent(&target);
-                for attribute in attributes {
-                    self.push(
-                        ConstraintKind::Attribute {
-                            target: target.clone(),
-                            attribute,
-                        },
-                        span,
-                        misspelled,
-                    );
-                }
+                self.push_attributes(&target, attributes, span, misspelled);
             }
             self.seen_referent = true;
             return;
@@ -277,13 +264,11 @@ impl Builder {
                 attached.relation,
                 landmarks.clone(),
             ));
-            self.push(
-                ConstraintKind::Relation {
-                    subject: subject_referent.clone(),
-                    relation: attached.relation,
-                    negated: false,
-                    landmarks,
-                },
+            self.push_relation(
+                subject_referent.clone(),
+                attached.relation,
+                false,
+                landmarks,
                 span,
                 misspelled,
             );
