@@ -688,3 +688,80 @@ fn a_count_asking_for_fewer_never_grows_its_class_past_its_span() {
     // A count that asks for no fewer than the parts shown holds nothing: growing may be what it needs.
     assert!(overreach_factors(&concern, &room.scene, &[(counter, 2)], &labels, &after).is_empty());
 }
+
+#[test]
+fn a_count_asking_for_fewer_never_takes_what_an_earlier_count_placed() {
+    // The counter top of row 2 in two parts, with a towel on its left end (column 1) that an earlier note
+    // counted ("two towels"). Suppose the solve of "only one counter" took the towel cell: it lies outside the
+    // counter's span before the turn, and no note of this turn names towels, so it is held at towel. Had the
+    // turn itself named towels (say "no towel"), it would be the turn's to move.
+    let room = room(
+        &[
+            "wwwwwwwwwwww",
+            "wwwwwwwwwwww",
+            "wtCCfCCCffff",
+            "ffffffffffff",
+        ],
+        &|c, class| match c {
+            'C' => Cell {
+                colour: [200, 200, 200],
+                scores: vec![(class("counter"), 0.9)],
+            },
+            _ => Cell {
+                colour: [200, 60, 60],
+                scores: vec![(class("towel"), 0.9)],
+            },
+        },
+    );
+    use sayso_core::grounding::{GroundedConstraint, GroundedKind};
+    use sayso_core::language::constraint::Span;
+    use sayso_core::scenegraph::locality::{overreach_factors, Concern};
+    let (counter, towel) = (class_of(&room, "counter"), class_of(&room, "towel"));
+    let before = solve(&room, None, vec![], None);
+    let labels: Vec<u16> = before.graph.segment_labels.iter().map(|c| c.0).collect();
+    let row = 2 * room.columns as usize;
+    assert_eq!(labels[row + 1], towel);
+    let mut after = labels.clone();
+    after[row + 1] = counter;
+    after[row + 4] = counter;
+    let earlier = GroundedConstraint {
+        constraint: 0,
+        span: Span::new(0, 9),
+        hard: true,
+        gloss: "exactly 2 towels".to_string(),
+        kind: GroundedKind::Count {
+            class: ClassId(towel),
+            count: Count::Exactly(2),
+        },
+    };
+    let count_kind = |class: u16| ConstraintKind::Count {
+        class: ClassId(class),
+        count: Count::Exactly(1),
+    };
+    let one_counter = constraint(count_kind(counter), 0.95, "exactly 1 counter");
+    let concern_of = |turn: &[sayso_core::language::constraint::Constraint]| {
+        Concern::of_turn(
+            turn,
+            std::slice::from_ref(&earlier),
+            1,
+            &[],
+            room.taxonomy.class_count(),
+            room.scene.segment_count(),
+        )
+        .expect("a count is not a room type")
+    };
+    let concern = concern_of(std::slice::from_ref(&one_counter));
+    let held = overreach_factors(&concern, &room.scene, &[(counter, 1)], &labels, &after);
+    let held: Vec<(u16, Vec<u32>)> = held.iter().map(|f| (f.label, f.segments.clone())).collect();
+    assert_eq!(held, vec![(towel, vec![(row + 1) as u32])]);
+    // The same move in a turn that names towels itself is that turn's business.
+    let no_towel = constraint(
+        ConstraintKind::Absent {
+            class: ClassId(towel),
+        },
+        0.95,
+        "no towel",
+    );
+    let concern = concern_of(&[one_counter, no_towel]);
+    assert!(overreach_factors(&concern, &room.scene, &[(counter, 1)], &labels, &after).is_empty());
+}

@@ -36,10 +36,10 @@
 //! What is left beyond `k` is surplus. A surplus object no larger than a quarter of the smallest kept one and
 //! under `MIN_PARTED_AREA` pixels is a fragment, and one under two fine segments of mean size a speck: their
 //! segments then carry a hard factor against the class and one towards the label they share the longest
-//! boundary with (`surrounding_label`), so the fragment joins what surrounds it. `sayso trial --half dev`:
-//! mean IoU after two notes against the no-note solve +1.7 -> +1.8 (first 28 seeds) and +1.5 -> +1.6 (next
-//! 28); "chair count is one" in a bedroom had cost 4 mIoU points by making a chair sliver a class seen
-//! nowhere else. A surplus object of a credible size stays and the count is reported unmet.
+//! boundary with (`surrounding_label`), so the fragment joins what surrounds it ("chair count is one" had
+//! made a chair sliver a class seen nowhere else). A segment the turn itself moved into the class goes back
+//! to the label it had instead: a piece of a towel the count's solve took is a towel again, not wall. A
+//! surplus object of a credible size stays and the count is reported unmet.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{numbered, ClarifyingQuestion};
@@ -417,10 +417,16 @@ pub(crate) fn speck_area(scene: &Scene) -> u64 {
 
 /// Hard factors against the class on the members of the objects of a capped class beyond its cap that are
 /// fragments: at most 1/`FRAGMENT_SHARE` of the smallest object the cap keeps and under `MIN_PARTED_AREA`
-/// pixels (the graph is formed after `merge_parts`; on trial renders a larger "fragment" of a rug was the part
+/// pixels, and towards the label each member had before the turn (`before`, fine segments), or the label
+/// around the piece for a member the class already had (the graph is formed after `merge_parts`; on trial renders a larger "fragment" of a rug was the part
 /// of the rug seen past the table, and taking it away cost 8000 right pixels). Surplus objects of a credible size stay, and the count is reported unmet: which of them is
 /// the false one is the operator's to point at.
-pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<UnaryFactor> {
+pub fn surplus_factors(
+    scene: &Scene,
+    graph: &SceneGraph,
+    caps: &[Cap],
+    before: &[u16],
+) -> Vec<UnaryFactor> {
     let mut factors = Vec::new();
     let speck = speck_area(scene);
     for cap in caps {
@@ -453,10 +459,24 @@ pub fn surplus_factors(scene: &Scene, graph: &SceneGraph, caps: &[Cap]) -> Vec<U
                 weight: HARD_WEIGHT,
                 source: Some(cap.source),
             });
-            if let Some(around) = surrounding_label(scene, graph, members, cap.class) {
+            // A segment the turn moved into the class goes back to what it was; one the class had before goes
+            // to the label around the piece.
+            let around = surrounding_label(scene, graph, members, cap.class);
+            let mut by_label: std::collections::BTreeMap<u16, Vec<u32>> = Default::default();
+            for member in members.iter() {
+                let was = before.get(member.index()).copied();
+                let to = match was {
+                    Some(was) if was != cap.class.0 => Some(was),
+                    _ => around.map(|c| c.0),
+                };
+                if let Some(to) = to {
+                    by_label.entry(to).or_default().push(member.0);
+                }
+            }
+            for (label, segments) in by_label {
                 factors.push(UnaryFactor {
-                    segments: members.iter().map(|s| s.0).collect(),
-                    label: around.0,
+                    segments,
+                    label,
                     wanted: true,
                     weight: HARD_WEIGHT,
                     source: Some(cap.source),

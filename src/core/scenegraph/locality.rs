@@ -19,9 +19,10 @@
 //!
 //! A count that asks for fewer objects of a class than the labels show apart ("just one desk", "two
 //! counters") joins parts; it never grows the class outward. A fine segment it moved into the class from a
-//! label no note concerns, whose centre lies outside the box spanning every segment of the class before the
-//! turn, overreached (a counter strip lengthened over the stove at its end) and is held at its label too, also
-//! in a turn that states a room type.
+//! label the turn's own notes do not name (nor an absence in force), whose centre lies outside the box
+//! spanning every segment of the class before the turn, overreached (a counter strip lengthened over the stove
+//! at its end; "only one counter" taking pieces of a towel an earlier note counted) and is held at its label
+//! too, also in a turn that states a room type.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{GroundedConstraint, GroundedKind, Target};
@@ -32,6 +33,9 @@ use crate::language::constraint::{Constraint, ConstraintKind};
 pub struct Concern {
     classes: Vec<bool>,
     segments: Vec<bool>,
+    /// Classes the turn's own constraints name, or an absence in force names: what a count asking for fewer
+    /// may take segments from (the rest are held by `overreach_factors`).
+    named: Vec<bool>,
 }
 
 fn targets(kind: &GroundedKind) -> Vec<&Target> {
@@ -59,11 +63,11 @@ impl Concern {
         segment_count: usize,
     ) -> Option<Concern> {
         let mut classes = vec![false; class_count];
-        let mut mark = |class: Option<crate::ids::ClassId>| {
+        fn mark(classes: &mut [bool], class: Option<crate::ids::ClassId>) {
             if let Some(flag) = class.and_then(|c| classes.get_mut(c.index())) {
                 *flag = true;
             }
-        };
+        }
         for constraint in constraints {
             match &constraint.kind {
                 ConstraintKind::RoomType { .. } => return None,
@@ -73,36 +77,45 @@ impl Concern {
                 } => return None,
                 ConstraintKind::Present { class }
                 | ConstraintKind::Absent { class }
-                | ConstraintKind::Count { class, .. } => mark(Some(*class)),
+                | ConstraintKind::Count { class, .. } => mark(&mut classes, Some(*class)),
                 ConstraintKind::Relation {
                     subject, landmarks, ..
                 } => {
-                    mark(subject.class);
+                    mark(&mut classes, subject.class);
                     for landmark in landmarks {
-                        mark(landmark.class);
+                        mark(&mut classes, landmark.class);
                     }
                 }
-                ConstraintKind::Place { subject, .. } => mark(subject.class),
+                ConstraintKind::Place { subject, .. } => mark(&mut classes, subject.class),
                 ConstraintKind::Relabel { target, from, to } => {
-                    mark(target.class);
-                    mark(*from);
-                    mark(*to);
+                    mark(&mut classes, target.class);
+                    mark(&mut classes, *from);
+                    mark(&mut classes, *to);
                 }
-                ConstraintKind::Attribute { target, .. } => mark(target.class),
+                ConstraintKind::Attribute { target, .. } => mark(&mut classes, target.class),
             }
         }
+        let mut named = classes.clone();
         let mut segments = vec![false; segment_count];
         for grounded in in_force {
+            if let GroundedKind::Absent { class } = grounded.kind {
+                if let Some(flag) = named.get_mut(class.index()) {
+                    *flag = true;
+                }
+            }
             // Earlier notes' classes too: what they moved is theirs to keep moving.
             if let GroundedKind::Present { class }
             | GroundedKind::Absent { class }
             | GroundedKind::Count { class, .. } = grounded.kind
             {
-                mark(Some(class));
+                mark(&mut classes, Some(class));
             }
             for target in targets(&grounded.kind) {
                 for &h in &target.hypotheses {
-                    mark(hypotheses.get(h).map(|hypothesis| hypothesis.class));
+                    mark(
+                        &mut classes,
+                        hypotheses.get(h).map(|hypothesis| hypothesis.class),
+                    );
                 }
                 if grounded.constraint >= first {
                     for segment in &target.segments {
@@ -113,7 +126,11 @@ impl Concern {
                 }
             }
         }
-        Some(Concern { classes, segments })
+        Some(Concern {
+            classes,
+            segments,
+            named,
+        })
     }
 
     /// A concern with no class and no segment in it: every move is measured against the rules (a room-type
@@ -122,12 +139,19 @@ impl Concern {
         Concern {
             classes: vec![false; class_count],
             segments: vec![false; segment_count],
+            named: vec![false; class_count],
         }
     }
 
     /// Whether a note of the turn concerns class `label` (an unknown label counts as concerned).
     pub(crate) fn class(&self, label: u16) -> bool {
         self.classes.get(label as usize).copied().unwrap_or(true)
+    }
+
+    /// Whether the turn's own constraints (or an absence in force) name class `label` (an unknown label counts
+    /// as named).
+    fn named(&self, label: u16) -> bool {
+        self.named.get(label as usize).copied().unwrap_or(true)
     }
 }
 
@@ -164,8 +188,8 @@ fn held_at(by_label: std::collections::BTreeMap<u16, Vec<u32>>) -> Vec<UnaryFact
 
 /// Hard factors holding at their label before the turn the fine segments that a count asking for fewer
 /// objects of its class (`caps`: class and most objects; it asks for fewer when the class's segments before
-/// the turn form more than that many connected parts) moved into the class from an unconcerned label
-/// outside the box spanning the class's segments before the turn (see the module doc).
+/// the turn form more than that many connected parts) moved into the class from a label the turn does not
+/// name, outside the box spanning the class's segments before the turn (see the module doc).
 pub fn overreach_factors(
     concern: &Concern,
     scene: &crate::scene::Scene,
@@ -188,7 +212,7 @@ pub fn overreach_factors(
             if was == class
                 || after[segment] != class
                 || concern.segments[segment]
-                || concern.class(was)
+                || concern.named(was)
             {
                 continue;
             }
@@ -255,9 +279,11 @@ mod tests {
         let mut c = Concern {
             classes: vec![false; 8],
             segments: vec![false; 6],
+            named: vec![false; 8],
         };
         for &class in classes {
             c.classes[class as usize] = true;
+            c.named[class as usize] = true;
         }
         for &segment in segments {
             c.segments[segment] = true;

@@ -261,7 +261,7 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         // A count below what the labels show: parts are joined when the graph is formed; what is still too
         // many loses its label and the scene is solved again around it (`crate::scenegraph::capped`).
         let graph = graph_of(request, &built.hypotheses, &solution, (&counted, &caps));
-        let surplus = surplus_factors(scene, &graph, &caps);
+        let surplus = surplus_factors(scene, &graph, &caps, &before_state.labels);
         latest_graph = Some(graph);
         if !surplus.is_empty() {
             latest_graph = None;
