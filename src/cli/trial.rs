@@ -172,7 +172,7 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         100.0 * summary.failed as f64 / summary.notes.max(1) as f64
     );
     println!(
-        "answers to the notes' questions (the operator pointing at a candidate that is not of the class, one turn each): {}",
+        "answers to the notes' questions (the operator pointing at a candidate that is not of the class, or at a thing the robot could not find, one turn each): {}",
         summary.answers
     );
     let mut kinds: Vec<&str> = trials

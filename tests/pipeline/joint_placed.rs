@@ -416,3 +416,119 @@ fn the_landmark_is_the_one_the_operator_sees() {
     assert_ne!(after.graph.segment_labels[segment(1, 2)], laptop);
     assert_ne!(after.graph.segment_labels[segment(1, 3)], desk);
 }
+
+/// The study with a bare desk and, above it on the wall, a grey patch the classifier calls wall; with
+/// `laptop_on_floor`, a laptop the robot does see lies on the floor at column 1, row 5.
+fn bare_study(laptop_on_floor: bool) -> Room {
+    room("juniper-lane-bare-study", move |column, row, c| {
+        match (column, row) {
+            (4, 2) => (cell([70, 70, 75], vec![(c("wall"), 0.9)]), 2),
+            (1, 5) if laptop_on_floor => (cell([60, 60, 66], vec![(c("laptop"), 0.9)]), 4),
+            (2..=6, 3..=4) => (cell([120, 80, 45], vec![(c("desk"), 0.85)]), 1),
+            (_, 0..=2) => (cell([225, 220, 205], vec![(c("wall"), 0.9)]), 0),
+            _ => (cell([150, 120, 90], vec![(c("floor"), 0.9)]), 3),
+        }
+    })
+}
+
+/// "The laptop is on the desk" where nothing can be that laptop, asked of `study`: the turn, the index of the
+/// note's constraint among those in force, and the note.
+fn unplaceable(study: &Room) -> (Correction, usize, [Constraint; 1]) {
+    let (laptop, desk) = (
+        class(&study.taxonomy, "laptop"),
+        class(&study.taxonomy, "desk"),
+    );
+    let before = run(study, None, &[]);
+    let said = [relation(
+        laptop,
+        Relation::On,
+        desk,
+        "the laptop is on the desk",
+    )];
+    let after = run(study, Some(&before), &said);
+    let first_new = after.constraint_labels.len() - said.len();
+    (after, first_new, said)
+}
+
+#[test]
+fn a_placement_nothing_can_take_asks_where_alongside_the_rest() {
+    use sayso_core::turn::{decide, question_alongside, Decision};
+    // No laptop anywhere (the subject resolves to nothing), and a laptop on the floor only (the relation
+    // holds for none): both ask where, naming the thing and its place, with no candidate to pick.
+    for laptop_on_floor in [false, true] {
+        let study = bare_study(laptop_on_floor);
+        let (after, first_new, said) = unplaceable(&study);
+        let reported = after.unmet.iter().any(|u| u.constraint == first_new)
+            || after.issues.iter().any(|i| i.constraint() == first_new);
+        assert!(reported, "{:?} {:?}", after.unmet, after.issues);
+        let question = after
+            .questions
+            .iter()
+            .find(|q| q.constraint == first_new)
+            .unwrap_or_else(|| panic!("a question about the placement: {:?}", after.questions));
+        assert!(
+            question.where_is && question.candidates.is_empty(),
+            "{question:?}"
+        );
+        assert!(
+            question.text.contains("the laptop on the desk")
+                && question.text.contains("Point at it"),
+            "{}",
+            question.text
+        );
+        // Asked alongside, not instead: nothing else the note said waits for it.
+        assert!(!matches!(
+            decide(&after, &said, first_new, false, &study.taxonomy),
+            Decision::Ask(_)
+        ));
+        assert!(question_alongside(&after, &said, first_new).is_some());
+        // The placement leaves the constraints in force: the answer is not judged beside a stale relation.
+        assert!(after.grounded.iter().all(|g| g.constraint != first_new));
+    }
+}
+
+#[test]
+fn a_pointed_answer_to_where_places_the_thing() {
+    use sayso_core::language::constraint::{Deixis, Focus};
+    let study = bare_study(false);
+    let (laptop, desk) = (
+        class(&study.taxonomy, "laptop"),
+        class(&study.taxonomy, "desk"),
+    );
+    let (after, _, _) = unplaceable(&study);
+    // The answer: pointing at the grey patch, "that's a laptop".
+    let pointed = Referent {
+        class: None,
+        deixis: Some(Deixis::Focus),
+        ..Referent::class(ClassId(0), Span::new(0, 4))
+    };
+    let answer = [constraint(
+        ConstraintKind::Relabel {
+            target: pointed,
+            from: None,
+            to: Some(laptop),
+        },
+        0.95,
+        "that's a laptop",
+    )];
+    let cuts = InstanceCuts::none(study.taxonomy.class_count());
+    let stage = Stage {
+        scene: &study.scene,
+        unaries: &study.unaries,
+        taxonomy: &study.taxonomy,
+        cuts: &cuts,
+    };
+    let context = GroundingContext {
+        focus: Some(Focus::Pixel { x: 45, y: 25 }),
+        ..Default::default()
+    };
+    let answered = turn(&stage, Some(&after), &answer, &context, false);
+    assert!(answered.unmet.is_empty(), "{:?}", answered.unmet);
+    assert!(answered.questions.is_empty(), "{:?}", answered.questions);
+    assert_eq!(answered.graph.segment_labels[segment(4, 2)], laptop);
+    assert!(
+        has_relation(&answered, laptop, Relation::On, desk),
+        "{:?}",
+        answered.graph.relations
+    );
+}

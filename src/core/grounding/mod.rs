@@ -32,7 +32,7 @@ pub use crate::taxonomy::{how_many, plural};
 pub use extent::Extents;
 pub use measures::{footprint_of, in_region, mean_colour, relation_holds, relation_holds_measured};
 pub use predicates::{holds, Footprint};
-pub use questions::{numbered, ClarifyingQuestion};
+pub use questions::{numbered, where_question, ClarifyingQuestion};
 
 /// A resolved referent: the segments it covers and the hypotheses it may be.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
@@ -295,6 +295,7 @@ impl Resolver<'_, '_> {
             candidates: Vec::new(),
             descriptions: Vec::new(),
             objects: Vec::new(),
+            where_is: false,
         });
     }
 
@@ -828,6 +829,7 @@ pub fn ground(
                             candidates: Vec::new(),
                             descriptions: Vec::new(),
                             objects: Vec::new(),
+                            where_is: false,
                         });
                         None
                     }

@@ -1,7 +1,8 @@
 //! Clarifying questions: when a reference matches several objects, ask which one, in plain words.
 //!
 //! Owns: `ClarifyingQuestion`, describing each candidate by a relation to its nearest other object (or by
-//! where it is in the picture), and describing a referent's words back to the operator.
+//! where it is in the picture), describing a referent's words back to the operator, and `where_question`
+//! (asking the operator to point at a thing nothing in the picture can stand for).
 //! Must not: pick a candidate; a question is returned instead of a guess.
 
 use serde::{Deserialize, Serialize};
@@ -11,7 +12,7 @@ use super::{footprint_of, in_region, KnownObject, SceneView};
 use crate::ids::{ClassId, HypothesisId, ObjectId};
 use crate::language::constraint::{ImageRegion, Referent, Relation};
 use crate::language::notation::attribute_name;
-use crate::taxonomy::{plural, ClassGroup, Taxonomy};
+use crate::taxonomy::{how_many, plural, ClassGroup, Taxonomy};
 
 /// A question to send back instead of guessing, with the objects it distinguishes.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -26,6 +27,10 @@ pub struct ClarifyingQuestion {
     /// The candidates as scene-graph object ids, in the same order (what an answer names or points at).
     #[serde(default)]
     pub objects: Vec<ObjectId>,
+    /// The question asks where a thing nothing in the picture could stand for is (`where_question`): it is
+    /// asked alongside whatever else the note did, and answered by a new pointed note.
+    #[serde(default)]
+    pub where_is: bool,
 }
 
 fn number_word(n: usize) -> String {
@@ -66,6 +71,45 @@ pub fn describe_referent(taxonomy: &Taxonomy, referent: &Referent) -> String {
         words.push(landmarks.join(" and "));
     }
     words.join(" ")
+}
+
+/// The question for a presence, a count asking for more, or a placement (`place`: the relation and the
+/// landmark's class) that nothing in the picture can stand for: where is it? `shown` is how many objects of
+/// the class the picture shows (a count asking for more: where is another?). The answer is a new pointed note
+/// ("that's a towel"), so the question names no candidates.
+pub fn where_question(
+    taxonomy: &Taxonomy,
+    constraint: usize,
+    class: ClassId,
+    place: Option<(Relation, ClassId)>,
+    shown: usize,
+) -> ClarifyingQuestion {
+    let name = taxonomy.class_name(class).replace('_', " ");
+    let place = place
+        .map(|(relation, landmark)| {
+            format!(
+                " {} the {}",
+                relation_words(relation),
+                taxonomy.class_name(landmark).replace('_', " ")
+            )
+        })
+        .unwrap_or_default();
+    let found = if shown == 0 {
+        format!("Nothing the robot sees can be the {name}{place}. Where is it?")
+    } else {
+        format!(
+            "The robot finds only {} it can stand behind. Where is another?",
+            how_many(shown, &name)
+        )
+    };
+    ClarifyingQuestion {
+        constraint,
+        text: format!("{found} Point at it and say what it is (\"that's a {name}\")."),
+        candidates: Vec::new(),
+        descriptions: Vec::new(),
+        objects: Vec::new(),
+        where_is: true,
+    }
 }
 
 /// "7th", "11th", "22nd": a position said back as a number.
@@ -295,6 +339,7 @@ fn worded(
         objects: candidates.iter().map(|h| ObjectId(h.0)).collect(),
         candidates,
         descriptions,
+        where_is: false,
     }
 }
 

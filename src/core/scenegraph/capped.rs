@@ -563,5 +563,6 @@ pub fn surplus_question(
         candidates: shown.iter().map(|object| object.hypothesis).collect(),
         descriptions,
         objects: shown.iter().map(|object| object.id).collect(),
+        where_is: false,
     })
 }

@@ -339,18 +339,24 @@ pub fn held_classes(changes: &[Change], taxonomy: &Taxonomy) -> Vec<String> {
     names
 }
 
-/// Whether a question about the note's constraint at `index` must be answered before anything changes. A
-/// count or presence the graph still cannot show is applied as far as it goes, and its question (which of
-/// the objects shown are not of the class) is asked alongside.
-fn blocks(note: &[Constraint], index: usize) -> bool {
-    !matches!(
+/// Whether a question about the note's constraint at `index` (`constraint` among those in force) must be
+/// answered before anything changes. A count or presence the graph still cannot show is applied as far as it
+/// goes, and its question (which of the objects shown are not of the class) is asked alongside; so is a
+/// question asking where a thing is that nothing in the picture could stand for (the rest of the note stands).
+fn blocks(correction: &Correction, note: &[Constraint], index: usize, constraint: usize) -> bool {
+    let counted = matches!(
         note.get(index).map(|c| &c.kind),
         Some(
             ConstraintKind::Count { .. }
                 | ConstraintKind::Present { .. }
                 | ConstraintKind::Absent { .. }
         )
-    )
+    );
+    let asks_where = correction
+        .questions
+        .iter()
+        .any(|q| q.constraint == constraint && q.where_is);
+    !counted && !asks_where
 }
 
 /// The question asked alongside an applied note, if any (an index into the correction's questions).
@@ -359,10 +365,10 @@ pub fn question_alongside(
     note: &[Constraint],
     first_new: usize,
 ) -> Option<usize> {
-    correction
-        .questions
-        .iter()
-        .position(|q| q.constraint >= first_new && !blocks(note, q.constraint - first_new))
+    correction.questions.iter().position(|q| {
+        q.constraint >= first_new
+            && !blocks(correction, note, q.constraint - first_new, q.constraint)
+    })
 }
 
 /// Decides on a solved note (`note`: its constraints; `first_new`: the index of its first constraint among
@@ -375,11 +381,10 @@ pub fn decide(
     confirmed: bool,
     taxonomy: &Taxonomy,
 ) -> Decision {
-    if let Some(index) = correction
-        .questions
-        .iter()
-        .position(|q| q.constraint >= first_new && blocks(note, q.constraint - first_new))
-    {
+    if let Some(index) = correction.questions.iter().position(|q| {
+        q.constraint >= first_new
+            && blocks(correction, note, q.constraint - first_new, q.constraint)
+    }) {
         return Decision::Ask(index);
     }
     let classes = held_classes(&correction.changes, taxonomy);

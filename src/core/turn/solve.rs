@@ -11,8 +11,8 @@ use crate::energy::{
     count_violation, EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
 };
 use crate::grounding::{
-    ground, how_many, relation_holds, ClarifyingQuestion, GroundedConstraint, GroundedKind,
-    GroundingContext, GroundingIssue, SceneView, Target,
+    ground, how_many, relation_holds, where_question, ClarifyingQuestion, GroundedConstraint,
+    GroundedKind, GroundingContext, GroundingIssue, SceneView, Target,
 };
 use crate::hypotheses::{
     build_hypotheses, propose_named, propose_related, Detection, Hypothesis, HypothesisError,
@@ -551,6 +551,27 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         }
     }
     unmet.sort_by_key(|u| u.constraint);
+    let where_questions = where_questions(
+        request,
+        &graph,
+        &energy,
+        in_force.iter().chain(&withdrawn_counts),
+        offset,
+        &unmet,
+        &grounding.issues,
+    );
+    // A placement of this turn that nothing in the picture can take leaves the constraints in force with its
+    // question: the answer (pointing at the thing and naming it) is a new note, beside which the old relation
+    // would stay unmet for good (its subject is grounded to the objects there were).
+    in_force.retain(|grounded| {
+        let relation = matches!(grounded.kind, GroundedKind::Relation { negated: false, .. });
+        !(relation
+            && grounded.constraint >= offset
+            && energy
+                .tuple_factors
+                .iter()
+                .any(|f| f.source == Some(grounded.constraint) && f.tuples.is_empty()))
+    });
     Ok(Correction {
         graph,
         changes,
@@ -564,6 +585,7 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
                 question
             })
             .chain(surplus_questions)
+            .chain(where_questions)
             .collect(),
         issues: grounding
             .issues
@@ -576,6 +598,105 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         grounded: in_force,
         constraint_labels: labels,
     })
+}
+
+/// The questions for this turn's constraints (index `first` on) that nothing in the picture can stand for:
+/// a presence or a count asking for more that the graph still falls short of, and a placement no object can
+/// take (its relation factor has no tuple to accept). Each asks the operator to point at the thing.
+fn where_questions<'a>(
+    request: &SolveRequest,
+    graph: &SceneGraph,
+    energy: &crate::energy::JointEnergy,
+    in_force: impl Iterator<Item = &'a GroundedConstraint>,
+    first: usize,
+    unmet: &[Unmet],
+    issues: &[GroundingIssue],
+) -> Vec<ClarifyingQuestion> {
+    let mut questions = Vec::new();
+    let shown = |class: ClassId| graph.objects.iter().filter(|o| o.class == class).count();
+    let place_of =
+        |landmarks: &[crate::language::constraint::Referent], relation: Relation| match landmarks {
+            [one] => one.class.map(|landmark| (relation, landmark)),
+            _ => None,
+        };
+    // A placement whose subject nothing in view could stand for at all was not grounded (`NoCandidate`).
+    for (index, said) in request.constraints.iter().enumerate() {
+        let ConstraintKind::Relation {
+            subject,
+            relation,
+            negated: false,
+            landmarks,
+        } = &said.kind
+        else {
+            continue;
+        };
+        let missing = issues.iter().any(|issue| {
+            matches!(issue, GroundingIssue::NoCandidate { constraint, .. } if *constraint == index)
+        });
+        if let (true, Some(class)) = (missing, subject.class) {
+            if shown(class) == 0 {
+                questions.push(where_question(
+                    request.taxonomy,
+                    index + first,
+                    class,
+                    place_of(landmarks, *relation),
+                    0,
+                ));
+            }
+        }
+    }
+    for grounded in in_force.filter(|g| g.constraint >= first) {
+        if !unmet.iter().any(|u| u.constraint == grounded.constraint) {
+            continue;
+        }
+        let asked = match &grounded.kind {
+            GroundedKind::Present { class } => (shown(*class) == 0).then_some((*class, None, 0)),
+            GroundedKind::Count {
+                class,
+                count: Count::Exactly(k) | Count::AtLeast(k),
+            } => (shown(*class) < *k as usize).then_some((*class, None, shown(*class))),
+            GroundedKind::Relation {
+                negated: false,
+                relation,
+                landmarks,
+                ..
+            } => {
+                let unplaceable = energy
+                    .tuple_factors
+                    .iter()
+                    .any(|f| f.source == Some(grounded.constraint) && f.tuples.is_empty());
+                let said = request.constraints.get(grounded.constraint - first);
+                match (unplaceable, said.map(|c| &c.kind)) {
+                    (
+                        true,
+                        Some(ConstraintKind::Relation {
+                            subject,
+                            landmarks: said_landmarks,
+                            ..
+                        }),
+                    ) => subject.class.map(|class| {
+                        let place = match landmarks.as_slice() {
+                            [_] => place_of(said_landmarks, *relation),
+                            _ => None,
+                        };
+                        (class, place, 0)
+                    }),
+                    _ => None,
+                }
+            }
+            _ => None,
+        };
+        if let Some((class, place, shown)) = asked {
+            questions.push(where_question(
+                request.taxonomy,
+                grounded.constraint,
+                class,
+                place,
+                shown,
+            ));
+        }
+    }
+    questions
 }
 
 /// The counts and presences of this turn (constraint index `first` on) that the scene graph of `solution`

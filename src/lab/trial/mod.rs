@@ -133,7 +133,7 @@ pub struct NoteRecord {
     pub right_to_wrong: u64,
     /// Wall-clock milliseconds of the turn's solve.
     pub millis: f64,
-    /// Answers the operator gave to the note's question (pointing at a candidate that is not of the class).
+    /// Answers the operator gave to the note's question (pointing at a candidate that is not of the class, or at a thing the robot could not find and naming it).
     pub answers: usize,
 }
 
@@ -337,6 +337,21 @@ pub fn run_scene(
         let mut correction = correction;
         let mut millis = millis;
         let mut answers = 0;
+        if outcome == Outcome::Asked && matches!(fact, Fact::Present { .. } | Fact::Relation { .. })
+        {
+            if let Some(answered) =
+                answer_where(context, &truth, &inputs, &correction, first_new, &fact)?
+            {
+                correction = answered.correction;
+                millis += answered.millis;
+                answers = answered.answers;
+                if answered.met {
+                    outcome = Outcome::Met;
+                    detail = format!("{detail}; met after {answers} answer(s)");
+                }
+                detail = format!("{detail}; answered {}", answered.said);
+            }
+        }
         if outcome == Outcome::Asked {
             if let Fact::Count { class, count } = fact {
                 let answered = answer_surplus(
@@ -406,6 +421,8 @@ struct Answered {
     millis: f64,
     /// The graph shows the count after the answers.
     met: bool,
+    /// What the last answer said, and where it pointed.
+    said: String,
 }
 
 /// Answers the question a count below what the graph shows asked: the operator looks at the candidates,
@@ -430,6 +447,7 @@ fn answer_surplus(
             answers: 0,
             millis: 0.0,
             met: false,
+            said: String::new(),
         });
     };
     let width = truth.labels.width as usize;
@@ -497,7 +515,107 @@ fn answer_surplus(
         answers,
         millis,
         met,
+        said: String::new(),
     })
+}
+
+/// The operator's own words answering "where is it?" while pointing at the thing.
+const WHERE_ANSWER: &str = "that's a {class}";
+
+/// Answers a question asking where a thing is that nothing in the picture could stand for (a presence or a
+/// placement; the question names no candidates): the operator points at the deepest pixel of the truth object
+/// the fact is about (for a presence, the class's largest object) that the robot shows as something else,
+/// and names it, in one turn. Met when that turn's relabel is met. `None` when no such question was asked.
+fn answer_where(
+    context: &TrialContext<'_>,
+    truth: &DemoScene,
+    inputs: &TurnInputs<'_>,
+    correction: &Correction,
+    first_new: usize,
+    fact: &Fact,
+) -> Result<Option<Answered>, TrialError> {
+    if !correction
+        .questions
+        .iter()
+        .any(|q| q.constraint >= first_new && q.candidates.is_empty())
+    {
+        return Ok(None);
+    }
+    let (class, object) = match *fact {
+        Fact::Relation { class, object, .. } => (class, Some(object)),
+        Fact::Present { class } => (
+            class,
+            truth
+                .objects
+                .iter()
+                .filter(|o| o.class_id == class)
+                .max_by_key(|o| (o.area, std::cmp::Reverse(o.id)))
+                .map(|o| o.id),
+        ),
+        _ => return Ok(None),
+    };
+    let Some(instance) = object.and_then(|id| u16::try_from(id).ok()) else {
+        return Ok(None);
+    };
+    let shown = label_map(inputs.scene, &correction.graph.segment_labels).values;
+    let pixels: Vec<u32> = truth
+        .instances
+        .values
+        .iter()
+        .enumerate()
+        .filter(|&(_, &v)| v == instance)
+        .map(|(p, _)| p as u32)
+        .collect();
+    let width = truth.labels.width as usize;
+    let Some((x, y)) = deepest_pixel(&pixels, width, |p| {
+        shown.get(p as usize).is_some_and(|&label| label != class.0)
+    }) else {
+        return Ok(None);
+    };
+    let wrong = ClassId(shown[y as usize * width + x as usize]);
+    let focus = Some(Focus::Pixel { x, y });
+    let name = context.taxonomy.class_name(class).replace('_', " ");
+    let utterance = WHERE_ANSWER.replace("{class}", &name);
+    let Ok(parse) = context.settings.grammar.parse(&utterance, focus) else {
+        return Ok(None);
+    };
+    let started = Instant::now();
+    let answered = correct_turn(
+        inputs,
+        Some(correction),
+        &parse.constraints,
+        focus,
+        true,
+        context.settings,
+    )
+    .map_err(PipelineError::from)?;
+    let millis = started.elapsed().as_secs_f64() * 1000.0;
+    let answer_first = answered
+        .constraint_labels
+        .len()
+        .saturating_sub(parse.constraints.len());
+    let relabel = Fact::Relabel {
+        class,
+        wrong,
+        x,
+        y,
+        object: u32::from(instance),
+    };
+    let (outcome, _) = judge(
+        &relabel,
+        &parse.constraints,
+        &answered,
+        answer_first,
+        truth,
+        context.taxonomy,
+    );
+    Ok(Some(Answered {
+        correction: answered,
+        answers: 1,
+        millis,
+        met: outcome == Outcome::Met,
+        said: format!("\"{utterance}\" @{x},{y}"),
+    }))
 }
 
 fn focus_pixel(focus: Option<Focus>) -> Option<(u32, u32)> {
@@ -677,6 +795,14 @@ fn judge(
             Outcome::Unmet,
             format!("{glosses}; unmet: {}", unmet.reason),
         );
+    }
+    // A constraint whose referents could not be resolved was never carried out.
+    if let Some(issue) = correction
+        .issues
+        .iter()
+        .find(|issue| issue.constraint() >= first_new)
+    {
+        return (Outcome::Unmet, format!("{glosses}; unmet: {issue}"));
     }
     (Outcome::Met, glosses)
 }
