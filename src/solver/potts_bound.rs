@@ -201,9 +201,9 @@ impl PottsBound {
     /// than `1e-9` relative, or by less than `STOP_SHARE` of what separates it from `target` (the value the
     /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual), or
     /// once it reaches `enough` (what the caller counts as close; infinite to run the sweeps out). Never
-    /// below `bound` for the same unaries. Each sweep's bound is the sum of the edges' minima taken once after
-    /// it (a diffusion step keeps the least value of each part it writes, so an edge's minimum reads its two
-    /// parts once).
+    /// below `bound` for the same unaries. Each sweep's bound is the sum of the edges' minima, each taken once
+    /// in the sweep, right after its later end is diffused (a diffusion step keeps the least value of each
+    /// part it writes, so an edge's minimum reads its two parts once).
     ///
     /// The split starts from the even split every time, so the bound depends on the inputs alone (a split
     /// kept from an earlier solve of the same scene started closer to the fixed point and stopped sooner,
@@ -258,9 +258,15 @@ impl PottsBound {
         for _ in 0..sweeps {
             for node in 0..node_count {
                 self.diffuse(node, &mut average);
-            }
-            for edge in 0..self.edges.len() {
-                self.edge_value[edge] = self.edge_minimum(edge);
+                // An edge's parts are final for the sweep once its later end is diffused (a node writes only
+                // its own ends): its minimum is taken then, while both parts are still in cache.
+                for position in self.incident_start[node]..self.incident_start[node + 1] {
+                    let (edge, _) = self.incident[position];
+                    let (a, b, _) = self.edges[edge];
+                    if a.max(b) == node {
+                        self.edge_value[edge] = self.edge_minimum(edge);
+                    }
+                }
             }
             let reached = isolated + self.edge_value.iter().sum::<f64>();
             let rise = reached - best;
