@@ -38,6 +38,23 @@ pub(crate) struct PottsBound {
     scaled: Vec<f64>,
     /// Scratch: min-marginals of one node's edges.
     marginals: Vec<f64>,
+    /// Run the sums in 256-bit registers where the processor has them (`wide_registers`); off only to
+    /// check that both builds of the loops give the same bits.
+    wide: bool,
+}
+
+/// Whether the processor runs AVX instructions: the bound's loops are then compiled for them as well. Each
+/// label's sums and minima are the same operations in the same order either way (only more labels go in
+/// one instruction), so the bound has the same bits.
+fn wide_registers() -> bool {
+    #[cfg(target_arch = "x86_64")]
+    {
+        std::arch::is_x86_feature_detected!("avx")
+    }
+    #[cfg(not(target_arch = "x86_64"))]
+    {
+        false
+    }
 }
 
 /// A diffusion stops once a sweep closes less than this share of what is left between its bound and the
@@ -87,11 +104,19 @@ impl PottsBound {
             row_minimum: vec![0.0; node_count],
             scaled: Vec::new(),
             marginals: Vec::new(),
+            wide: wide_registers(),
         }
     }
 
+    /// The same bound with the loops in their portable build only (to check the AVX build against).
+    #[cfg(test)]
+    pub(crate) fn portable(mut self) -> PottsBound {
+        self.wide = false;
+        self
+    }
+
     /// Edge `edge`'s minimum under the current split.
-    #[inline]
+    #[inline(always)]
     fn edge_minimum(&self, edge: usize) -> f64 {
         let label_count = self.label_count;
         let weight = self.edges[edge].2;
@@ -108,6 +133,7 @@ impl PottsBound {
     /// to 0 at every label, `shift_e = mean(t) - t_e`: the node's old parts are never read. Keeps each
     /// written part's least value; the edges' minima are taken once per sweep (`diffused`), since an edge's
     /// minimum reads only its two parts and their least values, which the sweep's last write to it fixes.
+    #[inline(always)]
     fn diffuse(&mut self, node: usize, average: &mut [f64]) {
         let label_count = self.label_count;
         let incident = self.incident_start[node]..self.incident_start[node + 1];
@@ -149,16 +175,35 @@ impl PottsBound {
 
     /// The bound of the even split (cheap: one pass over the edges), used inside the dual loop.
     pub(crate) fn bound(&mut self, unary: &[f64]) -> f64 {
+        #[cfg(target_arch = "x86_64")]
+        if self.wide {
+            // SAFETY: `wide` is set only when the processor runs AVX (`wide_registers`).
+            return unsafe { self.even_split_avx(unary) };
+        }
         self.even_split(unary)
+    }
+
+    /// `even_split` compiled for AVX.
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx")]
+    fn even_split_avx(&mut self, unary: &[f64]) -> f64 {
+        self.even_split(unary)
+    }
+
+    /// `diffused_portable` compiled for AVX.
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx")]
+    fn diffused_avx(&mut self, unary: &[f64], sweeps: usize, target: f64, enough: f64) -> f64 {
+        self.diffused_portable(unary, sweeps, target, enough)
     }
 
     /// The bound after at most `sweeps` sweeps of diffusion, stopping early once a sweep raises it by less
     /// than `1e-9` relative, or by less than `STOP_SHARE` of what separates it from `target` (the value the
     /// caller knows no bound can pass, e.g. the energy of a state it holds less the rest of the dual), or
     /// once it reaches `enough` (what the caller counts as close; infinite to run the sweeps out). Never
-    /// below `bound` for the same unaries. Each sweep's bound is the sum of the edges' minima taken once after
-    /// it (a diffusion step keeps the least value of each part it writes, so an edge's minimum reads its two
-    /// parts once).
+    /// below `bound` for the same unaries. Each sweep's bound is the sum of the edges' minima, each taken once
+    /// in the sweep, right after its later end is diffused (a diffusion step keeps the least value of each
+    /// part it writes, so an edge's minimum reads its two parts once).
     ///
     /// The split starts from the even split every time, so the bound depends on the inputs alone (a split
     /// kept from an earlier solve of the same scene started closer to the fixed point and stopped sooner,
@@ -170,6 +215,17 @@ impl PottsBound {
         target: f64,
         enough: f64,
     ) -> f64 {
+        #[cfg(target_arch = "x86_64")]
+        if self.wide {
+            // SAFETY: `wide` is set only when the processor runs AVX (`wide_registers`).
+            return unsafe { self.diffused_avx(unary, sweeps, target, enough) };
+        }
+        self.diffused_portable(unary, sweeps, target, enough)
+    }
+
+    /// `diffused`, in the build the caller's instructions allow (inlined into each).
+    #[inline(always)]
+    fn diffused_portable(&mut self, unary: &[f64], sweeps: usize, target: f64, enough: f64) -> f64 {
         let label_count = self.label_count;
         let node_count = self.row_minimum.len();
         let even = self.even_split(unary);
@@ -202,9 +258,15 @@ impl PottsBound {
         for _ in 0..sweeps {
             for node in 0..node_count {
                 self.diffuse(node, &mut average);
-            }
-            for edge in 0..self.edges.len() {
-                self.edge_value[edge] = self.edge_minimum(edge);
+                // An edge's parts are final for the sweep once its later end is diffused (a node writes only
+                // its own ends): its minimum is taken then, while both parts are still in cache.
+                for position in self.incident_start[node]..self.incident_start[node + 1] {
+                    let (edge, _) = self.incident[position];
+                    let (a, b, _) = self.edges[edge];
+                    if a.max(b) == node {
+                        self.edge_value[edge] = self.edge_minimum(edge);
+                    }
+                }
             }
             let reached = isolated + self.edge_value.iter().sum::<f64>();
             let rise = reached - best;
@@ -219,6 +281,7 @@ impl PottsBound {
     }
 
     /// The even split's bound, for inputs the diffusion does not take.
+    #[inline(always)]
     fn even_split(&mut self, unary: &[f64]) -> f64 {
         let label_count = self.label_count;
         let node_count = self.row_minimum.len();
@@ -255,6 +318,7 @@ impl PottsBound {
 
 /// Writes `part[x] = own[x] + (mean[x] - marginal[x])` and returns the least value written, as `lowest`
 /// would find it (four running minima; the minimum of a set does not depend on the order it is taken in).
+#[inline(always)]
 fn write_part(part: &mut [f64], own: &[f64], mean: &[f64], marginal: &[f64]) -> f64 {
     let mut lanes = [f64::INFINITY; 4];
     let mut parts = part.chunks_exact_mut(4);
@@ -292,6 +356,7 @@ fn write_part(part: &mut [f64], own: &[f64], mean: &[f64], marginal: &[f64]) -> 
 }
 
 /// The least value of a finite slice (infinity when empty), in four running minima like `lowest_sum`.
+#[inline(always)]
 fn lowest(values: &[f64]) -> f64 {
     let mut lanes = [f64::INFINITY; 4];
     let chunks = values.chunks_exact(4);
@@ -312,6 +377,7 @@ fn lowest(values: &[f64]) -> f64 {
 
 /// The least `a[x] + b[x]` over labels `x` (finite inputs): four running minima, so the additions do not
 /// wait on one another; the minimum of a set does not depend on the order it is taken in.
+#[inline(always)]
 fn lowest_sum(a: &[f64], b: &[f64]) -> f64 {
     let mut lanes = [f64::INFINITY; 4];
     let (a_chunks, b_chunks) = (a.chunks_exact(4), b.chunks_exact(4));

@@ -107,8 +107,20 @@ fn enclosed(a: &Footprint, b: &Footprint) -> bool {
 /// Some segment of `a` is adjacent to some segment of `b` at about the same depth, and the two share no
 /// segment.
 fn touching(scene: &Scene, a: &[SegmentId], b: &[SegmentId]) -> bool {
-    let b_set: std::collections::HashSet<SegmentId> = b.iter().copied().collect();
-    if a.iter().any(|segment| b_set.contains(segment)) {
+    // Membership of `b` as one flag per segment of the scene (cheaper than hashing every member, and this
+    // runs for every pair of objects a scene graph relates); an id outside the scene is looked up in `b`.
+    let segment_count = scene.segment_count();
+    let mut in_b = vec![false; segment_count];
+    for segment in b {
+        if let Some(flag) = in_b.get_mut(segment.index()) {
+            *flag = true;
+        }
+    }
+    let b_contains = |segment: &SegmentId| match in_b.get(segment.index()) {
+        Some(&flag) => flag,
+        None => b.contains(segment),
+    };
+    if a.iter().any(b_contains) {
         return false;
     }
     let near_depth_mm = RelationThresholds::default().near_depth_mm;
@@ -124,7 +136,7 @@ fn touching(scene: &Scene, a: &[SegmentId], b: &[SegmentId]) -> bool {
         segment.index() < scene.adjacency.node_count()
             && scene.adjacency.neighbors(node).any(|neighbour| {
                 let other = scene.adjacency[neighbour];
-                b_set.contains(&other)
+                b_contains(&other)
                     && match (depth(segment), depth(other)) {
                         (Some(x), Some(y)) => (f64::from(x) - f64::from(y)).abs() <= near_depth_mm,
                         _ => true,
@@ -177,5 +189,97 @@ pub fn in_region(footprint: &Footprint, region: ImageRegion, width: u32, height:
             Some(depth) => depth < 1500.0,
             None => y > 0.5,
         },
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::raster::RgbImage;
+    use crate::scene::SceneParams;
+
+    /// A 64x48 picture of coloured blocks cut into segments by SLIC (scene defaults).
+    fn blocks() -> &'static Scene {
+        static SCENE: std::sync::OnceLock<Scene> = std::sync::OnceLock::new();
+        SCENE.get_or_init(|| {
+            let (width, height) = (64u32, 48u32);
+            let pixels = (0..width * height)
+                .map(|index| {
+                    let (x, y) = (index % width, index / width);
+                    let block = (x / 13 + 3 * (y / 11)) as u8;
+                    [
+                        block.wrapping_mul(61),
+                        block.wrapping_mul(89),
+                        250 - block * 13,
+                    ]
+                })
+                .collect();
+            let image = RgbImage {
+                width,
+                height,
+                pixels,
+            };
+            Scene::from_image(
+                "linden-row-blocks",
+                image,
+                None,
+                None,
+                &SceneParams::default(),
+            )
+            .expect("segments")
+        })
+    }
+
+    /// `touching` as first written, with the landmark's members in a hash set: the reference.
+    fn touching_by_hash_set(scene: &Scene, a: &[SegmentId], b: &[SegmentId]) -> bool {
+        let b_set: std::collections::HashSet<SegmentId> = b.iter().copied().collect();
+        if a.iter().any(|segment| b_set.contains(segment)) {
+            return false;
+        }
+        a.iter().any(|&segment| {
+            let node = petgraph::graph::NodeIndex::new(segment.index());
+            segment.index() < scene.adjacency.node_count()
+                && scene
+                    .adjacency
+                    .neighbors(node)
+                    .any(|neighbour| b_set.contains(&scene.adjacency[neighbour]))
+        })
+    }
+
+    /// Two neighbouring segments touch; a set never touches one it shares a segment with; a segment id
+    /// outside the scene touches nothing.
+    #[test]
+    fn neighbours_touch_and_shared_segments_do_not() {
+        let scene = blocks();
+        let first = petgraph::graph::NodeIndex::new(0);
+        let neighbour = scene
+            .adjacency
+            .neighbors(first)
+            .next()
+            .map(|node| scene.adjacency[node])
+            .expect("segment 0 has a neighbour");
+        let (zero, beside) = (vec![SegmentId(0)], vec![neighbour]);
+        assert!(touching(scene, &zero, &beside));
+        assert!(touching(scene, &beside, &zero));
+        let both = vec![SegmentId(0), neighbour];
+        assert!(!touching(scene, &zero, &both));
+        let outside = vec![SegmentId(scene.segment_count() as u32 + 5)];
+        assert!(!touching(scene, &outside, &beside));
+        assert!(!touching(scene, &outside, &outside));
+    }
+
+    proptest::proptest! {
+        /// Member flags give the answer the hash set gives (the picture has no depth, so adjacency and
+        /// shared segments decide), ids outside the scene included.
+        #[test]
+        fn touching_matches_the_hash_set_reference(
+            a in proptest::collection::vec(0u32..80, 0..10),
+            b in proptest::collection::vec(0u32..80, 0..10),
+        ) {
+            let scene = blocks();
+            let ids = |picks: &[u32]| picks.iter().map(|&p| SegmentId(p)).collect::<Vec<_>>();
+            let (a, b) = (ids(&a), ids(&b));
+            proptest::prop_assert_eq!(touching(scene, &a, &b), touching_by_hash_set(scene, &a, &b));
+        }
     }
 }

@@ -65,6 +65,72 @@ fn nearest(nodes: &[Node], sources: &[usize]) -> (Vec<u64>, Vec<usize>) {
     (distance, owner)
 }
 
+/// Scratch of one medoid search: single-source Dijkstra runs that score a candidate medoid of a piece.
+struct MedoidSearch {
+    distance: Vec<u64>,
+    queue: BinaryHeap<Reverse<(u64, usize)>>,
+}
+
+impl MedoidSearch {
+    fn new(node_count: usize) -> MedoidSearch {
+        MedoidSearch {
+            distance: vec![u64::MAX; node_count],
+            queue: BinaryHeap::new(),
+        }
+    }
+
+    /// The sum over the piece's members (`in_piece`, `member_count` of them) of the geodesic distance from
+    /// `source` (over the whole patch; `u64::MAX / 2` when unreachable) times the member's area: the total
+    /// `nearest` from `source` gives. Dijkstra settles nodes in order of distance and a settled distance is
+    /// final, so the run stops once every member is settled, and gives up (`None`) once the members settled
+    /// so far already pass `limit` (the total can only grow).
+    fn weighted_total(
+        &mut self,
+        nodes: &[Node],
+        source: usize,
+        in_piece: &[bool],
+        member_count: usize,
+        limit: u128,
+    ) -> Option<u128> {
+        self.distance.fill(u64::MAX);
+        self.queue.clear();
+        self.distance[source] = 0;
+        self.queue.push(Reverse((0, source)));
+        let (mut total, mut settled) = (0u128, 0usize);
+        while settled < member_count {
+            let Some(Reverse((at, node))) = self.queue.pop() else {
+                break;
+            };
+            if at > self.distance[node] {
+                continue;
+            }
+            if in_piece[node] {
+                settled += 1;
+                total += u128::from(at.min(u64::MAX / 2)) * u128::from(nodes[node].area);
+                if total > limit {
+                    return None;
+                }
+            }
+            for &(next, cost) in &nodes[node].steps {
+                let reach = at.saturating_add(cost);
+                if reach < self.distance[next] {
+                    self.distance[next] = reach;
+                    self.queue.push(Reverse((reach, next)));
+                }
+            }
+        }
+        if settled < member_count {
+            // Members no path reaches count as far as `nearest` leaves them.
+            for (node, _) in in_piece.iter().enumerate().filter(|(_, &flag)| flag) {
+                if self.distance[node] == u64::MAX {
+                    total += u128::from(u64::MAX / 2) * u128::from(nodes[node].area);
+                }
+            }
+        }
+        (total <= limit).then_some(total)
+    }
+}
+
 /// Splits a connected patch into `parts` pieces by geodesic k-medoids. `patch` lists segment indices;
 /// `neighbours[s]` holds (neighbour, colour contrast) for every segment; `depth[s]` is the mean depth in
 /// millimetres when known; `area[s]` the pixel count. Returns the pieces (each ascending, none empty), or
@@ -120,6 +186,8 @@ pub fn geodesic_parts(
         }
     }
     let mut owner = nearest(&nodes, &seeds).1;
+    let mut in_piece = vec![false; nodes.len()];
+    let mut search = MedoidSearch::new(nodes.len());
     for _ in 0..ROUNDS {
         // Each piece's medoid: the member with the least area-weighted geodesic distance to the others.
         let mut moved = false;
@@ -130,15 +198,20 @@ pub fn geodesic_parts(
             // patch of thousands of segments costs a bounded number of Dijkstra runs per round.
             let stride = members.len().div_ceil(MEDOID_CANDIDATES).max(1);
             let candidates = members.iter().copied().step_by(stride).chain([*seed]);
+            for &m in &members {
+                in_piece[m] = true;
+            }
             for candidate in candidates {
-                let (distance, _) = nearest(&nodes, &[candidate]);
-                let total: u128 = members
-                    .iter()
-                    .map(|&m| u128::from(distance[m].min(u64::MAX / 2)) * u128::from(nodes[m].area))
-                    .sum();
-                if (total, candidate) < best {
-                    best = (total, candidate);
+                let total =
+                    search.weighted_total(&nodes, candidate, &in_piece, members.len(), best.0);
+                if let Some(total) = total {
+                    if (total, candidate) < best {
+                        best = (total, candidate);
+                    }
                 }
+            }
+            for &m in &members {
+                in_piece[m] = false;
             }
             if best.1 != *seed {
                 *seed = best.1;
@@ -202,6 +275,54 @@ mod tests {
         ];
         let pieces = geodesic_parts(&[0, 1, 2, 3, 4, 5], 2, &neighbours, &depth, &[10; 6]);
         assert_eq!(pieces, vec![vec![0, 1, 2], vec![3, 4, 5]]);
+    }
+
+    /// The medoid search's early-stopping Dijkstra scores every candidate as a full run of `nearest` does
+    /// (or gives up only when that score passes the limit), on random patches with unreachable parts.
+    #[test]
+    fn medoid_scores_match_full_dijkstra_runs() {
+        let mut random = crate::random::SplitMix64::new(22);
+        for _ in 0..60 {
+            let count = 2 + random.below(40) as usize;
+            let mut nodes: Vec<Node> = (0..count)
+                .map(|_| Node {
+                    steps: Vec::new(),
+                    area: 1 + u64::from(random.below(50)),
+                })
+                .collect();
+            for _ in 0..random.below(3 * count as u32) {
+                let (a, b) = (
+                    random.below(count as u32) as usize,
+                    random.below(count as u32) as usize,
+                );
+                if a != b {
+                    let cost = 1000 + u64::from(random.below(5000));
+                    nodes[a].steps.push((b, cost));
+                    nodes[b].steps.push((a, cost));
+                }
+            }
+            let in_piece: Vec<bool> = (0..count).map(|_| random.chance(0.5)).collect();
+            let members: Vec<usize> = (0..count).filter(|&i| in_piece[i]).collect();
+            let mut search = MedoidSearch::new(count);
+            for source in 0..count {
+                let (distance, _) = nearest(&nodes, &[source]);
+                let full: u128 = members
+                    .iter()
+                    .map(|&m| u128::from(distance[m].min(u64::MAX / 2)) * u128::from(nodes[m].area))
+                    .sum();
+                let open =
+                    search.weighted_total(&nodes, source, &in_piece, members.len(), u128::MAX);
+                assert_eq!(open, Some(full));
+                // A limit below the score gives up; at or above it, the score comes back whole.
+                if full > 0 {
+                    let below =
+                        search.weighted_total(&nodes, source, &in_piece, members.len(), full - 1);
+                    assert_eq!(below, None);
+                }
+                let at = search.weighted_total(&nodes, source, &in_piece, members.len(), full);
+                assert_eq!(at, Some(full));
+            }
+        }
     }
 
     #[test]

@@ -8,7 +8,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
 use crate::energy::{
-    count_violation, EnergyError, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
+    count_violation, EnergyError, JointEnergy, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
 };
 use crate::grounding::{
     ground, how_many, relation_holds, where_question, ClarifyingQuestion, GroundedConstraint,
@@ -497,17 +497,25 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         }
     }
     unmet.sort_by_key(|u| u.constraint);
-    // Every solve of the turn left its bound as the dual loop had it; the answer's is tightened once here.
-    tighten_bound(&energy, &mut solution, request.options)?;
-    let graph = match latest_graph {
-        Some(mut graph) => {
-            graph.energy = solution.energy;
-            graph.lower_bound = solution.lower_bound;
-            graph.relative_gap = solution.relative_gap;
+    // Every solve of the turn left its bound as the dual loop had it; the answer's is tightened once here,
+    // beside the answer's scene graph when that is still to build (`tighten_beside_graph`).
+    let mut graph = match latest_graph {
+        Some(graph) => {
+            tighten_bound(&energy, &mut solution, request.options)?;
             graph
         }
-        None => graph_of(request, &built.hypotheses, &solution, (&counted, &caps)),
+        None => {
+            let (tightened, graph) =
+                tighten_beside_graph(&energy, &solution, request.options, |solved| {
+                    graph_of(request, &built.hypotheses, solved, (&counted, &caps))
+                })?;
+            solution = tightened;
+            graph
+        }
     };
+    graph.energy = solution.energy;
+    graph.lower_bound = solution.lower_bound;
+    graph.relative_gap = solution.relative_gap;
     let mut surplus_questions: Vec<ClarifyingQuestion> = Vec::new();
     // A count the energy meets with a hypothesis switched on but not drawn is not met in the picture the
     // operator gets back: the scene graph's objects decide.
@@ -734,6 +742,44 @@ fn unmet_counts(
         })
         .map(|(constraint, _, _)| constraint)
         .collect()
+}
+
+/// Tightens `solution`'s bound (`tighten_bound`) while `graph` builds the answer's scene graph, on two
+/// threads when the machine has two cores and a thread starts, else one after the other. The graph reads
+/// the solution's state alone (its figures are set from the tightened solution afterwards) and the
+/// tightening reads the energy and the solution's multipliers alone, so either order gives the same answer.
+fn tighten_beside_graph(
+    energy: &JointEnergy,
+    solution: &JointSolution,
+    options: &JointOptions,
+    graph: impl FnOnce(&JointSolution) -> SceneGraph,
+) -> Result<(JointSolution, SceneGraph), CorrectionError> {
+    let two_cores = std::thread::available_parallelism().is_ok_and(|cores| cores.get() >= 2);
+    let (graph, bound) = std::thread::scope(|scope| {
+        let worker = two_cores
+            .then(|| {
+                std::thread::Builder::new()
+                    .name("sayso-bound".into())
+                    .spawn_scoped(scope, || {
+                        let mut tightened = solution.clone();
+                        tighten_bound(energy, &mut tightened, options).map(|()| tightened)
+                    })
+                    .ok()
+            })
+            .flatten();
+        let graph = graph(solution);
+        (graph, worker.and_then(|worker| worker.join().ok()))
+    });
+    let tightened = match bound {
+        Some(result) => result?,
+        // No second thread (or it ended without an answer): tighten here.
+        None => {
+            let mut tightened = solution.clone();
+            tighten_bound(energy, &mut tightened, options)?;
+            tightened
+        }
+    };
+    Ok((tightened, graph))
 }
 
 /// The scene graph of a solved state, with the counts and caps in force.
