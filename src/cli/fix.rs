@@ -13,7 +13,7 @@ use sayso_core::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
 use sayso_core::raster::{write_palette_png, write_rgb_png};
 use sayso_core::scene::files::LABELS_FILE;
 use sayso_core::scenegraph::{label_map, SceneGraph};
-use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
+use sayso_core::taxonomy::Taxonomy;
 use sayso_core::turn::dialogue::Status;
 use sayso_perception::pipeline::{
     correct_notes, load_classifier, model_path, prepare_perceived, report_text, CorrectionReport,
@@ -272,19 +272,6 @@ fn view_titles(notes: usize, room_before: &str, room_after: &str) -> (String, St
     )
 }
 
-/// The class colours as a 256-entry palette for `labels.png`: class `i` is `palette[i]`, unlabelled (255) is
-/// black, unused entries grey.
-fn label_palette(taxonomy: &Taxonomy) -> Vec<[u8; 3]> {
-    let mut palette = vec![[128, 128, 128]; 256];
-    for class in taxonomy.classes() {
-        if let Some(slot) = palette.get_mut(class.id.index()) {
-            *slot = class.colour;
-        }
-    }
-    palette[usize::from(UNLABELLED)] = [0, 0, 0];
-    palette
-}
-
 /// Writes scene_graph.json, labels.png (a palette PNG: pixel value = class id, shown in the class's colour),
 /// overlay_before.png and overlay_after.png (the same size), before_after.png (both side by side) and
 /// summary.txt.
@@ -340,7 +327,7 @@ pub fn write_outputs(
     write_palette_png(
         &out.join(LABELS_FILE),
         &label_map(scene, report.final_labels()),
-        &label_palette(taxonomy),
+        &taxonomy.label_palette(),
     )?;
     let path = out.join("scene_graph.json");
     std::fs::write(&path, serde_json::to_string_pretty(after_graph)? + "\n")
