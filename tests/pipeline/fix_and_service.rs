@@ -37,6 +37,15 @@ pub fn held_out_render(index: usize, seed: u64) -> tempfile::TempDir {
 /// `sayso fix SCENE --say NOTE...` (SCENE a directory, image or demo name); its labels.png, standard
 /// output and standard error. Every exit code of a finished run (0, or 3-5 for unsettled notes) is taken.
 pub fn fix_labels(scene: &str, notes: &[&str]) -> (IndexImage, String, String) {
+    fix_labels_with_demos(scene, notes, &crate::paths::demo_scenes())
+}
+
+/// `fix_labels` with demo scenes from `demos`.
+pub fn fix_labels_with_demos(
+    scene: &str,
+    notes: &[&str],
+    demos: &Path,
+) -> (IndexImage, String, String) {
     let out = tempfile::tempdir().unwrap();
     let mut command = Command::new(env!("CARGO_BIN_EXE_sayso"));
     command.arg("fix").arg(scene);
@@ -45,7 +54,7 @@ pub fn fix_labels(scene: &str, notes: &[&str]) -> (IndexImage, String, String) {
     }
     let result = command
         .arg("--demo-dir")
-        .arg(crate::paths::demo_scenes())
+        .arg(demos)
         .arg("--out")
         .arg(out.path())
         .env_remove("SAYSO_MODEL")
@@ -64,13 +73,18 @@ pub fn fix_labels(scene: &str, notes: &[&str]) -> (IndexImage, String, String) {
 
 /// The service's router on a fresh SQLite log, with the shipped classifier pair and the committed demos.
 pub fn service() -> (tempfile::TempDir, axum::Router) {
+    service_with_demos(&crate::paths::demo_scenes())
+}
+
+/// The service's router with demo scenes from `demos`.
+pub fn service_with_demos(demos: &Path) -> (tempfile::TempDir, axum::Router) {
     use sayso_perception::pipeline::model_path;
     use sayso_session::config::ServiceConfig;
     use sayso_session::{Coordinator, CoordinatorSettings, JointCorrector};
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {
         data_dir: data.path().to_path_buf(),
-        demo_dir: Some(crate::paths::demo_scenes()),
+        demo_dir: Some(demos.to_path_buf()),
         ..ServiceConfig::default()
     };
     let coordinator = Coordinator::open(
@@ -215,6 +229,40 @@ async fn a_demo_scene_gets_the_same_labels_from_fix_and_the_service() {
             .any(|line| line.trim_start().starts_with("changed:") && !line.contains("nothing")),
         "the notes change the demo scene: {said}"
     );
+    let (served, statuses) = service_labels(&app, serde_json::json!({"demo": name}), &notes).await;
+    let differing = differing_pixels(&fixed, &served);
+    eprintln!("{name}: {differing} pixels differ; service {statuses:?}");
+    assert_eq!(differing, 0, "fix said {said}; the service {statuses:?}");
+}
+
+/// A demo scene whose `camera.json` gives its depth in half millimetres: the service's `{"demo": NAME}`
+/// reads its depth through the one scene loader, scaled as `fix NAME` scales it (before, the service sent
+/// the raw depth PNG on and ignored the unit).
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_demo_scene_with_a_depth_unit_is_read_alike_by_fix_and_the_service() {
+    let demos = tempfile::tempdir().unwrap();
+    let name = "hall_in_half_millimetres";
+    let scene = demos.path().join(name);
+    std::fs::create_dir_all(&scene).unwrap();
+    let source = crate::paths::demo_scenes().join("living_room_evening");
+    let depth = read_index_png(&source.join("depth.png"), DEFAULT_PIXEL_LIMIT).unwrap();
+    // The same distances in units of half a millimetre (values doubled, capped at the 16-bit range).
+    let doubled = IndexImage {
+        values: depth
+            .values
+            .iter()
+            .map(|&mm| mm.saturating_mul(2))
+            .collect(),
+        ..depth
+    };
+    sayso_core::raster::write_index_png(&scene.join("depth.png"), &doubled).unwrap();
+    for file in ["image.png", "scene.json"] {
+        std::fs::copy(source.join(file), scene.join(file)).unwrap();
+    }
+    std::fs::write(scene.join("camera.json"), r#"{"depth_unit_mm": 0.5}"#).unwrap();
+    let (_data, app) = service_with_demos(demos.path());
+    let notes = ["there's no bag in here"];
+    let (fixed, said, _) = fix_labels_with_demos(name, &notes, demos.path());
     let (served, statuses) = service_labels(&app, serde_json::json!({"demo": name}), &notes).await;
     let differing = differing_pixels(&fixed, &served);
     eprintln!("{name}: {differing} pixels differ; service {statuses:?}");
