@@ -13,7 +13,7 @@ use sayso_core::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
 use sayso_core::raster::{write_palette_png, write_rgb_png};
 use sayso_core::scene::files::LABELS_FILE;
 use sayso_core::scenegraph::{label_map, SceneGraph};
-use sayso_core::taxonomy::{Taxonomy, UNLABELLED};
+use sayso_core::taxonomy::Taxonomy;
 use sayso_core::turn::dialogue::Status;
 use sayso_perception::pipeline::{
     correct_notes, load_classifier, model_path, prepare_perceived, report_text, CorrectionReport,
@@ -257,17 +257,19 @@ fn object_regions(scene: &sayso_core::scene::Scene, graph: &SceneGraph) -> Vec<u
         .collect()
 }
 
-/// The class colours as a 256-entry palette for `labels.png`: class `i` is `palette[i]`, unlabelled (255) is
-/// black, unused entries grey.
-fn label_palette(taxonomy: &Taxonomy) -> Vec<[u8; 3]> {
-    let mut palette = vec![[128, 128, 128]; 256];
-    for class in taxonomy.classes() {
-        if let Some(slot) = palette.get_mut(class.id.index()) {
-            *slot = class.colour;
-        }
-    }
-    palette[usize::from(UNLABELLED)] = [0, 0, 0];
-    palette
+/// The titles of the before and after pictures, each naming the room type the scene graph holds (a note
+/// such as "this is the bathroom" may change nothing else that shows): "Before the notes: kitchen",
+/// "After 2 notes: bathroom".
+fn view_titles(notes: usize, room_before: &str, room_after: &str) -> (String, String) {
+    let room = |name: &str| name.replace('_', " ");
+    (
+        format!("Before the notes: {}", room(room_before)),
+        format!(
+            "After {notes} note{}: {}",
+            if notes == 1 { "" } else { "s" },
+            room(room_after)
+        ),
+    )
 }
 
 /// Writes scene_graph.json, labels.png (a palette PNG: pixel value = class id, shown in the class's colour),
@@ -290,8 +292,11 @@ pub fn write_outputs(
     let after_labels = label_map(scene, &after_graph.segment_labels).values;
     let before_regions = object_regions(scene, before_graph);
     let after_regions = object_regions(scene, after_graph);
-    let notes = report.turns.len();
-    let after_title = format!("After {notes} note{}", if notes == 1 { "" } else { "s" });
+    let (before_title, after_title) = view_titles(
+        report.turns.len(),
+        &before_graph.room_name,
+        &after_graph.room_name,
+    );
     let pictures = draw_before_after(
         &scene.image,
         View {
@@ -300,7 +305,7 @@ pub fn write_outputs(
                 regions: &before_regions,
             },
             labels: &before_labels,
-            title: "Before the notes",
+            title: &before_title,
         },
         View {
             regions: RegionMap {
@@ -322,7 +327,7 @@ pub fn write_outputs(
     write_palette_png(
         &out.join(LABELS_FILE),
         &label_map(scene, report.final_labels()),
-        &label_palette(taxonomy),
+        &taxonomy.label_palette(),
     )?;
     let path = out.join("scene_graph.json");
     std::fs::write(&path, serde_json::to_string_pretty(after_graph)? + "\n")
@@ -331,4 +336,21 @@ pub fn write_outputs(
     std::fs::write(&path, report_text(report, taxonomy))
         .with_context(|| format!("writing {}", path.display()))?;
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_pictures_name_the_room_before_and_after() {
+        assert_eq!(
+            view_titles(2, "kitchen", "living_room"),
+            (
+                "Before the notes: kitchen".to_string(),
+                "After 2 notes: living room".to_string()
+            )
+        );
+        assert_eq!(view_titles(1, "office", "office").1, "After 1 note: office");
+    }
 }

@@ -258,6 +258,19 @@ impl Taxonomy {
         self.classes.len()
     }
 
+    /// The class colours as the 256-entry palette of a label map PNG (`labels.png` of `fix` and of the
+    /// service): class `i` is entry `i`, unlabelled (`UNLABELLED`) black, unused entries grey.
+    pub fn label_palette(&self) -> Vec<[u8; 3]> {
+        let mut palette = vec![[128, 128, 128]; 256];
+        for class in &self.classes {
+            if let Some(slot) = palette.get_mut(class.id.index()) {
+                *slot = class.colour;
+            }
+        }
+        palette[usize::from(UNLABELLED)] = [0, 0, 0];
+        palette
+    }
+
     /// Every class in id order.
     pub fn classes(&self) -> &[ClassInfo] {
         &self.classes

@@ -306,11 +306,14 @@ pub struct CorrectionReport {
 }
 
 impl CorrectionReport {
-    /// The final label of every fine segment (the classifier's when nothing was corrected).
+    /// The final label of every fine segment: the scene as it stands after the last note, or the no-note
+    /// solve (`baseline`) when no note changed anything. Never the classifier's own best classes: the
+    /// service keeps the no-note solve as a scene's first version, and `scene_graph.json` describes it, so
+    /// the labels written must be that solve's too.
     pub fn final_labels(&self) -> &[ClassId] {
         match &self.correction {
             Some(correction) => &correction.graph.segment_labels,
-            None => &self.prepared.classifier_labels,
+            None => &self.baseline.graph.segment_labels,
         }
     }
 }

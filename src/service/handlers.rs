@@ -348,7 +348,7 @@ fn png_answer(result: Result<Vec<u8>, ApiError>) -> Response {
 /// class id, 255 = unlabelled).
 #[utoipa::path(get, path = "/v1/scenes/{scene_id}/labels.png", tag = "scenes", security(("bearer" = [])),
     params(("scene_id" = i64, Path, description = "A scene id"), VersionQuery),
-    responses((status = 200, description = "Index PNG", content_type = "image/png"),
+    responses((status = 200, description = "Palette PNG: pixel value = class id (255 unlabelled), shown in the class colour", content_type = "image/png"),
         (status = 400, description = "A scene id that is not a positive integer (bad_id); a version that is not one, or another query key (bad_version)", body = ErrorBody),
         (status = 404, description = "Unknown scene, or a version not of this scene", body = ErrorBody)))]
 pub async fn label_map(

@@ -12,6 +12,7 @@ mod demo_turns;
 mod paths;
 
 mod demo_scenes;
+mod fix_and_service;
 mod grounding_relations;
 mod image_only_classifier;
 mod joint_correct;

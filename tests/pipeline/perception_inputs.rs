@@ -108,6 +108,12 @@ fn fix_reads_scores_by_their_class_names_and_names_unknown_ones() {
         message.contains("unknown class names") && message.contains("gnome"),
         "{message}"
     );
+    // The refusal says how to go on: where the known names are listed and the flag that leaves unknown
+    // ones out.
+    assert!(
+        message.contains("sayso classes") && message.contains("--drop-unknown-classes"),
+        "{message}"
+    );
     assert_eq!(message.matches("gnome").count(), 1, "said once: {message}");
 
     let dropped = fix(

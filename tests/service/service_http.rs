@@ -374,6 +374,17 @@ fn a_rendered_demo_scene_registers_by_name_with_the_binary_corrector() {
         .flat_map(|x| (boxed.bbox.y0..boxed.bbox.y1).map(move |y| (x, y)))
         .find(|&(x, y)| labels.get(x, y) == BOX)
         .unwrap();
+    // The served label map is a palette PNG (IHDR colour type 3 at byte 25: PNG specification, W3C, 11.2.2)
+    // whose colours are the classes' own, so it reads as class ids and looks like the classes.
+    assert_eq!(labels_png[25], 3, "an indexed-colour PNG");
+    let coloured =
+        raster::decode_rgb_image(&labels_png, std::path::Path::new("labels"), 1 << 22).unwrap();
+    let taxonomy = sayso_core::taxonomy::Taxonomy::embedded();
+    let box_colour = taxonomy
+        .class(sayso_core::ids::ClassId(BOX))
+        .unwrap()
+        .colour;
+    assert_eq!(coloured.get(x, y), box_colour);
     let conversation = coordinator.open_conversation(scene, "mira").unwrap();
     let reply = coordinator
         .utterance(

@@ -206,9 +206,22 @@ fn labels_png_is_a_palette_png_that_reads_back_as_class_ids() {
         height: HEIGHT,
         values: after,
     };
-    let mut palette = vec![[0u8, 0, 0]; 256];
+    // The palette `fix` and the service write label maps with: every class in its own colour, unlabelled
+    // black.
+    let palette = taxonomy.label_palette();
+    assert_eq!(palette.len(), 256);
+    assert_eq!(
+        palette[usize::from(sayso_core::taxonomy::UNLABELLED)],
+        [0, 0, 0]
+    );
     for class in taxonomy.classes() {
-        palette[class.id.index()] = class.colour;
+        assert_eq!(palette[class.id.index()], class.colour);
+        // The console reads a served label map back by colour: no class may look unlabelled or unused.
+        assert!(
+            class.colour != [0, 0, 0] && class.colour != [128, 128, 128],
+            "{} is black or grey",
+            class.name
+        );
     }
     let directory = tempfile::tempdir().unwrap();
     let path = directory.path().join("labels.png");

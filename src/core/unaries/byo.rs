@@ -27,7 +27,13 @@ pub enum PerceptionError {
     Npy(#[from] NpyError),
     #[error(transparent)]
     Raster(#[from] RasterError),
-    #[error("unknown class names (not canonical names nor synonyms): {}", names.join(", "))]
+    #[error(
+        "unknown class names (not canonical names nor synonyms): {}; `sayso classes` and GET /v1/classes \
+         list the known ones. Rename them, or leave them out (--drop-unknown-classes; drop_unknown_classes \
+         in a request or an upload; allow_unknown_classes in a user model's config) while at least one \
+         name is known",
+        names.join(", ")
+    )]
     UnknownClassNames { names: Vec<String> },
     #[error("the class list is empty")]
     NoClasses,

@@ -120,14 +120,26 @@ export class Picture {
     this.labelLayer.getContext("2d").putImageData(this.colourise(this.labels), 0, 0);
   }
 
-  /** Reads an index PNG's bitmap into class ids. */
+  /**
+   * Reads the bitmap of a label map into class ids. The service sends a palette PNG whose colours are the
+   * classes' own (`GET /v1/classes`), so a colour names its class; any other colour (black: unlabelled) is
+   * unlabelled.
+   */
   readLabels(labelMap) {
     const scratch = new OffscreenCanvas(this.width, this.height);
     const context = scratch.getContext("2d", { willReadFrequently: true });
     context.drawImage(labelMap, 0, 0);
     const rgba = context.getImageData(0, 0, this.width, this.height).data;
+    const byColour = new Map();
+    for (const [id, entry] of this.classes) {
+      byColour.set((entry.colour[0] << 16) | (entry.colour[1] << 8) | entry.colour[2], id);
+    }
     const labels = new Uint8Array(this.width * this.height);
-    for (let index = 0; index < labels.length; index++) labels[index] = rgba[index * 4];
+    for (let index = 0; index < labels.length; index++) {
+      const colour = (rgba[index * 4] << 16) | (rgba[index * 4 + 1] << 8) | rgba[index * 4 + 2];
+      const id = byColour.get(colour);
+      labels[index] = id === undefined ? UNLABELLED : id;
+    }
     return labels;
   }
 

@@ -349,11 +349,13 @@ impl Coordinator {
         ))
     }
 
-    /// The current label map as an index PNG.
+    /// The current label map as a palette PNG: pixel value = class id (255 unlabelled), shown in the
+    /// class's colour (`Taxonomy::label_palette`), so it reads as class ids and looks like the classes.
     pub fn label_map_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
         let labels = lock(&slot).state.labels.clone();
-        raster::encode_index_png(&labels).map_err(SessionError::internal)
+        raster::encode_palette_png(&labels, &self.corrector.taxonomy().label_palette())
+            .map_err(SessionError::internal)
     }
 
     /// The current overlay as an RGB PNG.

@@ -297,12 +297,23 @@ impl Coordinator {
             upload.image_png =
                 Some(std::fs::read(&image_path).map_err(|error| unreadable(&image_path, error))?);
             // The demo's ground-truth labels are not handed in: the scene starts from the built-in
-            // classifier's belief, as on a robot.
-            let depth_path = directory.join(DEPTH_FILE);
-            if upload.depth_png.is_none() && depth_path.is_file() {
-                upload.depth_png = Some(
-                    std::fs::read(&depth_path).map_err(|error| unreadable(&depth_path, error))?,
-                );
+            // classifier's belief, as on a robot. Its depth is read by the one scene loader, as `fix NAME`
+            // reads it (scaled to millimetres by camera.json's depth unit), and sent on in millimetres.
+            if upload.depth_png.is_none() && directory.join(DEPTH_FILE).is_file() {
+                let capture =
+                    crate::scene::load_capture(&directory, self.pixel_limit).map_err(|error| {
+                        SessionError::internal(format!("reading {}: {error}", directory.display()))
+                    })?;
+                if let Some(depth) = capture.depth {
+                    upload.depth_png = Some(
+                        raster::encode_index_png(&raster::IndexImage {
+                            width: depth.width,
+                            height: depth.height,
+                            values: depth.millimetres,
+                        })
+                        .map_err(SessionError::internal)?,
+                    );
+                }
             }
             if upload.name.is_none() {
                 upload.name = Some(demo);

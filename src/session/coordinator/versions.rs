@@ -197,14 +197,15 @@ impl Coordinator {
         ))
     }
 
-    /// The label map of one of the scene's versions, as an index PNG.
+    /// The label map of one of the scene's versions, as a palette PNG (see `label_map_png`).
     pub fn label_map_png_at(
         &self,
         scene: SceneKey,
         version: VersionKey,
     ) -> Result<Vec<u8>, SessionError> {
         let state = self.version_state(scene, version)?;
-        raster::encode_index_png(&state.labels).map_err(SessionError::internal)
+        raster::encode_palette_png(&state.labels, &self.corrector.taxonomy().label_palette())
+            .map_err(SessionError::internal)
     }
 
     /// The overlay of one of the scene's versions, as an RGB PNG.
