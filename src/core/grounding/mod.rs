@@ -405,8 +405,7 @@ impl Resolver<'_, '_> {
     /// together with its surroundings, so never stands for the whole of it. A proposal the robot did not
     /// accept is never taken over the region: it is no one's belief about the picture, and a proposal that
     /// spans the pointed thing and its neighbour (a fridge and the tall cabinet beside it) carried the
-    /// relabel onto the neighbour. `sayso trial --half dev`, five sets of 28 scenes (skips 0, 28, 84, 112,
-    /// 140; 11 pointed relabels): their right->wrong pixels 25,248 -> 11,931, wrong->right 61,343 -> 62,390.
+    /// relabel onto the neighbour (measured in `docs/decisions.md`).
     fn pointed_target(&mut self, segment: SegmentId) -> Target {
         let view = self.view;
         let over: Vec<usize> = (0..view.hypotheses.len())

@@ -14,12 +14,8 @@
 //! (`super::instances::edge_strength`) times the pixels of the patch cut, so a plain seam through a large
 //! patch comes first and a small patch with a busy texture last.
 //!
-//! Before, the largest patch was cut into as many pieces as were missing, which cut a tall cabinet in the
-//! middle and left a merged pair whole. `sayso trial --half dev` (28 scenes, seeds from 6000000), object
-//! accuracy after two notes against the no-note solve: +2.9 before; +3.4 with the mean strength alone as
-//! the score, +3.3 with the pixels alone, +3.7 with strength times the square root of the pixels and +3.7
-//! with strength times pixels. Checked on the next 28 development seeds (`--skip 28`, not looked at while
-//! choosing): +2.0 before, +2.6, +2.6 and +2.9 for strength times pixels, which is the rule.
+//! Cutting the largest patch into as many pieces as were missing cut a tall cabinet in the middle and left a
+//! merged pair whole; the scores tried are in `docs/decisions.md`.
 
 use super::instances::{edge_strength, scaled_area, InstanceCuts};
 use super::split::geodesic_parts;
