@@ -12,7 +12,7 @@ use sayso_core::language::parse_focus;
 use sayso_core::overlay::{draw_before_after, OverlayOptions, RegionMap, View};
 use sayso_core::raster::{write_palette_png, write_rgb_png};
 use sayso_core::scene::files::LABELS_FILE;
-use sayso_core::scenegraph::{label_map, SceneGraph};
+use sayso_core::scenegraph::{label_map, object_regions};
 use sayso_core::taxonomy::Taxonomy;
 use sayso_core::turn::dialogue::Status;
 use sayso_perception::pipeline::{
@@ -224,37 +224,6 @@ pub fn run(args: FixArgs) -> anyhow::Result<()> {
     println!("wrote {}", args.out.display());
     settled(&report)?;
     Ok(())
-}
-
-/// Per pixel: the scene-graph object it belongs to, or (outside every object) a region per class, so the
-/// outlines follow objects and class borders, never superpixels.
-fn object_regions(scene: &sayso_core::scene::Scene, graph: &SceneGraph) -> Vec<u32> {
-    let mut object_of = vec![None; scene.segment_count()];
-    for (index, object) in graph.objects.iter().enumerate() {
-        for member in &object.members {
-            if let Some(slot) = object_of.get_mut(member.index()) {
-                *slot = Some(index as u32);
-            }
-        }
-    }
-    scene
-        .segments
-        .labels
-        .iter()
-        .map(|&segment| {
-            let segment = segment as usize;
-            match object_of.get(segment).copied().flatten() {
-                Some(object) => object,
-                None => {
-                    let class = graph
-                        .segment_labels
-                        .get(segment)
-                        .map_or(u32::from(u16::MAX), |c| u32::from(c.0));
-                    u32::MAX - class
-                }
-            }
-        })
-        .collect()
 }
 
 /// The titles of the before and after pictures, each naming the room type the scene graph holds (a note

@@ -369,8 +369,8 @@ pub async fn label_map(
     png_answer(result)
 }
 
-/// The picture with the labels (of the version in force or the version named) blended in, in the
-/// generated class colours.
+/// The picture under a translucent tint of the labels (of the version in force or the version named),
+/// its objects outlined, what that version's note changed ringed and named, and a legend.
 #[utoipa::path(get, path = "/v1/scenes/{scene_id}/overlay.png", tag = "scenes", security(("bearer" = [])),
     params(("scene_id" = i64, Path, description = "A scene id"), VersionQuery),
     responses((status = 200, description = "RGB PNG", content_type = "image/png"),

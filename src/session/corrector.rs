@@ -227,28 +227,60 @@ pub trait Corrector: Send + Sync + 'static {
     /// service decides (and may roll it back if logging fails).
     fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError>;
 
-    /// The overlay image: the photo under a translucent class tint, class borders outlined, and a legend of
-    /// the classes shown to the right (`crate::overlay::draw_overlay`). Labels that do not fit the image
-    /// give the plain half-and-half blend instead.
-    fn overlay(&self, image: &RgbImage, state: &SceneState) -> RgbImage {
-        let regions: Vec<u32> = state
-            .labels
-            .values
-            .iter()
-            .map(|&label| u32::from(label))
-            .collect();
-        crate::overlay::draw_overlay(
+    /// One region id per pixel naming the object of the version's scene graph each pixel belongs to
+    /// (`crate::scenegraph::object_regions`), so the overlay outlines objects; `None` when the corrector
+    /// cannot tell, and the overlay then outlines class borders.
+    fn object_regions(&self, _input: &SceneInput, _state: &SceneState) -> Option<Vec<u32>> {
+        None
+    }
+
+    /// The overlay image of a version, drawn as `fix` draws its after picture
+    /// (`crate::overlay::draw_before_after`): the photo under a translucent class tint, the objects
+    /// outlined (`object_regions`), the regions the version's own note changed against `parent` (the
+    /// version it was made from; `None` for the registered version) ringed and named, under a title,
+    /// with a legend of the classes shown to the right. Labels that do not fit the image give the plain
+    /// half-and-half blend instead.
+    fn overlay(
+        &self,
+        input: &SceneInput,
+        state: &SceneState,
+        parent: Option<&SceneState>,
+    ) -> RgbImage {
+        let image = &input.image;
+        let labels = &state.labels;
+        let regions = self
+            .object_regions(input, state)
+            .filter(|regions| regions.len() == labels.values.len())
+            .unwrap_or_else(|| labels.values.iter().map(|&l| u32::from(l)).collect());
+        let before = parent
+            .map(|parent| &parent.labels)
+            .filter(|before| before.width == labels.width && before.height == labels.height)
+            .unwrap_or(labels);
+        let title = match parent {
+            Some(_) => "Ringed: what this version's note changed",
+            None => "As registered",
+        };
+        let map = crate::overlay::RegionMap {
+            width: labels.width,
+            regions: &regions,
+        };
+        crate::overlay::draw_before_after(
             image,
-            crate::overlay::RegionMap {
-                width: state.labels.width,
-                regions: &regions,
+            crate::overlay::View {
+                regions: map,
+                labels: &before.values,
+                title,
             },
-            crate::overlay::Labelling::PerPixel(&state.labels.values),
+            crate::overlay::View {
+                regions: map,
+                labels: &labels.values,
+                title,
+            },
             self.taxonomy(),
             &crate::overlay::OverlayOptions::default(),
         )
-        .map(|overlay| overlay.image)
-        .unwrap_or_else(|_| blend_overlay(image, &state.labels, self.taxonomy()))
+        .map(|pictures| pictures.after)
+        .unwrap_or_else(|_| blend_overlay(image, labels, self.taxonomy()))
     }
 }
 

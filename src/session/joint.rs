@@ -21,7 +21,7 @@ use crate::ids::ClassId;
 use crate::language::constraint::{Constraint, Focus};
 use crate::pipeline::{correct_turn, CorrectionSettings, TurnInputs};
 use crate::scenegraph::changes::{Change as GraphChange, ChangeKind};
-use crate::scenegraph::{label_map, object_id};
+use crate::scenegraph::{label_map, object_id, object_regions};
 use crate::taxonomy::Taxonomy;
 use crate::turn::solve::Correction;
 use crate::turn::{decide, hold_reason, question_alongside, Decision, Note, OpenQuestion};
@@ -621,6 +621,18 @@ impl Corrector for JointCorrector {
     fn superpixels(&self, input: &SceneInput) -> Option<crate::raster::IndexImage> {
         let prepared = self.prepared_for(input, None).ok()?;
         superpixel_image(&prepared.scene.segments)
+    }
+
+    /// The objects of the version's solved scene graph (cached, or read from its snapshot; a version
+    /// whose solve would need its ancestry replayed gets `None` and the overlay outlines class borders).
+    fn object_regions(&self, input: &SceneInput, state: &SceneState) -> Option<Vec<u32>> {
+        let stored = EngineState::decode(&state.engine_state).ok()?;
+        let prepared = self.prepared_for(input, Some(&stored.last()?.input)).ok()?;
+        let no_ancestry = || Err("the overlay does not replay a version's ancestry".to_string());
+        let solved = self
+            .version(&prepared, stored, Lineage(&no_ancestry))
+            .ok()??;
+        Some(object_regions(&prepared.scene, &solved.graph))
     }
 
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {

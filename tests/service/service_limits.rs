@@ -40,8 +40,13 @@ impl Corrector for SlowEngine {
         self.inner.apply(request)
     }
 
-    fn overlay(&self, image: &RgbImage, state: &SceneState) -> RgbImage {
-        self.inner.overlay(image, state)
+    fn overlay(
+        &self,
+        input: &SceneInput,
+        state: &SceneState,
+        parent: Option<&SceneState>,
+    ) -> RgbImage {
+        self.inner.overlay(input, state, parent)
     }
 }
 

@@ -9,7 +9,11 @@ use crate::service_support;
 
 use std::sync::Arc;
 
-use sayso_core::raster::IndexImage;
+use sayso_core::overlay::paint::{CHANGE_EDGE, CHANGE_RING};
+use sayso_core::overlay::text::line_height;
+use sayso_core::overlay::OverlayOptions;
+use sayso_core::raster::{self, IndexImage};
+use sayso_core::taxonomy::Taxonomy;
 use sayso_service::config::{OperatorToken, Role, ServiceConfig};
 use serde_json::{json, Value};
 use service_support::*;
@@ -369,4 +373,62 @@ async fn no_the_other_one_still_works_after_a_restart() {
         (refused.status, refused.code().as_str()),
         (409, "no_answer_to_change")
     );
+}
+
+/// The overlay of a version, decoded.
+async fn overlay_of(router: &axum::Router, scene: i64, version: Option<i64>) -> raster::RgbImage {
+    let query = version.map_or(String::new(), |v| format!("?version={v}"));
+    let reply = call(
+        router,
+        Call::new(
+            "GET",
+            &format!("/v1/scenes/{scene}/overlay.png{query}"),
+            Some(MIRA),
+        ),
+    )
+    .await;
+    assert_eq!(reply.status, 200);
+    raster::decode_rgb_png(&reply.body, std::path::Path::new("overlay"), 1 << 22).unwrap()
+}
+
+#[tokio::test]
+async fn a_version_overlay_outlines_objects_and_rings_what_its_note_changed() {
+    let data = tempfile::tempdir().unwrap();
+    let (router, _coordinator) = router_with(data.path(), config(), Arc::new(GridEngine::new()));
+    let created = call(
+        &router,
+        Call::new("POST", "/v1/scenes", Some(MIRA))
+            .json(scene_body(&IndexImage::filled(60, 40, 0))),
+    )
+    .await;
+    assert_eq!(created.status, 201);
+    let scene = created.json()["scene_id"].as_i64().unwrap();
+    let registered = created.json()["version"].as_i64().unwrap();
+    let conversation = open(&router, scene, MIRA).await;
+    let painted = say(&router, conversation, "paint mug", 1).await;
+    assert_eq!(painted["status"], "applied");
+    let painted = painted["scene_version"].as_i64().unwrap();
+
+    // The picture sits under the title strip the overlay draws above each view.
+    let strip = line_height(OverlayOptions::default().text_size) + 8;
+    let taxonomy = Taxonomy::embedded();
+    let floor = taxonomy.class_by_name("floor").unwrap().colour;
+
+    // The registered version: every pixel is floor, so there is no class border anywhere; the grid
+    // engine's objects are single pixels, so (3, 1), inside the floor, is an object outline in the
+    // floor's full colour, and nothing is ringed (no note made this version).
+    let first = overlay_of(&router, scene, Some(registered)).await;
+    assert_eq!(first.get(3, strip + 1), floor);
+    assert!((0..5).all(|x| (0..3).all(|y| first.get(x, strip + y) != CHANGE_RING)));
+
+    // The painted version, read as the scene's current overlay and by its number: the pixel the note
+    // changed, (1, 1), is ringed (the ring takes both sides of the border, so (2, 1) too), with the dark
+    // edge outside it at (3, 1).
+    for version in [None, Some(painted)] {
+        let after = overlay_of(&router, scene, version).await;
+        assert_eq!(after.get(1, strip + 1), CHANGE_RING, "{version:?}");
+        assert_eq!(after.get(2, strip + 1), CHANGE_RING, "{version:?}");
+        assert_eq!(after.get(3, strip + 1), CHANGE_EDGE, "{version:?}");
+        assert_eq!(after.get(4, strip + 1), floor, "{version:?}");
+    }
 }

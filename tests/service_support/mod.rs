@@ -337,6 +337,11 @@ impl Corrector for GridEngine {
         &self.taxonomy
     }
 
+    /// Every pixel is its own object (as `grid_summary` reports them).
+    fn object_regions(&self, _input: &SceneInput, state: &SceneState) -> Option<Vec<u32>> {
+        Some((0..state.labels.values.len() as u32).collect())
+    }
+
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {
         if let Some(npy) = &input.scores_npy {
             if !npy.starts_with(b"\x93NUMPY") {

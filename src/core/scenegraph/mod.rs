@@ -346,6 +346,38 @@ pub fn label_map(scene: &Scene, segment_labels: &[ClassId]) -> IndexImage {
     }
 }
 
+/// One region id per pixel for outlining the scene graph's objects (`crate::overlay::RegionMap`): the
+/// pixels of object `i` carry `i`; a segment in no object carries `u32::MAX - class`, so the stuff
+/// around objects is outlined by class, never by superpixel.
+pub fn object_regions(scene: &Scene, graph: &SceneGraph) -> Vec<u32> {
+    let mut object_of = vec![None; scene.segment_count()];
+    for (index, object) in graph.objects.iter().enumerate() {
+        for member in &object.members {
+            if let Some(slot) = object_of.get_mut(member.index()) {
+                *slot = Some(index as u32);
+            }
+        }
+    }
+    scene
+        .segments
+        .labels
+        .iter()
+        .map(|&segment| {
+            let segment = segment as usize;
+            match object_of.get(segment).copied().flatten() {
+                Some(object) => object,
+                None => {
+                    let class = graph
+                        .segment_labels
+                        .get(segment)
+                        .map_or(u32::from(u16::MAX), |c| u32::from(c.0));
+                    u32::MAX - class
+                }
+            }
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

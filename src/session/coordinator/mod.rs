@@ -358,12 +358,16 @@ impl Coordinator {
             .map_err(SessionError::internal)
     }
 
-    /// The current overlay as an RGB PNG.
+    /// The current overlay as an RGB PNG, with what the current version's note changed ringed
+    /// (`Corrector::overlay`).
     pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
+        let head = lock(&slot).head;
+        let parent = self.parent_state(scene, head)?;
         let overlay = {
             let slot = lock(&slot);
-            self.corrector.overlay(&slot.input.image, &slot.state)
+            self.corrector
+                .overlay(&slot.input, &slot.state, parent.as_ref())
         };
         raster::encode_rgb_png(&overlay).map_err(SessionError::internal)
     }

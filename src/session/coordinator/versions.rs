@@ -215,9 +215,27 @@ impl Coordinator {
         version: VersionKey,
     ) -> Result<Vec<u8>, SessionError> {
         let state = self.version_state(scene, version)?;
+        let parent = self.parent_state(scene, version)?;
         let slot = self.scene_slot(scene)?;
         let input = lock(&slot).input.clone();
-        let overlay = self.corrector.overlay(&input.image, &state);
+        let overlay = self.corrector.overlay(&input, &state, parent.as_ref());
         raster::encode_rgb_png(&overlay).map_err(SessionError::internal)
+    }
+
+    /// The state of the version `version` was made from (`None` for a registered version), so an overlay
+    /// can ring what the version's own note changed.
+    pub(super) fn parent_state(
+        &self,
+        scene: SceneKey,
+        version: VersionKey,
+    ) -> Result<Option<SceneState>, SessionError> {
+        let parent = match lock(&self.log).version(version) {
+            Ok((_, parent)) => parent,
+            Err(LogError::Missing { .. }) => return Err(unknown_version(version)),
+            Err(other) => return Err(log_error(other)),
+        };
+        parent
+            .map(|parent| self.version_state(scene, parent))
+            .transpose()
     }
 }
