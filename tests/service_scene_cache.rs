@@ -168,8 +168,16 @@ fn memory_does_not_grow_with_the_scenes_stored_and_a_scene_let_go_comes_back_who
     );
     let undone = bounded.undo(conversation, "mira").expect("undone");
     assert_eq!(undone.status, TurnStatus::Undone);
+    // The label map is a palette PNG in the class colours; its indices are the class ids.
+    let restored = sayso_core::raster::decode_index_png(
+        &bounded.label_map_png(first).unwrap(),
+        Path::new("labels.png"),
+        sayso_core::raster::DEFAULT_PIXEL_LIMIT,
+    )
+    .expect("a label map");
     assert_eq!(
-        bounded.label_map_png(first).unwrap(),
-        sayso_core::raster::encode_index_png(&labels(0)).unwrap()
+        restored.values,
+        labels(0).values,
+        "the undo restored the labels"
     );
 }
