@@ -15,13 +15,13 @@ use std::path::Path;
 use std::process::Command;
 use std::sync::Arc;
 
+use crate::send;
 use axum::body::Body;
 use axum::http::{Request, StatusCode};
 use sayso_core::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
 use sayso_core::taxonomy::Taxonomy;
 use sayso_render::writer::write_scene;
 use sayso_render::{render_scene, SceneRequest, ROOM_TYPES};
-use tower::ServiceExt;
 
 /// A held-out render (room types in turn from `ROOM_TYPES[index]`, as `sayso render --seed SEED` writes
 /// them), written whole under `rendered/` of a fresh directory.
@@ -98,15 +98,6 @@ pub fn service_with_demos(demos: &Path) -> (tempfile::TempDir, axum::Router) {
     .unwrap();
     let app = sayso_service::app(sayso_service::AppState::new(Arc::new(coordinator), config));
     (data, app)
-}
-
-async fn send(app: &axum::Router, request: Request<Body>) -> (StatusCode, Vec<u8>) {
-    let response = app.clone().oneshot(request).await.unwrap();
-    let status = response.status();
-    let bytes = axum::body::to_bytes(response.into_body(), usize::MAX)
-        .await
-        .unwrap();
-    (status, bytes.to_vec())
 }
 
 async fn post(

@@ -26,3 +26,17 @@ mod scene_building;
 mod scene_capture;
 mod scene_graph_objects;
 mod unaries_reference;
+
+/// One request through a service router, answered with its status and body.
+pub async fn send(
+    app: &axum::Router,
+    request: axum::http::Request<axum::body::Body>,
+) -> (axum::http::StatusCode, Vec<u8>) {
+    use tower::ServiceExt;
+    let response = app.clone().oneshot(request).await.unwrap();
+    let status = response.status();
+    let bytes = axum::body::to_bytes(response.into_body(), usize::MAX)
+        .await
+        .unwrap();
+    (status, bytes.to_vec())
+}

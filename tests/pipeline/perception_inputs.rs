@@ -12,11 +12,11 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::Arc;
 
+use crate::send;
 use axum::body::Body;
 use axum::http::{Request, StatusCode};
 use sayso_core::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
 use sayso_core::taxonomy::Taxonomy;
-use tower::ServiceExt;
 
 const FIXTURES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/perception");
 const USER_MODEL: &str = concat!(
@@ -473,15 +473,6 @@ fn multipart(parts: &[(&str, Vec<u8>)]) -> Vec<u8> {
     }
     body.extend_from_slice(format!("--{BOUNDARY}--\r\n").as_bytes());
     body
-}
-
-async fn send(app: &axum::Router, request: Request<Body>) -> (StatusCode, Vec<u8>) {
-    let response = app.clone().oneshot(request).await.unwrap();
-    let status = response.status();
-    let bytes = axum::body::to_bytes(response.into_body(), usize::MAX)
-        .await
-        .unwrap();
-    (status, bytes.to_vec())
 }
 
 async fn upload(app: &axum::Router, parts: &[(&str, Vec<u8>)]) -> (StatusCode, serde_json::Value) {

@@ -195,40 +195,7 @@ pub fn in_region(footprint: &Footprint, region: ImageRegion, width: u32, height:
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::raster::RgbImage;
-    use crate::scene::SceneParams;
-
-    /// A 64x48 picture of coloured blocks cut into segments by SLIC (scene defaults).
-    fn blocks() -> &'static Scene {
-        static SCENE: std::sync::OnceLock<Scene> = std::sync::OnceLock::new();
-        SCENE.get_or_init(|| {
-            let (width, height) = (64u32, 48u32);
-            let pixels = (0..width * height)
-                .map(|index| {
-                    let (x, y) = (index % width, index / width);
-                    let block = (x / 13 + 3 * (y / 11)) as u8;
-                    [
-                        block.wrapping_mul(61),
-                        block.wrapping_mul(89),
-                        250 - block * 13,
-                    ]
-                })
-                .collect();
-            let image = RgbImage {
-                width,
-                height,
-                pixels,
-            };
-            Scene::from_image(
-                "linden-row-blocks",
-                image,
-                None,
-                None,
-                &SceneParams::default(),
-            )
-            .expect("segments")
-        })
-    }
+    use crate::scene::test_scenes::blocks;
 
     /// `touching` as first written, with the landmark's members in a hash set: the reference.
     fn touching_by_hash_set(scene: &Scene, a: &[SegmentId], b: &[SegmentId]) -> bool {

@@ -381,41 +381,7 @@ pub fn object_regions(scene: &Scene, graph: &SceneGraph) -> Vec<u32> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::raster::RgbImage;
-    use crate::scene::SceneParams;
-
-    /// A 64x48 picture of coloured blocks cut by SLIC (scene defaults: many more requested than blocks, so every
-    /// block is split into several irregular segments).
-    fn blocks() -> &'static Scene {
-        static SCENE: std::sync::OnceLock<Scene> = std::sync::OnceLock::new();
-        SCENE.get_or_init(|| {
-            let (width, height) = (64u32, 48u32);
-            let pixels = (0..width * height)
-                .map(|index| {
-                    let (x, y) = (index % width, index / width);
-                    let block = (x / 13 + 3 * (y / 11)) as u8;
-                    [
-                        block.wrapping_mul(53),
-                        block.wrapping_mul(97),
-                        255 - block * 11,
-                    ]
-                })
-                .collect();
-            let image = RgbImage {
-                width,
-                height,
-                pixels,
-            };
-            Scene::from_image(
-                "juniper-lane-blocks",
-                image,
-                None,
-                None,
-                &SceneParams::default(),
-            )
-            .expect("segments")
-        })
-    }
+    use crate::scene::test_scenes::blocks;
 
     proptest::proptest! {
         /// The bounding-box scan encodes the same runs as reading every pixel.

@@ -310,22 +310,14 @@ pub fn run_scene(
                 continue;
             }
         };
-        let started = Instant::now();
-        // The automatic operator states ground truth, so it confirms safety-critical changes up front.
-        let correction = correct_turn(
+        let (correction, millis) = operator_turn(
+            context,
             &inputs,
             previous.as_ref(),
             &parse.constraints,
             focus,
-            true,
-            context.settings,
-        )
-        .map_err(PipelineError::from)?;
-        let millis = started.elapsed().as_secs_f64() * 1000.0;
-        let first_new = correction
-            .constraint_labels
-            .len()
-            .saturating_sub(parse.constraints.len());
+        )?;
+        let first_new = first_of(&correction, &parse.constraints);
         let (mut outcome, mut detail) = judge(
             &fact,
             &parse.constraints,
@@ -406,6 +398,29 @@ pub fn run_scene(
         wrong_to_right,
         right_to_wrong,
     })
+}
+
+/// One turn of the automatic operator and its wall-clock milliseconds. The operator states ground truth, so it
+/// confirms safety-critical changes up front.
+fn operator_turn(
+    context: &TrialContext<'_>,
+    inputs: &TurnInputs<'_>,
+    previous: Option<&Correction>,
+    constraints: &[Constraint],
+    focus: Option<Focus>,
+) -> Result<(Correction, f64), TrialError> {
+    let started = Instant::now();
+    let correction = correct_turn(inputs, previous, constraints, focus, true, context.settings)
+        .map_err(PipelineError::from)?;
+    Ok((correction, started.elapsed().as_secs_f64() * 1000.0))
+}
+
+/// The index, among the constraints in force after `correction`, of the first of the turn's `constraints`.
+fn first_of(correction: &Correction, constraints: &[Constraint]) -> usize {
+    correction
+        .constraint_labels
+        .len()
+        .saturating_sub(constraints.len())
 }
 
 /// The most answers the operator gives to one note's question (our own choice).
@@ -496,17 +511,15 @@ fn answer_surplus(
         let Ok(parse) = context.settings.grammar.parse(&utterance, focus) else {
             break;
         };
-        let started = Instant::now();
-        correction = correct_turn(
+        let (answered, took) = operator_turn(
+            context,
             inputs,
             Some(&correction),
             &parse.constraints,
             focus,
-            true,
-            context.settings,
-        )
-        .map_err(PipelineError::from)?;
-        millis += started.elapsed().as_secs_f64() * 1000.0;
+        )?;
+        correction = answered;
+        millis += took;
         answers += 1;
     }
     let met = shown(&correction) == count as usize;
@@ -579,21 +592,9 @@ fn answer_where(
     let Ok(parse) = context.settings.grammar.parse(&utterance, focus) else {
         return Ok(None);
     };
-    let started = Instant::now();
-    let answered = correct_turn(
-        inputs,
-        Some(correction),
-        &parse.constraints,
-        focus,
-        true,
-        context.settings,
-    )
-    .map_err(PipelineError::from)?;
-    let millis = started.elapsed().as_secs_f64() * 1000.0;
-    let answer_first = answered
-        .constraint_labels
-        .len()
-        .saturating_sub(parse.constraints.len());
+    let (answered, millis) =
+        operator_turn(context, inputs, Some(correction), &parse.constraints, focus)?;
+    let answer_first = first_of(&answered, &parse.constraints);
     let relabel = Fact::Relabel {
         class,
         wrong,
