@@ -5,6 +5,8 @@
 //! Must not: adjust expectations; a line passes only if the utterance kind and the whole constraint list
 //! (in any order) match.
 
+mod support;
+
 use std::collections::BTreeMap;
 
 use sayso_core::language::notation::notation_list;
@@ -29,17 +31,6 @@ struct Line {
     /// Focus: object:ID or pixel:X,Y.
     #[serde(default)]
     f: Option<String>,
-}
-
-fn split_expected(text: &str) -> Vec<String> {
-    let mut list: Vec<String> = text
-        .split("; ")
-        .map(str::trim)
-        .filter(|part| !part.is_empty())
-        .map(str::to_string)
-        .collect();
-    list.sort();
-    list
 }
 
 /// Frame-exact results of one corpus file: per construction (passed, total), and the failures.
@@ -77,7 +68,7 @@ fn score(grammar: &Grammar, text: &str) -> Score {
                 "correction".into()
             }
         });
-        let expected = split_expected(&line.e);
+        let expected = support::split_expected(&line.e);
         let (kind, mut got) = match grammar.parse(&utterance, focus) {
             Ok(parse) => (
                 parse.utterance_kind.name().to_string(),
@@ -115,11 +106,8 @@ fn score(grammar: &Grammar, text: &str) -> Score {
 #[test]
 fn corpus_frame_exact_accuracy_per_construction() {
     let grammar = Grammar::embedded().expect("embedded grammar");
-    let text = std::fs::read_to_string(concat!(
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
-        "/tests/language/corpus.jsonl"
-    ))
-    .expect("corpus file");
+    let text = std::fs::read_to_string(support::workspace_file("tests/language/corpus.jsonl"))
+        .expect("corpus file");
     let Score {
         per_construction,
         failures,
@@ -162,11 +150,8 @@ fn corpus_frame_exact_accuracy_per_construction() {
 #[test]
 fn heldout_frame_exact_accuracy_is_reported() {
     let grammar = Grammar::embedded().expect("embedded grammar");
-    let text = std::fs::read_to_string(concat!(
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
-        "/tests/language/heldout.jsonl"
-    ))
-    .expect("held-out file");
+    let text = std::fs::read_to_string(support::workspace_file("tests/language/heldout.jsonl"))
+        .expect("held-out file");
     let result = score(&grammar, &text);
     println!(
         "held-out: {}/{} frame-exact ({:.1}%)",

@@ -8,6 +8,8 @@
 //! only, the failing lines) and holding the floors.
 //! Must not: adjust expectations or print held-out lines; a held-out file is reported, never tuned on.
 
+mod support;
+
 use std::collections::BTreeMap;
 
 use sayso_core::language::notation::notation_list;
@@ -28,17 +30,6 @@ struct Line {
     /// Focus: object:ID or pixel:X,Y.
     #[serde(default)]
     f: Option<String>,
-}
-
-fn split_expected(text: &str) -> Vec<String> {
-    let mut list: Vec<String> = text
-        .split("; ")
-        .map(str::trim)
-        .filter(|part| !part.is_empty())
-        .map(str::to_string)
-        .collect();
-    list.sort();
-    list
 }
 
 /// The figures of one style file.
@@ -83,7 +74,7 @@ fn score(grammar: &Grammar, text: &str) -> Score {
                 "correction".into()
             }
         });
-        let expected = split_expected(&line.e);
+        let expected = support::split_expected(&line.e);
         let (kind, mut got) = match grammar.parse(&line.u, focus) {
             Ok(parse) => (
                 parse.utterance_kind.name().to_string(),
@@ -134,11 +125,8 @@ fn grammar() -> Grammar {
 }
 
 fn load(name: &str) -> String {
-    let path = format!(
-        "{}/tests/language/{name}",
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
-    );
-    std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"))
+    let path = support::workspace_file("tests/language").join(name);
+    std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{}: {error}", path.display()))
 }
 
 fn recall(ok: usize, count: usize) -> f64 {
