@@ -11,7 +11,6 @@ use crate::postgres_support;
 use crate::service_support;
 
 use std::collections::{HashMap, HashSet};
-use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;
 use std::path::Path;
 use std::process::{Child, Command, Stdio};
@@ -46,27 +45,18 @@ impl Drop for Replica {
 }
 
 fn start(url: &str, data: &Path, config: &Path) -> Replica {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["serve", "--port", "0", "--database", url, "--data-dir"])
-        .arg(data)
-        .arg("--config")
-        .arg(config)
-        .stdout(Stdio::piped())
-        // A replica's log lines (an internal error's detail) show beside a failure.
-        .stderr(Stdio::inherit())
-        .spawn()
-        .expect("spawn sayso serve");
-    let stdout = child.stdout.take().expect("stdout");
-    let mut line = String::new();
-    BufReader::new(stdout)
-        .read_line(&mut line)
-        .expect("read the listening line");
-    let address = line
-        .split("http://")
-        .nth(1)
-        .and_then(|rest| rest.split('/').next())
-        .and_then(|address| address.parse().ok())
-        .unwrap_or_else(|| panic!("a replica did not start: {line:?}"));
+    // A replica's log lines (an internal error's detail) show beside a failure.
+    let (child, address) = service_support::start_serve(
+        &[
+            &"--database",
+            &url,
+            &"--data-dir",
+            &data,
+            &"--config",
+            &config,
+        ],
+        Stdio::inherit(),
+    );
     Replica { child, address }
 }
 
