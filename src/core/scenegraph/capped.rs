@@ -24,8 +24,8 @@
 //!   (the reach: a bed parted by a blanket lying across it, a chair's back seen apart from its seat); or it is
 //!   a speck (under two fine segments of mean size) within the reach or `SPECK_REACH`; or the operator said
 //!   there is just one (`k = 1`), it lies within twice the reach and it is not a small fragment. A piece
-//!   further away stays and the count is reported unmet (joining far pieces made objects that matched nothing
-//!   on the development trial);
+//!   further away stays and the count is reported unmet: past the reach a piece is more often another object
+//!   than a part of this one (`docs/decisions.md`, "Joining the parts of a capped class");
 //! - failing every plain join, the band between a piece and the nearest larger object is nearer the camera
 //!   than both, at any distance (one object seen in two parts around an occluder: a desk behind a chair).
 //!
@@ -36,10 +36,10 @@
 //! What is left beyond `k` is surplus. A surplus object no larger than a quarter of the smallest kept one and
 //! under `MIN_PARTED_AREA` pixels is a fragment, and one under two fine segments of mean size a speck: their
 //! segments then carry a hard factor against the class and one towards the label they share the longest
-//! boundary with (`surrounding_label`), so the fragment joins what surrounds it ("chair count is one" had
-//! made a chair sliver a class seen nowhere else). A segment the turn itself moved into the class goes back
-//! to the label it had instead: a piece of a towel the count's solve took is a towel again, not wall. A
-//! surplus object of a credible size stays and the count is reported unmet.
+//! boundary with (`surrounding_label`), so the fragment joins what surrounds it rather than staying a class
+//! seen nowhere else. A segment the turn itself moved into the class goes back to the label it had instead:
+//! a piece of a towel the count's solve took is a towel again, not wall. A surplus object of a credible size
+//! stays and the count is reported unmet.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{numbered, ClarifyingQuestion};
