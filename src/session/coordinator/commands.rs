@@ -185,10 +185,7 @@ impl Coordinator {
         conversation: ConversationKey,
         operator: &str,
     ) -> Result<TurnReply, SessionError> {
-        self.with_turn_locks(conversation, |conversation_state, scene| {
-            let step = self.undo_step(conversation_state, scene)?;
-            self.move_head(conversation, operator, conversation_state, scene, step)
-        })
+        self.head_command(conversation, operator, Self::undo_step)
     }
 
     /// Checks the undo and works out where the head goes.
@@ -243,10 +240,7 @@ impl Coordinator {
         conversation: ConversationKey,
         operator: &str,
     ) -> Result<TurnReply, SessionError> {
-        self.with_turn_locks(conversation, |conversation_state, scene| {
-            let step = self.redo_step(conversation_state, scene)?;
-            self.move_head(conversation, operator, conversation_state, scene, step)
-        })
+        self.head_command(conversation, operator, Self::redo_step)
     }
 
     /// Checks the redo and works out where the head goes.
@@ -289,6 +283,20 @@ impl Coordinator {
             applied_after,
             redo_after,
             forget_answer: false,
+        })
+    }
+
+    /// An undo or redo: under the turn's locks, `step` checks it and works out where the head goes, and
+    /// `move_head` logs it.
+    fn head_command(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+        step: fn(&Self, &ConversationSlot, &SceneSlot) -> Result<HeadMove, SessionError>,
+    ) -> Result<TurnReply, SessionError> {
+        self.with_turn_locks(conversation, |conversation_state, scene| {
+            let step = step(self, conversation_state, scene)?;
+            self.move_head(conversation, operator, conversation_state, scene, step)
         })
     }
 
