@@ -9,8 +9,7 @@ mod support;
 
 use std::collections::BTreeMap;
 
-use sayso_core::language::notation::notation_list;
-use sayso_core::language::{parse_focus, Grammar, LanguageError};
+use sayso_core::language::{parse_focus, Grammar};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -61,23 +60,9 @@ fn score(grammar: &Grammar, text: &str) -> Score {
             .f
             .as_deref()
             .map(|text| parse_focus(text).expect("corpus focus"));
-        let expected_kind = line.k.clone().unwrap_or_else(|| {
-            if line.e.trim().is_empty() {
-                "unparsed".into()
-            } else {
-                "correction".into()
-            }
-        });
+        let expected_kind = support::expected_kind(line.k.as_deref(), &line.e);
         let expected = support::split_expected(&line.e);
-        let (kind, mut got) = match grammar.parse(&utterance, focus) {
-            Ok(parse) => (
-                parse.utterance_kind.name().to_string(),
-                notation_list(&parse.constraints, grammar.taxonomy()),
-            ),
-            Err(LanguageError::TooLong { .. }) => ("error".to_string(), Vec::new()),
-            Err(other) => (format!("error: {other}"), Vec::new()),
-        };
-        got.sort();
+        let (kind, got) = support::parsed(grammar, &utterance, focus);
         let ok = kind == expected_kind && got == expected;
         let entry = per_construction.entry(line.c.clone()).or_default();
         entry.1 += 1;

@@ -12,8 +12,7 @@ mod support;
 
 use std::collections::BTreeMap;
 
-use sayso_core::language::notation::notation_list;
-use sayso_core::language::{parse_focus, Grammar, LanguageError};
+use sayso_core::language::{parse_focus, Grammar};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -67,23 +66,9 @@ fn score(grammar: &Grammar, text: &str) -> Score {
             .f
             .as_deref()
             .map(|text| parse_focus(text).expect("style focus"));
-        let expected_kind = line.k.clone().unwrap_or_else(|| {
-            if line.e.trim().is_empty() {
-                "unparsed".into()
-            } else {
-                "correction".into()
-            }
-        });
+        let expected_kind = support::expected_kind(line.k.as_deref(), &line.e);
         let expected = support::split_expected(&line.e);
-        let (kind, mut got) = match grammar.parse(&line.u, focus) {
-            Ok(parse) => (
-                parse.utterance_kind.name().to_string(),
-                notation_list(&parse.constraints, grammar.taxonomy()),
-            ),
-            Err(LanguageError::TooLong { .. }) => ("error".to_string(), Vec::new()),
-            Err(other) => (format!("error: {other}"), Vec::new()),
-        };
-        got.sort();
+        let (kind, got) = support::parsed(grammar, &line.u, focus);
         if expected.is_empty() {
             result.non_corrections += 1;
             result.spurious_constraints += got.len();
