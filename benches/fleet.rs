@@ -25,7 +25,7 @@ mod conversations;
 
 use std::net::SocketAddr;
 use std::path::Path;
-use std::process::{Child, Command, Stdio};
+use std::process::{Child, Stdio};
 use std::time::Duration;
 
 use conversations::{closed_loop, open_conversations, utterance};
@@ -76,15 +76,7 @@ fn start(database: Option<&str>, data: &Path) -> Replica {
 /// Starts `replicas` processes (on a fresh PostgreSQL database, or one on SQLite when `None`), registers
 /// the scenes, warms every replica up, and measures; returns corrections/s, p50 and p99.
 fn measure(replicas: usize, postgres: bool, scratch: &Path) -> (f64, Duration, Duration) {
-    let database = postgres.then(|| {
-        let url = postgres_support::fresh_database();
-        let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
-            .args(["migrate", "--database", &url])
-            .output()
-            .expect("sayso migrate runs");
-        assert!(migrated.status.success(), "{migrated:?}");
-        url
-    });
+    let database = postgres.then(postgres_support::migrated_database);
     let label = if postgres { "postgres" } else { "sqlite" };
     let fleet: Vec<Replica> = (0..replicas)
         .map(|index| {
@@ -151,12 +143,7 @@ fn fleet_figures() {
 fn bench_fleet(criterion: &mut Criterion) {
     fleet_figures();
     let scratch = tempfile::tempdir().unwrap();
-    let url = postgres_support::fresh_database();
-    let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["migrate", "--database", &url])
-        .output()
-        .expect("sayso migrate runs");
-    assert!(migrated.status.success(), "{migrated:?}");
+    let url = postgres_support::migrated_database();
     let fleet: Vec<Replica> = (0..2)
         .map(|index| start(Some(&url), &scratch.path().join(format!("timed-{index}"))))
         .collect();

@@ -13,7 +13,7 @@ use crate::service_support;
 use std::collections::{HashMap, HashSet};
 use std::net::SocketAddr;
 use std::path::Path;
-use std::process::{Child, Command, Stdio};
+use std::process::{Child, Stdio};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
@@ -211,12 +211,7 @@ fn operate(
 #[test]
 fn replicas_on_one_database_lose_and_repeat_nothing_when_killed() {
     let started = Instant::now();
-    let url = postgres_support::fresh_database();
-    let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["migrate", "--database", &url])
-        .output()
-        .expect("sayso migrate runs");
-    assert!(migrated.status.success(), "{migrated:?}");
+    let url = postgres_support::migrated_database();
     let data = tempfile::tempdir().unwrap();
     let config = data.path().join("sayso.toml");
     std::fs::write(&config, "rate_per_second = 100000.0\nrate_burst = 100000\n").unwrap();
