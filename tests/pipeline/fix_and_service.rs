@@ -103,25 +103,7 @@ pub async fn service_labels(
     registration: serde_json::Value,
     notes: &[&str],
 ) -> (IndexImage, Vec<String>) {
-    let (status, created) = crate::post_json(app, "/v1/scenes", registration).await;
-    assert_eq!(status, StatusCode::CREATED, "{created}");
-    let (status, conversation) = crate::post_json(
-        app,
-        "/v1/conversations",
-        serde_json::json!({"scene_id": created["scene_id"]}),
-    )
-    .await;
-    assert_eq!(status, StatusCode::CREATED, "{conversation}");
-    let path = format!(
-        "/v1/conversations/{}/utterances",
-        conversation["conversation_id"]
-    );
-    let mut statuses = Vec::new();
-    for note in notes {
-        let (status, reply) = crate::post_json(app, &path, serde_json::json!({"text": note})).await;
-        assert_eq!(status, StatusCode::OK, "{reply}");
-        statuses.push(reply["status"].to_string());
-    }
+    let (created, statuses) = crate::register_and_say(app, registration, notes).await;
     let request = Request::get(format!("/v1/scenes/{}/labels.png", created["scene_id"]))
         .body(Body::empty())
         .unwrap();

@@ -56,6 +56,36 @@ pub async fn post_json(
     (status, serde_json::from_slice(&bytes).unwrap_or_default())
 }
 
+/// Registers a scene (`registration` is the body of `POST /v1/scenes`), opens a conversation on it and says
+/// `notes` in order, each answered 200; the registration's answer and each note's status.
+pub async fn register_and_say(
+    app: &axum::Router,
+    registration: serde_json::Value,
+    notes: &[&str],
+) -> (serde_json::Value, Vec<String>) {
+    use axum::http::StatusCode;
+    let (status, created) = post_json(app, "/v1/scenes", registration).await;
+    assert_eq!(status, StatusCode::CREATED, "{created}");
+    let (status, conversation) = post_json(
+        app,
+        "/v1/conversations",
+        serde_json::json!({"scene_id": created["scene_id"]}),
+    )
+    .await;
+    assert_eq!(status, StatusCode::CREATED, "{conversation}");
+    let path = format!(
+        "/v1/conversations/{}/utterances",
+        conversation["conversation_id"]
+    );
+    let mut statuses = Vec::new();
+    for note in notes {
+        let (status, reply) = post_json(app, &path, serde_json::json!({"text": note})).await;
+        assert_eq!(status, StatusCode::OK, "{reply}");
+        statuses.push(reply["status"].to_string());
+    }
+    (created, statuses)
+}
+
 /// The service's router over the real engine (the classifier at `model`, and the robot's own per-pixel
 /// model at `user_model` when given) on a fresh SQLite log, its settings adjusted by `configure`. The
 /// log's directory is returned so it lives as long as the router.

@@ -218,30 +218,11 @@ async fn the_service_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
         .into_iter()
         .zip([(640, 480), (640, 480), (320, 240)])
     {
-        let (status, created) = crate::post_json(&app, "/v1/scenes", upload).await;
-        assert_eq!(status, StatusCode::CREATED, "{created}");
+        let (created, _) = crate::register_and_say(&app, upload, &["there are two mugs"]).await;
         assert_eq!(
             (created["width"].as_u64(), created["height"].as_u64()),
             (Some(size.0), Some(size.1))
         );
-        let (status, conversation) = crate::post_json(
-            &app,
-            "/v1/conversations",
-            serde_json::json!({"scene_id": created["scene_id"]}),
-        )
-        .await;
-        assert_eq!(status, StatusCode::CREATED, "{conversation}");
-        let path = format!(
-            "/v1/conversations/{}/utterances",
-            conversation["conversation_id"]
-        );
-        let (status, reply) = crate::post_json(
-            &app,
-            &path,
-            serde_json::json!({"text": "there are two mugs"}),
-        )
-        .await;
-        assert_eq!(status, StatusCode::OK, "{reply}");
     }
 }
 
