@@ -31,6 +31,10 @@
 //! - failing every plain join, the band between a piece and the nearest larger object is nearer the camera
 //!   than both, at any distance (one object seen in two parts around an occluder: a desk behind a chair).
 //!
+//! A fragment (at most 1/`FRAGMENT_SHARE` of the object) not among the `k` largest also joins an object
+//! already joined from parts when its box lies inside the box those parts span (a rug seen in pieces between
+//! the legs of the table on it), however far from each part.
+//!
 //! Reach grows with what an object took in, so a shelf seen in five pieces between its books is joined piece
 //! by piece, each next to the last. Large objects are never joined for sharing a box: chairs around a table
 //! overlap in their boxes.
@@ -273,9 +277,18 @@ fn joins_plainly(
     // are still taken away, see `surplus_factors`.)
     let fragment = FRAGMENT_SHARE * piece.area <= keeper.area && piece.area < MIN_PARTED_AREA;
     let single = cap.most == 1 && !fragment && f64::from(distance) <= 2.0 * reach;
+    // A fragment inside the span of an object already joined from parts lies within that one object (a rug
+    // seen in pieces between the legs of the table standing on it).
+    let within = !kept
+        && FRAGMENT_SHARE * piece.area <= keeper.area
+        && keeper.parts.len() > 1
+        && piece
+            .parts
+            .iter()
+            .all(|other| share_inside(other, &keeper.bounds()) >= OVERLAP_SHARE);
     // A speck next to an object of its class belongs to it.
     let speck_near = piece.area < speck && f64::from(distance) <= reach.max(SPECK_REACH);
-    (shared || continued || (!kept && (near || single || speck_near))).then_some(distance)
+    (shared || continued || within || (!kept && (near || single || speck_near))).then_some(distance)
 }
 
 /// Whether `piece` and `keeper` are one object seen in two parts around a nearer occluder.
@@ -608,6 +621,35 @@ mod tests {
         assert_eq!(
             joins_plainly(&CAP_THREE, &cabinet, &plinth, true, 256),
             Some(0)
+        );
+    }
+
+    /// "Just one rug": a rug fragment seen between the legs of the table standing on it lies inside the span
+    /// of the rug already joined from two pieces, far from either piece's own box. It joins; a piece the
+    /// count keeps does not.
+    #[test]
+    fn a_fragment_inside_the_span_of_a_joined_object_joins_it() {
+        let cap_one = Cap {
+            most: 1,
+            ..CAP_THREE
+        };
+        let mut rug = cluster(0, (187, 420, 270, 479), 4145);
+        rug.parts.push(BoundingBox {
+            x0: 500,
+            y0: 300,
+            x1: 639,
+            y1: 479,
+        });
+        rug.area += 10514;
+        let fragment = cluster(1, (273, 330, 290, 346), 216);
+        let reach = 0.5 * (rug.area as f64).sqrt();
+        assert!(f64::from(gap(&rug.parts[0], &fragment.parts[0])) > reach);
+        assert!(joins_plainly(&cap_one, &rug, &fragment, false, 150).is_some());
+        assert_eq!(joins_plainly(&cap_one, &rug, &fragment, true, 150), None);
+        let single = cluster(0, (187, 420, 270, 479), 4145 + 10514);
+        assert_eq!(
+            joins_plainly(&cap_one, &single, &fragment, false, 150),
+            None
         );
     }
 
