@@ -10,7 +10,18 @@ no = no , when after <start> when before that|this|it|that's|thats|it's|its|this
 # "The mug that's on the desk": after a class word, "that" opens a clause about it.
 that's = , it is when after <class>
 that = , it when after <class>
+# "Does the dog need feeding?", "did the cat eat": a helper verb opening the sentence before its subject asks,
+# as "is" does there.
+does = is when after <start> when before the|a|an|my|your|our|it|he|she|they|this|that|anyone|anybody|someone
+did = is when after <start> when before the|a|an|my|your|our|it|he|she|they|this|that|anyone|anybody|someone
+do = is when after <start> when before the|my|your|our|they|we|these|those|any|anyone|anybody
 that's = that is
+# "What looks like a dog is actually a pillow", "what you think is a cat is a towel": the thing pointed at
+# (or named last), first as the robot shows it.
+what looks like = this is when after <start>
+what seems to be = this is when after <start>
+what appears to be = this is when after <start>
+what you think is = this is when after <start>
 is there = is present when before <end>|.|!|,|;
 it's there = it is present when before <end>|.|!|,|;
 its there = it is present when before <end>|.|!|,|;
@@ -106,6 +117,8 @@ not -> negation
 never -> negation
 neither -> negation
 nor = and
+# "Not on the desk or the shelf", "no cats or dogs": under a denial each thing is denied.
+or -> or
 cannot -> negation
 
 # Deictics.
@@ -405,6 +418,9 @@ no wait -> repair
 wait = wait here when after <start> when before <end>
 # "They are both on the bed": "both" after the verb adds nothing.
 both = all when after are|were|is
+# "I count two mugs, and both are on the desk": "both" opening a clause is the things counted before, as
+# "some of them" ("none of them") is the class named last.
+both = some of them when after <start>|,|and|but when before are|were|sit|lie|stand
 wait -> repair
 correction -> repair
 scratch that -> repair
@@ -470,6 +486,26 @@ i believe -> filler
 kind of -> filler
 sort of -> filler
 hey -> greeting
+# Talk about the day, the weather or how one feels ("the neighbours are so loud today"): chit-chat. Words
+# that also describe things ("a warm blanket", "a lovely vase") are left out.
+loud -> greeting
+noisy -> greeting
+tired -> greeting
+exhausted -> greeting
+sleepy -> greeting
+hungry -> greeting
+bored -> greeting
+boring -> greeting
+weather -> greeting
+raining -> greeting
+sunny -> greeting
+freezing -> greeting
+cold -> greeting
+chilly -> greeting
+hot -> greeting
+rainy -> greeting
+weekend -> greeting
+mondays -> greeting
 
 # Words that carry nothing for a correction.
 i -> skip
@@ -526,6 +562,10 @@ awake -> skip
 curled up -> skip
 up there -> skip
 down there -> skip
+# "There's nobody here, not even the dog": after a pause, "not even" denies the thing as "no" does.
+not even the = no when after <start>|,|and|but
+not even a = no when after <start>|,|and|but
+not even one = no when after <start>|,|and|but
 even -> skip
 # Shape and shade words that name no class, colour or size we read ("the low cabinet", "dark blue").
 low -> skip
@@ -606,6 +646,40 @@ can you tell me -> question
 could you tell me -> question
 do you see -> question
 let's -> request
+# Household chores and errands asked of the robot. "make the bed" and "set the table" are not a relabel's
+# "make" or "set".
+make the bed -> request
+set the table -> request
+lay the table -> request
+switch on -> request
+switch off -> request
+turn on -> request
+turn off -> request
+wash -> request
+wipe -> request
+dust -> request
+vacuum -> request
+hoover -> request
+mop -> request
+sweep -> request
+water the -> request
+empty the -> request
+unload -> request
+load the -> request
+fold -> request
+hang up -> request
+charge -> request
+help me -> request
+remind me -> request
+let the -> request
+tidy up -> request
+# Questions that open with a helper verb or a stock phrase ("does the dog need feeding", "have you seen my
+# keys").
+have you -> question
+has anyone -> question
+has anybody -> question
+any idea -> question
+do we have -> question
 # Getting going and finding one's place are talk, not requests or questions.
 please do not -> request
 nice one -> thanks
@@ -644,6 +718,14 @@ exactly right -> greeting
 all good -> greeting
 fine -> greeting
 hang on -> greeting
+hold on -> greeting
+one sec -> greeting
+one second -> greeting
+just a sec -> greeting
+just a second -> greeting
+just a moment -> greeting
+let me -> greeting
+what a -> greeting
 never mind -> greeting
 doing great -> greeting
 i am home -> greeting

@@ -616,6 +616,22 @@ impl Builder {
                     .map(|landmark| self.landmark_referent(landmark, &subject))
                     .collect();
                 self.last_relation = Some((subject_referent.clone(), relation, landmarks.clone()));
+                // "Not the table: the towel is on the counter": the denied landmark, denied.
+                if let (Some(denied), false, false) = (
+                    first_phrase("denied"),
+                    negated,
+                    relation == Relation::Between,
+                ) {
+                    let denied = self.plain_referent(&denied);
+                    self.push_relation(
+                        subject_referent.clone(),
+                        relation,
+                        true,
+                        vec![denied],
+                        span,
+                        misspelled,
+                    );
+                }
                 self.push_relation(
                     subject_referent,
                     relation,
@@ -650,6 +666,18 @@ impl Builder {
                 let Some((subject, last, last_landmarks)) = self.last_relation.clone() else {
                     return;
                 };
+                // "The mug isn't on the desk or the shelf": after a denied relation, "or" denies the next
+                // landmark too; after a stated one ("on the desk or the shelf") it states nothing.
+                let mut negated = negated;
+                if chunks[position].kind == ChunkKind::Or {
+                    let denied = self.constraints.last().is_some_and(|last| {
+                        matches!(last.kind, ConstraintKind::Relation { negated: true, .. })
+                    });
+                    if !denied {
+                        return;
+                    }
+                    negated = true;
+                }
                 let relation = found
                     .role("relation")
                     .first()
@@ -775,7 +803,19 @@ impl Builder {
                     None
                 };
                 let Some(place) = place else { return };
-                self.count_of_subject(&subject, span, misspelled);
+                // "There's a cat in the bathroom": the thing is there too.
+                if found.rule.name == "place_there" {
+                    self.exist(&subject, false, span, misspelled);
+                    // "There's no cat in the bathroom": no cat, and no place for one.
+                    if matches!(
+                        subject.quantity,
+                        Some(Quantity::None | Quantity::Exactly(0))
+                    ) {
+                        return;
+                    }
+                } else {
+                    self.count_of_subject(&subject, span, misspelled);
+                }
                 let subject = self.referent(&subject);
                 self.push(ConstraintKind::Place { subject, place }, span, misspelled);
             }

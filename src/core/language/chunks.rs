@@ -91,6 +91,8 @@ pub enum ChunkKind {
     Pointing,
     As,
     And,
+    /// "or" between two things.
+    Or,
     /// "where" in a statement: the cleft "right of the desk is where the mug is".
     Where,
     Separator,
@@ -401,6 +403,7 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Pointing => ChunkKind::Pointing,
                 Tag::As => ChunkKind::As,
                 Tag::And => ChunkKind::And,
+                Tag::Or => ChunkKind::Or,
                 Tag::Repair => ChunkKind::Repair,
                 // "Right of the desk is where the mug is": "where" inside a statement joins a cleft.
                 Tag::Question(Asks::Place) => ChunkKind::Where,
@@ -523,6 +526,39 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                 earlier = Some(start);
             }
         }
+        // "There's a bag on the chair, no, a box": a replacement with "a" repairs the thing said with "a"
+        // before the landmark ("a bag"), not the landmark ("the chair"); what came between stays.
+        let swapped = match (earlier, next) {
+            (Some(near), Some(to)) if near > 0 => match (&chunks[near].kind, &chunks[to].kind) {
+                (ChunkKind::NounPhrase(landmark), ChunkKind::NounPhrase(replacement))
+                    if replacement.article
+                        && replacement.class.is_some()
+                        && !landmark.article
+                        && matches!(chunks[near - 1].kind, ChunkKind::Relation(_)) =>
+                {
+                    (index.saturating_sub(6)..near - 1).rev().find(|&k| {
+                        matches!(&chunks[k].kind, ChunkKind::NounPhrase(phrase)
+                            if phrase.article && phrase.class.is_some() && phrase.deictic.is_none())
+                    })
+                }
+                _ => None,
+            },
+            _ => None,
+        };
+        if let (Some(from), Some(to)) = (swapped, next) {
+            chunks[from] = chunks[to].clone();
+            let mut cut = index;
+            while cut > from + 1 && chunks[cut - 1].kind == ChunkKind::Separator {
+                cut -= 1;
+            }
+            ignored.push((
+                chunks[cut].span.cover(chunks[to].span),
+                IgnoredReason::SelfRepair,
+            ));
+            chunks.drain(cut..=to);
+            index = from + 1;
+            continue;
+        }
         match (earlier, next) {
             // "Nine chairs, actually no, six": a bare number after the cue replaces only the quantity of the
             // counted noun phrase it repairs.
@@ -597,6 +633,7 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
 /// ("black and white").
 pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
     let mut chunks = chunks;
+    deny_alternatives(&mut chunks);
     // Attribute lists.
     let mut index = 0;
     while index + 1 < chunks.len() {
@@ -674,6 +711,27 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
     }
     share_relations(&mut chunks);
     chunks
+}
+
+/// "No cats or dogs": a thing joined by "or" to a denied one ("no X") is denied too, and the "or" joins them
+/// as "and" would ("no cats and no dogs"). An "or" after a thing not denied is left alone.
+fn deny_alternatives(chunks: &mut [Chunk]) {
+    for index in 1..chunks.len().saturating_sub(1) {
+        if chunks[index].kind != ChunkKind::Or {
+            continue;
+        }
+        let denied = matches!(&chunks[index - 1].kind, ChunkKind::NounPhrase(phrase)
+            if phrase.class.is_some() && matches!(phrase.quantity, Some(Quantity::None | Quantity::Exactly(0))));
+        let plain = matches!(&chunks[index + 1].kind, ChunkKind::NounPhrase(phrase)
+            if phrase.class.is_some() && phrase.deictic.is_none() && !phrase.article
+                && matches!(phrase.quantity, None | Some(Quantity::None)));
+        if denied && plain {
+            if let ChunkKind::NounPhrase(phrase) = &mut chunks[index + 1].kind {
+                phrase.quantity = Some(Quantity::None);
+            }
+            chunks[index].kind = ChunkKind::And;
+        }
+    }
 }
 
 /// "Four mugs and a plate in the sink": a stated noun phrase ("four mugs", "a plate") joined by "and" to a

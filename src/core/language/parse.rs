@@ -693,6 +693,8 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     let first = first?;
     match first.tag {
         // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
+        // "I'm off to bed" ("i" is skipped) is no question.
+        ItemTag::Lexicon(Tag::Be) if first.text == "am" => {}
         ItemTag::Lexicon(Tag::Question(_) | Tag::Be) => return Some(UtteranceKind::Question),
         ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
         _ => {}

@@ -36,6 +36,7 @@ pub enum Symbol {
     Pointing,
     As,
     And,
+    Or,
     /// "where" inside a statement (a cleft).
     Where,
     /// A bare "left" or "right" ("L: mug, R: lamp").
@@ -154,7 +155,7 @@ impl Action {
             Action::RelabelCalled => (&["target", "from"], &[]),
             Action::RelabelPointed => (&["to"], &["from"]),
             Action::RoomType => (&["room"], &["negated"]),
-            Action::Relation => (&["subject", "relation", "landmark"], &["negated"]),
+            Action::Relation => (&["subject", "relation", "landmark"], &["negated", "denied"]),
             Action::Place => (&["subject"], &["room", "region"]),
             Action::Attribute => (&["subject"], &["attributes"]),
             Action::Have => (&["owner", "np"], &["negated"]),
@@ -339,6 +340,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "POINTING" => Symbol::Pointing,
             "AS" => Symbol::As,
             "AND" => Symbol::And,
+            "OR" => Symbol::Or,
             "SEP" => Symbol::Separator,
             "WHERE" => Symbol::Where,
             "SIDE" => Symbol::Side,
@@ -435,6 +437,7 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
         | (Symbol::Pointing, ChunkKind::Pointing)
         | (Symbol::As, ChunkKind::As)
         | (Symbol::And, ChunkKind::And)
+        | (Symbol::Or, ChunkKind::Or)
         | (Symbol::Where, ChunkKind::Where)
         | (Symbol::Side, ChunkKind::Side(_))
         | (Symbol::Separator, ChunkKind::Separator)

@@ -92,6 +92,11 @@ fn score(grammar: &Grammar, text: &str) -> Score {
             Err(LanguageError::TooLong { .. }) => ("error".to_string(), Vec::new()),
             Err(other) => (format!("error: {other}"), Vec::new()),
         };
+        // The styles notation writes a pronoun referent `^` whatever its number (styles_generator/check.py
+        // accepts no `^*`); the parser's notation marks a plural one `^*`.
+        for constraint in &mut got {
+            *constraint = constraint.replace("(^*,", "(^,");
+        }
         got.sort();
         if expected.is_empty() {
             result.non_corrections += 1;
@@ -245,13 +250,14 @@ fn heldout_styles_figures_are_reported() {
 /// Per-style floors on the fresh development file (324 lines, 54 per style). When the file arrived the parser
 /// of session 4 read 42, 48, 21, 44, 39 and 49 of 54 lines (243/324, 75.0%; 2 constraints from 54
 /// non-corrections, 4 unasked relabels, 36 lines misread); at the end of session 5 it reads 53, 54, 46, 53,
-/// 52 and 54 (312/324, 96.3%; none, none, 6).
+/// 52 and 54 (312/324, 96.3%; none, none, 6); in session 7, 54 of 54 in every style (324/324, after one
+/// expectation was corrected to the corpus's own `^` convention; none, none, none).
 const FRESH_DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 98.0),
+    ("asr_slip", 99.5),
     ("field_note", 99.5),
-    ("hard", 85.0),
-    ("not_a_correction", 98.0),
-    ("speech", 96.0),
+    ("hard", 99.5),
+    ("not_a_correction", 99.5),
+    ("speech", 99.5),
     ("typed_tidy", 99.5),
 ];
 
@@ -287,8 +293,9 @@ fn fresh_development_styles_recall_per_style() {
 }
 
 /// Fresh held-out floor. When the file arrived the parser of session 4 read 120/156 (76.9%), no unasked
-/// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none.
-const FRESH_HELDOUT_FLOOR: f64 = 85.8;
+/// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none; in
+/// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 87.1;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
