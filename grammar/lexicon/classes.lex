@@ -100,6 +100,9 @@ daughter -> class person
 son -> class person
 brother -> class person
 sister -> class person
+lodger -> class person
+flatmate -> class person
+roommate -> class person
 mum -> class person
 mom -> class person
 dad -> class person

@@ -13,6 +13,9 @@ ate = eight
 for = four when before <plural>
 for = four when after is|be|was when before <end>
 to = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
+# A note opening with a count heard as "to": "to bottles on counter".
+to = two when after <start>|,|;|and when before <plural>
+too = two when after <start>|,|;|and when before <plural>
 too = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
 too = two when after is|be|was when before <end>
 to = two when after is|be|was when before <end>
@@ -28,7 +31,7 @@ know = no unless after you|i|not|do|we|they|to|dont|don't|didn't
 # "there" heard as "their" / "they're"; "here" as "hear"; "scene" as "seen"; "see" as "sea".
 their = there when before <end>
 their should = there should
-hear = here when after in|over|right|is|are
+hear = here when after in|over|right|is|are|<class>
 seen = scene when after this|the|in|that
 sea = see when after not|can|i|you|did|could
 were = we are when after <start> when before in
@@ -97,6 +100,10 @@ count her = counter
 count hers = counters
 so far = sofa
 so fas = sofas
+so fa = sofa
+off ice = office
+# "than" heard or typed as "then" after a comparison word.
+then = than when after more|fewer|less|greater|bigger|smaller
 win doe = window
 win does = windows
 win dow = window

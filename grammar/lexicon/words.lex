@@ -15,6 +15,21 @@ that = , it when after <class>
 does = is when after <start> when before the|a|an|my|your|our|it|he|she|they|this|that|anyone|anybody|someone
 did = is when after <start> when before the|a|an|my|your|our|it|he|she|they|this|that|anyone|anybody|someone
 do = is when after <start> when before the|my|your|our|they|we|these|those|any|anyone|anybody
+# "There's no dog here, only a cat": after a pause, "only a" says the thing is there.
+# "The cat is on the sofa, as is the dog": the same place of another thing.
+as is = and so is when after <start>
+as are = and so are when after <start>
+only a = there is a when after <start>
+only an = there is an when after <start>
+just a = there is a when after <start>
+just an = there is an when after <start>
+# "Rather than the cabinet", "instead of the shelf": the alternative is denied.
+rather than = not
+instead of = not
+# "None of the books are on the desk": the books are not there, which says nothing of books elsewhere.
+none of the = not the when before <plural>
+# "Neither on the floor nor on the door": "nor" before a relation word denies the next place too.
+nor = or when before on|under|in|inside|next|beside|by|behind|above|below|near|left|right|at|to|onto|underneath|beneath
 that's = that is
 # "What looks like a dog is actually a pillow", "what you think is a cat is a towel": the thing pointed at
 # (or named last), first as the robot shows it.
@@ -287,6 +302,8 @@ beside -> relation next_to
 besides -> relation next_to
 by -> relation next_to
 near -> relation next_to
+# "The dog is at the door" ("@" in a note is left alone: "mug @ cabinet (on top)" is on it).
+at -> relation next_to
 nearby -> relation next_to
 close to -> relation next_to
 against -> relation next_to
@@ -506,6 +523,18 @@ hot -> greeting
 rainy -> greeting
 weekend -> greeting
 mondays -> greeting
+haha -> greeting
+lol -> greeting
+funny -> greeting
+love -> greeting
+song -> greeting
+music -> greeting
+hurt -> greeting
+hurts -> greeting
+aches -> greeting
+rain -> greeting
+later -> greeting
+walk -> greeting
 
 # Words that carry nothing for a correction.
 i -> skip
@@ -560,6 +589,19 @@ mounted -> skip
 asleep -> skip
 awake -> skip
 curled up -> skip
+hiding -> skip
+piled -> skip
+stacked -> skip
+heaped -> skip
+scattered -> skip
+strewn -> skip
+draped -> skip
+folded -> skip
+propped -> skip
+balanced -> skip
+snoozing -> skip
+napping -> skip
+perched on -> relation on
 up there -> skip
 down there -> skip
 # "There's nobody here, not even the dog": after a pause, "not even" denies the thing as "no" does.
@@ -646,6 +688,7 @@ can you tell me -> question
 could you tell me -> question
 do you see -> question
 let's -> request
+please count -> request
 # Household chores and errands asked of the robot. "make the bed" and "set the table" are not a relabel's
 # "make" or "set".
 make the bed -> request

@@ -370,6 +370,42 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
             continue;
         }
         let item = &items[index];
+        // "The lamp is behind the chair, which is next to the desk": "which" (or "who") after a pause and
+        // before a verb is the thing named just before it.
+        if matches!(item.text.as_str(), "which" | "who")
+            && matches!(
+                items.get(index + 1).map(|next| next.tag),
+                Some(ItemTag::Lexicon(Tag::Be))
+            )
+        {
+            let before = chunks
+                .len()
+                .checked_sub(2)
+                .and_then(|at| (chunks[at + 1].kind == ChunkKind::Separator).then(|| &chunks[at]));
+            if let Some(Chunk {
+                kind: ChunkKind::NounPhrase(named),
+                ..
+            }) = before
+            {
+                if named.class.is_some() && named.deictic.is_none() {
+                    let phrase = NounPhrase {
+                        quantity: None,
+                        relations: Vec::new(),
+                        region: None,
+                        article: false,
+                        span: item.span,
+                        ..named.clone()
+                    };
+                    chunks.push(Chunk {
+                        kind: ChunkKind::NounPhrase(phrase),
+                        span: item.span,
+                        misspelled: false,
+                    });
+                    index += 1;
+                    continue;
+                }
+            }
+        }
         let kind = match item.tag {
             ItemTag::Pause => ChunkKind::Separator,
             ItemTag::Unknown | ItemTag::TooLarge => ChunkKind::Other,
@@ -633,6 +669,7 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
 /// ("black and white").
 pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
     let mut chunks = chunks;
+    counts_after_nouns(&mut chunks);
     deny_alternatives(&mut chunks);
     // Attribute lists.
     let mut index = 0;
@@ -680,6 +717,19 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
                     chunks.remove(index + 1);
                     true
                 }
+                // "The vase is on the shelf right of the plant": a place after the landmark of "is on" or
+                // "is in" is the subject's second place, not the landmark's.
+                Some(ChunkKind::Relation(relation))
+                    if *relation != Relation::Between
+                        && index >= 2
+                        && matches!(
+                            chunks[index - 1].kind,
+                            ChunkKind::Relation(Relation::On | Relation::Inside)
+                        )
+                        && chunks[index - 2].kind == ChunkKind::Be =>
+                {
+                    false
+                }
                 Some(ChunkKind::Relation(relation)) => {
                     let relation = *relation;
                     let landmark_count = if relation == Relation::Between { 2 } else { 1 };
@@ -711,6 +761,34 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
     }
     share_relations(&mut chunks);
     chunks
+}
+
+/// "chairs >= 6 around tbl": a note's count after a bare noun, before the place it gives, is the noun's count
+/// ("at least 6 chairs around the table").
+fn counts_after_nouns(chunks: &mut Vec<Chunk>) {
+    let mut index = 0;
+    while index + 2 < chunks.len() {
+        let bare = matches!(&chunks[index].kind, ChunkKind::NounPhrase(phrase)
+            if phrase.class.is_some() && phrase.quantity.is_none() && phrase.deictic.is_none()
+                && !phrase.article);
+        let placed = matches!(
+            chunks[index + 2].kind,
+            ChunkKind::Relation(_) | ChunkKind::Region(_)
+        );
+        if let (true, true, ChunkKind::Number { quantity, .. }) =
+            (bare, placed, chunks[index + 1].kind.clone())
+        {
+            let span = chunks[index + 1].span;
+            if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
+                phrase.quantity = Some(quantity);
+                phrase.span = phrase.span.cover(span);
+            }
+            chunks[index].span = chunks[index].span.cover(span);
+            chunks[index].misspelled |= chunks[index + 1].misspelled;
+            chunks.remove(index + 1);
+        }
+        index += 1;
+    }
 }
 
 /// "No cats or dogs": a thing joined by "or" to a denied one ("no X") is denied too, and the "or" joins them
@@ -756,12 +834,15 @@ fn share_relations(chunks: &mut [Chunk]) {
             }
             _ => continue,
         };
+        // "dog & cat on rug": a phrase opening the clause is no landmark, so it shares the place too.
+        let opens_clause = index == 0 || chunks[index - 1].kind == ChunkKind::Separator;
         if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
             let stated = phrase.article
                 || !matches!(
                     phrase.quantity,
                     None | Some(Quantity::None) | Some(Quantity::Exactly(0))
-                );
+                )
+                || (opens_clause && phrase.class.is_some() && phrase.deictic.is_none());
             if stated && phrase.relations.is_empty() && phrase.region.is_none() {
                 phrase.relations = shared.0;
                 phrase.region = shared.1;

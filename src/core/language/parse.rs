@@ -704,8 +704,14 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
             .iter()
             .any(|item| item.tag == ItemTag::Lexicon(wanted))
     };
+    // "Hold on, stop moving": talk, then a request opening a later clause.
+    let request_after_pause = items
+        .windows(2)
+        .any(|pair| pair[0].tag == ItemTag::Pause && pair[1].tag == ItemTag::Lexicon(Tag::Request));
     if has(Tag::Thanks) {
         Some(UtteranceKind::Thanks)
+    } else if first.tag == ItemTag::Lexicon(Tag::Greeting) && request_after_pause {
+        Some(UtteranceKind::Request)
     } else if has(Tag::Greeting) {
         Some(UtteranceKind::ChitChat)
     } else {

@@ -238,7 +238,8 @@ fn rewrite(
 
 /// The count of a note's multiplier ("x9", "x 12" is not one): `Some(9)`.
 fn note_multiplier(text: &str) -> Option<u32> {
-    let digits = text.strip_prefix('x')?;
+    // "x9" after the noun, or "3x" before it.
+    let digits = text.strip_prefix('x').or_else(|| text.strip_suffix('x'))?;
     if digits.is_empty() || !digits.chars().all(|c| c.is_ascii_digit()) {
         return None;
     }
@@ -433,7 +434,12 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     for (candidate, tag) in lexicon.spelling_words() {
         if let Some(distance) = distance_within(word, candidate, SUGGESTION_LIMIT) {
             suggestions.push((distance, candidate));
-            if distance <= accept && best.is_none_or(|(best_distance, ..)| distance < best_distance)
+            // A slip of the keys rarely changes a short word's first letter: "hooks" is a word we do not
+            // know, not "books".
+            let same_start = length >= 8 || word.chars().next() == candidate.chars().next();
+            if distance <= accept
+                && same_start
+                && best.is_none_or(|(best_distance, ..)| distance < best_distance)
             {
                 best = Some((distance, candidate, *tag));
             }
@@ -476,9 +482,26 @@ fn ends_landmark(kept: &[Item]) -> bool {
 /// "In the middle of the table", "at the top of the shelf": a region phrase followed by "of" and a class word
 /// names a part of that thing, not a part of the picture. The middle or top of a thing is on it; another part
 /// ("the left end of", "the corner of the desk") is dropped, so the region is never stated of the picture.
-/// "In the middle of the room" (a word for the whole view) keeps its region.
+/// "In the middle of the room" (a word for the whole view) keeps its region, and "on the right side of the
+/// picture" is a region of the picture, not a relation to it.
 fn parts_of_things(mut items: Vec<Item>) -> Vec<Item> {
-    for index in 0..items.len().saturating_sub(2) {
+    for index in 0..items.len().saturating_sub(1) {
+        // "On the right side of the picture": a side of the whole view is a region of the picture.
+        let side = match items[index].tag {
+            ItemTag::Lexicon(Tag::Relation(Relation::LeftOf)) => Some(ImageRegion::Left),
+            ItemTag::Lexicon(Tag::Relation(Relation::RightOf)) => Some(ImageRegion::Right),
+            _ => None,
+        };
+        if let Some(side) = side {
+            let of_view = items[index + 1..]
+                .iter()
+                .find(|item| !matches!(item.tag, ItemTag::Lexicon(Tag::Determiner)))
+                .is_some_and(|item| item.tag == ItemTag::Lexicon(Tag::Scene));
+            if of_view {
+                items[index].tag = ItemTag::Lexicon(Tag::Region(side));
+            }
+            continue;
+        }
         let ItemTag::Lexicon(Tag::Region(region)) = items[index].tag else {
             continue;
         };

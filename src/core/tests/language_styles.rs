@@ -217,8 +217,9 @@ fn development_styles_recall_per_style() {
 const DEV_MAX_SPURIOUS: usize = 0;
 
 /// Held-out floor at the measured figure (2026-12-05, session 5: 471/498 = 94.6%, no unasked relabel, one
-/// constraint from 83 non-corrections); the goal of no constraint is not reached yet.
-const HELDOUT_FLOOR: f64 = 94.5;
+/// constraint from 83 non-corrections; session 7: 473/498 = 95.0%, none, one); the goal of no constraint is
+/// not reached yet.
+const HELDOUT_FLOOR: f64 = 94.9;
 const HELDOUT_MAX_SPURIOUS: usize = 1;
 
 /// The held-out file is run for its figures only; its lines are never printed.
@@ -296,8 +297,9 @@ fn fresh_development_styles_recall_per_style() {
 
 /// Fresh held-out floor. When the file arrived the parser of session 4 read 120/156 (76.9%), no unasked
 /// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none; in
-/// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none.
-const FRESH_HELDOUT_FLOOR: f64 = 87.1;
+/// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none;
+/// after those the second fresh development file prompted, 142/156 (91.0%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 90.9;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -330,16 +332,17 @@ fn fresh_heldout_styles_figures_are_reported() {
 /// by a helper who never saw the parser; tests/language/styles_fresh2.md says how). When the file arrived
 /// (2026-12-05, session 7), before any change it prompted, the parser read 43, 49, 39, 42, 48 and 49 of 50
 /// lines (270/300, 90.0%; 2 constraints from 50 non-corrections, no unasked relabel, 8 lines misread); the
-/// parser of the session's start read 266/300 (88.7%; 2, none, 9).
+/// parser of the session's start read 266/300 (88.7%; 2, none, 9). After the changes the file prompted:
+/// 50, 50, 49, 49, 50 and 50 (298/300, 99.3%; 1, none, 1).
 const FRESH2_DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 85.5),
-    ("field_note", 97.5),
-    ("hard", 77.5),
-    ("not_a_correction", 83.5),
-    ("speech", 95.5),
-    ("typed_tidy", 97.5),
+    ("asr_slip", 99.5),
+    ("field_note", 99.5),
+    ("hard", 97.5),
+    ("not_a_correction", 97.5),
+    ("speech", 99.5),
+    ("typed_tidy", 99.5),
 ];
-const FRESH2_DEV_MAX_SPURIOUS: usize = 2;
+const FRESH2_DEV_MAX_SPURIOUS: usize = 1;
 
 #[test]
 fn fresh2_development_styles_recall_per_style() {
@@ -378,8 +381,8 @@ fn fresh2_development_styles_recall_per_style() {
 
 /// Second fresh held-out floor. When the file arrived, before any change it prompted, the parser read 132/150
 /// (88.0%; no constraint from 25 non-corrections, no unasked relabel, 6 lines misread), as did the parser of
-/// the session's start.
-const FRESH2_HELDOUT_FLOOR: f64 = 87.9;
+/// the session's start; after the changes the development file prompted, 135/150 (90.0%; none, none, 4).
+const FRESH2_HELDOUT_FLOOR: f64 = 89.9;
 
 /// The second fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
