@@ -23,6 +23,9 @@ carpet -> class rug
 mat -> class rug
 dining table -> class table
 coffee table -> class table
+bedside table -> class table
+side table -> class table
+bedside cabinet -> class cabinet
 armchair -> class chair
 stool -> class chair
 couch -> class sofa

@@ -98,6 +98,8 @@ ctr = counter
 ctre = at the centre unless after the|in|at
 middle = in the middle unless after the|in|at
 
+# "cabinet: mug on top": "on top" closing a note is "on" the thing named before the colon.
+on top = on when before <end>|,|;|.|/|+
 # Which shelf it is says no more than "shelf" ("on the top shelf" is no image region).
 top shelf = shelf
 top shelves = shelves

@@ -37,6 +37,23 @@ what looks like = this is when after <start>
 what seems to be = this is when after <start>
 what appears to be = this is when after <start>
 what you think is = this is when after <start>
+what you have labelled as = this is when after <start>
+what you have labelled = this is when after <start>
+what you labelled as = this is when after <start>
+what you have labeled as = this is when after <start>
+what you labeled as = this is when after <start>
+what you have marked as = this is when after <start>
+what you marked as = this is when after <start>
+what you have called = this is when after <start>
+what you called = this is when after <start>
+what you have got as = this is when after <start>
+what you have as = this is when after <start>
+what you've labelled as = this is when after <start>
+what you've labelled = this is when after <start>
+what you've labeled as = this is when after <start>
+what you've marked as = this is when after <start>
+what you've called = this is when after <start>
+what you've got as = this is when after <start>
 is there = is present when before <end>|.|!|,|;
 it's there = it is present when before <end>|.|!|,|;
 its there = it is present when before <end>|.|!|,|;
@@ -54,6 +71,10 @@ who's = who is
 we're = we are
 you're = you are
 you'll = you will
+you've = you have
+we've = we have
+i've = i have
+they've = they have
 youll = you will
 youre = you are
 they're = they are
@@ -466,6 +487,10 @@ under like = under
 behind like = behind
 between like = between
 you know -> filler
+# A speaker searching for a word: "it's on the, what do you call it, the counter".
+what do you call it -> filler
+what is it called -> filler
+whatchamacallit -> filler
 well -> filler
 so -> filler
 okay -> greeting
@@ -524,6 +549,11 @@ rainy -> greeting
 weekend -> greeting
 mondays -> greeting
 haha -> greeting
+brilliant -> greeting
+awesome -> greeting
+amazing -> greeting
+i am back -> greeting
+long day -> greeting
 lol -> greeting
 funny -> greeting
 love -> greeting
@@ -590,6 +620,7 @@ asleep -> skip
 awake -> skip
 curled up -> skip
 hiding -> skip
+sat -> skip
 piled -> skip
 stacked -> skip
 heaped -> skip
@@ -689,6 +720,12 @@ could you tell me -> question
 do you see -> question
 let's -> request
 please count -> request
+i need you to -> request
+i want you to -> request
+i would like you to -> request
+do not forget to -> request
+remember to -> request
+make sure -> request
 # Household chores and errands asked of the robot. "make the bed" and "set the table" are not a relabel's
 # "make" or "set".
 make the bed -> request
@@ -751,6 +788,8 @@ can i -> question
 thanks -> thanks
 thank you -> thanks
 cheers -> thanks
+appreciated -> thanks
+appreciate it -> thanks
 ta -> thanks
 # Praise is chit-chat, not thanks.
 well done -> greeting

@@ -198,6 +198,18 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
     ) {
         index += 1;
     }
+    // So does a singular class word before another ("the toy box" is a box, "the sofa cushion" a pillow), and,
+    // after a determiner or "a", a word nobody knows ("the bedside table" is a table; the word is still
+    // reported as unknown).
+    if let (Some(item), Some(Tag::Class { .. })) =
+        (items.get(index), lexicon_tag(items.get(index + 1)))
+    {
+        let class_modifier = matches!(item.tag, ItemTag::Lexicon(Tag::Class { plural: false, .. }));
+        let unknown_modifier = item.tag == ItemTag::Unknown && (determiner || article);
+        if class_modifier || unknown_modifier {
+            index += 1;
+        }
+    }
     // A room after a determiner: "the kitchen".
     if let Some(Tag::Room(room)) = lexicon_tag(items.get(index)) {
         if quantity.is_none() && deictic.is_none() {
