@@ -6,7 +6,6 @@
 //! Owns: timing only.
 //! Must not: assert anything; speed goals are read from the printed figures.
 
-use std::path::Path;
 use std::time::Instant;
 
 use criterion::{criterion_group, criterion_main, Criterion};
@@ -16,8 +15,11 @@ use sayso_perception::unaries::byo_npy::read_npy;
 use sayso_perception::unaries::contract::FeatureLayout;
 use sayso_perception::unaries::Classifier;
 
+#[path = "../tests/paths.rs"]
+mod paths;
+
 fn classify_400_segments(criterion: &mut Criterion) {
-    let directory = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/unaries");
+    let directory = paths::fixture("unaries");
     let taxonomy = Taxonomy::embedded();
     let features = read_npy(&directory.join("fixture_mlp_input.npy"))
         .expect("fixture input")

@@ -23,13 +23,12 @@ mod demo_turns;
 #[path = "support/conversations.rs"]
 mod conversations;
 
-use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;
 use std::path::Path;
-use std::process::{Child, Command, Stdio};
-use std::time::{Duration, Instant};
+use std::process::{Child, Stdio};
+use std::time::Duration;
 
-use conversations::{open_conversations, utterance, Conversation};
+use conversations::{closed_loop, open_conversations, utterance};
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::{load_average, percentile, BENCH_SCENES};
 
@@ -54,78 +53,30 @@ fn start(database: Option<&str>, data: &Path) -> Replica {
     std::fs::create_dir_all(data).unwrap();
     let config = data.join("sayso.toml");
     std::fs::write(&config, "rate_per_second = 1e9\nrate_burst = 4000000000\n").unwrap();
-    let mut command = Command::new(env!("CARGO_BIN_EXE_sayso"));
-    command
-        .args(["serve", "--port", "0", "--data-dir"])
-        .arg(data);
-    command.arg("--config").arg(&config);
-    if let Some(database) = database {
-        command.args(["--database", database]);
-    }
-    let mut child = command
-        .stdout(Stdio::piped())
-        .stderr(Stdio::null())
-        .spawn()
-        .expect("spawn sayso serve");
-    let mut line = String::new();
-    BufReader::new(child.stdout.take().unwrap())
-        .read_line(&mut line)
-        .unwrap();
-    let address = line
-        .split("http://")
-        .nth(1)
-        .and_then(|rest| rest.split('/').next())
-        .and_then(|address| address.parse().ok())
-        .unwrap_or_else(|| panic!("a replica did not start: {line:?}"));
+    let (child, address) = match database {
+        Some(database) => service_support::start_serve(
+            &[
+                &"--data-dir",
+                &data,
+                &"--config",
+                &config,
+                &"--database",
+                &database,
+            ],
+            Stdio::null(),
+        ),
+        None => service_support::start_serve(
+            &[&"--data-dir", &data, &"--config", &config],
+            Stdio::null(),
+        ),
+    };
     Replica { child, address }
-}
-
-/// Every conversation sends `per_client` notes from `first_step` on, each to the next replica; returns
-/// corrections per second and the sorted latencies.
-fn closed_loop(
-    addresses: &[SocketAddr],
-    conversations: &[Conversation],
-    first_step: usize,
-    per_client: usize,
-) -> (f64, Vec<Duration>) {
-    let started = Instant::now();
-    let threads: Vec<_> = conversations
-        .iter()
-        .enumerate()
-        .map(|(client, conversation)| {
-            let addresses = addresses.to_vec();
-            let conversation = conversation.clone();
-            std::thread::spawn(move || {
-                (first_step..first_step + per_client)
-                    .map(|step| {
-                        let address = addresses[(client + step) % addresses.len()];
-                        utterance(address, &conversation, step)
-                    })
-                    .collect::<Vec<_>>()
-            })
-        })
-        .collect();
-    let mut latencies: Vec<Duration> = threads
-        .into_iter()
-        .flat_map(|thread| thread.join().unwrap())
-        .collect();
-    let seconds = started.elapsed().as_secs_f64();
-    latencies.sort();
-    (latencies.len() as f64 / seconds, latencies)
 }
 
 /// Starts `replicas` processes (on a fresh PostgreSQL database, or one on SQLite when `None`), registers
 /// the scenes, warms every replica up, and measures; returns corrections/s, p50 and p99.
 fn measure(replicas: usize, postgres: bool, scratch: &Path) -> (f64, Duration, Duration) {
-    let database = postgres.then(|| {
-        let url = postgres_support::fresh_database();
-        let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
-            .args(["migrate", "--database", &url])
-            .output()
-            .expect("sayso migrate runs");
-        assert!(migrated.status.success(), "{migrated:?}");
-        url
-    });
+    let database = postgres.then(postgres_support::migrated_database);
     let label = if postgres { "postgres" } else { "sqlite" };
     let fleet: Vec<Replica> = (0..replicas)
         .map(|index| {
@@ -192,12 +143,7 @@ fn fleet_figures() {
 fn bench_fleet(criterion: &mut Criterion) {
     fleet_figures();
     let scratch = tempfile::tempdir().unwrap();
-    let url = postgres_support::fresh_database();
-    let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["migrate", "--database", &url])
-        .output()
-        .expect("sayso migrate runs");
-    assert!(migrated.status.success(), "{migrated:?}");
+    let url = postgres_support::migrated_database();
     let fleet: Vec<Replica> = (0..2)
         .map(|index| start(Some(&url), &scratch.path().join(format!("timed-{index}"))))
         .collect();

@@ -15,6 +15,9 @@
 //! a note when `python3` with numpy and gco-wrapper is not on PATH.
 //! Must not: be a test; it prints figures for people to read.
 
+#[path = "../tests/paths.rs"]
+mod paths;
+
 #[path = "support/demo_turns.rs"]
 mod demo_turns;
 
@@ -82,10 +85,7 @@ fn labeller_against_gco(problems: &[(String, LabellingProblem, usize)]) {
     let written = serde_json::to_vec(&listed)
         .ok()
         .and_then(|bytes| std::fs::write(&path, bytes).ok());
-    let script = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/benches/reference/gco_labeller.py"
-    );
+    let script = paths::repo().join("benches/reference/gco_labeller.py");
     let output = written.and_then(|()| {
         std::process::Command::new("python3")
             .arg(script)

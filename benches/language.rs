@@ -10,12 +10,12 @@ use std::time::Instant;
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use sayso_core::language::Grammar;
 
+#[path = "../tests/paths.rs"]
+mod paths;
+
 fn corpus() -> Vec<String> {
-    let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/language/corpus.jsonl"
-    ))
-    .expect("corpus file");
+    let text = std::fs::read_to_string(paths::repo().join("tests/language/corpus.jsonl"))
+        .expect("corpus file");
     text.lines()
         .filter(|line| !line.trim().is_empty())
         .map(|line| {
@@ -38,7 +38,7 @@ fn spacy_rate() -> Result<(f64, String), String> {
     let output = std::process::Command::new(&python)
         .arg("tests/fixtures/language/time_spacy.py")
         .arg("--print-only")
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .current_dir(paths::repo())
         .output()
         .map_err(|error| format!("{python} did not start: {error}"))?;
     if !output.status.success() {

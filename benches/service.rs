@@ -103,30 +103,16 @@ fn process_cpu_ms() -> f64 {
 }
 
 fn closed_loop(bench: &Bench, requests_per_client: u32) -> (f64, Duration, Duration, f64) {
-    let started = Instant::now();
     let cpu_before = process_cpu_ms();
-    let threads: Vec<_> = bench
-        .conversations
-        .iter()
-        .map(|conversation| {
-            let address = bench.address;
-            let conversation = conversation.clone();
-            std::thread::spawn(move || {
-                (0..requests_per_client)
-                    .map(|step| utterance(address, &conversation, step as usize))
-                    .collect::<Vec<_>>()
-            })
-        })
-        .collect();
-    let mut latencies: Vec<Duration> = threads
-        .into_iter()
-        .flat_map(|thread| thread.join().unwrap())
-        .collect();
-    let seconds = started.elapsed().as_secs_f64();
+    let (throughput, latencies) = conversations::closed_loop(
+        &[bench.address],
+        &bench.conversations,
+        0,
+        requests_per_client as usize,
+    );
     let cpu_per_request = (process_cpu_ms() - cpu_before) / latencies.len().max(1) as f64;
-    latencies.sort();
     (
-        latencies.len() as f64 / seconds,
+        throughput,
         percentile(&latencies, 0.5),
         percentile(&latencies, 0.99),
         cpu_per_request,

@@ -10,13 +10,15 @@
 //! Must not: assert; figures are printed for people to read.
 
 use std::alloc::{GlobalAlloc, Layout, System};
-use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::Instant;
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use sayso_core::raster::{read_rgb_png, DEFAULT_PIXEL_LIMIT};
 use sayso_core::slic::{slic, working_bytes, SlicParams};
+
+#[path = "../tests/paths.rs"]
+mod paths;
 
 /// Wraps the system allocator to track live and peak heap bytes.
 struct CountingAllocator;
@@ -60,7 +62,7 @@ static ALLOCATOR: CountingAllocator = CountingAllocator;
 const IMAGE: &str = "astronaut";
 
 fn scikit_image_seconds(name: &str, field: &str) -> Option<f64> {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/slic/reference.json");
+    let path = paths::fixture("slic/reference.json");
     let text = std::fs::read_to_string(path).ok()?;
     let reference: serde_json::Value = serde_json::from_str(&text).ok()?;
     reference["images"]
@@ -83,9 +85,7 @@ fn thread_cpu_seconds() -> Option<f64> {
 }
 
 fn bench_slic(criterion: &mut Criterion) {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/fixtures/slic")
-        .join(format!("{IMAGE}.png"));
+    let path = paths::fixture("slic").join(format!("{IMAGE}.png"));
     let image = match read_rgb_png(&path, DEFAULT_PIXEL_LIMIT) {
         Ok(image) => image,
         Err(error) => {

@@ -13,6 +13,9 @@ use sayso_solver::labelling::{ExpansionOptions, LabellingProblem};
 use sayso_solver::maxflow::FlowGraph;
 use serde::Deserialize;
 
+#[path = "../tests/paths.rs"]
+mod paths;
+
 const WIDTH: usize = 640;
 const HEIGHT: usize = 480;
 
@@ -45,11 +48,8 @@ struct MaxFlowTimings {
 }
 
 fn fixture(file: &str) -> String {
-    let path = format!(
-        "{}/tests/fixtures/solver/{file}",
-        env!("CARGO_MANIFEST_DIR")
-    );
-    std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"))
+    let path = paths::fixture("solver").join(file);
+    std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{}: {error}", path.display()))
 }
 
 fn bench_case() -> PottsCase {

@@ -40,14 +40,11 @@ fn main() -> anyhow::Result<()> {
         let baseline = believe_without_notes(&prepared, &settings)?;
         let report_cls = prepared.classifier_labels.clone();
         let report = correct_prepared(prepared, &notes, None, false, &settings)?;
+        // The scene after the last note that changed it (`correction`), else the no-note solve.
         let last = report
-            .after_each
-            .iter()
-            .rev()
-            .flatten()
-            .next()
-            .map(|c| c.graph.clone())
-            .unwrap_or(baseline.graph.clone());
+            .correction
+            .as_ref()
+            .map_or_else(|| baseline.graph.clone(), |c| c.graph.clone());
         let inst = &demo.instances.values;
         let mut area: HashMap<u16, u64> = HashMap::new();
         for &i in inst {

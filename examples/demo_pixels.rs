@@ -68,14 +68,11 @@ fn main() -> anyhow::Result<()> {
         let started = Instant::now();
         let report = correct_prepared(prepared, &notes, None, false, &settings)?;
         let notes_seconds = started.elapsed().as_secs_f64();
+        // The scene after the last note that changed it (`correction`), else the no-note solve.
         let last = report
-            .after_each
-            .iter()
-            .rev()
-            .flatten()
-            .next()
-            .map(|c| c.graph.clone())
-            .unwrap_or(baseline.graph.clone());
+            .correction
+            .as_ref()
+            .map_or_else(|| baseline.graph.clone(), |c| c.graph.clone());
         let truth = &demo.labels.values;
         let (cls, cls_right, total) = correct_by_class(truth, &classifier_map.values, classes);
         let base_map = label_map(&scene, &baseline.graph.segment_labels);

@@ -9,7 +9,9 @@
 set -euo pipefail
 seconds="${1:-60}"
 cd "$(dirname "$0")/.."
-for target in parser image npy label_map detections scene_loader wire_json; do
+# The targets are the files in fuzz/fuzz_targets/ (tests/cli/fuzz_corpus.rs checks them against fuzz/targets.rs).
+for file in fuzz/fuzz_targets/*.rs; do
+    target="$(basename "$file" .rs)"
     echo "== $target (${seconds} s)"
     cargo +nightly fuzz run --target-dir target/fuzz "$target" -- -max_total_time="$seconds" -rss_limit_mb=1024 -max_len=65536
 done

@@ -1,5 +1,5 @@
-//! Where the repository's committed files are, for every test binary: fixtures, demo scenes and the shipped
-//! model, each named once instead of joined by hand in every test.
+//! Where the repository's committed files are, for every test binary and bench: fixtures, demo scenes and
+//! the shipped model, each named once instead of joined by hand in every test and bench.
 //!
 //! Owns: the repository root and the folders under it that tests read. Must not: read or write files.
 #![allow(dead_code)]
@@ -21,7 +21,7 @@ pub fn demo_scenes() -> PathBuf {
     repo().join("demo_scenes")
 }
 
-/// The shipped segment classifier.
+/// The shipped segment classifier (named once, by `sayso_perception::pipeline::shipped_model_path`).
 pub fn shipped_model() -> PathBuf {
-    repo().join("models/segment_classifier.onnx")
+    sayso_perception::pipeline::shipped_model_path()
 }

@@ -1,7 +1,7 @@
 //! The clients the service benches share: the bench scenes registered by name through a running service,
 //! one conversation opened on each, and one scripted note sent as a timed HTTP request.
 //!
-//! Owns: `Conversation`, `open_conversations` and `utterance`. Must not: start or stop a service, or print;
+//! Owns: `Conversation`, `open_conversations`, `utterance` and `closed_loop`. Must not: start or stop a service, or print;
 //! the benches do (`benches/service.rs` in process, `benches/fleet.rs` as replicas).
 
 use std::net::SocketAddr;
@@ -89,4 +89,39 @@ pub fn utterance(address: SocketAddr, conversation: &Conversation, step: usize) 
         String::from_utf8_lossy(&reply.body)
     );
     elapsed
+}
+
+/// Every conversation's client, on its own thread, sends `per_client` notes one after another (a closed
+/// loop) from `first_step` on, each to the next of `addresses`; returns corrections per second and the
+/// sorted latencies.
+pub fn closed_loop(
+    addresses: &[SocketAddr],
+    conversations: &[Conversation],
+    first_step: usize,
+    per_client: usize,
+) -> (f64, Vec<Duration>) {
+    let started = Instant::now();
+    let threads: Vec<_> = conversations
+        .iter()
+        .enumerate()
+        .map(|(client, conversation)| {
+            let addresses = addresses.to_vec();
+            let conversation = conversation.clone();
+            std::thread::spawn(move || {
+                (first_step..first_step + per_client)
+                    .map(|step| {
+                        let address = addresses[(client + step) % addresses.len()];
+                        utterance(address, &conversation, step)
+                    })
+                    .collect::<Vec<_>>()
+            })
+        })
+        .collect();
+    let mut latencies: Vec<Duration> = threads
+        .into_iter()
+        .flat_map(|thread| thread.join().unwrap())
+        .collect();
+    let seconds = started.elapsed().as_secs_f64();
+    latencies.sort();
+    (latencies.len() as f64 / seconds, latencies)
 }

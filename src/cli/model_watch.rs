@@ -96,11 +96,7 @@ mod tests {
 
     #[test]
     fn a_replaced_model_file_is_served_without_a_restart() {
-        let shipped = std::fs::read(concat!(
-            env!("CARGO_MANIFEST_DIR"),
-            "/models/segment_classifier.onnx"
-        ))
-        .unwrap();
+        let shipped = std::fs::read(sayso_perception::pipeline::shipped_model_path()).unwrap();
         let directory = tempfile::tempdir().unwrap();
         let path = directory.path().join("served.onnx");
         std::fs::write(&path, &shipped).unwrap();

@@ -41,6 +41,7 @@ pub mod random;
 pub mod raster;
 pub mod scene;
 pub mod scenegraph;
+pub mod shipped;
 pub mod slic;
 pub mod taxonomy;
 pub mod turn;

@@ -37,11 +37,11 @@ use crate::unaries::Unaries;
 /// Environment variable naming the built-in classifier's ONNX file.
 pub const MODEL_VARIABLE: &str = "SAYSO_MODEL";
 
-/// The built-in classifier's file under `models/` at the workspace root (fixed at compile time).
-pub const COMPILED_MODEL_PATH: &str = concat!(
-    env!("CARGO_MANIFEST_DIR"),
-    "/../../models/segment_classifier.onnx"
-);
+/// The built-in classifier's file: `MODEL_FILE` in the workspace's `models/` folder (fixed at compile
+/// time, `sayso_core::shipped::COMPILED_MODELS_DIR`). The one place its path is built.
+pub fn shipped_model_path() -> PathBuf {
+    Path::new(sayso_core::shipped::COMPILED_MODELS_DIR).join(MODEL_FILE)
+}
 
 /// What can stop the main job.
 #[derive(Debug, thiserror::Error)]
@@ -131,7 +131,7 @@ pub fn model_path(explicit: Option<&Path>) -> PathBuf {
     }
     match std::env::var_os(MODEL_VARIABLE) {
         Some(value) if !value.is_empty() => PathBuf::from(value),
-        _ => PathBuf::from(COMPILED_MODEL_PATH),
+        _ => shipped_model_path(),
     }
 }
 

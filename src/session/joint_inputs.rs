@@ -345,11 +345,9 @@ mod tests {
     #[test]
     fn detection_masks_reach_the_solve_and_the_digest() {
         let taxonomy = Taxonomy::embedded();
-        let classifier = crate::pipeline::load_classifier(
-            std::path::Path::new(crate::pipeline::COMPILED_MODEL_PATH),
-            &taxonomy,
-        )
-        .unwrap();
+        let classifier =
+            crate::pipeline::load_classifier(&crate::pipeline::shipped_model_path(), &taxonomy)
+                .unwrap();
         let mug = taxonomy.class_by_name("mug").unwrap().id;
         let wall = taxonomy.class_by_name("wall").unwrap().id;
         // 8 x 4: the mask is the box's left half only.

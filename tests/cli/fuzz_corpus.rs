@@ -7,19 +7,23 @@
 //! `SAYSO_FUZZ_MUTATIONS` sets the mutations per target (default 400; e.g. 20000 for a longer run). The
 //! cargo-fuzz targets (nightly, coverage-guided) run the same bodies: `DEVELOPERS.md` has the command.
 
+use crate::paths;
 use crate::targets;
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
-/// xorshift64*: a small deterministic generator (the mutations need no quality beyond spread).
-struct Mutator(u64);
+use sayso_core::random::SplitMix64;
+
+/// Seeded edits of corpus inputs, drawn from the workspace's one generator (`sayso_core::random`).
+struct Mutator(SplitMix64);
 
 impl Mutator {
+    fn new(seed: u64) -> Mutator {
+        Mutator(SplitMix64::new(seed))
+    }
+
     fn next(&mut self) -> u64 {
-        self.0 ^= self.0 >> 12;
-        self.0 ^= self.0 << 25;
-        self.0 ^= self.0 >> 27;
-        self.0.wrapping_mul(0x2545_F491_4F6C_DD1D)
+        self.0.next_u64()
     }
 
     fn below(&mut self, bound: usize) -> usize {
@@ -83,9 +87,7 @@ impl Mutator {
 }
 
 fn corpus(target: &str) -> Vec<(PathBuf, Vec<u8>)> {
-    let folder = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("fuzz/corpus")
-        .join(target);
+    let folder = paths::repo().join("fuzz/corpus").join(target);
     let mut files: Vec<PathBuf> = std::fs::read_dir(&folder)
         .unwrap_or_else(|error| panic!("{}: {error}", folder.display()))
         .map(|entry| entry.unwrap().path())
@@ -104,7 +106,7 @@ fn corpus(target: &str) -> Vec<(PathBuf, Vec<u8>)> {
 fn run_one(target: &str, body: fn(&[u8]), input: &[u8], label: &str) {
     let outcome = std::panic::catch_unwind(|| body(input));
     if outcome.is_err() {
-        let folder = Path::new(env!("CARGO_MANIFEST_DIR")).join("target/fuzz-failures");
+        let folder = paths::repo().join("target/fuzz-failures");
         let _ = std::fs::create_dir_all(&folder);
         let path = folder.join(format!("{target}-{label}"));
         let _ = std::fs::write(&path, input);
@@ -129,7 +131,7 @@ fn every_fuzz_target_survives_its_corpus_and_seeded_mutations() {
             run_one(target, *body, bytes, &name);
         }
         run_one(target, *body, b"", "empty");
-        let mut mutator = Mutator(0x5A15_0024 + index as u64);
+        let mut mutator = Mutator::new(0x5A15_0024 + index as u64);
         for round in 0..mutations {
             let seed = &seeds[mutator.below(seeds.len())].1;
             let other = &seeds[mutator.below(seeds.len())].1;
@@ -143,13 +145,59 @@ fn every_fuzz_target_survives_its_corpus_and_seeded_mutations() {
 fn the_mutator_is_deterministic_and_changes_its_input() {
     let seed = b"there are four books on the shelf".to_vec();
     let first: Vec<Vec<u8>> = {
-        let mut mutator = Mutator(7);
+        let mut mutator = Mutator::new(7);
         (0..50).map(|_| mutator.mutate(&seed, b"{}")).collect()
     };
     let again: Vec<Vec<u8>> = {
-        let mut mutator = Mutator(7);
+        let mut mutator = Mutator::new(7);
         (0..50).map(|_| mutator.mutate(&seed, b"{}")).collect()
     };
     assert_eq!(first, again);
     assert!(first.iter().filter(|input| **input != seed).count() >= 45);
+}
+
+/// Every cargo-fuzz target is a wrapper that calls its body here and nothing else, and every body here has
+/// its cargo-fuzz target: the list in `targets::TARGETS`, the files in `fuzz/fuzz_targets/` and the
+/// manifest's `[[bin]]` entries name the same targets.
+#[test]
+fn every_fuzz_target_is_one_body_in_targets_rs() {
+    let fuzz = paths::repo().join("fuzz");
+    let mut files: Vec<String> = std::fs::read_dir(fuzz.join("fuzz_targets"))
+        .unwrap()
+        .map(|entry| entry.unwrap().path())
+        .filter(|path| path.extension().is_some_and(|extension| extension == "rs"))
+        .map(|path| path.file_stem().unwrap().to_string_lossy().to_string())
+        .collect();
+    files.sort();
+    let mut listed: Vec<String> = targets::TARGETS
+        .iter()
+        .map(|(name, _)| name.to_string())
+        .collect();
+    listed.sort();
+    assert_eq!(files, listed, "fuzz/fuzz_targets/ against targets::TARGETS");
+    let manifest = std::fs::read_to_string(fuzz.join("Cargo.toml")).unwrap();
+    for name in &listed {
+        assert!(
+            manifest.contains(&format!(
+                "name = \"{name}\"\npath = \"fuzz_targets/{name}.rs\""
+            )),
+            "fuzz/Cargo.toml has no [[bin]] for {name}"
+        );
+        let wrapper =
+            std::fs::read_to_string(fuzz.join(format!("fuzz_targets/{name}.rs"))).unwrap();
+        let code: Vec<&str> = wrapper
+            .lines()
+            .filter(|line| !line.starts_with("//") && !line.trim().is_empty())
+            .collect();
+        assert_eq!(
+            code,
+            [
+                "#![no_main]",
+                "#[path = \"../targets.rs\"]",
+                "mod targets;",
+                &format!("libfuzzer_sys::fuzz_target!(|data: &[u8]| targets::{name}(data));"),
+            ],
+            "fuzz/fuzz_targets/{name}.rs"
+        );
+    }
 }

@@ -13,7 +13,6 @@
 
 use std::path::Path;
 use std::process::Command;
-use std::sync::Arc;
 
 use crate::send;
 use axum::body::Body;
@@ -78,39 +77,10 @@ pub fn service() -> (tempfile::TempDir, axum::Router) {
 
 /// The service's router with demo scenes from `demos`.
 pub fn service_with_demos(demos: &Path) -> (tempfile::TempDir, axum::Router) {
-    use sayso_perception::pipeline::model_path;
-    use sayso_session::config::ServiceConfig;
-    use sayso_session::{Coordinator, CoordinatorSettings, JointCorrector};
-    let data = tempfile::tempdir().unwrap();
-    let config = ServiceConfig {
-        data_dir: data.path().to_path_buf(),
-        demo_dir: Some(demos.to_path_buf()),
-        ..ServiceConfig::default()
-    };
-    let coordinator = Coordinator::open(
-        Arc::new(JointCorrector::load(&model_path(Some(&crate::paths::shipped_model()))).unwrap()),
-        &CoordinatorSettings {
-            log_path: config.log_path(),
-            pixel_limit: config.pixel_limit,
-            demo_dir: config.demo_directory(),
-        },
-    )
-    .unwrap();
-    let app = sayso_service::app(sayso_service::AppState::new(Arc::new(coordinator), config));
-    (data, app)
-}
-
-async fn post(
-    app: &axum::Router,
-    path: &str,
-    body: serde_json::Value,
-) -> (StatusCode, serde_json::Value) {
-    let request = Request::post(path)
-        .header("content-type", "application/json")
-        .body(Body::from(body.to_string()))
-        .unwrap();
-    let (status, bytes) = send(app, request).await;
-    (status, serde_json::from_slice(&bytes).unwrap_or_default())
+    let model = sayso_perception::pipeline::model_path(Some(&crate::paths::shipped_model()));
+    crate::real_service(&model, None, |config| {
+        config.demo_dir = Some(demos.to_path_buf());
+    })
 }
 
 /// The registration body of an image file, with its depth PNG when given.
@@ -133,25 +103,7 @@ pub async fn service_labels(
     registration: serde_json::Value,
     notes: &[&str],
 ) -> (IndexImage, Vec<String>) {
-    let (status, created) = post(app, "/v1/scenes", registration).await;
-    assert_eq!(status, StatusCode::CREATED, "{created}");
-    let (status, conversation) = post(
-        app,
-        "/v1/conversations",
-        serde_json::json!({"scene_id": created["scene_id"]}),
-    )
-    .await;
-    assert_eq!(status, StatusCode::CREATED, "{conversation}");
-    let path = format!(
-        "/v1/conversations/{}/utterances",
-        conversation["conversation_id"]
-    );
-    let mut statuses = Vec::new();
-    for note in notes {
-        let (status, reply) = post(app, &path, serde_json::json!({"text": note})).await;
-        assert_eq!(status, StatusCode::OK, "{reply}");
-        statuses.push(reply["status"].to_string());
-    }
+    let (created, statuses) = crate::register_and_say(app, registration, notes).await;
     let request = Request::get(format!("/v1/scenes/{}/labels.png", created["scene_id"]))
         .body(Body::empty())
         .unwrap();

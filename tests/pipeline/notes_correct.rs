@@ -264,20 +264,17 @@ fn rug_room(patch: &[(&str, f32)]) -> Room {
     )
 }
 
-#[test]
-fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
-    // A rug on the floor, and a far one-cell patch the classifier also takes for rug.
-    // Sunlight on the boards, greenish through the curtain.
-    let room = rug_room(&[("rug", 0.8), ("floor", 0.19)]);
-    let (rug, floor) = (class_of(&room, "rug"), class_of(&room, "floor"));
-    let before = solve(&room, None, vec![], None);
+/// "Exactly 1 rug" said on a `rug_room`: the solves before and after the note, having checked that the far
+/// patch shows as a second rug before it and one rug is left after it; and the patch's two segments.
+fn exactly_one_rug(room: &Room, rug: u16) -> (Correction, Correction, [usize; 2]) {
+    let before = solve(room, None, vec![], None);
     assert_eq!(
         objects_of(&before, rug),
         2,
         "the fragment shows as a second rug"
     );
     let after = solve(
-        &room,
+        room,
         Some(&before),
         vec![(
             ConstraintKind::Count {
@@ -293,6 +290,16 @@ fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
         3 * room.columns as usize + 10,
         3 * room.columns as usize + 11,
     ];
+    (before, after, fragment)
+}
+
+#[test]
+fn one_rug_drops_a_far_fragment_and_keeps_the_rug() {
+    // A rug on the floor, and a far one-cell patch the classifier also takes for rug.
+    // Sunlight on the boards, greenish through the curtain.
+    let room = rug_room(&[("rug", 0.8), ("floor", 0.19)]);
+    let (rug, floor) = (class_of(&room, "rug"), class_of(&room, "floor"));
+    let (before, after, fragment) = exactly_one_rug(&room, rug);
     for segment in fragment {
         assert_eq!(after.graph.segment_labels[segment].0, floor);
     }
@@ -313,29 +320,7 @@ fn a_fragment_taken_away_joins_what_surrounds_it_not_the_next_best_class() {
     // "Exactly one rug" takes the fragment away, and it becomes the floor all round it.
     let room = rug_room(&[("rug", 0.6), ("plant", 0.39)]);
     let (rug, floor) = (class_of(&room, "rug"), class_of(&room, "floor"));
-    let before = solve(&room, None, vec![], None);
-    assert_eq!(
-        objects_of(&before, rug),
-        2,
-        "the fragment shows as a second rug"
-    );
-    let after = solve(
-        &room,
-        Some(&before),
-        vec![(
-            ConstraintKind::Count {
-                class: ClassId(rug),
-                count: Count::Exactly(1),
-            },
-            "exactly 1 rug",
-        )],
-        None,
-    );
-    assert_eq!(objects_of(&after, rug), 1, "{:?}", after.unmet);
-    let fragment = [
-        3 * room.columns as usize + 10,
-        3 * room.columns as usize + 11,
-    ];
+    let (_, after, fragment) = exactly_one_rug(&room, rug);
     for segment in fragment {
         assert_eq!(
             after.graph.segment_labels[segment].0, floor,

@@ -10,7 +10,6 @@
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
-use std::sync::Arc;
 
 use crate::send;
 use axum::body::Body;
@@ -18,17 +17,16 @@ use axum::http::{Request, StatusCode};
 use sayso_core::raster::{decode_index_png, read_index_png, IndexImage, DEFAULT_PIXEL_LIMIT};
 use sayso_core::taxonomy::Taxonomy;
 
-const FIXTURES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/perception");
-const USER_MODEL: &str = concat!(
-    env!("CARGO_MANIFEST_DIR"),
-    "/tests/fixtures/unaries/pixel_model.toml"
-);
-
 /// The block the fixture's scores call a couch: x 30..66, y 38..60 (see the script).
 const BLOCK: (u32, u32, u32, u32) = (30, 38, 66, 60);
 
 fn fixture(name: &str) -> PathBuf {
-    Path::new(FIXTURES).join(name)
+    crate::paths::fixture("perception").join(name)
+}
+
+/// The user model's config file (written by `tests/fixtures/unaries/make_onnx_reference.py`).
+fn user_model() -> PathBuf {
+    crate::paths::fixture("unaries/pixel_model.toml")
 }
 
 fn class(name: &str) -> u16 {
@@ -152,7 +150,8 @@ fn fix_reads_a_label_map_through_its_own_class_list() {
 #[test]
 fn fix_runs_a_user_model_from_its_config_file() {
     let out = tempfile::tempdir().unwrap();
-    let run = fix(&["--user-model", USER_MODEL], out.path());
+    let model = user_model();
+    let run = fix(&["--user-model", model.to_str().unwrap()], out.path());
     assert!(run.status.success(), "{}", text(&run.stderr));
     let labels = read_index_png(&out.path().join("labels.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     // The model knows four classes (its config's list, "couch" being the sofa): nothing else is shown.
@@ -168,7 +167,7 @@ fn detections_come_as_json_lines_and_a_bad_line_is_named() {
     let synonyms = sayso_perception::unaries::byo::SynonymTable::embedded(&taxonomy);
     let detections = sayso_perception::unaries::byo_detections::parse_detections(
         &std::fs::read_to_string(fixture("corner_detections.jsonl")).unwrap(),
-        Some(Path::new(FIXTURES)),
+        Some(&crate::paths::fixture("perception")),
         capture.width,
         capture.height,
         &taxonomy,
@@ -429,31 +428,10 @@ fn router_with(
     body_limit_bytes: usize,
     user_model: Option<&Path>,
 ) -> (tempfile::TempDir, axum::Router) {
-    use sayso_perception::pipeline::model_path;
-    use sayso_session::config::ServiceConfig;
-    use sayso_session::JointCorrector;
-    use sayso_session::{Coordinator, CoordinatorSettings};
-    let data = tempfile::tempdir().unwrap();
-    let config = ServiceConfig {
-        data_dir: data.path().to_path_buf(),
-        body_limit_bytes,
-        ..ServiceConfig::default()
-    };
-    let mut coordinator = Coordinator::open(
-        Arc::new(JointCorrector::load(&model_path(None)).unwrap()),
-        &CoordinatorSettings {
-            log_path: config.log_path(),
-            pixel_limit: config.pixel_limit,
-            demo_dir: config.demo_directory(),
-        },
-    )
-    .unwrap();
-    if let Some(path) = user_model {
-        let model = sayso_perception::unaries::byo_user_model::UserModel::load(path).unwrap();
-        coordinator = coordinator.with_user_model(Arc::new(model));
-    }
-    let app = sayso_service::app(sayso_service::AppState::new(Arc::new(coordinator), config));
-    (data, app)
+    let model = sayso_perception::pipeline::model_path(None);
+    crate::real_service(&model, user_model, |config| {
+        config.body_limit_bytes = body_limit_bytes;
+    })
 }
 
 const BOUNDARY: &str = "sayso-test-boundary-21";
@@ -658,7 +636,7 @@ async fn every_refusal_of_a_large_body_states_the_limit() {
 
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]
 async fn a_service_with_a_user_model_scores_plain_images_with_it() {
-    let (_data, app) = router_with(64 * 1024 * 1024, Some(Path::new(USER_MODEL)));
+    let (_data, app) = router_with(64 * 1024 * 1024, Some(&user_model()));
     let (status, scene) = upload(&app, &[("image", read("corner.png"))]).await;
     assert_eq!(status, StatusCode::CREATED, "{scene}");
     let labels = labels_of(&app, &scene).await;

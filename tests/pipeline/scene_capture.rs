@@ -7,16 +7,22 @@
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
-use std::sync::Arc;
 
-use axum::body::Body;
-use axum::http::{Request, StatusCode};
+use axum::http::StatusCode;
 use sayso_core::raster::{read_rgb_image, read_rgb_png, DEFAULT_PIXEL_LIMIT};
 use sayso_core::scene::{load_capture, SceneError};
-use tower::ServiceExt;
 
-const DEMO: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/demo_scenes/kitchen_breakfast");
-const FIXTURES: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/capture");
+/// A file of the committed demo scene `kitchen_breakfast`.
+fn demo(name: &str) -> PathBuf {
+    crate::paths::demo_scenes()
+        .join("kitchen_breakfast")
+        .join(name)
+}
+
+/// A committed capture fixture (`tests/fixtures/capture/`).
+fn capture(name: &str) -> PathBuf {
+    crate::paths::fixture("capture").join(name)
+}
 
 /// A scene directory holding copies of `files` (source path, name inside the directory).
 fn scene_dir(files: &[(PathBuf, &str)]) -> tempfile::TempDir {
@@ -28,18 +34,18 @@ fn scene_dir(files: &[(PathBuf, &str)]) -> tempfile::TempDir {
 }
 
 fn image_only() -> tempfile::TempDir {
-    scene_dir(&[(Path::new(DEMO).join("image.png"), "image.png")])
+    scene_dir(&[(demo("image.png"), "image.png")])
 }
 
 fn image_and_depth() -> tempfile::TempDir {
     scene_dir(&[
-        (Path::new(DEMO).join("image.png"), "image.png"),
-        (Path::new(DEMO).join("depth.png"), "depth.png"),
+        (demo("image.png"), "image.png"),
+        (demo("depth.png"), "depth.png"),
     ])
 }
 
 fn jpeg_only() -> tempfile::TempDir {
-    scene_dir(&[(Path::new(FIXTURES).join("living_room_320.jpg"), "image.jpg")])
+    scene_dir(&[(capture("living_room_320.jpg"), "image.jpg")])
 }
 
 #[test]
@@ -48,16 +54,9 @@ fn the_jpeg_decoder_agrees_with_pillow() {
     // Two conforming decoders may differ by rounding in the inverse DCT and chroma upsampling, so a
     // difference of a few levels is allowed per sample (common practice), and the mean difference must stay
     // far below one level.
-    let ours = read_rgb_image(
-        &Path::new(FIXTURES).join("living_room_320.jpg"),
-        DEFAULT_PIXEL_LIMIT,
-    )
-    .unwrap();
-    let reference = read_rgb_png(
-        &Path::new(FIXTURES).join("living_room_320_pillow.png"),
-        DEFAULT_PIXEL_LIMIT,
-    )
-    .unwrap();
+    let ours = read_rgb_image(&capture("living_room_320.jpg"), DEFAULT_PIXEL_LIMIT).unwrap();
+    let reference =
+        read_rgb_png(&capture("living_room_320_pillow.png"), DEFAULT_PIXEL_LIMIT).unwrap();
     assert_eq!((ours.width, ours.height), (320, 240));
     assert_eq!((reference.width, reference.height), (320, 240));
     let mut largest = 0i32;
@@ -178,7 +177,7 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
     }
     // An image file named directly is a scene too.
     let out = tempfile::tempdir().unwrap();
-    fix(&Path::new(FIXTURES).join("living_room_320.jpg"), out.path());
+    fix(&capture("living_room_320.jpg"), out.path());
     // labels.png is a palette PNG whose pixel values are class ids.
     let decoder = png::Decoder::new(std::fs::File::open(out.path().join("labels.png")).unwrap());
     assert_eq!(
@@ -195,48 +194,7 @@ fn fix_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
 /// The service over the joint pipeline and built-in classifier, its log in a fresh directory (returned so it
 /// lives as long as the router).
 fn service() -> (tempfile::TempDir, axum::Router) {
-    use sayso_perception::pipeline::model_path;
-    use sayso_session::config::ServiceConfig;
-    use sayso_session::JointCorrector;
-    use sayso_session::{Coordinator, CoordinatorSettings};
-    let data = tempfile::tempdir().unwrap();
-    let config = ServiceConfig {
-        data_dir: data.path().to_path_buf(),
-        ..ServiceConfig::default()
-    };
-    let coordinator = Coordinator::open(
-        Arc::new(JointCorrector::load(&model_path(None)).unwrap()),
-        &CoordinatorSettings {
-            log_path: config.log_path(),
-            pixel_limit: config.pixel_limit,
-            demo_dir: config.demo_directory(),
-        },
-    )
-    .unwrap();
-    let app = sayso_service::app(sayso_service::AppState::new(Arc::new(coordinator), config));
-    (data, app)
-}
-
-async fn post(
-    app: &axum::Router,
-    path: &str,
-    body: serde_json::Value,
-) -> (StatusCode, serde_json::Value) {
-    let response = app
-        .clone()
-        .oneshot(
-            Request::post(path)
-                .header("content-type", "application/json")
-                .body(Body::from(body.to_string()))
-                .unwrap(),
-        )
-        .await
-        .unwrap();
-    let status = response.status();
-    let bytes = axum::body::to_bytes(response.into_body(), usize::MAX)
-        .await
-        .unwrap();
-    (status, serde_json::from_slice(&bytes).unwrap_or_default())
+    crate::real_service(&sayso_perception::pipeline::model_path(None), None, |_| {})
 }
 
 fn base64_of(path: &Path) -> String {
@@ -247,12 +205,12 @@ fn base64_of(path: &Path) -> String {
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]
 async fn the_service_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
     let (_data, app) = service();
-    let jpeg = Path::new(FIXTURES).join("living_room_320.jpg");
+    let jpeg = capture("living_room_320.jpg");
     let uploads = [
-        serde_json::json!({"image_base64": base64_of(&Path::new(DEMO).join("image.png"))}),
+        serde_json::json!({"image_base64": base64_of(&demo("image.png"))}),
         serde_json::json!({
-            "image_base64": base64_of(&Path::new(DEMO).join("image.png")),
-            "depth_png_base64": base64_of(&Path::new(DEMO).join("depth.png")),
+            "image_base64": base64_of(&demo("image.png")),
+            "depth_png_base64": base64_of(&demo("depth.png")),
         }),
         serde_json::json!({"image_base64": base64_of(&jpeg), "name": "a jpeg"}),
     ];
@@ -260,44 +218,26 @@ async fn the_service_corrects_an_image_alone_an_image_with_depth_and_a_jpeg() {
         .into_iter()
         .zip([(640, 480), (640, 480), (320, 240)])
     {
-        let (status, created) = post(&app, "/v1/scenes", upload).await;
-        assert_eq!(status, StatusCode::CREATED, "{created}");
+        let (created, _) = crate::register_and_say(&app, upload, &["there are two mugs"]).await;
         assert_eq!(
             (created["width"].as_u64(), created["height"].as_u64()),
             (Some(size.0), Some(size.1))
         );
-        let (status, conversation) = post(
-            &app,
-            "/v1/conversations",
-            serde_json::json!({"scene_id": created["scene_id"]}),
-        )
-        .await;
-        assert_eq!(status, StatusCode::CREATED, "{conversation}");
-        let path = format!(
-            "/v1/conversations/{}/utterances",
-            conversation["conversation_id"]
-        );
-        let (status, reply) = post(
-            &app,
-            &path,
-            serde_json::json!({"text": "there are two mugs"}),
-        )
-        .await;
-        assert_eq!(status, StatusCode::OK, "{reply}");
     }
 }
 
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]
 async fn the_service_finds_demo_scenes_like_fix_and_says_where_it_looked() {
     let (_data, app) = service();
-    let (status, created) = post(
+    let (status, created) = crate::post_json(
         &app,
         "/v1/scenes",
         serde_json::json!({"demo": "kitchen_breakfast"}),
     )
     .await;
     assert_eq!(status, StatusCode::CREATED, "{created}");
-    let (status, error) = post(&app, "/v1/scenes", serde_json::json!({"demo": "attic"})).await;
+    let (status, error) =
+        crate::post_json(&app, "/v1/scenes", serde_json::json!({"demo": "attic"})).await;
     assert_eq!(status, StatusCode::NOT_FOUND, "{error}");
     let message = error["message"].as_str().unwrap();
     assert!(

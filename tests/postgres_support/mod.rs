@@ -107,6 +107,18 @@ pub fn fresh_database() -> String {
     format!("{base}/{name}")
 }
 
+/// A new database on the server with the log's schema, migrated by `sayso migrate` as an operator would;
+/// returns its address.
+pub fn migrated_database() -> String {
+    let url = fresh_database();
+    let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["migrate", "--database", &url])
+        .output()
+        .expect("sayso migrate runs");
+    assert!(migrated.status.success(), "{migrated:?}");
+    url
+}
+
 /// The rows `sql` returns on the database at `url`.
 pub fn query(url: &str, sql: &str) -> Vec<tokio_postgres::Row> {
     let runtime = tokio::runtime::Builder::new_current_thread()

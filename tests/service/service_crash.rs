@@ -4,9 +4,8 @@
 
 use crate::service_support;
 
-use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;
-use std::process::{Child, Command, Stdio};
+use std::process::{Child, Stdio};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
@@ -21,27 +20,7 @@ const TOWEL: u16 = 37;
 const CLIENTS: u32 = 4;
 
 fn start(data: &std::path::Path, config: &std::path::Path) -> (Child, SocketAddr) {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["serve", "--port", "0", "--data-dir"])
-        .arg(data)
-        .arg("--config")
-        .arg(config)
-        .stdout(Stdio::piped())
-        .stderr(Stdio::null())
-        .spawn()
-        .expect("spawn sayso serve");
-    let stdout = child.stdout.take().expect("stdout");
-    let mut line = String::new();
-    BufReader::new(stdout)
-        .read_line(&mut line)
-        .expect("read the listening line");
-    let address = line
-        .split("http://")
-        .nth(1)
-        .and_then(|rest| rest.split('/').next())
-        .and_then(|address| address.parse().ok())
-        .unwrap_or_else(|| panic!("no address in {line:?}"));
-    (child, address)
+    start_serve(&[&"--data-dir", &data, &"--config", &config], Stdio::null())
 }
 
 /// One client's acknowledged corrections: (conversation, turn id, text, class).

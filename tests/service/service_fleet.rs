@@ -11,10 +11,9 @@ use crate::postgres_support;
 use crate::service_support;
 
 use std::collections::{HashMap, HashSet};
-use std::io::{BufRead, BufReader};
 use std::net::SocketAddr;
 use std::path::Path;
-use std::process::{Child, Command, Stdio};
+use std::process::{Child, Stdio};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
@@ -46,27 +45,18 @@ impl Drop for Replica {
 }
 
 fn start(url: &str, data: &Path, config: &Path) -> Replica {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["serve", "--port", "0", "--database", url, "--data-dir"])
-        .arg(data)
-        .arg("--config")
-        .arg(config)
-        .stdout(Stdio::piped())
-        // A replica's log lines (an internal error's detail) show beside a failure.
-        .stderr(Stdio::inherit())
-        .spawn()
-        .expect("spawn sayso serve");
-    let stdout = child.stdout.take().expect("stdout");
-    let mut line = String::new();
-    BufReader::new(stdout)
-        .read_line(&mut line)
-        .expect("read the listening line");
-    let address = line
-        .split("http://")
-        .nth(1)
-        .and_then(|rest| rest.split('/').next())
-        .and_then(|address| address.parse().ok())
-        .unwrap_or_else(|| panic!("a replica did not start: {line:?}"));
+    // A replica's log lines (an internal error's detail) show beside a failure.
+    let (child, address) = service_support::start_serve(
+        &[
+            &"--database",
+            &url,
+            &"--data-dir",
+            &data,
+            &"--config",
+            &config,
+        ],
+        Stdio::inherit(),
+    );
     Replica { child, address }
 }
 
@@ -221,12 +211,7 @@ fn operate(
 #[test]
 fn replicas_on_one_database_lose_and_repeat_nothing_when_killed() {
     let started = Instant::now();
-    let url = postgres_support::fresh_database();
-    let migrated = Command::new(env!("CARGO_BIN_EXE_sayso"))
-        .args(["migrate", "--database", &url])
-        .output()
-        .expect("sayso migrate runs");
-    assert!(migrated.status.success(), "{migrated:?}");
+    let url = postgres_support::migrated_database();
     let data = tempfile::tempdir().unwrap();
     let config = data.path().join("sayso.toml");
     std::fs::write(&config, "rate_per_second = 100000.0\nrate_burst = 100000\n").unwrap();

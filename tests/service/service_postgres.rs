@@ -14,12 +14,10 @@ use sayso_correction_log::{ConversationKey, SceneKey};
 use sayso_session::JointCorrector;
 use sayso_session::{Coordinator, CoordinatorSettings, OpenError, SceneUpload};
 use sayso_wire::{FocusIn, TurnStatus};
-use service_support::picture_of;
+use service_support::{picture_of, register_checkerboard, shipped_engine};
 
-const FLOOR: u16 = 0;
-const RUG: u16 = 6;
-const CELLS: u32 = 6;
-const CELL: u32 = 16;
+const FLOOR: u16 = service_support::CHECKERBOARD_FLOOR;
+const CELL: u32 = service_support::CHECKERBOARD_CELL;
 
 fn sayso(arguments: &[&str]) -> (bool, String) {
     let output = Command::new(env!("CARGO_BIN_EXE_sayso"))
@@ -48,40 +46,6 @@ fn open(url: &str, corrector: Arc<JointCorrector>) -> Result<Coordinator, OpenEr
     )
 }
 
-fn engine() -> Arc<JointCorrector> {
-    Arc::new(
-        JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"),
-    )
-}
-
-/// A 96x96 floor with a checkerboard of rug cells, registered with its label map.
-fn register(coordinator: &Coordinator) -> (SceneKey, ConversationKey) {
-    let mut labels = IndexImage::filled(CELLS * CELL, CELLS * CELL, FLOOR);
-    for y in 0..labels.height {
-        for x in 0..labels.width {
-            if (x / CELL + y / CELL) % 2 == 1 {
-                labels.set(x, y, RUG);
-            }
-        }
-    }
-    let created = coordinator
-        .register_scene(
-            SceneUpload {
-                name: Some("juniper-lane-landing".into()),
-                image_png: Some(sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
-                label_map_png: Some(sayso_core::raster::encode_index_png(&labels).unwrap()),
-                ..Default::default()
-            },
-            "odile",
-        )
-        .expect("registered");
-    let scene = SceneKey(created.scene_id);
-    let conversation = coordinator
-        .open_conversation(scene, "odile")
-        .expect("opened");
-    (scene, ConversationKey(conversation.conversation_id))
-}
-
 fn say(coordinator: &Coordinator, conversation: ConversationKey, text: &str) -> TurnStatus {
     coordinator
         .utterance(
@@ -101,7 +65,7 @@ fn say(coordinator: &Coordinator, conversation: ConversationKey, text: &str) -> 
 fn the_service_keeps_its_log_on_postgresql_across_a_restart() {
     let url = postgres_support::fresh_database();
     // A replica does not migrate: before `sayso migrate` it refuses to start, naming the command.
-    let refused = open(&url, engine())
+    let refused = open(&url, shipped_engine())
         .err()
         .expect("refused before migrating");
     assert!(refused.to_string().contains("sayso migrate"), "{refused}");
@@ -114,9 +78,10 @@ fn the_service_keeps_its_log_on_postgresql_across_a_restart() {
     let (scene, conversation, label_map) = {
         // Any number of replicas on one database: a conversation's turns alternate between two, and
         // each reads what the other wrote (the scene's head and the conversation's turns) before solving.
-        let first = open(&url, engine()).expect("opens on the migrated database");
-        let second = open(&url, engine()).expect("a second replica opens on the same database");
-        let (scene, conversation) = register(&first);
+        let first = open(&url, shipped_engine()).expect("opens on the migrated database");
+        let second =
+            open(&url, shipped_engine()).expect("a second replica opens on the same database");
+        let (scene, conversation) = register_checkerboard(&first);
         let replicas = [&first, &second];
         for (index, text) in ["that's a towel", "no, it's a mug", "that's a towel"]
             .into_iter()
@@ -149,7 +114,7 @@ fn the_service_keeps_its_log_on_postgresql_across_a_restart() {
         (scene, conversation, first.label_map_png(scene).unwrap())
     };
 
-    let corrector = engine();
+    let corrector = shipped_engine();
     let restarted = open(&url, corrector.clone()).expect("reopens once the first has gone");
     assert_eq!(restarted.label_map_png(scene).unwrap(), label_map);
     assert_eq!(

@@ -8,26 +8,17 @@ use crate::service_support;
 use std::path::Path;
 use std::sync::Arc;
 
-use sayso_core::raster::IndexImage;
-use sayso_correction_log::{ConversationKey, SceneKey};
+use sayso_correction_log::ConversationKey;
 use sayso_session::JointCorrector;
-use sayso_session::{Coordinator, CoordinatorSettings, SceneUpload};
+use sayso_session::{Coordinator, CoordinatorSettings};
 use sayso_wire::{FocusIn, TurnStatus};
-use service_support::picture_of;
+use service_support::{register_checkerboard, shipped_engine};
 
-const FLOOR: u16 = 0;
-const RUG: u16 = 6;
-const CELLS: u32 = 6;
-const CELL: u32 = 16;
+const CELLS: u32 = service_support::CHECKERBOARD_CELLS;
+const CELL: u32 = service_support::CHECKERBOARD_CELL;
 
 fn open(data: &Path) -> Coordinator {
-    open_with(data, engine())
-}
-
-fn engine() -> Arc<JointCorrector> {
-    Arc::new(
-        JointCorrector::load(&sayso_perception::pipeline::model_path(None)).expect("classifier"),
-    )
+    open_with(data, shipped_engine())
 }
 
 fn open_with(data: &Path, corrector: Arc<JointCorrector>) -> Coordinator {
@@ -40,39 +31,6 @@ fn open_with(data: &Path, corrector: Arc<JointCorrector>) -> Coordinator {
         },
     )
     .expect("open")
-}
-
-/// A 96x96 floor with a checkerboard of rug cells, registered with its label map (no classifier needed).
-fn checkerboard() -> IndexImage {
-    let mut labels = IndexImage::filled(CELLS * CELL, CELLS * CELL, FLOOR);
-    for y in 0..labels.height {
-        for x in 0..labels.width {
-            if (x / CELL + y / CELL) % 2 == 1 {
-                labels.set(x, y, RUG);
-            }
-        }
-    }
-    labels
-}
-
-fn register(coordinator: &Coordinator) -> (SceneKey, ConversationKey) {
-    let labels = checkerboard();
-    let created = coordinator
-        .register_scene(
-            SceneUpload {
-                name: Some("juniper-lane-landing".into()),
-                image_png: Some(sayso_core::raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
-                label_map_png: Some(sayso_core::raster::encode_index_png(&labels).unwrap()),
-                ..Default::default()
-            },
-            "odile",
-        )
-        .expect("registered");
-    let scene = SceneKey(created.scene_id);
-    let conversation = coordinator
-        .open_conversation(scene, "odile")
-        .expect("opened");
-    (scene, ConversationKey(conversation.conversation_id))
 }
 
 fn say(
@@ -107,7 +65,7 @@ fn a_cold_engine_rebuilds_the_head_and_answers_like_a_warm_one() {
 
     // The service that never stops.
     let warm = open(steady.path());
-    let (warm_scene, warm_conversation) = register(&warm);
+    let (warm_scene, warm_conversation) = register_checkerboard(&warm);
     for &(text, cell) in &SCRIPT {
         assert_eq!(
             say(&warm, warm_conversation, text, cell),
@@ -119,7 +77,7 @@ fn a_cold_engine_rebuilds_the_head_and_answers_like_a_warm_one() {
     // The same turns, then a restart before the last one.
     let (scene, conversation) = {
         let first = open(restarted.path());
-        let (scene, conversation) = register(&first);
+        let (scene, conversation) = register_checkerboard(&first);
         for &(text, cell) in &SCRIPT[..SCRIPT.len() - 1] {
             assert_eq!(
                 say(&first, conversation, text, cell),
@@ -185,7 +143,7 @@ fn a_long_chain_is_not_replayed_after_a_restart() {
     let steady = tempfile::tempdir().unwrap();
 
     let warm = open(steady.path());
-    let (warm_scene, warm_conversation) = register(&warm);
+    let (warm_scene, warm_conversation) = register_checkerboard(&warm);
     for index in 0..=LONG_CHAIN {
         assert_eq!(
             say(&warm, warm_conversation, long_chain_turn(index), 1),
@@ -196,7 +154,7 @@ fn a_long_chain_is_not_replayed_after_a_restart() {
 
     let (scene, conversation) = {
         let first = open(restarted.path());
-        let (scene, conversation) = register(&first);
+        let (scene, conversation) = register_checkerboard(&first);
         for index in 0..LONG_CHAIN {
             assert_eq!(
                 say(&first, conversation, long_chain_turn(index), 1),
@@ -206,7 +164,7 @@ fn a_long_chain_is_not_replayed_after_a_restart() {
         }
         (scene, conversation)
     };
-    let corrector = engine();
+    let corrector = shipped_engine();
     let cold = open_with(restarted.path(), corrector.clone());
     assert_eq!(
         say(&cold, conversation, long_chain_turn(LONG_CHAIN), 1),

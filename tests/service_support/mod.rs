@@ -2,15 +2,17 @@
 //! `router_with` and `call`, tower's `oneshot`, no socket), a small grid engine implementing `Corrector` on
 //! plain label maps, and, for the tests of limits, timeouts and shutdown only, the service started on port 0
 //! with a minimal HTTP/1.1 client over `std::net::TcpStream` (a connection cap or a header timeout exists
-//! only on a socket).
+//! only on a socket); and `sayso serve` started as a process on port 0 (`start_serve`).
 //!
 //! Owns: test-only code. Must not: be used by the library; the grid engine exists only to exercise the
 //! service without the real pipeline.
 #![allow(dead_code)]
 
-use std::io::{Read, Write};
+use std::ffi::OsStr;
+use std::io::{BufRead, BufReader, Read, Write};
 use std::net::{SocketAddr, TcpStream};
 use std::path::Path;
+use std::process::{Child, Command, Stdio};
 use std::sync::Arc;
 use std::time::Duration;
 
@@ -137,6 +139,82 @@ pub fn route_service(data_dir: &Path, config: ServiceConfig) -> Routed {
 }
 
 /// Sends one request and reads the whole answer.
+/// The checkerboard scene's floor and rug class ids, its cells across and each cell's side in pixels.
+pub const CHECKERBOARD_FLOOR: u16 = 0;
+pub const CHECKERBOARD_RUG: u16 = 6;
+pub const CHECKERBOARD_CELLS: u32 = 6;
+pub const CHECKERBOARD_CELL: u32 = 16;
+
+/// The real engine on the shipped classifier (`$SAYSO_MODEL` when set).
+pub fn shipped_engine() -> Arc<sayso_session::JointCorrector> {
+    Arc::new(
+        sayso_session::JointCorrector::load(&sayso_perception::pipeline::model_path(None))
+            .expect("classifier"),
+    )
+}
+
+/// A 96x96 floor with a checkerboard of rug cells, registered by operator "odile" with its label map (no
+/// classifier needed), and a conversation of hers opened on it.
+pub fn register_checkerboard(
+    coordinator: &Coordinator,
+) -> (
+    sayso_correction_log::SceneKey,
+    sayso_correction_log::ConversationKey,
+) {
+    let side = CHECKERBOARD_CELLS * CHECKERBOARD_CELL;
+    let mut labels = IndexImage::filled(side, side, CHECKERBOARD_FLOOR);
+    for y in 0..labels.height {
+        for x in 0..labels.width {
+            if (x / CHECKERBOARD_CELL + y / CHECKERBOARD_CELL) % 2 == 1 {
+                labels.set(x, y, CHECKERBOARD_RUG);
+            }
+        }
+    }
+    let created = coordinator
+        .register_scene(
+            sayso_session::SceneUpload {
+                name: Some("juniper-lane-landing".into()),
+                image_png: Some(raster::encode_rgb_png(&picture_of(&labels)).unwrap()),
+                label_map_png: Some(raster::encode_index_png(&labels).unwrap()),
+                ..Default::default()
+            },
+            "odile",
+        )
+        .expect("registered");
+    let scene = sayso_correction_log::SceneKey(created.scene_id);
+    let conversation = coordinator
+        .open_conversation(scene, "odile")
+        .expect("opened");
+    (
+        scene,
+        sayso_correction_log::ConversationKey(conversation.conversation_id),
+    )
+}
+
+/// Starts `sayso serve --port 0` followed by `arguments` (its log lines to `stderr`), and reads the address
+/// it listens on from the first line it prints. The caller stops the process.
+pub fn start_serve(arguments: &[&dyn AsRef<OsStr>], stderr: Stdio) -> (Child, SocketAddr) {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_sayso"))
+        .args(["serve", "--port", "0"])
+        .args(arguments.iter().map(|argument| argument.as_ref()))
+        .stdout(Stdio::piped())
+        .stderr(stderr)
+        .spawn()
+        .expect("spawn sayso serve");
+    let stdout = child.stdout.take().expect("stdout");
+    let mut line = String::new();
+    BufReader::new(stdout)
+        .read_line(&mut line)
+        .expect("read the listening line");
+    let address = line
+        .split("http://")
+        .nth(1)
+        .and_then(|rest| rest.split('/').next())
+        .and_then(|address| address.parse().ok())
+        .unwrap_or_else(|| panic!("sayso serve did not start: no address in {line:?}"));
+    (child, address)
+}
+
 pub fn send(
     client: impl Client,
     method: &str,

@@ -18,14 +18,16 @@
 //! - it is small (under `MIN_PARTED_AREA` pixels) and at least `OVERLAP_SHARE` of its box lies inside a box of
 //!   the larger one (a shoe's sole seen apart from its upper), or both are strips that continue each other
 //!   along their length across a gap within the reach (a counter top seen in pieces between the bottles on
-//!   it); a small object among the `k` largest may be joined this way too (a cabinet's plinth);
+//!   it); a small object among the `k` largest may be joined this way too, by sharing a box only when it is a
+//!   fragment of the other (at most 1/`FRAGMENT_SHARE` of its area: a cabinet's plinth), never when the two
+//!   are of a size (two shoes in a pile);
 //! - it is not among the `k` largest, and it is at most a quarter of the larger one's area, the larger one has
 //!   at least `MIN_PARTED_AREA` pixels and the gap is at most half the square root of the larger one's area
 //!   (the reach: a bed parted by a blanket lying across it, a chair's back seen apart from its seat); or it is
 //!   a speck (under two fine segments of mean size) within the reach or `SPECK_REACH`; or the operator said
 //!   there is just one (`k = 1`), it lies within twice the reach and it is not a small fragment. A piece
-//!   further away stays and the count is reported unmet (joining far pieces made objects that matched nothing
-//!   on the development trial);
+//!   further away stays and the count is reported unmet: past the reach a piece is more often another object
+//!   than a part of this one (`docs/decisions.md`, "Joining the parts of a capped class");
 //! - failing every plain join, the band between a piece and the nearest larger object is nearer the camera
 //!   than both, at any distance (one object seen in two parts around an occluder: a desk behind a chair).
 //!
@@ -36,10 +38,10 @@
 //! What is left beyond `k` is surplus. A surplus object no larger than a quarter of the smallest kept one and
 //! under `MIN_PARTED_AREA` pixels is a fragment, and one under two fine segments of mean size a speck: their
 //! segments then carry a hard factor against the class and one towards the label they share the longest
-//! boundary with (`surrounding_label`), so the fragment joins what surrounds it ("chair count is one" had
-//! made a chair sliver a class seen nowhere else). A segment the turn itself moved into the class goes back
-//! to the label it had instead: a piece of a towel the count's solve took is a towel again, not wall. A
-//! surplus object of a credible size stays and the count is reported unmet.
+//! boundary with (`surrounding_label`), so the fragment joins what surrounds it rather than staying a class
+//! seen nowhere else. A segment the turn itself moved into the class goes back to the label it had instead:
+//! a piece of a towel the count's solve took is a towel again, not wall. A surplus object of a credible size
+//! stays and the count is reported unmet.
 
 use crate::energy::{UnaryFactor, HARD_WEIGHT};
 use crate::grounding::{numbered, ClarifyingQuestion};
@@ -243,8 +245,11 @@ fn joins_plainly(
     // Only a small piece is joined for sharing a box or continuing a strip: large objects of one class
     // overlap in their boxes whenever they stand near each other (chairs around a table).
     let small = piece.area < MIN_PARTED_AREA;
-    // Sharing a box: a part of it seen apart (a shoe's sole and upper).
+    // Sharing a box: a part of it seen apart (a shoe's sole and upper). Among the objects the count keeps,
+    // only a fragment of the keeper's size is a part: two like-sized shoes in a pile overlap in their boxes
+    // and are two shoes.
     let shared = small
+        && (!kept || FRAGMENT_SHARE * piece.area <= keeper.area)
         && keeper.parts.iter().any(|part| {
             piece
                 .parts
@@ -565,4 +570,55 @@ pub fn surplus_question(
         objects: shown.iter().map(|object| object.id).collect(),
         where_is: false,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn cluster(index: usize, (x0, y0, x1, y1): (u32, u32, u32, u32), area: u64) -> Cluster {
+        Cluster {
+            index,
+            parts: vec![BoundingBox { x0, y0, x1, y1 }],
+            area,
+        }
+    }
+
+    const CAP_THREE: Cap = Cap {
+        class: ClassId(7),
+        most: 3,
+        source: 0,
+    };
+
+    /// Two shoes in a pile: like-sized, both among the objects "three shoes" keeps, their boxes overlapping
+    /// by more than `OVERLAP_SHARE`. They stay two shoes.
+    #[test]
+    fn like_sized_kept_objects_sharing_a_box_stay_apart() {
+        let upper = cluster(0, (549, 460, 616, 480), 1100);
+        let lower = cluster(1, (540, 448, 600, 472), 900);
+        assert!(share_inside(&lower.parts[0], &upper.parts[0]) >= OVERLAP_SHARE);
+        assert_eq!(joins_plainly(&CAP_THREE, &upper, &lower, true, 256), None);
+    }
+
+    /// A cabinet's plinth: kept by the count but a fragment of the cabinet whose box it lies in. It joins.
+    #[test]
+    fn a_kept_fragment_sharing_a_box_joins() {
+        let cabinet = cluster(0, (100, 100, 180, 220), 1400);
+        let plinth = cluster(1, (104, 205, 176, 219), 300);
+        assert_eq!(
+            joins_plainly(&CAP_THREE, &cabinet, &plinth, true, 256),
+            Some(0)
+        );
+    }
+
+    /// A piece the count does not keep joins the object whose box it shares, whatever its size.
+    #[test]
+    fn an_unkept_piece_sharing_a_box_joins() {
+        let upper = cluster(0, (549, 460, 616, 480), 1100);
+        let lower = cluster(1, (540, 448, 600, 472), 900);
+        assert_eq!(
+            joins_plainly(&CAP_THREE, &upper, &lower, false, 256),
+            Some(0)
+        );
+    }
 }

@@ -3,6 +3,8 @@
 //! Owns: the fixture-driven test of `sayso_core::geometry` boxes and polygons.
 //! Must not: run Python; the fixture was made by tests/fixtures/geometry/make_geometry_cases.py.
 
+mod support;
+
 use sayso_core::geometry::{Point, Polygon, Rect};
 use serde::Deserialize;
 
@@ -47,10 +49,7 @@ fn close(ours: f64, theirs: f64) -> bool {
 /// Reference: shapely (PyPI), fixture made by tests/fixtures/geometry/make_geometry_cases.py.
 #[test]
 fn boxes_and_polygons_match_shapely() {
-    let path = format!(
-        "{}/tests/fixtures/geometry/geometry_cases.json",
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
-    );
+    let path = support::workspace_file("tests/fixtures/geometry/geometry_cases.json");
     let fixture: Fixture =
         serde_json::from_str(&std::fs::read_to_string(&path).expect("fixture exists"))
             .expect("fixture parses");

@@ -5,6 +5,8 @@
 //! tests/language/conversations.jsonl, site word files, grammar errors, and no-panic / span properties.
 //! Must not: run Python or reach the network; every reference value is a committed fixture.
 
+mod support;
+
 use std::collections::{BTreeMap, BTreeSet};
 
 use proptest::prelude::*;
@@ -15,11 +17,8 @@ use sayso_core::language::{ConflictKind, Conversation, Grammar, LanguageError};
 use sayso_core::taxonomy::Taxonomy;
 
 fn fixture(name: &str) -> String {
-    std::fs::read_to_string(format!(
-        "{}/tests/fixtures/language/{name}",
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
-    ))
-    .unwrap_or_else(|error| panic!("fixture {name}: {error}"))
+    std::fs::read_to_string(support::workspace_file("tests/fixtures/language").join(name))
+        .unwrap_or_else(|error| panic!("fixture {name}: {error}"))
 }
 
 fn rows(text: &str) -> Vec<Vec<String>> {
@@ -214,9 +213,8 @@ fn allen_table_matches_enumeration_and_known_entries() {
 #[test]
 fn conversation_cases_report_contradictions_and_redundancy_with_both_spans() {
     let grammar = grammar();
-    let text = std::fs::read_to_string(concat!(
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
-        "/tests/language/conversations.jsonl"
+    let text = std::fs::read_to_string(support::workspace_file(
+        "tests/language/conversations.jsonl",
     ))
     .expect("cases");
     for line in text.lines().filter(|line| !line.trim().is_empty()) {
@@ -291,7 +289,7 @@ fn previous_deixis_binds_to_the_last_referent_across_turns() {
 #[test]
 fn a_site_word_file_adds_words_without_recompiling() {
     let directory = tempfile::tempdir().unwrap();
-    let root = std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../..")).join("grammar");
+    let root = support::workspace_file("grammar");
     for sub in ["lexicon", "rules", "site"] {
         std::fs::create_dir_all(directory.path().join(sub)).unwrap();
         for entry in std::fs::read_dir(root.join(sub)).unwrap() {
@@ -420,7 +418,7 @@ proptest! {
 
 #[test]
 fn the_grammar_directory_on_disk_reads_the_same_as_the_embedded_copy() {
-    let root = std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../..")).join("grammar");
+    let root = support::workspace_file("grammar");
     let loaded = Grammar::load(&root).expect("grammar directory");
     let embedded = grammar();
     assert_eq!(loaded.lexicon().phrases(), embedded.lexicon().phrases());

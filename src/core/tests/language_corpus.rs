@@ -5,10 +5,11 @@
 //! Must not: adjust expectations; a line passes only if the utterance kind and the whole constraint list
 //! (in any order) match.
 
+mod support;
+
 use std::collections::BTreeMap;
 
-use sayso_core::language::notation::notation_list;
-use sayso_core::language::{parse_focus, Grammar, LanguageError};
+use sayso_core::language::{parse_focus, Grammar};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -29,17 +30,6 @@ struct Line {
     /// Focus: object:ID or pixel:X,Y.
     #[serde(default)]
     f: Option<String>,
-}
-
-fn split_expected(text: &str) -> Vec<String> {
-    let mut list: Vec<String> = text
-        .split("; ")
-        .map(str::trim)
-        .filter(|part| !part.is_empty())
-        .map(str::to_string)
-        .collect();
-    list.sort();
-    list
 }
 
 /// Frame-exact results of one corpus file: per construction (passed, total), and the failures.
@@ -70,23 +60,9 @@ fn score(grammar: &Grammar, text: &str) -> Score {
             .f
             .as_deref()
             .map(|text| parse_focus(text).expect("corpus focus"));
-        let expected_kind = line.k.clone().unwrap_or_else(|| {
-            if line.e.trim().is_empty() {
-                "unparsed".into()
-            } else {
-                "correction".into()
-            }
-        });
-        let expected = split_expected(&line.e);
-        let (kind, mut got) = match grammar.parse(&utterance, focus) {
-            Ok(parse) => (
-                parse.utterance_kind.name().to_string(),
-                notation_list(&parse.constraints, grammar.taxonomy()),
-            ),
-            Err(LanguageError::TooLong { .. }) => ("error".to_string(), Vec::new()),
-            Err(other) => (format!("error: {other}"), Vec::new()),
-        };
-        got.sort();
+        let expected_kind = support::expected_kind(line.k.as_deref(), &line.e);
+        let expected = support::split_expected(&line.e);
+        let (kind, got) = support::parsed(grammar, &utterance, focus);
         let ok = kind == expected_kind && got == expected;
         let entry = per_construction.entry(line.c.clone()).or_default();
         entry.1 += 1;
@@ -115,11 +91,8 @@ fn score(grammar: &Grammar, text: &str) -> Score {
 #[test]
 fn corpus_frame_exact_accuracy_per_construction() {
     let grammar = Grammar::embedded().expect("embedded grammar");
-    let text = std::fs::read_to_string(concat!(
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
-        "/tests/language/corpus.jsonl"
-    ))
-    .expect("corpus file");
+    let text = std::fs::read_to_string(support::workspace_file("tests/language/corpus.jsonl"))
+        .expect("corpus file");
     let Score {
         per_construction,
         failures,
@@ -162,11 +135,8 @@ fn corpus_frame_exact_accuracy_per_construction() {
 #[test]
 fn heldout_frame_exact_accuracy_is_reported() {
     let grammar = Grammar::embedded().expect("embedded grammar");
-    let text = std::fs::read_to_string(concat!(
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../.."),
-        "/tests/language/heldout.jsonl"
-    ))
-    .expect("held-out file");
+    let text = std::fs::read_to_string(support::workspace_file("tests/language/heldout.jsonl"))
+        .expect("held-out file");
     let result = score(&grammar, &text);
     println!(
         "held-out: {}/{} frame-exact ({:.1}%)",

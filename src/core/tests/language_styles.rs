@@ -10,10 +10,11 @@
 //! only, the failing lines) and holding the floors.
 //! Must not: adjust expectations or print held-out lines; a held-out file is reported, never tuned on.
 
+mod support;
+
 use std::collections::BTreeMap;
 
-use sayso_core::language::notation::notation_list;
-use sayso_core::language::{parse_focus, Grammar, LanguageError};
+use sayso_core::language::{parse_focus, Grammar};
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -30,17 +31,6 @@ struct Line {
     /// Focus: object:ID or pixel:X,Y.
     #[serde(default)]
     f: Option<String>,
-}
-
-fn split_expected(text: &str) -> Vec<String> {
-    let mut list: Vec<String> = text
-        .split("; ")
-        .map(str::trim)
-        .filter(|part| !part.is_empty())
-        .map(str::to_string)
-        .collect();
-    list.sort();
-    list
 }
 
 /// The figures of one style file.
@@ -78,22 +68,9 @@ fn score(grammar: &Grammar, text: &str) -> Score {
             .f
             .as_deref()
             .map(|text| parse_focus(text).expect("style focus"));
-        let expected_kind = line.k.clone().unwrap_or_else(|| {
-            if line.e.trim().is_empty() {
-                "unparsed".into()
-            } else {
-                "correction".into()
-            }
-        });
-        let expected = split_expected(&line.e);
-        let (kind, mut got) = match grammar.parse(&line.u, focus) {
-            Ok(parse) => (
-                parse.utterance_kind.name().to_string(),
-                notation_list(&parse.constraints, grammar.taxonomy()),
-            ),
-            Err(LanguageError::TooLong { .. }) => ("error".to_string(), Vec::new()),
-            Err(other) => (format!("error: {other}"), Vec::new()),
-        };
+        let expected_kind = support::expected_kind(line.k.as_deref(), &line.e);
+        let expected = support::split_expected(&line.e);
+        let (kind, mut got) = support::parsed(grammar, &line.u, focus);
         // The styles notation writes a pronoun referent `^` whatever its number (styles_generator/check.py
         // accepts no `^*`); the parser's notation marks a plural one `^*`.
         for constraint in &mut got {
@@ -141,11 +118,8 @@ fn grammar() -> Grammar {
 }
 
 fn load(name: &str) -> String {
-    let path = format!(
-        "{}/tests/language/{name}",
-        concat!(env!("CARGO_MANIFEST_DIR"), "/../..")
-    );
-    std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{path}: {error}"))
+    let path = support::workspace_file("tests/language").join(name);
+    std::fs::read_to_string(&path).unwrap_or_else(|error| panic!("{}: {error}", path.display()))
 }
 
 fn recall(ok: usize, count: usize) -> f64 {

@@ -9,7 +9,7 @@
 //! person when it was made; regenerate it with `SAYSO_WRITE_GOLDEN=1 cargo test --test overlay_pictures`
 //! after a deliberate change to the drawing, and look at it again.
 
-use std::path::Path;
+mod support;
 
 use sayso_core::color::{
     chromatic_distance, srgb8_to_lab, PALETTE_MIN_CHROMATIC_DISTANCE, PALETTE_MIN_DELTA_E,
@@ -153,8 +153,7 @@ fn before_and_after_share_a_size_a_legend_and_ring_the_change() {
 fn the_overlay_matches_its_golden_picture() {
     let taxonomy = Taxonomy::embedded();
     let drawn = draw(&taxonomy).side_by_side;
-    let golden_path = Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../.."))
-        .join("tests/fixtures/pictures/before_after_golden.png");
+    let golden_path = support::workspace_file("tests/fixtures/pictures/before_after_golden.png");
     if std::env::var_os("SAYSO_WRITE_GOLDEN").is_some() {
         std::fs::create_dir_all(golden_path.parent().unwrap()).unwrap();
         write_rgb_png(&golden_path, &drawn).unwrap();

@@ -13,8 +13,10 @@
 //! ground truth; our Rust metrics reproduce the script's numpy figures on scikit-image's own segments. The
 //! under-segmentation error (Neubert and Protzel 2012 form) of both is printed beside the recall.
 
+mod support;
+
 use std::collections::HashMap;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use sayso_core::raster::{read_index_png, read_rgb_png, DEFAULT_PIXEL_LIMIT};
 use sayso_core::slic::connectivity::is_each_segment_connected;
@@ -44,7 +46,7 @@ struct ReferenceImage {
 
 /// Paths in the reference are relative to the repository root.
 fn repository_path(relative: &str) -> PathBuf {
-    Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../..")).join(relative)
+    support::workspace_file(relative)
 }
 
 fn reference() -> Reference {

@@ -140,11 +140,7 @@ mod tests {
 
     #[test]
     fn the_shipped_model_reads_as_one_hidden_layer() {
-        let bytes = std::fs::read(concat!(
-            env!("CARGO_MANIFEST_DIR"),
-            "/../../models/segment_classifier.onnx"
-        ))
-        .unwrap();
+        let bytes = std::fs::read(crate::pipeline::shipped_model_path()).unwrap();
         let mlp = read_mlp(&bytes, "shipped").unwrap();
         assert_eq!(mlp.hidden_layer_count(), 1);
         assert_eq!(mlp.feature_count(), crate::features::FEATURE_COUNT);

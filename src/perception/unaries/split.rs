@@ -86,24 +86,27 @@ pub fn split_by_scene(
     Ok((training, validation, validation_scenes))
 }
 
+/// Three Gaussian blobs (unit spread) in two features, the rows in turn of classes 0, 1 and 2: labelled data
+/// for the trainer's and the split's unit tests.
+#[cfg(test)]
+pub(crate) fn blobs(rows: usize, seed: u64) -> LabelledFeatures {
+    let mut generator = SplitMix64::new(seed);
+    let centres = [[0.0, 0.0], [4.0, 0.0], [0.0, 4.0]];
+    let mut features = Array2::zeros((rows, 2));
+    let mut labels = Vec::new();
+    for row in 0..rows {
+        let class = row % 3;
+        for column in 0..2 {
+            features[[row, column]] = (centres[class][column] + generator.next_normal()) as f32;
+        }
+        labels.push(class);
+    }
+    LabelledFeatures { features, labels }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    fn blobs(rows: usize, seed: u64) -> LabelledFeatures {
-        let mut generator = SplitMix64::new(seed);
-        let centres = [[0.0, 0.0], [4.0, 0.0], [0.0, 4.0]];
-        let mut features = Array2::zeros((rows, 2));
-        let mut labels = Vec::new();
-        for row in 0..rows {
-            let class = row % 3;
-            for column in 0..2 {
-                features[[row, column]] = (centres[class][column] + generator.next_normal()) as f32;
-            }
-            labels.push(class);
-        }
-        LabelledFeatures { features, labels }
-    }
 
     #[test]
     fn a_scene_split_keeps_every_scene_whole() {

@@ -545,21 +545,7 @@ pub fn train_from(
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    fn blobs(rows: usize, seed: u64) -> LabelledFeatures {
-        let mut generator = SplitMix64::new(seed);
-        let centres = [[0.0, 0.0], [4.0, 0.0], [0.0, 4.0]];
-        let mut features = Array2::zeros((rows, 2));
-        let mut labels = Vec::new();
-        for row in 0..rows {
-            let class = row % 3;
-            for column in 0..2 {
-                features[[row, column]] = (centres[class][column] + generator.next_normal()) as f32;
-            }
-            labels.push(class);
-        }
-        LabelledFeatures { features, labels }
-    }
+    use crate::unaries::split::blobs;
 
     #[test]
     fn gradient_matches_finite_differences() {

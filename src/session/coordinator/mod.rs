@@ -11,12 +11,12 @@
 //! Lock order, always: a conversation, then its scene, then the log.
 
 mod access;
+mod commands;
 mod convert;
 mod register;
 mod replica;
 mod scene_cache;
 mod turns;
-mod undo;
 mod versions;
 
 use std::collections::HashMap;
@@ -179,6 +179,37 @@ impl GatedCommit {
             return Err(LogError::Withdrawn);
         }
         self.0.commit(log, turn, stacks)
+    }
+}
+
+impl Coordinator {
+    /// Runs `work` holding the conversation's lock and then its scene's (the lock order above).
+    fn with_turn_locks<T>(
+        &self,
+        conversation: ConversationKey,
+        work: impl FnOnce(&mut ConversationSlot, &mut SceneSlot) -> Result<T, SessionError>,
+    ) -> Result<T, SessionError> {
+        let conversation_slot = self.conversation_slot(conversation)?;
+        let mut conversation_state = lock(&conversation_slot);
+        let scene_slot = self.scene_slot(conversation_state.scene)?;
+        let mut scene = lock(&scene_slot);
+        work(&mut conversation_state, &mut scene)
+    }
+
+    /// Commits one turn of a conversation, then moves the conversation's mark past it and counts it.
+    fn commit_turn(
+        &self,
+        mark: &mut TurnMark,
+        turn: &NewTurn<'_>,
+        stacks: Option<(&[VersionKey], &[VersionKey])>,
+    ) -> Result<TurnWritten, SessionError> {
+        let (turn_key, new_version) = self
+            .group
+            .commit(&self.log, turn, stacks)
+            .map_err(log_error)?;
+        *mark = mark.after(turn_key);
+        self.counters.record_turn(new_version.is_some());
+        Ok((turn_key, new_version))
     }
 }
 

@@ -1,8 +1,8 @@
-//! Conversation turns: utterances, confirmations, rejections, undo and redo.
+//! Conversation turns: utterances (a note, or a command said in words), and the history they leave.
 //!
-//! Owns: the turn rules. An utterance is worked out under its scene's lock and answered only after its
-//! turn is committed. A safety change waits as the conversation's one pending change and is applied on
-//! confirmation only if the scene has not moved on. Undo and redo are `super::undo`'s.
+//! Owns: the turn rules. An utterance is worked out under its conversation's and scene's locks and answered
+//! only after its turn is committed. A safety change waits as the conversation's one pending change;
+//! confirming, rejecting, undo and redo are `super::commands`'.
 //! Must not: talk HTTP; answers are wire values or `SessionError`s.
 
 use crate::correction_log::{ConversationKey, NewTurn, TurnEffect, TurnMark, TurnRow, VersionKey};
@@ -15,16 +15,14 @@ use super::convert::{
     candidate_out, change_out, constraint_out, focus_from_wire, focus_to_wire, unmet_out,
 };
 use super::{
-    encode_state, lock, log_error, ConversationSlot, Coordinator, PendingSlot,
+    encode_state, lock, log_error, ConversationSlot, Coordinator, PendingSlot, SceneSlot,
     UTTERANCE_CHARACTER_LIMIT,
 };
 use crate::corrector::{
     CorrectionOutcome, CorrectionRequest, CorrectorError, Lineage, PastTurn, SceneHandle, Verdict,
 };
 use crate::error::SessionError;
-use crate::wire::{
-    FocusIn, HistoryOut, PendingOut, TurnOut, TurnReply, TurnStatus, UtteranceReply,
-};
+use crate::wire::{FocusIn, HistoryOut, PendingOut, TurnOut, TurnStatus, UtteranceReply};
 
 /// The answer to a conversation command said in words: what was done, and the change still held.
 fn command_reply(
@@ -76,6 +74,30 @@ pub(super) fn status_text(status: TurnStatus) -> &'static str {
         TurnStatus::Rejected => "rejected",
         TurnStatus::Undone => "undone",
         TurnStatus::Redone => "redone",
+    }
+}
+
+/// A turn that says no constraints, no focus and no answer, with an empty result: a command's turn, or an
+/// utterance's that only drops or re-asks a question (given its own result).
+pub(super) fn plain_turn<'a>(
+    conversation: ConversationKey,
+    kind: &'a str,
+    text: &'a str,
+    status: TurnStatus,
+    operator: &'a str,
+    effect: TurnEffect,
+) -> NewTurn<'a> {
+    NewTurn {
+        conversation,
+        kind,
+        text,
+        focus_json: None,
+        status: status_text(status),
+        constraints_json: "[]",
+        result_json: "{}",
+        answer_json: None,
+        operator,
+        effect,
     }
 }
 
@@ -169,10 +191,28 @@ impl Coordinator {
         if let Some(command) = words::command(text) {
             return self.spoken(conversation, operator, text, command);
         }
-        let conversation_slot = self.conversation_slot(conversation)?;
-        let mut conversation_state = lock(&conversation_slot);
-        let scene_slot = self.scene_slot(conversation_state.scene)?;
-        let mut scene = lock(&scene_slot);
+        self.with_turn_locks(conversation, |conversation_state, scene| {
+            self.note(
+                conversation,
+                operator,
+                text,
+                focus,
+                conversation_state,
+                scene,
+            )
+        })
+    }
+
+    /// A note (an utterance that is no command), under its conversation's and scene's locks.
+    fn note(
+        &self,
+        conversation: ConversationKey,
+        operator: &str,
+        text: &str,
+        focus: Option<FocusIn>,
+        conversation_state: &mut ConversationSlot,
+        scene: &mut SceneSlot,
+    ) -> Result<UtteranceReply, SessionError> {
         if let Some(FocusIn::Pixel { x, y }) = focus {
             if x >= scene.input.image.width || y >= scene.input.image.height {
                 return Err(SessionError::unusable(
@@ -375,28 +415,23 @@ impl Coordinator {
         } else {
             conversation_state.redo.clone()
         };
-        let (turn_key, new_version) = self
-            .group
-            .commit(
-                &self.log,
-                &NewTurn {
-                    conversation,
-                    kind: "utterance",
-                    text,
-                    focus_json: focus_json.as_deref(),
-                    status: status_text(status),
-                    constraints_json: &constraints_json,
-                    result_json: &result_json,
-                    answer_json: answer_json.as_deref(),
-                    operator,
-                    effect,
-                },
-                Some((&conversation_state.applied, &redo_after)),
-            )
-            .map_err(log_error)?;
-        conversation_state.mark = conversation_state.mark.after(turn_key);
+        let (turn_key, new_version) = self.commit_turn(
+            &mut conversation_state.mark,
+            &NewTurn {
+                conversation,
+                kind: "utterance",
+                text,
+                focus_json: focus_json.as_deref(),
+                status: status_text(status),
+                constraints_json: &constraints_json,
+                result_json: &result_json,
+                answer_json: answer_json.as_deref(),
+                operator,
+                effect,
+            },
+            Some((&conversation_state.applied, &redo_after)),
+        )?;
         // Committed: now the memory follows the log.
-        self.counters.record_turn(new_version.is_some());
         conversation_state.history.push(PastTurn {
             utterance: text.to_string(),
             focus: solve_focus,
@@ -455,7 +490,7 @@ impl Coordinator {
             question,
             candidates,
             pending: pending_out,
-            waiting: waiting_out(&conversation_state, taxonomy),
+            waiting: waiting_out(conversation_state, taxonomy),
             conflicts,
             reason,
             scene_version: scene.head.0,
@@ -520,27 +555,21 @@ impl Coordinator {
         result_json: &str,
         mark: &mut TurnMark,
     ) -> Result<i64, SessionError> {
-        let (turn_key, _) = self
-            .group
-            .commit(
-                &self.log,
-                &NewTurn {
+        let (turn_key, _) = self.commit_turn(
+            mark,
+            &NewTurn {
+                result_json,
+                ..plain_turn(
                     conversation,
-                    kind: "utterance",
+                    "utterance",
                     text,
-                    focus_json: None,
-                    status: status_text(status),
-                    constraints_json: "[]",
-                    result_json,
-                    answer_json: None,
+                    status,
                     operator,
-                    effect: TurnEffect::None,
-                },
-                None,
-            )
-            .map_err(log_error)?;
-        *mark = mark.after(turn_key);
-        self.counters.record_turn(false);
+                    TurnEffect::None,
+                )
+            },
+            None,
+        )?;
         Ok(turn_key.0)
     }
 
@@ -656,7 +685,7 @@ impl Coordinator {
     }
 
     /// The engine states from the scene's registered version to `version`, read from the log.
-    fn lineage(&self, version: VersionKey) -> Result<Vec<Vec<u8>>, String> {
+    pub(super) fn lineage(&self, version: VersionKey) -> Result<Vec<Vec<u8>>, String> {
         let log = lock(&self.log);
         let mut states = Vec::new();
         let mut next = Some(version);
@@ -667,148 +696,6 @@ impl Coordinator {
         }
         states.reverse();
         Ok(states)
-    }
-
-    /// Applies the conversation's pending change.
-    pub fn confirm(
-        &self,
-        conversation: ConversationKey,
-        operator: &str,
-    ) -> Result<TurnReply, SessionError> {
-        let conversation_slot = self.conversation_slot(conversation)?;
-        let mut conversation_state = lock(&conversation_slot);
-        let scene_slot = self.scene_slot(conversation_state.scene)?;
-        let mut scene = lock(&scene_slot);
-        let pending = conversation_state.pending.as_ref().ok_or_else(|| {
-            SessionError::conflict(
-                "no_pending_change",
-                "this conversation has no change waiting for confirmation",
-            )
-        })?;
-        // The scene moved on since the change was proposed: work its note out again on the scene as it is
-        // now, confirmed, so the whole change applies on top of what happened since.
-        let (state, changes) = if pending.base == scene.head {
-            (pending.state.clone(), pending.changes.clone())
-        } else {
-            let head = scene.head;
-            let read_lineage = || self.lineage(head);
-            let outcome = self
-                .corrector
-                .apply(&CorrectionRequest {
-                    scene: SceneHandle(conversation_state.scene.0),
-                    input: &scene.input,
-                    state: &scene.state,
-                    lineage: Lineage(&read_lineage),
-                    history: &conversation_state.history,
-                    utterance: &pending.utterance,
-                    focus: pending.focus,
-                    note: Some(&pending.constraints),
-                    confirmed: true,
-                })
-                .map_err(SessionError::internal)?;
-            match outcome.verdict {
-                Verdict::Applied(state) => (state, outcome.changes),
-                Verdict::NothingToChange => (scene.state.clone(), Vec::new()),
-                _ => return Err(SessionError::conflict(
-                    "stale_change",
-                    "the scene changed since this change was proposed and it no longer applies \
-                         as it was; reject it and say it again",
-                )),
-            }
-        };
-        let constraints_json =
-            serde_json::to_string(&pending.constraints).map_err(SessionError::internal)?;
-        let (turn_key, new_version) = self
-            .group
-            .commit(
-                &self.log,
-                &NewTurn {
-                    conversation,
-                    kind: "confirm",
-                    text: &pending.utterance,
-                    focus_json: None,
-                    status: status_text(TurnStatus::Confirmed),
-                    constraints_json: &constraints_json,
-                    result_json: &serde_json::json!({ "reason": pending.reason }).to_string(),
-                    answer_json: None,
-                    operator,
-                    effect: TurnEffect::NewVersion {
-                        base: scene.head,
-                        state: encode_state(&state)?,
-                        utterance: pending.utterance.clone(),
-                        constraints_json: constraints_json.clone(),
-                    },
-                },
-                Some((&conversation_state.applied, &[])),
-            )
-            .map_err(log_error)?;
-        conversation_state.mark = conversation_state.mark.after(turn_key);
-        self.counters.record_turn(new_version.is_some());
-        conversation_state.pending = None;
-        if let Some(version) = new_version {
-            scene.head = version;
-            scene.state = state;
-            conversation_state.applied.push(version);
-            conversation_state.redo.clear();
-        }
-        let taxonomy = self.corrector.taxonomy();
-        Ok(TurnReply {
-            turn_id: turn_key.0,
-            status: TurnStatus::Confirmed,
-            scene_version: scene.head.0,
-            changes: changes
-                .iter()
-                .map(|change| change_out(change, taxonomy))
-                .collect(),
-            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
-        })
-    }
-
-    /// Drops the conversation's pending change.
-    pub fn reject(
-        &self,
-        conversation: ConversationKey,
-        operator: &str,
-    ) -> Result<TurnReply, SessionError> {
-        let conversation_slot = self.conversation_slot(conversation)?;
-        let mut conversation_state = lock(&conversation_slot);
-        let scene_slot = self.scene_slot(conversation_state.scene)?;
-        let scene = lock(&scene_slot);
-        let pending = conversation_state.pending.as_ref().ok_or_else(|| {
-            SessionError::conflict(
-                "no_pending_change",
-                "this conversation has no change waiting for confirmation",
-            )
-        })?;
-        let (turn_key, _) = self
-            .group
-            .commit(
-                &self.log,
-                &NewTurn {
-                    conversation,
-                    kind: "reject",
-                    text: &pending.utterance,
-                    focus_json: None,
-                    status: status_text(TurnStatus::Rejected),
-                    constraints_json: "[]",
-                    result_json: "{}",
-                    answer_json: None,
-                    operator,
-                    effect: TurnEffect::ClearPending,
-                },
-                None,
-            )
-            .map_err(log_error)?;
-        conversation_state.mark = conversation_state.mark.after(turn_key);
-        self.counters.record_turn(false);
-        conversation_state.pending = None;
-        Ok(TurnReply {
-            turn_id: turn_key.0,
-            status: TurnStatus::Rejected,
-            scene_version: scene.head.0,
-            changes: Vec::new(),
-            waiting: waiting_out(&conversation_state, self.corrector.taxonomy()),
-        })
     }
 
     /// The conversation's turns, oldest first, and its pending change.
