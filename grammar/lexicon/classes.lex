@@ -23,6 +23,9 @@ carpet -> class rug
 mat -> class rug
 dining table -> class table
 coffee table -> class table
+bedside table -> class table
+side table -> class table
+bedside cabinet -> class cabinet
 armchair -> class chair
 stool -> class chair
 couch -> class sofa
@@ -100,6 +103,9 @@ daughter -> class person
 son -> class person
 brother -> class person
 sister -> class person
+lodger -> class person
+flatmate -> class person
+roommate -> class person
 mum -> class person
 mom -> class person
 dad -> class person

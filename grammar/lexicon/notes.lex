@@ -65,6 +65,21 @@ lft = left
 lft of = left of
 rt of = right of
 nxt to = next to
+nxt 2 = next to
+next 2 = next to
+nr = near
+b / w = between
+rt = right
+# Colours clipped in notes.
+blk = black
+wht = white
+grn = green
+brn = brown
+gry = grey
+ylw = yellow
+pnk = pink
+prpl = purple
+orng = orange
 undr = under
 blw = below
 bhd = behind
@@ -83,6 +98,8 @@ ctr = counter
 ctre = at the centre unless after the|in|at
 middle = in the middle unless after the|in|at
 
+# "cabinet: mug on top": "on top" closing a note is "on" the thing named before the colon.
+on top = on when before <end>|,|;|.|/|+
 # Which shelf it is says no more than "shelf" ("on the top shelf" is no image region).
 top shelf = shelf
 top shelves = shelves
@@ -126,7 +143,9 @@ w / = with
 # A noted thing's answer or place in one word after a colon or dash ("fridge: yes", "person: corner").
 yes = present when after :|-|=
 y = present when after :|-|=
-corner = in the corner when after :|-|=|in
+corner = in the corner when after :|-|=
+# "lamp in corner": the region phrase "in the corner".
+corner = the corner when after in
 center = in the centre when after :|-|=
 centre = in the centre when after :|-|=
 middle = in the middle when after :|-|=

@@ -40,3 +40,15 @@ exactly -> comparator exactly
 only -> comparator exactly
 just -> comparator exactly
 precisely -> comparator exactly
+# "There are over five books", "under three cups": before a number after "are" (or opening a note) these
+# compare; elsewhere they are places ("the cat is under 2 blankets").
+over = more than when after <start>|are|were|have|has|see|count when before <number>
+under = fewer than when after <start>|are|were|have|has|see|count when before <number>
+not more than = at most
+not fewer than = at least
+not less than = at least
+# "There's another mug", "one more mug": one more of it is there.
+another = a when before <class>
+one more = a when before <class>
+# "Not one dog in here": none.
+not one = no when after <start> when before <class>

@@ -10,7 +10,50 @@ no = no , when after <start> when before that|this|it|that's|thats|it's|its|this
 # "The mug that's on the desk": after a class word, "that" opens a clause about it.
 that's = , it is when after <class>
 that = , it when after <class>
+# "Does the dog need feeding?", "did the cat eat": a helper verb opening the sentence before its subject asks,
+# as "is" does there.
+does = is when after <start> when before the|a|an|my|your|our|it|he|she|they|this|that|anyone|anybody|someone
+did = is when after <start> when before the|a|an|my|your|our|it|he|she|they|this|that|anyone|anybody|someone
+do = is when after <start> when before the|my|your|our|they|we|these|those|any|anyone|anybody
+# "There's no dog here, only a cat": after a pause, "only a" says the thing is there.
+# "The cat is on the sofa, as is the dog": the same place of another thing.
+as is = and so is when after <start>
+as are = and so are when after <start>
+only a = there is a when after <start>
+only an = there is an when after <start>
+just a = there is a when after <start>
+just an = there is an when after <start>
+# "Rather than the cabinet", "instead of the shelf": the alternative is denied.
+rather than = not
+instead of = not
+# "None of the books are on the desk": the books are not there, which says nothing of books elsewhere.
+none of the = not the when before <plural>
+# "Neither on the floor nor on the door": "nor" before a relation word denies the next place too.
+nor = or when before on|under|in|inside|next|beside|by|behind|above|below|near|left|right|at|to|onto|underneath|beneath
 that's = that is
+# "What looks like a dog is actually a pillow", "what you think is a cat is a towel": the thing pointed at
+# (or named last), first as the robot shows it.
+what looks like = this is when after <start>
+what seems to be = this is when after <start>
+what appears to be = this is when after <start>
+what you think is = this is when after <start>
+what you have labelled as = this is when after <start>
+what you have labelled = this is when after <start>
+what you labelled as = this is when after <start>
+what you have labeled as = this is when after <start>
+what you labeled as = this is when after <start>
+what you have marked as = this is when after <start>
+what you marked as = this is when after <start>
+what you have called = this is when after <start>
+what you called = this is when after <start>
+what you have got as = this is when after <start>
+what you have as = this is when after <start>
+what you've labelled as = this is when after <start>
+what you've labelled = this is when after <start>
+what you've labeled as = this is when after <start>
+what you've marked as = this is when after <start>
+what you've called = this is when after <start>
+what you've got as = this is when after <start>
 is there = is present when before <end>|.|!|,|;
 it's there = it is present when before <end>|.|!|,|;
 its there = it is present when before <end>|.|!|,|;
@@ -28,6 +71,10 @@ who's = who is
 we're = we are
 you're = you are
 you'll = you will
+you've = you have
+we've = we have
+i've = i have
+they've = they have
 youll = you will
 youre = you are
 they're = they are
@@ -106,6 +153,8 @@ not -> negation
 never -> negation
 neither -> negation
 nor = and
+# "Not on the desk or the shelf", "no cats or dogs": under a denial each thing is denied.
+or -> or
 cannot -> negation
 
 # Deictics.
@@ -274,6 +323,8 @@ beside -> relation next_to
 besides -> relation next_to
 by -> relation next_to
 near -> relation next_to
+# "The dog is at the door" ("@" in a note is left alone: "mug @ cabinet (on top)" is on it).
+at -> relation next_to
 nearby -> relation next_to
 close to -> relation next_to
 against -> relation next_to
@@ -405,6 +456,9 @@ no wait -> repair
 wait = wait here when after <start> when before <end>
 # "They are both on the bed": "both" after the verb adds nothing.
 both = all when after are|were|is
+# "I count two mugs, and both are on the desk": "both" opening a clause is the things counted before, as
+# "some of them" ("none of them") is the class named last.
+both = some of them when after <start>|,|and|but when before are|were|sit|lie|stand
 wait -> repair
 correction -> repair
 scratch that -> repair
@@ -433,6 +487,10 @@ under like = under
 behind like = behind
 between like = between
 you know -> filler
+# A speaker searching for a word: "it's on the, what do you call it, the counter".
+what do you call it -> filler
+what is it called -> filler
+whatchamacallit -> filler
 well -> filler
 so -> filler
 okay -> greeting
@@ -470,6 +528,43 @@ i believe -> filler
 kind of -> filler
 sort of -> filler
 hey -> greeting
+# Talk about the day, the weather or how one feels ("the neighbours are so loud today"): chit-chat. Words
+# that also describe things ("a warm blanket", "a lovely vase") are left out.
+loud -> greeting
+noisy -> greeting
+tired -> greeting
+exhausted -> greeting
+sleepy -> greeting
+hungry -> greeting
+bored -> greeting
+boring -> greeting
+weather -> greeting
+raining -> greeting
+sunny -> greeting
+freezing -> greeting
+cold -> greeting
+chilly -> greeting
+hot -> greeting
+rainy -> greeting
+weekend -> greeting
+mondays -> greeting
+haha -> greeting
+brilliant -> greeting
+awesome -> greeting
+amazing -> greeting
+i am back -> greeting
+long day -> greeting
+lol -> greeting
+funny -> greeting
+love -> greeting
+song -> greeting
+music -> greeting
+hurt -> greeting
+hurts -> greeting
+aches -> greeting
+rain -> greeting
+later -> greeting
+walk -> greeting
 
 # Words that carry nothing for a correction.
 i -> skip
@@ -524,8 +619,26 @@ mounted -> skip
 asleep -> skip
 awake -> skip
 curled up -> skip
+hiding -> skip
+sat -> skip
+piled -> skip
+stacked -> skip
+heaped -> skip
+scattered -> skip
+strewn -> skip
+draped -> skip
+folded -> skip
+propped -> skip
+balanced -> skip
+snoozing -> skip
+napping -> skip
+perched on -> relation on
 up there -> skip
 down there -> skip
+# "There's nobody here, not even the dog": after a pause, "not even" denies the thing as "no" does.
+not even the = no when after <start>|,|and|but
+not even a = no when after <start>|,|and|but
+not even one = no when after <start>|,|and|but
 even -> skip
 # Shape and shade words that name no class, colour or size we read ("the low cabinet", "dark blue").
 low -> skip
@@ -606,6 +719,47 @@ can you tell me -> question
 could you tell me -> question
 do you see -> question
 let's -> request
+please count -> request
+i need you to -> request
+i want you to -> request
+i would like you to -> request
+do not forget to -> request
+remember to -> request
+make sure -> request
+# Household chores and errands asked of the robot. "make the bed" and "set the table" are not a relabel's
+# "make" or "set".
+make the bed -> request
+set the table -> request
+lay the table -> request
+switch on -> request
+switch off -> request
+turn on -> request
+turn off -> request
+wash -> request
+wipe -> request
+dust -> request
+vacuum -> request
+hoover -> request
+mop -> request
+sweep -> request
+water the -> request
+empty the -> request
+unload -> request
+load the -> request
+fold -> request
+hang up -> request
+charge -> request
+help me -> request
+remind me -> request
+let the -> request
+tidy up -> request
+# Questions that open with a helper verb or a stock phrase ("does the dog need feeding", "have you seen my
+# keys").
+have you -> question
+has anyone -> question
+has anybody -> question
+any idea -> question
+do we have -> question
 # Getting going and finding one's place are talk, not requests or questions.
 please do not -> request
 nice one -> thanks
@@ -634,6 +788,8 @@ can i -> question
 thanks -> thanks
 thank you -> thanks
 cheers -> thanks
+appreciated -> thanks
+appreciate it -> thanks
 ta -> thanks
 # Praise is chit-chat, not thanks.
 well done -> greeting
@@ -644,6 +800,14 @@ exactly right -> greeting
 all good -> greeting
 fine -> greeting
 hang on -> greeting
+hold on -> greeting
+one sec -> greeting
+one second -> greeting
+just a sec -> greeting
+just a second -> greeting
+just a moment -> greeting
+let me -> greeting
+what a -> greeting
 never mind -> greeting
 doing great -> greeting
 i am home -> greeting

@@ -47,6 +47,9 @@ pub struct Builder {
     /// A question of this utterance asked about an unnamed thing ("what's that by the desk?"): a later
     /// "it's a mug" with nothing pointed at may mean that thing, so it is not read as a relabel.
     asked_about_unnamed: bool,
+    /// Where the last rule's match ended: a further relation ("and next to the lamp") is read only right
+    /// after it, or after a pause or "and", never across words no rule read ("the mouse is next to it").
+    matched_until: usize,
     pub constraints: Vec<Constraint>,
 }
 
@@ -62,6 +65,7 @@ impl Builder {
             introduced: None,
             named: Vec::new(),
             asked_about_unnamed: false,
+            matched_until: 0,
             constraints: Vec::new(),
         }
     }
@@ -294,6 +298,7 @@ impl Builder {
 
     /// Applies one matched rule to the sentence's chunks.
     pub fn apply(&mut self, found: &Match<'_>, chunks: &[Chunk], position: usize) {
+        let previous_end = std::mem::replace(&mut self.matched_until, position + found.length);
         let matched = &chunks[position..position + found.length];
         let span = matched
             .iter()
@@ -616,6 +621,27 @@ impl Builder {
                     .map(|landmark| self.landmark_referent(landmark, &subject))
                     .collect();
                 self.last_relation = Some((subject_referent.clone(), relation, landmarks.clone()));
+                // "The lamp, not the vase, is on the table": the denied subject, denied.
+                if let (Some(denied), false) = (first_phrase("denied_subject"), negated) {
+                    let denied = self.plain_referent(&denied);
+                    self.push_relation(denied, relation, true, landmarks.clone(), span, misspelled);
+                }
+                // "Not the table: the towel is on the counter": the denied landmark, denied.
+                if let (Some(denied), false, false) = (
+                    first_phrase("denied"),
+                    negated,
+                    relation == Relation::Between,
+                ) {
+                    let denied = self.plain_referent(&denied);
+                    self.push_relation(
+                        subject_referent.clone(),
+                        relation,
+                        true,
+                        vec![denied],
+                        span,
+                        misspelled,
+                    );
+                }
                 self.push_relation(
                     subject_referent,
                     relation,
@@ -631,13 +657,31 @@ impl Builder {
                 // "Missed a mug, on the desk": with no relation yet, a further place is stated of the thing
                 // the utterance just said exists.
                 let stated_relation = !found.role("relation").is_empty();
+                let adjacent = position == 0
+                    || position == previous_end
+                    || matches!(
+                        chunks[position - 1].kind,
+                        ChunkKind::Separator | ChunkKind::And | ChunkKind::Or
+                    );
+                if !adjacent {
+                    return;
+                }
                 // Only right after the noun phrase and a pause: never across a word no rule read.
                 let follows_the_thing = position >= 2
                     && chunks[position - 1].kind == ChunkKind::Separator
                     && matches!(&chunks[position - 2].kind, ChunkKind::NounPhrase(phrase)
                         if phrase.class.is_some()
                             && phrase.class == self.introduced.as_ref().and_then(|np| np.class));
-                if self.last_relation.is_none() && stated_relation && follows_the_thing {
+                // "The plant's in the corner, next to the window": a further place of the thing just placed.
+                // So is one after a thing's colour ("rug: blue, under tbl").
+                let placed_or_described = match self.constraints.last().map(|last| &last.kind) {
+                    Some(ConstraintKind::Place { subject, .. }) => Some(subject.clone()),
+                    Some(ConstraintKind::Attribute { target, .. }) => Some(target.clone()),
+                    _ => None,
+                };
+                if let (true, Some(subject)) = (stated_relation, placed_or_described) {
+                    self.last_relation = Some((subject, Relation::On, Vec::new()));
+                } else if self.last_relation.is_none() && stated_relation && follows_the_thing {
                     if let Some(introduced) = self.introduced.clone() {
                         let mut subject = introduced;
                         subject.quantity = None;
@@ -650,6 +694,18 @@ impl Builder {
                 let Some((subject, last, last_landmarks)) = self.last_relation.clone() else {
                     return;
                 };
+                // "The mug isn't on the desk or the shelf": after a denied relation, "or" denies the next
+                // landmark too; after a stated one ("on the desk or the shelf") it states nothing.
+                let mut negated = negated;
+                if chunks[position].kind == ChunkKind::Or {
+                    let denied = self.constraints.last().is_some_and(|last| {
+                        matches!(last.kind, ConstraintKind::Relation { negated: true, .. })
+                    });
+                    if !denied {
+                        return;
+                    }
+                    negated = true;
+                }
                 let relation = found
                     .role("relation")
                     .first()
@@ -775,7 +831,19 @@ impl Builder {
                     None
                 };
                 let Some(place) = place else { return };
-                self.count_of_subject(&subject, span, misspelled);
+                // "There's a cat in the bathroom": the thing is there too.
+                if found.rule.name == "place_there" {
+                    self.exist(&subject, false, span, misspelled);
+                    // "There's no cat in the bathroom": no cat, and no place for one.
+                    if matches!(
+                        subject.quantity,
+                        Some(Quantity::None | Quantity::Exactly(0))
+                    ) {
+                        return;
+                    }
+                } else {
+                    self.count_of_subject(&subject, span, misspelled);
+                }
                 let subject = self.referent(&subject);
                 self.push(ConstraintKind::Place { subject, place }, span, misspelled);
             }

@@ -181,6 +181,57 @@ pub fn drop_asides(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -
     kept
 }
 
+/// Drops a name said first, before the word for the person or pet it names, at a clause's start: "Saffi the
+/// cat is in the bag", "Pilchard, the cat, is on the blanket" (the pauses around the apposition go too).
+fn drop_names_before(
+    items: Vec<Item>,
+    living: &impl Fn(crate::ids::ClassId) -> bool,
+    ignored: &mut Vec<(Span, IgnoredReason)>,
+) -> Vec<Item> {
+    let mut removed = vec![false; items.len()];
+    for index in 0..items.len() {
+        let opens_clause = index == 0 || items[index - 1].tag == ItemTag::Pause;
+        if items[index].tag != ItemTag::Unknown || !opens_clause {
+            continue;
+        }
+        let mut next = index + 1;
+        let opened = items
+            .get(next)
+            .is_some_and(|item| item.tag == ItemTag::Pause);
+        if opened {
+            next += 1;
+        }
+        while matches!(tag_of(items.get(next)), Some(Tag::Determiner)) {
+            next += 1;
+        }
+        let names_living = matches!(
+            tag_of(items.get(next)),
+            Some(Tag::Class { class, plural: false }) if living(class)
+        );
+        if !names_living {
+            continue;
+        }
+        removed[index] = true;
+        let mut span = items[index].span;
+        if opened {
+            removed[index + 1] = true;
+            span = span.cover(items[index + 1].span);
+            if items
+                .get(next + 1)
+                .is_some_and(|item| item.tag == ItemTag::Pause)
+            {
+                removed[next + 1] = true;
+            }
+        }
+        ignored.push((span, IgnoredReason::FunctionWord));
+    }
+    items
+        .into_iter()
+        .zip(removed)
+        .filter_map(|(item, removed)| (!removed).then_some(item))
+        .collect()
+}
+
 /// Drops a name given after a word for a person or a pet ("my grandad Osric", "our puppy, Noodle, is"): a
 /// word nobody knows directly after such a class word (or between two pauses after it) is what they are
 /// called, which says nothing more about the scene.
@@ -192,6 +243,7 @@ pub fn drop_names(
     if !items.iter().any(|item| item.tag == ItemTag::Unknown) {
         return items;
     }
+    let items = drop_names_before(items, &living, ignored);
     let mut kept: Vec<Item> = Vec::with_capacity(items.len());
     let mut index = 0;
     while index < items.len() {

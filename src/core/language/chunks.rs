@@ -91,6 +91,8 @@ pub enum ChunkKind {
     Pointing,
     As,
     And,
+    /// "or" between two things.
+    Or,
     /// "where" in a statement: the cleft "right of the desk is where the mug is".
     Where,
     Separator,
@@ -195,6 +197,18 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
         lexicon_tag(items.get(index + 1)),
     ) {
         index += 1;
+    }
+    // So does a singular class word before another ("the toy box" is a box, "the sofa cushion" a pillow), and,
+    // after a determiner or "a", a word nobody knows ("the bedside table" is a table; the word is still
+    // reported as unknown).
+    if let (Some(item), Some(Tag::Class { .. })) =
+        (items.get(index), lexicon_tag(items.get(index + 1)))
+    {
+        let class_modifier = matches!(item.tag, ItemTag::Lexicon(Tag::Class { plural: false, .. }));
+        let unknown_modifier = item.tag == ItemTag::Unknown && (determiner || article);
+        if class_modifier || unknown_modifier {
+            index += 1;
+        }
     }
     // A room after a determiner: "the kitchen".
     if let Some(Tag::Room(room)) = lexicon_tag(items.get(index)) {
@@ -368,6 +382,42 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
             continue;
         }
         let item = &items[index];
+        // "The lamp is behind the chair, which is next to the desk": "which" (or "who") after a pause and
+        // before a verb is the thing named just before it.
+        if matches!(item.text.as_str(), "which" | "who")
+            && matches!(
+                items.get(index + 1).map(|next| next.tag),
+                Some(ItemTag::Lexicon(Tag::Be))
+            )
+        {
+            let before = chunks
+                .len()
+                .checked_sub(2)
+                .and_then(|at| (chunks[at + 1].kind == ChunkKind::Separator).then(|| &chunks[at]));
+            if let Some(Chunk {
+                kind: ChunkKind::NounPhrase(named),
+                ..
+            }) = before
+            {
+                if named.class.is_some() && named.deictic.is_none() {
+                    let phrase = NounPhrase {
+                        quantity: None,
+                        relations: Vec::new(),
+                        region: None,
+                        article: false,
+                        span: item.span,
+                        ..named.clone()
+                    };
+                    chunks.push(Chunk {
+                        kind: ChunkKind::NounPhrase(phrase),
+                        span: item.span,
+                        misspelled: false,
+                    });
+                    index += 1;
+                    continue;
+                }
+            }
+        }
         let kind = match item.tag {
             ItemTag::Pause => ChunkKind::Separator,
             ItemTag::Unknown | ItemTag::TooLarge => ChunkKind::Other,
@@ -401,6 +451,7 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Pointing => ChunkKind::Pointing,
                 Tag::As => ChunkKind::As,
                 Tag::And => ChunkKind::And,
+                Tag::Or => ChunkKind::Or,
                 Tag::Repair => ChunkKind::Repair,
                 // "Right of the desk is where the mug is": "where" inside a statement joins a cleft.
                 Tag::Question(Asks::Place) => ChunkKind::Where,
@@ -523,6 +574,39 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                 earlier = Some(start);
             }
         }
+        // "There's a bag on the chair, no, a box": a replacement with "a" repairs the thing said with "a"
+        // before the landmark ("a bag"), not the landmark ("the chair"); what came between stays.
+        let swapped = match (earlier, next) {
+            (Some(near), Some(to)) if near > 0 => match (&chunks[near].kind, &chunks[to].kind) {
+                (ChunkKind::NounPhrase(landmark), ChunkKind::NounPhrase(replacement))
+                    if replacement.article
+                        && replacement.class.is_some()
+                        && !landmark.article
+                        && matches!(chunks[near - 1].kind, ChunkKind::Relation(_)) =>
+                {
+                    (index.saturating_sub(6)..near - 1).rev().find(|&k| {
+                        matches!(&chunks[k].kind, ChunkKind::NounPhrase(phrase)
+                            if phrase.article && phrase.class.is_some() && phrase.deictic.is_none())
+                    })
+                }
+                _ => None,
+            },
+            _ => None,
+        };
+        if let (Some(from), Some(to)) = (swapped, next) {
+            chunks[from] = chunks[to].clone();
+            let mut cut = index;
+            while cut > from + 1 && chunks[cut - 1].kind == ChunkKind::Separator {
+                cut -= 1;
+            }
+            ignored.push((
+                chunks[cut].span.cover(chunks[to].span),
+                IgnoredReason::SelfRepair,
+            ));
+            chunks.drain(cut..=to);
+            index = from + 1;
+            continue;
+        }
         match (earlier, next) {
             // "Nine chairs, actually no, six": a bare number after the cue replaces only the quantity of the
             // counted noun phrase it repairs.
@@ -597,6 +681,8 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
 /// ("black and white").
 pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
     let mut chunks = chunks;
+    counts_after_nouns(&mut chunks);
+    deny_alternatives(&mut chunks);
     // Attribute lists.
     let mut index = 0;
     while index + 1 < chunks.len() {
@@ -643,6 +729,19 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
                     chunks.remove(index + 1);
                     true
                 }
+                // "The vase is on the shelf right of the plant": a place after the landmark of "is on" or
+                // "is in" is the subject's second place, not the landmark's.
+                Some(ChunkKind::Relation(relation))
+                    if *relation != Relation::Between
+                        && index >= 2
+                        && matches!(
+                            chunks[index - 1].kind,
+                            ChunkKind::Relation(Relation::On | Relation::Inside)
+                        )
+                        && chunks[index - 2].kind == ChunkKind::Be =>
+                {
+                    false
+                }
                 Some(ChunkKind::Relation(relation)) => {
                     let relation = *relation;
                     let landmark_count = if relation == Relation::Between { 2 } else { 1 };
@@ -676,6 +775,55 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
     chunks
 }
 
+/// "chairs >= 6 around tbl": a note's count after a bare noun, before the place it gives, is the noun's count
+/// ("at least 6 chairs around the table").
+fn counts_after_nouns(chunks: &mut Vec<Chunk>) {
+    let mut index = 0;
+    while index + 2 < chunks.len() {
+        let bare = matches!(&chunks[index].kind, ChunkKind::NounPhrase(phrase)
+            if phrase.class.is_some() && phrase.quantity.is_none() && phrase.deictic.is_none()
+                && !phrase.article);
+        let placed = matches!(
+            chunks[index + 2].kind,
+            ChunkKind::Relation(_) | ChunkKind::Region(_)
+        );
+        if let (true, true, ChunkKind::Number { quantity, .. }) =
+            (bare, placed, chunks[index + 1].kind.clone())
+        {
+            let span = chunks[index + 1].span;
+            if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
+                phrase.quantity = Some(quantity);
+                phrase.span = phrase.span.cover(span);
+            }
+            chunks[index].span = chunks[index].span.cover(span);
+            chunks[index].misspelled |= chunks[index + 1].misspelled;
+            chunks.remove(index + 1);
+        }
+        index += 1;
+    }
+}
+
+/// "No cats or dogs": a thing joined by "or" to a denied one ("no X") is denied too, and the "or" joins them
+/// as "and" would ("no cats and no dogs"). An "or" after a thing not denied is left alone.
+fn deny_alternatives(chunks: &mut [Chunk]) {
+    for index in 1..chunks.len().saturating_sub(1) {
+        if chunks[index].kind != ChunkKind::Or {
+            continue;
+        }
+        let denied = matches!(&chunks[index - 1].kind, ChunkKind::NounPhrase(phrase)
+            if phrase.class.is_some() && matches!(phrase.quantity, Some(Quantity::None | Quantity::Exactly(0))));
+        let plain = matches!(&chunks[index + 1].kind, ChunkKind::NounPhrase(phrase)
+            if phrase.class.is_some() && phrase.deictic.is_none() && !phrase.article
+                && matches!(phrase.quantity, None | Some(Quantity::None)));
+        if denied && plain {
+            if let ChunkKind::NounPhrase(phrase) = &mut chunks[index + 1].kind {
+                phrase.quantity = Some(Quantity::None);
+            }
+            chunks[index].kind = ChunkKind::And;
+        }
+    }
+}
+
 /// "Four mugs and a plate in the sink": a stated noun phrase ("four mugs", "a plate") joined by "and" to a
 /// located one shares its place. A phrase with "the" never does, so a landmark ("on the bed and the dog
 /// under the table") keeps its own meaning.
@@ -698,12 +846,15 @@ fn share_relations(chunks: &mut [Chunk]) {
             }
             _ => continue,
         };
+        // "dog & cat on rug": a phrase opening the clause is no landmark, so it shares the place too.
+        let opens_clause = index == 0 || chunks[index - 1].kind == ChunkKind::Separator;
         if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
             let stated = phrase.article
                 || !matches!(
                     phrase.quantity,
                     None | Some(Quantity::None) | Some(Quantity::Exactly(0))
-                );
+                )
+                || (opens_clause && phrase.class.is_some() && phrase.deictic.is_none());
             if stated && phrase.relations.is_empty() && phrase.region.is_none() {
                 phrase.relations = shared.0;
                 phrase.region = shared.1;

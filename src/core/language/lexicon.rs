@@ -115,6 +115,8 @@ pub enum Tag {
     /// "with", "w/": a modifier of the phrase before it, dropped up to the next verb or pause.
     With,
     And,
+    /// "or": joins two things; under a denial each is denied ("not on the desk or the shelf").
+    Or,
     Repair,
     Filler,
     Skip,

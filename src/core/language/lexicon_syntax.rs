@@ -303,6 +303,7 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 "with" => Tag::With,
                 "as" => Tag::As,
                 "and" => Tag::And,
+                "or" => Tag::Or,
                 "repair" => Tag::Repair,
                 "filler" => Tag::Filler,
                 "skip" => Tag::Skip,

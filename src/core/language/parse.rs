@@ -693,6 +693,8 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     let first = first?;
     match first.tag {
         // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
+        // "I'm off to bed" ("i" is skipped) is no question.
+        ItemTag::Lexicon(Tag::Be) if first.text == "am" => {}
         ItemTag::Lexicon(Tag::Question(_) | Tag::Be) => return Some(UtteranceKind::Question),
         ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
         _ => {}
@@ -702,8 +704,14 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
             .iter()
             .any(|item| item.tag == ItemTag::Lexicon(wanted))
     };
+    // "Hold on, stop moving": talk, then a request opening a later clause.
+    let request_after_pause = items
+        .windows(2)
+        .any(|pair| pair[0].tag == ItemTag::Pause && pair[1].tag == ItemTag::Lexicon(Tag::Request));
     if has(Tag::Thanks) {
         Some(UtteranceKind::Thanks)
+    } else if first.tag == ItemTag::Lexicon(Tag::Greeting) && request_after_pause {
+        Some(UtteranceKind::Request)
     } else if has(Tag::Greeting) {
         Some(UtteranceKind::ChitChat)
     } else {

@@ -36,6 +36,7 @@ pub enum Symbol {
     Pointing,
     As,
     And,
+    Or,
     /// "where" inside a statement (a cleft).
     Where,
     /// A bare "left" or "right" ("L: mug, R: lamp").
@@ -73,6 +74,8 @@ pub enum Filter {
     /// A class word alone, perhaps with "the", "a" or colour and size words: no quantity, deictic word,
     /// relation or region ("bowl", "a towel", "the red mug").
     Bare,
+    /// A class named with no article, quantity or deictic word ("the vase"): the thing of a cleft.
+    Definite,
     /// A relation phrase of one relation.
     Relation(Relation),
 }
@@ -154,7 +157,10 @@ impl Action {
             Action::RelabelCalled => (&["target", "from"], &[]),
             Action::RelabelPointed => (&["to"], &["from"]),
             Action::RoomType => (&["room"], &["negated"]),
-            Action::Relation => (&["subject", "relation", "landmark"], &["negated"]),
+            Action::Relation => (
+                &["subject", "relation", "landmark"],
+                &["negated", "denied", "denied_subject"],
+            ),
             Action::Place => (&["subject"], &["room", "region"]),
             Action::Attribute => (&["subject"], &["attributes"]),
             Action::Have => (&["owner", "np"], &["negated"]),
@@ -339,6 +345,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "POINTING" => Symbol::Pointing,
             "AS" => Symbol::As,
             "AND" => Symbol::And,
+            "OR" => Symbol::Or,
             "SEP" => Symbol::Separator,
             "WHERE" => Symbol::Where,
             "SIDE" => Symbol::Side,
@@ -359,6 +366,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             (Symbol::NounPhrase, Some("described")) => Some(Filter::Described),
             (Symbol::NounPhrase, Some("named")) => Some(Filter::Named),
             (Symbol::NounPhrase, Some("bare")) => Some(Filter::Bare),
+            (Symbol::NounPhrase, Some("definite")) => Some(Filter::Definite),
             (Symbol::Relation | Symbol::Reciprocal, Some(name)) => {
                 Some(Filter::Relation(parse_relation(name)?))
             }
@@ -401,6 +409,12 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
                     && phrase.deictic.is_none()
                     && !matches!(phrase.quantity, Some(Quantity::None | Quantity::Exactly(0)))
             }
+            Some(Filter::Definite) => {
+                phrase.class.is_some()
+                    && !phrase.article
+                    && phrase.quantity.is_none()
+                    && phrase.deictic.is_none()
+            }
             Some(Filter::Bare) => {
                 phrase.class.is_some()
                     && phrase.quantity.is_none()
@@ -435,6 +449,7 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
         | (Symbol::Pointing, ChunkKind::Pointing)
         | (Symbol::As, ChunkKind::As)
         | (Symbol::And, ChunkKind::And)
+        | (Symbol::Or, ChunkKind::Or)
         | (Symbol::Where, ChunkKind::Where)
         | (Symbol::Side, ChunkKind::Side(_))
         | (Symbol::Separator, ChunkKind::Separator)

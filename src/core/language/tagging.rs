@@ -7,7 +7,7 @@
 //! function words, cut-off fragments and stuttered repeats, each recorded as ignored with a reason.
 //! Must not: group items into phrases or decide meaning; that is `chunks` and `rules`.
 
-use super::constraint::Span;
+use super::constraint::{ImageRegion, Relation, Span};
 use super::lexicon::{Lexicon, Tag};
 use super::parse::{IgnoredReason, Note, NoteKind};
 use super::spelling::{accept_limit, distance_within, SUGGESTION_LIMIT};
@@ -238,7 +238,8 @@ fn rewrite(
 
 /// The count of a note's multiplier ("x9", "x 12" is not one): `Some(9)`.
 fn note_multiplier(text: &str) -> Option<u32> {
-    let digits = text.strip_prefix('x')?;
+    // "x9" after the noun, or "3x" before it.
+    let digits = text.strip_prefix('x').or_else(|| text.strip_suffix('x'))?;
     if digits.is_empty() || !digits.chars().all(|c| c.is_ascii_digit()) {
         return None;
     }
@@ -433,7 +434,12 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     for (candidate, tag) in lexicon.spelling_words() {
         if let Some(distance) = distance_within(word, candidate, SUGGESTION_LIMIT) {
             suggestions.push((distance, candidate));
-            if distance <= accept && best.is_none_or(|(best_distance, ..)| distance < best_distance)
+            // A slip of the keys rarely changes a short word's first letter: "hooks" is a word we do not
+            // know, not "books".
+            let same_start = length >= 8 || word.chars().next() == candidate.chars().next();
+            if distance <= accept
+                && same_start
+                && best.is_none_or(|(best_distance, ..)| distance < best_distance)
             {
                 best = Some((distance, candidate, *tag));
             }
@@ -452,13 +458,93 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     )
 }
 
+/// Whether the kept items end with a landmark: a relation word, then a noun phrase of determiner, colour,
+/// size and class words ending in the class word ("on the big table").
+fn ends_landmark(kept: &[Item]) -> bool {
+    let Some((last, before)) = kept.split_last() else {
+        return false;
+    };
+    if !matches!(last.tag, ItemTag::Lexicon(Tag::Class { .. })) {
+        return false;
+    }
+    for item in before.iter().rev() {
+        match item.tag {
+            ItemTag::Lexicon(Tag::Relation(_)) => return true,
+            ItemTag::Lexicon(
+                Tag::Determiner | Tag::Article | Tag::Colour(_) | Tag::Size(_) | Tag::Class { .. },
+            ) => {}
+            _ => return false,
+        }
+    }
+    false
+}
+
+/// "In the middle of the table", "at the top of the shelf": a region phrase followed by "of" and a class word
+/// names a part of that thing, not a part of the picture. The middle or top of a thing is on it; another part
+/// ("the left end of", "the corner of the desk") is dropped, so the region is never stated of the picture.
+/// "In the middle of the room" (a word for the whole view) keeps its region, and "on the right side of the
+/// picture" is a region of the picture, not a relation to it.
+fn parts_of_things(mut items: Vec<Item>) -> Vec<Item> {
+    for index in 0..items.len().saturating_sub(1) {
+        // "On the right side of the picture": a side of the whole view is a region of the picture.
+        let side = match items[index].tag {
+            ItemTag::Lexicon(Tag::Relation(Relation::LeftOf)) => Some(ImageRegion::Left),
+            ItemTag::Lexicon(Tag::Relation(Relation::RightOf)) => Some(ImageRegion::Right),
+            _ => None,
+        };
+        if let Some(side) = side {
+            let of_view = items[index + 1..]
+                .iter()
+                .find(|item| !matches!(item.tag, ItemTag::Lexicon(Tag::Determiner)))
+                .is_some_and(|item| item.tag == ItemTag::Lexicon(Tag::Scene));
+            if of_view {
+                items[index].tag = ItemTag::Lexicon(Tag::Region(side));
+            }
+            continue;
+        }
+        let ItemTag::Lexicon(Tag::Region(region)) = items[index].tag else {
+            continue;
+        };
+        if items[index + 1].text != "of" {
+            continue;
+        }
+        let names_thing = items[index + 2..]
+            .iter()
+            .find(|item| {
+                !matches!(
+                    item.tag,
+                    ItemTag::Lexicon(
+                        Tag::Determiner
+                            | Tag::Article
+                            | Tag::Colour(_)
+                            | Tag::Size(_)
+                            | Tag::Filler
+                    )
+                )
+            })
+            .is_some_and(|item| matches!(item.tag, ItemTag::Lexicon(Tag::Class { .. })));
+        if names_thing {
+            items[index].tag = match region {
+                ImageRegion::Centre | ImageRegion::Top => {
+                    ItemTag::Lexicon(Tag::Relation(Relation::On))
+                }
+                _ => ItemTag::Lexicon(Tag::Skip),
+            };
+        }
+    }
+    items
+}
+
 /// Removes fillers (with the pauses around them), function words and stuttered repeats. Unknown words stay:
 /// no rule matches across one, so a clause with a word nobody understood is never read as something else
 /// ("the plant is buy the window" is not "the plant is the window").
 pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Item> {
+    let items = parts_of_things(items);
     // Fillers and function words.
     let mut kept: Vec<Item> = Vec::with_capacity(items.len());
     let mut drop_next_pause = false;
+    // "The bowl is on the table um next to the plate": a filler between a landmark and a relation word is a
+    // pause, so the second relation is the subject's, not the landmark's.
     for item in items {
         match item.tag {
             ItemTag::Lexicon(Tag::Filler) => {
@@ -472,6 +558,22 @@ pub fn clean(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<
             ItemTag::Pause if drop_next_pause => drop_next_pause = false,
             _ => {
                 drop_next_pause = false;
+                if matches!(item.tag, ItemTag::Lexicon(Tag::Relation(_))) && ends_landmark(&kept) {
+                    let after = kept.last().map_or(0, |last| last.span.end);
+                    let filler = ignored.iter().find(|(span, reason)| {
+                        *reason == IgnoredReason::Filler
+                            && span.start >= after
+                            && span.end <= item.span.start
+                    });
+                    if let Some((span, _)) = filler {
+                        kept.push(Item {
+                            tag: ItemTag::Pause,
+                            span: *span,
+                            text: ",".to_string(),
+                            misspelled: false,
+                        });
+                    }
+                }
                 kept.push(item);
             }
         }

@@ -1,8 +1,10 @@
 //! The operator-styles corpora run through the parser: strict frame recall per style, constraints produced
-//! from sentences that are not corrections, and relabels nobody asked for. Two corpora, each split into a
+//! from sentences that are not corrections, and relabels nobody asked for. Three corpora, each split into a
 //! development and a held-out file: tests/language/styles_dev.jsonl and styles_heldout.jsonl (written blind
 //! by tests/language/styles_generator/), and styles_fresh_dev.jsonl and styles_fresh_heldout.jsonl (written
-//! by hand, blind, by a helper who never saw the parser; tests/language/styles_fresh.md says how).
+//! by hand, blind, by a helper who never saw the parser; tests/language/styles_fresh.md says how), and
+//! styles_fresh2_dev.jsonl and styles_fresh2_heldout.jsonl (written the same way by another helper;
+//! tests/language/styles_fresh2.md).
 //!
 //! Owns: reading the style files, scoring each line, printing the figures (and, for the development files
 //! only, the failing lines) and holding the floors.
@@ -68,7 +70,13 @@ fn score(grammar: &Grammar, text: &str) -> Score {
             .map(|text| parse_focus(text).expect("style focus"));
         let expected_kind = support::expected_kind(line.k.as_deref(), &line.e);
         let expected = support::split_expected(&line.e);
-        let (kind, got) = support::parsed(grammar, &line.u, focus);
+        let (kind, mut got) = support::parsed(grammar, &line.u, focus);
+        // The styles notation writes a pronoun referent `^` whatever its number (styles_generator/check.py
+        // accepts no `^*`); the parser's notation marks a plural one `^*`.
+        for constraint in &mut got {
+            *constraint = constraint.replace("(^*,", "(^,");
+        }
+        got.sort();
         if expected.is_empty() {
             result.non_corrections += 1;
             result.spurious_constraints += got.len();
@@ -183,8 +191,9 @@ fn development_styles_recall_per_style() {
 const DEV_MAX_SPURIOUS: usize = 0;
 
 /// Held-out floor at the measured figure (2026-12-05, session 5: 471/498 = 94.6%, no unasked relabel, one
-/// constraint from 83 non-corrections); the goal of no constraint is not reached yet.
-const HELDOUT_FLOOR: f64 = 94.5;
+/// constraint from 83 non-corrections; session 7: 473/498 = 95.0%, none, one); the goal of no constraint is
+/// not reached yet.
+const HELDOUT_FLOOR: f64 = 94.9;
 const HELDOUT_MAX_SPURIOUS: usize = 1;
 
 /// The held-out file is run for its figures only; its lines are never printed.
@@ -218,13 +227,14 @@ fn heldout_styles_figures_are_reported() {
 /// Per-style floors on the fresh development file (324 lines, 54 per style). When the file arrived the parser
 /// of session 4 read 42, 48, 21, 44, 39 and 49 of 54 lines (243/324, 75.0%; 2 constraints from 54
 /// non-corrections, 4 unasked relabels, 36 lines misread); at the end of session 5 it reads 53, 54, 46, 53,
-/// 52 and 54 (312/324, 96.3%; none, none, 6).
+/// 52 and 54 (312/324, 96.3%; none, none, 6); in session 7, 54 of 54 in every style (324/324, after one
+/// expectation was corrected to the corpus's own `^` convention; none, none, none).
 const FRESH_DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 98.0),
+    ("asr_slip", 99.5),
     ("field_note", 99.5),
-    ("hard", 85.0),
-    ("not_a_correction", 98.0),
-    ("speech", 96.0),
+    ("hard", 99.5),
+    ("not_a_correction", 99.5),
+    ("speech", 99.5),
     ("typed_tidy", 99.5),
 ];
 
@@ -260,8 +270,10 @@ fn fresh_development_styles_recall_per_style() {
 }
 
 /// Fresh held-out floor. When the file arrived the parser of session 4 read 120/156 (76.9%), no unasked
-/// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none.
-const FRESH_HELDOUT_FLOOR: f64 = 85.8;
+/// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none; in
+/// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none;
+/// after those the second fresh development file prompted, 142/156 (91.0%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 90.9;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -287,5 +299,88 @@ fn fresh_heldout_styles_figures_are_reported() {
     assert_eq!(
         result.spurious_constraints, 0,
         "constraints from non-corrections on the fresh held-out file"
+    );
+}
+
+/// Per-style floors on the second fresh development file (300 lines, 50 per style; written by hand, blind,
+/// by a helper who never saw the parser; tests/language/styles_fresh2.md says how). When the file arrived
+/// (2026-12-05, session 7), before any change it prompted, the parser read 43, 49, 39, 42, 48 and 49 of 50
+/// lines (270/300, 90.0%; 2 constraints from 50 non-corrections, no unasked relabel, 8 lines misread); the
+/// parser of the session's start read 266/300 (88.7%; 2, none, 9). After the changes the file prompted:
+/// 50, 50, 49, 49, 50 and 50 (298/300, 99.3%; 1, none, 1).
+const FRESH2_DEV_FLOORS: [(&str, f64); 6] = [
+    ("asr_slip", 99.5),
+    ("field_note", 99.5),
+    ("hard", 97.5),
+    ("not_a_correction", 97.5),
+    ("speech", 99.5),
+    ("typed_tidy", 99.5),
+];
+const FRESH2_DEV_MAX_SPURIOUS: usize = 1;
+
+#[test]
+fn fresh2_development_styles_recall_per_style() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_fresh2_dev.jsonl"));
+    print_figures("styles fresh2 dev", &result);
+    if !result.failures.is_empty() {
+        println!("failures:\n{}", result.failures.join("\n"));
+    }
+    assert!(
+        result.total >= 300,
+        "the second fresh development file has {} lines",
+        result.total
+    );
+    for (style, floor) in FRESH2_DEV_FLOORS {
+        let (ok, count) = result.per_style.get(style).copied().unwrap_or_default();
+        assert!(
+            count > 0,
+            "no second fresh development line of style {style}"
+        );
+        assert!(
+            recall(ok, count) >= floor,
+            "style {style}: {ok}/{count} is below the floor of {floor}%"
+        );
+    }
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the second fresh development file"
+    );
+    assert!(
+        result.spurious_constraints <= FRESH2_DEV_MAX_SPURIOUS,
+        "{} constraints from non-corrections on the second fresh development file",
+        result.spurious_constraints
+    );
+}
+
+/// Second fresh held-out floor. When the file arrived, before any change it prompted, the parser read 132/150
+/// (88.0%; no constraint from 25 non-corrections, no unasked relabel, 6 lines misread), as did the parser of
+/// the session's start; after the changes the development file prompted, 135/150 (90.0%; none, none, 4).
+const FRESH2_HELDOUT_FLOOR: f64 = 89.9;
+
+/// The second fresh held-out file is run for its figures only; its lines are never printed.
+#[test]
+fn fresh2_heldout_styles_figures_are_reported() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_fresh2_heldout.jsonl"));
+    print_figures("styles fresh2 held-out", &result);
+    assert!(
+        result.total >= 150,
+        "the second fresh held-out file has {} lines",
+        result.total
+    );
+    assert!(
+        recall(result.passed, result.total) >= FRESH2_HELDOUT_FLOOR,
+        "second fresh held-out recall {}/{} fell below {FRESH2_HELDOUT_FLOOR}%",
+        result.passed,
+        result.total
+    );
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the second fresh held-out file"
+    );
+    assert_eq!(
+        result.spurious_constraints, 0,
+        "constraints from non-corrections on the second fresh held-out file"
     );
 }

@@ -296,9 +296,8 @@ pub(super) fn count_kind(
         Quantity::None | Quantity::Exactly(0) | Quantity::AtMost(0) => {
             ConstraintKind::Absent { class }
         }
-        Quantity::Some | Quantity::AtLeast(0) | Quantity::AtLeast(1) => {
-            ConstraintKind::Present { class }
-        }
+        // "At least one dog" is said as a count and kept one; "some", "any" say only that it is there.
+        Quantity::Some | Quantity::AtLeast(0) => ConstraintKind::Present { class },
         Quantity::Exactly(n) => ConstraintKind::Count {
             class,
             count: Count::Exactly(n),
