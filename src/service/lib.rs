@@ -162,3 +162,19 @@ pub async fn run(
     let limits = server::ConnectionLimits::from_config(&state.config);
     server::serve(listener, app(state), limits, shutdown).await
 }
+
+/// `run` with hyper's bare head refusals (400, 414 and 431 with empty bodies) left as hyper writes them,
+/// without the stream wrapper that puts the JSON error shape in (`head_refusal`). Only for the bench that
+/// prices that wrapper (`benches/service.rs`); the binary and every deployment use `run`.
+#[doc(hidden)]
+pub async fn run_without_json_head_refusals(
+    listener: tokio::net::TcpListener,
+    state: AppState,
+    shutdown: impl Future<Output = ()> + Send + 'static,
+) -> std::io::Result<()> {
+    let limits = server::ConnectionLimits {
+        json_head_refusals: false,
+        ..server::ConnectionLimits::from_config(&state.config)
+    };
+    server::serve(listener, app(state), limits, shutdown).await
+}

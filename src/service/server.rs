@@ -16,6 +16,7 @@
 //! stream (`head_refusal::JsonHeadRefusals`) puts the JSON error shape in. Smaller heads over the router's
 //! own limits are refused in the JSON shape by `guard::shape_and_measure`.
 
+use std::convert::Infallible;
 use std::future::Future;
 use std::net::SocketAddr;
 use std::sync::Arc;
@@ -27,8 +28,9 @@ use axum::Router;
 use hyper::body::Incoming;
 use hyper::server::conn::http1;
 use hyper_util::rt::{TokioIo, TokioTimer};
+use tokio::io::{AsyncRead, AsyncWrite};
 use tokio::net::{TcpListener, TcpStream};
-use tokio::sync::{watch, Semaphore};
+use tokio::sync::{watch, OwnedSemaphorePermit, Semaphore};
 use tower::ServiceExt;
 
 use super::error::ApiError;
@@ -49,6 +51,9 @@ const ACCEPT_PAUSE: Duration = Duration::from_millis(50);
 pub struct ConnectionLimits {
     pub header_timeout: Duration,
     pub max_connections: usize,
+    /// Whether hyper's bare head refusals are answered in the JSON error shape (`head_refusal`): always
+    /// on in the service; off only where a bench prices the stream wrapper (`benches/service.rs`).
+    pub json_head_refusals: bool,
 }
 
 impl ConnectionLimits {
@@ -57,6 +62,7 @@ impl ConnectionLimits {
         ConnectionLimits {
             header_timeout: Duration::from_millis(config.header_timeout_ms),
             max_connections: config.max_connections,
+            json_head_refusals: true,
         }
     }
 }
@@ -115,6 +121,43 @@ async fn refuse(stream: TcpStream) {
     .await;
 }
 
+/// Serves HTTP/1.1 on one accepted connection's stream until it ends or `close` changes (then gracefully);
+/// `permit` is the connection's place under the cap, given back when it ends.
+fn spawn_connection<S, Svc>(
+    builder: &http1::Builder,
+    stream: S,
+    service: Svc,
+    mut close: watch::Receiver<()>,
+    permit: OwnedSemaphorePermit,
+) where
+    S: AsyncRead + AsyncWrite + Unpin + Send + 'static,
+    Svc: hyper::service::Service<
+            hyper::Request<Incoming>,
+            Response = axum::response::Response,
+            Error = Infallible,
+        > + Send
+        + 'static,
+    Svc::Future: Send + 'static,
+{
+    let connection = builder.serve_connection(TokioIo::new(stream), service);
+    tokio::spawn(async move {
+        tokio::pin!(connection);
+        tokio::select! {
+            result = connection.as_mut() => {
+                if let Err(error) = result {
+                    tracing::debug!(%error, "connection ended with an error");
+                }
+            }
+            _ = close.changed() => {
+                connection.as_mut().graceful_shutdown();
+                let _ = connection.await;
+            }
+        }
+        drop(close);
+        drop(permit);
+    });
+}
+
 /// Serves `router` on `listener` until `shutdown` resolves; then stops accepting, lets requests in flight
 /// finish and closes idle connections.
 pub async fn serve(
@@ -162,27 +205,13 @@ pub async fn serve(
                 .insert(ConnectInfo::<SocketAddr>(peer));
             router.clone().oneshot(request.map(Body::new))
         });
-        let connection = builder.serve_connection(
-            TokioIo::new(super::head_refusal::JsonHeadRefusals::new(stream)),
-            service,
-        );
-        let mut close = close_receiver.clone();
-        tokio::spawn(async move {
-            tokio::pin!(connection);
-            tokio::select! {
-                result = connection.as_mut() => {
-                    if let Err(error) = result {
-                        tracing::debug!(%error, "connection ended with an error");
-                    }
-                }
-                _ = close.changed() => {
-                    connection.as_mut().graceful_shutdown();
-                    let _ = connection.await;
-                }
-            }
-            drop(close);
-            drop(permit);
-        });
+        let close = close_receiver.clone();
+        if limits.json_head_refusals {
+            let stream = super::head_refusal::JsonHeadRefusals::new(stream);
+            spawn_connection(&builder, stream, service, close, permit);
+        } else {
+            spawn_connection(&builder, stream, service, close, permit);
+        }
     }
     drop(listener);
     drop(close_receiver);
