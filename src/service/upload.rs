@@ -66,7 +66,10 @@ fn class_list(text: &str, name: &str) -> Result<Vec<String>, ApiError> {
 
 /// Reads every part of a scene upload; `limit` is the body limit, stated in a refusal.
 pub async fn read_upload(mut multipart: Multipart, limit: usize) -> Result<SceneUpload, ApiError> {
-    let mut upload = SceneUpload::default();
+    let mut upload = SceneUpload {
+        multipart: true,
+        ..SceneUpload::default()
+    };
     let mut seen: Vec<String> = Vec::new();
     while let Some(field) = multipart
         .next_field()

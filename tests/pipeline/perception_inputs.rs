@@ -655,3 +655,35 @@ async fn a_service_with_a_user_model_scores_plain_images_with_it() {
     assert_eq!(status, StatusCode::CREATED, "{scene}");
     assert!(block_share(&labels_of(&app, &scene).await, class("sofa")) > 0.9);
 }
+
+/// A refused file is named as the caller sent it: the multipart part (`depth`, `image`), not the JSON
+/// route's base64 field.
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_multipart_refusal_names_the_part_that_was_sent() {
+    let (_data, app) = router(64 * 1024 * 1024);
+    let small_depth = sayso_core::raster::encode_index_png(&IndexImage {
+        width: 3,
+        height: 2,
+        values: vec![1000; 6],
+    })
+    .expect("a 3x2 depth PNG");
+    let (status, answer) = upload(
+        &app,
+        &[("image", read("corner.png")), ("depth", small_depth)],
+    )
+    .await;
+    assert_eq!(status, StatusCode::UNPROCESSABLE_ENTITY, "{answer}");
+    let message = answer["message"].as_str().unwrap_or_default();
+    assert!(
+        message.contains("depth") && !message.contains("_base64"),
+        "{answer}"
+    );
+
+    let (status, answer) = upload(&app, &[("image", b"not a picture".to_vec())]).await;
+    assert_eq!(status, StatusCode::UNPROCESSABLE_ENTITY, "{answer}");
+    let message = answer["message"].as_str().unwrap_or_default();
+    assert!(
+        message.contains("image") && !message.contains("_base64"),
+        "{answer}"
+    );
+}

@@ -46,6 +46,9 @@ pub struct SceneUpload {
     /// The label map's class list: value k is the k-th name.
     pub label_map_classes: Option<Vec<String>>,
     pub drop_unknown_classes: bool,
+    /// The files came as multipart form parts (`image`, `depth`, `label_map`), not base64 JSON fields: what
+    /// is refused is named as the caller sent it.
+    pub multipart: bool,
 }
 
 fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, SessionError> {
@@ -65,6 +68,15 @@ fn decode_base64(field: &str, text: &Option<String>) -> Result<Option<Vec<u8>>, 
 }
 
 impl SceneUpload {
+    /// The name of a file as the caller sent it: the multipart part, or the JSON field.
+    fn field(&self, part: &'static str, json: &'static str) -> &'static str {
+        if self.multipart {
+            part
+        } else {
+            json
+        }
+    }
+
     /// Removes the base64 from a wire request.
     pub fn from_request(request: RegisterSceneRequest) -> Result<SceneUpload, SessionError> {
         let image = match (&request.image_base64, &request.image_png_base64) {
@@ -91,6 +103,7 @@ impl SceneUpload {
             scores_kind: None,
             label_map_classes: request.label_map_classes,
             drop_unknown_classes: request.drop_unknown_classes.unwrap_or(false),
+            multipart: false,
         })
     }
 }
@@ -319,14 +332,15 @@ impl Coordinator {
                 upload.name = Some(demo);
             }
         }
+        let image_field = upload.field("image", "image_base64");
         let image_bytes = upload.image_png.take().ok_or_else(|| {
             SessionError::malformed(
                 "missing_image",
-                "send image_base64 (a base64 PNG or JPEG) or demo (a demo scene name)",
+                format!("send {image_field} (a PNG or JPEG) or demo (a demo scene name)"),
             )
         })?;
         let image = raster::decode_rgb_image(&image_bytes, Path::new("image"), self.pixel_limit)
-            .map_err(|error| raster_error("image_base64", error))?;
+            .map_err(|error| raster_error(image_field, error))?;
         // The log keeps PNG (its export writes image.png): a JPEG is stored as the PNG of its decoded pixels.
         let image_png = if raster::is_jpeg(&image_bytes) {
             raster::encode_rgb_png(&image).map_err(SessionError::internal)?
@@ -367,11 +381,13 @@ impl Coordinator {
                 Ok(())
             }
         };
+        let depth_field = upload.field("depth", "depth_png_base64");
+        let label_map_field = upload.field("label_map", "label_map_png_base64");
         let depth = match &upload.depth_png {
             Some(bytes) => {
                 let decoded = raster::decode_index_png(bytes, Path::new("depth"), self.pixel_limit)
-                    .map_err(|error| raster_error("depth_png_base64", error))?;
-                size_check("depth_png_base64", decoded.width, decoded.height)?;
+                    .map_err(|error| raster_error(depth_field, error))?;
+                size_check(depth_field, decoded.width, decoded.height)?;
                 Some(raster::DepthImage {
                     width: decoded.width,
                     height: decoded.height,
@@ -384,8 +400,8 @@ impl Coordinator {
             Some(bytes) => {
                 let decoded =
                     raster::decode_index_png(bytes, Path::new("label map"), self.pixel_limit)
-                        .map_err(|error| raster_error("label_map_png_base64", error))?;
-                size_check("label_map_png_base64", decoded.width, decoded.height)?;
+                        .map_err(|error| raster_error(label_map_field, error))?;
+                size_check(label_map_field, decoded.width, decoded.height)?;
                 Some(decoded)
             }
             None => None,
