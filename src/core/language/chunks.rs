@@ -508,6 +508,27 @@ fn counted_then_number(earlier: &ChunkKind, replacement: &ChunkKind) -> bool {
     )
 }
 
+/// Drops a repair's cue at `index`, the pauses just before it (never reaching back to `from`, the repaired
+/// chunk) and everything after it up to `to`, the replacement already moved into place, reporting the dropped
+/// words as a self-repair.
+fn drop_repair_cue(
+    chunks: &mut Vec<Chunk>,
+    ignored: &mut Vec<(Span, IgnoredReason)>,
+    from: usize,
+    index: usize,
+    to: usize,
+) {
+    let mut cut = index;
+    while cut > from + 1 && chunks[cut - 1].kind == ChunkKind::Separator {
+        cut -= 1;
+    }
+    ignored.push((
+        chunks[cut].span.cover(chunks[to].span),
+        IgnoredReason::SelfRepair,
+    ));
+    chunks.drain(cut..=to);
+}
+
 /// Applies self-repairs: at a cue, the nearest earlier chunk of the same kind as the chunk after the cue is
 /// dropped together with everything up to the cue.
 pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Chunk> {
@@ -595,15 +616,7 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
         };
         if let (Some(from), Some(to)) = (swapped, next) {
             chunks[from] = chunks[to].clone();
-            let mut cut = index;
-            while cut > from + 1 && chunks[cut - 1].kind == ChunkKind::Separator {
-                cut -= 1;
-            }
-            ignored.push((
-                chunks[cut].span.cover(chunks[to].span),
-                IgnoredReason::SelfRepair,
-            ));
-            chunks.drain(cut..=to);
+            drop_repair_cue(&mut chunks, ignored, from, index, to);
             index = from + 1;
             continue;
         }
@@ -624,15 +637,7 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                     };
                     // What came between ("on the couch" in "five pillows on the couch, no wait, six")
                     // stays; the cue, its pauses and the number go.
-                    let mut cut = index;
-                    while cut > from + 1 && chunks[cut - 1].kind == ChunkKind::Separator {
-                        cut -= 1;
-                    }
-                    ignored.push((
-                        chunks[cut].span.cover(chunks[to].span),
-                        IgnoredReason::SelfRepair,
-                    ));
-                    chunks.drain(cut..=to);
+                    drop_repair_cue(&mut chunks, ignored, from, index, to);
                 }
                 index = from + 1;
             }

@@ -336,7 +336,10 @@ impl Coordinator {
         let image_bytes = upload.image_png.take().ok_or_else(|| {
             SessionError::malformed(
                 "missing_image",
-                format!("send {image_field} (a PNG or JPEG) or demo (a demo scene name)"),
+                format!(
+                    "send {image_field} (a {}PNG or JPEG) or demo (a demo scene name)",
+                    if upload.multipart { "" } else { "base64 " }
+                ),
             )
         })?;
         let image = raster::decode_rgb_image(&image_bytes, Path::new("image"), self.pixel_limit)
