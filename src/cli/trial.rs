@@ -47,6 +47,10 @@ pub struct TrialArgs {
     /// The classifier's ONNX file (default: $SAYSO_MODEL, else models/segment_classifier.onnx).
     #[arg(long)]
     pub model: Option<PathBuf>,
+    /// Speak with this half's phrasings instead of the seeds' own half (a diagnosis: held-out seeds with
+    /// dev phrasings separates what the scenes cost from what unseen wording costs).
+    #[arg(long, value_enum)]
+    pub phrasings: Option<Half>,
 }
 
 pub fn run(args: TrialArgs) -> anyhow::Result<()> {
@@ -65,6 +69,14 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         "seeds {first}..{end} leave the {} half's range",
         set.table()
     );
+    let set = match args.phrasings {
+        Some(Half::Dev) => PhrasingSet::Dev,
+        Some(Half::HeldOut) => PhrasingSet::HeldOut,
+        None => set,
+    };
+    if args.phrasings.is_some() {
+        println!("phrasings: the {} half's", set.table());
+    }
     let phrasings = Phrasings::embedded(set)?;
     let context = TrialContext {
         taxonomy: &taxonomy,
@@ -171,6 +183,25 @@ pub fn run(args: TrialArgs) -> anyhow::Result<()> {
         summary.notes,
         100.0 * summary.failed as f64 / summary.notes.max(1) as f64
     );
+    let mut outcomes: Vec<String> = Vec::new();
+    for outcome in [
+        sayso_lab::trial::Outcome::Unmet,
+        sayso_lab::trial::Outcome::Asked,
+        sayso_lab::trial::Outcome::Misread,
+        sayso_lab::trial::Outcome::NotUnderstood,
+    ] {
+        let count = trials
+            .iter()
+            .flat_map(|t| &t.notes)
+            .filter(|n| n.outcome == outcome)
+            .count();
+        if count > 0 {
+            outcomes.push(format!("{} {count}", outcome.word().to_lowercase()));
+        }
+    }
+    if !outcomes.is_empty() {
+        println!("  of which: {}", outcomes.join(", "));
+    }
     println!(
         "answers to the notes' questions (the operator pointing at a candidate that is not of the class, or at a thing the robot could not find, one turn each): {}",
         summary.answers
