@@ -7,6 +7,8 @@
 //! restart — everything it needs again goes into `SceneState::engine_state`, which the service persists and
 //! hands back, with the engine states of the version's ancestors on demand (`Lineage`).
 
+use std::sync::Arc;
+
 use serde::{Deserialize, Serialize};
 
 use crate::ids::{ClassId, ObjectId, RoomId};
@@ -69,6 +71,12 @@ pub struct SceneInput {
     /// or by another replica), so they need not be cut again; `None` cuts them. Not part of what the
     /// registration is: its digest leaves them out, and a map that does not fit the image is ignored.
     pub superpixels: Option<IndexImage>,
+    /// What preparing the scene computed on those superpixels (statistics, adjacency, coarse level,
+    /// unaries), in the stored form `crate::prepared_form` writes, kept with the scene and read back after
+    /// a restart so it need not be computed again; `None`, or a form that does not fit this registration,
+    /// its superpixels or the served model, prepares the scene again. Not part of the registration's
+    /// digest.
+    pub prepared: Option<Arc<Vec<u8>>>,
 }
 
 /// One object of the current scene graph, as the service shows it.
@@ -220,6 +228,13 @@ pub trait Corrector: Send + Sync + 'static {
     /// service stores with the scene, so that a restart or another replica need not cut them again; `None`
     /// when it keeps none.
     fn superpixels(&self, _input: &SceneInput) -> Option<IndexImage> {
+        None
+    }
+
+    /// What the corrector computed preparing `input` on those superpixels (asked right after
+    /// `superpixels`, with them set in `input.superpixels`), in a form it reads back from
+    /// `SceneInput::prepared` after a restart; `None` when it keeps none.
+    fn prepared_form(&self, _input: &SceneInput) -> Option<Vec<u8>> {
         None
     }
 

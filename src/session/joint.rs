@@ -240,6 +240,8 @@ pub struct JointCorrector {
     solved: Mutex<Bounded<Arc<Correction>>>,
     /// Turns re-solved to rebuild versions the cache and the snapshots did not hold, since start.
     replayed: std::sync::atomic::AtomicU64,
+    /// Scenes prepared by computing their statistics and unaries (not read from a stored form), since start.
+    computed: std::sync::atomic::AtomicU64,
 }
 
 fn internal(error: impl std::fmt::Display) -> CorrectorError {
@@ -261,6 +263,7 @@ impl JointCorrector {
             prepared: Mutex::new(Bounded::new(PREPARED_CACHE)),
             solved: Mutex::new(Bounded::new(SOLVED_CACHE)),
             replayed: std::sync::atomic::AtomicU64::new(0),
+            computed: std::sync::atomic::AtomicU64::new(0),
         }
     }
 
@@ -293,6 +296,13 @@ impl JointCorrector {
         self.replayed.load(std::sync::atomic::Ordering::Relaxed)
     }
 
+    /// How many scenes this corrector has prepared by computing their segment statistics, adjacency,
+    /// coarse level and unaries, rather than reading them from the form kept with the registration (0 after
+    /// a restart when every scene asked for had its form).
+    pub fn computed_preparations(&self) -> u64 {
+        self.computed.load(std::sync::atomic::Ordering::Relaxed)
+    }
+
     /// The embedded grammar, room prior and weights, and the classifier at `model`
     /// (`crate::pipeline::model_path(None)` for the default).
     pub fn load(model: &std::path::Path) -> Result<JointCorrector, crate::pipeline::PipelineError> {
@@ -322,7 +332,11 @@ impl JointCorrector {
             return Ok(found);
         }
         let classifier = self.current_classifier();
-        let prepared = Arc::new(prepare_input(input, self.taxonomy(), &classifier)?);
+        let prepared = Arc::new(prepare_input(input, &digest, self.taxonomy(), &classifier)?);
+        if !prepared.from_stored_form {
+            self.computed
+                .fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+        }
         // A model replaced meanwhile: this turn keeps the scores it has, but the cache does not.
         if self.current_classifier().id() == classifier.id() {
             lock(&self.prepared).insert(digest, prepared.clone());
@@ -621,6 +635,16 @@ impl Corrector for JointCorrector {
     fn superpixels(&self, input: &SceneInput) -> Option<crate::raster::IndexImage> {
         let prepared = self.prepared_for(input, None).ok()?;
         superpixel_image(&prepared.scene.segments)
+    }
+
+    fn prepared_form(&self, input: &SceneInput) -> Option<Vec<u8>> {
+        let prepared = self.prepared_for(input, None).ok()?;
+        super::prepared_form::encode(&super::prepared_form::PreparedParts {
+            scene: &prepared.scene,
+            unaries: &prepared.unaries,
+            model: prepared.model.as_deref(),
+            digest: &prepared.digest,
+        })
     }
 
     /// The objects of the version's solved scene graph (cached, or read from its snapshot; a version

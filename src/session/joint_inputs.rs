@@ -5,8 +5,9 @@
 //! `crate::unaries::perception`, as `fix` reads them; detections with their masks), the digest that
 //! names a registration, and the superpixels kept with a registration (`superpixel_image`; read back by
 //! `scene_on_stored`, which builds the same scene `Scene::from_image` builds on the superpixels it cuts,
-//! without cutting them again). Superpixels are cut with `SceneParams::for_image_size`, as on the
-//! command line.
+//! without cutting them again), and the prepared scene read back from the form kept with a registration
+//! (`crate::prepared_form`), else computed again with a line in the log. Superpixels are cut with
+//! `SceneParams::for_image_size`, as on the command line.
 //! Must not: parse utterances, solve, or know about the service's storage; the caller caches.
 
 use sha2::{Digest, Sha256};
@@ -27,6 +28,7 @@ use crate::unaries::perception::{LabelMap, Perception, PixelScores, ScoreSource}
 use crate::unaries::{Classifier, Unaries, UnarySource};
 
 use super::corrector::{CorrectorError, PerceptionClasses, SceneInput};
+use super::prepared_form;
 
 /// A registered scene ready to be solved.
 pub struct PreparedInput {
@@ -35,6 +37,10 @@ pub struct PreparedInput {
     pub detections: Vec<HypothesisDetection>,
     /// The id of the built-in classifier that scored the scene (`None` when the scores came with it).
     pub model: Option<String>,
+    /// `input_digest` of the registration it was prepared from.
+    pub digest: String,
+    /// Read back from the stored form kept with the registration (`crate::prepared_form`), not computed.
+    pub from_stored_form: bool,
 }
 
 /// The lower-case hex SHA-256 of everything that decides a scene's solve: its name, pixels, depth, scores,
@@ -194,13 +200,75 @@ fn scene_on_stored(input: &SceneInput, stored: &IndexImage, params: &SceneParams
     })
 }
 
+/// The registration's detections as the solve takes them, masks unpacked and checked against the image.
+fn detections_of(input: &SceneInput) -> Result<Vec<HypothesisDetection>, CorrectorError> {
+    let mut detections = Vec::with_capacity(input.detections.len());
+    for (index, detection) in input.detections.iter().enumerate() {
+        let mask = match &detection.mask {
+            Some(runs) => {
+                let refuse = |message: String| {
+                    bad("detections", format!("detection {}: {message}", index + 1))
+                };
+                if (runs.width, runs.height) != (input.image.width, input.image.height) {
+                    return Err(refuse(format!(
+                        "mask is {}x{} but the image is {}x{}",
+                        runs.width, runs.height, input.image.width, input.image.height
+                    )));
+                }
+                Some(DetectionMask::from_runs(runs).map_err(refuse)?)
+            }
+            None => None,
+        };
+        detections.push(HypothesisDetection {
+            class: detection.class,
+            bbox: detection.bbox,
+            score: detection.score,
+            mask,
+        });
+    }
+    Ok(detections)
+}
+
 /// Builds superpixels (or reads back the ones kept with the registration) and unaries for a registration,
 /// through the same `Perception` as `fix`.
 pub fn prepare_input(
     input: &SceneInput,
+    digest: &str,
     taxonomy: &Taxonomy,
     classifier: &Classifier,
 ) -> Result<PreparedInput, CorrectorError> {
+    if let Some(bytes) = &input.prepared {
+        let expected_model = |scene: &Scene| {
+            (input.scores_npy.is_none() && input.label_map.is_none()).then(|| {
+                crate::unaries::builtin::classifier_for(scene, classifier)
+                    .id()
+                    .to_string()
+            })
+        };
+        match prepared_form::decode(bytes, input, digest, expected_model) {
+            Ok(decoded) => {
+                return Ok(PreparedInput {
+                    scene: decoded.scene,
+                    unaries: decoded.unaries,
+                    detections: detections_of(input)?,
+                    model: decoded.model,
+                    digest: digest.to_string(),
+                    from_stored_form: true,
+                })
+            }
+            Err(error) => tracing::warn!(
+                scene = %input.name,
+                %error,
+                "the prepared scene kept with the registration is not used; preparing the scene again"
+            ),
+        }
+    } else if input.superpixels.is_some() {
+        tracing::info!(
+            scene = %input.name,
+            "no prepared scene is kept with this registration (an earlier build registered it); \
+             preparing the scene again on its kept superpixels"
+        );
+    }
     let params = SceneParams::for_image_size(input.image.width, input.image.height);
     let stored = input
         .superpixels
@@ -238,30 +306,7 @@ pub fn prepare_input(
     } else {
         (ScoreSource::BuiltIn, "image_base64")
     };
-    let mut detections = Vec::with_capacity(input.detections.len());
-    for (index, detection) in input.detections.iter().enumerate() {
-        let mask = match &detection.mask {
-            Some(runs) => {
-                let refuse = |message: String| {
-                    bad("detections", format!("detection {}: {message}", index + 1))
-                };
-                if (runs.width, runs.height) != (input.image.width, input.image.height) {
-                    return Err(refuse(format!(
-                        "mask is {}x{} but the image is {}x{}",
-                        runs.width, runs.height, input.image.width, input.image.height
-                    )));
-                }
-                Some(DetectionMask::from_runs(runs).map_err(refuse)?)
-            }
-            None => None,
-        };
-        detections.push(HypothesisDetection {
-            class: detection.class,
-            bbox: detection.bbox,
-            score: detection.score,
-            mask,
-        });
-    }
+    let detections = detections_of(input)?;
     let perception = Perception {
         scores,
         detections,
@@ -285,6 +330,8 @@ pub fn prepare_input(
         unaries: perceived.unaries,
         detections: perceived.detections,
         model,
+        digest: digest.to_string(),
+        from_stored_form: false,
     })
 }
 
@@ -314,6 +361,7 @@ mod tests {
             room: None,
             classes: PerceptionClasses::default(),
             superpixels: None,
+            prepared: None,
         }
     }
 
@@ -388,11 +436,13 @@ mod tests {
             room: None,
             classes: PerceptionClasses::default(),
             superpixels: None,
+            prepared: None,
         };
         let box_digest = input_digest(&input);
         input.detections[0].mask = Some(runs);
         assert_ne!(input_digest(&input), box_digest);
-        let prepared = prepare_input(&input, &taxonomy, &classifier).unwrap();
+        let prepared =
+            prepare_input(&input, &input_digest(&input), &taxonomy, &classifier).unwrap();
         let mask = prepared.detections[0].mask.as_ref().unwrap();
         assert_eq!(mask.inside, inside);
 
@@ -401,7 +451,9 @@ mod tests {
             height: 4,
             runs: vec![3, 2],
         });
-        let refused = prepare_input(&input, &taxonomy, &classifier).err().unwrap();
+        let refused = prepare_input(&input, &input_digest(&input), &taxonomy, &classifier)
+            .err()
+            .unwrap();
         assert!(
             refused.to_string().contains("detection 1")
                 && refused.to_string().contains("mask runs"),
@@ -425,6 +477,7 @@ mod tests {
             room: None,
             classes: PerceptionClasses::default(),
             superpixels: None,
+            prepared: None,
         };
         // The digest as earlier builds wrote it (stored engine states name their scene by it): every part
         // framed by its tag and length, the pixels copied out whole.

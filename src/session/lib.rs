@@ -41,6 +41,7 @@ pub mod error;
 pub mod field_notes;
 pub mod joint;
 mod joint_inputs;
+mod prepared_form;
 
 /// The deployment's settings file, read by `sayso serve` and every command that opens the correction log.
 pub mod config;

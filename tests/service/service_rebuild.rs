@@ -176,6 +176,12 @@ fn a_long_chain_is_not_replayed_after_a_restart() {
         "the head of a {LONG_CHAIN}-version chain is read from its snapshot, not replayed"
     );
     assert_eq!(
+        corrector.computed_preparations(),
+        0,
+        "the scene's statistics, adjacency, coarse level and unaries are read from the form kept with \
+         its registration, not computed again"
+    );
+    assert_eq!(
         cold.label_map_png(scene).unwrap(),
         warm.label_map_png(warm_scene).unwrap(),
         "the restored scene answers the next turn exactly as the service that never stopped"

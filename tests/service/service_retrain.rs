@@ -297,6 +297,7 @@ fn a_running_corrector_swaps_its_model_and_names_it_in_each_state() {
         room: None,
         classes: Default::default(),
         superpixels: None,
+        prepared: None,
     };
     let shipped = crate::paths::shipped_model();
     let corrector = JointCorrector::load(&shipped).unwrap();

@@ -226,6 +226,10 @@ pub(crate) struct StoredInput {
     /// The superpixels the corrector cut at registration, so a restart need not cut them again.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     superpixels_png: Option<String>,
+    /// What the corrector computed preparing the scene on those superpixels, in its stored form
+    /// (`crate::prepared_form`), so a restart need not compute it again.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    prepared: Option<String>,
 }
 
 /// Rebuilds a stored scene's registration from its row: `blob` fetches a stored blob by hash.
@@ -253,6 +257,14 @@ pub(crate) fn restore_input(
     });
     let label_map = index_png(&stored.label_map_png, "stored label map")?;
     let superpixels = index_png(&stored.superpixels_png, "stored superpixels")?;
+    // A prepared form that cannot be read is only a lost shortcut: the scene is prepared again.
+    let prepared = stored.prepared.as_ref().and_then(|hash| match blob(hash) {
+        Ok(bytes) => Some(std::sync::Arc::new(bytes)),
+        Err(error) => {
+            tracing::warn!(scene = name, %error, "the stored prepared scene cannot be read");
+            None
+        }
+    });
     let scores_npy = match &stored.scores_npy {
         Some(hash) => Some(blob(hash)?),
         None => None,
@@ -267,6 +279,7 @@ pub(crate) fn restore_input(
         room: stored.room,
         classes: stored.classes,
         superpixels,
+        prepared,
     })
 }
 
@@ -507,6 +520,7 @@ impl Coordinator {
             room,
             classes: classes.clone(),
             superpixels: None,
+            prepared: None,
         };
         let state = self
             .corrector
@@ -524,11 +538,13 @@ impl Coordinator {
             .as_ref()
             .and_then(|map| raster::encode_index_png(map).ok());
         input.superpixels = superpixels;
+        let prepared = self.corrector.prepared_form(&input);
         let parts: Vec<&[u8]> = [
             &upload.depth_png,
             &upload.scores_npy,
             &upload.label_map_png,
             &superpixels_png,
+            &prepared,
         ]
         .into_iter()
         .flatten()
@@ -542,6 +558,7 @@ impl Coordinator {
             room,
             classes,
             superpixels_png: superpixels_png.as_deref().map(blob_hash),
+            prepared: prepared.as_deref().map(blob_hash),
         })
         .map_err(SessionError::internal)?;
         // Past this check the request is no longer abandoned by its time limit: the caller gets the ids.
@@ -558,6 +575,7 @@ impl Coordinator {
                 state: &record,
             })
             .map_err(log_error)?;
+        input.prepared = prepared.map(Arc::new);
         self.scenes.insert(
             key,
             SceneSlot {
