@@ -137,3 +137,12 @@ dining chair -> class chair
 kitchen counter -> class counter
 back door -> class door
 front door -> class door
+
+# "The washing" is clothes; a washing machine or basket is not.
+washing = laundry when after the|of|some|my|your|our|clean|dirty|wet|folded unless before machine|machines|basket|baskets|line|up
+
+# More everyday names for the classes (common English usage, from memory).
+fern -> class plant
+greyhound -> class dog
+bedside lamp -> class lamp
+bedside light -> class lamp

@@ -144,6 +144,13 @@ w / = with
 yes = present when after :|-|=
 y = present when after :|-|=
 corner = in the corner when after :|-|=
+# "tbl centre", "rug middle": a region word right after a noted thing and closing the note is its place.
+centre = in the centre when after <class> when before <end>|,|;|.|/|+
+center = in the centre when after <class> when before <end>|,|;|.|/|+
+middle = in the middle when after <class> when before <end>|,|;|.|/|+
+corner = in the corner when after <class> when before <end>|,|;|.|/|+
+# "chairs x4 round tbl": "round" before a noun phrase is "around", unless it describes one ("the round table").
+round = around when before <class>|tbl|tbls|the|a|an|my|our|your|his|her|their unless after <start>|the|a|an|this|that|is|are|<number>
 # "lamp in corner": the region phrase "in the corner".
 corner = the corner when after in
 center = in the centre when after :|-|=

@@ -22,6 +22,14 @@ to = two when after is|be|was when before <end>
 tree = three when before <plural>
 free = three when before <plural>
 
+# "at least" heard as "at lease"; "corner" with its r lost; "inside" heard as "in sight" before a noun phrase.
+at lease = at least
+conner = corner
+conners = corners
+in sight = inside when before the|a|an|my|your|his|her|our|their|this|that
+counter top = countertop
+counter tops = countertops
+
 # "not" heard as "knot".
 knot = not
 

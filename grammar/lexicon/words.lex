@@ -565,6 +565,18 @@ aches -> greeting
 rain -> greeting
 later -> greeting
 walk -> greeting
+weather's = weather is
+awful -> greeting
+terrible -> greeting
+horrible -> greeting
+week -> greeting
+birthday -> greeting
+holiday -> greeting
+tomorrow -> greeting
+yesterday -> greeting
+tonight -> greeting
+getting better -> greeting
+better at this -> greeting
 
 # Words that carry nothing for a correction.
 i -> skip
@@ -713,6 +725,19 @@ look at -> request
 feed -> request
 drop -> request
 check -> request
+# "Look under the bed", "zoom in on the shelf": where to look next is a request; "look" alone ("look, the
+# mug is on the desk") only draws attention.
+look under -> request
+look in -> request
+look inside -> request
+look behind -> request
+look around -> request
+look for -> request
+look again -> request
+have a look -> request
+zoom -> request
+zoom in -> request
+zoom out -> request
 wait here -> request
 can you see -> question
 can you tell me -> question

@@ -7,6 +7,7 @@
 //! Must not: look at scene content or the conversation history; the conversation binds "previous" later.
 
 use crate::ids::ClassId;
+use crate::taxonomy::{ClassGroup, Taxonomy};
 
 use super::chunks::{AttachedRelation, Chunk, ChunkKind, NounPhrase, Quantity};
 use super::constraint::{
@@ -17,6 +18,7 @@ use super::lexicon::Side;
 use super::rules::{Action, Match};
 
 mod existence;
+mod landmarks;
 
 /// Confidence of a constraint built only from known words.
 pub const FULL_CONFIDENCE: f32 = 1.0;
@@ -24,8 +26,10 @@ pub const FULL_CONFIDENCE: f32 = 1.0;
 pub const MISSPELLING_CONFIDENCE: f32 = 0.75;
 
 /// Builds constraints for one utterance, left to right.
-pub struct Builder {
+pub struct Builder<'t> {
     has_focus: bool,
+    /// The class taxonomy: which things can hold or carry others, for a pronoun landmark.
+    taxonomy: &'t Taxonomy,
     /// A referent has already been named in this utterance.
     seen_referent: bool,
     /// The class of the last noun phrase named in this utterance, used or not.
@@ -35,6 +39,9 @@ pub struct Builder {
     unused_antecedent: Option<NounPhrase>,
     /// The last relation stated (subject, relation, landmarks), for ", not on the table".
     last_relation: Option<(Referent, Relation, Vec<Referent>)>,
+    /// "The bowl and the plate are in the sink, not on the counter": the other subjects of the last relation
+    /// stated of several, keyed by the span of the subject `last_relation` holds.
+    coordinated: Option<(Span, Vec<Referent>)>,
     /// The owner of the last "X has a Y on it": a later "and a Z beside it" in the same utterance means X.
     owner: Option<NounPhrase>,
     /// The thing the last clause said exists ("you missed a mug"): a later "it's on the desk" in the same
@@ -53,14 +60,16 @@ pub struct Builder {
     pub constraints: Vec<Constraint>,
 }
 
-impl Builder {
-    pub fn new(has_focus: bool) -> Builder {
+impl<'t> Builder<'t> {
+    pub fn new(has_focus: bool, taxonomy: &'t Taxonomy) -> Builder<'t> {
         Builder {
             has_focus,
+            taxonomy,
             seen_referent: false,
             last_class: None,
             unused_antecedent: None,
             last_relation: None,
+            coordinated: None,
             owner: None,
             introduced: None,
             named: Vec::new(),
@@ -112,45 +121,6 @@ impl Builder {
                 self.name(landmark);
             }
         }
-    }
-
-    /// A landmark's referent; a pronoun landmark ("the bottle is in the fridge, and the bowl is on top of
-    /// it", "the cat isn't on the bed, it's under it") is the latest thing the utterance named that is not
-    /// the clause's own subject, or the previous referent when there is none.
-    pub(super) fn landmark_referent(
-        &mut self,
-        landmark: &NounPhrase,
-        subject: &NounPhrase,
-    ) -> Referent {
-        let pronoun = landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun);
-        let subject_is_pronoun =
-            subject.class.is_none() && subject.deictic.is_some_and(|word| word.pronoun);
-        let last_subject = self
-            .last_relation
-            .as_ref()
-            .map(|(subject, ..)| subject.clone());
-        if pronoun {
-            let found = self.named.iter().rev().find(|named| {
-                let is_subject = if subject_is_pronoun {
-                    // "It's under it": the first "it" is what the last relation was about.
-                    last_subject.as_ref().is_some_and(|last| {
-                        last.class == named.class && last.deixis == named.deixis
-                    })
-                } else {
-                    named.class == subject.class
-                        && named.deixis.is_none()
-                        && subject.deictic.is_none()
-                };
-                !is_subject
-            });
-            if let Some(found) = found {
-                return Referent {
-                    span: landmark.span,
-                    ..found.clone()
-                };
-            }
-        }
-        self.plain_referent(landmark)
     }
 
     /// Whether this utterance already said `class` is absent.
@@ -503,18 +473,50 @@ impl Builder {
                 }
             }
             Action::Relation => {
+                // "On the counter, right of the sink, there's a bottle": two fronted places, each stated;
+                // the thing said to exist is said so once.
+                let relations = found.role("relation");
+                let landmarks = found.role("landmark");
+                if relations.len() == 2 && landmarks.len() == 2 {
+                    let from = self.constraints.len();
+                    for (relation, landmark) in relations.iter().zip(&landmarks) {
+                        let mut single = found.clone();
+                        single.roles.retain(|(role, index)| {
+                            (*role != "relation" || index == relation)
+                                && (*role != "landmark" || index == landmark)
+                        });
+                        self.apply(&single, chunks, position);
+                    }
+                    let mut index = from;
+                    while index < self.constraints.len() {
+                        let kind = &self.constraints[index].kind;
+                        if self.constraints[from..index]
+                            .iter()
+                            .any(|c| &c.kind == kind)
+                        {
+                            self.constraints.remove(index);
+                        } else {
+                            index += 1;
+                        }
+                    }
+                    return;
+                }
                 let subjects: Vec<NounPhrase> = found
                     .role("subject")
                     .into_iter()
                     .filter_map(phrase)
                     .collect();
                 // "The plant and the lamp are by the sofa": one relation per coordinated subject.
+                let mut others = Vec::new();
                 for extra in subjects.iter().skip(1) {
                     let mut single = found.clone();
                     single.roles.retain(|(role, index)| {
                         *role != "subject" || chunks[*index].span == extra.span
                     });
                     self.apply(&single, chunks, position);
+                    if let Some((subject, ..)) = &self.last_relation {
+                        others.push(subject.clone());
+                    }
                 }
                 // A pronoun subject ("the bag is on the floor and it's also by the door") stays the previous
                 // referent, `^`, which the conversation binds to what the last constraint was about. A thing
@@ -618,9 +620,10 @@ impl Builder {
                 let subject_referent = self.referent(&subject);
                 let landmarks: Vec<Referent> = landmark_phrases
                     .iter()
-                    .map(|landmark| self.landmark_referent(landmark, &subject))
+                    .map(|landmark| self.landmark_referent(landmark, &subject, relation))
                     .collect();
                 self.last_relation = Some((subject_referent.clone(), relation, landmarks.clone()));
+                self.coordinated = (!others.is_empty()).then_some((subject_referent.span, others));
                 // "The lamp, not the vase, is on the table": the denied subject, denied.
                 if let (Some(denied), false) = (first_phrase("denied_subject"), negated) {
                     let denied = self.plain_referent(&denied);
@@ -674,9 +677,26 @@ impl Builder {
                             && phrase.class == self.introduced.as_ref().and_then(|np| np.class));
                 // "The plant's in the corner, next to the window": a further place of the thing just placed.
                 // So is one after a thing's colour ("rug: blue, under tbl").
+                // And one after a count in a note ("plates: 4, in sink"), of the things counted.
                 let placed_or_described = match self.constraints.last().map(|last| &last.kind) {
                     Some(ConstraintKind::Place { subject, .. }) => Some(subject.clone()),
                     Some(ConstraintKind::Attribute { target, .. }) => Some(target.clone()),
+                    Some(ConstraintKind::Count { class, count })
+                        if self.last_relation.is_none()
+                            && position >= 2
+                            && chunks[position - 1].kind == ChunkKind::Separator
+                            && matches!(chunks[position - 2].kind, ChunkKind::Number { .. }) =>
+                    {
+                        Some(Referent {
+                            class: Some(*class),
+                            deixis: None,
+                            plural: !matches!(count, Count::Exactly(1) | Count::AtMost(1)),
+                            attributes: Vec::new(),
+                            relations: Vec::new(),
+                            region: None,
+                            span: chunks[position - 2].span,
+                        })
+                    }
                     _ => None,
                 };
                 if let (true, Some(subject)) = (stated_relation, placed_or_described) {
@@ -741,6 +761,20 @@ impl Builder {
                     return;
                 }
                 self.last_relation = Some((subject.clone(), relation, landmarks.clone()));
+                let others = match &self.coordinated {
+                    Some((key, others)) if *key == subject.span => others.clone(),
+                    _ => Vec::new(),
+                };
+                for other in others {
+                    self.push_relation(
+                        other,
+                        relation,
+                        negated,
+                        landmarks.clone(),
+                        span,
+                        misspelled,
+                    );
+                }
                 self.push_relation(subject, relation, negated, landmarks, span, misspelled);
             }
             Action::RelationSame => {
@@ -873,6 +907,12 @@ impl Builder {
                     });
                     let quantity = if negated { Quantity::None } else { quantity };
                     self.count(np.as_ref(), quantity, bare, span, misspelled);
+                    // "Bottles in fridge: 5": the counted things' place is stated too.
+                    if let Some(np) = np.filter(|np| {
+                        np.class.is_some() && !np.relations.is_empty() && quantity != Quantity::None
+                    }) {
+                        self.counted_relations(&np, quantity, span, misspelled);
+                    }
                 }
             }
             Action::Attribute => {

@@ -190,7 +190,12 @@ fn drop_names_before(
 ) -> Vec<Item> {
     let mut removed = vec![false; items.len()];
     for index in 0..items.len() {
-        let opens_clause = index == 0 || items[index - 1].tag == ItemTag::Pause;
+        // "Marzipan, the dog, and Fennel, the cat, are on the rug": a name after "and" opens a conjunct.
+        let opens_clause = index == 0
+            || matches!(
+                items[index - 1].tag,
+                ItemTag::Pause | ItemTag::Lexicon(Tag::And)
+            );
         if items[index].tag != ItemTag::Unknown || !opens_clause {
             continue;
         }

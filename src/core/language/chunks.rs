@@ -332,6 +332,15 @@ fn noun_phrase_at(items: &[Item], start: usize) -> Option<(Chunk, usize)> {
     if let Some(word) = deictic {
         plural |= word.plural;
     }
+    // "laptop x2 on desk" (read as "2 laptop"): a class word counted more than once names several things.
+    if class.is_some()
+        && matches!(
+            quantity,
+            Some(Quantity::Exactly(2..) | Quantity::AtLeast(2..))
+        )
+    {
+        plural = true;
+    }
     let span = items[start].span.cover(items[index - 1].span);
     Some((
         Chunk {
@@ -684,7 +693,7 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
 
 /// Attaches relation and region phrases to the noun phrase before them, and merges attribute lists
 /// ("black and white").
-pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
+pub fn attach(chunks: Vec<Chunk>, is_structure: impl Fn(ClassId) -> bool) -> Vec<Chunk> {
     let mut chunks = chunks;
     counts_after_nouns(&mut chunks);
     deny_alternatives(&mut chunks);
@@ -744,6 +753,19 @@ pub fn attach(chunks: Vec<Chunk>) -> Vec<Chunk> {
                             ChunkKind::Relation(Relation::On | Relation::Inside)
                         )
                         && chunks[index - 2].kind == ChunkKind::Be =>
+                {
+                    false
+                }
+                // "Five books on the floor by the bed", "the clock on the wall above the desk": the floor,
+                // a wall or the ceiling is too large to be placed, so a place after one as the landmark of
+                // another place is the thing's.
+                Some(ChunkKind::Relation(relation))
+                    if *relation != Relation::Between
+                        && index >= 2
+                        && matches!(chunks[index - 1].kind, ChunkKind::Relation(_))
+                        && matches!(&chunks[index].kind, ChunkKind::NounPhrase(phrase)
+                            if phrase.class.is_some_and(&is_structure)
+                                && phrase.deictic.is_none()) =>
                 {
                     false
                 }

@@ -287,7 +287,12 @@ impl Grammar {
         let mut notes = Vec::new();
         let mut ignored_raw: Vec<(Span, IgnoredReason)> = Vec::new();
         let sentences = tag_sentences(&self.lexicon, &tokens, &mut notes, &mut ignored_raw);
-        let mut builder = Builder::new(focus.is_some());
+        let mut builder = Builder::new(focus.is_some(), &self.taxonomy);
+        let structure = |class: crate::ids::ClassId| {
+            self.taxonomy
+                .class(class)
+                .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Structure)
+        };
         let mut other_kinds: Vec<UtteranceKind> = Vec::new();
         // Symbols, emoji and unknown scripts count as content; spaces and clause punctuation do not.
         let mut any_words = normalised
@@ -322,7 +327,7 @@ impl Grammar {
                     // or "it" of the same utterance means.
                     let mut scratch = Vec::new();
                     let items = clean(sentence.items, &mut scratch);
-                    let chunks = attach(repair(chunk(&items), &mut scratch));
+                    let chunks = attach(repair(chunk(&items), &mut scratch), structure);
                     for chunk in &chunks {
                         builder.mention_asked(chunk);
                     }
@@ -350,7 +355,7 @@ impl Grammar {
             if let Some(open) = &open {
                 chunks = complete(open, chunks);
             }
-            let chunks = attach(chunks);
+            let chunks = attach(chunks, structure);
             let mut position = 0;
             while position < chunks.len() {
                 if chunks[position].kind == ChunkKind::Separator {

@@ -7,7 +7,7 @@
 
 use super::*;
 
-impl Builder {
+impl Builder<'_> {
     /// "The table has a mug on it", "the room has no cat": a relation to "it" is a relation to the owner,
     /// and to the whole view it is no relation at all.
     pub(super) fn have(
@@ -130,6 +130,39 @@ impl Builder {
         }
     }
 
+    /// The relations attached to a noun phrase whose count was stated after it ("bottles in fridge: 5"),
+    /// each stated of the things counted.
+    pub(super) fn counted_relations(
+        &mut self,
+        np: &NounPhrase,
+        quantity: Quantity,
+        span: Span,
+        misspelled: bool,
+    ) {
+        let mut subject = np.clone();
+        subject.quantity = None;
+        subject.region = None;
+        subject.plural |= !matches!(quantity, Quantity::Exactly(1) | Quantity::AtMost(1));
+        let relations = std::mem::take(&mut subject.relations);
+        let referent = self.referent(&subject);
+        for attached in relations {
+            let landmarks: Vec<Referent> = attached
+                .landmarks
+                .iter()
+                .map(|landmark| self.landmark_referent(landmark, &subject, attached.relation))
+                .collect();
+            self.last_relation = Some((referent.clone(), attached.relation, landmarks.clone()));
+            self.push_relation(
+                referent.clone(),
+                attached.relation,
+                false,
+                landmarks,
+                span,
+                misspelled,
+            );
+        }
+    }
+
     /// "Both chairs are by the table": a stated number on a subject is also a count.
     pub(super) fn count_of_subject(&mut self, subject: &NounPhrase, span: Span, misspelled: bool) {
         if let (Some(class), Some(quantity)) = (subject.class, subject.quantity) {
@@ -209,7 +242,7 @@ impl Builder {
                 let landmarks = attached
                     .landmarks
                     .iter()
-                    .map(|landmark| self.landmark_referent(landmark, &subject))
+                    .map(|landmark| self.landmark_referent(landmark, &subject, attached.relation))
                     .collect();
                 self.push_relation(
                     subject_referent.clone(),
@@ -256,7 +289,7 @@ impl Builder {
             let landmarks: Vec<Referent> = attached
                 .landmarks
                 .iter()
-                .map(|landmark| self.landmark_referent(landmark, &subject))
+                .map(|landmark| self.landmark_referent(landmark, &subject, attached.relation))
                 .collect();
             // "blanket on chair, NOT sofa": a later denial is of this relation.
             self.last_relation = Some((
