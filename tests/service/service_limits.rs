@@ -89,6 +89,48 @@ async fn a_request_answered_abandoned_stores_nothing() {
 }
 
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_registration_gets_a_time_limit_grown_with_its_image() {
+    // 100 ms for any request, or 3 s a megapixel for a registration: 922 ms for 640x480, 0.07 ms for 6x4.
+    let config = |per_megapixel| ServiceConfig {
+        request_timeout_ms: 100,
+        registration_ms_per_megapixel: per_megapixel,
+        ..ServiceConfig::default()
+    };
+    let register = |router: axum::Router, width: u32, height: u32| async move {
+        let labels = IndexImage::filled(width, height, 0);
+        call(
+            &router,
+            Call::new("POST", "/v1/scenes", None).json(scene_body(&labels)),
+        )
+        .await
+    };
+    // A registration taking 400 ms: a room-sized image is given its time.
+    let data = tempfile::tempdir().unwrap();
+    let (router, coordinator) = router_with(data.path(), config(3_000), slow(400));
+    let room = register(router.clone(), 640, 480).await;
+    assert_eq!(room.status, 201, "{}", room.json());
+    assert_eq!(coordinator.with_log(|log| log.scenes().unwrap().len()), 1);
+    // A tiny image keeps request_timeout_ms, and the answer names the limit that passed.
+    let tiny = register(router, 6, 4).await;
+    assert_eq!((tiny.status, tiny.code().as_str()), (503, "timeout"));
+    assert!(
+        tiny.json()["message"]
+            .as_str()
+            .unwrap()
+            .contains("its limit of 100 ms"),
+        "{}",
+        tiny.json()
+    );
+    // Without the growth the room-sized registration is abandoned too.
+    let data = tempfile::tempdir().unwrap();
+    let (router, coordinator) = router_with(data.path(), config(0), slow(400));
+    let room = register(router, 640, 480).await;
+    assert_eq!((room.status, room.code().as_str()), (503, "timeout"));
+    tokio::time::sleep(Duration::from_millis(700)).await;
+    assert_eq!(coordinator.with_log(|log| log.scenes().unwrap().len()), 0);
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
 async fn requests_over_the_in_flight_cap_are_shed_with_retry_after() {
     let data = tempfile::tempdir().unwrap();
     let config = ServiceConfig {

@@ -133,7 +133,7 @@ impl Coordinator {
                     .map_err(restore_failed)?;
                 // Two requests may load the same scene at once: the first one kept is the one everyone
                 // uses.
-                self.scenes.insert(scene, loaded)
+                self.hold_scene(scene, loaded)
             }
         };
         {
