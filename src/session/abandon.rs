@@ -71,7 +71,8 @@ impl CommitGate {
 }
 
 /// Reports that the request this thread works for handles an image of `pixels` pixels (a registration,
-/// once the image's size is known), so its time limit can grow with it. Outside a request, nothing.
+/// once the image's size is known; a scene read back from the log; an overlay drawn), so its time limit
+/// can grow with it. Outside a request, nothing.
 pub fn report_pixels(pixels: u64) {
     THREAD_GATE.with(|current| {
         if let Some(gate) = current.borrow().as_ref() {

@@ -98,7 +98,8 @@ pub struct ServiceConfig {
     pub rate_burst: u32,
     pub request_timeout_ms: u64,
     /// A scene registration's time limit per megapixel of its image, when that is longer than
-    /// `request_timeout_ms` (0: registrations get `request_timeout_ms` too).
+    /// `request_timeout_ms` (0: registrations get `request_timeout_ms` too). The same holds for a request
+    /// that reads a scene let go back from the log or draws a scene's overlay.
     pub registration_ms_per_megapixel: u64,
     /// How long a client has to send a request's head (request line and headers); also how long a
     /// kept-alive connection may wait idle for its next request. Past it the connection is closed.

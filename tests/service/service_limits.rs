@@ -20,10 +20,11 @@ use sayso_session::corrector::{
 };
 use service_support::*;
 
-/// The grid engine, slowed down: registering a scene takes `delay`.
+/// The grid engine, slowed down: registering a scene takes `delay`, drawing an overlay `overlay_delay`.
 struct SlowEngine {
     inner: GridEngine,
     delay: Duration,
+    overlay_delay: Duration,
 }
 
 impl Corrector for SlowEngine {
@@ -46,6 +47,7 @@ impl Corrector for SlowEngine {
         state: &SceneState,
         parent: Option<&SceneState>,
     ) -> RgbImage {
+        std::thread::sleep(self.overlay_delay);
         self.inner.overlay(input, state, parent)
     }
 }
@@ -54,6 +56,7 @@ fn slow(delay_ms: u64) -> Arc<dyn Corrector> {
     Arc::new(SlowEngine {
         inner: GridEngine::new(),
         delay: Duration::from_millis(delay_ms),
+        overlay_delay: Duration::ZERO,
     })
 }
 
@@ -121,6 +124,28 @@ async fn a_registration_gets_a_time_limit_grown_with_its_image() {
         "{}",
         tiny.json()
     );
+    // Drawing the room's overlay, 400 ms here, is given its time too.
+    let data = tempfile::tempdir().unwrap();
+    let slow_overlay = Arc::new(SlowEngine {
+        inner: GridEngine::new(),
+        delay: Duration::ZERO,
+        overlay_delay: Duration::from_millis(400),
+    });
+    for (per_megapixel, status) in [(3_000, 200), (0, 503)] {
+        let (router, _coordinator) =
+            router_with(data.path(), config(per_megapixel), slow_overlay.clone());
+        let path = if per_megapixel > 0 {
+            let created = register(router.clone(), 640, 480).await;
+            assert_eq!(created.status, 201, "{}", created.json());
+            format!("/v1/scenes/{}/overlay.png", created.json()["scene_id"])
+        } else {
+            "/v1/scenes/1/overlay.png".to_string()
+        };
+        let overlay = call(&router, Call::new("GET", &path, None)).await;
+        assert_eq!(overlay.status, status, "{per_megapixel} ms a megapixel");
+        drop(router);
+        drop(_coordinator);
+    }
     // Without the growth the room-sized registration is abandoned too.
     let data = tempfile::tempdir().unwrap();
     let (router, coordinator) = router_with(data.path(), config(0), slow(400));

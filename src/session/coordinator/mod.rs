@@ -465,7 +465,12 @@ impl Coordinator {
     /// (`Corrector::overlay`).
     pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
-        let head = lock(&slot).head;
+        let head = {
+            let slot = lock(&slot);
+            // Drawing a large scene takes long: the request's time limit may grow with its image.
+            crate::abandon::report_pixels(slot.input.image.pixels.len() as u64);
+            slot.head
+        };
         let parent = self.parent_state(scene, head)?;
         let overlay = {
             let slot = lock(&slot);
