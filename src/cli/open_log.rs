@@ -111,7 +111,7 @@ pub fn open_coordinator_with(
         LogLocation::Postgres(url) => Coordinator::open_postgres(corrector, url, &settings),
     }
     .with_context(|| format!("opening the correction log {}", location.shown()))?
-    .with_scene_cache(config.scenes_in_memory);
+    .with_scene_cache(config.scenes_in_memory, config.scene_memory_bytes);
     if let Some(path) = &config.user_model {
         let model = sayso_perception::unaries::byo_user_model::UserModel::load(path)
             .with_context(|| format!("loading the user model {}", path.display()))?;

@@ -318,25 +318,35 @@ pub async fn shed_load(State(state): State<AppState>, request: Request, next: Ne
     }
 }
 
-/// Answers 503 `timeout` when a request runs longer than the configured limit, and sees to it that such a
-/// request leaves no trace (`super::abandon`): if its commit had already started when the limit passed,
-/// the limit waits for it and the caller gets the real answer instead.
+/// Answers 503 `timeout` when a request runs longer than its limit, and sees to it that such a request
+/// leaves no trace (`super::abandon`): if its commit had already started when the limit passed, the limit
+/// waits for it and the caller gets the real answer instead. The limit is `request_timeout_ms`, or longer
+/// for a registration whose image's pixels the work reported (`ServiceConfig::request_limit_ms`): when
+/// the limit passes, it is worked out again from what the work reported by then.
 pub async fn time_limit(State(state): State<AppState>, request: Request, next: Next) -> Response {
-    let limit = Duration::from_millis(state.config.request_timeout_ms);
+    let started = tokio::time::Instant::now();
     let gate = CommitGate::new();
     let work = REQUEST_GATE.scope(gate.clone(), next.run(request));
     tokio::pin!(work);
-    if let Ok(response) = tokio::time::timeout(limit, &mut work).await {
-        return response;
+    let mut limit_ms = state.config.request_limit_ms(0);
+    loop {
+        let deadline = started + Duration::from_millis(limit_ms);
+        if let Ok(response) = tokio::time::timeout_at(deadline, &mut work).await {
+            return response;
+        }
+        let grown = state.config.request_limit_ms(gate.pixels());
+        if grown <= limit_ms {
+            break;
+        }
+        limit_ms = grown;
     }
     if gate.abandon() {
         return ApiError::caller(
             StatusCode::SERVICE_UNAVAILABLE,
             "timeout",
             format!(
-                "the request took longer than {} ms and was abandoned; nothing was stored, so it is \
-                 safe to send again",
-                state.config.request_timeout_ms
+                "the request took longer than its limit of {limit_ms} ms and was abandoned; nothing was \
+                 stored, so it is safe to send again"
             ),
         )
         .into_response();

@@ -149,7 +149,10 @@ fn add_refusals(document: &mut Value) {
                     "503",
                     error_response(
                         "Too many requests in flight (overloaded, with Retry-After) or over the time limit \
-                         (timeout: nothing was stored)",
+                         (timeout: nothing was stored; the limit is request_timeout_ms, or for a scene \
+                         registration, a scene read back from the log or an overlay, \
+                         registration_ms_per_megapixel for each megapixel of its image if that is \
+                         longer, and the message names it)",
                         true,
                         false,
                     ),

@@ -22,12 +22,16 @@
 //! rate_per_second = 100.0        # per token (or per caller when no tokens are set)
 //! rate_burst = 200
 //! request_timeout_ms = 10000
+//! registration_ms_per_megapixel = 6000  # a registration may take this long a megapixel of its image, if
+//!                                       # that is longer than request_timeout_ms (100 s for 4096x4096)
 //! header_timeout_ms = 5000        # to send a request's head; also the longest a kept-alive connection idles
 //! max_connections = 256           # open connections; more are answered 503 with Retry-After and closed
 //! max_requests_in_flight = 64     # requests being worked on; more are answered 503 with Retry-After
 //! auth_failures_per_minute = 10.0 # wrong or missing tokens per client address before 429 with Retry-After
 //! auth_failure_burst = 10
 //! scenes_in_memory = 32           # idle scenes held decoded; the others are read from the log when asked for
+//! scene_memory_bytes = 268435456  # and at most this many bytes of them (256 MiB; the scene last used is
+//!                                 # held whatever its size)
 //!
 //! [[operators]]
 //! name = "mira"
@@ -46,6 +50,13 @@ use serde::{Deserialize, Serialize};
 
 /// The port sayso listens on unless told otherwise.
 pub const DEFAULT_PORT: u16 = 8417;
+
+/// A registration's time limit per megapixel of its image by default: 6 s (our own choice). Measured
+/// 2026-12-05 on 2 shared cores at load 10-12, before superpixels were cut on a reduced copy of a large
+/// image, a 4096x4096 registration (16.8 megapixels) took 25 s for a photo of a room and 45-66 s for a
+/// synthetic picture of blocks that solved to about 5,000 objects, 1.5-3.9 s a megapixel; 6 s leaves room
+/// above the slowest. After that change, at load 8.5-9: 4.2-4.5 s and 9.7 s.
+pub const REGISTRATION_MS_PER_MEGAPIXEL_DEFAULT: u64 = 6_000;
 
 /// The shortest bearer token accepted, in characters.
 pub const TOKEN_MIN_CHARACTERS: usize = 20;
@@ -86,6 +97,10 @@ pub struct ServiceConfig {
     pub rate_per_second: f64,
     pub rate_burst: u32,
     pub request_timeout_ms: u64,
+    /// A scene registration's time limit per megapixel of its image, when that is longer than
+    /// `request_timeout_ms` (0: registrations get `request_timeout_ms` too). The same holds for a request
+    /// that reads a scene let go back from the log or draws a scene's overlay.
+    pub registration_ms_per_megapixel: u64,
     /// How long a client has to send a request's head (request line and headers); also how long a
     /// kept-alive connection may wait idle for its next request. Past it the connection is closed.
     pub header_timeout_ms: u64,
@@ -100,6 +115,10 @@ pub struct ServiceConfig {
     /// Scenes held decoded in memory when no request is using them, the least recently used let go first
     /// (read again from the correction log when next asked for).
     pub scenes_in_memory: usize,
+    /// Bytes of decoded scenes held in memory when no request is using them (each scene weighed with what
+    /// the corrector prepared and solved for it), the least recently used let go first; the scene last
+    /// used is held whatever it weighs, so 0 holds just that one.
+    pub scene_memory_bytes: u64,
     pub operators: Vec<OperatorToken>,
 }
 
@@ -118,12 +137,14 @@ impl Default for ServiceConfig {
             rate_per_second: 100.0,
             rate_burst: 200,
             request_timeout_ms: 10_000,
+            registration_ms_per_megapixel: REGISTRATION_MS_PER_MEGAPIXEL_DEFAULT,
             header_timeout_ms: 5_000,
             max_connections: 256,
             max_requests_in_flight: 64,
             auth_failures_per_minute: 10.0,
             auth_failure_burst: 10,
             scenes_in_memory: 32,
+            scene_memory_bytes: crate::SCENE_BYTES_DEFAULT,
             operators: Vec::new(),
         }
     }
@@ -189,6 +210,15 @@ impl ServiceConfig {
             path: origin.to_path_buf(),
             message: error.to_string(),
         })
+    }
+
+    /// The time limit of a request whose work reported an image of `pixels` pixels (0 for none): the
+    /// longer of `request_timeout_ms` and `registration_ms_per_megapixel` per megapixel.
+    pub fn request_limit_ms(&self, pixels: u64) -> u64 {
+        let scaled = (u128::from(pixels) * u128::from(self.registration_ms_per_megapixel))
+            .div_ceil(1_000_000)
+            .min(u128::from(u64::MAX)) as u64;
+        self.request_timeout_ms.max(scaled)
     }
 
     /// Checks the settings fit together; call before serving.
@@ -289,6 +319,27 @@ impl ServiceConfig {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_registration_limit_grows_with_the_megapixels_and_never_falls_below_the_request_limit() {
+        let config = ServiceConfig::default();
+        // 10 s for any request; 6 s a megapixel for a registration.
+        assert_eq!(config.request_limit_ms(0), 10_000);
+        assert_eq!(config.request_limit_ms(640 * 480), 10_000);
+        assert_eq!(config.request_limit_ms(4096 * 4096), 100_664);
+        // No overflow: the product is worked out wide and saturates.
+        assert_eq!(config.request_limit_ms(u64::MAX), 110_680_464_442_257_310);
+        let slowest = ServiceConfig {
+            registration_ms_per_megapixel: u64::MAX,
+            ..ServiceConfig::default()
+        };
+        assert_eq!(slowest.request_limit_ms(u64::MAX), u64::MAX);
+        let flat = ServiceConfig {
+            registration_ms_per_megapixel: 0,
+            ..ServiceConfig::default()
+        };
+        assert_eq!(flat.request_limit_ms(4096 * 4096), 10_000);
+    }
 
     #[test]
     fn defaults_bind_loopback_and_validate() {

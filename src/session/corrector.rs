@@ -238,6 +238,17 @@ pub trait Corrector: Send + Sync + 'static {
         None
     }
 
+    /// The bytes this corrector holds in memory for the scene registered as `input` whose current state is
+    /// `state` (what it prepared and solved for it), which the coordinator weighs the scene with against
+    /// its memory budget; 0 when it holds nothing by scene.
+    fn held_bytes(&self, _input: &SceneInput, _state: &SceneState) -> u64 {
+        0
+    }
+
+    /// Lets go of what this corrector holds for the scene registered as `input` whose current state is
+    /// `state`: the coordinator let the scene go, and the next request on it prepares what it needs again.
+    fn release(&self, _input: &SceneInput, _state: &SceneState) {}
+
     /// Works out one utterance against the scene's current state. Must not assume it is applied: the
     /// service decides (and may roll it back if logging fails).
     fn apply(&self, request: &CorrectionRequest<'_>) -> Result<CorrectionOutcome, CorrectorError>;

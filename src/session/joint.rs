@@ -194,11 +194,12 @@ impl EngineState {
     }
 }
 
-/// A small map that forgets its oldest entry when full.
+/// A small map that forgets its oldest entry when full. Each entry carries the registration digest of the
+/// scene it belongs to, so everything held for a scene can be weighed and let go at once.
 struct Bounded<V> {
     capacity: usize,
     order: VecDeque<String>,
-    entries: HashMap<String, V>,
+    entries: HashMap<String, (String, V)>,
 }
 
 impl<V: Clone> Bounded<V> {
@@ -211,7 +212,7 @@ impl<V: Clone> Bounded<V> {
     }
 
     fn get(&self, key: &str) -> Option<V> {
-        self.entries.get(key).cloned()
+        self.entries.get(key).map(|(_, value)| value.clone())
     }
 
     fn clear(&mut self) {
@@ -219,8 +220,13 @@ impl<V: Clone> Bounded<V> {
         self.order.clear();
     }
 
-    fn insert(&mut self, key: String, value: V) {
-        if self.entries.insert(key.clone(), value).is_none() {
+    /// Holds `value` under `key` for the scene registered as `input`.
+    fn insert(&mut self, key: String, input: &str, value: V) {
+        if self
+            .entries
+            .insert(key.clone(), (input.to_string(), value))
+            .is_none()
+        {
             self.order.push_back(key);
         }
         while self.order.len() > self.capacity {
@@ -228,6 +234,21 @@ impl<V: Clone> Bounded<V> {
                 self.entries.remove(&oldest);
             }
         }
+    }
+
+    /// The values held for the scene registered as `input`.
+    fn of_input<'a>(&'a self, input: &'a str) -> impl Iterator<Item = &'a V> + 'a {
+        self.entries
+            .values()
+            .filter(move |(tag, _)| tag == input)
+            .map(|(_, value)| value)
+    }
+
+    /// Forgets every value held for the scene registered as `input`.
+    fn release(&mut self, input: &str) {
+        self.entries.retain(|_, (tag, _)| tag != input);
+        let entries = &self.entries;
+        self.order.retain(|key| entries.contains_key(key));
     }
 }
 
@@ -339,7 +360,7 @@ impl JointCorrector {
         }
         // A model replaced meanwhile: this turn keeps the scores it has, but the cache does not.
         if self.current_classifier().id() == classifier.id() {
-            lock(&self.prepared).insert(digest, prepared.clone());
+            lock(&self.prepared).insert(digest.clone(), &digest, prepared.clone());
         }
         Ok(prepared)
     }
@@ -379,14 +400,14 @@ impl JointCorrector {
         };
         let head_key = head.key();
         if head.turn.is_none() {
-            return self.baseline(prepared, &head_key).map(Some);
+            return self.baseline(prepared, &head.input, &head_key).map(Some);
         }
         if let Some(found) = lock(&self.solved).get(&head_key) {
             return Ok(Some(found));
         }
         if let Some(found) = head.snapshot.as_deref().and_then(read_snapshot) {
             let found = Arc::new(found);
-            lock(&self.solved).insert(head_key, found.clone());
+            lock(&self.solved).insert(head_key, &head.input, found.clone());
             return Ok(Some(found));
         }
         let chain = if stored.len() > 1 {
@@ -421,13 +442,13 @@ impl JointCorrector {
         for index in start..chain.len() {
             let Some(turn) = &chain[index].turn else {
                 // The registered version: the scene solved with no note.
-                current = Some(self.baseline(prepared, &keys[index])?);
+                current = Some(self.baseline(prepared, &chain[index].input, &keys[index])?);
                 continue;
             };
             let solved = Arc::new(self.solve(prepared, current.as_deref(), turn)?);
             self.replayed
                 .fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-            lock(&self.solved).insert(keys[index].clone(), solved.clone());
+            lock(&self.solved).insert(keys[index].clone(), &chain[index].input, solved.clone());
             current = Some(solved);
         }
         Ok(current)
@@ -437,13 +458,14 @@ impl JointCorrector {
     fn baseline(
         &self,
         prepared: &PreparedInput,
+        input: &str,
         key: &str,
     ) -> Result<Arc<Correction>, CorrectorError> {
         if let Some(found) = lock(&self.solved).get(key) {
             return Ok(found);
         }
         let solved = Arc::new(self.solve(prepared, None, &TurnRecord::default())?);
-        lock(&self.solved).insert(key.to_string(), solved.clone());
+        lock(&self.solved).insert(key.to_string(), input, solved.clone());
         Ok(solved)
     }
 
@@ -484,8 +506,41 @@ impl JointCorrector {
 
     /// Keeps a solved version under its engine state's key.
     fn remember(&self, state: &EngineState, correction: Correction) {
-        lock(&self.solved).insert(state.key(), Arc::new(correction));
+        lock(&self.solved).insert(state.key(), &state.input, Arc::new(correction));
     }
+}
+
+/// The registration digest a stored state names (`None` when it cannot be read).
+fn registration_of(state: &SceneState) -> Option<String> {
+    EngineState::decode(&state.engine_state)
+        .ok()?
+        .pop()
+        .map(|link| link.input)
+}
+
+/// About what a solved version holds on the heap: its per-segment and per-node labels, objects, their
+/// masks and relations, and hypotheses, counted from their lengths (the small fixed parts are left out).
+fn correction_bytes(correction: &Correction) -> u64 {
+    let graph = &correction.graph;
+    let masks: usize = graph
+        .objects
+        .iter()
+        .map(|object| (object.mask.runs.len() + object.members.len()) * 4)
+        .sum();
+    let bytes = graph.segment_labels.len() * std::mem::size_of::<ClassId>()
+        + graph.objects.len() * std::mem::size_of::<crate::scenegraph::SceneObject>()
+        + graph.relations.len() * std::mem::size_of::<crate::scenegraph::ObjectRelation>()
+        + masks
+        + correction.solution.state.labels.len() * 2
+        + correction.solution.state.hypotheses_on.len()
+        + correction
+            .hypotheses
+            .iter()
+            .map(|hypothesis| {
+                std::mem::size_of::<crate::hypotheses::Hypothesis>() + hypothesis.members.len() * 4
+            })
+            .sum::<usize>();
+    bytes as u64
 }
 
 /// Segment changes summed per (from, to) pair in first-seen order; object and room changes one by one.
@@ -657,6 +712,30 @@ impl Corrector for JointCorrector {
             .version(&prepared, stored, Lineage(&no_ancestry))
             .ok()??;
         Some(object_regions(&prepared.scene, &solved.graph))
+    }
+
+    /// What the prepared scene and the solved versions of the state's registration hold (the digest is
+    /// read from the state, so the input is not hashed).
+    fn held_bytes(&self, _input: &SceneInput, state: &SceneState) -> u64 {
+        let Some(digest) = registration_of(state) else {
+            return 0;
+        };
+        let prepared: u64 = lock(&self.prepared)
+            .of_input(&digest)
+            .map(|prepared| prepared.heap_bytes())
+            .sum();
+        let solved: u64 = lock(&self.solved)
+            .of_input(&digest)
+            .map(|correction| correction_bytes(correction))
+            .sum();
+        prepared + solved
+    }
+
+    fn release(&self, _input: &SceneInput, state: &SceneState) {
+        if let Some(digest) = registration_of(state) {
+            lock(&self.prepared).release(&digest);
+            lock(&self.solved).release(&digest);
+        }
     }
 
     fn register(&self, input: &SceneInput) -> Result<SceneState, CorrectorError> {

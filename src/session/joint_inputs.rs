@@ -43,6 +43,36 @@ pub struct PreparedInput {
     pub from_stored_form: bool,
 }
 
+impl PreparedInput {
+    /// About what the prepared scene holds on the heap: its pixels, depth, superpixels, segment statistics,
+    /// adjacency graph, coarse level, unaries and detections, counted from their lengths (the small fixed
+    /// parts are left out). Parts shared with another prepared scene are counted in each.
+    pub fn heap_bytes(&self) -> u64 {
+        use std::mem::size_of;
+        let scene = &self.scene;
+        let adjacency = &scene.adjacency;
+        let bytes = scene.image.pixels.len() * 3
+            + scene
+                .depth
+                .as_ref()
+                .map_or(0, |depth| depth.millimetres.len() * 2)
+            + scene.segments.labels.len() * 4
+            + scene.stats.len() * size_of::<crate::scene::SegmentStats>()
+            + adjacency.node_count() * 12
+            + adjacency.edge_count() * (size_of::<crate::scene::AdjacencyEdge>() + 16)
+            + scene.coarse.region_of.len() * 4
+            + scene
+                .coarse
+                .members
+                .iter()
+                .map(|members| 24 + members.len() * 4)
+                .sum::<usize>()
+            + self.unaries.log_probs.len() * 4
+            + self.detections.len() * size_of::<HypothesisDetection>();
+        bytes as u64
+    }
+}
+
 /// The lower-case hex SHA-256 of everything that decides a scene's solve: its name, pixels, depth, scores,
 /// label map, detections and declared room. Two registrations with the same digest solve identically.
 pub fn input_digest(input: &SceneInput) -> String {

@@ -55,7 +55,8 @@ use sayso_wire as wire;
 
 pub use coordinator::{
     check_utterance_text, Caller, Coordinator, CoordinatorSettings, OpenError, PageRequest, Role,
-    SceneUpload, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX, UTTERANCE_CHARACTER_LIMIT,
+    SceneUpload, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX, SCENE_BYTES_DEFAULT,
+    UTTERANCE_CHARACTER_LIMIT,
 };
 pub use corrector::Corrector;
 pub use counters::TurnCounters;

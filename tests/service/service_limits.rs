@@ -20,10 +20,11 @@ use sayso_session::corrector::{
 };
 use service_support::*;
 
-/// The grid engine, slowed down: registering a scene takes `delay`.
+/// The grid engine, slowed down: registering a scene takes `delay`, drawing an overlay `overlay_delay`.
 struct SlowEngine {
     inner: GridEngine,
     delay: Duration,
+    overlay_delay: Duration,
 }
 
 impl Corrector for SlowEngine {
@@ -46,6 +47,7 @@ impl Corrector for SlowEngine {
         state: &SceneState,
         parent: Option<&SceneState>,
     ) -> RgbImage {
+        std::thread::sleep(self.overlay_delay);
         self.inner.overlay(input, state, parent)
     }
 }
@@ -54,6 +56,7 @@ fn slow(delay_ms: u64) -> Arc<dyn Corrector> {
     Arc::new(SlowEngine {
         inner: GridEngine::new(),
         delay: Duration::from_millis(delay_ms),
+        overlay_delay: Duration::ZERO,
     })
 }
 
@@ -85,6 +88,70 @@ async fn a_request_answered_abandoned_stores_nothing() {
         .await
         .json();
     assert_eq!(listed["scenes"].as_array().unwrap().len(), 0, "{listed}");
+    assert_eq!(coordinator.with_log(|log| log.scenes().unwrap().len()), 0);
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_registration_gets_a_time_limit_grown_with_its_image() {
+    // 100 ms for any request, or 3 s a megapixel for a registration: 922 ms for 640x480, 0.07 ms for 6x4.
+    let config = |per_megapixel| ServiceConfig {
+        request_timeout_ms: 100,
+        registration_ms_per_megapixel: per_megapixel,
+        ..ServiceConfig::default()
+    };
+    let register = |router: axum::Router, width: u32, height: u32| async move {
+        let labels = IndexImage::filled(width, height, 0);
+        call(
+            &router,
+            Call::new("POST", "/v1/scenes", None).json(scene_body(&labels)),
+        )
+        .await
+    };
+    // A registration taking 400 ms: a room-sized image is given its time.
+    let data = tempfile::tempdir().unwrap();
+    let (router, coordinator) = router_with(data.path(), config(3_000), slow(400));
+    let room = register(router.clone(), 640, 480).await;
+    assert_eq!(room.status, 201, "{}", room.json());
+    assert_eq!(coordinator.with_log(|log| log.scenes().unwrap().len()), 1);
+    // A tiny image keeps request_timeout_ms, and the answer names the limit that passed.
+    let tiny = register(router, 6, 4).await;
+    assert_eq!((tiny.status, tiny.code().as_str()), (503, "timeout"));
+    assert!(
+        tiny.json()["message"]
+            .as_str()
+            .unwrap()
+            .contains("its limit of 100 ms"),
+        "{}",
+        tiny.json()
+    );
+    // Drawing the room's overlay, 400 ms here, is given its time too.
+    let data = tempfile::tempdir().unwrap();
+    let slow_overlay = Arc::new(SlowEngine {
+        inner: GridEngine::new(),
+        delay: Duration::ZERO,
+        overlay_delay: Duration::from_millis(400),
+    });
+    for (per_megapixel, status) in [(3_000, 200), (0, 503)] {
+        let (router, _coordinator) =
+            router_with(data.path(), config(per_megapixel), slow_overlay.clone());
+        let path = if per_megapixel > 0 {
+            let created = register(router.clone(), 640, 480).await;
+            assert_eq!(created.status, 201, "{}", created.json());
+            format!("/v1/scenes/{}/overlay.png", created.json()["scene_id"])
+        } else {
+            "/v1/scenes/1/overlay.png".to_string()
+        };
+        let overlay = call(&router, Call::new("GET", &path, None)).await;
+        assert_eq!(overlay.status, status, "{per_megapixel} ms a megapixel");
+        drop(router);
+        drop(_coordinator);
+    }
+    // Without the growth the room-sized registration is abandoned too.
+    let data = tempfile::tempdir().unwrap();
+    let (router, coordinator) = router_with(data.path(), config(0), slow(400));
+    let room = register(router, 640, 480).await;
+    assert_eq!((room.status, room.code().as_str()), (503, "timeout"));
+    tokio::time::sleep(Duration::from_millis(700)).await;
     assert_eq!(coordinator.with_log(|log| log.scenes().unwrap().len()), 0);
 }
 

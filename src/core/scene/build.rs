@@ -1,7 +1,9 @@
 //! Building a `Scene` from an image: superpixels, per-segment statistics, the region adjacency graph and the
 //! coarse level.
 //!
-//! Owns: `Scene::from_image`, `segment_stats` and `adjacency_graph`.
+//! Owns: `Scene::from_image`, `segment_stats`, `adjacency_graph`, and `superpixels_of`: SLIC on the image,
+//! or, above `SLIC_FULL_RESOLUTION_PIXELS`, on a copy reduced by a whole factor (block means) whose labels
+//! are scaled back up (each pixel takes its block's segment).
 //! Must not: read files (that is `scene::io`) or compute classifier features (that is `crate::features`).
 
 use std::collections::HashMap;
@@ -10,13 +12,83 @@ use std::sync::Arc;
 use crate::color::{Lab, LabConverter};
 use crate::ids::{RoomId, SegmentId};
 use crate::raster::{DepthImage, RgbImage};
-use crate::slic::slic;
+use crate::slic::{slic, SlicError, SlicParams, Superpixels};
 
 use super::coarse::coarse_level;
 use super::{
     AdjacencyEdge, AdjacencyGraph, BoundingBox, Scene, SceneError, SceneParams, SegmentMap,
     SegmentStats,
 };
+
+/// The largest image SLIC cuts at full resolution: four times the reference size (1280 x 960). Segments
+/// stop growing in number past the reference size (`SceneParams::for_image_size`), so on a larger image each
+/// is many pixels wide and SLIC at full resolution spends its time (about 60% of a 4096 x 4096
+/// registration's CPU time, measured with perf on 2026-12-05) placing boundaries more finely than the
+/// segments need; our own threshold.
+pub const SLIC_FULL_RESOLUTION_PIXELS: u64 = 4 * super::REFERENCE_PIXELS;
+
+/// The whole factor an image is reduced by before SLIC: the smallest that brings it to at most
+/// `SLIC_FULL_RESOLUTION_PIXELS` (1 for an image within it).
+pub fn slic_reduction(width: u32, height: u32) -> u32 {
+    let mut factor = 1u32;
+    while u64::from(width.div_ceil(factor)) * u64::from(height.div_ceil(factor))
+        > SLIC_FULL_RESOLUTION_PIXELS
+    {
+        factor += 1;
+    }
+    factor
+}
+
+/// SLIC superpixels of `image`: at full resolution within `SLIC_FULL_RESOLUTION_PIXELS`; above it, SLIC
+/// with the same parameters on the image reduced by `slic_reduction` (each pixel of the copy the mean of
+/// its block), every pixel then taking its block's segment. Scaling a 4-connected labelling up this way
+/// keeps each segment 4-connected and non-empty, so the result is a segment map like SLIC's own.
+pub fn superpixels_of(image: &RgbImage, params: &SlicParams) -> Result<Superpixels, SlicError> {
+    let factor = slic_reduction(image.width, image.height);
+    if factor == 1 || image.pixels.len() as u64 != u64::from(image.width) * u64::from(image.height)
+    {
+        return slic(image, params);
+    }
+    let (width, height) = (image.width as usize, image.height as usize);
+    let f = factor as usize;
+    let (small_width, small_height) = (width.div_ceil(f), height.div_ceil(f));
+    let mut sums = vec![[0u32; 4]; small_width * small_height];
+    for y in 0..height {
+        let row = &image.pixels[y * width..(y + 1) * width];
+        let small_row = &mut sums[(y / f) * small_width..(y / f + 1) * small_width];
+        for (x, pixel) in row.iter().enumerate() {
+            let sum = &mut small_row[x / f];
+            sum[0] += u32::from(pixel[0]);
+            sum[1] += u32::from(pixel[1]);
+            sum[2] += u32::from(pixel[2]);
+            sum[3] += 1;
+        }
+    }
+    let small = RgbImage {
+        width: small_width as u32,
+        height: small_height as u32,
+        pixels: sums
+            .iter()
+            .map(|sum| {
+                let mean = |channel: u32| ((channel + sum[3] / 2) / sum[3].max(1)) as u8;
+                [mean(sum[0]), mean(sum[1]), mean(sum[2])]
+            })
+            .collect(),
+    };
+    drop(sums);
+    let cut = slic(&small, params)?;
+    let mut labels = Vec::with_capacity(width * height);
+    for y in 0..height {
+        let small_row = &cut.labels[(y / f) * small_width..(y / f + 1) * small_width];
+        labels.extend((0..width).map(|x| small_row[x / f]));
+    }
+    Ok(Superpixels {
+        width: image.width,
+        height: image.height,
+        labels,
+        segment_count: cut.segment_count,
+    })
+}
 
 impl Scene {
     /// Cuts an image (and its optional depth map, in millimetres) into a scene.
@@ -49,7 +121,7 @@ impl Scene {
                 });
             }
         }
-        let superpixels = match slic(&image, &params.superpixels) {
+        let superpixels = match superpixels_of(&image, &params.superpixels) {
             Ok(superpixels) => superpixels,
             Err(source) => {
                 return Err(SceneError::Superpixels {

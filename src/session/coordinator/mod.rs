@@ -38,7 +38,7 @@ use crate::wire::{ConversationOut, HealthOut, SceneGraphOut};
 
 pub use access::{Caller, PageRequest, Role, PAGE_LIMIT_DEFAULT, PAGE_LIMIT_MAX};
 pub use register::SceneUpload;
-pub use scene_cache::SCENE_CACHE_DEFAULT;
+pub use scene_cache::{SCENE_BYTES_DEFAULT, SCENE_CACHE_DEFAULT};
 pub use turns::check_utterance_text;
 
 /// How often the background thread checkpoints the log's WAL.
@@ -52,6 +52,40 @@ pub(crate) struct SceneSlot {
     input: Arc<SceneInput>,
     head: VersionKey,
     state: SceneState,
+}
+
+impl SceneSlot {
+    /// The bytes the slot's parts hold on the heap (pixels, maps, scores, engine state), counted from their
+    /// lengths; the small fixed parts are left out.
+    fn bytes(&self) -> u64 {
+        fn index(image: &Option<raster::IndexImage>) -> usize {
+            image.as_ref().map_or(0, |image| image.values.len() * 2)
+        }
+        let input = &self.input;
+        let parts = input.name.len()
+            + input.image.pixels.len() * 3
+            + input
+                .depth
+                .as_ref()
+                .map_or(0, |depth| depth.millimetres.len() * 2)
+            + input.scores_npy.as_ref().map_or(0, Vec::len)
+            + index(&input.label_map)
+            + index(&input.superpixels)
+            + input.prepared.as_ref().map_or(0, |form| form.len())
+            + input.detections.len() * std::mem::size_of::<crate::corrector::Detection>()
+            + input
+                .detections
+                .iter()
+                .filter_map(|detection| detection.mask.as_ref())
+                .map(|mask| mask.runs.len() * 8)
+                .sum::<usize>()
+            + self.name.len()
+            + self.state.labels.values.len() * 2
+            + self.state.engine_state.len()
+            + self.state.summary.objects.len()
+                * std::mem::size_of::<super::corrector::ObjectSummary>();
+        parts as u64
+    }
 }
 
 pub(crate) struct PendingSlot {
@@ -191,9 +225,12 @@ impl Coordinator {
     ) -> Result<T, SessionError> {
         let conversation_slot = self.conversation_slot(conversation)?;
         let mut conversation_state = lock(&conversation_slot);
-        let scene_slot = self.scene_slot(conversation_state.scene)?;
+        let scene_key = conversation_state.scene;
+        let scene_slot = self.scene_slot(scene_key)?;
         let mut scene = lock(&scene_slot);
-        work(&mut conversation_state, &mut scene)
+        let result = work(&mut conversation_state, &mut scene);
+        self.reweigh_scene(scene_key, &scene);
+        result
     }
 
     /// Commits one turn of a conversation, then moves the conversation's mark past it and counts it.
@@ -315,7 +352,7 @@ impl Coordinator {
             group: GatedCommit(GroupCommit::new()),
             _checkpoints: checkpoints,
             shared,
-            scenes: scene_cache::SceneCache::new(SCENE_CACHE_DEFAULT),
+            scenes: scene_cache::SceneCache::new(SCENE_CACHE_DEFAULT, SCENE_BYTES_DEFAULT),
             conversations: RwLock::new(conversations),
             counters: Arc::new(TurnCounters::default()),
             pixel_limit: settings.pixel_limit,
@@ -335,16 +372,52 @@ impl Coordinator {
         self
     }
 
-    /// Holds at most `capacity` idle scenes decoded in memory (default `SCENE_CACHE_DEFAULT`); the others
-    /// are read from the log again when asked for.
-    pub fn with_scene_cache(mut self, capacity: usize) -> Coordinator {
-        self.scenes = scene_cache::SceneCache::new(capacity);
+    /// Holds at most `capacity` idle scenes decoded in memory (default `SCENE_CACHE_DEFAULT`) of at most
+    /// `bytes` in all (default `SCENE_BYTES_DEFAULT`; the scene last used is held whatever it weighs); the
+    /// others are read from the log again when asked for.
+    pub fn with_scene_cache(mut self, capacity: usize, bytes: u64) -> Coordinator {
+        self.scenes = scene_cache::SceneCache::new(capacity, bytes);
         self
     }
 
     /// How many scenes are held decoded in memory now.
     pub fn scenes_held(&self) -> usize {
         self.scenes.len()
+    }
+
+    /// What the scenes held now weighed when they were put in (`SceneSlot::bytes` and what the corrector
+    /// held for each), in bytes.
+    pub fn scene_bytes_held(&self) -> u64 {
+        self.scenes.bytes()
+    }
+
+    /// Puts a scene in the cache, weighed with what the corrector holds for it, and tells the corrector
+    /// about the scenes the cache let go for it. Answers the slot every request uses.
+    fn hold_scene(&self, scene: SceneKey, slot: SceneSlot) -> Arc<Mutex<SceneSlot>> {
+        let bytes = self.weigh(&slot);
+        let (kept, let_go) = self.scenes.insert(scene, slot, bytes);
+        self.release_scenes(let_go);
+        kept
+    }
+
+    /// What a held scene weighs: its slot and what the corrector holds for it.
+    fn weigh(&self, slot: &SceneSlot) -> u64 {
+        slot.bytes() + self.corrector.held_bytes(&slot.input, &slot.state)
+    }
+
+    /// Weighs a held scene again after work on it (the corrector may have prepared or solved more for it;
+    /// a scene read back from the log weighs only its slot until then), letting others go if need be.
+    fn reweigh_scene(&self, scene: SceneKey, slot: &SceneSlot) {
+        let let_go = self.scenes.reweigh(scene, self.weigh(slot));
+        self.release_scenes(let_go);
+    }
+
+    /// Tells the corrector about scenes the cache let go (no request holds them).
+    fn release_scenes(&self, let_go: Vec<Arc<Mutex<SceneSlot>>>) {
+        for slot in let_go {
+            let slot = lock(&slot);
+            self.corrector.release(&slot.input, &slot.state);
+        }
     }
 
     /// What the coordinator counts as it works (turns, corrections, solver gaps).
@@ -393,7 +466,12 @@ impl Coordinator {
     /// (`Corrector::overlay`).
     pub fn overlay_png(&self, scene: SceneKey) -> Result<Vec<u8>, SessionError> {
         let slot = self.scene_slot(scene)?;
-        let head = lock(&slot).head;
+        let head = {
+            let slot = lock(&slot);
+            // Drawing a large scene takes long: the request's time limit may grow with its image.
+            crate::abandon::report_pixels(slot.input.image.pixels.len() as u64);
+            slot.head
+        };
         let parent = self.parent_state(scene, head)?;
         let overlay = {
             let slot = lock(&slot);

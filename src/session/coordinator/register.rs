@@ -357,6 +357,8 @@ impl Coordinator {
         })?;
         let image = raster::decode_rgb_image(&image_bytes, Path::new("image"), self.pixel_limit)
             .map_err(|error| raster_error(image_field, error))?;
+        // The request's time limit may grow with the image (the service's `registration_ms_per_megapixel`).
+        crate::abandon::report_pixels(image.pixels.len() as u64);
         // The log keeps PNG (its export writes image.png): a JPEG is stored as the PNG of its decoded pixels.
         let image_png = if raster::is_jpeg(&image_bytes) {
             raster::encode_rgb_png(&image).map_err(SessionError::internal)?
@@ -576,7 +578,7 @@ impl Coordinator {
             })
             .map_err(log_error)?;
         input.prepared = prepared.map(Arc::new);
-        self.scenes.insert(
+        self.hold_scene(
             key,
             SceneSlot {
                 name: name.clone(),

@@ -131,9 +131,12 @@ impl Coordinator {
                 let row = lock(&self.log).scene(scene).map_err(log_error)?;
                 let loaded = load_scene(&lock(&self.log), row.ok_or_else(unknown)?)
                     .map_err(restore_failed)?;
+                // A scene read back is prepared again by the work that asked for it: the request's time
+                // limit may grow with its image, as a registration's does.
+                crate::abandon::report_pixels(loaded.input.image.pixels.len() as u64);
                 // Two requests may load the same scene at once: the first one kept is the one everyone
                 // uses.
-                self.scenes.insert(scene, loaded)
+                self.hold_scene(scene, loaded)
             }
         };
         {
