@@ -169,6 +169,20 @@ pub fn superpixel_image(segments: &SegmentMap) -> Option<IndexImage> {
     })
 }
 
+/// Kept superpixels read back as a segment map of `segment_count` segments (the caller has checked the ids).
+pub fn segment_map_of(stored: &IndexImage, segment_count: u32) -> SegmentMap {
+    SegmentMap {
+        width: stored.width,
+        height: stored.height,
+        labels: stored
+            .values
+            .iter()
+            .map(|&value| u32::from(value))
+            .collect(),
+        segment_count,
+    }
+}
+
 /// The scene on superpixels kept with the registration: the segment statistics, adjacency graph and coarse
 /// level `Scene::from_image` builds on the superpixels it cuts (the same steps in the same order, so the
 /// same scene). `None` when the map does not fit the image (another size, a segment id with no pixel, a
@@ -202,16 +216,7 @@ fn scene_on_stored(input: &SceneInput, stored: &IndexImage, params: &SceneParams
     if present.contains(&false) {
         return None;
     }
-    let segments = SegmentMap {
-        width,
-        height,
-        labels: stored
-            .values
-            .iter()
-            .map(|&value| u32::from(value))
-            .collect(),
-        segment_count,
-    };
+    let segments = segment_map_of(stored, segment_count);
     let stats = segment_stats(&input.image, input.depth.as_ref(), &segments);
     let adjacency = adjacency_graph(&segments, &stats);
     let target_regions = (segment_count as f64 / params.segments_per_region as f64)

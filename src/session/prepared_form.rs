@@ -34,9 +34,7 @@ use ndarray::Array2;
 use petgraph::graph::NodeIndex;
 
 use crate::ids::{RegionId, SegmentId};
-use crate::scene::{
-    AdjacencyEdge, AdjacencyGraph, BoundingBox, CoarseLevel, Scene, SegmentMap, SegmentStats,
-};
+use crate::scene::{AdjacencyEdge, AdjacencyGraph, BoundingBox, CoarseLevel, Scene, SegmentStats};
 use crate::unaries::{Unaries, UnarySource};
 use sayso_core::color::Lab;
 
@@ -385,16 +383,7 @@ pub fn decode(
     {
         return Err(PreparedFormError::OtherSuperpixels);
     }
-    let segments = SegmentMap {
-        width,
-        height,
-        labels: stored
-            .values
-            .iter()
-            .map(|&value| u32::from(value))
-            .collect(),
-        segment_count,
-    };
+    let segments = super::joint_inputs::segment_map_of(stored, segment_count);
     if (segment_count as usize).saturating_mul(STATS_RECORD) > body.len() - reader.at {
         return Err(PreparedFormError::Truncated {
             part: "segment statistics",

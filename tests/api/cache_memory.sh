@@ -24,20 +24,8 @@ cleanup() {
 trap cleanup EXIT
 python3 "$here/make_peak_images.py" "$work/images" "$count" > /dev/null
 
-rss_kb() { awk '/^VmRSS:/ { print $2 }' "/proc/$1/status"; }
-hwm_kb() { awk '/^VmHWM:/ { print $2 }' "/proc/$1/status"; }
-cpu_ticks() { awk '{ sub(/.*\) /, ""); print $12 + $13 }' "/proc/$1/stat"; }
-# Waits until the process has used no CPU for two seconds (at most 300 s).
-settle() {
-    local last now
-    last="$(cpu_ticks "$1")"
-    for _ in $(seq 150); do
-        sleep 2
-        now="$(cpu_ticks "$1")"
-        [ "$now" = "$last" ] && return
-        last="$now"
-    done
-}
+# rss_kb, hwm_kb, cpu_ticks, settle.
+. "$here/proc_memory.sh"
 
 printf 'request_timeout_ms = 300000\n' > "$work/config.toml"
 for line in "$@"; do printf '%s\n' "$line" >> "$work/config.toml"; done

@@ -22,24 +22,8 @@ cleanup() {
 trap cleanup EXIT
 python3 "$here/make_peak_images.py" "$work/images" > /dev/null
 
-hwm_kb() { awk '/^VmHWM:/ { print $2 }' "/proc/$1/status"; }
-rss_kb() { awk '/^VmRSS:/ { print $2 }' "/proc/$1/status"; }
-
-# CPU ticks the process has used (utime + stime).
-cpu_ticks() { awk '{ sub(/.*\) /, ""); print $12 + $13 }' "/proc/$1/stat"; }
-
-# Waits until the process has used no CPU for two seconds (at most 300 s): work a request left running
-# after its answer (an abandoned registration) has ended by then.
-settle() {
-    local last now
-    last="$(cpu_ticks "$1")"
-    for _ in $(seq 150); do
-        sleep 2
-        now="$(cpu_ticks "$1")"
-        [ "$now" = "$last" ] && return
-        last="$now"
-    done
-}
+# rss_kb, hwm_kb, cpu_ticks, settle.
+. "$here/proc_memory.sh"
 
 # A config with a longer request time limit, so a 4096x4096 registration runs to its end.
 printf 'request_timeout_ms = 300000\n' > "$work/long.toml"
