@@ -28,7 +28,8 @@ use demo_turns::{
     chain, load_average, load_scenes, percentile, settings, thread_cpu_ms, turn, turn_energy,
 };
 use sayso_solver::expansion::cheapest_labels;
-use sayso_solver::joint::{solve_joint, JointSolution};
+use sayso_solver::joint::{solve_joint, tighten_bound, JointSolution};
+use sayso_solver::joint_region::{solve_joint_region, RegionOutcome};
 use sayso_solver::labelling::LabellingProblem;
 use sayso_solver::potts_labeller::{label_potts, CandidateLabels};
 
@@ -182,6 +183,9 @@ fn bench_joint(criterion: &mut Criterion) {
     let (mut full_cpu, mut warm_cpu, mut turn_cpu) = (Vec::new(), Vec::new(), Vec::new());
     let (mut full_energy, mut warm_energy) = (0.0, 0.0);
     let (mut full_gaps, mut warm_gaps) = (Vec::new(), Vec::new());
+    let (mut region_times, mut region_cpu) = (Vec::new(), Vec::new());
+    let (mut region_tight_times, mut region_tight_cpu) = (Vec::new(), Vec::new());
+    let (mut region_energy, mut region_warm_energy) = (0.0, 0.0);
     let mut turns = 0;
     let mut problems = Vec::new();
     for scene in &scenes {
@@ -198,7 +202,21 @@ fn bench_joint(criterion: &mut Criterion) {
             }
             let mut full: Option<JointSolution> = None;
             let mut warm: Option<JointSolution> = None;
+            let mut region: Option<(JointSolution, RegionOutcome)> = None;
             for _ in 0..REPEATS {
+                if let Some(seeds) = &energy.seeds {
+                    let (solution, took, cpu) =
+                        timed(|| solve_joint_region(&energy.energy, &energy.warm, seeds, options));
+                    region_times.push(took);
+                    region_cpu.push(cpu);
+                    let mut solved = solution.expect("solves");
+                    // With the bound tightened as a turn's answer has it.
+                    let (_, tightening, tightening_cpu) =
+                        timed(|| tighten_bound(&energy.energy, &mut solved.0, options));
+                    region_tight_times.push(took + tightening);
+                    region_tight_cpu.push(cpu + tightening_cpu);
+                    region = Some(solved);
+                }
                 let (solution, took, cpu) = timed(|| solve_joint(&energy.energy, None, options));
                 full_times.push(took);
                 full_cpu.push(cpu);
@@ -227,6 +245,21 @@ fn bench_joint(criterion: &mut Criterion) {
                 warm.relative_gap,
                 warm.iterations
             );
+            if let Some((solved, outcome)) = &region {
+                println!(
+                    "    region re-solve from {} touched segments: {} nodes free ({} rings, {} solves{}), \
+                     energy {:.3} gap {:.4} (tightened)",
+                    energy.seeds.as_ref().map_or(0, Vec::len),
+                    outcome.free_nodes,
+                    outcome.rings,
+                    outcome.solves,
+                    if outcome.whole { ", whole" } else { "" },
+                    solved.energy,
+                    solved.relative_gap
+                );
+                region_energy += solved.energy;
+                region_warm_energy += warm.energy;
+            }
             full_energy += full.energy;
             warm_energy += warm.energy;
             full_gaps.push(full.relative_gap);
@@ -251,6 +284,24 @@ fn bench_joint(criterion: &mut Criterion) {
         "joint warm re-solve after one note",
         warm_times,
         warm_cpu,
+        2.0,
+    );
+    println!(
+        "region re-solve on the {} turns with a known change: energy summed {region_energy:.3} against the \
+         whole warm re-solve's {region_warm_energy:.3} (ratio {:.5})",
+        region_times.len() / REPEATS,
+        region_energy / region_warm_energy
+    );
+    summary(
+        "joint region re-solve after one note (loose bound)",
+        region_times,
+        region_cpu,
+        2.0,
+    );
+    summary(
+        "joint region re-solve after one note, bound tightened",
+        region_tight_times,
+        region_tight_cpu,
         2.0,
     );
     summary("one correction turn end to end", turn_times, turn_cpu, 10.0);

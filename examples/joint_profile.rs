@@ -2,8 +2,8 @@
 //! full and warm (`solve DIR REPEATS`), printing energies, gaps and median times: a small program to run under
 //! `valgrind --tool=callgrind` or `perf` without the scene pipeline in the profile. `turn - REPEATS` runs
 //! every demo turn whole, as the service does; under callgrind, `--collect-atstart=no
-//! --toggle-collect='*correct_turn*'` counts the turns alone (the chain of versions they start from is
-//! built by the same function, so its turns are counted too). `digest` prints every demo version's energy,
+//! --toggle-collect='*profiled_turn*'` counts the timed turns alone (not the chain of versions they start
+//! from, which `correct_turn` also builds). `digest` prints every demo version's energy,
 //! bound, gap and a hash of its JSON, to compare the answers of two builds.
 //!
 //! Owns: nothing the crate uses.
@@ -16,6 +16,18 @@ use std::time::Instant;
 
 use sayso_core::energy::JointEnergy;
 use sayso_solver::joint::{solve_joint, JointOptions, WarmStart};
+
+/// One demo turn, kept out of line so that `valgrind --tool=callgrind --collect-atstart=no
+/// --toggle-collect='*profiled_turn*'` counts the timed turns alone, not the chain they start from.
+#[inline(never)]
+fn profiled_turn(
+    scene: &demo_turns::BenchScene,
+    previous: &sayso_core::turn::solve::Correction,
+    note: &demo_turns::Note,
+    settings: &sayso_perception::pipeline::CorrectionSettings,
+) -> sayso_core::turn::solve::Correction {
+    demo_turns::turn(scene, previous, note, settings)
+}
 
 fn main() {
     let arguments: Vec<String> = std::env::args().collect();
@@ -116,7 +128,7 @@ fn main() {
                 for (index, note) in scene.notes.iter().enumerate() {
                     for _ in 0..repeats {
                         let start = Instant::now();
-                        let solved = demo_turns::turn(scene, &versions[index], note, &settings);
+                        let solved = profiled_turn(scene, &versions[index], note, &settings);
                         times.push(start.elapsed().as_secs_f64() * 1e3);
                         std::hint::black_box(solved);
                     }
@@ -138,8 +150,22 @@ fn main() {
                     let hash = text.bytes().fold(0xcbf2_9ce4_8422_2325u64, |hash, byte| {
                         (hash ^ byte as u64).wrapping_mul(0x0100_0000_01b3)
                     });
+                    // The same without the multipliers and the iteration count, which a build may
+                    // reach differently with the same answer.
+                    let mut answer = version.clone();
+                    answer.solution.multipliers = Default::default();
+                    answer.solution.iterations = 0;
+                    let text = serde_json::to_string(&answer).expect("json");
+                    if let Some(directory) = std::env::var_os("SAYSO_DIGEST_DIR") {
+                        let path = std::path::Path::new(&directory)
+                            .join(format!("{}_{index}.json", scene.name));
+                        std::fs::write(path, &text).expect("write");
+                    }
+                    let answer_hash = text.bytes().fold(0xcbf2_9ce4_8422_2325u64, |hash, byte| {
+                        (hash ^ byte as u64).wrapping_mul(0x0100_0000_01b3)
+                    });
                     println!(
-                        "{} {index}: energy {:.6} bound {:.6} gap {:.4} json {hash:016x}",
+                        "{} {index}: energy {:.6} bound {:.6} gap {:.4} json {hash:016x} answer {answer_hash:016x}",
                         scene.name,
                         version.solution.energy,
                         version.solution.lower_bound,

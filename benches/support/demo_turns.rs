@@ -22,6 +22,7 @@ use sayso_perception::pipeline::{
     SceneSource, TurnInputs,
 };
 use sayso_solver::joint::WarmStart;
+use sayso_solver::joint_region::touched_nodes;
 
 /// The demo scenes every production bench runs on: one of each of four room types.
 pub const BENCH_SCENES: [&str; 4] = [
@@ -63,9 +64,14 @@ impl BenchScene {
     }
 }
 
-/// The embedded settings the service and the CLI run with.
+/// The embedded settings the service and the CLI run with; with `SAYSO_WHOLE_SOLVES` set in the
+/// environment, every solve of a turn is a whole one (`JointOptions::region_solve` off), to compare.
 pub fn settings() -> CorrectionSettings {
-    CorrectionSettings::embedded().expect("the embedded settings load")
+    let mut settings = CorrectionSettings::embedded().expect("the embedded settings load");
+    if std::env::var_os("SAYSO_WHOLE_SOLVES").is_some() {
+        settings.options.region_solve = false;
+    }
+    settings
 }
 
 /// Loads the bench scenes through the real pipeline; panics unless each has the production segment count.
@@ -147,6 +153,9 @@ pub fn chain(scene: &BenchScene, settings: &CorrectionSettings) -> Vec<Correctio
 pub struct TurnEnergy {
     pub energy: JointEnergy,
     pub warm: WarmStart,
+    /// The fine nodes the turn's constraints change (`touched_nodes` against the energy of the constraints
+    /// in force before it); `None` when the change reaches every node.
+    pub seeds: Option<Vec<u32>>,
 }
 
 /// Rebuilds the energy of the turn that made `after` from `before`.
@@ -181,6 +190,23 @@ pub fn turn_energy(
         weights: &settings.weights,
     })
     .expect("the turn's energy builds");
+    // The same hypotheses under the constraints in force before the turn: where the turn's change lies.
+    let before_energy = build_energy(&EnergyInputs {
+        scene: &scene.prepared.scene,
+        unaries: &scene.prepared.unaries,
+        taxonomy: settings.grammar.taxonomy(),
+        hypotheses: &after.hypotheses,
+        accepted: &accepted,
+        grounded: &before.grounded,
+        prior: &settings.prior,
+        weights: &settings.weights,
+    })
+    .expect("the parent's energy builds");
+    let seeds = touched_nodes(
+        &before_energy.energy,
+        &built.energy,
+        &before.solution.state.labels,
+    );
     let warm = WarmStart {
         state: JointState {
             labels: before.solution.state.labels.clone(),
@@ -192,6 +218,7 @@ pub fn turn_energy(
     TurnEnergy {
         energy: built.energy,
         warm,
+        seeds,
     }
 }
 

@@ -64,6 +64,10 @@ pub struct JointOptions {
     /// +2.3 -> +2.0 (mostly a better no-note start in kitchen_breakfast, which the gain is counted from).
     #[serde(default = "default_warm_descent")]
     pub warm_descent: bool,
+    /// A correction turn re-solves only the region its change touches (`crate::joint_region`), the rest
+    /// held at the parent version's labels; off, every solve of a turn is a whole one.
+    #[serde(default = "default_region_solve")]
+    pub region_solve: bool,
 }
 
 impl Default for JointOptions {
@@ -73,11 +77,16 @@ impl Default for JointOptions {
             polish_budget: 512,
             gap_tolerance: 1e-9,
             warm_descent: true,
+            region_solve: true,
         }
     }
 }
 
 fn default_warm_descent() -> bool {
+    true
+}
+
+fn default_region_solve() -> bool {
     true
 }
 
@@ -503,7 +512,7 @@ fn tightened(
     lower_bound.max(tighter)
 }
 
-fn solve(
+pub(crate) fn solve(
     energy: &JointEnergy,
     warm: Option<&WarmStart>,
     options: &JointOptions,

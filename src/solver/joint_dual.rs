@@ -3,7 +3,7 @@
 //! exactly with relaxed presence), and the projected subgradient step that moves the multipliers.
 //!
 //! Owns: `fresh_multipliers`, `adapt_multipliers`, `DualValue`, `dual_value`, `diffused_dual_bound`,
-//! `subgradient_step`.
+//! `even_split_dual_bound`, `subgradient_step`.
 //! Must not: keep primal states or decide when the loop stops (that is `crate::joint`); it knows
 //! nothing of language, files or what classes mean.
 
@@ -139,6 +139,14 @@ pub(crate) fn diffused_dual_bound(
         .bound
         .diffused(inputs.unary, sweeps, energy_found - coupled, enough);
     segment_bound + coupled
+}
+
+/// The dual function at `multipliers` with the segment part bounded by the even split alone
+/// (`PottsBound::bound`): the valid bound one dual iteration reports, without labelling anything.
+pub(crate) fn even_split_dual_bound(inputs: BoundInputs, multipliers: &Multipliers) -> f64 {
+    shift_unary(inputs.energy, inputs.folded, inputs.unary, multipliers);
+    let coupled = coupled_minimum(inputs.energy, inputs.coupled, multipliers).value;
+    inputs.bound.bound(inputs.unary) + coupled
 }
 
 /// One evaluation of the dual function at the current multipliers.

@@ -14,6 +14,7 @@ mod joint_coupled;
 mod joint_dual;
 mod joint_labeller;
 mod joint_moves;
+pub mod joint_region;
 pub mod labelling;
 pub mod maxflow;
 pub mod maxflow_reference;

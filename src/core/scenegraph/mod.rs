@@ -218,6 +218,10 @@ pub struct SolvedFigures<'a> {
     pub counted: &'a [(ClassId, u32)],
     /// Classes with an upper bound in force (see `capped` for how their parts are joined).
     pub capped: &'a [capped::Cap],
+    /// An earlier graph of the same scene (the parent version's): an object with exactly the members of one
+    /// of its objects takes that object's mask instead of encoding it again (a mask is a function of the
+    /// scene and the members alone).
+    pub earlier: Option<&'a SceneGraph>,
 }
 
 /// Builds the scene graph of a solved state.
@@ -260,7 +264,16 @@ pub fn build_scene_graph(
                     .map(|hypothesis| hypothesis.score)
                     .unwrap_or(0.0),
                 bbox: footprint.bbox,
-                mask: RunLengthMask::from_segments(scene, &formed.members),
+                mask: figures
+                    .earlier
+                    .and_then(|earlier| {
+                        earlier
+                            .objects
+                            .iter()
+                            .find(|object| object.members == formed.members)
+                    })
+                    .map(|object| object.mask.clone())
+                    .unwrap_or_else(|| RunLengthMask::from_segments(scene, &formed.members)),
                 members: formed.members,
             }
         })

@@ -10,6 +10,7 @@
 
 pub mod answer;
 pub mod dialogue;
+mod region;
 pub mod solve;
 pub mod words;
 

@@ -33,7 +33,9 @@ use crate::scenegraph::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::solver::joint::{
     solve_joint_loose, tighten_bound, JointError, JointOptions, JointSolution, WarmStart,
 };
+use crate::solver::joint_region::touched_nodes;
 use crate::taxonomy::{ClassGroup, Taxonomy};
+use crate::turn::region::{factor_segments, solve_step};
 use crate::unaries::Unaries;
 
 /// What can stop a correction.
@@ -83,6 +85,15 @@ pub struct Correction {
     pub grounded: Vec<GroundedConstraint>,
     /// Span and gloss of every constraint in force, by the index causes and unmet entries use.
     pub constraint_labels: ConstraintLabels,
+}
+
+/// Where a later solve of the turn starts: the last solution's state, and its multipliers when only a region
+/// is solved (they give the rest of the scene its share of the bound; a whole solve starts its dual afresh).
+fn step_start(solution: &JointSolution, options: &JointOptions) -> WarmStart {
+    WarmStart {
+        state: solution.state.clone(),
+        multipliers: options.region_solve.then(|| solution.multipliers.clone()),
+    }
 }
 
 /// The previous state re-indexed onto a new hypothesis list (matching by id).
@@ -246,7 +257,22 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     }
 
     let mut built = build_energy(&energy_inputs(request, &hypotheses, &accepted, &in_force))?;
-    let mut solution = solve_joint_loose(&built.energy, warm.as_ref(), request.options)?;
+    // What this turn's constraints change: the energy with the constraints in force before it, over the
+    // same hypotheses, against this one, read with the warm start's labels (`region::solve_step`).
+    let seeds = match (&warm, request.options.region_solve) {
+        (Some(start), true) => {
+            let before_in_force = request.previous.map_or(&[][..], |p| &p.grounded[..]);
+            let before = build_energy(&energy_inputs(
+                request,
+                &hypotheses,
+                &accepted,
+                before_in_force,
+            ))?;
+            touched_nodes(&before.energy, &built.energy, &start.state.labels)
+        }
+        _ => None,
+    };
+    let mut solution = solve_step(&built.energy, warm.as_ref(), seeds.clone(), request.options)?;
     // The scene graph of `solution` with the counts and caps in force, while both stand: a turn builds
     // it once where nothing changed between the checks that read it and the answer.
     let mut latest_graph: Option<SceneGraph> = None;
@@ -265,12 +291,10 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         latest_graph = Some(graph);
         if !surplus.is_empty() {
             latest_graph = None;
+            let touched = factor_segments(&surplus);
             built.energy.unary_factors.extend(surplus);
-            let start = WarmStart {
-                state: solution.state.clone(),
-                multipliers: None,
-            };
-            solution = solve_joint_loose(&built.energy, Some(&start), request.options)?;
+            let start = step_start(&solution, request.options);
+            solution = solve_step(&built.energy, Some(&start), Some(touched), request.options)?;
         }
     }
     // Put back what moved between labels no note concerns and what a count asking for fewer took from outside
@@ -306,12 +330,10 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     ));
     if !strays.is_empty() {
         latest_graph = None;
+        let touched = factor_segments(&strays);
         built.energy.unary_factors.extend(strays);
-        let start = WarmStart {
-            state: solution.state.clone(),
-            multipliers: None,
-        };
-        solution = solve_joint_loose(&built.energy, Some(&start), request.options)?;
+        let start = step_start(&solution, request.options);
+        solution = solve_step(&built.energy, Some(&start), Some(touched), request.options)?;
     }
     // Pieces the turn handed to classes no note concerns do not stand as objects of their own
     // (`crate::scenegraph::leftovers`).
@@ -330,12 +352,10 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
             latest_graph = Some(graph);
         } else {
             latest_graph = None;
+            let touched = factor_segments(&leftovers);
             built.energy.unary_factors.extend(leftovers);
-            let start = WarmStart {
-                state: solution.state.clone(),
-                multipliers: None,
-            };
-            solution = solve_joint_loose(&built.energy, Some(&start), request.options)?;
+            let start = step_start(&solution, request.options);
+            solution = solve_step(&built.energy, Some(&start), Some(touched), request.options)?;
         }
     }
     // A count or presence of this turn the picture still does not show is withdrawn: the turn is solved again
@@ -357,7 +377,8 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         built.energy.count_factors.retain(|f| !gone(f.source));
         built.energy.unary_factors.retain(|f| !gone(f.source));
         built.energy.tuple_factors.retain(|f| !gone(f.source));
-        solution = solve_joint_loose(&built.energy, warm.as_ref(), request.options)?;
+        // From the parent version again: what the turn still changes is within what it changed.
+        solution = solve_step(&built.energy, warm.as_ref(), seeds, request.options)?;
         withdrawn_counts = in_force
             .iter()
             .filter(|g| withdrawn.contains(&g.constraint))
@@ -435,12 +456,10 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
                 _ => {}
             }
         }
-        let start = WarmStart {
-            state: solution.state.clone(),
-            multipliers: None,
-        };
+        let start = step_start(&solution, request.options);
         latest_graph = None;
-        solution = solve_joint_loose(&energy, Some(&start), request.options)?;
+        let touched = touched_nodes(&built.energy, &energy, &solution.state.labels);
+        solution = solve_step(&energy, Some(&start), touched, request.options)?;
         let applied = list_changes(
             &energy,
             taxonomy,
@@ -800,6 +819,7 @@ fn graph_of(
             relative_gap: solution.relative_gap,
             counted,
             capped: caps,
+            earlier: request.previous.map(|previous| &previous.graph),
         },
         request.instance_cuts,
     )
