@@ -2,7 +2,7 @@
 //! at a previous state's labels, widened when the answer reaches the region's edge and replaced by the
 //! whole solve when the region grows past a share of the scene.
 //!
-//! Owns: `solve_joint_region`, `RegionOutcome`, `touched_nodes` (where two energies of a scene differ), and
+//! Owns: `solve_joint_region` (and `solve_joint_region_loose`, the same without the bound), `RegionOutcome`, `touched_nodes` (where two energies of a scene differ), and
 //! the reduced energy a region is solved on.
 //! Must not: decide which nodes a change touches (the caller names them); know about language, files or
 //! what classes mean.
@@ -67,6 +67,29 @@ pub fn solve_joint_region(
     warm: &WarmStart,
     seeds: &[u32],
     options: &JointOptions,
+) -> Result<(JointSolution, RegionOutcome), JointError> {
+    region(energy, warm, seeds, options, true)
+}
+
+/// `solve_joint_region` without the whole energy's bound when a region was solved: its lower bound is
+/// `f64::NEG_INFINITY` (relative gap infinite), for a solve whose bound is thrown away or set by
+/// `crate::joint::tighten_bound` (which then tightens from the even split at the solution's multipliers, a
+/// bound at least the one `solve_joint_region` reports). A whole solve is `solve_joint_loose`'s, as there.
+pub fn solve_joint_region_loose(
+    energy: &JointEnergy,
+    warm: &WarmStart,
+    seeds: &[u32],
+    options: &JointOptions,
+) -> Result<(JointSolution, RegionOutcome), JointError> {
+    region(energy, warm, seeds, options, false)
+}
+
+fn region(
+    energy: &JointEnergy,
+    warm: &WarmStart,
+    seeds: &[u32],
+    options: &JointOptions,
+    with_bound: bool,
 ) -> Result<(JointSolution, RegionOutcome), JointError> {
     energy.validate()?;
     let whole = |energy: &JointEnergy| -> Result<(JointSolution, RegionOutcome), JointError> {
@@ -139,7 +162,11 @@ pub fn solve_joint_region(
             rings *= 2;
             continue;
         }
-        let lower_bound = whole_bound(energy, &folded, &multipliers).min(solved.energy);
+        let lower_bound = if with_bound {
+            whole_bound(energy, &folded, &multipliers).min(solved.energy)
+        } else {
+            f64::NEG_INFINITY
+        };
         let solution = JointSolution {
             presence: energy.presence(&state),
             energy: solved.energy,

@@ -163,6 +163,26 @@ fn segment_tops(unaries: &Unaries, segment_count: usize, top_k: usize) -> Vec<Ve
         .collect()
 }
 
+/// Whether `class` is among the `top_k` classes of a row in `top_classes`' order (log-probability descending
+/// by total order, ties by class id): fewer than `top_k` classes rank before it. `top_classes(row,
+/// top_k).contains(class)` without ranking the whole row or allocating.
+fn among_top(row: &[f32], class: usize, top_k: usize) -> bool {
+    let Some(&own) = row.get(class) else {
+        return false;
+    };
+    let mut ahead = 0;
+    for (other, value) in row.iter().enumerate() {
+        let order = value.total_cmp(&own);
+        if order.is_gt() || (order.is_eq() && other < class) {
+            ahead += 1;
+            if ahead >= top_k {
+                return false;
+            }
+        }
+    }
+    ahead < top_k
+}
+
 /// `id`, or the first id after it (wrapping) that `used` does not hold yet; marked used. Resolves the
 /// (rare) id collisions deterministically.
 fn claim_id(
@@ -414,7 +434,6 @@ pub fn propose_named(
     if classes.is_empty() || options.named_top_k <= options.top_k {
         return Vec::new();
     }
-    let tops = segment_tops(unaries, segment_count, options.named_top_k);
     let neighbours = segment_neighbours(scene, segment_count);
     let mut used: std::collections::BTreeSet<HypothesisId> =
         existing.iter().map(|h| h.id).collect();
@@ -428,7 +447,15 @@ pub fn propose_named(
                 }
             }
         }
-        let open = |s: usize| !held[s] && tops[s].contains(&class);
+        // Only the named class is ranked in each row (`among_top`), not every row's whole top list.
+        let ranked = |s: usize| {
+            let row = unaries.log_probs.row(s);
+            match row.as_slice() {
+                Some(values) => among_top(values, class.index(), options.named_top_k),
+                None => among_top(&row.to_vec(), class.index(), options.named_top_k),
+            }
+        };
+        let open = |s: usize| !held[s] && ranked(s);
         for members in connected_groups(&neighbours, open) {
             proposed.push(extra_hypothesis(
                 (scene, unaries),
@@ -535,6 +562,22 @@ mod tests {
             let expected: Vec<ClassId> =
                 order.into_iter().take(top_k).map(|c| ClassId(c as u16)).collect();
             proptest::prop_assert_eq!(top_classes(&row, top_k), expected);
+        }
+
+        /// Ranking one class gives the membership the full top list gives, for every class of the row.
+        #[test]
+        fn ranking_one_class_matches_the_top_list(
+            row in proptest::collection::vec(-4i8..1, 1..50),
+            top_k in 0usize..8,
+        ) {
+            let row: Vec<f32> = row.into_iter().map(|v| v as f32 * 0.5).collect();
+            let top = top_classes(&row, top_k);
+            for class in 0..row.len() {
+                proptest::prop_assert_eq!(
+                    among_top(&row, class, top_k),
+                    top.contains(&ClassId(class as u16))
+                );
+            }
         }
     }
 }

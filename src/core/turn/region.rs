@@ -6,11 +6,12 @@
 
 use crate::energy::{JointEnergy, UnaryFactor};
 use crate::solver::joint::{solve_joint_loose, JointError, JointOptions, JointSolution, WarmStart};
-use crate::solver::joint_region::solve_joint_region;
+use crate::solver::joint_region::solve_joint_region_loose;
 
 /// Solves one step of a turn from `start`: with region solves on, a start and the fine nodes the step's
 /// change touches (`seeds`), only the region grown from them moves (`solver::joint_region`); otherwise the
-/// whole energy is solved.
+/// whole energy is solved. Either way the bound is left loose (a region's unset) for the turn to tighten
+/// its answer's once (`solver::joint::tighten_bound`).
 pub(crate) fn solve_step(
     energy: &JointEnergy,
     start: Option<&WarmStart>,
@@ -19,7 +20,7 @@ pub(crate) fn solve_step(
 ) -> Result<JointSolution, JointError> {
     match (options.region_solve, start, seeds) {
         (true, Some(start), Some(seeds)) => {
-            Ok(solve_joint_region(energy, start, &seeds, options)?.0)
+            Ok(solve_joint_region_loose(energy, start, &seeds, options)?.0)
         }
         _ => solve_joint_loose(energy, start, options),
     }

@@ -187,6 +187,16 @@ fn nodes_outside_the_region_keep_their_labels() {
             assert_eq!(solution.state.labels[node], 2, "node {node}");
         }
     }
+    // The loose solve: the same answer, the bound left to `tighten_bound`, which reaches at least the
+    // even split's.
+    let (mut loose, _) =
+        solve_joint_region_loose(&energy, &warm, &[20], &JointOptions::default()).unwrap();
+    assert_eq!(loose.state, solution.state);
+    assert_eq!(loose.energy.to_bits(), solution.energy.to_bits());
+    assert_eq!(loose.lower_bound, f64::NEG_INFINITY);
+    crate::joint::tighten_bound(&energy, &mut loose, &JointOptions::default()).unwrap();
+    assert!(loose.lower_bound >= solution.lower_bound - 1e-9);
+    assert!(loose.lower_bound <= loose.energy);
     // No seed: the whole energy is solved.
     let (_, whole) = solve_joint_region(&energy, &warm, &[], &JointOptions::default()).unwrap();
     assert!(whole.whole);
