@@ -33,7 +33,7 @@ use conversations::{open_conversations, utterance, Conversation};
 use criterion::{criterion_group, criterion_main, Criterion};
 use demo_turns::{load_average, percentile};
 use sayso_core::demo::demo_directory;
-use sayso_perception::pipeline::model_path;
+use sayso_perception::pipeline::{load_classifier, model_path};
 use sayso_service::AppState;
 use sayso_session::config::ServiceConfig;
 use sayso_session::JointCorrector;
@@ -60,11 +60,14 @@ fn bench_config(data: &tempfile::TempDir) -> ServiceConfig {
     }
 }
 
-/// The coordinator the binary opens: the shipped engine, the durable log and the demo scenes.
+/// The coordinator the binary opens: the shipped engine, the durable log and the demo scenes (with
+/// `SAYSO_WHOLE_SOLVES` set, every solve of a turn a whole one, to compare: `demo_turns::settings`).
 fn open_coordinator(config: &ServiceConfig) -> Arc<Coordinator> {
+    let settings = demo_turns::settings();
+    let classifier = load_classifier(&model_path(None), settings.grammar.taxonomy()).unwrap();
     Arc::new(
         Coordinator::open(
-            Arc::new(JointCorrector::load(&model_path(None)).unwrap()),
+            Arc::new(JointCorrector::new(settings, classifier)),
             &CoordinatorSettings {
                 log_path: config.log_path(),
                 pixel_limit: config.pixel_limit,
