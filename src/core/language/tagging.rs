@@ -10,7 +10,7 @@
 use super::constraint::{ImageRegion, Relation, Span};
 use super::lexicon::{Lexicon, Tag};
 use super::parse::{IgnoredReason, Note, NoteKind};
-use super::spelling::{accept_limit, distance_within, SUGGESTION_LIMIT};
+use super::spelling::{accept_limit, ascii_distance_within, distance_within, SUGGESTION_LIMIT};
 use super::tokens::{Token, TokenShape};
 
 /// What an item is.
@@ -431,9 +431,23 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     let accept = accept_limit(word);
     let mut best: Option<(usize, &str, Tag)> = None;
     let mut suggestions: Vec<(usize, &str)> = Vec::new();
+    // Only the three nearest suggestions are kept and only a word within `accept` can be accepted, so once
+    // three lie within some distance, a farther candidate changes nothing and its alignment is cut off early.
+    let mut nearest = [SUGGESTION_LIMIT; 3];
+    let ascii = word.is_ascii();
     for (candidate, tag) in lexicon.spelling_words() {
-        if let Some(distance) = distance_within(word, candidate, SUGGESTION_LIMIT) {
+        let limit = nearest[2].max(accept);
+        let distance = if ascii && candidate.is_ascii() {
+            ascii_distance_within(word.as_bytes(), candidate.as_bytes(), limit)
+        } else {
+            distance_within(word, candidate, limit)
+        };
+        if let Some(distance) = distance {
             suggestions.push((distance, candidate));
+            if distance < nearest[2] {
+                nearest[2] = distance;
+                nearest.sort_unstable();
+            }
             // A slip of the keys rarely changes a short word's first letter: "hooks" is a word we do not
             // know, not "books".
             let same_start = length >= 8 || word.chars().next() == candidate.chars().next();
@@ -448,7 +462,12 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     if let Some((_, candidate, tag)) = best {
         return Spelling::Accepted(candidate.to_string(), tag);
     }
-    suggestions.sort();
+    // Only the three nearest are offered: select them, then order those three.
+    if suggestions.len() > 3 {
+        suggestions.select_nth_unstable(2);
+        suggestions.truncate(3);
+    }
+    suggestions.sort_unstable();
     Spelling::Unknown(
         suggestions
             .into_iter()
