@@ -742,12 +742,8 @@ impl<'t> Builder<'t> {
                 let points_back = landmark_phrases.len() == 1
                     && landmark_phrases[0].class.is_none()
                     && landmark_phrases[0].deictic.is_some_and(|word| word.pronoun);
-                // "In the microwave, not on it": a denial the stated relation excludes is stated too. "On
-                // the cabinet, not next to it" denies what the first relation may well include, so it is
-                // left to that relation.
-                if points_back && negated && !last.excludes(relation) {
-                    return;
-                }
+                // "In the microwave, not on it", "next to the laptop, not in front of it": the denial is
+                // stated of the same landmark, whichever relations the two are.
                 let landmarks: Vec<Referent> = if points_back {
                     last_landmarks
                 } else {

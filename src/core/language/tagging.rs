@@ -208,6 +208,40 @@ fn rewrite(
                 lexicon.longest_phrase(&[stem]).map(|found| found.tag),
                 Some(Tag::Class { .. } | Tag::Thing { .. } | Tag::Deictic { .. })
             );
+            // "My sister's bag", "the dog's red bowl": before a thing (or its colour or size and then a thing)
+            // the "'s" is a possessive, and the clause is about the thing owned, so the owner is left out.
+            // Read as "is" it would name the owner: "that's my aunt's bag" is no relabel to a person.
+            let found_at = |at: usize| {
+                let following: Vec<&str> = tokens
+                    .iter()
+                    .skip(at)
+                    .take(4)
+                    .map(|next| next.text.as_str())
+                    .collect();
+                lexicon.longest_phrase(&following)
+            };
+            let owns = match found_at(index + 1) {
+                Some(super::lexicon::Found {
+                    tag: Tag::Class { .. },
+                    ..
+                }) => true,
+                Some(super::lexicon::Found {
+                    tag: Tag::Colour(_) | Tag::Size(_),
+                    words,
+                }) => matches!(
+                    found_at(index + 1 + words).map(|found| found.tag),
+                    Some(Tag::Class { .. })
+                ),
+                _ => false,
+            };
+            let owner_is_a_thing = matches!(
+                lexicon.longest_phrase(&[stem]).map(|found| found.tag),
+                Some(Tag::Class { .. })
+            );
+            if owns && owner_is_a_thing {
+                index += 1;
+                continue;
+            }
             if is_noun {
                 words.push(Word {
                     text: stem.to_string(),
@@ -462,6 +496,9 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     if let Some((_, candidate, tag)) = best {
         return Spelling::Accepted(candidate.to_string(), tag);
     }
+    if let Some((candidate, tag)) = abbreviation(lexicon, word) {
+        return Spelling::Accepted(candidate.to_string(), tag);
+    }
     // Only the three nearest are offered: select them, then order those three.
     if suggestions.len() > 3 {
         suggestions.select_nth_unstable(2);
@@ -475,6 +512,53 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
             .map(|(_, word)| word.to_string())
             .collect(),
     )
+}
+
+/// Reads a field-note abbreviation as the one thing, room or relation word it can shorten ("shlf", "bdrm",
+/// "frdg", "cpbd"): a word of three to five letters, starting with the same letter, whose letters after the
+/// first are consonants found in order in the lexicon word, ending on that word's last consonant, with no letter
+/// twice in a row. Exactly one
+/// such word must fit (two fits mean the note is unknown, never a guess), and it must be longer than the
+/// abbreviation.
+fn abbreviation<'lexicon>(lexicon: &'lexicon Lexicon, word: &str) -> Option<(&'lexicon str, Tag)> {
+    const VOWELS: &[u8] = b"aeiouy";
+    let bytes = word.as_bytes();
+    // A letter said twice in a row is a sound drawn out ("brr", "hmmm", "shh"), not a shortening.
+    if !(3..=5).contains(&bytes.len())
+        || !bytes.iter().all(u8::is_ascii_lowercase)
+        || bytes[1..].iter().any(|byte| VOWELS.contains(byte))
+        || bytes.windows(2).any(|pair| pair[0] == pair[1])
+    {
+        return None;
+    }
+    let mut found: Option<(&str, Tag)> = None;
+    for (candidate, tag) in lexicon.spelling_words() {
+        if !matches!(tag, Tag::Class { .. } | Tag::Room(_) | Tag::Relation(_)) {
+            continue;
+        }
+        let letters = candidate.as_bytes();
+        if letters.len() <= bytes.len() || letters.first() != bytes.first() {
+            continue;
+        }
+        let last_consonant = letters.iter().rev().find(|byte| !VOWELS.contains(byte));
+        if last_consonant != bytes.last() || !is_subsequence(&bytes[1..], &letters[1..]) {
+            continue;
+        }
+        // Two words for one thing ("sofa", "settee") are one reading, and the shorter word is kept; two
+        // different things are two readings, and the abbreviation stays unknown.
+        match found {
+            Some((_, other_tag)) if other_tag != *tag => return None,
+            Some((other, _)) if other.len() <= candidate.len() => {}
+            _ => found = Some((candidate, *tag)),
+        }
+    }
+    found
+}
+
+/// Whether `short` appears in `long` in order (not necessarily adjacent).
+fn is_subsequence(short: &[u8], long: &[u8]) -> bool {
+    let mut rest = long.iter();
+    short.iter().all(|byte| rest.any(|other| other == byte))
 }
 
 /// Whether the kept items end with a landmark: a relation word, then a noun phrase of determiner, colour,

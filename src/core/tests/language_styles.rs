@@ -5,7 +5,9 @@
 //! by hand, blind, by a helper who never saw the parser; tests/language/styles_fresh.md says how), and
 //! styles_fresh2_dev.jsonl and styles_fresh2_heldout.jsonl (written the same way by another helper;
 //! tests/language/styles_fresh2.md), and styles_fresh3_dev.jsonl and styles_fresh3_heldout.jsonl (a third
-//! helper, the same way; tests/language/styles_fresh3.md).
+//! helper, the same way; tests/language/styles_fresh3.md). tests/language/styles_widened_dev.jsonl holds lines
+//! written by the parser's own maintainers (session 9), a line per variant of each construction widened
+//! then: development lines by definition, never a blind measure.
 //!
 //! Owns: reading the style files, scoring each line, printing the figures (and, for the development files
 //! only, the failing lines) and holding the floors.
@@ -466,4 +468,30 @@ fn fresh3_heldout_styles_figures_are_reported() {
         result.spurious_constraints, 0,
         "constraints from non-corrections on the third fresh held-out file"
     );
+}
+
+/// Lines of the maintainers' own, one per variant of each construction widened in session 9 (verbs of
+/// position and posture as a class, "near to", "round", "atop", "over on", field-note abbreviations read as
+/// the one word they shorten, a denial of the same landmark by "it" whichever the two relations, a possessive
+/// "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
+/// must read.
+#[test]
+fn widened_constructions_read_every_variant() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_widened_dev.jsonl"));
+    print_figures("styles widened dev", &result);
+    if !result.failures.is_empty() {
+        println!("failures:\n{}", result.failures.join("\n"));
+    }
+    assert!(
+        result.total >= 50,
+        "the widened file has {} lines",
+        result.total
+    );
+    assert_eq!(
+        result.passed, result.total,
+        "a widened construction no longer reads"
+    );
+    assert_eq!(result.unasked_relabels, 0);
+    assert_eq!(result.spurious_constraints, 0);
 }
