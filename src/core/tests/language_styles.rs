@@ -472,8 +472,9 @@ fn fresh3_heldout_styles_figures_are_reported() {
 
 /// Lines of the maintainers' own, one per variant of each construction widened in session 9 (verbs of
 /// position and posture as a class, "near to", "round", "atop", "over on", field-note abbreviations read as
-/// the one word they shorten, a denial of the same landmark by "it" whichever the two relations, a possessive
-/// "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
+/// the one word they shorten, a denial of the same landmark by "it" whichever the two relations, a second
+/// place by "it" after a landmark ("by the table, right next to it"), a landmark we do not know repaired by
+/// one we do ("in the dishwasher, no, the sink"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
 /// must read.
 #[test]
 fn widened_constructions_read_every_variant() {
