@@ -743,7 +743,16 @@ impl<'t> Builder<'t> {
                     && landmark_phrases[0].class.is_none()
                     && landmark_phrases[0].deictic.is_some_and(|word| word.pronoun);
                 // "In the microwave, not on it", "next to the laptop, not in front of it": the denial is
-                // stated of the same landmark, whichever relations the two are.
+                // stated of the same landmark. "On the cabinet, not next to it" denies what the first
+                // relation may well include (a thing on another is also by it), so it is left to that
+                // relation.
+                if points_back
+                    && negated
+                    && relation == Relation::NextTo
+                    && last != Relation::NextTo
+                {
+                    return;
+                }
                 let landmarks: Vec<Referent> = if points_back {
                     last_landmarks
                 } else {
