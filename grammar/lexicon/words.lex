@@ -487,6 +487,10 @@ hmm -> filler
 ah -> filler
 oh -> filler
 like -> filler
+# "The number of mugs is um it's three": "it's" right after the verb (a hesitation between is dropped before
+# rewrites) restarts the sentence before the number; it reads as the hesitation it is.
+it's = um when after is|are|was|were when before <number>
+its = um when after is|are|was|were when before <number>
 # "On like the left", "is like next to": the filler goes before phrases are matched, so it splits none.
 on like = on
 in like = in

@@ -474,7 +474,8 @@ fn fresh3_heldout_styles_figures_are_reported() {
 /// position and posture as a class, "near to", "round", "atop", "over on", field-note abbreviations read as
 /// the one word they shorten, a denial of the same landmark by "it" whichever the two relations, a second
 /// place by "it" after a landmark ("by the table, right next to it"), a landmark we do not know repaired by
-/// one we do ("in the dishwasher, no, the sink"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
+/// one we do ("in the dishwasher, no, the sink"), a demonstrative naming a class denied ("that mug does not
+/// exist"), "it's" restarting before a number ("is um it's three"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
 /// must read.
 #[test]
 fn widened_constructions_read_every_variant() {
