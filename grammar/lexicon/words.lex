@@ -123,6 +123,34 @@ has been -> be
 have been -> be
 has been put -> be
 have been put -> be
+# "The cat has climbed onto the shelf", "the bag has been left by the door": a move or a placing, finished,
+# says where the thing is now.
+has gone -> be
+have gone -> be
+has climbed -> be
+have climbed -> be
+has crawled -> be
+have crawled -> be
+has jumped -> be
+have jumped -> be
+has wandered -> be
+have wandered -> be
+has settled -> be
+have settled -> be
+has curled up -> be
+have curled up -> be
+has been left -> be
+have been left -> be
+has been placed -> be
+have been placed -> be
+has been moved -> be
+have been moved -> be
+has been stacked -> be
+have been stacked -> be
+has been hung -> be
+have been hung -> be
+has ended up -> be
+have ended up -> be
 sits -> be
 rests -> be
 rest -> be
@@ -660,6 +688,8 @@ folded -> skip
 propped -> skip
 balanced -> skip
 snoozing -> skip
+fast asleep -> skip
+sound asleep -> skip
 napping -> skip
 perched on -> relation on
 up there -> skip

@@ -485,8 +485,13 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
             // A slip of the keys rarely changes a short word's first letter: "hooks" is a word we do not
             // know, not "books".
             let same_start = length >= 8 || word.chars().next() == candidate.chars().next();
+            // Nor does it add a verb's ending: "jumped" is a verb we do not know, not "jumper".
+            let same_ending = ["ed", "ing"]
+                .iter()
+                .all(|ending| !word.ends_with(ending) || candidate.ends_with(ending));
             if distance <= accept
                 && same_start
+                && same_ending
                 && best.is_none_or(|(best_distance, ..)| distance < best_distance)
             {
                 best = Some((distance, candidate, *tag));
