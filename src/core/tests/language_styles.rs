@@ -476,7 +476,8 @@ fn fresh3_heldout_styles_figures_are_reported() {
 /// place by "it" after a landmark ("by the table, right next to it"), a landmark we do not know repaired by
 /// one we do ("in the dishwasher, no, the sink"), a demonstrative naming a class denied ("that mug does not
 /// exist"), "it's" restarting before a number ("is um it's three"), a finished move or placing ("has climbed
-/// onto", "has been left by"), no spelling guess that adds a verb's ending, a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
+/// onto", "has been left by"), no spelling guess that adds a verb's ending, "+" between two things, the
+/// word for colour in a note, a note's count followed by a place, a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
 /// must read.
 #[test]
 fn widened_constructions_read_every_variant() {
