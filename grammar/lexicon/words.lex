@@ -689,6 +689,8 @@ propped -> skip
 balanced -> skip
 snoozing -> skip
 fast asleep -> skip
+# "The dog is laying on the rug": "lay" for "lie", as it is often said.
+laying -> skip
 sound asleep -> skip
 napping -> skip
 perched on -> relation on

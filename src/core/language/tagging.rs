@@ -203,6 +203,11 @@ fn rewrite(
             index += length + usize::from(clipped);
             continue;
         }
+        if let Some((word, used)) = rejoined(lexicon, tokens, index) {
+            words.push(word);
+            index += used;
+            continue;
+        }
         if let Some(stem) = token.text.strip_suffix("'s") {
             let is_noun = matches!(
                 lexicon.longest_phrase(&[stem]).map(|found| found.tag),
@@ -268,6 +273,59 @@ fn rewrite(
         index += 1;
     }
     words
+}
+
+/// A word the recogniser split or clipped, put back together: two words that are one thing or relation word
+/// written apart ("be hind", "cup board", "arm chair") when the two are no phrase of their own, and a word
+/// with its final "g" dropped ("sittin", "layin") when only the full form is known. `None` for anything else.
+fn rejoined(lexicon: &Lexicon, tokens: &[Token], index: usize) -> Option<(Word, usize)> {
+    let token = &tokens[index];
+    let known = |text: &str| lexicon.longest_phrase(&[text]).is_some();
+    let plain = |text: &str| !text.is_empty() && text.chars().all(|c| c.is_ascii_lowercase());
+    if !plain(&token.text) {
+        return None;
+    }
+    if let Some(next) = tokens
+        .get(index + 1)
+        .filter(|next| next.shape == TokenShape::Word && plain(&next.text))
+    {
+        let joined = format!("{}{}", token.text, next.text);
+        let one_word = matches!(
+            lexicon.longest_phrase(&[joined.as_str()]),
+            Some(super::lexicon::Found {
+                tag: Tag::Class { .. } | Tag::Relation(_),
+                words: 1,
+            })
+        );
+        let a_phrase_apart = lexicon
+            .longest_phrase(&[token.text.as_str(), next.text.as_str()])
+            .is_some_and(|found| found.words == 2);
+        if one_word && joined.len() >= 5 && !a_phrase_apart {
+            return Some((
+                Word {
+                    text: joined,
+                    span: token.span.cover(next.span),
+                    shape: TokenShape::Word,
+                    fragment: false,
+                },
+                2,
+            ));
+        }
+    }
+    let clipped = format!("{}g", token.text);
+    if token.text.len() >= 5 && token.text.ends_with("in") && !known(&token.text) && known(&clipped)
+    {
+        return Some((
+            Word {
+                text: clipped,
+                span: token.span,
+                shape: TokenShape::Word,
+                fragment: false,
+            },
+            1,
+        ));
+    }
+    None
 }
 
 /// The count of a note's multiplier ("x9", "x 12" is not one): `Some(9)`.

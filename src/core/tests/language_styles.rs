@@ -477,7 +477,8 @@ fn fresh3_heldout_styles_figures_are_reported() {
 /// one we do ("in the dishwasher, no, the sink"), a demonstrative naming a class denied ("that mug does not
 /// exist"), "it's" restarting before a number ("is um it's three"), a finished move or placing ("has climbed
 /// onto", "has been left by"), no spelling guess that adds a verb's ending, "+" between two things, the
-/// word for colour in a note, a note's count followed by a place, a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
+/// word for colour in a note, a note's count followed by a place, words the recogniser split ("be low", "cup
+/// board") or clipped ("sittin"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
 /// must read.
 #[test]
 fn widened_constructions_read_every_variant() {
