@@ -289,21 +289,32 @@ fn rejoined(lexicon: &Lexicon, tokens: &[Token], index: usize) -> Option<(Word, 
         .get(index + 1)
         .filter(|next| next.shape == TokenShape::Word && plain(&next.text))
     {
-        let joined = format!("{}{}", token.text, next.text);
-        let one_word = matches!(
-            lexicon.longest_phrase(&[joined.as_str()]),
-            Some(super::lexicon::Found {
-                tag: Tag::Class { .. } | Tag::Relation(_),
-                words: 1,
-            })
-        );
+        // Joined on the stack: this runs at every pair of words, so it must not allocate.
+        let mut buffer = [0u8; 24];
+        let length = token.text.len() + next.text.len();
+        let joined = match buffer.get_mut(..length) {
+            Some(slot) => {
+                slot[..token.text.len()].copy_from_slice(token.text.as_bytes());
+                slot[token.text.len()..].copy_from_slice(next.text.as_bytes());
+                std::str::from_utf8(slot).unwrap_or_default()
+            }
+            None => "",
+        };
+        let one_word = !joined.is_empty()
+            && matches!(
+                lexicon.longest_phrase(&[joined]),
+                Some(super::lexicon::Found {
+                    tag: Tag::Class { .. } | Tag::Relation(_),
+                    words: 1,
+                })
+            );
         let a_phrase_apart = lexicon
             .longest_phrase(&[token.text.as_str(), next.text.as_str()])
             .is_some_and(|found| found.words == 2);
         if one_word && joined.len() >= 5 && !a_phrase_apart {
             return Some((
                 Word {
-                    text: joined,
+                    text: joined.to_string(),
                     span: token.span.cover(next.span),
                     shape: TokenShape::Word,
                     fragment: false,
@@ -312,9 +323,11 @@ fn rejoined(lexicon: &Lexicon, tokens: &[Token], index: usize) -> Option<(Word, 
             ));
         }
     }
+    if token.text.len() < 5 || !token.text.ends_with("in") || known(&token.text) {
+        return None;
+    }
     let clipped = format!("{}g", token.text);
-    if token.text.len() >= 5 && token.text.ends_with("in") && !known(&token.text) && known(&clipped)
-    {
+    if known(&clipped) {
         return Some((
             Word {
                 text: clipped,

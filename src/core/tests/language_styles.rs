@@ -276,8 +276,9 @@ fn fresh_development_styles_recall_per_style() {
 /// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none; in
 /// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none;
 /// after those the second fresh development file prompted, 142/156 (91.0%), none, none; in session 8, after
-/// those the third fresh development file prompted, 143/156 (91.7%), none, none.
-const FRESH_HELDOUT_FLOOR: f64 = 91.6;
+/// those the third fresh development file prompted, 143/156 (91.7%), none, none; in session 9, after the
+/// constructions widened then, 144/156 (92.3%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 92.2;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -360,8 +361,9 @@ fn fresh2_development_styles_recall_per_style() {
 /// Second fresh held-out floor. When the file arrived, before any change it prompted, the parser read 132/150
 /// (88.0%; no constraint from 25 non-corrections, no unasked relabel, 6 lines misread), as did the parser of
 /// the session's start; after the changes the development file prompted, 135/150 (90.0%; none, none, 4); in
-/// session 8, after those the third fresh development file prompted, 138/150 (92.0%; none, none, 2).
-const FRESH2_HELDOUT_FLOOR: f64 = 91.9;
+/// session 8, after those the third fresh development file prompted, 138/150 (92.0%; none, none, 2); in session
+/// 9, after the constructions widened then, 140/150 (93.3%; none, none, 2).
+const FRESH2_HELDOUT_FLOOR: f64 = 93.2;
 
 /// The second fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -440,8 +442,9 @@ fn fresh3_development_styles_recall_per_style() {
 
 /// Third fresh held-out floor. When the file arrived, before any change it prompted, the parser read 139/150
 /// (92.7%; no constraint from 25 non-corrections, no unasked relabel, 2 lines misread); after the changes
-/// the development file prompted, 140/150 (93.3%; none, none, 3).
-const FRESH3_HELDOUT_FLOOR: f64 = 93.2;
+/// the development file prompted, 140/150 (93.3%; none, none, 3); in session 9, after the constructions
+/// widened then, 142/150 (94.7%; none, none, 3).
+const FRESH3_HELDOUT_FLOOR: f64 = 94.6;
 
 /// The third fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
