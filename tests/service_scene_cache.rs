@@ -282,11 +282,13 @@ fn a_byte_budget_bounds_the_heap_the_scenes_and_their_prepared_solves_hold() {
         "{IN_A_ROW} scenes of 640x480 without a byte budget: heap held {held_every} bytes \
          ({per_scene_heap} a scene), weighed at {weighed_every} ({per_scene_weight} a scene)"
     );
-    // The weighing counts the large parts from their lengths, not every small allocation: measured at 0.79
-    // of the heap really held (2026-12-05); within 30% of it (our own margin).
+    // The weighing counts the large parts from their lengths, not every small allocation: measured at 0.96
+    // of the heap really held (2026-12-05: 50,421,182 of 52,256,881 bytes; 0.79 before the solve's
+    // multipliers, one per hypothesis member, and the objects' names were counted); within 15% of it (our
+    // own margin).
     let ratio = weighed_every as f64 / held_every as f64;
     assert!(
-        (0.7..=1.3).contains(&ratio),
+        (0.85..=1.15).contains(&ratio),
         "scenes weighed at {weighed_every} bytes hold {held_every} ({ratio:.2} of it)"
     );
 

@@ -5,6 +5,9 @@
 / = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
 / = ;
 -> = , when before on|under|undr|in|inside|left|lft|right|rt|next|nxt|adj|beside|behind|by|near|above|abv|below|blw|at|over|l|r
+# "mug + lamp on desk", "2 mugs + 1 lamp on desk": between two things, "+" joins them as "and" does, so a place
+# after them is both things'.
++ = and when after <class> when before <class>|<number>|a|an
 + = , unless after <start>
 & = and
 = = it is when after <start> when before <class>|a|an
@@ -168,3 +171,8 @@ no = none when after : when before <end>
 
 # "Exactly!" alone agrees; it counts nothing.
 exactly = great when after <start> when before <end>
+# "sofa col: grey", "rug colour - blue": the word for colour before a colour names nothing itself.
+col -> skip
+colour -> skip
+color -> skip
+clr -> skip

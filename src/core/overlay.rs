@@ -146,16 +146,13 @@ pub struct BeforeAfter {
 /// Gap between the two views of `side_by_side`, in pixels.
 pub const VIEW_GAP: u32 = 8;
 
-/// Draws a correction's before and after at the same size: each view tinted and outlined, the after view
-/// with every changed region ringed and the larger ones named "New (was Old)", and one legend of the classes
-/// in either view with their share after (or "before only").
-pub fn draw_before_after(
+/// Checks both views against the image and answers the legend of `draw_before_after` with its rows.
+fn checked_legend(
     image: &RgbImage,
     before: View<'_>,
     after: View<'_>,
     taxonomy: &Taxonomy,
-    options: &OverlayOptions,
-) -> Result<BeforeAfter, OverlayError> {
+) -> Result<(Vec<LegendEntry>, Vec<LegendRow>), OverlayError> {
     let count = image.pixel_count();
     for view in [before, after] {
         check_regions(image, view.regions)?;
@@ -174,7 +171,20 @@ pub fn draw_before_after(
         .collect();
     let rows = share_rows(taxonomy, &legend, &only_before, count as u64);
     legend.extend(only_before);
+    Ok((legend, rows))
+}
 
+/// Draws a correction's before and after at the same size: each view tinted and outlined, the after view
+/// with every changed region ringed and the larger ones named "New (was Old)", and one legend of the classes
+/// in either view with their share after (or "before only").
+pub fn draw_before_after(
+    image: &RgbImage,
+    before: View<'_>,
+    after: View<'_>,
+    taxonomy: &Taxonomy,
+    options: &OverlayOptions,
+) -> Result<BeforeAfter, OverlayError> {
+    let (legend, rows) = checked_legend(image, before, after, taxonomy)?;
     let mut before_picture = tint(image, before.labels, taxonomy, options.alpha);
     outline_regions(
         &mut before_picture,
@@ -212,6 +222,51 @@ pub fn draw_before_after(
         legend,
         changed,
     })
+}
+
+/// The `after` picture of `draw_before_after` alone, pixel for pixel, without drawing the before view or
+/// the side-by-side picture: one tinted copy of the image and the finished picture are the only buffers of
+/// its size (a 4096x4096 view is 50 MB a buffer; `draw_before_after` makes nine).
+pub fn draw_after(
+    image: &RgbImage,
+    before: View<'_>,
+    after: View<'_>,
+    taxonomy: &Taxonomy,
+    options: &OverlayOptions,
+) -> Result<RgbImage, OverlayError> {
+    let (_, rows) = checked_legend(image, before, after, taxonomy)?;
+    let mut picture = tint(image, after.labels, taxonomy, options.alpha);
+    outline_regions(&mut picture, after.regions.regions, after.labels, taxonomy);
+    mark_changes(
+        &mut picture,
+        before.labels,
+        after.labels,
+        taxonomy,
+        options.text_size,
+    );
+    let strip = line_height(options.text_size) + 8;
+    let panel = legend_panel(
+        &wrap(&options.title, 28),
+        &rows,
+        taxonomy,
+        options.text_size,
+        picture.height + strip,
+    );
+    // As `beside(&[&titled(..), &panel], 0)`: the title is drawn before the panel (at least as tall as the
+    // titled picture) is pasted, so what a title too wide for the picture spills is covered by the panel,
+    // as the titled picture's own edge clips it.
+    let mut out = RgbImage::filled(
+        picture.width + panel.width,
+        (picture.height + strip).max(panel.height),
+        PANEL_BACKGROUND,
+    );
+    paste(&mut out, &picture, 0, strip);
+    let width = picture.width;
+    drop(picture);
+    let size = title_size(width, after.title, options.text_size);
+    draw_text(&mut out, 6, 4, after.title, size, PANEL_TEXT);
+    paste(&mut out, &panel, width, 0);
+    Ok(out)
 }
 
 fn pixel_classes(
@@ -322,18 +377,23 @@ const SMALLEST_TITLE_SIZE: f32 = 7.0;
 /// The picture under a strip holding its title; on a picture too narrow for the title the text is made
 /// smaller to fit (down to `SMALLEST_TITLE_SIZE`), so a small image's panels still say which is which.
 fn titled(picture: &RgbImage, title: &str, text_size: f32) -> RgbImage {
-    let room = picture.width.saturating_sub(12) as f32;
-    let width = text_width(title, text_size) as f32;
-    let size = if width > room && width > 0.0 {
-        (text_size * room / width).max(SMALLEST_TITLE_SIZE)
-    } else {
-        text_size
-    };
+    let size = title_size(picture.width, title, text_size);
     let strip = line_height(text_size) + 8;
     let mut out = RgbImage::filled(picture.width, picture.height + strip, PANEL_BACKGROUND);
     paste(&mut out, picture, 0, strip);
     draw_text(&mut out, 6, 4, title, size, PANEL_TEXT);
     out
+}
+
+/// The text size of a title over a picture `width` pixels wide (see `titled`).
+fn title_size(width: u32, title: &str, text_size: f32) -> f32 {
+    let room = width.saturating_sub(12) as f32;
+    let wide = text_width(title, text_size) as f32;
+    if wide > room && wide > 0.0 {
+        (text_size * room / wide).max(SMALLEST_TITLE_SIZE)
+    } else {
+        text_size
+    }
 }
 
 /// The pictures left to right, tops aligned, `gap` pixels apart, on the panel background.
@@ -350,11 +410,16 @@ fn beside(pictures: &[&RgbImage], gap: u32) -> RgbImage {
     out
 }
 
+/// Copies `picture` onto `canvas` with its top left corner at (`left`, `top`), row by row; what falls
+/// outside the canvas is left out.
 fn paste(canvas: &mut RgbImage, picture: &RgbImage, left: u32, top: u32) {
-    for y in 0..picture.height {
-        for x in 0..picture.width {
-            canvas.set(left + x, top + y, picture.get(x, y));
-        }
+    let (canvas_width, picture_width) = (canvas.width as usize, picture.width as usize);
+    let columns = picture_width.min(canvas_width.saturating_sub(left as usize));
+    let rows = picture.height.min(canvas.height.saturating_sub(top));
+    for y in 0..rows as usize {
+        let from = y * picture_width;
+        let to = (top as usize + y) * canvas_width + left as usize;
+        canvas.pixels[to..to + columns].copy_from_slice(&picture.pixels[from..from + columns]);
     }
 }
 
@@ -395,6 +460,57 @@ mod tests {
             .map(|&r| if r == 0 { 0 } else { 21 })
             .collect();
         (image, regions, labels)
+    }
+
+    /// `draw_after` draws `draw_before_after`'s after picture pixel for pixel: on a picture wide enough for
+    /// its title and on one so narrow the title spills past it, with a region changed between the views.
+    #[test]
+    fn the_after_view_alone_is_the_after_picture_of_both() {
+        let taxonomy = Taxonomy::embedded();
+        for (width, height) in [(200u32, 120u32), (40, 30)] {
+            let image = RgbImage {
+                width,
+                height,
+                pixels: (0..width * height)
+                    .map(|i| [(i % 251) as u8, (i / 7 % 253) as u8, 90])
+                    .collect(),
+            };
+            let regions: Vec<u32> = (0..width * height)
+                .map(|i| u32::from(i % width >= width / 2) + 2 * u32::from(i / width >= height / 2))
+                .collect();
+            let before: Vec<u16> = regions
+                .iter()
+                .map(|&r| [0, 21, 3, 21][r as usize])
+                .collect();
+            let after: Vec<u16> = regions
+                .iter()
+                .map(|&r| [0, 21, 5, 21][r as usize])
+                .collect();
+            let map = RegionMap {
+                width,
+                regions: &regions,
+            };
+            let views = (
+                View {
+                    regions: map,
+                    labels: &before,
+                    title: "Before",
+                },
+                View {
+                    regions: map,
+                    labels: &after,
+                    title: "Ringed: what this version's note changed",
+                },
+            );
+            let options = OverlayOptions {
+                title: "Juniper Lane, the den".to_string(),
+                ..OverlayOptions::default()
+            };
+            let both = draw_before_after(&image, views.0, views.1, &taxonomy, &options).unwrap();
+            assert!(!both.changed.is_empty());
+            let alone = draw_after(&image, views.0, views.1, &taxonomy, &options).unwrap();
+            assert_eq!(alone, both.after, "{width}x{height}");
+        }
     }
 
     #[test]

@@ -441,11 +441,6 @@ fn write_file(
 
 /// Encodes an RGB image as PNG bytes.
 pub fn encode_rgb_png(image: &RgbImage) -> Result<Vec<u8>, String> {
-    let data: Vec<u8> = image
-        .pixels
-        .iter()
-        .flat_map(|pixel| pixel.iter().copied())
-        .collect();
     let mut bytes = Vec::new();
     encode_png(
         &mut bytes,
@@ -453,7 +448,7 @@ pub fn encode_rgb_png(image: &RgbImage) -> Result<Vec<u8>, String> {
         image.height,
         png::ColorType::Rgb,
         png::BitDepth::Eight,
-        &data,
+        image.pixels.as_flattened(),
     )?;
     Ok(bytes)
 }

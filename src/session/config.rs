@@ -31,7 +31,8 @@
 //! auth_failure_burst = 10
 //! scenes_in_memory = 32           # idle scenes held decoded; the others are read from the log when asked for
 //! scene_memory_bytes = 268435456  # and at most this many bytes of them (256 MiB; the scene last used is
-//!                                 # held whatever its size)
+//!                                 # held whatever its size). A scene is weighed from the lengths of its
+//!                                 # parts: 0.96 of the heap it really holds (640x480 scenes, 2026-12-05)
 //!
 //! [[operators]]
 //! name = "mira"

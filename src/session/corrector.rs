@@ -260,8 +260,8 @@ pub trait Corrector: Send + Sync + 'static {
         None
     }
 
-    /// The overlay image of a version, drawn as `fix` draws its after picture
-    /// (`crate::overlay::draw_before_after`): the photo under a translucent class tint, the objects
+    /// The overlay image of a version, drawn as `fix` draws its after picture (`crate::overlay::draw_after`,
+    /// which draws that picture alone): the photo under a translucent class tint, the objects
     /// outlined (`object_regions`), the regions the version's own note changed against `parent` (the
     /// version it was made from; `None` for the registered version) ringed and named, under a title,
     /// with a legend of the classes shown to the right. Labels that do not fit the image give the plain
@@ -290,7 +290,7 @@ pub trait Corrector: Send + Sync + 'static {
             width: labels.width,
             regions: &regions,
         };
-        crate::overlay::draw_before_after(
+        crate::overlay::draw_after(
             image,
             crate::overlay::View {
                 regions: map,
@@ -305,7 +305,6 @@ pub trait Corrector: Send + Sync + 'static {
             self.taxonomy(),
             &crate::overlay::OverlayOptions::default(),
         )
-        .map(|pictures| pictures.after)
         .unwrap_or_else(|_| blend_overlay(image, labels, self.taxonomy()))
     }
 }

@@ -519,13 +519,20 @@ fn registration_of(state: &SceneState) -> Option<String> {
 }
 
 /// About what a solved version holds on the heap: its per-segment and per-node labels, objects, their
-/// masks and relations, and hypotheses, counted from their lengths (the small fixed parts are left out).
+/// masks, names and relations, hypotheses and the solve's multipliers (one per hypothesis member), counted
+/// from their lengths (the small fixed parts are left out).
 fn correction_bytes(correction: &Correction) -> u64 {
     let graph = &correction.graph;
     let masks: usize = graph
         .objects
         .iter()
-        .map(|object| (object.mask.runs.len() + object.members.len()) * 4)
+        .map(|object| (object.mask.runs.len() + object.members.len()) * 4 + object.class_name.len())
+        .sum();
+    let multipliers = &correction.solution.multipliers;
+    let agreement: usize = multipliers
+        .agreement
+        .iter()
+        .map(|values| std::mem::size_of::<Vec<f64>>() + std::mem::size_of_val(&values[..]))
         .sum();
     let bytes = graph.segment_labels.len() * std::mem::size_of::<ClassId>()
         + graph.objects.len() * std::mem::size_of::<crate::scenegraph::SceneObject>()
@@ -533,6 +540,9 @@ fn correction_bytes(correction: &Correction) -> u64 {
         + masks
         + correction.solution.state.labels.len() * 2
         + correction.solution.state.hypotheses_on.len()
+        + correction.solution.presence.len()
+        + agreement
+        + std::mem::size_of_val(&multipliers.presence[..])
         + correction
             .hypotheses
             .iter()

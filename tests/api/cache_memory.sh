@@ -57,11 +57,16 @@ print(json.dumps({"name": sys.argv[2], "image_base64": base64.b64encode(open(sys
     printf '%-10s HTTP %s in %3d s | VmRSS %7d kB | VmHWM %7d kB | load %s\n' "scene $index" "$status" \
         "$seconds" "$(rss_kb "$server")" "$(hwm_kb "$server")" "$(cut -d' ' -f1 /proc/loadavg)"
 done
-# The first scene again: let go under a budget, it is read back from the log.
-started=$SECONDS
-status="$(curl -s -o "$work/answer" -w "%{http_code}" "$base/v1/scenes/1/overlay.png")"
-seconds=$((SECONDS - started))
-settle "$server"
-printf '%-10s HTTP %s in %3d s | VmRSS %7d kB | VmHWM %7d kB\n' "read 1" "$status" "$seconds" \
-    "$(rss_kb "$server")" "$(hwm_kb "$server")"
+# The first scene again: let go under a budget, it is read back from the log (VmHWM is the peak of this
+# request alone: it is reset first). Then the same overlay once more, the scene now held.
+for read in "read 1" "again 1"; do
+    reset_hwm "$server"
+    started="$(date +%s.%N)"
+    status="$(curl -s -o "$work/answer" -w "%{http_code}" "$base/v1/scenes/1/overlay.png")"
+    seconds="$(echo "$(date +%s.%N) - $started" | bc)"
+    settle "$server"
+    printf '%-10s HTTP %s in %5.1f s | VmRSS %7d kB | VmHWM %7d kB | %d bytes | load %s\n' "$read" "$status" \
+        "$seconds" "$(rss_kb "$server")" "$(hwm_kb "$server")" "$(stat -c %s "$work/answer")" \
+        "$(cut -d' ' -f1 /proc/loadavg)"
+done
 echo "load average at the end $(cut -d' ' -f1-3 /proc/loadavg)"

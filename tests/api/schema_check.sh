@@ -7,6 +7,7 @@
 set -euo pipefail
 binary="$(realpath "${1:-target/release/sayso}")"
 examples="${2:-20}"
+config="$(realpath "$(dirname "$0")/schemathesis.toml")"
 work="$(mktemp -d)"
 token="juniper-lane-schema-check-01"
 cat > "$work/sayso.toml" <<TOML
@@ -36,4 +37,4 @@ curl -sf -X POST "$base/v1/conversations" -H "$auth" -H 'Content-Type: applicati
     -d '{"scene_id": 1}' > /dev/null
 # Run from the scratch directory, so schemathesis's cache stays out of the repository.
 cd "$work"
-st run "$base/v1/openapi.json" -H "$auth" --max-examples "$examples" --request-timeout 30 --workers 1
+st --config-file "$config" run "$base/v1/openapi.json" -H "$auth" --max-examples "$examples" --request-timeout 30 --workers 1

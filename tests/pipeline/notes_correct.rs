@@ -1,7 +1,7 @@
 //! End-to-end checks that a true note moves a hand-built scene toward the truth and costs nothing that was
 //! right: a count below what the graph shows joins the parts of one object (piece by piece, nearest first), a
 //! count drops a stray fragment, a point on a wall relabels only the thing pointed at (also a door of nearly
-//! the wall's colour), "in this room" is a place, never a landmark, a class taken away leaves no sliver of
+//! the wall's colour, and a strip the robot ran into the object above it), "in this room" is a place, never a landmark, a class taken away leaves no sliver of
 //! another class behind, and a count asking for fewer never grows its class past its span.
 //!
 //! Owns: those behaviours through `correct` (and the embedded grammar for the wording). Must not: depend on
@@ -419,6 +419,93 @@ fn a_point_on_a_door_of_nearly_the_wall_s_colour_relabels_the_door_not_the_wall(
         },
     );
     point_at_the_hanging_cells(&room, "door");
+}
+
+#[test]
+fn a_point_on_a_strip_the_robot_ran_into_an_object_relabels_the_strip_not_the_object() {
+    // A dark microwave stands on a teal counter strip; the robot reads the strip's cell under the microwave
+    // as microwave too, so its microwave object spans both colours. Pointed at that cell, "no, that's a
+    // counter, not a microwave" means the strip the pointer reaches, not the robot's whole microwave.
+    let room = room(
+        &[
+            "wwwwwwwwwwwwww",
+            "wwwwwwwwwwwwww",
+            "wwwwwMMwwwwwww",
+            "wwwwwMMwwwwwww",
+            "wwwccmcccwwwww",
+            "ffffffffffffff",
+            "ffffffffffffff",
+            "ffffffffffffff",
+        ],
+        &|c, class| match c {
+            'M' => Cell {
+                colour: [45, 45, 50],
+                scores: vec![(class("microwave"), 0.9)],
+            },
+            'm' => Cell {
+                colour: [90, 150, 160],
+                scores: vec![(class("microwave"), 0.9), (class("counter"), 0.05)],
+            },
+            _ => Cell {
+                colour: [90, 150, 160],
+                scores: vec![(class("counter"), 0.9)],
+            },
+        },
+    );
+    let (microwave, counter) = (class_of(&room, "microwave"), class_of(&room, "counter"));
+    let at = |row: usize, column: usize| row * room.columns as usize + column;
+    let before = solve(&room, None, vec![], None);
+    // The robot's microwave object holds the strip's cell and the four dark cells.
+    let spilt = before
+        .graph
+        .objects
+        .iter()
+        .find(|o| o.class.0 == microwave)
+        .expect("a microwave object before the note");
+    let members: Vec<usize> = spilt.members.iter().map(|s| s.index()).collect();
+    for cell in [at(2, 5), at(2, 6), at(3, 5), at(3, 6), at(4, 5)] {
+        assert!(
+            members.contains(&cell),
+            "cell {cell} not in the microwave object"
+        );
+    }
+    let that = Referent {
+        class: None,
+        deixis: Some(Deixis::Focus),
+        ..Referent::class(ClassId(0), Span::new(0, 4))
+    };
+    let cuts = InstanceCuts::embedded(&room.taxonomy).unwrap();
+    let stage = Stage {
+        scene: &room.scene,
+        unaries: &room.unaries,
+        taxonomy: &room.taxonomy,
+        cuts: &cuts,
+    };
+    let context = GroundingContext {
+        focus: Some(Focus::Pixel {
+            x: 5 * CELL + 16,
+            y: 4 * CELL + 16,
+        }),
+        objects: sayso_core::turn::known_objects(&before.graph),
+        ..Default::default()
+    };
+    let note = constraint(
+        ConstraintKind::Relabel {
+            target: that,
+            from: Some(ClassId(microwave)),
+            to: Some(ClassId(counter)),
+        },
+        0.95,
+        "the pointed-at thing is not a microwave, is a counter",
+    );
+    let after = turn(&stage, Some(&before), &[note], &context, false);
+    assert_eq!(after.graph.segment_labels[at(4, 5)].0, counter);
+    for cell in [at(2, 5), at(2, 6), at(3, 5), at(3, 6)] {
+        assert_eq!(
+            after.graph.segment_labels[cell].0, microwave,
+            "the microwave's cell {cell} was taken"
+        );
+    }
 }
 
 #[test]

@@ -285,9 +285,16 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
         "{{\"scene_id\": {scene}, \"text\": \"paint mug\", \"focus\": {{\"type\": \"pixel\", \"x\": 0, \"y\": 0}}}}\n\
          {{\"scene_id\": {scene}, \"text\": \"paint towel\", \"focus\": {{\"type\": \"pixel\", \"x\": 1, \"y\": 1}}}}\n\
          {scene}\twhich one is it\n\
+         {scene}\tthe mug is a v@se\n\
          {scene}\tuh the thing by the door\n\
          999\tpaint mug\n"
     );
+    // One byte of the fourth line is not UTF-8 (0xE9, "é" in Latin-1): that line is reported and the rest
+    // go on.
+    let mut notes = notes.into_bytes();
+    let at = notes.iter().position(|&byte| byte == b'@').unwrap();
+    notes[at] = 0xE9;
+    let column = at - notes[..at].iter().rposition(|&byte| byte == b'\n').unwrap();
     let mut ticks = Vec::new();
     let report = sayso_session::field_notes::apply_notes(
         &coordinator,
@@ -295,7 +302,7 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
         "field-notes",
         |done, total| ticks.push((done, total)),
     );
-    assert_eq!(ticks.last(), Some(&(5, 5)));
+    assert_eq!(ticks.last(), Some(&(6, 6)));
     let outcomes: Vec<String> = report
         .results
         .iter()
@@ -313,12 +320,23 @@ fn field_notes_are_sorted_into_outcomes_with_reasons() {
             "applied",
             "needs_confirmation",
             "needs_clarification",
+            "skipped",
             "not_understood",
             "skipped"
         ]
     );
     assert!(report.results[1].reason.contains("cat"));
-    assert!(report.results[4].reason.starts_with("unknown_scene"));
+    assert_eq!(report.results[3].line, 4);
+    assert!(
+        report.results[3].reason.contains("not UTF-8")
+            && report.results[3]
+                .reason
+                .contains(&format!("column {column}")),
+        "{}",
+        report.results[3].reason
+    );
+    assert_eq!(report.results[4].line, 5);
+    assert!(report.results[5].reason.starts_with("unknown_scene"));
     assert!(report
         .results
         .iter()

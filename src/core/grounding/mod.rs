@@ -99,6 +99,10 @@ pub const POINTER_MAX_SHARE: u64 = 12;
 /// The robot's object under the pointer stands for what was pointed at when it is at most this many times the
 /// area the pointer reaches by colour and depth (our own choice).
 pub const POINTER_OBJECT_SLACK: u64 = 3;
+/// ... and when the area the pointer reaches covers at least this share of it: a point on a strip of another
+/// colour at the edge of an object (the counter under a microwave the robot let spill onto it) means the
+/// strip, not the object (our own choice; `docs/decisions.md` has the trial figures).
+pub const POINTER_OBJECT_COVER: f64 = 0.5;
 
 /// Parser confidence from which a constraint is treated as hard.
 pub const HARD_CONFIDENCE: f32 = 0.9;
@@ -400,8 +404,8 @@ impl Resolver<'_, '_> {
     }
 
     /// What a pointed segment means: the smallest accepted hypothesis over it when that object is not a
-    /// structure class and not much larger than the region the pointer reaches by colour and depth
-    /// (`pointer`); otherwise that region. A point on a wall or a floor, or on an object the robot ran
+    /// structure class, not much larger than the region the pointer reaches by colour and depth
+    /// (`pointer`), and at least half covered by it; otherwise that region. A point on a wall or a floor, or on an object the robot ran
     /// together with its surroundings, so never stands for the whole of it. A proposal the robot did not
     /// accept is never taken over the region: it is no one's belief about the picture, and a proposal that
     /// spans the pointed thing and its neighbour (a fridge and the tall cabinet beside it) carried the
@@ -427,6 +431,17 @@ impl Resolver<'_, '_> {
         let pixels = u64::from(view.scene.width()) * u64::from(view.scene.height());
         let reached = pointer::pointed_region(view.scene, segment, pixels / POINTER_MAX_SHARE);
         let reached_area = area(&reached);
+        // Whether the pointer's region stands for all of `members`: not far smaller, and covering enough of it.
+        let stands_for = |members: &[SegmentId]| {
+            let covered: Vec<SegmentId> = members
+                .iter()
+                .copied()
+                .filter(|s| reached.binary_search(s).is_ok())
+                .collect();
+            let whole = area(members);
+            whole <= POINTER_OBJECT_SLACK * reached_area.max(1)
+                && area(&covered) as f64 >= POINTER_OBJECT_COVER * whole as f64
+        };
         // The object the operator saw under the pointer, when the caller said which objects were shown: all
         // of it, as drawn, under the same limits as a hypothesis.
         if let Some(object) = self
@@ -439,7 +454,7 @@ impl Resolver<'_, '_> {
                 .class
                 .and_then(|class| view.taxonomy.class(class))
                 .is_some_and(|info| info.group == ClassGroup::Structure);
-            if !structure && area(&object.members) <= POINTER_OBJECT_SLACK * reached_area.max(1) {
+            if !structure && stands_for(&object.members) {
                 let mut target = view
                     .hypotheses
                     .iter()
@@ -456,8 +471,7 @@ impl Resolver<'_, '_> {
                 .taxonomy
                 .class(hypothesis.class)
                 .is_some_and(|info| info.group == ClassGroup::Structure);
-            if !structure && area(&hypothesis.members) <= POINTER_OBJECT_SLACK * reached_area.max(1)
-            {
+            if !structure && stands_for(&hypothesis.members) {
                 return self.target_of(vec![h]);
             }
         }

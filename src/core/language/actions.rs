@@ -681,11 +681,10 @@ impl<'t> Builder<'t> {
                 let placed_or_described = match self.constraints.last().map(|last| &last.kind) {
                     Some(ConstraintKind::Place { subject, .. }) => Some(subject.clone()),
                     Some(ConstraintKind::Attribute { target, .. }) => Some(target.clone()),
+                    // "mugs: 3 on desk": the same with no pause after the number.
                     Some(ConstraintKind::Count { class, count })
                         if self.last_relation.is_none()
-                            && position >= 2
-                            && chunks[position - 1].kind == ChunkKind::Separator
-                            && matches!(chunks[position - 2].kind, ChunkKind::Number { .. }) =>
+                            && number_before(chunks, position).is_some() =>
                     {
                         Some(Referent {
                             class: Some(*class),
@@ -694,7 +693,8 @@ impl<'t> Builder<'t> {
                             attributes: Vec::new(),
                             relations: Vec::new(),
                             region: None,
-                            span: chunks[position - 2].span,
+                            span: number_before(chunks, position)
+                                .map_or(chunks[position - 1].span, |at| chunks[at].span),
                         })
                     }
                     _ => None,
@@ -742,10 +742,15 @@ impl<'t> Builder<'t> {
                 let points_back = landmark_phrases.len() == 1
                     && landmark_phrases[0].class.is_none()
                     && landmark_phrases[0].deictic.is_some_and(|word| word.pronoun);
-                // "In the microwave, not on it": a denial the stated relation excludes is stated too. "On
-                // the cabinet, not next to it" denies what the first relation may well include, so it is
-                // left to that relation.
-                if points_back && negated && !last.excludes(relation) {
+                // "In the microwave, not on it", "next to the laptop, not in front of it": the denial is
+                // stated of the same landmark. "On the cabinet, not next to it" denies what the first
+                // relation may well include (a thing on another is also by it), so it is left to that
+                // relation.
+                if points_back
+                    && negated
+                    && relation == Relation::NextTo
+                    && last != Relation::NextTo
+                {
                     return;
                 }
                 let landmarks: Vec<Referent> = if points_back {
@@ -936,4 +941,14 @@ impl<'t> Builder<'t> {
             }
         }
     }
+}
+
+/// The number a further place follows in a note ("plates: 4, in sink", "mugs: 3 on desk"): its index.
+fn number_before(chunks: &[Chunk], position: usize) -> Option<usize> {
+    let is_number = |at: usize| matches!(chunks[at].kind, ChunkKind::Number { .. });
+    if position >= 2 && chunks[position - 1].kind == ChunkKind::Separator && is_number(position - 2)
+    {
+        return Some(position - 2);
+    }
+    (position >= 1 && is_number(position - 1)).then(|| position - 1)
 }

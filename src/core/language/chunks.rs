@@ -563,6 +563,28 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
                 .rev()
                 .find(|&k| repair_kind(&chunks[k].kind) == Some(wanted))
         });
+        // "In the dishwasher, no, the sink": a landmark we do not know, repaired by one we do. The words
+        // after the relation up to the cue, none of them known as a thing, are what the cue takes back.
+        if earlier.is_none() && wanted == Some(RepairKind::Noun) {
+            let mut before_cue = index;
+            while before_cue > 0 && chunks[before_cue - 1].kind == ChunkKind::Separator {
+                before_cue -= 1;
+            }
+            let unknown_thing = |kind: &ChunkKind| match kind {
+                ChunkKind::Other => true,
+                ChunkKind::NounPhrase(phrase) => phrase.class.is_none() && phrase.deictic.is_none(),
+                _ => false,
+            };
+            let mut start = before_cue;
+            while start > 0 && unknown_thing(&chunks[start - 1].kind) {
+                start -= 1;
+            }
+            let any_unknown = (start..before_cue).any(|k| chunks[k].kind == ChunkKind::Other);
+            if any_unknown && start > 0 && matches!(chunks[start - 1].kind, ChunkKind::Relation(_))
+            {
+                earlier = Some(start);
+            }
+        }
         // "Five pillows on the couch, no wait, six": a bare number repairs the nearest counted noun phrase,
         // past a landmark named after it.
         if let Some(j) = next.filter(|_| !joined) {
@@ -769,15 +791,46 @@ pub fn attach(chunks: Vec<Chunk>, is_structure: impl Fn(ClassId) -> bool) -> Vec
                 {
                     false
                 }
+                // "There's a mug by the table, right next to it": a landmark placed by "it" would be placed by
+                // itself, so the place is the subject's second one, with "it" the landmark.
+                Some(ChunkKind::Relation(relation))
+                    if *relation != Relation::Between
+                        && index >= 1
+                        && matches!(chunks[index - 1].kind, ChunkKind::Relation(_))
+                        && matches!(chunks.get(index + 2).map(|chunk| &chunk.kind),
+                            Some(ChunkKind::NounPhrase(landmark))
+                                if landmark.class.is_none()
+                                    && landmark.deictic.is_some_and(|word| word.pronoun && !word.plural)) =>
+                {
+                    false
+                }
                 Some(ChunkKind::Relation(relation)) => {
                     let relation = *relation;
                     let landmark_count = if relation == Relation::Between { 2 } else { 1 };
                     let landmarks = take_landmarks(&chunks, index + 2, landmark_count);
                     match landmarks {
-                        Some((landmarks, used)) => {
+                        Some((mut landmarks, used)) => {
                             let end = index + 1 + used;
                             let span = chunks[end].span;
                             if let ChunkKind::NounPhrase(phrase) = &mut chunks[index].kind {
+                                // "A mug by the table, right next to it": a second place of the thing by
+                                // "it" is by the first place's landmark.
+                                let points_back = landmarks.len() == 1
+                                    && landmarks[0].class.is_none()
+                                    && landmarks[0]
+                                        .deictic
+                                        .is_some_and(|word| word.pronoun && !word.plural);
+                                if let Some(previous) = phrase
+                                    .relations
+                                    .last()
+                                    .filter(|previous| points_back && previous.landmarks.len() == 1)
+                                {
+                                    let span = landmarks[0].span;
+                                    landmarks = vec![NounPhrase {
+                                        span,
+                                        ..previous.landmarks[0].clone()
+                                    }];
+                                }
                                 phrase.relations.push(AttachedRelation {
                                     relation,
                                     landmarks,

@@ -38,42 +38,77 @@ fn fold_punctuation(character: char) -> char {
     }
 }
 
+/// Appends one character's normalised form, each output character mapped to `range`.
+fn push_normalised(
+    character: char,
+    range: (usize, usize),
+    text: &mut String,
+    origin: &mut Vec<(usize, usize)>,
+) {
+    if character.is_control() {
+        if character.is_whitespace() {
+            text.push(' ');
+            origin.push(range);
+        }
+        return;
+    }
+    if is_invisible_format(character) {
+        return;
+    }
+    let folded = fold_punctuation(character);
+    if folded.is_ascii() {
+        text.push(folded.to_ascii_lowercase());
+        origin.push(range);
+        return;
+    }
+    for lower in folded.to_lowercase() {
+        text.push(lower);
+        origin.push(range);
+    }
+}
+
 /// Normalises an utterance: NFKC, invisible characters removed, controls to spaces, punctuation folded,
 /// lower case. Never fails.
 pub fn normalise(original: &str) -> Normalised {
     let mut text = String::with_capacity(original.len());
     let mut origin = Vec::with_capacity(original.len());
+    if original.is_ascii() {
+        // ASCII text: every byte is its own grapheme cluster except "\r\n", and NFKC leaves ASCII alone,
+        // so a byte scan gives what the cluster walk below gives.
+        let bytes = original.as_bytes();
+        let mut position = 0usize;
+        while position < bytes.len() {
+            let width = if bytes[position] == b'\r' && bytes.get(position + 1) == Some(&b'\n') {
+                2
+            } else {
+                1
+            };
+            let range = (position, position + width);
+            for &byte in &bytes[position..position + width] {
+                push_normalised(char::from(byte), range, &mut text, &mut origin);
+            }
+            position += width;
+        }
+        return Normalised {
+            text,
+            origin,
+            original_length: bytes.len(),
+        };
+    }
     let mut position = 0usize;
     for grapheme in original.graphemes(true) {
         let width = grapheme.chars().count();
         let range = (position, position + width);
         position += width;
-        let push = |character: char, text: &mut String, origin: &mut Vec<(usize, usize)>| {
-            if character.is_control() {
-                if character.is_whitespace() {
-                    text.push(' ');
-                    origin.push(range);
-                }
-                return;
-            }
-            if is_invisible_format(character) {
-                return;
-            }
-            let folded = fold_punctuation(character);
-            for lower in folded.to_lowercase() {
-                text.push(lower);
-                origin.push(range);
-            }
-        };
         if grapheme.len() == 1 {
             // One ASCII byte: NFKC leaves it alone.
             if let Some(character) = grapheme.chars().next() {
-                push(character, &mut text, &mut origin);
+                push_normalised(character, range, &mut text, &mut origin);
             }
             continue;
         }
         for character in grapheme.nfkc() {
-            push(character, &mut text, &mut origin);
+            push_normalised(character, range, &mut text, &mut origin);
         }
     }
     Normalised {
@@ -110,5 +145,21 @@ mod tests {
         assert_eq!(normalised.text, "café!");
         assert_eq!(normalised.origin[3], (3, 5));
         assert_eq!(normalised.origin[4], (5, 6));
+    }
+
+    #[test]
+    fn ascii_byte_scan_matches_the_cluster_walk() {
+        // "\r\n" is one grapheme cluster (UAX #29, rule GB3): both spaces map to the pair.
+        let normalised = normalise("A\r\nb`\x0bC\x01d");
+        assert_eq!(normalised.text, "a  b' cd");
+        assert_eq!(normalised.origin[1], (1, 3));
+        assert_eq!(normalised.origin[2], (1, 3));
+        assert_eq!(normalised.origin[3], (3, 4));
+        assert_eq!(normalised.origin[7], (8, 9));
+        assert_eq!(normalised.original_length, 9);
+        // The same text with one non-ASCII character goes the cluster way and agrees on the ASCII part.
+        let walked = normalise("A\r\nb`\x0bC\x01d\u{e9}");
+        assert_eq!(walked.text, "a  b' cd\u{e9}");
+        assert_eq!(&walked.origin[..8], &normalised.origin[..]);
     }
 }

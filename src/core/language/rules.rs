@@ -179,6 +179,9 @@ pub struct Rule {
     pub name: String,
     pub items: Vec<PatternItem>,
     pub action: Action,
+    /// The fewest chunks a match consumes (items neither optional nor a boundary): a rule is not tried
+    /// where fewer chunks are left.
+    pub min_chunks: usize,
 }
 
 impl Rule {
@@ -286,10 +289,15 @@ fn parse_rule(line: &str) -> Result<Rule, String> {
     {
         return Err("action 'relabel' needs a ':from' or ':to' item".to_string());
     }
+    let min_chunks = items
+        .iter()
+        .filter(|item| !item.optional && !is_boundary(item))
+        .count();
     Ok(Rule {
         name: name.to_string(),
         items,
         action,
+        min_chunks,
     })
 }
 
@@ -458,6 +466,16 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
     }
 }
 
+/// Whether an item is a boundary (start, first, end, last), which consumes no chunk.
+fn is_boundary(item: &PatternItem) -> bool {
+    item.alternatives.iter().any(|alternative| {
+        matches!(
+            alternative.symbol,
+            Symbol::Start | Symbol::First | Symbol::End | Symbol::Last
+        )
+    })
+}
+
 /// Matches items against chunks from `position`; returns the chunks consumed and roles, longest first.
 fn match_items<'rule>(
     items: &'rule [PatternItem],
@@ -518,14 +536,19 @@ pub fn best_match<'rule>(
     position: usize,
 ) -> Option<Match<'rule>> {
     let mut best: Option<Match<'rule>> = None;
+    let left = chunks.len().saturating_sub(position);
+    let mut roles = Vec::new();
     for rule in rules {
-        let mut roles = Vec::new();
+        if rule.min_chunks > left {
+            continue;
+        }
+        roles.clear();
         if let Some(length) = match_items(&rule.items, chunks, position, &mut roles) {
             if length > 0 && best.as_ref().is_none_or(|current| length > current.length) {
                 best = Some(Match {
                     rule,
                     length,
-                    roles,
+                    roles: roles.clone(),
                 });
             }
         }

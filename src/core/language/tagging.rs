@@ -10,7 +10,7 @@
 use super::constraint::{ImageRegion, Relation, Span};
 use super::lexicon::{Lexicon, Tag};
 use super::parse::{IgnoredReason, Note, NoteKind};
-use super::spelling::{accept_limit, distance_within, SUGGESTION_LIMIT};
+use super::spelling::{accept_limit, ascii_distance_within, distance_within, SUGGESTION_LIMIT};
 use super::tokens::{Token, TokenShape};
 
 /// What an item is.
@@ -203,11 +203,50 @@ fn rewrite(
             index += length + usize::from(clipped);
             continue;
         }
+        if let Some((word, used)) = rejoined(lexicon, tokens, index) {
+            words.push(word);
+            index += used;
+            continue;
+        }
         if let Some(stem) = token.text.strip_suffix("'s") {
             let is_noun = matches!(
                 lexicon.longest_phrase(&[stem]).map(|found| found.tag),
                 Some(Tag::Class { .. } | Tag::Thing { .. } | Tag::Deictic { .. })
             );
+            // "My sister's bag", "the dog's red bowl": before a thing (or its colour or size and then a thing)
+            // the "'s" is a possessive, and the clause is about the thing owned, so the owner is left out.
+            // Read as "is" it would name the owner: "that's my aunt's bag" is no relabel to a person.
+            let found_at = |at: usize| {
+                let following: Vec<&str> = tokens
+                    .iter()
+                    .skip(at)
+                    .take(4)
+                    .map(|next| next.text.as_str())
+                    .collect();
+                lexicon.longest_phrase(&following)
+            };
+            let owns = match found_at(index + 1) {
+                Some(super::lexicon::Found {
+                    tag: Tag::Class { .. },
+                    ..
+                }) => true,
+                Some(super::lexicon::Found {
+                    tag: Tag::Colour(_) | Tag::Size(_),
+                    words,
+                }) => matches!(
+                    found_at(index + 1 + words).map(|found| found.tag),
+                    Some(Tag::Class { .. })
+                ),
+                _ => false,
+            };
+            let owner_is_a_thing = matches!(
+                lexicon.longest_phrase(&[stem]).map(|found| found.tag),
+                Some(Tag::Class { .. })
+            );
+            if owns && owner_is_a_thing {
+                index += 1;
+                continue;
+            }
             if is_noun {
                 words.push(Word {
                     text: stem.to_string(),
@@ -234,6 +273,72 @@ fn rewrite(
         index += 1;
     }
     words
+}
+
+/// A word the recogniser split or clipped, put back together: two words that are one thing or relation word
+/// written apart ("be hind", "cup board", "arm chair") when the two are no phrase of their own, and a word
+/// with its final "g" dropped ("sittin", "layin") when only the full form is known. `None` for anything else.
+fn rejoined(lexicon: &Lexicon, tokens: &[Token], index: usize) -> Option<(Word, usize)> {
+    let token = &tokens[index];
+    let known = |text: &str| lexicon.longest_phrase(&[text]).is_some();
+    let plain = |text: &str| !text.is_empty() && text.chars().all(|c| c.is_ascii_lowercase());
+    if !plain(&token.text) {
+        return None;
+    }
+    if let Some(next) = tokens
+        .get(index + 1)
+        .filter(|next| next.shape == TokenShape::Word && plain(&next.text))
+    {
+        // Joined on the stack: this runs at every pair of words, so it must not allocate.
+        let mut buffer = [0u8; 24];
+        let length = token.text.len() + next.text.len();
+        let joined = match buffer.get_mut(..length) {
+            Some(slot) => {
+                slot[..token.text.len()].copy_from_slice(token.text.as_bytes());
+                slot[token.text.len()..].copy_from_slice(next.text.as_bytes());
+                std::str::from_utf8(slot).unwrap_or_default()
+            }
+            None => "",
+        };
+        let one_word = !joined.is_empty()
+            && matches!(
+                lexicon.longest_phrase(&[joined]),
+                Some(super::lexicon::Found {
+                    tag: Tag::Class { .. } | Tag::Relation(_),
+                    words: 1,
+                })
+            );
+        let a_phrase_apart = lexicon
+            .longest_phrase(&[token.text.as_str(), next.text.as_str()])
+            .is_some_and(|found| found.words == 2);
+        if one_word && joined.len() >= 5 && !a_phrase_apart {
+            return Some((
+                Word {
+                    text: joined.to_string(),
+                    span: token.span.cover(next.span),
+                    shape: TokenShape::Word,
+                    fragment: false,
+                },
+                2,
+            ));
+        }
+    }
+    if token.text.len() < 5 || !token.text.ends_with("in") || known(&token.text) {
+        return None;
+    }
+    let clipped = format!("{}g", token.text);
+    if known(&clipped) {
+        return Some((
+            Word {
+                text: clipped,
+                span: token.span,
+                shape: TokenShape::Word,
+                fragment: false,
+            },
+            1,
+        ));
+    }
+    None
 }
 
 /// The count of a note's multiplier ("x9", "x 12" is not one): `Some(9)`.
@@ -431,14 +536,33 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     let accept = accept_limit(word);
     let mut best: Option<(usize, &str, Tag)> = None;
     let mut suggestions: Vec<(usize, &str)> = Vec::new();
+    // Only the three nearest suggestions are kept and only a word within `accept` can be accepted, so once
+    // three lie within some distance, a farther candidate changes nothing and its alignment is cut off early.
+    let mut nearest = [SUGGESTION_LIMIT; 3];
+    let ascii = word.is_ascii();
     for (candidate, tag) in lexicon.spelling_words() {
-        if let Some(distance) = distance_within(word, candidate, SUGGESTION_LIMIT) {
+        let limit = nearest[2].max(accept);
+        let distance = if ascii && candidate.is_ascii() {
+            ascii_distance_within(word.as_bytes(), candidate.as_bytes(), limit)
+        } else {
+            distance_within(word, candidate, limit)
+        };
+        if let Some(distance) = distance {
             suggestions.push((distance, candidate));
+            if distance < nearest[2] {
+                nearest[2] = distance;
+                nearest.sort_unstable();
+            }
             // A slip of the keys rarely changes a short word's first letter: "hooks" is a word we do not
             // know, not "books".
             let same_start = length >= 8 || word.chars().next() == candidate.chars().next();
+            // Nor does it add a verb's ending: "jumped" is a verb we do not know, not "jumper".
+            let same_ending = ["ed", "ing"]
+                .iter()
+                .all(|ending| !word.ends_with(ending) || candidate.ends_with(ending));
             if distance <= accept
                 && same_start
+                && same_ending
                 && best.is_none_or(|(best_distance, ..)| distance < best_distance)
             {
                 best = Some((distance, candidate, *tag));
@@ -448,7 +572,15 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
     if let Some((_, candidate, tag)) = best {
         return Spelling::Accepted(candidate.to_string(), tag);
     }
-    suggestions.sort();
+    if let Some((candidate, tag)) = abbreviation(lexicon, word) {
+        return Spelling::Accepted(candidate.to_string(), tag);
+    }
+    // Only the three nearest are offered: select them, then order those three.
+    if suggestions.len() > 3 {
+        suggestions.select_nth_unstable(2);
+        suggestions.truncate(3);
+    }
+    suggestions.sort_unstable();
     Spelling::Unknown(
         suggestions
             .into_iter()
@@ -456,6 +588,53 @@ fn correct_spelling(lexicon: &Lexicon, word: &str) -> Spelling {
             .map(|(_, word)| word.to_string())
             .collect(),
     )
+}
+
+/// Reads a field-note abbreviation as the one thing, room or relation word it can shorten ("shlf", "bdrm",
+/// "frdg", "cpbd"): a word of three to five letters, starting with the same letter, whose letters after the
+/// first are consonants found in order in the lexicon word, ending on that word's last consonant, with no letter
+/// twice in a row. Exactly one
+/// such word must fit (two fits mean the note is unknown, never a guess), and it must be longer than the
+/// abbreviation.
+fn abbreviation<'lexicon>(lexicon: &'lexicon Lexicon, word: &str) -> Option<(&'lexicon str, Tag)> {
+    const VOWELS: &[u8] = b"aeiouy";
+    let bytes = word.as_bytes();
+    // A letter said twice in a row is a sound drawn out ("brr", "hmmm", "shh"), not a shortening.
+    if !(3..=5).contains(&bytes.len())
+        || !bytes.iter().all(u8::is_ascii_lowercase)
+        || bytes[1..].iter().any(|byte| VOWELS.contains(byte))
+        || bytes.windows(2).any(|pair| pair[0] == pair[1])
+    {
+        return None;
+    }
+    let mut found: Option<(&str, Tag)> = None;
+    for (candidate, tag) in lexicon.spelling_words() {
+        if !matches!(tag, Tag::Class { .. } | Tag::Room(_) | Tag::Relation(_)) {
+            continue;
+        }
+        let letters = candidate.as_bytes();
+        if letters.len() <= bytes.len() || letters.first() != bytes.first() {
+            continue;
+        }
+        let last_consonant = letters.iter().rev().find(|byte| !VOWELS.contains(byte));
+        if last_consonant != bytes.last() || !is_subsequence(&bytes[1..], &letters[1..]) {
+            continue;
+        }
+        // Two words for one thing ("sofa", "settee") are one reading, and the shorter word is kept; two
+        // different things are two readings, and the abbreviation stays unknown.
+        match found {
+            Some((_, other_tag)) if other_tag != *tag => return None,
+            Some((other, _)) if other.len() <= candidate.len() => {}
+            _ => found = Some((candidate, *tag)),
+        }
+    }
+    found
+}
+
+/// Whether `short` appears in `long` in order (not necessarily adjacent).
+fn is_subsequence(short: &[u8], long: &[u8]) -> bool {
+    let mut rest = long.iter();
+    short.iter().all(|byte| rest.any(|other| other == byte))
 }
 
 /// Whether the kept items end with a landmark: a relation word, then a noun phrase of determiner, colour,

@@ -155,6 +155,7 @@ mod tests {
             room_name: String::new(),
             objects,
             relations: Vec::new(),
+            relations_nearest: None,
             segment_labels: vec![ClassId(0); 10],
             energy: 0.0,
             lower_bound: 0.0,

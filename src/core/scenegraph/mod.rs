@@ -15,13 +15,14 @@ pub mod instances;
 pub mod leftovers;
 pub mod locality;
 pub mod objects;
+pub mod relations;
 pub mod split;
 pub mod supersede;
 
 use serde::{Deserialize, Serialize};
 
 use crate::energy::JointState;
-use crate::grounding::{footprint_of, relation_holds_measured};
+use crate::grounding::footprint_of;
 use crate::hypotheses::Hypothesis;
 use crate::ids::{ClassId, HypothesisId, ObjectId, RoomId, SegmentId};
 use crate::language::constraint::Relation;
@@ -184,6 +185,11 @@ pub struct SceneGraph {
     pub room_name: String,
     pub objects: Vec<SceneObject>,
     pub relations: Vec<ObjectRelation>,
+    /// Absent when every pair of objects was tested for `relations`; on a scene of more than
+    /// `relations::ALL_PAIRS_UP_TO` objects, the number of nearest objects (by the gap between their
+    /// boxes) each object was tested against (`relations::NEAREST`), so farther pairs are not reported.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub relations_nearest: Option<u32>,
     /// One class per fine segment.
     pub segment_labels: Vec<ClassId>,
     pub energy: f64,
@@ -283,39 +289,13 @@ pub fn build_scene_graph(
         .iter()
         .map(|object| footprint_of(scene, &object.members))
         .collect();
-    let is_structure = |class: ClassId| {
+    let is_structure = |object: &SceneObject| {
         taxonomy
-            .class(class)
+            .class(object.class)
             .is_some_and(|info| info.group == ClassGroup::Structure)
     };
-    let mut relations = Vec::new();
-    for (a, subject) in objects.iter().enumerate() {
-        if is_structure(subject.class) {
-            continue;
-        }
-        for (b, object) in objects.iter().enumerate() {
-            if a == b {
-                continue;
-            }
-            for relation in REPORTED_RELATIONS {
-                if is_structure(object.class) && relation != Relation::On {
-                    continue;
-                }
-                if relation_holds_measured(
-                    scene,
-                    relation,
-                    (&subject.members, &footprints[a]),
-                    (&object.members, &footprints[b]),
-                ) {
-                    relations.push(ObjectRelation {
-                        subject: subject.id,
-                        relation,
-                        object: object.id,
-                    });
-                }
-            }
-        }
-    }
+    let (relations, relations_nearest) =
+        relations::relate(scene, &objects, &footprints, is_structure);
     let room = RoomId(state.room);
     SceneGraph {
         schema: SCENE_GRAPH_SCHEMA,
@@ -327,6 +307,7 @@ pub fn build_scene_graph(
             .unwrap_or_else(|| "unknown".to_string()),
         objects,
         relations,
+        relations_nearest,
         segment_labels: state
             .labels
             .iter()

@@ -5,7 +5,10 @@
 //! by hand, blind, by a helper who never saw the parser; tests/language/styles_fresh.md says how), and
 //! styles_fresh2_dev.jsonl and styles_fresh2_heldout.jsonl (written the same way by another helper;
 //! tests/language/styles_fresh2.md), and styles_fresh3_dev.jsonl and styles_fresh3_heldout.jsonl (a third
-//! helper, the same way; tests/language/styles_fresh3.md).
+//! helper, the same way; tests/language/styles_fresh3.md), and styles_fresh4_dev.jsonl and
+//! styles_fresh4_heldout.jsonl (a fourth helper; tests/language/styles_fresh4.md; both summary-only so far).
+//! tests/language/styles_widened_dev.jsonl holds lines written by the parser's own maintainers (session 9), a
+//! line per variant of each construction widened then: development lines by definition, never a blind measure.
 //!
 //! Owns: reading the style files, scoring each line, printing the figures (and, for the development files
 //! only, the failing lines) and holding the floors.
@@ -274,8 +277,9 @@ fn fresh_development_styles_recall_per_style() {
 /// relabel, no constraint from 26 non-corrections; at the end of session 5, 134/156 (85.9%), none, none; in
 /// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none;
 /// after those the second fresh development file prompted, 142/156 (91.0%), none, none; in session 8, after
-/// those the third fresh development file prompted, 143/156 (91.7%), none, none.
-const FRESH_HELDOUT_FLOOR: f64 = 91.6;
+/// those the third fresh development file prompted, 143/156 (91.7%), none, none; in session 9, after the
+/// constructions widened then, 144/156 (92.3%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 92.2;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -358,8 +362,9 @@ fn fresh2_development_styles_recall_per_style() {
 /// Second fresh held-out floor. When the file arrived, before any change it prompted, the parser read 132/150
 /// (88.0%; no constraint from 25 non-corrections, no unasked relabel, 6 lines misread), as did the parser of
 /// the session's start; after the changes the development file prompted, 135/150 (90.0%; none, none, 4); in
-/// session 8, after those the third fresh development file prompted, 138/150 (92.0%; none, none, 2).
-const FRESH2_HELDOUT_FLOOR: f64 = 91.9;
+/// session 8, after those the third fresh development file prompted, 138/150 (92.0%; none, none, 2); in session
+/// 9, after the constructions widened then, 140/150 (93.3%; none, none, 2).
+const FRESH2_HELDOUT_FLOOR: f64 = 93.2;
 
 /// The second fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -438,8 +443,9 @@ fn fresh3_development_styles_recall_per_style() {
 
 /// Third fresh held-out floor. When the file arrived, before any change it prompted, the parser read 139/150
 /// (92.7%; no constraint from 25 non-corrections, no unasked relabel, 2 lines misread); after the changes
-/// the development file prompted, 140/150 (93.3%; none, none, 3).
-const FRESH3_HELDOUT_FLOOR: f64 = 93.2;
+/// the development file prompted, 140/150 (93.3%; none, none, 3); in session 9, after the constructions
+/// widened then, 142/150 (94.7%; none, none, 3).
+const FRESH3_HELDOUT_FLOOR: f64 = 94.6;
 
 /// The third fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -466,4 +472,74 @@ fn fresh3_heldout_styles_figures_are_reported() {
         result.spurious_constraints, 0,
         "constraints from non-corrections on the third fresh held-out file"
     );
+}
+
+/// The fourth fresh corpus (tests/language/styles_fresh4.md): 300 development and 150 held-out lines written
+/// by hand, blind, by a helper who never saw the parser, copied in during session 9 before any parser change.
+/// Nobody who changed the parser in that session saw either file, so both are reported as summary lines only.
+/// When the files arrived (2026-12-05, 18:14 UTC), before any change, the parser read dev 272/300 (90.7%; no
+/// constraint from 50 non-corrections, no unasked relabel, 4 lines misread) and held-out 139/150 (92.7%; 2
+/// constraints from 25 non-corrections, no unasked relabel, 5 lines misread). The floors hold those figures:
+/// (file, lines, recall floor, most constraints from non-corrections). The goal for the last is zero. After
+/// the session's parser changes (made without sight of either file): dev 274/300 (91.3%), held-out 139/150.
+const FRESH4_FLOORS: [(&str, usize, f64, usize); 2] = [
+    ("styles_fresh4_dev.jsonl", 300, 90.6, 0),
+    ("styles_fresh4_heldout.jsonl", 150, 92.6, 2),
+];
+
+/// Both fourth fresh files are run for their figures only; their lines are never printed.
+#[test]
+fn fresh4_styles_figures_are_reported() {
+    let grammar = grammar();
+    for (file, lines, floor, most_spurious) in FRESH4_FLOORS {
+        let result = score(&grammar, &load(file));
+        print_figures(file, &result);
+        assert!(result.total >= lines, "{file} has {} lines", result.total);
+        assert!(
+            recall(result.passed, result.total) >= floor,
+            "{file}: recall {}/{} fell below {floor}%",
+            result.passed,
+            result.total
+        );
+        assert_eq!(
+            result.unasked_relabels, 0,
+            "a relabel nobody asked for in {file}"
+        );
+        assert!(
+            result.spurious_constraints <= most_spurious,
+            "{} constraints from non-corrections in {file}, more than {most_spurious}",
+            result.spurious_constraints
+        );
+    }
+}
+
+/// Lines of the maintainers' own, one per variant of each construction widened in session 9 (verbs of
+/// position and posture as a class, "near to", "round", "atop", "over on", field-note abbreviations read as
+/// the one word they shorten, a denial of the same landmark by "it" whichever the two relations, a second
+/// place by "it" after a landmark ("by the table, right next to it"), a landmark we do not know repaired by
+/// one we do ("in the dishwasher, no, the sink"), a demonstrative naming a class denied ("that mug does not
+/// exist"), "it's" restarting before a number ("is um it's three"), a finished move or placing ("has climbed
+/// onto", "has been left by"), no spelling guess that adds a verb's ending, "+" between two things, the
+/// word for colour in a note, a note's count followed by a place, words the recogniser split ("be low", "cup
+/// board") or clipped ("sittin"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
+/// must read.
+#[test]
+fn widened_constructions_read_every_variant() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_widened_dev.jsonl"));
+    print_figures("styles widened dev", &result);
+    if !result.failures.is_empty() {
+        println!("failures:\n{}", result.failures.join("\n"));
+    }
+    assert!(
+        result.total >= 50,
+        "the widened file has {} lines",
+        result.total
+    );
+    assert_eq!(
+        result.passed, result.total,
+        "a widened construction no longer reads"
+    );
+    assert_eq!(result.unasked_relabels, 0);
+    assert_eq!(result.spurious_constraints, 0);
 }

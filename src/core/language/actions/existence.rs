@@ -211,6 +211,23 @@ impl Builder<'_> {
         } else {
             np
         };
+        // "That mug does not exist", "this lamp isn't there": a demonstrative naming a class, denied, is the
+        // class denied as "the mug does not exist" is. Said of a demonstrative alone, or stated, it is no
+        // existence.
+        let denied_named = negated
+            && np.class.is_some()
+            && np.quantity.is_none()
+            && np.relations.is_empty()
+            && np.deictic.is_some_and(|word| !word.pronoun);
+        let undeixed;
+        let np = if denied_named {
+            let mut plain = np.clone();
+            plain.deictic = None;
+            undeixed = plain;
+            &undeixed
+        } else {
+            np
+        };
         if np.deictic.is_some() {
             return;
         }
