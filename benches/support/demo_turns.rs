@@ -179,29 +179,22 @@ pub fn turn_energy(
             .collect()
     };
     let accepted = accepted_of(&after.hypotheses);
-    let built = build_energy(&EnergyInputs {
-        scene: &scene.prepared.scene,
-        unaries: &scene.prepared.unaries,
-        taxonomy: settings.grammar.taxonomy(),
-        hypotheses: &after.hypotheses,
-        accepted: &accepted,
-        grounded: &after.grounded,
-        prior: &settings.prior,
-        weights: &settings.weights,
-    })
-    .expect("the turn's energy builds");
+    // The turn's hypotheses under the given constraints.
+    let energy_under = |grounded| {
+        build_energy(&EnergyInputs {
+            scene: &scene.prepared.scene,
+            unaries: &scene.prepared.unaries,
+            taxonomy: settings.grammar.taxonomy(),
+            hypotheses: &after.hypotheses,
+            accepted: &accepted,
+            grounded,
+            prior: &settings.prior,
+            weights: &settings.weights,
+        })
+    };
+    let built = energy_under(&after.grounded).expect("the turn's energy builds");
     // The same hypotheses under the constraints in force before the turn: where the turn's change lies.
-    let before_energy = build_energy(&EnergyInputs {
-        scene: &scene.prepared.scene,
-        unaries: &scene.prepared.unaries,
-        taxonomy: settings.grammar.taxonomy(),
-        hypotheses: &after.hypotheses,
-        accepted: &accepted,
-        grounded: &before.grounded,
-        prior: &settings.prior,
-        weights: &settings.weights,
-    })
-    .expect("the parent's energy builds");
+    let before_energy = energy_under(&before.grounded).expect("the parent's energy builds");
     let seeds = touched_nodes(
         &before_energy.energy,
         &built.energy,

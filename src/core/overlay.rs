@@ -192,20 +192,7 @@ pub fn draw_before_after(
         before.labels,
         taxonomy,
     );
-    let mut after_picture = tint(image, after.labels, taxonomy, options.alpha);
-    outline_regions(
-        &mut after_picture,
-        after.regions.regions,
-        after.labels,
-        taxonomy,
-    );
-    let changed = mark_changes(
-        &mut after_picture,
-        before.labels,
-        after.labels,
-        taxonomy,
-        options.text_size,
-    );
+    let (after_picture, changed) = after_picture(image, before, after, taxonomy, options);
     let before_view = titled(&before_picture, before.title, options.text_size);
     let after_view = titled(&after_picture, after.title, options.text_size);
     let panel = legend_panel(
@@ -235,15 +222,7 @@ pub fn draw_after(
     options: &OverlayOptions,
 ) -> Result<RgbImage, OverlayError> {
     let (_, rows) = checked_legend(image, before, after, taxonomy)?;
-    let mut picture = tint(image, after.labels, taxonomy, options.alpha);
-    outline_regions(&mut picture, after.regions.regions, after.labels, taxonomy);
-    mark_changes(
-        &mut picture,
-        before.labels,
-        after.labels,
-        taxonomy,
-        options.text_size,
-    );
+    let (picture, _) = after_picture(image, before, after, taxonomy, options);
     let strip = line_height(options.text_size) + 8;
     let panel = legend_panel(
         &wrap(&options.title, 28),
@@ -267,6 +246,26 @@ pub fn draw_after(
     draw_text(&mut out, 6, 4, after.title, size, PANEL_TEXT);
     paste(&mut out, &panel, width, 0);
     Ok(out)
+}
+
+/// The after view untitled: tinted, outlined, every changed region ringed; with what changed.
+fn after_picture(
+    image: &RgbImage,
+    before: View<'_>,
+    after: View<'_>,
+    taxonomy: &Taxonomy,
+    options: &OverlayOptions,
+) -> (RgbImage, Vec<ChangedRegion>) {
+    let mut picture = tint(image, after.labels, taxonomy, options.alpha);
+    outline_regions(&mut picture, after.regions.regions, after.labels, taxonomy);
+    let changed = mark_changes(
+        &mut picture,
+        before.labels,
+        after.labels,
+        taxonomy,
+        options.text_size,
+    );
+    (picture, changed)
 }
 
 fn pixel_classes(

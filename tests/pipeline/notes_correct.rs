@@ -1,8 +1,9 @@
 //! End-to-end checks that a true note moves a hand-built scene toward the truth and costs nothing that was
 //! right: a count below what the graph shows joins the parts of one object (piece by piece, nearest first), a
 //! count drops a stray fragment, a point on a wall relabels only the thing pointed at (also a door of nearly
-//! the wall's colour, and a strip the robot ran into the object above it), "in this room" is a place, never a landmark, a class taken away leaves no sliver of
-//! another class behind, and a count asking for fewer never grows its class past its span.
+//! the wall's colour, and a strip the robot ran into the object above it), "in this room" is a place, never
+//! a landmark, a class taken away leaves no sliver of another class behind, and a count asking for fewer
+//! never grows its class past its span.
 //!
 //! Owns: those behaviours through `correct` (and the embedded grammar for the wording). Must not: depend on
 //! committed models; scenes and unaries are built by hand (`common::grid_scene`).
@@ -91,6 +92,21 @@ fn solve_constraints(
     focus: Option<Focus>,
     confirm_safety: bool,
 ) -> Correction {
+    let context = GroundingContext {
+        focus,
+        ..Default::default()
+    };
+    solve_in_context(room, previous, constraints, &context, confirm_safety)
+}
+
+/// One turn on `room` with given constraints, grounded in `context` (pointer, objects shown).
+fn solve_in_context(
+    room: &Room,
+    previous: Option<&Correction>,
+    constraints: &[Constraint],
+    context: &GroundingContext,
+    confirm_safety: bool,
+) -> Correction {
     let cuts = InstanceCuts::embedded(&room.taxonomy).unwrap();
     let stage = Stage {
         scene: &room.scene,
@@ -98,11 +114,7 @@ fn solve_constraints(
         taxonomy: &room.taxonomy,
         cuts: &cuts,
     };
-    let context = GroundingContext {
-        focus,
-        ..Default::default()
-    };
-    turn(&stage, previous, constraints, &context, confirm_safety)
+    turn(&stage, previous, constraints, context, confirm_safety)
 }
 
 fn objects_of(correction: &Correction, class: u16) -> usize {
@@ -474,13 +486,6 @@ fn a_point_on_a_strip_the_robot_ran_into_an_object_relabels_the_strip_not_the_ob
         deixis: Some(Deixis::Focus),
         ..Referent::class(ClassId(0), Span::new(0, 4))
     };
-    let cuts = InstanceCuts::embedded(&room.taxonomy).unwrap();
-    let stage = Stage {
-        scene: &room.scene,
-        unaries: &room.unaries,
-        taxonomy: &room.taxonomy,
-        cuts: &cuts,
-    };
     let context = GroundingContext {
         focus: Some(Focus::Pixel {
             x: 5 * CELL + 16,
@@ -498,7 +503,7 @@ fn a_point_on_a_strip_the_robot_ran_into_an_object_relabels_the_strip_not_the_ob
         0.95,
         "the pointed-at thing is not a microwave, is a counter",
     );
-    let after = turn(&stage, Some(&before), &[note], &context, false);
+    let after = solve_in_context(&room, Some(&before), &[note], &context, false);
     assert_eq!(after.graph.segment_labels[at(4, 5)].0, counter);
     for cell in [at(2, 5), at(2, 6), at(3, 5), at(3, 6)] {
         assert_eq!(

@@ -145,11 +145,24 @@ impl Builder<'_> {
         subject.plural |= !matches!(quantity, Quantity::Exactly(1) | Quantity::AtMost(1));
         let relations = std::mem::take(&mut subject.relations);
         let referent = self.referent(&subject);
+        self.state_relations(&referent, &subject, relations, span, misspelled);
+    }
+
+    /// Each relation attached to `subject` stated of `referent`, the last one kept for a later denial ("blanket
+    /// on chair, NOT sofa").
+    fn state_relations(
+        &mut self,
+        referent: &Referent,
+        subject: &NounPhrase,
+        relations: Vec<AttachedRelation>,
+        span: Span,
+        misspelled: bool,
+    ) {
         for attached in relations {
             let landmarks: Vec<Referent> = attached
                 .landmarks
                 .iter()
-                .map(|landmark| self.landmark_referent(landmark, &subject, attached.relation))
+                .map(|landmark| self.landmark_referent(landmark, subject, attached.relation))
                 .collect();
             self.last_relation = Some((referent.clone(), attached.relation, landmarks.clone()));
             self.push_relation(
@@ -302,27 +315,7 @@ impl Builder<'_> {
         let relations = std::mem::take(&mut subject.relations);
         let region = subject.region.take();
         let subject_referent = self.referent(&subject);
-        for attached in relations {
-            let landmarks: Vec<Referent> = attached
-                .landmarks
-                .iter()
-                .map(|landmark| self.landmark_referent(landmark, &subject, attached.relation))
-                .collect();
-            // "blanket on chair, NOT sofa": a later denial is of this relation.
-            self.last_relation = Some((
-                subject_referent.clone(),
-                attached.relation,
-                landmarks.clone(),
-            ));
-            self.push_relation(
-                subject_referent.clone(),
-                attached.relation,
-                false,
-                landmarks,
-                span,
-                misspelled,
-            );
-        }
+        self.state_relations(&subject_referent, &subject, relations, span, misspelled);
         if let Some(region) = region {
             self.push(
                 ConstraintKind::Place {
