@@ -2,7 +2,8 @@
 //! some notes, for deciding what the notes should do next:
 //! `cargo run --release --example trial_objects -- SEED INDEX [NOTE]...` (a note may start with `@x,y `).
 //! Prints every truth object (class, area, found at IoU 0.5, the shown object that overlaps it most with its
-//! class and IoU) and every shown object that covers no truth object.
+//! class and IoU) and every shown object that covers no truth object. With `SAYSO_PICTURES=DIR` it also
+//! writes the picture, the truth labels and the labels after each step as PNGs into DIR.
 //!
 //! Owns: nothing the crate uses. Must not: read the held-out half (seeds from 7000000 are refused).
 use std::collections::{BTreeMap, HashMap};
@@ -129,6 +130,29 @@ fn main() -> anyhow::Result<()> {
         }
     };
     show("no note", &base.graph);
+    let pictures = std::env::var_os("SAYSO_PICTURES").map(std::path::PathBuf::from);
+    let palette = taxonomy.label_palette();
+    let write_labels =
+        |file: &str, graph: &sayso_core::scenegraph::SceneGraph| -> anyhow::Result<()> {
+            if let Some(dir) = &pictures {
+                let mut image = truth.labels.clone();
+                for (pixel, &segment) in prepared.scene.segments.labels.iter().enumerate() {
+                    if let Some(label) = graph.segment_labels.get(segment as usize) {
+                        image.values[pixel] = label.0;
+                    }
+                }
+                sayso_core::raster::write_palette_png(&dir.join(file), &image, &palette)?;
+            }
+            Ok(())
+        };
+    if let Some(dir) = &pictures {
+        std::fs::create_dir_all(dir)?;
+        sayso_core::raster::write_rgb_png(&dir.join("picture.png"), &truth.image)?;
+        sayso_core::raster::write_palette_png(&dir.join("truth.png"), &truth.labels, &palette)?;
+        sayso_core::raster::write_depth_png(&dir.join("depth.png"), &truth.depth)?;
+    }
+    write_labels("step0.png", &base.graph)?;
+    let mut step = 0;
     let inputs = TurnInputs {
         scene: &prepared.scene,
         unaries: &prepared.unaries,
@@ -162,6 +186,8 @@ fn main() -> anyhow::Result<()> {
             println!("  | unmet: {unmet:?}");
         }
         show(&format!("after {text:?}"), &correction.graph);
+        step += 1;
+        write_labels(&format!("step{step}.png"), &correction.graph)?;
         // Pixels whose label changed against the no-note solve, by truth class and labels before -> after.
         let mut moved: BTreeMap<(String, String, String, bool), u64> = BTreeMap::new();
         for (pixel, &segment) in prepared.scene.segments.labels.iter().enumerate() {
