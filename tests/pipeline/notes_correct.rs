@@ -251,6 +251,70 @@ fn one_shelf_seen_between_its_books_is_joined_piece_by_piece() {
     );
 }
 
+#[test]
+fn one_chair_keeps_its_legs_seen_below_the_table_in_front_of_it() {
+    // A chair pushed in behind a table: its back shows above the table top, one leg below it, within the
+    // back's columns, further than the back's own reach (two cells of table between them). "Just one chair"
+    // joins the leg to the chair rather than taking it away as a stray fragment.
+    let room = room(
+        &[
+            "wwwwwwwwwwww",
+            "wwwCCCwwwwww",
+            "wwwCCCwwwwww",
+            "ffTTTTTTffff",
+            "ffTTTTTTffff",
+            "ffffCfffffff",
+            "ffffffffffff",
+        ],
+        &|c, class| match c {
+            'C' => Cell {
+                colour: [120, 70, 40],
+                scores: vec![(class("chair"), 0.85)],
+            },
+            _ => Cell {
+                colour: [200, 180, 120],
+                scores: vec![(class("table"), 0.85)],
+            },
+        },
+    );
+    let chair = class_of(&room, "chair");
+    let before = solve(&room, None, vec![], None);
+    assert_eq!(
+        objects_of(&before, chair),
+        2,
+        "the table parts the chair in the picture"
+    );
+    let after = solve(
+        &room,
+        Some(&before),
+        vec![(
+            ConstraintKind::Count {
+                class: ClassId(chair),
+                count: Count::Exactly(1),
+            },
+            "exactly 1 chair",
+        )],
+        None,
+    );
+    assert_eq!(objects_of(&after, chair), 1, "{:?}", after.unmet);
+    let leg = 5 * room.columns as usize + 4;
+    assert_eq!(
+        after.graph.segment_labels[leg].0, chair,
+        "the leg was taken away"
+    );
+    let joined = after
+        .graph
+        .objects
+        .iter()
+        .find(|o| o.class.0 == chair)
+        .unwrap();
+    assert_eq!(joined.members.len(), 7, "the back and the leg in one chair");
+    assert_eq!(
+        after.graph.segment_labels, before.graph.segment_labels,
+        "no label moved"
+    );
+}
+
 /// A rug on the floor below a wall, and a far one-cell greenish patch `g` with the scores `patch`.
 fn rug_room(patch: &[(&str, f32)]) -> Room {
     let patch: Vec<(String, f32)> = patch.iter().map(|&(n, p)| (n.to_string(), p)).collect();
