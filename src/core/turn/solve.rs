@@ -6,7 +6,9 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
+use crate::energy::build::{
+    build_constraint_part, build_energy, EnergyInputs, EnergyWeights, RoomClassPrior,
+};
 use crate::energy::{
     count_violation, EnergyError, JointEnergy, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
 };
@@ -33,7 +35,7 @@ use crate::scenegraph::{build_scene_graph, SceneGraph, SolvedFigures};
 use crate::solver::joint::{
     solve_joint_loose, tighten_bound, JointError, JointOptions, JointSolution, WarmStart,
 };
-use crate::solver::joint_region::touched_nodes;
+use crate::solver::joint_region::{touched_by_constraints, touched_nodes};
 use crate::taxonomy::{ClassGroup, Taxonomy};
 use crate::turn::region::{factor_segments, solve_step};
 use crate::unaries::Unaries;
@@ -262,13 +264,14 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     let seeds = match (&warm, request.options.region_solve) {
         (Some(start), true) => {
             let before_in_force = request.previous.map_or(&[][..], |p| &p.grounded[..]);
-            let before = build_energy(&energy_inputs(
+            // Only the constraint part: the segment part is this turn's, built once above.
+            let before = build_constraint_part(&energy_inputs(
                 request,
                 &hypotheses,
                 &accepted,
                 before_in_force,
             ))?;
-            touched_nodes(&before.energy, &built.energy, &start.state.labels)
+            touched_by_constraints(&before.energy, &built.energy, &start.state.labels)
         }
         _ => None,
     };
