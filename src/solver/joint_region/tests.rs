@@ -225,7 +225,10 @@ fn a_tightening_that_reuses_a_memo_reports_the_fresh_bound() {
     };
     let mut recorded = loose.clone();
     let memo = crate::joint::tighten_bound_reusing(&first, &mut recorded, &options, None).unwrap();
-    assert!(memo.is_some(), "the region solve's bound is loose, so it is tightened");
+    assert!(
+        memo.is_some(),
+        "the region solve's bound is loose, so it is tightened"
+    );
     assert_eq!(recorded.lower_bound.to_bits(), fresh(&first, &loose));
     let mut again = loose.clone();
     crate::joint::tighten_bound_reusing(&first, &mut again, &options, memo.as_ref()).unwrap();
