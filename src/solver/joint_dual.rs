@@ -172,8 +172,10 @@ pub(crate) fn diffused_dual_bound(
 /// turns change the coupled part) replays the stopping rule on the recorded bounds (`replay_stop`) instead
 /// of sweeping, and sweeps afresh only when its rule would run past the recorded sweeps. The diffusion is a
 /// fixed sequence of floating-point operations on those inputs, so a replayed bound has the bits a new run
-/// gives. Never stored: a memo is a cache held in memory with the version it came from.
-#[derive(Clone, Debug)]
+/// gives. A memo is a cache kept with the version it came from (in memory, and with the version's stored
+/// state so a restart keeps it); its key also names the diffusion's arithmetic (`DIFFUSION_FORMAT`), so a
+/// memo another build's diffusion recorded never matches.
+#[derive(Clone, Debug, serde::Serialize, serde::Deserialize)]
 pub struct BoundMemo {
     key: [u64; 2],
     record: Vec<f64>,
@@ -186,7 +188,12 @@ impl PartialEq for BoundMemo {
     }
 }
 
-/// A 128-bit fingerprint of what the diffusion's sweeps read: the node and label counts, every edge (both
+/// The version of the diffusion's arithmetic (`PottsBound::diffused`) that memos are recorded by, part of
+/// every memo's key with the package version: raise it with any change to the sweeps' operations or their
+/// order, so a memo stored by a build before it is never replayed.
+const DIFFUSION_FORMAT: u64 = 1;
+
+/// A 128-bit fingerprint of what the diffusion's sweeps read (and `DIFFUSION_FORMAT`): the node and label counts, every edge (both
 /// ends and the weight's bits) and the shifted unary table's bits. Two independent 64-bit multiply-xorshift
 /// lanes over the same words, each finished by the SplitMix64 finaliser (Steele, Lea and Flood 2014, "Fast
 /// splittable pseudorandom number generators"): not a cryptographic hash (the inputs are the solver's own
@@ -203,6 +210,10 @@ fn diffusion_key(energy: &JointEnergy, unary: &[f64]) -> [u64; 2] {
         lanes[1] = (lanes[1] ^ word.rotate_left(23)).wrapping_mul(SECOND);
         lanes[1] ^= lanes[1] >> 31;
     };
+    take(DIFFUSION_FORMAT);
+    for byte in env!("CARGO_PKG_VERSION").bytes() {
+        take(u64::from(byte));
+    }
     take(energy.node_count as u64);
     take(energy.label_count as u64);
     take(energy.edges.len() as u64);

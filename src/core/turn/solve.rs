@@ -32,9 +32,9 @@ use crate::scenegraph::leftovers::leftover_factors;
 use crate::scenegraph::locality::{overreach_factors, stray_factors, Concern};
 use crate::scenegraph::supersede::retire_superseded;
 use crate::scenegraph::{build_scene_graph, SceneGraph, SolvedFigures};
+pub use crate::solver::joint::BoundMemo;
 use crate::solver::joint::{
-    solve_joint_loose, tighten_bound_reusing, BoundMemo, JointError, JointOptions, JointSolution,
-    WarmStart,
+    solve_joint_loose, tighten_bound_reusing, JointError, JointOptions, JointSolution, WarmStart,
 };
 use crate::solver::joint_region::{touched_by_constraints, touched_nodes};
 use crate::taxonomy::{ClassGroup, Taxonomy};
