@@ -58,8 +58,11 @@ pub struct PerceptionClasses {
 #[derive(Clone, Debug)]
 pub struct SceneInput {
     pub name: String,
-    pub image: RgbImage,
-    pub depth: Option<DepthImage>,
+    /// The decoded picture, shared with the scene prepared from it (`Scene::image`), so a live scene holds
+    /// its pixels once.
+    pub image: Arc<RgbImage>,
+    /// The decoded depth map, shared the same way.
+    pub depth: Option<Arc<DepthImage>>,
     /// Raw NPY bytes of per-pixel class scores, as sent.
     pub scores_npy: Option<Vec<u8>>,
     pub label_map: Option<IndexImage>,

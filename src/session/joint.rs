@@ -68,6 +68,11 @@ struct EngineState {
     /// earlier builds wrote (their readers skip it), and in the registered version's.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     snapshot: Option<String>,
+    /// The solved version's bound memo (`Correction::bound_memo`), so the first turn after a restart
+    /// replays its parent's diffusion as a warm one does; not part of the key, absent where the solve kept
+    /// none.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    bound_memo: Option<crate::turn::solve::BoundMemo>,
 }
 
 /// Deflate level of snapshots: fast (a 640x480 scene's solved version, about 200 kB of JSON, goes to
@@ -126,6 +131,7 @@ impl EngineState {
             parent: None,
             turn: None,
             snapshot: None,
+            bound_memo: None,
         }
     }
 
@@ -137,6 +143,7 @@ impl EngineState {
             parent: Some(self.key()),
             turn: Some(turn),
             snapshot: None,
+            bound_memo: None,
         }
     }
 
@@ -144,6 +151,7 @@ impl EngineState {
     fn with_snapshot(self, correction: &Correction) -> EngineState {
         EngineState {
             snapshot: snapshot_of(correction),
+            bound_memo: correction.bound_memo.clone(),
             ..self
         }
     }
@@ -189,6 +197,7 @@ impl EngineState {
             parent: self.parent.clone(),
             turn: self.turn.clone(),
             snapshot: None,
+            bound_memo: None,
         };
         hex(&Sha256::digest(link.encode()))
     }
@@ -405,7 +414,8 @@ impl JointCorrector {
         if let Some(found) = lock(&self.solved).get(&head_key) {
             return Ok(Some(found));
         }
-        if let Some(found) = head.snapshot.as_deref().and_then(read_snapshot) {
+        if let Some(mut found) = head.snapshot.as_deref().and_then(read_snapshot) {
+            found.bound_memo = head.bound_memo.clone();
             let found = Arc::new(found);
             lock(&self.solved).insert(head_key, &head.input, found.clone());
             return Ok(Some(found));

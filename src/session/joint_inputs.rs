@@ -44,19 +44,17 @@ pub struct PreparedInput {
 }
 
 impl PreparedInput {
-    /// About what the prepared scene holds on the heap: its pixels, depth, superpixels, segment statistics,
-    /// adjacency graph, coarse level, unaries and detections, counted from their lengths (the small fixed
-    /// parts are left out). Parts shared with another prepared scene are counted in each.
+    /// About what the prepared scene holds on the heap beyond its registration's input: its superpixels,
+    /// segment statistics, adjacency graph, coarse level, unaries and detections, counted from their lengths
+    /// (the small fixed parts are left out; the pixels and depth are the input's). Parts shared with another
+    /// prepared scene are counted in each.
     pub fn heap_bytes(&self) -> u64 {
         use std::mem::size_of;
         let scene = &self.scene;
         let adjacency = &scene.adjacency;
-        let bytes = scene.image.pixels.len() * 3
-            + scene
-                .depth
-                .as_ref()
-                .map_or(0, |depth| depth.millimetres.len() * 2)
-            + scene.segments.labels.len() * 4
+        // The picture and depth map are the registration's own (`SceneInput::image`, shared), weighed
+        // with its input by the coordinator.
+        let bytes = scene.segments.labels.len() * 4
             + scene.stats.len() * size_of::<crate::scene::SegmentStats>()
             + adjacency.node_count() * 12
             + adjacency.edge_count() * (size_of::<crate::scene::AdjacencyEdge>() + 16)
@@ -217,7 +215,7 @@ fn scene_on_stored(input: &SceneInput, stored: &IndexImage, params: &SceneParams
         return None;
     }
     let segments = segment_map_of(stored, segment_count);
-    let stats = segment_stats(&input.image, input.depth.as_ref(), &segments);
+    let stats = segment_stats(&input.image, input.depth.as_deref(), &segments);
     let adjacency = adjacency_graph(&segments, &stats);
     let target_regions = (segment_count as f64 / params.segments_per_region as f64)
         .round()
@@ -225,8 +223,8 @@ fn scene_on_stored(input: &SceneInput, stored: &IndexImage, params: &SceneParams
     let coarse = coarse_level(&adjacency, &stats, target_regions);
     Some(Scene {
         name: input.name.clone(),
-        image: Arc::new(input.image.clone()),
-        depth: input.depth.clone().map(Arc::new),
+        image: input.image.clone(),
+        depth: input.depth.clone(),
         segments: Arc::new(segments),
         stats: Arc::new(stats),
         adjacency: Arc::new(adjacency),
@@ -311,7 +309,7 @@ pub fn prepare_input(
         .and_then(|map| scene_on_stored(input, map, &params));
     let scene = match stored {
         Some(scene) => scene,
-        None => Scene::from_image(
+        None => Scene::from_shared_image(
             input.name.clone(),
             input.image.clone(),
             input.depth.clone(),
@@ -388,7 +386,7 @@ mod tests {
         }
         SceneInput {
             name: "juniper-lane-scullery".into(),
-            image,
+            image: Arc::new(image),
             depth: None,
             scores_npy: None,
             label_map: None,
@@ -404,8 +402,14 @@ mod tests {
     fn superpixels_kept_with_a_registration_give_back_the_same_scene() {
         let input = input_of(96, 72);
         let params = SceneParams::for_image_size(96, 72);
-        let cut = Scene::from_image(input.name.clone(), input.image.clone(), None, None, &params)
-            .unwrap();
+        let cut = Scene::from_image(
+            input.name.clone(),
+            (*input.image).clone(),
+            None,
+            None,
+            &params,
+        )
+        .unwrap();
         let kept = superpixel_image(&cut.segments).unwrap();
         let read_back = scene_on_stored(&input, &kept, &params).expect("the kept map fits");
         assert_eq!(read_back.segments, cut.segments);
@@ -459,7 +463,7 @@ mod tests {
         };
         let mut input = SceneInput {
             name: "shelf".into(),
-            image: RgbImage::filled(8, 4, [200, 190, 170]),
+            image: Arc::new(RgbImage::filled(8, 4, [200, 190, 170])),
             depth: None,
             scores_npy: None,
             label_map: Some(IndexImage {
@@ -504,7 +508,7 @@ mod tests {
         }
         let input = SceneInput {
             name: "hall".into(),
-            image: image.clone(),
+            image: Arc::new(image.clone()),
             depth: None,
             scores_npy: None,
             label_map: None,

@@ -471,8 +471,8 @@ pub fn decode(
     }
     let scene = Scene {
         name: input.name.clone(),
-        image: Arc::new(input.image.clone()),
-        depth: input.depth.clone().map(Arc::new),
+        image: input.image.clone(),
+        depth: input.depth.clone(),
         segments: Arc::new(segments),
         stats: Arc::new(stats),
         adjacency: Arc::new(adjacency),
@@ -514,7 +514,7 @@ mod tests {
         }
         SceneInput {
             name: "juniper-lane-pantry".into(),
-            image,
+            image: Arc::new(image),
             depth: None,
             scores_npy: None,
             label_map: Some(IndexImage {
@@ -684,7 +684,7 @@ mod tests {
             Some(PreparedFormError::OtherSuperpixels)
         );
         let mut smaller = input.clone();
-        smaller.image = RgbImage::filled(95, 72, [0, 0, 0]);
+        smaller.image = Arc::new(RgbImage::filled(95, 72, [0, 0, 0]));
         assert_eq!(
             decode(&bytes, &smaller, &prepared.digest, |_| None).err(),
             Some(PreparedFormError::OtherSuperpixels)

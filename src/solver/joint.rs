@@ -40,6 +40,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::energy::{EnergyError, JointEnergy, JointState};
 use crate::joint_coupled::{solve_coupled, CoupledInputs, CoupledTables};
+pub use crate::joint_dual::BoundMemo;
 use crate::joint_dual::{
     adapt_multipliers, diffused_dual_bound, dual_value, fresh_multipliers, subgradient_step,
     BoundInputs,
@@ -457,9 +458,22 @@ pub fn tighten_bound(
     solution: &mut JointSolution,
     options: &JointOptions,
 ) -> Result<(), JointError> {
+    tighten_bound_reusing(energy, solution, options, None).map(|_| ())
+}
+
+/// `tighten_bound`, given what an earlier tightening of the same scene computed (`earlier`, e.g. the parent
+/// version's): when the diffusion's inputs are the same bits, its bound is read instead of computed again,
+/// with the same result. Answers what this tightening computed or reused, to hand to the next (`None` when
+/// the gap needed no tightening).
+pub fn tighten_bound_reusing(
+    energy: &JointEnergy,
+    solution: &mut JointSolution,
+    options: &JointOptions,
+    earlier: Option<&BoundMemo>,
+) -> Result<Option<BoundMemo>, JointError> {
     energy.validate()?;
     if !needs_tightening(solution.energy, solution.lower_bound, options) {
-        return Ok(());
+        return Ok(None);
     }
     let folded = energy.folded_unary();
     let coupled = CoupledTables::new(energy);
@@ -473,17 +487,18 @@ pub fn tighten_bound(
         bound: &mut bound,
         unary: &mut unary,
     };
+    let mut memo = earlier.cloned();
     let lower_bound = tightened(
         inputs,
         &multipliers,
-        solution.energy,
-        solution.lower_bound,
+        (solution.energy, solution.lower_bound),
         options,
+        Some(&mut memo),
     )
     .min(solution.energy);
     solution.lower_bound = lower_bound;
     solution.relative_gap = gap(solution.energy, lower_bound);
-    Ok(())
+    Ok(memo)
 }
 
 /// Whether the final diffusion runs: the gap left is above `TIGHTEN_ABOVE_GAP` (and the tolerance).
@@ -491,13 +506,14 @@ fn needs_tightening(energy_found: f64, lower_bound: f64, options: &JointOptions)
     gap(energy_found, lower_bound) > TIGHTEN_ABOVE_GAP.max(options.gap_tolerance)
 }
 
-/// `lower_bound`, raised by the diffused bound at `multipliers` when `needs_tightening`.
+/// `lower_bound`, raised by the diffused bound at `multipliers` when `needs_tightening` (with `memo`, as
+/// `diffused_dual_bound` reuses and keeps one).
 fn tightened(
     inputs: BoundInputs,
     multipliers: &Multipliers,
-    energy_found: f64,
-    lower_bound: f64,
+    (energy_found, lower_bound): (f64, f64),
     options: &JointOptions,
+    memo: Option<&mut Option<BoundMemo>>,
 ) -> f64 {
     if !needs_tightening(energy_found, lower_bound, options) {
         return lower_bound;
@@ -508,6 +524,7 @@ fn tightened(
         FINAL_SWEEPS,
         energy_found,
         TIGHTEN_ABOVE_GAP.max(options.gap_tolerance),
+        memo,
     );
     lower_bound.max(tighter)
 }
@@ -653,7 +670,13 @@ pub(crate) fn solve(
             bound: &mut workspace.bound,
             unary: &mut workspace.unary,
         };
-        lower_bound = tightened(inputs, &best_multipliers, best.energy, lower_bound, options);
+        lower_bound = tightened(
+            inputs,
+            &best_multipliers,
+            (best.energy, lower_bound),
+            options,
+            None,
+        );
     }
     if small && gap(best.energy, lower_bound) > options.gap_tolerance {
         // Polish the best few distinct states found, not only the best one, and starts from each

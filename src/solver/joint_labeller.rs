@@ -665,6 +665,57 @@ mod tests {
             );
         }
 
+        /// A diffusion's record (the even split's bound and each sweep's) answers a later diffusion of the
+        /// same unaries with another target and stopping value with the same bits, wherever the record covers
+        /// the later one's stop (`replay_stop`); where it does not, the replay says so rather than guess.
+        #[test]
+        fn a_recorded_diffusion_replays_another_stop_with_the_same_bits(
+            node_count in 2usize..16,
+            label_count in 1usize..9,
+            seed in 0u64..u64::MAX,
+            sweeps in 0usize..10,
+            first in (0.0f64..1.5, 0.0f64..1.5),
+            second in (0.0f64..1.5, 0.0f64..1.5),
+        ) {
+            let mut state = seed;
+            let mut next = move || {
+                state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+                (state >> 11) as f64 / (1u64 << 53) as f64
+            };
+            let unary: Vec<f64> = (0..node_count * label_count).map(|_| 10.0 * next() - 2.0).collect();
+            let mut edges = Vec::new();
+            for a in 0..node_count as u32 {
+                for b in a + 1..node_count as u32 {
+                    if next() < 0.4 {
+                        edges.push((a, b, 3.0 * next()));
+                    }
+                }
+            }
+            let mut bound = PottsBound::new(node_count, label_count, &edges);
+            // Targets and stopping values around the even split's bound, so runs stop at various sweeps.
+            let even = bound.bound(&unary);
+            let scale = even.abs().max(1.0);
+            let stops = |(target, enough): (f64, f64)| (even + target * scale, even + enough * scale);
+            let (target, enough) = stops(first);
+            let mut record = Vec::new();
+            let recorded = bound.diffused_recorded(&unary, sweeps, target, enough, &mut record);
+            proptest::prop_assert_eq!(
+                recorded.to_bits(),
+                bound.diffused(&unary, sweeps, target, enough).to_bits()
+            );
+            proptest::prop_assert_eq!(
+                crate::potts_bound::replay_stop(&record, sweeps, target, enough).map(f64::to_bits),
+                Some(recorded.to_bits())
+            );
+            let (target, enough) = stops(second);
+            let fresh = bound.diffused(&unary, sweeps, target, enough);
+            if let Some(replayed) = crate::potts_bound::replay_stop(&record, sweeps, target, enough) {
+                proptest::prop_assert_eq!(replayed.to_bits(), fresh.to_bits());
+            } else {
+                proptest::prop_assert!(record.len() <= sweeps, "a full record must answer");
+            }
+        }
+
         #[test]
         fn lower_bound_never_exceeds_the_brute_force_minimum(
             unary in proptest::collection::vec(-3.0f64..3.0, 15),

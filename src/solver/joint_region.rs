@@ -2,7 +2,8 @@
 //! at a previous state's labels, widened when the answer reaches the region's edge and replaced by the
 //! whole solve when the region grows past a share of the scene.
 //!
-//! Owns: `solve_joint_region` (and `solve_joint_region_loose`, the same without the bound), `RegionOutcome`, `touched_nodes` (where two energies of a scene differ), and
+//! Owns: `solve_joint_region` (and `solve_joint_region_loose`, the same without the bound), `RegionOutcome`, `touched_nodes` (where two energies of a scene differ; `touched_by_constraints` when
+//! only their constraint parts can), and
 //! the reduced energy a region is solved on.
 //! Must not: decide which nodes a change touches (the caller names them); know about language, files or
 //! what classes mean.
@@ -201,6 +202,32 @@ pub fn touched_nodes(
     after: &JointEnergy,
     labels: &[u16],
 ) -> Option<Vec<u32>> {
+    if before.edges != after.edges || before.unary.len() != after.unary.len() {
+        return None;
+    }
+    touched(before, after, labels, true)
+}
+
+/// `touched_nodes` for a `before` that holds only the constraint part of an energy of the same scene: the
+/// same counts, hypotheses, room and presence costs and factors, but no unary table and no edges (what
+/// `sayso_core::energy::build::build_constraint_part` builds, so a turn builds its segment part once). The
+/// segment part is taken to be `after`'s; the answer is `touched_nodes` against the whole `before`.
+pub fn touched_by_constraints(
+    before: &JointEnergy,
+    after: &JointEnergy,
+    labels: &[u16],
+) -> Option<Vec<u32>> {
+    touched(before, after, labels, false)
+}
+
+/// `touched_nodes`, the unary rows compared only when `compare_unary` (the caller has checked the tables
+/// have one length and the edges are equal, or that `before` shares `after`'s segment part).
+fn touched(
+    before: &JointEnergy,
+    after: &JointEnergy,
+    labels: &[u16],
+    compare_unary: bool,
+) -> Option<Vec<u32>> {
     if before.label_count != after.label_count
         || before.fine_count != after.fine_count
         || before.node_count != after.node_count
@@ -209,21 +236,21 @@ pub fn touched_nodes(
         || before.hypotheses.len() > after.hypotheses.len()
         || before.room_cost != after.room_cost
         || before.presence_cost != after.presence_cost
-        || before.edges != after.edges
-        || before.unary.len() != after.unary.len()
     {
         return None;
     }
     let label_count = after.label_count;
     let mut touched = vec![false; after.fine_count];
-    for (node, (old, new)) in before
-        .unary
-        .chunks(label_count)
-        .zip(after.unary.chunks(label_count))
-        .enumerate()
-    {
-        if old != new {
-            *touched.get_mut(node)? = true;
+    if compare_unary {
+        for (node, (old, new)) in before
+            .unary
+            .chunks(label_count)
+            .zip(after.unary.chunks(label_count))
+            .enumerate()
+        {
+            if old != new {
+                *touched.get_mut(node)? = true;
+            }
         }
     }
     let mut mark = |segments: &[u32]| {

@@ -57,6 +57,41 @@ fn wide_registers() -> bool {
     }
 }
 
+/// Where a diffusion stops: the caller's target and stopping value (`PottsBound::diffused`), and the
+/// bounds reached so far (the even split's, then each sweep's).
+struct StopAt<'a> {
+    target: f64,
+    enough: f64,
+    record: &'a mut Vec<f64>,
+}
+
+impl StopAt<'_> {
+    /// Whether the bounds reached so far stop the diffusion.
+    #[inline(always)]
+    fn stops(&self) -> bool {
+        replay_stop(self.record, usize::MAX, self.target, self.enough).is_some()
+    }
+}
+
+/// The bound a diffusion of at most `sweeps` sweeps answers for `target` and `enough`, read from `record`
+/// (the even split's bound, then each sweep's, as a run reached them): `PottsBound::diffused`'s stopping
+/// rule, replayed on the same numbers, so the same bits. `None` when the record ends before that rule stops
+/// and before `sweeps` sweeps (its run stopped sooner, for another target or stopping value).
+pub(crate) fn replay_stop(record: &[f64], sweeps: usize, target: f64, enough: f64) -> Option<f64> {
+    let (&even, reached) = record.split_first()?;
+    let mut best = even;
+    for &value in reached.iter().take(sweeps) {
+        let rise = value - best;
+        let rising = rise > 1e-9 * best.abs().max(1.0)
+            && (!target.is_finite() || rise > STOP_SHARE * (target - best));
+        best = best.max(value);
+        if !rising || best >= enough {
+            return Some(best);
+        }
+    }
+    (reached.len() >= sweeps).then_some(best)
+}
+
 /// A diffusion stops once a sweep closes less than this share of what is left between its bound and the
 /// caller's target (our own choice: on the demo scenes the sweeps after that gain a few thousandths of the
 /// relative gap each).
@@ -193,8 +228,8 @@ impl PottsBound {
     /// `diffused_portable` compiled for AVX.
     #[cfg(target_arch = "x86_64")]
     #[target_feature(enable = "avx")]
-    fn diffused_avx(&mut self, unary: &[f64], sweeps: usize, target: f64, enough: f64) -> f64 {
-        self.diffused_portable(unary, sweeps, target, enough)
+    fn diffused_avx(&mut self, unary: &[f64], sweeps: usize, stop: &mut StopAt) {
+        self.diffused_portable(unary, sweeps, stop)
     }
 
     /// The bound after at most `sweeps` sweeps of diffusion, stopping early once a sweep raises it by less
@@ -215,22 +250,51 @@ impl PottsBound {
         target: f64,
         enough: f64,
     ) -> f64 {
-        #[cfg(target_arch = "x86_64")]
-        if self.wide {
-            // SAFETY: `wide` is set only when the processor runs AVX (`wide_registers`).
-            return unsafe { self.diffused_avx(unary, sweeps, target, enough) };
-        }
-        self.diffused_portable(unary, sweeps, target, enough)
+        let mut record = Vec::new();
+        self.diffused_recorded(unary, sweeps, target, enough, &mut record)
     }
 
-    /// `diffused`, in the build the caller's instructions allow (inlined into each).
+    /// `diffused`, leaving in `record` the even split's bound and then each sweep's, in order, as the
+    /// sweeps reached them (`replay_stop` finds the same answer in it for any target and stopping value
+    /// whose sweeps it covers).
+    pub(crate) fn diffused_recorded(
+        &mut self,
+        unary: &[f64],
+        sweeps: usize,
+        target: f64,
+        enough: f64,
+        record: &mut Vec<f64>,
+    ) -> f64 {
+        record.clear();
+        let mut stop = StopAt {
+            target,
+            enough,
+            record: &mut *record,
+        };
+        #[cfg(target_arch = "x86_64")]
+        let ran_wide = self.wide && {
+            // SAFETY: `wide` is set only when the processor runs AVX (`wide_registers`).
+            unsafe { self.diffused_avx(unary, sweeps, &mut stop) };
+            true
+        };
+        #[cfg(not(target_arch = "x86_64"))]
+        let ran_wide = false;
+        if !ran_wide {
+            self.diffused_portable(unary, sweeps, &mut stop);
+        }
+        replay_stop(record, sweeps, target, enough).unwrap_or(record[0])
+    }
+
+    /// `diffused`, in the build the caller's instructions allow (inlined into each): the even split's bound
+    /// and each sweep's pushed on `record`, until `record` says stop.
     #[inline(always)]
-    fn diffused_portable(&mut self, unary: &[f64], sweeps: usize, target: f64, enough: f64) -> f64 {
+    fn diffused_portable(&mut self, unary: &[f64], sweeps: usize, stop: &mut StopAt) {
         let label_count = self.label_count;
         let node_count = self.row_minimum.len();
         let even = self.even_split(unary);
+        stop.record.push(even);
         if unary.len() != node_count * label_count || unary.iter().any(|v| !v.is_finite()) {
-            return even;
+            return;
         }
         // The even split: each edge end carries its node's share.
         self.end.clear();
@@ -254,7 +318,6 @@ impl PottsBound {
             .map(|&node| self.row_minimum[node])
             .sum();
         let mut average = vec![0.0; label_count];
-        let mut best = even;
         for _ in 0..sweeps {
             for node in 0..node_count {
                 self.diffuse(node, &mut average);
@@ -269,15 +332,11 @@ impl PottsBound {
                 }
             }
             let reached = isolated + self.edge_value.iter().sum::<f64>();
-            let rise = reached - best;
-            let rising = rise > 1e-9 * best.abs().max(1.0)
-                && (!target.is_finite() || rise > STOP_SHARE * (target - best));
-            best = best.max(reached);
-            if !rising || best >= enough {
+            stop.record.push(reached);
+            if stop.stops() {
                 break;
             }
         }
-        best
     }
 
     /// The even split's bound, for inputs the diffusion does not take.

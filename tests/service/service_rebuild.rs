@@ -115,6 +115,16 @@ fn a_cold_engine_rebuilds_the_head_and_answers_like_a_warm_one() {
         sizes
     });
     assert_eq!(sizes.len(), SCRIPT.len() + 1);
+    // The head's stored state carries its bound memo, so the first turn after a restart replays its
+    // parent's diffusion as a warm turn does (`EngineState::bound_memo`).
+    let head_state = cold.with_log(|log| {
+        let head = log.scenes().unwrap()[0].head;
+        log.version(head).unwrap().0.engine_state
+    });
+    assert!(
+        String::from_utf8_lossy(&head_state).contains("\"bound_memo\""),
+        "the head's stored state keeps no bound memo"
+    );
     let largest = sizes.iter().max().unwrap();
     let smallest_turn = sizes[..SCRIPT.len()].iter().min().unwrap();
     assert!(

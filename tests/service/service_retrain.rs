@@ -289,8 +289,8 @@ fn a_running_corrector_swaps_its_model_and_names_it_in_each_state() {
     let scene = load_demo_scene(&demo, Some("bathroom_morning")).unwrap();
     let input = SceneInput {
         name: scene.name.clone(),
-        image: scene.image.clone(),
-        depth: Some(scene.depth.clone()),
+        image: std::sync::Arc::new(scene.image.clone()),
+        depth: Some(std::sync::Arc::new(scene.depth.clone())),
         scores_npy: None,
         label_map: None,
         detections: Vec::new(),

@@ -249,6 +249,19 @@ fn probability_cost(probability: f64) -> f64 {
 
 /// Builds the energy. Errors on shapes that do not fit or non-finite unaries.
 pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
+    build(inputs, true)
+}
+
+/// The constraint part of `build_energy(inputs)` alone: the same hypotheses, factors, room and presence
+/// costs and unmet list, with an empty unary table and no edges. For comparing what two sets of
+/// constraints over one scene change (`sayso_solver::joint_region::touched_by_constraints`) without building
+/// the segment part twice; it is not a valid energy and must never be solved.
+pub fn build_constraint_part(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
+    build(inputs, false)
+}
+
+/// `build_energy`, with the segment part (unary table and edges, validated) or without it.
+fn build(inputs: &EnergyInputs, segment_part: bool) -> Result<BuiltEnergy, EnergyError> {
     let scene = inputs.scene;
     let weights = inputs.weights;
     let fine_count = scene.segment_count();
@@ -273,40 +286,11 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
     }
     let region_count = scene.coarse.members.len();
     let node_count = fine_count + region_count;
-    let mut unary = vec![0.0; node_count * label_count];
-    for s in 0..fine_count {
-        for c in 0..label_count {
-            let value = -(inputs.unaries.log_probs[[s, c]] as f64);
-            if !value.is_finite() {
-                return Err(EnergyError::NotFinite {
-                    what: format!("unary of segment {s} class {c}"),
-                });
-            }
-            unary[s * label_count + c] = value;
-        }
-    }
-    let mut edges = Vec::new();
-    let two_sigma_squared = 2.0 * weights.contrast_sigma * weights.contrast_sigma;
-    for edge in scene.adjacency.raw_edges() {
-        let (a, b) = (edge.source().index(), edge.target().index());
-        if a >= fine_count || b >= fine_count || a == b {
-            continue;
-        }
-        let contrast = edge.weight.colour_contrast as f64;
-        let weight = weights.smoothing_lambda
-            * edge.weight.boundary_length as f64
-            * (-(contrast * contrast) / two_sigma_squared).exp();
-        if weight.is_finite() && weight > 0.0 {
-            edges.push((a as u32, b as u32, weight));
-        }
-    }
-    for (region, members) in scene.coarse.members.iter().enumerate() {
-        for member in members {
-            if member.index() < fine_count {
-                edges.push((member.0, (fine_count + region) as u32, weights.fine_coarse));
-            }
-        }
-    }
+    let (unary, edges) = if segment_part {
+        segment_tables(inputs, node_count, label_count)?
+    } else {
+        (Vec::new(), Vec::new())
+    };
 
     let mut hypotheses: Vec<Hypothesis> = inputs.hypotheses.to_vec();
     let mut factors = Factors::default();
@@ -606,12 +590,64 @@ pub fn build_energy(inputs: &EnergyInputs) -> Result<BuiltEnergy, EnergyError> {
         tuple_factors: factors.tuple,
         unary_factors: factors.unary,
     };
-    energy.validate()?;
+    if segment_part {
+        energy.validate()?;
+    }
     Ok(BuiltEnergy {
         energy,
         hypotheses,
         unmet,
     })
+}
+
+/// One Potts edge of the energy: its two nodes and its weight.
+type PottsEdge = (u32, u32, f64);
+
+/// The segment part of the energy: the negated log-probabilities of every fine segment (coarse rows zero)
+/// and the Potts edges, fine-fine by contrast and fine-coarse by membership.
+fn segment_tables(
+    inputs: &EnergyInputs,
+    node_count: usize,
+    label_count: usize,
+) -> Result<(Vec<f64>, Vec<PottsEdge>), EnergyError> {
+    let scene = inputs.scene;
+    let weights = inputs.weights;
+    let fine_count = scene.segment_count();
+    let mut unary = vec![0.0; node_count * label_count];
+    for s in 0..fine_count {
+        for c in 0..label_count {
+            let value = -(inputs.unaries.log_probs[[s, c]] as f64);
+            if !value.is_finite() {
+                return Err(EnergyError::NotFinite {
+                    what: format!("unary of segment {s} class {c}"),
+                });
+            }
+            unary[s * label_count + c] = value;
+        }
+    }
+    let mut edges = Vec::new();
+    let two_sigma_squared = 2.0 * weights.contrast_sigma * weights.contrast_sigma;
+    for edge in scene.adjacency.raw_edges() {
+        let (a, b) = (edge.source().index(), edge.target().index());
+        if a >= fine_count || b >= fine_count || a == b {
+            continue;
+        }
+        let contrast = edge.weight.colour_contrast as f64;
+        let weight = weights.smoothing_lambda
+            * edge.weight.boundary_length as f64
+            * (-(contrast * contrast) / two_sigma_squared).exp();
+        if weight.is_finite() && weight > 0.0 {
+            edges.push((a as u32, b as u32, weight));
+        }
+    }
+    for (region, members) in scene.coarse.members.iter().enumerate() {
+        for member in members {
+            if member.index() < fine_count {
+                edges.push((member.0, (fine_count + region) as u32, weights.fine_coarse));
+            }
+        }
+    }
+    Ok((unary, edges))
 }
 
 #[derive(Default)]

@@ -103,6 +103,18 @@ impl Scene {
         room: Option<RoomId>,
         params: &SceneParams,
     ) -> Result<Scene, SceneError> {
+        Scene::from_shared_image(name, Arc::new(image), depth.map(Arc::new), room, params)
+    }
+
+    /// `from_image` on an image (and depth map) the caller keeps too: the scene shares them instead of
+    /// holding copies.
+    pub fn from_shared_image(
+        name: impl Into<String>,
+        image: Arc<RgbImage>,
+        depth: Option<Arc<DepthImage>>,
+        room: Option<RoomId>,
+        params: &SceneParams,
+    ) -> Result<Scene, SceneError> {
         let name = name.into();
         if params.segments_per_region == 0 {
             return Err(SceneError::BadSegmentsPerRegion { scene: name });
@@ -136,7 +148,7 @@ impl Scene {
             labels: superpixels.labels,
             segment_count: superpixels.segment_count,
         };
-        let stats = segment_stats(&image, depth.as_ref(), &segments);
+        let stats = segment_stats(&image, depth.as_deref(), &segments);
         let adjacency = adjacency_graph(&segments, &stats);
         let target_regions = (segments.segment_count as f64 / params.segments_per_region as f64)
             .round()
@@ -144,8 +156,8 @@ impl Scene {
         let coarse = coarse_level(&adjacency, &stats, target_regions);
         Ok(Scene {
             name,
-            image: Arc::new(image),
-            depth: depth.map(Arc::new),
+            image,
+            depth,
             segments: Arc::new(segments),
             stats: Arc::new(stats),
             adjacency: Arc::new(adjacency),

@@ -6,7 +6,9 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::energy::build::{build_energy, EnergyInputs, EnergyWeights, RoomClassPrior};
+use crate::energy::build::{
+    build_constraint_part, build_energy, EnergyInputs, EnergyWeights, RoomClassPrior,
+};
 use crate::energy::{
     count_violation, EnergyError, JointEnergy, JointState, TupleFactor, UnaryFactor, HARD_WEIGHT,
 };
@@ -30,10 +32,11 @@ use crate::scenegraph::leftovers::leftover_factors;
 use crate::scenegraph::locality::{overreach_factors, stray_factors, Concern};
 use crate::scenegraph::supersede::retire_superseded;
 use crate::scenegraph::{build_scene_graph, SceneGraph, SolvedFigures};
+pub use crate::solver::joint::BoundMemo;
 use crate::solver::joint::{
-    solve_joint_loose, tighten_bound, JointError, JointOptions, JointSolution, WarmStart,
+    solve_joint_loose, tighten_bound_reusing, JointError, JointOptions, JointSolution, WarmStart,
 };
-use crate::solver::joint_region::touched_nodes;
+use crate::solver::joint_region::{touched_by_constraints, touched_nodes};
 use crate::taxonomy::{ClassGroup, Taxonomy};
 use crate::turn::region::{factor_segments, solve_step};
 use crate::unaries::Unaries;
@@ -85,6 +88,10 @@ pub struct Correction {
     pub grounded: Vec<GroundedConstraint>,
     /// Span and gloss of every constraint in force, by the index causes and unmet entries use.
     pub constraint_labels: ConstraintLabels,
+    /// The last bound tightening's result, which the next turn reuses when its own has the same inputs
+    /// (`tighten_bound_reusing`). A cache held in memory only: never stored, never compared.
+    #[serde(skip)]
+    pub bound_memo: Option<BoundMemo>,
 }
 
 /// Where a later solve of the turn starts: the last solution's state, and its multipliers when only a region
@@ -262,13 +269,14 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     let seeds = match (&warm, request.options.region_solve) {
         (Some(start), true) => {
             let before_in_force = request.previous.map_or(&[][..], |p| &p.grounded[..]);
-            let before = build_energy(&energy_inputs(
+            // Only the constraint part: the segment part is this turn's, built once above.
+            let before = build_constraint_part(&energy_inputs(
                 request,
                 &hypotheses,
                 &accepted,
                 before_in_force,
             ))?;
-            touched_nodes(&before.energy, &built.energy, &start.state.labels)
+            touched_by_constraints(&before.energy, &built.energy, &start.state.labels)
         }
         _ => None,
     };
@@ -518,18 +526,19 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
     unmet.sort_by_key(|u| u.constraint);
     // Every solve of the turn left its bound as the dual loop had it; the answer's is tightened once here,
     // beside the answer's scene graph when that is still to build (`tighten_beside_graph`).
-    let mut graph = match latest_graph {
+    let earlier = request.previous.and_then(|p| p.bound_memo.as_ref());
+    let (mut graph, bound_memo) = match latest_graph {
         Some(graph) => {
-            tighten_bound(&energy, &mut solution, request.options)?;
-            graph
+            let memo = tighten_bound_reusing(&energy, &mut solution, request.options, earlier)?;
+            (graph, memo)
         }
         None => {
-            let (tightened, graph) =
-                tighten_beside_graph(&energy, &solution, request.options, |solved| {
+            let (tightened, graph, memo) =
+                tighten_beside_graph(&energy, &solution, request.options, earlier, |solved| {
                     graph_of(request, &built.hypotheses, solved, (&counted, &caps))
                 })?;
             solution = tightened;
-            graph
+            (graph, memo)
         }
     };
     graph.energy = solution.energy;
@@ -624,6 +633,7 @@ pub fn correct(request: &SolveRequest) -> Result<Correction, CorrectionError> {
         last_referent: grounding.last_referent,
         grounded: in_force,
         constraint_labels: labels,
+        bound_memo: bound_memo.or_else(|| earlier.cloned()),
     })
 }
 
@@ -763,42 +773,42 @@ fn unmet_counts(
         .collect()
 }
 
-/// Tightens `solution`'s bound (`tighten_bound`) while `graph` builds the answer's scene graph, on two
-/// threads when the machine has two cores and a thread starts, else one after the other. The graph reads
-/// the solution's state alone (its figures are set from the tightened solution afterwards) and the
-/// tightening reads the energy and the solution's multipliers alone, so either order gives the same answer.
+/// Tightens `solution`'s bound (`tighten_bound_reusing` with `earlier`) while `graph` builds the answer's
+/// scene graph, on two threads when the machine has two cores and a thread starts, else one after the
+/// other. The graph reads the solution's state alone (its figures are set from the tightened solution
+/// afterwards) and the tightening reads the energy and the solution's multipliers alone, so either order
+/// gives the same answer.
 fn tighten_beside_graph(
     energy: &JointEnergy,
     solution: &JointSolution,
     options: &JointOptions,
+    earlier: Option<&BoundMemo>,
     graph: impl FnOnce(&JointSolution) -> SceneGraph,
-) -> Result<(JointSolution, SceneGraph), CorrectionError> {
+) -> Result<(JointSolution, SceneGraph, Option<BoundMemo>), CorrectionError> {
+    let tighten = || {
+        let mut tightened = solution.clone();
+        tighten_bound_reusing(energy, &mut tightened, options, earlier)
+            .map(|memo| (tightened, memo))
+    };
     let two_cores = std::thread::available_parallelism().is_ok_and(|cores| cores.get() >= 2);
     let (graph, bound) = std::thread::scope(|scope| {
         let worker = two_cores
             .then(|| {
                 std::thread::Builder::new()
                     .name("sayso-bound".into())
-                    .spawn_scoped(scope, || {
-                        let mut tightened = solution.clone();
-                        tighten_bound(energy, &mut tightened, options).map(|()| tightened)
-                    })
+                    .spawn_scoped(scope, tighten)
                     .ok()
             })
             .flatten();
         let graph = graph(solution);
         (graph, worker.and_then(|worker| worker.join().ok()))
     });
-    let tightened = match bound {
+    // No second thread (or it ended without an answer): tighten here.
+    let (tightened, memo) = match bound {
         Some(result) => result?,
-        // No second thread (or it ended without an answer): tighten here.
-        None => {
-            let mut tightened = solution.clone();
-            tighten_bound(energy, &mut tightened, options)?;
-            tightened
-        }
+        None => tighten()?,
     };
-    Ok((tightened, graph))
+    Ok((tightened, graph, memo))
 }
 
 /// The scene graph of a solved state, with the counts and caps in force.

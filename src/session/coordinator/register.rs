@@ -271,8 +271,8 @@ pub(crate) fn restore_input(
     };
     Ok(SceneInput {
         name: name.to_string(),
-        image,
-        depth,
+        image: std::sync::Arc::new(image),
+        depth: depth.map(std::sync::Arc::new),
         scores_npy,
         label_map,
         detections: stored.detections,
@@ -514,8 +514,8 @@ impl Coordinator {
         }
         let mut input = SceneInput {
             name: name.clone(),
-            image,
-            depth,
+            image: std::sync::Arc::new(image),
+            depth: depth.map(std::sync::Arc::new),
             scores_npy: upload.scores_npy.clone(),
             label_map,
             detections: detections.clone(),

@@ -201,3 +201,46 @@ fn nodes_outside_the_region_keep_their_labels() {
     let (_, whole) = solve_joint_region(&energy, &warm, &[], &JointOptions::default()).unwrap();
     assert!(whole.whole);
 }
+
+/// A tightening handed an earlier one's memo (`tighten_bound_reusing`) reports the bound a fresh
+/// tightening reports, to the bit: with the earlier one's own solution, with a worse energy found (another
+/// target and stopping value for the same sweeps), and on another energy (another key: sweeps afresh).
+#[test]
+fn a_tightening_that_reuses_a_memo_reports_the_fresh_bound() {
+    let options = JointOptions::default();
+    let first = energy(11, 30);
+    let warm = WarmStart {
+        state: JointState {
+            labels: vec![1; 31],
+            hypotheses_on: vec![false, false],
+            room: 0,
+        },
+        multipliers: None,
+    };
+    let (loose, _) = solve_joint_region_loose(&first, &warm, &[12], &options).unwrap();
+    let fresh = |energy: &JointEnergy, solution: &JointSolution| {
+        let mut fresh = solution.clone();
+        crate::joint::tighten_bound(energy, &mut fresh, &options).unwrap();
+        fresh.lower_bound.to_bits()
+    };
+    let mut recorded = loose.clone();
+    let memo = crate::joint::tighten_bound_reusing(&first, &mut recorded, &options, None).unwrap();
+    assert!(
+        memo.is_some(),
+        "the region solve's bound is loose, so it is tightened"
+    );
+    assert_eq!(recorded.lower_bound.to_bits(), fresh(&first, &loose));
+    let mut again = loose.clone();
+    crate::joint::tighten_bound_reusing(&first, &mut again, &options, memo.as_ref()).unwrap();
+    assert_eq!(again.lower_bound.to_bits(), fresh(&first, &loose));
+    let mut worse = loose.clone();
+    worse.energy += 0.25 * worse.energy.abs().max(1.0);
+    let mut reused = worse.clone();
+    crate::joint::tighten_bound_reusing(&first, &mut reused, &options, memo.as_ref()).unwrap();
+    assert_eq!(reused.lower_bound.to_bits(), fresh(&first, &worse));
+    let second = energy(12, 30);
+    let (other, _) = solve_joint_region_loose(&second, &warm, &[12], &options).unwrap();
+    let mut elsewhere = other.clone();
+    crate::joint::tighten_bound_reusing(&second, &mut elsewhere, &options, memo.as_ref()).unwrap();
+    assert_eq!(elsewhere.lower_bound.to_bits(), fresh(&second, &other));
+}
