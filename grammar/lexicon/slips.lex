@@ -76,6 +76,10 @@ next too = next to
 too the = to the when before left|right|write|rite
 two the = to the when before left|right|write|rite
 be neath = beneath
+# "in" written as the word for a pub; "asleep", "awake" split after a verb ("the cat is a sleep on the sofa").
+inn = in
+a sleep = asleep when after is|are|was|were|fast|sound
+a wake = awake when after is|are|was|were|wide
 lefthand = left hand
 righthand = right hand
 any where = anywhere

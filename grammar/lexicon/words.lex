@@ -693,7 +693,6 @@ fast asleep -> skip
 laying -> skip
 sound asleep -> skip
 napping -> skip
-perched on -> relation on
 up there -> skip
 down there -> skip
 # "There's nobody here, not even the dog": after a pause, "not even" denies the thing as "no" does.
@@ -853,7 +852,172 @@ chilling -> skip
 relaxing -> skip
 resting up -> skip
 
+
+# A move finished, by the thing itself or done to it, says where the thing is now: "the towel has fallen onto
+# the floor", "the ball has rolled under the sofa", "the lid has been knocked off the table" is unread.
+has fallen -> be
+have fallen -> be
+has rolled -> be
+have rolled -> be
+has slipped -> be
+have slipped -> be
+has slid -> be
+have slid -> be
+has tumbled -> be
+have tumbled -> be
+has dropped -> be
+have dropped -> be
+has toppled -> be
+have toppled -> be
+has blown -> be
+have blown -> be
+has drifted -> be
+have drifted -> be
+has moved -> be
+have moved -> be
+has crept -> be
+have crept -> be
+has snuck -> be
+have snuck -> be
+has sneaked -> be
+have sneaked -> be
+has hopped -> be
+have hopped -> be
+has run -> be
+have run -> be
+has walked -> be
+have walked -> be
+has strayed -> be
+have strayed -> be
+has been dropped -> be
+have been dropped -> be
+has been knocked -> be
+have been knocked -> be
+has been thrown -> be
+have been thrown -> be
+has been kicked -> be
+have been kicked -> be
+has been pushed -> be
+have been pushed -> be
+has been shoved -> be
+have been shoved -> be
+has been dumped -> be
+have been dumped -> be
+has been tucked -> be
+have been tucked -> be
+has been hidden -> be
+have been hidden -> be
+has been stuffed -> be
+have been stuffed -> be
+has been tossed -> be
+have been tossed -> be
+has been dragged -> be
+have been dragged -> be
+has been carried -> be
+have been carried -> be
+has been taken -> be
+have been taken -> be
+# The simple past of a move, when a place follows: "the cat jumped onto the sofa".
+fell = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+rolled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+slipped = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+slid = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+tumbled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+toppled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+jumped = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+climbed = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+crawled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+wandered = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+hopped = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+crept = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+ran = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+walked = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+went = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+moved = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+settled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+# What a thing or a person is doing where it is ("the laptop is lying closed on the desk", "the toddler is
+# playing under the table", "auntie is reading on the sofa"): the place after says where it is.
+closed -> skip
+lying open -> skip
+sitting open -> skip
+standing open -> skip
+wide open -> skip
+shut -> skip
+ajar -> skip
+upside down -> skip
+face down -> skip
+face up -> skip
+unplugged -> skip
+playing -> skip
+reading -> skip
+eating -> skip
+drinking -> skip
+chewing -> skip
+working -> skip
+studying -> skip
+writing -> skip
+drawing -> skip
+colouring -> skip
+coloring -> skip
+knitting -> skip
+sewing -> skip
+watching tv -> skip
+watching telly -> skip
+watching -> skip
+snoring -> skip
+purring -> skip
+grooming -> skip
+sunbathing -> skip
+cuddled up -> skip
+cosied up -> skip
+cozied up -> skip
+hanging around -> skip
+hanging about -> skip
+sat down -> skip
+playing about -> skip
+messing about -> skip
+mucking about -> skip
+# Words of age and liking that name no class ("our old dog", "my favourite mug").
+old -> skip
+new -> skip
+favourite -> skip
+favorite -> skip
+lovely -> skip
+beloved -> skip
+poor -> skip
+silly -> skip
+naughty -> skip
+cheeky -> skip
+lazy -> skip
+grumpy -> skip
+
 # Utterances that are not corrections.
+# Undoing and moving the robot itself are requests ("undo that last change", "back up", "pick the toy up").
+undo -> request
+redo -> request
+revert -> request
+back up -> request
+reverse -> request
+step back -> request
+pick -> request
+# Asking what the robot can tell apart is a question ("can you tell the mug apart from the bowl?").
+can you tell -> question
+can you distinguish -> question
+can you recognise -> question
+can you recognize -> question
+can you spot -> question
+can you make out -> question
+# Complaints about the day are talk ("the kids are driving me mad"); "right then" opening a sentence moves on.
+driving me mad -> greeting
+driving me crazy -> greeting
+driving me nuts -> greeting
+driving me up the wall -> greeting
+drive me mad -> greeting
+drives me mad -> greeting
+drives me crazy -> greeting
+doing my head in -> greeting
+right then = okay when after <start>
+right so = okay when after <start>
 can you -> request
 could you -> request
 would you -> request
