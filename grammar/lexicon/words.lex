@@ -23,6 +23,11 @@ only a = there is a when after <start>
 only an = there is an when after <start>
 just a = there is a when after <start>
 just an = there is an when after <start>
+# "It's just a cushion", "that's only a bag": after the verb, "just" and "only" say nothing of the number.
+just a = a when after is|are|was|were
+just an = an when after is|are|was|were
+only a = a when after is|are|was|were
+only an = an when after is|are|was|were
 # "Rather than the cabinet", "instead of the shelf": the alternative is denied.
 rather than = not
 instead of = not
@@ -54,6 +59,85 @@ what you've labeled as = this is when after <start>
 what you've marked as = this is when after <start>
 what you've called = this is when after <start>
 what you've got as = this is when after <start>
+# ... with where it is shown between ("what you've marked here as a dog is actually a rug").
+what you have labelled here as = this is when after <start>
+what you have labelled there as = this is when after <start>
+what you have labelled over there as = this is when after <start>
+what you have labeled here as = this is when after <start>
+what you have labeled there as = this is when after <start>
+what you have labeled over there as = this is when after <start>
+what you have marked here as = this is when after <start>
+what you have marked there as = this is when after <start>
+what you have marked over there as = this is when after <start>
+what you have got here as = this is when after <start>
+what you have got there as = this is when after <start>
+what you have got over there as = this is when after <start>
+what you have called here as = this is when after <start>
+what you have called there as = this is when after <start>
+what you have called over there as = this is when after <start>
+what you have tagged here as = this is when after <start>
+what you have tagged there as = this is when after <start>
+what you have tagged over there as = this is when after <start>
+what you have shown here as = this is when after <start>
+what you have shown there as = this is when after <start>
+what you have shown over there as = this is when after <start>
+what you have detected here as = this is when after <start>
+what you have detected there as = this is when after <start>
+what you have detected over there as = this is when after <start>
+what you have tagged as = this is when after <start>
+what you have shown as = this is when after <start>
+what you have detected as = this is when after <start>
+what you've labelled here as = this is when after <start>
+what you've labelled there as = this is when after <start>
+what you've labelled over there as = this is when after <start>
+what you've labeled here as = this is when after <start>
+what you've labeled there as = this is when after <start>
+what you've labeled over there as = this is when after <start>
+what you've marked here as = this is when after <start>
+what you've marked there as = this is when after <start>
+what you've marked over there as = this is when after <start>
+what you've got here as = this is when after <start>
+what you've got there as = this is when after <start>
+what you've got over there as = this is when after <start>
+what you've called here as = this is when after <start>
+what you've called there as = this is when after <start>
+what you've called over there as = this is when after <start>
+what you've tagged here as = this is when after <start>
+what you've tagged there as = this is when after <start>
+what you've tagged over there as = this is when after <start>
+what you've shown here as = this is when after <start>
+what you've shown there as = this is when after <start>
+what you've shown over there as = this is when after <start>
+what you've detected here as = this is when after <start>
+what you've detected there as = this is when after <start>
+what you've detected over there as = this is when after <start>
+what you've tagged as = this is when after <start>
+what you've shown as = this is when after <start>
+what you've detected as = this is when after <start>
+what you labelled here as = this is when after <start>
+what you labelled there as = this is when after <start>
+what you labelled over there as = this is when after <start>
+what you labeled here as = this is when after <start>
+what you labeled there as = this is when after <start>
+what you labeled over there as = this is when after <start>
+what you marked here as = this is when after <start>
+what you marked there as = this is when after <start>
+what you marked over there as = this is when after <start>
+what you called here as = this is when after <start>
+what you called there as = this is when after <start>
+what you called over there as = this is when after <start>
+what you tagged here as = this is when after <start>
+what you tagged there as = this is when after <start>
+what you tagged over there as = this is when after <start>
+what you shown here as = this is when after <start>
+what you shown there as = this is when after <start>
+what you shown over there as = this is when after <start>
+what you detected here as = this is when after <start>
+what you detected there as = this is when after <start>
+what you detected over there as = this is when after <start>
+what you tagged as = this is when after <start>
+what you shown as = this is when after <start>
+what you detected as = this is when after <start>
 is there = is present when before <end>|.|!|,|;
 it's there = it is present when before <end>|.|!|,|;
 its there = it is present when before <end>|.|!|,|;
@@ -264,6 +348,7 @@ has -> have
 have -> have
 had -> have
 has got -> have
+have got -> have
 contains -> have
 holds -> have
 see -> see
@@ -544,6 +629,8 @@ alright -> greeting
 anyway -> filler
 basically -> filler
 actually -> filler
+# "Five books on the desk actually six": before a bare number after a thing, "actually" repairs the count.
+actually = sorry when after <class> when before <number>
 really -> filler
 definitely -> filler
 certainly -> filler
@@ -641,6 +728,13 @@ much -> skip
 for -> skip
 today -> skip
 right now -> skip
+at the moment -> skip
+at the minute -> skip
+at present -> skip
+currently -> skip
+# "In the whole room": how much of it says nothing more.
+whole -> skip
+entire -> skip
 over there -> skip
 just there -> skip
 great -> greeting

@@ -368,20 +368,15 @@ impl<'t> Builder<'t> {
                 if !self.has_focus || position + found.length != chunks.len() {
                     return;
                 }
-                let Some(to) = first_phrase("to").and_then(|phrase| phrase.class) else {
-                    return;
-                };
+                // "bowl" names the pointed thing; "not cat" only denies what it is shown as.
+                let to = first_phrase("to").and_then(|phrase| phrase.class);
                 let from = first_phrase("from").and_then(|phrase| phrase.class);
-                if from == Some(to) {
+                if to.is_none() && from.is_none() || from == to {
                     return;
                 }
                 let target = self.implicit_target(span);
                 self.push(
-                    ConstraintKind::Relabel {
-                        target,
-                        from,
-                        to: Some(to),
-                    },
+                    ConstraintKind::Relabel { target, from, to },
                     span,
                     misspelled,
                 );
@@ -468,6 +463,16 @@ impl<'t> Builder<'t> {
                 }
                 if let Some(&index) = found.role("room").first() {
                     if let ChunkKind::Room(room) = chunks[index].kind {
+                        // "The dog's in the hallway, yeah, the hallway": a room alone, said again right
+                        // after a thing's place in it, repeats that place.
+                        let repeated = found.length == 1
+                            && self.constraints.last().is_some_and(|last| {
+                                matches!(&last.kind, ConstraintKind::Place { place: Place::Room(placed), .. }
+                                    if *placed == room)
+                            });
+                        if repeated {
+                            return;
+                        }
                         self.push(ConstraintKind::RoomType { room }, span, misspelled);
                     }
                 }
@@ -805,6 +810,29 @@ impl<'t> Builder<'t> {
                     if !too || first_phrase("subject").is_none_or(|subject| subject.plural) {
                         return;
                     }
+                }
+                // "The fridge is white and so is the stove": after colours or sizes, the same of the new
+                // subject (the trailing run of attributes stated of one thing).
+                let mut said: Vec<Attribute> = Vec::new();
+                let mut of: Option<&Referent> = None;
+                for constraint in self.constraints.iter().rev() {
+                    match &constraint.kind {
+                        ConstraintKind::Attribute { target, attribute }
+                            if of.is_none_or(|of| of == target) =>
+                        {
+                            said.insert(0, *attribute);
+                            of = Some(target);
+                        }
+                        _ => break,
+                    }
+                }
+                if !said.is_empty() {
+                    if let Some(subject) = first_phrase("subject") {
+                        self.count_of_subject(&subject, span, misspelled);
+                        let target = self.referent(&subject);
+                        self.push_attributes(&target, said, span, misspelled);
+                    }
+                    return;
                 }
                 let (Some(subject), Some((_, relation, landmarks)), Some(false)) = (
                     first_phrase("subject"),

@@ -256,7 +256,11 @@ pub fn drop_names(
             tag_of(kept.last()),
             Some(Tag::Class { class, plural: false }) if living(class)
         );
-        if after_living {
+        // "That's dog food", "it's cat litter": a bare word for a pet or person right after the verb, with
+        // no determiner of its own, modifies the word after it (English compounds end in their head); a
+        // name follows a word that names one of them ("our dog Rex", "the cat Saffi").
+        let modifier = kept.len() >= 2 && tag_of(kept.get(kept.len() - 2)) == Some(Tag::Be);
+        if after_living && !modifier {
             let name = |at: usize| {
                 items
                     .get(at)
@@ -282,6 +286,49 @@ pub fn drop_names(
         index += 1;
     }
     kept
+}
+
+/// "Not the cat but the dog is on the sofa": a denied thing opening the sentence, then "but" and the thing
+/// meant, then the verb, is put in the order of "the dog, not the cat, is on the sofa", which the rules read
+/// as a relation of the one, denied of the other. "Not the table: the towel is on the counter" (no "but")
+/// is left alone.
+pub fn contrast_subjects(items: Vec<Item>) -> Vec<Item> {
+    let phrase_end = |from: usize| {
+        let mut at = from;
+        while matches!(
+            tag_of(items.get(at)),
+            Some(Tag::Determiner | Tag::Article | Tag::Colour(_) | Tag::Size(_))
+        ) {
+            at += 1;
+        }
+        matches!(tag_of(items.get(at)), Some(Tag::Class { .. })).then_some(at + 1)
+    };
+    let opens_denied = tag_of(items.first()) == Some(Tag::Negation);
+    let Some(denied_end) = opens_denied.then(|| phrase_end(1)).flatten() else {
+        return items;
+    };
+    let but = items
+        .get(denied_end)
+        .is_some_and(|item| item.text == "but" && item.tag == ItemTag::Lexicon(Tag::And));
+    let Some(meant_end) = but.then(|| phrase_end(denied_end + 1)).flatten() else {
+        return items;
+    };
+    if tag_of(items.get(meant_end)) != Some(Tag::Be) {
+        return items;
+    }
+    let pause = |span: Span| Item {
+        tag: ItemTag::Pause,
+        span,
+        text: ",".to_string(),
+        misspelled: false,
+    };
+    let mut out = Vec::with_capacity(items.len() + 2);
+    out.extend_from_slice(&items[denied_end + 1..meant_end]);
+    out.push(pause(items[denied_end].span));
+    out.extend_from_slice(&items[..denied_end]);
+    out.push(pause(items[denied_end].span));
+    out.extend_from_slice(&items[meant_end..]);
+    out
 }
 
 /// "sofa w/ five cushions", "table with 6 plates": a piece of furniture (`support`) followed by "with" and a

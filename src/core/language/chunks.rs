@@ -375,8 +375,12 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
             // So is a singular class word known as written after "a" ("that's a coat rack"): English compounds
             // end in their head. Elsewhere a word after the noun is more often a verb or an aside ("the mug
             // you've got", "two stairs total"), and a plural modifier is rare.
+            // And so is a bare singular class word right after the verb ("that's dog food").
+            let after_verb = index > 0
+                && items[index - 1].tag == ItemTag::Lexicon(Tag::Be)
+                && matches!(items[index].tag, ItemTag::Lexicon(Tag::Class { .. }));
             let named = matches!(&chunk.kind, ChunkKind::NounPhrase(phrase)
-                if phrase.class.is_some() && (chunk.misspelled || (phrase.article && !phrase.plural)));
+                if phrase.class.is_some() && (chunk.misspelled || ((phrase.article || after_verb) && !phrase.plural)));
             // A participle after the noun ("the dog by the stove begging") is no compound head.
             let head_unknown = items.get(index + used.max(1)).is_some_and(|next| {
                 next.tag == ItemTag::Unknown

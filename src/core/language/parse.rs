@@ -15,7 +15,7 @@ use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
 use super::answers::{asked, complete, Asked};
-use super::asides::{drop_asides, drop_names, resolve_pointing, with_contents};
+use super::asides::{contrast_subjects, drop_asides, drop_names, resolve_pointing, with_contents};
 use super::chunks::{attach, chunk, repair, ChunkKind};
 use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Referent, Span};
 use super::error::{GrammarError, LanguageError};
@@ -351,6 +351,7 @@ impl Grammar {
                     .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Living)
             };
             let items = drop_names(items, living, &mut ignored_raw);
+            let items = contrast_subjects(items);
             let mut chunks = repair(chunk(&items), &mut ignored_raw);
             if let Some(open) = &open {
                 chunks = complete(open, chunks);

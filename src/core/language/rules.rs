@@ -155,7 +155,7 @@ impl Action {
             Action::Exist | Action::Located | Action::Remove => (&["np"], &["negated"]),
             Action::Relabel => (&[], &["target", "from", "to"]),
             Action::RelabelCalled => (&["target", "from"], &[]),
-            Action::RelabelPointed => (&["to"], &["from"]),
+            Action::RelabelPointed => (&[], &["to", "from"]),
             Action::RoomType => (&["room"], &["negated"]),
             Action::Relation => (
                 &["subject", "relation", "landmark"],
@@ -282,12 +282,14 @@ fn parse_rule(line: &str) -> Result<Rule, String> {
             return Err(format!("action '{action_name}' needs a ':{role}' item"));
         }
     }
-    if action == Action::Relabel
+    if matches!(action, Action::Relabel | Action::RelabelPointed)
         && !items
             .iter()
             .any(|item| matches!(item.role.as_deref(), Some("from" | "to")))
     {
-        return Err("action 'relabel' needs a ':from' or ':to' item".to_string());
+        return Err(format!(
+            "action '{action_name}' needs a ':from' or ':to' item"
+        ));
     }
     let min_chunks = items
         .iter()
