@@ -349,8 +349,13 @@ have -> have
 had -> have
 has got -> have
 have got -> have
-contains -> have
-holds -> have
+# "The shelf holds five books": things held are on furniture and in anything else, unless a place is said.
+contains -> holds
+contain -> holds
+holds -> holds
+hold -> holds
+is holding -> holds
+are holding -> holds
 see -> see
 can see -> see
 i count -> see

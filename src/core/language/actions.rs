@@ -918,8 +918,18 @@ impl<'t> Builder<'t> {
                 let Some(np) = first_phrase("np") else {
                     return;
                 };
-                let owner = first_phrase("owner");
-                self.have(owner.as_ref(), &np, negated, span, misspelled);
+                // "The shelf is above the desk and holds six books": with no owner of its own, the last
+                // relation's subject.
+                let owner = if found.role("owner").is_empty() {
+                    let Some(subject) = self.last_subject_phrase() else {
+                        return;
+                    };
+                    Some(subject)
+                } else {
+                    first_phrase("owner")
+                };
+                let holds = !found.role("holds").is_empty();
+                self.have(owner.as_ref(), &np, negated, holds, span, misspelled);
             }
             Action::Count => {
                 let number =

@@ -120,6 +120,7 @@ fn ends_modifier(item: &Item) -> bool {
                 | Tag::And
                 | Tag::Repair
                 | Tag::Have
+                | Tag::Holds
                 | Tag::See
                 | Tag::Remove
                 | Tag::Missed

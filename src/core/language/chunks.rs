@@ -84,6 +84,7 @@ pub enum ChunkKind {
     Called,
     Missed,
     Have,
+    Holds,
     See,
     Remove,
     Count,
@@ -457,6 +458,7 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Called => ChunkKind::Called,
                 Tag::Missed => ChunkKind::Missed,
                 Tag::Have => ChunkKind::Have,
+                Tag::Holds => ChunkKind::Holds,
                 Tag::See => ChunkKind::See,
                 Tag::Remove => ChunkKind::Remove,
                 Tag::Count => ChunkKind::Count,
@@ -918,7 +920,11 @@ fn share_relations(chunks: &mut [Chunk]) {
             // unless an owner comes first ("the desk has a laptop and a lamp on it").
             (ChunkKind::And, ChunkKind::NounPhrase(next))
                 if (!next.relations.is_empty() || next.region.is_some())
-                    && (index > 0 && chunks[index - 1].kind == ChunkKind::Have
+                    && (index > 0
+                        && matches!(
+                            chunks[index - 1].kind,
+                            ChunkKind::Have | ChunkKind::Holds
+                        )
                         || !next.relations.iter().any(|attached| {
                             attached.landmarks.iter().any(|landmark| {
                                 landmark.class.is_none()

@@ -100,6 +100,8 @@ pub enum Tag {
     Missed,
     /// "has", "contains": the owner has the thing (on it, in it).
     Have,
+    /// "holds", "contains": the owner has the thing on it (furniture) or in it (anything else).
+    Holds,
     /// "I see", "I count": the operator reports what is there.
     See,
     /// "remove", "get rid of", "you hallucinated": the thing is not there.

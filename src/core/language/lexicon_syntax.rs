@@ -295,6 +295,7 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 "missed" => Tag::Missed,
                 "scene" => Tag::Scene,
                 "have" => Tag::Have,
+                "holds" => Tag::Holds,
                 "see" => Tag::See,
                 "remove" => Tag::Remove,
                 "count" => Tag::Count,

@@ -29,6 +29,8 @@ pub enum Symbol {
     Called,
     Missed,
     Have,
+    /// "holds", "contains".
+    Holds,
     See,
     Remove,
     Count,
@@ -163,7 +165,7 @@ impl Action {
             ),
             Action::Place => (&["subject"], &["room", "region"]),
             Action::Attribute => (&["subject"], &["attributes"]),
-            Action::Have => (&["owner", "np"], &["negated"]),
+            Action::Have => (&["np"], &["owner", "negated", "holds"]),
             Action::Count => (&["number"], &["np", "negated", "denied"]),
             Action::RelationMore => (&["landmark"], &["relation", "negated"]),
             Action::RelationSame => (&["subject"], &["number"]),
@@ -348,6 +350,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "CALLED" => Symbol::Called,
             "MISSED" => Symbol::Missed,
             "HAVE" => Symbol::Have,
+            "HOLDS" => Symbol::Holds,
             "SEE" => Symbol::See,
             "REMOVE" => Symbol::Remove,
             "COUNT" => Symbol::Count,
@@ -452,6 +455,7 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
         | (Symbol::Called, ChunkKind::Called)
         | (Symbol::Missed, ChunkKind::Missed)
         | (Symbol::Have, ChunkKind::Have)
+        | (Symbol::Holds, ChunkKind::Holds)
         | (Symbol::See, ChunkKind::See)
         | (Symbol::Remove, ChunkKind::Remove)
         | (Symbol::Count, ChunkKind::Count)

@@ -15,6 +15,7 @@ impl Builder<'_> {
         owner: Option<&NounPhrase>,
         np: &NounPhrase,
         negated: bool,
+        holds: bool,
         span: Span,
         misspelled: bool,
     ) {
@@ -28,6 +29,26 @@ impl Builder<'_> {
             Some(owner) => {
                 let mut landmark = owner.clone();
                 landmark.quantity = None;
+                // "The shelf holds five books", "the box contains toys": with no place of their own, the
+                // things are on a piece of furniture and in anything else.
+                let group = owner
+                    .class
+                    .and_then(|class| self.taxonomy.class(class))
+                    .map(|info| info.group);
+                let relation = match group {
+                    Some(ClassGroup::Furniture) => Some(Relation::On),
+                    Some(ClassGroup::Appliance | ClassGroup::Object) => Some(Relation::Inside),
+                    _ => None,
+                };
+                if let (true, true, Some(relation)) = (holds, np.relations.is_empty(), relation) {
+                    let mut placed = landmark.clone();
+                    placed.relations = Vec::new();
+                    placed.region = None;
+                    np.relations.push(AttachedRelation {
+                        relation,
+                        landmarks: vec![placed],
+                    });
+                }
                 self.owner = Some(landmark);
             }
             None => {
@@ -36,6 +57,22 @@ impl Builder<'_> {
             }
         }
         self.exist(&np, negated, span, misspelled);
+    }
+
+    /// The last relation's subject as a noun phrase, when it names a class and nothing pointed at.
+    pub(super) fn last_subject_phrase(&self) -> Option<NounPhrase> {
+        let (subject, ..) = self.last_relation.as_ref()?;
+        (subject.class.is_some() && subject.deixis.is_none()).then(|| NounPhrase {
+            class: subject.class,
+            deictic: None,
+            plural: subject.plural,
+            attributes: subject.attributes.clone(),
+            quantity: None,
+            relations: Vec::new(),
+            region: None,
+            article: false,
+            span: subject.span,
+        })
     }
 
     /// The relations attached to a demonstrative noun phrase, each stated of what it points at.
