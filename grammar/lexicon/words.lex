@@ -409,6 +409,11 @@ i am selecting -> pointing
 i highlighted -> pointing
 i am highlighting -> pointing
 i am touching -> pointing
+# "That one, the one my hand is on, is a mug".
+my hand is on -> pointing
+my finger is on -> pointing
+my hand is over -> pointing
+my finger is over -> pointing
 i am indicating -> pointing
 under my cursor -> pointing
 under the cursor -> pointing
@@ -1226,6 +1231,16 @@ who -> question
 why -> question
 how -> question
 how many -> question count
+# "Which side of the desk is the mug on? The left.", "is the mug left or right of the desk? Right."
+which side of -> question side
+what side of -> question side
+on which side of -> question side
+on what side of -> question side
+left or right of -> question side
+right or left of -> question side
+to the left or right of -> question side
+to the left or to the right of -> question side
+on the left or right of -> question side
 is there -> question exists
 are there -> question exists
 do you -> question

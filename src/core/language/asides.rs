@@ -48,7 +48,47 @@ pub fn resolve_pointing(items: Vec<Item>) -> Vec<Item> {
             _ => out.push(item),
         }
     }
-    out
+    drop_pointed_apposition(out)
+}
+
+/// "That one, the one my hand is on, is a mug": a pointed thing opening the sentence, said again between
+/// pauses before the verb, is one thing; the second saying and its pauses go.
+fn drop_pointed_apposition(items: Vec<Item>) -> Vec<Item> {
+    let phrase_end = |from: usize| {
+        if !matches!(
+            tag_of(items.get(from)),
+            Some(Tag::Deictic { pronoun: false, .. })
+        ) {
+            return None;
+        }
+        let mut at = from + 1;
+        while matches!(
+            tag_of(items.get(at)),
+            Some(
+                Tag::Number(1)
+                    | Tag::Colour(_)
+                    | Tag::Size(_)
+                    | Tag::Class { .. }
+                    | Tag::Thing { .. }
+            )
+        ) {
+            at += 1;
+        }
+        Some(at)
+    };
+    let pause = |at: usize| items.get(at).is_some_and(|item| item.tag == ItemTag::Pause);
+    let Some(first) = phrase_end(0).filter(|&at| pause(at)) else {
+        return items;
+    };
+    let Some(second) = phrase_end(first + 1).filter(|&at| pause(at)) else {
+        return items;
+    };
+    if tag_of(items.get(second + 1)) != Some(Tag::Be) {
+        return items;
+    }
+    let mut items = items;
+    items.drain(first..=second);
+    items
 }
 
 /// Makes the noun phrase ending in the last item deictic: its determiner or article becomes a

@@ -469,7 +469,7 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Or => ChunkKind::Or,
                 Tag::Repair => ChunkKind::Repair,
                 // "Right of the desk is where the mug is": "where" inside a statement joins a cleft.
-                Tag::Question(Asks::Place) => ChunkKind::Where,
+                Tag::Question(Asks::Place | Asks::Side) => ChunkKind::Where,
                 Tag::Request | Tag::Question(_) | Tag::Thanks | Tag::Greeting => {
                     ChunkKind::Separator
                 }
@@ -564,10 +564,13 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
         let wanted = next
             .filter(|_| !joined)
             .and_then(|j| repair_kind(&chunks[j].kind));
+        // "This room is the bed, no sorry, the kitchen": a room may take back a thing said in its place.
         let mut earlier = wanted.and_then(|wanted| {
-            (index.saturating_sub(4)..index)
-                .rev()
+            let near = (index.saturating_sub(4)..index).rev();
+            near.clone()
                 .find(|&k| repair_kind(&chunks[k].kind) == Some(wanted))
+                .or_else(|| near.clone().find(|&k| wanted == RepairKind::Room
+                    && matches!(&chunks[k].kind, ChunkKind::NounPhrase(phrase) if phrase.class.is_some())))
         });
         // "In the dishwasher, no, the sink": a landmark we do not know, repaired by one we do. The words
         // after the relation up to the cue, none of them known as a thing, are what the cue takes back.

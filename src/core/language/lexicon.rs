@@ -57,6 +57,8 @@ pub enum Asks {
     Place,
     /// "is there": "there is" or "there isn't" answers it ("Is there a mug? There is.").
     Exists,
+    /// "which side of", "left or right of": a side answers it ("Is the mug left or right of the desk? Right.").
+    Side,
 }
 
 /// What a phrase can be.

@@ -264,9 +264,10 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 Some("thing") => Asks::Thing,
                 Some("place") => Asks::Place,
                 Some("exists") => Asks::Exists,
+                Some("side") => Asks::Side,
                 Some(other) => {
                     return Err(format!(
-                        "question '{other}' is not count, thing, place or exists"
+                        "question '{other}' is not count, thing, place, exists or side"
                     ))
                 }
             })

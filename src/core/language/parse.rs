@@ -333,6 +333,15 @@ impl Grammar {
                     }
                     if kind == UtteranceKind::Question {
                         pending = asks.and_then(|asks| asked(asks, &chunks, focus.is_some()));
+                        // "Is the mug left or right of the desk? It's on the shelf.": the thing a side
+                        // question asks about, not its landmark, is what a later "it" means.
+                        if let Some(Asked::Side { subject, .. }) = &pending {
+                            builder.mention_asked(&super::chunks::Chunk {
+                                kind: ChunkKind::NounPhrase(subject.clone()),
+                                span: subject.span,
+                                misspelled: false,
+                            });
+                        }
                     }
                     continue;
                 }
