@@ -592,6 +592,8 @@ no wait -> repair
 wait = wait here when after <start> when before <end>
 # "They are both on the bed": "both" after the verb adds nothing.
 both = all when after are|were|is
+# "There are exactly two lamps, both next to the bed": after a pause and before a place, the things counted.
+both = all when after <start> when before on|under|underneath|beneath|above|below|next|beside|by|near|behind|in|inside|left|right|against|at|opposite
 # "I count two mugs, and both are on the desk": "both" opening a clause is the things counted before, as
 # "some of them" ("none of them") is the class named last.
 both = some of them when after <start>|,|and|but when before are|were|sit|lie|stand

@@ -195,9 +195,9 @@ fn development_styles_recall_per_style() {
 const DEV_MAX_SPURIOUS: usize = 0;
 
 /// Held-out floor at the measured figure (2026-12-05, session 5: 471/498 = 94.6%, no unasked relabel, one
-/// constraint from 83 non-corrections; session 7: 473/498 = 95.0%, none, one); the goal of no constraint is
-/// not reached yet.
-const HELDOUT_FLOOR: f64 = 94.9;
+/// constraint from 83 non-corrections; session 7: 473/498 = 95.0%, none, one; session 10: 474/498 = 95.2%,
+/// none, one); the goal of no constraint is not reached yet.
+const HELDOUT_FLOOR: f64 = 95.1;
 const HELDOUT_MAX_SPURIOUS: usize = 1;
 
 /// The held-out file is run for its figures only; its lines are never printed.
@@ -278,8 +278,9 @@ fn fresh_development_styles_recall_per_style() {
 /// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none;
 /// after those the second fresh development file prompted, 142/156 (91.0%), none, none; in session 8, after
 /// those the third fresh development file prompted, 143/156 (91.7%), none, none; in session 9, after the
-/// constructions widened then, 144/156 (92.3%), none, none.
-const FRESH_HELDOUT_FLOOR: f64 = 92.2;
+/// constructions widened then, 144/156 (92.3%), none, none; in session 10, after those the fourth fresh
+/// development file prompted, 145/156 (92.9%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 92.8;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -313,16 +314,17 @@ fn fresh_heldout_styles_figures_are_reported() {
 /// (2026-12-05, session 7), before any change it prompted, the parser read 43, 49, 39, 42, 48 and 49 of 50
 /// lines (270/300, 90.0%; 2 constraints from 50 non-corrections, no unasked relabel, 8 lines misread); the
 /// parser of the session's start read 266/300 (88.7%; 2, none, 9). After the changes the file prompted:
-/// 50, 50, 49, 49, 50 and 50 (298/300, 99.3%; 1, none, 1).
+/// 50, 50, 49, 49, 50 and 50 (298/300, 99.3%; 1, none, 1). In session 10, 50 of 50 in every style (300/300;
+/// none, none, none).
 const FRESH2_DEV_FLOORS: [(&str, f64); 6] = [
     ("asr_slip", 99.5),
     ("field_note", 99.5),
-    ("hard", 97.5),
-    ("not_a_correction", 97.5),
+    ("hard", 99.5),
+    ("not_a_correction", 99.5),
     ("speech", 99.5),
     ("typed_tidy", 99.5),
 ];
-const FRESH2_DEV_MAX_SPURIOUS: usize = 1;
+const FRESH2_DEV_MAX_SPURIOUS: usize = 0;
 
 #[test]
 fn fresh2_development_styles_recall_per_style() {
@@ -352,10 +354,9 @@ fn fresh2_development_styles_recall_per_style() {
         result.unasked_relabels, 0,
         "a relabel nobody asked for on the second fresh development file"
     );
-    assert!(
-        result.spurious_constraints <= FRESH2_DEV_MAX_SPURIOUS,
-        "{} constraints from non-corrections on the second fresh development file",
-        result.spurious_constraints
+    assert_eq!(
+        result.spurious_constraints, FRESH2_DEV_MAX_SPURIOUS,
+        "constraints from non-corrections on the second fresh development file"
     );
 }
 
@@ -363,8 +364,9 @@ fn fresh2_development_styles_recall_per_style() {
 /// (88.0%; no constraint from 25 non-corrections, no unasked relabel, 6 lines misread), as did the parser of
 /// the session's start; after the changes the development file prompted, 135/150 (90.0%; none, none, 4); in
 /// session 8, after those the third fresh development file prompted, 138/150 (92.0%; none, none, 2); in session
-/// 9, after the constructions widened then, 140/150 (93.3%; none, none, 2).
-const FRESH2_HELDOUT_FLOOR: f64 = 93.2;
+/// 9, after the constructions widened then, 140/150 (93.3%; none, none, 2); in session 10, 142/150 (94.7%;
+/// none, none, 2).
+const FRESH2_HELDOUT_FLOOR: f64 = 94.6;
 
 /// The second fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -397,11 +399,12 @@ fn fresh2_heldout_styles_figures_are_reported() {
 /// helper who never saw the parser; tests/language/styles_fresh3.md says how). When the file arrived
 /// (2026-12-05, session 8), before any change it prompted, the parser read 44, 44, 40, 44, 49 and 48 of 50
 /// lines (269/300, 89.7%; no constraint from 50 non-corrections, no unasked relabel, 9 lines misread). After
-/// the changes the file prompted: 49, 50, 49, 49, 49 and 50 (296/300, 98.7%; none, none, 1).
+/// the changes the file prompted: 49, 50, 49, 49, 49 and 50 (296/300, 98.7%; none, none, 1). In session 10:
+/// 50, 50, 50, 49, 49 and 50 (298/300, 99.3%; none, none, 1).
 const FRESH3_DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 97.5),
+    ("asr_slip", 99.5),
     ("field_note", 99.5),
-    ("hard", 97.5),
+    ("hard", 99.5),
     ("not_a_correction", 97.5),
     ("speech", 97.5),
     ("typed_tidy", 99.5),
@@ -481,8 +484,9 @@ fn fresh3_heldout_styles_figures_are_reported() {
 /// unasked relabel, 4 lines misread) and held-out 139/150 (92.7%; 2 constraints from 25 non-corrections, no
 /// unasked relabel, 5 lines misread). After session 9's parser changes (made without sight of either file):
 /// dev 274/300 (91.3%), held-out 139/150. From session 10 the development half is tuned on and prints its
-/// failing lines, like the other development files; the held-out half stays summary-only.
-const FRESH4_DEV_FLOOR: f64 = 91.2;
+/// failing lines, like the other development files; the held-out half stays summary-only. After session 10's
+/// changes: dev 298/300 (99.3%; none, none, none), held-out 139/150 (92.7%; 2, none, 5).
+const FRESH4_DEV_FLOOR: f64 = 99.2;
 const FRESH4_HELDOUT_FLOOR: f64 = 92.6;
 /// The goal is zero; the held-out half had 2 when it arrived.
 const FRESH4_HELDOUT_MAX_SPURIOUS: usize = 2;
@@ -552,8 +556,13 @@ fn fresh4_heldout_styles_figures_are_reported() {
 /// exist"), "it's" restarting before a number ("is um it's three"), a finished move or placing ("has climbed
 /// onto", "has been left by"), no spelling guess that adds a verb's ending, "+" between two things, the
 /// word for colour in a note, a note's count followed by a place, words the recogniser split ("be low", "cup
-/// board") or clipped ("sittin"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
-/// must read.
+/// board") or clipped ("sittin"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread), and
+/// of those widened in session 10 (finished and past moves, what a thing or person is doing where it is,
+/// age and liking words, a spaced dash as a colon, a compound after the verb that is no relabel ("that's dog
+/// food"), "not X but Y is", a place by a word nobody knows, "not cat" pointed, "you've got a X there but it's
+/// a Y", "so is" after a colour, a person or pet on a thing, a room said again, "actually six", "holds" and
+/// "contains", side questions answered by a side, a room repairing a thing, a pointed apposition, "both"
+/// before a place, and household members and visitors who are never a relabel). Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
     let grammar = grammar();
