@@ -329,6 +329,8 @@ marked -> called
 tagged -> called
 named -> called
 call -> called
+# "Call that a mug": an order to relabel.
+call = label when after <start>
 missed -> missed
 forgot -> missed
 missing -> missed
@@ -349,6 +351,8 @@ have -> have
 had -> have
 has got -> have
 have got -> have
+have only got -> have
+has only got -> have
 # "The shelf holds five books": things held are on furniture and in anything else, unless a place is said.
 contains -> holds
 contain -> holds
@@ -359,6 +363,9 @@ are holding -> holds
 see -> see
 can see -> see
 i count -> see
+# "I make it four chairs": the operator's own count.
+i make it -> see
+i make that -> see
 i can count -> see
 i spot -> see
 i notice -> see
@@ -489,6 +496,7 @@ alongside -> relation next_to
 close by -> relation next_to
 around -> relation next_to
 at the side of -> relation next_to
+adjacent to -> relation next_to
 to the side of -> relation next_to
 by the side of -> relation next_to
 supported by -> relation on
@@ -740,6 +748,15 @@ much -> skip
 for -> skip
 today -> skip
 right now -> skip
+# How far, before a place: "a bit to the left of", "slightly left of".
+slightly -> skip
+a bit -> skip
+a little -> skip
+a little bit -> skip
+a tad -> skip
+just about -> skip
+# "The mug is found on the table".
+found -> skip
 at the moment -> skip
 at the minute -> skip
 at present -> skip
@@ -803,6 +820,11 @@ up there -> skip
 down there -> skip
 # "There's nobody here, not even the dog": after a pause, "not even" denies the thing as "no" does.
 not even the = no when after <start>|,|and|but
+# "There's no such thing as a lamp here"; "the lamp isn't real" (not there).
+no such thing as a = no
+no such thing as an = no
+no such thing as = no
+real = there when after not|never
 not even a = no when after <start>|,|and|but
 not even one = no when after <start>|,|and|but
 even -> skip
@@ -841,6 +863,8 @@ in there -> skip
 right here -> skip
 over here -> skip
 in total -> skip
+total -> skip
+all told -> skip
 altogether -> skip
 part of -> skip
 parts of -> skip

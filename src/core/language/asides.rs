@@ -5,7 +5,9 @@
 //! "in this one": dropped, never a landmark), "with" modifiers ("the mug w/ the box around it": dropped up to
 //! the next verb or pause), intensifiers directly before a relation ("right next to", "just left of") and
 //! the name of a household member or pet after the word for them ("my grandad Osric", "our puppy, Noodle,"),
-//! and a note's "sofa w/ five cushions" (a piece of furniture with counted things: they are on it).
+//! a note's "sofa w/ five cushions" (a piece of furniture with counted things: they are on it), what the robot
+//! shows of a thing ("the lamp you see"), "not X but Y is" put in the order "Y, not X, is", and a pointed
+//! thing said again before the verb.
 //! Must not: decide what a clause means; it only re-tags or drops items, recording what it dropped.
 
 use super::constraint::{Relation, Span};
@@ -327,6 +329,33 @@ pub fn drop_names(
         index += 1;
     }
     kept
+}
+
+/// "The lamp you see isn't there", "the mug you've got there is a bowl": "you" and a verb of seeing or having
+/// right after a class word and before the verb are what the robot shows of the thing, a relative clause
+/// that names nothing more; they are dropped and reported.
+pub fn drop_shown_clause(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Item> {
+    let mut items = items;
+    let mut index = 1;
+    while index + 2 < items.len() {
+        let after_thing = matches!(tag_of(items.get(index - 1)), Some(Tag::Class { .. }));
+        let shown = tag_of(items.get(index)) == Some(Tag::You)
+            && matches!(tag_of(items.get(index + 1)), Some(Tag::See | Tag::Have));
+        let mut end = index + 2;
+        if tag_of(items.get(end)) == Some(Tag::There) {
+            end += 1;
+        }
+        let verb_follows = matches!(tag_of(items.get(end)), Some(Tag::Be | Tag::Negation));
+        if after_thing && shown && verb_follows {
+            ignored.push((
+                items[index].span.cover(items[end - 1].span),
+                IgnoredReason::FunctionWord,
+            ));
+            items.drain(index..end);
+        }
+        index += 1;
+    }
+    items
 }
 
 /// "Not the cat but the dog is on the sofa": a denied thing opening the sentence, then "but" and the thing

@@ -15,7 +15,9 @@ use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
 use super::answers::{asked, complete, Asked};
-use super::asides::{contrast_subjects, drop_asides, drop_names, resolve_pointing, with_contents};
+use super::asides::{
+    contrast_subjects, drop_asides, drop_names, drop_shown_clause, resolve_pointing, with_contents,
+};
 use super::chunks::{attach, chunk, repair, ChunkKind};
 use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Referent, Span};
 use super::error::{GrammarError, LanguageError};
@@ -360,7 +362,7 @@ impl Grammar {
                     .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Living)
             };
             let items = drop_names(items, living, &mut ignored_raw);
-            let items = contrast_subjects(items);
+            let items = contrast_subjects(drop_shown_clause(items, &mut ignored_raw));
             let mut chunks = repair(chunk(&items), &mut ignored_raw);
             if let Some(open) = &open {
                 chunks = complete(open, chunks);
@@ -708,8 +710,9 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     let first = first?;
     match first.tag {
         // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
-        // "I'm off to bed" ("i" is skipped) is no question.
-        ItemTag::Lexicon(Tag::Be) if first.text == "am" => {}
+        // "I'm off to bed" ("i" is skipped) is no question, nor is a verb of several words ("looks like the
+        // kitchen to me").
+        ItemTag::Lexicon(Tag::Be) if first.text == "am" || first.text.contains(' ') => {}
         ItemTag::Lexicon(Tag::Question(_) | Tag::Be) => return Some(UtteranceKind::Question),
         ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
         _ => {}

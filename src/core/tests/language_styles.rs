@@ -562,7 +562,10 @@ fn fresh4_heldout_styles_figures_are_reported() {
 /// food"), "not X but Y is", a place by a word nobody knows, "not cat" pointed, "you've got a X there but it's
 /// a Y", "so is" after a colour, a person or pet on a thing, a room said again, "actually six", "holds" and
 /// "contains", side questions answered by a side, a room repairing a thing, a pointed apposition, "both"
-/// before a place, and household members and visitors who are never a relabel). Every line must read.
+/// before a place, household members and visitors who are never a relabel, "I make it", what the robot has
+/// ("you've only got three"), "no such thing as", "isn't real", "the lamp you see", "we don't have", a
+/// possessive side ("on the lamp's left"), "a bit" and "slightly" before a place, "looks like" opening a
+/// statement and "call that a"). Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
     let grammar = grammar();
