@@ -255,6 +255,15 @@ appear -> be
 shows up -> be
 show up -> be
 should be -> be
+# "The laptop should sit on the desk", "the mug should go on the shelf".
+should sit -> be
+should go -> be
+should stand -> be
+should lie -> be
+should rest -> be
+should hang -> be
+should live -> be
+belong -> be
 
 there -> there
 present -> there
@@ -352,6 +361,14 @@ had -> have
 has got -> have
 have got -> have
 have only got -> have
+# "You've put the laptop on the floor", "you're showing two mugs": what the robot shows (never a fact).
+have put -> have
+has put -> have
+have placed -> have
+are showing -> have
+you put = you have
+you placed = you have
+you show = you have
 has only got -> have
 # "The shelf holds five books": things held are on furniture and in anything else, unless a place is said.
 contains -> holds
@@ -869,6 +886,17 @@ altogether -> skip
 part of -> skip
 parts of -> skip
 pieces of -> skip
+# "You've broken the sofa into pieces": how the robot split a thing is no place of it.
+into pieces -> skip
+in pieces -> skip
+to pieces -> skip
+into bits -> skip
+in bits -> skip
+to bits -> skip
+into two -> skip
+in two -> skip
+in half -> skip
+into several -> skip
 bits of -> skip
 off -> skip
 up -> skip

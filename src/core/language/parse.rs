@@ -398,8 +398,11 @@ impl Grammar {
                             ignored_raw.push((span, IgnoredReason::NoRuleMatched));
                         }
                         builder.apply(&found, &chunks, position);
+                        // A noun phrase of words that state nothing ("you've put the laptop on the floor")
+                        // is what a later "it" means, as one no rule used is.
+                        let used = found.rule.action != Action::Unread;
                         for chunk in &chunks[position..position + found.length] {
-                            builder.mention(chunk, true);
+                            builder.mention(chunk, used);
                         }
                         position += found.length;
                     }
