@@ -886,6 +886,10 @@ altogether -> skip
 part of -> skip
 parts of -> skip
 pieces of -> skip
+# "On the shelf, top one": which of several, not a part of the picture.
+top one = ,
+bottom one = ,
+middle one = ,
 # "You've broken the sofa into pieces": how the robot split a thing is no place of it.
 into pieces -> skip
 in pieces -> skip
