@@ -9,7 +9,9 @@
 # Numbers heard as other words.
 won = one
 fore = four
-ate = eight
+# "ate" is "eight" only where a number goes ("the dog ate my sock" counts nothing).
+ate = eight when before <plural>
+ate = eight when after is|are|was|were|least|most|than|only|just|exactly|count|see|<class>|: when before <end>
 for = four when before <plural>
 for = four when after is|be|was when before <end>
 to = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>

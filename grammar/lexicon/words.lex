@@ -744,6 +744,36 @@ holiday -> greeting
 tomorrow -> greeting
 yesterday -> greeting
 tonight -> greeting
+# A wish, a plan, a habit or another time: the sentence is talk about the home, not what is in view now, and
+# none of it is read ("I wish we had a bigger fridge", "we might get a dog next year", "the cat always sleeps
+# on my bed", "the cat loves sitting in boxes").
+i wish -> talk
+we wish -> talk
+wish we had -> talk
+used to -> talk
+next year -> talk
+last year -> talk
+next week -> talk
+last week -> talk
+next month -> talk
+last month -> talk
+always -> talk
+usually -> talk
+normally -> talk
+every day -> talk
+every night -> talk
+every morning -> talk
+loves -> talk
+likes -> talk
+hates -> talk
+should get -> talk
+might get -> talk
+could get -> talk
+going to get -> talk
+want to get -> talk
+need to get -> talk
+thinking of getting -> talk
+planning to -> talk
 getting better -> greeting
 better at this -> greeting
 

@@ -470,7 +470,7 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Repair => ChunkKind::Repair,
                 // "Right of the desk is where the mug is": "where" inside a statement joins a cleft.
                 Tag::Question(Asks::Place | Asks::Side) => ChunkKind::Where,
-                Tag::Request | Tag::Question(_) | Tag::Thanks | Tag::Greeting => {
+                Tag::Request | Tag::Question(_) | Tag::Thanks | Tag::Greeting | Tag::Talk => {
                     ChunkKind::Separator
                 }
                 _ => ChunkKind::Other,

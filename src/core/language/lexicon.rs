@@ -128,6 +128,9 @@ pub enum Tag {
     Question(Asks),
     Thanks,
     Greeting,
+    /// "I wish", "used to", "always", "next year": the sentence is about a wish, a plan, a habit or another
+    /// time, not what is in view now; it is talk, and none of it is read.
+    Talk,
 }
 
 impl Tag {

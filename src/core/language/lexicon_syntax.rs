@@ -312,6 +312,7 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 "request" => Tag::Request,
                 "thanks" => Tag::Thanks,
                 "greeting" => Tag::Greeting,
+                "talk" => Tag::Talk,
                 other => return Err(format!("unknown kind '{other}'")),
             }
         }

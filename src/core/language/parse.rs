@@ -320,7 +320,11 @@ impl Grammar {
             }
             any_words = true;
             if let Some(kind) = classify(&sentence.items, sentence.question_mark) {
-                if kind != UtteranceKind::Thanks && kind != UtteranceKind::ChitChat {
+                let talk = sentence
+                    .items
+                    .iter()
+                    .any(|item| item.tag == ItemTag::Lexicon(Tag::Talk));
+                if talk || (kind != UtteranceKind::Thanks && kind != UtteranceKind::ChitChat) {
                     if let Some(span) = sentence.span {
                         ignored_raw.push((span, IgnoredReason::NotACorrection));
                     }
@@ -729,7 +733,9 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     let request_after_pause = items
         .windows(2)
         .any(|pair| pair[0].tag == ItemTag::Pause && pair[1].tag == ItemTag::Lexicon(Tag::Request));
-    if has(Tag::Thanks) {
+    if has(Tag::Talk) {
+        Some(UtteranceKind::ChitChat)
+    } else if has(Tag::Thanks) {
         Some(UtteranceKind::Thanks)
     } else if first.tag == ItemTag::Lexicon(Tag::Greeting) && request_after_pause {
         Some(UtteranceKind::Request)

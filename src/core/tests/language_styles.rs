@@ -566,7 +566,8 @@ fn fresh4_heldout_styles_figures_are_reported() {
 /// ("you've only got three"), "no such thing as", "isn't real", "the lamp you see", "we don't have", a
 /// possessive side ("on the lamp's left"), "a bit" and "slightly" before a place, "looks like" opening a
 /// statement and "call that a", how the robot split a thing ("into pieces"), "should sit", and what the
-/// robot has placed ("you've put the laptop on the floor but it's on the desk")). Every line must read.
+/// robot has placed ("you've put the laptop on the floor but it's on the desk"), "top one", "ate" only where a
+/// number goes, wishes, plans and habits as talk, and what a person or pet owns). Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
     let grammar = grammar();

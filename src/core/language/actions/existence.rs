@@ -24,6 +24,14 @@ impl Builder<'_> {
                 landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
             })
         };
+        // "My sister has three cats": what a person or a pet owns says nothing of what is in view.
+        let living = owner
+            .and_then(|owner| owner.class)
+            .and_then(|class| self.taxonomy.class(class))
+            .is_some_and(|info| info.group == ClassGroup::Living);
+        if living {
+            return;
+        }
         let mut np = np.clone();
         match owner {
             Some(owner) => {
