@@ -567,7 +567,8 @@ fn fresh4_heldout_styles_figures_are_reported() {
 /// possessive side ("on the lamp's left"), "a bit" and "slightly" before a place, "looks like" opening a
 /// statement and "call that a", how the robot split a thing ("into pieces"), "should sit", and what the
 /// robot has placed ("you've put the laptop on the floor but it's on the desk"), "top one", "ate" only where a
-/// number goes, wishes, plans and habits as talk, and what a person or pet owns). Every line must read.
+/// number goes, wishes, plans and habits as talk, what a person or pet owns, and a thing or room said to be
+/// something nobody knows: "the light in the hallway is broken" places nothing). Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
     let grammar = grammar();
