@@ -14,11 +14,11 @@ ate = eight when before <plural>
 ate = eight when after is|are|was|were|least|most|than|only|just|exactly|count|see|<class>|: when before <end>
 for = four when before <plural>
 for = four when after is|be|was when before <end>
-to = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
+to = two when after is|was|are|were|least|most|than|only|just|exactly|count|see when before <plural>
 # A note opening with a count heard as "to": "to bottles on counter".
 to = two when after <start>|,|;|and when before <plural>
 too = two when after <start>|,|;|and when before <plural>
-too = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
+too = two when after is|was|are|were|least|most|than|only|just|exactly|count|see when before <plural>
 too = two when after is|be|was when before <end>
 to = two when after is|be|was when before <end>
 tree = three when before <plural>
@@ -58,6 +58,11 @@ their's = there is
 they're is = there is
 they're are = there are
 weir = we are
+# "There's a lamp over they're".
+over they're = over there
+over their = over there
+in they're = in there
+in their = in there when before <end>
 
 # Relations and sides.
 write = right

@@ -789,6 +789,10 @@ of -> skip
 very -> skip
 quite -> skip
 robot -> skip
+# "The robot's in the kitchen": the robot is "you".
+the robot is = you are
+the robot's = you are
+robot's = you are
 buddy -> skip
 again -> skip
 much -> skip
@@ -1248,6 +1252,8 @@ look behind -> request
 look around -> request
 look for -> request
 look again -> request
+# "Oh look, a lamp": "look" alone only draws attention.
+look -> filler
 have a look -> request
 zoom -> request
 zoom in -> request

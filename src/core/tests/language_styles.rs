@@ -568,7 +568,8 @@ fn fresh4_heldout_styles_figures_are_reported() {
 /// statement and "call that a", how the robot split a thing ("into pieces"), "should sit", and what the
 /// robot has placed ("you've put the laptop on the floor but it's on the desk"), "top one", "ate" only where a
 /// number goes, wishes, plans and habits as talk, what a person or pet owns, and a thing or room said to be
-/// something nobody knows: "the light in the hallway is broken" places nothing). Every line must read.
+/// something nobody knows: "the light in the hallway is broken" places nothing, "over they're", "look" alone,
+/// "is too mugs" and "the robot's in"). Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
     let grammar = grammar();
