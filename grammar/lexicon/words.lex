@@ -255,6 +255,14 @@ appear -> be
 shows up -> be
 show up -> be
 should be -> be
+# "That should be labelled mug".
+should be labelled -> be
+should be labeled -> be
+should be called -> be
+should be marked -> be
+should be marked as -> be
+should be labelled as -> be
+should be labeled as -> be
 # "The laptop should sit on the desk", "the mug should go on the shelf".
 should sit -> be
 should go -> be
