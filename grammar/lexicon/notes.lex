@@ -141,6 +141,8 @@ ofc = office
 
 # Quantities.
 max = at most
+# "chairs x 4": a note's multiplier written apart from its number.
+x = : when before <number>
 min = at least
 w / = with
 

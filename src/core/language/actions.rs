@@ -385,6 +385,21 @@ impl<'t> Builder<'t> {
                 let target = first_phrase("target");
                 let from = first_phrase("from");
                 let to = first_phrase("to");
+                // "Four of them are chairs", "I make it four chairs": a number of things is a count, never
+                // the identity of one thing.
+                let counted = |phrase: &Option<NounPhrase>| {
+                    phrase.as_ref().is_some_and(|phrase| {
+                        matches!(
+                            phrase.quantity,
+                            Some(
+                                Quantity::Exactly(2..) | Quantity::AtLeast(_) | Quantity::AtMost(_)
+                            )
+                        )
+                    })
+                };
+                if counted(&target) || counted(&to) {
+                    return;
+                }
                 let asked = self.asked_about_unnamed && !self.has_focus;
                 if asked
                     && target.as_ref().is_some_and(|target| {

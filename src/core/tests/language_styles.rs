@@ -569,7 +569,8 @@ fn fresh4_heldout_styles_figures_are_reported() {
 /// robot has placed ("you've put the laptop on the floor but it's on the desk"), "top one", "ate" only where a
 /// number goes, wishes, plans and habits as talk, what a person or pet owns, and a thing or room said to be
 /// something nobody knows: "the light in the hallway is broken" places nothing, "over they're", "look" alone,
-/// "is too mugs", "the robot's in", "should be labelled", "relabel as" pointed and "that one there is a").
+/// "is too mugs", "the robot's in", "should be labelled", "relabel as" pointed, "that one there is a", "x 3"
+/// apart, "mug count 2", and a number of things never a relabel).
 /// Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
