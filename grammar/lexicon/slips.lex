@@ -79,6 +79,10 @@ on top off = on top of
 on top = on top of when before the
 dose = does
 next two = next to
+# "Next the sofa" (the "to" swallowed), "nest to", and "next door to" said of things.
+next the = next to the
+nest to = next to
+next door to = next to
 next too = next to
 too the = to the when before left|right|write|rite
 two the = to the when before left|right|write|rite

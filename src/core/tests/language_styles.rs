@@ -570,7 +570,7 @@ fn fresh4_heldout_styles_figures_are_reported() {
 /// number goes, wishes, plans and habits as talk, what a person or pet owns, and a thing or room said to be
 /// something nobody knows: "the light in the hallway is broken" places nothing, "over they're", "look" alone,
 /// "is too mugs", "the robot's in", "should be labelled", "relabel as" pointed, "that one there is a", "x 3"
-/// apart, "mug count 2", and a number of things never a relabel).
+/// apart, "mug count 2", a number of things never a relabel, and "next the", "nest to", "next door to").
 /// Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
