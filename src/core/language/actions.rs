@@ -20,6 +20,8 @@ use super::rules::{Action, Match};
 mod existence;
 mod landmarks;
 
+use existence::several;
+
 /// Confidence of a constraint built only from known words.
 pub const FULL_CONFIDENCE: f32 = 1.0;
 /// Confidence when a word in the constraint was read as a misspelling.
@@ -387,17 +389,7 @@ impl<'t> Builder<'t> {
                 let to = first_phrase("to");
                 // "Four of them are chairs", "I make it four chairs": a number of things is a count, never
                 // the identity of one thing.
-                let counted = |phrase: &Option<NounPhrase>| {
-                    phrase.as_ref().is_some_and(|phrase| {
-                        matches!(
-                            phrase.quantity,
-                            Some(
-                                Quantity::Exactly(2..) | Quantity::AtLeast(_) | Quantity::AtMost(_)
-                            )
-                        )
-                    })
-                };
-                if counted(&target) || counted(&to) {
+                if several(target.as_ref()) || several(to.as_ref()) {
                     return;
                 }
                 let asked = self.asked_about_unnamed && !self.has_focus;
@@ -828,19 +820,7 @@ impl<'t> Builder<'t> {
                 }
                 // "The fridge is white and so is the stove": after colours or sizes, the same of the new
                 // subject (the trailing run of attributes stated of one thing).
-                let mut said: Vec<Attribute> = Vec::new();
-                let mut of: Option<&Referent> = None;
-                for constraint in self.constraints.iter().rev() {
-                    match &constraint.kind {
-                        ConstraintKind::Attribute { target, attribute }
-                            if of.is_none_or(|of| of == target) =>
-                        {
-                            said.insert(0, *attribute);
-                            of = Some(target);
-                        }
-                        _ => break,
-                    }
-                }
+                let said = self.trailing_attributes();
                 if !said.is_empty() {
                     if let Some(subject) = first_phrase("subject") {
                         self.count_of_subject(&subject, span, misspelled);

@@ -1,8 +1,9 @@
 //! Existence clauses and what hangs on them: "there is", "has", counts stated apart from their noun, the
 //! relations and region attached to a thing said to exist, and the relations of a pointed thing in a note.
 //!
-//! Owns: `Builder`'s existence, "has", count and attached-relation helpers and the quantity-to-constraint
-//! table (`count_kind`).
+//! Owns: `Builder`'s existence, "has" and "holds", count and attached-relation helpers, the attributes said
+//! last ("and so is the stove"), whether a phrase names several things (`several`: never a relabel) and the
+//! quantity-to-constraint table (`count_kind`).
 //! Must not: match rules or bind deictic words to the conversation; `actions` calls these from its rules.
 
 use super::*;
@@ -65,6 +66,25 @@ impl Builder<'_> {
             }
         }
         self.exist(&np, negated, span, misspelled);
+    }
+
+    /// The attributes the last constraints stated of one thing, in order ("the fridge is white and so is the
+    /// stove": white).
+    pub(super) fn trailing_attributes(&self) -> Vec<Attribute> {
+        let mut said: Vec<Attribute> = Vec::new();
+        let mut of: Option<&Referent> = None;
+        for constraint in self.constraints.iter().rev() {
+            match &constraint.kind {
+                ConstraintKind::Attribute { target, attribute }
+                    if of.is_none_or(|of| of == target) =>
+                {
+                    said.insert(0, *attribute);
+                    of = Some(target);
+                }
+                _ => break,
+            }
+        }
+        said
     }
 
     /// The last relation's subject as a noun phrase, when it names a class and nothing pointed at.
@@ -398,5 +418,16 @@ pub(super) fn count_kind(
             class,
             count: Count::AtMost(n),
         },
+    })
+}
+
+/// Whether a noun phrase names a number of things ("four chairs", "at least two"): a count, never the identity
+/// of one thing.
+pub(super) fn several(phrase: Option<&NounPhrase>) -> bool {
+    phrase.is_some_and(|phrase| {
+        matches!(
+            phrase.quantity,
+            Some(Quantity::Exactly(2..) | Quantity::AtLeast(_) | Quantity::AtMost(_))
+        )
     })
 }
