@@ -18,7 +18,8 @@
 =< = at most
 > = more than
 < = fewer than
-- = ,
+# A spaced dash is a note's colon: "rug - centre", "person - corner" read as after ":".
+- = :
 ~ = about
 
 # Whether the robot's label was a false alarm or a miss; "+" opening a note adds a thing.
@@ -140,6 +141,8 @@ ofc = office
 
 # Quantities.
 max = at most
+# "chairs x 4": a note's multiplier written apart from its number.
+x = : when before <number>
 min = at least
 w / = with
 

@@ -9,14 +9,16 @@
 # Numbers heard as other words.
 won = one
 fore = four
-ate = eight
+# "ate" is "eight" only where a number goes ("the dog ate my sock" counts nothing).
+ate = eight when before <plural>
+ate = eight when after is|are|was|were|least|most|than|only|just|exactly|count|see|<class>|: when before <end>
 for = four when before <plural>
 for = four when after is|be|was when before <end>
-to = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
+to = two when after is|was|are|were|least|most|than|only|just|exactly|count|see when before <plural>
 # A note opening with a count heard as "to": "to bottles on counter".
 to = two when after <start>|,|;|and when before <plural>
 too = two when after <start>|,|;|and when before <plural>
-too = two when after are|were|least|most|than|only|just|exactly|count|see when before <plural>
+too = two when after is|was|are|were|least|most|than|only|just|exactly|count|see when before <plural>
 too = two when after is|be|was when before <end>
 to = two when after is|be|was when before <end>
 tree = three when before <plural>
@@ -56,6 +58,11 @@ their's = there is
 they're is = there is
 they're are = there are
 weir = we are
+# "There's a lamp over they're".
+over they're = over there
+over their = over there
+in they're = in there
+in their = in there when before <end>
 
 # Relations and sides.
 write = right
@@ -72,10 +79,18 @@ on top off = on top of
 on top = on top of when before the
 dose = does
 next two = next to
+# "Next the sofa" (the "to" swallowed), "nest to", and "next door to" said of things.
+next the = next to the
+nest to = next to
+next door to = next to
 next too = next to
 too the = to the when before left|right|write|rite
 two the = to the when before left|right|write|rite
 be neath = beneath
+# "in" written as the word for a pub; "asleep", "awake" split after a verb ("the cat is a sleep on the sofa").
+inn = in
+a sleep = asleep when after is|are|was|were|fast|sound
+a wake = awake when after is|are|was|were|wide
 lefthand = left hand
 righthand = right hand
 any where = anywhere

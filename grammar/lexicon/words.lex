@@ -23,6 +23,11 @@ only a = there is a when after <start>
 only an = there is an when after <start>
 just a = there is a when after <start>
 just an = there is an when after <start>
+# "It's just a cushion", "that's only a bag": after the verb, "just" and "only" say nothing of the number.
+just a = a when after is|are|was|were
+just an = an when after is|are|was|were
+only a = a when after is|are|was|were
+only an = an when after is|are|was|were
 # "Rather than the cabinet", "instead of the shelf": the alternative is denied.
 rather than = not
 instead of = not
@@ -54,6 +59,85 @@ what you've labeled as = this is when after <start>
 what you've marked as = this is when after <start>
 what you've called = this is when after <start>
 what you've got as = this is when after <start>
+# ... with where it is shown between ("what you've marked here as a dog is actually a rug").
+what you have labelled here as = this is when after <start>
+what you have labelled there as = this is when after <start>
+what you have labelled over there as = this is when after <start>
+what you have labeled here as = this is when after <start>
+what you have labeled there as = this is when after <start>
+what you have labeled over there as = this is when after <start>
+what you have marked here as = this is when after <start>
+what you have marked there as = this is when after <start>
+what you have marked over there as = this is when after <start>
+what you have got here as = this is when after <start>
+what you have got there as = this is when after <start>
+what you have got over there as = this is when after <start>
+what you have called here as = this is when after <start>
+what you have called there as = this is when after <start>
+what you have called over there as = this is when after <start>
+what you have tagged here as = this is when after <start>
+what you have tagged there as = this is when after <start>
+what you have tagged over there as = this is when after <start>
+what you have shown here as = this is when after <start>
+what you have shown there as = this is when after <start>
+what you have shown over there as = this is when after <start>
+what you have detected here as = this is when after <start>
+what you have detected there as = this is when after <start>
+what you have detected over there as = this is when after <start>
+what you have tagged as = this is when after <start>
+what you have shown as = this is when after <start>
+what you have detected as = this is when after <start>
+what you've labelled here as = this is when after <start>
+what you've labelled there as = this is when after <start>
+what you've labelled over there as = this is when after <start>
+what you've labeled here as = this is when after <start>
+what you've labeled there as = this is when after <start>
+what you've labeled over there as = this is when after <start>
+what you've marked here as = this is when after <start>
+what you've marked there as = this is when after <start>
+what you've marked over there as = this is when after <start>
+what you've got here as = this is when after <start>
+what you've got there as = this is when after <start>
+what you've got over there as = this is when after <start>
+what you've called here as = this is when after <start>
+what you've called there as = this is when after <start>
+what you've called over there as = this is when after <start>
+what you've tagged here as = this is when after <start>
+what you've tagged there as = this is when after <start>
+what you've tagged over there as = this is when after <start>
+what you've shown here as = this is when after <start>
+what you've shown there as = this is when after <start>
+what you've shown over there as = this is when after <start>
+what you've detected here as = this is when after <start>
+what you've detected there as = this is when after <start>
+what you've detected over there as = this is when after <start>
+what you've tagged as = this is when after <start>
+what you've shown as = this is when after <start>
+what you've detected as = this is when after <start>
+what you labelled here as = this is when after <start>
+what you labelled there as = this is when after <start>
+what you labelled over there as = this is when after <start>
+what you labeled here as = this is when after <start>
+what you labeled there as = this is when after <start>
+what you labeled over there as = this is when after <start>
+what you marked here as = this is when after <start>
+what you marked there as = this is when after <start>
+what you marked over there as = this is when after <start>
+what you called here as = this is when after <start>
+what you called there as = this is when after <start>
+what you called over there as = this is when after <start>
+what you tagged here as = this is when after <start>
+what you tagged there as = this is when after <start>
+what you tagged over there as = this is when after <start>
+what you shown here as = this is when after <start>
+what you shown there as = this is when after <start>
+what you shown over there as = this is when after <start>
+what you detected here as = this is when after <start>
+what you detected there as = this is when after <start>
+what you detected over there as = this is when after <start>
+what you tagged as = this is when after <start>
+what you shown as = this is when after <start>
+what you detected as = this is when after <start>
 is there = is present when before <end>|.|!|,|;
 it's there = it is present when before <end>|.|!|,|;
 its there = it is present when before <end>|.|!|,|;
@@ -171,6 +255,23 @@ appear -> be
 shows up -> be
 show up -> be
 should be -> be
+# "That should be labelled mug".
+should be labelled -> be
+should be labeled -> be
+should be called -> be
+should be marked -> be
+should be marked as -> be
+should be labelled as -> be
+should be labeled as -> be
+# "The laptop should sit on the desk", "the mug should go on the shelf".
+should sit -> be
+should go -> be
+should stand -> be
+should lie -> be
+should rest -> be
+should hang -> be
+should live -> be
+belong -> be
 
 there -> there
 present -> there
@@ -245,6 +346,8 @@ marked -> called
 tagged -> called
 named -> called
 call -> called
+# "Call that a mug": an order to relabel.
+call = label when after <start>
 missed -> missed
 forgot -> missed
 missing -> missed
@@ -264,11 +367,30 @@ has -> have
 have -> have
 had -> have
 has got -> have
-contains -> have
-holds -> have
+have got -> have
+have only got -> have
+# "You've put the laptop on the floor", "you're showing two mugs": what the robot shows (never a fact).
+have put -> have
+has put -> have
+have placed -> have
+are showing -> have
+you put = you have
+you placed = you have
+you show = you have
+has only got -> have
+# "The shelf holds five books": things held are on furniture and in anything else, unless a place is said.
+contains -> holds
+contain -> holds
+holds -> holds
+hold -> holds
+is holding -> holds
+are holding -> holds
 see -> see
 can see -> see
 i count -> see
+# "I make it four chairs": the operator's own count.
+i make it -> see
+i make that -> see
 i can count -> see
 i spot -> see
 i notice -> see
@@ -319,6 +441,11 @@ i am selecting -> pointing
 i highlighted -> pointing
 i am highlighting -> pointing
 i am touching -> pointing
+# "That one, the one my hand is on, is a mug".
+my hand is on -> pointing
+my finger is on -> pointing
+my hand is over -> pointing
+my finger is over -> pointing
 i am indicating -> pointing
 under my cursor -> pointing
 under the cursor -> pointing
@@ -394,6 +521,7 @@ alongside -> relation next_to
 close by -> relation next_to
 around -> relation next_to
 at the side of -> relation next_to
+adjacent to -> relation next_to
 to the side of -> relation next_to
 by the side of -> relation next_to
 supported by -> relation on
@@ -497,6 +625,8 @@ no wait -> repair
 wait = wait here when after <start> when before <end>
 # "They are both on the bed": "both" after the verb adds nothing.
 both = all when after are|were|is
+# "There are exactly two lamps, both next to the bed": after a pause and before a place, the things counted.
+both = all when after <start> when before on|under|underneath|beneath|above|below|next|beside|by|near|behind|in|inside|left|right|against|at|opposite
 # "I count two mugs, and both are on the desk": "both" opening a clause is the things counted before, as
 # "some of them" ("none of them") is the class named last.
 both = some of them when after <start>|,|and|but when before are|were|sit|lie|stand
@@ -544,6 +674,8 @@ alright -> greeting
 anyway -> filler
 basically -> filler
 actually -> filler
+# "Five books on the desk actually six": before a bare number after a thing, "actually" repairs the count.
+actually = sorry when after <class> when before <number>
 really -> filler
 definitely -> filler
 certainly -> filler
@@ -620,6 +752,36 @@ holiday -> greeting
 tomorrow -> greeting
 yesterday -> greeting
 tonight -> greeting
+# A wish, a plan, a habit or another time: the sentence is talk about the home, not what is in view now, and
+# none of it is read ("I wish we had a bigger fridge", "we might get a dog next year", "the cat always sleeps
+# on my bed", "the cat loves sitting in boxes").
+i wish -> talk
+we wish -> talk
+wish we had -> talk
+used to -> talk
+next year -> talk
+last year -> talk
+next week -> talk
+last week -> talk
+next month -> talk
+last month -> talk
+always -> talk
+usually -> talk
+normally -> talk
+every day -> talk
+every night -> talk
+every morning -> talk
+loves -> talk
+likes -> talk
+hates -> talk
+should get -> talk
+might get -> talk
+could get -> talk
+going to get -> talk
+want to get -> talk
+need to get -> talk
+thinking of getting -> talk
+planning to -> talk
 getting better -> greeting
 better at this -> greeting
 
@@ -635,12 +797,32 @@ of -> skip
 very -> skip
 quite -> skip
 robot -> skip
+# "The robot's in the kitchen": the robot is "you".
+the robot is = you are
+the robot's = you are
+robot's = you are
 buddy -> skip
 again -> skip
 much -> skip
 for -> skip
 today -> skip
 right now -> skip
+# How far, before a place: "a bit to the left of", "slightly left of".
+slightly -> skip
+a bit -> skip
+a little -> skip
+a little bit -> skip
+a tad -> skip
+just about -> skip
+# "The mug is found on the table".
+found -> skip
+at the moment -> skip
+at the minute -> skip
+at present -> skip
+currently -> skip
+# "In the whole room": how much of it says nothing more.
+whole -> skip
+entire -> skip
 over there -> skip
 just there -> skip
 great -> greeting
@@ -693,11 +875,15 @@ fast asleep -> skip
 laying -> skip
 sound asleep -> skip
 napping -> skip
-perched on -> relation on
 up there -> skip
 down there -> skip
 # "There's nobody here, not even the dog": after a pause, "not even" denies the thing as "no" does.
 not even the = no when after <start>|,|and|but
+# "There's no such thing as a lamp here"; "the lamp isn't real" (not there).
+no such thing as a = no
+no such thing as an = no
+no such thing as = no
+real = there when after not|never
 not even a = no when after <start>|,|and|but
 not even one = no when after <start>|,|and|but
 even -> skip
@@ -736,10 +922,27 @@ in there -> skip
 right here -> skip
 over here -> skip
 in total -> skip
+total -> skip
+all told -> skip
 altogether -> skip
 part of -> skip
 parts of -> skip
 pieces of -> skip
+# "On the shelf, top one": which of several, not a part of the picture.
+top one = ,
+bottom one = ,
+middle one = ,
+# "You've broken the sofa into pieces": how the robot split a thing is no place of it.
+into pieces -> skip
+in pieces -> skip
+to pieces -> skip
+into bits -> skip
+in bits -> skip
+to bits -> skip
+into two -> skip
+in two -> skip
+in half -> skip
+into several -> skip
 bits of -> skip
 off -> skip
 up -> skip
@@ -853,7 +1056,172 @@ chilling -> skip
 relaxing -> skip
 resting up -> skip
 
+
+# A move finished, by the thing itself or done to it, says where the thing is now: "the towel has fallen onto
+# the floor", "the ball has rolled under the sofa", "the lid has been knocked off the table" is unread.
+has fallen -> be
+have fallen -> be
+has rolled -> be
+have rolled -> be
+has slipped -> be
+have slipped -> be
+has slid -> be
+have slid -> be
+has tumbled -> be
+have tumbled -> be
+has dropped -> be
+have dropped -> be
+has toppled -> be
+have toppled -> be
+has blown -> be
+have blown -> be
+has drifted -> be
+have drifted -> be
+has moved -> be
+have moved -> be
+has crept -> be
+have crept -> be
+has snuck -> be
+have snuck -> be
+has sneaked -> be
+have sneaked -> be
+has hopped -> be
+have hopped -> be
+has run -> be
+have run -> be
+has walked -> be
+have walked -> be
+has strayed -> be
+have strayed -> be
+has been dropped -> be
+have been dropped -> be
+has been knocked -> be
+have been knocked -> be
+has been thrown -> be
+have been thrown -> be
+has been kicked -> be
+have been kicked -> be
+has been pushed -> be
+have been pushed -> be
+has been shoved -> be
+have been shoved -> be
+has been dumped -> be
+have been dumped -> be
+has been tucked -> be
+have been tucked -> be
+has been hidden -> be
+have been hidden -> be
+has been stuffed -> be
+have been stuffed -> be
+has been tossed -> be
+have been tossed -> be
+has been dragged -> be
+have been dragged -> be
+has been carried -> be
+have been carried -> be
+has been taken -> be
+have been taken -> be
+# The simple past of a move, when a place follows: "the cat jumped onto the sofa".
+fell = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+rolled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+slipped = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+slid = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+tumbled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+toppled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+jumped = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+climbed = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+crawled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+wandered = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+hopped = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+crept = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+ran = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+walked = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+went = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+moved = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+settled = is when before on|under|underneath|beneath|above|below|next|beside|besides|by|near|nearby|close|against|left|right|in|inside|within|into|between|alongside|around|round|atop|upon|onto|behind|over|up|down|there|here|outside|just|directly|quietly|happily|peacefully|all unless after has|have|had|been
+# What a thing or a person is doing where it is ("the laptop is lying closed on the desk", "the toddler is
+# playing under the table", "auntie is reading on the sofa"): the place after says where it is.
+closed -> skip
+lying open -> skip
+sitting open -> skip
+standing open -> skip
+wide open -> skip
+shut -> skip
+ajar -> skip
+upside down -> skip
+face down -> skip
+face up -> skip
+unplugged -> skip
+playing -> skip
+reading -> skip
+eating -> skip
+drinking -> skip
+chewing -> skip
+working -> skip
+studying -> skip
+writing -> skip
+drawing -> skip
+colouring -> skip
+coloring -> skip
+knitting -> skip
+sewing -> skip
+watching tv -> skip
+watching telly -> skip
+watching -> skip
+snoring -> skip
+purring -> skip
+grooming -> skip
+sunbathing -> skip
+cuddled up -> skip
+cosied up -> skip
+cozied up -> skip
+hanging around -> skip
+hanging about -> skip
+sat down -> skip
+playing about -> skip
+messing about -> skip
+mucking about -> skip
+# Words of age and liking that name no class ("our old dog", "my favourite mug").
+old -> skip
+new -> skip
+favourite -> skip
+favorite -> skip
+lovely -> skip
+beloved -> skip
+poor -> skip
+silly -> skip
+naughty -> skip
+cheeky -> skip
+lazy -> skip
+grumpy -> skip
+
 # Utterances that are not corrections.
+# Undoing and moving the robot itself are requests ("undo that last change", "back up", "pick the toy up").
+undo -> request
+redo -> request
+revert -> request
+back up -> request
+reverse -> request
+step back -> request
+pick -> request
+# Asking what the robot can tell apart is a question ("can you tell the mug apart from the bowl?").
+can you tell -> question
+can you distinguish -> question
+can you recognise -> question
+can you recognize -> question
+can you spot -> question
+can you make out -> question
+# Complaints about the day are talk ("the kids are driving me mad"); "right then" opening a sentence moves on.
+driving me mad -> greeting
+driving me crazy -> greeting
+driving me nuts -> greeting
+driving me up the wall -> greeting
+drive me mad -> greeting
+drives me mad -> greeting
+drives me crazy -> greeting
+doing my head in -> greeting
+right then = okay when after <start>
+right so = okay when after <start>
 can you -> request
 could you -> request
 would you -> request
@@ -892,6 +1260,8 @@ look behind -> request
 look around -> request
 look for -> request
 look again -> request
+# "Oh look, a lamp": "look" alone only draws attention.
+look -> filler
 have a look -> request
 zoom -> request
 zoom in -> request
@@ -963,6 +1333,16 @@ who -> question
 why -> question
 how -> question
 how many -> question count
+# "Which side of the desk is the mug on? The left.", "is the mug left or right of the desk? Right."
+which side of -> question side
+what side of -> question side
+on which side of -> question side
+on what side of -> question side
+left or right of -> question side
+right or left of -> question side
+to the left or right of -> question side
+to the left or to the right of -> question side
+on the left or right of -> question side
 is there -> question exists
 are there -> question exists
 do you -> question

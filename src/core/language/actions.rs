@@ -20,6 +20,8 @@ use super::rules::{Action, Match};
 mod existence;
 mod landmarks;
 
+use existence::several;
+
 /// Confidence of a constraint built only from known words.
 pub const FULL_CONFIDENCE: f32 = 1.0;
 /// Confidence when a word in the constraint was read as a misspelling.
@@ -368,20 +370,15 @@ impl<'t> Builder<'t> {
                 if !self.has_focus || position + found.length != chunks.len() {
                     return;
                 }
-                let Some(to) = first_phrase("to").and_then(|phrase| phrase.class) else {
-                    return;
-                };
+                // "bowl" names the pointed thing; "not cat" only denies what it is shown as.
+                let to = first_phrase("to").and_then(|phrase| phrase.class);
                 let from = first_phrase("from").and_then(|phrase| phrase.class);
-                if from == Some(to) {
+                if to.is_none() && from.is_none() || from == to {
                     return;
                 }
                 let target = self.implicit_target(span);
                 self.push(
-                    ConstraintKind::Relabel {
-                        target,
-                        from,
-                        to: Some(to),
-                    },
+                    ConstraintKind::Relabel { target, from, to },
                     span,
                     misspelled,
                 );
@@ -390,6 +387,11 @@ impl<'t> Builder<'t> {
                 let target = first_phrase("target");
                 let from = first_phrase("from");
                 let to = first_phrase("to");
+                // "Four of them are chairs", "I make it four chairs": a number of things is a count, never
+                // the identity of one thing.
+                if several(target.as_ref()) || several(to.as_ref()) {
+                    return;
+                }
                 let asked = self.asked_about_unnamed && !self.has_focus;
                 if asked
                     && target.as_ref().is_some_and(|target| {
@@ -468,6 +470,16 @@ impl<'t> Builder<'t> {
                 }
                 if let Some(&index) = found.role("room").first() {
                     if let ChunkKind::Room(room) = chunks[index].kind {
+                        // "The dog's in the hallway, yeah, the hallway": a room alone, said again right
+                        // after a thing's place in it, repeats that place.
+                        let repeated = found.length == 1
+                            && self.constraints.last().is_some_and(|last| {
+                                matches!(&last.kind, ConstraintKind::Place { place: Place::Room(placed), .. }
+                                    if *placed == room)
+                            });
+                        if repeated {
+                            return;
+                        }
                         self.push(ConstraintKind::RoomType { room }, span, misspelled);
                     }
                 }
@@ -806,6 +818,17 @@ impl<'t> Builder<'t> {
                         return;
                     }
                 }
+                // "The fridge is white and so is the stove": after colours or sizes, the same of the new
+                // subject (the trailing run of attributes stated of one thing).
+                let said = self.trailing_attributes();
+                if !said.is_empty() {
+                    if let Some(subject) = first_phrase("subject") {
+                        self.count_of_subject(&subject, span, misspelled);
+                        let target = self.referent(&subject);
+                        self.push_attributes(&target, said, span, misspelled);
+                    }
+                    return;
+                }
                 let (Some(subject), Some((_, relation, landmarks)), Some(false)) = (
                     first_phrase("subject"),
                     self.last_relation.clone(),
@@ -890,8 +913,18 @@ impl<'t> Builder<'t> {
                 let Some(np) = first_phrase("np") else {
                     return;
                 };
-                let owner = first_phrase("owner");
-                self.have(owner.as_ref(), &np, negated, span, misspelled);
+                // "The shelf is above the desk and holds six books": with no owner of its own, the last
+                // relation's subject.
+                let owner = if found.role("owner").is_empty() {
+                    let Some(subject) = self.last_subject_phrase() else {
+                        return;
+                    };
+                    Some(subject)
+                } else {
+                    first_phrase("owner")
+                };
+                let holds = !found.role("holds").is_empty();
+                self.have(owner.as_ref(), &np, negated, holds, span, misspelled);
             }
             Action::Count => {
                 let number =

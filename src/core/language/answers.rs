@@ -1,5 +1,5 @@
 //! Questions answered in the same note: "How many mugs? Exactly two.", "What's on the desk? A mug.",
-//! "Where's the lamp? Left of the sofa.".
+//! "Where's the lamp? Left of the sofa.", "Is the mug left or right of the desk? Right.".
 //!
 //! Owns: reading what a question sentence leaves open (`Asked`: a count of a named class, an unnamed thing
 //! with a stated place, the place of a named thing) and completing the fragment of the next sentence with
@@ -9,8 +9,8 @@
 //! Must not: build constraints; the rules and actions do that with the completed chunks.
 
 use super::chunks::{AttachedRelation, Chunk, ChunkKind, NounPhrase, Quantity};
-use super::constraint::Relation;
-use super::lexicon::Asks;
+use super::constraint::{ImageRegion, Relation};
+use super::lexicon::{Asks, Side};
 
 /// What a question left open for the next sentence to answer.
 #[derive(Clone, Debug, PartialEq)]
@@ -24,6 +24,12 @@ pub enum Asked {
     Place(NounPhrase),
     /// "Is there a mug?": "there is" or "there isn't" answers with its presence or absence.
     Exists(NounPhrase),
+    /// "Which side of the desk is the mug on?", "is the mug left or right of the desk?": a side answers with
+    /// the subject left or right of the landmark.
+    Side {
+        subject: NounPhrase,
+        landmark: NounPhrase,
+    },
 }
 
 /// A chunk that may stand around the open part of a question without changing what it asks.
@@ -113,6 +119,49 @@ pub fn asked(asks: Asks, chunks: &[Chunk], has_focus: bool) -> Option<Asked> {
             }
             _ => None,
         },
+        Asks::Side => {
+            // The question word before both things names the landmark first ("which side of the desk is
+            // the mug on"); between them, the subject ("is the mug left or right of the desk").
+            let asked_at = chunks
+                .iter()
+                .position(|chunk| chunk.kind == ChunkKind::Where)?;
+            let things: Vec<(usize, &NounPhrase)> = chunks
+                .iter()
+                .enumerate()
+                .filter_map(|(index, chunk)| match &chunk.kind {
+                    ChunkKind::NounPhrase(phrase) => Some((index, phrase)),
+                    _ => None,
+                })
+                .collect();
+            let plain = |phrase: &NounPhrase| {
+                phrase.class.is_some()
+                    && phrase.deictic.is_none()
+                    && phrase.relations.is_empty()
+                    && phrase.region.is_none()
+                    && !matches!(phrase.quantity, Some(Quantity::None | Quantity::Exactly(0)))
+            };
+            // Nothing but the two things, the question word, the verb and a closing "on".
+            let others = content.iter().all(|kind| {
+                matches!(
+                    kind,
+                    ChunkKind::NounPhrase(_) | ChunkKind::Relation(Relation::On)
+                )
+            });
+            match things.as_slice() {
+                [(first_at, first), (_, second)] if others && plain(first) && plain(second) => {
+                    let (subject, landmark) = if asked_at < *first_at {
+                        (second, first)
+                    } else {
+                        (first, second)
+                    };
+                    Some(Asked::Side {
+                        subject: (*subject).clone(),
+                        landmark: (*landmark).clone(),
+                    })
+                }
+                _ => None,
+            }
+        }
         Asks::Other => None,
     }
 }
@@ -232,6 +281,60 @@ fn complete_clause(asked: &Asked, chunks: Vec<Chunk>) -> Vec<Chunk> {
                         misspelled: false,
                     },
                 );
+            }
+        }
+        Asked::Side { subject, landmark } => {
+            // "Right.", "The left.", "On the left.": the side alone.
+            // "The left", "the right side": a determiner left alone before the side.
+            let said = match &chunks[..clause_end] {
+                [Chunk {
+                    kind: ChunkKind::Other,
+                    ..
+                }, rest @ ..] => rest,
+                all => all,
+            };
+            let side = match said {
+                [Chunk {
+                    kind: ChunkKind::Side(side),
+                    ..
+                }] => Some(*side),
+                [Chunk {
+                    kind: ChunkKind::Region(ImageRegion::Left),
+                    ..
+                }] => Some(Side::Left),
+                [Chunk {
+                    kind: ChunkKind::Region(ImageRegion::Right),
+                    ..
+                }] => Some(Side::Right),
+                _ => None,
+            };
+            if let Some(side) = side {
+                let span = chunks[0].span.cover(chunks[clause_end - 1].span);
+                let relation = match side {
+                    Side::Left => Relation::LeftOf,
+                    Side::Right => Relation::RightOf,
+                };
+                let phrase = |named: &NounPhrase| {
+                    let mut named = named.clone();
+                    named.quantity = None;
+                    named.article = false;
+                    named.span = span;
+                    Chunk {
+                        kind: ChunkKind::NounPhrase(named),
+                        span,
+                        misspelled: false,
+                    }
+                };
+                let said = [
+                    phrase(subject),
+                    Chunk {
+                        kind: ChunkKind::Relation(relation),
+                        span,
+                        misspelled: false,
+                    },
+                    phrase(landmark),
+                ];
+                chunks.splice(0..clause_end, said);
             }
         }
         Asked::Place(phrase) => {

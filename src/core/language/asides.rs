@@ -5,7 +5,9 @@
 //! "in this one": dropped, never a landmark), "with" modifiers ("the mug w/ the box around it": dropped up to
 //! the next verb or pause), intensifiers directly before a relation ("right next to", "just left of") and
 //! the name of a household member or pet after the word for them ("my grandad Osric", "our puppy, Noodle,"),
-//! and a note's "sofa w/ five cushions" (a piece of furniture with counted things: they are on it).
+//! a note's "sofa w/ five cushions" (a piece of furniture with counted things: they are on it), what the robot
+//! shows of a thing ("the lamp you see"), "not X but Y is" put in the order "Y, not X, is", and a pointed
+//! thing said again before the verb.
 //! Must not: decide what a clause means; it only re-tags or drops items, recording what it dropped.
 
 use super::constraint::{Relation, Span};
@@ -48,7 +50,47 @@ pub fn resolve_pointing(items: Vec<Item>) -> Vec<Item> {
             _ => out.push(item),
         }
     }
-    out
+    drop_pointed_apposition(out)
+}
+
+/// "That one, the one my hand is on, is a mug": a pointed thing opening the sentence, said again between
+/// pauses before the verb, is one thing; the second saying and its pauses go.
+fn drop_pointed_apposition(items: Vec<Item>) -> Vec<Item> {
+    let phrase_end = |from: usize| {
+        if !matches!(
+            tag_of(items.get(from)),
+            Some(Tag::Deictic { pronoun: false, .. })
+        ) {
+            return None;
+        }
+        let mut at = from + 1;
+        while matches!(
+            tag_of(items.get(at)),
+            Some(
+                Tag::Number(1)
+                    | Tag::Colour(_)
+                    | Tag::Size(_)
+                    | Tag::Class { .. }
+                    | Tag::Thing { .. }
+            )
+        ) {
+            at += 1;
+        }
+        Some(at)
+    };
+    let pause = |at: usize| items.get(at).is_some_and(|item| item.tag == ItemTag::Pause);
+    let Some(first) = phrase_end(0).filter(|&at| pause(at)) else {
+        return items;
+    };
+    let Some(second) = phrase_end(first + 1).filter(|&at| pause(at)) else {
+        return items;
+    };
+    if tag_of(items.get(second + 1)) != Some(Tag::Be) {
+        return items;
+    }
+    let mut items = items;
+    items.drain(first..=second);
+    items
 }
 
 /// Makes the noun phrase ending in the last item deictic: its determiner or article becomes a
@@ -120,6 +162,7 @@ fn ends_modifier(item: &Item) -> bool {
                 | Tag::And
                 | Tag::Repair
                 | Tag::Have
+                | Tag::Holds
                 | Tag::See
                 | Tag::Remove
                 | Tag::Missed
@@ -256,7 +299,11 @@ pub fn drop_names(
             tag_of(kept.last()),
             Some(Tag::Class { class, plural: false }) if living(class)
         );
-        if after_living {
+        // "That's dog food", "it's cat litter": a bare word for a pet or person right after the verb, with
+        // no determiner of its own, modifies the word after it (English compounds end in their head); a
+        // name follows a word that names one of them ("our dog Rex", "the cat Saffi").
+        let modifier = kept.len() >= 2 && tag_of(kept.get(kept.len() - 2)) == Some(Tag::Be);
+        if after_living && !modifier {
             let name = |at: usize| {
                 items
                     .get(at)
@@ -282,6 +329,76 @@ pub fn drop_names(
         index += 1;
     }
     kept
+}
+
+/// "The lamp you see isn't there", "the mug you've got there is a bowl": "you" and a verb of seeing or having
+/// right after a class word and before the verb are what the robot shows of the thing, a relative clause
+/// that names nothing more; they are dropped and reported.
+pub fn drop_shown_clause(items: Vec<Item>, ignored: &mut Vec<(Span, IgnoredReason)>) -> Vec<Item> {
+    let mut items = items;
+    let mut index = 1;
+    while index + 2 < items.len() {
+        let after_thing = matches!(tag_of(items.get(index - 1)), Some(Tag::Class { .. }));
+        let shown = tag_of(items.get(index)) == Some(Tag::You)
+            && matches!(tag_of(items.get(index + 1)), Some(Tag::See | Tag::Have));
+        let mut end = index + 2;
+        if tag_of(items.get(end)) == Some(Tag::There) {
+            end += 1;
+        }
+        let verb_follows = matches!(tag_of(items.get(end)), Some(Tag::Be | Tag::Negation));
+        if after_thing && shown && verb_follows {
+            ignored.push((
+                items[index].span.cover(items[end - 1].span),
+                IgnoredReason::FunctionWord,
+            ));
+            items.drain(index..end);
+        }
+        index += 1;
+    }
+    items
+}
+
+/// "Not the cat but the dog is on the sofa": a denied thing opening the sentence, then "but" and the thing
+/// meant, then the verb, is put in the order of "the dog, not the cat, is on the sofa", which the rules read
+/// as a relation of the one, denied of the other. "Not the table: the towel is on the counter" (no "but")
+/// is left alone.
+pub fn contrast_subjects(items: Vec<Item>) -> Vec<Item> {
+    let phrase_end = |from: usize| {
+        let mut at = from;
+        while matches!(
+            tag_of(items.get(at)),
+            Some(Tag::Determiner | Tag::Article | Tag::Colour(_) | Tag::Size(_))
+        ) {
+            at += 1;
+        }
+        matches!(tag_of(items.get(at)), Some(Tag::Class { .. })).then_some(at + 1)
+    };
+    let opens_denied = tag_of(items.first()) == Some(Tag::Negation);
+    let Some(denied_end) = opens_denied.then(|| phrase_end(1)).flatten() else {
+        return items;
+    };
+    let but = items
+        .get(denied_end)
+        .is_some_and(|item| item.text == "but" && item.tag == ItemTag::Lexicon(Tag::And));
+    let Some(meant_end) = but.then(|| phrase_end(denied_end + 1)).flatten() else {
+        return items;
+    };
+    if tag_of(items.get(meant_end)) != Some(Tag::Be) {
+        return items;
+    }
+    let pause = |span: Span| Item {
+        tag: ItemTag::Pause,
+        span,
+        text: ",".to_string(),
+        misspelled: false,
+    };
+    let mut out = Vec::with_capacity(items.len() + 2);
+    out.extend_from_slice(&items[denied_end + 1..meant_end]);
+    out.push(pause(items[denied_end].span));
+    out.extend_from_slice(&items[..denied_end]);
+    out.push(pause(items[denied_end].span));
+    out.extend_from_slice(&items[meant_end..]);
+    out
 }
 
 /// "sofa w/ five cushions", "table with 6 plates": a piece of furniture (`support`) followed by "with" and a

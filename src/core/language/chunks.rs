@@ -84,6 +84,7 @@ pub enum ChunkKind {
     Called,
     Missed,
     Have,
+    Holds,
     See,
     Remove,
     Count,
@@ -375,8 +376,12 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
             // So is a singular class word known as written after "a" ("that's a coat rack"): English compounds
             // end in their head. Elsewhere a word after the noun is more often a verb or an aside ("the mug
             // you've got", "two stairs total"), and a plural modifier is rare.
+            // And so is a bare singular class word right after the verb ("that's dog food").
+            let after_verb = index > 0
+                && items[index - 1].tag == ItemTag::Lexicon(Tag::Be)
+                && matches!(items[index].tag, ItemTag::Lexicon(Tag::Class { .. }));
             let named = matches!(&chunk.kind, ChunkKind::NounPhrase(phrase)
-                if phrase.class.is_some() && (chunk.misspelled || (phrase.article && !phrase.plural)));
+                if phrase.class.is_some() && (chunk.misspelled || ((phrase.article || after_verb) && !phrase.plural)));
             // A participle after the noun ("the dog by the stove begging") is no compound head.
             let head_unknown = items.get(index + used.max(1)).is_some_and(|next| {
                 next.tag == ItemTag::Unknown
@@ -453,6 +458,7 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Called => ChunkKind::Called,
                 Tag::Missed => ChunkKind::Missed,
                 Tag::Have => ChunkKind::Have,
+                Tag::Holds => ChunkKind::Holds,
                 Tag::See => ChunkKind::See,
                 Tag::Remove => ChunkKind::Remove,
                 Tag::Count => ChunkKind::Count,
@@ -463,8 +469,8 @@ pub fn chunk(items: &[Item]) -> Vec<Chunk> {
                 Tag::Or => ChunkKind::Or,
                 Tag::Repair => ChunkKind::Repair,
                 // "Right of the desk is where the mug is": "where" inside a statement joins a cleft.
-                Tag::Question(Asks::Place) => ChunkKind::Where,
-                Tag::Request | Tag::Question(_) | Tag::Thanks | Tag::Greeting => {
+                Tag::Question(Asks::Place | Asks::Side) => ChunkKind::Where,
+                Tag::Request | Tag::Question(_) | Tag::Thanks | Tag::Greeting | Tag::Talk => {
                     ChunkKind::Separator
                 }
                 _ => ChunkKind::Other,
@@ -558,10 +564,13 @@ pub fn repair(chunks: Vec<Chunk>, ignored: &mut Vec<(Span, IgnoredReason)>) -> V
         let wanted = next
             .filter(|_| !joined)
             .and_then(|j| repair_kind(&chunks[j].kind));
+        // "This room is the bed, no sorry, the kitchen": a room may take back a thing said in its place.
         let mut earlier = wanted.and_then(|wanted| {
-            (index.saturating_sub(4)..index)
-                .rev()
+            let near = (index.saturating_sub(4)..index).rev();
+            near.clone()
                 .find(|&k| repair_kind(&chunks[k].kind) == Some(wanted))
+                .or_else(|| near.clone().find(|&k| wanted == RepairKind::Room
+                    && matches!(&chunks[k].kind, ChunkKind::NounPhrase(phrase) if phrase.class.is_some())))
         });
         // "In the dishwasher, no, the sink": a landmark we do not know, repaired by one we do. The words
         // after the relation up to the cue, none of them known as a thing, are what the cue takes back.
@@ -914,7 +923,11 @@ fn share_relations(chunks: &mut [Chunk]) {
             // unless an owner comes first ("the desk has a laptop and a lamp on it").
             (ChunkKind::And, ChunkKind::NounPhrase(next))
                 if (!next.relations.is_empty() || next.region.is_some())
-                    && (index > 0 && chunks[index - 1].kind == ChunkKind::Have
+                    && (index > 0
+                        && matches!(
+                            chunks[index - 1].kind,
+                            ChunkKind::Have | ChunkKind::Holds
+                        )
                         || !next.relations.iter().any(|attached| {
                             attached.landmarks.iter().any(|landmark| {
                                 landmark.class.is_none()

@@ -57,6 +57,8 @@ pub enum Asks {
     Place,
     /// "is there": "there is" or "there isn't" answers it ("Is there a mug? There is.").
     Exists,
+    /// "which side of", "left or right of": a side answers it ("Is the mug left or right of the desk? Right.").
+    Side,
 }
 
 /// What a phrase can be.
@@ -100,6 +102,8 @@ pub enum Tag {
     Missed,
     /// "has", "contains": the owner has the thing (on it, in it).
     Have,
+    /// "holds", "contains": the owner has the thing on it (furniture) or in it (anything else).
+    Holds,
     /// "I see", "I count": the operator reports what is there.
     See,
     /// "remove", "get rid of", "you hallucinated": the thing is not there.
@@ -124,6 +128,9 @@ pub enum Tag {
     Question(Asks),
     Thanks,
     Greeting,
+    /// "I wish", "used to", "always", "next year": the sentence is about a wish, a plan, a habit or another
+    /// time, not what is in view now; it is talk, and none of it is read.
+    Talk,
 }
 
 impl Tag {

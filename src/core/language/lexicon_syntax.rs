@@ -264,9 +264,10 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 Some("thing") => Asks::Thing,
                 Some("place") => Asks::Place,
                 Some("exists") => Asks::Exists,
+                Some("side") => Asks::Side,
                 Some(other) => {
                     return Err(format!(
-                        "question '{other}' is not count, thing, place or exists"
+                        "question '{other}' is not count, thing, place, exists or side"
                     ))
                 }
             })
@@ -295,6 +296,7 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 "missed" => Tag::Missed,
                 "scene" => Tag::Scene,
                 "have" => Tag::Have,
+                "holds" => Tag::Holds,
                 "see" => Tag::See,
                 "remove" => Tag::Remove,
                 "count" => Tag::Count,
@@ -310,6 +312,7 @@ pub(super) fn parse_line(line: &str, taxonomy: &Taxonomy) -> Result<LexLine, Str
                 "request" => Tag::Request,
                 "thanks" => Tag::Thanks,
                 "greeting" => Tag::Greeting,
+                "talk" => Tag::Talk,
                 other => return Err(format!("unknown kind '{other}'")),
             }
         }

@@ -15,7 +15,9 @@ use crate::taxonomy::Taxonomy;
 
 use super::actions::Builder;
 use super::answers::{asked, complete, Asked};
-use super::asides::{drop_asides, drop_names, resolve_pointing, with_contents};
+use super::asides::{
+    contrast_subjects, drop_asides, drop_names, drop_shown_clause, resolve_pointing, with_contents,
+};
 use super::chunks::{attach, chunk, repair, ChunkKind};
 use super::constraint::{Constraint, ConstraintKind, Deixis, Focus, Referent, Span};
 use super::error::{GrammarError, LanguageError};
@@ -318,7 +320,11 @@ impl Grammar {
             }
             any_words = true;
             if let Some(kind) = classify(&sentence.items, sentence.question_mark) {
-                if kind != UtteranceKind::Thanks && kind != UtteranceKind::ChitChat {
+                let talk = sentence
+                    .items
+                    .iter()
+                    .any(|item| item.tag == ItemTag::Lexicon(Tag::Talk));
+                if talk || (kind != UtteranceKind::Thanks && kind != UtteranceKind::ChitChat) {
                     if let Some(span) = sentence.span {
                         ignored_raw.push((span, IgnoredReason::NotACorrection));
                     }
@@ -333,6 +339,15 @@ impl Grammar {
                     }
                     if kind == UtteranceKind::Question {
                         pending = asks.and_then(|asks| asked(asks, &chunks, focus.is_some()));
+                        // "Is the mug left or right of the desk? It's on the shelf.": the thing a side
+                        // question asks about, not its landmark, is what a later "it" means.
+                        if let Some(Asked::Side { subject, .. }) = &pending {
+                            builder.mention_asked(&super::chunks::Chunk {
+                                kind: ChunkKind::NounPhrase(subject.clone()),
+                                span: subject.span,
+                                misspelled: false,
+                            });
+                        }
                     }
                     continue;
                 }
@@ -351,6 +366,7 @@ impl Grammar {
                     .is_some_and(|info| info.group == crate::taxonomy::ClassGroup::Living)
             };
             let items = drop_names(items, living, &mut ignored_raw);
+            let items = contrast_subjects(drop_shown_clause(items, &mut ignored_raw));
             let mut chunks = repair(chunk(&items), &mut ignored_raw);
             if let Some(open) = &open {
                 chunks = complete(open, chunks);
@@ -386,8 +402,11 @@ impl Grammar {
                             ignored_raw.push((span, IgnoredReason::NoRuleMatched));
                         }
                         builder.apply(&found, &chunks, position);
+                        // A noun phrase of words that state nothing ("you've put the laptop on the floor")
+                        // is what a later "it" means, as one no rule used is.
+                        let used = found.rule.action != Action::Unread;
                         for chunk in &chunks[position..position + found.length] {
-                            builder.mention(chunk, true);
+                            builder.mention(chunk, used);
                         }
                         position += found.length;
                     }
@@ -698,8 +717,9 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     let first = first?;
     match first.tag {
         // "is the book on the counter", "is that a cat or a bottle": a sentence opening with "is" asks.
-        // "I'm off to bed" ("i" is skipped) is no question.
-        ItemTag::Lexicon(Tag::Be) if first.text == "am" => {}
+        // "I'm off to bed" ("i" is skipped) is no question, nor is a verb of several words ("looks like the
+        // kitchen to me").
+        ItemTag::Lexicon(Tag::Be) if first.text == "am" || first.text.contains(' ') => {}
         ItemTag::Lexicon(Tag::Question(_) | Tag::Be) => return Some(UtteranceKind::Question),
         ItemTag::Lexicon(Tag::Request) => return Some(UtteranceKind::Request),
         _ => {}
@@ -713,7 +733,9 @@ fn classify(items: &[super::tagging::Item], question_mark: bool) -> Option<Utter
     let request_after_pause = items
         .windows(2)
         .any(|pair| pair[0].tag == ItemTag::Pause && pair[1].tag == ItemTag::Lexicon(Tag::Request));
-    if has(Tag::Thanks) {
+    if has(Tag::Talk) {
+        Some(UtteranceKind::ChitChat)
+    } else if has(Tag::Thanks) {
         Some(UtteranceKind::Thanks)
     } else if first.tag == ItemTag::Lexicon(Tag::Greeting) && request_after_pause {
         Some(UtteranceKind::Request)

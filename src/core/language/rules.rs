@@ -29,6 +29,8 @@ pub enum Symbol {
     Called,
     Missed,
     Have,
+    /// "holds", "contains".
+    Holds,
     See,
     Remove,
     Count,
@@ -155,7 +157,7 @@ impl Action {
             Action::Exist | Action::Located | Action::Remove => (&["np"], &["negated"]),
             Action::Relabel => (&[], &["target", "from", "to"]),
             Action::RelabelCalled => (&["target", "from"], &[]),
-            Action::RelabelPointed => (&["to"], &["from"]),
+            Action::RelabelPointed => (&[], &["to", "from"]),
             Action::RoomType => (&["room"], &["negated"]),
             Action::Relation => (
                 &["subject", "relation", "landmark"],
@@ -163,7 +165,7 @@ impl Action {
             ),
             Action::Place => (&["subject"], &["room", "region"]),
             Action::Attribute => (&["subject"], &["attributes"]),
-            Action::Have => (&["owner", "np"], &["negated"]),
+            Action::Have => (&["np"], &["owner", "negated", "holds"]),
             Action::Count => (&["number"], &["np", "negated", "denied"]),
             Action::RelationMore => (&["landmark"], &["relation", "negated"]),
             Action::RelationSame => (&["subject"], &["number"]),
@@ -282,12 +284,14 @@ fn parse_rule(line: &str) -> Result<Rule, String> {
             return Err(format!("action '{action_name}' needs a ':{role}' item"));
         }
     }
-    if action == Action::Relabel
+    if matches!(action, Action::Relabel | Action::RelabelPointed)
         && !items
             .iter()
             .any(|item| matches!(item.role.as_deref(), Some("from" | "to")))
     {
-        return Err("action 'relabel' needs a ':from' or ':to' item".to_string());
+        return Err(format!(
+            "action '{action_name}' needs a ':from' or ':to' item"
+        ));
     }
     let min_chunks = items
         .iter()
@@ -346,6 +350,7 @@ fn parse_item(word: &str) -> Result<PatternItem, String> {
             "CALLED" => Symbol::Called,
             "MISSED" => Symbol::Missed,
             "HAVE" => Symbol::Have,
+            "HOLDS" => Symbol::Holds,
             "SEE" => Symbol::See,
             "REMOVE" => Symbol::Remove,
             "COUNT" => Symbol::Count,
@@ -450,6 +455,7 @@ fn accepts(alternative: &Alternative, chunk: &Chunk) -> bool {
         | (Symbol::Called, ChunkKind::Called)
         | (Symbol::Missed, ChunkKind::Missed)
         | (Symbol::Have, ChunkKind::Have)
+        | (Symbol::Holds, ChunkKind::Holds)
         | (Symbol::See, ChunkKind::See)
         | (Symbol::Remove, ChunkKind::Remove)
         | (Symbol::Count, ChunkKind::Count)

@@ -208,6 +208,28 @@ fn rewrite(
             index += used;
             continue;
         }
+        let on_the = words.len() >= 2
+            && words[words.len() - 1].text == "the"
+            && matches!(words[words.len() - 2].text.as_str(), "on" | "to" | "at");
+        if let Some((word, used)) = side_of_owner(lexicon, tokens, index).filter(|_| on_the) {
+            // "On the lamp's left": "on the left of the lamp".
+            for text in [word, "of", "the"] {
+                words.push(Word {
+                    text: text.to_string(),
+                    span: token.span,
+                    shape: TokenShape::Word,
+                    fragment: false,
+                });
+            }
+            words.push(Word {
+                text: token.text.trim_end_matches("'s").to_string(),
+                span: token.span,
+                shape: TokenShape::Word,
+                fragment: false,
+            });
+            index += used;
+            continue;
+        }
         if let Some(stem) = token.text.strip_suffix("'s") {
             let is_noun = matches!(
                 lexicon.longest_phrase(&[stem]).map(|found| found.tag),
@@ -339,6 +361,34 @@ fn rejoined(lexicon: &Lexicon, tokens: &[Token], index: usize) -> Option<(Word, 
         ));
     }
     None
+}
+
+/// "The lamp's left (side)", "the desk's right hand side": a thing's side, said with a possessive (after "on
+/// the", "to the" or "at the"). Returns the side word and how many tokens the phrase takes.
+fn side_of_owner(
+    lexicon: &Lexicon,
+    tokens: &[Token],
+    index: usize,
+) -> Option<(&'static str, usize)> {
+    let stem = tokens[index].text.strip_suffix("'s")?;
+    if !matches!(
+        lexicon.longest_phrase(&[stem]).map(|found| found.tag),
+        Some(Tag::Class { .. })
+    ) {
+        return None;
+    }
+    let side = match tokens.get(index + 1).map(|next| next.text.as_str()) {
+        Some("left") => "left",
+        Some("right") => "right",
+        _ => return None,
+    };
+    let text = |at: usize| tokens.get(at).map(|token| token.text.as_str());
+    let used = match (text(index + 2), text(index + 3)) {
+        (Some("side"), _) => 3,
+        (Some("hand"), Some("side")) => 4,
+        _ => 2,
+    };
+    Some((side, used))
 }
 
 /// The count of a note's multiplier ("x9", "x 12" is not one): `Some(9)`.

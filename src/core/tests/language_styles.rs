@@ -6,7 +6,7 @@
 //! styles_fresh2_dev.jsonl and styles_fresh2_heldout.jsonl (written the same way by another helper;
 //! tests/language/styles_fresh2.md), and styles_fresh3_dev.jsonl and styles_fresh3_heldout.jsonl (a third
 //! helper, the same way; tests/language/styles_fresh3.md), and styles_fresh4_dev.jsonl and
-//! styles_fresh4_heldout.jsonl (a fourth helper; tests/language/styles_fresh4.md; both summary-only so far).
+//! styles_fresh4_heldout.jsonl (a fourth helper; tests/language/styles_fresh4.md).
 //! tests/language/styles_widened_dev.jsonl holds lines written by the parser's own maintainers (session 9), a
 //! line per variant of each construction widened then: development lines by definition, never a blind measure.
 //!
@@ -195,9 +195,9 @@ fn development_styles_recall_per_style() {
 const DEV_MAX_SPURIOUS: usize = 0;
 
 /// Held-out floor at the measured figure (2026-12-05, session 5: 471/498 = 94.6%, no unasked relabel, one
-/// constraint from 83 non-corrections; session 7: 473/498 = 95.0%, none, one); the goal of no constraint is
-/// not reached yet.
-const HELDOUT_FLOOR: f64 = 94.9;
+/// constraint from 83 non-corrections; session 7: 473/498 = 95.0%, none, one; session 10: 474/498 = 95.2%,
+/// none, one); the goal of no constraint is not reached yet.
+const HELDOUT_FLOOR: f64 = 95.1;
 const HELDOUT_MAX_SPURIOUS: usize = 1;
 
 /// The held-out file is run for its figures only; its lines are never printed.
@@ -278,8 +278,9 @@ fn fresh_development_styles_recall_per_style() {
 /// session 7, after the parser changes the fresh development file prompted, 136/156 (87.2%), none, none;
 /// after those the second fresh development file prompted, 142/156 (91.0%), none, none; in session 8, after
 /// those the third fresh development file prompted, 143/156 (91.7%), none, none; in session 9, after the
-/// constructions widened then, 144/156 (92.3%), none, none.
-const FRESH_HELDOUT_FLOOR: f64 = 92.2;
+/// constructions widened then, 144/156 (92.3%), none, none; in session 10, after those the fourth fresh
+/// development file prompted, 145/156 (92.9%), none, none.
+const FRESH_HELDOUT_FLOOR: f64 = 92.8;
 
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -313,16 +314,17 @@ fn fresh_heldout_styles_figures_are_reported() {
 /// (2026-12-05, session 7), before any change it prompted, the parser read 43, 49, 39, 42, 48 and 49 of 50
 /// lines (270/300, 90.0%; 2 constraints from 50 non-corrections, no unasked relabel, 8 lines misread); the
 /// parser of the session's start read 266/300 (88.7%; 2, none, 9). After the changes the file prompted:
-/// 50, 50, 49, 49, 50 and 50 (298/300, 99.3%; 1, none, 1).
+/// 50, 50, 49, 49, 50 and 50 (298/300, 99.3%; 1, none, 1). In session 10, 50 of 50 in every style (300/300;
+/// none, none, none).
 const FRESH2_DEV_FLOORS: [(&str, f64); 6] = [
     ("asr_slip", 99.5),
     ("field_note", 99.5),
-    ("hard", 97.5),
-    ("not_a_correction", 97.5),
+    ("hard", 99.5),
+    ("not_a_correction", 99.5),
     ("speech", 99.5),
     ("typed_tidy", 99.5),
 ];
-const FRESH2_DEV_MAX_SPURIOUS: usize = 1;
+const FRESH2_DEV_MAX_SPURIOUS: usize = 0;
 
 #[test]
 fn fresh2_development_styles_recall_per_style() {
@@ -352,10 +354,9 @@ fn fresh2_development_styles_recall_per_style() {
         result.unasked_relabels, 0,
         "a relabel nobody asked for on the second fresh development file"
     );
-    assert!(
-        result.spurious_constraints <= FRESH2_DEV_MAX_SPURIOUS,
-        "{} constraints from non-corrections on the second fresh development file",
-        result.spurious_constraints
+    assert_eq!(
+        result.spurious_constraints, FRESH2_DEV_MAX_SPURIOUS,
+        "constraints from non-corrections on the second fresh development file"
     );
 }
 
@@ -363,8 +364,9 @@ fn fresh2_development_styles_recall_per_style() {
 /// (88.0%; no constraint from 25 non-corrections, no unasked relabel, 6 lines misread), as did the parser of
 /// the session's start; after the changes the development file prompted, 135/150 (90.0%; none, none, 4); in
 /// session 8, after those the third fresh development file prompted, 138/150 (92.0%; none, none, 2); in session
-/// 9, after the constructions widened then, 140/150 (93.3%; none, none, 2).
-const FRESH2_HELDOUT_FLOOR: f64 = 93.2;
+/// 9, after the constructions widened then, 140/150 (93.3%; none, none, 2); in session 10, 142/150 (94.7%;
+/// none, none, 2).
+const FRESH2_HELDOUT_FLOOR: f64 = 94.6;
 
 /// The second fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
@@ -397,11 +399,12 @@ fn fresh2_heldout_styles_figures_are_reported() {
 /// helper who never saw the parser; tests/language/styles_fresh3.md says how). When the file arrived
 /// (2026-12-05, session 8), before any change it prompted, the parser read 44, 44, 40, 44, 49 and 48 of 50
 /// lines (269/300, 89.7%; no constraint from 50 non-corrections, no unasked relabel, 9 lines misread). After
-/// the changes the file prompted: 49, 50, 49, 49, 49 and 50 (296/300, 98.7%; none, none, 1).
+/// the changes the file prompted: 49, 50, 49, 49, 49 and 50 (296/300, 98.7%; none, none, 1). In session 10:
+/// 50, 50, 50, 49, 49 and 50 (298/300, 99.3%; none, none, 1).
 const FRESH3_DEV_FLOORS: [(&str, f64); 6] = [
-    ("asr_slip", 97.5),
+    ("asr_slip", 99.5),
     ("field_note", 99.5),
-    ("hard", 97.5),
+    ("hard", 99.5),
     ("not_a_correction", 97.5),
     ("speech", 97.5),
     ("typed_tidy", 99.5),
@@ -476,41 +479,73 @@ fn fresh3_heldout_styles_figures_are_reported() {
 
 /// The fourth fresh corpus (tests/language/styles_fresh4.md): 300 development and 150 held-out lines written
 /// by hand, blind, by a helper who never saw the parser, copied in during session 9 before any parser change.
-/// Nobody who changed the parser in that session saw either file, so both are reported as summary lines only.
-/// When the files arrived (2026-12-05, 18:14 UTC), before any change, the parser read dev 272/300 (90.7%; no
-/// constraint from 50 non-corrections, no unasked relabel, 4 lines misread) and held-out 139/150 (92.7%; 2
-/// constraints from 25 non-corrections, no unasked relabel, 5 lines misread). The floors hold those figures:
-/// (file, lines, recall floor, most constraints from non-corrections). The goal for the last is zero. After
-/// the session's parser changes (made without sight of either file): dev 274/300 (91.3%), held-out 139/150.
-const FRESH4_FLOORS: [(&str, usize, f64, usize); 2] = [
-    ("styles_fresh4_dev.jsonl", 300, 90.6, 0),
-    ("styles_fresh4_heldout.jsonl", 150, 92.6, 2),
-];
+/// Nobody who changed the parser in that session saw either file. When the files arrived (2026-12-05, 18:14
+/// UTC), before any change, the parser read dev 272/300 (90.7%; no constraint from 50 non-corrections, no
+/// unasked relabel, 4 lines misread) and held-out 139/150 (92.7%; 2 constraints from 25 non-corrections, no
+/// unasked relabel, 5 lines misread). After session 9's parser changes (made without sight of either file):
+/// dev 274/300 (91.3%), held-out 139/150. From session 10 the development half is tuned on and prints its
+/// failing lines, like the other development files; the held-out half stays summary-only. After session 10's
+/// changes: dev 298/300 (99.3%; none, none, none), held-out 139/150 (92.7%; 2, none, 5).
+const FRESH4_DEV_FLOOR: f64 = 99.2;
+const FRESH4_HELDOUT_FLOOR: f64 = 92.6;
+/// The goal is zero; the held-out half had 2 when it arrived.
+const FRESH4_HELDOUT_MAX_SPURIOUS: usize = 2;
 
-/// Both fourth fresh files are run for their figures only; their lines are never printed.
 #[test]
-fn fresh4_styles_figures_are_reported() {
+fn fresh4_development_styles_recall() {
     let grammar = grammar();
-    for (file, lines, floor, most_spurious) in FRESH4_FLOORS {
-        let result = score(&grammar, &load(file));
-        print_figures(file, &result);
-        assert!(result.total >= lines, "{file} has {} lines", result.total);
-        assert!(
-            recall(result.passed, result.total) >= floor,
-            "{file}: recall {}/{} fell below {floor}%",
-            result.passed,
-            result.total
-        );
-        assert_eq!(
-            result.unasked_relabels, 0,
-            "a relabel nobody asked for in {file}"
-        );
-        assert!(
-            result.spurious_constraints <= most_spurious,
-            "{} constraints from non-corrections in {file}, more than {most_spurious}",
-            result.spurious_constraints
-        );
+    let result = score(&grammar, &load("styles_fresh4_dev.jsonl"));
+    print_figures("styles fresh4 dev", &result);
+    if !result.failures.is_empty() {
+        println!("failures:\n{}", result.failures.join("\n"));
     }
+    assert!(
+        result.total >= 300,
+        "the fourth fresh development file has {} lines",
+        result.total
+    );
+    assert!(
+        recall(result.passed, result.total) >= FRESH4_DEV_FLOOR,
+        "fourth fresh development recall {}/{} fell below {FRESH4_DEV_FLOOR}%",
+        result.passed,
+        result.total
+    );
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the fourth fresh development file"
+    );
+    assert_eq!(
+        result.spurious_constraints, 0,
+        "constraints from non-corrections on the fourth fresh development file"
+    );
+}
+
+/// The fourth fresh held-out file is run for its figures only; its lines are never printed.
+#[test]
+fn fresh4_heldout_styles_figures_are_reported() {
+    let grammar = grammar();
+    let result = score(&grammar, &load("styles_fresh4_heldout.jsonl"));
+    print_figures("styles fresh4 held-out", &result);
+    assert!(
+        result.total >= 150,
+        "the fourth fresh held-out file has {} lines",
+        result.total
+    );
+    assert!(
+        recall(result.passed, result.total) >= FRESH4_HELDOUT_FLOOR,
+        "fourth fresh held-out recall {}/{} fell below {FRESH4_HELDOUT_FLOOR}%",
+        result.passed,
+        result.total
+    );
+    assert_eq!(
+        result.unasked_relabels, 0,
+        "a relabel nobody asked for on the fourth fresh held-out file"
+    );
+    assert!(
+        result.spurious_constraints <= FRESH4_HELDOUT_MAX_SPURIOUS,
+        "{} constraints from non-corrections on the fourth fresh held-out file",
+        result.spurious_constraints
+    );
 }
 
 /// The fifth hand-written corpus (`tests/language/styles_fresh5.md`): a new household, written in session 10
@@ -559,8 +594,22 @@ fn fresh5_styles_figures_are_reported() {
 /// exist"), "it's" restarting before a number ("is um it's three"), a finished move or placing ("has climbed
 /// onto", "has been left by"), no spelling guess that adds a verb's ending, "+" between two things, the
 /// word for colour in a note, a note's count followed by a place, words the recogniser split ("be low", "cup
-/// board") or clipped ("sittin"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread). Every line
-/// must read.
+/// board") or clipped ("sittin"), a possessive "'s" before a thing, and shorthand, drawn-out sounds and transitive uses that must stay unread), and
+/// of those widened in session 10 (finished and past moves, what a thing or person is doing where it is,
+/// age and liking words, a spaced dash as a colon, a compound after the verb that is no relabel ("that's dog
+/// food"), "not X but Y is", a place by a word nobody knows, "not cat" pointed, "you've got a X there but it's
+/// a Y", "so is" after a colour, a person or pet on a thing, a room said again, "actually six", "holds" and
+/// "contains", side questions answered by a side, a room repairing a thing, a pointed apposition, "both"
+/// before a place, household members and visitors who are never a relabel, "I make it", what the robot has
+/// ("you've only got three"), "no such thing as", "isn't real", "the lamp you see", "we don't have", a
+/// possessive side ("on the lamp's left"), "a bit" and "slightly" before a place, "looks like" opening a
+/// statement and "call that a", how the robot split a thing ("into pieces"), "should sit", and what the
+/// robot has placed ("you've put the laptop on the floor but it's on the desk"), "top one", "ate" only where a
+/// number goes, wishes, plans and habits as talk, what a person or pet owns, and a thing or room said to be
+/// something nobody knows: "the light in the hallway is broken" places nothing, "over they're", "look" alone,
+/// "is too mugs", "the robot's in", "should be labelled", "relabel as" pointed, "that one there is a", "x 3"
+/// apart, "mug count 2", a number of things never a relabel, and "next the", "nest to", "next door to").
+/// Every line must read.
 #[test]
 fn widened_constructions_read_every_variant() {
     let grammar = grammar();

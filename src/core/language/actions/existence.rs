@@ -1,8 +1,9 @@
 //! Existence clauses and what hangs on them: "there is", "has", counts stated apart from their noun, the
 //! relations and region attached to a thing said to exist, and the relations of a pointed thing in a note.
 //!
-//! Owns: `Builder`'s existence, "has", count and attached-relation helpers and the quantity-to-constraint
-//! table (`count_kind`).
+//! Owns: `Builder`'s existence, "has" and "holds", count and attached-relation helpers, the attributes said
+//! last ("and so is the stove"), whether a phrase names several things (`several`: never a relabel) and the
+//! quantity-to-constraint table (`count_kind`).
 //! Must not: match rules or bind deictic words to the conversation; `actions` calls these from its rules.
 
 use super::*;
@@ -15,6 +16,7 @@ impl Builder<'_> {
         owner: Option<&NounPhrase>,
         np: &NounPhrase,
         negated: bool,
+        holds: bool,
         span: Span,
         misspelled: bool,
     ) {
@@ -23,11 +25,39 @@ impl Builder<'_> {
                 landmark.class.is_none() && landmark.deictic.is_some_and(|word| word.pronoun)
             })
         };
+        // "My sister has three cats": what a person or a pet owns says nothing of what is in view.
+        let living = owner
+            .and_then(|owner| owner.class)
+            .and_then(|class| self.taxonomy.class(class))
+            .is_some_and(|info| info.group == ClassGroup::Living);
+        if living {
+            return;
+        }
         let mut np = np.clone();
         match owner {
             Some(owner) => {
                 let mut landmark = owner.clone();
                 landmark.quantity = None;
+                // "The shelf holds five books", "the box contains toys": with no place of their own, the
+                // things are on a piece of furniture and in anything else.
+                let group = owner
+                    .class
+                    .and_then(|class| self.taxonomy.class(class))
+                    .map(|info| info.group);
+                let relation = match group {
+                    Some(ClassGroup::Furniture) => Some(Relation::On),
+                    Some(ClassGroup::Appliance | ClassGroup::Object) => Some(Relation::Inside),
+                    _ => None,
+                };
+                if let (true, true, Some(relation)) = (holds, np.relations.is_empty(), relation) {
+                    let mut placed = landmark.clone();
+                    placed.relations = Vec::new();
+                    placed.region = None;
+                    np.relations.push(AttachedRelation {
+                        relation,
+                        landmarks: vec![placed],
+                    });
+                }
                 self.owner = Some(landmark);
             }
             None => {
@@ -36,6 +66,41 @@ impl Builder<'_> {
             }
         }
         self.exist(&np, negated, span, misspelled);
+    }
+
+    /// The attributes the last constraints stated of one thing, in order ("the fridge is white and so is the
+    /// stove": white).
+    pub(super) fn trailing_attributes(&self) -> Vec<Attribute> {
+        let mut said: Vec<Attribute> = Vec::new();
+        let mut of: Option<&Referent> = None;
+        for constraint in self.constraints.iter().rev() {
+            match &constraint.kind {
+                ConstraintKind::Attribute { target, attribute }
+                    if of.is_none_or(|of| of == target) =>
+                {
+                    said.insert(0, *attribute);
+                    of = Some(target);
+                }
+                _ => break,
+            }
+        }
+        said
+    }
+
+    /// The last relation's subject as a noun phrase, when it names a class and nothing pointed at.
+    pub(super) fn last_subject_phrase(&self) -> Option<NounPhrase> {
+        let (subject, ..) = self.last_relation.as_ref()?;
+        (subject.class.is_some() && subject.deixis.is_none()).then(|| NounPhrase {
+            class: subject.class,
+            deictic: None,
+            plural: subject.plural,
+            attributes: subject.attributes.clone(),
+            quantity: None,
+            relations: Vec::new(),
+            region: None,
+            article: false,
+            span: subject.span,
+        })
     }
 
     /// The relations attached to a demonstrative noun phrase, each stated of what it points at.
@@ -353,5 +418,16 @@ pub(super) fn count_kind(
             class,
             count: Count::AtMost(n),
         },
+    })
+}
+
+/// Whether a noun phrase names a number of things ("four chairs", "at least two"): a count, never the identity
+/// of one thing.
+pub(super) fn several(phrase: Option<&NounPhrase>) -> bool {
+    phrase.is_some_and(|phrase| {
+        matches!(
+            phrase.quantity,
+            Some(Quantity::Exactly(2..) | Quantity::AtLeast(_) | Quantity::AtMost(_))
+        )
     })
 }

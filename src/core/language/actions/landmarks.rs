@@ -90,7 +90,17 @@ impl Builder<'_> {
         }
         let group = self.taxonomy.class(class)?.group;
         let fits = match relation {
-            Relation::On => matches!(group, ClassGroup::Furniture | ClassGroup::Appliance),
+            // "There's a blanket on the sofa, and the cat is lying on it": a person or a pet lies on a
+            // thing as well as on furniture.
+            Relation::On => {
+                matches!(group, ClassGroup::Furniture | ClassGroup::Appliance)
+                    || (group == ClassGroup::Object
+                        && subject.class.is_some_and(|class| {
+                            self.taxonomy
+                                .class(class)
+                                .is_some_and(|info| info.group == ClassGroup::Living)
+                        }))
+            }
             Relation::Inside => !matches!(group, ClassGroup::Structure | ClassGroup::Living),
             _ => group != ClassGroup::Living,
         };
