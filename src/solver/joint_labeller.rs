@@ -630,6 +630,35 @@ mod tests {
         );
     }
 
+    /// Random Potts unaries in [-2, 8) and edges (each pair with chance `edge_chance`, weight in [0, 3))
+    /// from a linear congruential generator seeded with `seed` (Knuth's MMIX constants).
+    fn random_potts(
+        seed: u64,
+        node_count: usize,
+        label_count: usize,
+        edge_chance: f64,
+    ) -> (Vec<f64>, Vec<(u32, u32, f64)>) {
+        let mut state = seed;
+        let mut next = move || {
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let unary: Vec<f64> = (0..node_count * label_count)
+            .map(|_| 10.0 * next() - 2.0)
+            .collect();
+        let mut edges = Vec::new();
+        for a in 0..node_count as u32 {
+            for b in a + 1..node_count as u32 {
+                if next() < edge_chance {
+                    edges.push((a, b, 3.0 * next()));
+                }
+            }
+        }
+        (unary, edges)
+    }
+
     proptest::proptest! {
         /// The bound's loops compiled for AVX give the same bits as their portable build, for the even
         /// split and for every number of diffusion sweeps, on label counts that fill a register or leave a
@@ -641,20 +670,7 @@ mod tests {
             seed in 0u64..u64::MAX,
             sweeps in 0usize..12,
         ) {
-            let mut state = seed;
-            let mut next = move || {
-                state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-                (state >> 11) as f64 / (1u64 << 53) as f64
-            };
-            let unary: Vec<f64> = (0..node_count * label_count).map(|_| 10.0 * next() - 2.0).collect();
-            let mut edges = Vec::new();
-            for a in 0..node_count as u32 {
-                for b in a + 1..node_count as u32 {
-                    if next() < 0.3 {
-                        edges.push((a, b, 3.0 * next()));
-                    }
-                }
-            }
+            let (unary, edges) = random_potts(seed, node_count, label_count, 0.3);
             let mut wide = PottsBound::new(node_count, label_count, &edges);
             let mut portable = PottsBound::new(node_count, label_count, &edges).portable();
             proptest::prop_assert_eq!(wide.bound(&unary).to_bits(), portable.bound(&unary).to_bits());
@@ -677,20 +693,7 @@ mod tests {
             first in (0.0f64..1.5, 0.0f64..1.5),
             second in (0.0f64..1.5, 0.0f64..1.5),
         ) {
-            let mut state = seed;
-            let mut next = move || {
-                state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-                (state >> 11) as f64 / (1u64 << 53) as f64
-            };
-            let unary: Vec<f64> = (0..node_count * label_count).map(|_| 10.0 * next() - 2.0).collect();
-            let mut edges = Vec::new();
-            for a in 0..node_count as u32 {
-                for b in a + 1..node_count as u32 {
-                    if next() < 0.4 {
-                        edges.push((a, b, 3.0 * next()));
-                    }
-                }
-            }
+            let (unary, edges) = random_potts(seed, node_count, label_count, 0.4);
             let mut bound = PottsBound::new(node_count, label_count, &edges);
             // Targets and stopping values around the even split's bound, so runs stop at various sweeps.
             let even = bound.bound(&unary);
