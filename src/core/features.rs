@@ -141,54 +141,73 @@ struct PixelSums {
     sum_xx: f64,
     sum_yy: f64,
     sum_xy: f64,
-    /// Over pixels with a depth reading: count, and sums of x, y, x^2, y^2, xy, d, xd, yd (d in metres).
-    depth_n: f64,
-    depth_x: f64,
-    depth_y: f64,
-    depth_xx: f64,
-    depth_yy: f64,
-    depth_xy: f64,
-    depth_d: f64,
-    depth_xd: f64,
-    depth_yd: f64,
+    /// Over pixels with a depth reading (metres).
+    depth: DepthSums,
 }
 
-impl PixelSums {
-    /// Adds one pixel's depth reading `d` (metres) at column `x`, row `y` to the depth sums.
-    fn add_depth(&mut self, x: f64, y: f64, d: f64) {
-        self.depth_n += 1.0;
-        self.depth_x += x;
-        self.depth_y += y;
-        self.depth_xx += x * x;
-        self.depth_yy += y * y;
-        self.depth_xy += x * y;
-        self.depth_d += d;
-        self.depth_xd += x * d;
-        self.depth_yd += y * d;
-    }
+/// Sums over depth readings `d` at column `x`, row `y`: count, and sums of x, y, x^2, y^2, xy, d, xd, yd.
+/// The least-squares plane through them is a segment's depth slope feature here and the plane the pointer's
+/// growth compares where two segments meet (`grounding::pointer`).
+#[derive(Clone, Copy, Default)]
+pub(crate) struct DepthSums {
+    n: f64,
+    x: f64,
+    y: f64,
+    xx: f64,
+    yy: f64,
+    xy: f64,
+    d: f64,
+    xd: f64,
+    yd: f64,
 }
 
-/// Least-squares slopes (per pixel) of depth against x and y over one segment's pixels with depth, by the
-/// normal equations of `d = c + sx x + sy y`; (0, 0) when they are singular (a line or a single pixel).
-fn depth_slopes(sums: &PixelSums) -> (f64, f64) {
-    let n = sums.depth_n;
-    if n < 3.0 {
-        return (0.0, 0.0);
+impl DepthSums {
+    /// Adds one depth reading `d` at column `x`, row `y`.
+    pub(crate) fn add(&mut self, x: f64, y: f64, d: f64) {
+        self.n += 1.0;
+        self.x += x;
+        self.y += y;
+        self.xx += x * x;
+        self.yy += y * y;
+        self.xy += x * y;
+        self.d += d;
+        self.xd += x * d;
+        self.yd += y * d;
     }
-    let (mx, my, md) = (sums.depth_x / n, sums.depth_y / n, sums.depth_d / n);
-    let sxx = sums.depth_xx / n - mx * mx;
-    let syy = sums.depth_yy / n - my * my;
-    let sxy = sums.depth_xy / n - mx * my;
-    let sxd = sums.depth_xd / n - mx * md;
-    let syd = sums.depth_yd / n - my * md;
-    let determinant = sxx * syy - sxy * sxy;
-    if determinant.abs() <= 1e-9 * (sxx * syy).max(1e-12) || determinant <= 0.0 {
-        return (0.0, 0.0);
+
+    /// Least-squares slopes (per pixel) of depth against x and y, by the normal equations of
+    /// `d = c + sx x + sy y`; (0, 0) when they are singular (a line or a single pixel).
+    pub(crate) fn slopes(&self) -> (f64, f64) {
+        let n = self.n;
+        if n < 3.0 {
+            return (0.0, 0.0);
+        }
+        let (mx, my, md) = (self.x / n, self.y / n, self.d / n);
+        let sxx = self.xx / n - mx * mx;
+        let syy = self.yy / n - my * my;
+        let sxy = self.xy / n - mx * my;
+        let sxd = self.xd / n - mx * md;
+        let syd = self.yd / n - my * md;
+        let determinant = sxx * syy - sxy * sxy;
+        if determinant.abs() <= 1e-9 * (sxx * syy).max(1e-12) || determinant <= 0.0 {
+            return (0.0, 0.0);
+        }
+        (
+            (sxd * syy - syd * sxy) / determinant,
+            (syd * sxx - sxd * sxy) / determinant,
+        )
     }
-    (
-        (sxd * syy - syd * sxy) / determinant,
-        (syd * sxx - sxd * sxy) / determinant,
-    )
+
+    /// The least-squares plane `d = sx x + sy y + c` as `(sx, sy, c)` (level at the mean when the slopes are
+    /// singular), or `None` for fewer than three readings.
+    pub(crate) fn plane(&self) -> Option<(f64, f64, f64)> {
+        if self.n < 3.0 {
+            return None;
+        }
+        let (sx, sy) = self.slopes();
+        let (mx, my, md) = (self.x / self.n, self.y / self.n, self.d / self.n);
+        Some((sx, sy, md - sx * mx - sy * my))
+    }
 }
 
 fn eccentricity(sums: &PixelSums, count: f64, centroid: (f32, f32)) -> f32 {
@@ -251,7 +270,7 @@ pub fn segment_features(scene: &Scene) -> Array2<f32> {
                 .and_then(|depth| depth.millimetres.get(index))
                 .copied();
             if let Some(millimetres) = reading.filter(|&m| m > 0) {
-                sum.add_depth(xf, yf, f64::from(millimetres) / 1000.0);
+                sum.depth.add(xf, yf, f64::from(millimetres) / 1000.0);
             }
         }
     }
@@ -308,7 +327,7 @@ pub fn segment_features(scene: &Scene) -> Array2<f32> {
             }
         }
         if let Some(own) = stats.mean_depth_mm.filter(|&own| own > 0.0) {
-            let (sx, sy) = depth_slopes(sum);
+            let (sx, sy) = sum.depth.slopes();
             let scale = 100.0 / (f64::from(own) / 1000.0);
             values[column::DEPTH_SLOPE] = (sx * scale) as f32;
             values[column::DEPTH_SLOPE + 1] = (sy * scale) as f32;
@@ -460,13 +479,13 @@ mod tests {
                 let (xf, yf) = (f64::from(x), f64::from(y));
                 for (sums, include) in [(&mut line, y == 0), (&mut plane, true)] {
                     if include {
-                        sums.add_depth(xf, yf, 2.0 + 0.01 * xf - 0.03 * yf);
+                        sums.depth.add(xf, yf, 2.0 + 0.01 * xf - 0.03 * yf);
                     }
                 }
             }
         }
-        assert_eq!(depth_slopes(&line), (0.0, 0.0));
-        let (sx, sy) = depth_slopes(&plane);
+        assert_eq!(line.depth.slopes(), (0.0, 0.0));
+        let (sx, sy) = plane.depth.slopes();
         assert!(
             (sx - 0.01).abs() < 1e-9 && (sy + 0.03).abs() < 1e-9,
             "{sx} {sy}"

@@ -32,6 +32,7 @@ use std::cmp::Ordering;
 use std::collections::BinaryHeap;
 
 use crate::color::Lab;
+use crate::features::DepthSums;
 use crate::ids::SegmentId;
 use crate::scene::Scene;
 
@@ -164,43 +165,23 @@ fn fit_plane(scene: &Scene, segment: usize) -> Option<(f64, f64, f64)> {
             }
         }
     }
-    let first = least_squares_plane(&points)?;
-    let kept: Vec<(f64, f64, f64)> = points
-        .iter()
-        .copied()
-        .filter(|&(x, y, z)| (first.0 * x + first.1 * y + first.2 - z).abs() <= CREASE_JUMP * z)
-        .collect();
-    least_squares_plane(&kept).or(Some(first))
+    let first = plane_through(&points)?;
+    let near = |&&(x, y, z): &&(f64, f64, f64)| {
+        (first.0 * x + first.1 * y + first.2 - z).abs() <= CREASE_JUMP * z
+    };
+    plane_through(points.iter().filter(near)).or(Some(first))
 }
 
-/// Ordinary least squares for `z = sx * x + sy * y + c` (normal equations, centred); `None` for fewer than
-/// three points or points on one line.
-fn least_squares_plane(points: &[(f64, f64, f64)]) -> Option<(f64, f64, f64)> {
-    if points.len() < 3 {
-        return None;
-    }
-    let n = points.len() as f64;
-    let (mx, my, mz) = points
-        .iter()
-        .fold((0.0, 0.0, 0.0), |(a, b, c), &(x, y, z)| {
-            (a + x / n, b + y / n, c + z / n)
-        });
-    let (mut xx, mut xy, mut yy, mut xz, mut yz) = (0.0, 0.0, 0.0, 0.0, 0.0);
+/// The least-squares plane `z = sx * x + sy * y + c` through some points (`crate::features::DepthSums`, the
+/// fit behind the classifier's depth slope features); `None` for fewer than three.
+fn plane_through<'a>(
+    points: impl IntoIterator<Item = &'a (f64, f64, f64)>,
+) -> Option<(f64, f64, f64)> {
+    let mut sums = DepthSums::default();
     for &(x, y, z) in points {
-        let (dx, dy, dz) = (x - mx, y - my, z - mz);
-        xx += dx * dx;
-        xy += dx * dy;
-        yy += dy * dy;
-        xz += dx * dz;
-        yz += dy * dz;
+        sums.add(x, y, z);
     }
-    let determinant = xx * yy - xy * xy;
-    if determinant.abs() < 1e-9 * (xx * yy).max(1e-12) || determinant == 0.0 {
-        return Some((0.0, 0.0, mz));
-    }
-    let sx = (xz * yy - yz * xy) / determinant;
-    let sy = (yz * xx - xz * xy) / determinant;
-    Some((sx, sy, mz - sx * mx - sy * my))
+    sums.plane()
 }
 
 /// Two planes missing each other where their segments meet by more than this share of the depth there are a
@@ -476,12 +457,12 @@ mod tests {
                 (0..10).map(move |y| (f64::from(x), f64::from(y), 3000.0 + 2.0 * f64::from(x)))
             })
             .collect();
-        let plain = least_squares_plane(&points).expect("plane");
+        let plain = plane_through(&points).expect("plane");
         assert!(
             (plain.0 - 2.0).abs() < 1e-9 && plain.1.abs() < 1e-9 && (plain.2 - 3000.0).abs() < 1e-6
         );
         points.truncate(3);
-        assert!(least_squares_plane(&points).is_some());
-        assert!(least_squares_plane(&points[..2]).is_none());
+        assert!(plane_through(&points).is_some());
+        assert!(plane_through(&points[..2]).is_none());
     }
 }

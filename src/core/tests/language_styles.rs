@@ -149,6 +149,45 @@ fn print_figures(title: &str, result: &Score) {
     }
 }
 
+/// What a file's figures must stay within: at least `lines` lines, recall at least `floor`%, at most
+/// `most_spurious` constraints from non-corrections and `most_unasked` relabels nobody asked for.
+struct Limits {
+    lines: usize,
+    floor: f64,
+    most_spurious: usize,
+    most_unasked: usize,
+}
+
+/// Scores `file`, prints its summary figures (never its lines) under `title`, and checks `limits`.
+fn report_summary_only(grammar: &Grammar, file: &str, title: &str, limits: Limits) {
+    let result = score(grammar, &load(file));
+    print_figures(title, &result);
+    assert!(
+        result.total >= limits.lines,
+        "{file} has {} lines",
+        result.total
+    );
+    assert!(
+        recall(result.passed, result.total) >= limits.floor,
+        "{file}: recall {}/{} fell below {}%",
+        result.passed,
+        result.total,
+        limits.floor
+    );
+    assert!(
+        result.unasked_relabels <= limits.most_unasked,
+        "{} relabels nobody asked for in {file}, more than {}",
+        result.unasked_relabels,
+        limits.most_unasked
+    );
+    assert!(
+        result.spurious_constraints <= limits.most_spurious,
+        "{} constraints from non-corrections in {file}, more than {}",
+        result.spurious_constraints,
+        limits.most_spurious
+    );
+}
+
 /// Per-style floors on the development file: what the parser reached when the floors were last raised
 /// (a regression fails the test).
 /// Measured 2026-12-05 (session 5): 167 of 167 lines in every style (1002/1002).
@@ -203,28 +242,17 @@ const HELDOUT_MAX_SPURIOUS: usize = 1;
 /// The held-out file is run for its figures only; its lines are never printed.
 #[test]
 fn heldout_styles_figures_are_reported() {
-    let grammar = grammar();
-    let result = score(&grammar, &load("styles_heldout.jsonl"));
-    print_figures("styles held-out", &result);
-    assert!(
-        result.total >= 450,
-        "the held-out file has {} lines",
-        result.total
-    );
-    assert!(
-        recall(result.passed, result.total) >= HELDOUT_FLOOR,
-        "held-out recall {}/{} fell below {HELDOUT_FLOOR}%",
-        result.passed,
-        result.total
-    );
-    assert_eq!(
-        result.unasked_relabels, 0,
-        "a relabel nobody asked for on the held-out file"
-    );
-    assert!(
-        result.spurious_constraints <= HELDOUT_MAX_SPURIOUS,
-        "{} constraints from non-corrections on the held-out file",
-        result.spurious_constraints
+    let limits = Limits {
+        lines: 450,
+        floor: HELDOUT_FLOOR,
+        most_spurious: HELDOUT_MAX_SPURIOUS,
+        most_unasked: 0,
+    };
+    report_summary_only(
+        &grammar(),
+        "styles_heldout.jsonl",
+        "styles held-out",
+        limits,
     );
 }
 
@@ -285,27 +313,17 @@ const FRESH_HELDOUT_FLOOR: f64 = 92.8;
 /// The fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
 fn fresh_heldout_styles_figures_are_reported() {
-    let grammar = grammar();
-    let result = score(&grammar, &load("styles_fresh_heldout.jsonl"));
-    print_figures("styles fresh held-out", &result);
-    assert!(
-        result.total >= 150,
-        "the fresh held-out file has {} lines",
-        result.total
-    );
-    assert!(
-        recall(result.passed, result.total) >= FRESH_HELDOUT_FLOOR,
-        "fresh held-out recall {}/{} fell below {FRESH_HELDOUT_FLOOR}%",
-        result.passed,
-        result.total
-    );
-    assert_eq!(
-        result.unasked_relabels, 0,
-        "a relabel nobody asked for on the fresh held-out file"
-    );
-    assert_eq!(
-        result.spurious_constraints, 0,
-        "constraints from non-corrections on the fresh held-out file"
+    let limits = Limits {
+        lines: 150,
+        floor: FRESH_HELDOUT_FLOOR,
+        most_spurious: 0,
+        most_unasked: 0,
+    };
+    report_summary_only(
+        &grammar(),
+        "styles_fresh_heldout.jsonl",
+        "styles fresh held-out",
+        limits,
     );
 }
 
@@ -371,27 +389,17 @@ const FRESH2_HELDOUT_FLOOR: f64 = 94.6;
 /// The second fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
 fn fresh2_heldout_styles_figures_are_reported() {
-    let grammar = grammar();
-    let result = score(&grammar, &load("styles_fresh2_heldout.jsonl"));
-    print_figures("styles fresh2 held-out", &result);
-    assert!(
-        result.total >= 150,
-        "the second fresh held-out file has {} lines",
-        result.total
-    );
-    assert!(
-        recall(result.passed, result.total) >= FRESH2_HELDOUT_FLOOR,
-        "second fresh held-out recall {}/{} fell below {FRESH2_HELDOUT_FLOOR}%",
-        result.passed,
-        result.total
-    );
-    assert_eq!(
-        result.unasked_relabels, 0,
-        "a relabel nobody asked for on the second fresh held-out file"
-    );
-    assert_eq!(
-        result.spurious_constraints, 0,
-        "constraints from non-corrections on the second fresh held-out file"
+    let limits = Limits {
+        lines: 150,
+        floor: FRESH2_HELDOUT_FLOOR,
+        most_spurious: 0,
+        most_unasked: 0,
+    };
+    report_summary_only(
+        &grammar(),
+        "styles_fresh2_heldout.jsonl",
+        "styles fresh2 held-out",
+        limits,
     );
 }
 
@@ -453,27 +461,17 @@ const FRESH3_HELDOUT_FLOOR: f64 = 94.6;
 /// The third fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
 fn fresh3_heldout_styles_figures_are_reported() {
-    let grammar = grammar();
-    let result = score(&grammar, &load("styles_fresh3_heldout.jsonl"));
-    print_figures("styles fresh3 held-out", &result);
-    assert!(
-        result.total >= 150,
-        "the third fresh held-out file has {} lines",
-        result.total
-    );
-    assert!(
-        recall(result.passed, result.total) >= FRESH3_HELDOUT_FLOOR,
-        "third fresh held-out recall {}/{} fell below {FRESH3_HELDOUT_FLOOR}%",
-        result.passed,
-        result.total
-    );
-    assert_eq!(
-        result.unasked_relabels, 0,
-        "a relabel nobody asked for on the third fresh held-out file"
-    );
-    assert_eq!(
-        result.spurious_constraints, 0,
-        "constraints from non-corrections on the third fresh held-out file"
+    let limits = Limits {
+        lines: 150,
+        floor: FRESH3_HELDOUT_FLOOR,
+        most_spurious: 0,
+        most_unasked: 0,
+    };
+    report_summary_only(
+        &grammar(),
+        "styles_fresh3_heldout.jsonl",
+        "styles fresh3 held-out",
+        limits,
     );
 }
 
@@ -523,28 +521,17 @@ fn fresh4_development_styles_recall() {
 /// The fourth fresh held-out file is run for its figures only; its lines are never printed.
 #[test]
 fn fresh4_heldout_styles_figures_are_reported() {
-    let grammar = grammar();
-    let result = score(&grammar, &load("styles_fresh4_heldout.jsonl"));
-    print_figures("styles fresh4 held-out", &result);
-    assert!(
-        result.total >= 150,
-        "the fourth fresh held-out file has {} lines",
-        result.total
-    );
-    assert!(
-        recall(result.passed, result.total) >= FRESH4_HELDOUT_FLOOR,
-        "fourth fresh held-out recall {}/{} fell below {FRESH4_HELDOUT_FLOOR}%",
-        result.passed,
-        result.total
-    );
-    assert_eq!(
-        result.unasked_relabels, 0,
-        "a relabel nobody asked for on the fourth fresh held-out file"
-    );
-    assert!(
-        result.spurious_constraints <= FRESH4_HELDOUT_MAX_SPURIOUS,
-        "{} constraints from non-corrections on the fourth fresh held-out file",
-        result.spurious_constraints
+    let limits = Limits {
+        lines: 150,
+        floor: FRESH4_HELDOUT_FLOOR,
+        most_spurious: FRESH4_HELDOUT_MAX_SPURIOUS,
+        most_unasked: 0,
+    };
+    report_summary_only(
+        &grammar(),
+        "styles_fresh4_heldout.jsonl",
+        "styles fresh4 held-out",
+        limits,
     );
 }
 
@@ -565,25 +552,13 @@ const FRESH5_FLOORS: [(&str, usize, f64, usize, usize); 2] = [
 fn fresh5_styles_figures_are_reported() {
     let grammar = grammar();
     for (file, lines, floor, most_spurious, most_unasked) in FRESH5_FLOORS {
-        let result = score(&grammar, &load(file));
-        print_figures(file, &result);
-        assert!(result.total >= lines, "{file} has {} lines", result.total);
-        assert!(
-            recall(result.passed, result.total) >= floor,
-            "{file}: recall {}/{} fell below {floor}%",
-            result.passed,
-            result.total
-        );
-        assert!(
-            result.unasked_relabels <= most_unasked,
-            "{} relabels nobody asked for in {file}, more than {most_unasked}",
-            result.unasked_relabels
-        );
-        assert!(
-            result.spurious_constraints <= most_spurious,
-            "{} constraints from non-corrections in {file}, more than {most_spurious}",
-            result.spurious_constraints
-        );
+        let limits = Limits {
+            lines,
+            floor,
+            most_spurious,
+            most_unasked,
+        };
+        report_summary_only(&grammar, file, file, limits);
     }
 }
 
